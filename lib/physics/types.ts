@@ -1,0 +1,163 @@
+/**
+ * The contract between the collision engine (lib/physics) and everything that
+ * drives it (lib/sweeps, workers, the app). Plain data, SI units, every field
+ * named with its unit. The sweep spec's zod schema (lib/sweeps/spec.ts) parses
+ * user input into exactly these shapes; the engine trusts them.
+ */
+
+export type IntegratorName = "symplectic-euler" | "velocity-verlet" | "explicit-euler";
+export const INTEGRATORS: readonly IntegratorName[] = ["symplectic-euler", "velocity-verlet", "explicit-euler"];
+
+export type ContactModelName = "linear" | "hertz";
+export const CONTACT_MODELS: readonly ContactModelName[] = ["linear", "hertz"];
+
+export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable";
+/** Precedence: the first verdict whose condition holds wins. */
+export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
+
+/** Two discs; body A moves towards body B along +x. */
+export interface PairScene {
+  kind: "pair";
+  massAKg: number;
+  massBKg: number;
+  radiusAM: number;
+  radiusBM: number;
+  /** Speed of A along +x. */
+  speedAMPerS: number;
+  /** Speed of B along -x (towards A); 0 for a body at rest. */
+  speedBMPerS: number;
+  /** Impact parameter as a fraction of the sum of radii: 0 head-on, towards 1 glancing. In [0, 1). */
+  offsetFraction: number;
+  /** Surface-to-surface gap along x at t = 0 (≥ 0). */
+  gapM: number;
+}
+
+/** One disc hitting a static wall (the line x = 0, disc starting at x > 0 moving towards it). */
+export interface WallScene {
+  kind: "wall";
+  massKg: number;
+  radiusM: number;
+  speedMPerS: number;
+  /** Angle between the velocity and the wall normal: 0 is head-on, towards 90 grazing. In [0, 90). */
+  angleDeg: number;
+  gapM: number;
+}
+
+/** `count` resting discs in a row along x, struck head-on by one more disc (the striker). */
+export interface RowScene {
+  kind: "row";
+  count: number;
+  massKg: number;
+  radiusM: number;
+  strikerMassKg: number;
+  strikerSpeedMPerS: number;
+  /** Surface gap between neighbouring resting discs (0 = touching). */
+  spacingM: number;
+  /** Surface gap between the striker and the first disc. */
+  gapM: number;
+}
+
+/** `count` discs in a walled box [0, width] × [0, height], seeded positions and velocities. */
+export interface BoxScene {
+  kind: "box";
+  count: number;
+  massKg: number;
+  radiusM: number;
+  widthM: number;
+  heightM: number;
+  /** Initial speeds are drawn uniformly in [0, maxSpeedMPerS] with uniform directions. */
+  maxSpeedMPerS: number;
+  /** Gravity along -y (0 for none). */
+  gravityMPerS2: number;
+}
+
+export type Scene = PairScene | WallScene | RowScene | BoxScene;
+export type SceneKind = Scene["kind"];
+
+export type Damping =
+  | { kind: "none" }
+  /** linear: c in N·s/m; hertz (Tsuji-type): η in N·s/m^(5/4), force −η·δ^(1/4)·δ̇. */
+  | { kind: "coefficient"; value: number }
+  /** Target coefficient of restitution e in (0, 1], converted by the engine. */
+  | { kind: "restitution"; value: number };
+
+export interface ContactSpec {
+  model: ContactModelName;
+  /** linear: k in N/m. hertz: k_H in N/m^(3/2), used when `material` is absent. */
+  stiffness?: number;
+  /** hertz only: k_H derived from Young's modulus and Poisson ratio (and the radii). */
+  material?: { youngsModulusPa: number; poissonRatio: number };
+  damping: Damping;
+}
+
+export interface Tolerances {
+  /** Energy gain (relative) above which a run is "energy-drift". */
+  energyDriftRel: number;
+  /** Maximum overlap as a fraction of the smaller radius above which a run is "deep-overlap". */
+  maxOverlapFraction: number;
+  /** Energy growth factor (relative to the initial energy) treated as a blow-up; the run stops there. */
+  blowUpEnergyFactor: number;
+}
+
+export interface Scenario {
+  scene: Scene;
+  contact: ContactSpec;
+  integrator: IntegratorName;
+  /** Frame step. */
+  dtS: number;
+  /** Substeps per frame step (integer ≥ 1); the integrator advances by dtS / substeps. */
+  substeps: number;
+  durationS: number;
+  tolerances: Tolerances;
+  /** Seed of the one random generator (box scene positions and velocities). */
+  seed: number;
+}
+
+export interface Metrics {
+  /** (P_end − P_start) / |P_start| per component (|P_start| falls back to Σ m|v| when the total is 0). */
+  momentumDriftRelX: number;
+  momentumDriftRelY: number;
+  /** (E_end − E_start) / E_start, E = kinetic + contact potential. */
+  energyErrorRel: number;
+  /** max over the run of (E(t) − E_start) / E_start. */
+  maxEnergyErrorRel: number;
+  /** Normal restitution measured from the relative normal velocity after vs before the first contact; null if no contact ended. */
+  effectiveRestitution: number | null;
+  /** Maximum overlap over the run as a fraction of the smaller radius of the overlapping pair. */
+  maxOverlapFraction: number;
+  /** Duration of the first contact (s); null if no contact ended within the run. */
+  contactDurationS: number | null;
+  /** Integrator steps (substeps) with at least one overlapping pair. */
+  contactSteps: number;
+  tunneled: boolean;
+  exploded: boolean;
+  /** Integrator steps actually taken or skipped over analytically (counts as duration / (dt/substeps) when the run completes). */
+  steps: number;
+}
+
+export interface TimeSeries {
+  /** Sample times (s). */
+  tS: number[];
+  /** Per body, per sample. */
+  bodies: { xM: number[]; yM: number[]; pxNs: number[]; pyNs: number[] }[];
+  totalPxNs: number[];
+  totalPyNs: number[];
+  kineticJ: number[];
+  potentialJ: number[];
+  totalJ: number[];
+  /** Largest overlap among all pairs (m). */
+  maxOverlapM: number[];
+}
+
+export interface RunResult {
+  metrics: Metrics;
+  verdict: Verdict;
+  /** Why the verdict (short, human readable; e.g. "energy grew ×1e6 at t = 0.12 s"). */
+  reason: string;
+  series?: TimeSeries;
+}
+
+export interface RunOptions {
+  /** Record a time series with at most this many samples (evenly spaced in steps). 0 or absent: none. */
+  maxSamples?: number;
+}
