@@ -1,0 +1,34 @@
+#!/usr/bin/env bash
+# Every test Kickdrift has, in the order a reviewer would want them to fail:
+# lint, typecheck, unit + integration (Vitest), production build, browser tests (Playwright + Debian chromium).
+set -euo pipefail
+cd "$(dirname "$0")/.."
+mkdir -p .build
+
+step() { printf '\n==> %s\n' "$*"; }
+
+step "lint"
+npx eslint .
+
+step "typecheck"
+npx tsc --noEmit
+
+step "unit and integration tests"
+npx vitest run --reporter=default --reporter=json --outputFile.json=.build/vitest.json
+
+step "production build"
+npm run build
+
+step "browser tests"
+if [ ! -x /usr/bin/chromium ]; then
+  if [ "$(id -u)" = "0" ] && command -v apt-get >/dev/null; then
+    echo "Debian chromium is missing: installing it (apt-get install -y chromium)"
+    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null
+  else
+    echo "Browser tests need Debian's chromium at /usr/bin/chromium: run 'sudo apt-get install -y chromium' and try again." >&2
+    exit 1
+  fi
+fi
+PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json
+
+node scripts/test-summary.mjs .build/vitest.json .build/playwright.json
