@@ -1,12 +1,38 @@
+import type { Metadata } from "next";
 import type { ReactNode } from "react";
 import "./globals.css";
+import { monoFont, sansFont } from "./fonts";
+import { Providers } from "@/components/providers";
+import { SiteFooter } from "@/components/site-footer";
+import { SiteHeader } from "@/components/site-header";
+import { mailboxEnabled } from "@/lib/ui/mailbox";
+import { THEME_BOOT_SCRIPT } from "@/lib/ui/theme";
 
-export const metadata = { title: "Kickdrift" };
+export const metadata: Metadata = {
+  title: { default: "Kickdrift — stability maps for game collision physics", template: "%s · Kickdrift" },
+  description:
+    "Kickdrift sweeps stiffness, timestep, mass ratio and speed of your game's contacts on our compute and shows where each integrator holds and where it fails.",
+};
 
 export default function RootLayout({ children }: { children: ReactNode }) {
   return (
-    <html lang="en">
-      <body>{children}</body>
+    // data-theme is set before hydration by the boot script, so React must not complain about it.
+    <html lang="en" className={`${sansFont.variable} ${monoFont.variable}`} suppressHydrationWarning>
+      <head>
+        <script dangerouslySetInnerHTML={{ __html: THEME_BOOT_SCRIPT }} />
+      </head>
+      <body className="flex min-h-screen flex-col bg-paper font-sans text-ink">
+        <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-4 focus:top-4 focus:z-50 focus:rounded-md focus:bg-surface focus:px-3 focus:py-2">
+          Skip to content
+        </a>
+        <Providers>
+          <SiteHeader mailboxEnabled={mailboxEnabled()} />
+          <main id="main" className="mx-auto w-full max-w-6xl flex-1 px-4 py-8 sm:px-6">
+            {children}
+          </main>
+          <SiteFooter />
+        </Providers>
+      </body>
     </html>
   );
 }

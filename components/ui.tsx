@@ -1,0 +1,174 @@
+import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
+import Link from "next/link";
+
+/** Small presentational building blocks shared by every page. */
+
+export function cx(...parts: (string | false | null | undefined)[]): string {
+  return parts.filter(Boolean).join(" ");
+}
+
+type ButtonVariant = "primary" | "secondary" | "danger" | "ghost";
+
+const BUTTON_VARIANTS: Record<ButtonVariant, string> = {
+  primary: "bg-action text-action-ink hover:bg-action-hover border border-transparent",
+  secondary: "bg-surface text-ink border border-line hover:bg-surface-muted",
+  danger: "bg-surface text-danger border border-danger/60 hover:bg-danger-soft",
+  ghost: "bg-transparent text-ink border border-transparent hover:bg-surface-muted",
+};
+
+export function buttonClasses(variant: ButtonVariant = "primary", extra?: string): string {
+  return cx(
+    "inline-flex items-center justify-center gap-2 rounded-md px-4 py-2 text-sm font-semibold transition-colors disabled:cursor-not-allowed disabled:opacity-60",
+    BUTTON_VARIANTS[variant],
+    extra,
+  );
+}
+
+export function Button({
+  variant = "primary",
+  className,
+  type = "button",
+  ...rest
+}: ButtonHTMLAttributes<HTMLButtonElement> & { variant?: ButtonVariant }) {
+  return <button type={type} className={buttonClasses(variant, className)} {...rest} />;
+}
+
+export function ButtonLink({ href, variant = "primary", children, className }: { href: string; variant?: ButtonVariant; children: ReactNode; className?: string }) {
+  return (
+    <Link href={href} className={buttonClasses(variant, className)}>
+      {children}
+    </Link>
+  );
+}
+
+const inputClasses =
+  "block w-full rounded-md border border-line bg-surface px-3 py-2 text-sm text-ink placeholder:text-ink-muted/70 aria-[invalid=true]:border-danger";
+
+/** A labelled input with its hint and error tied to it through aria-describedby. */
+export function TextField({
+  id,
+  label,
+  error,
+  hint,
+  ...rest
+}: InputHTMLAttributes<HTMLInputElement> & { id: string; label: string; error?: string; hint?: string }) {
+  const describedBy = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(" ") || undefined;
+  return (
+    <div className="space-y-1">
+      <label htmlFor={id} className="block text-sm font-medium text-ink">
+        {label}
+      </label>
+      <input id={id} aria-invalid={error ? true : undefined} aria-describedby={describedBy} className={inputClasses} {...rest} />
+      {hint ? (
+        <p id={`${id}-hint`} className="text-xs text-ink-muted">
+          {hint}
+        </p>
+      ) : null}
+      {error ? (
+        <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
+          {error}
+        </p>
+      ) : null}
+    </div>
+  );
+}
+
+export function SelectField({
+  id,
+  label,
+  error,
+  children,
+  ...rest
+}: SelectHTMLAttributes<HTMLSelectElement> & { id: string; label: string; error?: string; children: ReactNode }) {
+  return (
+    <div className="space-y-1">
+      <label htmlFor={id} className="block text-sm font-medium text-ink">
+        {label}
+      </label>
+      <select id={id} aria-invalid={error ? true : undefined} aria-describedby={error ? `${id}-error` : undefined} className={inputClasses} {...rest}>
+        {children}
+      </select>
+      {error ? (
+        <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
+          {error}
+        </p>
+      ) : null}
+    </div>
+  );
+}
+
+export function Card({ title, actions, children, className }: { title?: ReactNode; actions?: ReactNode; children: ReactNode; className?: string }) {
+  return (
+    <section className={cx("rounded-lg border border-line bg-surface p-5 shadow-[0_1px_0_var(--kd-line)]", className)}>
+      {title || actions ? (
+        <div className="mb-4 flex flex-wrap items-center justify-between gap-3">
+          {title ? <h2 className="text-base font-semibold tracking-tight">{title}</h2> : <span />}
+          {actions}
+        </div>
+      ) : null}
+      {children}
+    </section>
+  );
+}
+
+export function Alert({ tone = "danger", children }: { tone?: "danger" | "ok" | "info"; children: ReactNode }) {
+  const tones = {
+    danger: "border-danger/50 bg-danger-soft text-danger",
+    ok: "border-ok/50 bg-ok-soft text-ok",
+    info: "border-line bg-warn-soft text-ink",
+  } as const;
+  return (
+    <div role={tone === "danger" ? "alert" : "status"} className={cx("rounded-md border px-4 py-3 text-sm font-medium", tones[tone])}>
+      {children}
+    </div>
+  );
+}
+
+export function PageHeading({ eyebrow, title, children }: { eyebrow?: ReactNode; title: ReactNode; children?: ReactNode }) {
+  return (
+    <div className="mb-8 space-y-2">
+      {eyebrow ? <p className="font-mono text-xs uppercase tracking-[0.18em] text-kick">{eyebrow}</p> : null}
+      <h1 className="text-3xl font-bold tracking-tight">{title}</h1>
+      {children ? <div className="max-w-2xl text-ink-muted">{children}</div> : null}
+    </div>
+  );
+}
+
+export function RoleBadge({ role }: { role: string }) {
+  const tones: Record<string, string> = {
+    owner: "border-kick/50 text-kick",
+    engineer: "border-action/50 text-action",
+    finance: "border-ok/50 text-ok",
+    admin: "border-ink/40 text-ink",
+  };
+  return (
+    <span className={cx("inline-flex items-center rounded-full border px-2 py-0.5 font-mono text-xs", tones[role] ?? "border-line text-ink-muted")}>
+      {role}
+    </span>
+  );
+}
+
+export function EmptyState({ children }: { children: ReactNode }) {
+  return <p className="rounded-md border border-dashed border-line px-4 py-6 text-center text-sm text-ink-muted">{children}</p>;
+}
+
+export function LoadingRows({ label }: { label: string }) {
+  return (
+    <p className="py-4 text-sm text-ink-muted" role="status">
+      Loading {label}…
+    </p>
+  );
+}
+
+/** A narrow centred panel for the sign-in family of pages. */
+export function AuthPanel({ title, intro, children }: { title: string; intro?: ReactNode; children: ReactNode }) {
+  return (
+    <div className="mx-auto w-full max-w-md py-12">
+      <div className="rounded-xl border border-line bg-surface p-8 shadow-sm">
+        <h1 className="text-2xl font-bold tracking-tight">{title}</h1>
+        {intro ? <div className="mt-2 text-sm text-ink-muted">{intro}</div> : null}
+        <div className="mt-6">{children}</div>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,49 @@
+/**
+ * Credit packs of compute minutes, shown on the landing page and sold by the billing issue.
+ * Prices are integer cents, before tax (tax handling is out of scope).
+ */
+export type CreditPack = {
+  id: string;
+  name: string;
+  minutes: number;
+  priceCents: number;
+  currency: "usd";
+  summary: string;
+};
+
+export const CREDIT_PACKS: readonly CreditPack[] = [
+  {
+    id: "pack_tapout",
+    name: "Tap-out",
+    minutes: 120,
+    priceCents: 900,
+    currency: "usd",
+    summary: "A few small grids to check one contact before a playtest.",
+  },
+  {
+    id: "pack_rebound",
+    name: "Rebound",
+    minutes: 750,
+    priceCents: 4500,
+    currency: "usd",
+    summary: "A milestone's worth of sweeps across every body pair in a level.",
+  },
+  {
+    id: "pack_longhaul",
+    name: "Long Haul",
+    minutes: 4000,
+    priceCents: 19900,
+    currency: "usd",
+    summary: "Nightly sweeps for a team shipping on several frame rates.",
+  },
+] as const;
+
+/** Formats integer cents as a US-dollar amount, e.g. 4500 → "$45.00". */
+export function formatPriceCents(priceCents: number, currency: CreditPack["currency"] = "usd"): string {
+  return new Intl.NumberFormat("en-US", { style: "currency", currency: currency.toUpperCase() }).format(priceCents / 100);
+}
+
+/** Price of one compute minute in the pack, in cents, rounded to a tenth of a cent for display. */
+export function centsPerMinute(pack: CreditPack): number {
+  return Math.round((pack.priceCents / pack.minutes) * 10) / 10;
+}
