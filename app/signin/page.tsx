@@ -1,0 +1,21 @@
+import type { Metadata } from "next";
+import { SignInForm } from "@/components/auth/sign-in-form";
+import { Alert, AuthPanel } from "@/components/ui";
+import { safeCallbackUrl, signInErrorMessage } from "@/lib/ui/callback-url";
+import { mailboxEnabled } from "@/lib/ui/mailbox";
+
+export const metadata: Metadata = { title: "Sign in" };
+
+export default async function SignInPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
+  const params = await searchParams;
+  return (
+    <AuthPanel title="Sign in to Kickdrift" intro="Use your password, or have a one-time link sent to your inbox.">
+      {params.sent ? (
+        <div className="mb-6">
+          <Alert tone="ok">Check your inbox: we sent you a sign-in link. It works once.</Alert>
+        </div>
+      ) : null}
+      <SignInForm callbackUrl={safeCallbackUrl(params.callbackUrl)} initialError={signInErrorMessage(params.error)} mailboxEnabled={mailboxEnabled()} />
+    </AuthPanel>
+  );
+}
