@@ -1,0 +1,13 @@
+import { withAuth } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { acceptInvite } from "@/lib/studios/invites";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const POST = withAuth({ access: "user" }, async ({ params, user }) => {
+  return json({ studio: await acceptInvite(params.token, user) });
+});
+
+export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);

@@ -1,0 +1,14 @@
+import { publicUser } from "@/lib/auth/accounts";
+import { withAuth } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { studiosOfUser } from "@/lib/studios/studios";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = withAuth({ access: "user" }, async ({ user }) => {
+  return json({ user: publicUser(user), studios: await studiosOfUser(user.id) });
+});
+
+export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);

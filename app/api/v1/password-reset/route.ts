@@ -1,0 +1,17 @@
+import { passwordResetRequestSchema, requestPasswordReset } from "@/lib/auth/accounts";
+import { withAuth } from "@/lib/auth/guard";
+import { parseBody } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+// 202 whether or not the account exists, so the answer reveals nothing.
+export const POST = withAuth({ access: "public" }, async ({ req }) => {
+  const { email } = await parseBody(req, passwordResetRequestSchema);
+  await requestPasswordReset(email);
+  return json({ ok: true }, 202);
+});
+
+export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);

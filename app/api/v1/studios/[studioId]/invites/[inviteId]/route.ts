@@ -1,0 +1,14 @@
+import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { deleteInvite } from "@/lib/studios/invites";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
+  await deleteInvite(studio.id, params.inviteId);
+  return json({ deleted: { id: params.inviteId } });
+});
+
+export const { GET, POST, PUT, PATCH } = otherMethods(["DELETE"]);

@@ -1,0 +1,21 @@
+import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { parseBody } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { createInvite, createInviteSchema, listInvites } from "@/lib/studios/invites";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+// Any member sees who is invited (the studio home lists it); tokens never touch invites.
+export const GET = withAuth({ access: "studio", roles: "member", token: "never" }, async ({ studio }) => {
+  return json({ invites: await listInvites(studio.id) });
+});
+
+export const POST = withAuth(OWNERS_ONLY, async ({ req, studio, user }) => {
+  const input = await parseBody(req, createInviteSchema);
+  const { invite, mailSent } = await createInvite(studio.id, user!, input);
+  return json({ invite: { id: invite.id, email: invite.email, role: invite.role, expiresAt: invite.expiresAt }, mailSent }, 201);
+});
+
+export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);

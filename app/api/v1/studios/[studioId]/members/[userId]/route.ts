@@ -1,0 +1,20 @@
+import { OWNERS_ONLY, withAuth } from "@/lib/auth/guard";
+import { parseBody } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { changeRole, changeRoleSchema, removeMember } from "@/lib/studios/members";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const PATCH = withAuth(OWNERS_ONLY, async ({ req, studio, params }) => {
+  const { role } = await parseBody(req, changeRoleSchema);
+  return json({ member: await changeRole(studio.id, params.userId, role) });
+});
+
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
+  await removeMember(studio.id, params.userId);
+  return json({ removed: { userId: params.userId } });
+});
+
+export const { GET, POST, PUT } = otherMethods(["PATCH", "DELETE"]);

@@ -1,0 +1,13 @@
+import { withAuth } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { listMembers } from "@/lib/studios/members";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = withAuth({ access: "studio", roles: "member", token: "read" }, async ({ studio }) => {
+  return json({ members: await listMembers(studio.id) });
+});
+
+export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);

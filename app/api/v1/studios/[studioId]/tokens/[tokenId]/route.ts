@@ -1,0 +1,14 @@
+import { revokeApiToken } from "@/lib/auth/api-tokens";
+import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+// Revokes; the row stays (with revokedAt) so the list still shows it.
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
+  return json({ token: await revokeApiToken(studio.id, params.tokenId) });
+});
+
+export const { GET, POST, PUT, PATCH } = otherMethods(["DELETE"]);

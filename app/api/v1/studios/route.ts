@@ -1,0 +1,19 @@
+import { withAuth } from "@/lib/auth/guard";
+import { parseBody } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { createStudio, createStudioSchema, studiosOfUser } from "@/lib/studios/studios";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = withAuth({ access: "user" }, async ({ user }) => {
+  return json({ studios: await studiosOfUser(user.id) });
+});
+
+export const POST = withAuth({ access: "user" }, async ({ req, user }) => {
+  const studio = await createStudio(user.id, await parseBody(req, createStudioSchema));
+  return json({ studio: { id: studio.id, name: studio.name, role: "owner" } }, 201);
+});
+
+export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);

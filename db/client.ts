@@ -1,0 +1,88 @@
+import { mkdirSync } from "node:fs";
+import path from "node:path";
+import type { PgDatabase, PgQueryResultHKT } from "drizzle-orm/pg-core";
+import * as schema from "./schema";
+
+/** The query API shared by the PGlite and node-postgres drivers. */
+export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
+/** A database handle or a transaction on it. */
+export type DbOrTx = Db | Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+interface DbHolder {
+  ready?: Promise<Db>;
+  close?: () => Promise<void>;
+}
+
+// One client per process: kept on globalThis so Next's hot reload and repeated imports reuse it
+// (PGlite cannot open the same folder twice).
+const holderKey = Symbol.for("kickdrift.db");
+const globalStore = globalThis as unknown as Record<symbol, DbHolder | undefined>;
+function holder(): DbHolder {
+  return (globalStore[holderKey] ??= {});
+}
+
+export function dataDir(): string {
+  return path.resolve(process.env.KICKDRIFT_DATA_DIR ?? "./data");
+}
+
+export function migrationsFolder(): string {
+  return path.join(process.cwd(), "drizzle");
+}
+
+async function openDb(): Promise<Db> {
+  const url = process.env.DATABASE_URL;
+  if (url) {
+    const [{ Pool }, { drizzle }, { migrate }] = await Promise.all([
+      import("pg"),
+      import("drizzle-orm/node-postgres"),
+      import("drizzle-orm/node-postgres/migrator"),
+    ]);
+    const pool = new Pool({ connectionString: url });
+    const db = drizzle(pool, { schema });
+    await migrate(db, { migrationsFolder: migrationsFolder() });
+    holder().close = () => pool.end();
+    return db as unknown as Db;
+  }
+  const [{ PGlite }, { drizzle }, { migrate }] = await Promise.all([
+    import("@electric-sql/pglite"),
+    import("drizzle-orm/pglite"),
+    import("drizzle-orm/pglite/migrator"),
+  ]);
+  const folder = path.join(dataDir(), "pglite");
+  mkdirSync(folder, { recursive: true });
+  const client = new PGlite(folder);
+  const db = drizzle(client, { schema });
+  await migrate(db, { migrationsFolder: migrationsFolder() });
+  holder().close = () => client.close();
+  return db as unknown as Db;
+}
+
+/** The process's database, migrated on first use. */
+export function getDb(): Promise<Db> {
+  const h = holder();
+  if (!h.ready) {
+    h.ready = openDb().catch((error: unknown) => {
+      // Let a later call retry instead of caching a failure forever.
+      h.ready = undefined;
+      throw error;
+    });
+  }
+  return h.ready;
+}
+
+/** Installs an already-migrated database as the process's client (tests use an in-memory PGlite). */
+export function setDb(db: Db, close?: () => Promise<void>): void {
+  const h = holder();
+  h.ready = Promise.resolve(db);
+  h.close = close;
+}
+
+export async function closeDb(): Promise<void> {
+  const h = holder();
+  const close = h.close;
+  h.ready = undefined;
+  h.close = undefined;
+  if (close) await close();
+}
+
+export { schema };

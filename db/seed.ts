@@ -1,0 +1,93 @@
+import { and, eq } from "drizzle-orm";
+import type { Db } from "./client";
+import { newId } from "./ids";
+import { memberships, studios, users, type StudioRole } from "./schema";
+import { hashPassword } from "@/lib/auth/password";
+
+/**
+ * The demo: an invented studio, Gannet Yard Games, tuning the physics of its invented arcade game
+ * "Crateslide" (hockey pucks knocking crates across an ice deck), with one person per role and a
+ * platform admin. The passwords are public on purpose: this data exists only for demos.
+ */
+export const DEMO_STUDIO_NAME = "Gannet Yard Games";
+
+export interface DemoAccount {
+  email: string;
+  password: string;
+  name: string;
+  role: StudioRole | "admin";
+}
+
+export const DEMO_ACCOUNTS: readonly DemoAccount[] = [
+  { email: "maren@gannetyard.test", password: "crateslide-owner", name: "Maren Okafor", role: "owner" },
+  { email: "tobiah@gannetyard.test", password: "crateslide-engineer", name: "Tobiah Lindqvist", role: "engineer" },
+  { email: "ines@gannetyard.test", password: "crateslide-finance", name: "Ines Varga", role: "finance" },
+  { email: "ops@kickdrift.test", password: "kickdrift-operator", name: "Kickdrift Operator", role: "admin" },
+];
+
+/** Creates whatever part of the demo is missing; running it again changes nothing. */
+export async function seedDemo(db: Db): Promise<{ studioId: string; created: boolean }> {
+  let created = false;
+  const userIds = new Map<string, string>();
+  for (const account of DEMO_ACCOUNTS) {
+    const [existing] = await db.select({ id: users.id }).from(users).where(eq(users.email, account.email));
+    if (existing) {
+      userIds.set(account.email, existing.id);
+      continue;
+    }
+    const [row] = await db
+      .insert(users)
+      .values({
+        id: newId("usr"),
+        email: account.email,
+        name: account.name,
+        passwordHash: await hashPassword(account.password),
+        isAdmin: account.role === "admin",
+        emailVerified: new Date(),
+      })
+      .onConflictDoNothing({ target: users.email })
+      .returning({ id: users.id });
+    const id = row?.id ?? (await db.select({ id: users.id }).from(users).where(eq(users.email, account.email)))[0].id;
+    userIds.set(account.email, id);
+    created = true;
+  }
+  const owner = DEMO_ACCOUNTS.find((a) => a.role === "owner")!;
+  const ownerId = userIds.get(owner.email)!;
+  const [existingStudio] = await db
+    .select({ id: studios.id })
+    .from(studios)
+    .innerJoin(memberships, eq(memberships.studioId, studios.id))
+    .where(and(eq(studios.name, DEMO_STUDIO_NAME), eq(memberships.userId, ownerId), eq(memberships.role, "owner")));
+  let studioId = existingStudio?.id;
+  if (!studioId) {
+    studioId = newId("std");
+    await db.insert(studios).values({ id: studioId, name: DEMO_STUDIO_NAME });
+    created = true;
+  }
+  for (const account of DEMO_ACCOUNTS) {
+    if (account.role === "admin") continue; // the operator is not a member of customer studios
+    const inserted = await db
+      .insert(memberships)
+      .values({ studioId, userId: userIds.get(account.email)!, role: account.role })
+      .onConflictDoNothing()
+      .returning({ userId: memberships.userId });
+    if (inserted.length) created = true;
+  }
+  return { studioId, created };
+}
+
+/** Seeds only into an empty database (no users at all), as KICKDRIFT_DEMO=1 asks. */
+export async function seedDemoIfEmpty(db: Db): Promise<{ seeded: boolean }> {
+  const [anyUser] = await db.select({ id: users.id }).from(users).limit(1);
+  if (anyUser) return { seeded: false };
+  await seedDemo(db);
+  return { seeded: true };
+}
+
+export function demoSignInText(baseUrl: string): string {
+  const lines = [
+    `Kickdrift demo — sign in at ${baseUrl}/signin (studio "${DEMO_STUDIO_NAME}", invented demo data):`,
+    ...DEMO_ACCOUNTS.map((a) => `  ${a.role.padEnd(8)}  ${a.email.padEnd(24)}  password: ${a.password}`),
+  ];
+  return lines.join("\n");
+}

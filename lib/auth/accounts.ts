@@ -1,0 +1,150 @@
+import { and, eq, isNull } from "drizzle-orm";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { newId, newSecret, sha256Hex } from "@/db/ids";
+import { passwordResets, users, type User } from "@/db/schema";
+import { ApiError } from "@/lib/errors";
+import { passwordResetMail } from "@/lib/mail/templates";
+import { trySendMail } from "@/lib/mail/send";
+import { appBaseUrl } from "./config";
+import { accountKey, addressKey, isLocked, recordAttempt } from "./limiter";
+import { burnPasswordCheck, emailSchema, hashPassword, passwordSchema, verifyPassword } from "./password";
+
+/** The one message every failed password sign-in gets, whatever the reason (unknown account, wrong password, locked). */
+export const LOGIN_ERROR_MESSAGE = "Invalid e-mail or password";
+
+export const PASSWORD_RESET_TTL_MS = 60 * 60_000;
+
+export interface PublicUser {
+  id: string;
+  email: string;
+  name: string;
+  isAdmin: boolean;
+}
+
+export function publicUser(user: User): PublicUser {
+  return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin };
+}
+
+export const nameSchema = z
+  .string({ error: "Name is required." })
+  .trim()
+  .min(1, { error: "Name is required." })
+  .max(100, { error: "Name must be at most 100 characters." });
+
+export const signUpSchema = z.strictObject({ email: emailSchema, password: passwordSchema, name: nameSchema });
+
+function isUniqueViolation(error: unknown): boolean {
+  for (let e: unknown = error; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
+    if ((e as { code?: unknown }).code === "23505") return true;
+  }
+  return false;
+}
+
+export async function signUp(input: z.infer<typeof signUpSchema>): Promise<User> {
+  const db = await getDb();
+  const taken = () => new ApiError(409, "email_taken", "An account with this e-mail already exists.", "email");
+  const [existing] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email));
+  if (existing) throw taken();
+  const passwordHash = await hashPassword(input.password);
+  try {
+    const [user] = await db
+      .insert(users)
+      .values({ id: newId("usr"), email: input.email, name: input.name, passwordHash })
+      .returning();
+    return user;
+  } catch (error) {
+    if (isUniqueViolation(error)) throw taken();
+    throw error;
+  }
+}
+
+/**
+ * Password sign-in with limiting per account and per client address. Returns the user, or null
+ * for every kind of failure so the caller shows one generic message.
+ */
+export async function authenticateWithPassword(rawEmail: unknown, rawPassword: unknown, address: string): Promise<User | null> {
+  if (typeof rawEmail !== "string" || typeof rawPassword !== "string") return null;
+  const email = rawEmail.trim().toLowerCase();
+  const password = rawPassword;
+  if (email === "" || password.length > 1000) return null;
+  const db = await getDb();
+  const keys = [accountKey(email), addressKey(address)];
+  for (const key of keys) {
+    if (await isLocked(db, key)) return null;
+  }
+  const [user] = await db.select().from(users).where(eq(users.email, email));
+  let ok = false;
+  if (user?.passwordHash) ok = await verifyPassword(password, user.passwordHash);
+  else await burnPasswordCheck(password);
+  if (!ok || !user) {
+    await recordAttempt(db, keys, false);
+    return null;
+  }
+  // A success clears the account's count; the address's count is never cleared by a success,
+  // so one working account cannot be used to keep guessing others from the same address.
+  await recordAttempt(db, [accountKey(email)], true);
+  return user;
+}
+
+export const passwordResetRequestSchema = z.strictObject({ email: emailSchema });
+export const passwordResetConfirmSchema = z.strictObject({
+  token: z.string({ error: "Token is required." }).min(1, { error: "Token is required." }).max(200, { error: "Token is too long." }),
+  password: passwordSchema,
+});
+
+/** At most this many reset mails per account per hour (common practice against mail flooding). */
+const RESET_MAILS_PER_HOUR = 5;
+
+/** Always succeeds from the caller's view, so the answer does not reveal whether an account exists. */
+export async function requestPasswordReset(email: string): Promise<void> {
+  const db = await getDb();
+  const [user] = await db.select().from(users).where(eq(users.email, email));
+  if (!user) return;
+  const hourAgo = new Date(Date.now() - 3600_000);
+  const recent = await db.select({ createdAt: passwordResets.createdAt }).from(passwordResets).where(eq(passwordResets.userId, user.id));
+  if (recent.filter((r) => r.createdAt > hourAgo).length >= RESET_MAILS_PER_HOUR) return;
+  const secret = newSecret();
+  await db.insert(passwordResets).values({
+    id: newId("pwr"),
+    userId: user.id,
+    tokenHash: sha256Hex(secret),
+    expiresAt: new Date(Date.now() + PASSWORD_RESET_TTL_MS),
+  });
+  await trySendMail(user.email, passwordResetMail({ url: `${appBaseUrl()}/reset/${encodeURIComponent(secret)}` }));
+}
+
+export async function confirmPasswordReset(input: z.infer<typeof passwordResetConfirmSchema>): Promise<void> {
+  const db = await getDb();
+  const passwordHash = await hashPassword(input.password);
+  await db.transaction(async (tx) => {
+    const [reset] = await tx
+      .select()
+      .from(passwordResets)
+      .where(eq(passwordResets.tokenHash, sha256Hex(input.token)))
+      .for("update");
+    if (!reset) throw new ApiError(400, "reset_token_invalid", "This reset link is not valid.", "token");
+    if (reset.usedAt) throw new ApiError(410, "reset_token_used", "This reset link has already been used.", "token");
+    if (reset.expiresAt.getTime() <= Date.now())
+      throw new ApiError(410, "reset_token_expired", "This reset link has expired; ask for a new one.", "token");
+    const now = new Date();
+    // Using one link spends every other open link of the account too.
+    await tx
+      .update(passwordResets)
+      .set({ usedAt: now })
+      .where(and(eq(passwordResets.userId, reset.userId), isNull(passwordResets.usedAt)));
+    const [user] = await tx
+      .update(users)
+      .set({ passwordHash, emailVerified: now })
+      .where(eq(users.id, reset.userId))
+      .returning();
+    // Proving control of the mailbox lifts a lock on the account.
+    await recordAttempt(tx, [accountKey(user.email)], true, now);
+  });
+}
+
+export async function findUserById(id: string): Promise<User | undefined> {
+  const db = await getDb();
+  const [user] = await db.select().from(users).where(eq(users.id, id));
+  return user;
+}

@@ -1,0 +1,105 @@
+import { and, desc, eq } from "drizzle-orm";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { newId, sha256Hex } from "@/db/ids";
+import { API_TOKEN_SCOPES, apiTokens, type ApiToken, type ApiTokenScope } from "@/db/schema";
+import { randomBytes } from "node:crypto";
+import { ApiError } from "@/lib/errors";
+
+export const API_TOKEN_SECRET_PREFIX = "kd_";
+/** Characters of the secret kept in clear for display ("kd_" plus 8). */
+const DISPLAY_PREFIX_LENGTH = 11;
+/** lastUsedAt is refreshed at most this often, so a busy token does not write on every request. */
+const LAST_USED_RESOLUTION_MS = 60_000;
+
+export const createTokenSchema = z.strictObject({
+  name: z
+    .string({ error: "Name is required." })
+    .trim()
+    .min(1, { error: "Name is required." })
+    .max(100, { error: "Name must be at most 100 characters." }),
+  scopes: z
+    .array(z.enum(API_TOKEN_SCOPES, { error: 'Each scope must be "read" or "write".' }), { error: "Scopes are required." })
+    .min(1, { error: "Choose at least one scope." })
+    .max(API_TOKEN_SCOPES.length, { error: `At most ${API_TOKEN_SCOPES.length} scopes.` })
+    .refine((scopes) => new Set(scopes).size === scopes.length, { error: "Scopes must not repeat." }),
+});
+
+export interface ApiTokenView {
+  id: string;
+  name: string;
+  scopes: ApiTokenScope[];
+  prefix: string;
+  createdAt: string;
+  lastUsedAt: string | null;
+  revokedAt: string | null;
+}
+
+export function tokenView(token: ApiToken): ApiTokenView {
+  return {
+    id: token.id,
+    name: token.name,
+    scopes: token.scopes as ApiTokenScope[],
+    prefix: token.prefix,
+    createdAt: token.createdAt.toISOString(),
+    lastUsedAt: token.lastUsedAt?.toISOString() ?? null,
+    revokedAt: token.revokedAt?.toISOString() ?? null,
+  };
+}
+
+export async function createApiToken(
+  studioId: string,
+  createdByUserId: string,
+  input: z.infer<typeof createTokenSchema>,
+): Promise<{ token: ApiTokenView; secret: string }> {
+  const secret = API_TOKEN_SECRET_PREFIX + randomBytes(32).toString("base64url");
+  const db = await getDb();
+  // Stored in a fixed order so the same choice always reads the same.
+  const scopes = API_TOKEN_SCOPES.filter((s) => input.scopes.includes(s));
+  const [row] = await db
+    .insert(apiTokens)
+    .values({
+      id: newId("tok"),
+      studioId,
+      name: input.name,
+      tokenHash: sha256Hex(secret),
+      prefix: secret.slice(0, DISPLAY_PREFIX_LENGTH),
+      scopes,
+      createdByUserId,
+    })
+    .returning();
+  return { token: tokenView(row), secret };
+}
+
+export async function listApiTokens(studioId: string): Promise<ApiTokenView[]> {
+  const db = await getDb();
+  const rows = await db.select().from(apiTokens).where(eq(apiTokens.studioId, studioId)).orderBy(desc(apiTokens.createdAt));
+  return rows.map(tokenView);
+}
+
+/** Revokes (the row stays, with revokedAt); revoking twice keeps the first time. */
+export async function revokeApiToken(studioId: string, tokenId: string): Promise<ApiTokenView> {
+  const db = await getDb();
+  const [row] = await db
+    .select()
+    .from(apiTokens)
+    .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.studioId, studioId)));
+  if (!row) throw new ApiError(404, "not_found", "API token not found.");
+  if (row.revokedAt) return tokenView(row);
+  const [updated] = await db.update(apiTokens).set({ revokedAt: new Date() }).where(eq(apiTokens.id, tokenId)).returning();
+  return tokenView(updated);
+}
+
+/** The live token for a presented secret, or null if unknown or revoked. Marks it used. */
+export async function authenticateApiToken(secret: string): Promise<ApiToken | null> {
+  if (!secret.startsWith(API_TOKEN_SECRET_PREFIX) || secret.length > 200) return null;
+  const db = await getDb();
+  const [row] = await db.select().from(apiTokens).where(eq(apiTokens.tokenHash, sha256Hex(secret)));
+  if (!row || row.revokedAt) return null;
+  const now = new Date();
+  if (!row.lastUsedAt || now.getTime() - row.lastUsedAt.getTime() >= LAST_USED_RESOLUTION_MS) {
+    await db.update(apiTokens).set({ lastUsedAt: now }).where(eq(apiTokens.id, row.id));
+    row.lastUsedAt = now;
+  }
+  return row;
+}

@@ -1,0 +1,89 @@
+import { cookies } from "next/headers";
+import { notFound, redirect } from "next/navigation";
+import type { Studio, StudioRole } from "@/db/schema";
+import { ApiError } from "@/lib/errors";
+import { publicUser, type PublicUser } from "./accounts";
+import { authorize, type StudioRoleRequirement } from "./guard";
+import { userFromCookieHeader } from "./session";
+
+/**
+ * Server-side guards for pages (server components), deciding with the same `authorize` policy as
+ * the API: not signed in → redirect to /signin?callbackUrl=…; another studio → notFound();
+ * a wrong role → `{ status: "forbidden" }` so the page renders the 403 component.
+ */
+async function cookieHeader(): Promise<string> {
+  const store = await cookies();
+  return store
+    .getAll()
+    .map((c) => `${c.name}=${encodeURIComponent(c.value)}`)
+    .join("; ");
+}
+
+function signInUrl(callbackUrl: string): string {
+  return `/signin?callbackUrl=${encodeURIComponent(callbackUrl)}`;
+}
+
+/** The signed-in user, or null (for headers and nav that render for everyone). */
+export async function getPageUser(): Promise<PublicUser | null> {
+  const user = await userFromCookieHeader(await cookieHeader());
+  return user ? publicUser(user) : null;
+}
+
+/** The signed-in user; redirects to sign-in otherwise. */
+export async function requireUser(callbackUrl: string): Promise<PublicUser> {
+  const user = await getPageUser();
+  if (!user) redirect(signInUrl(callbackUrl));
+  return user;
+}
+
+export type AdminPageAccess = { status: "ok"; user: PublicUser } | { status: "forbidden"; user: PublicUser; message: string };
+
+export async function requireAdmin(callbackUrl: string): Promise<AdminPageAccess> {
+  const user = await requireUser(callbackUrl);
+  if (!user.isAdmin) return { status: "forbidden", user, message: "Only platform admins may open this page." };
+  return { status: "ok", user };
+}
+
+export interface StudioPageView {
+  id: string;
+  name: string;
+  status: Studio["status"];
+  createdAt: string;
+}
+
+export type StudioPageAccess =
+  | { status: "ok"; user: PublicUser; studio: StudioPageView; role: StudioRole }
+  | { status: "forbidden"; user: PublicUser; studio: StudioPageView; role: StudioRole; message: string };
+
+/**
+ * For `/studios/[studioId]/…` pages. `roles` defaults to any member; e.g. `{ roles: ["owner"] }`
+ * for the members and tokens management pages.
+ */
+export async function requireStudio(
+  studioId: string,
+  options: { callbackUrl: string; roles?: StudioRoleRequirement },
+): Promise<StudioPageAccess> {
+  const user = await userFromCookieHeader(await cookieHeader());
+  if (!user) redirect(signInUrl(options.callbackUrl));
+  const actor = { kind: "user" as const, user };
+  // First as any member: a non-member must get 404 whatever the page needs.
+  let membership;
+  try {
+    membership = await authorize({ access: "studio", roles: "member", token: "never" }, actor, studioId);
+  } catch (error) {
+    if (error instanceof ApiError && error.status === 404) notFound();
+    throw error;
+  }
+  const studio = membership.studio!;
+  const role = membership.role!;
+  const view: StudioPageView = { id: studio.id, name: studio.name, status: studio.status, createdAt: studio.createdAt.toISOString() };
+  const requirement = options.roles ?? "member";
+  try {
+    await authorize({ access: "studio", roles: requirement, token: "never" }, actor, studioId);
+  } catch (error) {
+    if (error instanceof ApiError && error.status === 403)
+      return { status: "forbidden", user: publicUser(user), studio: view, role, message: error.message };
+    throw error;
+  }
+  return { status: "ok", user: publicUser(user), studio: view, role };
+}

@@ -1,0 +1,18 @@
+// next-auth module augmentation: what our session and JWT carry.
+import "next-auth";
+import "next-auth/jwt";
+
+declare module "next-auth" {
+  interface Session {
+    user: { id: string; email: string; name: string; isAdmin: boolean };
+  }
+}
+
+declare module "next-auth/jwt" {
+  interface JWT {
+    id?: string;
+    isAdmin?: boolean;
+  }
+}
+
+export {};

@@ -1,0 +1,57 @@
+import { eq } from "drizzle-orm";
+import { decode } from "next-auth/jwt";
+import { getDb } from "@/db/client";
+import { users, type User } from "@/db/schema";
+import { getAuthSecret, usesSecureCookies } from "./config";
+
+export function parseCookieHeader(header: string | null | undefined): Record<string, string> {
+  const cookies: Record<string, string> = {};
+  if (!header) return cookies;
+  for (const part of header.split(";")) {
+    const eqAt = part.indexOf("=");
+    if (eqAt < 0) continue;
+    const name = part.slice(0, eqAt).trim();
+    if (!name || name in cookies) continue;
+    const raw = part.slice(eqAt + 1).trim().replace(/^"(.*)"$/, "$1");
+    try {
+      cookies[name] = decodeURIComponent(raw);
+    } catch {
+      cookies[name] = raw;
+    }
+  }
+  return cookies;
+}
+
+export function sessionCookieName(): string {
+  return usesSecureCookies() ? "__Secure-next-auth.session-token" : "next-auth.session-token";
+}
+
+/** next-auth splits a large session cookie into `name.0`, `name.1`, …; join them back. */
+function sessionCookieValue(cookies: Record<string, string>): string | undefined {
+  const name = sessionCookieName();
+  if (cookies[name]) return cookies[name];
+  const chunks = Object.keys(cookies)
+    .filter((k) => k.startsWith(`${name}.`) && /^\d+$/.test(k.slice(name.length + 1)))
+    .sort((a, b) => Number(a.slice(name.length + 1)) - Number(b.slice(name.length + 1)));
+  return chunks.length ? chunks.map((k) => cookies[k]).join("") : undefined;
+}
+
+/**
+ * The signed-in user from a Cookie header, read fresh from the database (so a deleted user or a
+ * revoked admin flag takes effect at once), or null when there is no valid session.
+ */
+export async function userFromCookieHeader(cookieHeader: string | null | undefined): Promise<User | null> {
+  const value = sessionCookieValue(parseCookieHeader(cookieHeader));
+  if (!value) return null;
+  let userId: string | undefined;
+  try {
+    const token = await decode({ token: value, secret: getAuthSecret() });
+    userId = typeof token?.id === "string" ? token.id : token?.sub;
+  } catch {
+    return null;
+  }
+  if (!userId) return null;
+  const db = await getDb();
+  const [user] = await db.select().from(users).where(eq(users.id, userId));
+  return user ?? null;
+}

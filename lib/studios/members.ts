@@ -1,0 +1,66 @@
+import { and, asc, eq } from "drizzle-orm";
+import { z } from "zod";
+import { getDb, type DbOrTx } from "@/db/client";
+import { memberships, STUDIO_ROLES, users, type StudioRole } from "@/db/schema";
+import { ApiError } from "@/lib/errors";
+
+export const roleSchema = z.enum(STUDIO_ROLES, { error: `Role must be one of ${STUDIO_ROLES.join(", ")}.` });
+export const changeRoleSchema = z.strictObject({ role: roleSchema });
+
+export interface MemberView {
+  userId: string;
+  email: string;
+  name: string;
+  role: StudioRole;
+  joinedAt: string;
+}
+
+export async function listMembers(studioId: string): Promise<MemberView[]> {
+  const db = await getDb();
+  const rows = await db
+    .select({ userId: users.id, email: users.email, name: users.name, role: memberships.role, joinedAt: memberships.joinedAt })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.studioId, studioId))
+    .orderBy(asc(memberships.joinedAt), asc(users.email));
+  return rows.map((r) => ({ ...r, joinedAt: r.joinedAt.toISOString() }));
+}
+
+const lastOwner = (action: string) =>
+  new ApiError(409, "last_owner", `A studio needs at least one owner: make another member owner before you ${action} the last one.`);
+
+/**
+ * Locks the studio's membership rows, so two concurrent changes cannot both see "another owner
+ * remains" and leave the studio without one.
+ */
+async function lockMembers(tx: DbOrTx, studioId: string) {
+  return tx.select().from(memberships).where(eq(memberships.studioId, studioId)).for("update");
+}
+
+export async function changeRole(studioId: string, userId: string, role: StudioRole): Promise<MemberView> {
+  const db = await getDb();
+  await db.transaction(async (tx) => {
+    const rows = await lockMembers(tx, studioId);
+    const target = rows.find((r) => r.userId === userId);
+    if (!target) throw new ApiError(404, "not_found", "Member not found.");
+    if (target.role === role) return;
+    const owners = rows.filter((r) => r.role === "owner").length;
+    if (target.role === "owner" && owners <= 1) throw lastOwner("demote");
+    await tx.update(memberships).set({ role }).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+  });
+  const member = (await listMembers(studioId)).find((m) => m.userId === userId);
+  if (!member) throw new ApiError(404, "not_found", "Member not found.");
+  return member;
+}
+
+export async function removeMember(studioId: string, userId: string): Promise<void> {
+  const db = await getDb();
+  await db.transaction(async (tx) => {
+    const rows = await lockMembers(tx, studioId);
+    const target = rows.find((r) => r.userId === userId);
+    if (!target) throw new ApiError(404, "not_found", "Member not found.");
+    const owners = rows.filter((r) => r.role === "owner").length;
+    if (target.role === "owner" && owners <= 1) throw lastOwner("remove");
+    await tx.delete(memberships).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+  });
+}

@@ -1,0 +1,75 @@
+import { asc, count, eq } from "drizzle-orm";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { newId } from "@/db/ids";
+import { memberships, studios, users, type Studio, type StudioRole } from "@/db/schema";
+
+export const createStudioSchema = z.strictObject({
+  name: z
+    .string({ error: "Name is required." })
+    .trim()
+    .min(1, { error: "Name is required." })
+    .max(80, { error: "Name must be at most 80 characters." }),
+});
+
+export interface StudioView {
+  id: string;
+  name: string;
+  status: Studio["status"];
+  createdAt: string;
+}
+
+export function studioView(studio: Studio): StudioView {
+  return { id: studio.id, name: studio.name, status: studio.status, createdAt: studio.createdAt.toISOString() };
+}
+
+/** Creates a studio whose creator is its first owner, in one transaction. */
+export async function createStudio(ownerUserId: string, input: z.infer<typeof createStudioSchema>): Promise<Studio> {
+  const db = await getDb();
+  return db.transaction(async (tx) => {
+    const [studio] = await tx.insert(studios).values({ id: newId("std"), name: input.name }).returning();
+    await tx.insert(memberships).values({ studioId: studio.id, userId: ownerUserId, role: "owner" });
+    return studio;
+  });
+}
+
+export async function studiosOfUser(userId: string): Promise<{ id: string; name: string; role: StudioRole }[]> {
+  const db = await getDb();
+  return db
+    .select({ id: studios.id, name: studios.name, role: memberships.role })
+    .from(memberships)
+    .innerJoin(studios, eq(studios.id, memberships.studioId))
+    .where(eq(memberships.userId, userId))
+    .orderBy(asc(studios.name), asc(studios.id));
+}
+
+export async function allStudios(): Promise<(StudioView & { memberCount: number })[]> {
+  const db = await getDb();
+  const rows = await db
+    .select({ studio: studios, memberCount: count(memberships.userId) })
+    .from(studios)
+    .leftJoin(memberships, eq(memberships.studioId, studios.id))
+    .groupBy(studios.id)
+    .orderBy(asc(studios.createdAt), asc(studios.id));
+  return rows.map((r) => ({ ...studioView(r.studio), memberCount: Number(r.memberCount) }));
+}
+
+export async function allUsers(): Promise<
+  { id: string; email: string; name: string; isAdmin: boolean; createdAt: string; studioCount: number }[]
+> {
+  const db = await getDb();
+  const rows = await db
+    .select({ user: users, studioCount: count(memberships.studioId) })
+    .from(users)
+    .leftJoin(memberships, eq(memberships.userId, users.id))
+    .groupBy(users.id)
+    .orderBy(asc(users.createdAt), asc(users.id));
+  return rows.map((r) => ({
+    id: r.user.id,
+    email: r.user.email,
+    name: r.user.name,
+    isAdmin: r.user.isAdmin,
+    createdAt: r.user.createdAt.toISOString(),
+    studioCount: Number(r.studioCount),
+  }));
+}
