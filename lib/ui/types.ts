@@ -54,4 +54,4 @@ export type MailMessage = {
 };
 
 export type AdminStudio = { id: string; name: string; status: string; createdAt: string; memberCount?: number };
-export type AdminUser = { id: string; email: string; name: string | null; isAdmin: boolean; createdAt?: string };
+export type AdminUser = { id: string; email: string; name: string | null; isAdmin: boolean; createdAt?: string; studioCount?: number };

@@ -1,0 +1,206 @@
+"use client";
+
+import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { useState, type FormEvent } from "react";
+import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { InvitesTable, MembersTable } from "@/components/studio/studio-tables";
+import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
+import { queryKeys, studioApiPath, useInvites, useMembers } from "@/lib/ui/queries";
+import { ROLE_DESCRIPTIONS, STUDIO_ROLES, type Invite, type Member, type StudioRole } from "@/lib/ui/types";
+
+export function MembersManager({ studioId, currentUserId }: { studioId: string; currentUserId: string }) {
+  const members = useMembers(studioId);
+  const invites = useInvites(studioId);
+  const queryClient = useQueryClient();
+  const [actionError, setActionError] = useState<string | null>(null);
+  const [notice, setNotice] = useState<string | null>(null);
+
+  const refresh = () => queryClient.invalidateQueries({ queryKey: queryKeys.studio(studioId) });
+
+  const changeRole = useMutation({
+    mutationFn: ({ userId, role }: { userId: string; role: StudioRole }) =>
+      apiFetch<unknown>(`${studioApiPath(studioId)}/members/${encodeURIComponent(userId)}`, { method: "PATCH", body: { role } }),
+    onMutate: () => {
+      setActionError(null);
+      setNotice(null);
+    },
+    onSuccess: (_data, { role }) => setNotice(`Role changed to ${role}.`),
+    onError: (error) => setActionError(errorMessage(error)),
+    onSettled: refresh,
+  });
+
+  const removeMember = useMutation({
+    mutationFn: (member: Member) => apiFetch<unknown>(`${studioApiPath(studioId)}/members/${encodeURIComponent(member.userId)}`, { method: "DELETE" }),
+    onMutate: () => {
+      setActionError(null);
+      setNotice(null);
+    },
+    onSuccess: (_data, member) => setNotice(`${member.email} was removed from the studio.`),
+    onError: (error) => setActionError(errorMessage(error)),
+    onSettled: refresh,
+  });
+
+  const revokeInvite = useMutation({
+    mutationFn: (invite: Invite) => apiFetch<unknown>(`${studioApiPath(studioId)}/invites/${encodeURIComponent(invite.id)}`, { method: "DELETE" }),
+    onMutate: () => {
+      setActionError(null);
+      setNotice(null);
+    },
+    onSuccess: (_data, invite) => setNotice(`The invitation for ${invite.email} was withdrawn.`),
+    onError: (error) => setActionError(errorMessage(error)),
+    onSettled: refresh,
+  });
+
+  return (
+    <StudioShell studioId={studioId} role="owner">
+      <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
+        <div className="space-y-6">
+          {actionError ? <Alert>{actionError}</Alert> : null}
+          {notice ? <Alert tone="ok">{notice}</Alert> : null}
+          <Card title="Members">
+            {members.isPending ? (
+              <LoadingRows label="members" />
+            ) : members.isError ? (
+              <Alert>{errorMessage(members.error)}</Alert>
+            ) : (
+              <MembersTable
+                members={members.data}
+                actions={(member) => (
+                  <MemberActions
+                    member={member}
+                    isSelf={member.userId === currentUserId}
+                    busy={changeRole.isPending || removeMember.isPending}
+                    onChangeRole={(role) => changeRole.mutate({ userId: member.userId, role })}
+                    onRemove={() => removeMember.mutate(member)}
+                  />
+                )}
+              />
+            )}
+          </Card>
+          <Card title="Pending invitations">
+            {invites.isPending ? (
+              <LoadingRows label="invitations" />
+            ) : invites.isError ? (
+              <Alert>{errorMessage(invites.error)}</Alert>
+            ) : invites.data.length === 0 ? (
+              <EmptyState>No invitations waiting.</EmptyState>
+            ) : (
+              <InvitesTable
+                invites={invites.data}
+                actions={(invite) => (
+                  <Button variant="ghost" className="py-1" disabled={revokeInvite.isPending} onClick={() => revokeInvite.mutate(invite)} aria-label={`Withdraw the invitation for ${invite.email}`}>
+                    Withdraw
+                  </Button>
+                )}
+              />
+            )}
+          </Card>
+        </div>
+        <Card title="Invite someone">
+          <InviteForm studioId={studioId} onInvited={(email) => setNotice(`Invitation e-mailed to ${email}. The link is valid for 7 days.`)} />
+        </Card>
+      </div>
+    </StudioShell>
+  );
+}
+
+function MemberActions({
+  member,
+  isSelf,
+  busy,
+  onChangeRole,
+  onRemove,
+}: {
+  member: Member;
+  isSelf: boolean;
+  busy: boolean;
+  onChangeRole: (role: StudioRole) => void;
+  onRemove: () => void;
+}) {
+  const [confirming, setConfirming] = useState(false);
+  const selectId = `role-${member.userId}`;
+  return (
+    <div className="flex items-center justify-end gap-2">
+      <label htmlFor={selectId} className="sr-only">
+        Role of {member.email}
+      </label>
+      <select
+        id={selectId}
+        value={member.role}
+        disabled={busy}
+        onChange={(event) => onChangeRole(event.target.value as StudioRole)}
+        className="rounded-md border border-line bg-surface px-2 py-1 text-sm"
+      >
+        {STUDIO_ROLES.map((role) => (
+          <option key={role} value={role}>
+            {role}
+          </option>
+        ))}
+      </select>
+      {confirming ? (
+        <>
+          <Button
+            variant="danger"
+            className="py-1"
+            disabled={busy}
+            onClick={() => {
+              setConfirming(false);
+              onRemove();
+            }}
+          >
+            {isSelf ? "Leave studio" : "Confirm removal"}
+          </Button>
+          <Button variant="ghost" className="py-1" onClick={() => setConfirming(false)}>
+            Cancel
+          </Button>
+        </>
+      ) : (
+        <Button variant="ghost" className="py-1" disabled={busy} onClick={() => setConfirming(true)} aria-label={`Remove ${member.email}`}>
+          Remove
+        </Button>
+      )}
+    </div>
+  );
+}
+
+function InviteForm({ studioId, onInvited }: { studioId: string; onInvited: (email: string) => void }) {
+  const queryClient = useQueryClient();
+  const [email, setEmail] = useState("");
+  const [role, setRole] = useState<StudioRole>("engineer");
+  const invite = useMutation({
+    mutationFn: (input: { email: string; role: StudioRole }) =>
+      apiFetch<{ invite: Invite }>(`${studioApiPath(studioId)}/invites`, { method: "POST", body: input }),
+    onSuccess: async ({ invite: created }) => {
+      setEmail("");
+      onInvited(created.email);
+      await queryClient.invalidateQueries({ queryKey: queryKeys.invites(studioId) });
+    },
+  });
+  const apiError = invite.error instanceof ApiClientError ? invite.error : null;
+  const emailError = apiError?.messageFor("email");
+  const roleError = apiError?.messageFor("role");
+
+  function onSubmit(event: FormEvent<HTMLFormElement>) {
+    event.preventDefault();
+    invite.mutate({ email: email.trim(), role });
+  }
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="space-y-4">
+      {invite.error && !emailError && !roleError ? <Alert>{errorMessage(invite.error)}</Alert> : null}
+      <TextField id="invite-email" label="E-mail" type="email" autoComplete="off" value={email} onChange={(event) => setEmail(event.target.value)} error={emailError} />
+      <SelectField id="invite-role" label="Role" value={role} onChange={(event) => setRole(event.target.value as StudioRole)} error={roleError}>
+        {STUDIO_ROLES.map((option) => (
+          <option key={option} value={option}>
+            {option}
+          </option>
+        ))}
+      </SelectField>
+      <p className="text-xs text-ink-muted">{ROLE_DESCRIPTIONS[role]}</p>
+      <Button type="submit" disabled={invite.isPending}>
+        {invite.isPending ? "Sending…" : "Send invitation"}
+      </Button>
+    </form>
+  );
+}

@@ -1,0 +1,58 @@
+"use client";
+
+import Link from "next/link";
+import { usePathname } from "next/navigation";
+import type { ReactNode } from "react";
+import { RoleBadge, cx } from "@/components/ui";
+import { useStudio } from "@/lib/ui/queries";
+import type { StudioRole } from "@/lib/ui/types";
+
+/** Heading and tabs shared by a studio's pages. Owner-only tabs are shown to owners only. */
+export function StudioShell({ studioId, role, children }: { studioId: string; role: StudioRole | null; children: ReactNode }) {
+  const studio = useStudio(studioId);
+  const pathname = usePathname();
+  const base = `/studios/${studioId}`;
+  const tabs = [{ href: base, label: "Overview" }];
+  if (role === "owner") {
+    tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
+  }
+  return (
+    <div>
+      <div className="mb-6 flex flex-wrap items-end justify-between gap-4 border-b border-line pb-4">
+        <div className="space-y-1">
+          <Link href="/studios" className="font-mono text-xs uppercase tracking-[0.18em] text-kick hover:underline">
+            Studios
+          </Link>
+          <h1 className="text-3xl font-bold tracking-tight" data-testid="studio-name">
+            {studio.data?.studio.name ?? "\u00a0"}
+          </h1>
+        </div>
+        {role ? (
+          <p className="flex items-center gap-2 text-sm text-ink-muted" data-testid="my-role">
+            Your role <RoleBadge role={role} />
+          </p>
+        ) : (
+          <p className="text-sm text-ink-muted">Viewing as platform admin</p>
+        )}
+      </div>
+      {tabs.length > 1 ? (
+        <nav aria-label="Studio" className="mb-6 flex gap-1">
+          {tabs.map((tab) => {
+            const active = pathname === tab.href;
+            return (
+              <Link
+                key={tab.href}
+                href={tab.href}
+                aria-current={active ? "page" : undefined}
+                className={cx("rounded-md px-3 py-1.5 text-sm font-medium", active ? "bg-ink text-paper" : "text-ink-muted hover:bg-surface-muted hover:text-ink")}
+              >
+                {tab.label}
+              </Link>
+            );
+          })}
+        </nav>
+      ) : null}
+      {children}
+    </div>
+  );
+}

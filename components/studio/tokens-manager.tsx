@@ -1,0 +1,128 @@
+"use client";
+
+import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { useState, type FormEvent } from "react";
+import { CopyButton } from "@/components/copy-button";
+import { Alert, Button, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { TokensTable } from "@/components/studio/studio-tables";
+import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
+import { queryKeys, studioApiPath, useTokens } from "@/lib/ui/queries";
+import type { ApiToken } from "@/lib/ui/types";
+
+type Scope = "read" | "write";
+type CreatedToken = { token: ApiToken; secret: string };
+
+export function TokensManager({ studioId }: { studioId: string }) {
+  const tokens = useTokens(studioId);
+  const queryClient = useQueryClient();
+  const [created, setCreated] = useState<CreatedToken | null>(null);
+  const revoke = useMutation({
+    mutationFn: (token: ApiToken) => apiFetch<unknown>(`${studioApiPath(studioId)}/tokens/${encodeURIComponent(token.id)}`, { method: "DELETE" }),
+    onSettled: () => queryClient.invalidateQueries({ queryKey: queryKeys.tokens(studioId) }),
+  });
+
+  return (
+    <StudioShell studioId={studioId} role="owner">
+      <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
+        <div className="space-y-6">
+          {created ? (
+            <section className="rounded-lg border-2 border-ok bg-ok-soft p-5" aria-labelledby="new-token-heading" data-testid="new-token">
+              <h2 id="new-token-heading" className="font-semibold text-ink">
+                Token “{created.token.name}” created
+              </h2>
+              <p className="mt-1 text-sm text-ink">Copy the secret now. It is shown only this once; Kickdrift keeps only a hash of it.</p>
+              <div className="mt-3 flex flex-wrap items-center gap-3">
+                <code className="min-w-0 flex-1 break-all rounded-md border border-line bg-surface px-3 py-2 font-mono text-sm" data-testid="token-secret">
+                  {created.secret}
+                </code>
+                <CopyButton value={created.secret} label="Copy secret" />
+              </div>
+              <Button variant="ghost" className="mt-3" onClick={() => setCreated(null)}>
+                I have stored it — hide
+              </Button>
+            </section>
+          ) : null}
+          {revoke.isError ? <Alert>{errorMessage(revoke.error)}</Alert> : null}
+          <Card title="API tokens">
+            {tokens.isPending ? (
+              <LoadingRows label="tokens" />
+            ) : tokens.isError ? (
+              <Alert>{errorMessage(tokens.error)}</Alert>
+            ) : tokens.data.length === 0 ? (
+              <EmptyState>No tokens yet.</EmptyState>
+            ) : (
+              <TokensTable
+                tokens={tokens.data}
+                actions={(token) => (
+                  <Button variant="danger" className="py-1" disabled={revoke.isPending} onClick={() => revoke.mutate(token)} aria-label={`Revoke ${token.name}`}>
+                    Revoke
+                  </Button>
+                )}
+              />
+            )}
+          </Card>
+          <p className="text-sm text-ink-muted">
+            Send a token as <code className="font-mono">Authorization: Bearer kd_…</code>. It acts for this studio only: <code className="font-mono">read</code> allows
+            GET requests, <code className="font-mono">write</code> also allows creating studio resources such as sweeps. Tokens never manage members,
+            invitations or other tokens.
+          </p>
+        </div>
+        <Card title="Create a token">
+          <CreateTokenForm studioId={studioId} onCreated={setCreated} />
+        </Card>
+      </div>
+    </StudioShell>
+  );
+}
+
+function CreateTokenForm({ studioId, onCreated }: { studioId: string; onCreated: (created: CreatedToken) => void }) {
+  const queryClient = useQueryClient();
+  const [name, setName] = useState("");
+  const [scopes, setScopes] = useState<Scope[]>(["read"]);
+  const create = useMutation({
+    mutationFn: (input: { name: string; scopes: Scope[] }) => apiFetch<CreatedToken>(`${studioApiPath(studioId)}/tokens`, { method: "POST", body: input }),
+    onSuccess: async (result) => {
+      setName("");
+      onCreated(result);
+      await queryClient.invalidateQueries({ queryKey: queryKeys.tokens(studioId) });
+    },
+  });
+  const apiError = create.error instanceof ApiClientError ? create.error : null;
+  const nameError = apiError?.messageFor("name");
+  const scopesError = apiError?.issues.find((issue) => issue.field.startsWith("scopes"))?.message ?? (apiError?.field?.startsWith("scopes") ? apiError.message : undefined);
+
+  function toggle(scope: Scope, on: boolean) {
+    setScopes((current) => (on ? [...new Set([...current, scope])] : current.filter((item) => item !== scope)));
+  }
+
+  function onSubmit(event: FormEvent<HTMLFormElement>) {
+    event.preventDefault();
+    create.mutate({ name: name.trim(), scopes });
+  }
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="space-y-4">
+      {create.error && !nameError && !scopesError ? <Alert>{errorMessage(create.error)}</Alert> : null}
+      <TextField id="token-name" label="Token name" hint="Say where it will live, e.g. “nightly build agent”." value={name} onChange={(event) => setName(event.target.value)} error={nameError} />
+      <fieldset className="space-y-2" aria-describedby={scopesError ? "token-scopes-error" : undefined}>
+        <legend className="text-sm font-medium">Scopes</legend>
+        {(["read", "write"] as const).map((scope) => (
+          <label key={scope} className="flex items-center gap-2 text-sm">
+            <input type="checkbox" checked={scopes.includes(scope)} onChange={(event) => toggle(scope, event.target.checked)} className="h-4 w-4 accent-[var(--kd-action)]" />
+            <span className="font-mono">{scope}</span>
+            <span className="text-ink-muted">{scope === "read" ? "— GET requests of this studio" : "— also create sweeps and other studio resources"}</span>
+          </label>
+        ))}
+        {scopesError ? (
+          <p id="token-scopes-error" role="alert" className="text-sm font-medium text-danger">
+            {scopesError}
+          </p>
+        ) : null}
+      </fieldset>
+      <Button type="submit" disabled={create.isPending}>
+        {create.isPending ? "Creating…" : "Create token"}
+      </Button>
+    </form>
+  );
+}
