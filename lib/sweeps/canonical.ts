@@ -1,0 +1,53 @@
+/**
+ * Canonical JSON: the one byte form of a value used for hashing (result cache,
+ * spec identity) and for deriving seeds. Object keys are sorted by UTF-16 code
+ * units at every level, arrays keep their order, numbers use the shortest
+ * round-trip form of JSON.stringify (−0 writes as 0), and undefined object
+ * fields are left out. Non-finite numbers have no JSON form and are refused.
+ *
+ * Pure: safe to import in the browser.
+ */
+export function canonicalJson(value: unknown): string {
+  return write(value, "$");
+}
+
+function write(value: unknown, where: string): string {
+  if (value === null) return "null";
+  switch (typeof value) {
+    case "number":
+      if (!Number.isFinite(value)) throw new Error(`canonicalJson: ${where} is ${String(value)}, which has no JSON form`);
+      return JSON.stringify(value);
+    case "string":
+    case "boolean":
+      return JSON.stringify(value);
+    case "object": {
+      if (Array.isArray(value)) return `[${value.map((item, i) => write(item, `${where}[${i}]`)).join(",")}]`;
+      const record = value as Record<string, unknown>;
+      const keys = Object.keys(record)
+        .filter((key) => record[key] !== undefined)
+        .sort();
+      return `{${keys.map((key) => `${JSON.stringify(key)}:${write(record[key], `${where}.${key}`)}`).join(",")}}`;
+    }
+    default:
+      throw new Error(`canonicalJson: ${where} is a ${typeof value}, which has no JSON form`);
+  }
+}
+
+/**
+ * 32-bit FNV-1a over the UTF-16 code units of a string, then the MurmurHash3
+ * fmix32 finaliser so that nearby inputs spread over all bits. Integer-only
+ * (Math.imul, >>> 0), so it is bit-identical on every platform.
+ */
+export function hash32(text: string, seed = 0): number {
+  let h = (0x811c9dc5 ^ seed) >>> 0;
+  for (let i = 0; i < text.length; i++) {
+    h ^= text.charCodeAt(i);
+    h = Math.imul(h, 0x01000193) >>> 0;
+  }
+  h ^= h >>> 16;
+  h = Math.imul(h, 0x85ebca6b) >>> 0;
+  h ^= h >>> 13;
+  h = Math.imul(h, 0xc2b2ae35) >>> 0;
+  h ^= h >>> 16;
+  return h >>> 0;
+}

@@ -1,0 +1,163 @@
+/**
+ * Cost model: predicted worker compute per cell and per sweep, the basis of
+ * quotes and chunk sizes.
+ *
+ * Shape of the model (from how the engine works):
+ * - pair and wall: the engine jumps over free flight and stops once the bodies
+ *   separate for good, so a cell costs a fixed overhead plus a cost per
+ *   integrator step *in contact*, not per duration/dt. The contact steps are
+ *   predicted from the analytic contact duration (linear spring: π/ω with
+ *   ω = √(k/m_eff); Hertz: t_c ≈ 2.94·δ_max/v with δ_max = (5·m_eff·v²/(4·k_H))^(2/5),
+ *   Johnson 1985, Contact Mechanics, §11.4, from memory) divided by dt/substeps.
+ * - row and box: every step is integrated; a step costs a fixed part plus a
+ *   part per body (the box's broad phase keeps it linear in N).
+ *
+ * Calibration (see CALIBRATION below) is a least-squares-free, by-hand fit to
+ * the figures printed by `npm run bench` (module cost-calibration) on the
+ * development machine. The quote band QUOTE_BAND states how far measured
+ * compute may stray from the prediction.
+ *
+ * Pure: safe to import in the browser (the quote is shown in the form).
+ */
+import type { Scenario } from "../physics/types";
+import { cellCount, cellAt, expandAxes, type ExpandedAxis } from "./grid";
+import { bodyCount, stepsPerCell, type SweepSpec } from "./spec";
+
+export interface CostConstants {
+  /** Fixed cost of one cell in any scene: set-up, metrics, verdict (ns). */
+  cellOverheadNs: number;
+  /** pair: cost of one integrator step while the discs touch (ns). */
+  pairContactStepNs: number;
+  /** wall: cost of one integrator step while the disc touches the wall (ns). */
+  wallContactStepNs: number;
+  /** row: cost of one step = fixed + per body (ns). */
+  rowStepNs: number;
+  rowBodyStepNs: number;
+  /** box: cost of one step = fixed + per body, broad phase included (ns). */
+  boxStepNs: number;
+  boxBodyStepNs: number;
+  /** Fixed cost of one chunk inside the worker (ns): receiving cells, sending results. */
+  chunkOverheadNs: number;
+}
+
+/**
+ * CALIBRATION — measured on the development machine (2 shared cores, Node 20),
+ * single thread, by tests/bench/cost-calibration.ts. Update these figures and
+ * the note when the engine changes.
+ */
+export const CALIBRATION: CostConstants = {
+  cellOverheadNs: 4_000,
+  pairContactStepNs: 60,
+  wallContactStepNs: 50,
+  rowStepNs: 40,
+  rowBodyStepNs: 20,
+  boxStepNs: 200,
+  boxBodyStepNs: 60,
+  chunkOverheadNs: 200_000,
+};
+
+/**
+ * The band within which billed compute is expected to fall around a quote:
+ * billed / quoted ∈ [low, high]. Set from the spread of measured / predicted
+ * over the calibration set (see the cost-calibration bench).
+ */
+export const QUOTE_BAND = { low: 0.5, high: 2 } as const;
+
+interface ContactEstimate {
+  /** Predicted integrator steps with the bodies in contact. */
+  contactSteps: number;
+}
+
+function hertzStiffness(scenario: Scenario, reducedRadiusM: number): number {
+  const { contact } = scenario;
+  if (contact.stiffness !== undefined) return contact.stiffness;
+  const material = contact.material as { youngsModulusPa: number; poissonRatio: number };
+  // Same material on both sides (a wall is rigid: only the disc's compliance counts).
+  const wall = scenario.scene.kind === "wall";
+  const compliance = ((wall ? 1 : 2) * (1 - material.poissonRatio ** 2)) / material.youngsModulusPa;
+  return (4 / 3) * (1 / compliance) * Math.sqrt(reducedRadiusM);
+}
+
+/** Contact duration of one impact, from the undamped closed forms (an estimate: damping shortens or lengthens it a little). */
+export function estimateContactDurationS(scenario: Scenario, reducedMassKg: number, reducedRadiusM: number, normalSpeedMPerS: number): number {
+  if (!(normalSpeedMPerS > 0)) return 0;
+  if (scenario.contact.model === "linear") {
+    const omega = Math.sqrt((scenario.contact.stiffness as number) / reducedMassKg);
+    return Math.PI / omega;
+  }
+  const stiffness = hertzStiffness(scenario, reducedRadiusM);
+  const maxOverlapM = Math.pow((5 * reducedMassKg * normalSpeedMPerS * normalSpeedMPerS) / (4 * stiffness), 0.4);
+  return (2.94 * maxOverlapM) / normalSpeedMPerS;
+}
+
+function contactEstimate(scenario: Scenario): ContactEstimate {
+  const scene = scenario.scene;
+  const subStepS = scenario.dtS / scenario.substeps;
+  let durationS = 0;
+  if (scene.kind === "pair") {
+    const reducedMassKg = (scene.massAKg * scene.massBKg) / (scene.massAKg + scene.massBKg);
+    const reducedRadiusM = (scene.radiusAM * scene.radiusBM) / (scene.radiusAM + scene.radiusBM);
+    const normalSpeed = (scene.speedAMPerS + scene.speedBMPerS) * Math.sqrt(Math.max(0, 1 - scene.offsetFraction ** 2));
+    durationS = estimateContactDurationS(scenario, reducedMassKg, reducedRadiusM, normalSpeed);
+  } else if (scene.kind === "wall") {
+    const normalSpeed = scene.speedMPerS * Math.cos((scene.angleDeg * Math.PI) / 180);
+    durationS = estimateContactDurationS(scenario, scene.massKg, scene.radiusM, normalSpeed);
+  }
+  // +2: the step that detects the overlap and the one that sees it end.
+  const contactSteps = Math.min(stepsPerCell(scenario), Math.ceil(durationS / subStepS) + 2);
+  return { contactSteps };
+}
+
+/** Predicted compute of one cell in nanoseconds (a float; sums are rounded once). */
+export function predictCellNs(scenario: Scenario, constants: CostConstants = CALIBRATION): number {
+  const scene = scenario.scene;
+  switch (scene.kind) {
+    case "pair":
+      return constants.cellOverheadNs + contactEstimate(scenario).contactSteps * constants.pairContactStepNs;
+    case "wall":
+      return constants.cellOverheadNs + contactEstimate(scenario).contactSteps * constants.wallContactStepNs;
+    case "row":
+      return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.rowStepNs + bodyCount(scenario) * constants.rowBodyStepNs);
+    case "box":
+      return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.boxStepNs + bodyCount(scenario) * constants.boxBodyStepNs);
+  }
+}
+
+export interface SweepCostEstimate {
+  cells: number;
+  /** Predicted compute of the whole sweep, integer milliseconds (rounded up, at least 1). */
+  computeMs: number;
+  /** The largest predicted cell (ms, rounded up). */
+  largestCellMs: number;
+  /** computeMs × QUOTE_BAND: the range the billed compute is expected in. */
+  bandMs: { low: number; high: number };
+}
+
+/** Predicted compute of a sweep; `chunks` adds the per-chunk overhead when the chunking is known. */
+export function predictSweep(
+  spec: SweepSpec,
+  options: { chunks?: number; constants?: CostConstants; axes?: readonly ExpandedAxis[] } = {},
+): SweepCostEstimate {
+  const constants = options.constants ?? CALIBRATION;
+  const axes = options.axes ?? expandAxes(spec);
+  const cells = cellCount(axes);
+  let totalNs = 0;
+  let largestNs = 0;
+  for (let index = 0; index < cells; index++) {
+    const ns = predictCellNs(cellAt(spec, axes, index).scenario, constants);
+    totalNs += ns;
+    if (ns > largestNs) largestNs = ns;
+  }
+  const chunks = options.chunks ?? Math.max(1, Math.ceil(totalNs / (DEFAULT_TARGET_CHUNK_MS * 1e6)));
+  totalNs += chunks * constants.chunkOverheadNs;
+  const computeMs = Math.max(1, Math.ceil(totalNs / 1e6));
+  return {
+    cells,
+    computeMs,
+    largestCellMs: Math.ceil(largestNs / 1e6),
+    bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },
+  };
+}
+
+/** Chunks aim at this much predicted compute: long enough to hide dispatch, short enough for progress and retries. */
+export const DEFAULT_TARGET_CHUNK_MS = 2_000;

@@ -1,0 +1,113 @@
+/**
+ * Expansion of a sweep spec into cells.
+ *
+ * Cell order is row-major over the axes in the order the spec gives them: the
+ * first axis varies slowest, the last fastest. With axis lengths n0, n1, n2 the
+ * cell at axis positions (i0, i1, i2) has index (i0 · n1 + i1) · n2 + i2. A
+ * sweep without axes has one cell, index 0, the base scenario.
+ *
+ * Seeds: a cell's seed is hash32 of the canonical JSON of the cell's *scene*,
+ * keyed by the spec seed. Cells that differ only in contact, integrator, dt or
+ * duration therefore start from the same seeded box layout (so a stability
+ * map compares like with like), cells with different scenes get independent
+ * layouts, and the seed depends on nothing but the cell's own parameters — any
+ * chunking, any thread count and any later cache lookup see the same value.
+ *
+ * Pure: safe to import in the browser.
+ */
+import type { Scenario, SceneKind } from "../physics/types";
+import { canonicalJson, hash32 } from "./canonical";
+import { findParameter } from "./parameters";
+import { applyAxisValues, axisValues, isIntegerParameter, type AxisSpec, type SweepSpec } from "./spec";
+
+export interface ExpandedAxis {
+  parameter: string;
+  label: string;
+  /** SI unit, "" for pure numbers and choices. */
+  unit: string;
+  values: (number | string)[];
+}
+
+export interface SweepCell {
+  /** Row-major position in the grid (see the file comment). */
+  index: number;
+  /** One value per axis, in axis order. */
+  axisValues: (number | string)[];
+  /** The concrete scenario simulated for this cell (seed already derived). */
+  scenario: Scenario;
+}
+
+/** The axes with their concrete values, in spec order. */
+export function expandAxes(spec: SweepSpec): ExpandedAxis[] {
+  const sceneKind: SceneKind = spec.scenario.scene.kind;
+  return spec.axes.map((axis: AxisSpec) => {
+    const parameter = findParameter(axis.parameter, sceneKind);
+    return {
+      parameter: axis.parameter,
+      label: parameter?.label ?? axis.parameter,
+      unit: parameter?.kind === "number" ? parameter.unit : "",
+      values: axisValues(axis, isIntegerParameter(axis.parameter, sceneKind)),
+    };
+  });
+}
+
+/** Product of the axis lengths (1 without axes). */
+export function cellCount(axes: readonly ExpandedAxis[]): number {
+  return axes.reduce((product, axis) => product * axis.values.length, 1);
+}
+
+/** Axis positions of a cell index (inverse of the row-major formula). */
+export function axisPositions(axes: readonly ExpandedAxis[], index: number): number[] {
+  const positions = new Array<number>(axes.length);
+  let rest = index;
+  for (let i = axes.length - 1; i >= 0; i--) {
+    const length = axes[i].values.length;
+    positions[i] = rest % length;
+    rest = Math.floor(rest / length);
+  }
+  return positions;
+}
+
+/** Row-major index of axis positions. */
+export function cellIndex(axes: readonly ExpandedAxis[], positions: readonly number[]): number {
+  let index = 0;
+  for (let i = 0; i < axes.length; i++) index = index * axes[i].values.length + positions[i];
+  return index;
+}
+
+/** The seed of a cell: a function of the spec seed and the cell's scene only. */
+export function deriveCellSeed(specSeed: number, scenario: Scenario): number {
+  return hash32(canonicalJson(scenario.scene), specSeed);
+}
+
+/** One cell of the grid, built on demand (no need to hold a 262,144-cell array). */
+export function cellAt(spec: SweepSpec, axes: readonly ExpandedAxis[], index: number): SweepCell {
+  const total = cellCount(axes);
+  if (!Number.isInteger(index) || index < 0 || index >= total) {
+    throw new RangeError(`cell index ${index} is outside 0..${total - 1}`);
+  }
+  const positions = axisPositions(axes, index);
+  const values = positions.map((position, i) => axes[i].values[position]);
+  const applied = applyAxisValues(spec.scenario, spec.axes, values);
+  // A new object: applyAxisValues returns the base itself when there are no axes.
+  const scenario: Scenario = { ...applied, seed: deriveCellSeed(spec.scenario.seed, applied) };
+  return { index, axisValues: values, scenario };
+}
+
+/** Cells [first, first + count) in index order. */
+export function cellRange(spec: SweepSpec, axes: readonly ExpandedAxis[], first: number, count: number): SweepCell[] {
+  const cells: SweepCell[] = new Array(count);
+  for (let i = 0; i < count; i++) cells[i] = cellAt(spec, axes, first + i);
+  return cells;
+}
+
+/** Every cell of the sweep in index order. */
+export function* iterateCells(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): Generator<SweepCell> {
+  const total = cellCount(axes);
+  for (let index = 0; index < total; index++) yield cellAt(spec, axes, index);
+}
+
+/** Every cell of the sweep as an array (small sweeps, tests). */
+export function expandSweep(spec: SweepSpec): SweepCell[] {
+  return [...iterateCells(spec)];
+}

@@ -1,0 +1,131 @@
+/**
+ * The worker-thread pool that runs chunks: piscina threads (one per core by
+ * default) behind a p-queue that bounds the chunks in flight, so a sweep of
+ * thousands of chunks never floods piscina's queue or memory, and the server's
+ * queue runner can use the same gate.
+ *
+ * The worker entry is loaded one of two ways:
+ * - "source": workers/chunk-worker.ts through tsx (`execArgv: ["--import", tsx]`),
+ *   for the CLI, tests and benchmarks;
+ * - "bundle": .build/chunk-worker.mjs made by `node scripts/build-worker.mjs`
+ *   (part of `npm run build`), for the Next.js server, whose own bundle cannot
+ *   hand a .ts file to a thread.
+ * Paths are taken from the working directory (the repository root under npm
+ * scripts and `next start`), not from import.meta.url, which points into the
+ * server bundle under Next.
+ *
+ * Node only (worker threads).
+ */
+import { existsSync } from "node:fs";
+import { createRequire } from "node:module";
+import { availableParallelism } from "node:os";
+import path from "node:path";
+import { pathToFileURL } from "node:url";
+import PQueue from "p-queue";
+import Piscina from "piscina";
+import type { ChunkOutcome, ChunkTask } from "./chunk-task";
+
+export type WorkerEntry = "source" | "bundle";
+
+export interface ChunkPoolOptions {
+  /** Worker threads; default one per core. */
+  threads?: number;
+  /** Chunks submitted to the threads at once; default 2 × threads (one running, one waiting per thread). */
+  maxInFlight?: number;
+  /** How to load the worker entry; default "bundle" under Next.js, "source" elsewhere. */
+  entry?: WorkerEntry;
+  /** Repository root holding workers/ and .build/; default process.cwd(). */
+  rootDir?: string;
+}
+
+export interface ChunkPool {
+  readonly threads: number;
+  readonly entry: WorkerEntry;
+  /** Run one chunk on a worker thread (waits for a slot when maxInFlight chunks are running). */
+  run(task: ChunkTask): Promise<ChunkOutcome>;
+  /** Chunks waiting for a slot, and chunks running. */
+  readonly pending: number;
+  readonly inFlight: number;
+  /** Finish running chunks, then stop the threads. */
+  close(): Promise<void>;
+}
+
+export function defaultThreadCount(): number {
+  return Math.max(1, availableParallelism());
+}
+
+function defaultEntry(): WorkerEntry {
+  return process.env.NEXT_RUNTIME ? "bundle" : "source";
+}
+
+function tsxImportArgs(rootDir: string): string[] {
+  const requireFromRoot = createRequire(path.join(rootDir, "package.json"));
+  return ["--import", pathToFileURL(requireFromRoot.resolve("tsx")).href];
+}
+
+export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
+  const threads = options.threads ?? defaultThreadCount();
+  if (!Number.isInteger(threads) || threads < 1) throw new RangeError(`threads must be an integer ≥ 1; got ${threads}`);
+  const maxInFlight = options.maxInFlight ?? threads * 2;
+  if (!Number.isInteger(maxInFlight) || maxInFlight < 1) throw new RangeError(`maxInFlight must be an integer ≥ 1; got ${maxInFlight}`);
+  const entry = options.entry ?? defaultEntry();
+  const rootDir = options.rootDir ?? process.cwd();
+
+  let filename: string;
+  let execArgv: string[];
+  if (entry === "bundle") {
+    filename = path.join(rootDir, ".build", "chunk-worker.mjs");
+    if (!existsSync(filename)) throw new Error(`worker bundle ${filename} is missing: run \`node scripts/build-worker.mjs\` (npm run build does)`);
+    execArgv = [];
+  } else {
+    filename = path.join(rootDir, "workers", "chunk-worker.ts");
+    if (!existsSync(filename)) throw new Error(`worker entry ${filename} is missing (run from the repository root)`);
+    execArgv = tsxImportArgs(rootDir);
+  }
+
+  const piscina = new Piscina<ChunkTask, ChunkOutcome>({
+    filename: pathToFileURL(filename).href,
+    execArgv,
+    minThreads: threads,
+    // minThreads = maxThreads keeps every thread alive between sweeps: chunks arrive in bursts.
+    maxThreads: threads,
+  });
+  const queue = new PQueue({ concurrency: maxInFlight });
+
+  return {
+    threads,
+    entry,
+    run: (task) => queue.add(() => piscina.run(task)),
+    get pending() {
+      return queue.size;
+    },
+    get inFlight() {
+      return queue.pending;
+    },
+    async close() {
+      await queue.onIdle();
+      await piscina.close();
+    },
+  };
+}
+
+const POOL_KEY = Symbol.for("kickdrift.chunkPool");
+type PoolHolder = { [POOL_KEY]?: ChunkPool };
+
+/**
+ * The process-wide pool, created on first use and kept on globalThis so hot
+ * reload and several importers share one set of threads.
+ */
+export function getChunkPool(options?: ChunkPoolOptions): ChunkPool {
+  const holder = globalThis as PoolHolder;
+  holder[POOL_KEY] ??= createChunkPool(options);
+  return holder[POOL_KEY];
+}
+
+/** Close and forget the process-wide pool (tests, shutdown). */
+export async function closeChunkPool(): Promise<void> {
+  const holder = globalThis as PoolHolder;
+  const pool = holder[POOL_KEY];
+  delete holder[POOL_KEY];
+  if (pool) await pool.close();
+}

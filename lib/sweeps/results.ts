@@ -1,0 +1,246 @@
+/**
+ * The per-cell result record and its serialisers (JSON and CSV).
+ *
+ * Bytes are deterministic: fixed key and column order, numbers in the shortest
+ * round-trip form (`String(n)`, −0 as 0), non-finite numbers as null (JSON) or
+ * an empty field (CSV), cells in index order, "\n" line ends in JSON and
+ * "\r\n" in CSV (RFC 4180). Nothing that varies between runs (timings, dates,
+ * thread counts) is written.
+ *
+ * Serialisers are generators of text pieces so a 262,144-cell sweep can be
+ * streamed to a file; `…ToString` helpers join them for small results.
+ *
+ * Pure: safe to import in the browser.
+ */
+import type { Metrics, Verdict } from "../physics/types";
+import { VERDICTS } from "../physics/types";
+import type { ExpandedAxis } from "./grid";
+
+export interface CellResult {
+  index: number;
+  /** One value per axis, in axis order. */
+  axisValues: (number | string)[];
+  verdict: Verdict;
+  reason: string;
+  metrics: Metrics;
+}
+
+/** Metric fields in the order they are written. */
+export const METRIC_KEYS = [
+  "momentumDriftRelX",
+  "momentumDriftRelY",
+  "energyErrorRel",
+  "maxEnergyErrorRel",
+  "effectiveRestitution",
+  "maxOverlapFraction",
+  "contactDurationS",
+  "contactSteps",
+  "tunneled",
+  "exploded",
+  "steps",
+] as const satisfies readonly (keyof Metrics)[];
+
+// Every Metrics field must be listed (a new engine metric fails the type check here).
+type MissingMetric = Exclude<keyof Metrics, (typeof METRIC_KEYS)[number]>;
+const allMetricsListed: [MissingMetric] extends [never] ? true : false = true;
+void allMetricsListed;
+
+/** Just the contract's metric fields, in the fixed order (drops anything extra an engine returns). */
+export function pickMetrics(metrics: Metrics): Metrics {
+  const picked: Record<string, unknown> = {};
+  for (const key of METRIC_KEYS) picked[key] = metrics[key];
+  return picked as unknown as Metrics;
+}
+
+export type VerdictCounts = Record<Verdict, number>;
+
+export function emptyVerdictCounts(): VerdictCounts {
+  const counts = {} as VerdictCounts;
+  for (const verdict of VERDICTS) counts[verdict] = 0;
+  return counts;
+}
+
+export function countVerdicts(results: Iterable<Pick<CellResult, "verdict">>, into: VerdictCounts = emptyVerdictCounts()): VerdictCounts {
+  for (const result of results) into[result.verdict] += 1;
+  return into;
+}
+
+// ---------------------------------------------------------------------------
+// JSON
+
+/** A number in its shortest round-trip form; −0 as 0; non-finite as null. */
+export function formatNumber(value: number): string {
+  if (!Number.isFinite(value)) return "null";
+  return Object.is(value, -0) ? "0" : String(value);
+}
+
+function jsonValue(value: number | string | boolean | null): string {
+  if (value === null) return "null";
+  if (typeof value === "number") return formatNumber(value);
+  if (typeof value === "boolean") return value ? "true" : "false";
+  return JSON.stringify(value);
+}
+
+export interface ResultsHeader {
+  /** Optional sweep name from the spec. */
+  name?: string;
+  /** specHash() of the parsed spec. */
+  specHash: string;
+  axes: readonly ExpandedAxis[];
+  cellCount: number;
+}
+
+export const RESULTS_FORMAT = "kickdrift-sweep-results";
+export const RESULTS_FORMAT_VERSION = 1;
+
+/** One cell as a JSON object with fixed key order. */
+export function cellToJson(result: CellResult, axes: readonly ExpandedAxis[]): string {
+  const parameters = axes.map((axis, i) => `${JSON.stringify(axis.parameter)}:${jsonValue(result.axisValues[i])}`).join(",");
+  const metrics = METRIC_KEYS.map((key) => `${JSON.stringify(key)}:${jsonValue(result.metrics[key] as number | boolean | null)}`).join(",");
+  return `{"index":${result.index},"parameters":{${parameters}},"verdict":${JSON.stringify(result.verdict)},"reason":${JSON.stringify(result.reason)},"metrics":{${metrics}}}`;
+}
+
+/**
+ * Encoders write a results document piece by piece: head(), then cells() for
+ * consecutive runs of cells in index order, then tail(). They check that every
+ * cell comes once, in order, so a mis-ordered merge cannot produce a file.
+ */
+export interface ResultsEncoder {
+  head(): string;
+  cells(results: readonly CellResult[]): string;
+  tail(): string;
+}
+
+function orderGuard(header: ResultsHeader) {
+  let expected = 0;
+  return {
+    take(result: CellResult) {
+      if (result.index !== expected) throw new Error(`results out of order: cell ${result.index} where cell ${expected} was expected`);
+      expected++;
+      return expected === 1;
+    },
+    finish() {
+      if (expected !== header.cellCount) throw new Error(`results hold ${expected} cells; the sweep has ${header.cellCount}`);
+    },
+  };
+}
+
+/**
+ * The JSON document:
+ * { format, version, name?, specHash, cellCount, axes, cells: [one per line], verdictCounts }.
+ */
+export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
+  const guard = orderGuard(header);
+  const counts = emptyVerdictCounts();
+  return {
+    head() {
+      const name = header.name !== undefined ? `"name":${JSON.stringify(header.name)},` : "";
+      const axes = header.axes
+        .map(
+          (axis) =>
+            `{"parameter":${JSON.stringify(axis.parameter)},"label":${JSON.stringify(axis.label)},"unit":${JSON.stringify(axis.unit)},"values":[${axis.values.map((value) => jsonValue(value)).join(",")}]}`,
+        )
+        .join(",");
+      return `{"format":${JSON.stringify(RESULTS_FORMAT)},"version":${RESULTS_FORMAT_VERSION},${name}"specHash":${JSON.stringify(header.specHash)},"cellCount":${header.cellCount},\n"axes":[${axes}],\n"cells":[\n`;
+    },
+    cells(results) {
+      let text = "";
+      for (const result of results) {
+        const first = guard.take(result);
+        counts[result.verdict] += 1;
+        text += `${first ? "" : ",\n"}${cellToJson(result, header.axes)}`;
+      }
+      return text;
+    },
+    tail() {
+      guard.finish();
+      const countText = VERDICTS.map((verdict) => `${JSON.stringify(verdict)}:${counts[verdict]}`).join(",");
+      return `\n],\n"verdictCounts":{${countText}}}\n`;
+    },
+  };
+}
+
+export function* resultsToJsonPieces(header: ResultsHeader, results: Iterable<CellResult>): Generator<string> {
+  yield* encodeAll(jsonResultsEncoder(header), results);
+}
+
+function* encodeAll(encoder: ResultsEncoder, results: Iterable<CellResult>): Generator<string> {
+  yield encoder.head();
+  for (const result of results) yield encoder.cells([result]);
+  yield encoder.tail();
+}
+
+export function resultsToJson(header: ResultsHeader, results: Iterable<CellResult>): string {
+  return [...resultsToJsonPieces(header, results)].join("");
+}
+
+// ---------------------------------------------------------------------------
+// CSV
+
+/**
+ * Text that a spreadsheet would read as a formula gets a leading single quote
+ * (= + - @, and tab / carriage return as the OWASP guidance on CSV injection
+ * adds). Only text fields are guarded: numbers are written by formatNumber and
+ * a leading minus sign there is a negative number, not a formula.
+ */
+export function guardFormula(text: string): string {
+  return /^[=+\-@\t\r]/.test(text) ? `'${text}` : text;
+}
+
+/** RFC 4180: quote a field that holds a comma, a double quote, CR or LF; double the quotes inside. */
+export function quoteCsvField(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+function csvText(text: string): string {
+  return quoteCsvField(guardFormula(text));
+}
+
+function csvValue(value: number | string | boolean | null): string {
+  if (value === null) return "";
+  if (typeof value === "number") return Number.isFinite(value) ? formatNumber(value) : "";
+  if (typeof value === "boolean") return value ? "true" : "false";
+  return csvText(value);
+}
+
+export function csvHeader(axes: readonly ExpandedAxis[]): string {
+  return ["index", ...axes.map((axis) => csvText(axis.parameter)), "verdict", "reason", ...METRIC_KEYS].join(",");
+}
+
+export function cellToCsv(result: CellResult): string {
+  return [
+    String(result.index),
+    ...result.axisValues.map((value) => csvValue(value)),
+    csvText(result.verdict),
+    csvText(result.reason),
+    ...METRIC_KEYS.map((key) => csvValue(result.metrics[key] as number | boolean | null)),
+  ].join(",");
+}
+
+/** Header row and one row per cell, CRLF after every row. */
+export function csvResultsEncoder(header: ResultsHeader): ResultsEncoder {
+  const guard = orderGuard(header);
+  return {
+    head: () => `${csvHeader(header.axes)}\r\n`,
+    cells(results) {
+      let text = "";
+      for (const result of results) {
+        guard.take(result);
+        text += `${cellToCsv(result)}\r\n`;
+      }
+      return text;
+    },
+    tail() {
+      guard.finish();
+      return "";
+    },
+  };
+}
+
+export function* resultsToCsvPieces(header: ResultsHeader, results: Iterable<CellResult>): Generator<string> {
+  yield* encodeAll(csvResultsEncoder(header), results);
+}
+
+export function resultsToCsv(header: ResultsHeader, results: Iterable<CellResult>): string {
+  return [...resultsToCsvPieces(header, results)].join("");
+}

@@ -1,0 +1,99 @@
+/**
+ * Run a whole sweep on a chunk pool: plan the chunks, submit them all (the
+ * pool's p-queue bounds what is in flight), and hand the results on strictly in
+ * cell order however the threads finish, so any thread count and any chunk
+ * size produce the same bytes.
+ *
+ * Node only (uses the pool).
+ */
+import type { ChunkOutcome } from "./chunk-task";
+import { planChunks, type ChunkOptions, type ChunkPlan } from "./chunks";
+import { cellCount, expandAxes, type ExpandedAxis } from "./grid";
+import { specHash } from "./hash";
+import type { ChunkPool } from "./pool";
+import { countVerdicts, emptyVerdictCounts, type CellResult, type ResultsHeader, type VerdictCounts } from "./results";
+import type { SweepSpec } from "./spec";
+
+export interface SweepProgress {
+  chunksDone: number;
+  chunks: number;
+  cellsDone: number;
+  cells: number;
+  computeMs: number;
+}
+
+export interface RunSweepOptions extends ChunkOptions {
+  pool: ChunkPool;
+  /** Called with consecutive runs of results, in cell order (each cell exactly once). */
+  onResults?: (results: readonly CellResult[]) => void;
+  /** Called after each chunk finishes (in completion order). */
+  onProgress?: (progress: SweepProgress) => void;
+}
+
+export interface SweepRunSummary {
+  header: ResultsHeader;
+  chunks: ChunkPlan[];
+  verdictCounts: VerdictCounts;
+  /** Sum of the chunks' measured worker compute (integer ms). */
+  computeMs: number;
+  /** Measured compute per chunk, by chunk index (integer ms). */
+  chunkComputeMs: number[];
+  /** The same in ns, for calibration. */
+  chunkComputeNs: number[];
+}
+
+export function resultsHeader(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): ResultsHeader {
+  return { name: spec.name, specHash: specHash(spec), axes, cellCount: cellCount(axes) };
+}
+
+export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promise<SweepRunSummary> {
+  const axes = options.axes ?? expandAxes(spec);
+  const header = resultsHeader(spec, axes);
+  const chunks = planChunks(spec, { ...options, axes });
+  const verdictCounts = emptyVerdictCounts();
+  const chunkComputeMs: number[] = new Array(chunks.length).fill(0);
+  const chunkComputeNs: number[] = new Array(chunks.length).fill(0);
+
+  // Reorder buffer: chunks finish in any order; results leave in chunk (= cell) order.
+  const finished = new Map<number, CellResult[]>();
+  let nextChunk = 0;
+  let chunksDone = 0;
+  let cellsDone = 0;
+  let computeMs = 0;
+  let failed = false;
+
+  const accept = (outcome: ChunkOutcome) => {
+    const plan = chunks[outcome.chunkIndex];
+    if (outcome.results.length !== plan.cellCount) {
+      throw new Error(`chunk ${plan.index} returned ${outcome.results.length} results for ${plan.cellCount} cells`);
+    }
+    finished.set(outcome.chunkIndex, outcome.results);
+    chunkComputeMs[outcome.chunkIndex] = outcome.computeMs;
+    chunkComputeNs[outcome.chunkIndex] = outcome.computeNs;
+    computeMs += outcome.computeMs;
+    chunksDone++;
+    cellsDone += plan.cellCount;
+    while (finished.has(nextChunk)) {
+      const results = finished.get(nextChunk) as CellResult[];
+      finished.delete(nextChunk);
+      countVerdicts(results, verdictCounts);
+      options.onResults?.(results);
+      nextChunk++;
+    }
+    options.onProgress?.({ chunksDone, chunks: chunks.length, cellsDone, cells: header.cellCount, computeMs });
+  };
+
+  await Promise.all(
+    chunks.map(async (plan) => {
+      if (failed) return;
+      try {
+        const outcome = await options.pool.run({ kind: "range", chunkIndex: plan.index, spec, firstCell: plan.firstCell, cellCount: plan.cellCount });
+        if (!failed) accept(outcome);
+      } catch (error) {
+        failed = true;
+        throw error;
+      }
+    }),
+  );
+  return { header, chunks, verdictCounts, computeMs, chunkComputeMs, chunkComputeNs };
+}

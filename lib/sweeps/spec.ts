@@ -1,0 +1,689 @@
+/**
+ * The sweep spec: a scenario plus up to three axes. This zod schema is the one
+ * source for the API, the builder form, the CLI and docs/sweep-spec.md.
+ *
+ * The scenario parses into exactly `Scenario` of lib/physics/types.ts. The
+ * parsed spec has the same shape as its input (defaults filled in), so it can
+ * be stored as JSON and parsed again.
+ *
+ * Pure: safe to import in the browser.
+ */
+import { z } from "zod";
+import { DEFAULT_TOLERANCES } from "../physics/constants";
+import type { Scenario, SceneKind, Tolerances } from "../physics/types";
+import {
+  CHOICE_PARAMETERS,
+  SPEC_LIMITS,
+  findParameter,
+  formatLimit,
+  numericRule,
+  rangeViolation,
+  readNumericField,
+  scenesOfPath,
+  SWEEPABLE_PATHS,
+  type NumericParameter,
+} from "./parameters";
+
+export { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parametersForScene } from "./parameters";
+
+/** Tolerances used when a spec leaves them out: the engine's own defaults. */
+export const SPEC_DEFAULT_TOLERANCES: Readonly<Tolerances> = DEFAULT_TOLERANCES;
+/** Seed used when a spec leaves it out. */
+export const SPEC_DEFAULT_SEED = 1;
+const MAX_SEED = 0xffff_ffff;
+
+// ---------------------------------------------------------------------------
+// Numbers
+
+function describeReceived(input: unknown): string {
+  if (input === undefined) return "missing";
+  if (typeof input === "number") return String(input);
+  if (input === null) return "null";
+  if (Array.isArray(input)) return "an array";
+  return `a ${typeof input}`;
+}
+
+/** A number field checked by the parameter table's rule for that field. */
+function ruledNumber(rule: NumericParameter) {
+  return z
+    .number({ error: (issue) => `${rule.label} must be a finite number (${rule.unit || "no unit"}); got ${describeReceived(issue.input)}` })
+    .superRefine((value, ctx) => {
+      const problem = rangeViolation(rule, value);
+      if (problem) ctx.addIssue({ code: "custom", message: problem, input: value });
+    });
+}
+
+function boundedNumber(label: string, min: number, minInclusive: boolean, max: number) {
+  return ruledNumber({
+    kind: "number",
+    path: label,
+    label,
+    unit: "",
+    scenes: "all",
+    min,
+    minInclusive,
+    max,
+    maxInclusive: true,
+    integer: false,
+    suggestedSpacing: "linear",
+    help: "",
+  });
+}
+
+function sceneNumber(kind: SceneKind, field: string) {
+  return ruledNumber(numericRule(`scene.${field}`, kind));
+}
+
+// ---------------------------------------------------------------------------
+// Scenario
+
+export const pairSceneSchema = z.strictObject({
+  kind: z.literal("pair"),
+  massAKg: sceneNumber("pair", "massAKg"),
+  massBKg: sceneNumber("pair", "massBKg"),
+  radiusAM: sceneNumber("pair", "radiusAM"),
+  radiusBM: sceneNumber("pair", "radiusBM"),
+  speedAMPerS: sceneNumber("pair", "speedAMPerS"),
+  speedBMPerS: sceneNumber("pair", "speedBMPerS"),
+  offsetFraction: sceneNumber("pair", "offsetFraction"),
+  gapM: sceneNumber("pair", "gapM"),
+});
+
+export const wallSceneSchema = z.strictObject({
+  kind: z.literal("wall"),
+  massKg: sceneNumber("wall", "massKg"),
+  radiusM: sceneNumber("wall", "radiusM"),
+  speedMPerS: sceneNumber("wall", "speedMPerS"),
+  angleDeg: sceneNumber("wall", "angleDeg"),
+  gapM: sceneNumber("wall", "gapM"),
+});
+
+export const rowSceneSchema = z.strictObject({
+  kind: z.literal("row"),
+  count: sceneNumber("row", "count"),
+  massKg: sceneNumber("row", "massKg"),
+  radiusM: sceneNumber("row", "radiusM"),
+  strikerMassKg: sceneNumber("row", "strikerMassKg"),
+  strikerSpeedMPerS: sceneNumber("row", "strikerSpeedMPerS"),
+  spacingM: sceneNumber("row", "spacingM"),
+  gapM: sceneNumber("row", "gapM"),
+});
+
+export const boxSceneSchema = z.strictObject({
+  kind: z.literal("box"),
+  count: sceneNumber("box", "count"),
+  massKg: sceneNumber("box", "massKg"),
+  radiusM: sceneNumber("box", "radiusM"),
+  widthM: sceneNumber("box", "widthM"),
+  heightM: sceneNumber("box", "heightM"),
+  maxSpeedMPerS: sceneNumber("box", "maxSpeedMPerS"),
+  gravityMPerS2: sceneNumber("box", "gravityMPerS2"),
+});
+
+export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema], {
+  error: (issue) =>
+    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
+});
+
+const dampingSchema = z.discriminatedUnion(
+  "kind",
+  [
+    z.strictObject({ kind: z.literal("none") }),
+    z.strictObject({ kind: z.literal("coefficient"), value: ruledNumber(numericRule("contact.damping.coefficient", "pair")) }),
+    z.strictObject({ kind: z.literal("restitution"), value: ruledNumber(numericRule("contact.damping.restitution", "pair")) }),
+  ],
+  { error: (issue) => (issue.code === "invalid_union" ? "damping.kind must be one of none, coefficient, restitution" : undefined) },
+);
+
+export const contactSchema = z.strictObject({
+  model: z.enum(["linear", "hertz"], { error: "contact.model must be linear or hertz" }),
+  stiffness: ruledNumber(numericRule("contact.stiffness", "pair")).optional(),
+  material: z
+    .strictObject({
+      youngsModulusPa: ruledNumber(numericRule("contact.material.youngsModulusPa", "pair")),
+      poissonRatio: ruledNumber(numericRule("contact.material.poissonRatio", "pair")),
+    })
+    .optional(),
+  damping: dampingSchema.default({ kind: "none" }),
+});
+
+export const tolerancesSchema = z.strictObject({
+  energyDriftRel: boundedNumber("tolerances.energyDriftRel", 0, false, 1e6),
+  maxOverlapFraction: boundedNumber("tolerances.maxOverlapFraction", 0, false, 100),
+  blowUpEnergyFactor: boundedNumber("tolerances.blowUpEnergyFactor", 1, false, 1e300),
+});
+
+export const scenarioSchema = z.strictObject({
+  scene: sceneSchema,
+  contact: contactSchema,
+  integrator: z.enum(["symplectic-euler", "velocity-verlet", "explicit-euler"], {
+    error: "integrator must be symplectic-euler, velocity-verlet or explicit-euler",
+  }),
+  dtS: ruledNumber(numericRule("dtS", "pair")),
+  substeps: ruledNumber(numericRule("substeps", "pair")).default(1),
+  durationS: ruledNumber(numericRule("durationS", "pair")),
+  tolerances: tolerancesSchema.default(() => ({ ...SPEC_DEFAULT_TOLERANCES })),
+  seed: z
+    .number({ error: (issue) => `seed must be an integer from 0 to ${MAX_SEED}; got ${describeReceived(issue.input)}` })
+    .int({ error: `seed must be an integer from 0 to ${MAX_SEED}` })
+    .min(0, { error: `seed must be an integer from 0 to ${MAX_SEED}` })
+    .max(MAX_SEED, { error: `seed must be an integer from 0 to ${MAX_SEED}` })
+    .default(SPEC_DEFAULT_SEED),
+});
+
+// ---------------------------------------------------------------------------
+// Axes
+
+export const axisSchema = z.strictObject({
+  /** A path from SWEEPABLE_PARAMETERS, e.g. "contact.stiffness". */
+  parameter: z.string({ error: "parameter must be a string naming a sweepable parameter" }),
+  spacing: z.enum(["linear", "log"], { error: "spacing must be linear or log" }).optional(),
+  from: z.number({ error: (issue) => `from must be a finite number; got ${describeReceived(issue.input)}` }).optional(),
+  to: z.number({ error: (issue) => `to must be a finite number; got ${describeReceived(issue.input)}` }).optional(),
+  count: z
+    .number({ error: (issue) => `count must be an integer ≥ 1; got ${describeReceived(issue.input)}` })
+    .int({ error: "count must be an integer ≥ 1" })
+    .min(1, { error: "count must be an integer ≥ 1" })
+    .optional(),
+  values: z
+    .array(z.union([z.number(), z.string()], { error: "each value must be a finite number or a choice name" }))
+    .min(1, { error: "values must list at least one value" })
+    .max(SPEC_LIMITS.maxListValues, { error: `values may list at most ${SPEC_LIMITS.maxListValues} entries` })
+    .optional(),
+});
+
+export type AxisSpec = z.infer<typeof axisSchema>;
+
+/**
+ * The values of one axis, in order. Range axes: `count` points from `from` to
+ * `to`, both ends exact; linear points are from·(1 − t) + to·t, log points
+ * from·(to/from)^t, with t = i / (count − 1). Integer parameters (substeps,
+ * scene.count) round each point to the nearest integer.
+ * List axes: the values as written.
+ */
+export function axisValues(axis: AxisSpec, integer = false): (number | string)[] {
+  if (axis.values) return [...axis.values];
+  const from = axis.from as number;
+  const to = axis.to as number;
+  const count = axis.count as number;
+  const values: number[] = new Array(count);
+  const last = count - 1;
+  for (let i = 0; i < count; i++) {
+    let value: number;
+    if (i === 0) value = from;
+    else if (i === last) value = to;
+    else {
+      const t = i / last;
+      value = axis.spacing === "log" ? from * Math.pow(to / from, t) : from * (1 - t) + to * t;
+    }
+    values[i] = integer ? Math.round(value) : value;
+  }
+  return values;
+}
+
+/** Whether the path sweeps a whole-number parameter (values are rounded). */
+export function isIntegerParameter(path: string, sceneKind: SceneKind): boolean {
+  const parameter = findParameter(path, sceneKind);
+  return parameter?.kind === "number" && parameter.integer;
+}
+
+// ---------------------------------------------------------------------------
+// Applying axis values to a scenario
+
+/** A copy of the scenario with one axis value applied (scene.massRatio sets massBKg from massAKg). */
+export function applyAxisValue(scenario: Scenario, path: string, value: number | string): Scenario {
+  const next: Scenario = {
+    ...scenario,
+    scene: { ...scenario.scene },
+    contact: {
+      ...scenario.contact,
+      damping: { ...scenario.contact.damping },
+      material: scenario.contact.material ? { ...scenario.contact.material } : undefined,
+    },
+    tolerances: { ...scenario.tolerances },
+  };
+  if (next.contact.material === undefined) delete next.contact.material;
+  if (path === "integrator") next.integrator = value as Scenario["integrator"];
+  else if (path === "contact.model") next.contact.model = value as Scenario["contact"]["model"];
+  else if (path === "contact.damping.coefficient" || path === "contact.damping.restitution") {
+    (next.contact.damping as { value: number }).value = value as number;
+  } else if (path === "scene.massRatio") {
+    if (next.scene.kind === "pair") next.scene.massBKg = next.scene.massAKg * (value as number);
+  } else {
+    const keys = path.split(".");
+    let node = next as unknown as Record<string, unknown>;
+    for (let i = 0; i < keys.length - 1; i++) node = node[keys[i]] as Record<string, unknown>;
+    node[keys[keys.length - 1]] = value;
+  }
+  return next;
+}
+
+/**
+ * Apply one value per axis, in an order that makes derived parameters see their
+ * bases: scene.massRatio goes last so it multiplies the cell's own massAKg.
+ */
+export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
+  let scenario = base;
+  let ratioValue: number | undefined;
+  for (let i = 0; i < axes.length; i++) {
+    if (axes[i].parameter === "scene.massRatio") ratioValue = values[i] as number;
+    else scenario = applyAxisValue(scenario, axes[i].parameter, values[i]);
+  }
+  if (ratioValue !== undefined) scenario = applyAxisValue(scenario, "scene.massRatio", ratioValue);
+  return scenario;
+}
+
+// ---------------------------------------------------------------------------
+// Checks that need a whole scenario (run on the base and on every corner of the grid)
+
+interface ScenarioProblem {
+  /** Stable id of the check, to report each check once. */
+  check: string;
+  /** Scenario fields the check depends on, first the most telling one. */
+  paths: string[];
+  message: string;
+  /** How far past the limit (value / limit); the worst corner is reported. */
+  severity: number;
+}
+
+/** Integrator steps of one cell: durationS / (dtS / substeps). */
+export function stepsPerCell(scenario: Pick<Scenario, "durationS" | "dtS" | "substeps">): number {
+  // A tiny allowance so that e.g. 0.3 s / 0.1 s counts as 3 steps, not 4.
+  return Math.max(1, Math.ceil((scenario.durationS * scenario.substeps) / scenario.dtS - 1e-9));
+}
+
+/** Discs simulated in a scene (the row counts its striker). */
+export function bodyCount(scenario: Scenario): number {
+  switch (scenario.scene.kind) {
+    case "pair":
+      return 2;
+    case "wall":
+      return 1;
+    case "row":
+      return scenario.scene.count + 1;
+    case "box":
+      return scenario.scene.count;
+  }
+}
+
+function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
+  const problems: ScenarioProblem[] = [];
+  const { contact, scene } = scenario;
+
+  if (contact.model === "linear") {
+    if (contact.stiffness === undefined) {
+      problems.push({ check: "linear-stiffness", paths: ["contact.model", "contact.stiffness"], message: "the linear contact model needs contact.stiffness (N/m)", severity: 1 });
+    }
+    if (contact.material !== undefined) {
+      problems.push({ check: "linear-material", paths: ["contact.model", "contact.material"], message: "contact.material applies to the hertz model only; the linear model takes contact.stiffness", severity: 1 });
+    }
+  } else if ((contact.stiffness === undefined) === (contact.material === undefined)) {
+    problems.push({
+      check: "hertz-stiffness",
+      paths: ["contact.model", "contact.stiffness"],
+      message: "the hertz contact model needs exactly one of contact.stiffness (N/m^1.5) or contact.material",
+      severity: 1,
+    });
+  }
+
+  const subStepS = scenario.dtS / scenario.substeps;
+  if (scenario.durationS < subStepS) {
+    problems.push({
+      check: "duration-below-step",
+      paths: ["durationS", "dtS", "substeps"],
+      message: `durationS ${scenario.durationS} s is shorter than one integrator step (dtS / substeps = ${subStepS} s)`,
+      severity: subStepS / scenario.durationS,
+    });
+  }
+  const steps = (scenario.durationS * scenario.substeps) / scenario.dtS;
+  if (steps > SPEC_LIMITS.maxStepsPerCell) {
+    problems.push({
+      check: "steps-per-cell",
+      paths: ["dtS", "substeps", "durationS"],
+      message: `steps per cell (durationS ${scenario.durationS} s × substeps ${scenario.substeps} / dtS ${scenario.dtS} s = ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxStepsPerCell)}`,
+      severity: steps / SPEC_LIMITS.maxStepsPerCell,
+    });
+  }
+
+  if (scene.kind === "pair") {
+    const massBRule = numericRule("scene.massBKg", "pair");
+    const massProblem = rangeViolation(massBRule, scene.massBKg);
+    if (massProblem) {
+      problems.push({ check: "mass-b", paths: ["scene.massRatio", "scene.massBKg", "scene.massAKg"], message: massProblem, severity: 2 });
+    }
+    if (!(scene.speedAMPerS + scene.speedBMPerS > 0)) {
+      problems.push({
+        check: "pair-approach",
+        paths: ["scene.speedAMPerS", "scene.speedBMPerS"],
+        message: "scene.speedAMPerS + scene.speedBMPerS must be > 0 so the discs approach; got 0",
+        severity: 1,
+      });
+    }
+  }
+
+  if (scene.kind === "row" || scene.kind === "box") {
+    const bodies = bodyCount(scenario);
+    if (bodies > SPEC_LIMITS.maxBodies) {
+      problems.push({
+        check: "bodies",
+        paths: ["scene.count"],
+        message: `${formatLimit(bodies)} bodies exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodies)}`,
+        severity: bodies / SPEC_LIMITS.maxBodies,
+      });
+    }
+    const bodySteps = bodies * Math.ceil(steps);
+    if (bodySteps > SPEC_LIMITS.maxBodyStepsPerCell) {
+      problems.push({
+        check: "body-steps",
+        paths: ["scene.count", "dtS", "durationS", "substeps"],
+        message: `bodies × steps per cell (${formatLimit(bodies)} × ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodyStepsPerCell)}`,
+        severity: bodySteps / SPEC_LIMITS.maxBodyStepsPerCell,
+      });
+    }
+  }
+
+  if (scene.kind === "box") {
+    const diameterM = 2 * scene.radiusM;
+    if (diameterM >= scene.widthM || diameterM >= scene.heightM) {
+      problems.push({
+        check: "box-fit",
+        paths: ["scene.radiusM", "scene.widthM", "scene.heightM"],
+        message: `a disc of radius ${scene.radiusM} m does not fit in a ${scene.widthM} m × ${scene.heightM} m box`,
+        severity: diameterM / Math.min(scene.widthM, scene.heightM),
+      });
+    }
+    const areaFraction = (scene.count * Math.PI * scene.radiusM * scene.radiusM) / (scene.widthM * scene.heightM);
+    if (areaFraction > SPEC_LIMITS.maxBoxAreaFraction) {
+      problems.push({
+        check: "box-packing",
+        paths: ["scene.count", "scene.radiusM", "scene.widthM", "scene.heightM"],
+        message: `${formatLimit(scene.count)} discs of radius ${scene.radiusM} m cover ${(areaFraction * 100).toPrecision(3)} % of the box; the limit is ${SPEC_LIMITS.maxBoxAreaFraction * 100} %`,
+        severity: areaFraction / SPEC_LIMITS.maxBoxAreaFraction,
+      });
+    }
+  }
+  return problems;
+}
+
+// ---------------------------------------------------------------------------
+// The sweep spec
+
+const sweepSpecObject = z.strictObject({
+  /** Format version of the spec; 1 is the only one so far. */
+  version: z.literal(1, { error: "version must be 1" }).default(1),
+  name: z
+    .string({ error: "name must be a string" })
+    .max(SPEC_LIMITS.maxNameLength, { error: `name may have at most ${SPEC_LIMITS.maxNameLength} characters` })
+    .optional(),
+  scenario: scenarioSchema,
+  axes: z
+    .array(axisSchema)
+    .max(SPEC_LIMITS.maxAxes, { error: `a sweep has at most ${SPEC_LIMITS.maxAxes} axes` })
+    .default([]),
+});
+
+type AddIssue = (path: (string | number)[], message: string) => void;
+
+/** Per-axis checks; returns the axis values when the axis is sound. */
+function checkAxis(axis: AxisSpec, index: number, scenario: Scenario, addIssue: AddIssue): (number | string)[] | null {
+  const at = (...rest: (string | number)[]) => ["axes", index, ...rest];
+  const sceneKind = scenario.scene.kind;
+  if (!SWEEPABLE_PATHS.includes(axis.parameter)) {
+    addIssue(at("parameter"), `unknown parameter "${axis.parameter}"; sweepable parameters: ${SWEEPABLE_PATHS.join(", ")}`);
+    return null;
+  }
+  const parameter = findParameter(axis.parameter, sceneKind);
+  if (!parameter) {
+    addIssue(at("parameter"), `${axis.parameter} does not apply to the ${sceneKind} scene (it applies to: ${scenesOfPath(axis.parameter).join(", ")})`);
+    return null;
+  }
+
+  // Parameters that exist only with a matching contact set-up.
+  const contact = scenario.contact;
+  const needs = (condition: boolean, message: string) => {
+    if (!condition) addIssue(at("parameter"), message);
+    return condition;
+  };
+  if (axis.parameter === "contact.stiffness" && !needs(contact.material === undefined, "contact.stiffness cannot be swept while contact.material sets the Hertz stiffness")) return null;
+  if (axis.parameter.startsWith("contact.material.") && !needs(contact.material !== undefined, `${axis.parameter} needs contact.material in the scenario`)) return null;
+  if (axis.parameter === "contact.damping.coefficient" && !needs(contact.damping.kind === "coefficient", `contact.damping.coefficient needs scenario.contact.damping.kind "coefficient"; it is "${contact.damping.kind}"`)) return null;
+  if (axis.parameter === "contact.damping.restitution" && !needs(contact.damping.kind === "restitution", `contact.damping.restitution needs scenario.contact.damping.kind "restitution"; it is "${contact.damping.kind}"`)) return null;
+
+  if (parameter.kind === "choice") {
+    if (!axis.values || axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
+      addIssue(at("values"), `${axis.parameter} is a choice: list the choices in values (${parameter.choices.join(", ")}), without spacing, from, to or count`);
+      return null;
+    }
+    let sound = true;
+    axis.values.forEach((value, j) => {
+      if (typeof value !== "string" || !parameter.choices.includes(value)) {
+        addIssue(at("values", j), `${axis.parameter} must be one of ${parameter.choices.join(", ")}; got ${JSON.stringify(value)}`);
+        sound = false;
+      }
+    });
+    if (!sound) return null;
+    if (new Set(axis.values).size !== axis.values.length) {
+      addIssue(at("values"), `values of ${axis.parameter} must be distinct`);
+      return null;
+    }
+    return [...axis.values];
+  }
+
+  // Numeric parameter: either a range or a list of numbers.
+  if (axis.values !== undefined) {
+    if (axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
+      addIssue(at("values"), "give either values or spacing/from/to/count, not both");
+      return null;
+    }
+    let sound = true;
+    axis.values.forEach((value, j) => {
+      const problem = typeof value === "number" ? rangeViolation(parameter, value) : `${parameter.label} must be a number; got ${JSON.stringify(value)}`;
+      if (problem) {
+        addIssue(at("values", j), problem);
+        sound = false;
+      }
+    });
+    if (!sound) return null;
+    if (new Set(axis.values).size !== axis.values.length) {
+      addIssue(at("values"), `values of ${axis.parameter} must be distinct`);
+      return null;
+    }
+    return [...axis.values];
+  }
+
+  let sound = true;
+  for (const key of ["spacing", "from", "to", "count"] as const) {
+    if (axis[key] === undefined) {
+      addIssue(at(key), `${key} is required for a range axis of ${axis.parameter} (or give values)`);
+      sound = false;
+    }
+  }
+  if (!sound) return null;
+  for (const key of ["from", "to"] as const) {
+    // Whole-number parameters are checked for integer ends below, with a clearer message.
+    const problem = rangeViolation({ ...parameter, integer: false }, axis[key] as number);
+    if (problem) {
+      addIssue(at(key), problem);
+      sound = false;
+    }
+  }
+  if (!sound) return null;
+  const from = axis.from as number;
+  const to = axis.to as number;
+  const count = axis.count as number;
+  if (axis.spacing === "log" && !(from > 0 && to > 0)) {
+    addIssue(at(from > 0 ? "to" : "from"), `log spacing needs from and to > 0; got from ${from}, to ${to}`);
+    return null;
+  }
+  if (count === 1 && from !== to) {
+    addIssue(at("count"), `count 1 takes a single value: set from = to (got from ${from}, to ${to}) or use values`);
+    return null;
+  }
+  if (count > 1 && from === to) {
+    addIssue(at("count"), `from = to = ${from} gives one value; count must be 1 (got ${count})`);
+    return null;
+  }
+  if (count > SPEC_LIMITS.maxCellsPerSweep) {
+    addIssue(at("count"), `count ${formatLimit(count)} exceeds the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`);
+    return null;
+  }
+  const values = axisValues(axis, parameter.integer);
+  if (parameter.integer) {
+    for (const key of ["from", "to"] as const) {
+      if (!Number.isInteger(axis[key])) {
+        addIssue(at(key), `${parameter.label} is a whole number: ${key} must be an integer; got ${axis[key]}`);
+        return null;
+      }
+    }
+    const distinct = new Set(values).size;
+    if (distinct !== values.length) {
+      addIssue(at("count"), `${parameter.label} is a whole number: from ${from} to ${to} gives only ${distinct} distinct values with ${axis.spacing} spacing; count ${count} asked`);
+      return null;
+    }
+  }
+  return values;
+}
+
+function cartesian<T>(lists: readonly (readonly T[])[]): T[][] {
+  let combos: T[][] = [[]];
+  for (const list of lists) {
+    const next: T[][] = [];
+    for (const combo of combos) for (const item of list) next.push([...combo, item]);
+    combos = next;
+  }
+  return combos;
+}
+
+/** The values of an axis that bound every monotone limit: the smallest and largest number, or every choice. */
+function extremes(values: readonly (number | string)[]): (number | string)[] {
+  if (typeof values[0] === "string") return [...values];
+  const numbers = values as number[];
+  let lo = numbers[0];
+  let hi = numbers[0];
+  for (const value of numbers) {
+    if (value < lo) lo = value;
+    if (value > hi) hi = value;
+  }
+  return lo === hi ? [lo] : [lo, hi];
+}
+
+function describeCorner(axes: readonly AxisSpec[], corner: readonly (number | string)[]): string {
+  return axes.map((axis, i) => `${axis.parameter} = ${corner[i]}`).join(", ");
+}
+
+function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue): void {
+  const scenario = spec.scenario as Scenario;
+  const axisValueLists: (number | string)[][] = [];
+  let axesSound = true;
+
+  const seen = new Map<string, number>();
+  spec.axes.forEach((axis, i) => {
+    const earlier = seen.get(axis.parameter);
+    if (earlier !== undefined) {
+      addIssue(["axes", i, "parameter"], `${axis.parameter} is already swept by axes.${earlier}`);
+      axesSound = false;
+      return;
+    }
+    seen.set(axis.parameter, i);
+    const values = checkAxis(axis, i, scenario, addIssue);
+    if (values) axisValueLists.push(values);
+    else axesSound = false;
+  });
+  if (seen.has("scene.massRatio") && seen.has("scene.massBKg")) {
+    addIssue(["axes", seen.get("scene.massRatio") as number, "parameter"], "scene.massRatio sets massBKg: it cannot be swept together with scene.massBKg");
+    axesSound = false;
+  }
+
+  if (!axesSound) {
+    // Still check the base scenario on its own.
+    for (const problem of scenarioProblems(scenario)) addIssue(["scenario", ...problem.paths[0].split(".")], problem.message);
+    return;
+  }
+
+  const cells = axisValueLists.reduce((product, values) => product * values.length, 1);
+  if (cells > SPEC_LIMITS.maxCellsPerSweep) {
+    addIssue(
+      ["axes"],
+      `${formatLimit(cells)} cells (${axisValueLists.map((values) => values.length).join(" × ")}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`,
+    );
+    return;
+  }
+
+  // Every limit below is monotone in each parameter, so the corners of the
+  // grid (each axis at its smallest and largest value, every choice) bound all cells.
+  const worst = new Map<string, { problem: ScenarioProblem; corner: (number | string)[] }>();
+  for (const corner of cartesian(axisValueLists.map(extremes))) {
+    const cellScenario = applyAxisValues(scenario, spec.axes, corner);
+    for (const problem of scenarioProblems(cellScenario)) {
+      const known = worst.get(problem.check);
+      if (!known || problem.severity > known.problem.severity) worst.set(problem.check, { problem, corner });
+    }
+  }
+  for (const { problem, corner } of worst.values()) {
+    const axisIndex = spec.axes.findIndex((axis) => problem.paths.includes(axis.parameter));
+    if (axisIndex >= 0) {
+      addIssue(["axes", axisIndex], `at ${describeCorner(spec.axes, corner)}: ${problem.message}`);
+    } else {
+      addIssue(["scenario", ...problem.paths[0].split(".")], spec.axes.length ? `${problem.message} (at ${describeCorner(spec.axes, corner)})` : problem.message);
+    }
+  }
+}
+
+export const sweepSpecSchema = sweepSpecObject.superRefine((spec, ctx) => {
+  checkSweep(spec, (path, message) => ctx.addIssue({ code: "custom", path, message }));
+});
+
+export type SweepSpecInput = z.input<typeof sweepSpecSchema>;
+/** A parsed, valid sweep spec; its scenario is exactly a `Scenario`. */
+export type SweepSpec = Omit<z.output<typeof sweepSpecSchema>, "scenario"> & { scenario: Scenario };
+
+// The scenario schema's output must be assignable to the engine's Scenario, and back.
+type ParsedScenario = z.output<typeof scenarioSchema>;
+type Assignable<From, To> = [From] extends [To] ? true : false;
+const scenarioMatchesContract: [Assignable<ParsedScenario, Scenario>, Assignable<Scenario, ParsedScenario>] = [true, true];
+void scenarioMatchesContract;
+
+// ---------------------------------------------------------------------------
+// Parsing with field errors
+
+export interface SpecIssue {
+  /** Dotted path of the field, e.g. "axes.0.from" or "scenario.scene.massAKg". */
+  field: string;
+  message: string;
+}
+
+/** Flatten zod issues into field paths; unknown keys name the key itself. */
+export function specIssues(error: z.ZodError): SpecIssue[] {
+  const issues: SpecIssue[] = [];
+  for (const issue of error.issues) {
+    const base = issue.path.map(String);
+    if (issue.code === "unrecognized_keys") {
+      for (const key of issue.keys) issues.push({ field: [...base, key].join("."), message: `unknown field "${key}"` });
+    } else {
+      issues.push({ field: base.join(".") || "(spec)", message: issue.message });
+    }
+  }
+  return issues;
+}
+
+export type ParseSpecResult = { ok: true; spec: SweepSpec } | { ok: false; issues: SpecIssue[] };
+
+/** Parse an unknown value (e.g. JSON from a file or a request body) into a sweep spec. */
+export function parseSweepSpec(input: unknown): ParseSpecResult {
+  const result = sweepSpecSchema.safeParse(input);
+  if (result.success) return { ok: true, spec: result.data as SweepSpec };
+  return { ok: false, issues: specIssues(result.error) };
+}
+
+/** The numeric value of a parameter in a scenario (for axis labels of a single-value sweep). */
+export function scenarioValue(scenario: Scenario, path: string): number | string | undefined {
+  if (path === "integrator") return scenario.integrator;
+  if (path === "contact.model") return scenario.contact.model;
+  if (path === "contact.damping.coefficient" || path === "contact.damping.restitution") {
+    return scenario.contact.damping.kind === "none" ? undefined : scenario.contact.damping.value;
+  }
+  return readNumericField(scenario, path);
+}
+
+/** Choice parameters, re-exported for the form. */
+export { CHOICE_PARAMETERS };
