@@ -1,0 +1,278 @@
+/**
+ * The authorisation matrix: every route method × every kind of caller, driven from one table.
+ * A new route adds one row to ROUTES; the coverage test below fails until it does.
+ * Expected statuses are written out here from the policy in the contract (not read from the code),
+ * so a guard that drifts from the contract fails a cell.
+ */
+import { readdirSync, statSync } from "node:fs";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { User } from "@/db/schema";
+import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
+import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
+import { closeTestDb, useFreshDb } from "../helpers/db";
+import { makeInvite, makePasswordReset, makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
+import { call, errorOf, sessionCookie } from "../helpers/http";
+
+const ACTORS = [
+  "anonymous",
+  "owner",
+  "engineer",
+  "finance",
+  "adminNotMember",
+  "otherStudioMember",
+  "tokenRead",
+  "tokenWrite",
+  "tokenRevoked",
+  "otherStudioToken",
+] as const;
+type ActorName = (typeof ACTORS)[number];
+type Expectation = Record<ActorName, number>;
+
+/** A fresh world per cell, so a mutation in one cell never changes what another cell sees. */
+interface World {
+  studioId: string;
+  subjectUserId: string; // a spare engineer of the studio, the target of member changes
+  pendingInviteId: string;
+  spareTokenId: string;
+  resetSecret: string;
+  publicInviteSecret: string;
+  /** An invite addressed to each person-actor (to a third studio), so accepting can succeed. */
+  inviteFor: Partial<Record<ActorName, string>>;
+  auth: Record<ActorName, { cookie?: string; bearer?: string }>;
+}
+
+async function buildWorld(): Promise<World> {
+  const people: Partial<Record<ActorName, User>> = {};
+  for (const name of ["owner", "engineer", "finance", "otherStudioMember"] as const) people[name] = await makeUser({ name });
+  people.adminNotMember = await makeUser({ name: "operator", isAdmin: true });
+  const subject = await makeUser({ name: "subject" });
+  const studioId = await makeStudio("Pebble Ferry Works", [
+    { user: people.owner!, role: "owner" },
+    { user: people.engineer!, role: "engineer" },
+    { user: people.finance!, role: "finance" },
+    { user: subject, role: "engineer" },
+  ]);
+  const otherStudioId = await makeStudio("Loam Comet Arcade", [{ user: people.otherStudioMember!, role: "owner" }]);
+  const thirdStudioId = await makeStudio("Kelp Lantern Games", []);
+  const inviteFor: World["inviteFor"] = {};
+  for (const [name, user] of Object.entries(people)) inviteFor[name as ActorName] = (await makeInvite(thirdStudioId, user.email, "engineer")).secret;
+  const auth = { anonymous: {} } as World["auth"];
+  for (const [name, user] of Object.entries(people)) auth[name as ActorName] = { cookie: await sessionCookie(user) };
+  auth.tokenRead = { bearer: (await makeToken(studioId, ["read"])).secret };
+  auth.tokenWrite = { bearer: (await makeToken(studioId, ["write"])).secret };
+  auth.tokenRevoked = { bearer: (await makeToken(studioId, ["read", "write"], { revoked: true })).secret };
+  auth.otherStudioToken = { bearer: (await makeToken(otherStudioId, ["read", "write"])).secret };
+  return {
+    studioId,
+    subjectUserId: subject.id,
+    pendingInviteId: (await makeInvite(studioId, uniqueEmail("pending"), "finance")).id,
+    spareTokenId: (await makeToken(studioId, ["read"])).id,
+    resetSecret: await makePasswordReset(subject.id),
+    publicInviteSecret: (await makeInvite(studioId, uniqueEmail("public"), "engineer")).secret,
+    inviteFor,
+    auth,
+  };
+}
+
+interface RouteRow {
+  /** The route folder under app/api, as Next names it. */
+  route: string;
+  method: HttpMethod;
+  params?: (w: World, actor: ActorName) => Record<string, string>;
+  body?: (w: World) => unknown;
+  expect: Expectation;
+}
+
+const row = (statusFor: (actor: ActorName) => number): Expectation =>
+  Object.fromEntries(ACTORS.map((a) => [a, statusFor(a)])) as Expectation;
+
+// The policies of the contract, as caller → status.
+const PUBLIC = (ok: number) => row(() => ok);
+const SIGNED_IN_PERSON = (ok: number) =>
+  row((a) => (a === "anonymous" || a === "tokenRevoked" ? 401 : a.startsWith("token") || a === "otherStudioToken" ? 403 : ok));
+const ADMIN_ONLY = (ok: number) =>
+  row((a) => ({ anonymous: 401, tokenRevoked: 401, adminNotMember: ok })[a as string] ?? 403);
+const STUDIO_READ_TOKENS_OK = (ok: number) =>
+  row(
+    (a) =>
+      ({
+        anonymous: 401,
+        owner: ok,
+        engineer: ok,
+        finance: ok,
+        adminNotMember: 404,
+        otherStudioMember: 404,
+        tokenRead: ok,
+        tokenWrite: ok,
+        tokenRevoked: 401,
+        otherStudioToken: 404,
+      })[a],
+  );
+const STUDIO_READ_NO_TOKENS = (ok: number) =>
+  row((a) => (a === "tokenRead" || a === "tokenWrite" ? 403 : STUDIO_READ_TOKENS_OK(ok)[a]));
+const OWNER_MANAGES = (ok: number) =>
+  row((a) => (a === "engineer" || a === "finance" ? 403 : STUDIO_READ_NO_TOKENS(ok)[a]));
+
+const studio = (w: World) => ({ studioId: w.studioId });
+
+export const ROUTES: RouteRow[] = [
+  { route: "v1/signup", method: "POST", body: () => ({ email: uniqueEmail("signup"), password: "tidepool-crates", name: "New Person" }), expect: PUBLIC(201) },
+  { route: "v1/password-reset", method: "POST", body: () => ({ email: uniqueEmail("nobody") }), expect: PUBLIC(202) },
+  { route: "v1/password-reset/confirm", method: "POST", body: (w) => ({ token: w.resetSecret, password: "a-new-long-password" }), expect: PUBLIC(200) },
+  { route: "v1/me", method: "GET", expect: SIGNED_IN_PERSON(200) },
+  { route: "v1/studios", method: "GET", expect: SIGNED_IN_PERSON(200) },
+  { route: "v1/studios", method: "POST", body: () => ({ name: "Driftwood Puck Co" }), expect: SIGNED_IN_PERSON(201) },
+  { route: "v1/studios/[studioId]", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/members", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  {
+    route: "v1/studios/[studioId]/members/[userId]",
+    method: "PATCH",
+    params: (w) => ({ studioId: w.studioId, userId: w.subjectUserId }),
+    body: () => ({ role: "finance" }),
+    expect: OWNER_MANAGES(200),
+  },
+  {
+    route: "v1/studios/[studioId]/members/[userId]",
+    method: "DELETE",
+    params: (w) => ({ studioId: w.studioId, userId: w.subjectUserId }),
+    expect: OWNER_MANAGES(200),
+  },
+  { route: "v1/studios/[studioId]/invites", method: "GET", params: studio, expect: STUDIO_READ_NO_TOKENS(200) },
+  {
+    route: "v1/studios/[studioId]/invites",
+    method: "POST",
+    params: studio,
+    body: () => ({ email: uniqueEmail("invitee"), role: "engineer" }),
+    expect: OWNER_MANAGES(201),
+  },
+  {
+    route: "v1/studios/[studioId]/invites/[inviteId]",
+    method: "DELETE",
+    params: (w) => ({ studioId: w.studioId, inviteId: w.pendingInviteId }),
+    expect: OWNER_MANAGES(200),
+  },
+  { route: "v1/studios/[studioId]/tokens", method: "GET", params: studio, expect: STUDIO_READ_NO_TOKENS(200) },
+  {
+    route: "v1/studios/[studioId]/tokens",
+    method: "POST",
+    params: studio,
+    body: () => ({ name: "ci uploader", scopes: ["read"] }),
+    expect: OWNER_MANAGES(201),
+  },
+  {
+    route: "v1/studios/[studioId]/tokens/[tokenId]",
+    method: "DELETE",
+    params: (w) => ({ studioId: w.studioId, tokenId: w.spareTokenId }),
+    expect: OWNER_MANAGES(200),
+  },
+  { route: "v1/invites/[token]", method: "GET", params: (w) => ({ token: w.publicInviteSecret }), expect: PUBLIC(200) },
+  {
+    route: "v1/invites/[token]/accept",
+    method: "POST",
+    params: (w, actor) => ({ token: w.inviteFor[actor] ?? w.publicInviteSecret }),
+    expect: SIGNED_IN_PERSON(200),
+  },
+  { route: "v1/admin/studios", method: "GET", expect: ADMIN_ONLY(200) },
+  { route: "v1/admin/users", method: "GET", expect: ADMIN_ONLY(200) },
+  { route: "v1/dev/mail", method: "GET", expect: PUBLIC(200) },
+];
+
+/** Route files that are not part of the policy table, and why. */
+const NOT_POLICY_ROUTES: Record<string, string> = {
+  "auth/[...nextauth]": "next-auth's own endpoints (sign-in, callback, csrf, session, sign-out)",
+  "[...path]": "the catch-all that answers 404 JSON for unknown /api paths",
+};
+
+const API_DIR = path.join(process.cwd(), "app", "api");
+
+function routeFolders(dir = API_DIR): string[] {
+  const found: string[] = [];
+  for (const entry of readdirSync(dir)) {
+    const full = path.join(dir, entry);
+    if (statSync(full).isDirectory()) found.push(...routeFolders(full));
+    else if (entry === "route.ts") found.push(path.relative(API_DIR, dir).split(path.sep).join("/"));
+  }
+  return found.sort();
+}
+
+async function loadRoute(route: string): Promise<Record<string, unknown>> {
+  return (await import(/* @vite-ignore */ path.join(API_DIR, route, "route.ts"))) as Record<string, unknown>;
+}
+
+function concretePath(route: string, params: Record<string, string>): string {
+  return `/api/${route.replace(/\[([^\]]+)\]/g, (_, name: string) => encodeURIComponent(params[name] ?? name))}`;
+}
+
+let mailFake: MailFake;
+beforeAll(async () => {
+  await useFreshDb();
+  mailFake = await startMailFake({ port: 0 });
+});
+afterAll(async () => {
+  await mailFake.close();
+  await closeTestDb();
+});
+
+describe("every route method has a row, and every other method answers 405", () => {
+  it("lists each policy-guarded handler in ROUTES and nothing that does not exist", async () => {
+    const exported: string[] = [];
+    for (const route of routeFolders()) {
+      if (route in NOT_POLICY_ROUTES) continue;
+      const mod = await loadRoute(route);
+      for (const method of HTTP_METHODS) {
+        const handler = mod[method] as { policy?: unknown } | undefined;
+        if (handler?.policy) exported.push(`${method} ${route}`);
+      }
+    }
+    const table = ROUTES.map((r) => `${r.method} ${r.route}`);
+    expect(exported.sort()).toEqual([...table].sort());
+  });
+
+  it("answers 405 JSON with an Allow header for the methods a route does not support", async () => {
+    for (const route of routeFolders()) {
+      if (route in NOT_POLICY_ROUTES) continue;
+      const mod = await loadRoute(route);
+      const allowed = HTTP_METHODS.filter((m) => (mod[m] as { policy?: unknown } | undefined)?.policy);
+      for (const method of HTTP_METHODS.filter((m) => !allowed.includes(m))) {
+        expect(mod[method], `${method} ${route} must be exported (as 405)`).toBeTypeOf("function");
+        const { status, body, res } = await call(mod[method], { method, path: concretePath(route, {}) });
+        expect(status, `${method} ${route}`).toBe(405);
+        expect(errorOf(body).code).toBe("method_not_allowed");
+        const allow = (res.headers.get("allow") ?? "").split(", ");
+        for (const m of allowed) expect(allow).toContain(m);
+        expect(allow).not.toContain(method);
+      }
+    }
+  });
+
+  it("answers unknown /api paths with 404 JSON for every method", async () => {
+    const mod = await loadRoute("[...path]");
+    for (const method of HTTP_METHODS) {
+      const { status, body } = await call(mod[method], { method, path: "/api/v1/crates/launch", params: { path: ["v1", "crates", "launch"] } });
+      expect(status).toBe(404);
+      expect(errorOf(body).code).toBe("not_found");
+    }
+  });
+});
+
+describe.each(ROUTES)("$method /api/$route", (routeRow) => {
+  it.each(ACTORS.map((actor) => ({ actor, status: routeRow.expect[actor] })))("$actor → $status", async ({ actor, status }) => {
+    const world = await buildWorld();
+    const mod = await loadRoute(routeRow.route);
+    const params = routeRow.params?.(world, actor) ?? {};
+    const result = await call(mod[routeRow.method], {
+      method: routeRow.method,
+      path: concretePath(routeRow.route, params),
+      params,
+      body: routeRow.body?.(world),
+      ...world.auth[actor],
+    });
+    expect(result.status, JSON.stringify(result.body)).toBe(status);
+    if (status >= 400) {
+      const error = errorOf(result.body);
+      expect(typeof error.code).toBe("string");
+      expect(error.message.length).toBeGreaterThan(0);
+    }
+  });
+});
