@@ -1,0 +1,533 @@
+/**
+ * Normal contact forces between discs and against static walls, with the bookkeeping the metrics
+ * need (potential energy, overlaps, tunnelling, the first contact) gathered in the same pass.
+ *
+ * Force along the line of centres, never attractive: F = max(0, F_spring + F_damping) with
+ *   linear: F_spring = k·δ,          F_damping = c·δ̇
+ *   hertz:  F_spring = k_H·δ^{3/2},  F_damping = η·δ^{1/4}·δ̇   (Tsuji-type)
+ * where δ is the overlap and δ̇ its rate (positive while approaching). Because of the clamp a
+ * damped contact ends when the force returns to zero, slightly before the overlap does; the first
+ * contact's duration and restitution are measured at that moment, and the damping conversions in
+ * `damping.ts` use the same criterion.
+ *
+ * Tunnelling (a pair or a wall that the step size lets bodies pass through) is flagged when
+ *  - a pair is first seen overlapping while already past its closest approach along the step's
+ *    straight-line relative motion (head-on: the centres have crossed),
+ *  - an overlapping pair's centre line turns by 90° or more within one step (centres crossed
+ *    while in contact),
+ *  - a pair's straight-line relative motion during a step came closer than the sum of radii
+ *    although neither end of the step overlaps (a skipped contact), or
+ *  - a disc's centre reaches or crosses a wall line.
+ *
+ * Pair order is canonical (i ascending, then j ascending) for both broad phases, so forces,
+ * energies and metrics are byte-identical whichever broad phase finds the pairs.
+ */
+import type { Bodies } from "./bodies";
+import type { ForceField } from "./integrators";
+
+export const CONTACT_LINEAR = 0;
+export const CONTACT_HERTZ = 1;
+
+export const DAMPING_NONE = 0;
+/** linear: c (N·s/m); hertz: η (N·s/m^{5/4}). */
+export const DAMPING_COEFFICIENT = 1;
+/** linear: damping ratio ζ, c = 2ζ√(m_eff·k); hertz: β, η = β√(m_eff·k_H). */
+export const DAMPING_DIMENSIONLESS = 2;
+
+export const BROAD_PHASE_ALL_PAIRS = 0;
+export const BROAD_PHASE_GRID = 1;
+
+export const TUNNEL_NONE = 0;
+export const TUNNEL_ENTERED_PAST_CLOSEST_APPROACH = 1;
+export const TUNNEL_CENTRES_CROSSED = 2;
+export const TUNNEL_SKIPPED_CONTACT = 3;
+export const TUNNEL_THROUGH_WALL = 4;
+
+export const FIRST_CONTACT_PENDING = 0;
+export const FIRST_CONTACT_ACTIVE = 1;
+export const FIRST_CONTACT_ENDED = 2;
+
+/** A wall is the line n·p = offset; the allowed side is n·p > offset (n is a unit vector). */
+export interface Wall {
+  normalX: number;
+  normalY: number;
+  offsetM: number;
+}
+
+export interface ContactFieldParameters {
+  model: typeof CONTACT_LINEAR | typeof CONTACT_HERTZ;
+  /** linear k (N/m), or hertz k_H (N/m^{3/2}) when `hertzModulusFactorPa` is 0. */
+  stiffness: number;
+  /** (4/3)·E* (Pa) when the Hertz stiffness comes from a material: k_H = this·√R*; else 0. */
+  hertzModulusFactorPa: number;
+  dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS;
+  dampingValue: number;
+  walls: readonly Wall[];
+  gravityMPerS2: number;
+  broadPhase: typeof BROAD_PHASE_ALL_PAIRS | typeof BROAD_PHASE_GRID;
+}
+
+export class ContactField implements ForceField {
+  readonly model: number;
+  readonly stiffness: number;
+  readonly hertzModulusFactorPa: number;
+  readonly dampingMode: number;
+  readonly dampingValue: number;
+  readonly gravityMPerS2: number;
+  readonly broadPhase: number;
+  private readonly wallNormalX: Float64Array;
+  private readonly wallNormalY: Float64Array;
+  private readonly wallOffset: Float64Array;
+  readonly wallCount: number;
+
+  // Results of the last evaluation.
+  contactPotentialJ = 0;
+  overlappingContacts = 0;
+  maxOverlapFraction = 0;
+  maxOverlapM = 0;
+  wallForceXN = 0;
+  wallForceYN = 0;
+
+  // First tunnel seen (sticky).
+  tunnelKind = TUNNEL_NONE;
+  tunnelBodyA = -1;
+  /** Other body, or −1 − wall index. */
+  tunnelBodyB = -1;
+  tunnelDetectedThisPass = false;
+
+  // The first contact of the run: bodies, phase and the values needed for duration and restitution.
+  firstContactPhase = FIRST_CONTACT_PENDING;
+  firstContactA = -1;
+  /** Other body, or −1 − wall index for a wall. */
+  firstContactB = -1;
+  firstContactStartedThisPass = false;
+  firstContactEndedThisPass = false;
+  /** Overlap before (≤ 0) and at (> 0) the step where the contact began. */
+  firstContactStartOverlapBeforeM = 0;
+  firstContactStartOverlapM = 0;
+  /** Approach speed δ̇ along the normal when the contact began (> 0). */
+  firstContactApproachSpeedMPerS = 0;
+  /** Unclamped force at the previous and current evaluation while active. */
+  firstContactForcePreviousN = 0;
+  firstContactForceN = 0;
+  /** Normal (from A towards B, or the wall normal) at the end of the contact. */
+  firstContactEndNormalX = 0;
+  firstContactEndNormalY = 0;
+
+  private firstContactSeenThisPass = false;
+  private cutoffSquaredM2 = 0;
+
+  // Uniform grid (counting sort by cell), allocated once and grown if needed.
+  private cellOfBody: Int32Array = new Int32Array(0);
+  private cellStart: Int32Array = new Int32Array(0);
+  private bodiesByCell: Int32Array = new Int32Array(0);
+  private candidates: Int32Array = new Int32Array(0);
+
+  constructor(parameters: ContactFieldParameters) {
+    this.model = parameters.model;
+    this.stiffness = parameters.stiffness;
+    this.hertzModulusFactorPa = parameters.hertzModulusFactorPa;
+    this.dampingMode = parameters.dampingMode;
+    this.dampingValue = parameters.dampingValue;
+    this.gravityMPerS2 = parameters.gravityMPerS2;
+    this.broadPhase = parameters.broadPhase;
+    this.wallCount = parameters.walls.length;
+    this.wallNormalX = Float64Array.from(parameters.walls, (wall) => wall.normalX);
+    this.wallNormalY = Float64Array.from(parameters.walls, (wall) => wall.normalY);
+    this.wallOffset = Float64Array.from(parameters.walls, (wall) => wall.offsetM);
+  }
+
+  evaluate(bodies: Bodies): void {
+    const { count, fx, fy, mass } = bodies;
+    const gravity = this.gravityMPerS2;
+    for (let i = 0; i < count; i++) {
+      fx[i] = 0;
+      fy[i] = -mass[i] * gravity;
+    }
+    this.contactPotentialJ = 0;
+    this.overlappingContacts = 0;
+    this.maxOverlapFraction = 0;
+    this.maxOverlapM = 0;
+    this.wallForceXN = 0;
+    this.wallForceYN = 0;
+    this.tunnelDetectedThisPass = false;
+    this.firstContactStartedThisPass = false;
+    this.firstContactEndedThisPass = false;
+    this.firstContactSeenThisPass = false;
+
+    // Pairs farther apart than this cannot touch now nor have skipped a contact during the step.
+    const { x, y, previousX, previousY, radius } = bodies;
+    let maxDisplacementSquared = 0;
+    let maxRadius = 0;
+    for (let i = 0; i < count; i++) {
+      const dx = x[i] - previousX[i];
+      const dy = y[i] - previousY[i];
+      const displacementSquared = dx * dx + dy * dy;
+      if (displacementSquared > maxDisplacementSquared) maxDisplacementSquared = displacementSquared;
+      if (radius[i] > maxRadius) maxRadius = radius[i];
+    }
+    const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
+    this.cutoffSquaredM2 = cutoffM * cutoffM;
+
+    if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByGrid(bodies, cutoffM);
+    else this.pairsAllPairs(bodies);
+    if (this.wallCount > 0) this.walls(bodies);
+
+    if (this.firstContactPhase === FIRST_CONTACT_ACTIVE && !this.firstContactSeenThisPass) {
+      this.endFirstContactWithoutOverlap(bodies);
+    }
+  }
+
+  private pairsAllPairs(bodies: Bodies): void {
+    const count = bodies.count;
+    for (let i = 0; i < count; i++) {
+      for (let j = i + 1; j < count; j++) this.pair(bodies, i, j);
+    }
+  }
+
+  private pairsByGrid(bodies: Bodies, cutoffM: number): void {
+    const { count, x, y } = bodies;
+    let minX = Infinity;
+    let minY = Infinity;
+    let maxX = -Infinity;
+    let maxY = -Infinity;
+    for (let i = 0; i < count; i++) {
+      if (x[i] < minX) minX = x[i];
+      if (x[i] > maxX) maxX = x[i];
+      if (y[i] < minY) minY = y[i];
+      if (y[i] > maxY) maxY = y[i];
+    }
+    if (!(maxX - minX < Infinity && maxY - minY < Infinity)) {
+      // Non-finite positions: the run is exploding; fall back to the plain loop for this pass.
+      this.pairsAllPairs(bodies);
+      return;
+    }
+    // Cells at least one cutoff wide, and no more cells than a few per body.
+    const maxCells = 4 * count + 16;
+    let cellSizeM = Math.max(cutoffM, 1e-300);
+    const spanX = maxX - minX;
+    const spanY = maxY - minY;
+    while ((Math.floor(spanX / cellSizeM) + 1) * (Math.floor(spanY / cellSizeM) + 1) > maxCells) cellSizeM *= 1.5;
+    const cellsX = Math.floor(spanX / cellSizeM) + 1;
+    const cellsY = Math.floor(spanY / cellSizeM) + 1;
+    const cellCount = cellsX * cellsY;
+    if (this.cellOfBody.length < count) {
+      this.cellOfBody = new Int32Array(count);
+      this.bodiesByCell = new Int32Array(count);
+      this.candidates = new Int32Array(count);
+    }
+    if (this.cellStart.length < cellCount + 1) this.cellStart = new Int32Array(cellCount + 1);
+    const { cellOfBody, cellStart, bodiesByCell, candidates } = this;
+    cellStart.fill(0, 0, cellCount + 1);
+    for (let i = 0; i < count; i++) {
+      const cx = Math.min(cellsX - 1, Math.floor((x[i] - minX) / cellSizeM));
+      const cy = Math.min(cellsY - 1, Math.floor((y[i] - minY) / cellSizeM));
+      const cell = cy * cellsX + cx;
+      cellOfBody[i] = cell;
+      cellStart[cell + 1]++;
+    }
+    for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
+    // Stable placement keeps each cell's bodies in ascending index order.
+    for (let i = 0; i < count; i++) {
+      const cell = cellOfBody[i];
+      bodiesByCell[cellStart[cell]++] = i;
+    }
+    for (let c = cellCount; c > 0; c--) cellStart[c] = cellStart[c - 1];
+    cellStart[0] = 0;
+
+    for (let i = 0; i < count; i++) {
+      const cell = cellOfBody[i];
+      const cx = cell % cellsX;
+      const cy = (cell - cx) / cellsX;
+      let candidateCount = 0;
+      const yLow = cy > 0 ? cy - 1 : 0;
+      const yHigh = cy < cellsY - 1 ? cy + 1 : cy;
+      const xLow = cx > 0 ? cx - 1 : 0;
+      const xHigh = cx < cellsX - 1 ? cx + 1 : cx;
+      for (let ny = yLow; ny <= yHigh; ny++) {
+        for (let nx = xLow; nx <= xHigh; nx++) {
+          const neighbour = ny * cellsX + nx;
+          const end = cellStart[neighbour + 1];
+          for (let slot = cellStart[neighbour]; slot < end; slot++) {
+            const j = bodiesByCell[slot];
+            if (j <= i) continue;
+            // Insertion into the sorted candidate list (lists are short).
+            let position = candidateCount++;
+            while (position > 0 && candidates[position - 1] > j) {
+              candidates[position] = candidates[position - 1];
+              position--;
+            }
+            candidates[position] = j;
+          }
+        }
+      }
+      for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
+    }
+  }
+
+  /** One pair i < j: force, bookkeeping and tunnel checks. */
+  private pair(bodies: Bodies, i: number, j: number): void {
+    const { x, y, previousX, previousY, radius } = bodies;
+    const dx = x[j] - x[i];
+    const dy = y[j] - y[i];
+    const distanceSquared = dx * dx + dy * dy;
+    const contactDistance = radius[i] + radius[j];
+    const contactDistanceSquared = contactDistance * contactDistance;
+    if (distanceSquared >= contactDistanceSquared) {
+      if (distanceSquared >= this.cutoffSquaredM2) return;
+      this.checkSkippedContact(bodies, i, j, dx, dy, contactDistanceSquared);
+      return;
+    }
+    const previousDx = previousX[j] - previousX[i];
+    const previousDy = previousY[j] - previousY[i];
+    const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
+    const distance = Math.sqrt(distanceSquared);
+    let normalX: number;
+    let normalY: number;
+    if (distance > 0) {
+      normalX = dx / distance;
+      normalY = dy / distance;
+    } else {
+      // Coincident centres: push apart along the last direction of approach (or x).
+      const previousDistance = Math.sqrt(previousDistanceSquared);
+      normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+      normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    }
+    if (previousDistanceSquared >= contactDistanceSquared) {
+      // New contact: entering it while already receding means the step jumped past the approach.
+      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0) this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+    } else if (dx * previousDx + dy * previousDy <= 0) {
+      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    }
+    const overlap = contactDistance - distance;
+    const { vx, vy, inverseMass } = bodies;
+    const overlapRate = (vx[i] - vx[j]) * normalX + (vy[i] - vy[j]) * normalY;
+    const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
+    const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const pushX = force > 0 ? force * normalX : 0;
+    const pushY = force > 0 ? force * normalY : 0;
+    const { fx, fy } = bodies;
+    fx[i] -= pushX;
+    fy[i] -= pushY;
+    fx[j] += pushX;
+    fy[j] += pushY;
+    this.overlappingContacts++;
+    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
+    const fraction = overlap / smallerRadius;
+    if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
+    if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+    this.trackFirstContact(bodies, i, j, overlap, overlapRate, force, normalX, normalY, previousDistanceSquared >= contactDistanceSquared, contactDistance - Math.sqrt(previousDistanceSquared));
+  }
+
+  private checkSkippedContact(bodies: Bodies, i: number, j: number, dx: number, dy: number, contactDistanceSquared: number): void {
+    const { previousX, previousY } = bodies;
+    const previousDx = previousX[j] - previousX[i];
+    const previousDy = previousY[j] - previousY[i];
+    if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return; // contact ended this step
+    const stepX = dx - previousDx;
+    const stepY = dy - previousDy;
+    const stepSquared = stepX * stepX + stepY * stepY;
+    if (stepSquared === 0) return;
+    const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+    if (along <= 0 || along >= 1) return;
+    const closestX = previousDx + along * stepX;
+    const closestY = previousDy + along * stepY;
+    if (closestX * closestX + closestY * closestY < contactDistanceSquared) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+  }
+
+  private walls(bodies: Bodies): void {
+    const { count, x, y, vx, vy, fx, fy, radius, mass } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
+    for (let i = 0; i < count; i++) {
+      for (let w = 0; w < wallCount; w++) {
+        const normalX = wallNormalX[w];
+        const normalY = wallNormalY[w];
+        const centreDistance = normalX * x[i] + normalY * y[i] - wallOffset[w];
+        const overlap = radius[i] - centreDistance;
+        if (overlap <= 0) continue;
+        if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
+        const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
+        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i]);
+        if (force > 0) {
+          fx[i] += force * normalX;
+          fy[i] += force * normalY;
+          this.wallForceXN += force * normalX;
+          this.wallForceYN += force * normalY;
+        }
+        this.overlappingContacts++;
+        const fraction = overlap / radius[i];
+        if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
+        if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+        const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
+        this.trackFirstContact(bodies, i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+      }
+    }
+  }
+
+  /**
+   * Unclamped normal force (positive pushes apart) and, as a side effect, the contact's potential
+   * energy. Callers clamp at zero. Sign-extended for overlap ≤ 0 so that zero crossings can be
+   * interpolated; the potential is only counted for real overlaps.
+   */
+  private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number): number {
+    const magnitude = overlap < 0 ? -overlap : overlap;
+    if (this.model === CONTACT_LINEAR) {
+      const k = this.stiffness;
+      if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+      let damping = 0;
+      if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+      else if (this.dampingMode === DAMPING_DIMENSIONLESS) damping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+      return k * overlap + damping * overlapRate;
+    }
+    const k = this.hertzModulusFactorPa > 0 ? this.hertzModulusFactorPa * Math.sqrt(effectiveRadius) : this.stiffness;
+    const root = Math.sqrt(magnitude);
+    const springMagnitude = k * magnitude * root;
+    if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
+    let damping = 0;
+    if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+    else if (this.dampingMode === DAMPING_DIMENSIONLESS) damping = this.dampingValue * Math.sqrt(reducedMass * k);
+    return (overlap >= 0 ? springMagnitude : -springMagnitude) + damping * Math.sqrt(root) * overlapRate;
+  }
+
+  private recordTunnel(kind: number, bodyA: number, bodyB: number): void {
+    this.tunnelDetectedThisPass = true;
+    if (this.tunnelKind !== TUNNEL_NONE) return;
+    this.tunnelKind = kind;
+    this.tunnelBodyA = bodyA;
+    this.tunnelBodyB = bodyB;
+  }
+
+  private trackFirstContact(
+    _bodies: Bodies,
+    a: number,
+    b: number,
+    overlap: number,
+    overlapRate: number,
+    force: number,
+    normalX: number,
+    normalY: number,
+    isNewContact: boolean,
+    previousOverlap: number,
+  ): void {
+    if (this.firstContactPhase === FIRST_CONTACT_PENDING) {
+      if (!isNewContact) return;
+      this.firstContactPhase = FIRST_CONTACT_ACTIVE;
+      this.firstContactA = a;
+      this.firstContactB = b;
+      this.firstContactStartedThisPass = true;
+      this.firstContactSeenThisPass = true;
+      this.firstContactStartOverlapBeforeM = previousOverlap;
+      this.firstContactStartOverlapM = overlap;
+      this.firstContactApproachSpeedMPerS = overlapRate;
+      this.firstContactForcePreviousN = 0;
+      this.firstContactForceN = force;
+      if (force <= 0) this.endFirstContact(force, normalX, normalY);
+      return;
+    }
+    if (this.firstContactPhase !== FIRST_CONTACT_ACTIVE || a !== this.firstContactA || b !== this.firstContactB) return;
+    this.firstContactSeenThisPass = true;
+    this.firstContactForcePreviousN = this.firstContactForceN;
+    this.firstContactForceN = force;
+    if (force <= 0) this.endFirstContact(force, normalX, normalY);
+  }
+
+  private endFirstContact(force: number, normalX: number, normalY: number): void {
+    this.firstContactForceN = force;
+    this.firstContactPhase = FIRST_CONTACT_ENDED;
+    this.firstContactEndedThisPass = true;
+    this.firstContactEndNormalX = normalX;
+    this.firstContactEndNormalY = normalY;
+  }
+
+  /** The first contact's overlap vanished before its force reached zero (e.g. undamped): end it here. */
+  private endFirstContactWithoutOverlap(bodies: Bodies): void {
+    const a = this.firstContactA;
+    const b = this.firstContactB;
+    const { x, y, vx, vy, radius, mass, inverseMass } = bodies;
+    let overlap: number;
+    let overlapRate: number;
+    let normalX: number;
+    let normalY: number;
+    let reducedMass: number;
+    let effectiveRadius: number;
+    if (b >= 0) {
+      const dx = x[b] - x[a];
+      const dy = y[b] - y[a];
+      const distance = Math.sqrt(dx * dx + dy * dy);
+      normalX = dx / distance;
+      normalY = dy / distance;
+      overlap = radius[a] + radius[b] - distance;
+      overlapRate = (vx[a] - vx[b]) * normalX + (vy[a] - vy[b]) * normalY;
+      reducedMass = 1 / (inverseMass[a] + inverseMass[b]);
+      effectiveRadius = (radius[a] * radius[b]) / (radius[a] + radius[b]);
+    } else {
+      const w = -1 - b;
+      normalX = this.wallNormalX[w];
+      normalY = this.wallNormalY[w];
+      overlap = radius[a] - (normalX * x[a] + normalY * y[a] - this.wallOffset[w]);
+      overlapRate = -(normalX * vx[a] + normalY * vy[a]);
+      reducedMass = mass[a];
+      effectiveRadius = radius[a];
+    }
+    const potentialBefore = this.contactPotentialJ;
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    this.contactPotentialJ = potentialBefore;
+    this.firstContactForcePreviousN = this.firstContactForceN;
+    this.endFirstContact(Math.min(force, 0), normalX, normalY);
+  }
+
+  /** Approach speed δ̇ of the first contact's bodies along the normal recorded at its end. */
+  firstContactEndApproachSpeed(bodies: Bodies): number {
+    const a = this.firstContactA;
+    const b = this.firstContactB;
+    const nx = this.firstContactEndNormalX;
+    const ny = this.firstContactEndNormalY;
+    if (b >= 0) return (bodies.vx[a] - bodies.vx[b]) * nx + (bodies.vy[a] - bodies.vy[b]) * ny;
+    return -(nx * bodies.vx[a] + ny * bodies.vy[a]);
+  }
+
+  /** Reduced mass and effective radius of a contact (b < 0: a wall). */
+  contactReducedMassKg(bodies: Bodies, a: number, b: number): number {
+    return b >= 0 ? 1 / (bodies.inverseMass[a] + bodies.inverseMass[b]) : bodies.mass[a];
+  }
+
+  contactStiffness(bodies: Bodies, a: number, b: number): number {
+    if (this.model === CONTACT_LINEAR || this.hertzModulusFactorPa === 0) return this.stiffness;
+    const r = b >= 0 ? (bodies.radius[a] * bodies.radius[b]) / (bodies.radius[a] + bodies.radius[b]) : bodies.radius[a];
+    return this.hertzModulusFactorPa * Math.sqrt(r);
+  }
+
+  /** Earliest time (s) from now at which any pair or wall would start to overlap in force-free straight-line motion. */
+  timeToFirstContactS(bodies: Bodies): number {
+    const { count, x, y, vx, vy, radius } = bodies;
+    let earliest = Infinity;
+    for (let i = 0; i < count; i++) {
+      for (let j = i + 1; j < count; j++) {
+        const rx = x[j] - x[i];
+        const ry = y[j] - y[i];
+        const wx = vx[j] - vx[i];
+        const wy = vy[j] - vy[i];
+        const approach = rx * wx + ry * wy;
+        if (approach >= 0) continue;
+        const speedSquared = wx * wx + wy * wy;
+        const contactDistance = radius[i] + radius[j];
+        const clearance = rx * rx + ry * ry - contactDistance * contactDistance;
+        const discriminant = approach * approach - speedSquared * clearance;
+        if (discriminant <= 0) continue;
+        // Root of |r + w t| = R, in the form that does not cancel.
+        const time = clearance / (-approach + Math.sqrt(discriminant));
+        if (time < earliest) earliest = time;
+      }
+      for (let w = 0; w < this.wallCount; w++) {
+        const normalSpeed = this.wallNormalX[w] * vx[i] + this.wallNormalY[w] * vy[i];
+        if (normalSpeed >= 0) continue;
+        const clearance = this.wallNormalX[w] * x[i] + this.wallNormalY[w] * y[i] - this.wallOffset[w] - radius[i];
+        const time = clearance / -normalSpeed;
+        if (time < earliest) earliest = time;
+      }
+    }
+    return earliest < 0 ? 0 : earliest;
+  }
+}

@@ -1,0 +1,149 @@
+/**
+ * Conversions between a target coefficient of restitution and the damping parameter of each
+ * contact model. The engine clamps the total normal force at ≥ 0, so a contact ends when the force
+ * returns to zero; every conversion here uses that criterion, which is what the engine measures.
+ */
+import { linearRestitutionForDampingRatio } from "./analytic";
+
+/**
+ * Damping ratio ζ of the clamped linear spring–dashpot that yields restitution e (inverse of
+ * Schwager & Pöschel 2007's e(ζ), solved by bisection; e(ζ) decreases monotonically from 1 at
+ * ζ = 0 towards 0 as ζ → ∞).
+ */
+export function linearDampingRatioForRestitution(restitution: number): number {
+  if (!(restitution > 0 && restitution <= 1)) {
+    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
+  }
+  if (restitution === 1) return 0;
+  const cached = linearRatioCache.get(restitution);
+  if (cached !== undefined) return cached;
+  let low = 0;
+  let high = 1;
+  while (linearRestitutionForDampingRatio(high) > restitution) high *= 2;
+  for (let iteration = 0; iteration < 200 && high - low > 1e-15 * high; iteration++) {
+    const middle = 0.5 * (low + high);
+    if (linearRestitutionForDampingRatio(middle) > restitution) low = middle;
+    else high = middle;
+  }
+  const ratio = 0.5 * (low + high);
+  rememberConversion(linearRatioCache, restitution, ratio);
+  return ratio;
+}
+
+const linearRatioCache = new Map<number, number>();
+const hertzDampingCache = new Map<number, number>();
+const hertzRestitutionCache = new Map<number, number>();
+const MAX_CACHED_CONVERSIONS = 4096;
+
+function rememberConversion(cache: Map<number, number>, key: number, value: number): void {
+  if (cache.size >= MAX_CACHED_CONVERSIONS) cache.clear();
+  cache.set(key, value);
+}
+
+/** Dimensionless time step of the reference integration of the Hertz contact. */
+const HERTZ_REFERENCE_STEP = 2e-4;
+/** Start of the integration; the series solution bridges the δ^{1/4} singularity at t = 0. */
+const HERTZ_REFERENCE_START = 1e-4;
+/** Guard against a contact that never ends (cannot happen for finite damping). */
+const HERTZ_REFERENCE_MAX_TIME = 1e3;
+
+/**
+ * Restitution of the clamped Hertz contact with Tsuji-type damping F = k_H δ^{3/2} + η δ^{1/4} δ̇,
+ * as a function of the dimensionless damping β = η / √(m_eff·k_H). Scaling δ by
+ * (m_eff v²/k_H)^{2/5} and time by that length over v turns the equation of motion into
+ * x'' = −x^{3/2} − β x^{1/4} x', x(0) = 0, x'(0) = 1, free of the impact speed — hence e does not
+ * depend on speed. Integrated with classical RK4 until the force returns to zero; e = −x' there.
+ */
+export function hertzRestitutionForDimensionlessDamping(dimensionlessDamping: number): number {
+  const beta = dimensionlessDamping;
+  if (beta <= 0) return 1;
+  const cached = hertzRestitutionCache.get(beta);
+  if (cached !== undefined) return cached;
+  // Series solution near t = 0: x'' ≈ −β t^{1/4} ⇒ x' ≈ 1 − (4/5)β t^{5/4}, x ≈ t − (16/45)β t^{9/4}.
+  const t0 = HERTZ_REFERENCE_START;
+  let position = t0 - (16 / 45) * beta * Math.pow(t0, 2.25);
+  let velocity = 1 - 0.8 * beta * Math.pow(t0, 1.25);
+  let force = hertzDimensionlessForce(position, velocity, beta);
+  const h = HERTZ_REFERENCE_STEP;
+  let time = t0;
+  let restitution = 0;
+  while (time < HERTZ_REFERENCE_MAX_TIME) {
+    const k1x = velocity;
+    const k1v = -hertzDimensionlessForce(position, velocity, beta);
+    const k2x = velocity + 0.5 * h * k1v;
+    const k2v = -hertzDimensionlessForce(position + 0.5 * h * k1x, k2x, beta);
+    const k3x = velocity + 0.5 * h * k2v;
+    const k3v = -hertzDimensionlessForce(position + 0.5 * h * k2x, k3x, beta);
+    const k4x = velocity + h * k3v;
+    const k4v = -hertzDimensionlessForce(position + h * k3x, k4x, beta);
+    const nextPosition = position + (h / 6) * (k1x + 2 * k2x + 2 * k3x + k4x);
+    const nextVelocity = velocity + (h / 6) * (k1v + 2 * k2v + 2 * k3v + k4v);
+    const nextForce = hertzDimensionlessForce(nextPosition, nextVelocity, beta);
+    if (nextForce <= 0 || nextPosition <= 0) {
+      // Linear interpolation of the velocity at the zero crossing of the force.
+      const fraction = force / (force - nextForce);
+      restitution = -(velocity + fraction * (nextVelocity - velocity));
+      break;
+    }
+    position = nextPosition;
+    velocity = nextVelocity;
+    force = nextForce;
+    time += h;
+  }
+  rememberConversion(hertzRestitutionCache, beta, restitution);
+  return restitution;
+}
+
+/** Unclamped dimensionless Hertz force, sign-extended for x < 0 so zero crossings interpolate. */
+function hertzDimensionlessForce(position: number, velocity: number, beta: number): number {
+  const magnitude = Math.abs(position);
+  const root = Math.sqrt(magnitude);
+  const spring = position >= 0 ? magnitude * root : -magnitude * root;
+  return spring + beta * Math.sqrt(root) * velocity;
+}
+
+/**
+ * β = η/√(m_eff·k_H) giving restitution e for the clamped Tsuji-damped Hertz contact; solved once
+ * per e (bisection on β, then cached).
+ */
+export function hertzDimensionlessDampingForRestitution(restitution: number): number {
+  if (!(restitution > 0 && restitution <= 1)) {
+    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
+  }
+  if (restitution === 1) return 0;
+  const cached = hertzDampingCache.get(restitution);
+  if (cached !== undefined) return cached;
+  let low = 0;
+  let high = 0.5;
+  while (hertzRestitutionForDimensionlessDamping(high) > restitution) high *= 2;
+  // Illinois (modified regula falsi) on g(β) = e(β) − e_target: bracketing like bisection, but
+  // superlinear, so each conversion costs about ten reference integrations.
+  let gLow = 1 - restitution;
+  let gHigh = hertzRestitutionUncached(high) - restitution;
+  let side = 0;
+  let beta = high;
+  for (let iteration = 0; iteration < 100; iteration++) {
+    beta = (low * gHigh - high * gLow) / (gHigh - gLow);
+    const gBeta = hertzRestitutionUncached(beta) - restitution;
+    if (Math.abs(gBeta) < 1e-13 || high - low < 1e-13 * high) break;
+    if (gBeta > 0) {
+      low = beta;
+      gLow = gBeta;
+      if (side === -1) gHigh *= 0.5;
+      side = -1;
+    } else {
+      high = beta;
+      gHigh = gBeta;
+      if (side === 1) gLow *= 0.5;
+      side = 1;
+    }
+  }
+  rememberConversion(hertzDampingCache, restitution, beta);
+  return beta;
+}
+
+function hertzRestitutionUncached(beta: number): number {
+  const value = hertzRestitutionForDimensionlessDamping(beta);
+  hertzRestitutionCache.delete(beta);
+  return value;
+}

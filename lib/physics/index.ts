@@ -1,0 +1,15 @@
+/**
+ * The collision engine: `simulate(scenario, options)` runs one cell; the analytic helpers give
+ * the closed-form references drawn over stability maps.
+ */
+export * from "./types";
+export { simulate, totalSubsteps, judge } from "./simulate";
+export { DEFAULT_TOLERANCES, MAX_BOX_DISCS } from "./constants";
+export { boxSceneProblem, boxLayout } from "./scenes";
+export * from "./analytic";
+export {
+  linearDampingRatioForRestitution,
+  hertzDimensionlessDampingForRestitution,
+  hertzRestitutionForDimensionlessDamping,
+} from "./damping";
+export { Xoshiro128StarStar } from "./random";

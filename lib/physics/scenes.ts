@@ -1,0 +1,154 @@
+/**
+ * Initial states of the four scenes. Coordinates are chosen so the first contact happens near the
+ * origin (keeps rounding small), and initial layouts never overlap: where rounding could create a
+ * overlap of one ulp between touching bodies, the layout is nudged apart.
+ */
+import type { BoxScene, PairScene, RowScene, Scene, WallScene } from "./types";
+import { createBodies, setBody, type Bodies } from "./bodies";
+import type { Wall } from "./contact-field";
+import { Xoshiro128StarStar } from "./random";
+import { MAX_BOX_DISCS } from "./constants";
+
+export interface SceneSetup {
+  bodies: Bodies;
+  walls: Wall[];
+  gravityMPerS2: number;
+}
+
+export function buildScene(scene: Scene, seed: number): SceneSetup {
+  switch (scene.kind) {
+    case "pair":
+      return buildPair(scene);
+    case "wall":
+      return buildWall(scene);
+    case "row":
+      return buildRow(scene);
+    case "box":
+      return buildBox(scene, seed);
+  }
+}
+
+/** A (index 0) below and left of B (index 1, at the origin), moving along +x; B moves along −x. */
+function buildPair(scene: PairScene): SceneSetup {
+  const bodies = createBodies(2);
+  const contactDistance = scene.radiusAM + scene.radiusBM;
+  const offsetM = scene.offsetFraction * contactDistance;
+  let separationXM = Math.sqrt(contactDistance * contactDistance - offsetM * offsetM) + scene.gapM;
+  while (separationXM * separationXM + offsetM * offsetM < contactDistance * contactDistance) {
+    separationXM += Number.EPSILON * contactDistance;
+  }
+  setBody(bodies, 0, -separationXM, -offsetM, scene.speedAMPerS, 0, scene.massAKg, scene.radiusAM);
+  setBody(bodies, 1, 0, 0, -scene.speedBMPerS, 0, scene.massBKg, scene.radiusBM);
+  return { bodies, walls: [], gravityMPerS2: 0 };
+}
+
+/** The wall is the line x = 0; the disc starts at x = r + gap moving at `angleDeg` from the normal. */
+function buildWall(scene: WallScene): SceneSetup {
+  const bodies = createBodies(1);
+  const angleRad = (scene.angleDeg * Math.PI) / 180;
+  const speed = scene.speedMPerS;
+  setBody(bodies, 0, scene.radiusM + scene.gapM, 0, -speed * Math.cos(angleRad), speed * Math.sin(angleRad), scene.massKg, scene.radiusM);
+  return { bodies, walls: [{ normalX: 1, normalY: 0, offsetM: 0 }], gravityMPerS2: 0 };
+}
+
+/** Striker (index 0) at x = 0 moving along +x, then `count` resting discs (indices 1…count). */
+function buildRow(scene: RowScene): SceneSetup {
+  const bodies = createBodies(scene.count + 1);
+  const diameter = 2 * scene.radiusM;
+  setBody(bodies, 0, 0, 0, scene.strikerSpeedMPerS, 0, scene.strikerMassKg, scene.radiusM);
+  let previousXM = 0;
+  for (let k = 1; k <= scene.count; k++) {
+    const surfaceGapM = k === 1 ? scene.gapM : scene.spacingM;
+    let positionM = previousXM + diameter + surfaceGapM;
+    while (positionM - previousXM < diameter) positionM += Number.EPSILON * Math.max(1, Math.abs(positionM));
+    setBody(bodies, k, positionM, 0, 0, 0, scene.massKg, scene.radiusM);
+    previousXM = positionM;
+  }
+  return { bodies, walls: [], gravityMPerS2: 0 };
+}
+
+/** Cells per axis for the box layout: one disc per cell, each cell wider than a diameter. */
+export interface BoxLayout {
+  cellsX: number;
+  cellsY: number;
+}
+
+/**
+ * Chooses the grid of cells that leaves the most room per disc; null if `count` discs do not fit
+ * one per cell (the layout needs cells wider than a diameter so discs never start overlapping).
+ */
+export function boxLayout(scene: Pick<BoxScene, "count" | "radiusM" | "widthM" | "heightM">): BoxLayout | null {
+  const { count, radiusM, widthM, heightM } = scene;
+  if (!(count >= 1 && count <= MAX_BOX_DISCS)) return null;
+  const diameter = 2 * radiusM;
+  let best: BoxLayout | null = null;
+  let bestCellSide = 0;
+  for (let cellsX = 1; cellsX <= count; cellsX++) {
+    const cellsY = Math.ceil(count / cellsX);
+    const cellSide = Math.min(widthM / cellsX, heightM / cellsY);
+    if (cellSide > bestCellSide) {
+      bestCellSide = cellSide;
+      best = { cellsX, cellsY };
+    }
+  }
+  return bestCellSide > diameter ? best : null;
+}
+
+/** Why a box scene cannot be laid out, or null if it can (for input validation upstream). */
+export function boxSceneProblem(scene: Pick<BoxScene, "count" | "radiusM" | "widthM" | "heightM">): string | null {
+  if (!(Number.isInteger(scene.count) && scene.count >= 1 && scene.count <= MAX_BOX_DISCS)) {
+    return `count must be an integer from 1 to ${MAX_BOX_DISCS}`;
+  }
+  if (boxLayout(scene) === null) {
+    return `${scene.count} discs of radius ${scene.radiusM} m do not fit without overlap in a ${scene.widthM} m × ${scene.heightM} m box (one disc per cell wider than a diameter)`;
+  }
+  return null;
+}
+
+/**
+ * Discs placed one per cell of a grid chosen by `boxLayout`, in cells picked by a seeded shuffle,
+ * each at a seeded position inside its cell (so no two start overlapping), with speeds uniform in
+ * [0, maxSpeed] and directions uniform on the circle (rejection sampling: no trigonometry, so the
+ * layout is bit-identical on every platform).
+ */
+function buildBox(scene: BoxScene, seed: number): SceneSetup {
+  const layout = boxLayout(scene);
+  if (layout === null) throw new RangeError(boxSceneProblem(scene) ?? "box scene cannot be laid out");
+  const random = new Xoshiro128StarStar(seed);
+  const { cellsX, cellsY } = layout;
+  const cellWidth = scene.widthM / cellsX;
+  const cellHeight = scene.heightM / cellsY;
+  const cellCount = cellsX * cellsY;
+  const cells = new Int32Array(cellCount);
+  for (let c = 0; c < cellCount; c++) cells[c] = c;
+  const bodies = createBodies(scene.count);
+  const r = scene.radiusM;
+  for (let i = 0; i < scene.count; i++) {
+    const pick = i + random.nextBelow(cellCount - i);
+    const cell = cells[pick];
+    cells[pick] = cells[i];
+    cells[i] = cell;
+    const column = cell % cellsX;
+    const row = (cell - column) / cellsX;
+    const x = column * cellWidth + r + random.nextFloat() * (cellWidth - 2 * r);
+    const y = row * cellHeight + r + random.nextFloat() * (cellHeight - 2 * r);
+    const speed = random.nextFloat() * scene.maxSpeedMPerS;
+    let directionX = 0;
+    let directionY = 0;
+    let lengthSquared = 0;
+    do {
+      directionX = 2 * random.nextFloat() - 1;
+      directionY = 2 * random.nextFloat() - 1;
+      lengthSquared = directionX * directionX + directionY * directionY;
+    } while (lengthSquared > 1 || lengthSquared < 1e-12);
+    const scale = speed / Math.sqrt(lengthSquared);
+    setBody(bodies, i, x, y, directionX * scale, directionY * scale, scene.massKg, r);
+  }
+  const walls: Wall[] = [
+    { normalX: 1, normalY: 0, offsetM: 0 },
+    { normalX: -1, normalY: 0, offsetM: -scene.widthM },
+    { normalX: 0, normalY: 1, offsetM: 0 },
+    { normalX: 0, normalY: -1, offsetM: -scene.heightM },
+  ];
+  return { bodies, walls, gravityMPerS2: scene.gravityMPerS2 };
+}

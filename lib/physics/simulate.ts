@@ -1,0 +1,381 @@
+/**
+ * One run of a scenario: builds the scene, integrates it with fixed substeps, measures the metrics
+ * and gives the verdict. Pure and deterministic: the same scenario always yields byte-identical
+ * metrics (no clocks, no Math.random, no dependence on object iteration order).
+ */
+import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict } from "./types";
+import { buildScene } from "./scenes";
+import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
+import { primeForces, stepFunctionFor } from "./integrators";
+import {
+  BROAD_PHASE_ALL_PAIRS,
+  BROAD_PHASE_GRID,
+  CONTACT_HERTZ,
+  CONTACT_LINEAR,
+  ContactField,
+  DAMPING_COEFFICIENT,
+  DAMPING_DIMENSIONLESS,
+  DAMPING_NONE,
+  FIRST_CONTACT_ENDED,
+  TUNNEL_CENTRES_CROSSED,
+  TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
+  TUNNEL_NONE,
+  TUNNEL_SKIPPED_CONTACT,
+  type Wall,
+} from "./contact-field";
+import { hertzDimensionlessDampingForRestitution, hertzRestitutionForDimensionlessDamping, linearDampingRatioForRestitution } from "./damping";
+import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
+import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
+
+/** Number of integrator substeps a run takes: ⌈duration / (dtS / substeps)⌉ (at least 1). */
+export function totalSubsteps(scenario: Pick<Scenario, "dtS" | "substeps" | "durationS">): number {
+  const substepS = scenario.dtS / scenario.substeps;
+  // The relative slack keeps 0.1 / 1e-5 = 9999.999… from becoming 10001 or 9999.
+  return Math.max(1, Math.ceil((scenario.durationS / substepS) * (1 - 1e-12)));
+}
+
+/** Builds the contact force field of a scenario. */
+export function createContactField(scenario: Scenario, walls: readonly Wall[], gravityMPerS2: number, bodyCount: number, broadPhase?: RunOptions["broadPhase"]): ContactField {
+  const contact = scenario.contact;
+  const isHertz = contact.model === "hertz";
+  let hertzModulusFactorPa = 0;
+  if (isHertz && contact.material) {
+    // Discs and walls are of the same material (1/E* = 2(1 − ν²)/E).
+    hertzModulusFactorPa = (4 / 3) * effectiveModulusSameMaterialPa(contact.material.youngsModulusPa, contact.material.poissonRatio);
+  }
+  let dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS = DAMPING_NONE;
+  let dampingValue = 0;
+  const damping = contact.damping;
+  if (damping.kind === "coefficient" && damping.value > 0) {
+    dampingMode = DAMPING_COEFFICIENT;
+    dampingValue = damping.value;
+  } else if (damping.kind === "restitution" && damping.value < 1) {
+    dampingMode = DAMPING_DIMENSIONLESS;
+    dampingValue = isHertz ? hertzDimensionlessDampingForRestitution(damping.value) : linearDampingRatioForRestitution(damping.value);
+  }
+  const useGrid = broadPhase === undefined ? scenario.scene.kind === "box" || bodyCount > MAX_BODIES_FOR_FREE_FLIGHT_JUMPS : broadPhase === "grid";
+  return new ContactField({
+    model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
+    stiffness: contact.stiffness ?? 0,
+    hertzModulusFactorPa,
+    dampingMode,
+    dampingValue,
+    walls,
+    gravityMPerS2,
+    broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
+  });
+}
+
+export function simulate(scenario: Scenario, options: RunOptions = {}): RunResult {
+  const setup = buildScene(scenario.scene, scenario.seed);
+  const bodies = setup.bodies;
+  const gravity = setup.gravityMPerS2;
+  const field = createContactField(scenario, setup.walls, gravity, bodies.count, options.broadPhase);
+  const step = stepFunctionFor(scenario.integrator);
+  const isVerlet = scenario.integrator === "velocity-verlet";
+  const h = scenario.dtS / scenario.substeps;
+  const totalSteps = totalSubsteps(scenario);
+  const tolerances = scenario.tolerances;
+  const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
+
+  const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
+
+  primeForces(bodies, field);
+  const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+  const energyScale = startEnergy !== 0 ? Math.abs(startEnergy) : 1;
+  const startMomentumX = totalMomentumXNs(bodies);
+  const startMomentumY = totalMomentumYNs(bodies);
+  let momentumScale = Math.hypot(startMomentumX, startMomentumY);
+  if (momentumScale === 0) momentumScale = momentumMagnitudeSumNs(bodies);
+  if (momentumScale === 0) momentumScale = 1;
+  let totalMassKg = 0;
+  for (let i = 0; i < bodies.count; i++) totalMassKg += bodies.mass[i];
+  const gravityImpulsePerStepNs = -h * gravity * totalMassKg;
+
+  let externalImpulseXNs = 0;
+  let externalImpulseYNs = 0;
+  let lastWallForceXN = field.wallForceXN;
+  let lastWallForceYN = field.wallForceYN;
+  let energy = startEnergy;
+  let maxEnergyErrorRel = 0;
+  let maxOverlapFraction = field.maxOverlapFraction;
+  let contactSteps = 0;
+  let exploded = false;
+  let explodedAtS = 0;
+  let tunnelAtS = -1;
+  let firstContactStartS = 0;
+  let firstContactEndS = 0;
+  let effectiveRestitution: number | null = null;
+  let contactDurationS: number | null = null;
+
+  if (recorder) recorder.recordUpTo(0, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
+
+  let n = 0;
+  while (n < totalSteps) {
+    if (allowJumps && field.overlappingContacts === 0) {
+      const timeToContactS = field.timeToFirstContactS(bodies);
+      // Land at least one full step before the contact so the entry is integrated as plain stepping would.
+      const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
+      if (target > n + 1) {
+        jumpFreeFlight(bodies, n, target, h, recorder, gravity);
+        n = target;
+        if (n >= totalSteps) break;
+      }
+    }
+    step(bodies, field, h);
+    n++;
+
+    if (isVerlet) {
+      externalImpulseXNs += 0.5 * h * (lastWallForceXN + field.wallForceXN);
+      externalImpulseYNs += 0.5 * h * (lastWallForceYN + field.wallForceYN);
+    } else {
+      externalImpulseXNs += h * lastWallForceXN;
+      externalImpulseYNs += h * lastWallForceYN;
+    }
+    externalImpulseYNs += gravityImpulsePerStepNs;
+    lastWallForceXN = field.wallForceXN;
+    lastWallForceYN = field.wallForceYN;
+
+    energy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+    const energyErrorRel = (energy - startEnergy) / energyScale;
+    if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
+    if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
+    if (field.overlappingContacts > 0) contactSteps++;
+    if (field.tunnelDetectedThisPass && tunnelAtS < 0) tunnelAtS = n * h;
+
+    if (field.firstContactStartedThisPass) {
+      const before = field.firstContactStartOverlapBeforeM;
+      const after = field.firstContactStartOverlapM;
+      firstContactStartS = (n - 1) * h + (h * -before) / (after - before);
+    }
+    if (field.firstContactEndedThisPass) {
+      const forceBefore = field.firstContactForcePreviousN;
+      const forceAfter = field.firstContactForceN;
+      const fraction = forceBefore > 0 ? forceBefore / (forceBefore - forceAfter) : 0;
+      firstContactEndS = Math.max(firstContactStartS, (n - 1) * h + h * fraction);
+      contactDurationS = firstContactEndS - firstContactStartS;
+      const approachIn = field.firstContactApproachSpeedMPerS;
+      effectiveRestitution = approachIn > 0 ? -field.firstContactEndApproachSpeed(bodies) / approachIn : null;
+    }
+
+    if (recorder) recorder.recordUpTo(n, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
+
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > tolerances.blowUpEnergyFactor * startEnergy)) {
+      exploded = true;
+      explodedAtS = n * h;
+      break;
+    }
+  }
+
+  const endMomentumX = totalMomentumXNs(bodies);
+  const endMomentumY = totalMomentumYNs(bodies);
+  const metrics: Metrics = {
+    momentumDriftRelX: (endMomentumX - startMomentumX - externalImpulseXNs) / momentumScale,
+    momentumDriftRelY: (endMomentumY - startMomentumY - externalImpulseYNs) / momentumScale,
+    energyErrorRel: (energy - startEnergy) / energyScale,
+    maxEnergyErrorRel,
+    effectiveRestitution,
+    maxOverlapFraction,
+    contactDurationS,
+    contactSteps,
+    tunneled: field.tunnelKind !== TUNNEL_NONE,
+    exploded,
+    steps: n,
+  };
+
+  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies) : null;
+  const { verdict, reason } = judge(metrics, scenario, {
+    explodedAtS,
+    energy,
+    startEnergy,
+    tunnelAtS,
+    tunnelKind: field.tunnelKind,
+    tunnelBodyA: field.tunnelBodyA,
+    tunnelBodyB: field.tunnelBodyB,
+    expectedRestitution: expected,
+  });
+  const result: RunResult = { metrics, verdict, reason };
+  if (recorder) result.series = recorder.series;
+  return result;
+}
+
+/**
+ * Advances every body in a straight line from step `from` to step `to` (no force acts: no contact
+ * and no gravity), recording the samples that fall in between. Positions are computed from the
+ * anchor at `from`, so the end state does not depend on whether samples were recorded.
+ */
+function jumpFreeFlight(bodies: Bodies, from: number, to: number, h: number, recorder: SeriesRecorder | null, gravity: number): void {
+  const { count, x, y, vx, vy, previousX, previousY } = bodies;
+  previousX.set(x);
+  previousY.set(y);
+  if (recorder) {
+    let sampleStep = recorder.nextSampleStep();
+    while (sampleStep <= to) {
+      const elapsedS = (sampleStep - from) * h;
+      for (let i = 0; i < count; i++) {
+        x[i] = previousX[i] + elapsedS * vx[i];
+        y[i] = previousY[i] + elapsedS * vy[i];
+      }
+      recorder.recordUpTo(sampleStep, bodies, 0, gravity, 0, h);
+      sampleStep = recorder.nextSampleStep();
+    }
+  }
+  const elapsedS = (to - from) * h;
+  for (let i = 0; i < count; i++) {
+    x[i] = previousX[i] + elapsedS * vx[i];
+    y[i] = previousY[i] + elapsedS * vy[i];
+  }
+}
+
+/** Restitution the contact model should give the first contact's pair (1 when undamped). */
+function expectedRestitution(field: ContactField, bodies: Bodies): number {
+  if (field.dampingMode === DAMPING_NONE) return 1;
+  const a = field.firstContactA;
+  const b = field.firstContactB;
+  const reducedMass = field.contactReducedMassKg(bodies, a, b);
+  const stiffness = field.contactStiffness(bodies, a, b);
+  if (field.model === CONTACT_LINEAR) {
+    const ratio = field.dampingMode === DAMPING_DIMENSIONLESS ? field.dampingValue : field.dampingValue / (2 * Math.sqrt(reducedMass * stiffness));
+    return linearRestitutionForDampingRatio(ratio);
+  }
+  const beta = field.dampingMode === DAMPING_DIMENSIONLESS ? field.dampingValue : field.dampingValue / Math.sqrt(reducedMass * stiffness);
+  return hertzRestitutionForDimensionlessDamping(beta);
+}
+
+interface VerdictContext {
+  explodedAtS: number;
+  energy: number;
+  startEnergy: number;
+  tunnelAtS: number;
+  tunnelKind: number;
+  tunnelBodyA: number;
+  tunnelBodyB: number;
+  expectedRestitution: number | null;
+}
+
+/**
+ * Verdict by precedence exploded → tunneled → deep-overlap → energy-drift → stable.
+ * Energy-drift: the run ends with more energy than it started with by more than energyDriftRel;
+ * for undamped contacts also with less (nothing should dissipate); and for any first contact whose
+ * measured restitution exceeds the model's target by more than energyDriftRel. Excursions during a
+ * contact (bounded for the symplectic integrators) count only through maxEnergyErrorRel, which is
+ * reported but does not decide the verdict unless it reaches the blow-up factor.
+ */
+export function judge(metrics: Metrics, scenario: Scenario, context: VerdictContext): { verdict: Verdict; reason: string } {
+  const tolerances = scenario.tolerances;
+  if (metrics.exploded) {
+    const reason = Number.isFinite(context.energy)
+      ? `energy grew ×${formatNumber(context.energy / context.startEnergy)} by t = ${formatNumber(context.explodedAtS)} s (blow-up at ×${formatNumber(tolerances.blowUpEnergyFactor)})`
+      : `state became non-finite at t = ${formatNumber(context.explodedAtS)} s`;
+    return { verdict: "exploded", reason };
+  }
+  if (metrics.tunneled) {
+    return { verdict: "tunneled", reason: `${describeTunnel(context)} at t = ${formatNumber(context.tunnelAtS)} s` };
+  }
+  if (metrics.maxOverlapFraction > tolerances.maxOverlapFraction) {
+    return {
+      verdict: "deep-overlap",
+      reason: `overlap reached ${formatPercent(metrics.maxOverlapFraction)} of the smaller radius (limit ${formatPercent(tolerances.maxOverlapFraction)})`,
+    };
+  }
+  const undamped = scenario.contact.damping.kind === "none" || (scenario.contact.damping.kind === "coefficient" && scenario.contact.damping.value === 0) || (scenario.contact.damping.kind === "restitution" && scenario.contact.damping.value === 1);
+  if (metrics.energyErrorRel > tolerances.energyDriftRel) {
+    return { verdict: "energy-drift", reason: `energy rose ${formatPercent(metrics.energyErrorRel)} over the run (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  if (undamped && metrics.energyErrorRel < -tolerances.energyDriftRel) {
+    return { verdict: "energy-drift", reason: `energy fell ${formatPercent(-metrics.energyErrorRel)} without damping (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  if (metrics.effectiveRestitution !== null && context.expectedRestitution !== null && metrics.effectiveRestitution > context.expectedRestitution + tolerances.energyDriftRel) {
+    return {
+      verdict: "energy-drift",
+      reason: `restitution ${formatNumber(metrics.effectiveRestitution)} exceeds the model's ${formatNumber(context.expectedRestitution)} by more than ${formatNumber(tolerances.energyDriftRel)}`,
+    };
+  }
+  const contactNote = metrics.contactSteps > 0 ? `, overlap up to ${formatPercent(metrics.maxOverlapFraction)} of the smaller radius` : ", no contact";
+  return { verdict: "stable", reason: `energy changed ${formatSignedPercent(metrics.energyErrorRel)}${contactNote}` };
+}
+
+function describeTunnel(context: VerdictContext): string {
+  const a = `disc ${context.tunnelBodyA}`;
+  if (context.tunnelBodyB < 0) return `${a} crossed wall ${-1 - context.tunnelBodyB}`;
+  const b = `disc ${context.tunnelBodyB}`;
+  switch (context.tunnelKind) {
+    case TUNNEL_SKIPPED_CONTACT:
+      return `${a} and ${b} passed each other within one step without touching`;
+    case TUNNEL_ENTERED_PAST_CLOSEST_APPROACH:
+      return `${a} and ${b} were first seen in contact already past their closest approach`;
+    case TUNNEL_CENTRES_CROSSED:
+      return `${a} passed through ${b}`;
+    default:
+      return `${a} tunnelled through ${b}`;
+  }
+}
+
+function formatNumber(value: number): string {
+  if (value === 0) return "0";
+  const magnitude = Math.abs(value);
+  return magnitude >= 1e-3 && magnitude < 1e6 ? String(Number(value.toPrecision(3))) : value.toExponential(2);
+}
+
+function formatPercent(fraction: number): string {
+  return `${formatNumber(fraction * 100)}%`;
+}
+
+function formatSignedPercent(fraction: number): string {
+  return fraction > 0 ? `+${formatPercent(fraction)}` : formatPercent(fraction);
+}
+
+/** Evenly spaced samples over the run's steps, at most `maxSamples`. */
+class SeriesRecorder {
+  readonly series: TimeSeries;
+  private readonly maxSamples: number;
+  private readonly totalSteps: number;
+  private sampleIndex = 0;
+
+  constructor(bodyCount: number, maxSamples: number, totalSteps: number) {
+    this.maxSamples = maxSamples;
+    this.totalSteps = totalSteps;
+    const bodies: TimeSeries["bodies"] = [];
+    for (let i = 0; i < bodyCount; i++) bodies.push({ xM: [], yM: [], pxNs: [], pyNs: [] });
+    this.series = { tS: [], bodies, totalPxNs: [], totalPyNs: [], kineticJ: [], potentialJ: [], totalJ: [], maxOverlapM: [] };
+  }
+
+  private stepOfSample(index: number): number {
+    if (this.maxSamples === 1) return 0;
+    return Math.floor((index * this.totalSteps) / (this.maxSamples - 1));
+  }
+
+  /** Step of the next sample still to record (Infinity when all are recorded). */
+  nextSampleStep(): number {
+    return this.sampleIndex < this.maxSamples ? this.stepOfSample(this.sampleIndex) : Infinity;
+  }
+
+  /** Records the current state if one or more samples fall on `step` (once, even if several do). */
+  recordUpTo(step: number, bodies: Bodies, contactPotentialJ: number, gravity: number, maxOverlapM: number, h: number): void {
+    if (this.nextSampleStep() > step) return;
+    while (this.nextSampleStep() <= step) this.sampleIndex++;
+    const series = this.series;
+    series.tS.push(step * h);
+    let totalPx = 0;
+    let totalPy = 0;
+    for (let i = 0; i < bodies.count; i++) {
+      const track = series.bodies[i];
+      const px = bodies.mass[i] * bodies.vx[i];
+      const py = bodies.mass[i] * bodies.vy[i];
+      track.xM.push(bodies.x[i]);
+      track.yM.push(bodies.y[i]);
+      track.pxNs.push(px);
+      track.pyNs.push(py);
+      totalPx += px;
+      totalPy += py;
+    }
+    series.totalPxNs.push(totalPx);
+    series.totalPyNs.push(totalPy);
+    const kinetic = kineticEnergyJ(bodies);
+    const potential = contactPotentialJ + gravityPotentialJ(bodies, gravity);
+    series.kineticJ.push(kinetic);
+    series.potentialJ.push(potential);
+    series.totalJ.push(kinetic + potential);
+    series.maxOverlapM.push(maxOverlapM);
+  }
+}
