@@ -1,0 +1,59 @@
+import { defineConfig } from "@playwright/test";
+import { mkdtempSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+
+/**
+ * Browser tests against a production build (`npm run build` first; NEXT_DIST_DIR must match the build).
+ * Every run starts the server on a fresh, empty data folder with the demo seed and the local mail fake.
+ * The config is evaluated again in each worker process; the data folder is created once and handed on
+ * through the environment so all of them agree on it.
+ */
+const port = Number(process.env.KD_E2E_PORT ?? 3100);
+const mailFakePort = Number(process.env.KD_E2E_MAIL_PORT ?? 2626);
+const baseURL = `http://localhost:${port}`;
+process.env.KD_E2E_DATA_DIR ??= mkdtempSync(path.join(tmpdir(), "kickdrift-e2e-"));
+const dataDir = process.env.KD_E2E_DATA_DIR;
+
+export default defineConfig({
+  testDir: "tests/e2e",
+  testMatch: "**/*.spec.ts",
+  fullyParallel: false,
+  workers: 1,
+  retries: 0,
+  timeout: 90_000,
+  expect: { timeout: 15_000 },
+  forbidOnly: Boolean(process.env.CI),
+  reporter: [["list"]],
+  outputDir: "test-results",
+  use: {
+    baseURL,
+    headless: true,
+    colorScheme: "light",
+    viewport: { width: 1280, height: 860 },
+    trace: "retain-on-failure",
+    screenshot: "only-on-failure",
+    launchOptions: {
+      executablePath: "/usr/bin/chromium",
+      args: ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"],
+    },
+  },
+  webServer: {
+    command: `npx next start -p ${port}`,
+    url: `${baseURL}/signin`,
+    reuseExistingServer: false,
+    timeout: 120_000,
+    stdout: "pipe",
+    stderr: "pipe",
+    env: {
+      NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
+      KICKDRIFT_DATA_DIR: dataDir,
+      KICKDRIFT_DEMO: "1",
+      NEXTAUTH_URL: baseURL,
+      MAIL_FAKE_PORT: String(mailFakePort),
+      // The flows read mail from the local fake and keep data in PGlite: never a configured SMTP server or database.
+      SMTP_URL: "",
+      DATABASE_URL: "",
+    },
+  },
+});

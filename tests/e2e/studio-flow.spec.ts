@@ -1,0 +1,116 @@
+import { expect, test } from "@playwright/test";
+import { linkFromMailbox, signInWithPassword, uniqueEmail } from "./helpers";
+
+// The demo owner seeded by KICKDRIFT_DEMO=1 (db/seed.ts prints these sign-ins at start).
+const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };
+
+test("a new owner builds a studio and an invited engineer joins it through the mailed links", async ({ browser }) => {
+  const ownerEmail = uniqueEmail("noor");
+  const engineerEmail = uniqueEmail("pavel");
+  const studioName = "Driftwood Pucks";
+
+  // --- The owner signs up: the API's field errors appear beside the fields, then the account is created.
+  const ownerContext = await browser.newContext();
+  const owner = await ownerContext.newPage();
+  await owner.goto("/signup");
+  await owner.getByLabel("Your name").fill("Noor Haddad");
+  await owner.getByLabel("Work e-mail").fill(ownerEmail);
+  await owner.getByLabel("Password", { exact: true }).fill("short");
+  await owner.getByRole("button", { name: "Create account" }).click();
+  await expect(owner.locator("#signup-password-error")).toContainText("10");
+  await owner.getByLabel("Password", { exact: true }).fill("rink-wall-bounce-42");
+  await owner.getByRole("button", { name: "Create account" }).click();
+  await expect(owner).toHaveURL(/\/studios$/);
+
+  // --- Creates a studio and lands on its home as owner.
+  await owner.getByLabel("Studio name").fill(studioName);
+  await owner.getByRole("button", { name: "Create studio" }).click();
+  await expect(owner).toHaveURL(/\/studios\/[^/]+$/);
+  await expect(owner.getByTestId("studio-name")).toHaveText(studioName);
+  await expect(owner.getByTestId("my-role")).toContainText("owner");
+  const studioUrl = new URL(owner.url()).pathname;
+  await owner.screenshot({ path: test.info().outputPath("studio-home-owner.png"), fullPage: true });
+
+  // --- Invites an engineer from the members page.
+  await owner.getByRole("link", { name: "Members", exact: true }).click();
+  await expect(owner).toHaveURL(`${studioUrl}/members`);
+  await owner.getByLabel("E-mail", { exact: true }).fill(engineerEmail);
+  await owner.getByLabel("Role", { exact: true }).selectOption("engineer");
+  await owner.getByRole("button", { name: "Send invitation" }).click();
+  await expect(owner.getByText(`Invitation e-mailed to ${engineerEmail}`)).toBeVisible();
+  await expect(owner.getByTestId("invites-table")).toContainText(engineerEmail);
+  await owner.screenshot({ path: test.info().outputPath("studio-members-owner.png"), fullPage: true });
+
+  // --- The engineer, in a browser of their own, opens the invitation from the local mailbox.
+  const engineerContext = await browser.newContext();
+  const engineer = await engineerContext.newPage();
+  const inviteLink = await linkFromMailbox(engineer, engineerEmail, "/invite/");
+  await engineer.goto(inviteLink);
+  await expect(engineer.getByTestId("invite-studio")).toHaveText(studioName);
+  await expect(engineer.getByTestId("invite-role")).toHaveText("engineer");
+
+  // --- Not signed in: asks for a sign-in link to the invited address and opens it from the mailbox.
+  await engineer.getByRole("button", { name: `E-mail a sign-in link to ${engineerEmail}` }).click();
+  await expect(engineer.getByText("We sent a sign-in link to")).toBeVisible();
+  const magicLink = await linkFromMailbox(engineer, engineerEmail, "/api/auth/callback/email");
+  await engineer.goto(magicLink);
+  await expect(engineer).toHaveURL(new RegExp(`/invite/`));
+
+  // --- Signed in as the invitee: accepts and lands in the studio as engineer.
+  await engineer.getByRole("button", { name: `Accept and join ${studioName}` }).click();
+  await expect(engineer).toHaveURL(new RegExp(`${studioUrl}$`));
+  await expect(engineer.getByTestId("studio-name")).toHaveText(studioName);
+  await expect(engineer.getByTestId("my-role")).toContainText("engineer");
+  await expect(engineer.getByTestId("members-table")).toContainText(ownerEmail);
+  await expect(engineer.getByTestId(`member-${engineerEmail}`)).toContainText("engineer");
+  // Owner-only tabs are not offered to an engineer.
+  await expect(engineer.getByRole("link", { name: "Members", exact: true })).toHaveCount(0);
+
+  // --- The owner's actions on the members page are refused to the engineer with a 403 page.
+  await engineer.goto(`${studioUrl}/members`);
+  await expect(engineer.getByTestId("forbidden")).toBeVisible();
+  await expect(engineer.getByTestId("forbidden")).toContainText("403");
+  await expect(engineer.getByRole("button", { name: "Send invitation" })).toHaveCount(0);
+  await engineer.goto(`${studioUrl}/tokens`);
+  await expect(engineer.getByTestId("forbidden")).toBeVisible();
+
+  // --- Another studio's URL is a plain 404, the same as a studio that does not exist.
+  const demoOwnerContext = await browser.newContext();
+  const demoOwner = await demoOwnerContext.newPage();
+  await signInWithPassword(demoOwner, DEMO_OWNER.email, DEMO_OWNER.password);
+  await demoOwner.getByRole("link", { name: new RegExp(DEMO_OWNER.studio) }).click();
+  await expect(demoOwner).toHaveURL(/\/studios\/[^/]+$/);
+  const demoStudioUrl = new URL(demoOwner.url()).pathname;
+  expect(demoStudioUrl).not.toBe(studioUrl);
+
+  const otherStudio = await engineer.goto(demoStudioUrl);
+  expect(otherStudio?.status()).toBe(404);
+  await expect(engineer.getByTestId("not-found")).toBeVisible();
+  await expect(engineer.getByText(DEMO_OWNER.studio)).toHaveCount(0);
+  const missingStudio = await engineer.goto("/studios/std_doesnotexist0000000000");
+  expect(missingStudio?.status()).toBe(404);
+
+  // --- And the owner sees the engineer in the member list now.
+  await owner.goto(studioUrl);
+  await expect(owner.getByTestId(`member-${engineerEmail}`)).toContainText("engineer");
+  await owner.screenshot({ path: test.info().outputPath("studio-home-owner-after.png"), fullPage: true });
+  await owner.evaluate(() => {
+    document.documentElement.setAttribute("data-theme", "dark");
+  });
+  await owner.screenshot({ path: test.info().outputPath("studio-home-owner-dark.png"), fullPage: true });
+
+  await Promise.all([ownerContext.close(), engineerContext.close(), demoOwnerContext.close()]);
+});
+
+test("signed-out visitors are sent to sign-in and come back after it", async ({ page }) => {
+  await page.goto("/studios");
+  await expect(page).toHaveURL(/\/signin\?callbackUrl=%2Fstudios/);
+  await page.getByLabel("E-mail", { exact: true }).fill(DEMO_OWNER.email);
+  await page.getByLabel("Password", { exact: true }).fill("not-the-password");
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
+  await expect(page.getByText("Invalid e-mail or password.")).toBeVisible();
+  await page.getByLabel("Password", { exact: true }).fill(DEMO_OWNER.password);
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
+  await expect(page).toHaveURL(/\/studios$/);
+  await expect(page.getByTestId("studio-list")).toContainText(DEMO_OWNER.studio);
+});
