@@ -1,0 +1,88 @@
+/**
+ * Password sign-in through next-auth's real credentials callback: limited per account and per client
+ * address (5 failures in 15 minutes lock the key for 15 minutes — common practice), always the same
+ * generic message.
+ */
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { LOGIN_ERROR_MESSAGE } from "@/lib/auth/accounts";
+import * as meRoute from "@/app/api/v1/me/route";
+import { closeTestDb, useFreshDb } from "../helpers/db";
+import { makeUser, uniqueEmail } from "../helpers/factories";
+import { call } from "../helpers/http";
+import { passwordSignIn } from "../helpers/next-auth";
+
+beforeAll(async () => {
+  await useFreshDb();
+});
+afterAll(async () => {
+  vi.useRealTimers();
+  await closeTestDb();
+});
+
+const PASSWORD = "slapshot-over-the-crates";
+
+describe("credentials sign-in", () => {
+  it("signs in with the right password and the session works on the API", async () => {
+    const user = await makeUser({ password: PASSWORD });
+    const result = await passwordSignIn(user.email.toUpperCase(), PASSWORD);
+    expect(result.error).toBeNull();
+    expect(result.ok).toBe(true);
+    const me = await call(meRoute.GET, { path: "/api/v1/me", cookie: result.cookie });
+    expect(me.status).toBe(200);
+    expect((me.body as { user: { id: string; isAdmin: boolean } }).user).toMatchObject({ id: user.id, isAdmin: false });
+  });
+
+  it("gives the same generic message for a wrong password and an unknown account", async () => {
+    const user = await makeUser({ password: PASSWORD });
+    const wrong = await passwordSignIn(user.email, "not-the-password", "198.51.100.20");
+    const unknown = await passwordSignIn(uniqueEmail("ghost"), PASSWORD, "198.51.100.21");
+    expect(wrong).toMatchObject({ ok: false, error: LOGIN_ERROR_MESSAGE, status: 401 });
+    expect(unknown).toMatchObject({ ok: false, error: LOGIN_ERROR_MESSAGE, status: 401 });
+    expect(LOGIN_ERROR_MESSAGE).toBe("Invalid e-mail or password");
+  });
+
+  it("refuses the 6th attempt within the window even with the right password, with the same message", async () => {
+    const user = await makeUser({ password: PASSWORD });
+    for (let i = 1; i <= 5; i++) {
+      const attempt = await passwordSignIn(user.email, `wrong-password-${i}`, "198.51.100.30");
+      expect(attempt.error).toBe(LOGIN_ERROR_MESSAGE);
+    }
+    const sixth = await passwordSignIn(user.email, PASSWORD, "198.51.100.30");
+    expect(sixth).toMatchObject({ ok: false, error: LOGIN_ERROR_MESSAGE });
+    // The lock is on the account, not only the address the failures came from.
+    const elsewhere = await passwordSignIn(user.email, PASSWORD, "192.0.2.99");
+    expect(elsewhere).toMatchObject({ ok: false, error: LOGIN_ERROR_MESSAGE });
+  });
+
+  it("locks an address that fails across many accounts, without locking those accounts elsewhere", async () => {
+    const victims = await Promise.all([1, 2, 3].map(() => makeUser({ password: PASSWORD })));
+    const address = "198.51.100.40";
+    for (let i = 0; i < 5; i++) await passwordSignIn(victims[i % 3].email, "guess-guess-guess", address);
+    expect((await passwordSignIn(victims[0].email, PASSWORD, address)).ok).toBe(false);
+    // Two failures per account is under the account limit: from another address they still sign in.
+    expect((await passwordSignIn(victims[0].email, PASSWORD, "192.0.2.50")).ok).toBe(true);
+  });
+
+  it("lets the account in again once the 15-minute lock has passed", async () => {
+    const user = await makeUser({ password: PASSWORD });
+    const start = new Date("2026-12-01T10:00:00Z");
+    vi.useFakeTimers({ now: start, toFake: ["Date"] });
+    try {
+      for (let i = 0; i < 5; i++) await passwordSignIn(user.email, "wrong-wrong-wrong", "198.51.100.60");
+      vi.setSystemTime(new Date(start.getTime() + 14 * 60_000));
+      expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.61")).ok).toBe(false);
+      vi.setSystemTime(new Date(start.getTime() + 16 * 60_000));
+      expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.62")).ok).toBe(true);
+    } finally {
+      vi.useRealTimers();
+    }
+  });
+
+  it("does not count four failures followed by a success toward a lock", async () => {
+    const user = await makeUser({ password: PASSWORD });
+    for (let i = 0; i < 4; i++) await passwordSignIn(user.email, "wrong-wrong-wrong", `198.51.100.${70 + i}`);
+    expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.80")).ok).toBe(true);
+    for (let i = 0; i < 4; i++) await passwordSignIn(user.email, "wrong-wrong-wrong", `198.51.100.${90 + i}`);
+    expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.99")).ok).toBe(true);
+  });
+});
