@@ -17,6 +17,9 @@ export interface Bodies {
   /** Positions before the last drift; the contact pass compares them with the current ones to detect tunnelling. */
   readonly previousX: Float64Array;
   readonly previousY: Float64Array;
+  /** Integrator scratch (velocity Verlet keeps the half-step velocity here). */
+  readonly scratchVx: Float64Array;
+  readonly scratchVy: Float64Array;
 }
 
 export function createBodies(count: number): Bodies {
@@ -33,6 +36,8 @@ export function createBodies(count: number): Bodies {
     radius: new Float64Array(count),
     previousX: new Float64Array(count),
     previousY: new Float64Array(count),
+    scratchVx: new Float64Array(count),
+    scratchVy: new Float64Array(count),
   };
 }
 

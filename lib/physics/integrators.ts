@@ -38,25 +38,30 @@ export function stepSymplecticEuler(bodies: Bodies, field: ForceField, substepS:
 
 /**
  * Velocity Verlet: half kick, drift, force at the new positions, half kick. Velocity-dependent
- * (damping) forces see the half-step velocity v_{n+1/2} (common practice in DEM codes).
+ * (damping) forces are evaluated with the predicted velocity v_{n+1/2} + (h/2)·a_n, which keeps
+ * the method second order with a dashpot (using v_{n+1/2} alone would make it first order).
  */
 export function stepVelocityVerlet(bodies: Bodies, field: ForceField, substepS: number): void {
-  const { count, x, y, vx, vy, fx, fy, inverseMass, previousX, previousY } = bodies;
+  const { count, x, y, vx, vy, fx, fy, inverseMass, previousX, previousY, scratchVx, scratchVy } = bodies;
   const halfStep = 0.5 * substepS;
   for (let i = 0; i < count; i++) {
     const kick = halfStep * inverseMass[i];
-    vx[i] += kick * fx[i];
-    vy[i] += kick * fy[i];
+    const halfVx = vx[i] + kick * fx[i];
+    const halfVy = vy[i] + kick * fy[i];
+    scratchVx[i] = halfVx;
+    scratchVy[i] = halfVy;
     previousX[i] = x[i];
     previousY[i] = y[i];
-    x[i] += substepS * vx[i];
-    y[i] += substepS * vy[i];
+    x[i] += substepS * halfVx;
+    y[i] += substepS * halfVy;
+    vx[i] = halfVx + kick * fx[i];
+    vy[i] = halfVy + kick * fy[i];
   }
   field.evaluate(bodies);
   for (let i = 0; i < count; i++) {
     const kick = halfStep * inverseMass[i];
-    vx[i] += kick * fx[i];
-    vy[i] += kick * fy[i];
+    vx[i] = scratchVx[i] + kick * fx[i];
+    vy[i] = scratchVy[i] + kick * fy[i];
   }
 }
 

@@ -183,7 +183,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     steps: n,
   };
 
-  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies) : null;
+  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
   const { verdict, reason } = judge(metrics, scenario, {
     explodedAtS,
     energy,
@@ -228,7 +228,9 @@ function jumpFreeFlight(bodies: Bodies, from: number, to: number, h: number, rec
 }
 
 /** Restitution the contact model should give the first contact's pair (1 when undamped). */
-function expectedRestitution(field: ContactField, bodies: Bodies): number {
+function expectedRestitution(field: ContactField, bodies: Bodies, scenario: Scenario): number {
+  const damping = scenario.contact.damping;
+  if (damping.kind === "restitution") return damping.value;
   if (field.dampingMode === DAMPING_NONE) return 1;
   const a = field.firstContactA;
   const b = field.firstContactB;

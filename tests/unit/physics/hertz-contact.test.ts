@@ -1,0 +1,76 @@
+import { describe, expect, it } from "vitest";
+import {
+  effectiveModulusSameMaterialPa,
+  effectiveRadiusM,
+  hertzContactDurationS,
+  hertzDimensionlessDampingForRestitution,
+  hertzMaxOverlapM,
+  hertzRestitutionForDimensionlessDamping,
+  hertzStiffnessFromModulus,
+  reducedMassKg,
+  simulate,
+  type Scene,
+} from "@/lib/physics";
+import { relativeError, scenario } from "./fixtures";
+
+// Invented props: rubber-coated steel "Boltball" spheres of Gearwhistle Games. Properties in the
+// spirit of Chung & Ooi 2011's particle-impact benchmarks, derived here from Johnson's closed forms.
+const youngsModulusPa = 7e9;
+const poissonRatio = 0.3;
+const radiusM = 0.01;
+const massKg = 0.0327;
+
+function materialContact(damping: { kind: "none" } | { kind: "restitution"; value: number } | { kind: "coefficient"; value: number } = { kind: "none" }) {
+  return { model: "hertz" as const, material: { youngsModulusPa, poissonRatio }, damping };
+}
+
+function pair(speedMPerS: number, massBKg = massKg, radiusBM = radiusM): Scene {
+  return { kind: "pair", massAKg: massKg, massBKg, radiusAM: radiusM, radiusBM, speedAMPerS: speedMPerS, speedBMPerS: 0, offsetFraction: 0, gapM: 1e-4 };
+}
+
+describe("Hertz contact", () => {
+  it.each([0.2, 1, 5])("undamped sphere–sphere impact at %s m/s: Johnson's contact time and maximum overlap", (speed) => {
+    const eStar = effectiveModulusSameMaterialPa(youngsModulusPa, poissonRatio);
+    const rStar = effectiveRadiusM(radiusM, radiusM);
+    const mStar = reducedMassKg(massKg, massKg);
+    const kH = hertzStiffnessFromModulus(eStar, rStar);
+    const expectedTime = hertzContactDurationS(kH, mStar, speed);
+    const result = simulate(scenario(pair(speed), materialContact(), "velocity-verlet", expectedTime / 3000, 4 * expectedTime + 1e-4 / speed));
+    // Johnson 1985, Contact Mechanics, §11.1: t_c = 2.87(m*²/(R*E*²v))^{1/5}, δ_max = (15m*v²/(16E*√R*))^{2/5}.
+    expect(relativeError(result.metrics.contactDurationS!, expectedTime)).toBeLessThan(1e-4);
+    expect(relativeError(result.metrics.maxOverlapFraction * radiusM, hertzMaxOverlapM(kH, mStar, speed))).toBeLessThan(1e-5);
+    expect(result.metrics.effectiveRestitution!).toBeCloseTo(1, 5); // elastic
+  });
+
+  it("sphere against a wall of the same material uses R* = R and m* = m", () => {
+    const speed = 0.8;
+    const kH = hertzStiffnessFromModulus(effectiveModulusSameMaterialPa(youngsModulusPa, poissonRatio), radiusM);
+    const expectedTime = hertzContactDurationS(kH, massKg, speed);
+    const scene: Scene = { kind: "wall", massKg, radiusM, speedMPerS: speed, angleDeg: 0, gapM: 1e-4 };
+    const result = simulate(scenario(scene, materialContact(), "velocity-verlet", expectedTime / 3000, 4 * expectedTime + 1e-4 / speed));
+    // Johnson 1985, §11.1 with the wall as the second body.
+    expect(relativeError(result.metrics.contactDurationS!, expectedTime)).toBeLessThan(1e-4);
+    expect(relativeError(result.metrics.maxOverlapFraction * radiusM, hertzMaxOverlapM(kH, massKg, speed))).toBeLessThan(1e-5);
+  });
+
+  it("Tsuji-type damping: restitution is independent of impact speed and equals the target", () => {
+    const target = 0.6;
+    const measured = [0.1, 1, 10].map((speed) => {
+      const kH = hertzStiffnessFromModulus(effectiveModulusSameMaterialPa(youngsModulusPa, poissonRatio), effectiveRadiusM(radiusM, radiusM));
+      const time = hertzContactDurationS(kH, massKg / 2, speed);
+      return simulate(scenario(pair(speed), materialContact({ kind: "restitution", value: target }), "velocity-verlet", time / 3000, 4 * time + 1e-4 / speed)).metrics.effectiveRestitution!;
+    });
+    // Tsuji, Tanaka & Ishida 1992 (damping ∝ δ^{1/4} makes e speed-independent) — common practice in DEM; target from the conversion.
+    for (const e of measured) expect(Math.abs(e - target)).toBeLessThan(2e-4);
+  });
+
+  it("the dimensionless conversion round-trips and decreases monotonically", () => {
+    let previous = 1;
+    for (const beta of [0.05, 0.2, 0.5, 1, 2, 4]) {
+      const e = hertzRestitutionForDimensionlessDamping(beta);
+      expect(e).toBeLessThan(previous);
+      previous = e;
+      expect(hertzDimensionlessDampingForRestitution(e)).toBeCloseTo(beta, 8);
+    }
+  });
+});
