@@ -1,0 +1,119 @@
+/**
+ * Categorical map styles: the verdict palette and glyphs, and the comparison categories of a
+ * verdict difference map (A vs B).
+ *
+ * The palette is Kickdrift's own. Lightness falls monotonically with severity (CIE L* 91, 79, 63,
+ * 44, 25 for stable → exploded), so the map reads in greyscale and for every kind of colour
+ * vision; hue adds a second cue, and each category has its own glyph for when colour is not
+ * available at all. Colours were chosen in CIE LCh and converted to sRGB with lib/charts/color.ts.
+ */
+import type { Verdict } from "../physics/types";
+
+export type GlyphName = "dot" | "slash" | "backslash" | "ring" | "chevron" | "cross" | "bar" | "none";
+
+export interface CategoryStyle {
+  /** Stable key (verdict name, comparison name). */
+  key: string;
+  label: string;
+  /** #rrggbb fill. */
+  colour: string;
+  glyph: GlyphName;
+}
+
+/** Verdicts from least to most severe (the reverse of the engine's precedence list). */
+export const VERDICTS_BY_SEVERITY: readonly Verdict[] = ["stable", "energy-drift", "deep-overlap", "tunneled", "exploded"];
+
+export const VERDICT_STYLES: Record<Verdict, CategoryStyle> = {
+  stable: { key: "stable", label: "Stable", colour: "#b9f1dd", glyph: "dot" },
+  "energy-drift": { key: "energy-drift", label: "Energy drift", colour: "#e7bf4a", glyph: "slash" },
+  "deep-overlap": { key: "deep-overlap", label: "Deep overlap", colour: "#e57d3e", glyph: "ring" },
+  tunneled: { key: "tunneled", label: "Tunneled", colour: "#725aaa", glyph: "chevron" },
+  exploded: { key: "exploded", label: "Exploded", colour: "#72182a", glyph: "cross" },
+};
+
+/** The verdict categories in severity order, as the map's category list (code i ↔ entry i). */
+export const VERDICT_CATEGORIES: readonly CategoryStyle[] = VERDICTS_BY_SEVERITY.map((v) => VERDICT_STYLES[v]);
+
+/** Category code of a verdict in VERDICT_CATEGORIES. */
+export function verdictCode(verdict: Verdict): number {
+  const code = VERDICTS_BY_SEVERITY.indexOf(verdict);
+  if (code < 0) throw new Error(`unknown verdict ${JSON.stringify(verdict)}`);
+  return code;
+}
+
+/** Code for a cell that has no category yet (not computed). */
+export const PENDING_CODE = 255;
+
+/** Verdicts (null = not computed yet) → category codes. */
+export function verdictCodes(verdicts: readonly (Verdict | null | undefined)[]): Uint8Array {
+  const codes = new Uint8Array(verdicts.length);
+  for (let i = 0; i < verdicts.length; i++) {
+    const v = verdicts[i];
+    codes[i] = v ? verdictCode(v) : PENDING_CODE;
+  }
+  return codes;
+}
+
+export type ComparisonCategory = "both-pass" | "only-a-fails" | "only-b-fails" | "both-fail";
+
+export const COMPARISON_CATEGORIES: readonly ComparisonCategory[] = ["both-pass", "only-a-fails", "only-b-fails", "both-fail"];
+
+/** Styles of the comparison map; lightness falls from "both pass" to "both fail" (L* 93, 72, 52, 27). */
+export function comparisonStyles(labelA: string, labelB: string): CategoryStyle[] {
+  return [
+    { key: "both-pass", label: "Same: both stable", colour: "#eeebe3", glyph: "none" },
+    { key: "only-a-fails", label: `Only ${labelA} fails`, colour: "#e1a463", glyph: "backslash" },
+    { key: "only-b-fails", label: `Only ${labelB} fails`, colour: "#2883b5", glyph: "slash" },
+    { key: "both-fail", label: "Both fail", colour: "#5c3057", glyph: "cross" },
+  ];
+}
+
+/** A cell fails when its verdict is anything but stable. */
+export function compareVerdicts(a: Verdict, b: Verdict): ComparisonCategory {
+  const aFails = a !== "stable";
+  const bFails = b !== "stable";
+  if (aFails && bFails) return "both-fail";
+  if (aFails) return "only-a-fails";
+  if (bFails) return "only-b-fails";
+  return "both-pass";
+}
+
+/** Cell-wise comparison codes (index into COMPARISON_CATEGORIES); pending when either side is. */
+export function comparisonCodes(a: readonly (Verdict | null | undefined)[], b: readonly (Verdict | null | undefined)[]): Uint8Array {
+  if (a.length !== b.length) throw new Error(`maps A and B must have the same number of cells (A has ${a.length}, B has ${b.length})`);
+  const codes = new Uint8Array(a.length);
+  for (let i = 0; i < a.length; i++) {
+    const va = a[i];
+    const vb = b[i];
+    codes[i] = va && vb ? COMPARISON_CATEGORIES.indexOf(compareVerdicts(va, vb)) : PENDING_CODE;
+  }
+  return codes;
+}
+
+/**
+ * B − A per cell; NaN where either is NaN (not computed), null where either has no value.
+ */
+export function differenceValues(
+  a: ArrayLike<number | null>,
+  b: ArrayLike<number | null>,
+): (number | null)[] {
+  if (a.length !== b.length) throw new Error(`maps A and B must have the same number of cells (A has ${a.length}, B has ${b.length})`);
+  const out: (number | null)[] = new Array(a.length);
+  for (let i = 0; i < a.length; i++) {
+    const va = a[i];
+    const vb = b[i];
+    if (va === null || vb === null) out[i] = Number.isNaN(va as number) || Number.isNaN(vb as number) ? Number.NaN : null;
+    else out[i] = vb - va;
+  }
+  return out;
+}
+
+/** Number of cells per category code (pending cells are not counted). */
+export function countCodes(codes: ArrayLike<number>, categoryCount: number): number[] {
+  const counts = new Array<number>(categoryCount).fill(0);
+  for (let i = 0; i < codes.length; i++) {
+    const c = codes[i];
+    if (c < categoryCount) counts[c]++;
+  }
+  return counts;
+}
