@@ -9,7 +9,7 @@ import * as meRoute from "@/app/api/v1/me/route";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeUser, uniqueEmail } from "../helpers/factories";
 import { call } from "../helpers/http";
-import { passwordSignIn } from "../helpers/next-auth";
+import { nextAuth, passwordSignIn } from "../helpers/next-auth";
 
 beforeAll(async () => {
   await useFreshDb();
@@ -30,6 +30,16 @@ describe("credentials sign-in", () => {
     const me = await call(meRoute.GET, { path: "/api/v1/me", cookie: result.cookie });
     expect(me.status).toBe(200);
     expect((me.body as { user: { id: string; isAdmin: boolean } }).user).toMatchObject({ id: user.id, isAdmin: false });
+    // next-auth's own session endpoint carries what the contract lists.
+    const session = await nextAuth(["session"], { cookie: result.cookie });
+    expect(await session.json()).toMatchObject({ user: { id: user.id, email: user.email, name: user.name, isAdmin: false } });
+  });
+
+  it("puts isAdmin in the session of a platform admin", async () => {
+    const admin = await makeUser({ password: PASSWORD, isAdmin: true });
+    const result = await passwordSignIn(admin.email, PASSWORD, "203.0.113.8");
+    const session = await nextAuth(["session"], { cookie: result.cookie });
+    expect(((await session.json()) as { user: { isAdmin: boolean } }).user.isAdmin).toBe(true);
   });
 
   it("gives the same generic message for a wrong password and an unknown account", async () => {
