@@ -46,13 +46,13 @@ export interface CostConstants {
  * the note when the engine changes.
  */
 export const CALIBRATION: CostConstants = {
-  cellOverheadNs: 4_000,
-  pairContactStepNs: 60,
-  wallContactStepNs: 50,
-  rowStepNs: 40,
-  rowBodyStepNs: 20,
-  boxStepNs: 200,
-  boxBodyStepNs: 60,
+  cellOverheadNs: 24_000,
+  pairContactStepNs: 435,
+  wallContactStepNs: 175,
+  rowStepNs: 0,
+  rowBodyStepNs: 390,
+  boxStepNs: 92_000,
+  boxBodyStepNs: 455,
   chunkOverheadNs: 200_000,
 };
 

@@ -18,7 +18,7 @@
 import type { Scenario, SceneKind } from "../physics/types";
 import { canonicalJson, hash32 } from "./canonical";
 import { findParameter } from "./parameters";
-import { applyAxisValues, axisValues, isIntegerParameter, type AxisSpec, type SweepSpec } from "./spec";
+import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter, type AxisSpec, type SweepSpec } from "./spec";
 
 export interface ExpandedAxis {
   parameter: string;
@@ -80,17 +80,52 @@ export function deriveCellSeed(specSeed: number, scenario: Scenario): number {
   return hash32(canonicalJson(scenario.scene), specSeed);
 }
 
+/** What expanding many cells of one spec can share: setters, application order and the seeds of scenes already seen. */
+interface Expansion {
+  spec: SweepSpec;
+  setters: ((scenario: Scenario, value: number | string) => void)[];
+  order: number[];
+  /** Axes that change the scene (and so the seed). */
+  sceneAxes: number[];
+  seedByScene: Map<number, number>;
+}
+
+const expansions = new WeakMap<readonly ExpandedAxis[], Expansion>();
+
+function expansionFor(spec: SweepSpec, axes: readonly ExpandedAxis[]): Expansion {
+  const known = expansions.get(axes);
+  if (known && known.spec === spec) return known;
+  const expansion: Expansion = {
+    spec,
+    setters: spec.axes.map((axis: AxisSpec) => fieldSetter(axis.parameter)),
+    order: applicationOrder(spec.axes),
+    sceneAxes: spec.axes.flatMap((axis: AxisSpec, i: number) => (axis.parameter.startsWith("scene.") ? [i] : [])),
+    seedByScene: new Map(),
+  };
+  expansions.set(axes, expansion);
+  return expansion;
+}
+
 /** One cell of the grid, built on demand (no need to hold a 262,144-cell array). */
 export function cellAt(spec: SweepSpec, axes: readonly ExpandedAxis[], index: number): SweepCell {
   const total = cellCount(axes);
   if (!Number.isInteger(index) || index < 0 || index >= total) {
     throw new RangeError(`cell index ${index} is outside 0..${total - 1}`);
   }
+  const expansion = expansionFor(spec, axes);
   const positions = axisPositions(axes, index);
   const values = positions.map((position, i) => axes[i].values[position]);
-  const applied = applyAxisValues(spec.scenario, spec.axes, values);
-  // A new object: applyAxisValues returns the base itself when there are no axes.
-  const scenario: Scenario = { ...applied, seed: deriveCellSeed(spec.scenario.seed, applied) };
+  const scenario = copyScenario(spec.scenario);
+  for (const i of expansion.order) expansion.setters[i](scenario, values[i]);
+  // Cells with the same scene share a seed: hash each distinct scene once.
+  let sceneKey = 0;
+  for (const i of expansion.sceneAxes) sceneKey = sceneKey * axes[i].values.length + positions[i];
+  let seed = expansion.seedByScene.get(sceneKey);
+  if (seed === undefined) {
+    seed = deriveCellSeed(spec.scenario.seed, scenario);
+    expansion.seedByScene.set(sceneKey, seed);
+  }
+  scenario.seed = seed;
   return { index, axisValues: values, scenario };
 }
 

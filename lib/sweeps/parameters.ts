@@ -31,12 +31,6 @@ export const SPEC_LIMITS = {
   maxSubsteps: 1_000,
   /** Choices listed on one axis. */
   maxListValues: 64,
-  /**
-   * Disc area / box area for the box scene. Random placement without overlap
-   * jams near 0.547 for discs (Feder 1980, J. Theor. Biol. 87, random sequential
-   * adsorption; value from memory), so a denser box may never finish placing.
-   */
-  maxBoxAreaFraction: 0.5,
   /** Characters of the optional sweep name. */
   maxNameLength: 120,
 } as const;

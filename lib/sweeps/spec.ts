@@ -10,6 +10,8 @@
  */
 import { z } from "zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
+import { boxSceneProblem } from "../physics/scenes";
+import { totalSubsteps } from "../physics/simulate";
 import type { Scenario, SceneKind, Tolerances } from "../physics/types";
 import {
   CHOICE_PARAMETERS,
@@ -197,7 +199,7 @@ export type AxisSpec = z.infer<typeof axisSchema>;
 /**
  * The values of one axis, in order. Range axes: `count` points from `from` to
  * `to`, both ends exact; linear points are from·(1 − t) + to·t, log points
- * from·(to/from)^t, with t = i / (count − 1). Integer parameters (substeps,
+ * 10^(log10(from)·(1 − t) + log10(to)·t), with t = i / (count − 1). Integer parameters (substeps,
  * scene.count) round each point to the nearest integer.
  * List axes: the values as written.
  */
@@ -214,7 +216,8 @@ export function axisValues(axis: AxisSpec, integer = false): (number | string)[]
     else if (i === last) value = to;
     else {
       const t = i / last;
-      value = axis.spacing === "log" ? from * Math.pow(to / from, t) : from * (1 - t) + to * t;
+      // Log points interpolate the decade exponent, so decade ends give round interior points (1e3 → 1e6: 1e4, 1e5).
+      value = axis.spacing === "log" ? Math.pow(10, Math.log10(from) * (1 - t) + Math.log10(to) * t) : from * (1 - t) + to * t;
     }
     values[i] = integer ? Math.round(value) : value;
   }
@@ -230,46 +233,53 @@ export function isIntegerParameter(path: string, sceneKind: SceneKind): boolean 
 // ---------------------------------------------------------------------------
 // Applying axis values to a scenario
 
-/** A copy of the scenario with one axis value applied (scene.massRatio sets massBKg from massAKg). */
-export function applyAxisValue(scenario: Scenario, path: string, value: number | string): Scenario {
-  const next: Scenario = {
-    ...scenario,
-    scene: { ...scenario.scene },
-    contact: {
-      ...scenario.contact,
-      damping: { ...scenario.contact.damping },
-      material: scenario.contact.material ? { ...scenario.contact.material } : undefined,
-    },
-    tolerances: { ...scenario.tolerances },
-  };
-  if (next.contact.material === undefined) delete next.contact.material;
-  if (path === "integrator") next.integrator = value as Scenario["integrator"];
-  else if (path === "contact.model") next.contact.model = value as Scenario["contact"]["model"];
-  else if (path === "contact.damping.coefficient" || path === "contact.damping.restitution") {
-    (next.contact.damping as { value: number }).value = value as number;
-  } else if (path === "scene.massRatio") {
-    if (next.scene.kind === "pair") next.scene.massBKg = next.scene.massAKg * (value as number);
-  } else {
-    const keys = path.split(".");
-    let node = next as unknown as Record<string, unknown>;
-    for (let i = 0; i < keys.length - 1; i++) node = node[keys[i]] as Record<string, unknown>;
-    node[keys[keys.length - 1]] = value;
-  }
-  return next;
+/** A copy of the scenario deep enough that setting any sweepable field leaves the original alone. */
+export function copyScenario(scenario: Scenario): Scenario {
+  const contact: Scenario["contact"] = { ...scenario.contact, damping: { ...scenario.contact.damping } };
+  if (scenario.contact.material) contact.material = { ...scenario.contact.material };
+  return { ...scenario, scene: { ...scenario.scene }, contact, tolerances: { ...scenario.tolerances } };
 }
 
+type FieldSetter = (scenario: Scenario, value: number | string) => void;
+
 /**
- * Apply one value per axis, in an order that makes derived parameters see their
- * bases: scene.massRatio goes last so it multiplies the cell's own massAKg.
+ * A setter that writes one axis value into a scenario copy in place
+ * (scene.massRatio sets massBKg from the copy's massAKg, so apply it last).
  */
-export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
-  let scenario = base;
-  let ratioValue: number | undefined;
-  for (let i = 0; i < axes.length; i++) {
-    if (axes[i].parameter === "scene.massRatio") ratioValue = values[i] as number;
-    else scenario = applyAxisValue(scenario, axes[i].parameter, values[i]);
+export function fieldSetter(path: string): FieldSetter {
+  switch (path) {
+    case "integrator":
+      return (scenario, value) => void (scenario.integrator = value as Scenario["integrator"]);
+    case "contact.model":
+      return (scenario, value) => void (scenario.contact.model = value as Scenario["contact"]["model"]);
+    case "contact.damping.coefficient":
+    case "contact.damping.restitution":
+      return (scenario, value) => void ((scenario.contact.damping as { value: number }).value = value as number);
+    case "scene.massRatio":
+      return (scenario, value) => {
+        if (scenario.scene.kind === "pair") scenario.scene.massBKg = scenario.scene.massAKg * (value as number);
+      };
   }
-  if (ratioValue !== undefined) scenario = applyAxisValue(scenario, "scene.massRatio", ratioValue);
+  const keys = path.split(".");
+  const last = keys[keys.length - 1];
+  const parents = keys.slice(0, -1);
+  return (scenario, value) => {
+    let node = scenario as unknown as Record<string, unknown>;
+    for (const key of parents) node = node[key] as Record<string, unknown>;
+    node[last] = value;
+  };
+}
+
+/** Axes in the order their values must be applied: scene.massRatio last, so it sees the cell's own massAKg. */
+export function applicationOrder(axes: readonly AxisSpec[]): number[] {
+  const order = axes.map((_, i) => i);
+  return [...order.filter((i) => axes[i].parameter !== "scene.massRatio"), ...order.filter((i) => axes[i].parameter === "scene.massRatio")];
+}
+
+/** A copy of the base scenario with one value per axis applied. */
+export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
+  const scenario = copyScenario(base);
+  for (const i of applicationOrder(axes)) fieldSetter(axes[i].parameter)(scenario, values[i]);
   return scenario;
 }
 
@@ -286,10 +296,9 @@ interface ScenarioProblem {
   severity: number;
 }
 
-/** Integrator steps of one cell: durationS / (dtS / substeps). */
+/** Integrator steps of one cell, ⌈durationS / (dtS / substeps)⌉: the engine's own count. */
 export function stepsPerCell(scenario: Pick<Scenario, "durationS" | "dtS" | "substeps">): number {
-  // A tiny allowance so that e.g. 0.3 s / 0.1 s counts as 3 steps, not 4.
-  return Math.max(1, Math.ceil((scenario.durationS * scenario.substeps) / scenario.dtS - 1e-9));
+  return totalSubsteps(scenario);
 }
 
 /** Discs simulated in a scene (the row counts its striker). */
@@ -383,22 +392,16 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
   }
 
   if (scene.kind === "box") {
-    const diameterM = 2 * scene.radiusM;
-    if (diameterM >= scene.widthM || diameterM >= scene.heightM) {
+    // The engine's own layout rule (one disc per grid cell wider than a diameter), so a spec
+    // accepted here is one the engine can lay out.
+    const layoutProblem = boxSceneProblem(scene);
+    if (layoutProblem) {
+      const areaFraction = (scene.count * Math.PI * scene.radiusM * scene.radiusM) / (scene.widthM * scene.heightM);
       problems.push({
-        check: "box-fit",
-        paths: ["scene.radiusM", "scene.widthM", "scene.heightM"],
-        message: `a disc of radius ${scene.radiusM} m does not fit in a ${scene.widthM} m × ${scene.heightM} m box`,
-        severity: diameterM / Math.min(scene.widthM, scene.heightM),
-      });
-    }
-    const areaFraction = (scene.count * Math.PI * scene.radiusM * scene.radiusM) / (scene.widthM * scene.heightM);
-    if (areaFraction > SPEC_LIMITS.maxBoxAreaFraction) {
-      problems.push({
-        check: "box-packing",
+        check: "box-layout",
         paths: ["scene.count", "scene.radiusM", "scene.widthM", "scene.heightM"],
-        message: `${formatLimit(scene.count)} discs of radius ${scene.radiusM} m cover ${(areaFraction * 100).toPrecision(3)} % of the box; the limit is ${SPEC_LIMITS.maxBoxAreaFraction * 100} %`,
-        severity: areaFraction / SPEC_LIMITS.maxBoxAreaFraction,
+        message: layoutProblem,
+        severity: areaFraction,
       });
     }
   }

@@ -74,6 +74,11 @@ describe("grid expansion", () => {
     );
   });
 
+  it("log spacing over whole decades gives the round powers of ten between them", () => {
+    // 10^(3·(1 − t) + 6·t) at t = 1/3, 2/3 is 10^4, 10^5 exactly (definition of log spacing; IEEE 754 pow is exact for these).
+    expect(axisValues({ parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e6, count: 4 })).toEqual([1e3, 1e4, 1e5, 1e6]);
+  });
+
   it("integer parameters are rounded: scene.count 250 → 4000 on a log axis gives 250, 1000, 4000", () => {
     const input = clone(ballPitBoxSpec()) as any;
     input.scenario.scene.widthM = 20;

@@ -161,8 +161,10 @@ describe("sweep spec: rejected input names the field", () => {
   it("a box too full to place its discs", () => {
     const spec = clone(ballPitBoxSpec()) as any;
     spec.axes = [{ parameter: "scene.radiusM", spacing: "linear", from: 0.01, to: 0.1, count: 4 }];
-    // 20 discs of 0.1 m in 1 m²: 20·π·0.01 = 62.8 % > 50 %.
-    expect(issuesOf(spec)).toEqual([{ field: "axes.0", message: expect.stringMatching(/62\.8 %.*50 %/) }]);
+    // 20 discs of radius 0.1 m need cells wider than 0.2 m: a 1 m box has at most 4 × 4 = 16 of them.
+    expect(issuesOf(spec)).toEqual([{ field: "axes.0", message: expect.stringMatching(/scene.radiusM = 0.1: 20 discs of radius 0.1 m do not fit/) }]);
+    spec.axes[0].to = 0.09; // 5 × 4 cells of 0.2 m × 0.25 m hold 20 discs of 0.18 m diameter
+    expect(parseSweepSpec(spec).ok).toBe(true);
   });
 
   it("a Hertz contact with both a stiffness and a material, and a linear one without stiffness", () => {
