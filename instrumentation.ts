@@ -1,33 +1,9 @@
-// Runs once per Next.js server process: migrations, the auth secret, the local mail fake (when no
-// SMTP_URL) and, with KICKDRIFT_DEMO=1, the demo seed. Safe if Next calls register() twice.
-const startupKey = Symbol.for("kickdrift.startup");
-
+// Runs once per Next.js server process. The Node-only work lives in db/startup.ts behind this
+// runtime check (written inline so the Edge build drops the import entirely); it is idempotent,
+// so a second register() call does nothing new.
 export async function register(): Promise<void> {
-  if (process.env.NEXT_RUNTIME !== "nodejs") return;
-  const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
-  store[startupKey] ??= startServerServices();
-  await store[startupKey];
-}
-
-async function startServerServices(): Promise<void> {
-  const { getDb } = await import("./db/client");
-  const { getAuthSecret, appBaseUrl } = await import("./lib/auth/config");
-  const db = await getDb();
-  getAuthSecret();
-  if (!process.env.SMTP_URL) {
-    const { startMailFake } = await import("./lib/fakes/smtp-fake");
-    try {
-      const fake = await startMailFake();
-      console.log(`[kickdrift] local mail fake on smtp://${fake.host}:${fake.port}; messages at ${appBaseUrl()}/mail`);
-    } catch (error) {
-      // Another process holds the port: mail sent from here then goes to that process's fake.
-      console.error(`[kickdrift] could not start the local mail fake: ${(error as Error).message}`);
-    }
-  }
-  if (process.env.KICKDRIFT_DEMO === "1") {
-    const { demoSignInText, seedDemoIfEmpty } = await import("./db/seed");
-    const { seeded } = await seedDemoIfEmpty(db);
-    console.log(`[kickdrift] ${seeded ? "demo data seeded" : "database not empty; demo seed skipped"}`);
-    console.log(demoSignInText(appBaseUrl()));
+  if (process.env.NEXT_RUNTIME === "nodejs") {
+    const { startServerServices } = await import("./db/startup");
+    await startServerServices();
   }
 }

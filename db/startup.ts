@@ -1,0 +1,36 @@
+// Node-only start-up work for a server process, loaded from instrumentation.ts. Kept in its own
+// module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
+const startupKey = Symbol.for("kickdrift.startup");
+
+/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
+export function startServerServices(): Promise<void> {
+  const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
+  store[startupKey] ??= run().catch((error: unknown) => {
+    store[startupKey] = undefined;
+    throw error;
+  });
+  return store[startupKey];
+}
+
+async function run(): Promise<void> {
+  const { getDb } = await import("./client");
+  const { getAuthSecret, appBaseUrl } = await import("../lib/auth/config");
+  const db = await getDb();
+  getAuthSecret();
+  if (!process.env.SMTP_URL) {
+    const { startMailFake } = await import("../lib/fakes/smtp-fake");
+    try {
+      const fake = await startMailFake();
+      console.log(`[kickdrift] local mail fake on smtp://${fake.host}:${fake.port}; messages at ${appBaseUrl()}/mail`);
+    } catch (error) {
+      // Another process holds the port: mail sent from here then goes to that process's fake.
+      console.error(`[kickdrift] could not start the local mail fake: ${(error as Error).message}`);
+    }
+  }
+  if (process.env.KICKDRIFT_DEMO === "1") {
+    const { demoSignInText, seedDemoIfEmpty } = await import("./seed");
+    const { seeded } = await seedDemoIfEmpty(db);
+    console.log(`[kickdrift] ${seeded ? "demo data seeded" : "database not empty; demo seed skipped"}`);
+    console.log(demoSignInText(appBaseUrl()));
+  }
+}
