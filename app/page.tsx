@@ -86,8 +86,7 @@ export default function LandingPage() {
           <p className="text-ink-muted">
             Symplectic Euler and velocity Verlet both keep a linear spring bounded while ω·dt stays under 2; past that line the step amplifies
             every oscillation and the contact explodes. Near the line they stay bounded but swing energy in and out, which players see as jitter or
-            dead bounces. Velocity Verlet is second order, so its energy error is smaller at the same step; it costs an extra force evaluation
-            per step in some set-ups.
+            dead bounces. Velocity Verlet is second order, so at the same step its energy error is usually the smaller of the two.
           </p>
           <p className="text-ink-muted">
             Speed adds a separate failure: when a body moves further in one step than the collider is thick, no spring ever engages and it

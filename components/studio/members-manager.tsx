@@ -9,7 +9,7 @@ import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { queryKeys, studioApiPath, useInvites, useMembers } from "@/lib/ui/queries";
 import { ROLE_DESCRIPTIONS, STUDIO_ROLES, type Invite, type Member, type StudioRole } from "@/lib/ui/types";
 
-export function MembersManager({ studioId, currentUserId }: { studioId: string; currentUserId: string }) {
+export function MembersManager({ studioId, studioName, currentUserId }: { studioId: string; studioName: string; currentUserId: string }) {
   const members = useMembers(studioId);
   const invites = useInvites(studioId);
   const queryClient = useQueryClient();
@@ -53,10 +53,10 @@ export function MembersManager({ studioId, currentUserId }: { studioId: string; 
   });
 
   return (
-    <StudioShell studioId={studioId} role="owner">
+    <StudioShell studioId={studioId} studioName={studioName} role="owner">
       <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
         <div className="space-y-6">
-          {actionError ? <Alert>{actionError}</Alert> : null}
+          {actionError ? <div data-testid="member-action-error"><Alert>{actionError}</Alert></div> : null}
           {notice ? <Alert tone="ok">{notice}</Alert> : null}
           <Card title="Members">
             {members.isPending ? (
@@ -66,14 +66,11 @@ export function MembersManager({ studioId, currentUserId }: { studioId: string; 
             ) : (
               <MembersTable
                 members={members.data}
+                roleCell={(member) => (
+                  <RolePicker member={member} busy={changeRole.isPending || removeMember.isPending} onChange={(role) => changeRole.mutate({ userId: member.userId, role })} />
+                )}
                 actions={(member) => (
-                  <MemberActions
-                    member={member}
-                    isSelf={member.userId === currentUserId}
-                    busy={changeRole.isPending || removeMember.isPending}
-                    onChangeRole={(role) => changeRole.mutate({ userId: member.userId, role })}
-                    onRemove={() => removeMember.mutate(member)}
-                  />
+                  <RemoveMember member={member} isSelf={member.userId === currentUserId} busy={changeRole.isPending || removeMember.isPending} onRemove={() => removeMember.mutate(member)} />
                 )}
               />
             )}
@@ -105,23 +102,10 @@ export function MembersManager({ studioId, currentUserId }: { studioId: string; 
   );
 }
 
-function MemberActions({
-  member,
-  isSelf,
-  busy,
-  onChangeRole,
-  onRemove,
-}: {
-  member: Member;
-  isSelf: boolean;
-  busy: boolean;
-  onChangeRole: (role: StudioRole) => void;
-  onRemove: () => void;
-}) {
-  const [confirming, setConfirming] = useState(false);
+function RolePicker({ member, busy, onChange }: { member: Member; busy: boolean; onChange: (role: StudioRole) => void }) {
   const selectId = `role-${member.userId}`;
   return (
-    <div className="flex items-center justify-end gap-2">
+    <>
       <label htmlFor={selectId} className="sr-only">
         Role of {member.email}
       </label>
@@ -129,7 +113,7 @@ function MemberActions({
         id={selectId}
         value={member.role}
         disabled={busy}
-        onChange={(event) => onChangeRole(event.target.value as StudioRole)}
+        onChange={(event) => onChange(event.target.value as StudioRole)}
         className="rounded-md border border-line bg-surface px-2 py-1 text-sm"
       >
         {STUDIO_ROLES.map((role) => (
@@ -138,28 +122,35 @@ function MemberActions({
           </option>
         ))}
       </select>
-      {confirming ? (
-        <>
-          <Button
-            variant="danger"
-            className="py-1"
-            disabled={busy}
-            onClick={() => {
-              setConfirming(false);
-              onRemove();
-            }}
-          >
-            {isSelf ? "Leave studio" : "Confirm removal"}
-          </Button>
-          <Button variant="ghost" className="py-1" onClick={() => setConfirming(false)}>
-            Cancel
-          </Button>
-        </>
-      ) : (
-        <Button variant="ghost" className="py-1" disabled={busy} onClick={() => setConfirming(true)} aria-label={`Remove ${member.email}`}>
-          Remove
-        </Button>
-      )}
+    </>
+  );
+}
+
+function RemoveMember({ member, isSelf, busy, onRemove }: { member: Member; isSelf: boolean; busy: boolean; onRemove: () => void }) {
+  const [confirming, setConfirming] = useState(false);
+  if (!confirming) {
+    return (
+      <Button variant="ghost" className="py-1" disabled={busy} onClick={() => setConfirming(true)} aria-label={`Remove ${member.email}`}>
+        Remove
+      </Button>
+    );
+  }
+  return (
+    <div className="flex items-center justify-end gap-2">
+      <Button
+        variant="danger"
+        className="py-1"
+        disabled={busy}
+        onClick={() => {
+          setConfirming(false);
+          onRemove();
+        }}
+      >
+        {isSelf ? "Leave studio" : "Confirm removal"}
+      </Button>
+      <Button variant="ghost" className="py-1" onClick={() => setConfirming(false)}>
+        Cancel
+      </Button>
     </div>
   );
 }

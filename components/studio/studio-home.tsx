@@ -16,7 +16,7 @@ function ownerOnlyNotice(error: unknown, what: string) {
   return <Alert>{errorMessage(error)}</Alert>;
 }
 
-export function StudioHome({ studioId, role }: { studioId: string; role: StudioRole | null }) {
+export function StudioHome({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole | null }) {
   const studio = useStudio(studioId);
   const members = useMembers(studioId);
   const isOwner = role === "owner";
@@ -25,7 +25,7 @@ export function StudioHome({ studioId, role }: { studioId: string; role: StudioR
   const pendingInvites = invites.data ?? [];
 
   return (
-    <StudioShell studioId={studioId} role={role}>
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
       <div className="grid gap-6 lg:grid-cols-3">
         <Card title="Overview" className="lg:col-span-1">
           {studio.isPending ? (

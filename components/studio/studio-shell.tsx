@@ -8,7 +8,8 @@ import { useStudio } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 
 /** Heading and tabs shared by a studio's pages. Owner-only tabs are shown to owners only. */
-export function StudioShell({ studioId, role, children }: { studioId: string; role: StudioRole | null; children: ReactNode }) {
+export function StudioShell({ studioId, studioName, role, children }: { studioId: string; studioName: string; role: StudioRole | null; children: ReactNode }) {
+  // The server guard already loaded the name; the query keeps it current after a rename.
   const studio = useStudio(studioId);
   const pathname = usePathname();
   const base = `/studios/${studioId}`;
@@ -24,7 +25,7 @@ export function StudioShell({ studioId, role, children }: { studioId: string; ro
             Studios
           </Link>
           <h1 className="text-3xl font-bold tracking-tight" data-testid="studio-name">
-            {studio.data?.studio.name ?? "\u00a0"}
+            {studio.data?.studio.name ?? studioName}
           </h1>
         </div>
         {role ? (

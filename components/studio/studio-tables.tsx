@@ -10,7 +10,16 @@ import type { ApiToken, Invite, Member } from "@/lib/ui/types";
 const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
 const td = "px-3 py-2.5 align-middle";
 
-export function MembersTable({ members, actions }: { members: Member[]; actions?: (member: Member) => ReactNode }) {
+export function MembersTable({
+  members,
+  roleCell,
+  actions,
+}: {
+  members: Member[];
+  /** Replaces the role badge, e.g. with a role picker on the owner's page. */
+  roleCell?: (member: Member) => ReactNode;
+  actions?: (member: Member) => ReactNode;
+}) {
   return (
     <div className="overflow-x-auto">
       <table className="w-full text-sm" data-testid="members-table">
@@ -29,9 +38,9 @@ export function MembersTable({ members, actions }: { members: Member[]; actions?
               <td className={`${td} font-medium`}>{member.name || "—"}</td>
               <td className={`${td} font-mono text-xs`}>{member.email}</td>
               <td className={td}>
-                {actions ? member.role : <RoleBadge role={member.role} />}
+                {roleCell ? roleCell(member) : <RoleBadge role={member.role} />}
               </td>
-              <td className={`${td} text-ink-muted`}>{formatDate(member.joinedAt)}</td>
+              <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDate(member.joinedAt)}</td>
               {actions ? <td className={`${td} text-right`}>{actions(member)}</td> : null}
             </tr>
           ))}
@@ -60,7 +69,7 @@ export function InvitesTable({ invites, actions }: { invites: Invite[]; actions?
               <td className={td}>
                 <RoleBadge role={invite.role} />
               </td>
-              <td className={`${td} text-ink-muted`}>{formatDateTime(invite.expiresAt)}</td>
+              <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDateTime(invite.expiresAt)}</td>
               {actions ? <td className={`${td} text-right`}>{actions(invite)}</td> : null}
             </tr>
           ))}
@@ -91,8 +100,8 @@ export function TokensTable({ tokens, actions }: { tokens: ApiToken[]; actions?:
               <td className={`${td} font-medium`}>{token.name}</td>
               <td className={`${td} font-mono text-xs`}>{token.scopes.join(", ")}</td>
               <td className={`${td} font-mono text-xs`}>{token.prefix}…</td>
-              <td className={td}>{formatDate(token.createdAt)}</td>
-              <td className={td}>{token.lastUsedAt ? formatDateTime(token.lastUsedAt) : "never"}</td>
+              <td className={`${td} whitespace-nowrap`}>{formatDate(token.createdAt)}</td>
+              <td className={`${td} whitespace-nowrap`}>{token.lastUsedAt ? formatDateTime(token.lastUsedAt) : "never"}</td>
               <td className={td}>{token.revokedAt ? `revoked ${formatDate(token.revokedAt)}` : "active"}</td>
               {actions ? <td className={`${td} text-right`}>{token.revokedAt ? null : actions(token)}</td> : null}
             </tr>

@@ -13,7 +13,7 @@ import type { ApiToken } from "@/lib/ui/types";
 type Scope = "read" | "write";
 type CreatedToken = { token: ApiToken; secret: string };
 
-export function TokensManager({ studioId }: { studioId: string }) {
+export function TokensManager({ studioId, studioName }: { studioId: string; studioName: string }) {
   const tokens = useTokens(studioId);
   const queryClient = useQueryClient();
   const [created, setCreated] = useState<CreatedToken | null>(null);
@@ -23,7 +23,7 @@ export function TokensManager({ studioId }: { studioId: string }) {
   });
 
   return (
-    <StudioShell studioId={studioId} role="owner">
+    <StudioShell studioId={studioId} studioName={studioName} role="owner">
       <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
         <div className="space-y-6">
           {created ? (

@@ -41,6 +41,11 @@ test("a new owner builds a studio and an invited engineer joins it through the m
   await expect(owner.getByTestId("invites-table")).toContainText(engineerEmail);
   await owner.screenshot({ path: test.info().outputPath("studio-members-owner.png"), fullPage: true });
 
+  // --- The only owner cannot demote themself: the API's reason is shown and the role stays.
+  await owner.getByLabel(`Role of ${ownerEmail}`).selectOption("engineer");
+  await expect(owner.getByTestId("member-action-error")).toContainText("at least one owner");
+  await expect(owner.getByLabel(`Role of ${ownerEmail}`)).toHaveValue("owner");
+
   // --- The engineer, in a browser of their own, opens the invitation from the local mailbox.
   const engineerContext = await browser.newContext();
   const engineer = await engineerContext.newPage();
@@ -113,4 +118,50 @@ test("signed-out visitors are sent to sign-in and come back after it", async ({ 
   await page.getByRole("button", { name: "Sign in", exact: true }).click();
   await expect(page).toHaveURL(/\/studios$/);
   await expect(page.getByTestId("studio-list")).toContainText(DEMO_OWNER.studio);
+});
+
+test("an owner creates an API token whose secret is shown once, then revokes it", async ({ page }) => {
+  await signInWithPassword(page, DEMO_OWNER.email, DEMO_OWNER.password);
+  await page.getByRole("link", { name: new RegExp(DEMO_OWNER.studio) }).click();
+  await page.getByRole("link", { name: "API tokens", exact: true }).click();
+  await expect(page).toHaveURL(/\/tokens$/);
+
+  await page.getByLabel("Token name").fill("rink build agent");
+  await page.getByLabel("write").check();
+  await page.getByRole("button", { name: "Create token" }).click();
+  const secret = (await page.getByTestId("token-secret").textContent())?.trim() ?? "";
+  expect(secret).toMatch(/^kd_[A-Za-z0-9_-]{20,}$/);
+  const row = page.getByTestId("tokens-table").getByRole("row").filter({ hasText: "rink build agent" });
+  await expect(row).toContainText("read, write");
+  await expect(row).toContainText(secret.slice(0, 6));
+  await expect(row).toContainText("active");
+  await page.screenshot({ path: test.info().outputPath("studio-tokens-owner.png"), fullPage: true });
+
+  // The secret is not shown again: after a reload only the prefix is left.
+  await page.reload();
+  await expect(page.getByTestId("token-secret")).toHaveCount(0);
+  await expect(page.getByText(secret)).toHaveCount(0);
+
+  await row.getByRole("button", { name: "Revoke rink build agent" }).click();
+  await expect(row).toContainText("revoked");
+});
+
+test("only platform admins open the admin lists", async ({ browser }) => {
+  const adminContext = await browser.newContext();
+  const admin = await adminContext.newPage();
+  // The seeded platform operator (db/seed.ts).
+  await signInWithPassword(admin, "ops@kickdrift.test", "kickdrift-operator");
+  await admin.getByRole("link", { name: "Admin", exact: true }).click();
+  await expect(admin.getByTestId("admin-studios")).toContainText(DEMO_OWNER.studio);
+  await expect(admin.getByTestId("admin-users")).toContainText(DEMO_OWNER.email);
+  await adminContext.close();
+
+  const ownerContext = await browser.newContext();
+  const owner = await ownerContext.newPage();
+  await signInWithPassword(owner, DEMO_OWNER.email, DEMO_OWNER.password);
+  await expect(owner.getByRole("link", { name: "Admin", exact: true })).toHaveCount(0);
+  await owner.goto("/admin");
+  await expect(owner.getByTestId("forbidden")).toBeVisible();
+  await expect(owner.getByTestId("admin-users")).toHaveCount(0);
+  await ownerContext.close();
 });

@@ -10,5 +10,5 @@ export default async function StudioHomeRoute({ params }: { params: Promise<{ st
   const { studioId } = await params;
   const access = await requireStudio(studioId, { callbackUrl: `/studios/${studioId}` });
   if (access.status === "forbidden") return <Forbidden reason={access.message} />;
-  return <StudioHome studioId={access.studio.id} role={access.role} />;
+  return <StudioHome studioId={access.studio.id} studioName={access.studio.name} role={access.role} />;
 }

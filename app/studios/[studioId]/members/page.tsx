@@ -19,5 +19,5 @@ export default async function MembersRoute({ params }: { params: Promise<{ studi
       />
     );
   }
-  return <MembersManager studioId={access.studio.id} currentUserId={access.user.id} />;
+  return <MembersManager studioId={access.studio.id} studioName={access.studio.name} currentUserId={access.user.id} />;
 }

@@ -19,5 +19,5 @@ export default async function TokensRoute({ params }: { params: Promise<{ studio
       />
     );
   }
-  return <TokensManager studioId={access.studio.id} />;
+  return <TokensManager studioId={access.studio.id} studioName={access.studio.name} />;
 }

@@ -1,0 +1,53 @@
+/**
+ * PNG export of a stability map: the map is drawn again on a fresh canvas, with its title, axes,
+ * overlays and legend, at the requested size and resolution (no hover outline).
+ */
+import type { MapModel } from "./map-model";
+import { LIGHT_CHROME, renderMap, type ChromeColours } from "./render";
+
+export interface PngExportOptions {
+  widthCss: number;
+  heightCss: number;
+  /** Resolution multiplier (2 gives a sharp image on high-density screens and in documents). */
+  scale?: number;
+  title?: string;
+  chrome?: ChromeColours;
+}
+
+function drawForExport(model: MapModel, options: PngExportOptions): HTMLCanvasElement {
+  const canvas = document.createElement("canvas");
+  renderMap(canvas, model, {
+    widthCss: options.widthCss,
+    heightCss: options.heightCss,
+    devicePixelRatio: options.scale ?? 2,
+    chrome: options.chrome ?? LIGHT_CHROME,
+    title: options.title,
+    showLegend: true,
+  });
+  return canvas;
+}
+
+/** The map as a PNG Blob. */
+export function exportMapPng(model: MapModel, options: PngExportOptions): Promise<Blob> {
+  const canvas = drawForExport(model, options);
+  return new Promise((resolve, reject) => {
+    canvas.toBlob((blob) => (blob ? resolve(blob) : reject(new Error("the browser could not encode the map as PNG"))), "image/png");
+  });
+}
+
+/** The map as a data: URL (image/png). */
+export function exportMapPngDataUrl(model: MapModel, options: PngExportOptions): string {
+  return drawForExport(model, options).toDataURL("image/png");
+}
+
+/** Offer a Blob as a file download. */
+export function downloadBlob(blob: Blob, fileName: string): void {
+  const url = URL.createObjectURL(blob);
+  const link = document.createElement("a");
+  link.href = url;
+  link.download = fileName;
+  document.body.appendChild(link);
+  link.click();
+  link.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}

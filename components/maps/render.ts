@@ -1,0 +1,598 @@
+/**
+ * Canvas drawing of a stability map: cells, hatching for cells not computed yet, glyphs on
+ * categorical cells, axes with SI-prefixed ticks, overlays, legend. Used by the on-screen map, the
+ * PNG export and the benchmark, so what is exported is what is seen.
+ *
+ * Speed: the cells go into an ImageData at cell resolution once and are scaled by drawImage with
+ * smoothing off (one call for evenly spaced cells); there is no per-cell fillRect.
+ */
+import { formatSI } from "@/lib/charts/format";
+import { legendTicks } from "@/lib/charts/normalise";
+import { logTicks, niceLinearTicks, type Tick } from "@/lib/charts/ticks";
+import { cellRect, cellsAreUniform, mapGeometry, valueToPixel, type AxisScale, type MapGeometry, type PlotRect } from "@/lib/charts/scales";
+import { overlayToPixelPaths } from "@/lib/charts/overlays";
+import type { GlyphName } from "@/lib/charts/categories";
+import { lutColourCss } from "@/lib/charts/colormaps";
+import { CELL_NO_VALUE, inkOn, type MapModel } from "./map-model";
+
+/** Theme colours of the chrome (text, lines, background); the data colours are the map's own. */
+export interface ChromeColours {
+  surface: string;
+  ink: string;
+  inkMuted: string;
+  line: string;
+  focus: string;
+  fontFamily: string;
+}
+
+export const LIGHT_CHROME: ChromeColours = {
+  surface: "#ffffff",
+  ink: "#161b24",
+  inkMuted: "#4b5363",
+  line: "#d8d3c7",
+  focus: "#d9481c",
+  fontFamily: "ui-sans-serif, system-ui, sans-serif",
+};
+
+/** Read the palette tokens of app/globals.css from an element (falls back to the light theme). */
+export function readChrome(element: Element): ChromeColours {
+  const style = getComputedStyle(element);
+  const token = (name: string, fallback: string) => style.getPropertyValue(name).trim() || fallback;
+  return {
+    surface: token("--kd-surface", LIGHT_CHROME.surface),
+    ink: token("--kd-ink", LIGHT_CHROME.ink),
+    inkMuted: token("--kd-ink-muted", LIGHT_CHROME.inkMuted),
+    line: token("--kd-line", LIGHT_CHROME.line),
+    focus: token("--kd-focus", LIGHT_CHROME.focus),
+    fontFamily: style.fontFamily || LIGHT_CHROME.fontFamily,
+  };
+}
+
+export interface RenderOptions {
+  widthCss: number;
+  heightCss: number;
+  devicePixelRatio: number;
+  chrome: ChromeColours;
+  /** Title drawn above the plot (PNG export); on screen the title is HTML. */
+  title?: string;
+  /** Small multiples: smaller type, no legend, fewer ticks. */
+  compact?: boolean;
+  showLegend?: boolean;
+  /** Draw glyphs on categorical cells: when cells are big enough ("auto"), always, or never. */
+  glyphs?: "auto" | "always" | "never";
+}
+
+/** Where things ended up, for hit-testing and the hover layer. */
+export interface MapLayout {
+  geometry: MapGeometry;
+  widthCss: number;
+  heightCss: number;
+}
+
+const TICK_LENGTH = 5;
+const GLYPH_MIN_CELL_PX = 11;
+
+function font(chrome: ChromeColours, sizePx: number, weight = 400): string {
+  return `${weight} ${sizePx}px ${chrome.fontFamily}`;
+}
+
+function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean): Tick[] {
+  const [lo, hi] = scale.domain;
+  if (scale.spacing === "log") return logTicks(lo, hi, compact ? 4 : Math.max(3, Math.floor(lengthPx / 48)));
+  return niceLinearTicks(lo, hi, Math.max(2, Math.floor(lengthPx / (compact ? 70 : 80))));
+}
+
+function legendWidth(model: MapModel, ctx: CanvasRenderingContext2D, chrome: ChromeColours): number {
+  ctx.font = font(chrome, 12);
+  if (model.scale.kind === "categorical") {
+    let widest = 0;
+    model.scale.categories.forEach((c, i) => {
+      widest = Math.max(widest, ctx.measureText(`${c.label}  ${model.counts[i].toLocaleString("en-US")}`).width);
+    });
+    if (model.pendingCount > 0) widest = Math.max(widest, ctx.measureText(`Not computed  ${model.pendingCount.toLocaleString("en-US")}`).width);
+    return Math.ceil(widest) + 18 + 8 + 16;
+  }
+  const ticks = legendTicks(model.scale.normalisation);
+  let widest = 0;
+  for (const t of ticks) widest = Math.max(widest, ctx.measureText(formatSI(t.value, model.scale.unit)).width);
+  if (model.pendingCount > 0) widest = Math.max(widest, ctx.measureText("Not computed").width);
+  if (model.noValueCount > 0) widest = Math.max(widest, ctx.measureText("No value").width);
+  return Math.ceil(widest) + 14 + 8 + 26;
+}
+
+/** Plot rectangle for a canvas of this size (margins fit the tick labels, legend and title). */
+export function layoutMap(model: MapModel, ctx: CanvasRenderingContext2D, options: RenderOptions): MapLayout {
+  const compact = options.compact ?? false;
+  const fontSize = compact ? 10 : 12;
+  ctx.font = font(options.chrome, fontSize);
+  // y tick label width: measure against a provisional scale (ticks depend on the domain, not pixels much).
+  const provisional = mapGeometry({ left: 0, top: 0, width: 100, height: Math.max(40, options.heightCss - 60) }, model.x, model.y);
+  const yTicks = axisTicks(provisional.y, options.heightCss - 60, compact);
+  let yLabelWidth = 0;
+  for (const t of yTicks) yLabelWidth = Math.max(yLabelWidth, ctx.measureText(formatSI(t.value, model.y.unit)).width);
+  const titleHeight = options.title ? 26 : 0;
+  const left = Math.ceil(yLabelWidth) + TICK_LENGTH + 6 + (compact ? 14 : 20);
+  const bottom = TICK_LENGTH + fontSize + 8 + (compact ? 14 : 20);
+  const top = 8 + titleHeight;
+  const showLegend = (options.showLegend ?? !compact) && !compact;
+  const right = showLegend ? legendWidth(model, ctx, options.chrome) + 12 : 12;
+  const plot: PlotRect = {
+    left,
+    top,
+    width: Math.max(20, options.widthCss - left - right),
+    height: Math.max(20, options.heightCss - top - bottom),
+  };
+  return { geometry: mapGeometry(plot, model.x, model.y), widthCss: options.widthCss, heightCss: options.heightCss };
+}
+
+let scratch: HTMLCanvasElement | OffscreenCanvas | null = null;
+function scratchCanvas(width: number, height: number): HTMLCanvasElement | OffscreenCanvas {
+  if (!scratch) scratch = typeof OffscreenCanvas !== "undefined" ? new OffscreenCanvas(width, height) : document.createElement("canvas");
+  if (scratch.width !== width) scratch.width = width;
+  if (scratch.height !== height) scratch.height = height;
+  return scratch;
+}
+
+function hatchPattern(ctx: CanvasRenderingContext2D, chrome: ChromeColours, dpr: number): CanvasPattern | null {
+  const size = Math.max(4, Math.round(6 * dpr));
+  const tile = typeof OffscreenCanvas !== "undefined" ? new OffscreenCanvas(size, size) : document.createElement("canvas");
+  tile.width = size;
+  tile.height = size;
+  const t = tile.getContext("2d") as CanvasRenderingContext2D | OffscreenCanvasRenderingContext2D | null;
+  if (!t) return null;
+  t.fillStyle = chrome.surface;
+  t.fillRect(0, 0, size, size);
+  t.strokeStyle = chrome.line;
+  t.lineWidth = Math.max(1, dpr);
+  t.beginPath();
+  // Two strokes so the diagonal tiles seamlessly.
+  t.moveTo(0, size);
+  t.lineTo(size, 0);
+  t.moveTo(-size / 2, size / 2);
+  t.lineTo(size / 2, -size / 2);
+  t.moveTo(size / 2, size * 1.5);
+  t.lineTo(size * 1.5, size / 2);
+  t.stroke();
+  const pattern = ctx.createPattern(tile, "repeat");
+  // The pattern lives in device pixels; undo the context's DPR scale.
+  pattern?.setTransform(new DOMMatrix([1 / dpr, 0, 0, 1 / dpr, 0, 0]));
+  return pattern;
+}
+
+/** Draw the cells into the plot rectangle (context in CSS pixels, scaled by dpr). */
+function drawCells(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, dpr: number): void {
+  const { plot } = geometry;
+  ctx.imageSmoothingEnabled = false;
+  const uniform = cellsAreUniform(geometry.xEdges, model.x.spacing) && cellsAreUniform(geometry.yEdges, model.y.spacing);
+  if (uniform) {
+    const canvas = scratchCanvas(model.columns, model.rows);
+    const c = canvas.getContext("2d") as CanvasRenderingContext2D | OffscreenCanvasRenderingContext2D | null;
+    if (!c) return;
+    const image = c.createImageData(model.columns, model.rows);
+    new Uint32Array(image.data.buffer).set(model.pixels);
+    c.putImageData(image, 0, 0);
+    ctx.drawImage(canvas, 0, 0, model.columns, model.rows, plot.left, plot.top, plot.width, plot.height);
+    return;
+  }
+  // Uneven cells: map each device pixel of the plot to its cell through per-column / per-row tables.
+  const widthPx = Math.max(1, Math.round(plot.width * dpr));
+  const heightPx = Math.max(1, Math.round(plot.height * dpr));
+  const columnOf = new Int32Array(widthPx);
+  const rowOf = new Int32Array(heightPx);
+  let column = 0;
+  for (let px = 0; px < widthPx; px++) {
+    const xCss = plot.left + (px + 0.5) / dpr;
+    while (column < model.columns - 1 && valueToPixel(geometry.x, geometry.xEdges[column + 1]) <= xCss) column++;
+    columnOf[px] = column;
+  }
+  let row = model.rows - 1;
+  for (let py = 0; py < heightPx; py++) {
+    const yCss = plot.top + (py + 0.5) / dpr;
+    while (row > 0 && valueToPixel(geometry.y, geometry.yEdges[row]) <= yCss) row--;
+    rowOf[py] = model.rows - 1 - row;
+  }
+  const canvas = scratchCanvas(widthPx, heightPx);
+  const c = canvas.getContext("2d") as CanvasRenderingContext2D | OffscreenCanvasRenderingContext2D | null;
+  if (!c) return;
+  const image = c.createImageData(widthPx, heightPx);
+  const out = new Uint32Array(image.data.buffer);
+  for (let py = 0; py < heightPx; py++) {
+    const source = rowOf[py] * model.columns;
+    const target = py * widthPx;
+    for (let px = 0; px < widthPx; px++) out[target + px] = model.pixels[source + columnOf[px]];
+  }
+  c.putImageData(image, 0, 0);
+  ctx.drawImage(canvas, 0, 0, widthPx, heightPx, plot.left, plot.top, plot.width, plot.height);
+}
+
+/** Add one glyph's path centred at (cx, cy) with half-size s to the current path. */
+export function traceGlyph(ctx: CanvasRenderingContext2D, glyph: GlyphName, cx: number, cy: number, s: number): void {
+  switch (glyph) {
+    case "dot":
+      ctx.moveTo(cx + s * 0.28, cy);
+      ctx.arc(cx, cy, s * 0.28, 0, Math.PI * 2);
+      break;
+    case "ring":
+      ctx.moveTo(cx + s * 0.62, cy);
+      ctx.arc(cx, cy, s * 0.62, 0, Math.PI * 2);
+      break;
+    case "slash":
+      ctx.moveTo(cx - s * 0.6, cy + s * 0.6);
+      ctx.lineTo(cx + s * 0.6, cy - s * 0.6);
+      break;
+    case "backslash":
+      ctx.moveTo(cx - s * 0.6, cy - s * 0.6);
+      ctx.lineTo(cx + s * 0.6, cy + s * 0.6);
+      break;
+    case "chevron":
+      ctx.moveTo(cx - s * 0.35, cy - s * 0.6);
+      ctx.lineTo(cx + s * 0.35, cy);
+      ctx.lineTo(cx - s * 0.35, cy + s * 0.6);
+      break;
+    case "cross":
+      ctx.moveTo(cx - s * 0.55, cy - s * 0.55);
+      ctx.lineTo(cx + s * 0.55, cy + s * 0.55);
+      ctx.moveTo(cx + s * 0.55, cy - s * 0.55);
+      ctx.lineTo(cx - s * 0.55, cy + s * 0.55);
+      break;
+    case "bar":
+      ctx.moveTo(cx - s * 0.6, cy);
+      ctx.lineTo(cx + s * 0.6, cy);
+      break;
+    case "none":
+      break;
+  }
+}
+
+function glyphIsFilled(glyph: GlyphName): boolean {
+  return glyph === "dot";
+}
+
+function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, mode: "auto" | "always" | "never"): void {
+  if (model.scale.kind !== "categorical" || mode === "never") return;
+  const categories = model.scale.categories;
+  const sample = cellRect(geometry, 0, 0);
+  const cellSize = Math.min(geometry.plot.width / model.columns, geometry.plot.height / model.rows, Math.abs(sample.width), Math.abs(sample.height));
+  if (mode === "auto" && cellSize < GLYPH_MIN_CELL_PX) return;
+  ctx.save();
+  ctx.lineCap = "round";
+  ctx.lineJoin = "round";
+  ctx.lineWidth = Math.max(1, Math.min(2, cellSize / 10));
+  // One path per category: a few thousand glyphs cost a handful of stroke calls.
+  categories.forEach((category, code) => {
+    if (category.glyph === "none" || model.counts[code] === 0) return;
+    ctx.beginPath();
+    for (let row = 0; row < model.rows; row++) {
+      for (let column = 0; column < model.columns; column++) {
+        if (model.codes[row * model.columns + column] !== code) continue;
+        const r = cellRect(geometry, column, row);
+        const s = Math.min(Math.abs(r.width), Math.abs(r.height)) * 0.32;
+        traceGlyph(ctx, category.glyph, r.left + r.width / 2, r.top + r.height / 2, s);
+      }
+    }
+    const ink = inkOn(category.colour);
+    ctx.globalAlpha = 0.7;
+    if (glyphIsFilled(category.glyph)) {
+      ctx.fillStyle = ink;
+      ctx.fill();
+    } else {
+      ctx.strokeStyle = ink;
+      ctx.stroke();
+    }
+    ctx.globalAlpha = 1;
+  });
+  ctx.restore();
+}
+
+function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, options: RenderOptions): void {
+  const { plot } = geometry;
+  const { chrome } = options;
+  const compact = options.compact ?? false;
+  const fontSize = compact ? 10 : 12;
+  ctx.save();
+  ctx.strokeStyle = chrome.inkMuted;
+  ctx.fillStyle = chrome.ink;
+  ctx.lineWidth = 1;
+  ctx.strokeRect(plot.left - 0.5, plot.top - 0.5, plot.width + 1, plot.height + 1);
+  ctx.font = font(chrome, fontSize);
+
+  // x ticks: skip labels that would collide with the previous one (minor ticks go first).
+  const xTicks = axisTicks(geometry.x, plot.width, compact);
+  ctx.textAlign = "center";
+  ctx.textBaseline = "top";
+  let lastRight = Number.NEGATIVE_INFINITY;
+  const ordered = [...xTicks.filter((t) => t.major), ...xTicks.filter((t) => !t.major)];
+  const drawnX: [number, number][] = [];
+  for (const tick of ordered) {
+    const px = valueToPixel(geometry.x, tick.value);
+    if (px < plot.left - 0.5 || px > plot.left + plot.width + 0.5) continue;
+    ctx.beginPath();
+    ctx.moveTo(Math.round(px) + 0.5, plot.top + plot.height);
+    ctx.lineTo(Math.round(px) + 0.5, plot.top + plot.height + (tick.major ? TICK_LENGTH : TICK_LENGTH - 2));
+    ctx.stroke();
+    const label = formatSI(tick.value, model.x.unit);
+    const half = ctx.measureText(label).width / 2;
+    if (drawnX.some(([a, b]) => px - half < b + 6 && px + half > a - 6)) continue;
+    drawnX.push([px - half, px + half]);
+    ctx.fillText(label, px, plot.top + plot.height + TICK_LENGTH + 3);
+    lastRight = Math.max(lastRight, px + half);
+  }
+  // y ticks
+  const yTicks = axisTicks(geometry.y, plot.height, compact);
+  ctx.textAlign = "right";
+  ctx.textBaseline = "middle";
+  const drawnY: [number, number][] = [];
+  for (const tick of [...yTicks.filter((t) => t.major), ...yTicks.filter((t) => !t.major)]) {
+    const py = valueToPixel(geometry.y, tick.value);
+    if (py < plot.top - 0.5 || py > plot.top + plot.height + 0.5) continue;
+    ctx.beginPath();
+    ctx.moveTo(plot.left, Math.round(py) + 0.5);
+    ctx.lineTo(plot.left - (tick.major ? TICK_LENGTH : TICK_LENGTH - 2), Math.round(py) + 0.5);
+    ctx.stroke();
+    if (drawnY.some(([a, b]) => py - fontSize / 2 < b + 3 && py + fontSize / 2 > a - 3)) continue;
+    drawnY.push([py - fontSize / 2, py + fontSize / 2]);
+    ctx.fillText(formatSI(tick.value, model.y.unit), plot.left - TICK_LENGTH - 3, py);
+  }
+  // Axis labels (the unit is on every tick label, so the label is the quantity's name).
+  ctx.fillStyle = chrome.inkMuted;
+  ctx.font = font(chrome, fontSize, 600);
+  ctx.textAlign = "center";
+  ctx.textBaseline = "bottom";
+  ctx.fillText(axisTitle(model.x), plot.left + plot.width / 2, options.heightCss - 2);
+  ctx.save();
+  ctx.translate(fontSize + 2, plot.top + plot.height / 2);
+  ctx.rotate(-Math.PI / 2);
+  ctx.textBaseline = "bottom";
+  ctx.fillText(axisTitle(model.y), 0, 0);
+  ctx.restore();
+  ctx.restore();
+}
+
+function axisTitle(axis: { label: string; spacing: string }): string {
+  return axis.spacing === "log" ? `${axis.label} (log scale)` : axis.label;
+}
+
+const OVERLAY_DASHES: Record<string, number[]> = { solid: [], dashed: [7, 4], dotted: [1.5, 3.5] };
+
+function drawOverlays(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, chrome: ChromeColours, compact: boolean): void {
+  if (model.overlays.length === 0) return;
+  const { plot } = geometry;
+  ctx.save();
+  ctx.beginPath();
+  ctx.rect(plot.left, plot.top, plot.width, plot.height);
+  ctx.clip();
+  ctx.lineJoin = "round";
+  ctx.lineCap = "round";
+  const labels: { text: string; x: number; y: number }[] = [];
+  for (const overlay of model.overlays) {
+    const paths = overlayToPixelPaths(overlay, geometry);
+    const dash = OVERLAY_DASHES[overlay.stroke ?? "solid"];
+    // A light halo under a dark line keeps the curve readable over dark and light cells alike.
+    for (const [width, colour] of [
+      [4, "rgba(255,255,255,0.85)"],
+      [1.75, "#111111"],
+    ] as const) {
+      ctx.lineWidth = width;
+      ctx.strokeStyle = colour;
+      ctx.setLineDash(width > 2 ? [] : dash);
+      for (const path of paths) {
+        ctx.beginPath();
+        ctx.moveTo(path[0], path[1]);
+        for (let i = 2; i < path.length; i += 2) ctx.lineTo(path[i], path[i + 1]);
+        ctx.stroke();
+      }
+    }
+    ctx.setLineDash([]);
+    if (!compact && paths.length > 0) {
+      // Label near the curve's first visible point, nudged inside the plot.
+      const first = paths[0];
+      labels.push({ text: overlay.label, x: first[0], y: first[1] });
+    }
+  }
+  ctx.font = font(chrome, 11, 600);
+  ctx.textBaseline = "middle";
+  for (const label of labels) {
+    const width = ctx.measureText(label.text).width;
+    const x = Math.min(Math.max(label.x + 6, plot.left + 4), plot.left + plot.width - width - 4);
+    const y = Math.min(Math.max(label.y, plot.top + 10), plot.top + plot.height - 10);
+    ctx.fillStyle = "rgba(255,255,255,0.85)";
+    ctx.fillRect(x - 3, y - 8, width + 6, 16);
+    ctx.fillStyle = "#111111";
+    ctx.textAlign = "left";
+    ctx.fillText(label.text, x, y);
+  }
+  ctx.restore();
+}
+
+/** Draw the legend into a rectangle (used beside the map and on its own for small multiples). */
+export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, "scale" | "counts" | "pendingCount" | "noValueCount">, rect: PlotRect, chrome: ChromeColours, dpr: number): void {
+  ctx.save();
+  ctx.font = font(chrome, 12);
+  ctx.fillStyle = chrome.ink;
+  ctx.textBaseline = "middle";
+  ctx.textAlign = "left";
+  const hatch = hatchPattern(ctx, chrome, dpr);
+  if (model.scale.kind === "categorical") {
+    const rowHeight = 22;
+    ctx.font = font(chrome, 12, 600);
+    ctx.fillStyle = chrome.inkMuted;
+    ctx.fillText(model.scale.label, rect.left, rect.top + 8);
+    ctx.font = font(chrome, 12);
+    let y = rect.top + 26;
+    model.scale.categories.forEach((category, code) => {
+      ctx.fillStyle = category.colour;
+      ctx.fillRect(rect.left, y, 18, 18);
+      ctx.strokeStyle = chrome.line;
+      ctx.lineWidth = 1;
+      ctx.strokeRect(rect.left + 0.5, y + 0.5, 17, 17);
+      ctx.beginPath();
+      traceGlyph(ctx, category.glyph, rect.left + 9, y + 9, 6);
+      ctx.lineWidth = 1.5;
+      ctx.lineCap = "round";
+      const ink = inkOn(category.colour);
+      if (glyphIsFilled(category.glyph)) {
+        ctx.fillStyle = ink;
+        ctx.fill();
+      } else {
+        ctx.strokeStyle = ink;
+        ctx.stroke();
+      }
+      ctx.fillStyle = chrome.ink;
+      ctx.fillText(category.label, rect.left + 26, y + 9);
+      ctx.fillStyle = chrome.inkMuted;
+      ctx.textAlign = "right";
+      ctx.fillText((model.counts[code] ?? 0).toLocaleString("en-US"), rect.left + rect.width, y + 9);
+      ctx.textAlign = "left";
+      y += rowHeight;
+    });
+    if (model.pendingCount > 0) {
+      if (hatch) ctx.fillStyle = hatch;
+      ctx.fillRect(rect.left, y, 18, 18);
+      ctx.strokeStyle = chrome.line;
+      ctx.strokeRect(rect.left + 0.5, y + 0.5, 17, 17);
+      ctx.fillStyle = chrome.inkMuted;
+      ctx.fillText("Not computed", rect.left + 26, y + 9);
+      ctx.textAlign = "right";
+      ctx.fillText(model.pendingCount.toLocaleString("en-US"), rect.left + rect.width, y + 9);
+    }
+    ctx.restore();
+    return;
+  }
+  const scale = model.scale;
+  const barWidth = 14;
+  const extrasHeight = (model.pendingCount > 0 ? 24 : 0) + (model.noValueCount > 0 ? 24 : 0);
+  const barTop = rect.top + 24;
+  const barHeight = Math.max(40, rect.height - 24 - extrasHeight - 8);
+  ctx.font = font(chrome, 12, 600);
+  ctx.fillStyle = chrome.inkMuted;
+  ctx.fillText(scale.unit ? `${scale.label}` : scale.label, rect.left, rect.top + 8);
+  // The bar from the LUT, low values at the bottom.
+  const entries = scale.lut.length / 4;
+  const step = barHeight / entries;
+  for (let i = 0; i < entries; i++) {
+    ctx.fillStyle = lutColourCss(scale.lut, i);
+    ctx.fillRect(rect.left, barTop + barHeight - (i + 1) * step, barWidth, step + 0.6);
+  }
+  ctx.strokeStyle = chrome.inkMuted;
+  ctx.lineWidth = 1;
+  ctx.strokeRect(rect.left - 0.5, barTop - 0.5, barWidth + 1, barHeight + 1);
+  ctx.font = font(chrome, 11);
+  ctx.fillStyle = chrome.ink;
+  const { normalisation } = scale;
+  const lo = normalisation.domain[0];
+  const hi = normalisation.domain[1];
+  const toY = (v: number) => {
+    const t = normalisation.kind === "log" ? (Math.log10(v) - Math.log10(lo)) / (Math.log10(hi) - Math.log10(lo)) : (v - lo) / (hi - lo);
+    return barTop + barHeight - t * barHeight;
+  };
+  const drawn: number[] = [];
+  for (const tick of legendTicks(normalisation)) {
+    const y = toY(tick.value);
+    if (y < barTop - 0.5 || y > barTop + barHeight + 0.5) continue;
+    ctx.beginPath();
+    ctx.moveTo(rect.left + barWidth, Math.round(y) + 0.5);
+    ctx.lineTo(rect.left + barWidth + 4, Math.round(y) + 0.5);
+    ctx.stroke();
+    if (drawn.some((d) => Math.abs(d - y) < 13)) continue;
+    drawn.push(y);
+    ctx.fillText(formatSI(tick.value, scale.unit), rect.left + barWidth + 7, y);
+  }
+  let y = barTop + barHeight + 10;
+  ctx.font = font(chrome, 12);
+  if (model.noValueCount > 0) {
+    ctx.fillStyle = "rgb(158 158 158)";
+    ctx.fillRect(rect.left, y, barWidth, 14);
+    ctx.fillStyle = chrome.inkMuted;
+    ctx.fillText("No value", rect.left + barWidth + 7, y + 7);
+    y += 24;
+  }
+  if (model.pendingCount > 0) {
+    if (hatch) ctx.fillStyle = hatch;
+    ctx.fillRect(rect.left, y, barWidth, 14);
+    ctx.strokeStyle = chrome.line;
+    ctx.strokeRect(rect.left + 0.5, y + 0.5, barWidth - 1, 13);
+    ctx.fillStyle = chrome.inkMuted;
+    ctx.fillText("Not computed", rect.left + barWidth + 7, y + 7);
+  }
+  ctx.restore();
+}
+
+/**
+ * Draw the whole map on a canvas (resizing its backing store to CSS size × dpr) and return the
+ * layout for hit-testing.
+ */
+export function renderMap(canvas: HTMLCanvasElement | OffscreenCanvas, model: MapModel, options: RenderOptions): MapLayout {
+  const dpr = options.devicePixelRatio;
+  const widthPx = Math.max(1, Math.round(options.widthCss * dpr));
+  const heightPx = Math.max(1, Math.round(options.heightCss * dpr));
+  if (canvas.width !== widthPx) canvas.width = widthPx;
+  if (canvas.height !== heightPx) canvas.height = heightPx;
+  const ctx = canvas.getContext("2d") as CanvasRenderingContext2D | null;
+  if (!ctx) throw new Error("2D canvas context unavailable");
+  ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+  ctx.clearRect(0, 0, options.widthCss, options.heightCss);
+  ctx.fillStyle = options.chrome.surface;
+  ctx.fillRect(0, 0, options.widthCss, options.heightCss);
+  const layout = layoutMap(model, ctx, options);
+  const { geometry } = layout;
+  const { plot } = geometry;
+  if (options.title) {
+    ctx.font = font(options.chrome, 14, 600);
+    ctx.fillStyle = options.chrome.ink;
+    ctx.textAlign = "left";
+    ctx.textBaseline = "top";
+    ctx.fillText(options.title, plot.left, 6);
+  }
+  // Hatching first: cells not computed yet are transparent in the cell image and show it.
+  if (model.pendingCount > 0) {
+    const hatch = hatchPattern(ctx, options.chrome, dpr);
+    if (hatch) {
+      ctx.fillStyle = hatch;
+      ctx.fillRect(plot.left, plot.top, plot.width, plot.height);
+    }
+  }
+  drawCells(ctx, model, geometry, dpr);
+  drawGlyphs(ctx, model, geometry, options.glyphs ?? "auto");
+  drawAxes(ctx, model, geometry, options);
+  drawOverlays(ctx, model, geometry, options.chrome, options.compact ?? false);
+  const compact = options.compact ?? false;
+  if ((options.showLegend ?? !compact) && !compact) {
+    const left = plot.left + plot.width + 16;
+    drawLegend(ctx, model, { left, top: plot.top, width: options.widthCss - left - 10, height: plot.height }, options.chrome, dpr);
+  }
+  return layout;
+}
+
+/** Outline the hovered / focused / selected cells on the transparent layer above the map. */
+export function renderHighlights(
+  canvas: HTMLCanvasElement,
+  layout: MapLayout,
+  dpr: number,
+  cells: { index: number; style: "hover" | "focus" | "selected" }[],
+  chrome: ChromeColours,
+  columns: number,
+): void {
+  const widthPx = Math.max(1, Math.round(layout.widthCss * dpr));
+  const heightPx = Math.max(1, Math.round(layout.heightCss * dpr));
+  if (canvas.width !== widthPx) canvas.width = widthPx;
+  if (canvas.height !== heightPx) canvas.height = heightPx;
+  const ctx = canvas.getContext("2d");
+  if (!ctx) return;
+  ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+  ctx.clearRect(0, 0, layout.widthCss, layout.heightCss);
+  for (const { index, style } of cells) {
+    const r = cellRect(layout.geometry, index % columns, Math.floor(index / columns));
+    const inset = style === "selected" ? -1.5 : -1;
+    ctx.lineWidth = 3.5;
+    ctx.strokeStyle = "rgba(255,255,255,0.9)";
+    ctx.setLineDash([]);
+    ctx.strokeRect(r.left + inset, r.top + inset, r.width - 2 * inset, r.height - 2 * inset);
+    ctx.lineWidth = 1.75;
+    ctx.strokeStyle = style === "focus" ? chrome.focus : "#111111";
+    ctx.setLineDash(style === "selected" ? [4, 2] : []);
+    ctx.strokeRect(r.left + inset, r.top + inset, r.width - 2 * inset, r.height - 2 * inset);
+  }
+  ctx.setLineDash([]);
+}
+
+export { CELL_NO_VALUE };
