@@ -174,7 +174,7 @@ describe("products and prices", () => {
     const metered = await stripe.prices.create({
       product: product.id,
       currency: "usd",
-      unit_amount_decimal: "0.0025",
+      unit_amount_decimal: Stripe.Decimal.from("0.0025"),
       recurring: { interval: "month", usage_type: "metered", meter: meter.id },
     });
     expect(String(metered.unit_amount_decimal)).toBe("0.0025");

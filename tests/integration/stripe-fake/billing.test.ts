@@ -24,7 +24,7 @@ beforeAll(async () => {
   });
   const product = await stripe.products.create({ name: "Overage compute" });
   // 0.0025 ¢ per millisecond = 1.5 USD per compute minute (60,000 ms × 0.0025 ¢ = 150 ¢).
-  overagePrice = await stripe.prices.create({ product: product.id, currency: "usd", unit_amount_decimal: "0.0025", recurring: { interval: "month", usage_type: "metered", meter: meter.id } });
+  overagePrice = await stripe.prices.create({ product: product.id, currency: "usd", unit_amount_decimal: Stripe.Decimal.from("0.0025"), recurring: { interval: "month", usage_type: "metered", meter: meter.id } });
 });
 afterAll(async () => {
   await fake.close();

@@ -25,7 +25,7 @@ export interface ReceivedWebhook {
  * A webhook receiver like the app's route: records raw bodies and signatures; `respond` decides the
  * status per request (to simulate a failing app).
  */
-export async function startReceiver(respond: (n: number, body: string) => number = () => 200): Promise<{
+export async function startReceiver(respond: (n: number, body: string) => number = () => 200, port = 0): Promise<{
   url: string;
   received: ReceivedWebhook[];
   close(): Promise<void>;
@@ -45,10 +45,10 @@ export async function startReceiver(respond: (n: number, body: string) => number
       res.end("{}");
     });
   });
-  await new Promise<void>((resolve) => server.listen(0, "127.0.0.1", resolve));
-  const port = (server.address() as AddressInfo).port;
+  await new Promise<void>((resolve) => server.listen(port, "127.0.0.1", resolve));
+  const bound = (server.address() as AddressInfo).port;
   return {
-    url: `http://127.0.0.1:${port}/api/stripe/webhook`,
+    url: `http://127.0.0.1:${bound}/api/stripe/webhook`,
     received,
     server,
     close: () =>

@@ -38,7 +38,8 @@ function readEnabledEvents(params: Params, required: boolean): string[] | undefi
   }
   if (events.length === 0) throw invalidParam("enabled_events", "enabled_events must list at least one event type (or '*').");
   events.forEach((e, i) => {
-    if (!/^(\*|[a-z_]+(\.[a-z_]+)*(\.\*)?)$/.test(e)) throw invalidParam(`enabled_events[${i}]`, `Invalid event type: ${e}`);
+    // Endpoints take '*' or exact event types (no group wildcards, unlike GET /v1/events?type=).
+    if (!/^(\*|[a-z_]+(\.[a-z_]+)+)$/.test(e)) throw invalidParam(`enabled_events[${i}]`, `Invalid event type: ${e} (use '*' or an exact type such as invoice.paid)`);
   });
   return events;
 }
