@@ -24,7 +24,7 @@
  * Keyboard: focus the map (Tab), arrows move between cells, Home/End and PageUp/PageDown jump to
  * the edges, Enter or Space opens the cell. The focused cell is announced to screen readers.
  */
-import { useCallback, useId, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState, type KeyboardEvent, type PointerEvent, type Ref } from "react";
+import { useCallback, useId, useImperativeHandle, useLayoutEffect, useMemo, useRef, useState, type CSSProperties, type KeyboardEvent, type MouseEvent, type Ref } from "react";
 import type { Verdict } from "@/lib/physics/types";
 import { formatPrecise } from "@/lib/charts/format";
 import { hitTestCell, cellRect } from "@/lib/charts/scales";
@@ -96,7 +96,7 @@ export function cellDescription(model: MapModel, layer: MapLayer, index: number,
 }
 
 export function StabilityMap(props: StabilityMapProps) {
-  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null } = props;
+  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null, verdicts, reasons, exportFileName, className, ref } = props;
   const boxRef = useRef<HTMLDivElement>(null);
   const baseRef = useRef<HTMLCanvasElement>(null);
   const highlightRef = useRef<HTMLCanvasElement>(null);
@@ -107,7 +107,8 @@ export function StabilityMap(props: StabilityMapProps) {
   const [pointed, setPointed] = useState<Pointed | null>(null);
   const [focusIndex, setFocusIndex] = useState<number | null>(null);
   const [hasFocus, setHasFocus] = useState(false);
-  const [drawnVersion, setDrawnVersion] = useState(0);
+  // The layout of the last draw, as state too: the tooltip of a keyboard-focused cell is placed from it during render.
+  const [drawnLayout, setDrawnLayout] = useState<MapLayout | null>(null);
   const describedBy = useId();
 
   const resolved = useMemo((): { model: MapModel } | { error: string } => {
@@ -125,7 +126,7 @@ export function StabilityMap(props: StabilityMapProps) {
     const canvas = baseRef.current;
     if (!canvas || !model || width <= 0) return;
     const started = performance.now();
-    layoutRef.current = renderMap(canvas, model, {
+    const layout = renderMap(canvas, model, {
       widthCss: width,
       heightCss: height,
       devicePixelRatio: dpr,
@@ -134,22 +135,23 @@ export function StabilityMap(props: StabilityMapProps) {
       showLegend,
     });
     onDraw?.(performance.now() - started);
-    setDrawnVersion((v) => v + 1);
+    layoutRef.current = layout;
+    setDrawnLayout(layout);
   }, [model, width, height, dpr, themeVersion, compact, showLegend, onDraw]);
 
   useLayoutEffect(() => {
     const canvas = highlightRef.current;
-    const layout = layoutRef.current;
+    const layout = drawnLayout;
     if (!canvas || !layout || !model) return;
     const cells: { index: number; style: "hover" | "focus" | "selected" }[] = [];
     if (selectedIndex !== null && selectedIndex >= 0 && selectedIndex < model.codes.length) cells.push({ index: selectedIndex, style: "selected" });
     if (pointed) cells.push({ index: pointed.index, style: "hover" });
     if (hasFocus && focusIndex !== null) cells.push({ index: focusIndex, style: "focus" });
     renderHighlights(canvas, layout, dpr, cells, readChrome(canvas), model.columns);
-  }, [pointed, focusIndex, hasFocus, selectedIndex, drawnVersion, dpr, model]);
+  }, [pointed, focusIndex, hasFocus, selectedIndex, drawnLayout, dpr, model]);
 
   useImperativeHandle(
-    props.ref,
+    ref,
     () => ({
       toPngBlob: (options) => {
         if (!model) return Promise.reject(new Error("the map has no valid data to export"));
@@ -165,15 +167,15 @@ export function StabilityMap(props: StabilityMapProps) {
 
   const anchorOf = useCallback(
     (index: number): Pointed | null => {
-      const layout = layoutRef.current;
+      const layout = drawnLayout;
       if (!layout || !model) return null;
       const r = cellRect(layout.geometry, index % model.columns, Math.floor(index / model.columns));
       return { index, anchorX: r.left + r.width, anchorY: r.top };
     },
-    [model],
+    [model, drawnLayout],
   );
 
-  const onPointerMove = (event: PointerEvent<HTMLCanvasElement>) => {
+  const onPointerMove = (event: MouseEvent<HTMLCanvasElement>) => {
     const layout = layoutRef.current;
     if (!layout) return;
     const box = event.currentTarget.getBoundingClientRect();
@@ -183,7 +185,7 @@ export function StabilityMap(props: StabilityMapProps) {
     setPointed((previous) => (hit ? (previous?.index === hit.index && Math.abs(previous.anchorX - px) < 1 ? previous : { index: hit.index, anchorX: px, anchorY: py }) : null));
   };
 
-  const onClick = (event: PointerEvent<HTMLCanvasElement> | React.MouseEvent<HTMLCanvasElement>) => {
+  const onClick = (event: MouseEvent<HTMLCanvasElement>) => {
     const layout = layoutRef.current;
     if (!layout || !onCellClick) return;
     const box = event.currentTarget.getBoundingClientRect();
@@ -241,22 +243,22 @@ export function StabilityMap(props: StabilityMapProps) {
   };
 
   const save = async () => {
-    if (!model || !props.exportFileName) return;
+    if (!model || !exportFileName) return;
     const blob = await exportMapPng(model, { widthCss: Math.max(width, 640), heightCss: height, title, chrome: baseRef.current ? readChrome(baseRef.current) : undefined });
-    downloadBlob(blob, props.exportFileName.endsWith(".png") ? props.exportFileName : `${props.exportFileName}.png`);
+    downloadBlob(blob, exportFileName.endsWith(".png") ? exportFileName : `${exportFileName}.png`);
   };
 
   const tooltipCell = pointed ?? (hasFocus && focusIndex !== null ? anchorOf(focusIndex) : null);
-  const tooltipLines = model && tooltipCell ? cellDescription(model, layer, tooltipCell.index, props.verdicts, props.reasons) : null;
-  const announcement = model && hasFocus && focusIndex !== null ? cellDescription(model, layer, focusIndex, props.verdicts, props.reasons).join(". ") : "";
+  const tooltipLines = model && tooltipCell ? cellDescription(model, layer, tooltipCell.index, verdicts, reasons) : null;
+  const announcement = model && hasFocus && focusIndex !== null ? cellDescription(model, layer, focusIndex, verdicts, reasons).join(". ") : "";
   const summary = model ? `${title ?? (layer.kind === "metric" ? layer.label : "Verdict")} map, ${model.columns} by ${model.rows} cells, ${x.label} across, ${y.label} up.` : "";
 
   return (
-    <figure className={`m-0 ${props.className ?? ""}`}>
-      {(title || props.exportFileName) && (
+    <figure className={`m-0 ${className ?? ""}`}>
+      {(title || exportFileName) && (
         <figcaption className="mb-2 flex items-center justify-between gap-3">
           {title ? <span className={compact ? "text-xs font-semibold text-ink" : "text-sm font-semibold text-ink"}>{title}</span> : <span />}
-          {props.exportFileName && model && (
+          {exportFileName && model && (
             <button
               type="button"
               onClick={save}
@@ -321,7 +323,7 @@ export function StabilityMap(props: StabilityMapProps) {
 }
 
 /** Keep the tooltip inside the box: to the right of the pointer, flipped left near the edge. */
-function tooltipPosition(cell: Pointed, width: number, height: number): React.CSSProperties {
+function tooltipPosition(cell: Pointed, width: number, height: number): CSSProperties {
   const flipX = cell.anchorX > width - 260;
   const flipY = cell.anchorY > height - 120;
   return {
