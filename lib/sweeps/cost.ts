@@ -7,8 +7,8 @@
  *   separate for good, so a cell costs a fixed overhead plus a cost per
  *   integrator step *in contact*, not per duration/dt. The contact steps are
  *   predicted from the analytic contact duration (linear spring: π/ω with
- *   ω = √(k/m_eff); Hertz: t_c ≈ 2.94·δ_max/v with δ_max = (5·m_eff·v²/(4·k_H))^(2/5),
- *   Johnson 1985, Contact Mechanics, §11.4, from memory) divided by dt/substeps.
+ *   ω = √(k/m_eff); Hertz: t_c = 2·I·δ_max/v with δ_max = (5·m_eff·v²/(4·k_H))^(2/5)),
+ *   divided by dt/substeps.
  * - row and box: every step is integrated; a step costs a fixed part plus a
  *   part per body (the box's broad phase keeps it linear in N).
  *
@@ -19,6 +19,7 @@
  *
  * Pure: safe to import in the browser (the quote is shown in the form).
  */
+import { effectiveModulusSameMaterialPa, hertzContactDurationS, hertzStiffnessFromModulus, linearContactDurationS } from "../physics/analytic";
 import type { Scenario } from "../physics/types";
 import { cellCount, cellAt, expandAxes, type ExpandedAxis } from "./grid";
 import { bodyCount, stepsPerCell, type SweepSpec } from "./spec";
@@ -68,26 +69,23 @@ interface ContactEstimate {
   contactSteps: number;
 }
 
+/** Hertz k_H of a scenario: given directly, or from the material (discs and walls of one material, as the engine models it). */
 function hertzStiffness(scenario: Scenario, reducedRadiusM: number): number {
   const { contact } = scenario;
   if (contact.stiffness !== undefined) return contact.stiffness;
   const material = contact.material as { youngsModulusPa: number; poissonRatio: number };
-  // Same material on both sides (a wall is rigid: only the disc's compliance counts).
-  const wall = scenario.scene.kind === "wall";
-  const compliance = ((wall ? 1 : 2) * (1 - material.poissonRatio ** 2)) / material.youngsModulusPa;
-  return (4 / 3) * (1 / compliance) * Math.sqrt(reducedRadiusM);
+  return hertzStiffnessFromModulus(effectiveModulusSameMaterialPa(material.youngsModulusPa, material.poissonRatio), reducedRadiusM);
 }
 
-/** Contact duration of one impact, from the undamped closed forms (an estimate: damping shortens or lengthens it a little). */
+/**
+ * Duration of one impact from the undamped closed forms (the engine's analytic helpers): linear
+ * π/ω (Luding 2008), Hertz 2·I·δ_max/v (Johnson 1985, §11.1). Damping changes it by tens of
+ * per cent at most for the restitutions games use, well inside QUOTE_BAND.
+ */
 export function estimateContactDurationS(scenario: Scenario, reducedMassKg: number, reducedRadiusM: number, normalSpeedMPerS: number): number {
   if (!(normalSpeedMPerS > 0)) return 0;
-  if (scenario.contact.model === "linear") {
-    const omega = Math.sqrt((scenario.contact.stiffness as number) / reducedMassKg);
-    return Math.PI / omega;
-  }
-  const stiffness = hertzStiffness(scenario, reducedRadiusM);
-  const maxOverlapM = Math.pow((5 * reducedMassKg * normalSpeedMPerS * normalSpeedMPerS) / (4 * stiffness), 0.4);
-  return (2.94 * maxOverlapM) / normalSpeedMPerS;
+  if (scenario.contact.model === "linear") return linearContactDurationS(scenario.contact.stiffness as number, reducedMassKg);
+  return hertzContactDurationS(hertzStiffness(scenario, reducedRadiusM), reducedMassKg, normalSpeedMPerS);
 }
 
 function contactEstimate(scenario: Scenario): ContactEstimate {

@@ -12,17 +12,17 @@ export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCal
 
 async function main() {
   const wanted = process.argv.slice(2);
-  const unknown = wanted.filter((id) => !BENCH_MODULES.some((module) => module.id === id));
+  const unknown = wanted.filter((id) => !BENCH_MODULES.some((bench) => bench.id === id));
   if (unknown.length) {
-    console.error(`unknown benchmark ${unknown.join(", ")}; available: ${BENCH_MODULES.map((module) => module.id).join(", ")}`);
+    console.error(`unknown benchmark ${unknown.join(", ")}; available: ${BENCH_MODULES.map((bench) => bench.id).join(", ")}`);
     process.exit(2);
   }
-  const modules = wanted.length ? BENCH_MODULES.filter((module) => wanted.includes(module.id)) : BENCH_MODULES;
+  const modules = wanted.length ? BENCH_MODULES.filter((bench) => wanted.includes(bench.id)) : BENCH_MODULES;
   console.log(`node ${process.version}, ${new Date().toISOString()}`);
-  for (const module of modules) {
-    console.log(`\n== ${module.id}: ${module.title}`);
+  for (const bench of modules) {
+    console.log(`\n== ${bench.id}: ${bench.title}`);
     const started = performance.now();
-    await module.run();
+    await bench.run();
     console.log(`(${((performance.now() - started) / 1e3).toFixed(1)} s)`);
   }
 }

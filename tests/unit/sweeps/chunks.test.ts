@@ -4,7 +4,7 @@ import { planChunks } from "../../../lib/sweeps/chunks";
 import { CALIBRATION, predictCellNs } from "../../../lib/sweeps/cost";
 import { expandSweep } from "../../../lib/sweeps/grid";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, clone, puckPairSpec } from "./fixtures";
+import { ballPitBoxSpec, clone, puckPairSpec, type Draft } from "./fixtures";
 
 function parsed(input: SweepSpecInput): SweepSpec {
   const result = parseSweepSpec(input);
@@ -20,7 +20,7 @@ function coverage(chunks: { firstCell: number; cellCount: number }[]): number[] 
 
 describe("chunking", () => {
   it("covers every cell exactly once, in contiguous ranges numbered 0, 1, …", () => {
-    const input = clone(puckPairSpec()) as any;
+    const input = clone(puckPairSpec()) as Draft;
     input.axes.push({ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.9, count: 10 });
     const spec = parsed(input);
     fc.assert(
@@ -44,7 +44,7 @@ describe("chunking", () => {
   });
 
   it("closes a chunk once its predicted compute reaches the target", () => {
-    const input = clone(ballPitBoxSpec()) as any;
+    const input = clone(ballPitBoxSpec()) as Draft;
     input.axes = [{ parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e5, count: 12 }];
     const spec = parsed(input);
     const cellNs = predictCellNs(expandSweep(spec)[0].scenario, CALIBRATION);

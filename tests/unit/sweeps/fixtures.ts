@@ -57,3 +57,10 @@ export function ballPitBoxSpec(): SweepSpecInput {
 export function clone<T>(value: T): T {
   return JSON.parse(JSON.stringify(value)) as T;
 }
+
+/**
+ * A spec being bent out of shape on purpose (wrong types, unknown fields, deleted keys):
+ * the whole point of these tests is input the types forbid.
+ */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- deliberately untyped test input
+export type Draft = any;

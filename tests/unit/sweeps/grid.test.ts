@@ -4,7 +4,7 @@ import { canonicalJson, hash32 } from "../../../lib/sweeps/canonical";
 import { axisPositions, cellAt, cellCount, cellIndex, expandAxes, expandSweep } from "../../../lib/sweeps/grid";
 import { scenarioHash, sha256Hex } from "../../../lib/sweeps/hash";
 import { axisValues, parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, clone, puckPairSpec } from "./fixtures";
+import { ballPitBoxSpec, clone, puckPairSpec, type Draft } from "./fixtures";
 
 function parsed(input: SweepSpecInput): SweepSpec {
   const result = parseSweepSpec(input);
@@ -14,7 +14,7 @@ function parsed(input: SweepSpecInput): SweepSpec {
 
 describe("grid expansion", () => {
   it("has as many cells as the product of the axis counts, with indices 0..n-1 in row-major order", () => {
-    const input = clone(puckPairSpec()) as any;
+    const input = clone(puckPairSpec()) as Draft;
     input.axes.push({ parameter: "integrator", values: ["symplectic-euler", "velocity-verlet"] });
     const spec = parsed(input);
     const cells = expandSweep(spec);
@@ -43,7 +43,7 @@ describe("grid expansion", () => {
   });
 
   it("a sweep without axes is one cell: the base scenario", () => {
-    const input = clone(puckPairSpec()) as any;
+    const input = clone(puckPairSpec()) as Draft;
     input.axes = [];
     const spec = parsed(input);
     const cells = expandSweep(spec);
@@ -80,7 +80,7 @@ describe("grid expansion", () => {
   });
 
   it("integer parameters are rounded: scene.count 250 → 4000 on a log axis gives 250, 1000, 4000", () => {
-    const input = clone(ballPitBoxSpec()) as any;
+    const input = clone(ballPitBoxSpec()) as Draft;
     input.scenario.scene.widthM = 20;
     input.scenario.scene.heightM = 20;
     input.axes = [{ parameter: "scene.count", spacing: "log", from: 250, to: 4000, count: 3 }];
@@ -90,7 +90,7 @@ describe("grid expansion", () => {
   });
 
   it("scene.massRatio multiplies each cell's own massAKg", () => {
-    const input = clone(puckPairSpec()) as any;
+    const input = clone(puckPairSpec()) as Draft;
     input.axes = [
       { parameter: "scene.massRatio", values: [0.5, 2] },
       { parameter: "scene.massAKg", values: [0.1, 0.3] },
@@ -120,7 +120,7 @@ describe("grid expansion", () => {
 
 describe("cell seeds", () => {
   it("depend on the spec seed and the cell's scene only", () => {
-    const input = clone(ballPitBoxSpec()) as any;
+    const input = clone(ballPitBoxSpec()) as Draft;
     input.axes = [
       { parameter: "scene.count", values: [10, 20] },
       { parameter: "contact.stiffness", values: [1e3, 1e4] },

@@ -13,7 +13,7 @@ import { createChunkPool, type ChunkPool } from "../../../lib/sweeps/pool";
 import { pickMetrics, resultsToJson, type CellResult } from "../../../lib/sweeps/results";
 import { runSweep } from "../../../lib/sweeps/run";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec } from "./fixtures";
+import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft } from "./fixtures";
 
 function parsed(input: SweepSpecInput): SweepSpec {
   const result = parseSweepSpec(input);
@@ -28,7 +28,7 @@ async function sweepJson(spec: SweepSpec, pool: ChunkPool, maxCellsPerChunk: num
 }
 
 const pairSpec = (() => {
-  const input = clone(puckPairSpec()) as any;
+  const input = clone(puckPairSpec()) as Draft;
   input.axes.push({ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.9, count: 4 });
   return parsed(input); // 5 × 3 × 4 = 60 cells
 })();

@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { DEFAULT_TOLERANCES } from "../../../lib/physics/constants";
 import { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parseSweepSpec, type SpecIssue } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec } from "./fixtures";
+import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft } from "./fixtures";
 
 function issuesOf(input: unknown): SpecIssue[] {
   const result = parseSweepSpec(input);
@@ -53,7 +53,7 @@ describe("sweep spec: valid input", () => {
 
 describe("sweep spec: rejected input names the field", () => {
   it("non-positive mass, radius, stiffness and dt", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.scenario.scene.massAKg = 0;
     spec.scenario.scene.radiusBM = -0.01;
     spec.scenario.contact.stiffness = -5;
@@ -63,7 +63,7 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("NaN and infinite values", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.scenario.scene.speedAMPerS = Number.NaN;
     spec.scenario.durationS = Number.POSITIVE_INFINITY;
     const issues = issuesOf(spec);
@@ -72,7 +72,7 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("unknown fields, at any depth", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.colour = "teal";
     spec.scenario.scene.spin = 3;
     spec.axes[0].step = 2;
@@ -80,39 +80,39 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("a scene field of another scene kind", () => {
-    const spec = clone(bumperWallSpec()) as any;
+    const spec = clone(bumperWallSpec()) as Draft;
     spec.scenario.scene.offsetFraction = 0.2;
     expect(fieldsOf(spec)).toEqual(["scenario.scene.offsetFraction"]);
   });
 
   it("an axis parameter that does not apply to the chosen scene", () => {
-    const spec = clone(bumperWallSpec()) as any;
+    const spec = clone(bumperWallSpec()) as Draft;
     spec.axes = [{ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.5, count: 3 }];
     const issues = issuesOf(spec);
     expect(issues).toEqual([{ field: "axes.0.parameter", message: expect.stringMatching(/does not apply to the wall scene.*pair/) }]);
   });
 
   it("an unknown axis parameter", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes[1].parameter = "scene.wobble";
     expect(fieldsOf(spec)).toEqual(["axes.1.parameter"]);
   });
 
   it("log spacing with a non-positive end", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes = [{ parameter: "scene.speedBMPerS", spacing: "log", from: 0, to: 2, count: 3 }];
     const issues = issuesOf(spec);
     expect(issues).toEqual([{ field: "axes.0.from", message: expect.stringMatching(/log spacing needs from and to > 0/) }]);
   });
 
   it("axis ends outside the parameter's range", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes = [{ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 1, count: 5 }];
     expect(issuesOf(spec)).toEqual([{ field: "axes.0.to", message: expect.stringMatching(/impact offset must be ≥ 0 and < 1; got 1/) }]);
   });
 
   it("more cells than the limit, naming the limit and the count asked", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes = [
       { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 100 },
       { parameter: "scene.speedAMPerS", spacing: "linear", from: 1, to: 10, count: 100 },
@@ -125,7 +125,7 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("steps per cell checked at the smallest dt of an axis, not the base dt", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.scenario.durationS = 1;
     spec.scenario.substeps = 4;
     // Base: 1 s × 4 / (1/240 s) = 960 steps. Axis end 1e-6 s: 4,000,000 steps > 2,000,000.
@@ -139,13 +139,13 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("steps per cell from the base scenario name the scenario field", () => {
-    const spec = clone(bumperWallSpec()) as any;
+    const spec = clone(bumperWallSpec()) as Draft;
     spec.scenario.dtS = 1e-9; // 0.01 s / 1e-9 s = 10,000,000 steps
     expect(issuesOf(spec)).toEqual([{ field: "scenario.dtS", message: expect.stringContaining("10,000,000") }]);
   });
 
   it("the largest N of an axis against the body-steps limit", () => {
-    const spec = clone(ballPitBoxSpec()) as any;
+    const spec = clone(ballPitBoxSpec()) as Draft;
     spec.scenario.scene.widthM = 100;
     spec.scenario.scene.heightM = 100;
     spec.scenario.durationS = 10; // 10,000 steps per cell
@@ -159,7 +159,7 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("a box too full to place its discs", () => {
-    const spec = clone(ballPitBoxSpec()) as any;
+    const spec = clone(ballPitBoxSpec()) as Draft;
     spec.axes = [{ parameter: "scene.radiusM", spacing: "linear", from: 0.01, to: 0.1, count: 4 }];
     // 20 discs of radius 0.1 m need cells wider than 0.2 m: a 1 m box has at most 4 × 4 = 16 of them.
     expect(issuesOf(spec)).toEqual([{ field: "axes.0", message: expect.stringMatching(/scene.radiusM = 0.1: 20 discs of radius 0.1 m do not fit/) }]);
@@ -168,17 +168,17 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("a Hertz contact with both a stiffness and a material, and a linear one without stiffness", () => {
-    const hertz = clone(bumperWallSpec()) as any;
+    const hertz = clone(bumperWallSpec()) as Draft;
     hertz.scenario.contact.stiffness = 1e9;
     expect(fieldsOf(hertz)).toEqual(["scenario.contact.model"]);
-    const linear = clone(puckPairSpec()) as any;
+    const linear = clone(puckPairSpec()) as Draft;
     delete linear.scenario.contact.stiffness;
     linear.axes = [];
     expect(fieldsOf(linear)).toEqual(["scenario.contact.model"]);
   });
 
   it("a contact.model axis whose choices are not all complete in the scenario", () => {
-    const spec = clone(bumperWallSpec()) as any;
+    const spec = clone(bumperWallSpec()) as Draft;
     spec.axes = [{ parameter: "contact.model", values: ["hertz", "linear"] }];
     const issues = issuesOf(spec);
     expect(issues.map((issue) => issue.field)).toEqual(["axes.0", "axes.0"]);
@@ -187,13 +187,13 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("a damping axis that does not match the scenario's damping kind", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes = [{ parameter: "contact.damping.coefficient", spacing: "linear", from: 0, to: 2, count: 3 }];
     expect(issuesOf(spec)).toEqual([{ field: "axes.0.parameter", message: expect.stringContaining('damping.kind "coefficient"; it is "restitution"') }]);
   });
 
   it("a mass-ratio axis together with a massBKg axis, and a parameter swept twice", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes = [
       { parameter: "scene.massRatio", spacing: "log", from: 0.1, to: 10, count: 3 },
       { parameter: "scene.massBKg", values: [0.2, 0.4] },
@@ -207,7 +207,7 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("an integer parameter whose range cannot give count distinct integers", () => {
-    const spec = clone(ballPitBoxSpec()) as any;
+    const spec = clone(ballPitBoxSpec()) as Draft;
     spec.axes = [{ parameter: "scene.count", spacing: "linear", from: 10, to: 12, count: 5 }];
     expect(issuesOf(spec)).toEqual([{ field: "axes.0.count", message: expect.stringMatching(/only 3 distinct values.*count 5 asked/) }]);
     spec.axes = [{ parameter: "substeps", spacing: "linear", from: 1, to: 2.5, count: 2 }];
@@ -215,10 +215,10 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("a range axis missing its count, and a choice axis given a range", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     delete spec.axes[0].count;
     expect(fieldsOf(spec)).toEqual(["axes.0.count"]);
-    const choice = clone(puckPairSpec()) as any;
+    const choice = clone(puckPairSpec()) as Draft;
     choice.axes = [{ parameter: "integrator", spacing: "linear", from: 0, to: 1, count: 2 }];
     expect(fieldsOf(choice)).toEqual(["axes.0.values"]);
     choice.axes = [{ parameter: "integrator", values: ["velocity-verlet", "leapfrog"] }];
@@ -226,14 +226,14 @@ describe("sweep spec: rejected input names the field", () => {
   });
 
   it("more than three axes", () => {
-    const spec = clone(puckPairSpec()) as any;
+    const spec = clone(puckPairSpec()) as Draft;
     spec.axes.push({ parameter: "scene.gapM", values: [0.01] }, { parameter: "scene.speedAMPerS", values: [2, 3] });
     expect(fieldsOf(spec)).toEqual(["axes"]);
   });
 });
 
 describe("sweep spec: generated mutations (fast-check)", () => {
-  type Mutation = { field: string; apply: (spec: any) => void };
+  type Mutation = { field: string; apply: (spec: Draft) => void };
   const mutations: Mutation[] = [
     { field: "scenario.scene.massAKg", apply: (spec) => (spec.scenario.scene.massAKg = -Math.abs(spec.scenario.scene.massAKg)) },
     { field: "scenario.scene.massBKg", apply: (spec) => (spec.scenario.scene.massBKg = Number.NaN) },
@@ -259,7 +259,7 @@ describe("sweep spec: generated mutations (fast-check)", () => {
     });
     fc.assert(
       fc.property(validSpec, fc.constantFrom(...mutations), (values, mutation) => {
-        const spec: any = clone(puckPairSpec());
+        const spec: Draft = clone(puckPairSpec());
         Object.assign(spec.scenario.scene, {
           massAKg: values.massAKg,
           massBKg: values.massBKg,
