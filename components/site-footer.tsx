@@ -14,10 +14,10 @@ export function SiteFooter() {
         </div>
         <div className="flex items-start gap-4 sm:justify-end">
           <Link href="/#pricing" className="hover:text-ink">
-            Pricing
+            Credit packs
           </Link>
-          <Link href="/signin" className="hover:text-ink">
-            Sign in
+          <Link href="/" className="hover:text-ink">
+            Product
           </Link>
           <span className="font-mono text-xs">© {2026} Kickdrift</span>
         </div>

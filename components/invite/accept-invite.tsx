@@ -47,7 +47,14 @@ export function AcceptInvite({ token, mailboxEnabled }: { token: string; mailbox
   const emailMatches = user?.email?.toLowerCase() === details.email.toLowerCase();
 
   return (
-    <AuthPanel title={`Join ${details.studioName}`} intro={<span>You are invited as {details.role}: {ROLE_DESCRIPTIONS[details.role]}</span>}>
+    <AuthPanel
+      title={`Join ${details.studioName}`}
+      intro={
+        <span>
+          {details.studioName} invited {details.email} to join as {details.role === "engineer" ? "an" : "a"} {details.role}. {ROLE_DESCRIPTIONS[details.role]}
+        </span>
+      }
+    >
       <dl className="mb-6 grid grid-cols-[auto_1fr] items-center gap-x-4 gap-y-2 text-sm">
         <dt className="text-ink-muted">Studio</dt>
         <dd className="font-semibold" data-testid="invite-studio">

@@ -4,9 +4,9 @@ export type StudioRole = "owner" | "engineer" | "finance";
 export const STUDIO_ROLES: readonly StudioRole[] = ["owner", "engineer", "finance"];
 
 export const ROLE_DESCRIPTIONS: Record<StudioRole, string> = {
-  owner: "Manages members, invites and API tokens; runs sweeps.",
-  engineer: "Builds scenarios and runs sweeps.",
-  finance: "Sees usage, invoices and credit packs.",
+  owner: "Owners manage members, invitations and API tokens, and run sweeps.",
+  engineer: "Engineers build scenarios and run sweeps.",
+  finance: "Finance members see usage, invoices and credit packs.",
 };
 
 export type MeResponse = {
