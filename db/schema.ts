@@ -34,6 +34,9 @@ export const users = pgTable(
     passwordHash: text("password_hash"),
     isAdmin: boolean("is_admin").notNull().default(false),
     emailVerified: ts("email_verified"),
+    // Sessions (JWTs) issued before this instant are refused: set by a password reset, and when the
+    // mailbox owner first proves the address on an account someone else may have registered.
+    sessionsRevokedAt: ts("sessions_revoked_at"),
     createdAt: createdAt(),
   },
   (t) => [check("users_email_lower", sql`${t.email} = lower(${t.email})`)],

@@ -135,7 +135,8 @@ export async function confirmPasswordReset(input: z.infer<typeof passwordResetCo
       .where(and(eq(passwordResets.userId, reset.userId), isNull(passwordResets.usedAt)));
     const [user] = await tx
       .update(users)
-      .set({ passwordHash, emailVerified: now })
+      // A new password signs out every earlier session (common practice after a reset).
+      .set({ passwordHash, emailVerified: now, sessionsRevokedAt: now })
       .where(eq(users.id, reset.userId))
       .returning();
     // Proving control of the mailbox lifts a lock on the account.

@@ -44,7 +44,17 @@ export function kickdriftAdapter(): Adapter {
     async updateUser(data: Partial<AdapterUser> & Pick<AdapterUser, "id">) {
       const db = await getDb();
       const patch: Partial<typeof users.$inferInsert> = {};
-      if (data.emailVerified !== undefined) patch.emailVerified = data.emailVerified;
+      if (data.emailVerified !== undefined) {
+        patch.emailVerified = data.emailVerified;
+        const [current] = await db.select().from(users).where(eq(users.id, data.id));
+        // The mailbox owner proves the address for the first time. If the account was registered
+        // with a password by someone who never proved it, that password and its sessions may be
+        // someone else's: drop both, so a pre-registered account cannot be used to watch the owner.
+        if (data.emailVerified && current && !current.emailVerified && current.passwordHash) {
+          patch.passwordHash = null;
+          patch.sessionsRevokedAt = new Date();
+        }
+      }
       if (typeof data.name === "string" && data.name.trim()) patch.name = data.name.trim();
       const [user] =
         Object.keys(patch).length > 0

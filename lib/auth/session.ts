@@ -37,6 +37,14 @@ function sessionCookieValue(cookies: Record<string, string>): string | undefined
 }
 
 /**
+ * JWT `iat` has whole seconds: a session issued in the same second as the revocation counts as
+ * after it (the sign-in that follows a reset or a first magic link happens in that same request).
+ */
+function issuedAfterRevocation(issuedAtS: number | undefined, revokedAt: Date): boolean {
+  return issuedAtS !== undefined && issuedAtS >= Math.floor(revokedAt.getTime() / 1000);
+}
+
+/**
  * The signed-in user from a Cookie header, read fresh from the database (so a deleted user or a
  * revoked admin flag takes effect at once), or null when there is no valid session.
  */
@@ -44,14 +52,18 @@ export async function userFromCookieHeader(cookieHeader: string | null | undefin
   const value = sessionCookieValue(parseCookieHeader(cookieHeader));
   if (!value) return null;
   let userId: string | undefined;
+  let issuedAtS: number | undefined;
   try {
     const token = await decode({ token: value, secret: getAuthSecret() });
     userId = typeof token?.id === "string" ? token.id : token?.sub;
+    issuedAtS = typeof token?.iat === "number" ? token.iat : undefined;
   } catch {
     return null;
   }
   if (!userId) return null;
   const db = await getDb();
   const [user] = await db.select().from(users).where(eq(users.id, userId));
-  return user ?? null;
+  if (!user) return null;
+  if (user.sessionsRevokedAt && !issuedAfterRevocation(issuedAtS, user.sessionsRevokedAt)) return null;
+  return user;
 }

@@ -52,3 +52,29 @@ export async function passwordSignIn(
   const error = new URL(url).searchParams.get("error");
   return { ok: error === null && jar.includes("next-auth.session-token="), error, cookie: jar, status: res.status };
 }
+
+/** The newest captured mail to an address (needs the mail fake running in this process). */
+export async function latestCapturedMailTo(email: string) {
+  const { getDb } = await import("@/db/client");
+  const { mailMessages } = await import("@/db/schema");
+  const { desc, like } = await import("drizzle-orm");
+  const db = await getDb();
+  const [message] = await db
+    .select()
+    .from(mailMessages)
+    .where(like(mailMessages.toAddresses, `%${email}%`))
+    .orderBy(desc(mailMessages.receivedAt))
+    .limit(1);
+  if (!message) throw new Error(`no mail to ${email}`);
+  return message;
+}
+
+/** Signs in by e-mailed link as the browser does: ask for the link, then open it from the mailbox. */
+export async function magicLinkSignIn(email: string, callbackUrl = "http://localhost:3000/studios"): Promise<{ cookie: Response; jar: string; location: string | null }> {
+  const { csrfToken, cookie } = await csrf();
+  await nextAuth(["signin", "email"], { method: "POST", form: { csrfToken, email, callbackUrl, json: "true" }, cookie });
+  const mail = await latestCapturedMailTo(email);
+  const link = new URL(mail.links.find((l) => l.includes("/api/auth/callback/email"))!);
+  const open = await nextAuth(["callback", "email"], { search: link.search, cookie });
+  return { cookie: open, jar: mergeCookies(cookie, open), location: open.headers.get("location") };
+}
