@@ -5,7 +5,7 @@ import { authenticationError, idempotencyMismatch, invalidRequest, serviceUnavai
 import { FormParseError, parseForm, type FormObject } from "./form";
 import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted-page";
 import { Params } from "./params";
-import { closePeriod, invoiceSubscriptionPeriod, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
+import { closePeriod, closeSubscriptionPeriod, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
 import { payFromHostedPage, refreshExpiry } from "./resources/checkout";
 import { insertWebhookEndpoint } from "./resources/events";
@@ -144,9 +144,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
   const sendJson = (res: ServerResponse, status: number, body: unknown, headers: Record<string, string> = {}) =>
     send(res, status, JSON.stringify(body, null, 2), { "content-type": "application/json", ...headers });
 
-  const errorBody = (err: StripeFakeError, reqId: string): { error: StripeErrorBody & { request_log_url: string } } => ({
-    error: { ...err.body, request_log_url: `${options.publicUrl ?? baseUrl}/_fake/requests/${reqId}` },
-  });
+  const errorBody = (err: StripeFakeError): { error: StripeErrorBody } => ({ error: err.body });
 
   async function handleApi(req: IncomingMessage, res: ServerResponse, url: URL): Promise<void> {
     const reqId = requestId();
@@ -162,7 +160,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         return;
       }
       const err = serviceUnavailable();
-      sendJson(res, err.status, errorBody(err, reqId), headers);
+      sendJson(res, err.status, errorBody(err), headers);
       return;
     }
     try {
@@ -211,13 +209,17 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
       const seqBefore = store.data.seq;
       let status = 200;
       let text: string;
+      const snapshot = method === "GET" ? null : store.snapshot();
       try {
         const result = matched.handler(ctx, params, ...matched.ids);
         status = result.status ?? 200;
         text = JSON.stringify(expand(store, result.body, expandPaths), null, 2);
       } catch (err) {
+        // A failure after partial work (e.g. line item 0 made a product, line item 1 was invalid) leaves no trace,
+        // except card declines, which Stripe records (the attempt, its events) and saves for the idempotency key.
+        if (snapshot && !(err instanceof StripeFakeError && err.saveForIdempotency)) store.restore(snapshot);
         if (err instanceof StripeFakeError && err.saveForIdempotency && scopeKey) {
-          store.data.idempotency[scopeKey] = { fingerprint: print, status: err.status, body: JSON.stringify(errorBody(err, reqId), null, 2), created: ctx.now };
+          store.data.idempotency[scopeKey] = { fingerprint: print, status: err.status, body: JSON.stringify(errorBody(err), null, 2), created: ctx.now };
         }
         throw err;
       }
@@ -228,7 +230,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     } catch (err) {
       if (err instanceof StripeFakeError) {
         persist();
-        sendJson(res, err.status, errorBody(err, reqId), headers);
+        sendJson(res, err.status, errorBody(err), headers);
         dispatcher.kick();
         return;
       }
@@ -291,7 +293,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         if (!next) break;
         store.advanceClockTo(Math.max(next.end, store.now()));
         const ctx = makeCtx({ requestId: null, idempotencyKey: null });
-        invoices.push(invoiceSubscriptionPeriod(ctx, next.sub, next.end, { finalize: true, billingReason: "subscription_cycle" }));
+        invoices.push(closeSubscriptionPeriod(ctx, next.sub, next.end, true));
       }
       store.advanceClockTo(to);
       persist();

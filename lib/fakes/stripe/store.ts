@@ -170,6 +170,21 @@ export class StripeFakeStore {
     return this.data.order[id] ?? 0;
   }
 
+  /**
+   * A copy of everything a request handler may change, for rolling back a request that fails
+   * half-way (Stripe requests are all-or-nothing). Deliveries are only ever appended by handlers, so
+   * their count is enough; keeping the original delivery objects keeps the dispatcher's references valid.
+   */
+  snapshot(): { json: string; deliveries: number } {
+    const { deliveries: _d, idempotency: _i, ...rest } = this.data;
+    return { json: JSON.stringify(rest), deliveries: this.data.deliveries.length };
+  }
+
+  restore(snapshot: { json: string; deliveries: number }): void {
+    const rest = JSON.parse(snapshot.json) as Omit<FakeStateData, "deliveries" | "idempotency">;
+    this.data = { ...rest, deliveries: this.data.deliveries.slice(0, snapshot.deliveries), idempotency: this.data.idempotency };
+  }
+
   /** Writes the state atomically (temp file + rename), so a crash never leaves half a file. */
   persist(): void {
     if (!this.filePath) return;

@@ -101,6 +101,8 @@ export class WebhookDispatcher {
     }
     const result = await this.send(event, endpoint);
     delivery.attempts.push(result);
+    // Look the event up again: the store may have been reloaded while the request was in flight.
+    const current = this.store.get("events", delivery.event) ?? event;
     const ok = result.status !== null && result.status >= 200 && result.status < 300;
     if (ok) {
       delivery.state = "succeeded";
@@ -112,7 +114,7 @@ export class WebhookDispatcher {
       delivery.next_attempt_at = Date.now() + this.options.retryDelaysMs[delivery.attempts.length - 1];
     }
     if (delivery.state !== "pending") {
-      event.pending_webhooks = Math.max(0, (event.pending_webhooks as number) - 1);
+      current.pending_webhooks = Math.max(0, (current.pending_webhooks as number) - 1);
     }
     this.options.onChange();
     return result;

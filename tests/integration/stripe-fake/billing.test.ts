@@ -249,4 +249,31 @@ describe("metered subscriptions and invoices", () => {
     const deleted = await stripe.events.list({ type: "customer.subscription.deleted", limit: 1 });
     expect((deleted.data[0].data.object as Stripe.Subscription).id).toBe(sub.id);
   });
+
+  it("ends a subscription set to cancel at period end when the period closes", async () => {
+    const { studio, sub } = await subscribedStudio("last@ember-hollow.test");
+    const updated = await stripe.subscriptions.update(sub.id, { cancel_at_period_end: true });
+    expect(updated.cancel_at).toBe(sub.items.data[0].current_period_end);
+    fake.advanceClock(sub.items.data[0].current_period_end + 1);
+    const after = await stripe.subscriptions.retrieve(sub.id);
+    expect(after.status).toBe("canceled");
+    expect((await stripe.invoices.list({ customer: studio.id })).data).toHaveLength(1);
+  });
+});
+
+describe("control endpoints reject bad input naming the field", () => {
+  it("advance_clock needs a forward `to`, outage needs `down`, deliver needs `events`", async () => {
+    const post = (path: string, body: unknown) => fetch(`${fake.url}${path}`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
+    const noTo = await post("/_fake/advance_clock", {});
+    expect(noTo.status).toBe(400);
+    expect(((await noTo.json()) as { error: { param: string } }).error.param).toBe("to");
+    const backwards = await post("/_fake/advance_clock", { to: fake.now() - 100 });
+    expect(backwards.status).toBe(400);
+    const outage = await post("/_fake/outage", {});
+    expect(((await outage.json()) as { error: { param: string } }).error.param).toBe("down");
+    const deliver = await post("/_fake/deliver", { events: "evt_1" });
+    expect(((await deliver.json()) as { error: { param: string } }).error.param).toBe("events");
+    const unknown = await post("/_fake/nothing_here", {});
+    expect(unknown.status).toBe(404);
+  });
 });

@@ -189,4 +189,30 @@ describe("Checkout Sessions (payment mode)", () => {
     expect(badPrice.statusCode).toBe(404);
     expect(badPrice.param).toBe("line_items[0][price]");
   });
+
+  it("leaves no trace of a request that fails half-way", async () => {
+    const productsBefore = (await stripe.products.list({ limit: 100 })).data.length;
+    const eventsBefore = (await stripe.events.list({ limit: 100 })).data.length;
+    const err = await expectStripeError(
+      stripe.checkout.sessions.create({
+        mode: "payment",
+        success_url: SUCCESS_URL,
+        line_items: [
+          { quantity: 1, price_data: { currency: "usd", unit_amount: 100, product_data: { name: "Made then rolled back" } } },
+          { quantity: 1, price: "price_missing_second" },
+        ],
+      }),
+    );
+    expect(err.param).toBe("line_items[1][price]");
+    expect((await stripe.products.list({ limit: 100 })).data.length).toBe(productsBefore);
+    expect((await stripe.events.list({ limit: 100 })).data.length).toBe(eventsBefore);
+  });
+
+  it("expands data.customer in lists", async () => {
+    await newSession();
+    const list = await stripe.checkout.sessions.list({ customer: customer.id, limit: 1, expand: ["data.customer"] });
+    expect((list.data[0].customer as Stripe.Customer).email).toBe("finance@pebble-forge.test");
+    const bad = await expectStripeError(stripe.checkout.sessions.list({ limit: 1, expand: ["data.no_such_field"] }));
+    expect(bad.param).toBe("expand");
+  });
 });

@@ -169,7 +169,7 @@ const WINDOW_S: Record<string, number> = { hour: 3600, day: DAY_S };
 export function listEventSummaries(ctx: Ctx, params: Params, meterId: string): HandlerResult {
   params.allowOnly(["customer", "start_time", "end_time", "value_grouping_window", "limit", "starting_after", "ending_before"]);
   const meter = mustGet(ctx.store, "meters", meterId);
-  const customer = params.requiredString("customer");
+  const customer = mustGet(ctx.store, "customers", params.requiredString("customer"), "customer").id;
   const start = params.integer("start_time", { required: true, min: 0 }) as number;
   const end = params.integer("end_time", { required: true, min: 0 }) as number;
   const window = params.string("value_grouping_window", { oneOf: ["hour", "day"] });
@@ -763,12 +763,14 @@ export function closePeriod(ctx: Ctx, opts: ClosePeriodOptions): StripeObject[] 
     .newestFirst("subscriptions")
     .reverse()
     .filter((s) => s.status === "active" && (!opts.customer || s.customer === opts.customer) && (!opts.subscription || s.id === opts.subscription));
-  const invoices: StripeObject[] = [];
-  for (const sub of subs) {
-    invoices.push(invoiceSubscriptionPeriod(ctx, sub, ctx.now, { finalize: opts.finalize ?? true, billingReason: "subscription_cycle" }));
-    if (sub.cancel_at_period_end) endSubscription(ctx, sub, { comment: null, feedback: null, reason: "cancellation_requested" });
-  }
-  return invoices;
+  return subs.map((sub) => closeSubscriptionPeriod(ctx, sub, ctx.now, opts.finalize ?? true));
+}
+
+/** One period end: the invoice for the usage, then the cancellation if it was asked for at period end. */
+export function closeSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd: number, finalize: boolean): StripeObject {
+  const invoice = invoiceSubscriptionPeriod(ctx, sub, periodEnd, { finalize, billingReason: "subscription_cycle" });
+  if (sub.cancel_at_period_end) endSubscription(ctx, sub, { comment: null, feedback: null, reason: "cancellation_requested" });
+  return invoice;
 }
 
 /** Subscriptions whose period ends at or before `to`, each with that end: what a test clock advance crosses. */
@@ -782,4 +784,3 @@ export function nextPeriodBoundary(ctx: Ctx, to: number): { sub: StripeObject; e
   return best;
 }
 
-export { endSubscription };
