@@ -117,7 +117,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
       // Land at least one full step before the contact so the entry is integrated as plain stepping would.
       const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
       if (target > n + 1) {
-        jumpFreeFlight(bodies, n, target, h, recorder, gravity);
+        jumpFreeFlight(bodies, n, target, h, recorder, gravity, timeToContactS !== Infinity);
         n = target;
         if (n >= totalSteps) break;
       }
@@ -201,29 +201,38 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
 
 /**
  * Advances every body in a straight line from step `from` to step `to` (no force acts: no contact
- * and no gravity), recording the samples that fall in between. Positions are computed from the
- * anchor at `from`, so the end state does not depend on whether samples were recorded.
+ * and no gravity), recording the samples that fall in between.
+ *
+ * Before a contact (`replicateRounding`), positions are advanced by the same additions plain
+ * stepping performs (x += h·v once per step; no forces, no bookkeeping), so the contact is entered
+ * from bit-identical positions and the fast and plain runs agree exactly — also when a contact
+ * starts exactly on a step boundary, where any rounding difference would shift it by a step.
+ * After the last contact nothing depends on the positions any more, and the jump is one product.
  */
-function jumpFreeFlight(bodies: Bodies, from: number, to: number, h: number, recorder: SeriesRecorder | null, gravity: number): void {
-  const { count, x, y, vx, vy, previousX, previousY } = bodies;
-  previousX.set(x);
-  previousY.set(y);
-  if (recorder) {
-    let sampleStep = recorder.nextSampleStep();
-    while (sampleStep <= to) {
-      const elapsedS = (sampleStep - from) * h;
-      for (let i = 0; i < count; i++) {
-        x[i] = previousX[i] + elapsedS * vx[i];
-        y[i] = previousY[i] + elapsedS * vy[i];
+function jumpFreeFlight(bodies: Bodies, from: number, to: number, h: number, recorder: SeriesRecorder | null, gravity: number, replicateRounding: boolean): void {
+  const { count, x, y, vx, vy } = bodies;
+  let position = from;
+  while (position < to) {
+    const sampleStep = recorder ? recorder.nextSampleStep() : Infinity;
+    const segmentEnd = sampleStep < to ? sampleStep : to;
+    const segmentSteps = segmentEnd - position;
+    for (let i = 0; i < count; i++) {
+      const stepX = h * vx[i];
+      const stepY = h * vy[i];
+      if (replicateRounding) {
+        let px = x[i];
+        let py = y[i];
+        if (stepX !== 0) for (let k = 0; k < segmentSteps; k++) px += stepX;
+        if (stepY !== 0) for (let k = 0; k < segmentSteps; k++) py += stepY;
+        x[i] = px;
+        y[i] = py;
+      } else {
+        x[i] += segmentSteps * stepX;
+        y[i] += segmentSteps * stepY;
       }
-      recorder.recordUpTo(sampleStep, bodies, 0, gravity, 0, h);
-      sampleStep = recorder.nextSampleStep();
     }
-  }
-  const elapsedS = (to - from) * h;
-  for (let i = 0; i < count; i++) {
-    x[i] = previousX[i] + elapsedS * vx[i];
-    y[i] = previousY[i] + elapsedS * vy[i];
+    position = segmentEnd;
+    if (recorder && position === sampleStep) recorder.recordUpTo(position, bodies, 0, gravity, 0, h);
   }
 }
 

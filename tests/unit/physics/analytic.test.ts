@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { gamma, solveODE } from "mathjs";
+import { solveODE } from "./fixtures";
+import { gamma } from "mathjs";
 import {
   HERTZ_SHAPE_INTEGRAL,
   dimensionlessForceContactDuration,
@@ -63,7 +64,7 @@ describe("analytic helpers", () => {
     // Reference: mathjs solveODE (Dormand–Prince RK45, tol 1e-10) on δ'' = −2ζδ' − δ with ω0 = 1, stopped where δ + 2ζδ' = 0.
     for (const zeta of [0.05, 0.3, 0.8, 1.5]) {
       const tEnd = dimensionlessForceContactDuration(zeta);
-      const solution = solveODE((_t: number, y: number[]) => [y[1], -2 * zeta * y[1] - y[0]], [0, tEnd], [0, 1], { tol: 1e-11, maxStep: 1e-2, maxIter: 1e6 }) as unknown as { y: number[][] };
+      const solution = solveODE((_t: number, y: number[]) => [y[1], -2 * zeta * y[1] - y[0]], [0, tEnd], [0, 1], { tol: 1e-11, maxStep: 1e-2, maxIter: 1e6 });
       const last = solution.y[solution.y.length - 1];
       expect(Math.abs(last[0] + 2 * zeta * last[1])).toBeLessThan(1e-7); // the force is zero at t_c
       expect(-last[1]).toBeCloseTo(linearRestitutionForDampingRatio(zeta), 7); // e = −δ'(t_c)/δ'(0)

@@ -1,3 +1,4 @@
+import * as mathjs from "mathjs";
 import { DEFAULT_TOLERANCES, type ContactSpec, type IntegratorName, type Scenario, type Scene } from "@/lib/physics";
 
 /** Invented test props: "Puckworks" studio's air-hockey pucks and crates. */
@@ -35,3 +36,15 @@ export function logLogSlope(steps: readonly number[], errors: readonly number[])
   }
   return numerator / denominator;
 }
+
+/** mathjs' adaptive Runge–Kutta solver (its type declarations omit solveODE, so it is typed here). */
+export interface OdeOptions {
+  method?: "RK23" | "RK45";
+  tol?: number;
+  firstStep?: number;
+  maxStep?: number;
+  maxIter?: number;
+}
+export const solveODE = (mathjs as unknown as {
+  solveODE: (f: (t: number, y: number[]) => number[], span: [number, number], y0: number[], options?: OdeOptions) => { t: number[]; y: number[][] };
+}).solveODE;
