@@ -332,9 +332,11 @@ export function rangeViolation(parameter: NumericParameter, value: number): stri
   return null;
 }
 
-/** Numbers in messages: plain for ordinary magnitudes, grouped thousands for big integers. */
+/** Numbers in messages: grouped thousands up to millions ("262,144"), exponents beyond ("5e8"), plain otherwise. */
 export function formatLimit(value: number): string {
-  if (Number.isInteger(value) && Math.abs(value) >= 1_000 && Math.abs(value) < 1e21) return value.toLocaleString("en-US");
+  const magnitude = Math.abs(value);
+  if (Number.isInteger(value) && magnitude >= 1_000 && magnitude < 1e7) return value.toLocaleString("en-US");
+  if (magnitude >= 1e7 && magnitude < 1e21) return value.toExponential().replace("e+", "e");
   return String(value);
 }
 

@@ -41,8 +41,11 @@ export interface ChunkPoolOptions {
 export interface ChunkPool {
   readonly threads: number;
   readonly entry: WorkerEntry;
-  /** Run one chunk on a worker thread (waits for a slot when maxInFlight chunks are running). */
-  run(task: ChunkTask): Promise<ChunkOutcome>;
+  /**
+   * Run one chunk on a worker thread (waits for a slot when maxInFlight chunks are running).
+   * Aborting the signal drops the chunk if it is still waiting; a running chunk finishes.
+   */
+  run(task: ChunkTask, options?: { signal?: AbortSignal }): Promise<ChunkOutcome>;
   /** Chunks waiting for a slot, and chunks running. */
   readonly pending: number;
   readonly inFlight: number;
@@ -95,7 +98,7 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
   return {
     threads,
     entry,
-    run: (task) => queue.add(() => piscina.run(task)),
+    run: (task, runOptions) => queue.add(() => piscina.run(task), { signal: runOptions?.signal }),
     get pending() {
       return queue.size;
     },

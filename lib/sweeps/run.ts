@@ -83,14 +83,19 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
     options.onProgress?.({ chunksDone, chunks: chunks.length, cellsDone, cells: header.cellCount, computeMs });
   };
 
+  // On the first failure, drop the chunks still waiting for a thread: the sweep has failed anyway.
+  const abort = new AbortController();
   await Promise.all(
     chunks.map(async (plan) => {
-      if (failed) return;
       try {
-        const outcome = await options.pool.run({ kind: "range", chunkIndex: plan.index, spec, firstCell: plan.firstCell, cellCount: plan.cellCount });
+        const outcome = await options.pool.run(
+          { kind: "range", chunkIndex: plan.index, spec, firstCell: plan.firstCell, cellCount: plan.cellCount },
+          { signal: abort.signal },
+        );
         if (!failed) accept(outcome);
       } catch (error) {
         failed = true;
+        abort.abort();
         throw error;
       }
     }),

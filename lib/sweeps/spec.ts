@@ -607,7 +607,7 @@ function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue):
   if (cells > SPEC_LIMITS.maxCellsPerSweep) {
     addIssue(
       ["axes"],
-      `${formatLimit(cells)} cells (${axisValueLists.map((values) => values.length).join(" × ")}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`,
+      `${formatLimit(cells)} cells (${axisValueLists.map((values) => formatLimit(values.length)).join(" × ")}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`,
     );
     return;
   }

@@ -79,6 +79,15 @@ describe("chunk pool (piscina, TypeScript entry under tsx)", () => {
     const outcome = twoPool.run({ kind: "cells", chunkIndex: 3, cells: [{ index: 41, axisValues: [], scenario: badScenario }] });
     await expect(outcome).rejects.toThrow(/cell 41 of chunk 3/);
   });
+
+  it("fails a sweep on the first failing chunk and drops the chunks still waiting", async () => {
+    // A spec that bypassed the schema: 5,000 discs cannot be laid out in the 1 m box, so every cell throws.
+    const unrunnable = { ...boxSpec, scenario: { ...boxSpec.scenario, scene: { ...boxSpec.scenario.scene, count: 5_000 } }, axes: [{ parameter: "contact.stiffness", spacing: "log" as const, from: 1e3, to: 1e5, count: 40 }] };
+    const seen: number[] = [];
+    await expect(runSweep(unrunnable, { pool: onePool, maxCellsPerChunk: 1, onResults: (results) => seen.push(results.length) })).rejects.toThrow(/failed in the engine/);
+    expect(seen).toEqual([]);
+    expect(onePool.pending).toBe(0);
+  });
 });
 
 describe("chunk pool (esbuild bundle, as under next start)", () => {

@@ -141,7 +141,7 @@ describe("sweep spec: rejected input names the field", () => {
   it("steps per cell from the base scenario name the scenario field", () => {
     const spec = clone(bumperWallSpec()) as Draft;
     spec.scenario.dtS = 1e-9; // 0.01 s / 1e-9 s = 10,000,000 steps
-    expect(issuesOf(spec)).toEqual([{ field: "scenario.dtS", message: expect.stringContaining("10,000,000") }]);
+    expect(issuesOf(spec)).toEqual([{ field: "scenario.dtS", message: expect.stringContaining("= 1e7) exceed") }]);
   });
 
   it("the largest N of an axis against the body-steps limit", () => {
@@ -155,7 +155,7 @@ describe("sweep spec: rejected input names the field", () => {
     // 9,000 bodies × 10,000 steps = 9e7 ≤ 5e8: fine. 100 s → 9e8 > 5e8.
     expect(parseSweepSpec(spec).ok).toBe(true);
     spec.scenario.durationS = 100;
-    expect(issuesOf(spec)).toEqual([{ field: "axes.0", message: expect.stringMatching(/scene.count = 9000.*9,000 × 100,000.*500,000,000/) }]);
+    expect(issuesOf(spec)).toEqual([{ field: "axes.0", message: expect.stringMatching(/scene.count = 9000.*9,000 × 100,000.*5e8/) }]);
   });
 
   it("a box too full to place its discs", () => {
