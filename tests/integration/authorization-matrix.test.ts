@@ -4,8 +4,6 @@
  * Expected statuses are written out here from the policy in the contract (not read from the code),
  * so a guard that drifts from the contract fails a cell.
  */
-import { readdirSync, statSync } from "node:fs";
-import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { User } from "@/db/schema";
 import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
@@ -13,6 +11,7 @@ import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeInvite, makePasswordReset, makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf, sessionCookie } from "../helpers/http";
+import { concretePath, loadRoute, routeFolders, routePolicies, UNGUARDED_ROUTES } from "../helpers/routes";
 
 const ACTORS = [
   "anonymous",
@@ -178,32 +177,6 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/dev/mail", method: "GET", expect: PUBLIC(200) },
 ];
 
-/** Route files that are not part of the policy table, and why. */
-const NOT_POLICY_ROUTES: Record<string, string> = {
-  "auth/[...nextauth]": "next-auth's own endpoints (sign-in, callback, csrf, session, sign-out)",
-  "[...path]": "the catch-all that answers 404 JSON for unknown /api paths",
-};
-
-const API_DIR = path.join(process.cwd(), "app", "api");
-
-function routeFolders(dir = API_DIR): string[] {
-  const found: string[] = [];
-  for (const entry of readdirSync(dir)) {
-    const full = path.join(dir, entry);
-    if (statSync(full).isDirectory()) found.push(...routeFolders(full));
-    else if (entry === "route.ts") found.push(path.relative(API_DIR, dir).split(path.sep).join("/"));
-  }
-  return found.sort();
-}
-
-async function loadRoute(route: string): Promise<Record<string, unknown>> {
-  return (await import(/* @vite-ignore */ path.join(API_DIR, route, "route.ts"))) as Record<string, unknown>;
-}
-
-function concretePath(route: string, params: Record<string, string>): string {
-  return `/api/${route.replace(/\[([^\]]+)\]/g, (_, name: string) => encodeURIComponent(params[name] ?? name))}`;
-}
-
 let mailFake: MailFake;
 beforeAll(async () => {
   await useFreshDb();
@@ -216,22 +189,14 @@ afterAll(async () => {
 
 describe("every route method has a row, and every other method answers 405", () => {
   it("lists each policy-guarded handler in ROUTES and nothing that does not exist", async () => {
-    const exported: string[] = [];
-    for (const route of routeFolders()) {
-      if (route in NOT_POLICY_ROUTES) continue;
-      const mod = await loadRoute(route);
-      for (const method of HTTP_METHODS) {
-        const handler = mod[method] as { policy?: unknown } | undefined;
-        if (handler?.policy) exported.push(`${method} ${route}`);
-      }
-    }
+    const exported = (await routePolicies()).map((p) => `${p.method} ${p.route}`);
     const table = ROUTES.map((r) => `${r.method} ${r.route}`);
     expect(exported.sort()).toEqual([...table].sort());
   });
 
   it("answers 405 JSON with an Allow header for the methods a route does not support", async () => {
     for (const route of routeFolders()) {
-      if (route in NOT_POLICY_ROUTES) continue;
+      if (route in UNGUARDED_ROUTES) continue;
       const mod = await loadRoute(route);
       const allowed = HTTP_METHODS.filter((m) => (mod[m] as { policy?: unknown } | undefined)?.policy);
       for (const method of HTTP_METHODS.filter((m) => !allowed.includes(m))) {

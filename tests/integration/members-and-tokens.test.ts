@@ -9,8 +9,11 @@ import * as tokensRoute from "@/app/api/v1/studios/[studioId]/tokens/route";
 import * as tokenRoute from "@/app/api/v1/studios/[studioId]/tokens/[tokenId]/route";
 import * as studioRoute from "@/app/api/v1/studios/[studioId]/route";
 import { sha256Hex } from "@/db/ids";
+import { authorize, resolveActor, type RoutePolicy } from "@/lib/auth/guard";
+import { ApiError } from "@/lib/errors";
+import { buildRequest } from "../helpers/http";
 import { closeTestDb, useFreshDb } from "../helpers/db";
-import { makeStudio, makeUser } from "../helpers/factories";
+import { makeStudio, makeToken, makeUser } from "../helpers/factories";
 import { call, errorOf, sessionCookie } from "../helpers/http";
 
 let db: Db;
@@ -152,5 +155,47 @@ describe("API tokens", () => {
     expect(res.status).toBe(404);
     const [row] = await db.select().from(apiTokens).where(eq(apiTokens.id, tokenId));
     expect(row.revokedAt).toBeNull();
+  });
+});
+
+describe("token scopes on studio routes (the policy later mutations such as sweeps will use)", () => {
+  const WRITE_ROUTE: RoutePolicy = { access: "studio", roles: ["owner", "engineer"], token: "write" };
+  const READ_ROUTE: RoutePolicy = { access: "studio", roles: "member", token: "read" };
+
+  async function decide(policy: RoutePolicy, studioId: string, bearer: string): Promise<number> {
+    try {
+      const actor = await resolveActor(buildRequest({ path: "/x", bearer }));
+      await authorize(policy, actor, studioId);
+      return 200;
+    } catch (error) {
+      if (error instanceof ApiError) return error.status;
+      throw error;
+    }
+  }
+
+  it("lets write tokens mutate and read; read tokens only read (403 insufficient_scope)", async () => {
+    const { studioId } = await studioWithOwner();
+    const read = await makeToken(studioId, ["read"]);
+    const write = await makeToken(studioId, ["write"]);
+    expect(await decide(WRITE_ROUTE, studioId, write.secret)).toBe(200);
+    expect(await decide(READ_ROUTE, studioId, write.secret)).toBe(200);
+    expect(await decide(READ_ROUTE, studioId, read.secret)).toBe(200);
+    expect(await decide(WRITE_ROUTE, studioId, read.secret)).toBe(403);
+    const actor = await resolveActor(buildRequest({ path: "/x", bearer: read.secret }));
+    await expect(authorize(WRITE_ROUTE, actor, studioId)).rejects.toMatchObject({ code: "insufficient_scope" });
+  });
+
+  it("refreshes lastUsedAt at most once a minute", async () => {
+    const { studioId } = await studioWithOwner();
+    const token = await makeToken(studioId, ["read"]);
+    await resolveActor(buildRequest({ path: "/x", bearer: token.secret }));
+    const [first] = await db.select().from(apiTokens).where(eq(apiTokens.id, token.id));
+    await resolveActor(buildRequest({ path: "/x", bearer: token.secret }));
+    const [second] = await db.select().from(apiTokens).where(eq(apiTokens.id, token.id));
+    expect(second.lastUsedAt?.getTime()).toBe(first.lastUsedAt?.getTime());
+    await db.update(apiTokens).set({ lastUsedAt: new Date(Date.now() - 61_000) }).where(eq(apiTokens.id, token.id));
+    await resolveActor(buildRequest({ path: "/x", bearer: token.secret }));
+    const [third] = await db.select().from(apiTokens).where(eq(apiTokens.id, token.id));
+    expect(third.lastUsedAt!.getTime()).toBeGreaterThan(Date.now() - 5_000);
   });
 });
