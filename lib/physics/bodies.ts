@@ -41,6 +41,26 @@ export function createBodies(count: number): Bodies {
   };
 }
 
+/** Largest body count whose state arrays are kept for reuse between runs. */
+const MAX_REUSED_BODY_COUNT = 64;
+const reusedBodies: (Bodies | undefined)[] = [];
+
+/**
+ * State arrays for `count` bodies, reused across runs for small scenes (a sweep runs many
+ * thousands of two-body cells; allocating a dozen typed arrays each time would dominate).
+ * Safe because a run is synchronous and never hands the arrays out; every slot a run reads is
+ * written first (`setBody` for the state, the force pass for forces, the integrator for scratch).
+ */
+export function reusableBodies(count: number): Bodies {
+  if (count > MAX_REUSED_BODY_COUNT) return createBodies(count);
+  let bodies = reusedBodies[count];
+  if (bodies === undefined) {
+    bodies = createBodies(count);
+    reusedBodies[count] = bodies;
+  }
+  return bodies;
+}
+
 /** Sets one body; the inverse mass is derived here so it is never out of date. */
 export function setBody(bodies: Bodies, index: number, xM: number, yM: number, vxMPerS: number, vyMPerS: number, massKg: number, radiusM: number): void {
   bodies.x[index] = xM;

@@ -67,6 +67,8 @@ export interface ContactFieldParameters {
   broadPhase: typeof BROAD_PHASE_ALL_PAIRS | typeof BROAD_PHASE_GRID;
 }
 
+const EMPTY_INDICES = new Int32Array(0);
+
 export class ContactField implements ForceField {
   readonly model: number;
   readonly stiffness: number;
@@ -75,9 +77,9 @@ export class ContactField implements ForceField {
   readonly dampingValue: number;
   readonly gravityMPerS2: number;
   readonly broadPhase: number;
-  private readonly wallNormalX: Float64Array;
-  private readonly wallNormalY: Float64Array;
-  private readonly wallOffset: Float64Array;
+  private readonly wallNormalX: number[];
+  private readonly wallNormalY: number[];
+  private readonly wallOffset: number[];
   readonly wallCount: number;
 
   // Results of the last evaluation.
@@ -118,10 +120,10 @@ export class ContactField implements ForceField {
   private cutoffSquaredM2 = 0;
 
   // Uniform grid (counting sort by cell), allocated once and grown if needed.
-  private cellOfBody: Int32Array = new Int32Array(0);
-  private cellStart: Int32Array = new Int32Array(0);
-  private bodiesByCell: Int32Array = new Int32Array(0);
-  private candidates: Int32Array = new Int32Array(0);
+  private cellOfBody: Int32Array = EMPTY_INDICES;
+  private cellStart: Int32Array = EMPTY_INDICES;
+  private bodiesByCell: Int32Array = EMPTY_INDICES;
+  private candidates: Int32Array = EMPTY_INDICES;
 
   constructor(parameters: ContactFieldParameters) {
     this.model = parameters.model;
@@ -132,9 +134,14 @@ export class ContactField implements ForceField {
     this.gravityMPerS2 = parameters.gravityMPerS2;
     this.broadPhase = parameters.broadPhase;
     this.wallCount = parameters.walls.length;
-    this.wallNormalX = Float64Array.from(parameters.walls, (wall) => wall.normalX);
-    this.wallNormalY = Float64Array.from(parameters.walls, (wall) => wall.normalY);
-    this.wallOffset = Float64Array.from(parameters.walls, (wall) => wall.offsetM);
+    this.wallNormalX = [];
+    this.wallNormalY = [];
+    this.wallOffset = [];
+    for (const wall of parameters.walls) {
+      this.wallNormalX.push(wall.normalX);
+      this.wallNormalY.push(wall.normalY);
+      this.wallOffset.push(wall.offsetM);
+    }
   }
 
   evaluate(bodies: Bodies): void {

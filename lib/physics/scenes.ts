@@ -4,7 +4,7 @@
  * overlap of one ulp between touching bodies, the layout is nudged apart.
  */
 import type { BoxScene, PairScene, RowScene, Scene, WallScene } from "./types";
-import { createBodies, setBody, type Bodies } from "./bodies";
+import { reusableBodies, setBody, type Bodies } from "./bodies";
 import type { Wall } from "./contact-field";
 import { Xoshiro128StarStar } from "./random";
 import { MAX_BOX_DISCS } from "./constants";
@@ -30,7 +30,7 @@ export function buildScene(scene: Scene, seed: number): SceneSetup {
 
 /** A (index 0) below and left of B (index 1, at the origin), moving along +x; B moves along −x. */
 function buildPair(scene: PairScene): SceneSetup {
-  const bodies = createBodies(2);
+  const bodies = reusableBodies(2);
   const contactDistance = scene.radiusAM + scene.radiusBM;
   const offsetM = scene.offsetFraction * contactDistance;
   let separationXM = Math.sqrt(contactDistance * contactDistance - offsetM * offsetM) + scene.gapM;
@@ -44,7 +44,7 @@ function buildPair(scene: PairScene): SceneSetup {
 
 /** The wall is the line x = 0; the disc starts at x = r + gap moving at `angleDeg` from the normal. */
 function buildWall(scene: WallScene): SceneSetup {
-  const bodies = createBodies(1);
+  const bodies = reusableBodies(1);
   const angleRad = (scene.angleDeg * Math.PI) / 180;
   const speed = scene.speedMPerS;
   setBody(bodies, 0, scene.radiusM + scene.gapM, 0, -speed * Math.cos(angleRad), speed * Math.sin(angleRad), scene.massKg, scene.radiusM);
@@ -53,7 +53,7 @@ function buildWall(scene: WallScene): SceneSetup {
 
 /** Striker (index 0) at x = 0 moving along +x, then `count` resting discs (indices 1…count). */
 function buildRow(scene: RowScene): SceneSetup {
-  const bodies = createBodies(scene.count + 1);
+  const bodies = reusableBodies(scene.count + 1);
   const diameter = 2 * scene.radiusM;
   setBody(bodies, 0, 0, 0, scene.strikerSpeedMPerS, 0, scene.strikerMassKg, scene.radiusM);
   let previousXM = 0;
@@ -121,7 +121,7 @@ function buildBox(scene: BoxScene, seed: number): SceneSetup {
   const cellCount = cellsX * cellsY;
   const cells = new Int32Array(cellCount);
   for (let c = 0; c < cellCount; c++) cells[c] = c;
-  const bodies = createBodies(scene.count);
+  const bodies = reusableBodies(scene.count);
   const r = scene.radiusM;
   for (let i = 0; i < scene.count; i++) {
     const pick = i + random.nextBelow(cellCount - i);
