@@ -215,4 +215,13 @@ describe("Checkout Sessions (payment mode)", () => {
     const bad = await expectStripeError(stripe.checkout.sessions.list({ limit: 1, expand: ["data.no_such_field"] }));
     expect(bad.param).toBe("expand");
   });
+
+  it("creates the customer from the page when customer_creation is always", async () => {
+    const session = await stripe.checkout.sessions.create({ mode: "payment", customer_creation: "always", success_url: SUCCESS_URL, line_items: [{ price: packPrice.id, quantity: 1 }] });
+    expect(session.customer).toBeNull();
+    const res = await fetch(session.url as string, payForm("4242424242424242", "newcomer@saltmarsh-arcade.test"));
+    expect(res.status).toBe(303);
+    const paid = await stripe.checkout.sessions.retrieve(session.id, { expand: ["customer"] });
+    expect((paid.customer as Stripe.Customer).email).toBe("newcomer@saltmarsh-arcade.test");
+  });
 });

@@ -1,5 +1,5 @@
 import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
-import { invalidParam, invalidRequest } from "../errors";
+import { invalidParam, resourceMissing } from "../errors";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
 import { randomBytes } from "node:crypto";
@@ -55,10 +55,11 @@ export function paymentMethodObject(ctx: Ctx, id: string, cardNumber: string, cu
   };
 }
 
-export function createCustomer(ctx: Ctx, params: Params): HandlerResult {
-  params.allowOnly(CUSTOMER_WRITE_KEYS);
-  const defaultPm = readDefaultPaymentMethod(ctx, params);
-  const customer: StripeObject = {
+export function newCustomerObject(
+  ctx: Ctx,
+  fields: { email?: string | null; name?: string | null; description?: string | null; phone?: string | null; metadata?: Record<string, string>; preferredLocales?: string[]; defaultPaymentMethod?: string | null },
+): StripeObject {
+  return {
     id: newId("cus", 14),
     object: "customer",
     address: null,
@@ -67,21 +68,35 @@ export function createCustomer(ctx: Ctx, params: Params): HandlerResult {
     currency: null,
     default_source: null,
     delinquent: false,
-    description: params.nullableString("description") ?? null,
+    description: fields.description ?? null,
     discount: null,
-    email: params.nullableString("email", 512) ?? null,
+    email: fields.email ?? null,
     invoice_prefix: randomBytes(4).toString("hex").toUpperCase(),
-    invoice_settings: { custom_fields: null, default_payment_method: defaultPm ?? null, footer: null, rendering_options: null },
+    invoice_settings: { custom_fields: null, default_payment_method: fields.defaultPaymentMethod ?? null, footer: null, rendering_options: null },
     livemode: false,
-    metadata: applyMetadata({}, params.metadata()),
-    name: params.nullableString("name", 256) ?? null,
+    metadata: fields.metadata ?? {},
+    name: fields.name ?? null,
     next_invoice_sequence: 1,
-    phone: params.nullableString("phone", 20) ?? null,
-    preferred_locales: params.stringArray("preferred_locales") ?? [],
+    phone: fields.phone ?? null,
+    preferred_locales: fields.preferredLocales ?? [],
     shipping: null,
     tax_exempt: "none",
     test_clock: null,
   };
+}
+
+export function createCustomer(ctx: Ctx, params: Params): HandlerResult {
+  params.allowOnly(CUSTOMER_WRITE_KEYS);
+  const defaultPm = readDefaultPaymentMethod(ctx, params);
+  const customer = newCustomerObject(ctx, {
+    email: params.nullableString("email", 512),
+    name: params.nullableString("name", 256),
+    description: params.nullableString("description"),
+    phone: params.nullableString("phone", 20),
+    metadata: applyMetadata({}, params.metadata()),
+    preferredLocales: params.stringArray("preferred_locales"),
+    defaultPaymentMethod: defaultPm,
+  });
   ctx.store.insert("customers", customer);
   ctx.emit("customer.created", customer);
   return { body: customer };
@@ -95,7 +110,7 @@ export function retrieveCustomer(ctx: Ctx, params: Params, id: string): HandlerR
 export function updateCustomer(ctx: Ctx, params: Params, id: string): HandlerResult {
   params.allowOnly(CUSTOMER_WRITE_KEYS);
   const customer = mustGet(ctx.store, "customers", id);
-  if (customer.deleted) throw invalidRequest(`No such customer: '${id}'`, "id", "resource_missing");
+  if (customer.deleted) throw resourceMissing("customer", id);
   const before = clone(customer);
   const previous: Record<string, unknown> = {};
   const set = (key: string, value: unknown) => {

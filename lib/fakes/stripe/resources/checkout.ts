@@ -4,7 +4,7 @@ import { invalidParam, invalidRequest } from "../errors";
 import { lineAmountCents } from "../money";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
-import { currencyParam, insertPrice, insertProduct, paymentMethodObject, readUnitAmount } from "./catalog";
+import { currencyParam, insertPrice, insertProduct, newCustomerObject, paymentMethodObject, readUnitAmount } from "./catalog";
 
 const SESSION_KEYS = [
   "mode",
@@ -22,6 +22,7 @@ const SESSION_KEYS = [
   "locale",
   "submit_type",
   "ui_mode",
+  "customer_creation",
 ] as const;
 
 const MIN_EXPIRY_S = 30 * 60;
@@ -82,6 +83,8 @@ export function createSession(ctx: Ctx, params: Params): HandlerResult {
   if (customer?.deleted) throw invalidParam("customer", `No such customer: '${customerId}'`, "resource_missing");
   const customerEmail = params.string("customer_email", { max: 800 });
   if (customer && customerEmail) throw invalidParam("customer_email", "You may only specify one of these parameters: customer, customer_email.", "parameters_exclusive");
+  const customerCreation = params.string("customer_creation", { oneOf: ["always", "if_required"] });
+  if (customer && customerCreation) throw invalidParam("customer_creation", "customer_creation can only be used when no customer is given.");
   const clientReferenceId = params.string("client_reference_id", { max: 200 }) ?? null;
   const expiresAt = params.integer("expires_at") ?? ctx.now + MAX_EXPIRY_S;
   if (expiresAt < ctx.now + MIN_EXPIRY_S || expiresAt > ctx.now + MAX_EXPIRY_S) {
@@ -148,7 +151,7 @@ export function createSession(ctx: Ctx, params: Params): HandlerResult {
     custom_fields: [],
     custom_text: { after_submit: null, shipping_address: null, submit: null, terms_of_service_acceptance: null },
     customer: customer ? customer.id : null,
-    customer_creation: customer ? null : "if_required",
+    customer_creation: customer ? null : (customerCreation ?? "if_required"),
     customer_details: customer ? { address: null, email: customer.email ?? null, name: customer.name ?? null, phone: null, tax_exempt: "none", tax_ids: [] } : null,
     customer_email: customerEmail ?? null,
     discounts: [],
@@ -311,6 +314,13 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   pi.last_payment_error = null;
   pi.latest_charge = newId("ch", 24);
   const email = form.email?.trim() || (session.customer_email as string | null) || (session.customer_details as { email?: string } | null)?.email || null;
+  if (!session.customer && session.customer_creation === "always") {
+    // Checkout makes the customer from what was entered on the page.
+    const created = ctx.store.insert("customers", newCustomerObject(ctx, { email }));
+    ctx.emit("customer.created", created);
+    session.customer = created.id;
+    pi.customer = created.id;
+  }
   session.status = "complete";
   session.payment_status = "paid";
   session.payment_intent = pi.id;
