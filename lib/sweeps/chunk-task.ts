@@ -5,7 +5,7 @@
  */
 import { simulate } from "../physics/index";
 import type { Scenario } from "../physics/types";
-import { cellRange, expandAxes, type SweepCell } from "./grid";
+import { expandAxes, forEachCellInRange, type SweepCell } from "./grid";
 import { pickMetrics, type CellResult } from "./results";
 import type { SweepSpec } from "./spec";
 
@@ -25,9 +25,9 @@ export interface ChunkOutcome {
   computeNs: number;
 }
 
-function cellsOf(task: ChunkTask): SweepCell[] {
-  if (task.kind === "cells") return task.cells;
-  return cellRange(task.spec, expandAxes(task.spec), task.firstCell, task.cellCount);
+function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
+  if (task.kind === "cells") task.cells.forEach(visit);
+  else forEachCellInRange(task.spec, expandAxes(task.spec), task.firstCell, task.cellCount, visit);
 }
 
 /**
@@ -36,10 +36,8 @@ function cellsOf(task: ChunkTask): SweepCell[] {
  */
 export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const started = process.hrtime.bigint();
-  const cells = cellsOf(task);
-  const results: CellResult[] = new Array(cells.length);
-  for (let i = 0; i < cells.length; i++) {
-    const cell = cells[i];
+  const results: CellResult[] = [];
+  forEachCell(task, (cell) => {
     let run;
     try {
       run = simulate(cell.scenario);
@@ -47,8 +45,8 @@ export function runChunkTask(task: ChunkTask): ChunkOutcome {
       const message = error instanceof Error ? error.message : String(error);
       throw new Error(`cell ${cell.index} of chunk ${task.chunkIndex} failed in the engine: ${message}`);
     }
-    results[i] = { index: cell.index, axisValues: cell.axisValues, verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) };
-  }
+    results.push({ index: cell.index, axisValues: cell.axisValues, verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) });
+  });
   const computeNs = Number(process.hrtime.bigint() - started);
   return { chunkIndex: task.chunkIndex, results, computeMs: Math.ceil(computeNs / 1e6), computeNs };
 }

@@ -106,15 +106,9 @@ function expansionFor(spec: SweepSpec, axes: readonly ExpandedAxis[]): Expansion
   return expansion;
 }
 
-/** One cell of the grid, built on demand (no need to hold a 262,144-cell array). */
-export function cellAt(spec: SweepSpec, axes: readonly ExpandedAxis[], index: number): SweepCell {
-  const total = cellCount(axes);
-  if (!Number.isInteger(index) || index < 0 || index >= total) {
-    throw new RangeError(`cell index ${index} is outside 0..${total - 1}`);
-  }
-  const expansion = expansionFor(spec, axes);
-  const positions = axisPositions(axes, index);
-  const values = positions.map((position, i) => axes[i].values[position]);
+function buildCell(spec: SweepSpec, axes: readonly ExpandedAxis[], expansion: Expansion, index: number, positions: readonly number[]): SweepCell {
+  const values = new Array<number | string>(positions.length);
+  for (let i = 0; i < positions.length; i++) values[i] = axes[i].values[positions[i]];
   const scenario = copyScenario(spec.scenario);
   for (const i of expansion.order) expansion.setters[i](scenario, values[i]);
   // Cells with the same scene share a seed: hash each distinct scene once.
@@ -129,10 +123,41 @@ export function cellAt(spec: SweepSpec, axes: readonly ExpandedAxis[], index: nu
   return { index, axisValues: values, scenario };
 }
 
+function checkRange(axes: readonly ExpandedAxis[], first: number, count: number): void {
+  const total = cellCount(axes);
+  if (!Number.isInteger(first) || !Number.isInteger(count) || first < 0 || count < 0 || first + count > total) {
+    throw new RangeError(count === 1 ? `cell index ${first} is outside 0..${total - 1}` : `cells ${first}..${first + count - 1} are outside 0..${total - 1}`);
+  }
+}
+
+/** One cell of the grid, built on demand (no need to hold a 262,144-cell array). */
+export function cellAt(spec: SweepSpec, axes: readonly ExpandedAxis[], index: number): SweepCell {
+  checkRange(axes, index, 1);
+  return buildCell(spec, axes, expansionFor(spec, axes), index, axisPositions(axes, index));
+}
+
+/**
+ * Visit cells [first, first + count) in index order, building each just before its visit (the
+ * axis positions step like an odometer). Callers that keep only results never hold all cells.
+ */
+export function forEachCellInRange(spec: SweepSpec, axes: readonly ExpandedAxis[], first: number, count: number, visit: (cell: SweepCell) => void): void {
+  checkRange(axes, first, count);
+  if (count === 0) return;
+  const expansion = expansionFor(spec, axes);
+  const positions = axisPositions(axes, first);
+  for (let n = 0; n < count; n++) {
+    visit(buildCell(spec, axes, expansion, first + n, positions));
+    for (let i = axes.length - 1; i >= 0; i--) {
+      if (++positions[i] < axes[i].values.length) break;
+      positions[i] = 0;
+    }
+  }
+}
+
 /** Cells [first, first + count) in index order. */
 export function cellRange(spec: SweepSpec, axes: readonly ExpandedAxis[], first: number, count: number): SweepCell[] {
-  const cells: SweepCell[] = new Array(count);
-  for (let i = 0; i < count; i++) cells[i] = cellAt(spec, axes, first + i);
+  const cells: SweepCell[] = [];
+  forEachCellInRange(spec, axes, first, count, (cell) => cells.push(cell));
   return cells;
 }
 

@@ -9,7 +9,7 @@ import { build } from "esbuild";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { simulate } from "../../../lib/physics/index";
 import { expandSweep } from "../../../lib/sweeps/grid";
-import { createChunkPool, type ChunkPool } from "../../../lib/sweeps/pool";
+import { closeChunkPool, createChunkPool, getChunkPool, type ChunkPool } from "../../../lib/sweeps/pool";
 import { pickMetrics, resultsToJson, type CellResult } from "../../../lib/sweeps/results";
 import { runSweep } from "../../../lib/sweeps/run";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
@@ -125,5 +125,20 @@ describe("chunk pool (esbuild bundle, as under next start)", () => {
 
   it("says how to make the bundle when it is missing", () => {
     expect(() => createChunkPool({ threads: 1, entry: "bundle", rootDir: path.join(rootDir, "nowhere") })).toThrow(/build-worker\.mjs/);
+  });
+});
+
+describe("process-wide pool", () => {
+  afterAll(() => closeChunkPool());
+
+  it("is created once, kept on globalThis, and replaced after closing", async () => {
+    const first = getChunkPool({ threads: 1, entry: "source" });
+    expect(getChunkPool()).toBe(first);
+    expect(first.threads).toBe(1);
+    const outcome = await first.run({ kind: "range", chunkIndex: 0, spec: wallSpec, firstCell: 0, cellCount: 3 });
+    expect(outcome.results.map((result) => result.index)).toEqual([0, 1, 2]);
+    await closeChunkPool();
+    const second = getChunkPool({ threads: 1, entry: "source" });
+    expect(second).not.toBe(first);
   });
 });
