@@ -22,7 +22,8 @@
 import { effectiveModulusSameMaterialPa, hertzContactDurationS, hertzStiffnessFromModulus, linearContactDurationS } from "../physics/analytic";
 import type { Scenario } from "../physics/types";
 import { cellCount, cellAt, expandAxes, type ExpandedAxis } from "./grid";
-import { bodyCount, stepsPerCell, type SweepSpec } from "./spec";
+import { bodyCount, stepsPerCell } from "./axes";
+import type { SweepSpec } from "./spec";
 
 export interface CostConstants {
   /** Fixed cost of one cell in any scene: set-up, metrics, verdict (ns). */

@@ -18,7 +18,8 @@
 import type { Scenario, SceneKind } from "../physics/types";
 import { canonicalJson, hash32 } from "./canonical";
 import { findParameter } from "./parameters";
-import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter, type AxisSpec, type SweepSpec } from "./spec";
+import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter } from "./axes";
+import type { AxisSpec, SweepSpec } from "./spec";
 
 export interface ExpandedAxis {
   parameter: string;

@@ -1,0 +1,113 @@
+/**
+ * Axis values and how they are written into a scenario. Kept apart from the
+ * zod schema so the worker-thread bundle does not carry zod.
+ *
+ * Pure: safe to import in the browser.
+ */
+import { totalSubsteps } from "../physics/simulate";
+import type { Scenario, SceneKind } from "../physics/types";
+import { findParameter } from "./parameters";
+import type { AxisSpec } from "./spec";
+
+/**
+ * The values of one axis, in order. Range axes: `count` points from `from` to
+ * `to`, both ends exact; linear points are from·(1 − t) + to·t, log points
+ * 10^(log10(from)·(1 − t) + log10(to)·t), with t = i / (count − 1). Integer parameters (substeps,
+ * scene.count) round each point to the nearest integer.
+ * List axes: the values as written.
+ */
+export function axisValues(axis: AxisSpec, integer = false): (number | string)[] {
+  if (axis.values) return [...axis.values];
+  const from = axis.from as number;
+  const to = axis.to as number;
+  const count = axis.count as number;
+  const values: number[] = new Array(count);
+  const last = count - 1;
+  for (let i = 0; i < count; i++) {
+    let value: number;
+    if (i === 0) value = from;
+    else if (i === last) value = to;
+    else {
+      const t = i / last;
+      // Log points interpolate the decade exponent, so decade ends give round interior points (1e3 → 1e6: 1e4, 1e5).
+      value = axis.spacing === "log" ? Math.pow(10, Math.log10(from) * (1 - t) + Math.log10(to) * t) : from * (1 - t) + to * t;
+    }
+    values[i] = integer ? Math.round(value) : value;
+  }
+  return values;
+}
+
+/** Whether the path sweeps a whole-number parameter (values are rounded). */
+export function isIntegerParameter(path: string, sceneKind: SceneKind): boolean {
+  const parameter = findParameter(path, sceneKind);
+  return parameter?.kind === "number" && parameter.integer;
+}
+
+/** A copy of the scenario deep enough that setting any sweepable field leaves the original alone. */
+export function copyScenario(scenario: Scenario): Scenario {
+  const contact: Scenario["contact"] = { ...scenario.contact, damping: { ...scenario.contact.damping } };
+  if (scenario.contact.material) contact.material = { ...scenario.contact.material };
+  return { ...scenario, scene: { ...scenario.scene }, contact, tolerances: { ...scenario.tolerances } };
+}
+
+type FieldSetter = (scenario: Scenario, value: number | string) => void;
+
+/**
+ * A setter that writes one axis value into a scenario copy in place
+ * (scene.massRatio sets massBKg from the copy's massAKg, so apply it last).
+ */
+export function fieldSetter(path: string): FieldSetter {
+  switch (path) {
+    case "integrator":
+      return (scenario, value) => void (scenario.integrator = value as Scenario["integrator"]);
+    case "contact.model":
+      return (scenario, value) => void (scenario.contact.model = value as Scenario["contact"]["model"]);
+    case "contact.damping.coefficient":
+    case "contact.damping.restitution":
+      return (scenario, value) => void ((scenario.contact.damping as { value: number }).value = value as number);
+    case "scene.massRatio":
+      return (scenario, value) => {
+        if (scenario.scene.kind === "pair") scenario.scene.massBKg = scenario.scene.massAKg * (value as number);
+      };
+  }
+  const keys = path.split(".");
+  const last = keys[keys.length - 1];
+  const parents = keys.slice(0, -1);
+  return (scenario, value) => {
+    let node = scenario as unknown as Record<string, unknown>;
+    for (const key of parents) node = node[key] as Record<string, unknown>;
+    node[last] = value;
+  };
+}
+
+/** Axes in the order their values must be applied: scene.massRatio last, so it sees the cell's own massAKg. */
+export function applicationOrder(axes: readonly AxisSpec[]): number[] {
+  const order = axes.map((_, i) => i);
+  return [...order.filter((i) => axes[i].parameter !== "scene.massRatio"), ...order.filter((i) => axes[i].parameter === "scene.massRatio")];
+}
+
+/** A copy of the base scenario with one value per axis applied. */
+export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
+  const scenario = copyScenario(base);
+  for (const i of applicationOrder(axes)) fieldSetter(axes[i].parameter)(scenario, values[i]);
+  return scenario;
+}
+
+/** Integrator steps of one cell, ⌈durationS / (dtS / substeps)⌉: the engine's own count. */
+export function stepsPerCell(scenario: Pick<Scenario, "durationS" | "dtS" | "substeps">): number {
+  return totalSubsteps(scenario);
+}
+
+/** Discs simulated in a scene (the row counts its striker). */
+export function bodyCount(scenario: Scenario): number {
+  switch (scenario.scene.kind) {
+    case "pair":
+      return 2;
+    case "wall":
+      return 1;
+    case "row":
+      return scenario.scene.count + 1;
+    case "box":
+      return scenario.scene.count;
+  }
+}
