@@ -11,5 +11,6 @@ export {
   linearDampingRatioForRestitution,
   hertzDimensionlessDampingForRestitution,
   hertzRestitutionForDimensionlessDamping,
+  hertzRestitutionEstimate,
 } from "./damping";
 export { Xoshiro128StarStar } from "./random";

@@ -23,7 +23,7 @@ import {
   TUNNEL_SKIPPED_CONTACT,
   type Wall,
 } from "./contact-field";
-import { hertzDimensionlessDampingForRestitution, hertzRestitutionForDimensionlessDamping, linearDampingRatioForRestitution } from "./damping";
+import { hertzDimensionlessDampingForRestitution, hertzRestitutionEstimate, linearDampingRatioForRestitution } from "./damping";
 import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
 
@@ -250,7 +250,7 @@ function expectedRestitution(field: ContactField, bodies: Bodies, scenario: Scen
     return linearRestitutionForDampingRatio(ratio);
   }
   const beta = field.dampingMode === DAMPING_DIMENSIONLESS ? field.dampingValue : field.dampingValue / Math.sqrt(reducedMass * stiffness);
-  return hertzRestitutionForDimensionlessDamping(beta);
+  return hertzRestitutionEstimate(beta);
 }
 
 /** What `judge` needs beyond the metrics to explain a verdict. */

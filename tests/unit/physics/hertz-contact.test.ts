@@ -6,6 +6,7 @@ import {
   hertzDimensionlessDampingForRestitution,
   hertzMaxOverlapM,
   hertzRestitutionForDimensionlessDamping,
+  hertzRestitutionEstimate,
   hertzStiffnessFromModulus,
   reducedMassKg,
   simulate,
@@ -72,5 +73,21 @@ describe("Hertz contact", () => {
       previous = e;
       expect(hertzDimensionlessDampingForRestitution(e)).toBeCloseTo(beta, 8);
     }
+  });
+
+  it("the tabulated estimate used for verdicts agrees with the reference integration", () => {
+    // Reference: the engine's own RK4 integration at the finer reference step (tested above against the simulation).
+    for (let beta = 1e-3; beta < 1e3; beta *= 1.7) expect(Math.abs(hertzRestitutionEstimate(beta) - hertzRestitutionForDimensionlessDamping(beta))).toBeLessThan(1e-5);
+  });
+
+  it("a Hertz run with damping given as η measures the restitution its β predicts", () => {
+    const eta = 0.5;
+    const kH = hertzStiffnessFromModulus(effectiveModulusSameMaterialPa(youngsModulusPa, poissonRatio), effectiveRadiusM(radiusM, radiusM));
+    const beta = eta / Math.sqrt(reducedMassKg(massKg, massKg) * kH);
+    const time = hertzContactDurationS(kH, massKg / 2, 1);
+    const result = simulate(scenario(pair(1), materialContact({ kind: "coefficient", value: eta }), "velocity-verlet", time / 3000, 4 * time + 1e-4));
+    // Tsuji-type scaling (β = η/√(m*k_H)); reference value from the dimensionless integration.
+    expect(Math.abs(result.metrics.effectiveRestitution! - hertzRestitutionForDimensionlessDamping(beta))).toBeLessThan(2e-4);
+    expect(result.verdict).toBe("stable");
   });
 });
