@@ -1,5 +1,5 @@
 import { defineConfig } from "@playwright/test";
-import { mkdtempSync } from "node:fs";
+import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 
@@ -12,7 +12,12 @@ import path from "node:path";
 const port = Number(process.env.KD_E2E_PORT ?? 3100);
 const mailFakePort = Number(process.env.KD_E2E_MAIL_PORT ?? 2626);
 const baseURL = `http://localhost:${port}`;
-process.env.KD_E2E_DATA_DIR ??= mkdtempSync(path.join(tmpdir(), "kickdrift-e2e-"));
+if (!process.env.KD_E2E_DATA_DIR) {
+  const created = mkdtempSync(path.join(tmpdir(), "kickdrift-e2e-"));
+  process.env.KD_E2E_DATA_DIR = created;
+  // Only the process that made the folder removes it, at exit — after Playwright has stopped the web server.
+  process.on("exit", () => rmSync(created, { recursive: true, force: true }));
+}
 const dataDir = process.env.KD_E2E_DATA_DIR;
 
 export default defineConfig({

@@ -4,6 +4,7 @@ import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { signOut, useSession } from "next-auth/react";
+import { useEffect, useRef } from "react";
 import { MagicLinkForm } from "@/components/auth/magic-link-form";
 import { Alert, AuthPanel, Button, LoadingRows, RoleBadge } from "@/components/ui";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
@@ -11,7 +12,11 @@ import { readAcceptedStudioId, readPublicInvite } from "@/lib/ui/invite";
 import { sessionUser } from "@/lib/ui/session";
 import { ROLE_DESCRIPTIONS } from "@/lib/ui/types";
 
-export function AcceptInvite({ token, mailboxEnabled }: { token: string; mailboxEnabled: boolean }) {
+/**
+ * `autoAccept` is set when the visitor comes back from the sign-in link this page sent: they asked to
+ * join by requesting it, so the invitation is accepted as soon as the session matches the invited e-mail.
+ */
+export function AcceptInvite({ token, mailboxEnabled, autoAccept }: { token: string; mailboxEnabled: boolean; autoAccept: boolean }) {
   const router = useRouter();
   const queryClient = useQueryClient();
   const { data: session, status } = useSession();
@@ -32,8 +37,19 @@ export function AcceptInvite({ token, mailboxEnabled }: { token: string; mailbox
     },
   });
 
+  const details = invite.data;
+  const emailMatches = Boolean(user?.email && details && user.email.toLowerCase() === details.email.toLowerCase());
+  const canAccept = Boolean(details && !details.expired && !details.accepted && emailMatches);
+  const autoAcceptStarted = useRef(false);
+  useEffect(() => {
+    if (autoAccept && canAccept && !autoAcceptStarted.current) {
+      autoAcceptStarted.current = true;
+      accept.mutate();
+    }
+  }, [autoAccept, canAccept, accept]);
+
   if (invite.isPending) return <LoadingRows label="the invitation" />;
-  if (invite.isError || !invite.data) {
+  if (invite.isError || !details) {
     const gone = invite.error instanceof ApiClientError && (invite.error.status === 404 || invite.error.status === 410);
     return (
       <AuthPanel title={gone ? "This invitation is not valid" : "Could not load the invitation"}>
@@ -42,9 +58,7 @@ export function AcceptInvite({ token, mailboxEnabled }: { token: string; mailbox
     );
   }
 
-  const details = invite.data;
   const callbackUrl = `/invite/${token}`;
-  const emailMatches = user?.email?.toLowerCase() === details.email.toLowerCase();
 
   return (
     <AuthPanel
@@ -77,10 +91,10 @@ export function AcceptInvite({ token, mailboxEnabled }: { token: string; mailbox
       ) : !user ? (
         <div className="space-y-4">
           <p className="text-sm text-ink-muted">Sign in as {details.email} to accept. We will e-mail a one-time sign-in link to that address.</p>
-          <MagicLinkForm callbackUrl={callbackUrl} fixedEmail={details.email} mailboxEnabled={mailboxEnabled} buttonLabel={`E-mail a sign-in link to ${details.email}`} />
+          <MagicLinkForm callbackUrl={`${callbackUrl}?accept=1`} fixedEmail={details.email} mailboxEnabled={mailboxEnabled} buttonLabel={`E-mail a sign-in link to ${details.email}`} />
           <p className="text-sm text-ink-muted">
             Have a password for this address?{" "}
-            <Link href={`/signin?callbackUrl=${encodeURIComponent(callbackUrl)}`} className="text-action underline-offset-2 hover:underline">
+            <Link href={`/signin?callbackUrl=${encodeURIComponent(`${callbackUrl}?accept=1`)}`} className="text-action underline-offset-2 hover:underline">
               Sign in with it
             </Link>
           </p>

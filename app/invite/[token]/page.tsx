@@ -4,7 +4,13 @@ import { mailboxEnabled } from "@/lib/ui/mailbox";
 
 export const metadata: Metadata = { title: "Studio invitation" };
 
-export default async function InvitePage({ params }: { params: Promise<{ token: string }> }) {
-  const { token } = await params;
-  return <AcceptInvite token={token} mailboxEnabled={mailboxEnabled()} />;
+export default async function InvitePage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ token: string }>;
+  searchParams: Promise<Record<string, string | string[] | undefined>>;
+}) {
+  const [{ token }, query] = await Promise.all([params, searchParams]);
+  return <AcceptInvite token={token} mailboxEnabled={mailboxEnabled()} autoAccept={query.accept === "1"} />;
 }
