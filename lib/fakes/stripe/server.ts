@@ -456,3 +456,28 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     },
   };
 }
+
+const runningKey = Symbol.for("kickdrift.stripe-fake");
+const processGlobal = globalThis as unknown as Record<symbol, Promise<StripeFake> | undefined>;
+
+/**
+ * Starts the fake once per process and hands back the same instance afterwards (hot reload and several
+ * importers must not try to bind the port twice). A failed start is forgotten so a later call can retry.
+ */
+export function ensureStripeFake(options: StripeFakeOptions = {}): Promise<StripeFake> {
+  const existing = processGlobal[runningKey];
+  if (existing) return existing;
+  const started = startStripeFake(options).then((fake) => {
+    const close = fake.close;
+    fake.close = async () => {
+      if (processGlobal[runningKey] === started) processGlobal[runningKey] = undefined;
+      await close();
+    };
+    return fake;
+  });
+  processGlobal[runningKey] = started;
+  started.catch(() => {
+    if (processGlobal[runningKey] === started) processGlobal[runningKey] = undefined;
+  });
+  return started;
+}

@@ -62,6 +62,13 @@ export interface Delivery {
   next_attempt_at: number | null; // unix ms, wall clock
 }
 
+export interface StoreSnapshot {
+  json: string;
+  events: number;
+  meterEvents: number;
+  deliveries: number;
+}
+
 export interface IdempotencyRecord {
   fingerprint: string;
   status: number;
@@ -121,6 +128,8 @@ export function newId(prefix: string, length = 24): string {
 export class StripeFakeStore {
   data: FakeStateData;
   readonly filePath: string | undefined;
+  /** Identifiers of recorded meter events, for the de-duplication check (derived, not persisted). */
+  readonly meterIdentifiers = new Set<string>();
 
   constructor(filePath?: string) {
     this.filePath = filePath;
@@ -131,6 +140,7 @@ export class StripeFakeStore {
       const base = emptyState();
       this.data = { ...base, ...parsed, collections: { ...base.collections, ...parsed.collections } };
     }
+    for (const e of this.data.meter_events) this.meterIdentifiers.add(e.identifier);
   }
 
   /** Current fake time in unix seconds. */
@@ -171,18 +181,34 @@ export class StripeFakeStore {
   }
 
   /**
-   * A copy of everything a request handler may change, for rolling back a request that fails
-   * half-way (Stripe requests are all-or-nothing). Deliveries are only ever appended by handlers, so
-   * their count is enough; keeping the original delivery objects keeps the dispatcher's references valid.
+   * What a request handler may change, for rolling back a request that fails half-way (Stripe
+   * requests are all-or-nothing). Handlers only append events, meter events and deliveries, so their
+   * counts are enough (and keep the dispatcher's references valid); the rest is copied.
    */
-  snapshot(): { json: string; deliveries: number } {
-    const { deliveries: _d, idempotency: _i, ...rest } = this.data;
-    return { json: JSON.stringify(rest), deliveries: this.data.deliveries.length };
+  snapshot(): StoreSnapshot {
+    const { events, ...others } = this.data.collections;
+    return {
+      json: JSON.stringify({ collections: others, session_line_items: this.data.session_line_items, session_intent_data: this.data.session_intent_data, session_payment_intents: this.data.session_payment_intents, clock_offset_s: this.data.clock_offset_s }),
+      events: Object.keys(events).length,
+      meterEvents: this.data.meter_events.length,
+      deliveries: this.data.deliveries.length,
+    };
   }
 
-  restore(snapshot: { json: string; deliveries: number }): void {
-    const rest = JSON.parse(snapshot.json) as Omit<FakeStateData, "deliveries" | "idempotency">;
-    this.data = { ...rest, deliveries: this.data.deliveries.slice(0, snapshot.deliveries), idempotency: this.data.idempotency };
+  restore(snapshot: StoreSnapshot): void {
+    const copied = JSON.parse(snapshot.json) as Pick<FakeStateData, "session_line_items" | "session_intent_data" | "session_payment_intents" | "clock_offset_s"> & {
+      collections: Omit<FakeStateData["collections"], "events">;
+    };
+    const events = this.data.collections.events;
+    for (const id of Object.keys(events).slice(snapshot.events)) delete events[id];
+    for (const e of this.data.meter_events.slice(snapshot.meterEvents)) this.meterIdentifiers.delete(e.identifier);
+    this.data = {
+      ...this.data,
+      ...copied,
+      collections: { ...copied.collections, events },
+      meter_events: this.data.meter_events.slice(0, snapshot.meterEvents),
+      deliveries: this.data.deliveries.slice(0, snapshot.deliveries),
+    };
   }
 
   /** Writes the state atomically (temp file + rename), so a crash never leaves half a file. */

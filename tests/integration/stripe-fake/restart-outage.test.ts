@@ -3,7 +3,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import Stripe from "stripe";
-import { startStripeFake } from "@/lib/fakes/stripe";
+import { ensureStripeFake, startStripeFake } from "@/lib/fakes/stripe";
 import { expectStripeError, sdkFor, startFake, startReceiver } from "./helpers";
 
 const dir = mkdtempSync(join(tmpdir(), "kd-stripe-fake-"));
@@ -84,6 +84,22 @@ describe("simulated outage", () => {
       expect((await stripe.customers.list()).object).toBe("list");
     } finally {
       await fake.close();
+    }
+  });
+});
+
+describe("one fake per process", () => {
+  it("ensureStripeFake hands back the running instance, and a new one after close", async () => {
+    const a = await ensureStripeFake({ port: 0 });
+    const b = await ensureStripeFake({ port: 0 });
+    expect(b).toBe(a);
+    await a.close();
+    const c = await ensureStripeFake({ port: 0 });
+    try {
+      expect(c).not.toBe(a);
+      expect((await sdkFor(c).customers.list()).object).toBe("list");
+    } finally {
+      await c.close();
     }
   });
 });

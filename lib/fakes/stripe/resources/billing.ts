@@ -129,7 +129,7 @@ export function createMeterEvent(ctx: Ctx, params: Params): HandlerResult {
   } else if (!/^\d+(\.\d{1,12})?$/.test(value)) {
     throw invalidParam(`payload[${valueKey}]`, `payload[${valueKey}] must be a non-negative number with at most 12 decimal places (got '${value}').`);
   }
-  if (ctx.store.data.meter_events.some((e) => e.identifier === identifier)) {
+  if (ctx.store.meterIdentifiers.has(identifier)) {
     throw invalidParam("identifier", `A meter event with identifier '${identifier}' already exists.`, "resource_already_exists");
   }
   const recorded: RecordedMeterEvent = {
@@ -145,6 +145,7 @@ export function createMeterEvent(ctx: Ctx, params: Params): HandlerResult {
     value,
   };
   ctx.store.data.meter_events.push(recorded);
+  ctx.store.meterIdentifiers.add(identifier);
   const { meter: _m, customer: _c, value: _v, ...wire } = recorded;
   return { body: wire };
 }
