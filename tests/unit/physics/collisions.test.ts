@@ -58,6 +58,20 @@ describe("elastic collision outcomes", () => {
   });
 });
 
+describe("row of discs", () => {
+  it("equal masses with gaps pass the striker's velocity down the chain to the last disc", () => {
+    // Sequential elastic impacts of equal masses exchange velocities (Halliday, Resnick & Walker, 1D elastic collision with m1 = m2).
+    const scene: Scene = { kind: "row", count: 5, massKg: 0.1, radiusM: 0.02, strikerMassKg: 0.1, strikerSpeedMPerS: 1.2, spacingM: 0.005, gapM: 0.01 };
+    const contactTime = Math.PI / Math.sqrt(stiffness / 0.05);
+    const result = simulate(scenario(scene, linearContact(stiffness), "velocity-verlet", contactTime / 100, 0.2), { maxSamples: 2 });
+    const end = result.series!.tS.length - 1;
+    const speeds = result.series!.bodies.map((track) => track.pxNs[end] / 0.1);
+    for (let k = 0; k < 5; k++) expect(Math.abs(speeds[k])).toBeLessThan(1e-3 * 1.2);
+    expect(Math.abs(speeds[5] - 1.2)).toBeLessThan(1e-3 * 1.2);
+    expect(result.metrics.tunneled).toBe(false);
+  });
+});
+
 describe("momentum", () => {
   it.each(["symplectic-euler", "velocity-verlet", "explicit-euler"] as const)("is conserved to rounding in pair and row scenes with %s", (integrator) => {
     const pair: Scene = { kind: "pair", massAKg: 0.3, massBKg: 1.1, radiusAM: 0.04, radiusBM: 0.07, speedAMPerS: 1.7, speedBMPerS: 0.4, offsetFraction: 0.35, gapM: 0.01 };

@@ -66,11 +66,22 @@ const rowArbitrary: fc.Arbitrary<Scene> = fc.record({
   gapM: fc.double({ min: 0, max: 0.1, noNaN: true }),
 });
 
+const smallBoxArbitrary: fc.Arbitrary<Scene> = fc.record({
+  kind: fc.constant("box" as const),
+  count: fc.integer({ min: 1, max: 8 }),
+  massKg: fc.double({ min: 0.05, max: 2, noNaN: true }),
+  radiusM: fc.double({ min: 0.01, max: 0.03, noNaN: true }),
+  widthM: fc.double({ min: 0.3, max: 1, noNaN: true }),
+  heightM: fc.double({ min: 0.3, max: 1, noNaN: true }),
+  maxSpeedMPerS: fc.double({ min: 0, max: 3, noNaN: true }),
+  gravityMPerS2: fc.constant(0),
+});
+
 describe("fast stepping (free-flight jumps, early finish) agrees with plain stepping", () => {
-  it("over random pair, wall and row scenarios, for every integrator", () => {
+  it("over random pair, wall, row and small gravity-free box scenarios, for every integrator", () => {
     fc.assert(
       fc.property(
-        fc.oneof(pairArbitrary, wallArbitrary, rowArbitrary),
+        fc.oneof(pairArbitrary, wallArbitrary, rowArbitrary, smallBoxArbitrary),
         contactArbitrary,
         fc.constantFrom("symplectic-euler" as const, "velocity-verlet" as const, "explicit-euler" as const),
         fc.integer({ min: 1, max: 3 }),
