@@ -12,7 +12,8 @@
  *        scale: { normalisation: "linear" | "log" | "symmetric", domain?, colours? }.
  *     { kind: "verdict", verdicts }  null/undefined = not computed yet.
  *     { kind: "categories", label, codes, categories }  any categorical map (255 = pending).
- * - `verdicts`, `reasons` (optional, per cell): shown in the tooltip of any layer.
+ * - `verdicts`, `reasons` (optional, per cell): shown in the tooltip of any layer;
+ *   `extraLines(index)` (optional) adds lines of its own (e.g. the A and B values of a difference map).
  * - `overlays` (optional): curves in axis units `{ label, points: {x, y}[] }` or `{ label, y: x => y }`,
  *   typically from lib/charts/overlays.ts (ω·dt = 2, steps per contact, tunnelling threshold).
  * - `scale` (optional): a ResolvedScale shared with other maps (CompareMaps, MapGrid).
@@ -45,6 +46,7 @@ export interface StabilityMapProps {
   layer: MapLayer;
   verdicts?: readonly (Verdict | null | undefined)[];
   reasons?: readonly (string | null | undefined)[];
+  extraLines?: (index: number) => string[];
   overlays?: readonly OverlayInput[];
   scale?: ResolvedScale;
   title?: string;
@@ -79,7 +81,14 @@ function describeValue(model: MapModel, layer: MapLayer, index: number): string 
 }
 
 /** The lines of a cell's tooltip (also the screen-reader announcement). */
-export function cellDescription(model: MapModel, layer: MapLayer, index: number, verdicts?: StabilityMapProps["verdicts"], reasons?: StabilityMapProps["reasons"]): string[] {
+export function cellDescription(
+  model: MapModel,
+  layer: MapLayer,
+  index: number,
+  verdicts?: StabilityMapProps["verdicts"],
+  reasons?: StabilityMapProps["reasons"],
+  extraLines?: StabilityMapProps["extraLines"],
+): string[] {
   const column = index % model.columns;
   const row = Math.floor(index / model.columns);
   const lines = [
@@ -90,13 +99,14 @@ export function cellDescription(model: MapModel, layer: MapLayer, index: number,
   lines.push(`${label}: ${describeValue(model, layer, index)}`);
   const verdict = verdicts?.[index];
   if (verdict && layer.kind !== "verdict") lines.push(`Verdict: ${VERDICT_STYLES[verdict].label}`);
+  if (extraLines) lines.push(...extraLines(index));
   const reason = reasons?.[index];
   if (reason) lines.push(reason);
   return lines;
 }
 
 export function StabilityMap(props: StabilityMapProps) {
-  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null, verdicts, reasons, exportFileName, className, ref } = props;
+  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null, verdicts, reasons, extraLines, exportFileName, className, ref } = props;
   const boxRef = useRef<HTMLDivElement>(null);
   const baseRef = useRef<HTMLCanvasElement>(null);
   const highlightRef = useRef<HTMLCanvasElement>(null);
@@ -249,8 +259,8 @@ export function StabilityMap(props: StabilityMapProps) {
   };
 
   const tooltipCell = pointed ?? (hasFocus && focusIndex !== null ? anchorOf(focusIndex) : null);
-  const tooltipLines = model && tooltipCell ? cellDescription(model, layer, tooltipCell.index, verdicts, reasons) : null;
-  const announcement = model && hasFocus && focusIndex !== null ? cellDescription(model, layer, focusIndex, verdicts, reasons).join(". ") : "";
+  const tooltipLines = model && tooltipCell ? cellDescription(model, layer, tooltipCell.index, verdicts, reasons, extraLines) : null;
+  const announcement = model && hasFocus && focusIndex !== null ? cellDescription(model, layer, focusIndex, verdicts, reasons, extraLines).join(". ") : "";
   const summary = model ? `${title ?? (layer.kind === "metric" ? layer.label : "Verdict")} map, ${model.columns} by ${model.rows} cells, ${x.label} across, ${y.label} up.` : "";
 
   return (

@@ -90,14 +90,26 @@ function legendWidth(model: MapModel, ctx: CanvasRenderingContext2D, chrome: Chr
       widest = Math.max(widest, ctx.measureText(`${c.label}  ${model.counts[i].toLocaleString("en-US")}`).width);
     });
     if (model.pendingCount > 0) widest = Math.max(widest, ctx.measureText(`Not computed  ${model.pendingCount.toLocaleString("en-US")}`).width);
-    return Math.ceil(widest) + 18 + 8 + 16;
+    ctx.font = font(chrome, 12, 600);
+    const title = ctx.measureText(model.scale.label).width;
+    return Math.min(280, Math.ceil(Math.max(widest + 18 + 8 + 16, title + 4)));
   }
   const ticks = legendTicks(model.scale.normalisation);
-  let widest = 0;
+  ctx.font = font(chrome, 12, 600);
+  let widest = ctx.measureText(model.scale.label).width - 40;
+  ctx.font = font(chrome, 12);
   for (const t of ticks) widest = Math.max(widest, ctx.measureText(formatSI(t.value, model.scale.unit)).width);
   if (model.pendingCount > 0) widest = Math.max(widest, ctx.measureText("Not computed").width);
   if (model.noValueCount > 0) widest = Math.max(widest, ctx.measureText("No value").width);
-  return Math.ceil(widest) + 14 + 8 + 26;
+  return Math.min(280, Math.ceil(widest) + 14 + 8 + 26);
+}
+
+/** The text, shortened with an ellipsis to fit maxWidth in the current font. */
+function fitText(ctx: CanvasRenderingContext2D, text: string, maxWidth: number): string {
+  if (ctx.measureText(text).width <= maxWidth) return text;
+  let end = text.length;
+  while (end > 1 && ctx.measureText(`${text.slice(0, end)}…`).width > maxWidth) end--;
+  return `${text.slice(0, end)}…`;
 }
 
 /** Plot rectangle for a canvas of this size (margins fit the tick labels, legend and title). */
@@ -363,7 +375,7 @@ function drawOverlays(ctx: CanvasRenderingContext2D, model: MapModel, geometry: 
   ctx.clip();
   ctx.lineJoin = "round";
   ctx.lineCap = "round";
-  const labels: { text: string; x: number; y: number }[] = [];
+  const labelled: { text: string; paths: number[][] }[] = [];
   for (const overlay of model.overlays) {
     const paths = overlayToPixelPaths(overlay, geometry);
     const dash = OVERLAY_DASHES[overlay.stroke ?? "solid"];
@@ -383,23 +395,38 @@ function drawOverlays(ctx: CanvasRenderingContext2D, model: MapModel, geometry: 
       }
     }
     ctx.setLineDash([]);
-    if (!compact && paths.length > 0) {
-      // Label near the curve's first visible point, nudged inside the plot.
-      const first = paths[0];
-      labels.push({ text: overlay.label, x: first[0], y: first[1] });
-    }
+    if (!compact && paths.length > 0) labelled.push({ text: overlay.label, paths });
   }
   ctx.font = font(chrome, 11, 600);
   ctx.textBaseline = "middle";
-  for (const label of labels) {
-    const width = ctx.measureText(label.text).width;
-    const x = Math.min(Math.max(label.x + 6, plot.left + 4), plot.left + plot.width - width - 4);
-    const y = Math.min(Math.max(label.y, plot.top + 10), plot.top + plot.height - 10);
-    ctx.fillStyle = "rgba(255,255,255,0.85)";
-    ctx.fillRect(x - 3, y - 8, width + 6, 16);
+  ctx.textAlign = "left";
+  // Each label sits beside its curve at the first spot along it that stays inside the plot and
+  // clear of the labels already placed.
+  const placed: PlotRect[] = [];
+  const overlaps = (a: PlotRect, b: PlotRect) => a.left < b.left + b.width + 2 && b.left < a.left + a.width + 2 && a.top < b.top + b.height + 2 && b.top < a.top + a.height + 2;
+  for (const { text, paths } of labelled) {
+    const width = ctx.measureText(text).width + 6;
+    const height = 16;
+    const points: [number, number][] = [];
+    for (const path of paths) for (let i = 0; i < path.length; i += 2) points.push([path[i], path[i + 1]]);
+    let chosen: PlotRect | null = null;
+    for (const fraction of [0.5, 0.38, 0.62, 0.26, 0.74, 0.14, 0.86, 0.04, 0.96]) {
+      const [px, py] = points[Math.min(points.length - 1, Math.floor(fraction * points.length))];
+      const box = { left: px + 6, top: py - height - 2, width, height };
+      if (box.left + box.width > plot.left + plot.width - 2) box.left = px - width - 6;
+      if (box.top < plot.top + 2) box.top = py + 4;
+      const inside = box.left >= plot.left + 2 && box.top >= plot.top + 2 && box.left + box.width <= plot.left + plot.width - 2 && box.top + box.height <= plot.top + plot.height - 2;
+      if (inside && !placed.some((other) => overlaps(box, other))) {
+        chosen = box;
+        break;
+      }
+    }
+    if (!chosen) continue;
+    placed.push(chosen);
+    ctx.fillStyle = "rgba(255,255,255,0.88)";
+    ctx.fillRect(chosen.left, chosen.top, chosen.width, chosen.height);
     ctx.fillStyle = "#111111";
-    ctx.textAlign = "left";
-    ctx.fillText(label.text, x, y);
+    ctx.fillText(text, chosen.left + 3, chosen.top + height / 2);
   }
   ctx.restore();
 }
@@ -416,7 +443,7 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
     const rowHeight = 22;
     ctx.font = font(chrome, 12, 600);
     ctx.fillStyle = chrome.inkMuted;
-    ctx.fillText(model.scale.label, rect.left, rect.top + 8);
+    ctx.fillText(fitText(ctx, model.scale.label, rect.width), rect.left, rect.top + 8);
     ctx.font = font(chrome, 12);
     let y = rect.top + 26;
     model.scale.categories.forEach((category, code) => {
@@ -465,7 +492,7 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
   const barHeight = Math.max(40, rect.height - 24 - extrasHeight - 8);
   ctx.font = font(chrome, 12, 600);
   ctx.fillStyle = chrome.inkMuted;
-  ctx.fillText(scale.unit ? `${scale.label}` : scale.label, rect.left, rect.top + 8);
+  ctx.fillText(fitText(ctx, scale.label, rect.width), rect.left, rect.top + 8);
   // The bar from the LUT, low values at the bottom.
   const entries = scale.lut.length / 4;
   const step = barHeight / entries;

@@ -38,8 +38,9 @@ function trimZeros(text: string): string {
 
 /**
  * Value with an SI prefix on its unit: formatSI(0.002, "s") → "2 ms", formatSI(1e4, "") → "10 k",
- * formatSI(0.005, "kg") → "5 g". Dimensionless values below 0.001 use an exponent ("1e-6"),
- * because "1 µ" without a unit reads as a typo.
+ * formatSI(0.005, "kg") → "5 g". Dimensionless values take prefixes only from 1 k up; below 1
+ * they are plain decimals down to 0.001 and exponents below ("1e-6"), because "100 m" without a
+ * unit reads as metres.
  */
 export function formatSI(value: number, unit: string, digits = 3): string {
   if (!Number.isFinite(value)) return formatSignificant(value, digits);
@@ -56,7 +57,9 @@ export function formatSI(value: number, unit: string, digits = 3): string {
   };
   if (scaled === 0) return withUnit("0", "");
   const magnitude = Math.abs(scaled);
-  if (baseUnit === "" && magnitude < 1e-3) return formatExponent(scaled, digits);
+  if (baseUnit === "" && magnitude < 1) {
+    return Number(magnitude.toPrecision(digits)) >= 1e-3 ? formatSignificant(scaled, digits) : formatExponent(scaled, digits);
+  }
   // Round first so 999.95 → "1 k", not "1000".
   const rounded = Number(magnitude.toPrecision(digits));
   let index = PREFIXES.findIndex((p) => p.exponent === Math.floor(Math.log10(rounded) / 3) * 3);

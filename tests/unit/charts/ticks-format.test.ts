@@ -87,8 +87,13 @@ describe("SI-prefixed labels", () => {
     expect(formatSI(2500, "kg")).toBe("2.5 Mg");
   });
 
-  it("uses exponents for tiny dimensionless values and keeps precision in tooltips", () => {
+  it("keeps milli and micro away from dimensionless values, and precision in tooltips", () => {
+    // "100 m" with no unit would read as metres: plain decimals to 0.001, exponents below (our rule).
+    expect(formatSI(0.1, "")).toBe("0.1");
+    expect(formatSI(0.001, "")).toBe("0.001");
+    expect(formatSI(-0.25, "")).toBe("−0.25");
     expect(formatSI(1e-6, "")).toBe("1e-6");
+    expect(formatSI(2.5e-7, "")).toBe("2.5e-7");
     expect(formatPrecise(0.0031622776601683794, "s")).toBe("3.16228 ms");
     expect(formatSignificant(0.1 + 0.2, 6)).toBe("0.3");
   });
