@@ -137,7 +137,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
   };
 
   const send = (res: ServerResponse, status: number, body: string, headers: Record<string, string>) => {
-    res.writeHead(status, { "content-length": String(Buffer.byteLength(body)), ...headers });
+    res.writeHead(status, { "request-id": requestId(), "content-length": String(Buffer.byteLength(body)), ...headers });
     res.end(body);
   };
 
@@ -265,7 +265,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     dispatcher.kick();
     if (result.kind === "paid") {
       if (wantsJson) return sendJson(res, 200, { redirect: result.redirect, session: result.session });
-      res.writeHead(303, { location: result.redirect, "content-length": "0" });
+      res.writeHead(303, { location: result.redirect, "content-length": "0", "request-id": requestId() });
       res.end();
       return;
     }
