@@ -70,17 +70,17 @@ export interface ContactFieldParameters {
 const EMPTY_INDICES = new Int32Array(0);
 
 export class ContactField implements ForceField {
-  readonly model: number;
-  readonly stiffness: number;
-  readonly hertzModulusFactorPa: number;
-  readonly dampingMode: number;
-  readonly dampingValue: number;
-  readonly gravityMPerS2: number;
-  readonly broadPhase: number;
-  private readonly wallNormalX: number[];
-  private readonly wallNormalY: number[];
-  private readonly wallOffset: number[];
-  readonly wallCount: number;
+  model = 0;
+  stiffness = 0;
+  hertzModulusFactorPa = 0;
+  dampingMode = 0;
+  dampingValue = 0;
+  gravityMPerS2 = 0;
+  broadPhase = 0;
+  private readonly wallNormalX: number[] = [];
+  private readonly wallNormalY: number[] = [];
+  private readonly wallOffset: number[] = [];
+  wallCount = 0;
 
   // Results of the last evaluation.
   contactPotentialJ = 0;
@@ -126,6 +126,14 @@ export class ContactField implements ForceField {
   private candidates: Int32Array = EMPTY_INDICES;
 
   constructor(parameters: ContactFieldParameters) {
+    this.configure(parameters);
+  }
+
+  /**
+   * Sets the parameters and clears everything a previous run recorded, so one instance can serve
+   * many runs (a sweep runs thousands of small cells; the grid buffers are kept).
+   */
+  configure(parameters: ContactFieldParameters): void {
     this.model = parameters.model;
     this.stiffness = parameters.stiffness;
     this.hertzModulusFactorPa = parameters.hertzModulusFactorPa;
@@ -134,14 +142,38 @@ export class ContactField implements ForceField {
     this.gravityMPerS2 = parameters.gravityMPerS2;
     this.broadPhase = parameters.broadPhase;
     this.wallCount = parameters.walls.length;
-    this.wallNormalX = [];
-    this.wallNormalY = [];
-    this.wallOffset = [];
+    this.wallNormalX.length = 0;
+    this.wallNormalY.length = 0;
+    this.wallOffset.length = 0;
     for (const wall of parameters.walls) {
       this.wallNormalX.push(wall.normalX);
       this.wallNormalY.push(wall.normalY);
       this.wallOffset.push(wall.offsetM);
     }
+    this.contactPotentialJ = 0;
+    this.overlappingContacts = 0;
+    this.maxOverlapFraction = 0;
+    this.maxOverlapM = 0;
+    this.wallForceXN = 0;
+    this.wallForceYN = 0;
+    this.tunnelKind = TUNNEL_NONE;
+    this.tunnelBodyA = -1;
+    this.tunnelBodyB = -1;
+    this.tunnelDetectedThisPass = false;
+    this.firstContactPhase = FIRST_CONTACT_PENDING;
+    this.firstContactA = -1;
+    this.firstContactB = -1;
+    this.firstContactStartedThisPass = false;
+    this.firstContactEndedThisPass = false;
+    this.firstContactStartOverlapBeforeM = 0;
+    this.firstContactStartOverlapM = 0;
+    this.firstContactApproachSpeedMPerS = 0;
+    this.firstContactForcePreviousN = 0;
+    this.firstContactForceN = 0;
+    this.firstContactEndNormalX = 0;
+    this.firstContactEndNormalY = 0;
+    this.firstContactSeenThisPass = false;
+    this.cutoffSquaredM2 = 0;
   }
 
   evaluate(bodies: Bodies): void {

@@ -21,6 +21,7 @@ import {
   TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
   TUNNEL_NONE,
   TUNNEL_SKIPPED_CONTACT,
+  type ContactFieldParameters,
   type Wall,
 } from "./contact-field";
 import { hertzDimensionlessDampingForRestitution, hertzRestitutionEstimate, linearDampingRatioForRestitution } from "./damping";
@@ -35,7 +36,14 @@ export function totalSubsteps(scenario: Pick<Scenario, "dtS" | "substeps" | "dur
 }
 
 /** Builds the contact force field of a scenario. */
-export function createContactField(scenario: Scenario, walls: readonly Wall[], gravityMPerS2: number, bodyCount: number, broadPhase?: RunOptions["broadPhase"]): ContactField {
+export function createContactField(
+  scenario: Scenario,
+  walls: readonly Wall[],
+  gravityMPerS2: number,
+  bodyCount: number,
+  broadPhase?: RunOptions["broadPhase"],
+  reuse = false,
+): ContactField {
   const contact = scenario.contact;
   const isHertz = contact.model === "hertz";
   let hertzModulusFactorPa = 0;
@@ -54,7 +62,7 @@ export function createContactField(scenario: Scenario, walls: readonly Wall[], g
     dampingValue = isHertz ? hertzDimensionlessDampingForRestitution(damping.value) : linearDampingRatioForRestitution(damping.value);
   }
   const useGrid = broadPhase === undefined ? scenario.scene.kind === "box" || bodyCount > MAX_BODIES_FOR_FREE_FLIGHT_JUMPS : broadPhase === "grid";
-  return new ContactField({
+  const parameters: ContactFieldParameters = {
     model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
     stiffness: contact.stiffness ?? 0,
     hertzModulusFactorPa,
@@ -63,14 +71,29 @@ export function createContactField(scenario: Scenario, walls: readonly Wall[], g
     walls,
     gravityMPerS2,
     broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
-  });
+  };
+  if (!reuse) return new ContactField(parameters);
+  reusedField.configure(parameters);
+  return reusedField;
 }
+
+/** One field serves every run in this thread when asked to (runs are synchronous; see `configure`). */
+const reusedField = new ContactField({
+  model: CONTACT_LINEAR,
+  stiffness: 0,
+  hertzModulusFactorPa: 0,
+  dampingMode: DAMPING_NONE,
+  dampingValue: 0,
+  walls: [],
+  gravityMPerS2: 0,
+  broadPhase: BROAD_PHASE_ALL_PAIRS,
+});
 
 export function simulate(scenario: Scenario, options: RunOptions = {}): RunResult {
   const setup = buildScene(scenario.scene, scenario.seed);
   const bodies = setup.bodies;
   const gravity = setup.gravityMPerS2;
-  const field = createContactField(scenario, setup.walls, gravity, bodies.count, options.broadPhase);
+  const field = createContactField(scenario, setup.walls, gravity, bodies.count, options.broadPhase, bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS);
   const step = stepFunctionFor(scenario.integrator);
   const isVerlet = scenario.integrator === "velocity-verlet";
   const h = scenario.dtS / scenario.substeps;
