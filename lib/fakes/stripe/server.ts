@@ -192,7 +192,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         const saved = store.data.idempotency[scopeKey];
         if (saved) {
           if (saved.fingerprint !== print) throw idempotencyMismatch(idempotencyKey as string);
-          send(res, saved.status, saved.body, { "content-type": "application/json", ...headers, "idempotent-replayed": "true", "original-request": reqId });
+          send(res, saved.status, saved.body, { "content-type": "application/json", ...headers, "idempotent-replayed": "true", "original-request": saved.request_id });
           return;
         }
       }
@@ -219,11 +219,11 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         // except card declines, which Stripe records (the attempt, its events) and saves for the idempotency key.
         if (snapshot && !(err instanceof StripeFakeError && err.saveForIdempotency)) store.restore(snapshot);
         if (err instanceof StripeFakeError && err.saveForIdempotency && scopeKey) {
-          store.data.idempotency[scopeKey] = { fingerprint: print, status: err.status, body: JSON.stringify(errorBody(err), null, 2), created: ctx.now };
+          store.data.idempotency[scopeKey] = { fingerprint: print, status: err.status, body: JSON.stringify(errorBody(err), null, 2), created: ctx.now, request_id: reqId };
         }
         throw err;
       }
-      if (scopeKey) store.data.idempotency[scopeKey] = { fingerprint: print, status, body: text, created: ctx.now };
+      if (scopeKey) store.data.idempotency[scopeKey] = { fingerprint: print, status, body: text, created: ctx.now, request_id: reqId };
       if (method !== "GET" || store.data.seq !== seqBefore) persist();
       send(res, status, text, { "content-type": "application/json", ...headers });
       dispatcher.kick();

@@ -74,6 +74,8 @@ export interface IdempotencyRecord {
   status: number;
   body: string;
   created: number;
+  /** The request that produced the saved answer (sent back as `original-request` on replays). */
+  request_id: string;
 }
 
 export interface FakeStateData {
@@ -135,7 +137,12 @@ export class StripeFakeStore {
     this.filePath = filePath;
     this.data = emptyState();
     if (filePath && existsSync(filePath)) {
-      const parsed = JSON.parse(readFileSync(filePath, "utf8")) as FakeStateData;
+      let parsed: FakeStateData;
+      try {
+        parsed = JSON.parse(readFileSync(filePath, "utf8")) as FakeStateData;
+      } catch (err) {
+        throw new Error(`Stripe fake state file ${filePath} is not valid JSON (${err instanceof Error ? err.message : String(err)}); move it away to start empty.`);
+      }
       if (parsed.version !== 1) throw new Error(`Unsupported Stripe fake state version in ${filePath}: ${String(parsed.version)}`);
       const base = emptyState();
       this.data = { ...base, ...parsed, collections: { ...base.collections, ...parsed.collections } };

@@ -70,6 +70,9 @@ describe("customers through the SDK", () => {
     const c = await stripe.customers.create({ email: "gone@tidewater.test" });
     const deleted = await stripe.customers.del(c.id);
     expect(deleted).toMatchObject({ id: c.id, object: "customer", deleted: true });
+    expect(await stripe.customers.retrieve(c.id)).toMatchObject({ id: c.id, deleted: true });
+    const twice = await expectStripeError(stripe.customers.del(c.id));
+    expect(twice.statusCode).toBe(404);
   });
 });
 
@@ -134,6 +137,7 @@ describe("idempotency keys", () => {
     expect(second.id).toBe(first.id);
     expect(second.lastResponse.headers["idempotent-replayed"]).toBe("true");
     expect(first.lastResponse.headers["idempotent-replayed"]).toBeUndefined();
+    expect(second.lastResponse.headers["original-request"]).toBe(first.lastResponse.requestId);
     const matching = await stripe.customers.list({ email: "once@harbor-lights.test" });
     expect(matching.data).toHaveLength(1);
   });

@@ -261,6 +261,15 @@ describe("metered subscriptions and invoices", () => {
   });
 });
 
+describe("deleting a customer", () => {
+  it("cancels its subscriptions", async () => {
+    const studio = await stripe.customers.create({ email: "closing@ember-hollow.test" });
+    const sub = await stripe.subscriptions.create({ customer: studio.id, items: [{ price: overagePrice.id }] });
+    await stripe.customers.del(studio.id);
+    expect((await stripe.subscriptions.retrieve(sub.id)).status).toBe("canceled");
+  });
+});
+
 describe("control endpoints reject bad input naming the field", () => {
   it("advance_clock needs a forward `to`, outage needs `down`, deliver needs `events`", async () => {
     const post = (path: string, body: unknown) => fetch(`${fake.url}${path}`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });

@@ -135,8 +135,19 @@ export function updateCustomer(ctx: Ctx, params: Params, id: string): HandlerRes
 export function deleteCustomer(ctx: Ctx, params: Params, id: string): HandlerResult {
   params.allowOnly([]);
   mustGet(ctx.store, "customers", id);
-  const deleted: StripeObject = { id, object: "customer", deleted: true };
   const original = ctx.store.data.collections.customers[id];
+  if (original.deleted) throw resourceMissing("customer", id);
+  // Deleting a customer cancels its subscriptions at once, as Stripe does.
+  for (const sub of ctx.store.newestFirst("subscriptions")) {
+    if (sub.customer !== id || sub.status === "canceled") continue;
+    const previous = { status: sub.status };
+    sub.status = "canceled";
+    sub.canceled_at = ctx.now;
+    sub.ended_at = ctx.now;
+    sub.cancellation_details = { comment: null, feedback: null, reason: "cancellation_requested" };
+    ctx.emit("customer.subscription.deleted", sub, previous);
+  }
+  const deleted: StripeObject = { id, object: "customer", deleted: true };
   ctx.store.data.collections.customers[id] = deleted;
   ctx.emit("customer.deleted", original);
   return { body: deleted };
