@@ -47,6 +47,19 @@ describe("box scene", () => {
   });
 });
 
+describe("state reuse between runs", () => {
+  it("a run's result does not depend on what ran before it in the same thread", () => {
+    const calm: Scene = { kind: "pair", massAKg: 0.2, massBKg: 0.5, radiusAM: 0.03, radiusBM: 0.04, speedAMPerS: 1, speedBMPerS: 0.3, offsetFraction: 0.4, gapM: 0.02 };
+    const wild: Scene = { kind: "wall", massKg: 0.1, radiusM: 0.01, speedMPerS: 50, angleDeg: 10, gapM: 0.001 };
+    const calmRun = scenario(calm, linearContact(2e4, { kind: "restitution", value: 0.6 }), "velocity-verlet", 1e-4, 0.5);
+    const first = JSON.stringify(simulate(calmRun, { maxSamples: 7 }));
+    const wildResult = simulate(scenario(wild, linearContact(10), "explicit-euler", 1e-3, 0.5));
+    expect(wildResult.metrics.tunneled).toBe(true); // leaves tunnel and first-contact state behind
+    simulate(scenario({ ...calm, kind: "pair" }, { model: "hertz", stiffness: 1e6, damping: { kind: "coefficient", value: 3 } }, "symplectic-euler", 1e-5, 0.2));
+    expect(JSON.stringify(simulate(calmRun, { maxSamples: 7 }))).toBe(first);
+  });
+});
+
 describe("random generator", () => {
   it("xoshiro128** matches the reference implementation's output for a fixed state", () => {
     // Reference: a C transcription of Blackman & Vigna's xoshiro128starstar.c (uint32_t arithmetic, gcc -O2),
