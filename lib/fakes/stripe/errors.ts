@@ -44,7 +44,8 @@ export function unknownParam(param: string): StripeFakeError {
   return invalidRequest(`Received unknown parameter: ${param}`, param, "parameter_unknown");
 }
 
-export function invalidParam(param: string, message: string, code = "parameter_invalid"): StripeFakeError {
+/** An invalid value for a named parameter; Stripe gives most of these no `code`, only the message and `param`. */
+export function invalidParam(param: string, message: string, code?: string): StripeFakeError {
   return invalidRequest(message, param, code);
 }
 

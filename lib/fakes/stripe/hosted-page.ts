@@ -81,7 +81,3 @@ export function renderClosedPage(session: StripeObject): string {
 export function renderMissingPage(id: string): string {
   return layout("Not found — local Stripe fake", `<h1>Not found</h1><p>No such Checkout Session: ${escapeHtml(id)}</p>`);
 }
-
-export function renderFieldError(session: StripeObject, lineItems: StripeObject[], field: string, message: string): string {
-  return renderPaymentPage(session, lineItems, { code: `${field}_invalid`, message });
-}

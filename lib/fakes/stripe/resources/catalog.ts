@@ -362,8 +362,8 @@ function readRecurring(ctx: Ctx, params: Params): StripeObject["recurring"] | nu
 export function createPrice(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["currency", "product", "product_data", "unit_amount", "unit_amount_decimal", "recurring", "nickname", "lookup_key", "metadata", "active", "billing_scheme", "tax_behavior"]);
   const currency = currencyParam(params);
-  const billingScheme = params.string("billing_scheme", { oneOf: ["per_unit"] });
-  void billingScheme;
+  // Accepted only with the values the fake implements (per-unit pricing; tax is out of scope).
+  params.string("billing_scheme", { oneOf: ["per_unit"] });
   params.string("tax_behavior", { oneOf: ["unspecified", "exclusive", "inclusive"] });
   const { unitAmount, unitAmountDecimal } = readUnitAmount(params);
   const recurring = readRecurring(ctx, params);
