@@ -294,6 +294,8 @@ export function StabilityMap(props: StabilityMapProps) {
               aria-roledescription="stability map"
               aria-label={summary}
               aria-describedby={describedBy}
+              // The plot rectangle in CSS px, for browser tests and tools that point at cells.
+              data-plot={drawnLayout ? [drawnLayout.geometry.plot.left, drawnLayout.geometry.plot.top, drawnLayout.geometry.plot.width, drawnLayout.geometry.plot.height].join(",") : undefined}
               tabIndex={0}
               onPointerMove={onPointerMove}
               onPointerLeave={() => setPointed(null)}

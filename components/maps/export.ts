@@ -2,7 +2,7 @@
  * PNG export of a stability map: the map is drawn again on a fresh canvas, with its title, axes,
  * overlays and legend, at the requested size and resolution (no hover outline).
  */
-import type { MapModel } from "./map-model";
+import { buildMapModel, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
 import { LIGHT_CHROME, renderMap, type ChromeColours } from "./render";
 
 export interface PngExportOptions {
@@ -50,4 +50,12 @@ export function downloadBlob(blob: Blob, fileName: string): void {
   link.click();
   link.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10_000);
+}
+
+/** A map straight from StabilityMap-like props to a PNG Blob (the sweep page's "download" without a mounted map). */
+export function stabilityMapPng(
+  map: { x: MapAxis; y: MapAxis; layer: MapLayer; overlays?: readonly OverlayInput[]; scale?: ResolvedScale },
+  options: PngExportOptions,
+): Promise<Blob> {
+  return exportMapPng(buildMapModel(map.x, map.y, map.layer, map.overlays, map.scale), options);
 }
