@@ -118,6 +118,11 @@ export class ContactField implements ForceField {
 
   private firstContactSeenThisPass = false;
   private cutoffSquaredM2 = 0;
+  private memoEffectiveRadius = NaN;
+  private memoHertzStiffness = 0;
+  private memoReducedMass = NaN;
+  private memoStiffness = NaN;
+  private memoDamping = 0;
 
   // Uniform grid (counting sort by cell), allocated once and grown if needed.
   private cellOfBody: Int32Array = EMPTY_INDICES;
@@ -174,6 +179,9 @@ export class ContactField implements ForceField {
     this.firstContactEndNormalY = 0;
     this.firstContactSeenThisPass = false;
     this.cutoffSquaredM2 = 0;
+    this.memoEffectiveRadius = NaN;
+    this.memoReducedMass = NaN;
+    this.memoStiffness = NaN;
   }
 
   evaluate(bodies: Bodies): void {
@@ -357,7 +365,11 @@ export class ContactField implements ForceField {
     const fraction = overlap / smallerRadius;
     if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
     if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-    this.trackFirstContact(bodies, i, j, overlap, overlapRate, force, normalX, normalY, previousDistanceSquared >= contactDistanceSquared, contactDistance - Math.sqrt(previousDistanceSquared));
+    if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
+      const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+      const previousOverlap = isNewContact && this.firstContactPhase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+      this.trackFirstContact(bodies, i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
+    }
   }
 
   private checkSkippedContact(bodies: Bodies, i: number, j: number, dx: number, dy: number, contactDistanceSquared: number): void {
@@ -399,8 +411,10 @@ export class ContactField implements ForceField {
         const fraction = overlap / radius[i];
         if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
         if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-        const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
-        this.trackFirstContact(bodies, i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+        if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
+          const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
+          this.trackFirstContact(bodies, i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+        }
       }
     }
   }
@@ -415,19 +429,33 @@ export class ContactField implements ForceField {
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
       if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
-      let damping = 0;
-      if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
-      else if (this.dampingMode === DAMPING_DIMENSIONLESS) damping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
-      return k * overlap + damping * overlapRate;
+      return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
-    const k = this.hertzModulusFactorPa > 0 ? this.hertzModulusFactorPa * Math.sqrt(effectiveRadius) : this.stiffness;
+    let k = this.stiffness;
+    if (this.hertzModulusFactorPa > 0) {
+      if (effectiveRadius !== this.memoEffectiveRadius) {
+        this.memoEffectiveRadius = effectiveRadius;
+        this.memoHertzStiffness = this.hertzModulusFactorPa * Math.sqrt(effectiveRadius);
+      }
+      k = this.memoHertzStiffness;
+    }
     const root = Math.sqrt(magnitude);
     const springMagnitude = k * magnitude * root;
     if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
-    let damping = 0;
-    if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
-    else if (this.dampingMode === DAMPING_DIMENSIONLESS) damping = this.dampingValue * Math.sqrt(reducedMass * k);
-    return (overlap >= 0 ? springMagnitude : -springMagnitude) + damping * Math.sqrt(root) * overlapRate;
+    return (overlap >= 0 ? springMagnitude : -springMagnitude) + this.dampingCoefficient(reducedMass, k) * Math.sqrt(root) * overlapRate;
+  }
+
+  /** c (linear) or η (Hertz) for a contact; remembered for the last (mass, stiffness) pair, as most contacts repeat it. */
+  private dampingCoefficient(reducedMass: number, stiffness: number): number {
+    if (this.dampingMode === DAMPING_NONE) return 0;
+    if (this.dampingMode === DAMPING_COEFFICIENT) return this.dampingValue;
+    if (reducedMass !== this.memoReducedMass || stiffness !== this.memoStiffness) {
+      this.memoReducedMass = reducedMass;
+      this.memoStiffness = stiffness;
+      const root = Math.sqrt(reducedMass * stiffness);
+      this.memoDamping = this.model === CONTACT_LINEAR ? 2 * this.dampingValue * root : this.dampingValue * root;
+    }
+    return this.memoDamping;
   }
 
   private recordTunnel(kind: number, bodyA: number, bodyB: number): void {
