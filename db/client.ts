@@ -22,7 +22,8 @@ function holder(): DbHolder {
 }
 
 export function dataDir(): string {
-  return path.resolve(process.env.KICKDRIFT_DATA_DIR ?? "./data");
+  // Chosen at run time; tell the bundler not to trace the whole project from this call.
+  return path.resolve(/*turbopackIgnore: true*/ process.env.KICKDRIFT_DATA_DIR ?? "./data");
 }
 
 export function migrationsFolder(): string {

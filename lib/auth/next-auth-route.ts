@@ -1,5 +1,8 @@
 import NextAuth from "next-auth";
 import type { NextApiRequest, NextApiResponse } from "next";
+import { ApiError } from "@/lib/errors";
+import { readBodyText } from "@/lib/api/body";
+import { toErrorResponse } from "@/lib/api/respond";
 import { authOptions } from "./options";
 import { parseCookieHeader } from "./session";
 
@@ -9,15 +12,35 @@ import { parseCookieHeader } from "./session";
  * documented `NextAuth(req, res, options)` form a request/response pair built from the Request.
  */
 export async function handleNextAuth(req: Request, segments: string[]): Promise<Response> {
+  try {
+    return await runNextAuth(req, segments);
+  } catch (error) {
+    return toErrorResponse(error);
+  }
+}
+
+/** Sign-in forms are a few hundred bytes; anything past this is refused before next-auth sees it. */
+const MAX_AUTH_BODY_BYTES = 16 * 1024;
+
+async function runNextAuth(req: Request, segments: string[]): Promise<Response> {
   const url = new URL(req.url);
   const query: Record<string, string | string[]> = Object.fromEntries(url.searchParams);
   query.nextauth = segments;
   let body: Record<string, string> | undefined;
   if (req.method === "POST") {
     const type = req.headers.get("content-type") ?? "";
-    const text = await req.text();
-    if (type.includes("application/json")) body = text ? (JSON.parse(text) as Record<string, string>) : {};
-    else body = Object.fromEntries(new URLSearchParams(text));
+    const text = await readBodyText(req, MAX_AUTH_BODY_BYTES);
+    if (type.includes("application/json")) {
+      let parsed: unknown;
+      try {
+        parsed = text ? JSON.parse(text) : {};
+      } catch {
+        throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
+      }
+      if (!parsed || typeof parsed !== "object" || Array.isArray(parsed))
+        throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
+      body = Object.fromEntries(Object.entries(parsed).map(([k, v]) => [k, String(v)]));
+    } else body = Object.fromEntries(new URLSearchParams(text));
   }
   const headers: Record<string, string> = Object.fromEntries(req.headers);
   const apiReq = {

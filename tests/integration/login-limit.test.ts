@@ -9,7 +9,8 @@ import * as meRoute from "@/app/api/v1/me/route";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeUser, uniqueEmail } from "../helpers/factories";
 import { call } from "../helpers/http";
-import { nextAuth, passwordSignIn } from "../helpers/next-auth";
+import * as nextAuthRoute from "@/app/api/auth/[...nextauth]/route";
+import { csrf, nextAuth, passwordSignIn } from "../helpers/next-auth";
 
 beforeAll(async () => {
   await useFreshDb();
@@ -94,5 +95,24 @@ describe("credentials sign-in", () => {
     expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.80")).ok).toBe(true);
     for (let i = 0; i < 4; i++) await passwordSignIn(user.email, "wrong-wrong-wrong", `198.51.100.${90 + i}`);
     expect((await passwordSignIn(user.email, PASSWORD, "198.51.100.99")).ok).toBe(true);
+  });
+
+  it("answers 413 and 400 JSON, not 500, for an oversize or malformed sign-in body", async () => {
+    const { csrfToken, cookie } = await csrf();
+    const big = await nextAuth(["callback", "credentials"], {
+      method: "POST",
+      form: { csrfToken, email: "a@b.test", password: "p".repeat(20_000), json: "true" },
+      cookie,
+    });
+    expect(big.status).toBe(413);
+    expect(((await big.json()) as { error: { code: string } }).error.code).toBe("payload_too_large");
+    const req = new Request("http://localhost:3000/api/auth/callback/credentials", {
+      method: "POST",
+      headers: { "content-type": "application/json", cookie },
+      body: '{"csrfToken": ',
+    });
+    const broken = await nextAuthRoute.POST(req, { params: Promise.resolve({ nextauth: ["callback", "credentials"] }) });
+    expect(broken.status).toBe(400);
+    expect(((await broken.json()) as { error: { code: string } }).error.code).toBe("invalid_json");
   });
 });
