@@ -36,7 +36,7 @@ export class Params {
     if (typeof value !== "string") throw invalidParam(this.name(key), `Invalid string: ${this.name(key)} must be a string.`);
     if (opts.required && value === "") throw invalidParam(this.name(key), `You passed an empty string for '${this.name(key)}'. We assume empty values are an attempt to unset a parameter; however '${this.name(key)}' cannot be unset. You should remove '${this.name(key)}' from your request or supply a non-empty value.`, "parameter_invalid_empty");
     if (opts.max !== undefined && value.length > opts.max) {
-      throw invalidParam(this.name(key), `Invalid ${this.name(key)}: must be at most ${opts.max} characters`, "parameter_invalid_string_too_long");
+      throw invalidParam(this.name(key), `Invalid ${this.name(key)}: must be at most ${opts.max} characters`);
     }
     if (opts.oneOf && !opts.oneOf.includes(value)) {
       throw invalidParam(this.name(key), `Invalid ${this.name(key)}: must be one of ${opts.oneOf.join(", ")}`);

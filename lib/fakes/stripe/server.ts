@@ -172,7 +172,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
       }
       if (!apiKey.startsWith("sk_test_") || apiKey.length < 12) throw authenticationError(`Invalid API Key provided: ${redactKey(apiKey)}`);
       if (idempotencyKey !== null && idempotencyKey.length > 255) {
-        throw invalidRequest("Idempotency-Key must be at most 255 characters long.", undefined, "idempotency_key_too_long");
+        throw invalidRequest("Idempotency-Key must be at most 255 characters long.");
       }
       const contentType = String(req.headers["content-type"] ?? "");
       const rawBody = method === "GET" ? "" : await readBody(req);

@@ -720,7 +720,7 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
   const pmParam = params.string("payment_method");
   params.boolean("off_session");
   params.boolean("forgive");
-  if (invoice.status === "paid") throw invalidRequest("Invoice is already paid", undefined, "invoice_already_paid");
+  if (invoice.status === "paid") throw invalidRequest("Invoice is already paid");
   if (invoice.status === "void" || invoice.status === "uncollectible") throw invalidRequest(`This invoice is ${String(invoice.status)} and cannot be paid.`);
   if (invoice.status === "draft") finalizeInvoiceObject(ctx, invoice);
   if (invoice.status === "paid") return { body: invoice };
@@ -732,7 +732,7 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
   const sub = invoice.parent ? ctx.store.get("subscriptions", (invoice.parent as { subscription_details: { subscription: string } }).subscription_details.subscription) : undefined;
   const pm = pmParam ?? (sub?.default_payment_method as string | null | undefined) ?? (customer.invoice_settings as { default_payment_method: string | null }).default_payment_method;
   if (!pm) {
-    throw invalidRequest(`Cannot charge a customer that has no active card (${customer.id} has no default payment method).`, "payment_method", "invoice_no_customer_payment_method");
+    throw invalidRequest(`Cannot charge a customer that has no active card (${customer.id} has no default payment method).`, "payment_method");
   }
   chargeInvoice(ctx, invoice, pm, { throwOnDecline: true, param: pmParam ? "payment_method" : "customer" });
   return { body: invoice };
