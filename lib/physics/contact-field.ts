@@ -368,7 +368,7 @@ export class ContactField implements ForceField {
     if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
       const isNewContact = previousDistanceSquared >= contactDistanceSquared;
       const previousOverlap = isNewContact && this.firstContactPhase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
-      this.trackFirstContact(bodies, i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
+      this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
     }
   }
 
@@ -413,7 +413,7 @@ export class ContactField implements ForceField {
         if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
         if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
           const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
-          this.trackFirstContact(bodies, i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+          this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }
@@ -467,7 +467,6 @@ export class ContactField implements ForceField {
   }
 
   private trackFirstContact(
-    _bodies: Bodies,
     a: number,
     b: number,
     overlap: number,

@@ -168,7 +168,8 @@ export interface RunOptions {
   /**
    * "fast" (default): free flight of small gravity-free scenes is advanced in one jump to just
    * before the next contact, and a run ends early once no further contact is possible.
-   * "plain": every step is integrated (reference for tests and benchmarks). Metrics agree to ~1e-9.
+   * "plain": every step is integrated (reference for tests and benchmarks). Both give byte-identical
+   * metrics; series positions after the last contact may differ in the last bits.
    */
   stepping?: "fast" | "plain";
   /**
