@@ -99,7 +99,7 @@ export function SelectField({
 
 export function Card({ title, actions, children, className }: { title?: ReactNode; actions?: ReactNode; children: ReactNode; className?: string }) {
   return (
-    <section className={cx("rounded-lg border border-line bg-surface p-5 shadow-[0_1px_0_var(--kd-line)]", className)}>
+    <section className={cx("min-w-0 rounded-lg border border-line bg-surface p-5 shadow-[0_1px_0_var(--kd-line)]", className)}>
       {title || actions ? (
         <div className="mb-4 flex flex-wrap items-center justify-between gap-3">
           {title ? <h2 className="text-base font-semibold tracking-tight">{title}</h2> : <span />}

@@ -32,7 +32,7 @@ export function AdminHome() {
       <div className="mb-6 max-w-sm">
         <TextField id="admin-filter" label="Filter by name, e-mail or id" type="search" value={filter} onChange={(event) => setFilter(event.target.value)} />
       </div>
-      <div className="grid gap-6 xl:grid-cols-2">
+      <div className="grid grid-cols-1 gap-6 xl:grid-cols-2">
         <Card title={`Studios${studios.data ? ` (${studios.data.length})` : ""}`}>
           {studios.isPending ? (
             <LoadingRows label="studios" />
@@ -41,7 +41,7 @@ export function AdminHome() {
           ) : studios.data.length === 0 ? (
             <EmptyState>No studios yet.</EmptyState>
           ) : (
-            <div className="overflow-x-auto">
+            <div className="relative overflow-x-auto">
               <table className="w-full text-sm" data-testid="admin-studios">
                 <thead className="border-b border-line">
                   <tr>
@@ -78,7 +78,7 @@ export function AdminHome() {
           ) : users.data.length === 0 ? (
             <EmptyState>No users yet.</EmptyState>
           ) : (
-            <div className="overflow-x-auto">
+            <div className="relative overflow-x-auto">
               <table className="w-full text-sm" data-testid="admin-users">
                 <thead className="border-b border-line">
                   <tr>

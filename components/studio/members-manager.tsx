@@ -54,8 +54,8 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
 
   return (
     <StudioShell studioId={studioId} studioName={studioName} role="owner">
-      <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
-        <div className="space-y-6">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
+        <div className="min-w-0 space-y-6">
           {actionError ? <div data-testid="member-action-error"><Alert>{actionError}</Alert></div> : null}
           {notice ? <Alert tone="ok">{notice}</Alert> : null}
           <Card title="Members">

@@ -26,7 +26,7 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
 
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>
-      <div className="grid gap-6 lg:grid-cols-3">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-3">
         <Card title="Overview" className="lg:col-span-1">
           {studio.isPending ? (
             <LoadingRows label="the studio" />

@@ -21,7 +21,7 @@ export function MembersTable({
   actions?: (member: Member) => ReactNode;
 }) {
   return (
-    <div className="overflow-x-auto">
+    <div className="relative overflow-x-auto">
       <table className="w-full text-sm" data-testid="members-table">
         <thead className="border-b border-line">
           <tr>
@@ -52,7 +52,7 @@ export function MembersTable({
 
 export function InvitesTable({ invites, actions }: { invites: Invite[]; actions?: (invite: Invite) => ReactNode }) {
   return (
-    <div className="overflow-x-auto">
+    <div className="relative overflow-x-auto">
       <table className="w-full text-sm" data-testid="invites-table">
         <thead className="border-b border-line">
           <tr>
@@ -81,7 +81,7 @@ export function InvitesTable({ invites, actions }: { invites: Invite[]; actions?
 
 export function TokensTable({ tokens, actions }: { tokens: ApiToken[]; actions?: (token: ApiToken) => ReactNode }) {
   return (
-    <div className="overflow-x-auto">
+    <div className="relative overflow-x-auto">
       <table className="w-full text-sm" data-testid="tokens-table">
         <thead className="border-b border-line">
           <tr>

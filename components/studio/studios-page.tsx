@@ -16,7 +16,7 @@ export function StudiosPage({ userName }: { userName: string }) {
       <PageHeading eyebrow="Your studios" title={userName ? `Welcome, ${userName}` : "Your studios"}>
         A studio holds your team, its roles, API tokens and — as sweeps arrive — its scenarios and compute balance.
       </PageHeading>
-      <div className="grid gap-6 lg:grid-cols-[1.6fr_1fr]">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1.6fr)_minmax(0,1fr)]">
         <Card title="Studios you belong to">
           {studios.isPending ? (
             <LoadingRows label="studios" />

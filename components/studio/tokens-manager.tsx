@@ -24,8 +24,8 @@ export function TokensManager({ studioId, studioName }: { studioId: string; stud
 
   return (
     <StudioShell studioId={studioId} studioName={studioName} role="owner">
-      <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
-        <div className="space-y-6">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
+        <div className="min-w-0 space-y-6">
           {created ? (
             <section className="rounded-lg border-2 border-ok bg-ok-soft p-5" aria-labelledby="new-token-heading" data-testid="new-token">
               <h2 id="new-token-heading" className="font-semibold text-ink">
