@@ -125,6 +125,7 @@ function SeriesChart({
                 isAnimationActive={false}
                 connectNulls={false}
                 type="linear"
+                legendType="plainline"
               />
             ))}
           </LineChart>

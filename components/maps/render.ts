@@ -8,7 +8,7 @@
  */
 import { formatSI } from "@/lib/charts/format";
 import { legendTicks } from "@/lib/charts/normalise";
-import { logTicks, niceLinearTicks, type Tick } from "@/lib/charts/ticks";
+import { logMinorTicks, logTicks, niceLinearTicks, type Tick } from "@/lib/charts/ticks";
 import { cellRect, cellsAreUniform, mapGeometry, valueToPixel, type AxisScale, type MapGeometry, type PlotRect } from "@/lib/charts/scales";
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
 import type { GlyphName } from "@/lib/charts/categories";
@@ -80,6 +80,14 @@ function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean): Tick[]
   const [lo, hi] = scale.domain;
   if (scale.spacing === "log") return logTicks(lo, hi, compact ? 4 : Math.max(3, Math.floor(lengthPx / 48)));
   return niceLinearTicks(lo, hi, Math.max(2, Math.floor(lengthPx / (compact ? 70 : 80))));
+}
+
+/** Unlabelled 2 … 9 marks on a log axis, when its decades are far enough apart to hold them. */
+function minorMarks(scale: AxisScale, lengthPx: number): number[] {
+  if (scale.spacing !== "log") return [];
+  const decades = Math.log10(scale.domain[1]) - Math.log10(scale.domain[0]);
+  if (lengthPx / decades < 60) return [];
+  return logMinorTicks(scale.domain[0], scale.domain[1]);
 }
 
 function legendWidth(model: MapModel, ctx: CanvasRenderingContext2D, chrome: ChromeColours): number {
@@ -329,6 +337,19 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
     ctx.fillText(label, px, plot.top + plot.height + TICK_LENGTH + 3);
     lastRight = Math.max(lastRight, px + half);
   }
+  // Minor marks of log axes (no labels).
+  ctx.beginPath();
+  for (const value of minorMarks(geometry.x, plot.width)) {
+    const px = Math.round(valueToPixel(geometry.x, value)) + 0.5;
+    ctx.moveTo(px, plot.top + plot.height);
+    ctx.lineTo(px, plot.top + plot.height + 3);
+  }
+  for (const value of minorMarks(geometry.y, plot.height)) {
+    const py = Math.round(valueToPixel(geometry.y, value)) + 0.5;
+    ctx.moveTo(plot.left, py);
+    ctx.lineTo(plot.left - 3, py);
+  }
+  ctx.stroke();
   // y ticks
   const yTicks = axisTicks(geometry.y, plot.height, compact);
   ctx.textAlign = "right";

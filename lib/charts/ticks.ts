@@ -73,3 +73,19 @@ export function logTicks(min: number, max: number, maxMajor = 8): Tick[] {
   if (ticks.length >= 2) return ticks;
   return niceLinearTicks(min, max, 4).filter((t) => t.value > 0);
 }
+
+/** Unlabelled minor marks of a log axis: 2 … 9 times each decade inside [min, max]. */
+export function logMinorTicks(min: number, max: number): number[] {
+  if (!(min > 0) || !(max > 0) || !Number.isFinite(min) || !Number.isFinite(max)) {
+    throw new Error(`log ticks need a positive finite range, got [${min}, ${max}]`);
+  }
+  if (min > max) [min, max] = [max, min];
+  const marks: number[] = [];
+  for (let d = Math.floor(Math.log10(min)); d <= Math.ceil(Math.log10(max)); d++) {
+    for (let m = 2; m <= 9; m++) {
+      const value = Number((m * 10 ** d).toPrecision(12));
+      if (value >= min * (1 - 1e-9) && value <= max * (1 + 1e-9)) marks.push(value);
+    }
+  }
+  return marks;
+}

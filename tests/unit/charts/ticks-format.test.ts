@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { logTicks, niceLinearTicks, niceStep } from "@/lib/charts/ticks";
+import { logMinorTicks, logTicks, niceLinearTicks, niceStep } from "@/lib/charts/ticks";
 import { formatPrecise, formatSI, formatSignificant } from "@/lib/charts/format";
 
 const values = (ticks: { value: number }[]) => ticks.map((t) => t.value);
@@ -53,6 +53,13 @@ describe("log ticks", () => {
   it("falls back to linear ticks inside less than one 1-2-5 step", () => {
     // Hand derivation: [3, 4.5] holds no 1-2-5 value; linear step 0.5 gives 3, 3.5, 4, 4.5.
     expect(values(logTicks(3, 4.5))).toEqual([3, 3.5, 4, 4.5]);
+  });
+
+  it("marks 2 … 9 of each decade as minor ticks", () => {
+    // Hand derivation: [1, 100] holds 2 … 9 and 20 … 90.
+    expect(logMinorTicks(1, 100)).toEqual([2, 3, 4, 5, 6, 7, 8, 9, 20, 30, 40, 50, 60, 70, 80, 90]);
+    // Hand derivation: [0.0025, 0.011] holds 0.003 … 0.009.
+    expect(logMinorTicks(0.0025, 0.011)).toEqual([0.003, 0.004, 0.005, 0.006, 0.007, 0.008, 0.009]);
   });
 
   it("rejects ranges that touch zero", () => {
