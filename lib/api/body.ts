@@ -29,14 +29,41 @@ export async function readBodyText(req: Request, limit = MAX_JSON_BODY_BYTES): P
   return Buffer.concat(chunks).toString("utf8");
 }
 
+/** The dotted path of the first string (value or key) holding a NUL character, which PostgreSQL text cannot store. */
+function findNul(value: unknown, path: string[] = []): string[] | null {
+  if (typeof value === "string") return value.includes("\u0000") ? path : null;
+  if (Array.isArray(value)) {
+    for (let i = 0; i < value.length; i++) {
+      const found = findNul(value[i], [...path, String(i)]);
+      if (found) return found;
+    }
+    return null;
+  }
+  if (value && typeof value === "object") {
+    for (const [key, inner] of Object.entries(value)) {
+      if (key.includes("\u0000")) return [...path, key.replaceAll("\u0000", "\\u0000")];
+      const found = findNul(inner, [...path, key]);
+      if (found) return found;
+    }
+  }
+  return null;
+}
+
 export async function readJson(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<unknown> {
   const text = await readBodyText(req, limit);
   if (text.trim() === "") throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
+  let value: unknown;
   try {
-    return JSON.parse(text);
+    value = JSON.parse(text);
   } catch {
     throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
   }
+  const nulAt = findNul(value);
+  if (nulAt) {
+    const field = nulAt.join(".");
+    throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || undefined);
+  }
+  return value;
 }
 
 function issueField(issue: z.core.$ZodIssue): string {

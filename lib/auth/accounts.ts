@@ -67,7 +67,7 @@ export async function authenticateWithPassword(rawEmail: unknown, rawPassword: u
   if (typeof rawEmail !== "string" || typeof rawPassword !== "string") return null;
   const email = rawEmail.trim().toLowerCase();
   const password = rawPassword;
-  if (email === "" || password.length > 1000) return null;
+  if (email === "" || email.length > 254 || email.includes("\u0000") || password.length > 1000) return null;
   const db = await getDb();
   const keys = [accountKey(email), addressKey(address)];
   for (const key of keys) {

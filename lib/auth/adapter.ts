@@ -34,6 +34,7 @@ export function kickdriftAdapter(): Adapter {
       return user ? toAdapterUser(user) : null;
     },
     async getUserByEmail(email: string) {
+      if (email.includes("\u0000")) return null;
       const db = await getDb();
       const [user] = await db.select().from(users).where(eq(users.email, email.toLowerCase()));
       return user ? toAdapterUser(user) : null;
@@ -66,6 +67,8 @@ export function kickdriftAdapter(): Adapter {
       return undefined;
     },
     async createVerificationToken(token: VerificationToken) {
+      // next-auth turns a thrown error here into its generic "EmailSignin" answer.
+      if (token.identifier.includes("\u0000") || token.identifier.length > 254) throw new Error("Not a valid e-mail address.");
       const db = await getDb();
       await db.insert(verificationTokens).values({ identifier: token.identifier, token: token.token, expires: token.expires });
       return token;

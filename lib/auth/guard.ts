@@ -139,6 +139,9 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
   const guarded = async (req: Request, context: { params: Promise<P> }): Promise<Response> => {
     try {
       const params = ((await context?.params) ?? {}) as P;
+      // No stored id or token contains NUL (PostgreSQL text cannot): such a path names nothing.
+      const values = Object.values(params).flat();
+      if (values.some((v) => typeof v === "string" && v.includes("\u0000"))) throw new ApiError(404, "not_found", "Not found.");
       let actor: Actor | null;
       if (policy.access === "public") {
         // A public route does not fail because of a stale token; it just runs anonymously.

@@ -27,7 +27,15 @@ export const authOptions: AuthOptions = {
       name: "E-mail and password",
       credentials: { email: { label: "E-mail", type: "email" }, password: { label: "Password", type: "password" } },
       async authorize(credentials, req) {
-        const user = await authenticateWithPassword(credentials?.email, credentials?.password, clientAddress(req.headers ?? {}));
+        let user;
+        try {
+          const address = clientAddress(req.headers ?? {}).replaceAll("\u0000", "");
+          user = await authenticateWithPassword(credentials?.email, credentials?.password, address);
+        } catch (error) {
+          // next-auth would put error.message into the redirect URL: never let an internal error reach the client.
+          console.error("[auth] credentials sign-in failed unexpectedly", error);
+          user = null;
+        }
         // Throwing (rather than returning null) makes next-auth pass our one generic message to the client.
         if (!user) throw new Error(LOGIN_ERROR_MESSAGE);
         return { id: user.id, email: user.email, name: user.name };
