@@ -166,8 +166,9 @@ export interface RunOptions {
   /** Record a time series with at most this many samples (evenly spaced in steps). 0 or absent: none. */
   maxSamples?: number;
   /**
-   * "fast" (default): free flight of small gravity-free scenes is advanced in one jump to just
-   * before the next contact, and a run ends early once no further contact is possible.
+   * "fast" (default): free flight of small gravity-free scenes is advanced without force passes or
+   * bookkeeping to just before the next contact, and a run ends in one jump once no further
+   * contact is possible (the skipped steps still count).
    * "plain": every step is integrated (reference for tests and benchmarks). Both give byte-identical
    * metrics; series positions after the last contact may differ in the last bits.
    */
