@@ -13,7 +13,7 @@ import { cellRect, cellsAreUniform, mapGeometry, valueToPixel, type AxisScale, t
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
 import type { GlyphName } from "@/lib/charts/categories";
 import { lutColourCss } from "@/lib/charts/colormaps";
-import { CELL_NO_VALUE, inkOn, type MapModel } from "./map-model";
+import { inkOn, type MapModel } from "./map-model";
 
 /** Theme colours of the chrome (text, lines, background); the data colours are the map's own. */
 export interface ChromeColours {
@@ -642,5 +642,3 @@ export function renderHighlights(
   }
   ctx.setLineDash([]);
 }
-
-export { CELL_NO_VALUE };
