@@ -7,16 +7,18 @@ export type HttpMethod = (typeof HTTP_METHODS)[number];
 type Handler = (req: Request) => Promise<Response>;
 
 /**
- * Handlers for the methods a route does not support: 405 JSON with an `Allow` header.
- * Usage in a route file: `export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);`
+ * Handlers for the methods a route does not support (405 JSON with an `Allow` header), plus an
+ * OPTIONS that reports the true `Allow` list (Next's automatic OPTIONS would list the 405 stubs too).
+ * Usage in a route file: `export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET", "POST"]);`
  */
-export function otherMethods(allowed: readonly HttpMethod[]): Record<HttpMethod, Handler> {
+export function otherMethods(allowed: readonly HttpMethod[]): Record<HttpMethod | "OPTIONS", Handler> {
   const allow = [...allowed, ...(allowed.includes("GET") ? ["HEAD"] : []), "OPTIONS"].join(", ");
+  const options: Handler = async () => new Response(null, { status: 204, headers: { allow } });
   const handler: Handler = async (req) =>
     errorResponse(
       new ApiError(405, "method_not_allowed", `Method ${req.method} is not allowed here; allowed: ${allow}.`, undefined, undefined, {
         allow,
       }),
     );
-  return Object.fromEntries(HTTP_METHODS.map((m) => [m, handler])) as Record<HttpMethod, Handler>;
+  return { ...(Object.fromEntries(HTTP_METHODS.map((m) => [m, handler])) as Record<HttpMethod, Handler>), OPTIONS: options };
 }

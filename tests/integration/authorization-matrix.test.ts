@@ -208,6 +208,11 @@ describe("every route method has a row, and every other method answers 405", () 
         for (const m of allowed) expect(allow).toContain(m);
         expect(allow).not.toContain(method);
       }
+      // OPTIONS reports exactly the supported methods (not the 405 stubs).
+      const options = await call(mod.OPTIONS, { method: "OPTIONS", path: concretePath(route, {}) });
+      expect(options.status).toBe(204);
+      const listed = (options.res.headers.get("allow") ?? "").split(", ").filter((m) => (HTTP_METHODS as readonly string[]).includes(m));
+      expect(listed.sort(), `OPTIONS ${route}`).toEqual([...allowed].sort());
     }
   });
 

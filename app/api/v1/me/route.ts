@@ -11,4 +11,4 @@ export const GET = withAuth({ access: "user" }, async ({ user }) => {
   return json({ user: publicUser(user), studios: await studiosOfUser(user.id) });
 });
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -14,4 +14,4 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
   return json({ ok: true }, 202);
 });
 
-export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

@@ -13,4 +13,4 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
   return json({ user: { id: user.id, email: user.email, name: user.name } }, 201);
 });
 
-export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

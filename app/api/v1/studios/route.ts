@@ -16,4 +16,4 @@ export const POST = withAuth({ access: "user" }, async ({ req, user }) => {
   return json({ studio: { id: studio.id, name: studio.name, role: "owner" } }, 201);
 });
 
-export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET", "POST"]);

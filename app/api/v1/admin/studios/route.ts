@@ -8,4 +8,4 @@ export const dynamic = "force-dynamic";
 
 export const GET = withAuth({ access: "admin" }, async () => json({ studios: await allStudios() }));
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

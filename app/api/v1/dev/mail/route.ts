@@ -14,4 +14,4 @@ export const GET = withAuth({ access: "public" }, async () => {
   return json({ messages: await listCapturedMail() });
 });
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -11,4 +11,4 @@ export const GET = withAuth({ access: "public" }, async ({ params }) => {
   return json({ invite: await describeInvite(params.token) });
 });
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -12,4 +12,4 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
   return json({ ok: true });
 });
 
-export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

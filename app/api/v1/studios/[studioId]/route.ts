@@ -10,4 +10,4 @@ export const GET = withAuth({ access: "studio", roles: "member", token: "read" }
   return json({ studio: studioView(studio), role });
 });
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -10,4 +10,4 @@ export const POST = withAuth({ access: "user" }, async ({ params, user }) => {
   return json({ studio: await acceptInvite(params.token, user) });
 });
 
-export const { GET, PUT, PATCH, DELETE } = otherMethods(["POST"]);
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

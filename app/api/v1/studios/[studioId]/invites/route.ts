@@ -18,4 +18,4 @@ export const POST = withAuth(OWNERS_ONLY, async ({ req, studio, user }) => {
   return json({ invite: { id: invite.id, email: invite.email, role: invite.role, expiresAt: invite.expiresAt }, mailSent }, 201);
 });
 
-export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET", "POST"]);

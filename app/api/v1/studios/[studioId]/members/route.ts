@@ -10,4 +10,4 @@ export const GET = withAuth({ access: "studio", roles: "member", token: "read" }
   return json({ members: await listMembers(studio.id) });
 });
 
-export const { POST, PUT, PATCH, DELETE } = otherMethods(["GET"]);
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

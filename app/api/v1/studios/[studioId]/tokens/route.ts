@@ -21,4 +21,4 @@ export const POST = withAuth(OWNERS_ONLY, async ({ req, studio, user }) => {
   );
 });
 
-export const { PUT, PATCH, DELETE } = otherMethods(["GET", "POST"]);
+export const { PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET", "POST"]);

@@ -11,4 +11,4 @@ export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
   return json({ deleted: { id: params.inviteId } });
 });
 
-export const { GET, POST, PUT, PATCH } = otherMethods(["DELETE"]);
+export const { GET, POST, PUT, PATCH, OPTIONS } = otherMethods(["DELETE"]);

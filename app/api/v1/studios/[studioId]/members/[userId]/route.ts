@@ -17,4 +17,4 @@ export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
   return json({ removed: { userId: params.userId } });
 });
 
-export const { GET, POST, PUT } = otherMethods(["PATCH", "DELETE"]);
+export const { GET, POST, PUT, OPTIONS } = otherMethods(["PATCH", "DELETE"]);
