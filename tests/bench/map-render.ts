@@ -10,7 +10,8 @@
  *   read-back that forces the canvas to finish rasterising;
  * - "canvas": the canvas draw alone, as the component reports it through onDraw.
  *
- * Run alone: `npx tsx tests/bench/map-render.ts`; or through tests/bench/run-all.ts via run().
+ * Run alone: `npx tsx tests/bench/map-render.ts`; or through tests/bench/run-all.ts as `mapRender`
+ * (a BenchModule; `run()` is exported too).
  */
 import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { existsSync } from "node:fs";
@@ -19,6 +20,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { build } from "esbuild";
 import { chromium } from "playwright-core";
+import type { BenchModule } from "./bench-module";
 
 const TARGET_MS = 200;
 const SIZE = 256;
@@ -170,6 +172,13 @@ export async function run(): Promise<void> {
     await rm(dir, { recursive: true, force: true });
   }
 }
+
+/** For tests/bench/run-all.ts (BENCH_MODULES). */
+export const mapRender: BenchModule = {
+  id: "map-render",
+  title: "drawing a 256 × 256 stability map in headless chromium",
+  run,
+};
 
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
   run().catch((error) => {
