@@ -18,6 +18,8 @@ const ENTRY = `
 import { createRoot } from "react-dom/client";
 import { createRef } from "react";
 import { StabilityMap } from "@/components/maps/StabilityMap";
+import { CellTimeSeries } from "@/components/maps/CellTimeSeries";
+import { TrajectoryReplay } from "@/components/maps/TrajectoryReplay";
 
 const x = { label: "Stiffness", unit: "N/m", values: [1e3, 1e4, 1e5, 1e6], spacing: "log" };
 const y = { label: "Timestep", unit: "s", values: [0.001, 0.002, 0.003], spacing: "linear" };
@@ -29,6 +31,27 @@ window.mapRef = createRef();
 const root = createRoot(document.getElementById("root"));
 window.mountGood = () => root.render(<StabilityMap ref={window.mapRef} title="Pair, symplectic Euler" x={x} y={y} layer={{ kind: "verdict", verdicts }} reasons={reasons} height={360} onCellClick={(i) => window.clicks.push(i)} />);
 window.mountBad = () => root.render(<StabilityMap x={x} y={y} layer={{ kind: "verdict", verdicts: verdicts.slice(0, 5) }} />);
+// A disc of radius 0.1 m sliding from x = 1 m to x = 0.1 m onto the wall x = 0 over 1 s (invented data).
+const n = 101;
+const tS = Array.from({ length: n }, (_, i) => i / 100);
+const xM = tS.map((t) => 1 - 0.9 * t);
+const series = {
+  tS,
+  bodies: [{ xM, yM: tS.map(() => 0), pxNs: tS.map(() => -0.9), pyNs: tS.map(() => 0) }],
+  totalPxNs: tS.map(() => -0.9),
+  totalPyNs: tS.map(() => 0),
+  kineticJ: tS.map(() => 0.405),
+  potentialJ: tS.map(() => 0),
+  totalJ: tS.map(() => 0.405),
+  maxOverlapM: tS.map((t) => (t > 0.99 ? 0.001 : 0)),
+};
+window.mountDrillDown = () =>
+  root.render(
+    <div>
+      <CellTimeSeries series={series} bodyLabels={["Hockey puck"]} overlapLimitM={0.01} />
+      <TrajectoryReplay series={series} radiiM={[0.1]} walls={[{ normalX: 1, normalY: 0, offsetM: 0 }]} />
+    </div>,
+  );
 window.ready = true;
 `;
 
@@ -38,6 +61,7 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
   let dir = "";
   let browser: Browser;
   let page: Page;
+  const pageErrors: string[] = [];
 
   /** The plot rectangle the map reports, and the centre of one cell in page coordinates. */
   async function cellCentre(column: number, row: number, columns = 4, rows = 3): Promise<{ x: number; y: number }> {
@@ -69,6 +93,7 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
       args: ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"],
     });
     page = await browser.newPage({ viewport: { width: 900, height: 600 }, deviceScaleFactor: 2 });
+    page.on("pageerror", (error) => pageErrors.push(String(error)));
     await page.goto(`file://${path.join(dir, "index.html")}`);
     await page.waitForFunction(() => (window as unknown as { ready?: boolean }).ready === true);
     await page.evaluate(() => (window as unknown as { mountGood: () => void }).mountGood());
@@ -163,5 +188,22 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
   it("names the field when the data do not fit the axes", async () => {
     await page.evaluate(() => (window as unknown as { mountBad: () => void }).mountBad());
     await expect.poll(() => page.getByRole("alert").textContent()).toContain("layer.verdicts: 5 cells for a 4 × 3 map (needs 12)");
+  });
+
+  it("draws the drill-down charts and plays the replay to its end", async () => {
+    await page.evaluate(() => (window as unknown as { mountDrillDown: () => void }).mountDrillDown());
+    // Four charts, each with its legend; the body's name in the momentum legends.
+    await expect.poll(() => page.locator("figcaption").allTextContents()).toEqual(["Momentum along x", "Momentum along y", "Energy", "Largest overlap"]);
+    await expect.poll(() => page.locator(".recharts-legend-item-text", { hasText: "Hockey puck" }).count()).toBe(2);
+    expect(await page.locator(".recharts-line").count()).toBe(2 + 2 + 3 + 1);
+    // Scrub to the middle: the slider spans 0 … 1000 over the run (1 s), so 500 is t = 500 ms.
+    await page.locator("input[type=range]").fill("500");
+    await expect.poll(() => page.locator("output").last().textContent()).toBe("t = 500 ms");
+    // Fastest setting plays the whole second in 2 s; it stops at the end and offers a replay.
+    await page.getByRole("combobox").selectOption("2");
+    await page.getByRole("button", { name: "Play" }).click();
+    await expect.poll(() => page.getByRole("button", { name: "Replay" }).count(), { timeout: 10_000 }).toBe(1);
+    expect(await page.locator("output").last().textContent()).toBe("t = 1 s");
+    expect(pageErrors).toEqual([]);
   });
 });
