@@ -70,11 +70,11 @@ export async function latestCapturedMailTo(email: string) {
 }
 
 /** Signs in by e-mailed link as the browser does: ask for the link, then open it from the mailbox. */
-export async function magicLinkSignIn(email: string, callbackUrl = "http://localhost:3000/studios"): Promise<{ cookie: Response; jar: string; location: string | null }> {
+export async function magicLinkSignIn(email: string, callbackUrl = "http://localhost:3000/studios"): Promise<{ response: Response; jar: string; location: string | null }> {
   const { csrfToken, cookie } = await csrf();
   await nextAuth(["signin", "email"], { method: "POST", form: { csrfToken, email, callbackUrl, json: "true" }, cookie });
   const mail = await latestCapturedMailTo(email);
   const link = new URL(mail.links.find((l) => l.includes("/api/auth/callback/email"))!);
   const open = await nextAuth(["callback", "email"], { search: link.search, cookie });
-  return { cookie: open, jar: mergeCookies(cookie, open), location: open.headers.get("location") };
+  return { response: open, jar: mergeCookies(cookie, open), location: open.headers.get("location") };
 }

@@ -218,7 +218,7 @@ describe("every route method has a row, and every other method answers 405", () 
 
   it("answers unknown /api paths with 404 JSON for every method", async () => {
     const mod = await loadRoute("[...path]");
-    for (const method of HTTP_METHODS) {
+    for (const method of [...HTTP_METHODS, "OPTIONS"] as const) {
       const { status, body } = await call(mod[method], { method, path: "/api/v1/crates/launch", params: { path: ["v1", "crates", "launch"] } });
       expect(status).toBe(404);
       expect(errorOf(body).code).toBe("not_found");

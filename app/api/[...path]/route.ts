@@ -10,4 +10,11 @@ async function unknownRoute(req: Request): Promise<Response> {
   return errorResponse(new ApiError(404, "not_found", `No API route at ${req.method} ${pathname}.`));
 }
 
-export { unknownRoute as GET, unknownRoute as POST, unknownRoute as PUT, unknownRoute as PATCH, unknownRoute as DELETE };
+export {
+  unknownRoute as GET,
+  unknownRoute as POST,
+  unknownRoute as PUT,
+  unknownRoute as PATCH,
+  unknownRoute as DELETE,
+  unknownRoute as OPTIONS,
+};
