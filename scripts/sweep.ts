@@ -102,7 +102,7 @@ async function main(): Promise<number> {
   const spec = parsed.spec;
   const axes = expandAxes(spec);
   const header = resultsHeader(spec, axes);
-  const quote = predictSweep(spec, { axes });
+  const quote = predictSweep(spec, { axes, targetChunkMs: args.targetChunkMs, maxCellsPerChunk: args.maxCellsPerChunk });
   const log = (text: string) => {
     if (!args.quiet) process.stderr.write(text);
   };

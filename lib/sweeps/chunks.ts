@@ -7,7 +7,7 @@
  *
  * Pure: safe to import in the browser.
  */
-import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, predictCellNs, type CostConstants } from "./cost";
+import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, oneOffKey, predictCellNs, type CostConstants } from "./cost";
 import { cellAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";
 import type { SweepSpec } from "./spec";
 
@@ -17,7 +17,7 @@ export interface ChunkPlan {
   firstCell: number;
   /** Number of cells: the chunk covers [firstCell, firstCell + cellCount). */
   cellCount: number;
-  /** Predicted compute of the chunk's cells (integer ms, rounded up). */
+  /** Predicted compute of the chunk: its cells, its fixed overhead and one-off solves (integer ms, rounded up). */
   predictedMs: number;
 }
 
@@ -49,15 +49,23 @@ export function planChunks(spec: SweepSpec, options: ChunkOptions = {}): ChunkPl
   const chunks: ChunkPlan[] = [];
   let firstCell = 0;
   let cells = 0;
-  let chunkNs = 0;
+  let chunkNs = constants.chunkOverheadNs;
+  const oneOffs = new Set<string>();
   const close = () => {
     chunks.push({ index: chunks.length, firstCell, cellCount: cells, predictedMs: Math.max(1, Math.ceil(chunkNs / 1e6)) });
     firstCell += cells;
     cells = 0;
-    chunkNs = 0;
+    chunkNs = constants.chunkOverheadNs;
+    oneOffs.clear();
   };
   for (let index = 0; index < total; index++) {
-    chunkNs += predictCellNs(cellAt(spec, axes, index).scenario, constants);
+    const scenario = cellAt(spec, axes, index).scenario;
+    chunkNs += predictCellNs(scenario, constants);
+    const oneOff = oneOffKey(scenario);
+    if (oneOff !== null && !oneOffs.has(oneOff)) {
+      oneOffs.add(oneOff);
+      chunkNs += constants.hertzRestitutionSolveNs;
+    }
     cells++;
     if (chunkNs >= targetNs || cells >= maxCells) close();
   }

@@ -12,22 +12,27 @@
  * - row and box: every step is integrated; a step costs a fixed part plus a
  *   part per body (the box's broad phase keeps it linear in N).
  *
- * Calibration (see CALIBRATION below) is a least-squares-free, by-hand fit to
- * the figures printed by `npm run bench` (module cost-calibration) on the
- * development machine. The quote band QUOTE_BAND states how far measured
+ * The constants (CALIBRATION below) come from weighted least-squares fits printed
+ * by `npm run bench -- cost-calibration`; QUOTE_BAND states how far billed
  * compute may stray from the prediction.
  *
  * Pure: safe to import in the browser (the quote is shown in the form).
  */
 import { effectiveModulusSameMaterialPa, hertzContactDurationS, hertzStiffnessFromModulus, linearContactDurationS } from "../physics/analytic";
 import type { Scenario } from "../physics/types";
-import { cellCount, cellAt, expandAxes, type ExpandedAxis } from "./grid";
+import { planChunks, type ChunkOptions } from "./chunks";
+import { cellCount, cellAt, expandAxes } from "./grid";
 import { bodyCount, stepsPerCell } from "./axes";
 import type { SweepSpec } from "./spec";
 
 export interface CostConstants {
-  /** Fixed cost of one cell in any scene: set-up, metrics, verdict (ns). */
+  /** Fixed cost of one wall, row or box cell: set-up, metrics, verdict (ns). */
   cellOverheadNs: number;
+  /**
+   * Fixed cost of one pair cell (ns). Larger than the others because glancing and deep-overlap
+   * pairs often cannot finish early and step their free flight to the end (cheap steps, many).
+   */
+  pairCellOverheadNs: number;
   /** pair: cost of one integrator step while the discs touch (ns). */
   pairContactStepNs: number;
   /** wall: cost of one integrator step while the disc touches the wall (ns). */
@@ -40,30 +45,43 @@ export interface CostConstants {
   boxBodyStepNs: number;
   /** Fixed cost of one chunk inside the worker (ns): receiving cells, sending results. */
   chunkOverheadNs: number;
+  /**
+   * Hertz contact with a target restitution: the engine solves e → damping numerically once per
+   * distinct e and thread (then caches it). Charged once per distinct value per chunk.
+   */
+  hertzRestitutionSolveNs: number;
 }
 
 /**
- * CALIBRATION — measured on the development machine (2 shared cores, Node 20),
- * single thread, by tests/bench/cost-calibration.ts. Update these figures and
- * the note when the engine changes.
+ * CALIBRATION — fitted by tests/bench/cost-calibration.ts (npm run bench -- cost-calibration) on
+ * the development machine, 2026-12-01: Node 20, 2 cores shared with other work (load average
+ * about 11 during the runs, so every figure is noisy), one warm worker thread. Fitted then:
+ * pair 2.7–11 µs + 240–500 ns per contact step on repeats of one cell, but about 16 µs (stable)
+ * to 90 µs (deep-overlap) per distinct cell of a real grid, hence pairCellOverheadNs; wall
+ * 3–7 µs + 120–290 ns per contact step; row ≈ 140–160 ns per body-step; box ≈ 280–540 ns per
+ * body-step (grid broad phase, gravity on); a Hertz e → damping solve 2–10 ms per new e.
+ * Update the figures and this note when the engine changes.
  */
 export const CALIBRATION: CostConstants = {
-  cellOverheadNs: 24_000,
-  pairContactStepNs: 435,
-  wallContactStepNs: 175,
-  rowStepNs: 0,
-  rowBodyStepNs: 390,
-  boxStepNs: 92_000,
-  boxBodyStepNs: 455,
+  cellOverheadNs: 15_000,
+  pairCellOverheadNs: 40_000,
+  pairContactStepNs: 300,
+  wallContactStepNs: 290,
+  rowStepNs: 9_000,
+  rowBodyStepNs: 160,
+  boxStepNs: 1_000,
+  boxBodyStepNs: 400,
   chunkOverheadNs: 200_000,
+  hertzRestitutionSolveNs: 5_000_000,
 };
 
 /**
  * The band within which billed compute is expected to fall around a quote:
- * billed / quoted ∈ [low, high]. Set from the spread of measured / predicted
- * over the calibration set (see the cost-calibration bench).
+ * billed / quoted ∈ [low, high]. On the contended development machine the calibration bench
+ * measured 0.18–5.4 over seven sweeps of all scene kinds, first and second runs (2026-12-01);
+ * the band is that spread, not a promise of precision. It narrows on a machine that is not shared.
  */
-export const QUOTE_BAND = { low: 0.5, high: 2 } as const;
+export const QUOTE_BAND = { low: 0.2, high: 5 } as const;
 
 interface ContactEstimate {
   /** Predicted integrator steps with the bodies in contact. */
@@ -112,7 +130,7 @@ export function predictCellNs(scenario: Scenario, constants: CostConstants = CAL
   const scene = scenario.scene;
   switch (scene.kind) {
     case "pair":
-      return constants.cellOverheadNs + contactEstimate(scenario).contactSteps * constants.pairContactStepNs;
+      return constants.pairCellOverheadNs + contactEstimate(scenario).contactSteps * constants.pairContactStepNs;
     case "wall":
       return constants.cellOverheadNs + contactEstimate(scenario).contactSteps * constants.wallContactStepNs;
     case "row":
@@ -122,9 +140,16 @@ export function predictCellNs(scenario: Scenario, constants: CostConstants = CAL
   }
 }
 
+/** A key for the one-off work a cell needs in a fresh chunk (see hertzRestitutionSolveNs), or null. */
+export function oneOffKey(scenario: Scenario): string | null {
+  const { contact } = scenario;
+  return contact.model === "hertz" && contact.damping.kind === "restitution" ? `hertz-e:${contact.damping.value}` : null;
+}
+
 export interface SweepCostEstimate {
   cells: number;
-  /** Predicted compute of the whole sweep, integer milliseconds (rounded up, at least 1). */
+  chunks: number;
+  /** Predicted compute of the whole sweep, integer milliseconds (sum of the chunks' predictions). */
   computeMs: number;
   /** The largest predicted cell (ms, rounded up). */
   largestCellMs: number;
@@ -132,26 +157,21 @@ export interface SweepCostEstimate {
   bandMs: { low: number; high: number };
 }
 
-/** Predicted compute of a sweep; `chunks` adds the per-chunk overhead when the chunking is known. */
-export function predictSweep(
-  spec: SweepSpec,
-  options: { chunks?: number; constants?: CostConstants; axes?: readonly ExpandedAxis[] } = {},
-): SweepCostEstimate {
-  const constants = options.constants ?? CALIBRATION;
+/**
+ * Predicted compute of a sweep as it will be chunked and billed: each chunk's cells, its fixed
+ * overhead and its one-off solves, each chunk rounded up to whole ms as the worker bills it.
+ */
+export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): SweepCostEstimate {
   const axes = options.axes ?? expandAxes(spec);
-  const cells = cellCount(axes);
-  let totalNs = 0;
+  const chunks = planChunks(spec, { ...options, axes });
+  const computeMs = chunks.reduce((sum, chunk) => sum + chunk.predictedMs, 0);
   let largestNs = 0;
-  for (let index = 0; index < cells; index++) {
-    const ns = predictCellNs(cellAt(spec, axes, index).scenario, constants);
-    totalNs += ns;
-    if (ns > largestNs) largestNs = ns;
-  }
-  const chunks = options.chunks ?? Math.max(1, Math.ceil(totalNs / (DEFAULT_TARGET_CHUNK_MS * 1e6)));
-  totalNs += chunks * constants.chunkOverheadNs;
-  const computeMs = Math.max(1, Math.ceil(totalNs / 1e6));
+  const constants = options.constants ?? CALIBRATION;
+  const cells = cellCount(axes);
+  for (let index = 0; index < cells; index++) largestNs = Math.max(largestNs, predictCellNs(cellAt(spec, axes, index).scenario, constants));
   return {
     cells,
+    chunks: chunks.length,
     computeMs,
     largestCellMs: Math.ceil(largestNs / 1e6),
     bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },

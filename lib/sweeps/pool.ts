@@ -23,7 +23,7 @@ import path from "node:path";
 import { pathToFileURL } from "node:url";
 import PQueue from "p-queue";
 import Piscina from "piscina";
-import type { ChunkOutcome, ChunkTask } from "./chunk-task";
+import { warmUpTask, type ChunkOutcome, type ChunkTask } from "./chunk-task";
 
 export type WorkerEntry = "source" | "bundle";
 
@@ -36,6 +36,8 @@ export interface ChunkPoolOptions {
   entry?: WorkerEntry;
   /** Repository root holding workers/ and .build/; default process.cwd(). */
   rootDir?: string;
+  /** Run one unbilled warm-up chunk per thread before the first real chunk (default true). */
+  warmUp?: boolean;
 }
 
 export interface ChunkPool {
@@ -94,6 +96,12 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
     maxThreads: threads,
   });
   const queue = new PQueue({ concurrency: maxInFlight });
+  // One warm-up chunk per thread, run before any real chunk (the queue is paused until they finish).
+  if (options.warmUp ?? true) {
+    queue.pause();
+    const warmUps = Array.from({ length: threads }, () => piscina.run(warmUpTask()));
+    void Promise.allSettled(warmUps).then(() => queue.start());
+  }
 
   return {
     threads,

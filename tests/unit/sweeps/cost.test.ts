@@ -4,7 +4,7 @@ import { CALIBRATION, QUOTE_BAND, estimateContactDurationS, predictCellNs, predi
 import { planChunks } from "../../../lib/sweeps/chunks";
 import { expandSweep } from "../../../lib/sweeps/grid";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec } from "./fixtures";
+import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft } from "./fixtures";
 
 function parsed(input: SweepSpecInput): SweepSpec {
   const result = parseSweepSpec(input);
@@ -49,16 +49,31 @@ describe("cost model", () => {
     expect(predictCellNs(doubled)).toBeCloseTo(expected(doubled, 40), 6);
   });
 
-  it("sums a sweep into whole milliseconds with the stated band around it", () => {
+  it("sums a sweep as it will be billed: per chunk, its cells and fixed overhead, rounded up to whole ms", () => {
     const spec = parsed(ballPitBoxSpec());
     const cells = expandSweep(spec);
-    const chunks = planChunks(spec).length;
-    const totalNs = cells.reduce((sum, cell) => sum + predictCellNs(cell.scenario), 0) + chunks * CALIBRATION.chunkOverheadNs;
-    const estimate = predictSweep(spec, { chunks });
-    expect(estimate.cells).toBe(3);
-    expect(estimate.computeMs).toBe(Math.ceil(totalNs / 1e6));
+    const chunks = planChunks(spec, { maxCellsPerChunk: 2 });
+    expect(chunks.map((chunk) => chunk.cellCount)).toEqual([2, 1]);
+    const chunkMs = (from: number, to: number) =>
+      Math.ceil((CALIBRATION.chunkOverheadNs + cells.slice(from, to).reduce((sum, cell) => sum + predictCellNs(cell.scenario), 0)) / 1e6);
+    expect(chunks.map((chunk) => chunk.predictedMs)).toEqual([chunkMs(0, 2), chunkMs(2, 3)]);
+    const estimate = predictSweep(spec, { maxCellsPerChunk: 2 });
+    expect(estimate).toMatchObject({ cells: 3, chunks: 2, computeMs: chunkMs(0, 2) + chunkMs(2, 3) });
     expect(estimate.bandMs).toEqual({ low: Math.floor(estimate.computeMs * QUOTE_BAND.low), high: Math.ceil(estimate.computeMs * QUOTE_BAND.high) });
     expect(QUOTE_BAND.low).toBeLessThan(1);
     expect(QUOTE_BAND.high).toBeGreaterThan(1);
+  });
+
+  it("charges the Hertz restitution solve once per distinct target restitution in a chunk", () => {
+    const input = clone(bumperWallSpec()) as Draft;
+    input.scenario.contact.damping = { kind: "restitution", value: 0.7 };
+    input.axes = [
+      { parameter: "contact.damping.restitution", values: [0.5, 0.6, 0.7] },
+      { parameter: "scene.angleDeg", values: [0, 30] },
+    ];
+    const spec = parsed(input);
+    const cellsNs = expandSweep(spec).reduce((sum, cell) => sum + predictCellNs(cell.scenario), 0);
+    const [chunk] = planChunks(spec, { targetChunkMs: 1e6 });
+    expect(chunk.predictedMs).toBe(Math.ceil((CALIBRATION.chunkOverheadNs + cellsNs + 3 * CALIBRATION.hertzRestitutionSolveNs) / 1e6));
   });
 });
