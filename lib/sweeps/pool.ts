@@ -51,6 +51,8 @@ export interface ChunkPool {
   /** Chunks waiting for a slot, and chunks running. */
   readonly pending: number;
   readonly inFlight: number;
+  /** Resolves once no chunk is waiting or running. */
+  idle(): Promise<void>;
   /** Finish running chunks, then stop the threads. */
   close(): Promise<void>;
 }
@@ -106,13 +108,21 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
   return {
     threads,
     entry,
-    run: (task, runOptions) => queue.add(() => piscina.run(task), { signal: runOptions?.signal }),
+    // The signal is checked when the chunk's turn comes (no listener per queued chunk: a sweep
+    // may queue thousands).
+    run: (task, runOptions) =>
+      queue.add(() => {
+        const signal = runOptions?.signal;
+        if (signal?.aborted) return Promise.reject(new Error(`chunk ${task.chunkIndex} dropped: ${String(signal.reason ?? "aborted")}`));
+        return piscina.run(task);
+      }),
     get pending() {
       return queue.size;
     },
     get inFlight() {
       return queue.pending;
     },
+    idle: () => queue.onIdle(),
     async close() {
       await queue.onIdle();
       await piscina.close();

@@ -85,8 +85,10 @@ describe("chunk pool (piscina, TypeScript entry under tsx)", () => {
     const unrunnable = { ...boxSpec, scenario: { ...boxSpec.scenario, scene: { ...boxSpec.scenario.scene, count: 5_000 } }, axes: [{ parameter: "contact.stiffness", spacing: "log" as const, from: 1e3, to: 1e5, count: 40 }] };
     const seen: number[] = [];
     await expect(runSweep(unrunnable, { pool: onePool, maxCellsPerChunk: 1, onResults: (results) => seen.push(results.length) })).rejects.toThrow(/failed in the engine/);
+    await onePool.idle();
     expect(seen).toEqual([]);
     expect(onePool.pending).toBe(0);
+    expect(onePool.inFlight).toBe(0);
   });
 });
 
