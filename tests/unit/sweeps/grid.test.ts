@@ -22,7 +22,7 @@ describe("grid expansion", () => {
     expect(cells.map((cell) => cell.index)).toEqual([...Array(30).keys()]);
     // Row-major: the last axis varies fastest.
     expect(cells.slice(0, 3).map((cell) => cell.axisValues[2])).toEqual(["symplectic-euler", "velocity-verlet", "symplectic-euler"]);
-    expect(cells[0].axisValues[0]).toBe(1e3);
+    expect(cells[0].axisValues[0]).toBe(1e3); // the axis's `from` (range ends are exact by definition)
     expect(cells[6].axisValues[0]).toBe(1e4); // i0 = 1 starts at (1 · 3 + 0) · 2 = 6
     for (const cell of cells) {
       expect(cell.scenario.contact.stiffness).toBe(cell.axisValues[0]);
@@ -100,6 +100,7 @@ describe("grid expansion", () => {
       const scene = cell.scenario.scene as { massAKg: number; massBKg: number };
       return [scene.massAKg, scene.massBKg];
     });
+    // massBKg = massAKg × ratio (definition of scene.massRatio, docs/sweep-spec.md); massRatio is the slower axis.
     expect(masses).toEqual([
       [0.1, 0.05],
       [0.3, 0.15],

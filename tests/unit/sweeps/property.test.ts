@@ -8,7 +8,8 @@ import fc from "fast-check";
 import { VERDICTS } from "../../../lib/physics/types";
 import { runChunkTask } from "../../../lib/sweeps/chunk-task";
 import { cellCount, expandAxes } from "../../../lib/sweeps/grid";
-import { METRIC_KEYS } from "../../../lib/sweeps/results";
+import { METRIC_KEYS, resultsToJson } from "../../../lib/sweeps/results";
+import { resultsHeader } from "../../../lib/sweeps/run";
 import { SPEC_LIMITS, parseSweepSpec } from "../../../lib/sweeps/spec";
 import { clone, type Draft } from "./fixtures";
 
@@ -148,6 +149,28 @@ describe("generated specs", () => {
         expect(parsed.issues.map((issue) => issue.field)).toContain(field);
       }),
       { seed: 777, numRuns: 120 },
+    );
+  });
+
+  it("any cut of the cells into chunks gives the same bytes as one chunk", () => {
+    fc.assert(
+      fc.property(specArb, fc.array(fc.integer({ min: 1, max: 7 }), { minLength: 1, maxLength: 30 }), (input, sizes) => {
+        const parsed = parseSweepSpec(input);
+        if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+        const spec = parsed.spec;
+        const header = resultsHeader(spec);
+        const whole = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: header.cellCount }).results;
+        const pieces = [];
+        let first = 0;
+        for (let k = 0; first < header.cellCount; k++) {
+          const count = Math.min(sizes[k % sizes.length], header.cellCount - first);
+          // Each chunk gets its own structured copy of the spec, as a worker thread does.
+          pieces.push(...runChunkTask({ kind: "range", chunkIndex: k, spec: structuredClone(spec), firstCell: first, cellCount: count }).results);
+          first += count;
+        }
+        expect(resultsToJson(header, pieces)).toBe(resultsToJson(header, whole));
+      }),
+      { seed: 99, numRuns: 25 },
     );
   });
 });

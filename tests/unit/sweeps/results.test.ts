@@ -68,6 +68,7 @@ describe("JSON results", () => {
   });
 
   it("write numbers in shortest round-trip form", () => {
+    // Reference: ECMAScript's Number::toString, the shortest digits that read back to the same double (ECMA-262).
     for (const value of [0.1, 1 / 3, 1e-300, 123456789012345680000, -2.5e-7, 5e-324]) {
       expect(Number(formatNumber(value))).toBe(value);
       expect(formatNumber(value)).toBe(String(value));
