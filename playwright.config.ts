@@ -12,13 +12,21 @@ import path from "node:path";
 const port = Number(process.env.KD_E2E_PORT ?? 3100);
 const mailFakePort = Number(process.env.KD_E2E_MAIL_PORT ?? 2626);
 const baseURL = `http://localhost:${port}`;
-if (!process.env.KD_E2E_DATA_DIR) {
-  const created = mkdtempSync(path.join(tmpdir(), "kickdrift-e2e-"));
-  process.env.KD_E2E_DATA_DIR = created;
-  // Only the process that made the folder removes it, at exit — after Playwright has stopped the web server.
-  process.on("exit", () => rmSync(created, { recursive: true, force: true }));
+/** A fresh folder per run, shared with the worker processes through the environment. */
+function freshDataDir(variable: string): string {
+  if (!process.env[variable]) {
+    const created = mkdtempSync(path.join(tmpdir(), "kickdrift-e2e-"));
+    process.env[variable] = created;
+    // Only the process that made the folder removes it, at exit — after Playwright has stopped the web servers.
+    process.on("exit", () => rmSync(created, { recursive: true, force: true }));
+  }
+  return process.env[variable]!;
 }
-const dataDir = process.env.KD_E2E_DATA_DIR;
+const dataDir = freshDataDir("KD_E2E_DATA_DIR");
+const smtpDataDir = freshDataDir("KD_E2E_SMTP_DATA_DIR");
+/** A second server with SMTP_URL set, where the local mailbox must not exist (tests/e2e/mailbox.spec.ts). */
+const smtpPort = port + 1;
+const smtpBaseURL = `http://localhost:${smtpPort}`;
 
 export default defineConfig({
   testDir: "tests/e2e",
@@ -43,22 +51,40 @@ export default defineConfig({
       args: ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--disable-sync", "--no-first-run", "--disable-quic"],
     },
   },
-  webServer: {
-    command: `npx next start -p ${port}`,
-    url: `${baseURL}/signin`,
-    reuseExistingServer: false,
-    timeout: 120_000,
-    stdout: "pipe",
-    stderr: "pipe",
-    env: {
-      NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
-      KICKDRIFT_DATA_DIR: dataDir,
-      KICKDRIFT_DEMO: "1",
-      NEXTAUTH_URL: baseURL,
-      MAIL_FAKE_PORT: String(mailFakePort),
-      // The flows read mail from the local fake and keep data in PGlite: never a configured SMTP server or database.
-      SMTP_URL: "",
-      DATABASE_URL: "",
+  webServer: [
+    {
+      command: `npx next start -p ${port}`,
+      url: `${baseURL}/signin`,
+      reuseExistingServer: false,
+      timeout: 120_000,
+      stdout: "pipe",
+      stderr: "pipe",
+      env: {
+        NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
+        KICKDRIFT_DATA_DIR: dataDir,
+        KICKDRIFT_DEMO: "1",
+        NEXTAUTH_URL: baseURL,
+        MAIL_FAKE_PORT: String(mailFakePort),
+        // The flows read mail from the local fake and keep data in PGlite: never a configured SMTP server or database.
+        SMTP_URL: "",
+        DATABASE_URL: "",
+      },
     },
-  },
+    {
+      command: `npx next start -p ${smtpPort}`,
+      url: `${smtpBaseURL}/signin`,
+      reuseExistingServer: false,
+      timeout: 120_000,
+      stdout: "ignore",
+      stderr: "pipe",
+      env: {
+        NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
+        KICKDRIFT_DATA_DIR: smtpDataDir,
+        NEXTAUTH_URL: smtpBaseURL,
+        // Port 9 (discard) on loopback: a configured relay that no test sends mail through.
+        SMTP_URL: "smtp://127.0.0.1:9",
+        DATABASE_URL: "",
+      },
+    },
+  ],
 });

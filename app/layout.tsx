@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { connection } from "next/server";
 import type { ReactNode } from "react";
 import "./globals.css";
 import { monoFont, sansFont } from "./fonts";
@@ -14,7 +15,9 @@ export const metadata: Metadata = {
     "Kickdrift sweeps stiffness, timestep, mass ratio and speed of your game's contacts on our compute and shows where each integrator holds and where it fails.",
 };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // The header's Mailbox link follows the running server's SMTP setting, so render per request, not at build.
+  await connection();
   return (
     // data-theme is set before hydration by the boot script, so React must not complain about it.
     <html lang="en" className={`${sansFont.variable} ${monoFont.variable}`} suppressHydrationWarning>
