@@ -7,7 +7,7 @@
  * on stdout. The output file is byte-identical for any --threads, --chunk-ms
  * and --max-chunk-cells. Exit codes: 0 done, 1 a run failed, 2 bad usage or spec.
  */
-import { createWriteStream, readFileSync } from "node:fs";
+import { closeSync, openSync, readFileSync, rmSync, writeSync } from "node:fs";
 import { parseArgs } from "node:util";
 import { predictSweep } from "../lib/sweeps/cost";
 import { expandAxes } from "../lib/sweeps/grid";
@@ -108,23 +108,37 @@ async function main(): Promise<number> {
   };
   log(`${header.cellCount} cells on ${args.threads} thread(s); predicted compute ${quote.computeMs} ms (expected ${quote.bandMs.low}–${quote.bandMs.high} ms)\n`);
 
-  const out = createWriteStream(args.outFile);
+  // Synchronous writes: the file grows as chunks land, without buffering a 100 MB document in memory.
+  let fd: number;
+  try {
+    fd = openSync(args.outFile, "w");
+  } catch (error) {
+    process.stderr.write(`cannot write ${args.outFile}: ${(error as Error).message}\n`);
+    return 2;
+  }
+  let open = true;
+  const write = (text: string) => {
+    if (text) writeSync(fd, text);
+  };
+  const close = () => {
+    if (open) closeSync(fd);
+    open = false;
+  };
   const encoder: ResultsEncoder = args.format === "csv" ? csvResultsEncoder(header) : jsonResultsEncoder(header);
-  out.write(encoder.head());
+  write(encoder.head());
   const pool = createChunkPool({ threads: args.threads, entry: "source" });
   const startedMs = performance.now();
   try {
     const summary = await runSweep(spec, {
       pool,
       axes,
-      targetChunkMs: args.targetChunkMs,
-      maxCellsPerChunk: args.maxCellsPerChunk,
-      onResults: (results) => out.write(encoder.cells(results)),
+      plan: quote.plan,
+      onResults: (results) => write(encoder.cells(results)),
       onProgress: (progress) =>
         log(`\rchunk ${progress.chunksDone}/${progress.chunks}, cells ${progress.cellsDone}/${progress.cells}, compute ${progress.computeMs} ms`),
     });
-    out.write(encoder.tail());
-    await new Promise<void>((resolve, reject) => out.end((error?: Error | null) => (error ? reject(error) : resolve())));
+    write(encoder.tail());
+    close();
     log("\n");
     const wallMs = Math.round(performance.now() - startedMs);
     const counts = VERDICTS.map((verdict) => `${verdict} ${summary.verdictCounts[verdict]}`).join(", ");
@@ -132,7 +146,9 @@ async function main(): Promise<number> {
     process.stdout.write(`chunks ${summary.chunks.length}, worker compute ${summary.computeMs} ms (predicted ${quote.computeMs} ms), wall ${wallMs} ms; wrote ${args.outFile}\n`);
     return 0;
   } catch (error) {
-    out.destroy();
+    // A half-written file would look like results: remove it.
+    close();
+    rmSync(args.outFile, { force: true });
     log("\n");
     process.stderr.write(`sweep failed: ${(error as Error).message}\n`);
     return 1;

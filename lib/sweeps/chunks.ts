@@ -38,6 +38,11 @@ export const DEFAULT_MAX_CELLS_PER_CHUNK = 4_096;
  * predicted above the target gets a chunk of its own.
  */
 export function planChunks(spec: SweepSpec, options: ChunkOptions = {}): ChunkPlan[] {
+  return planChunksWithStats(spec, options).chunks;
+}
+
+/** planChunks, plus the largest predicted cell (ns), from the same single pass over the cells. */
+export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {}): { chunks: ChunkPlan[]; largestCellNs: number } {
   const targetNs = (options.targetChunkMs ?? DEFAULT_TARGET_CHUNK_MS) * 1e6;
   const maxCells = options.maxCellsPerChunk ?? DEFAULT_MAX_CELLS_PER_CHUNK;
   if (!(targetNs > 0)) throw new RangeError(`targetChunkMs must be > 0; got ${options.targetChunkMs}`);
@@ -58,9 +63,12 @@ export function planChunks(spec: SweepSpec, options: ChunkOptions = {}): ChunkPl
     chunkNs = constants.chunkOverheadNs;
     oneOffs.clear();
   };
+  let largestCellNs = 0;
   for (let index = 0; index < total; index++) {
     const scenario = cellAt(spec, axes, index).scenario;
-    chunkNs += predictCellNs(scenario, constants);
+    const cellNs = predictCellNs(scenario, constants);
+    if (cellNs > largestCellNs) largestCellNs = cellNs;
+    chunkNs += cellNs;
     const oneOff = oneOffKey(scenario);
     if (oneOff !== null && !oneOffs.has(oneOff)) {
       oneOffs.add(oneOff);
@@ -70,5 +78,5 @@ export function planChunks(spec: SweepSpec, options: ChunkOptions = {}): ChunkPl
     if (chunkNs >= targetNs || cells >= maxCells) close();
   }
   if (cells > 0) close();
-  return chunks;
+  return { chunks, largestCellNs };
 }

@@ -20,8 +20,8 @@
  */
 import { effectiveModulusSameMaterialPa, hertzContactDurationS, hertzStiffnessFromModulus, linearContactDurationS } from "../physics/analytic";
 import type { Scenario } from "../physics/types";
-import { planChunks, type ChunkOptions } from "./chunks";
-import { cellCount, cellAt, expandAxes } from "./grid";
+import { planChunksWithStats, type ChunkOptions, type ChunkPlan } from "./chunks";
+import { cellCount, expandAxes } from "./grid";
 import { bodyCount, stepsPerCell } from "./axes";
 import type { SweepSpec } from "./spec";
 
@@ -155,6 +155,8 @@ export interface SweepCostEstimate {
   largestCellMs: number;
   /** computeMs × QUOTE_BAND: the range the billed compute is expected in. */
   bandMs: { low: number; high: number };
+  /** The chunks the quote assumes (pass them to runSweep so the run is the one quoted). */
+  plan: ChunkPlan[];
 }
 
 /**
@@ -163,18 +165,15 @@ export interface SweepCostEstimate {
  */
 export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): SweepCostEstimate {
   const axes = options.axes ?? expandAxes(spec);
-  const chunks = planChunks(spec, { ...options, axes });
+  const { chunks, largestCellNs } = planChunksWithStats(spec, { ...options, axes });
   const computeMs = chunks.reduce((sum, chunk) => sum + chunk.predictedMs, 0);
-  let largestNs = 0;
-  const constants = options.constants ?? CALIBRATION;
-  const cells = cellCount(axes);
-  for (let index = 0; index < cells; index++) largestNs = Math.max(largestNs, predictCellNs(cellAt(spec, axes, index).scenario, constants));
   return {
-    cells,
+    cells: cellCount(axes),
     chunks: chunks.length,
     computeMs,
-    largestCellMs: Math.ceil(largestNs / 1e6),
+    largestCellMs: Math.ceil(largestCellNs / 1e6),
     bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },
+    plan: chunks,
   };
 }
 

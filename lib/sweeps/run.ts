@@ -24,6 +24,8 @@ export interface SweepProgress {
 
 export interface RunSweepOptions extends ChunkOptions {
   pool: ChunkPool;
+  /** A chunk plan already made for this spec (e.g. the quote's); planned from the options otherwise. */
+  plan?: ChunkPlan[];
   /** Called with consecutive runs of results, in cell order (each cell exactly once). */
   onResults?: (results: readonly CellResult[]) => void;
   /** Called after each chunk finishes (in completion order). */
@@ -49,7 +51,7 @@ export function resultsHeader(spec: SweepSpec, axes: readonly ExpandedAxis[] = e
 export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promise<SweepRunSummary> {
   const axes = options.axes ?? expandAxes(spec);
   const header = resultsHeader(spec, axes);
-  const chunks = planChunks(spec, { ...options, axes });
+  const chunks = options.plan ?? planChunks(spec, { ...options, axes });
   const verdictCounts = emptyVerdictCounts();
   const chunkComputeMs: number[] = new Array(chunks.length).fill(0);
   const chunkComputeNs: number[] = new Array(chunks.length).fill(0);
