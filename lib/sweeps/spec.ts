@@ -147,7 +147,7 @@ export const contactSchema = z.strictObject({
       poissonRatio: ruledNumber(numericRule("contact.material.poissonRatio", "pair")),
     })
     .optional(),
-  damping: dampingSchema.default({ kind: "none" }),
+  damping: dampingSchema.default(() => ({ kind: "none" as const })),
 });
 
 export const tolerancesSchema = z.strictObject({
@@ -317,7 +317,7 @@ const sweepSpecObject = z.strictObject({
   axes: z
     .array(axisSchema)
     .max(SPEC_LIMITS.maxAxes, { error: `a sweep has at most ${SPEC_LIMITS.maxAxes} axes` })
-    .default([]),
+    .default(() => []),
 });
 
 type AddIssue = (path: (string | number)[], message: string) => void;

@@ -26,6 +26,18 @@ describe("sweep spec: valid input", () => {
     expect(result.spec.version).toBe(1);
   });
 
+  it("gives every parse its own default objects (no shared state between specs)", () => {
+    const input = clone(bumperWallSpec()) as Draft;
+    delete input.axes;
+    delete input.scenario.contact.damping;
+    const first = parseSweepSpec(input);
+    const second = parseSweepSpec(input);
+    if (!first.ok || !second.ok) throw new Error("expected both to parse");
+    expect(first.spec.axes).not.toBe(second.spec.axes);
+    expect(first.spec.scenario.contact.damping).not.toBe(second.spec.scenario.contact.damping);
+    expect(first.spec.scenario.tolerances).not.toBe(second.spec.scenario.tolerances);
+  });
+
   it("accepts its own output again unchanged (the stored form re-parses)", () => {
     for (const input of [puckPairSpec(), bumperWallSpec(), ballPitBoxSpec()]) {
       const first = parseSweepSpec(input);
