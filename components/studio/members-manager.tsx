@@ -1,6 +1,7 @@
 "use client";
 
 import { useMutation, useQueryClient } from "@tanstack/react-query";
+import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
@@ -13,6 +14,7 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
   const members = useMembers(studioId);
   const invites = useInvites(studioId);
   const queryClient = useQueryClient();
+  const router = useRouter();
   const [actionError, setActionError] = useState<string | null>(null);
   const [notice, setNotice] = useState<string | null>(null);
 
@@ -25,7 +27,11 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
       setActionError(null);
       setNotice(null);
     },
-    onSuccess: (_data, { role }) => setNotice(`Role changed to ${role}.`),
+    onSuccess: (_data, { userId, role }) => {
+      setNotice(`Role changed to ${role}.`);
+      // Giving up your own owner role takes this page away from you: let the server guard decide again.
+      if (userId === currentUserId) router.refresh();
+    },
     onError: (error) => setActionError(errorMessage(error)),
     onSettled: refresh,
   });
@@ -36,7 +42,13 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
       setActionError(null);
       setNotice(null);
     },
-    onSuccess: (_data, member) => setNotice(`${member.email} was removed from the studio.`),
+    onSuccess: (_data, member) => {
+      if (member.userId === currentUserId) {
+        router.push("/studios");
+        return;
+      }
+      setNotice(`${member.email} was removed from the studio.`);
+    },
     onError: (error) => setActionError(errorMessage(error)),
     onSettled: refresh,
   });
