@@ -44,6 +44,7 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
     },
     onSuccess: (_data, member) => {
       if (member.userId === currentUserId) {
+        void queryClient.invalidateQueries({ queryKey: queryKeys.studios });
         router.push("/studios");
         return;
       }
