@@ -44,6 +44,58 @@ export function hash32(text: string, seed = 0): number {
     h ^= text.charCodeAt(i);
     h = Math.imul(h, 0x01000193) >>> 0;
   }
+  return fmix32(h);
+}
+
+const float64 = new Float64Array(1);
+const float64Words = new Uint32Array(float64.buffer);
+
+function mixWord(h: number, word: number): number {
+  // FNV-1a over the four bytes of a 32-bit word.
+  h = Math.imul(h ^ (word & 0xff), 0x01000193) >>> 0;
+  h = Math.imul(h ^ ((word >>> 8) & 0xff), 0x01000193) >>> 0;
+  h = Math.imul(h ^ ((word >>> 16) & 0xff), 0x01000193) >>> 0;
+  return Math.imul(h ^ (word >>> 24), 0x01000193) >>> 0;
+}
+
+function mixString(h: number, text: string): number {
+  for (let i = 0; i < text.length; i++) h = Math.imul(h ^ text.charCodeAt(i), 0x01000193) >>> 0;
+  return Math.imul(h ^ 0xff, 0x01000193) >>> 0; // terminator: "ab","c" ≠ "a","bc"
+}
+
+const sortedKeysCache = new Map<string, string[]>();
+
+/**
+ * 32-bit hash of a flat record of numbers and strings (a scene), keyed by `seed`: its keys in
+ * sorted order, each followed by its value — strings by their UTF-16 code units, numbers by the
+ * two 32-bit words of their IEEE 754 bits (−0 counted as 0) — through FNV-1a, then fmix32.
+ * The same record gives the same hash on every platform and in any key order; it is the fast
+ * equivalent of hash32(canonicalJson(record)) for records without nesting.
+ */
+export function hashFlatRecord(record: Readonly<Record<string, number | string>>, seed = 0): number {
+  const signature = Object.keys(record).join(",");
+  let keys = sortedKeysCache.get(signature);
+  if (!keys) {
+    keys = Object.keys(record).sort();
+    sortedKeysCache.set(signature, keys);
+  }
+  let h = (0x811c9dc5 ^ seed) >>> 0;
+  for (const key of keys) {
+    h = mixString(h, key);
+    const value = record[key];
+    if (typeof value === "string") {
+      h = mixString(h, value);
+    } else {
+      float64[0] = value === 0 ? 0 : value;
+      h = mixWord(h, float64Words[0]);
+      h = mixWord(h, float64Words[1]);
+    }
+  }
+  return fmix32(h);
+}
+
+/** The MurmurHash3 32-bit finaliser. */
+export function fmix32(h: number): number {
   h ^= h >>> 16;
   h = Math.imul(h, 0x85ebca6b) >>> 0;
   h ^= h >>> 13;

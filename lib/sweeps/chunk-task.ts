@@ -56,25 +56,25 @@ const WARM_UP_TOLERANCES = { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blow
 /**
  * A small chunk touching every scene kind, run once per thread when a pool starts so that the
  * first billed chunk does not pay for the JIT compiling the engine. Its compute is not billed.
+ * The cells vary (stiffness, speed, offset, integrator) so that the compiled code sees the
+ * branches real grids take: deep overlaps, blow-ups, glancing and head-on contacts.
  */
 export function warmUpTask(): ChunkTask {
-  const base = { integrator: "velocity-verlet" as const, dtS: 1e-4, substeps: 1, durationS: 0.02, tolerances: WARM_UP_TOLERANCES, seed: 1 };
-  const linear = { model: "linear" as const, stiffness: 1e4, damping: { kind: "restitution" as const, value: 0.8 } };
-  const scenarios: Scenario[] = [
-    { ...base, contact: linear, scene: { kind: "pair", massAKg: 0.1, massBKg: 0.2, radiusAM: 0.02, radiusBM: 0.03, speedAMPerS: 2, speedBMPerS: 0, offsetFraction: 0.3, gapM: 0.005 } },
-    { ...base, contact: { model: "hertz", stiffness: 1e8, damping: { kind: "none" } }, scene: { kind: "wall", massKg: 0.1, radiusM: 0.02, speedMPerS: 2, angleDeg: 10, gapM: 0.005 } },
-    // Compiles the engine's e → damping solver (e = 0.5 is then cached: a harmless head start).
-    { ...base, contact: { model: "hertz", material: { youngsModulusPa: 1e9, poissonRatio: 0.3 }, damping: { kind: "restitution", value: 0.5 } }, scene: { kind: "wall", massKg: 0.1, radiusM: 0.02, speedMPerS: 2, angleDeg: 0, gapM: 0.005 } },
-    { ...base, contact: linear, scene: { kind: "row", count: 8, massKg: 0.1, radiusM: 0.02, strikerMassKg: 0.1, strikerSpeedMPerS: 2, spacingM: 0, gapM: 0.005 } },
-    { ...base, contact: linear, scene: { kind: "box", count: 80, massKg: 0.1, radiusM: 0.02, widthM: 1, heightM: 1, maxSpeedMPerS: 1, gravityMPerS2: 9.81 } },
-  ];
-  // Enough repeats for the optimising compiler to pick up the hot loops (about 50 ms on one core).
-  const repeats = [200, 200, 200, 100, 3];
-  const cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[] = [];
-  for (let round = 0; round < 200; round++) {
-    scenarios.forEach((scenario, i) => {
-      if (round < repeats[i]) cells.push({ index: cells.length, axisValues: [], scenario });
-    });
-  }
-  return { kind: "cells", chunkIndex: -1, cells };
+  const base = { substeps: 1, durationS: 0.05, tolerances: WARM_UP_TOLERANCES, seed: 1 };
+  const integrators = ["symplectic-euler", "velocity-verlet", "explicit-euler"] as const;
+  const scenarios: Scenario[] = [];
+  for (const integrator of integrators)
+    for (const stiffness of [1e3, 1e4, 1e5, 1e6])
+      for (const speed of [0.5, 3, 20])
+        for (const offset of [0, 0.5, 0.9]) {
+          const contact = { model: "linear" as const, stiffness, damping: { kind: "restitution" as const, value: 0.8 } };
+          scenarios.push({ ...base, integrator, dtS: 1e-3, contact, scene: { kind: "pair", massAKg: 0.05, massBKg: 0.1, radiusAM: 0.02, radiusBM: 0.03, speedAMPerS: speed, speedBMPerS: 0, offsetFraction: offset, gapM: 0.005 } });
+          scenarios.push({ ...base, integrator, dtS: 1e-4, contact: { model: "hertz", stiffness: stiffness * 1e3, damping: { kind: "none" } }, scene: { kind: "wall", massKg: 0.05, radiusM: 0.02, speedMPerS: speed, angleDeg: offset * 80, gapM: 0.005 } });
+        }
+  const linear = { model: "linear" as const, stiffness: 1e4, damping: { kind: "coefficient" as const, value: 0.1 } };
+  // Compiles the engine's e → damping solver (e = 0.5 is then cached: a harmless head start).
+  scenarios.push({ ...base, integrator: "velocity-verlet", dtS: 1e-4, contact: { model: "hertz", material: { youngsModulusPa: 1e9, poissonRatio: 0.3 }, damping: { kind: "restitution", value: 0.5 } }, scene: { kind: "wall", massKg: 0.1, radiusM: 0.02, speedMPerS: 2, angleDeg: 0, gapM: 0.005 } });
+  for (const count of [4, 70]) scenarios.push({ ...base, integrator: "velocity-verlet", dtS: 1e-4, contact: linear, scene: { kind: "row", count, massKg: 0.1, radiusM: 0.02, strikerMassKg: 0.1, strikerSpeedMPerS: 2, spacingM: 0, gapM: 0.005 } });
+  for (const gravity of [0, 9.81]) scenarios.push({ ...base, integrator: "velocity-verlet", dtS: 1e-3, contact: linear, scene: { kind: "box", count: 80, massKg: 0.1, radiusM: 0.02, widthM: 1, heightM: 1, maxSpeedMPerS: 1, gravityMPerS2: gravity } });
+  return { kind: "cells", chunkIndex: -1, cells: scenarios.map((scenario, index) => ({ index, axisValues: [], scenario })) };
 }

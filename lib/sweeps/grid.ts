@@ -6,8 +6,8 @@
  * cell at axis positions (i0, i1, i2) has index (i0 · n1 + i1) · n2 + i2. A
  * sweep without axes has one cell, index 0, the base scenario.
  *
- * Seeds: a cell's seed is hash32 of the canonical JSON of the cell's *scene*,
- * keyed by the spec seed. Cells that differ only in contact, integrator, dt or
+ * Seeds: a cell's seed is hashFlatRecord of the cell's *scene* (its fields in
+ * sorted key order, numbers by their IEEE 754 bits), keyed by the spec seed. Cells that differ only in contact, integrator, dt or
  * duration therefore start from the same seeded box layout (so a stability
  * map compares like with like), cells with different scenes get independent
  * layouts, and the seed depends on nothing but the cell's own parameters — any
@@ -16,7 +16,7 @@
  * Pure: safe to import in the browser.
  */
 import type { Scenario, SceneKind } from "../physics/types";
-import { canonicalJson, hash32 } from "./canonical";
+import { hashFlatRecord } from "./canonical";
 import { findParameter } from "./parameters";
 import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter } from "./axes";
 import type { AxisSpec, SweepSpec } from "./spec";
@@ -78,7 +78,7 @@ export function cellIndex(axes: readonly ExpandedAxis[], positions: readonly num
 
 /** The seed of a cell: a function of the spec seed and the cell's scene only. */
 export function deriveCellSeed(specSeed: number, scenario: Scenario): number {
-  return hash32(canonicalJson(scenario.scene), specSeed);
+  return hashFlatRecord(scenario.scene as unknown as Record<string, number | string>, specSeed);
 }
 
 /** What expanding many cells of one spec can share: setters, application order and the seeds of scenes already seen. */

@@ -4,10 +4,12 @@
  * for 1 and 2 threads, and the scaling ratio.
  */
 import { availableParallelism } from "node:os";
-import { expandAxes, cellCount } from "../../lib/sweeps/grid";
+import { simulate } from "../../lib/physics/index";
+import { cellCount, expandAxes, forEachCellInRange } from "../../lib/sweeps/grid";
 import { createChunkPool } from "../../lib/sweeps/pool";
 import { runSweep } from "../../lib/sweeps/run";
 import { parseSweepSpec, stepsPerCell, type SweepSpec } from "../../lib/sweeps/spec";
+import type { Scenario } from "../../lib/physics/types";
 import { formatSi, table, type BenchModule } from "./bench-module";
 
 const TARGET_PER_THREAD = 1.5e8;
@@ -68,6 +70,15 @@ export const pairThroughput: BenchModule = {
       rates.push(rate);
       rows.push([threads, wallS.toFixed(3), computeS.toFixed(3), chunks, formatSi(rate), formatSi(rate / threads), formatSi(TARGET_PER_THREAD)]);
     }
+    // The engine alone on the same cells (main thread, cells built ahead), to separate its speed
+    // from expansion, messaging and result handling.
+    const scenarios: Scenario[] = [];
+    forEachCellInRange(spec, expandAxes(spec), 0, cells, (cell) => scenarios.push(cell.scenario));
+    for (let i = 0; i < scenarios.length; i += 8) simulate(scenarios[i]); // warm-up
+    const started = performance.now();
+    for (const scenario of scenarios) simulate(scenario);
+    const engineS = (performance.now() - started) / 1e3;
+    rows.push(["engine only", engineS.toFixed(3), "", "", formatSi(cellSteps / engineS), formatSi(cellSteps / engineS), formatSi(TARGET_PER_THREAD)]);
     console.log(table(rows));
     console.log(`scaling 2 threads / 1 thread: ${(rates[1] / rates[0]).toFixed(2)} (target ≥ ${TARGET_SCALING}; the 2 cores are shared with other work, so this varies)`);
   },

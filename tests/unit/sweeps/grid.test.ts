@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { canonicalJson, hash32 } from "../../../lib/sweeps/canonical";
+import { canonicalJson, hash32, hashFlatRecord } from "../../../lib/sweeps/canonical";
 import { axisPositions, cellAt, cellCount, cellIndex, expandAxes, expandSweep } from "../../../lib/sweeps/grid";
 import { scenarioHash, sha256Hex } from "../../../lib/sweeps/hash";
 import { axisValues, parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
@@ -190,5 +190,18 @@ describe("canonical form and hashes", () => {
     h ^= h >>> 16;
     expect(hash32("a")).toBe(h >>> 0);
     expect(hash32("a", 1)).not.toBe(hash32("a", 0));
+  });
+
+  it("hashFlatRecord ignores key order and the sign of zero, and sees every field", () => {
+    const scene = { kind: "box", count: 20, massKg: 0.05, radiusM: 0.03, widthM: 1, heightM: 1, maxSpeedMPerS: 1, gravityMPerS2: 0 };
+    const reordered = Object.fromEntries(Object.entries(scene).reverse());
+    expect(hashFlatRecord(reordered, 7)).toBe(hashFlatRecord(scene, 7));
+    expect(hashFlatRecord({ ...scene, gravityMPerS2: -0 }, 7)).toBe(hashFlatRecord(scene, 7));
+    const hashes = new Set([hashFlatRecord(scene, 7), hashFlatRecord(scene, 8)]);
+    for (const key of Object.keys(scene)) {
+      if (key !== "kind") hashes.add(hashFlatRecord({ ...scene, [key]: (scene as Record<string, number | string>)[key] as number + 1e-9 }, 7));
+    }
+    hashes.add(hashFlatRecord({ ...scene, kind: "row" }, 7));
+    expect(hashes.size).toBe(2 + 7 + 1); // every change gives a new hash
   });
 });
