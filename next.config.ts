@@ -5,6 +5,8 @@ const nextConfig: NextConfig = {
   distDir: process.env.NEXT_DIST_DIR ?? ".next",
   serverExternalPackages: ["@electric-sql/pglite", "piscina", "smtp-server", "mailparser", "nodemailer", "pg"],
   poweredByHeader: false,
+  // forbidden() in the page guard answers a real HTTP 403 with app/forbidden.tsx.
+  experimental: { authInterrupts: true },
 };
 
 export default nextConfig;

@@ -1,5 +1,5 @@
 import { cookies } from "next/headers";
-import { notFound, redirect } from "next/navigation";
+import { forbidden, notFound, redirect } from "next/navigation";
 import type { Studio, StudioRole } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { publicUser, type PublicUser } from "./accounts";
@@ -9,7 +9,7 @@ import { userFromCookieHeader } from "./session";
 /**
  * Server-side guards for pages (server components), deciding with the same `authorize` policy as
  * the API: not signed in → redirect to /signin?callbackUrl=…; another studio → notFound();
- * a wrong role → `{ status: "forbidden" }` so the page renders the 403 component.
+ * a wrong role → forbidden(), which answers HTTP 403 with app/forbidden.tsx.
  */
 async function cookieHeader(): Promise<string> {
   const store = await cookies();
@@ -36,12 +36,11 @@ export async function requireUser(callbackUrl: string): Promise<PublicUser> {
   return user;
 }
 
-export type AdminPageAccess = { status: "ok"; user: PublicUser } | { status: "forbidden"; user: PublicUser; message: string };
-
-export async function requireAdmin(callbackUrl: string): Promise<AdminPageAccess> {
+/** The signed-in platform admin; other users get the 403 page. */
+export async function requireAdmin(callbackUrl: string): Promise<PublicUser> {
   const user = await requireUser(callbackUrl);
-  if (!user.isAdmin) return { status: "forbidden", user, message: "Only platform admins may open this page." };
-  return { status: "ok", user };
+  if (!user.isAdmin) forbidden();
+  return user;
 }
 
 export interface StudioPageView {
@@ -51,9 +50,11 @@ export interface StudioPageView {
   createdAt: string;
 }
 
-export type StudioPageAccess =
-  | { status: "ok"; user: PublicUser; studio: StudioPageView; role: StudioRole }
-  | { status: "forbidden"; user: PublicUser; studio: StudioPageView; role: StudioRole; message: string };
+export interface StudioPageAccess {
+  user: PublicUser;
+  studio: StudioPageView;
+  role: StudioRole;
+}
 
 /**
  * For `/studios/[studioId]/…` pages. `roles` defaults to any member; e.g. `{ roles: ["owner"] }`
@@ -81,9 +82,8 @@ export async function requireStudio(
   try {
     await authorize({ access: "studio", roles: requirement, token: "never" }, actor, studioId);
   } catch (error) {
-    if (error instanceof ApiError && error.status === 403)
-      return { status: "forbidden", user: publicUser(user), studio: view, role, message: error.message };
+    if (error instanceof ApiError && error.status === 403) forbidden();
     throw error;
   }
-  return { status: "ok", user: publicUser(user), studio: view, role };
+  return { user: publicUser(user), studio: view, role };
 }

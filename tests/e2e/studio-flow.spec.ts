@@ -70,11 +70,13 @@ test("a new owner builds a studio and an invited engineer joins it through the m
   await expect(engineer.getByRole("link", { name: "Members", exact: true })).toHaveCount(0);
 
   // --- The owner's actions on the members page are refused to the engineer with a 403 page.
-  await engineer.goto(`${studioUrl}/members`);
+  const membersPage = await engineer.goto(`${studioUrl}/members`);
+  expect(membersPage?.status()).toBe(403);
   await expect(engineer.getByTestId("forbidden")).toBeVisible();
   await expect(engineer.getByTestId("forbidden")).toContainText("403");
   await expect(engineer.getByRole("button", { name: "Send invitation" })).toHaveCount(0);
-  await engineer.goto(`${studioUrl}/tokens`);
+  const tokensPage = await engineer.goto(`${studioUrl}/tokens`);
+  expect(tokensPage?.status()).toBe(403);
   await expect(engineer.getByTestId("forbidden")).toBeVisible();
 
   // --- Another studio's URL is a plain 404, the same as a studio that does not exist.
@@ -158,7 +160,8 @@ test("only platform admins open the admin lists", async ({ browser }) => {
   const owner = await ownerContext.newPage();
   await signInWithPassword(owner, DEMO_OWNER.email, DEMO_OWNER.password);
   await expect(owner.getByRole("link", { name: "Admin", exact: true })).toHaveCount(0);
-  await owner.goto("/admin");
+  const adminPage = await owner.goto("/admin");
+  expect(adminPage?.status()).toBe(403);
   await expect(owner.getByTestId("forbidden")).toBeVisible();
   await expect(owner.getByTestId("admin-users")).toHaveCount(0);
   await ownerContext.close();

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import { Forbidden } from "@/components/forbidden";
 import { StudioHome } from "@/components/studio/studio-home";
 import { requireStudio } from "@/lib/auth/page-guard";
 
@@ -9,6 +8,5 @@ export const dynamic = "force-dynamic";
 export default async function StudioHomeRoute({ params }: { params: Promise<{ studioId: string }> }) {
   const { studioId } = await params;
   const access = await requireStudio(studioId, { callbackUrl: `/studios/${studioId}` });
-  if (access.status === "forbidden") return <Forbidden reason={access.message} />;
   return <StudioHome studioId={access.studio.id} studioName={access.studio.name} role={access.role} />;
 }
