@@ -1,12 +1,12 @@
 /**
  * What the main thread sends a worker thread and what it gets back. Shared by
  * workers/chunk-worker.ts, the pool and the server's queue runner; plain data
- * only (it crosses threads by structured clone).
+ * and typed arrays only (it crosses threads by structured clone).
  */
 import { simulate } from "../physics/index";
-import type { Scenario } from "../physics/types";
+import { VERDICTS, type Metrics, type Scenario } from "../physics/types";
 import { expandAxes, forEachCellInRange, type SweepCell } from "./grid";
-import { pickMetrics, type CellResult } from "./results";
+import { METRIC_KEYS, type CellResult } from "./results";
 import type { SweepSpec } from "./spec";
 
 export type ChunkTask =
@@ -15,14 +15,38 @@ export type ChunkTask =
   /** Explicit cells, e.g. the cache misses of a sweep. */
   | { kind: "cells"; chunkIndex: number; cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[] };
 
+/**
+ * A chunk's results, packed for the trip back to the main thread: typed arrays clone as one
+ * copy each, where thousands of small result objects would be walked field by field (which
+ * made result passing a serial bottleneck on the main thread). `unpackResults` turns it back
+ * into CellResult records.
+ */
 export interface ChunkOutcome {
   chunkIndex: number;
-  /** One result per cell, in the order the task gave the cells. */
-  results: CellResult[];
+  /** Cells in the chunk. */
+  cellCount: number;
+  /** Cell index per result, in the order the task gave the cells. */
+  indices: Int32Array;
+  /** Index into VERDICTS per result. */
+  verdicts: Uint8Array;
+  /** METRIC_KEYS.length numbers per result (booleans as 0/1, null as NaN with its bit in nullMask). */
+  metrics: Float64Array;
+  /** One bit per metric per result: set where the metric is null. */
+  nullMask: Uint8Array;
+  reasons: string[];
   /** Worker time spent on this chunk, measured inside the worker thread; integer ms, rounded up. */
   computeMs: number;
   /** The same, in integer nanoseconds (for calibration and benchmarks). */
   computeNs: number;
+}
+
+const METRIC_COUNT = METRIC_KEYS.length;
+const MASK_BYTES_PER_CELL = Math.ceil(METRIC_COUNT / 8);
+const BOOLEAN_METRICS: ReadonlySet<string> = new Set(["tunneled", "exploded"]);
+const VERDICT_CODES = new Map(VERDICTS.map((verdict, code) => [verdict, code]));
+
+function cellCountOf(task: ChunkTask): number {
+  return task.kind === "cells" ? task.cells.length : task.cellCount;
 }
 
 function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
@@ -31,12 +55,18 @@ function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
 }
 
 /**
- * Run every cell of a chunk through the engine. The clock covers expansion and
- * simulation, i.e. everything billed; it starts when the task arrives.
+ * Run every cell of a chunk through the engine. The clock covers expansion, simulation and
+ * packing, i.e. everything billed; it starts when the task arrives.
  */
 export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const started = process.hrtime.bigint();
-  const results: CellResult[] = [];
+  const count = cellCountOf(task);
+  const indices = new Int32Array(count);
+  const verdicts = new Uint8Array(count);
+  const metrics = new Float64Array(count * METRIC_COUNT);
+  const nullMask = new Uint8Array(count * MASK_BYTES_PER_CELL);
+  const reasons: string[] = new Array(count);
+  let n = 0;
   forEachCell(task, (cell) => {
     let run;
     try {
@@ -45,10 +75,40 @@ export function runChunkTask(task: ChunkTask): ChunkOutcome {
       const message = error instanceof Error ? error.message : String(error);
       throw new Error(`cell ${cell.index} of chunk ${task.chunkIndex} failed in the engine: ${message}`);
     }
-    results.push({ index: cell.index, axisValues: cell.axisValues, verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) });
+    indices[n] = cell.index;
+    verdicts[n] = VERDICT_CODES.get(run.verdict) as number;
+    reasons[n] = run.reason;
+    const record = run.metrics as unknown as Record<string, number | boolean | null>;
+    for (let m = 0; m < METRIC_COUNT; m++) {
+      const value = record[METRIC_KEYS[m]];
+      if (value === null) {
+        metrics[n * METRIC_COUNT + m] = Number.NaN;
+        nullMask[n * MASK_BYTES_PER_CELL + (m >> 3)] |= 1 << (m & 7);
+      } else {
+        metrics[n * METRIC_COUNT + m] = typeof value === "boolean" ? (value ? 1 : 0) : value;
+      }
+    }
+    n++;
   });
   const computeNs = Number(process.hrtime.bigint() - started);
-  return { chunkIndex: task.chunkIndex, results, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+  return { chunkIndex: task.chunkIndex, cellCount: count, indices, verdicts, metrics, nullMask, reasons, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+}
+
+/** CellResult records of a packed outcome; `axisValuesOf` gives each cell's axis values. */
+export function unpackResults(outcome: ChunkOutcome, axisValuesOf: (index: number) => (number | string)[]): CellResult[] {
+  const results: CellResult[] = new Array(outcome.cellCount);
+  for (let n = 0; n < outcome.cellCount; n++) {
+    const metrics: Record<string, number | boolean | null> = {};
+    for (let m = 0; m < METRIC_COUNT; m++) {
+      const key = METRIC_KEYS[m];
+      const isNull = (outcome.nullMask[n * MASK_BYTES_PER_CELL + (m >> 3)] >> (m & 7)) & 1;
+      const value = outcome.metrics[n * METRIC_COUNT + m];
+      metrics[key] = isNull ? null : BOOLEAN_METRICS.has(key) ? value === 1 : value;
+    }
+    const index = outcome.indices[n];
+    results[n] = { index, axisValues: axisValuesOf(index), verdict: VERDICTS[outcome.verdicts[n]], reason: outcome.reasons[n], metrics: metrics as unknown as Metrics };
+  }
+  return results;
 }
 
 const WARM_UP_TOLERANCES = { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1e3 };

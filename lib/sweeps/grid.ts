@@ -69,6 +69,11 @@ export function axisPositions(axes: readonly ExpandedAxis[], index: number): num
   return positions;
 }
 
+/** The axis values of a cell index, without building its scenario. */
+export function axisValuesAt(axes: readonly ExpandedAxis[], index: number): (number | string)[] {
+  return axisPositions(axes, index).map((position, i) => axes[i].values[position]);
+}
+
 /** Row-major index of axis positions. */
 export function cellIndex(axes: readonly ExpandedAxis[], positions: readonly number[]): number {
   let index = 0;

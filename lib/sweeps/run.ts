@@ -6,9 +6,9 @@
  *
  * Node only (uses the pool).
  */
-import type { ChunkOutcome } from "./chunk-task";
+import { unpackResults, type ChunkOutcome } from "./chunk-task";
 import { planChunks, type ChunkOptions, type ChunkPlan } from "./chunks";
-import { cellCount, expandAxes, type ExpandedAxis } from "./grid";
+import { axisValuesAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";
 import { specHash } from "./hash";
 import type { ChunkPool } from "./pool";
 import { countVerdicts, emptyVerdictCounts, type CellResult, type ResultsHeader, type VerdictCounts } from "./results";
@@ -66,10 +66,10 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
 
   const accept = (outcome: ChunkOutcome) => {
     const plan = chunks[outcome.chunkIndex];
-    if (outcome.results.length !== plan.cellCount) {
-      throw new Error(`chunk ${plan.index} returned ${outcome.results.length} results for ${plan.cellCount} cells`);
+    if (outcome.cellCount !== plan.cellCount || outcome.indices[0] !== plan.firstCell) {
+      throw new Error(`chunk ${plan.index} returned ${outcome.cellCount} results from cell ${outcome.indices[0]} for ${plan.cellCount} cells from ${plan.firstCell}`);
     }
-    finished.set(outcome.chunkIndex, outcome.results);
+    finished.set(outcome.chunkIndex, unpackResults(outcome, (index) => axisValuesAt(axes, index)));
     chunkComputeMs[outcome.chunkIndex] = outcome.computeMs;
     chunkComputeNs[outcome.chunkIndex] = outcome.computeNs;
     computeMs += outcome.computeMs;

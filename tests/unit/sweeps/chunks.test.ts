@@ -49,7 +49,8 @@ describe("chunking", () => {
     const spec = parsed(input);
     const cellNs = predictCellNs(expandSweep(spec)[0].scenario, CALIBRATION);
     // Every cell has the same predicted cost (stiffness does not change a box step's cost).
-    const targetChunkMs = (cellNs * 3.5) / 1e6;
+    // A chunk starts at its fixed overhead; 3.5 cells above it: the 4th cell reaches the target.
+    const targetChunkMs = (CALIBRATION.chunkOverheadNs + cellNs * 3.5) / 1e6;
     const chunks = planChunks(spec, { targetChunkMs });
     expect(chunks.map((chunk) => chunk.cellCount)).toEqual([4, 4, 4]);
   });

@@ -138,7 +138,7 @@ describe("process-wide pool", () => {
     expect(getChunkPool()).toBe(first);
     expect(first.threads).toBe(1);
     const outcome = await first.run({ kind: "range", chunkIndex: 0, spec: wallSpec, firstCell: 0, cellCount: 3 });
-    expect(outcome.results.map((result) => result.index)).toEqual([0, 1, 2]);
+    expect([...outcome.indices]).toEqual([0, 1, 2]);
     await closeChunkPool();
     const second = getChunkPool({ threads: 1, entry: "source" });
     expect(second).not.toBe(first);

@@ -6,8 +6,8 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { VERDICTS } from "../../../lib/physics/types";
-import { runChunkTask } from "../../../lib/sweeps/chunk-task";
-import { cellCount, expandAxes } from "../../../lib/sweeps/grid";
+import { runChunkTask, unpackResults } from "../../../lib/sweeps/chunk-task";
+import { axisValuesAt, cellCount, expandAxes } from "../../../lib/sweeps/grid";
 import { METRIC_KEYS, resultsToJson } from "../../../lib/sweeps/results";
 import { resultsHeader } from "../../../lib/sweeps/run";
 import { SPEC_LIMITS, parseSweepSpec } from "../../../lib/sweeps/spec";
@@ -105,8 +105,9 @@ describe("generated specs", () => {
         const cells = cellCount(axes);
         expect(cells).toBe(input.axes.reduce((product, axis) => product * ("values" in axis ? axis.values.length : axis.count), 1));
         const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec: parsed.spec, firstCell: 0, cellCount: cells });
-        expect(outcome.results.map((result) => result.index)).toEqual([...Array(cells).keys()]);
-        for (const result of outcome.results) {
+        const results = unpackResults(outcome, (index) => axisValuesAt(axes, index));
+        expect(results.map((result) => result.index)).toEqual([...Array(cells).keys()]);
+        for (const result of results) {
           expect(VERDICTS).toContain(result.verdict);
           expect(result.reason.length).toBeGreaterThan(0);
           expect(Object.keys(result.metrics)).toEqual([...METRIC_KEYS]);
@@ -159,13 +160,14 @@ describe("generated specs", () => {
         if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
         const spec = parsed.spec;
         const header = resultsHeader(spec);
-        const whole = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: header.cellCount }).results;
+        const valuesOf = (index: number) => axisValuesAt(header.axes, index);
+        const whole = unpackResults(runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: header.cellCount }), valuesOf);
         const pieces = [];
         let first = 0;
         for (let k = 0; first < header.cellCount; k++) {
           const count = Math.min(sizes[k % sizes.length], header.cellCount - first);
           // Each chunk gets its own structured copy of the spec, as a worker thread does.
-          pieces.push(...runChunkTask({ kind: "range", chunkIndex: k, spec: structuredClone(spec), firstCell: first, cellCount: count }).results);
+          pieces.push(...unpackResults(runChunkTask({ kind: "range", chunkIndex: k, spec: structuredClone(spec), firstCell: first, cellCount: count }), valuesOf));
           first += count;
         }
         expect(resultsToJson(header, pieces)).toBe(resultsToJson(header, whole));
