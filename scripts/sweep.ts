@@ -134,12 +134,16 @@ async function main(): Promise<number> {
       axes,
       plan: quote.plan,
       onResults: (results) => write(encoder.cells(results)),
-      onProgress: (progress) =>
-        log(`\rchunk ${progress.chunksDone}/${progress.chunks}, cells ${progress.cellsDone}/${progress.cells}, compute ${progress.computeMs} ms`),
+      onProgress: (progress) => {
+        const line = `chunk ${progress.chunksDone}/${progress.chunks}, cells ${progress.cellsDone}/${progress.cells}, compute ${progress.computeMs} ms`;
+        // A terminal gets one line rewritten in place; a log gets a line per tenth of the chunks.
+        if (process.stderr.isTTY) log(`\r${line}`);
+        else if (progress.chunksDone === progress.chunks || progress.chunksDone % Math.max(1, Math.ceil(progress.chunks / 10)) === 0) log(`${line}\n`);
+      },
     });
     write(encoder.tail());
     close();
-    log("\n");
+    if (process.stderr.isTTY) log("\n");
     const wallMs = Math.round(performance.now() - startedMs);
     const counts = VERDICTS.map((verdict) => `${verdict} ${summary.verdictCounts[verdict]}`).join(", ");
     process.stdout.write(`cells ${header.cellCount}: ${counts}\n`);
@@ -156,6 +160,12 @@ async function main(): Promise<number> {
     await pool.close().catch(() => undefined);
   }
 }
+
+// Piped into a pager or `head` that exits early: stop quietly, as command-line tools do.
+process.stdout.on("error", (error: NodeJS.ErrnoException) => {
+  if (error.code === "EPIPE") process.exit(0);
+  throw error;
+});
 
 main().then(
   (code) => process.exit(code),
