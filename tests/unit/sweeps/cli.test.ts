@@ -14,7 +14,7 @@ function runCli(args: string[]) {
   return { code: result.status, stdout: result.stdout, stderr: result.stderr };
 }
 
-describe("npm run sweep", () => {
+describe("npm run sweep", { timeout: 120_000 }, () => {
   const example = "examples/puckyard-air-hockey.json";
 
   it("runs an example spec, writes the results and prints the verdict counts", () => {

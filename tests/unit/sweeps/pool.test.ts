@@ -35,7 +35,7 @@ const pairSpec = (() => {
 const boxSpec = parsed(ballPitBoxSpec());
 const wallSpec = parsed(bumperWallSpec());
 
-describe("chunk pool (piscina, TypeScript entry under tsx)", () => {
+describe("chunk pool (piscina, TypeScript entry under tsx)", { timeout: 120_000 }, () => {
   let onePool: ChunkPool;
   let twoPool: ChunkPool;
   beforeAll(() => {
@@ -92,7 +92,7 @@ describe("chunk pool (piscina, TypeScript entry under tsx)", () => {
   });
 });
 
-describe("chunk pool (esbuild bundle, as under next start)", () => {
+describe("chunk pool (esbuild bundle, as under next start)", { timeout: 120_000 }, () => {
   let rootDir: string;
   let pool: ChunkPool | undefined;
   beforeAll(async () => {
@@ -130,7 +130,7 @@ describe("chunk pool (esbuild bundle, as under next start)", () => {
   });
 });
 
-describe("process-wide pool", () => {
+describe("process-wide pool", { timeout: 120_000 }, () => {
   afterAll(() => closeChunkPool());
 
   it("is created once, kept on globalThis, and replaced after closing", async () => {
