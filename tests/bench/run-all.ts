@@ -6,9 +6,10 @@
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { costCalibration } from "./cost-calibration";
+import { mapRender } from "./map-render";
 import { pairThroughput } from "./pair-throughput";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender];
 
 async function main() {
   const wanted = process.argv.slice(2);
