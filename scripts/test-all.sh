@@ -7,6 +7,17 @@ mkdir -p .build
 
 step() { printf '\n==> %s\n' "$*"; }
 
+# The browser tests (Playwright, and the map's canvas test under Vitest) drive Debian's chromium.
+if [ ! -x /usr/bin/chromium ]; then
+  if [ "$(id -u)" = "0" ] && command -v apt-get >/dev/null; then
+    echo "Debian chromium is missing: installing it (apt-get install -y chromium)"
+    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null
+  else
+    echo "Browser tests need Debian's chromium at /usr/bin/chromium: run 'sudo apt-get install -y chromium' and try again." >&2
+    exit 1
+  fi
+fi
+
 step "lint"
 npx eslint .
 
@@ -20,15 +31,6 @@ step "production build"
 npm run build
 
 step "browser tests"
-if [ ! -x /usr/bin/chromium ]; then
-  if [ "$(id -u)" = "0" ] && command -v apt-get >/dev/null; then
-    echo "Debian chromium is missing: installing it (apt-get install -y chromium)"
-    apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null
-  else
-    echo "Browser tests need Debian's chromium at /usr/bin/chromium: run 'sudo apt-get install -y chromium' and try again." >&2
-    exit 1
-  fi
-fi
 PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json
 
 node scripts/test-summary.mjs .build/vitest.json .build/playwright.json
