@@ -1,0 +1,115 @@
+/**
+ * Starting templates for the sweep builder: each answers one question a physics programmer asks
+ * when tuning contacts, with game objects of our own invention. Every template is a complete, valid
+ * spec (tests/unit/sweeps/templates.test.ts parses each one) and stays small enough to run in a few
+ * seconds on the demo machine.
+ *
+ * Pure data: safe to import in the browser.
+ */
+import type { SweepSpecInput } from "./spec";
+
+export interface SweepTemplate {
+  /** Stable identifier for links and tests. */
+  id: string;
+  title: string;
+  /** The one-line question the template answers. */
+  question: string;
+  spec: SweepSpecInput;
+}
+
+/** Cells a template may have at most, so the demo runs in seconds. */
+export const TEMPLATE_MAX_CELLS = 4_000;
+
+const HZ_30_S = 1 / 30;
+const HZ_60_S = 1 / 60;
+const HZ_120_S = 1 / 120;
+
+export const SWEEP_TEMPLATES: readonly SweepTemplate[] = [
+  {
+    id: "frame-rate-stiffness",
+    title: "Stiffness a frame rate can carry",
+    question: "What is the largest contact stiffness that stays stable at 30, 60 and 120 Hz, with symplectic Euler and with velocity Verlet?",
+    spec: {
+      name: "Reedmarsh bumper boats: boat against the dock buoy, stiffness × frame step × integrator",
+      scenario: {
+        scene: {
+          kind: "pair",
+          massAKg: 40,
+          massBKg: 120,
+          radiusAM: 0.3,
+          radiusBM: 0.45,
+          speedAMPerS: 2,
+          speedBMPerS: 0,
+          offsetFraction: 0,
+          gapM: 0.01,
+        },
+        contact: { model: "linear", stiffness: 10_000, damping: { kind: "restitution", value: 0.8 } },
+        integrator: "symplectic-euler",
+        dtS: HZ_60_S,
+        substeps: 4,
+        durationS: 2,
+      },
+      axes: [
+        { parameter: "contact.stiffness", spacing: "log", from: 1_000, to: 1_000_000_000, count: 25 },
+        { parameter: "dtS", values: [HZ_120_S, HZ_60_S, HZ_30_S] },
+        { parameter: "integrator", values: ["symplectic-euler", "velocity-verlet"] },
+      ],
+    },
+  },
+  {
+    id: "tunnelling-speed",
+    title: "Speed at which small fast objects tunnel",
+    question: "How fast can a small disc hit a wall before a frame step carries it through the wall without a contact?",
+    spec: {
+      name: "Flintcap slingshot: pebble against the fort wall, speed × frame step",
+      scenario: {
+        scene: { kind: "wall", massKg: 0.01, radiusM: 0.02, speedMPerS: 10, angleDeg: 0, gapM: 0.05 },
+        contact: { model: "linear", stiffness: 10_000, damping: { kind: "restitution", value: 0.6 } },
+        integrator: "symplectic-euler",
+        dtS: HZ_60_S,
+        substeps: 1,
+        durationS: 0.5,
+        // Half the radius: a pebble may squash visibly; the question here is passing through.
+        tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.5, blowUpEnergyFactor: 1000 },
+      },
+      axes: [
+        { parameter: "scene.speedMPerS", spacing: "log", from: 0.5, to: 200, count: 27 },
+        { parameter: "dtS", spacing: "log", from: 1 / 4000, to: HZ_30_S, count: 12 },
+      ],
+    },
+  },
+  {
+    id: "mass-ratio-penetration",
+    title: "How mass ratio changes penetration",
+    question: "When a light object strikes a much heavier one, how deep do they overlap, and how stiff must the contact be to keep it shallow?",
+    spec: {
+      name: "Larchpoint docks: barrel rolled into a cargo crate, mass ratio × stiffness",
+      scenario: {
+        scene: {
+          kind: "pair",
+          massAKg: 2,
+          massBKg: 20,
+          radiusAM: 0.25,
+          radiusBM: 0.4,
+          speedAMPerS: 3,
+          speedBMPerS: 0,
+          offsetFraction: 0,
+          gapM: 0.05,
+        },
+        contact: { model: "linear", stiffness: 50_000, damping: { kind: "restitution", value: 0.5 } },
+        integrator: "velocity-verlet",
+        dtS: HZ_60_S,
+        substeps: 4,
+        durationS: 1,
+      },
+      axes: [
+        { parameter: "scene.massRatio", spacing: "log", from: 0.01, to: 100, count: 17 },
+        { parameter: "contact.stiffness", spacing: "log", from: 100, to: 10_000_000, count: 21 },
+      ],
+    },
+  },
+];
+
+export function findTemplate(id: string): SweepTemplate | undefined {
+  return SWEEP_TEMPLATES.find((template) => template.id === id);
+}
