@@ -1,14 +1,17 @@
 import { sql } from "drizzle-orm";
 import {
+  bigint,
   boolean,
   check,
   index,
+  integer,
   jsonb,
   pgTable,
   primaryKey,
   serial,
   text,
   timestamp,
+  uniqueIndex,
 } from "drizzle-orm/pg-core";
 
 /** Studio roles, in the order the UI lists them. */
@@ -178,3 +181,127 @@ export type Studio = typeof studios.$inferSelect;
 export type Membership = typeof memberships.$inferSelect;
 export type Invite = typeof invites.$inferSelect;
 export type ApiToken = typeof apiTokens.$inferSelect;
+
+// ---------------------------------------------------------------------------
+// Sweeps, their chunks and cells, the per-studio result cache, and the compute ledger.
+
+export const SWEEP_STATUSES = ["queued", "running", "paused", "done", "failed", "cancelled"] as const;
+export type SweepStatus = (typeof SWEEP_STATUSES)[number];
+export const CHUNK_STATUSES = ["queued", "running", "done", "cancelled", "failed"] as const;
+export type ChunkStatus = (typeof CHUNK_STATUSES)[number];
+export const LEDGER_KINDS = ["purchase", "usage", "adjustment", "refund"] as const;
+export type LedgerKind = (typeof LEDGER_KINDS)[number];
+
+export const sweeps = pgTable(
+  "sweeps",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    /** The parsed spec (defaults filled in), so a restart re-expands exactly the same cells. */
+    spec: jsonb("spec").notNull(),
+    specHash: text("spec_hash").notNull(),
+    status: text("status", { enum: SWEEP_STATUSES }).notNull().default("queued"),
+    reason: text("reason"),
+    cells: integer("cells").notNull(),
+    cellsDone: integer("cells_done").notNull().default(0),
+    cachedCells: integer("cached_cells").notNull().default(0),
+    chunks: integer("chunks").notNull(),
+    chunksDone: integer("chunks_done").notNull().default(0),
+    estimatedComputeMs: integer("estimated_compute_ms").notNull(),
+    computeMs: integer("compute_ms").notNull().default(0),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    startedAt: ts("started_at"),
+    finishedAt: ts("finished_at"),
+  },
+  (t) => [
+    index("sweeps_studio_created_idx").on(t.studioId, t.createdAt),
+    check("sweeps_status_known", sql`${t.status} in ('queued', 'running', 'paused', 'done', 'failed', 'cancelled')`),
+  ],
+);
+
+export const sweepChunks = pgTable(
+  "sweep_chunks",
+  {
+    id: serial("id").primaryKey(),
+    sweepId: text("sweep_id")
+      .notNull()
+      .references(() => sweeps.id, { onDelete: "cascade" }),
+    chunkIndex: integer("chunk_index").notNull(),
+    firstCell: integer("first_cell").notNull(),
+    cellCount: integer("cell_count").notNull(),
+    status: text("status", { enum: CHUNK_STATUSES }).notNull().default("queued"),
+    leaseOwner: text("lease_owner"),
+    leaseExpiresAt: ts("lease_expires_at"),
+    attempts: integer("attempts").notNull().default(0),
+    lastError: text("last_error"),
+    computeMs: integer("compute_ms").notNull().default(0),
+  },
+  (t) => [
+    uniqueIndex("sweep_chunks_sweep_index_uq").on(t.sweepId, t.chunkIndex),
+    index("sweep_chunks_status_idx").on(t.status, t.id),
+    check("sweep_chunks_status_known", sql`${t.status} in ('queued', 'running', 'done', 'cancelled', 'failed')`),
+  ],
+);
+
+export const sweepCells = pgTable(
+  "sweep_cells",
+  {
+    sweepId: text("sweep_id")
+      .notNull()
+      .references(() => sweeps.id, { onDelete: "cascade" }),
+    cellIndex: integer("cell_index").notNull(),
+    scenarioHash: text("scenario_hash").notNull(),
+    metrics: jsonb("metrics").notNull(),
+    verdict: text("verdict").notNull(),
+    reason: text("reason").notNull(),
+    fromCache: boolean("from_cache").notNull().default(false),
+  },
+  (t) => [primaryKey({ columns: [t.sweepId, t.cellIndex] })],
+);
+
+/** Results of simulated scenarios per studio: a cell whose scenario hash is here is not run (nor billed) again. */
+export const resultCache = pgTable(
+  "result_cache",
+  {
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    scenarioHash: text("scenario_hash").notNull(),
+    metrics: jsonb("metrics").notNull(),
+    verdict: text("verdict").notNull(),
+    reason: text("reason").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.studioId, t.scenarioHash] })],
+);
+
+/** Append-only: balance = Σ computeMs; every writer supplies an idempotency key. */
+export const ledgerEntries = pgTable(
+  "ledger_entries",
+  {
+    id: serial("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    kind: text("kind", { enum: LEDGER_KINDS }).notNull(),
+    computeMs: bigint("compute_ms", { mode: "number" }).notNull(),
+    amountCents: integer("amount_cents").notNull().default(0),
+    idempotencyKey: text("idempotency_key").notNull().unique(),
+    sweepId: text("sweep_id").references(() => sweeps.id, { onDelete: "set null" }),
+    chunkIndex: integer("chunk_index"),
+    memo: text("memo").notNull().default(""),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    index("ledger_entries_studio_idx").on(t.studioId, t.createdAt),
+    check("ledger_entries_kind_known", sql`${t.kind} in ('purchase', 'usage', 'adjustment', 'refund')`),
+  ],
+);
+
+export type Sweep = typeof sweeps.$inferSelect;
+export type SweepChunk = typeof sweepChunks.$inferSelect;
+export type LedgerEntry = typeof ledgerEntries.$inferSelect;

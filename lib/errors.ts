@@ -24,6 +24,10 @@ export type ErrorCode =
   | "reset_token_expired"
   | "reset_token_used"
   | "studio_suspended"
+  | "invalid_spec"
+  | "insufficient_minutes"
+  | "invalid_state"
+  | "quote_changed"
   | "internal_error";
 
 export interface FieldIssue {

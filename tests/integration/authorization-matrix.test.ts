@@ -8,7 +8,11 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { User } from "@/db/schema";
 import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
 import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
+import { getDb } from "@/db/client";
+import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { submitSweep } from "@/lib/queue/submit";
 import { closeTestDb, useFreshDb } from "../helpers/db";
+import { puckSpec } from "./sweeps/support";
 import { makeInvite, makePasswordReset, makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf, sessionCookie } from "../helpers/http";
 import { concretePath, loadRoute, routeFolders, routePolicies, UNGUARDED_ROUTES } from "../helpers/routes";
@@ -31,6 +35,8 @@ type Expectation = Record<ActorName, number>;
 /** A fresh world per cell, so a mutation in one cell never changes what another cell sees. */
 interface World {
   studioId: string;
+  /** A queued two-axis sweep of the studio (nothing runs it here). */
+  sweepId: string;
   subjectUserId: string; // a spare engineer of the studio, the target of member changes
   pendingInviteId: string;
   spareTokenId: string;
@@ -62,8 +68,11 @@ async function buildWorld(): Promise<World> {
   auth.tokenWrite = { bearer: (await makeToken(studioId, ["write"])).secret };
   auth.tokenRevoked = { bearer: (await makeToken(studioId, ["read", "write"], { revoked: true })).secret };
   auth.otherStudioToken = { bearer: (await makeToken(otherStudioId, ["read", "write"])).secret };
+  await appendLedgerEntry(await getDb(), { studioId, kind: "adjustment", computeMs: 60 * 60_000, idempotencyKey: `matrix:${studioId}`, memo: "test grant" });
+  const sweep = await submitSweep(await getDb(), studioId, { spec: puckSpec() });
   return {
     studioId,
+    sweepId: sweep.id,
     subjectUserId: subject.id,
     pendingInviteId: (await makeInvite(studioId, uniqueEmail("pending"), "finance")).id,
     spareTokenId: (await makeToken(studioId, ["read"])).id,
@@ -114,6 +123,11 @@ const OWNER_MANAGES = (ok: number) =>
   row((a) => (a === "engineer" || a === "finance" ? 403 : STUDIO_READ_NO_TOKENS(ok)[a]));
 
 const studio = (w: World) => ({ studioId: w.studioId });
+const sweep = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId });
+const cell = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId, index: "0" });
+// Sweep work: engineers and owners, and write tokens; finance and read tokens are refused.
+const SWEEP_WRITERS = (ok: number) =>
+  row((a) => (a === "finance" || a === "tokenRead" ? 403 : STUDIO_READ_TOKENS_OK(ok)[a]));
 
 export const ROUTES: RouteRow[] = [
   { route: "v1/signup", method: "POST", body: () => ({ email: uniqueEmail("signup"), password: "tidepool-crates", name: "New Person" }), expect: PUBLIC(201) },
@@ -172,6 +186,15 @@ export const ROUTES: RouteRow[] = [
     params: (w, actor) => ({ token: w.inviteFor[actor] ?? w.publicInviteSecret }),
     expect: SIGNED_IN_PERSON(200),
   },
+  { route: "v1/studios/[studioId]/quotes", method: "POST", params: studio, body: () => ({ spec: puckSpec() }), expect: SWEEP_WRITERS(200) },
+  { route: "v1/studios/[studioId]/sweeps", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/sweeps", method: "POST", params: studio, body: () => ({ spec: puckSpec() }), expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/cancel", method: "POST", params: sweep, expect: SWEEP_WRITERS(200) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]", method: "GET", params: cell, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun", method: "POST", params: cell, expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/envelope", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/admin/studios", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/admin/users", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/dev/mail", method: "GET", expect: PUBLIC(200) },

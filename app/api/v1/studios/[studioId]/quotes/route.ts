@@ -1,0 +1,20 @@
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { parseBody } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { withAuth } from "@/lib/auth/guard";
+import { SWEEP_WRITE } from "@/lib/queue/api";
+import { quoteSweep } from "@/lib/queue/submit";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+const quoteBody = z.strictObject({ spec: z.unknown() });
+
+export const POST = withAuth(SWEEP_WRITE, async ({ req, studio }) => {
+  const { spec } = await parseBody(req, quoteBody);
+  return json({ quote: await quoteSweep(await getDb(), studio.id, spec) });
+});
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

@@ -1,0 +1,53 @@
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { parseWith, readBodyText } from "@/lib/api/body";
+import { ApiError } from "@/lib/errors";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { withAuth } from "@/lib/auth/guard";
+import { SWEEP_WRITE, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
+import { pokeProcessRunner } from "@/lib/queue/runner";
+import { submitSweep } from "@/lib/queue/submit";
+import { sweepView } from "@/lib/queue/views";
+import { cellAt, expandAxes } from "@/lib/sweeps/grid";
+import type { SweepSpec } from "@/lib/sweeps/spec";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+const MIN_DT_FACTOR = 0.001;
+const rerunBody = z.strictObject({
+  dtFactor: z
+    .number({ error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .min(MIN_DT_FACTOR, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .max(1, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .default(0.25),
+});
+
+/** The body is optional here: none (or blank) means the defaults. */
+async function readOptionalJson(req: Request): Promise<unknown> {
+  const text = await readBodyText(req);
+  if (text.trim() === "") return {};
+  try {
+    return JSON.parse(text) as unknown;
+  } catch {
+    throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
+  }
+}
+
+export const POST = withAuth<typeof SWEEP_WRITE, { studioId: string; sweepId: string; index: string }>(SWEEP_WRITE, async ({ req, studio, params, user }) => {
+  const { dtFactor } = parseWith(rerunBody, await readOptionalJson(req));
+  const db = await getDb();
+  const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
+  const index = cellIndexParam(params.index, sweep);
+  const spec = sweep.spec as SweepSpec;
+  const cell = cellAt(spec, expandAxes(spec), index);
+  // The original spec seed with the cell's own scene derives the same cell seed again.
+  const scenario = { ...cell.scenario, seed: spec.scenario.seed, dtS: cell.scenario.dtS * dtFactor };
+  const name = `${sweep.name} · cell ${index} at dt × ${dtFactor}`.slice(0, 120);
+  const rerun = await submitSweep(db, studio.id, { spec: { name, scenario, axes: [] }, name, createdByUserId: user?.id ?? null });
+  pokeProcessRunner();
+  return json({ sweep: await sweepView(db, rerun) }, 201);
+});
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

@@ -1,0 +1,67 @@
+import { getDb } from "@/db/client";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { withAuth } from "@/lib/auth/guard";
+import { ApiError } from "@/lib/errors";
+import type { Verdict } from "@/lib/physics/types";
+import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
+import { storedCells } from "@/lib/queue/views";
+import { EnvelopeInputError, computeEnvelope, type EnvelopeBound } from "@/lib/sweeps/envelope";
+import { expandAxes } from "@/lib/sweeps/grid";
+import { formatNumber, quoteCsvField, guardFormula } from "@/lib/sweeps/results";
+import type { SweepSpec } from "@/lib/sweeps/spec";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+function numberParam(url: URL, name: string, fallback: number | undefined): number {
+  const raw = url.searchParams.get(name);
+  if (raw === null || raw === "") {
+    if (fallback === undefined) throw new ApiError(400, "validation_failed", `${name} is required.`, name);
+    return fallback;
+  }
+  const value = Number(raw);
+  if (!/^[0-9.eE+-]+$/.test(raw) || !Number.isFinite(value)) throw new ApiError(400, "validation_failed", `${name} must be a number; got "${raw}".`, name);
+  return value;
+}
+
+const csvText = (text: string) => quoteCsvField(guardFormula(text));
+
+export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: string }>(SWEEP_READ, async ({ req, studio, params }) => {
+  const url = new URL(req.url);
+  const format = url.searchParams.get("format") ?? "json";
+  if (format !== "json" && format !== "csv") throw new ApiError(400, "validation_failed", `format must be json or csv; got "${format}".`, "format");
+  const bound = (url.searchParams.get("bound") ?? "max") as EnvelopeBound;
+  const x = numberParam(url, "x", 0);
+  const y = numberParam(url, "y", 1);
+  const margin = numberParam(url, "margin", 0);
+  const atRaw = url.searchParams.get("at");
+  const at = atRaw ? atRaw.split(",").map((part) => (/^[0-9]{1,9}$/.test(part) ? Number(part) : Number.NaN)) : undefined;
+  const db = await getDb();
+  const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
+  const axes = expandAxes(sweep.spec as SweepSpec);
+  const verdicts = new Map<number, Verdict>();
+  for (const cell of await storedCells(db, sweep)) verdicts.set(cell.index, cell.verdict);
+  let envelope;
+  try {
+    envelope = computeEnvelope({ axes, verdictAt: (index) => verdicts.get(index), x, y, margin, bound, at });
+  } catch (error) {
+    if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
+    throw error;
+  }
+  if (format === "json") return json({ envelope });
+  const rows = envelope.rows.map(
+    (row) => `${typeof row.x === "number" ? formatNumber(row.x) : csvText(row.x)},${row.yLimit === null ? "" : formatNumber(row.yLimit)}\r\n`,
+  );
+  const text = `${csvText(envelope.xPath)},${csvText(`${envelope.yPath} ${bound} limit`)}\r\n${rows.join("")}`;
+  return new Response(text, {
+    status: 200,
+    headers: {
+      "content-type": "text/csv; charset=utf-8",
+      "content-disposition": `attachment; filename="${sweep.id}-envelope.csv"`,
+      "cache-control": "no-store",
+    },
+  });
+});
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

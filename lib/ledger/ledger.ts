@@ -1,0 +1,61 @@
+import { eq, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { ledgerEntries, type LedgerKind } from "@/db/schema";
+
+/** Minutes a new studio gets so a new user can try a sweep. */
+export const WELCOME_GRANT_MS = 30 * 60_000;
+/** Minutes the demo seed grants the demo studio. */
+export const DEMO_GRANT_MS = 600 * 60_000;
+
+export interface LedgerWrite {
+  studioId: string;
+  kind: LedgerKind;
+  /** Signed: grants and purchases positive, usage negative (integer ms). */
+  computeMs: number;
+  amountCents?: number;
+  idempotencyKey: string;
+  sweepId?: string | null;
+  chunkIndex?: number | null;
+  memo?: string;
+}
+
+/**
+ * Appends one entry unless an entry with the same idempotency key exists (then nothing changes).
+ * Returns true when this call wrote the entry.
+ */
+export async function appendLedgerEntry(db: DbOrTx, entry: LedgerWrite): Promise<boolean> {
+  if (!Number.isInteger(entry.computeMs)) throw new RangeError(`computeMs must be an integer; got ${entry.computeMs}`);
+  if (entry.amountCents !== undefined && !Number.isInteger(entry.amountCents)) throw new RangeError(`amountCents must be an integer; got ${entry.amountCents}`);
+  const inserted = await db
+    .insert(ledgerEntries)
+    .values({
+      studioId: entry.studioId,
+      kind: entry.kind,
+      computeMs: entry.computeMs,
+      amountCents: entry.amountCents ?? 0,
+      idempotencyKey: entry.idempotencyKey,
+      sweepId: entry.sweepId ?? null,
+      chunkIndex: entry.chunkIndex ?? null,
+      memo: entry.memo ?? "",
+    })
+    .onConflictDoNothing({ target: ledgerEntries.idempotencyKey })
+    .returning({ id: ledgerEntries.id });
+  return inserted.length > 0;
+}
+
+/** Compute balance of a studio: the sum of its ledger entries (integer ms, may be negative). */
+export async function balanceMs(db: DbOrTx, studioId: string): Promise<number> {
+  const [row] = await db
+    .select({ total: sql<string | null>`coalesce(sum(${ledgerEntries.computeMs}), 0)` })
+    .from(ledgerEntries)
+    .where(eq(ledgerEntries.studioId, studioId));
+  return Number(row?.total ?? 0);
+}
+
+export function welcomeGrant(studioId: string): LedgerWrite {
+  return { studioId, kind: "adjustment", computeMs: WELCOME_GRANT_MS, idempotencyKey: `welcome:${studioId}`, memo: "Welcome grant: 30 compute minutes" };
+}
+
+export function usageKey(sweepId: string, chunkIndex: number): string {
+  return `usage:${sweepId}:${chunkIndex}`;
+}

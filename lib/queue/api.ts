@@ -1,0 +1,69 @@
+/** Lookups and policies shared by the sweep route handlers. */
+import { and, count, desc, eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { SWEEP_STATUSES, sweeps, type Sweep, type SweepStatus } from "@/db/schema";
+import type { RoutePolicy } from "@/lib/auth/guard";
+import { ApiError } from "@/lib/errors";
+
+/** Reading sweeps: any member, and API tokens with the read (or write) scope. */
+export const SWEEP_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
+/** Quoting, submitting, cancelling, re-running: engineers and owners, and write tokens (finance gets 403). */
+export const SWEEP_WRITE = { access: "studio", roles: ["owner", "engineer"], token: "write" } as const satisfies RoutePolicy;
+
+/** The sweep, if it belongs to the studio; otherwise the same 404 as a sweep that does not exist. */
+export async function sweepOfStudio(db: Db, studioId: string, sweepId: string): Promise<Sweep> {
+  const [sweep] = await db
+    .select()
+    .from(sweeps)
+    .where(and(eq(sweeps.id, sweepId), eq(sweeps.studioId, studioId)));
+  if (!sweep) throw new ApiError(404, "not_found", "Sweep not found.");
+  return sweep;
+}
+
+/** A cell index from the URL: a plain non-negative integer below the sweep's cell count, else 404. */
+export function cellIndexParam(raw: string, sweep: Sweep): number {
+  if (!/^(0|[1-9][0-9]{0,8})$/.test(raw)) throw new ApiError(404, "not_found", `Cell "${raw}" not found: a cell index is an integer from 0 to ${sweep.cells - 1}.`);
+  const index = Number(raw);
+  if (index >= sweep.cells) throw new ApiError(404, "not_found", `Cell ${index} not found: the sweep has cells 0 to ${sweep.cells - 1}.`);
+  return index;
+}
+
+export const MAX_PAGE_SIZE = 100;
+
+export interface ListQuery {
+  status?: SweepStatus;
+  page: number;
+  pageSize: number;
+}
+
+function intParam(url: URL, name: string, fallback: number, min: number, max: number): number {
+  const raw = url.searchParams.get(name);
+  if (raw === null || raw === "") return fallback;
+  if (!/^[0-9]{1,9}$/.test(raw) || Number(raw) < min || Number(raw) > max)
+    throw new ApiError(400, "validation_failed", `${name} must be an integer from ${min} to ${max}; got "${raw}".`, name);
+  return Number(raw);
+}
+
+export function parseListQuery(url: URL): ListQuery {
+  const status = url.searchParams.get("status");
+  if (status !== null && status !== "" && !(SWEEP_STATUSES as readonly string[]).includes(status))
+    throw new ApiError(400, "validation_failed", `status must be one of ${SWEEP_STATUSES.join(", ")}; got "${status}".`, "status");
+  return {
+    status: status ? (status as SweepStatus) : undefined,
+    page: intParam(url, "page", 1, 1, 1_000_000),
+    pageSize: intParam(url, "pageSize", 20, 1, MAX_PAGE_SIZE),
+  };
+}
+
+export async function listSweeps(db: Db, studioId: string, query: ListQuery): Promise<{ rows: Sweep[]; total: number }> {
+  const where = query.status ? and(eq(sweeps.studioId, studioId), eq(sweeps.status, query.status)) : eq(sweeps.studioId, studioId);
+  const [{ n }] = await db.select({ n: count() }).from(sweeps).where(where);
+  const rows = await db
+    .select()
+    .from(sweeps)
+    .where(where)
+    .orderBy(desc(sweeps.createdAt), desc(sweeps.id))
+    .limit(query.pageSize)
+    .offset((query.page - 1) * query.pageSize);
+  return { rows, total: Number(n) };
+}

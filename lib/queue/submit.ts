@@ -1,0 +1,211 @@
+/**
+ * Quotes and submission of sweeps. Submission validates, predicts, counts cache hits, checks the
+ * balance, then writes the sweep, its chunks and its cached cells in ONE transaction: on any
+ * error nothing is queued.
+ */
+import { randomBytes } from "node:crypto";
+import { and, eq, inArray } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep } from "@/db/schema";
+import { ApiError } from "@/lib/errors";
+import { balanceMs } from "@/lib/ledger/ledger";
+import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
+import { QUOTE_BAND, predictSweep } from "@/lib/sweeps/cost";
+import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
+import { scenarioHash, specHash } from "@/lib/sweeps/hash";
+import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
+import { parseSweepSpec, type SweepSpec } from "@/lib/sweeps/spec";
+
+export interface Quote {
+  cells: number;
+  cachedCells: number;
+  cellsToRun: number;
+  steps: number;
+  estimatedComputeMs: number;
+  estimatedMinutes: number;
+  band: { lowMs: number; highMs: number };
+  balanceMs: number;
+  balanceAfterMs: number;
+  limits: { maxCells: number; maxStepsPerCell: number; maxBodies: number };
+  warnings: string[];
+}
+
+/** Parses a spec from a request body; field paths are prefixed with "spec." as the body names them. */
+export function parseSpecOrThrow(input: unknown, prefix = "spec"): SweepSpec {
+  if (input === undefined) throw new ApiError(422, "invalid_spec", `${prefix}: a sweep spec is required.`, prefix, [{ field: prefix, message: "a sweep spec is required" }]);
+  const parsed = parseSweepSpec(input);
+  if (parsed.ok) return parsed.spec;
+  const issues = parsed.issues.map((issue) => ({
+    field: issue.field === "(spec)" ? prefix : `${prefix}.${issue.field}`,
+    message: issue.message,
+  }));
+  throw new ApiError(422, "invalid_spec", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
+}
+
+interface CachedRow {
+  scenarioHash: string;
+  metrics: unknown;
+  verdict: string;
+  reason: string;
+}
+
+interface Plan {
+  spec: SweepSpec;
+  chunks: ChunkPlan[];
+  /** Scenario hash per cell, in index order. */
+  hashes: string[];
+  steps: number;
+  /** Cache rows by cell index, for the cells found in the studio's cache. */
+  cached: Map<number, CachedRow>;
+  /** Predicted compute of the cells still to run, per chunk (0 for a fully cached chunk). */
+  chunkEstimateMs: number[];
+  estimatedComputeMs: number;
+}
+
+const CACHE_LOOKUP_BATCH = 1_000;
+
+async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions: ChunkOptions): Promise<Plan> {
+  const axes = expandAxes(spec);
+  const estimate = predictSweep(spec, { ...chunkOptions, axes });
+  const hashes: string[] = new Array(estimate.cells);
+  let steps = 0;
+  forEachCellInRange(spec, axes, 0, estimate.cells, (cell) => {
+    hashes[cell.index] = scenarioHash(cell.scenario);
+    steps += Math.ceil(cell.scenario.durationS / (cell.scenario.dtS / cell.scenario.substeps));
+  });
+  const byHash = new Map<string, CachedRow>();
+  const distinct = [...new Set(hashes)];
+  for (let i = 0; i < distinct.length; i += CACHE_LOOKUP_BATCH) {
+    const rows = await db
+      .select({ scenarioHash: resultCache.scenarioHash, metrics: resultCache.metrics, verdict: resultCache.verdict, reason: resultCache.reason })
+      .from(resultCache)
+      .where(and(eq(resultCache.studioId, studioId), inArray(resultCache.scenarioHash, distinct.slice(i, i + CACHE_LOOKUP_BATCH))));
+    for (const row of rows) byHash.set(row.scenarioHash, row);
+  }
+  const cached = new Map<number, CachedRow>();
+  hashes.forEach((hash, index) => {
+    const row = byHash.get(hash);
+    if (row) cached.set(index, row);
+  });
+  // A chunk's prediction scaled by the share of its cells still to run; a fully cached chunk costs nothing.
+  const chunkEstimateMs = estimate.plan.map((chunk) => {
+    let misses = 0;
+    for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (!cached.has(i)) misses++;
+    return misses === 0 ? 0 : Math.ceil((chunk.predictedMs * misses) / chunk.cellCount);
+  });
+  return { spec, chunks: estimate.plan, hashes, steps, cached, chunkEstimateMs, estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0) };
+}
+
+function quoteOf(plan: Plan, balance: number): Quote {
+  const warnings: string[] = [];
+  const cells = plan.hashes.length;
+  if (plan.estimatedComputeMs > balance) warnings.push(`The estimate (${plan.estimatedComputeMs} ms) exceeds the balance (${balance} ms): buy minutes before submitting.`);
+  if (cells >= SPEC_LIMITS.maxCellsPerSweep / 2) warnings.push(`${cells} cells is over half the limit of ${SPEC_LIMITS.maxCellsPerSweep} cells per sweep.`);
+  return {
+    cells,
+    cachedCells: plan.cached.size,
+    cellsToRun: cells - plan.cached.size,
+    steps: plan.steps,
+    estimatedComputeMs: plan.estimatedComputeMs,
+    estimatedMinutes: Math.round((plan.estimatedComputeMs / 60_000) * 100) / 100,
+    band: { lowMs: Math.floor(plan.estimatedComputeMs * QUOTE_BAND.low), highMs: Math.ceil(plan.estimatedComputeMs * QUOTE_BAND.high) },
+    balanceMs: balance,
+    balanceAfterMs: balance - plan.estimatedComputeMs,
+    limits: { maxCells: SPEC_LIMITS.maxCellsPerSweep, maxStepsPerCell: SPEC_LIMITS.maxStepsPerCell, maxBodies: SPEC_LIMITS.maxBodies },
+    warnings,
+  };
+}
+
+export interface SubmitOptions {
+  /** Chunking (tests use small chunks to exercise many of them); the server uses the defaults. */
+  chunkOptions?: ChunkOptions;
+}
+
+export async function quoteSweep(db: Db, studioId: string, specInput: unknown, options: SubmitOptions = {}): Promise<Quote> {
+  const spec = parseSpecOrThrow(specInput);
+  const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
+  return quoteOf(plan, await balanceMs(db, studioId));
+}
+
+function newSweepId(): string {
+  return `swp_${randomBytes(16).toString("base64url")}`;
+}
+
+export interface SubmitInput {
+  spec: unknown;
+  name?: string;
+  createdByUserId?: string | null;
+  /** The estimate the caller accepted (ms): a submit whose estimate has grown past it is refused (409). */
+  acceptedQuoteMs?: number;
+}
+
+const CELL_INSERT_BATCH = 500;
+
+export async function submitSweep(db: Db, studioId: string, input: SubmitInput, options: SubmitOptions = {}): Promise<Sweep> {
+  const spec = parseSpecOrThrow(input.spec);
+  const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
+  const name = input.name ?? spec.name ?? "Untitled sweep";
+  return db.transaction(async (tx) => {
+    const balance = await balanceMs(tx, studioId);
+    if (plan.estimatedComputeMs > 0 && plan.estimatedComputeMs > balance) {
+      throw new ApiError(
+        402,
+        "insufficient_minutes",
+        `The sweep is estimated at ${plan.estimatedComputeMs} ms of compute; the studio's balance is ${balance} ms.`,
+        "spec",
+      );
+    }
+    if (input.acceptedQuoteMs !== undefined && plan.estimatedComputeMs > input.acceptedQuoteMs) {
+      throw new ApiError(
+        409,
+        "quote_changed",
+        `The estimate is now ${plan.estimatedComputeMs} ms, above the accepted quote of ${input.acceptedQuoteMs} ms: ask for a new quote.`,
+        "acceptedQuoteMs",
+      );
+    }
+    const chunkDone = plan.chunkEstimateMs.map((ms) => ms === 0);
+    const chunksDone = chunkDone.filter(Boolean).length;
+    const allDone = chunksDone === plan.chunks.length;
+    const now = new Date();
+    const [sweep] = await tx
+      .insert(sweeps)
+      .values({
+        id: newSweepId(),
+        studioId,
+        name,
+        spec,
+        specHash: specHash(spec),
+        status: allDone ? "done" : "queued",
+        cells: plan.hashes.length,
+        cellsDone: plan.cached.size,
+        cachedCells: plan.cached.size,
+        chunks: plan.chunks.length,
+        chunksDone,
+        estimatedComputeMs: plan.estimatedComputeMs,
+        createdByUserId: input.createdByUserId ?? null,
+        startedAt: allDone ? now : null,
+        finishedAt: allDone ? now : null,
+      })
+      .returning();
+    await tx.insert(sweepChunks).values(
+      plan.chunks.map((chunk) => ({
+        sweepId: sweep.id,
+        chunkIndex: chunk.index,
+        firstCell: chunk.firstCell,
+        cellCount: chunk.cellCount,
+        status: chunkDone[chunk.index] ? ("done" as const) : ("queued" as const),
+      })),
+    );
+    const cachedRows = [...plan.cached].map(([index, row]) => ({
+      sweepId: sweep.id,
+      cellIndex: index,
+      scenarioHash: row.scenarioHash,
+      metrics: row.metrics,
+      verdict: row.verdict,
+      reason: row.reason,
+      fromCache: true,
+    }));
+    for (let i = 0; i < cachedRows.length; i += CELL_INSERT_BATCH) await tx.insert(sweepCells).values(cachedRows.slice(i, i + CELL_INSERT_BATCH));
+    return sweep;
+  });
+}

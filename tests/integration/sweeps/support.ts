@@ -1,0 +1,101 @@
+/**
+ * Shared set-up for the sweep integration tests: invented studios, small specs of invented game
+ * scenes, grants, and a way to wait for the runner.
+ */
+import { eq } from "drizzle-orm";
+import { getDb } from "@/db/client";
+import { ledgerEntries, sweeps, type Sweep, type User } from "@/db/schema";
+import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import { makeStudio, makeUser } from "../../helpers/factories";
+import { sessionCookie } from "../../helpers/http";
+
+export interface TestStudio {
+  studioId: string;
+  owner: User;
+  engineer: User;
+  finance: User;
+  cookies: { owner: string; engineer: string; finance: string };
+}
+
+export async function makeSweepStudio(name: string, grantMs = 60 * 60_000): Promise<TestStudio> {
+  const owner = await makeUser({ name: "owner" });
+  const engineer = await makeUser({ name: "engineer" });
+  const finance = await makeUser({ name: "finance" });
+  const studioId = await makeStudio(name, [
+    { user: owner, role: "owner" },
+    { user: engineer, role: "engineer" },
+    { user: finance, role: "finance" },
+  ]);
+  if (grantMs > 0) await grant(studioId, grantMs, `test:grant:${studioId}`);
+  return {
+    studioId,
+    owner,
+    engineer,
+    finance,
+    cookies: { owner: await sessionCookie(owner), engineer: await sessionCookie(engineer), finance: await sessionCookie(finance) },
+  };
+}
+
+export async function grant(studioId: string, computeMs: number, key: string): Promise<void> {
+  await appendLedgerEntry(await getDb(), { studioId, kind: "adjustment", computeMs, idempotencyKey: key, memo: "test grant" });
+}
+
+/** Puck against striker of the invented air-hockey game "Puckyard": 5 stiffnesses × 3 timesteps. */
+export function puckSpec(): SweepSpecInput {
+  return {
+    name: "Puckyard puck vs striker",
+    scenario: {
+      scene: { kind: "pair", massAKg: 0.17, massBKg: 0.4, radiusAM: 0.04, radiusBM: 0.05, speedAMPerS: 6, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 },
+      contact: { model: "linear", stiffness: 2e5, damping: { kind: "restitution", value: 0.8 } },
+      integrator: "symplectic-euler",
+      dtS: 1 / 240,
+      substeps: 4,
+      durationS: 0.1,
+    },
+    axes: [
+      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 5 },
+      { parameter: "dtS", spacing: "log", from: 1 / 960, to: 1 / 60, count: 3 },
+    ],
+  };
+}
+
+/** A ball pit of an invented party game, "Jellybean Jar": enough work per cell for measured compute to mean something. */
+export function ballPitSpec(durationS = 0.5): SweepSpecInput {
+  return {
+    name: "Jellybean Jar ball pit",
+    scenario: {
+      scene: { kind: "box", count: 20, massKg: 0.05, radiusM: 0.03, widthM: 1, heightM: 1, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
+      contact: { model: "linear", stiffness: 1e4, damping: { kind: "coefficient", value: 0.5 } },
+      integrator: "velocity-verlet",
+      dtS: 1e-3,
+      durationS,
+      seed: 7,
+    },
+    axes: [
+      { parameter: "scene.count", spacing: "linear", from: 10, to: 30, count: 3 },
+      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e5, count: 3 },
+    ],
+  };
+}
+
+export async function sweepRow(id: string): Promise<Sweep> {
+  const [row] = await (await getDb()).select().from(sweeps).where(eq(sweeps.id, id));
+  return row;
+}
+
+/** Polls until the predicate holds for the sweep (a hang guard, not a speed check). */
+export async function waitForSweep(id: string, predicate: (sweep: Sweep) => boolean, timeoutMs = 90_000): Promise<Sweep> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const row = await sweepRow(id);
+    if (predicate(row)) return row;
+    if (Date.now() > deadline) throw new Error(`sweep ${id} still ${row.status} (${row.chunksDone}/${row.chunks} chunks) after ${timeoutMs} ms`);
+    await new Promise((resolve) => setTimeout(resolve, 50));
+  }
+}
+
+export async function usageEntries(sweepId: string) {
+  const rows = await (await getDb()).select().from(ledgerEntries).where(eq(ledgerEntries.sweepId, sweepId));
+  return rows.filter((row) => row.kind === "usage");
+}
