@@ -13,7 +13,10 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
   const studio = useStudio(studioId);
   const pathname = usePathname();
   const base = `/studios/${studioId}`;
-  const tabs = [{ href: base, label: "Overview" }];
+  const tabs = [
+    { href: base, label: "Overview" },
+    { href: `${base}/sweeps`, label: "Sweeps" },
+  ];
   if (role === "owner") {
     tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
   }
@@ -39,7 +42,8 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
       {tabs.length > 1 ? (
         <nav aria-label="Studio" className="mb-6 flex gap-1">
           {tabs.map((tab) => {
-            const active = pathname === tab.href;
+            // The Sweeps tab stays marked on the builder, a sweep and its cells.
+            const active = pathname === tab.href || (tab.label === "Sweeps" && pathname.startsWith(`${tab.href}/`));
             return (
               <Link
                 key={tab.href}

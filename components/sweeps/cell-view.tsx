@@ -1,0 +1,182 @@
+"use client";
+/** Drill-down of one cell: parameters and metrics with units, verdict and reason, time series, replay, and a re-run at a finer dt. */
+import Link from "next/link";
+import { useMutation, useQuery } from "@tanstack/react-query";
+import { useRouter } from "next/navigation";
+import { useMemo, useState } from "react";
+import { CellTimeSeries, TrajectoryReplay } from "@/components/maps";
+import { Alert, Button, Card, LoadingRows } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { VERDICT_STYLES } from "@/lib/charts/categories";
+import { formatPrecise } from "@/lib/charts/format";
+import { buildScene } from "@/lib/physics/scenes";
+import type { Metrics } from "@/lib/physics/types";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
+import type { StudioRole } from "@/lib/ui/types";
+import { sweepKeys, sweepPath, useSweep, type CellDetail, type Sweep } from "./sweep-api";
+
+const METRIC_ROWS: readonly { key: keyof Metrics; label: string; unit: string }[] = [
+  { key: "energyErrorRel", label: "Final energy error (relative)", unit: "" },
+  { key: "maxEnergyErrorRel", label: "Largest energy error (relative)", unit: "" },
+  { key: "maxOverlapFraction", label: "Deepest overlap / smaller radius", unit: "" },
+  { key: "effectiveRestitution", label: "Measured restitution", unit: "" },
+  { key: "contactDurationS", label: "First contact duration", unit: "s" },
+  { key: "contactSteps", label: "Steps in contact", unit: "steps" },
+  { key: "momentumDriftRelX", label: "Momentum drift x (relative)", unit: "" },
+  { key: "momentumDriftRelY", label: "Momentum drift y (relative)", unit: "" },
+  { key: "tunneled", label: "Tunnelled", unit: "" },
+  { key: "exploded", label: "Exploded", unit: "" },
+  { key: "steps", label: "Integrator steps", unit: "steps" },
+];
+
+function metricText(value: unknown, unit: string): string {
+  if (typeof value === "boolean") return value ? "yes" : "no";
+  if (typeof value === "number" && Number.isFinite(value)) return formatPrecise(value, unit);
+  return "no value";
+}
+
+export function CellView({ studioId, studioName, role, sweepId, index }: { studioId: string; studioName: string; role: StudioRole; sweepId: string; index: number }) {
+  const router = useRouter();
+  const sweep = useSweep(studioId, sweepId);
+  const detail = useQuery({
+    queryKey: sweepKeys.cell(studioId, sweepId, index),
+    queryFn: () => apiFetch<CellDetail>(`${sweepPath(studioId, sweepId)}/cells/${index}`),
+    retry: false,
+  });
+  const [dtFactor, setDtFactor] = useState(0.25);
+  const dtFactorValid = Number.isFinite(dtFactor) && dtFactor > 0 && dtFactor < 1;
+  const rerun = useMutation({
+    mutationFn: async () => (await apiFetch<{ sweep: Sweep }>(`${sweepPath(studioId, sweepId)}/cells/${index}/rerun`, { method: "POST", body: { dtFactor } })).sweep,
+    onSuccess: (created) => router.push(`/studios/${studioId}/sweeps/${created.id}`),
+  });
+  const canRun = role === "owner" || role === "engineer";
+
+  const scene = useMemo(() => {
+    if (!detail.data) return null;
+    const setup = buildScene(detail.data.cell.scenario.scene, detail.data.cell.scenario.seed);
+    return { radii: Array.from(setup.bodies.radius), walls: setup.walls.map((wall) => ({ normalX: wall.normalX, normalY: wall.normalY, offsetM: wall.offsetM })) };
+  }, [detail.data]);
+
+  const energy = useMemo(() => {
+    const totals = detail.data?.series.totalJ ?? [];
+    if (totals.length === 0) return null;
+    const initial = totals[0];
+    let largest = -Infinity;
+    for (const value of totals) if (Number.isFinite(value) && value > largest) largest = value;
+    return { initial, largest, ratio: initial > 0 ? largest / initial : Number.NaN };
+  }, [detail.data]);
+
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      <p className="mb-4 text-sm">
+        <Link href={`/studios/${studioId}/sweeps/${sweepId}`} className="text-action hover:underline">
+          ← Back to the stability map{sweep.data?.name ? ` of “${sweep.data.name}”` : ""}
+        </Link>
+      </p>
+      {detail.isPending ? (
+        <LoadingRows label="the cell" />
+      ) : detail.isError ? (
+        <Alert>{errorMessage(detail.error)}</Alert>
+      ) : (
+        <div className="space-y-6">
+          <div className="grid gap-6 lg:grid-cols-2">
+            <Card title={`Cell ${index}`}>
+              <p className="mb-3 flex items-center gap-2 text-sm">
+                <span className="inline-block h-3 w-3 rounded-sm" style={{ background: VERDICT_STYLES[detail.data.cell.verdict].colour }} aria-hidden="true" />
+                <span className="font-semibold" data-testid="cell-verdict">
+                  {VERDICT_STYLES[detail.data.cell.verdict].label}
+                </span>
+              </p>
+              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{detail.data.cell.reason}</p> : null}
+              <h3 className="mb-1 text-sm font-semibold">Swept parameters</h3>
+              <dl className="mb-3 grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm">
+                {detail.data.cell.axisValues.map((value, i) => {
+                  const axis = sweep.data?.axes[i];
+                  return (
+                    <div key={i} className="contents">
+                      <dt className="text-ink-muted">{axis ? `${axis.label} [${axis.unit || "no unit"}]` : `axis ${i + 1}`}</dt>
+                      <dd className="text-right font-mono">{typeof value === "number" ? formatPrecise(value, axis?.unit ?? "") : value}</dd>
+                    </div>
+                  );
+                })}
+                <div className="contents">
+                  <dt className="text-ink-muted">Timestep dt [s]</dt>
+                  <dd className="text-right font-mono">{formatPrecise(detail.data.cell.scenario.dtS, "s")}</dd>
+                </div>
+                <div className="contents">
+                  <dt className="text-ink-muted">Substeps per frame [no unit]</dt>
+                  <dd className="text-right font-mono">{detail.data.cell.scenario.substeps}</dd>
+                </div>
+                <div className="contents">
+                  <dt className="text-ink-muted">Integrator</dt>
+                  <dd className="text-right font-mono">{detail.data.cell.scenario.integrator}</dd>
+                </div>
+              </dl>
+              <h3 className="mb-1 text-sm font-semibold">Metrics</h3>
+              <dl className="grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm" data-testid="cell-metrics">
+                {METRIC_ROWS.map((row) => (
+                  <div key={row.key} className="contents">
+                    <dt className="text-ink-muted">
+                      {row.label} [{row.unit || "no unit"}]
+                    </dt>
+                    <dd className="text-right font-mono">{metricText(detail.data.cell.metrics[row.key], row.unit)}</dd>
+                  </div>
+                ))}
+              </dl>
+            </Card>
+            <Card title="Energy and re-run">
+              {energy ? (
+                <dl className="mb-4 grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm">
+                  <dt className="text-ink-muted">Initial total energy [J]</dt>
+                  <dd className="text-right font-mono" data-testid="energy-initial">
+                    {formatPrecise(energy.initial, "J")}
+                  </dd>
+                  <dt className="text-ink-muted">Largest total energy [J]</dt>
+                  <dd className="text-right font-mono" data-testid="energy-largest">
+                    {formatPrecise(energy.largest, "J")}
+                  </dd>
+                  <dt className="text-ink-muted">Largest / initial [× initial]</dt>
+                  <dd className="text-right font-mono" data-testid="energy-ratio">
+                    {Number.isFinite(energy.ratio) ? energy.ratio.toPrecision(4) : "no value"}
+                  </dd>
+                </dl>
+              ) : null}
+              {canRun ? (
+                <div className="space-y-2">
+                  <label htmlFor="rerun-dt-factor" className="block text-sm font-medium">
+                    Finer dt factor <span className="font-mono text-xs text-ink-muted">[× this cell&apos;s dt, between 0 and 1]</span>
+                  </label>
+                  <input
+                    id="rerun-dt-factor"
+                    type="number"
+                    step="any"
+                    min={0}
+                    max={1}
+                    className="block w-40 rounded-md border border-line bg-surface px-3 py-2 text-sm"
+                    value={Number.isFinite(dtFactor) ? dtFactor : ""}
+                    aria-invalid={dtFactorValid ? undefined : true}
+                    onChange={(event) => setDtFactor(event.target.value === "" ? Number.NaN : Number(event.target.value))}
+                  />
+                  {dtFactorValid ? null : <p className="text-sm font-medium text-danger">The factor must be greater than 0 and less than 1.</p>}
+                  <Button onClick={() => rerun.mutate()} disabled={!dtFactorValid || rerun.isPending}>
+                    {rerun.isPending ? "Starting…" : "Re-run at a finer dt"}
+                  </Button>
+                  <p className="text-xs text-ink-muted">A new one-cell sweep, quoted and billed as any sweep.</p>
+                  {rerun.isError ? <Alert>{errorMessage(rerun.error)}</Alert> : null}
+                </div>
+              ) : null}
+            </Card>
+          </div>
+          <Card title="Time series">
+            <CellTimeSeries series={detail.data.series} overlapLimitM={scene ? detail.data.cell.scenario.tolerances.maxOverlapFraction * Math.min(...scene.radii) : undefined} />
+          </Card>
+          {scene ? (
+            <Card title="Replay">
+              <TrajectoryReplay series={detail.data.series} radiiM={scene.radii} walls={scene.walls} />
+            </Card>
+          ) : null}
+        </div>
+      )}
+    </StudioShell>
+  );
+}

@@ -1,0 +1,111 @@
+"use client";
+/** Client access to the sweep routes of issue 4 (`/api/v1/studios/{studioId}/…`), typed by the shared contract. */
+import { useQuery } from "@tanstack/react-query";
+import type { Metrics, TimeSeries, Verdict } from "@/lib/physics/types";
+import type { Scenario } from "@/lib/physics/types";
+import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import { apiFetch } from "@/lib/ui/api";
+import { studioApiPath } from "@/lib/ui/queries";
+
+export type SweepStatus = "queued" | "running" | "paused" | "done" | "failed" | "cancelled";
+export const SWEEP_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused", "done", "failed", "cancelled"];
+export const ACTIVE_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused"];
+
+export interface SweepAxisView {
+  path: string;
+  label: string;
+  unit: string;
+  spacing: string | null;
+  values: (number | string)[];
+}
+
+export interface Sweep {
+  id: string;
+  name: string | null;
+  status: SweepStatus;
+  reason: string | null;
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+  cells: number;
+  cellsDone: number;
+  cachedCells: number;
+  chunks: number;
+  chunksDone: number;
+  computeMs: number;
+  estimatedComputeMs: number;
+  verdictCounts: Record<Verdict, number>;
+  axes: SweepAxisView[];
+  spec: SweepSpecInput;
+}
+
+export interface Quote {
+  cells: number;
+  cachedCells: number;
+  cellsToRun: number;
+  steps: number;
+  estimatedComputeMs: number;
+  estimatedMinutes: number;
+  band: { lowMs: number; highMs: number };
+  balanceMs: number;
+  balanceAfterMs: number;
+  limits: { maxCells: number; maxStepsPerCell: number; maxBodies: number };
+  warnings: string[];
+}
+
+export interface CellRow {
+  index: number;
+  axisValues: (number | string)[];
+  metrics: Metrics;
+  verdict: Verdict;
+  reason: string | null;
+}
+
+export interface CellDetail {
+  cell: CellRow & { scenario: Scenario };
+  series: TimeSeries;
+}
+
+export interface Envelope {
+  xPath: string;
+  yPath: string;
+  margin: number;
+  bound: "max" | "min";
+  rows: { x: number; yLimit: number | null }[];
+}
+
+export const sweepsPath = (studioId: string) => `${studioApiPath(studioId)}/sweeps`;
+export const sweepPath = (studioId: string, sweepId: string) => `${sweepsPath(studioId)}/${encodeURIComponent(sweepId)}`;
+
+export const sweepKeys = {
+  list: (studioId: string, status: string, page: number) => ["studio", studioId, "sweeps", status, page] as const,
+  sweep: (studioId: string, sweepId: string) => ["studio", studioId, "sweep", sweepId] as const,
+  cells: (studioId: string, sweepId: string) => ["studio", studioId, "sweep", sweepId, "cells"] as const,
+  cell: (studioId: string, sweepId: string, index: number) => ["studio", studioId, "sweep", sweepId, "cell", index] as const,
+};
+
+export function isActive(status: SweepStatus | undefined): boolean {
+  return status !== undefined && ACTIVE_STATUSES.includes(status);
+}
+
+/** Milliseconds of compute as minutes with two decimals (how compute is sold). */
+export function formatMinutes(ms: number): string {
+  return `${(ms / 60_000).toFixed(2)} min`;
+}
+
+export function useSweep(studioId: string, sweepId: string) {
+  return useQuery({
+    queryKey: sweepKeys.sweep(studioId, sweepId),
+    queryFn: async () => (await apiFetch<{ sweep: Sweep }>(sweepPath(studioId, sweepId))).sweep,
+    // Poll every second while the sweep can still change; stop once it has finished.
+    refetchInterval: (query) => (query.state.data === undefined || isActive(query.state.data.status) ? 1000 : false),
+  });
+}
+
+export function useSweepCells(studioId: string, sweepId: string, active: boolean) {
+  return useQuery({
+    queryKey: sweepKeys.cells(studioId, sweepId),
+    queryFn: async () => (await apiFetch<{ cells: CellRow[] }>(`${sweepPath(studioId, sweepId)}/cells`)).cells,
+    refetchInterval: active ? 1000 : false,
+  });
+}

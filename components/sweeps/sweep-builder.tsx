@@ -1,0 +1,617 @@
+"use client";
+/**
+ * The sweep builder: a template or a scene, the scenario with the unit beside every field, up to
+ * three axes, and a quote that follows the spec as it changes. The zod schema of the spec is the
+ * form's resolver, so the form reports exactly the field paths the API reports.
+ */
+import { zodResolver } from "@hookform/resolvers/zod";
+import { useMutation, useQuery } from "@tanstack/react-query";
+import { useRouter } from "next/navigation";
+import { useEffect, useMemo, useState } from "react";
+import { get, useForm, useWatch, type FieldPath } from "react-hook-form";
+import { Alert, Button, Card, cx } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import type { SceneKind } from "@/lib/physics/types";
+import { CHOICE_PARAMETERS, NUMERIC_PARAMETERS, SCENE_KINDS, SPEC_LIMITS, parametersForScene, type NumericParameter, type SweepableParameter } from "@/lib/sweeps/parameters";
+import { SPEC_DEFAULT_TOLERANCES, parseSweepSpec, scenarioValue, sweepSpecSchema, type SweepSpecInput } from "@/lib/sweeps/spec";
+import type { Scenario } from "@/lib/physics/types";
+import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
+import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
+import { studioApiPath } from "@/lib/ui/queries";
+import type { StudioRole } from "@/lib/ui/types";
+import { formatMinutes, sweepsPath, type Quote, type Sweep } from "./sweep-api";
+
+type AxisInput = NonNullable<SweepSpecInput["axes"]>[number];
+type FormPath = FieldPath<SweepSpecInput>;
+
+/** A starting scene per kind when the user switches scenes (invented objects, SI units). */
+const SCENE_DEFAULTS: Record<SceneKind, SweepSpecInput["scenario"]["scene"]> = {
+  pair: { kind: "pair", massAKg: 0.17, massBKg: 0.17, radiusAM: 0.028, radiusBM: 0.028, speedAMPerS: 3, speedBMPerS: 0, offsetFraction: 0, gapM: 0.02 },
+  wall: { kind: "wall", massKg: 0.05, radiusM: 0.02, speedMPerS: 4, angleDeg: 0, gapM: 0.02 },
+  row: { kind: "row", count: 5, massKg: 0.17, radiusM: 0.028, strikerMassKg: 0.17, strikerSpeedMPerS: 2, spacingM: 0.001, gapM: 0.02 },
+  box: { kind: "box", count: 40, massKg: 0.01, radiusM: 0.01, widthM: 0.5, heightM: 0.5, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
+};
+
+const SCENE_LABELS: Record<SceneKind, string> = {
+  pair: "Pair — two discs collide",
+  wall: "Wall — one disc hits a wall",
+  row: "Row — a striker hits a row of resting discs",
+  box: "Box — many discs in a walled box",
+};
+
+const INTEGRATOR_LABELS: Record<string, string> = {
+  "symplectic-euler": "Symplectic Euler",
+  "velocity-verlet": "Velocity Verlet",
+  "explicit-euler": "Explicit Euler (cautionary baseline)",
+};
+
+function withTolerances(spec: SweepSpecInput): SweepSpecInput {
+  const copy = structuredClone(spec);
+  copy.scenario.tolerances ??= { ...SPEC_DEFAULT_TOLERANCES };
+  copy.scenario.substeps ??= 1;
+  copy.axes ??= [];
+  return copy;
+}
+
+function unitLabel(unit: string): string {
+  return unit === "" ? "no unit" : unit;
+}
+
+function stiffnessUnit(model: string): string {
+  return model === "hertz" ? "N/m^1.5" : "N/m";
+}
+
+function dampingUnit(model: string): string {
+  return model === "hertz" ? "N·s/m^1.25" : "N·s/m";
+}
+
+/** A sensible first axis for a parameter, centred on the scenario's current value. */
+function defaultAxis(parameter: SweepableParameter, scenario: SweepSpecInput["scenario"]): AxisInput {
+  if (parameter.kind === "choice") return { parameter: parameter.path, values: parameter.choices.slice(0, 2) };
+  let base: number | undefined;
+  if (parameter.path === "scene.massRatio" && scenario.scene.kind === "pair") base = scenario.scene.massBKg / scenario.scene.massAKg;
+  else {
+    const value = scenarioValue(scenario as Scenario, parameter.path);
+    base = typeof value === "number" ? value : undefined;
+  }
+  if (parameter.integer) {
+    const start = Math.max(1, Math.round(base ?? 1));
+    return { parameter: parameter.path, values: [start, start * 2, start * 4].filter((value) => value <= parameter.max) };
+  }
+  if (base !== undefined && base > 0) {
+    if (parameter.suggestedSpacing === "log") return { parameter: parameter.path, spacing: "log", from: base / 10, to: Math.min(base * 10, parameter.max), count: 9 };
+    return { parameter: parameter.path, spacing: "linear", from: base / 2, to: Math.min(base * 1.5, parameter.max), count: 5 };
+  }
+  return { parameter: parameter.path, spacing: "linear", from: 0, to: Math.min(1, parameter.max), count: 5 };
+}
+
+function useDebounced<T>(value: T, delayMs: number): T {
+  const [debounced, setDebounced] = useState(value);
+  useEffect(() => {
+    const timer = setTimeout(() => setDebounced(value), delayMs);
+    return () => clearTimeout(timer);
+  }, [value, delayMs]);
+  return debounced;
+}
+
+const inputClasses = "block w-full rounded-md border border-line bg-surface px-3 py-2 text-sm text-ink aria-[invalid=true]:border-danger";
+
+function FieldError({ id, message }: { id: string; message?: string }) {
+  if (!message) return null;
+  return (
+    <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
+      {message}
+    </p>
+  );
+}
+
+export function SweepBuilder({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+  const router = useRouter();
+  const [templateId, setTemplateId] = useState(SWEEP_TEMPLATES[0].id);
+  const form = useForm<SweepSpecInput>({
+    // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
+    resolver: zodResolver(sweepSpecSchema) as never,
+    defaultValues: withTolerances(SWEEP_TEMPLATES[0].spec),
+    mode: "onChange",
+  });
+  const { register, setValue, reset, formState, handleSubmit, control } = form;
+  // The whole spec as it is typed: it drives the scene-dependent fields, the local checks and the quote.
+  const values = useWatch({ control }) as SweepSpecInput;
+  const specJson = JSON.stringify(values);
+  const debouncedJson = useDebounced(specJson, 400);
+  const local = useMemo(() => parseSweepSpec(JSON.parse(specJson)), [specJson]);
+  const [confirming, setConfirming] = useState(false);
+  const [serverError, setServerError] = useState<ApiClientError | null>(null);
+
+  const quote = useQuery({
+    queryKey: ["studio", studioId, "quote", debouncedJson],
+    queryFn: async () => (await apiFetch<{ quote: Quote }>(`${studioApiPath(studioId)}/quotes`, { method: "POST", body: { spec: JSON.parse(debouncedJson) } })).quote,
+    enabled: local.ok,
+    retry: false,
+    staleTime: 30_000,
+  });
+
+  const create = useMutation({
+    mutationFn: async () =>
+      (
+        await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
+          method: "POST",
+          body: { spec: values, name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
+        })
+      ).sweep,
+    onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),
+    onError: (error) => {
+      setConfirming(false);
+      if (error instanceof ApiClientError) setServerError(error);
+    },
+  });
+
+  const quoteError = quote.error instanceof ApiClientError ? quote.error : null;
+  const apiIssue = (path: string): string | undefined => serverError?.messageFor(path) ?? quoteError?.messageFor(path) ?? quoteError?.messageFor(`spec.${path}`) ?? serverError?.messageFor(`spec.${path}`);
+  const fieldError = (path: string): string | undefined => {
+    const found = get(formState.errors, path) as { message?: string; root?: { message?: string } } | undefined;
+    return found?.message ?? found?.root?.message ?? apiIssue(path);
+  };
+
+  const scenario = values.scenario;
+  const sceneKind = scenario.scene.kind;
+  const axes = values.axes ?? [];
+  const sceneParameters = NUMERIC_PARAMETERS.filter((parameter) => parameter.path.startsWith("scene.") && parameter.path !== "scene.massRatio" && parameter.scenes !== "all" && parameter.scenes.includes(sceneKind));
+  const axisParameters = parametersForScene(sceneKind);
+
+  const applyTemplate = (id: string) => {
+    const template = SWEEP_TEMPLATES.find((candidate) => candidate.id === id);
+    if (!template) return;
+    setTemplateId(id);
+    setServerError(null);
+    reset(withTolerances(template.spec));
+  };
+
+  const numberField = (path: string, label: string, unit: string, options: { step?: string; integer?: boolean } = {}) => {
+    const id = `spec-${path.replaceAll(".", "-")}`;
+    const error = fieldError(path);
+    return (
+      <div className="space-y-1" key={path}>
+        <label htmlFor={id} className="block text-sm font-medium text-ink">
+          {label} <span className="font-mono text-xs text-ink-muted">[{unitLabel(unit)}]</span>
+        </label>
+        <input
+          id={id}
+          type="number"
+          step={options.step ?? "any"}
+          inputMode="decimal"
+          aria-invalid={error ? true : undefined}
+          aria-describedby={error ? `${id}-error` : undefined}
+          className={inputClasses}
+          {...register(path as FormPath, { valueAsNumber: true })}
+        />
+        <FieldError id={id} message={error} />
+      </div>
+    );
+  };
+
+  const setAxes = (next: AxisInput[]) => setValue("axes", next, { shouldValidate: true, shouldDirty: true });
+
+  const onValid = () => {
+    setServerError(null);
+    setConfirming(true);
+  };
+
+  const allIssues = local.ok ? [] : local.issues;
+
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
+        <form className="min-w-0 space-y-6" onSubmit={handleSubmit(onValid)} noValidate aria-label="Sweep builder">
+          <Card title="Start from a template">
+            <fieldset className="grid gap-3 md:grid-cols-3">
+              <legend className="sr-only">Template</legend>
+              {SWEEP_TEMPLATES.map((template) => (
+                <label
+                  key={template.id}
+                  className={cx("cursor-pointer rounded-md border p-3 text-sm", templateId === template.id ? "border-action bg-surface-muted" : "border-line")}
+                >
+                  <input type="radio" name="template" value={template.id} checked={templateId === template.id} onChange={() => applyTemplate(template.id)} className="mr-2" />
+                  <span className="font-semibold">{template.title}</span>
+                  <span className="mt-1 block text-ink-muted">{template.question}</span>
+                </label>
+              ))}
+            </fieldset>
+          </Card>
+
+          <Card title="Scenario">
+            <div className="grid gap-4 md:grid-cols-2">
+              <div className="space-y-1 md:col-span-2">
+                <label htmlFor="spec-name" className="block text-sm font-medium text-ink">
+                  Sweep name <span className="font-mono text-xs text-ink-muted">[text, at most {SPEC_LIMITS.maxNameLength} characters]</span>
+                </label>
+                <input id="spec-name" className={inputClasses} {...register("name")} aria-invalid={fieldError("name") ? true : undefined} />
+                <FieldError id="spec-name" message={fieldError("name")} />
+              </div>
+              <div className="space-y-1 md:col-span-2">
+                <label htmlFor="spec-scene-kind" className="block text-sm font-medium text-ink">
+                  Scene
+                </label>
+                <select
+                  id="spec-scene-kind"
+                  className={inputClasses}
+                  value={sceneKind}
+                  onChange={(event) => {
+                    const kind = event.target.value as SceneKind;
+                    setValue("scenario.scene", structuredClone(SCENE_DEFAULTS[kind]), { shouldValidate: true });
+                    setTemplateId("");
+                  }}
+                >
+                  {SCENE_KINDS.map((kind) => (
+                    <option key={kind} value={kind}>
+                      {SCENE_LABELS[kind]}
+                    </option>
+                  ))}
+                </select>
+              </div>
+              {sceneParameters.map((parameter: NumericParameter) =>
+                numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any" }),
+              )}
+            </div>
+          </Card>
+
+          <Card title="Contact and integrator">
+            <div className="grid gap-4 md:grid-cols-2">
+              <div className="space-y-1">
+                <label htmlFor="spec-contact-model" className="block text-sm font-medium text-ink">
+                  Contact model
+                </label>
+                <select id="spec-contact-model" className={inputClasses} {...register("scenario.contact.model")}>
+                  <option value="linear">Linear spring, F = k·δ</option>
+                  <option value="hertz">Hertz, F = k·δ^1.5</option>
+                </select>
+              </div>
+              {numberField("scenario.contact.stiffness", "Contact stiffness k", stiffnessUnit(scenario.contact.model))}
+              <div className="space-y-1">
+                <label htmlFor="spec-damping-kind" className="block text-sm font-medium text-ink">
+                  Damping
+                </label>
+                <select
+                  id="spec-damping-kind"
+                  className={inputClasses}
+                  value={scenario.contact.damping?.kind ?? "none"}
+                  onChange={(event) => {
+                    const kind = event.target.value;
+                    setValue(
+                      "scenario.contact.damping",
+                      kind === "none" ? { kind: "none" } : kind === "coefficient" ? { kind: "coefficient", value: 1 } : { kind: "restitution", value: 0.8 },
+                      { shouldValidate: true },
+                    );
+                  }}
+                >
+                  <option value="none">None</option>
+                  <option value="coefficient">Dashpot coefficient</option>
+                  <option value="restitution">Target restitution</option>
+                </select>
+              </div>
+              {scenario.contact.damping?.kind === "coefficient"
+                ? numberField("scenario.contact.damping.value", "Damping coefficient c", dampingUnit(scenario.contact.model))
+                : scenario.contact.damping?.kind === "restitution"
+                  ? numberField("scenario.contact.damping.value", "Target restitution e", "")
+                  : null}
+              <div className="space-y-1">
+                <label htmlFor="spec-integrator" className="block text-sm font-medium text-ink">
+                  Integrator
+                </label>
+                <select id="spec-integrator" className={inputClasses} {...register("scenario.integrator")}>
+                  {CHOICE_PARAMETERS[0].choices.map((choice) => (
+                    <option key={choice} value={choice}>
+                      {INTEGRATOR_LABELS[choice] ?? choice}
+                    </option>
+                  ))}
+                </select>
+              </div>
+              {numberField("scenario.dtS", "Timestep dt", "s")}
+              {numberField("scenario.substeps", "Substeps per frame", "", { step: "1" })}
+              {numberField("scenario.durationS", "Duration", "s")}
+            </div>
+          </Card>
+
+          <Card title="Tolerances (what counts as stable)">
+            <div className="grid gap-4 md:grid-cols-3">
+              {numberField("scenario.tolerances.energyDriftRel", "Energy gain allowed", "fraction of initial energy")}
+              {numberField("scenario.tolerances.maxOverlapFraction", "Deepest overlap allowed", "fraction of the smaller radius")}
+              {numberField("scenario.tolerances.blowUpEnergyFactor", "Blow-up energy factor", "× initial energy")}
+            </div>
+          </Card>
+
+          <Card
+            title={`Axes (${axes.length} of ${SPEC_LIMITS.maxAxes})`}
+            actions={
+              <Button
+                variant="secondary"
+                disabled={axes.length >= SPEC_LIMITS.maxAxes}
+                onClick={() => {
+                  const used = new Set(axes.map((axis) => axis.parameter));
+                  const next = axisParameters.find((parameter) => !used.has(parameter.path));
+                  if (next) setAxes([...axes, defaultAxis(next, scenario)]);
+                }}
+              >
+                Add axis
+              </Button>
+            }
+          >
+            {axes.length === 0 ? <p className="text-sm text-ink-muted">No axes: the sweep is a single cell.</p> : null}
+            <div className="space-y-4">
+              {axes.map((axis, index) => (
+                <AxisEditor
+                  key={`${index}-${axis.parameter}`}
+                  index={index}
+                  axis={axis}
+                  parameters={axisParameters}
+                  scenario={scenario}
+                  error={(path) => fieldError(`axes.${index}${path ? `.${path}` : ""}`)}
+                  onChange={(next) => setAxes(axes.map((old, i) => (i === index ? next : old)))}
+                  onRemove={() => setAxes(axes.filter((_, i) => i !== index))}
+                />
+              ))}
+            </div>
+            <FieldError id="spec-axes" message={fieldError("axes")} />
+          </Card>
+
+          {allIssues.length > 0 ? (
+            <div className="rounded-md border border-danger/50 bg-danger-soft px-4 py-3 text-sm text-danger" data-testid="spec-issues">
+              <p className="font-semibold">The spec has {allIssues.length === 1 ? "a problem" : `${allIssues.length} problems`}:</p>
+              <ul className="mt-1 list-disc pl-5">
+                {allIssues.map((issue) => (
+                  <li key={`${issue.field}:${issue.message}`}>
+                    <span className="font-mono">{issue.field}</span>: {issue.message}
+                  </li>
+                ))}
+              </ul>
+            </div>
+          ) : null}
+          {serverError && !serverError.field ? <Alert>{serverError.message}</Alert> : null}
+          {serverError?.field ? <Alert>{serverError.message}</Alert> : null}
+
+          <div className="flex gap-3">
+            <Button type="submit" disabled={!local.ok || create.isPending}>
+              Review and run
+            </Button>
+          </div>
+        </form>
+
+        <aside className="space-y-4 lg:sticky lg:top-4 lg:self-start">
+          <QuotePanel quote={quote.data} pending={local.ok && (quote.isFetching || debouncedJson !== specJson)} error={local.ok ? (quote.error ? errorMessage(quote.error) : null) : "Fix the spec to get a quote."} />
+          {confirming && quote.data ? (
+            <section className="rounded-lg border-2 border-action bg-surface p-5" role="dialog" aria-labelledby="confirm-heading" data-testid="confirm-sweep">
+              <h2 id="confirm-heading" className="font-semibold">
+                Run this sweep?
+              </h2>
+              <p className="mt-1 text-sm text-ink-muted">
+                {quote.data.cellsToRun.toLocaleString("en")} cells to run, about {quote.data.estimatedMinutes.toFixed(2)} compute minutes (between {formatMinutes(quote.data.band.lowMs)} and{" "}
+                {formatMinutes(quote.data.band.highMs)}). Only the compute actually used is debited.
+              </p>
+              <div className="mt-3 flex gap-2">
+                <Button onClick={() => create.mutate()} disabled={create.isPending}>
+                  {create.isPending ? "Starting…" : "Run sweep"}
+                </Button>
+                <Button variant="ghost" onClick={() => setConfirming(false)}>
+                  Back to the spec
+                </Button>
+              </div>
+            </section>
+          ) : null}
+        </aside>
+      </div>
+    </StudioShell>
+  );
+}
+
+function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pending: boolean; error: string | null }) {
+  const rows: [string, string][] = quote
+    ? [
+        ["Cells", quote.cells.toLocaleString("en")],
+        ["Cached cells (not billed)", quote.cachedCells.toLocaleString("en")],
+        ["Cells to run", quote.cellsToRun.toLocaleString("en")],
+        ["Integrator steps", quote.steps.toLocaleString("en")],
+        ["Estimated compute", `${quote.estimatedMinutes.toFixed(2)} min`],
+        ["Likely range", `${formatMinutes(quote.band.lowMs)} – ${formatMinutes(quote.band.highMs)}`],
+        ["Balance now", formatMinutes(quote.balanceMs)],
+        ["Balance after (estimate)", formatMinutes(quote.balanceAfterMs)],
+        ["Limit: cells per sweep", quote.limits.maxCells.toLocaleString("en")],
+        ["Limit: steps per cell", quote.limits.maxStepsPerCell.toLocaleString("en")],
+        ["Limit: bodies per scene", quote.limits.maxBodies.toLocaleString("en")],
+      ]
+    : [];
+  return (
+    <Card title="Quote">
+      <div aria-live="polite" data-testid="quote-panel">
+        {error && !quote ? <p className="text-sm text-danger">{error}</p> : null}
+        {quote ? (
+          <dl className={cx("grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm", pending && "opacity-60")}>
+            {rows.map(([label, value]) => (
+              <div key={label} className="contents">
+                <dt className="text-ink-muted">{label}</dt>
+                <dd className="text-right font-mono" data-testid={`quote-${label.toLowerCase().replace(/[^a-z]+/g, "-")}`}>
+                  {value}
+                </dd>
+              </div>
+            ))}
+          </dl>
+        ) : !error ? (
+          <p className="text-sm text-ink-muted">Asking for a quote…</p>
+        ) : null}
+        {quote && error ? <p className="mt-2 text-sm text-danger">{error}</p> : null}
+        {quote?.warnings.map((warning) => (
+          <p key={warning} className="mt-2 text-sm text-ink">
+            {warning}
+          </p>
+        ))}
+        <p className="mt-3 text-xs text-ink-muted">Compute is metered in milliseconds of worker time and shown in minutes. Prices are before tax.</p>
+      </div>
+    </Card>
+  );
+}
+
+function AxisEditor({
+  index,
+  axis,
+  parameters,
+  scenario,
+  error,
+  onChange,
+  onRemove,
+}: {
+  index: number;
+  axis: AxisInput;
+  parameters: SweepableParameter[];
+  scenario: SweepSpecInput["scenario"];
+  error: (path: string) => string | undefined;
+  onChange: (axis: AxisInput) => void;
+  onRemove: () => void;
+}) {
+  const parameter = parameters.find((candidate) => candidate.path === axis.parameter);
+  const idBase = `axis-${index}`;
+  const isList = axis.values !== undefined;
+  const [listText, setListText] = useState(() => (axis.values ?? []).join(", "));
+  const unit = parameter?.kind === "number" ? (parameter.path === "contact.stiffness" ? stiffnessUnit(scenario.contact.model) : parameter.path === "contact.damping.coefficient" ? dampingUnit(scenario.contact.model) : parameter.unit) : "";
+
+  const rangeInput = (key: "from" | "to" | "count", label: string, fieldUnit: string) => {
+    const id = `${idBase}-${key}`;
+    const message = error(key);
+    return (
+      <div className="space-y-1">
+        <label htmlFor={id} className="block text-sm font-medium text-ink">
+          {label} <span className="font-mono text-xs text-ink-muted">[{unitLabel(fieldUnit)}]</span>
+        </label>
+        <input
+          id={id}
+          type="number"
+          step={key === "count" ? "1" : "any"}
+          className={inputClasses}
+          aria-invalid={message ? true : undefined}
+          aria-describedby={message ? `${id}-error` : undefined}
+          value={Number.isFinite(axis[key]) ? String(axis[key]) : ""}
+          onChange={(event) => onChange({ ...axis, [key]: event.target.value === "" ? Number.NaN : Number(event.target.value) })}
+        />
+        <FieldError id={id} message={message} />
+      </div>
+    );
+  };
+
+  return (
+    <fieldset className="rounded-md border border-line p-4" data-testid={`axis-${index}`}>
+      <legend className="px-1 text-sm font-semibold">Axis {index + 1}</legend>
+      <div className="grid gap-3 md:grid-cols-4">
+        <div className="space-y-1 md:col-span-2">
+          <label htmlFor={`${idBase}-parameter`} className="block text-sm font-medium text-ink">
+            Parameter
+          </label>
+          <select
+            id={`${idBase}-parameter`}
+            className={inputClasses}
+            value={axis.parameter}
+            onChange={(event) => {
+              const next = parameters.find((candidate) => candidate.path === event.target.value);
+              if (next) onChange(defaultAxis(next, scenario));
+            }}
+          >
+            {parameter ? null : <option value={axis.parameter}>{axis.parameter} (not for this scene)</option>}
+            {parameters.map((candidate) => (
+              <option key={candidate.path} value={candidate.path}>
+                {candidate.label}
+                {candidate.kind === "number" ? ` [${unitLabel(candidate.path === "contact.stiffness" ? stiffnessUnit(scenario.contact.model) : candidate.unit)}]` : " [choices]"}
+              </option>
+            ))}
+          </select>
+          <FieldError id={`${idBase}-parameter`} message={error("parameter")} />
+        </div>
+        {parameter?.kind === "number" ? (
+          <div className="space-y-1">
+            <label htmlFor={`${idBase}-form`} className="block text-sm font-medium text-ink">
+              Values
+            </label>
+            <select
+              id={`${idBase}-form`}
+              className={inputClasses}
+              value={isList ? "list" : (axis.spacing ?? "linear")}
+              onChange={(event) => {
+                const choice = event.target.value;
+                if (choice === "list") {
+                  const start = defaultAxis(parameter, scenario);
+                  const values = start.values ?? [start.from as number, start.to as number];
+                  setListText(values.join(", "));
+                  onChange({ parameter: axis.parameter, values });
+                } else if (isList) {
+                  const start = defaultAxis({ ...parameter, integer: false, suggestedSpacing: choice as "linear" | "log" }, scenario);
+                  onChange({ ...start, spacing: choice as "linear" | "log" });
+                } else onChange({ ...axis, spacing: choice as "linear" | "log" });
+              }}
+            >
+              <option value="linear">Linear range</option>
+              <option value="log">Log range</option>
+              <option value="list">List of values</option>
+            </select>
+          </div>
+        ) : null}
+        <div className="flex items-end justify-end">
+          <Button variant="ghost" onClick={onRemove} aria-label={`Remove axis ${index + 1}`}>
+            Remove
+          </Button>
+        </div>
+      </div>
+      {parameter?.help ? <p className="mt-2 text-xs text-ink-muted">{parameter.help}</p> : null}
+      <div className="mt-3 grid gap-3 md:grid-cols-3">
+        {parameter?.kind === "choice" ? (
+          <fieldset className="md:col-span-3">
+            <legend className="text-sm font-medium">Choices</legend>
+            <div className="mt-1 flex flex-wrap gap-4">
+              {parameter.choices.map((choice) => {
+                const checked = (axis.values ?? []).includes(choice);
+                return (
+                  <label key={choice} className="flex items-center gap-2 text-sm">
+                    <input
+                      type="checkbox"
+                      checked={checked}
+                      onChange={() => {
+                        const current = (axis.values ?? []) as string[];
+                        const next = checked ? current.filter((value) => value !== choice) : parameter.choices.filter((candidate) => candidate === choice || current.includes(candidate));
+                        onChange({ parameter: axis.parameter, values: next });
+                      }}
+                    />
+                    {INTEGRATOR_LABELS[choice] ?? choice}
+                  </label>
+                );
+              })}
+            </div>
+          </fieldset>
+        ) : isList ? (
+          <div className="space-y-1 md:col-span-3">
+            <label htmlFor={`${idBase}-values`} className="block text-sm font-medium text-ink">
+              Values, comma-separated <span className="font-mono text-xs text-ink-muted">[{unitLabel(unit)}]</span>
+            </label>
+            <input
+              id={`${idBase}-values`}
+              className={inputClasses}
+              value={listText}
+              aria-invalid={error("values") ? true : undefined}
+              onChange={(event) => {
+                setListText(event.target.value);
+                const parsed = event.target.value
+                  .split(",")
+                  .map((part) => part.trim())
+                  .filter((part) => part !== "")
+                  .map(Number);
+                onChange({ parameter: axis.parameter, values: parsed });
+              }}
+            />
+            <FieldError id={`${idBase}-values`} message={error("values")} />
+          </div>
+        ) : parameter ? (
+          <>
+            {rangeInput("from", "From", unit)}
+            {rangeInput("to", "To", unit)}
+            {rangeInput("count", "Count", "values")}
+          </>
+        ) : null}
+      </div>
+      <FieldError id={idBase} message={error("")} />
+    </fieldset>
+  );
+}

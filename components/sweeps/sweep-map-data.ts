@@ -1,0 +1,156 @@
+/**
+ * Adapts a sweep's axes and cells to the map components: which axes are numeric, the map cell ↔
+ * sweep cell index mapping for a chosen x, y and slice of the other axes, and the overlays that
+ * apply to the chosen axes. Pure functions (unit-testable, no React).
+ */
+import type { MapAxis, OverlayInput } from "@/components/maps";
+import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
+import type { Metrics, Verdict } from "@/lib/physics/types";
+import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import type { CellRow, SweepAxisView } from "./sweep-api";
+
+export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: string; normalisation: "linear" | "log" | "symmetric" }[] = [
+  { key: "maxEnergyErrorRel", label: "largest energy error (relative)", unit: "", normalisation: "symmetric" },
+  { key: "energyErrorRel", label: "final energy error (relative)", unit: "", normalisation: "symmetric" },
+  { key: "maxOverlapFraction", label: "deepest overlap / smaller radius", unit: "", normalisation: "linear" },
+  { key: "effectiveRestitution", label: "measured restitution", unit: "", normalisation: "linear" },
+  { key: "contactDurationS", label: "first contact duration", unit: "s", normalisation: "log" },
+  { key: "contactSteps", label: "steps in contact", unit: "steps", normalisation: "linear" },
+  { key: "momentumDriftRelX", label: "momentum drift x (relative)", unit: "", normalisation: "symmetric" },
+  { key: "momentumDriftRelY", label: "momentum drift y (relative)", unit: "", normalisation: "symmetric" },
+];
+
+export function isNumericAxis(axis: SweepAxisView): boolean {
+  return axis.values.length > 0 && axis.values.every((value) => typeof value === "number");
+}
+
+/** Positions of an axis's values in increasing order (a range may run downwards; the map needs increasing values). */
+export function increasingOrder(values: readonly number[]): number[] {
+  return values.map((_, i) => i).sort((a, b) => values[a] - values[b]);
+}
+
+export function mapAxisFor(axis: SweepAxisView): MapAxis {
+  const numbers = axis.values as number[];
+  const sorted = increasingOrder(numbers).map((i) => numbers[i]);
+  const spacing = axis.spacing === "log" || (axis.spacing !== "linear" && sorted.length > 2 && sorted[0] > 0 && sorted[sorted.length - 1] / sorted[0] >= 10) ? "log" : "linear";
+  return { label: axis.label, unit: axis.unit, values: sorted, spacing };
+}
+
+/** A one-row axis for a sweep with a single numeric axis. */
+export const SINGLE_ROW_AXIS: MapAxis = { label: "(single row)", unit: "", values: [0], spacing: "linear" };
+
+export interface MapSelection {
+  x: number;
+  /** -1: a single row (fewer than two numeric axes). */
+  y: number;
+  /** The position chosen on every other axis (ignored for x and y). */
+  slice: readonly number[];
+}
+
+/** Sweep cell index of each map cell (row-major, row 0 = smallest y), for one slice of the other axes. */
+export function mapCellIndices(axes: readonly SweepAxisView[], selection: MapSelection): Int32Array {
+  const lengths = axes.map((axis) => axis.values.length);
+  const strides = lengths.map((_, i) => lengths.slice(i + 1).reduce((product, n) => product * n, 1));
+  const xOrder = increasingOrder(axes[selection.x].values as number[]);
+  const yOrder = selection.y >= 0 ? increasingOrder(axes[selection.y].values as number[]) : [0];
+  let base = 0;
+  axes.forEach((_, i) => {
+    if (i !== selection.x && i !== selection.y) base += (selection.slice[i] ?? 0) * strides[i];
+  });
+  const indices = new Int32Array(xOrder.length * yOrder.length);
+  yOrder.forEach((yPosition, row) => {
+    xOrder.forEach((xPosition, column) => {
+      indices[row * xOrder.length + column] = base + xPosition * strides[selection.x] + (selection.y >= 0 ? yPosition * strides[selection.y] : 0);
+    });
+  });
+  return indices;
+}
+
+export interface LayerData {
+  verdicts: (Verdict | null)[];
+  reasons: (string | null)[];
+  metric: Float64Array;
+}
+
+/** The map's per-cell data: NaN / null for cells not done yet; null metrics (no value) as null. */
+export function layerData(indices: Int32Array, cellsByIndex: ReadonlyMap<number, CellRow>, metric: keyof Metrics | null): { verdicts: (Verdict | null)[]; reasons: (string | null)[]; values: (number | null)[] } {
+  const verdicts: (Verdict | null)[] = [];
+  const reasons: (string | null)[] = [];
+  const values: (number | null)[] = [];
+  for (const index of indices) {
+    const cell = cellsByIndex.get(index);
+    verdicts.push(cell ? cell.verdict : null);
+    reasons.push(cell ? cell.reason : null);
+    if (!cell || metric === null) values.push(Number.NaN);
+    else {
+      const value = cell.metrics[metric];
+      values.push(typeof value === "number" && Number.isFinite(value) ? value : typeof value === "boolean" ? Number(value) : null);
+    }
+  }
+  return { verdicts, reasons, values };
+}
+
+function contactMass(spec: SweepSpecInput): number | null {
+  const scene = spec.scenario.scene;
+  switch (scene.kind) {
+    case "pair":
+      return effectiveMassKg(scene.massAKg, scene.massBKg);
+    case "wall":
+      return effectiveMassKg(scene.massKg);
+    case "row":
+      return effectiveMassKg(scene.strikerMassKg, scene.massKg);
+    case "box":
+      return effectiveMassKg(scene.massKg, scene.massKg);
+  }
+}
+
+/**
+ * Travel per integrator step beyond which a contact can be skipped: the radius along the incoming
+ * direction for a wall, the approaching half-chord R·√(1 − f²) for a pair (the thresholds of
+ * wallTunnelingThresholdSpeedMPerS and pairTunnelingThresholdSpeedMPerS in lib/physics/analytic.ts).
+ */
+function tunnelThicknessM(spec: SweepSpecInput): number | null {
+  const scene = spec.scenario.scene;
+  if (scene.kind === "wall") return scene.radiusM / Math.cos((scene.angleDeg * Math.PI) / 180);
+  if (scene.kind === "pair") return (scene.radiusAM + scene.radiusBM) * Math.sqrt(1 - scene.offsetFraction * scene.offsetFraction);
+  return null;
+}
+
+/**
+ * Overlays for the chosen axes: ω·dt = 2 and steps-per-contact contours for stiffness × dt (linear
+ * contact), the tunnelling line for speed × dt. The frame step dt is `substeps` integrator steps, so
+ * each bound on the integrator step is scaled by substeps to read on the frame-step axis.
+ */
+export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string): OverlayInput[] {
+  const substeps = spec.scenario.substeps ?? 1;
+  const overlays: OverlayInput[] = [];
+  const mass = contactMass(spec);
+  const paths = new Set([xPath, yPath]);
+  if (mass !== null && spec.scenario.contact.model === "linear" && paths.has("contact.stiffness") && paths.has("dtS")) {
+    const stiffnessX = xPath === "contact.stiffness";
+    overlays.push({
+      label: "ω·dt = 2 (stability bound)",
+      stroke: "solid",
+      y: stiffnessX ? (k) => substeps * stabilityLimitDtS(k, mass) : (dt) => stabilityLimitStiffnessNPerM(dt / substeps, mass),
+    });
+    for (const steps of [5, 20]) {
+      overlays.push({
+        label: `${steps} steps per contact`,
+        stroke: "dotted",
+        y: stiffnessX ? (k) => substeps * dtForStepsPerContactS(k, mass, steps) : (dt) => mass * (Math.PI / (steps * (dt / substeps))) ** 2,
+      });
+    }
+  }
+  const thickness = tunnelThicknessM(spec);
+  const speedPaths = ["scene.speedMPerS", "scene.speedAMPerS"];
+  const speedPath = speedPaths.find((path) => paths.has(path));
+  if (thickness !== null && speedPath && paths.has("dtS")) {
+    const speedX = xPath === speedPath;
+    overlays.push({
+      label: `v·dt = ${Number(thickness.toPrecision(3))} m per step (tunnelling)`,
+      stroke: "dashed",
+      y: speedX ? (v) => substeps * tunnellingDtS(v, thickness) : (dt) => thickness / (dt / substeps),
+    });
+  }
+  return overlays;
+}

@@ -1,0 +1,537 @@
+"use client";
+/**
+ * The stability-map page of one sweep: live progress, the map filling in as chunks land, what to
+ * show and over which axes, the safe envelope with its exports, and the result exports.
+ */
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useRouter } from "next/navigation";
+import { useEffect, useMemo, useRef, useState } from "react";
+import { CompareMaps, MapGrid, StabilityMap, type MapLayer, type OverlayInput } from "@/components/maps";
+import { Alert, Button, Card, LoadingRows } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
+import { formatSI } from "@/lib/charts/format";
+import type { Metrics } from "@/lib/physics/types";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
+import { formatDateTime } from "@/lib/ui/format";
+import type { StudioRole } from "@/lib/ui/types";
+import { formatMinutes, isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
+import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor } from "./sweep-map-data";
+import { StatusBadge, progressPercent } from "./sweeps-list";
+
+type ViewMode = "single" | "compare" | "grid";
+
+function formatDuration(ms: number): string {
+  if (!Number.isFinite(ms) || ms < 0) return "—";
+  const seconds = Math.round(ms / 1000);
+  if (seconds < 60) return `${seconds} s`;
+  const minutes = Math.floor(seconds / 60);
+  return `${minutes} min ${String(seconds % 60).padStart(2, "0")} s`;
+}
+
+function useNow(active: boolean): number {
+  const [now, setNow] = useState(() => Date.now());
+  useEffect(() => {
+    if (!active) return;
+    const timer = setInterval(() => setNow(Date.now()), 1000);
+    return () => clearInterval(timer);
+  }, [active]);
+  return now;
+}
+
+function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
+  const active = isActive(sweep.status);
+  const now = useNow(active);
+  const percent = progressPercent(sweep);
+  const startedMs = sweep.startedAt ? Date.parse(sweep.startedAt) : null;
+  const endMs = sweep.finishedAt ? Date.parse(sweep.finishedAt) : now;
+  const elapsedMs = startedMs !== null ? Math.max(0, endMs - startedMs) : 0;
+  // The rate so far predicts the rest; cached cells came for free, so they do not count towards the rate.
+  const ranCells = Math.max(0, sweep.cellsDone - sweep.cachedCells);
+  const leftMs = active && ranCells > 0 ? (elapsedMs / ranCells) * (sweep.cells - sweep.cellsDone) : Number.NaN;
+  return (
+    <Card
+      title={
+        <span className="flex flex-wrap items-center gap-3">
+          <span data-testid="sweep-name">{sweep.name || `Sweep ${sweep.id.slice(0, 8)}`}</span> <StatusBadge status={sweep.status} />
+        </span>
+      }
+      actions={
+        canRun && active ? (
+          <Button variant="danger" onClick={onCancel} disabled={cancelling}>
+            {cancelling ? "Cancelling…" : "Cancel sweep"}
+          </Button>
+        ) : null
+      }
+    >
+      {sweep.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="sweep-reason">{sweep.reason}</p> : null}
+      <div
+        className="h-3 w-full overflow-hidden rounded bg-surface-muted"
+        role="progressbar"
+        aria-label="Cells done"
+        aria-valuemin={0}
+        aria-valuemax={100}
+        aria-valuenow={percent}
+        aria-valuetext={`${percent}% (${sweep.cellsDone} of ${sweep.cells} cells)`}
+        data-testid="sweep-progress"
+      >
+        <div className="h-full bg-action transition-[width]" style={{ width: `${percent}%` }} />
+      </div>
+      <dl className="mt-3 grid grid-cols-2 gap-x-6 gap-y-1 text-sm md:grid-cols-4">
+        <div>
+          <dt className="text-ink-muted">Cells done</dt>
+          <dd className="font-mono" data-testid="sweep-cells-done">
+            {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} ({percent}%)
+          </dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Elapsed</dt>
+          <dd className="font-mono">{startedMs !== null ? formatDuration(elapsedMs) : "not started"}</dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Estimated time left</dt>
+          <dd className="font-mono">{active ? formatDuration(leftMs) : "—"}</dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Compute used (estimate)</dt>
+          <dd className="font-mono" data-testid="sweep-minutes">
+            {formatMinutes(sweep.computeMs)} ({formatMinutes(sweep.estimatedComputeMs)})
+          </dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Created</dt>
+          <dd className="font-mono">{formatDateTime(sweep.createdAt)}</dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Chunks done</dt>
+          <dd className="font-mono">
+            {sweep.chunksDone} / {sweep.chunks}
+          </dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Cached cells</dt>
+          <dd className="font-mono">{sweep.cachedCells.toLocaleString("en")}</dd>
+        </div>
+      </dl>
+      <ul className="mt-4 flex flex-wrap gap-2 text-sm" aria-label="Verdict counts" data-testid="verdict-counts">
+        {VERDICTS_BY_SEVERITY.map((verdict) => (
+          <li key={verdict} className="rounded-md border border-line px-2 py-1" data-testid={`verdict-count-${verdict}`}>
+            <span className="mr-1 inline-block h-2.5 w-2.5 rounded-sm align-middle" style={{ background: VERDICT_STYLES[verdict].colour }} aria-hidden="true" />
+            {VERDICT_STYLES[verdict].label}: <span className="font-mono">{(sweep.verdictCounts[verdict] ?? 0).toLocaleString("en")}</span>
+          </li>
+        ))}
+      </ul>
+    </Card>
+  );
+}
+
+const selectClasses = "block w-full rounded-md border border-line bg-surface px-2 py-1.5 text-sm";
+
+export function SweepView({ studioId, studioName, role, sweepId }: { studioId: string; studioName: string; role: StudioRole; sweepId: string }) {
+  const router = useRouter();
+  const queryClient = useQueryClient();
+  const sweepQuery = useSweep(studioId, sweepId);
+  const sweep = sweepQuery.data;
+  const active = isActive(sweep?.status);
+  const cellsQuery = useSweepCells(studioId, sweepId, active);
+  const canRun = role === "owner" || role === "engineer";
+
+  // One last read of the cells once the sweep has finished, so the map shows every cell.
+  const wasActive = useRef(false);
+  useEffect(() => {
+    if (active) wasActive.current = true;
+    else if (wasActive.current && sweep) {
+      wasActive.current = false;
+      void queryClient.invalidateQueries({ queryKey: sweepKeys.cells(studioId, sweepId) });
+    }
+  }, [active, sweep, queryClient, studioId, sweepId]);
+
+  const cancel = useMutation({
+    mutationFn: () => apiFetch<{ sweep: Sweep }>(`${sweepPath(studioId, sweepId)}/cancel`, { method: "POST" }),
+    onSuccess: (data) => queryClient.setQueryData(sweepKeys.sweep(studioId, sweepId), data.sweep),
+  });
+
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      {sweepQuery.isPending ? (
+        <LoadingRows label="the sweep" />
+      ) : sweepQuery.isError ? (
+        <Alert>{errorMessage(sweepQuery.error)}</Alert>
+      ) : (
+        <div className="space-y-6">
+          <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => cancel.mutate()} cancelling={cancel.isPending} />
+          {cancel.isError ? <Alert>{errorMessage(cancel.error)}</Alert> : null}
+          <SweepMaps
+            sweep={sweep!}
+            cells={cellsQuery.data ?? []}
+            onOpenCell={(index) => router.push(`/studios/${studioId}/sweeps/${sweepId}/cells/${index}`)}
+          />
+          {cellsQuery.isError ? <Alert>{errorMessage(cellsQuery.error)}</Alert> : null}
+          <EnvelopePanel studioId={studioId} sweep={sweep!} cells={cellsQuery.data ?? []} />
+          <Card title="Exports">
+            <div className="flex flex-wrap gap-3 text-sm">
+              <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${sweepPath(studioId, sweepId)}/cells?format=csv`} download={`sweep-${sweepId}-cells.csv`}>
+                All cells (CSV)
+              </a>
+              <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${sweepPath(studioId, sweepId)}/cells`} download={`sweep-${sweepId}-cells.json`}>
+                All cells (JSON)
+              </a>
+              <span className="self-center text-ink-muted">The map itself: “Save PNG” above the map.</span>
+            </div>
+          </Card>
+        </div>
+      )}
+    </StudioShell>
+  );
+}
+
+function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly CellRow[]; onOpenCell: (index: number) => void }) {
+  const numericAxes = useMemo(() => sweep.axes.map((axis, i) => (isNumericAxis(axis) ? i : -1)).filter((i) => i >= 0), [sweep.axes]);
+  const [xAxis, setXAxis] = useState(numericAxes[0] ?? -1);
+  const [yAxis, setYAxis] = useState(numericAxes[1] ?? -1);
+  const [slice, setSlice] = useState<number[]>(() => sweep.axes.map(() => 0));
+  const [show, setShow] = useState<"verdict" | keyof Metrics>("verdict");
+  const otherAxes = sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis);
+  const compareAxis = otherAxes.length === 1 && !isNumericAxis(sweep.axes[otherAxes[0]]) && sweep.axes[otherAxes[0]].values.length >= 2 ? otherAxes[0] : -1;
+  const gridAxis = otherAxes.length === 1 && isNumericAxis(sweep.axes[otherAxes[0]]) ? otherAxes[0] : -1;
+  const [mode, setMode] = useState<ViewMode>(compareAxis >= 0 ? "compare" : "single");
+  const effectiveMode: ViewMode = mode === "compare" && compareAxis < 0 ? "single" : mode === "grid" && gridAxis < 0 ? "single" : mode;
+
+  const cellsByIndex = useMemo(() => new Map(cells.map((cell) => [cell.index, cell])), [cells]);
+
+  if (xAxis < 0) {
+    return (
+      <Card title="Stability map">
+        <p className="text-sm text-ink-muted">This sweep has no numeric axis to draw a map over; see its cells below and in the exports.</p>
+        <CellList cells={cells} onOpenCell={onOpenCell} />
+      </Card>
+    );
+  }
+
+  const x = mapAxisFor(sweep.axes[xAxis]);
+  const y = yAxis >= 0 ? mapAxisFor(sweep.axes[yAxis]) : SINGLE_ROW_AXIS;
+  const metric = show === "verdict" ? null : METRIC_LAYERS.find((layer) => layer.key === show)!;
+  const overlays: OverlayInput[] = yAxis >= 0 ? overlaysFor(sweep.spec, sweep.axes[xAxis].path, sweep.axes[yAxis].path) : [];
+
+  const layerAt = (sliceChoice: readonly number[]) => {
+    const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
+    const data = layerData(indices, cellsByIndex, metric?.key ?? null);
+    const layer: MapLayer = metric
+      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: { normalisation: metric.normalisation } }
+      : { kind: "verdict", verdicts: data.verdicts };
+    return { indices, layer, ...data };
+  };
+  const withSlice = (axisIndex: number, position: number) => slice.map((value, i) => (i === axisIndex ? position : value));
+
+  const single = layerAt(slice);
+  const axisValueLabel = (axisIndex: number, position: number) => {
+    const axis = sweep.axes[axisIndex];
+    const value = axis.values[position];
+    return typeof value === "number" ? formatSI(value, axis.unit) : String(value);
+  };
+
+  return (
+    <Card title="Stability map">
+      <div className="mb-4 grid gap-3 md:grid-cols-4">
+        <div className="space-y-1">
+          <label htmlFor="map-show" className="block text-sm font-medium">
+            Show
+          </label>
+          <select id="map-show" className={selectClasses} value={show} onChange={(event) => setShow(event.target.value as typeof show)}>
+            <option value="verdict">Verdict</option>
+            {METRIC_LAYERS.map((layer) => (
+              <option key={layer.key} value={layer.key}>
+                {layer.label}
+                {layer.unit ? ` [${layer.unit}]` : " [no unit]"}
+              </option>
+            ))}
+          </select>
+        </div>
+        <div className="space-y-1">
+          <label htmlFor="map-x" className="block text-sm font-medium">
+            Horizontal axis
+          </label>
+          <select
+            id="map-x"
+            className={selectClasses}
+            value={xAxis}
+            onChange={(event) => {
+              const next = Number(event.target.value);
+              if (next === yAxis) setYAxis(xAxis);
+              setXAxis(next);
+            }}
+          >
+            {numericAxes.map((i) => (
+              <option key={i} value={i}>
+                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+              </option>
+            ))}
+          </select>
+        </div>
+        {numericAxes.length >= 2 ? (
+          <div className="space-y-1">
+            <label htmlFor="map-y" className="block text-sm font-medium">
+              Vertical axis
+            </label>
+            <select
+              id="map-y"
+              className={selectClasses}
+              value={yAxis}
+              onChange={(event) => {
+                const next = Number(event.target.value);
+                if (next === xAxis) setXAxis(yAxis);
+                setYAxis(next);
+              }}
+            >
+              {numericAxes.map((i) => (
+                <option key={i} value={i}>
+                  {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+                </option>
+              ))}
+            </select>
+          </div>
+        ) : null}
+        {compareAxis >= 0 || gridAxis >= 0 ? (
+          <div className="space-y-1">
+            <label htmlFor="map-mode" className="block text-sm font-medium">
+              Layout
+            </label>
+            <select id="map-mode" className={selectClasses} value={effectiveMode} onChange={(event) => setMode(event.target.value as ViewMode)}>
+              <option value="single">One map (pick {sweep.axes[otherAxes[0]].label})</option>
+              {compareAxis >= 0 ? <option value="compare">Compare two {sweep.axes[compareAxis].label}s</option> : null}
+              {gridAxis >= 0 ? <option value="grid">Small multiples over {sweep.axes[gridAxis].label}</option> : null}
+            </select>
+          </div>
+        ) : null}
+        {otherAxes
+          .filter((i) => !(effectiveMode === "grid" && i === gridAxis))
+          .map((i) => (
+            <div className="space-y-1" key={i}>
+              <label htmlFor={`map-slice-${i}`} className="block text-sm font-medium">
+                {effectiveMode === "compare" && i === compareAxis ? `${sweep.axes[i].label}: A` : sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+              </label>
+              <select id={`map-slice-${i}`} className={selectClasses} value={slice[i]} onChange={(event) => setSlice(withSlice(i, Number(event.target.value)))}>
+                {sweep.axes[i].values.map((_, position) => (
+                  <option key={position} value={position}>
+                    {axisValueLabel(i, position)}
+                  </option>
+                ))}
+              </select>
+            </div>
+          ))}
+      </div>
+
+      {effectiveMode === "compare" ? (
+        (() => {
+          const aPosition = slice[compareAxis];
+          const bPosition = aPosition === 0 ? 1 : 0;
+          const a = layerAt(withSlice(compareAxis, aPosition));
+          const b = layerAt(withSlice(compareAxis, bPosition));
+          return (
+            <CompareMaps
+              x={x}
+              y={y}
+              a={{ label: axisValueLabel(compareAxis, aPosition), layer: a.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: a.verdicts, reasons: a.reasons }}
+              b={{ label: axisValueLabel(compareAxis, bPosition), layer: b.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: b.verdicts, reasons: b.reasons }}
+              overlays={overlays}
+              onCellClick={(mapIndex) => onOpenCell(a.indices[mapIndex])}
+            />
+          );
+        })()
+      ) : effectiveMode === "grid" ? (
+        (() => {
+          const positions = sweep.axes[gridAxis].values.map((_, position) => position);
+          const layers = positions.map((position) => layerAt(withSlice(gridAxis, position)));
+          const third = mapAxisFor(sweep.axes[gridAxis]);
+          const order = (sweep.axes[gridAxis].values as number[]).map((_, i) => i).sort((p, q) => (sweep.axes[gridAxis].values[p] as number) - (sweep.axes[gridAxis].values[q] as number));
+          return (
+            <MapGrid
+              x={x}
+              y={y}
+              third={{ label: third.label, unit: third.unit, values: third.values as number[] }}
+              layers={order.map((position) => layers[position].layer)}
+              overlays={overlays}
+              onCellClick={(thirdIndex, mapIndex) => onOpenCell(layers[order[thirdIndex]].indices[mapIndex])}
+            />
+          );
+        })()
+      ) : (
+        <StabilityMap
+          x={x}
+          y={y}
+          layer={single.layer}
+          verdicts={single.verdicts}
+          reasons={single.reasons}
+          overlays={overlays}
+          showLegend
+          exportFileName={`sweep-${sweep.id}-map`}
+          onCellClick={(mapIndex) => onOpenCell(single.indices[mapIndex])}
+        />
+      )}
+      <p className="mt-2 text-xs text-ink-muted">Hatched cells are not computed yet. Click a cell (or focus the map and press Enter) to open its time series and replay.</p>
+    </Card>
+  );
+}
+
+function CellList({ cells, onOpenCell }: { cells: readonly CellRow[]; onOpenCell: (index: number) => void }) {
+  return (
+    <ul className="mt-3 divide-y divide-line text-sm">
+      {cells.map((cell) => (
+        <li key={cell.index} className="flex justify-between py-1.5">
+          <button type="button" className="text-action hover:underline" onClick={() => onOpenCell(cell.index)}>
+            Cell {cell.index}: {cell.axisValues.join(", ")}
+          </button>
+          <span>{VERDICT_STYLES[cell.verdict].label}</span>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sweep; cells: readonly CellRow[] }) {
+  const numericAxes = sweep.axes.map((axis, i) => (isNumericAxis(axis) ? i : -1)).filter((i) => i >= 0);
+  const [xAxis, setXAxis] = useState(numericAxes[0] ?? -1);
+  const [yAxis, setYAxis] = useState(numericAxes[1] ?? -1);
+  const [marginPercent, setMarginPercent] = useState(10);
+  const [bound, setBound] = useState<"max" | "min">("max");
+  const marginValid = Number.isFinite(marginPercent) && marginPercent >= 0 && marginPercent <= 90;
+  const query = new URLSearchParams({ x: String(xAxis), y: String(yAxis), margin: String(marginPercent / 100), bound });
+  const base = `${sweepPath(studioId, sweep.id)}/envelope`;
+  const ready = numericAxes.length >= 2 && xAxis !== yAxis && marginValid;
+  const envelope = useQuery({
+    queryKey: ["studio", studioId, "sweep", sweep.id, "envelope", query.toString(), sweep.cellsDone],
+    queryFn: async () => (await apiFetch<{ envelope: Envelope }>(`${base}?${query}&format=json`)).envelope,
+    enabled: ready,
+    retry: false,
+  });
+  if (numericAxes.length < 2) return null;
+  const xAxisView = sweep.axes[xAxis];
+  const yAxisView = sweep.axes[yAxis];
+  // The verdicts under the envelope: the first value of any other axis.
+  const envelopeVerdicts = ready
+    ? layerData(mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sweep.axes.map(() => 0) }), new Map(cells.map((cell) => [cell.index, cell])), null).verdicts
+    : [];
+
+  return (
+    <Card title="Safe envelope">
+      <p className="mb-3 text-sm text-ink-muted">
+        For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable, reduced by the
+        margin. Export it for your game&apos;s config.
+      </p>
+      <div className="grid gap-3 md:grid-cols-4">
+        <div className="space-y-1">
+          <label htmlFor="envelope-x" className="block text-sm font-medium">
+            For each
+          </label>
+          <select id="envelope-x" className={selectClasses} value={xAxis} onChange={(event) => setXAxis(Number(event.target.value))}>
+            {numericAxes.map((i) => (
+              <option key={i} value={i}>
+                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+              </option>
+            ))}
+          </select>
+        </div>
+        <div className="space-y-1">
+          <label htmlFor="envelope-y" className="block text-sm font-medium">
+            Limit on
+          </label>
+          <select id="envelope-y" className={selectClasses} value={yAxis} onChange={(event) => setYAxis(Number(event.target.value))}>
+            {numericAxes.map((i) => (
+              <option key={i} value={i}>
+                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+              </option>
+            ))}
+          </select>
+        </div>
+        <div className="space-y-1">
+          <label htmlFor="envelope-margin" className="block text-sm font-medium">
+            Margin <span className="font-mono text-xs text-ink-muted">[%, 0–90]</span>
+          </label>
+          <input
+            id="envelope-margin"
+            type="number"
+            min={0}
+            max={90}
+            step={1}
+            className={selectClasses}
+            value={Number.isFinite(marginPercent) ? marginPercent : ""}
+            aria-invalid={marginValid ? undefined : true}
+            aria-describedby={marginValid ? undefined : "envelope-margin-error"}
+            onChange={(event) => setMarginPercent(event.target.value === "" ? Number.NaN : Number(event.target.value))}
+          />
+          {marginValid ? null : (
+            <p id="envelope-margin-error" className="text-sm font-medium text-danger" role="alert">
+              Margin must be between 0 and 90 %.
+            </p>
+          )}
+        </div>
+        <div className="space-y-1">
+          <label htmlFor="envelope-bound" className="block text-sm font-medium">
+            Bound
+          </label>
+          <select id="envelope-bound" className={selectClasses} value={bound} onChange={(event) => setBound(event.target.value as "max" | "min")}>
+            <option value="max">Largest stable value</option>
+            <option value="min">Smallest stable value</option>
+          </select>
+        </div>
+      </div>
+      {xAxis === yAxis ? <p className="mt-3 text-sm text-danger">Pick two different axes.</p> : null}
+      {envelope.isError ? (
+        <div className="mt-3">
+          <Alert>{errorMessage(envelope.error)}</Alert>
+        </div>
+      ) : null}
+      {envelope.data && xAxisView && yAxisView ? (
+        <div className="mt-4 grid gap-4 lg:grid-cols-[minmax(0,1fr)_16rem]">
+          <StabilityMap
+            x={mapAxisFor(xAxisView)}
+            y={mapAxisFor(yAxisView)}
+            layer={{ kind: "verdict", verdicts: envelopeVerdicts }}
+            verdicts={envelopeVerdicts}
+            height={260}
+            compact
+            overlays={[
+              {
+                label: `safe ${bound === "max" ? "upper" : "lower"} limit (${marginPercent} % margin)`,
+                stroke: "solid",
+                points: envelope.data.rows.filter((row) => row.yLimit !== null).map((row) => ({ x: row.x, y: row.yLimit as number })),
+              },
+            ]}
+          />
+          <div>
+            <table className="w-full text-sm" data-testid="envelope-table">
+              <thead>
+                <tr className="border-b border-line text-left text-xs uppercase text-ink-muted">
+                  <th scope="col" className="py-1">
+                    {xAxisView.label} [{xAxisView.unit || "no unit"}]
+                  </th>
+                  <th scope="col" className="py-1">
+                    limit [{yAxisView.unit || "no unit"}]
+                  </th>
+                </tr>
+              </thead>
+              <tbody className="font-mono text-xs">
+                {envelope.data.rows.map((row) => (
+                  <tr key={row.x}>
+                    <td className="py-0.5">{formatSI(row.x, xAxisView.unit)}</td>
+                    <td className="py-0.5">{row.yLimit === null ? "none stable" : formatSI(row.yLimit, yAxisView.unit)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            <div className="mt-3 flex gap-2 text-sm">
+              <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${base}?${query}&format=json`} download={`sweep-${sweep.id}-envelope.json`}>
+                Envelope (JSON)
+              </a>
+              <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${base}?${query}&format=csv`} download={`sweep-${sweep.id}-envelope.csv`}>
+                Envelope (CSV)
+              </a>
+            </div>
+          </div>
+        </div>
+      ) : envelope.isFetching ? (
+        <LoadingRows label="the envelope" />
+      ) : null}
+    </Card>
+  );
+}

@@ -1,0 +1,145 @@
+"use client";
+/** The studio's sweeps, newest first: status with its reason, progress, minutes used, created; filter by status; pages. */
+import Link from "next/link";
+import { useQuery } from "@tanstack/react-query";
+import { useState } from "react";
+import { Alert, ButtonLink, Card, EmptyState, LoadingRows, cx } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
+import { formatDateTime } from "@/lib/ui/format";
+import type { StudioRole } from "@/lib/ui/types";
+import { SWEEP_STATUSES, formatMinutes, isActive, sweepKeys, sweepsPath, type Sweep, type SweepStatus } from "./sweep-api";
+
+const PAGE_SIZE = 20;
+const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
+const td = "px-3 py-2.5 align-middle";
+
+export function StatusBadge({ status }: { status: SweepStatus }) {
+  const tones: Record<SweepStatus, string> = {
+    queued: "border-line text-ink-muted",
+    running: "border-action/60 text-action",
+    paused: "border-kick/60 text-kick",
+    done: "border-ok/60 text-ok",
+    failed: "border-danger/60 text-danger",
+    cancelled: "border-ink/40 text-ink-muted",
+  };
+  return <span className={cx("inline-flex items-center rounded-full border px-2 py-0.5 font-mono text-xs", tones[status])} data-testid="sweep-status">{status}</span>;
+}
+
+export function progressPercent(sweep: Pick<Sweep, "cells" | "cellsDone">): number {
+  if (sweep.cells <= 0) return 0;
+  return Math.min(100, Math.floor((sweep.cellsDone / sweep.cells) * 100));
+}
+
+export function SweepsList({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+  const [status, setStatus] = useState<"" | SweepStatus>("");
+  const [page, setPage] = useState(1);
+  const list = useQuery({
+    queryKey: sweepKeys.list(studioId, status, page),
+    queryFn: () => {
+      const query = new URLSearchParams({ page: String(page), pageSize: String(PAGE_SIZE) });
+      if (status) query.set("status", status);
+      return apiFetch<{ sweeps: Sweep[]; page: number; pageSize: number; total: number }>(`${sweepsPath(studioId)}?${query}`);
+    },
+    // Keep progress current while anything on the page still runs.
+    refetchInterval: (query) => (query.state.data?.sweeps.some((sweep) => isActive(sweep.status)) ? 2000 : false),
+  });
+  const canRun = role === "owner" || role === "engineer";
+  const pages = list.data ? Math.max(1, Math.ceil(list.data.total / list.data.pageSize)) : 1;
+
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      <Card
+        title="Sweeps"
+        actions={
+          <div className="flex flex-wrap items-end gap-3">
+            <div className="space-y-1">
+              <label htmlFor="sweep-status-filter" className="block text-xs font-medium text-ink-muted">
+                Status
+              </label>
+              <select
+                id="sweep-status-filter"
+                className="rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
+                value={status}
+                onChange={(event) => {
+                  setStatus(event.target.value as "" | SweepStatus);
+                  setPage(1);
+                }}
+              >
+                <option value="">Any</option>
+                {SWEEP_STATUSES.map((option) => (
+                  <option key={option} value={option}>
+                    {option}
+                  </option>
+                ))}
+              </select>
+            </div>
+            {canRun ? <ButtonLink href={`/studios/${studioId}/sweeps/new`}>New sweep</ButtonLink> : null}
+          </div>
+        }
+      >
+        {list.isPending ? (
+          <LoadingRows label="sweeps" />
+        ) : list.isError ? (
+          <Alert>{errorMessage(list.error)}</Alert>
+        ) : list.data.sweeps.length === 0 ? (
+          <EmptyState>{status ? `No ${status} sweeps.` : canRun ? "No sweeps yet. Start one from a template with “New sweep”." : "No sweeps yet."}</EmptyState>
+        ) : (
+          <div className="overflow-x-auto">
+            <table className="w-full text-sm" data-testid="sweeps-table">
+              <thead className="border-b border-line">
+                <tr>
+                  <th scope="col" className={th}>Sweep</th>
+                  <th scope="col" className={th}>Status</th>
+                  <th scope="col" className={th}>Progress [cells]</th>
+                  <th scope="col" className={th}>Compute used [min]</th>
+                  <th scope="col" className={th}>Created</th>
+                </tr>
+              </thead>
+              <tbody className="divide-y divide-line">
+                {list.data.sweeps.map((sweep) => (
+                  <tr key={sweep.id} data-testid={`sweep-row-${sweep.id}`}>
+                    <td className={`${td} font-medium`}>
+                      <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="text-action hover:underline">
+                        {sweep.name || `Sweep ${sweep.id.slice(0, 8)}`}
+                      </Link>
+                    </td>
+                    <td className={td}>
+                      <StatusBadge status={sweep.status} />
+                      {sweep.reason ? <p className="mt-1 max-w-xs text-xs text-ink-muted">{sweep.reason}</p> : null}
+                    </td>
+                    <td className={td}>
+                      <div className="flex items-center gap-2">
+                        <div className="h-2 w-24 overflow-hidden rounded bg-surface-muted" aria-hidden="true">
+                          <div className="h-full bg-action" style={{ width: `${progressPercent(sweep)}%` }} />
+                        </div>
+                        <span className="font-mono text-xs">
+                          {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")}
+                        </span>
+                      </div>
+                    </td>
+                    <td className={`${td} font-mono text-xs`}>{formatMinutes(sweep.computeMs)}</td>
+                    <td className={`${td} font-mono text-xs`}>{formatDateTime(sweep.createdAt)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+            <nav aria-label="Pages of sweeps" className="mt-4 flex items-center justify-between text-sm">
+              <span className="text-ink-muted">
+                Page {list.data.page} of {pages} · {list.data.total.toLocaleString("en")} sweeps
+              </span>
+              <span className="flex gap-2">
+                <button type="button" className="rounded-md border border-line px-3 py-1 disabled:opacity-50" disabled={page <= 1} onClick={() => setPage(page - 1)}>
+                  Previous
+                </button>
+                <button type="button" className="rounded-md border border-line px-3 py-1 disabled:opacity-50" disabled={page >= pages} onClick={() => setPage(page + 1)}>
+                  Next
+                </button>
+              </span>
+            </nav>
+          </div>
+        )}
+      </Card>
+    </StudioShell>
+  );
+}
