@@ -3,6 +3,7 @@ import type { Db } from "./client";
 import { newId } from "./ids";
 import { memberships, studios, users, type StudioRole } from "./schema";
 import { hashPassword } from "@/lib/auth/password";
+import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
 
 /**
  * The demo: an invented studio, Gannet Yard Games, tuning the physics of its invented arcade game
@@ -73,6 +74,8 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
       .returning({ userId: memberships.userId });
     if (inserted.length) created = true;
   }
+  // The demo studio's compute: one grant, keyed so a second seed run adds nothing.
+  if (await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: DEMO_GRANT_MS, idempotencyKey: "seed:grant", memo: "Demo grant: 600 compute minutes" })) created = true;
   return { studioId, created };
 }
 

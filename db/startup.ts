@@ -2,7 +2,7 @@
 // module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
 const startupKey = Symbol.for("kickdrift.startup");
 
-/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
+/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
 export function startServerServices(): Promise<void> {
   const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
   store[startupKey] ??= run().catch((error: unknown) => {
@@ -25,6 +25,16 @@ async function run(): Promise<void> {
     } catch (error) {
       // Another process holds the port: mail sent from here then goes to that process's fake.
       console.error(`[kickdrift] could not start the local mail fake: ${(error as Error).message}`);
+    }
+  }
+  if (process.env.KICKDRIFT_RUNNER !== "off") {
+    const { startProcessRunner } = await import("../lib/queue/runner");
+    try {
+      const runner = await startProcessRunner();
+      console.log(`[kickdrift] queue runner ${runner?.ownerId} started`);
+    } catch (error) {
+      // Without a runner the site still serves pages; queued sweeps wait until a runner starts.
+      console.error(`[kickdrift] could not start the queue runner: ${(error as Error).message}`);
     }
   }
   if (process.env.KICKDRIFT_DEMO === "1") {

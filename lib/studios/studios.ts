@@ -3,6 +3,7 @@ import { z } from "zod";
 import { getDb } from "@/db/client";
 import { newId } from "@/db/ids";
 import { memberships, studios, users, type Studio, type StudioRole } from "@/db/schema";
+import { appendLedgerEntry, welcomeGrant } from "@/lib/ledger/ledger";
 
 export const createStudioSchema = z.strictObject({
   name: z
@@ -23,12 +24,13 @@ export function studioView(studio: Studio): StudioView {
   return { id: studio.id, name: studio.name, status: studio.status, createdAt: studio.createdAt.toISOString() };
 }
 
-/** Creates a studio whose creator is its first owner, in one transaction. */
+/** Creates a studio whose creator is its first owner, with its welcome grant of compute minutes, in one transaction. */
 export async function createStudio(ownerUserId: string, input: z.infer<typeof createStudioSchema>): Promise<Studio> {
   const db = await getDb();
   return db.transaction(async (tx) => {
     const [studio] = await tx.insert(studios).values({ id: newId("std"), name: input.name }).returning();
     await tx.insert(memberships).values({ studioId: studio.id, userId: ownerUserId, role: "owner" });
+    await appendLedgerEntry(tx, welcomeGrant(studio.id));
     return studio;
   });
 }

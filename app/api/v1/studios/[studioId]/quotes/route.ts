@@ -10,7 +10,7 @@ import { quoteSweep } from "@/lib/queue/submit";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-const quoteBody = z.strictObject({ spec: z.unknown() });
+const quoteBody = z.strictObject({ spec: z.unknown().optional() });
 
 export const POST = withAuth(SWEEP_WRITE, async ({ req, studio }) => {
   const { spec } = await parseBody(req, quoteBody);

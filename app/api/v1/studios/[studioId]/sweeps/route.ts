@@ -14,7 +14,7 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 const submitBody = z.strictObject({
-  spec: z.unknown(),
+  spec: z.unknown().optional(),
   name: z
     .string({ error: "name must be a string" })
     .trim()
