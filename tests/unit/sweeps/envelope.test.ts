@@ -1,0 +1,93 @@
+/**
+ * The safe envelope on hand-made verdict grids. Expected limits are worked out by hand from the
+ * rule documented in lib/sweeps/envelope.ts (our own definition; no outside reference).
+ */
+import { describe, expect, it } from "vitest";
+import type { Verdict } from "../../../lib/physics/types";
+import { computeEnvelope, EnvelopeInputError } from "../../../lib/sweeps/envelope";
+import { cellIndex, type ExpandedAxis } from "../../../lib/sweeps/grid";
+
+const axis = (parameter: string, values: (number | string)[]): ExpandedAxis => ({ parameter, label: parameter, unit: "", values });
+
+/** A 2-axis grid from rows of "s" (stable) / "x" (exploded) / "." (not done), one row per x value. */
+function grid(rows: string[], yValues: number[], xValues: (number | string)[] = rows.map((_, i) => i + 1)) {
+  const axes = [axis("integrator", xValues), axis("dtS", yValues)];
+  const verdicts = new Map<number, Verdict>();
+  rows.forEach((row, ix) =>
+    [...row].forEach((mark, iy) => {
+      if (mark !== ".") verdicts.set(cellIndex(axes, [ix, iy]), mark === "s" ? "stable" : "exploded");
+    }),
+  );
+  return { axes, verdictAt: (index: number) => verdicts.get(index) };
+}
+
+const Y = [1, 2, 4, 8, 10];
+
+describe("computeEnvelope", () => {
+  it("bound max with margin 0 gives the last stable y before the first unstable one, walking from the start", () => {
+    const g = grid(["ssxss", "sssss", "xssss", "ss.ss"], Y);
+    const env = computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "max" });
+    // Row 0 stops at y=4 (unstable) → 2; row 1 never stops → 10; row 2 unstable at the start → null;
+    // row 3: a cell not done yet counts as not stable → 2. Stable cells beyond a gap are not reached.
+    expect(env.rows).toEqual([
+      { x: 1, yLimit: 2 },
+      { x: 2, yLimit: 10 },
+      { x: 3, yLimit: null },
+      { x: 4, yLimit: 2 },
+    ]);
+    expect(env.xPath).toBe("integrator");
+    expect(env.yPath).toBe("dtS");
+  });
+
+  it("a margin pulls the limit back to the largest walked y ≤ (1 − margin) × the first unstable y", () => {
+    const g = grid(["sssxs", "sssss"], Y);
+    // Row 0: first unstable y = 8; 0.5 × 8 = 4 → 4. With margin 0.6: 0.4 × 8 = 3.2 → 2.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "max" }).rows[0].yLimit).toBe(4);
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.6, bound: "max" }).rows[0].yLimit).toBe(2);
+    // Row 1: all stable, the reference is the last y (10); 0.5 × 10 = 5 → 4.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "max" }).rows[1].yLimit).toBe(4);
+    // A margin that leaves no walked y qualifying gives null: 0.1 × 8 = 0.8 < 1.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.9, bound: "max" }).rows[0].yLimit).toBeNull();
+  });
+
+  it("bound min walks down from the last y and keeps the smallest walked y ≥ reference / (1 − margin)", () => {
+    const g = grid(["xssss", "sxsss", "sssss"], Y);
+    // Row 0: walk 10, 8, 4, 2, then 1 is unstable → margin 0: 2; margin 0.5: ≥ 2 → 2; margin 0.6: ≥ 2.5 → 4.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "min" }).rows[0].yLimit).toBe(2);
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.6, bound: "min" }).rows[0].yLimit).toBe(4);
+    // Row 1: walk 10, 8, 4, then 2 unstable → 4.  Row 2: all stable → 1.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "min" }).rows.map((r) => r.yLimit)).toEqual([2, 4, 1]);
+  });
+
+  it("keeps other axes at the positions given", () => {
+    const axes = [axis("a", [1, 2]), axis("b", [1, 2, 3]), axis("c", [10, 20])];
+    const stable = new Set([cellIndex(axes, [0, 0, 1]), cellIndex(axes, [0, 1, 1]), cellIndex(axes, [0, 2, 1])]);
+    const verdictAt = (index: number): Verdict => (stable.has(index) ? "stable" : "tunneled");
+    expect(computeEnvelope({ axes, verdictAt, x: 2, y: 1, margin: 0, bound: "max", at: [0, 0, 0] }).rows).toEqual([
+      { x: 10, yLimit: null },
+      { x: 20, yLimit: 3 },
+    ]);
+    expect(computeEnvelope({ axes, verdictAt, x: 2, y: 1, margin: 0, bound: "max", at: [1, 0, 0] }).rows[1].yLimit).toBeNull();
+  });
+
+  it("names the field for inputs it cannot answer", () => {
+    const g = grid(["sss"], [1, 2, 3], ["velocity-verlet"]);
+    const failure = (input: Partial<Parameters<typeof computeEnvelope>[0]>) => {
+      try {
+        computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "max", ...input });
+      } catch (error) {
+        return error instanceof EnvelopeInputError ? error.field : "other";
+      }
+      return "none";
+    };
+    expect(failure({ x: 2 })).toBe("x");
+    expect(failure({ y: 0 })).toBe("y");
+    expect(failure({ margin: 0.95 })).toBe("margin");
+    expect(failure({ margin: -0.1 })).toBe("margin");
+    expect(failure({ bound: "up" as never })).toBe("bound");
+    expect(failure({ x: 1, y: 0 })).toBe("y"); // y = integrator lists choices
+    expect(failure({ at: [0] })).toBe("at");
+    const negative = grid(["sss"], [-1, 0, 1]);
+    expect(() => computeEnvelope({ ...negative, x: 0, y: 1, margin: 0.2, bound: "max" })).toThrow(/values ≤ 0/);
+  });
+});
