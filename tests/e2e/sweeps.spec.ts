@@ -1,0 +1,117 @@
+import { readFile } from "node:fs/promises";
+import { expect, test, type Locator, type Page } from "@playwright/test";
+import { signInWithPassword } from "./helpers";
+
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+
+/** A point inside the map's plot at fractions (fx from the left, fy from the top), from the canvas's data-plot rectangle. */
+async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
+  const plot = await map.getAttribute("data-plot");
+  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
+  const [left, top, width, height] = plot!.split(",").map(Number);
+  return { x: left + width * fx, y: top + height * fy };
+}
+
+async function openStudio(page: Page): Promise<string> {
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await expect(page.getByTestId("studio-name")).toHaveText(DEMO_ENGINEER.studio);
+  return new URL(page.url()).pathname;
+}
+
+test("an engineer builds a sweep from a template, watches it run, reads a cell and exports the safe envelope", async ({ page }) => {
+  test.setTimeout(180_000);
+  const pageErrors: string[] = [];
+  page.on("pageerror", (error) => pageErrors.push(error.message));
+
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  const studioPath = await openStudio(page);
+
+  // --- Sweeps tab → New sweep → the frame-rate template.
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Sweeps" }).click();
+  await expect(page).toHaveURL(`${studioPath}/sweeps`);
+  await page.getByRole("link", { name: "New sweep" }).click();
+  await expect(page).toHaveURL(`${studioPath}/sweeps/new`);
+  await page.getByLabel(/Stiffness a frame rate can carry/).check();
+  // Every scenario field shows its unit beside the label.
+  await expect(page.locator("label[for='spec-scenario-dtS']")).toContainText("[s]");
+  await expect(page.locator("label[for='spec-scenario-contact-stiffness']")).toContainText("[N/m]");
+
+  // --- A bad value gets an inline message naming the field's limit, and no quote; fixing it brings the quote back.
+  await page.getByLabel(/^Substeps per frame/).fill("0");
+  await expect(page.locator("#spec-scenario-substeps-error")).toContainText("1");
+  await expect(page.getByRole("button", { name: "Review and run" })).toBeDisabled();
+  await page.getByLabel(/^Substeps per frame/).fill("4");
+
+  // --- The quote: 25 stiffnesses × 3 frame steps × 2 integrators = 150 cells.
+  const quote = page.getByTestId("quote-panel");
+  await expect(quote.getByTestId("quote-cells")).toHaveText("150");
+  await expect(quote.getByTestId("quote-estimated-compute")).toHaveText(/^\d+\.\d{2} min$/);
+  await expect(quote.getByTestId("quote-balance-now")).toHaveText(/^\d+\.\d{2} min$/);
+
+  // --- Review, confirm, run.
+  await page.getByRole("button", { name: "Review and run" }).click();
+  const confirm = page.getByTestId("confirm-sweep");
+  await expect(confirm).toContainText("150 cells to run");
+  await confirm.getByRole("button", { name: "Run sweep" }).click();
+  await expect(page).toHaveURL(new RegExp(`${studioPath}/sweeps/(?!new$)[^/]+$`));
+  const sweepPath = new URL(page.url()).pathname;
+
+  // --- The progress bar reaches 100 % and the sweep is done.
+  const progress = page.getByTestId("sweep-progress");
+  await expect(progress).toHaveAttribute("aria-valuenow", "100", { timeout: 90_000 });
+  await expect(page.getByTestId("sweep-status").first()).toHaveText("done");
+  await expect(page.getByTestId("sweep-cells-done")).toContainText("150 / 150");
+  await expect(page.getByTestId("sweep-minutes")).toHaveText(/^\d+\.\d{2} min/);
+
+  // --- Hover a cell: the tooltip shows its values. Top right = the stiffest contact at 30 Hz with symplectic Euler.
+  const map = page.getByRole("application").first();
+  await expect(map).toHaveAttribute("data-plot", /.+/);
+  const box = (await map.boundingBox())!;
+  const topRight = await plotPoint(map, 0.99, 0.02);
+  await page.mouse.move(box.x + topRight.x, box.y + topRight.y);
+  const tooltip = page.getByRole("tooltip");
+  await expect(tooltip).toContainText("contact stiffness k");
+  await expect(tooltip).toContainText("timestep dt");
+  await expect(tooltip).toContainText("Exploded");
+
+  // --- Open that exploded cell: its energy grows far beyond the start.
+  await page.mouse.click(box.x + topRight.x, box.y + topRight.y);
+  await expect(page).toHaveURL(new RegExp(`${sweepPath}/cells/\\d+$`));
+  await expect(page.getByTestId("cell-verdict")).toHaveText("Exploded");
+  await expect(page.getByTestId("energy-ratio")).not.toBeEmpty();
+  const ratio = Number(await page.getByTestId("energy-ratio").textContent());
+  // The engine stops a run once energy exceeds blowUpEnergyFactor (default 1000) × the initial energy (lib/physics defaults).
+  expect(ratio).toBeGreaterThan(100);
+  await expect(page.getByRole("button", { name: "Re-run at a finer dt" })).toBeVisible();
+  await page.screenshot({ path: test.info().outputPath("sweep-cell.png"), fullPage: true });
+
+  // --- Back on the map: export the safe envelope of stiffness over dt as JSON.
+  await page.getByRole("link", { name: /Back to the stability map/ }).click();
+  await expect(page).toHaveURL(sweepPath);
+  await page.getByLabel(/^Margin/).fill("20");
+  await expect(page.getByTestId("envelope-table")).toBeVisible();
+  const [download] = await Promise.all([page.waitForEvent("download"), page.getByRole("link", { name: "Envelope (JSON)" }).click()]);
+  const file = await download.path();
+  const body = JSON.parse(await readFile(file, "utf8")) as { envelope: { xPath: string; yPath: string; margin: number; bound: string; rows: { x: number; yLimit: number | null }[] } };
+  expect(body.envelope.xPath).toBe("contact.stiffness");
+  expect(body.envelope.yPath).toBe("dtS");
+  expect(body.envelope.margin).toBeCloseTo(0.2, 12);
+  expect(body.envelope.bound).toBe("max");
+  expect(body.envelope.rows).toHaveLength(25);
+  // The soft end of the stiffness axis has no stable cell at all (overlap too deep), so its limit is null.
+  expect(body.envelope.rows[0].yLimit).toBeNull();
+  await page.screenshot({ path: test.info().outputPath("sweep-map.png"), fullPage: true });
+
+  expect(pageErrors).toEqual([]);
+});
+
+test("a finance member sees sweeps but gets the 403 page for the builder", async ({ page }) => {
+  await signInWithPassword(page, "ines@gannetyard.test", "crateslide-finance");
+  const studioPath = await openStudio(page);
+  await page.goto(`${studioPath}/sweeps`);
+  await expect(page.getByRole("heading", { name: "Sweeps" })).toBeVisible();
+  await expect(page.getByRole("link", { name: "New sweep" })).toHaveCount(0);
+  const response = await page.goto(`${studioPath}/sweeps/new`);
+  expect(response?.status()).toBe(403);
+});
