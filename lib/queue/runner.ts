@@ -20,6 +20,7 @@ import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid"
 import { scenarioHash } from "@/lib/sweeps/hash";
 import type { ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { RUNNER_KEY } from "./poke";
 import { storableMetrics } from "./views";
 
 /** Attempts per chunk: the first run plus two retries. */
@@ -343,7 +344,6 @@ function logError(error: unknown): void {
   console.error("[kickdrift] queue runner:", error);
 }
 
-const RUNNER_KEY = Symbol.for("kickdrift.queueRunner");
 type RunnerHolder = { [RUNNER_KEY]?: QueueRunner };
 
 /** The server process's runner, created and started once (KICKDRIFT_RUNNER=off skips it). */
@@ -356,9 +356,4 @@ export async function startProcessRunner(): Promise<QueueRunner | null> {
   holder[RUNNER_KEY] = runner;
   await runner.start();
   return runner;
-}
-
-/** Wake the process's runner, if one runs here (after a submit). */
-export function pokeProcessRunner(): void {
-  (globalThis as RunnerHolder)[RUNNER_KEY]?.poke();
 }

@@ -6,7 +6,7 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { SWEEP_WRITE, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
-import { pokeProcessRunner } from "@/lib/queue/runner";
+import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
