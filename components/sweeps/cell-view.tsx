@@ -99,18 +99,21 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                     </div>
                   );
                 })}
-                <div className="contents">
-                  <dt className="text-ink-muted">Timestep dt [s]</dt>
-                  <dd className="text-right font-mono">{formatPrecise(detail.data.cell.scenario.dtS, "s")}</dd>
-                </div>
-                <div className="contents">
-                  <dt className="text-ink-muted">Substeps per frame [no unit]</dt>
-                  <dd className="text-right font-mono">{detail.data.cell.scenario.substeps}</dd>
-                </div>
-                <div className="contents">
-                  <dt className="text-ink-muted">Integrator</dt>
-                  <dd className="text-right font-mono">{detail.data.cell.scenario.integrator}</dd>
-                </div>
+                {(
+                  [
+                    ["dtS", "timestep dt [s]", formatPrecise(detail.data.cell.scenario.dtS, "s")],
+                    ["substeps", "substeps per frame [no unit]", String(detail.data.cell.scenario.substeps)],
+                    ["integrator", "integrator", detail.data.cell.scenario.integrator],
+                  ] as const
+                )
+                  // The rest of the step set-up, where no axis already names it.
+                  .filter(([path]) => !sweep.data?.axes.some((axis) => axis.path === path))
+                  .map(([path, label, text]) => (
+                    <div key={path} className="contents">
+                      <dt className="text-ink-muted">{label}</dt>
+                      <dd className="text-right font-mono">{text}</dd>
+                    </div>
+                  ))}
               </dl>
               <h3 className="mb-1 text-sm font-semibold">Metrics</h3>
               <dl className="grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm" data-testid="cell-metrics">

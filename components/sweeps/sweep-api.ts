@@ -93,10 +93,26 @@ export function formatMinutes(ms: number): string {
   return `${(ms / 60_000).toFixed(2)} min`;
 }
 
+const MODEL_UNITS: Record<string, { linear: string; hertz: string }> = {
+  "contact.stiffness": { linear: "N/m", hertz: "N/m^1.5" },
+  "contact.damping.coefficient": { linear: "N·s/m", hertz: "N·s/m^1.25" },
+};
+
+/**
+ * The unit of a stiffness or damping axis depends on the contact model; when the sweep has one
+ * model, name that unit alone (tick labels then read "1 MN/m", not the two-model description).
+ */
+export function withResolvedUnits(sweep: Sweep): Sweep {
+  if (sweep.axes.some((axis) => axis.path === "contact.model")) return sweep;
+  const model = sweep.spec.scenario.contact.model;
+  return { ...sweep, axes: sweep.axes.map((axis) => (MODEL_UNITS[axis.path] ? { ...axis, unit: MODEL_UNITS[axis.path][model] } : axis)) };
+}
+
 export function useSweep(studioId: string, sweepId: string) {
   return useQuery({
     queryKey: sweepKeys.sweep(studioId, sweepId),
     queryFn: async () => (await apiFetch<{ sweep: Sweep }>(sweepPath(studioId, sweepId))).sweep,
+    select: withResolvedUnits,
     // Poll every second while the sweep can still change; stop once it has finished.
     refetchInterval: (query) => (query.state.data === undefined || isActive(query.state.data.status) ? 1000 : false),
   });

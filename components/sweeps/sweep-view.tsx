@@ -95,7 +95,7 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
         <div>
           <dt className="text-ink-muted">Compute used (estimate)</dt>
           <dd className="font-mono" data-testid="sweep-minutes">
-            {formatMinutes(sweep.computeMs)} ({formatMinutes(sweep.estimatedComputeMs)})
+            {formatMinutes(sweep.computeMs)} · {sweep.computeMs.toLocaleString("en")} ms (estimate {formatMinutes(sweep.estimatedComputeMs)})
           </dd>
         </div>
         <div>
@@ -308,7 +308,8 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           .map((i) => (
             <div className="space-y-1" key={i}>
               <label htmlFor={`map-slice-${i}`} className="block text-sm font-medium">
-                {effectiveMode === "compare" && i === compareAxis ? `${sweep.axes[i].label}: A` : sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+                {effectiveMode === "compare" && i === compareAxis ? `${sweep.axes[i].label} of the first map` : sweep.axes[i].label}
+                {isNumericAxis(sweep.axes[i]) ? ` [${sweep.axes[i].unit || "no unit"}]` : ""}
               </label>
               <select id={`map-slice-${i}`} className={selectClasses} value={slice[i]} onChange={(event) => setSlice(withSlice(i, Number(event.target.value)))}>
                 {sweep.axes[i].values.map((_, position) => (

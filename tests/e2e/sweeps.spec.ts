@@ -48,6 +48,7 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   await expect(quote.getByTestId("quote-cells")).toHaveText("150");
   await expect(quote.getByTestId("quote-estimated-compute")).toHaveText(/^\d+\.\d{2} min$/);
   await expect(quote.getByTestId("quote-balance-now")).toHaveText(/^\d+\.\d{2} min$/);
+  await page.screenshot({ path: test.info().outputPath("sweep-builder.png"), fullPage: true });
 
   // --- Review, confirm, run.
   await page.getByRole("button", { name: "Review and run" }).click();
