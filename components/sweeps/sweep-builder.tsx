@@ -411,6 +411,7 @@ function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pendi
         ["Cells to run", quote.cellsToRun.toLocaleString("en")],
         ["Integrator steps", quote.steps.toLocaleString("en")],
         ["Estimated compute", `${quote.estimatedMinutes.toFixed(2)} min`],
+        ["Estimated compute in ms", `${quote.estimatedComputeMs.toLocaleString("en")} ms`],
         ["Likely range", `${formatMinutes(quote.band.lowMs)} – ${formatMinutes(quote.band.highMs)}`],
         ["Balance now", formatMinutes(quote.balanceMs)],
         ["Balance after (estimate)", formatMinutes(quote.balanceAfterMs)],

@@ -4,6 +4,7 @@ import { signInWithPassword } from "./helpers";
 
 // The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 
 /** A point inside the map's plot at fractions (fx from the left, fy from the top), from the canvas's data-plot rectangle. */
 async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
@@ -107,12 +108,34 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   expect(pageErrors).toEqual([]);
 });
 
-test("a finance member sees sweeps but gets the 403 page for the builder", async ({ page }) => {
-  await signInWithPassword(page, "ines@gannetyard.test", "crateslide-finance");
-  const studioPath = await openStudio(page);
-  await page.goto(`${studioPath}/sweeps`);
-  await expect(page.getByRole("heading", { name: "Sweeps" })).toBeVisible();
-  await expect(page.getByRole("link", { name: "New sweep" })).toHaveCount(0);
-  const response = await page.goto(`${studioPath}/sweeps/new`);
-  expect(response?.status()).toBe(403);
+test("a finance member sees sweeps but gets the 403 page for the builder", async ({ browser }) => {
+  // The demo finance member's password is changed by password-reset.spec.ts, so the owner makes the
+  // demo engineer a finance member for this test and gives the role back afterwards.
+  const ownerContext = await browser.newContext();
+  const owner = await ownerContext.newPage();
+  await signInWithPassword(owner, DEMO_OWNER.email, DEMO_OWNER.password);
+  const studioPath = await openStudio(owner);
+  const membersApi = `/api/v1${studioPath}/members`;
+  const members = (await (await owner.request.get(membersApi)).json()) as { members: { userId: string; email: string }[] };
+  const engineer = members.members.find((member) => member.email === DEMO_ENGINEER.email)!;
+  const setRole = async (role: string) => {
+    const response = await owner.request.patch(`${membersApi}/${engineer.userId}`, { data: { role } });
+    expect(response.status()).toBe(200);
+  };
+  await setRole("finance");
+  try {
+    const context = await browser.newContext();
+    const page = await context.newPage();
+    await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+    await page.goto(`${studioPath}/sweeps`);
+    await expect(page.getByRole("heading", { name: "Sweeps" })).toBeVisible();
+    await expect(page.getByTestId("sweeps-table")).toBeVisible();
+    await expect(page.getByRole("link", { name: "New sweep" })).toHaveCount(0);
+    const response = await page.goto(`${studioPath}/sweeps/new`);
+    expect(response?.status()).toBe(403);
+    await context.close();
+  } finally {
+    await setRole("engineer");
+    await ownerContext.close();
+  }
 });
