@@ -131,12 +131,15 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
     staleTime: 30_000,
   });
 
+  // Only a quote of exactly the spec on screen may be accepted (the debounce and the request lag behind typing).
+  const quoteIsCurrent = local.ok && debouncedJson === specJson && quote.isSuccess && !quote.isFetching;
+
   const create = useMutation({
     mutationFn: async () =>
       (
         await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
           method: "POST",
-          body: { spec: values, name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
+          body: { spec: JSON.parse(debouncedJson), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
         })
       ).sweep,
     onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),
@@ -370,15 +373,16 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
           {serverError?.field ? <Alert>{serverError.message}</Alert> : null}
 
           <div className="flex gap-3">
-            <Button type="submit" disabled={!local.ok || create.isPending}>
+            <Button type="submit" disabled={!quoteIsCurrent || create.isPending}>
               Review and run
             </Button>
+            {local.ok && !quoteIsCurrent ? <span className="self-center text-sm text-ink-muted">Waiting for the quote of this spec…</span> : null}
           </div>
         </form>
 
         <aside className="space-y-4 lg:sticky lg:top-4 lg:self-start">
           <QuotePanel quote={quote.data} pending={local.ok && (quote.isFetching || debouncedJson !== specJson)} error={local.ok ? (quote.error ? errorMessage(quote.error) : null) : "Fix the spec to get a quote."} />
-          {confirming && quote.data ? (
+          {confirming && quoteIsCurrent && quote.data ? (
             <section className="rounded-lg border-2 border-action bg-surface p-5" role="dialog" aria-labelledby="confirm-heading" data-testid="confirm-sweep">
               <h2 id="confirm-heading" className="font-semibold">
                 Run this sweep?
