@@ -1,0 +1,87 @@
+import { describe, expect, it } from "vitest";
+import { increasingOrder, layerData, mapAxisFor, mapCellIndices, overlaysFor } from "@/components/sweeps/sweep-map-data";
+import type { CellRow, SweepAxisView } from "@/components/sweeps/sweep-api";
+import { expandAxes, axisValuesAt } from "@/lib/sweeps/grid";
+import { parseSweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
+import { findTemplate } from "@/lib/sweeps/templates";
+
+function axesOf(input: SweepSpecInput): SweepAxisView[] {
+  const parsed = parseSweepSpec(input);
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+  return expandAxes(parsed.spec).map((axis, i) => ({ path: axis.parameter, label: axis.label, unit: axis.unit, spacing: input.axes![i].spacing ?? "list", values: [...axis.values] }));
+}
+
+describe("stability map adapter", () => {
+  const template = findTemplate("frame-rate-stiffness")!.spec;
+  const axes = axesOf(template);
+  const parsed = parseSweepSpec(template);
+  if (!parsed.ok) throw new Error("template must parse");
+  const expanded = expandAxes(parsed.spec);
+
+  it("maps every map cell to the sweep cell with that x, y and slice (row-major over the spec's axes, docs/sweep-spec.md)", () => {
+    for (const slice of [0, 1]) {
+      const indices = mapCellIndices(axes, { x: 0, y: 1, slice: [0, 0, slice] });
+      expect(indices.length).toBe(25 * 3);
+      indices.forEach((cellIndex, mapIndex) => {
+        const column = mapIndex % 25;
+        const row = Math.floor(mapIndex / 25);
+        // dt values are listed 1/120, 1/60, 1/30: already increasing, so row r is the r-th listed dt.
+        expect(axisValuesAt(expanded, cellIndex)).toEqual([axes[0].values[column], axes[1].values[row], axes[2].values[slice]]);
+      });
+    }
+  });
+
+  it("swapping the axes transposes the mapping", () => {
+    const xy = mapCellIndices(axes, { x: 0, y: 1, slice: [0, 0, 1] });
+    const yx = mapCellIndices(axes, { x: 1, y: 0, slice: [0, 0, 1] });
+    for (let row = 0; row < 3; row++) for (let column = 0; column < 25; column++) expect(yx[column * 3 + row]).toBe(xy[row * 25 + column]);
+  });
+
+  it("draws an axis that runs downwards in increasing order and still finds the right cells", () => {
+    const downward = axesOf({ ...template, axes: [{ parameter: "contact.stiffness", spacing: "log", from: 1e6, to: 1e3, count: 4 }, template.axes![1]] });
+    expect(mapAxisFor(downward[0]).values).toEqual([1e3, 1e4, 1e5, 1e6]);
+    expect(increasingOrder(downward[0].values as number[])).toEqual([3, 2, 1, 0]);
+    const indices = mapCellIndices(downward, { x: 0, y: 1, slice: [0, 0] });
+    // Column 0 is the smallest stiffness, the last value of the axis (position 3): cell 3·3 + 0.
+    expect(indices[0]).toBe(9);
+    expect(mapAxisFor(downward[0]).spacing).toBe("log");
+  });
+
+  it("leaves cells not done yet as NaN / null so the map hatches them", () => {
+    const indices = mapCellIndices(axes, { x: 0, y: 1, slice: [0, 0, 0] });
+    const done: CellRow = {
+      index: indices[0],
+      axisValues: [],
+      verdict: "stable",
+      reason: null,
+      metrics: { momentumDriftRelX: 0, momentumDriftRelY: 0, energyErrorRel: -0.25, maxEnergyErrorRel: 0.001, effectiveRestitution: null, maxOverlapFraction: 0.05, contactDurationS: null, contactSteps: 3, tunneled: false, exploded: false, steps: 120 },
+    };
+    const data = layerData(indices, new Map([[done.index, done]]), "energyErrorRel");
+    expect(data.values[0]).toBe(-0.25);
+    expect(Number.isNaN(data.values[1] as number)).toBe(true);
+    expect(data.verdicts[0]).toBe("stable");
+    expect(data.verdicts[1]).toBeNull();
+    expect(layerData(indices, new Map([[done.index, done]]), "effectiveRestitution").values[0]).toBeNull();
+  });
+
+  it("puts the ω·dt = 2 bound on the frame step: dt = substeps · 2/ω", () => {
+    const overlays = overlaysFor(template, "contact.stiffness", "dtS");
+    const bound = overlays.find((overlay) => overlay.label.startsWith("ω·dt = 2"));
+    expect(bound && "y" in bound).toBe(true);
+    const massKg = (40 * 120) / (40 + 120);
+    const stiffness = 1e6;
+    // Linear spring ω = √(k/m); symplectic Euler and Störmer–Verlet are stable for h·ω < 2
+    // (Hairer, Lubich & Wanner, Geometric Numerical Integration, 2nd ed., 2006; from memory), h = dt / substeps.
+    const expected = (4 * 2) / Math.sqrt(stiffness / massKg);
+    if (bound && "y" in bound) expect(bound.y(stiffness)).toBeCloseTo(expected, 12);
+    expect(overlaysFor(template, "contact.stiffness", "scene.speedAMPerS")).toEqual([]);
+  });
+
+  it("draws the tunnelling line for speed × dt against a wall at v·(dt/substeps) = radius", () => {
+    const wall = findTemplate("tunnelling-speed")!.spec;
+    const [line] = overlaysFor(wall, "scene.speedMPerS", "dtS");
+    expect(line.label).toContain("tunnelling");
+    // The wall threshold r / dt_sub of wallTunnelingThresholdSpeedMPerS (lib/physics/analytic.ts), head-on, one substep.
+    if ("y" in line) expect(line.y(10)).toBeCloseTo(0.02 / 10, 15);
+  });
+});
