@@ -369,8 +369,7 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
               </ul>
             </div>
           ) : null}
-          {serverError && !serverError.field ? <Alert>{serverError.message}</Alert> : null}
-          {serverError?.field ? <Alert>{serverError.message}</Alert> : null}
+          {serverError ? <Alert>{serverError.message}</Alert> : null}
 
           <div className="flex gap-3">
             <Button type="submit" disabled={!quoteIsCurrent || create.isPending}>

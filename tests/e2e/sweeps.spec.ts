@@ -80,6 +80,7 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   // --- Open that exploded cell: its energy grows far beyond the start.
   await page.mouse.click(box.x + topRight.x, box.y + topRight.y);
   await expect(page).toHaveURL(new RegExp(`${sweepPath}/cells/\\d+$`));
+  const cellPath = new URL(page.url()).pathname;
   await expect(page.getByTestId("cell-verdict")).toHaveText("Exploded");
   await expect(page.getByTestId("energy-ratio")).not.toBeEmpty();
   const ratio = Number(await page.getByTestId("energy-ratio").textContent());
@@ -104,6 +105,14 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   // The soft end of the stiffness axis has no stable cell at all (overlap too deep), so its limit is null.
   expect(body.envelope.rows[0].yLimit).toBeNull();
   await page.screenshot({ path: test.info().outputPath("sweep-map.png"), fullPage: true });
+
+  // --- The exploded cell again, re-run at a quarter of its dt: a new one-cell sweep that runs to the end.
+  await page.goto(cellPath);
+  await page.getByRole("button", { name: "Re-run at a finer dt" }).click();
+  await expect(page).toHaveURL(new RegExp(`${studioPath}/sweeps/(?!new$)[^/]+$`));
+  expect(new URL(page.url()).pathname).not.toBe(sweepPath);
+  await expect(page.getByTestId("sweep-progress")).toHaveAttribute("aria-valuenow", "100", { timeout: 60_000 });
+  await expect(page.getByTestId("sweep-cells-done")).toContainText("1 / 1");
 
   expect(pageErrors).toEqual([]);
 });
