@@ -169,6 +169,26 @@ describe("queue runner", { timeout: 180_000 }, () => {
     }
   });
 
+  it("two runners share the queue: each chunk is claimed once, leases are renewed while chunks run, one debit per chunk", async () => {
+    const studio = await makeSweepStudio("Driftglass Devices");
+    const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(12) }, { chunkOptions: { maxCellsPerChunk: 3 } });
+    // One thread, two runners: a claimed chunk waits for the thread while the other runs, so it holds
+    // its lease for about two chunk runs (several tenths of a second each), past the 0.6 s lease. Without
+    // renewal the other runner would take it over (attempts 2).
+    const runners = [0, 1].map(() => new QueueRunner({ db, pool, pollMs: 20, leaseMs: 600, concurrency: 1 }));
+    for (const runner of runners) await runner.start();
+    try {
+      const done = await waitForSweep(sweep.id, (s) => s.status === "done");
+      const chunks = await db.select().from(sweepChunks).where(eq(sweepChunks.sweepId, sweep.id));
+      expect(chunks.map((c) => [c.attempts, c.lastError])).toEqual(chunks.map(() => [1, null]));
+      const debits = await usageEntries(sweep.id);
+      expect(debits.length).toBe(done.chunks);
+      expect(-debits.reduce((sum, d) => sum + d.computeMs, 0)).toBe(chunks.reduce((sum, c) => sum + c.computeMs, 0));
+    } finally {
+      for (const runner of runners) await runner.stop();
+    }
+  });
+
   it("pauses a sweep when the studio runs out of minutes and resumes it after a grant", async () => {
     const studio = await makeSweepStudio("Saltmarsh Sprites", 0);
     await grant(studio.studioId, 10 * 60_000, `test:small:${studio.studioId}`);
