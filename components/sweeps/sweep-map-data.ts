@@ -9,10 +9,12 @@ import type { Metrics, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import type { CellRow, SweepAxisView } from "./sweep-api";
 
-export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: string; normalisation: "linear" | "log" | "symmetric" }[] = [
+export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: string; normalisation: "linear" | "log" | "symmetric"; domain?: readonly [number, number] }[] = [
   { key: "maxEnergyErrorRel", label: "largest energy error (relative)", unit: "", normalisation: "symmetric" },
   { key: "energyErrorRel", label: "final energy error (relative)", unit: "", normalisation: "symmetric" },
-  { key: "maxOverlapFraction", label: "deepest overlap / smaller radius", unit: "", normalisation: "linear" },
+  // 0 … 1: an overlap as deep as the radius is the top colour; blown-up cells far beyond it would
+  // otherwise squeeze every useful cell into the bottom of the scale.
+  { key: "maxOverlapFraction", label: "deepest overlap / smaller radius", unit: "", normalisation: "linear", domain: [0, 1] },
   { key: "effectiveRestitution", label: "measured restitution", unit: "", normalisation: "linear" },
   { key: "contactDurationS", label: "first contact duration", unit: "s", normalisation: "log" },
   { key: "contactSteps", label: "steps in contact", unit: "steps", normalisation: "linear" },
@@ -114,6 +116,19 @@ function tunnelThicknessM(spec: SweepSpecInput): number | null {
   if (scene.kind === "wall") return scene.radiusM / Math.cos((scene.angleDeg * Math.PI) / 180);
   if (scene.kind === "pair") return (scene.radiusAM + scene.radiusBM) * Math.sqrt(1 - scene.offsetFraction * scene.offsetFraction);
   return null;
+}
+
+/**
+ * The spec with one scene or step parameter set to a value (the value of a third axis), so the
+ * overlays of each small map follow it. Parameters the overlays do not read leave the spec as is.
+ */
+export function specWithValue(spec: SweepSpecInput, path: string, value: number): SweepSpecInput {
+  const copy = structuredClone(spec);
+  const scene = copy.scenario.scene as unknown as Record<string, number | string>;
+  if (path === "scene.massRatio" && copy.scenario.scene.kind === "pair") copy.scenario.scene.massBKg = copy.scenario.scene.massAKg * value;
+  else if (path.startsWith("scene.") && path.slice(6) in scene) scene[path.slice(6)] = value;
+  else if (path === "substeps") copy.scenario.substeps = value;
+  return copy;
 }
 
 /**

@@ -16,7 +16,7 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatMinutes, isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor } from "./sweep-map-data";
+import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 
 type ViewMode = "single" | "compare" | "grid";
@@ -217,7 +217,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
     const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
     const data = layerData(indices, cellsByIndex, metric?.key ?? null);
     const layer: MapLayer = metric
-      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: { normalisation: metric.normalisation } }
+      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: { normalisation: metric.normalisation, domain: metric.domain } }
       : { kind: "verdict", verdicts: data.verdicts };
     return { indices, layer, ...data };
   };
@@ -351,7 +351,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
               y={y}
               third={{ label: third.label, unit: third.unit, values: third.values as number[] }}
               layers={order.map((position) => layers[position].layer)}
-              overlays={overlays}
+              overlays={(thirdValue) => overlaysFor(specWithValue(sweep.spec, sweep.axes[gridAxis].path, thirdValue), sweep.axes[xAxis].path, sweep.axes[yAxis].path)}
               onCellClick={(thirdIndex, mapIndex) => onOpenCell(layers[order[thirdIndex]].indices[mapIndex])}
             />
           );
@@ -418,6 +418,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
       <p className="mb-3 text-sm text-ink-muted">
         For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable, reduced by the
         margin. Export it for your game&apos;s config.
+        {sweep.axes.length > 2 ? " Any other axis stays at its first value." : ""}
       </p>
       <div className="grid gap-3 md:grid-cols-4">
         <div className="space-y-1">

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { increasingOrder, layerData, mapAxisFor, mapCellIndices, overlaysFor } from "@/components/sweeps/sweep-map-data";
+import { increasingOrder, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "@/components/sweeps/sweep-map-data";
 import type { CellRow, SweepAxisView } from "@/components/sweeps/sweep-api";
 import { expandAxes, axisValuesAt } from "@/lib/sweeps/grid";
 import { parseSweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
@@ -83,5 +83,17 @@ describe("stability map adapter", () => {
     expect(line.label).toContain("tunnelling");
     // The wall threshold r / dt_sub of wallTunnelingThresholdSpeedMPerS (lib/physics/analytic.ts), head-on, one substep.
     if ("y" in line) expect(line.y(10)).toBeCloseTo(0.02 / 10, 15);
+  });
+
+  it("moves the overlays of each small map with a third axis (the radius of the tunnelling line)", () => {
+    const wall = findTemplate("tunnelling-speed")!.spec;
+    const [line] = overlaysFor(specWithValue(wall, "scene.radiusM", 0.04), "scene.speedMPerS", "dtS");
+    // r / v for r = 0.04 m, v = 10 m/s (wallTunnelingThresholdSpeedMPerS, lib/physics/analytic.ts).
+    if ("y" in line) expect(line.y(10)).toBeCloseTo(0.004, 15);
+    const pair = specWithValue(findTemplate("mass-ratio-penetration")!.spec, "scene.massRatio", 4);
+    expect(pair.scenario.scene.kind === "pair" && pair.scenario.scene.massBKg).toBe(8);
+    expect(specWithValue(wall, "substeps", 8).scenario.substeps).toBe(8);
+    // The template itself is left as it was.
+    expect(wall.scenario.scene.kind === "wall" && wall.scenario.scene.radiusM).toBe(0.02);
   });
 });
