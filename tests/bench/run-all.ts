@@ -1,15 +1,16 @@
 /**
  * `npm run bench [-- id …]`: runs the benchmark modules in order and prints
  * their figures. Benchmarks assert nothing; targets are printed beside figures.
- * Add a module by appending it to BENCH_MODULES (queue end-to-end etc. later).
+ * Add a module by appending it to BENCH_MODULES.
  */
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { pairThroughput } from "./pair-throughput";
+import { queueEndToEnd } from "./queue-end-to-end";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd];
 
 async function main() {
   const wanted = process.argv.slice(2);

@@ -1,0 +1,195 @@
+/**
+ * Benchmark: a 65,536-cell pair sweep end to end through the queue, against the engine alone.
+ *
+ * 1. The sweep is submitted with lib/queue/submit on an in-memory PGlite (a studio granted
+ *    minutes through the ledger) and run by the real QueueRunner on the worker-thread pool until
+ *    it is done; its wall time (submit + run) is set against `runSweep` of the same spec on the
+ *    same pool (same threads, same chunk plan as the submit makes). Target ratio ≤ 1.15×.
+ * 2. GET …/sweeps/{sweepId}/cells (JSON and `?format=csv`) for that sweep, through the route
+ *    handler as the integration tests call it: median of 3, target < 1 s, and the response size.
+ *
+ * Prints figures and asserts nothing. Run alone: `npx tsx tests/bench/queue-end-to-end.ts`; or
+ * through tests/bench/run-all.ts as `queueEndToEnd`.
+ */
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { sweeps, type Sweep } from "@/db/schema";
+import { QueueRunner } from "@/lib/queue/runner";
+import { submitSweep } from "@/lib/queue/submit";
+import { planChunks } from "@/lib/sweeps/chunks";
+import { cellCount, expandAxes } from "@/lib/sweeps/grid";
+import { createChunkPool, defaultThreadCount, type ChunkPool } from "@/lib/sweeps/pool";
+import { runSweep } from "@/lib/sweeps/run";
+import { parseSweepSpec, stepsPerCell, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
+import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/route";
+// Aliased: the helper's "use" prefix is not a React hook, and the hooks lint rule goes by the name.
+import { closeTestDb, useFreshDb as openFreshTestDb } from "../helpers/db";
+import { buildRequest, type RouteHandler } from "../helpers/http";
+import { makeSweepStudio } from "../integration/sweeps/support";
+import { formatSi, table, type BenchModule } from "./bench-module";
+
+const TARGET_RATIO = 1.15;
+const TARGET_CELLS_S = 1;
+const CELLS_REPEATS = 3;
+/** Enough minutes for the sweep's estimate with room to spare (integer ms). */
+const GRANT_MS = 600 * 60_000;
+/** A hang guard for the queue run, not a speed check. */
+const QUEUE_TIMEOUT_MS = 120_000;
+
+/** An invented shuffleboard game, "Slateglide": puck against a resting puck, 64 × 64 × 16 cells. */
+function specInput(): SweepSpecInput {
+  return {
+    name: "bench: Slateglide puck against a resting puck",
+    scenario: {
+      scene: { kind: "pair", massAKg: 0.38, massBKg: 0.38, radiusAM: 0.026, radiusBM: 0.026, speedAMPerS: 3, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 },
+      contact: { model: "linear", stiffness: 1e5, damping: { kind: "restitution", value: 0.7 } },
+      integrator: "symplectic-euler",
+      dtS: 1e-3,
+      substeps: 1,
+      durationS: 4,
+    },
+    axes: [
+      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e6, count: 64 },
+      { parameter: "scene.speedAMPerS", spacing: "log", from: 0.5, to: 20, count: 64 },
+      { parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.95, count: 16 },
+    ],
+  };
+}
+
+function parsedSpec(): SweepSpec {
+  const result = parseSweepSpec(specInput());
+  if (!result.ok) throw new Error(JSON.stringify(result.issues));
+  return result.spec;
+}
+
+function median(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.floor(sorted.length / 2)];
+}
+
+function seconds(fromMs: number): number {
+  return (performance.now() - fromMs) / 1e3;
+}
+
+/** The engine alone on the pool: best of two timed runSweep calls after one warm-up run. */
+async function engineOnly(spec: SweepSpec, pool: ChunkPool): Promise<{ wallS: number; chunks: number }> {
+  const axes = expandAxes(spec);
+  // The plan submitSweep makes with its default chunk options, so both sides run the same chunks.
+  const plan = planChunks(spec, { axes });
+  await runSweep(spec, { pool, axes, plan });
+  let wallS = Number.POSITIVE_INFINITY;
+  for (let attempt = 0; attempt < 2; attempt++) {
+    const started = performance.now();
+    await runSweep(spec, { pool, axes, plan });
+    wallS = Math.min(wallS, seconds(started));
+  }
+  return { wallS, chunks: plan.length };
+}
+
+async function sweepRow(db: Db, id: string): Promise<Sweep> {
+  const [row] = await db.select().from(sweeps).where(eq(sweeps.id, id));
+  return row;
+}
+
+interface QueueRun {
+  sweep: Sweep;
+  submitS: number;
+  runS: number;
+  totalS: number;
+}
+
+/** Submit then run through the queue until done; the runner is already started, as in the server. */
+async function throughQueue(db: Db, runner: QueueRunner, studioId: string): Promise<QueueRun> {
+  const started = performance.now();
+  const submitted = await submitSweep(db, studioId, { spec: specInput() });
+  const submitS = seconds(started);
+  runner.poke();
+  const runStarted = performance.now();
+  for (;;) {
+    const row = await sweepRow(db, submitted.id);
+    if (row.status === "done") return { sweep: row, submitS, runS: seconds(runStarted), totalS: seconds(started) };
+    if (row.status === "failed" || row.status === "cancelled" || row.status === "paused") throw new Error(`sweep ${row.id} ended ${row.status}: ${row.reason ?? ""}`);
+    if (performance.now() - started > QUEUE_TIMEOUT_MS) throw new Error(`sweep ${row.id} still ${row.status} (${row.chunksDone}/${row.chunks} chunks) after ${QUEUE_TIMEOUT_MS} ms`);
+    // Polling a single row every 20 ms is a small load next to the runner's writes.
+    await new Promise((resolve) => setTimeout(resolve, 20));
+  }
+}
+
+/** Median time of the cells route (to the last byte of the body) and the body size in bytes. */
+async function timeCellsRoute(studioId: string, sweepId: string, cookie: string, query: string): Promise<{ medianS: number; bytes: number; status: number }> {
+  const times: number[] = [];
+  let bytes = 0;
+  let status = 0;
+  for (let i = 0; i < CELLS_REPEATS; i++) {
+    const request = buildRequest({ path: `/api/v1/studios/${studioId}/sweeps/${sweepId}/cells${query}`, cookie });
+    const started = performance.now();
+    const res = await (cellsRoute.GET as unknown as RouteHandler)(request, { params: Promise.resolve({ studioId, sweepId }) });
+    const body = await res.arrayBuffer();
+    times.push(seconds(started));
+    bytes = body.byteLength;
+    status = res.status;
+  }
+  return { medianS: median(times), bytes, status };
+}
+
+function formatBytes(bytes: number): string {
+  return bytes >= 1e6 ? `${(bytes / 1e6).toFixed(1)} MB` : `${(bytes / 1e3).toFixed(1)} kB`;
+}
+
+async function run(): Promise<void> {
+  const spec = parsedSpec();
+  const cells = cellCount(expandAxes(spec));
+  const threads = defaultThreadCount();
+  console.log(`${cells} cells × ${stepsPerCell(spec.scenario)} steps = ${formatSi(cells * stepsPerCell(spec.scenario))} cell-steps; ${threads} threads (entry "source")`);
+
+  const db = await openFreshTestDb();
+  const pool = createChunkPool({ threads, entry: "source" });
+  const runner = new QueueRunner({ db, pool });
+  try {
+    const engine = await engineOnly(spec, pool);
+    const studio = await makeSweepStudio("Pebblecourt Games", GRANT_MS);
+    await runner.start();
+    const queue = await throughQueue(db, runner, studio.studioId);
+    await runner.stop();
+
+    const rows: (string | number)[][] = [
+      ["path", "wall s", "chunks", "cells done", "note"],
+      ["runSweep (engine on pool)", engine.wallS.toFixed(3), engine.chunks, cells, "best of 2 after a warm-up run"],
+      ["queue: submit", queue.submitS.toFixed(3), "", "", "validate, plan, write sweep + chunks"],
+      ["queue: run to done", queue.runS.toFixed(3), queue.sweep.chunks, queue.sweep.cellsDone, `billed ${queue.sweep.computeMs} ms, estimated ${queue.sweep.estimatedComputeMs} ms`],
+      ["queue: total", queue.totalS.toFixed(3), "", "", "submit + run"],
+    ];
+    console.log(table(rows));
+    console.log(`queue total / runSweep: ${(queue.totalS / engine.wallS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); run only / runSweep: ${(queue.runS / engine.wallS).toFixed(2)}×`);
+
+    const json = await timeCellsRoute(studio.studioId, queue.sweep.id, studio.cookies.owner, "");
+    const csv = await timeCellsRoute(studio.studioId, queue.sweep.id, studio.cookies.owner, "?format=csv");
+    console.log(
+      table([
+        ["GET …/cells", "status", `median of ${CELLS_REPEATS} s`, "size", "target"],
+        ["JSON", json.status, json.medianS.toFixed(3), formatBytes(json.bytes), `< ${TARGET_CELLS_S} s`],
+        ["?format=csv", csv.status, csv.medianS.toFixed(3), formatBytes(csv.bytes), `< ${TARGET_CELLS_S} s`],
+      ]),
+    );
+  } finally {
+    await runner.stop();
+    await pool.close();
+    await closeTestDb();
+  }
+}
+
+/** For tests/bench/run-all.ts (BENCH_MODULES). */
+export const queueEndToEnd: BenchModule = {
+  id: "queue-end-to-end",
+  title: "a 65,536-cell pair sweep through submit + queue runner vs runSweep, and the cells route",
+  run,
+};
+
+if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+  run().catch((error: unknown) => {
+    console.error(error);
+    process.exitCode = 1;
+  });
+}
