@@ -39,19 +39,8 @@ export interface Sweep {
   spec: SweepSpecInput;
 }
 
-export interface Quote {
-  cells: number;
-  cachedCells: number;
-  cellsToRun: number;
-  steps: number;
-  estimatedComputeMs: number;
-  estimatedMinutes: number;
-  band: { lowMs: number; highMs: number };
-  balanceMs: number;
-  balanceAfterMs: number;
-  limits: { maxCells: number; maxStepsPerCell: number; maxBodies: number };
-  warnings: string[];
-}
+/** The quote as the server computes it (a type-only import: nothing of the server reaches the client bundle). */
+export type { Quote } from "@/lib/queue/submit";
 
 export interface CellRow {
   index: number;
