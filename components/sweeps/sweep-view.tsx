@@ -127,6 +127,31 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
 
 const selectClasses = "block w-full rounded-md border border-line bg-surface px-2 py-1.5 text-sm";
 
+/** One of the sweep's numeric axes, picked for a side of the map (label and unit shown). */
+function AxisSelect({ id, label, axes, choices, value, onChange }: {
+  id: string;
+  label: string;
+  axes: Sweep["axes"];
+  choices: readonly number[];
+  value: number;
+  onChange: (axisIndex: number) => void;
+}) {
+  return (
+    <div className="space-y-1">
+      <label htmlFor={id} className="block text-sm font-medium">
+        {label}
+      </label>
+      <select id={id} className={selectClasses} value={value} onChange={(event) => onChange(Number(event.target.value))}>
+        {choices.map((i) => (
+          <option key={i} value={i}>
+            {axes[i].label} [{axes[i].unit || "no unit"}]
+          </option>
+        ))}
+      </select>
+    </div>
+  );
+}
+
 export function SweepView({ studioId, studioName, role, sweepId }: { studioId: string; studioName: string; role: StudioRole; sweepId: string }) {
   const router = useRouter();
   const queryClient = useQueryClient();
@@ -247,49 +272,29 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             ))}
           </select>
         </div>
-        <div className="space-y-1">
-          <label htmlFor="map-x" className="block text-sm font-medium">
-            Horizontal axis
-          </label>
-          <select
-            id="map-x"
-            className={selectClasses}
-            value={xAxis}
-            onChange={(event) => {
-              const next = Number(event.target.value);
-              if (next === yAxis) setYAxis(xAxis);
-              setXAxis(next);
-            }}
-          >
-            {numericAxes.map((i) => (
-              <option key={i} value={i}>
-                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
-              </option>
-            ))}
-          </select>
-        </div>
+        <AxisSelect
+          id="map-x"
+          label="Horizontal axis"
+          axes={sweep.axes}
+          choices={numericAxes}
+          value={xAxis}
+          onChange={(next) => {
+            if (next === yAxis) setYAxis(xAxis);
+            setXAxis(next);
+          }}
+        />
         {numericAxes.length >= 2 ? (
-          <div className="space-y-1">
-            <label htmlFor="map-y" className="block text-sm font-medium">
-              Vertical axis
-            </label>
-            <select
-              id="map-y"
-              className={selectClasses}
-              value={yAxis}
-              onChange={(event) => {
-                const next = Number(event.target.value);
-                if (next === xAxis) setXAxis(yAxis);
-                setYAxis(next);
-              }}
-            >
-              {numericAxes.map((i) => (
-                <option key={i} value={i}>
-                  {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
-                </option>
-              ))}
-            </select>
-          </div>
+          <AxisSelect
+            id="map-y"
+            label="Vertical axis"
+            axes={sweep.axes}
+            choices={numericAxes}
+            value={yAxis}
+            onChange={(next) => {
+              if (next === xAxis) setXAxis(yAxis);
+              setYAxis(next);
+            }}
+          />
         ) : null}
         {compareAxis >= 0 || gridAxis >= 0 ? (
           <div className="space-y-1">
