@@ -6,7 +6,7 @@ import { monoFont, sansFont } from "./fonts";
 import { Providers } from "@/components/providers";
 import { SiteFooter } from "@/components/site-footer";
 import { SiteHeader } from "@/components/site-header";
-import { mailboxEnabled } from "@/lib/ui/mailbox";
+import { isMailFakeEnabled } from "@/lib/mail/mode";
 import { THEME_BOOT_SCRIPT } from "@/lib/ui/theme";
 
 export const metadata: Metadata = {
@@ -29,7 +29,7 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
           Skip to content
         </a>
         <Providers>
-          <SiteHeader mailboxEnabled={mailboxEnabled()} />
+          <SiteHeader mailboxEnabled={isMailFakeEnabled()} />
           <main id="main" className="mx-auto w-full max-w-6xl flex-1 px-4 py-8 sm:px-6">
             {children}
           </main>

@@ -17,7 +17,8 @@ async function run(): Promise<void> {
   const { getAuthSecret, appBaseUrl } = await import("../lib/auth/config");
   const db = await getDb();
   getAuthSecret();
-  if (!process.env.SMTP_URL) {
+  const { isMailFakeEnabled } = await import("../lib/mail/mode");
+  if (isMailFakeEnabled()) {
     const { startMailFake } = await import("../lib/fakes/smtp-fake");
     try {
       const fake = await startMailFake();

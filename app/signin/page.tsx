@@ -4,7 +4,7 @@ import { SignInForm } from "@/components/auth/sign-in-form";
 import { Alert, AuthPanel } from "@/components/ui";
 import { getPageUser } from "@/lib/auth/page-guard";
 import { safeCallbackUrl, signInErrorMessage } from "@/lib/ui/callback-url";
-import { mailboxEnabled } from "@/lib/ui/mailbox";
+import { isMailFakeEnabled } from "@/lib/mail/mode";
 
 export const metadata: Metadata = { title: "Sign in" };
 
@@ -20,7 +20,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           <Alert tone="ok">Check your inbox: we sent you a sign-in link. It works once.</Alert>
         </div>
       ) : null}
-      <SignInForm callbackUrl={callbackUrl} initialError={signInErrorMessage(params.error)} mailboxEnabled={mailboxEnabled()} />
+      <SignInForm callbackUrl={callbackUrl} initialError={signInErrorMessage(params.error)} mailboxEnabled={isMailFakeEnabled()} />
     </AuthPanel>
   );
 }

@@ -1,10 +1,7 @@
 import nodemailer, { type Transporter } from "nodemailer";
 import { runningMailFake } from "@/lib/fakes/smtp-fake";
 
-/** The local mail fake is on exactly when no SMTP_URL is configured. */
-export function isMailFakeEnabled(): boolean {
-  return !process.env.SMTP_URL;
-}
+export { isMailFakeEnabled } from "./mode";
 
 export function mailFrom(): string {
   return process.env.MAIL_FROM ?? "Kickdrift <no-reply@kickdrift.test>";

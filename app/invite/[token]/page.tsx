@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import { AcceptInvite } from "@/components/invite/accept-invite";
-import { mailboxEnabled } from "@/lib/ui/mailbox";
+import { isMailFakeEnabled } from "@/lib/mail/mode";
 
 export const metadata: Metadata = { title: "Studio invitation" };
 
@@ -12,5 +12,5 @@ export default async function InvitePage({
   searchParams: Promise<Record<string, string | string[] | undefined>>;
 }) {
   const [{ token }, query] = await Promise.all([params, searchParams]);
-  return <AcceptInvite token={token} mailboxEnabled={mailboxEnabled()} autoAccept={query.accept === "1"} />;
+  return <AcceptInvite token={token} mailboxEnabled={isMailFakeEnabled()} autoAccept={query.accept === "1"} />;
 }
