@@ -305,3 +305,92 @@ export const ledgerEntries = pgTable(
 export type Sweep = typeof sweeps.$inferSelect;
 export type SweepChunk = typeof sweepChunks.$inferSelect;
 export type LedgerEntry = typeof ledgerEntries.$inferSelect;
+
+// ---------------------------------------------------------------------------
+// Quotas per studio, the outbox of side effects, and the audit log.
+
+/**
+ * Per-studio overrides of the plan's limits (lib/quotas/plan.ts). A null column means "the plan
+ * default"; a studio without a row has every default.
+ */
+export const studioQuotas = pgTable(
+  "studio_quotas",
+  {
+    studioId: text("studio_id")
+      .primaryKey()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    /** Compute per calendar month (UTC), integer ms. */
+    monthlyComputeMs: bigint("monthly_compute_ms", { mode: "number" }),
+    maxRunningSweeps: integer("max_running_sweeps"),
+    maxCellsPerSweep: integer("max_cells_per_sweep"),
+    maxStepsPerCell: integer("max_steps_per_cell"),
+    maxBodies: integer("max_bodies"),
+    /** Whether usage beyond the prepaid balance is metered and invoiced. */
+    overageAllowed: boolean("overage_allowed"),
+    /** The most overage a calendar month may accrue, integer ms. */
+    overageCapMs: bigint("overage_cap_ms", { mode: "number" }),
+    updatedAt: timestamp("updated_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),
+    updatedByUserId: text("updated_by_user_id").references(() => users.id, { onDelete: "set null" }),
+  },
+  (t) => [
+    check("studio_quotas_non_negative", sql`coalesce(${t.monthlyComputeMs}, 0) >= 0 and coalesce(${t.overageCapMs}, 0) >= 0`),
+  ],
+);
+
+export const OUTBOX_STATUSES = ["pending", "delivered", "failed"] as const;
+export type OutboxStatus = (typeof OUTBOX_STATUSES)[number];
+
+/**
+ * Side effects that leave the process (Stripe meter events, e-mail), written in the same
+ * transaction as the change that causes them and delivered afterwards by lib/outbox. The
+ * idempotency key makes a retried writer a no-op and travels to the receiver where it has one
+ * (Stripe's meter-event identifier).
+ */
+export const outbox = pgTable(
+  "outbox",
+  {
+    id: serial("id").primaryKey(),
+    kind: text("kind").notNull(),
+    idempotencyKey: text("idempotency_key").notNull().unique(),
+    payload: jsonb("payload").notNull(),
+    studioId: text("studio_id").references(() => studios.id, { onDelete: "set null" }),
+    status: text("status", { enum: OUTBOX_STATUSES }).notNull().default("pending"),
+    attempts: integer("attempts").notNull().default(0),
+    nextAttemptAt: timestamp("next_attempt_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),
+    /** Held by a dispatcher while it delivers; a lapsed lease makes the row due again. */
+    leaseOwner: text("lease_owner"),
+    leaseExpiresAt: ts("lease_expires_at"),
+    lastError: text("last_error"),
+    createdAt: createdAt(),
+    deliveredAt: ts("delivered_at"),
+  },
+  (t) => [
+    index("outbox_due_idx").on(t.status, t.nextAttemptAt),
+    check("outbox_status_known", sql`${t.status} in ('pending', 'delivered', 'failed')`),
+  ],
+);
+
+/** Append-only record of who did what to whom, with the values before and after. */
+export const auditLog = pgTable(
+  "audit_log",
+  {
+    id: serial("id").primaryKey(),
+    /** The acting person (null for the system or a deleted user); the e-mail is kept as it was. */
+    actorUserId: text("actor_user_id").references(() => users.id, { onDelete: "set null" }),
+    actorLabel: text("actor_label").notNull(),
+    /** The studio concerned, kept as text so the record outlives the studio. */
+    studioId: text("studio_id"),
+    action: text("action").notNull(),
+    subjectType: text("subject_type").notNull(),
+    subjectId: text("subject_id").notNull(),
+    before: jsonb("before"),
+    after: jsonb("after"),
+    reason: text("reason").notNull().default(""),
+    createdAt: createdAt(),
+  },
+  (t) => [index("audit_log_studio_time_idx").on(t.studioId, t.createdAt), index("audit_log_time_idx").on(t.createdAt)],
+);
+
+export type StudioQuotaRow = typeof studioQuotas.$inferSelect;
+export type OutboxRow = typeof outbox.$inferSelect;
+export type AuditLogRow = typeof auditLog.$inferSelect;

@@ -2,7 +2,7 @@
 // module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
 const startupKey = Symbol.for("kickdrift.startup");
 
-/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
+/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), the outbox dispatcher, the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
 export function startServerServices(): Promise<void> {
   const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
   store[startupKey] ??= run().catch((error: unknown) => {
@@ -27,6 +27,11 @@ async function run(): Promise<void> {
       // Another process holds the port: mail sent from here then goes to that process's fake.
       console.error(`[kickdrift] could not start the local mail fake: ${(error as Error).message}`);
     }
+  }
+  {
+    // Delivers queued side effects (mail, Stripe meter events); every process may run one.
+    const { startProcessOutbox } = await import("../lib/outbox/process");
+    await startProcessOutbox();
   }
   if (process.env.KICKDRIFT_RUNNER !== "off") {
     const { startProcessRunner } = await import("../lib/queue/runner");
