@@ -289,6 +289,12 @@ export const ledgerEntries = pgTable(
       .references(() => studios.id, { onDelete: "cascade" }),
     kind: text("kind", { enum: LEDGER_KINDS }).notNull(),
     computeMs: bigint("compute_ms", { mode: "number" }).notNull(),
+    /**
+     * Usage entries only: the part of the chunk's compute beyond the prepaid balance, metered to
+     * Stripe and invoiced monthly (computeMs holds the prepaid part only, so the balance never
+     * pays for it twice). A chunk's whole usage is overageMs − computeMs.
+     */
+    overageMs: bigint("overage_ms", { mode: "number" }).notNull().default(0),
     amountCents: integer("amount_cents").notNull().default(0),
     idempotencyKey: text("idempotency_key").notNull().unique(),
     sweepId: text("sweep_id").references(() => sweeps.id, { onDelete: "set null" }),

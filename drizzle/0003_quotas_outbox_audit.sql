@@ -44,6 +44,7 @@ CREATE TABLE "studio_quotas" (
 	CONSTRAINT "studio_quotas_non_negative" CHECK (coalesce("studio_quotas"."monthly_compute_ms", 0) >= 0 and coalesce("studio_quotas"."overage_cap_ms", 0) >= 0)
 );
 --> statement-breakpoint
+ALTER TABLE "ledger_entries" ADD COLUMN "overage_ms" bigint DEFAULT 0 NOT NULL;--> statement-breakpoint
 ALTER TABLE "audit_log" ADD CONSTRAINT "audit_log_actor_user_id_users_id_fk" FOREIGN KEY ("actor_user_id") REFERENCES "public"."users"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "outbox" ADD CONSTRAINT "outbox_studio_id_studios_id_fk" FOREIGN KEY ("studio_id") REFERENCES "public"."studios"("id") ON DELETE set null ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "studio_quotas" ADD CONSTRAINT "studio_quotas_studio_id_studios_id_fk" FOREIGN KEY ("studio_id") REFERENCES "public"."studios"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint

@@ -12,6 +12,8 @@ export interface LedgerWrite {
   kind: LedgerKind;
   /** Signed: grants and purchases positive, usage negative (integer ms). */
   computeMs: number;
+  /** Usage only: compute beyond the prepaid balance, metered and invoiced (integer ms, ≥ 0). */
+  overageMs?: number;
   amountCents?: number;
   idempotencyKey: string;
   sweepId?: string | null;
@@ -25,6 +27,7 @@ export interface LedgerWrite {
  */
 export async function appendLedgerEntry(db: DbOrTx, entry: LedgerWrite): Promise<boolean> {
   if (!Number.isInteger(entry.computeMs)) throw new RangeError(`computeMs must be an integer; got ${entry.computeMs}`);
+  if (entry.overageMs !== undefined && !(Number.isInteger(entry.overageMs) && entry.overageMs >= 0)) throw new RangeError(`overageMs must be a non-negative integer; got ${entry.overageMs}`);
   if (entry.amountCents !== undefined && !Number.isInteger(entry.amountCents)) throw new RangeError(`amountCents must be an integer; got ${entry.amountCents}`);
   const inserted = await db
     .insert(ledgerEntries)
@@ -32,6 +35,7 @@ export async function appendLedgerEntry(db: DbOrTx, entry: LedgerWrite): Promise
       studioId: entry.studioId,
       kind: entry.kind,
       computeMs: entry.computeMs,
+      overageMs: entry.overageMs ?? 0,
       amountCents: entry.amountCents ?? 0,
       idempotencyKey: entry.idempotencyKey,
       sweepId: entry.sweepId ?? null,

@@ -2,9 +2,9 @@
  * The plan: default limits of every studio, and the effective limits of one studio (its
  * studio_quotas row over these defaults). Admins change a studio's row; nothing else does.
  */
-import { eq } from "drizzle-orm";
+import { and, eq, gte, lt, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { studioQuotas } from "@/db/schema";
+import { ledgerEntries, studioQuotas } from "@/db/schema";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 
 export interface Quotas {
@@ -53,4 +53,24 @@ export function monthOf(at: Date): { key: string; start: Date; end: Date } {
   const start = new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth(), 1));
   const end = new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth() + 1, 1));
   return { key: start.toISOString().slice(0, 7), start, end };
+}
+
+/**
+ * Compute a studio used in the calendar month (UTC) that `at` falls in: prepaid and overage
+ * alike, from its usage entries (integer ms).
+ */
+export async function monthlyUsageMs(db: DbOrTx, studioId: string, at: Date = new Date()): Promise<number> {
+  const { start, end } = monthOf(at);
+  const [row] = await db
+    .select({ used: sql<string | null>`coalesce(sum(${ledgerEntries.overageMs} - ${ledgerEntries.computeMs}), 0)` })
+    .from(ledgerEntries)
+    .where(
+      and(
+        eq(ledgerEntries.studioId, studioId),
+        eq(ledgerEntries.kind, "usage"),
+        gte(ledgerEntries.createdAt, start),
+        lt(ledgerEntries.createdAt, end),
+      ),
+    );
+  return Number(row?.used ?? 0);
 }
