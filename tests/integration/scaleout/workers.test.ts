@@ -6,8 +6,8 @@
  *    back when its lease lapses and the other worker finishes the sweep; every chunk is billed
  *    exactly once; the cells route answers the very same bytes as the same spec run on the
  *    embedded PGlite by one process.
- * 2. SIGTERM: a worker with no grace hands its chunk straight back to the queue; a worker with
- *    grace finishes its chunk (written and billed) before it exits; both exit 0.
+ * 2. SIGTERM: a worker with no grace hands its running chunk straight back to the queue; a worker
+ *    with grace finishes what it holds (written and billed) before it exits; both exit 0.
  */
 import { PGlite } from "@electric-sql/pglite";
 import { drizzle } from "drizzle-orm/pglite";
@@ -17,6 +17,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb, migrationsFolder, setDb, type Db } from "@/db/client";
 import * as schema from "@/db/schema";
 import { sweepChunks } from "@/db/schema";
+import { cancelSweep } from "@/lib/queue/cancel";
 import { QueueRunner } from "@/lib/queue/runner";
 import { submitSweep } from "@/lib/queue/submit";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
@@ -34,7 +35,7 @@ reportSkipWithoutPostgres("worker processes on PostgreSQL (SIGKILL mid-sweep, SI
 /** Small chunks (64 of 64 cells), so the SIGKILL lands mid-sweep with most chunks still to run. */
 const CHUNKS = { maxCellsPerChunk: 64 };
 /** Short leases, so a killed worker's chunk comes back within seconds (renewed every third). */
-const LEASE_MS = 1_500;
+const LEASE_MS = 2_000;
 
 async function cellsBytes(studio: TestStudio, sweepId: string): Promise<Buffer> {
   const request = buildRequest({ path: `/api/v1/studios/${studio.studioId}/sweeps/${sweepId}/cells`, cookie: studio.cookies.engineer });
@@ -109,7 +110,7 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
     const [appDb, ...started] = await Promise.all([getDb(), startWorker(database.url, env), startWorker(database.url, env)]);
     db = appDb;
     workers.push(...started);
-  });
+  }, 180_000);
 
   afterAll(async () => {
     for (const worker of workers) if (worker.child.exitCode === null && worker.child.signalCode === null) worker.child.kill("SIGKILL");
@@ -131,11 +132,15 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
     expect(submitted.chunks).toBe(64);
     const [victim, survivor] = workers;
 
-    // Kill the victim once it has written work and holds a chunk (mid-chunk, mid-sweep).
+    // Kill the victim once it has finished a chunk and holds another (mid-chunk, mid-sweep). It is
+    // frozen (SIGSTOP) while we look, so the chunk it holds cannot land between the look and the kill.
     const held = await until("the victim to hold a chunk after finishing one", async () => {
       if ((await victim.metric("kickdrift_worker_chunks_computed_total")) < 1) return null;
+      victim.child.kill("SIGSTOP");
       const rows = await heldBy(db, submitted.id, victim.ownerId);
-      return rows.length > 0 ? rows : null;
+      if (rows.length > 0) return rows;
+      victim.child.kill("SIGCONT");
+      return null;
     });
     victim.child.kill("SIGKILL");
     expect(await victim.exited).toBe("SIGKILL");
@@ -190,34 +195,43 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
     expect(survivor.output()).toMatch(/every chunk it held has landed/);
   });
 
-  it("on SIGTERM a worker hands its chunk back at once (no grace) or finishes it (with grace), and exits 0", async () => {
-    const studio = await makeSweepStudio("Crate Cascade shutdown");
-    // 256 cells of 3 s in 4 chunks of about a quarter second each.
-    const sweep = await submitSweep(db, studio.studioId, { spec: crateBinSpec(3, 1) }, { chunkOptions: { maxCellsPerChunk: 64 } });
-    expect(sweep.chunks).toBe(4);
+  it("on SIGTERM a worker with no grace hands its running chunk straight back; one with grace finishes its chunks; both exit 0", async () => {
     // A long lease: only a hand-back, never a lapse, can free a chunk within this test.
     const env = { KICKDRIFT_LEASE_MS: "600000", KICKDRIFT_POLL_MS: "50" };
-    const [hasty, patient] = await Promise.all([
-      startWorker(database.url, { ...env, KICKDRIFT_SHUTDOWN_GRACE_MS: "0" }),
-      startWorker(database.url, { ...env, KICKDRIFT_SHUTDOWN_GRACE_MS: "60000" }),
-    ]);
-    workers.push(hasty, patient);
-    const [hastyHeld, patientHeld] = await until("both workers to hold a chunk", async () => {
-      const rows = await Promise.all([heldBy(db, sweep.id, hasty.ownerId), heldBy(db, sweep.id, patient.ownerId)]);
-      return rows.every((r) => r.length === 1) ? rows : null;
+
+    // No grace: one chunk of several seconds (256 cells of 20 s), so the signal surely lands while it runs.
+    const heavyStudio = await makeSweepStudio("Crate Cascade long haul");
+    const heavy = await submitSweep(db, heavyStudio.studioId, { spec: crateBinSpec(20, 1) }, { chunkOptions: { targetChunkMs: 600_000, maxCellsPerChunk: 256 } });
+    expect(heavy.chunks).toBe(1);
+    const hasty = await startWorker(database.url, { ...env, KICKDRIFT_SHUTDOWN_GRACE_MS: "0" });
+    workers.push(hasty);
+    const [held] = await until("the no-grace worker to hold the long chunk", async () => {
+      const rows = await heldBy(db, heavy.id, hasty.ownerId);
+      return rows.length === 1 ? rows : null;
     });
     hasty.child.kill("SIGTERM");
-    patient.child.kill("SIGTERM");
     expect(await hasty.exited).toBe(0);
-    expect(await patient.exited).toBe(0);
     expect(hasty.output()).toMatch(/1 chunk\(s\) handed back to the queue/);
-    expect(patient.output()).toMatch(/every chunk it held has landed/);
+    const [handedBack] = await db.select().from(sweepChunks).where(eq(sweepChunks.id, held.id));
+    expect(handedBack).toMatchObject({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: held.attempts - 1 });
+    expect(await usageEntries(heavy.id)).toEqual([]);
+    await cancelSweep(db, heavyStudio.studioId, heavy.id, "test");
 
-    const [handedBack] = await db.select().from(sweepChunks).where(eq(sweepChunks.id, hastyHeld[0].id));
-    expect(handedBack).toMatchObject({ status: "queued", leaseOwner: null, attempts: hastyHeld[0].attempts - 1 });
-    const [finished] = await db.select().from(sweepChunks).where(eq(sweepChunks.id, patientHeld[0].id));
-    expect(finished.status).toBe("done");
-    expect((await usageEntries(sweep.id)).map((d) => d.chunkIndex)).toContain(patientHeld[0].chunkIndex);
+    // With grace: whatever it holds when the signal comes is finished, written and billed.
+    const studio = await makeSweepStudio("Crate Cascade shutdown");
+    const sweep = await submitSweep(db, studio.studioId, { spec: crateBinSpec(3, 1) }, { chunkOptions: { maxCellsPerChunk: 64 } });
+    expect(sweep.chunks).toBe(4);
+    const patient = await startWorker(database.url, { ...env, KICKDRIFT_SHUTDOWN_GRACE_MS: "120000" });
+    workers.push(patient);
+    await until("the graceful worker to hold a chunk", async () => (await heldBy(db, sweep.id, patient.ownerId)).length === 1);
+    patient.child.kill("SIGTERM");
+    expect(await patient.exited).toBe(0);
+    expect(patient.output()).toMatch(/every chunk it held has landed/);
+    const chunks = await db.select().from(sweepChunks).where(eq(sweepChunks.sweepId, sweep.id));
+    const finished = chunks.filter((c) => c.status === "done");
+    expect(finished.length).toBeGreaterThan(0);
+    expect(chunks.filter((c) => c.status === "running")).toEqual([]);
+    expect((await usageEntries(sweep.id)).map((d) => d.chunkIndex).sort()).toEqual(finished.map((c) => c.chunkIndex).sort());
 
     // Nothing is held any more; a runner in the app process takes the rest, each chunk billed once.
     const metrics = await appMetrics();
