@@ -68,6 +68,9 @@ async function openDb(): Promise<Db> {
       import("drizzle-orm/node-postgres/migrator"),
     ]);
     const pool = new Pool({ connectionString: url });
+    // An idle connection that breaks (the server restarts, a managed database fails over) is dropped
+    // and replaced on the next query; unhandled, the pool's error event would end the process.
+    pool.on("error", (error) => console.error(`[kickdrift] database connection lost: ${error.message}`));
     const db = drizzle(pool, { schema });
     try {
       await withMigrationLock(pool, () => migrate(db, { migrationsFolder: migrationsFolder() }));
