@@ -36,6 +36,17 @@ interface WorkerStats {
   cellsComputed: number;
   computeMs: number;
   chunkErrors: number;
+  /** When each recent chunk finished and its cells, for the throughput over the last THROUGHPUT_WINDOW_MS. */
+  recent: { at: number; cells: number }[];
+}
+
+const THROUGHPUT_WINDOW_MS = 60_000;
+
+function cellsPerSecond(stats: WorkerStats, now = performance.now()): number {
+  while (stats.recent.length && stats.recent[0].at < now - THROUGHPUT_WINDOW_MS) stats.recent.shift();
+  const cells = stats.recent.reduce((sum, r) => sum + r.cells, 0);
+  const spanMs = Math.min(THROUGHPUT_WINDOW_MS, process.uptime() * 1000);
+  return spanMs > 0 ? Math.round((cells / spanMs) * 1000 * 100) / 100 : 0;
 }
 
 /** The pool, counting what its threads compute (a chunk whose lease was lost meanwhile is counted, though not written). */
@@ -49,6 +60,8 @@ function countingPool(pool: ChunkPool, stats: WorkerStats): ChunkPool {
         stats.chunksComputed += 1;
         stats.cellsComputed += outcome.cellCount;
         stats.computeMs += outcome.computeMs;
+        stats.recent.push({ at: performance.now(), cells: outcome.cellCount });
+        cellsPerSecond(stats);
         return outcome;
       } catch (error) {
         if (!options?.signal?.aborted) stats.chunkErrors += 1;
@@ -73,6 +86,7 @@ function workerMetrics(ownerId: string, threads: number, runner: QueueRunner | n
     { name: "kickdrift_worker_ready", type: "gauge", help: "1 while the worker claims chunks, 0 while it starts or shuts down.", samples: one(ready ? 1 : 0) },
     { name: "kickdrift_worker_threads", type: "gauge", help: "Worker threads of this process.", samples: one(threads) },
     { name: "kickdrift_worker_chunks_held", type: "gauge", help: "Chunks this worker holds a lease on (running or about to).", samples: one(runner?.chunksHeld ?? 0) },
+    { name: "kickdrift_worker_cells_per_second", type: "gauge", help: "Cells this worker computed per second over the last minute.", samples: one(cellsPerSecond(stats)) },
     { name: "kickdrift_worker_chunks_computed_total", type: "counter", help: "Chunks this worker's threads computed.", samples: one(stats.chunksComputed) },
     { name: "kickdrift_worker_cells_computed_total", type: "counter", help: "Cells this worker's threads computed.", samples: one(stats.cellsComputed) },
     { name: "kickdrift_worker_compute_ms_total", type: "counter", help: "Measured compute of this worker's chunks, in milliseconds.", samples: one(stats.computeMs) },
@@ -100,7 +114,7 @@ export async function main(): Promise<void> {
     process.exit(2);
   }
   const ownerId = `wrk_${os.hostname()}_${process.pid}_${randomBytes(4).toString("hex")}`;
-  const stats: WorkerStats = { chunksComputed: 0, cellsComputed: 0, computeMs: 0, chunkErrors: 0 };
+  const stats: WorkerStats = { chunksComputed: 0, cellsComputed: 0, computeMs: 0, chunkErrors: 0, recent: [] };
   let runner: QueueRunner | null = null;
   let shuttingDown = false;
   const ready = () => runner !== null && runner.isRunning && !shuttingDown;

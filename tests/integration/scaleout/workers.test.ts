@@ -190,6 +190,7 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
 
     // The survivor did the rest; a SIGTERM with nothing held ends it cleanly.
     expect(await survivor.metric("kickdrift_worker_chunks_computed_total")).toBeGreaterThan(0);
+    expect(await survivor.metric("kickdrift_worker_cells_per_second")).toBeGreaterThan(0);
     survivor.child.kill("SIGTERM");
     expect(await survivor.exited).toBe(0);
     expect(survivor.output()).toMatch(/every chunk it held has landed/);
