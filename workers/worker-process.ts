@@ -171,7 +171,9 @@ export async function main(): Promise<void> {
   const db = await getDb(); // migrations run here, one process at a time (advisory lock)
   if (shuttingDown) return;
   const pool = countingPool(createChunkPool({ threads: config.threads, entry: config.entry }), stats);
-  runner = new QueueRunner({ db, pool, ownerId, leaseMs: config.leaseMs, pollMs: config.pollMs, concurrency: config.threads });
+  // One chunk more than threads: the next chunk is claimed and waiting while a finished one is
+  // written, so no thread sits idle between chunks (its lease is renewed like the others).
+  runner = new QueueRunner({ db, pool, ownerId, leaseMs: config.leaseMs, pollMs: config.pollMs, concurrency: config.threads + 1 });
   await runner.start();
   log(`${ownerId}: ready (${config.threads} thread(s), lease ${config.leaseMs} ms, grace ${config.shutdownGraceMs} ms)`);
 }
