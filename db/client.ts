@@ -30,6 +30,35 @@ export function migrationsFolder(): string {
   return path.join(process.cwd(), "drizzle");
 }
 
+/** The key of the PostgreSQL advisory lock held while migrations run ("kickdrift" as a number). */
+export const MIGRATION_LOCK_KEY = 0x6b69636b6472;
+
+/**
+ * Runs `work` while holding a session advisory lock on one connection of the pool, so processes
+ * that start together (the app and several workers) migrate one after the other: the first applies
+ * the pending migrations, the others then find nothing left to apply.
+ */
+export async function withMigrationLock<T>(
+  pool: { connect(): Promise<{ query(text: string, values?: unknown[]): Promise<unknown>; release(error?: Error | boolean): void }> },
+  work: () => Promise<T>,
+): Promise<T> {
+  const client = await pool.connect();
+  let broken: Error | undefined;
+  try {
+    await client.query("select pg_advisory_lock($1)", [MIGRATION_LOCK_KEY]);
+    try {
+      return await work();
+    } finally {
+      await client.query("select pg_advisory_unlock($1)", [MIGRATION_LOCK_KEY]).catch((error: Error) => {
+        // A connection whose unlock failed is dropped (closing it frees the lock) instead of going back to the pool.
+        broken = error;
+      });
+    }
+  } finally {
+    client.release(broken ?? false);
+  }
+}
+
 async function openDb(): Promise<Db> {
   const url = process.env.DATABASE_URL;
   if (url) {
@@ -39,8 +68,16 @@ async function openDb(): Promise<Db> {
       import("drizzle-orm/node-postgres/migrator"),
     ]);
     const pool = new Pool({ connectionString: url });
+    // An idle connection that breaks (the server restarts, a managed database fails over) is dropped
+    // and replaced on the next query; unhandled, the pool's error event would end the process.
+    pool.on("error", (error) => console.error(`[kickdrift] database connection lost: ${error.message}`));
     const db = drizzle(pool, { schema });
-    await migrate(db, { migrationsFolder: migrationsFolder() });
+    try {
+      await withMigrationLock(pool, () => migrate(db, { migrationsFolder: migrationsFolder() }));
+    } catch (error) {
+      await pool.end().catch(() => undefined);
+      throw error;
+    }
     holder().close = () => pool.end();
     return db as unknown as Db;
   }

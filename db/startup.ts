@@ -2,7 +2,7 @@
 // module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
 const startupKey = Symbol.for("kickdrift.startup");
 
-/** Migrations, the auth secret, the local mail fake (when no SMTP_URL), the outbox dispatcher, the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
+/** Migrations, the auth secret, the local mail fake (when no SMTP_URL nor MAIL_FAKE_HOST), the outbox dispatcher, the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
 export function startServerServices(): Promise<void> {
   const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
   store[startupKey] ??= run().catch((error: unknown) => {
@@ -18,7 +18,10 @@ async function run(): Promise<void> {
   const db = await getDb();
   getAuthSecret();
   const { isMailFakeEnabled } = await import("../lib/mail/mode");
-  if (isMailFakeEnabled()) {
+  if (isMailFakeEnabled() && process.env.MAIL_FAKE_HOST) {
+    // The fake runs as its own process (scripts/mail-fake.ts, the compose file's mail service).
+    console.log(`[kickdrift] mail goes to the mail fake at smtp://${process.env.MAIL_FAKE_HOST}:${process.env.MAIL_FAKE_PORT ?? 2525}; messages at ${appBaseUrl()}/mail`);
+  } else if (isMailFakeEnabled()) {
     const { startMailFake } = await import("../lib/fakes/smtp-fake");
     try {
       const fake = await startMailFake();

@@ -28,6 +28,7 @@ export type ErrorCode =
   | "insufficient_minutes"
   | "invalid_state"
   | "quote_changed"
+  | "not_ready"
   | "internal_error";
 
 export interface FieldIssue {

@@ -18,6 +18,26 @@ if [ ! -x /usr/bin/chromium ]; then
   fi
 fi
 
+# The scale-out tests (tests/integration/scaleout) run worker processes against a real PostgreSQL:
+# a throw-away cluster of Debian's postgresql on 127.0.0.1 and a free port, stopped on exit.
+if [ -z "${KICKDRIFT_TEST_PG_URL:-}" ]; then
+  if ! ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1; then
+    if [ "$(id -u)" = "0" ] && command -v apt-get >/dev/null; then
+      echo "Debian postgresql is missing: installing it (apt-get install -y postgresql)"
+      apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq postgresql >/dev/null
+    else
+      echo "The scale-out tests need Debian's postgresql: run 'sudo apt-get install -y postgresql' and try again." >&2
+      exit 1
+    fi
+  fi
+  step "throw-away PostgreSQL for the scale-out tests"
+  pg_env="$(npx tsx scripts/temp-postgres.ts start)"
+  eval "$pg_env"
+  export KICKDRIFT_TEST_PG_URL KICKDRIFT_TEST_PG_DIR
+  trap 'npx tsx scripts/temp-postgres.ts stop "$KICKDRIFT_TEST_PG_DIR"' EXIT
+  echo "PostgreSQL at $KICKDRIFT_TEST_PG_URL"
+fi
+
 step "lint"
 npx eslint .
 

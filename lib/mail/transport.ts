@@ -14,7 +14,8 @@ async function transportOptions(): Promise<string | { host: string; port: number
   if (process.env.SMTP_URL) return process.env.SMTP_URL;
   const fake = await runningMailFake();
   return {
-    host: fake?.host ?? "127.0.0.1",
+    // MAIL_FAKE_HOST: the fake runs as its own service (docker-compose.yml), not in this process.
+    host: fake?.host ?? (process.env.MAIL_FAKE_HOST || "127.0.0.1"),
     port: fake?.port ?? Number(process.env.MAIL_FAKE_PORT ?? 2525),
     secure: false,
     ignoreTLS: true,

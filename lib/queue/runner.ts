@@ -97,6 +97,45 @@ export class QueueRunner {
     if (this.renewTimer) clearInterval(this.renewTimer);
   }
 
+  /** Whether the runner is claiming chunks (started and not stopped). */
+  get isRunning(): boolean {
+    return this.running;
+  }
+
+  /** Chunks this runner holds a lease on right now. */
+  get chunksHeld(): number {
+    return this.inFlight.size;
+  }
+
+  /**
+   * Graceful shutdown (a worker process on SIGTERM): stop claiming; running chunks get `graceMs` to
+   * land and be written as usual, their leases renewed meanwhile. Chunks still held after that go
+   * straight back to the queue (lease released, the attempt not counted) for another runner, and
+   * their results are dropped should they land later. Returns how many chunks were handed back.
+   */
+  async shutdown(graceMs: number): Promise<{ returned: number }> {
+    this.running = false;
+    this.poke();
+    await this.loopDone;
+    let timer: NodeJS.Timeout | undefined;
+    const allLanded = await Promise.race([
+      Promise.allSettled([...this.landing]).then(() => true),
+      new Promise<boolean>((resolve) => (timer = setTimeout(() => resolve(false), Math.max(0, graceMs)))),
+    ]);
+    clearTimeout(timer);
+    if (this.renewTimer) clearInterval(this.renewTimer);
+    if (allLanded) return { returned: 0 };
+    this.crashed = true;
+    const ids = [...this.inFlight.keys()];
+    for (const flight of this.inFlight.values()) flight.abort.abort("runner shutting down");
+    if (ids.length === 0) return { returned: 0 };
+    const result = await this.db.execute(sql`
+      update sweep_chunks set status = 'queued', lease_owner = null, lease_expires_at = null, attempts = greatest(attempts - 1, 0)
+      where lease_owner = ${this.ownerId} and status = 'running' and id in (${sql.join(ids.map((id) => sql`${id}`), sql`, `)})
+      returning id`);
+    return { returned: (result as unknown as { rows: unknown[] }).rows.length };
+  }
+
   /** Stop abruptly as a crashed process would: nothing more is written, leases stay held until they lapse. */
   async crash(): Promise<void> {
     this.crashed = true;

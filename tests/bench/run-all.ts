@@ -9,8 +9,9 @@ import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
+import { scaleOut } from "./scale-out";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut];
 
 async function main() {
   const wanted = process.argv.slice(2);

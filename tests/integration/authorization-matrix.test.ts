@@ -198,6 +198,9 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/admin/studios", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/admin/users", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/dev/mail", method: "GET", expect: PUBLIC(200) },
+  { route: "health", method: "GET", expect: PUBLIC(200) },
+  { route: "ready", method: "GET", expect: PUBLIC(200) },
+  { route: "metrics", method: "GET", expect: PUBLIC(200) },
 ];
 
 let mailFake: MailFake;
