@@ -28,6 +28,10 @@ export type ErrorCode =
   | "insufficient_minutes"
   | "invalid_state"
   | "quote_changed"
+  | "invalid_signature"
+  | "unknown_event_type"
+  | "billing_unavailable"
+  | "payment_provider_error"
   | "internal_error";
 
 export interface FieldIssue {
