@@ -181,7 +181,7 @@ function LedgerTable({ api }: { api: string }) {
                   <td className={cx(td, "text-right tabular-nums", entry.computeMs < 0 ? "text-danger" : "text-ok")}>{formatMinutes(entry.computeMs)}</td>
                   <td className={cx(td, "text-right tabular-nums")}>{entry.overageMs ? formatMinutes(entry.overageMs) : ""}</td>
                   <td className={cx(td, "text-right tabular-nums")}>{entry.amountCents ? formatPriceCents(entry.amountCents) : ""}</td>
-                  <td className={cx(td, "text-ink-muted")}>{entry.memo}</td>
+                  <td className={cx(td, "break-all text-ink-muted")}>{entry.memo}</td>
                 </tr>
               ))}
             </tbody>
