@@ -18,7 +18,7 @@ export function FinancePage() {
   return (
     <div>
       <PageHeading eyebrow="Platform admin" title="Finance">
-        Per studio and invoiced period: overage in the ledger, the meter total Stripe invoiced, and the invoiced quantity; revenue by month. {TAX_NOTE}
+        Per studio and invoiced period: overage in the ledger, overage delivered to Stripe’s meter, and the quantity Stripe invoiced; a period matches when all three agree. Revenue by month. {TAX_NOTE}
       </PageHeading>
       <AdminNav current="/admin/finance" />
       {finance.isPending ? (
@@ -54,7 +54,7 @@ export function FinancePage() {
                 <table className="w-full text-sm" data-testid="finance-periods">
                   <thead className="border-b border-line">
                     <tr>
-                      {["Studio", "Period (UTC)", "Invoice", "Ledger overage min", "Metered min", "Invoiced min", "Amount", "Check"].map((h) => (
+                      {["Studio", "Period (UTC)", "Invoice", "Ledger overage min", "Delivered to meter min", "Invoiced min", "Amount", "Check"].map((h) => (
                         <th key={h} scope="col" className={th}>
                           {h}
                         </th>

@@ -2,13 +2,13 @@
 import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { invoices, LEDGER_KINDS, ledgerEntries, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
+import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
 import { parseWith } from "@/lib/api/body";
 import { notFound } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
-import { monthlyOverageMs } from "./usage";
+import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();
@@ -184,8 +184,23 @@ export async function invoiceDetail(db: DbOrTx, studioId: string, invoiceId: str
 }
 
 /**
- * The platform's money view: per studio and invoiced period, the ledger's overage against the
- * meter total Stripe invoiced; and revenue per UTC month (pack purchases and invoiced overage, cents).
+ * Overage the app has delivered to Stripe's meter for a studio with event times in [start, end)
+ * (unix s): the meter events of the outbox marked delivered, timed as deliverMeterEvent times them.
+ */
+async function deliveredMeterMs(db: DbOrTx, studioId: string, start: number, end: number): Promise<number> {
+  const [account] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+  const floor = account?.subscriptionStartedAt ? Math.floor(account.subscriptionStartedAt.getTime() / 1000) : 0;
+  const at = sql`greatest((${outbox.payload}->>'timestamp')::bigint, ${floor})`;
+  const [row] = await db
+    .select({ total: sql<string | null>`coalesce(sum((${outbox.payload}->>'valueMs')::bigint), 0)` })
+    .from(outbox)
+    .where(and(eq(outbox.studioId, studioId), eq(outbox.kind, METER_EVENT_KIND), eq(outbox.status, "delivered"), sql`${at} >= ${start}`, sql`${at} < ${end}`));
+  return Number(row?.total ?? 0);
+}
+
+/**
+ * The platform's money view: per studio and invoiced period, the ledger's overage against what was
+ * delivered to Stripe's meter against the quantity Stripe invoiced; and revenue per UTC month (pack purchases and invoiced overage, cents).
  */
 export async function platformFinance(db: DbOrTx) {
   const rows = await db.select({ invoice: invoices, studioName: studios.name }).from(invoices).innerJoin(studios, eq(studios.id, invoices.studioId)).orderBy(desc(invoices.periodEnd));
@@ -193,6 +208,8 @@ export async function platformFinance(db: DbOrTx) {
   for (const { invoice, studioName } of rows) {
     const detail = await invoiceDetail(db, invoice.studioId, invoice.id);
     const ledgerMs = detail.lines.reduce((s, l) => s + l.ledgerMs, 0);
+    let meteredMs = 0;
+    for (const line of invoice.lines) meteredMs += await deliveredMeterMs(db, invoice.studioId, line.periodStart, line.periodEnd);
     periods.push({
       studioId: invoice.studioId,
       studioName,
@@ -202,10 +219,10 @@ export async function platformFinance(db: DbOrTx) {
       periodStart: invoice.periodStart.toISOString(),
       periodEnd: invoice.periodEnd.toISOString(),
       ledgerMs,
-      meteredMs: invoice.quantityMs,
+      meteredMs,
       invoicedMs: detail.lines.reduce((s, l) => s + l.quantityMs, 0),
       totalCents: invoice.totalCents,
-      reconciled: detail.reconciled,
+      reconciled: detail.reconciled && meteredMs === ledgerMs,
     });
   }
   const month = sql<string>`to_char(${ledgerEntries.createdAt} at time zone 'UTC', 'YYYY-MM')`;

@@ -4,7 +4,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
-import { invoices, studioBilling } from "@/db/schema";
+import { eq } from "drizzle-orm";
+import { invoices, outbox, studioBilling } from "@/db/schema";
 import { formatMinutes } from "@/lib/billing/format";
 import { recordChunkUsage } from "@/lib/billing/usage";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
@@ -123,8 +124,13 @@ describe("billing read API", () => {
 
     const admin = await makeUser({ isAdmin: true });
     const finance = await call(financeGet, { path: "/api/v1/admin/finance", cookie: await sessionCookie(admin) });
-    const view = finance.body as { periods: { invoiceId: string; ledgerMs: number; invoicedMs: number; reconciled: boolean }[]; revenueByMonth: { packCents: number }[] };
+    const view = finance.body as { periods: { invoiceId: string; ledgerMs: number; meteredMs: number; invoicedMs: number; reconciled: boolean }[]; revenueByMonth: { packCents: number }[] };
     expect(view.periods.find((p) => p.invoiceId === "in_api_short")).toMatchObject({ ledgerMs: 4_000, invoicedMs: 2_500, reconciled: false });
+    // Nothing delivered to the meter yet: the matching invoice is not reconciled on the platform view until it is.
+    expect(view.periods.find((p) => p.invoiceId === "in_api_match")).toMatchObject({ ledgerMs: 4_000, meteredMs: 0, invoicedMs: 4_000, reconciled: false });
+    await db.update(outbox).set({ status: "delivered" }).where(eq(outbox.kind, "stripe.meter_event"));
+    const after = (await call(financeGet, { path: "/api/v1/admin/finance", cookie: await sessionCookie(admin) })).body as typeof view;
+    expect(after.periods.find((p) => p.invoiceId === "in_api_match")).toMatchObject({ ledgerMs: 4_000, meteredMs: 4_000, invoicedMs: 4_000, reconciled: true });
     // 900 + 1,800 + 2,700 = 5,400 ¢ of packs this month (arithmetic).
     expect(view.revenueByMonth.reduce((sum, m) => sum + m.packCents, 0)).toBe(5_400);
   });
