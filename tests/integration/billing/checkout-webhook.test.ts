@@ -65,6 +65,14 @@ describe("buying a pack", () => {
     expect((receipts[0].payload as { to: string; subject: string }).to).toBe(s.owner.email);
   });
 
+  it("two packs in one checkout credit twice the minutes for twice the price", async () => {
+    const { sessionId } = (await startCheckout(s.cookies.finance, { packId: "pack_tapout", quantity: 2 })).body as { sessionId: string };
+    await payOnHostedPage(h.fake, sessionId, "5555 5555 5555 4444");
+    await waitUntil(async () => (await purchases(sessionId)).length === 1, "the purchase credit");
+    // 2 × 120 minutes × 60,000 ms = 14,400,000 ms for 2 × 900 ¢ (the pack table).
+    expect((await purchases(sessionId))[0]).toMatchObject({ computeMs: 14_400_000, amountCents: 1800 });
+  });
+
   it("a declined card shows the decline and credits nothing", async () => {
     const before = await ledgerSnapshot(s.studioId);
     const { sessionId } = (await startCheckout(s.cookies.finance, { packId: "pack_tapout" })).body as { sessionId: string };
