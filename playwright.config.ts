@@ -11,6 +11,9 @@ import path from "node:path";
  */
 const port = Number(process.env.KD_E2E_PORT ?? 3100);
 const mailFakePort = Number(process.env.KD_E2E_MAIL_PORT ?? 2626);
+/** The local Stripe fake of the main server (the second server gets the next port). */
+const stripeFakePort = Number(process.env.KD_E2E_STRIPE_PORT ?? 12500);
+process.env.KD_E2E_STRIPE_PORT = String(stripeFakePort);
 const baseURL = `http://localhost:${port}`;
 /** A fresh folder per run, shared with the worker processes through the environment. */
 function freshDataDir(variable: string): string {
@@ -65,6 +68,10 @@ export default defineConfig({
         KICKDRIFT_DEMO: "1",
         NEXTAUTH_URL: baseURL,
         MAIL_FAKE_PORT: String(mailFakePort),
+        STRIPE_FAKE_PORT: String(stripeFakePort),
+        // Billing runs against the local Stripe fake, never a configured Stripe account.
+        STRIPE_SECRET_KEY: "",
+        STRIPE_WEBHOOK_SECRET: "",
         // The flows read mail from the local fake and keep data in PGlite: never a configured SMTP server or database.
         SMTP_URL: "",
         DATABASE_URL: "",
@@ -84,6 +91,8 @@ export default defineConfig({
         // Port 9 (discard) on loopback: a configured relay that no test sends mail through.
         SMTP_URL: "smtp://127.0.0.1:9",
         DATABASE_URL: "",
+        STRIPE_FAKE_PORT: String(stripeFakePort + 1),
+        STRIPE_SECRET_KEY: "",
       },
     },
   ],

@@ -400,3 +400,65 @@ export const auditLog = pgTable(
 export type StudioQuotaRow = typeof studioQuotas.$inferSelect;
 export type OutboxRow = typeof outbox.$inferSelect;
 export type AuditLogRow = typeof auditLog.$inferSelect;
+
+// ---------------------------------------------------------------------------
+// Billing: the Stripe customer of each studio, the webhook events already processed, and the
+// invoices as Stripe last reported them (re-read on every event, so the order of events is moot).
+
+/** One Stripe customer (and one metered subscription for overage) per studio. */
+export const studioBilling = pgTable("studio_billing", {
+  studioId: text("studio_id")
+    .primaryKey()
+    .references(() => studios.id, { onDelete: "cascade" }),
+  stripeCustomerId: text("stripe_customer_id").notNull().unique(),
+  stripeSubscriptionId: text("stripe_subscription_id"),
+  /** Start of the subscription's first period: overage metered earlier counts from here. */
+  subscriptionStartedAt: ts("subscription_started_at"),
+  createdAt: createdAt(),
+});
+
+/** Webhook events already handled: a second delivery of the same id changes nothing. */
+export const stripeEvents = pgTable("stripe_events", {
+  id: text("id").primaryKey(),
+  type: text("type").notNull(),
+  /** What the handler did, e.g. "credited purchase:cs_test_…" or "ignored: session not paid". */
+  outcome: text("outcome").notNull().default(""),
+  receivedAt: createdAt(),
+});
+
+/** Invoices of studios, mirrored from Stripe; `lines` holds each line's period, quantity (ms) and amount. */
+export const invoices = pgTable(
+  "invoices",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    number: text("number"),
+    status: text("status").notNull(),
+    currency: text("currency").notNull().default("usd"),
+    periodStart: ts("period_start").notNull(),
+    periodEnd: ts("period_end").notNull(),
+    /** Metered overage on the invoice's lines, integer ms. */
+    quantityMs: bigint("quantity_ms", { mode: "number" }).notNull().default(0),
+    totalCents: integer("total_cents").notNull().default(0),
+    lines: jsonb("lines").$type<InvoiceLineRecord[]>().notNull().default([]),
+    finalizedAt: ts("finalized_at"),
+    createdAt: createdAt(),
+    updatedAt: timestamp("updated_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),
+  },
+  (t) => [index("invoices_studio_period_idx").on(t.studioId, t.periodEnd)],
+);
+
+export interface InvoiceLineRecord {
+  id: string;
+  description: string;
+  /** Unix seconds, as Stripe gives them. */
+  periodStart: number;
+  periodEnd: number;
+  quantityMs: number;
+  amountCents: number;
+}
+
+export type StudioBilling = typeof studioBilling.$inferSelect;
+export type InvoiceRow = typeof invoices.$inferSelect;

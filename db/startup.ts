@@ -2,7 +2,7 @@
 // module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
 const startupKey = Symbol.for("kickdrift.startup");
 
-/** Migrations, the auth secret, the local mail fake (when no SMTP_URL nor MAIL_FAKE_HOST), the outbox dispatcher, the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
+/** Migrations, the auth secret, the local mail fake (when no SMTP_URL nor MAIL_FAKE_HOST), billing (the local Stripe fake when no STRIPE_SECRET_KEY), the outbox dispatcher, the queue runner (unless KICKDRIFT_RUNNER=off), and with KICKDRIFT_DEMO=1 the demo seed. Idempotent. */
 export function startServerServices(): Promise<void> {
   const store = globalThis as unknown as Record<symbol, Promise<void> | undefined>;
   store[startupKey] ??= run().catch((error: unknown) => {
@@ -29,6 +29,16 @@ async function run(): Promise<void> {
     } catch (error) {
       // Another process holds the port: mail sent from here then goes to that process's fake.
       console.error(`[kickdrift] could not start the local mail fake: ${(error as Error).message}`);
+    }
+  }
+  {
+    // Billing: Stripe test mode with STRIPE_SECRET_KEY, else the local Stripe fake; meter events go out through the outbox.
+    const { startBilling } = await import("../lib/billing/startup");
+    try {
+      console.log(`[kickdrift] ${await startBilling(db)}`);
+    } catch (error) {
+      // Without Stripe the site still serves pages; billing routes answer 503 until it is reachable.
+      console.error(`[kickdrift] could not start billing: ${(error as Error).message}`);
     }
   }
   {

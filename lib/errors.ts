@@ -29,6 +29,10 @@ export type ErrorCode =
   | "invalid_state"
   | "quote_changed"
   | "not_ready"
+  | "invalid_signature"
+  | "unknown_event_type"
+  | "billing_unavailable"
+  | "payment_provider_error"
   | "internal_error";
 
 export interface FieldIssue {

@@ -7,6 +7,7 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
 import { queryKeys } from "@/lib/ui/queries";
 import type { AdminStudio, AdminUser } from "@/lib/ui/types";
+import { AdminNav } from "./admin-nav";
 
 const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
 const td = "px-3 py-2.5";
@@ -29,6 +30,7 @@ export function AdminHome() {
       <PageHeading eyebrow="Platform admin" title="Studios and users">
         Every studio and account on this Kickdrift installation. Admins read these lists but are not members of a studio unless invited.
       </PageHeading>
+      <AdminNav current="/admin" />
       <div className="mb-6 max-w-sm">
         <TextField id="admin-filter" label="Filter by name, e-mail or id" type="search" value={filter} onChange={(event) => setFilter(event.target.value)} />
       </div>

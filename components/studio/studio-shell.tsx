@@ -20,6 +20,9 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
   if (role === "owner") {
     tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
   }
+  if (role === "owner" || role === "finance") {
+    tabs.push({ href: `${base}/billing`, label: "Billing" }, { href: `${base}/invoices`, label: "Invoices" });
+  }
   return (
     <div>
       <div className="mb-6 flex flex-wrap items-end justify-between gap-4 border-b border-line pb-4">
@@ -42,8 +45,8 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
       {tabs.length > 1 ? (
         <nav aria-label="Studio" className="mb-6 flex gap-1">
           {tabs.map((tab) => {
-            // The Sweeps tab stays marked on the builder, a sweep and its cells.
-            const active = pathname === tab.href || (tab.label === "Sweeps" && pathname.startsWith(`${tab.href}/`));
+            // The Sweeps tab stays marked on the builder, a sweep and its cells; Invoices on one invoice.
+            const active = pathname === tab.href || ((tab.label === "Sweeps" || tab.label === "Invoices") && pathname.startsWith(`${tab.href}/`));
             return (
               <Link
                 key={tab.href}

@@ -160,3 +160,6 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
   };
   return Object.assign(guarded, { policy });
 }
+
+/** Money: owners and finance people buy packs and read balances, ledgers and invoices; engineers and API tokens do not. */
+export const BILLING_PEOPLE = { access: "studio", roles: ["owner", "finance"], token: "never" } as const satisfies RoutePolicy;

@@ -47,3 +47,16 @@ export function formatPriceCents(priceCents: number, currency: CreditPack["curre
 export function centsPerMinute(pack: CreditPack): number {
   return Math.round((pack.priceCents / pack.minutes) * 10) / 10;
 }
+
+/** Overage (compute past the prepaid balance, when an admin allows it) is invoiced monthly at this price per minute, in cents, before tax. */
+export const OVERAGE_CENTS_PER_MINUTE = 9;
+
+/** The overage price per metered millisecond as Stripe's decimal string: 9 ¢ / 60,000 ms = 0.00015 ¢ (arithmetic). */
+export const OVERAGE_UNIT_AMOUNT_DECIMAL = "0.00015";
+
+/** A low-balance e-mail goes to owners and finance when the balance falls to or below this (integer ms). */
+export const LOW_BALANCE_MS = 10 * 60_000;
+
+export function findPack(id: string): CreditPack | undefined {
+  return CREDIT_PACKS.find((pack) => pack.id === id);
+}

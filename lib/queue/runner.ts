@@ -14,7 +14,8 @@ import { randomBytes } from "node:crypto";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep, type SweepChunk } from "@/db/schema";
-import { appendLedgerEntry, usageKey } from "@/lib/ledger/ledger";
+import { recordChunkUsage } from "@/lib/billing/usage";
+import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
 import { unpackResults, type ChunkOutcome, type ChunkTask } from "@/lib/sweeps/chunk-task";
 import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { scenarioHash } from "@/lib/sweeps/hash";
@@ -185,12 +186,16 @@ export class QueueRunner {
   /** Pause sweeps of studios with no minutes left; resume them once the balance is positive again. */
   private async applyBalances(): Promise<void> {
     const balance = sql`(select coalesce(sum(l.compute_ms), 0) from ledger_entries l where l.studio_id = sweeps.studio_id)`;
+    // Overage allowed with headroom under this month's overage cap keeps a sweep running past a zero balance.
+    const overageHeadroom = sql`exists (select 1 from studio_quotas q where q.studio_id = sweeps.studio_id and q.overage_allowed
+      and coalesce(q.overage_cap_ms, ${PLAN_DEFAULTS.overageCapMs}) > (select coalesce(sum(l.overage_ms), 0) from ledger_entries l
+        where l.studio_id = sweeps.studio_id and l.kind = 'usage' and l.created_at >= date_trunc('month', now() at time zone 'UTC') at time zone 'UTC'))`;
     await this.db.execute(sql`
       update sweeps set status = 'paused', reason = ${OUT_OF_MINUTES}
-      where status in ('queued', 'running') and ${balance} <= 0`);
+      where status in ('queued', 'running') and ${balance} <= 0 and not ${overageHeadroom}`);
     await this.db.execute(sql`
       update sweeps set status = case when started_at is null then 'queued' else 'running' end, reason = null
-      where status = 'paused' and reason = ${OUT_OF_MINUTES} and ${balance} > 0`);
+      where status = 'paused' and reason = ${OUT_OF_MINUTES} and (${balance} > 0 or ${overageHeadroom})`);
   }
 
   /** Chunks of sweeps cancelled meanwhile: drop them if they still wait for a thread. */
@@ -351,13 +356,11 @@ export class QueueRunner {
         .update(sweepChunks)
         .set({ status: "done", leaseOwner: null, leaseExpiresAt: null, computeMs: outcome.computeMs, lastError: null })
         .where(eq(sweepChunks.id, chunk.id));
-      const billed = await appendLedgerEntry(tx, {
+      const { billed } = await recordChunkUsage(tx, {
         studioId: sweep.studioId,
-        kind: "usage",
-        computeMs: -outcome.computeMs,
-        idempotencyKey: usageKey(sweep.id, chunk.chunkIndex),
         sweepId: sweep.id,
         chunkIndex: chunk.chunkIndex,
+        computeMs: outcome.computeMs,
         memo: `Sweep ${sweep.id} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`,
       });
       const [cellsDone] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweepCells).where(eq(sweepCells.sweepId, sweep.id));

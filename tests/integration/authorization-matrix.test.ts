@@ -9,6 +9,9 @@ import type { User } from "@/db/schema";
 import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
 import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import { getDb } from "@/db/client";
+import { invoices } from "@/db/schema";
+import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
+import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { submitSweep } from "@/lib/queue/submit";
 import { closeTestDb, useFreshDb } from "../helpers/db";
@@ -42,6 +45,8 @@ interface World {
   spareTokenId: string;
   resetSecret: string;
   publicInviteSecret: string;
+  /** An invoice of the studio (as the webhook would have mirrored it). */
+  invoiceId: string;
   /** An invite addressed to each person-actor (to a third studio), so accepting can succeed. */
   inviteFor: Partial<Record<ActorName, string>>;
   auth: Record<ActorName, { cookie?: string; bearer?: string }>;
@@ -70,6 +75,8 @@ async function buildWorld(): Promise<World> {
   auth.otherStudioToken = { bearer: (await makeToken(otherStudioId, ["read", "write"])).secret };
   await appendLedgerEntry(await getDb(), { studioId, kind: "adjustment", computeMs: 60 * 60_000, idempotencyKey: `matrix:${studioId}`, memo: "test grant" });
   const sweep = await submitSweep(await getDb(), studioId, { spec: puckSpec() });
+  const invoiceId = `in_matrix_${studioId}`;
+  await (await getDb()).insert(invoices).values({ id: invoiceId, studioId, status: "open", periodStart: new Date(Date.now() - 86_400_000), periodEnd: new Date(), lines: [] });
   return {
     studioId,
     sweepId: sweep.id,
@@ -78,6 +85,7 @@ async function buildWorld(): Promise<World> {
     spareTokenId: (await makeToken(studioId, ["read"])).id,
     resetSecret: await makePasswordReset(subject.id),
     publicInviteSecret: (await makeInvite(studioId, uniqueEmail("public"), "engineer")).secret,
+    invoiceId,
     inviteFor,
     auth,
   };
@@ -123,6 +131,8 @@ const OWNER_MANAGES = (ok: number) =>
   row((a) => (a === "engineer" || a === "finance" ? 403 : STUDIO_READ_NO_TOKENS(ok)[a]));
 
 const studio = (w: World) => ({ studioId: w.studioId });
+// Money: owners and finance people; engineers 403; API tokens never (403).
+const BILLING_PEOPLE_ROW = (ok: number) => row((a) => (a === "finance" ? ok : OWNER_MANAGES(ok)[a]));
 const sweep = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId });
 const cell = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId, index: "0" });
 // Sweep work: engineers and owners, and write tokens; finance and read tokens are refused.
@@ -201,14 +211,33 @@ export const ROUTES: RouteRow[] = [
   { route: "health", method: "GET", expect: PUBLIC(200) },
   { route: "ready", method: "GET", expect: PUBLIC(200) },
   { route: "metrics", method: "GET", expect: PUBLIC(200) },
+  { route: "v1/studios/[studioId]/billing", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/checkout", method: "POST", params: studio, body: () => ({ packId: "pack_tapout" }), expect: BILLING_PEOPLE_ROW(201) },
+  { route: "v1/studios/[studioId]/billing/ledger", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/usage", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/invoices", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  {
+    route: "v1/studios/[studioId]/billing/invoices/[invoiceId]",
+    method: "GET",
+    params: (w) => ({ studioId: w.studioId, invoiceId: w.invoiceId }),
+    expect: BILLING_PEOPLE_ROW(200),
+  },
+  { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
+  // Stripe's deliveries are public; without a valid signature every caller gets 400 and nothing happens.
+  { route: "v1/stripe/webhook", method: "POST", body: () => ({ id: "evt_matrix", type: "invoice.paid", data: { object: { id: "in_matrix" } } }), expect: PUBLIC(400) },
 ];
 
 let mailFake: MailFake;
+let stripeFake: StripeFake;
 beforeAll(async () => {
   await useFreshDb();
   mailFake = await startMailFake({ port: 0 });
+  stripeFake = await startStripeFake({ port: 0 });
+  configureBilling({ stripe: fakeStripeClient(stripeFake.port), webhookSecret: "whsec_matrix_only", mode: "fake" });
 });
 afterAll(async () => {
+  configureBilling(undefined);
+  await stripeFake.close();
   await mailFake.close();
   await closeTestDb();
 });

@@ -1,0 +1,34 @@
+import Stripe from "stripe";
+import { getDb } from "@/db/client";
+import { withAuth } from "@/lib/auth/guard";
+import { readBodyText } from "@/lib/api/body";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { billingConfig } from "@/lib/billing/stripe";
+import { handleStripeEvent } from "@/lib/billing/webhook";
+import { ApiError } from "@/lib/errors";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** Stripe events are small; anything larger is not from Stripe. */
+const MAX_WEBHOOK_BYTES = 512 * 1024;
+
+// Public: Stripe calls it. Authenticity comes from the signature over the raw body, checked first.
+export const POST = withAuth({ access: "public" }, async ({ req }) => {
+  const signature = req.headers.get("stripe-signature");
+  if (!signature) throw new ApiError(400, "invalid_signature", "The Stripe-Signature header is missing.", "stripe-signature");
+  const raw = await readBodyText(req, MAX_WEBHOOK_BYTES);
+  const { stripe, webhookSecret } = billingConfig();
+  let event: unknown;
+  try {
+    event = stripe.webhooks.constructEvent(raw, signature, webhookSecret);
+  } catch (error) {
+    if (error instanceof Stripe.errors.StripeSignatureVerificationError)
+      throw new ApiError(400, "invalid_signature", "The Stripe-Signature does not match the body (or is too old).", "stripe-signature");
+    throw new ApiError(400, "invalid_json", "The signed body is not a JSON event.");
+  }
+  return json(await handleStripeEvent(await getDb(), stripe, event));
+});
+
+export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

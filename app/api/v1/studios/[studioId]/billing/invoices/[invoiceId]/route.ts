@@ -1,0 +1,14 @@
+import { getDb } from "@/db/client";
+import { BILLING_PEOPLE, withAuth } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { invoiceDetail } from "@/lib/billing/queries";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = withAuth<typeof BILLING_PEOPLE, { studioId: string; invoiceId: string }>(BILLING_PEOPLE, async ({ studio, params }) =>
+  json(await invoiceDetail(await getDb(), studio.id, params.invoiceId)),
+);
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -1,0 +1,12 @@
+import { getDb } from "@/db/client";
+import { BILLING_PEOPLE, withAuth } from "@/lib/auth/guard";
+import { otherMethods } from "@/lib/api/methods";
+import { json } from "@/lib/api/respond";
+import { listInvoices } from "@/lib/billing/queries";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+export const GET = withAuth(BILLING_PEOPLE, async ({ studio }) => json({ invoices: await listInvoices(await getDb(), studio.id) }));
+
+export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -1,0 +1,14 @@
+import type { Metadata } from "next";
+import { BillingPage } from "@/components/billing/billing-page";
+import { requireStudio } from "@/lib/auth/page-guard";
+
+export const metadata: Metadata = { title: "Billing" };
+export const dynamic = "force-dynamic";
+
+export default async function BillingRoute({ params, searchParams }: { params: Promise<{ studioId: string }>; searchParams: Promise<Record<string, string | string[] | undefined>> }) {
+  const { studioId } = await params;
+  const query = await searchParams;
+  const access = await requireStudio(studioId, { callbackUrl: `/studios/${studioId}/billing`, roles: ["owner", "finance"] });
+  const checkout = typeof query.checkout === "string" && ["success", "cancelled"].includes(query.checkout) ? query.checkout : null;
+  return <BillingPage studioId={access.studio.id} studioName={access.studio.name} role={access.role} checkout={checkout} />;
+}

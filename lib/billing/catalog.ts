@@ -1,0 +1,148 @@
+/**
+ * What Kickdrift sells, made once in Stripe (the fake or test mode) and found again by lookup key:
+ * one price per credit pack, the overage meter and its metered monthly price. Then one customer and
+ * one overage subscription per studio.
+ */
+import { and, eq } from "drizzle-orm";
+import Stripe from "stripe";
+import type { DbOrTx } from "@/db/client";
+import { memberships, studioBilling, studios, users, type StudioBilling } from "@/db/schema";
+import { CREDIT_PACKS, OVERAGE_UNIT_AMOUNT_DECIMAL } from "./packs";
+
+export const METER_EVENT_NAME = "kickdrift_overage_ms";
+export const METER_CUSTOMER_KEY = "stripe_customer_id";
+export const METER_VALUE_KEY = "value";
+const OVERAGE_LOOKUP_KEY = "kickdrift_overage_ms_monthly";
+/** A price change makes a new price under a new key; old sessions keep the price they were made with. */
+export const packLookupKey = (pack: { id: string; priceCents: number }) => `kickdrift_${pack.id}_${pack.priceCents}`;
+
+export interface Catalog {
+  /** Stripe price id per pack id. */
+  packPrices: Record<string, string>;
+  meterId: string;
+  overagePriceId: string;
+}
+
+const catalogs = new WeakMap<Stripe, Promise<Catalog>>();
+
+/** The catalog for this client, made on first use (concurrent callers share one bootstrap). */
+export function ensureCatalog(stripe: Stripe): Promise<Catalog> {
+  let found = catalogs.get(stripe);
+  if (!found) {
+    found = bootstrap(stripe);
+    catalogs.set(stripe, found);
+    found.catch(() => catalogs.delete(stripe));
+  }
+  return found;
+}
+
+async function bootstrap(stripe: Stripe): Promise<Catalog> {
+  const wanted = CREDIT_PACKS.map((p) => packLookupKey(p));
+  const existing = await stripe.prices.list({ lookup_keys: [...wanted, OVERAGE_LOOKUP_KEY], active: true, limit: 100 });
+  const byKey = new Map(existing.data.map((p) => [p.lookup_key, p]));
+  const packPrices: Record<string, string> = {};
+  for (const pack of CREDIT_PACKS) {
+    const lookup = packLookupKey(pack);
+    let price = byKey.get(lookup);
+    if (!price) {
+      price = await stripe.prices.create(
+        {
+          currency: pack.currency,
+          unit_amount: pack.priceCents,
+          lookup_key: lookup,
+          product_data: { name: `Kickdrift ${pack.name} — ${pack.minutes} compute minutes`, metadata: { pack_id: pack.id } },
+          metadata: { pack_id: pack.id, minutes: String(pack.minutes) },
+        },
+        { idempotencyKey: `kd-price-${lookup}` },
+      );
+    }
+    packPrices[pack.id] = price.id;
+  }
+  const meters = await stripe.billing.meters.list({ status: "active", limit: 100 });
+  let meter = meters.data.find((m) => m.event_name === METER_EVENT_NAME);
+  meter ??= await stripe.billing.meters.create(
+    {
+      display_name: "Kickdrift overage compute (ms)",
+      event_name: METER_EVENT_NAME,
+      default_aggregation: { formula: "sum" },
+      customer_mapping: { type: "by_id", event_payload_key: METER_CUSTOMER_KEY },
+      value_settings: { event_payload_key: METER_VALUE_KEY },
+    },
+    { idempotencyKey: `kd-meter-${METER_EVENT_NAME}` },
+  );
+  let overage = byKey.get(OVERAGE_LOOKUP_KEY);
+  overage ??= await stripe.prices.create(
+    {
+      currency: "usd",
+      unit_amount_decimal: Stripe.Decimal.from(OVERAGE_UNIT_AMOUNT_DECIMAL),
+      recurring: { interval: "month", usage_type: "metered", meter: meter.id },
+      lookup_key: OVERAGE_LOOKUP_KEY,
+      product_data: { name: "Kickdrift overage compute (per ms)" },
+    },
+    { idempotencyKey: `kd-price-${OVERAGE_LOOKUP_KEY}` },
+  );
+  return { packPrices, meterId: meter.id, overagePriceId: overage.id };
+}
+
+/** The owners' and finance people's addresses of a studio (receipts, invoices, low balance). */
+export async function billingContacts(db: DbOrTx, studioId: string): Promise<string[]> {
+  const rows = await db
+    .select({ email: users.email, role: memberships.role })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.studioId, studioId));
+  return rows.filter((r) => r.role === "owner" || r.role === "finance").map((r) => r.email).sort();
+}
+
+/**
+ * The studio's Stripe customer and overage subscription, made on first use. Creation calls carry
+ * idempotency keys, so two concurrent first uses get the same customer.
+ */
+export async function ensureStudioCustomer(db: DbOrTx, stripe: Stripe, studioId: string): Promise<StudioBilling> {
+  const [row] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+  if (row?.stripeSubscriptionId) return row;
+  const catalog = await ensureCatalog(stripe);
+  let customerId = row?.stripeCustomerId;
+  if (!customerId) {
+    const [studio] = await db.select().from(studios).where(eq(studios.id, studioId));
+    if (!studio) throw new Error(`studio ${studioId} does not exist`);
+    const [owner] = await db
+      .select({ email: users.email })
+      .from(memberships)
+      .innerJoin(users, eq(users.id, memberships.userId))
+      .where(and(eq(memberships.studioId, studioId), eq(memberships.role, "owner")))
+      .limit(1);
+    const customer = await stripe.customers.create(
+      { name: studio.name, ...(owner ? { email: owner.email } : {}), metadata: { studio_id: studioId } },
+      { idempotencyKey: `kd-customer-${studioId}` },
+    );
+    customerId = customer.id;
+    await db.insert(studioBilling).values({ studioId, stripeCustomerId: customerId }).onConflictDoNothing();
+    const [again] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+    customerId = again.stripeCustomerId;
+    if (again.stripeSubscriptionId) return again;
+  }
+  const subscription = await stripe.subscriptions.create(
+    {
+      customer: customerId,
+      items: [{ price: catalog.overagePriceId }],
+      collection_method: "send_invoice",
+      days_until_due: 30,
+      metadata: { studio_id: studioId },
+    },
+    { idempotencyKey: `kd-subscription-${studioId}` },
+  );
+  const startedAt = new Date((subscription.items.data[0]?.current_period_start ?? subscription.start_date) * 1000);
+  const [updated] = await db
+    .update(studioBilling)
+    .set({ stripeSubscriptionId: subscription.id, subscriptionStartedAt: startedAt })
+    .where(eq(studioBilling.studioId, studioId))
+    .returning();
+  return updated;
+}
+
+/** The studio of a Stripe customer id, or null. */
+export async function studioOfCustomer(db: DbOrTx, customerId: string): Promise<string | null> {
+  const [row] = await db.select({ studioId: studioBilling.studioId }).from(studioBilling).where(eq(studioBilling.stripeCustomerId, customerId));
+  return row?.studioId ?? null;
+}

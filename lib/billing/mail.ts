@@ -1,0 +1,50 @@
+/** Billing messages: purchase receipts, finalised invoices, low balance. Queued through the outbox (lib/outbox/mail.ts). */
+import { appBaseUrl } from "@/lib/auth/config";
+import type { MailContent } from "@/lib/mail/templates";
+import { formatMinutes } from "./format";
+import { formatPriceCents } from "./packs";
+
+function escapeHtml(value: string): string {
+  return value.replaceAll("&", "&amp;").replaceAll("<", "&lt;").replaceAll(">", "&gt;").replaceAll('"', "&quot;").replaceAll("'", "&#39;");
+}
+
+function message(subject: string, lines: string[], link: { label: string; url: string }): MailContent {
+  const footer = "Prices are before tax; tax handling is out of scope.";
+  return {
+    subject,
+    text: `${lines.join("\n")}\n\n${link.label}: ${link.url}\n\n${footer}\n`,
+    html: `<!doctype html><html><body style="font-family:system-ui,sans-serif;color:#1b2330;max-width:560px;margin:24px auto">
+<h1 style="font-size:20px">${escapeHtml(subject)}</h1>${lines.map((l) => `<p style="margin:0 0 12px">${escapeHtml(l)}</p>`).join("")}
+<p><a href="${escapeHtml(link.url)}">${escapeHtml(link.label)}</a></p><p style="font-size:12px;color:#5b6472">${escapeHtml(footer)}</p></body></html>`,
+  };
+}
+
+const billingUrl = (studioId: string) => `${appBaseUrl()}/studios/${encodeURIComponent(studioId)}/billing`;
+
+export function receiptMail(input: { studioId: string; studioName: string; packName: string; minutes: number; amountCents: number; sessionId: string }): MailContent {
+  return message(
+    `Receipt: ${input.packName} pack for ${input.studioName}`,
+    [
+      `Thank you. ${input.studioName} bought the ${input.packName} pack: ${input.minutes} compute minutes for ${formatPriceCents(input.amountCents)}.`,
+      `The minutes are on the studio's balance now. Reference: ${input.sessionId}.`,
+    ],
+    { label: "Open billing", url: billingUrl(input.studioId) },
+  );
+}
+
+export function invoiceFinalizedMail(input: { studioId: string; studioName: string; number: string; quantityMs: number; totalCents: number; periodStart: Date; periodEnd: Date }): MailContent {
+  const period = `${input.periodStart.toISOString().slice(0, 10)} – ${input.periodEnd.toISOString().slice(0, 10)}`;
+  return message(
+    `Invoice ${input.number} for ${input.studioName}`,
+    [`Invoice ${input.number} covers overage compute of ${formatMinutes(input.quantityMs)} minutes for ${period} (UTC): ${formatPriceCents(input.totalCents)}.`],
+    { label: "Open invoices", url: `${appBaseUrl()}/studios/${encodeURIComponent(input.studioId)}/invoices` },
+  );
+}
+
+export function lowBalanceMail(input: { studioId: string; studioName: string; balanceMs: number }): MailContent {
+  return message(
+    `${input.studioName} is low on compute minutes`,
+    [`${input.studioName} has ${formatMinutes(Math.max(0, input.balanceMs))} compute minutes left. Sweeps pause when the balance runs out unless overage is allowed.`],
+    { label: "Buy a pack", url: billingUrl(input.studioId) },
+  );
+}

@@ -1,0 +1,244 @@
+/** Read models of the billing pages and API: balance, the ledger table, usage breakdowns, invoices and their reconciliation, the platform's finance view. */
+import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
+import { z } from "zod";
+import type { DbOrTx } from "@/db/client";
+import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
+import { parseWith } from "@/lib/api/body";
+import { notFound } from "@/lib/errors";
+import { balanceMs } from "@/lib/ledger/ledger";
+import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
+import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
+import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
+
+export async function billingSummary(db: DbOrTx, studioId: string) {
+  const now = new Date();
+  const quotas = await effectiveQuotas(db, studioId);
+  return {
+    balanceMs: await balanceMs(db, studioId),
+    lowBalanceMs: LOW_BALANCE_MS,
+    packs: CREDIT_PACKS,
+    overage: {
+      allowed: quotas.overageAllowed,
+      capMs: quotas.overageCapMs,
+      centsPerMinute: OVERAGE_CENTS_PER_MINUTE,
+      thisMonthMs: await monthlyOverageMs(db, studioId, now),
+    },
+    month: { key: monthOf(now).key, usedMs: await monthlyUsageMs(db, studioId, now), capMs: quotas.monthlyComputeMs },
+    taxNote: "Prices before tax; tax handling is out of scope.",
+  };
+}
+
+const dateParam = z.iso.date("must be a date YYYY-MM-DD");
+export const LEDGER_SORTS = ["createdAt", "kind", "computeMs", "overageMs", "amountCents"] as const;
+export const ledgerQuerySchema = z
+  .object({
+    kind: z.enum(LEDGER_KINDS).optional(),
+    from: dateParam.optional(),
+    to: dateParam.optional(),
+    sort: z.enum(LEDGER_SORTS).default("createdAt"),
+    order: z.enum(["asc", "desc"]).default("desc"),
+    page: z.coerce.number().int("must be a whole number").min(1, "must be at least 1").max(100_000, "must be at most 100000").default(1),
+    pageSize: z.coerce.number().int("must be a whole number").min(1, "must be at least 1").max(200, "must be at most 200").default(25),
+    format: z.enum(["json", "csv"]).default("json"),
+  })
+  .strict();
+export type LedgerQuery = z.infer<typeof ledgerQuerySchema>;
+
+export function parseLedgerQuery(url: URL): LedgerQuery {
+  return parseWith(ledgerQuerySchema, Object.fromEntries(url.searchParams));
+}
+
+function ledgerFilter(studioId: string, q: LedgerQuery): SQL {
+  const parts: SQL[] = [eq(ledgerEntries.studioId, studioId)];
+  if (q.kind) parts.push(eq(ledgerEntries.kind, q.kind));
+  if (q.from) parts.push(gte(ledgerEntries.createdAt, new Date(`${q.from}T00:00:00Z`)));
+  // `to` is inclusive: the whole day.
+  if (q.to) parts.push(lt(ledgerEntries.createdAt, new Date(new Date(`${q.to}T00:00:00Z`).getTime() + 86_400_000)));
+  return and(...parts)!;
+}
+
+export async function ledgerPage(db: DbOrTx, studioId: string, q: LedgerQuery) {
+  const where = ledgerFilter(studioId, q);
+  const column = ledgerEntries[q.sort];
+  const order = q.order === "asc" ? [asc(column), asc(ledgerEntries.id)] : [desc(column), desc(ledgerEntries.id)];
+  const all = q.format === "csv";
+  const rows = await db
+    .select()
+    .from(ledgerEntries)
+    .where(where)
+    .orderBy(...order)
+    .limit(all ? 1_000_000 : q.pageSize)
+    .offset(all ? 0 : (q.page - 1) * q.pageSize);
+  const [total] = await db.select({ n: count() }).from(ledgerEntries).where(where);
+  return {
+    entries: rows.map((r) => ({ id: r.id, kind: r.kind, computeMs: r.computeMs, overageMs: r.overageMs, amountCents: r.amountCents, sweepId: r.sweepId, chunkIndex: r.chunkIndex, memo: r.memo, createdAt: r.createdAt.toISOString() })),
+    page: q.page,
+    pageSize: q.pageSize,
+    total: Number(total.n),
+  };
+}
+
+function csvCell(value: string | number | null): string {
+  const text = value === null ? "" : String(value);
+  // Quote always; a leading = + - @ is prefixed so spreadsheets never run it as a formula.
+  const safe = /^[=+\-@]/.test(text) && typeof value === "string" ? `'${text}` : text;
+  return `"${safe.replaceAll('"', '""')}"`;
+}
+
+export function ledgerCsv(entries: Awaited<ReturnType<typeof ledgerPage>>["entries"]): string {
+  const header = ["id", "created_at", "kind", "compute_ms", "overage_ms", "amount_cents", "sweep_id", "chunk_index", "memo"];
+  const lines = entries.map((e) => [e.id, e.createdAt, e.kind, e.computeMs, e.overageMs, e.amountCents, e.sweepId, e.chunkIndex, e.memo].map(csvCell).join(","));
+  return [header.join(","), ...lines].join("\r\n") + "\r\n";
+}
+
+export const usageQuerySchema = z.object({ days: z.coerce.number().int("must be a whole number").min(1, "must be at least 1").max(366, "must be at most 366").default(30) }).strict();
+
+/** Compute used (prepaid + overage, integer ms) per UTC day, per sweep and per member who started the sweep. */
+export async function usageBreakdown(db: DbOrTx, studioId: string, days: number) {
+  const since = new Date(Date.now() - days * 86_400_000);
+  const used = sql<string>`sum(${ledgerEntries.overageMs} - ${ledgerEntries.computeMs})`;
+  const where = and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "usage"), gte(ledgerEntries.createdAt, since));
+  const day = sql<string>`to_char(${ledgerEntries.createdAt} at time zone 'UTC', 'YYYY-MM-DD')`;
+  const byDay = await db.select({ day, usedMs: used, overageMs: sql<string>`sum(${ledgerEntries.overageMs})` }).from(ledgerEntries).where(where).groupBy(day).orderBy(day);
+  const bySweep = await db
+    .select({ sweepId: ledgerEntries.sweepId, name: sweeps.name, usedMs: used })
+    .from(ledgerEntries)
+    .leftJoin(sweeps, eq(sweeps.id, ledgerEntries.sweepId))
+    .where(where)
+    .groupBy(ledgerEntries.sweepId, sweeps.name)
+    .orderBy(desc(used));
+  const byMember = await db
+    .select({ userId: sweeps.createdByUserId, email: users.email, usedMs: used })
+    .from(ledgerEntries)
+    .leftJoin(sweeps, eq(sweeps.id, ledgerEntries.sweepId))
+    .leftJoin(users, eq(users.id, sweeps.createdByUserId))
+    .where(where)
+    .groupBy(sweeps.createdByUserId, users.email)
+    .orderBy(desc(used));
+  return {
+    days,
+    byDay: byDay.map((r) => ({ day: r.day, usedMs: Number(r.usedMs), overageMs: Number(r.overageMs) })),
+    bySweep: bySweep.map((r) => ({ sweepId: r.sweepId, name: r.name ?? "(deleted sweep)", usedMs: Number(r.usedMs) })),
+    byMember: byMember.map((r) => ({ userId: r.userId, email: r.email ?? "(API token or removed member)", usedMs: Number(r.usedMs) })),
+  };
+}
+
+function invoiceView(row: InvoiceRow) {
+  return {
+    id: row.id,
+    number: row.number,
+    status: row.status,
+    currency: row.currency,
+    periodStart: row.periodStart.toISOString(),
+    periodEnd: row.periodEnd.toISOString(),
+    quantityMs: row.quantityMs,
+    totalCents: row.totalCents,
+    finalizedAt: row.finalizedAt?.toISOString() ?? null,
+  };
+}
+
+export async function listInvoices(db: DbOrTx, studioId: string) {
+  const rows = await db.select().from(invoices).where(eq(invoices.studioId, studioId)).orderBy(desc(invoices.periodEnd), desc(invoices.createdAt));
+  return rows.map(invoiceView);
+}
+
+/**
+ * Overage usage entries of a studio whose time falls in [start, end): an entry's time is when it was
+ * written, or the start of the studio's overage subscription if later (meter events use the same rule).
+ */
+async function overageEntriesIn(db: DbOrTx, studioId: string, start: Date, end: Date, subscriptionStartedAt: Date | null) {
+  const at = subscriptionStartedAt ? sql`greatest(${ledgerEntries.createdAt}, ${subscriptionStartedAt.toISOString()}::timestamptz)` : sql`${ledgerEntries.createdAt}`;
+  return db
+    .select({ id: ledgerEntries.id, sweepId: ledgerEntries.sweepId, chunkIndex: ledgerEntries.chunkIndex, overageMs: ledgerEntries.overageMs, createdAt: ledgerEntries.createdAt })
+    .from(ledgerEntries)
+    .where(
+      and(
+        eq(ledgerEntries.studioId, studioId),
+        eq(ledgerEntries.kind, "usage"),
+        sql`${ledgerEntries.overageMs} > 0`,
+        sql`${at} >= ${start.toISOString()}::timestamptz`,
+        sql`${at} < ${end.toISOString()}::timestamptz`,
+      ),
+    )
+    .orderBy(asc(ledgerEntries.createdAt), asc(ledgerEntries.id));
+}
+
+/** One invoice with each line reconciled against the ledger's overage entries of the line's period. */
+export async function invoiceDetail(db: DbOrTx, studioId: string, invoiceId: string) {
+  const [row] = await db.select().from(invoices).where(and(eq(invoices.id, invoiceId), eq(invoices.studioId, studioId)));
+  if (!row) throw notFound("Invoice");
+  const [account] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+  const lines = [];
+  for (const line of row.lines) {
+    const entries = await overageEntriesIn(db, studioId, new Date(line.periodStart * 1000), new Date(line.periodEnd * 1000), account?.subscriptionStartedAt ?? null);
+    const ledgerMs = entries.reduce((sum, e) => sum + e.overageMs, 0);
+    lines.push({
+      ...line,
+      ledgerMs,
+      differenceMs: line.quantityMs - ledgerMs,
+      reconciled: line.quantityMs === ledgerMs,
+      entries: entries.map((e) => ({ ...e, createdAt: e.createdAt.toISOString() })),
+    });
+  }
+  return { invoice: invoiceView(row), lines, reconciled: lines.every((l) => l.reconciled) };
+}
+
+/**
+ * Overage the app has delivered to Stripe's meter for a studio with event times in [start, end)
+ * (unix s): the meter events of the outbox marked delivered, timed as deliverMeterEvent times them.
+ */
+async function deliveredMeterMs(db: DbOrTx, studioId: string, start: number, end: number): Promise<number> {
+  const [account] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+  const floor = account?.subscriptionStartedAt ? Math.floor(account.subscriptionStartedAt.getTime() / 1000) : 0;
+  const at = sql`greatest((${outbox.payload}->>'timestamp')::bigint, ${floor})`;
+  const [row] = await db
+    .select({ total: sql<string | null>`coalesce(sum((${outbox.payload}->>'valueMs')::bigint), 0)` })
+    .from(outbox)
+    .where(and(eq(outbox.studioId, studioId), eq(outbox.kind, METER_EVENT_KIND), eq(outbox.status, "delivered"), sql`${at} >= ${start}`, sql`${at} < ${end}`));
+  return Number(row?.total ?? 0);
+}
+
+/**
+ * The platform's money view: per studio and invoiced period, the ledger's overage against what was
+ * delivered to Stripe's meter against the quantity Stripe invoiced; and revenue per UTC month (pack purchases and invoiced overage, cents).
+ */
+export async function platformFinance(db: DbOrTx) {
+  const rows = await db.select({ invoice: invoices, studioName: studios.name }).from(invoices).innerJoin(studios, eq(studios.id, invoices.studioId)).orderBy(desc(invoices.periodEnd));
+  const periods = [];
+  for (const { invoice, studioName } of rows) {
+    const detail = await invoiceDetail(db, invoice.studioId, invoice.id);
+    const ledgerMs = detail.lines.reduce((s, l) => s + l.ledgerMs, 0);
+    let meteredMs = 0;
+    for (const line of invoice.lines) meteredMs += await deliveredMeterMs(db, invoice.studioId, line.periodStart, line.periodEnd);
+    periods.push({
+      studioId: invoice.studioId,
+      studioName,
+      invoiceId: invoice.id,
+      number: invoice.number,
+      status: invoice.status,
+      periodStart: invoice.periodStart.toISOString(),
+      periodEnd: invoice.periodEnd.toISOString(),
+      ledgerMs,
+      meteredMs,
+      invoicedMs: detail.lines.reduce((s, l) => s + l.quantityMs, 0),
+      totalCents: invoice.totalCents,
+      reconciled: detail.reconciled && meteredMs === ledgerMs,
+    });
+  }
+  const month = sql<string>`to_char(${ledgerEntries.createdAt} at time zone 'UTC', 'YYYY-MM')`;
+  const packs = await db
+    .select({ month, cents: sql<string>`sum(${ledgerEntries.amountCents})` })
+    .from(ledgerEntries)
+    .where(eq(ledgerEntries.kind, "purchase"))
+    .groupBy(month);
+  const byMonth = new Map<string, { month: string; packCents: number; overageCents: number }>();
+  for (const p of packs) byMonth.set(p.month, { month: p.month, packCents: Number(p.cents), overageCents: 0 });
+  for (const { invoice } of rows) {
+    if (invoice.status === "draft" || invoice.status === "void") continue;
+    const key = (invoice.finalizedAt ?? invoice.periodEnd).toISOString().slice(0, 7);
+    const entry = byMonth.get(key) ?? { month: key, packCents: 0, overageCents: 0 };
+    entry.overageCents += invoice.totalCents;
+    byMonth.set(key, entry);
+  }
+  return { periods, revenueByMonth: [...byMonth.values()].sort((a, b) => a.month.localeCompare(b.month)) };
+}

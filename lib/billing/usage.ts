@@ -1,0 +1,104 @@
+/**
+ * Debiting a finished chunk: prepaid minutes first; past the balance, overage (metered to Stripe
+ * through the outbox and invoiced monthly) only when an admin allowed it for the studio, clamped to
+ * the month's overage cap and compute cap. The queue runner calls recordChunkUsage inside its
+ * per-chunk transaction.
+ */
+import { and, eq, gte, lt, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { ledgerEntries, studios } from "@/db/schema";
+import { appendLedgerEntry, balanceMs, usageKey } from "@/lib/ledger/ledger";
+import { queueMail } from "@/lib/outbox/mail";
+import { enqueueOutbox } from "@/lib/outbox/outbox";
+import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
+import { billingContacts } from "./catalog";
+import { lowBalanceMail } from "./mail";
+import { LOW_BALANCE_MS } from "./packs";
+
+export const METER_EVENT_KIND = "stripe.meter_event";
+
+export interface MeterEventPayload {
+  studioId: string;
+  /** Stripe's meter-event identifier: the chunk's ledger key, so a second delivery is not counted. */
+  identifier: string;
+  /** Overage of the chunk, integer ms. */
+  valueMs: number;
+  /** When the chunk was debited (unix seconds). */
+  timestamp: number;
+}
+
+export interface ChunkUsage {
+  studioId: string;
+  sweepId: string;
+  chunkIndex: number;
+  /** The chunk's measured compute, integer ms. */
+  computeMs: number;
+  memo: string;
+}
+
+export interface ChunkUsageResult {
+  /** False when this chunk was already debited (a retried writer): nothing changed. */
+  billed: boolean;
+  prepaidMs: number;
+  overageMs: number;
+}
+
+/** Overage already accrued by the studio in the UTC month of `at` (integer ms). */
+export async function monthlyOverageMs(db: DbOrTx, studioId: string, at: Date): Promise<number> {
+  const { start, end } = monthOf(at);
+  const [row] = await db
+    .select({ total: sql<string | null>`coalesce(sum(${ledgerEntries.overageMs}), 0)` })
+    .from(ledgerEntries)
+    .where(and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "usage"), gte(ledgerEntries.createdAt, start), lt(ledgerEntries.createdAt, end)));
+  return Number(row?.total ?? 0);
+}
+
+export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<ChunkUsageResult> {
+  if (!Number.isInteger(usage.computeMs) || usage.computeMs < 0) throw new RangeError(`computeMs must be a non-negative integer; got ${usage.computeMs}`);
+  const key = usageKey(usage.sweepId, usage.chunkIndex);
+  // One writer per studio at a time: concurrent chunks and purchases never spend the same balance twice.
+  const [studio] = await tx.select({ id: studios.id, name: studios.name }).from(studios).where(eq(studios.id, usage.studioId)).for("update");
+  if (!studio) throw new Error(`studio ${usage.studioId} does not exist`);
+  const [already] = await tx.select({ id: ledgerEntries.id }).from(ledgerEntries).where(eq(ledgerEntries.idempotencyKey, key));
+  if (already) return { billed: false, prepaidMs: 0, overageMs: 0 };
+
+  const now = new Date();
+  const quotas = await effectiveQuotas(tx, usage.studioId);
+  const balanceBefore = await balanceMs(tx, usage.studioId);
+  const usedThisMonth = await monthlyUsageMs(tx, usage.studioId, now);
+  // Nothing is billed past the monthly compute cap.
+  const billable = Math.min(usage.computeMs, Math.max(0, quotas.monthlyComputeMs - usedThisMonth));
+  const prepaidMs = Math.min(billable, Math.max(0, balanceBefore));
+  let overageMs = 0;
+  if (quotas.overageAllowed && billable > prepaidMs) {
+    const overageSoFar = await monthlyOverageMs(tx, usage.studioId, now);
+    overageMs = Math.max(0, Math.min(billable - prepaidMs, quotas.overageCapMs - overageSoFar));
+  }
+  const unbilled = usage.computeMs - prepaidMs - overageMs;
+  const memo = unbilled > 0 ? `${usage.memo}; ${unbilled} ms past the balance or a cap not billed` : usage.memo;
+  const billed = await appendLedgerEntry(tx, {
+    studioId: usage.studioId,
+    kind: "usage",
+    computeMs: -prepaidMs,
+    overageMs,
+    idempotencyKey: key,
+    sweepId: usage.sweepId,
+    chunkIndex: usage.chunkIndex,
+    memo,
+  });
+  if (!billed) return { billed: false, prepaidMs: 0, overageMs: 0 };
+  if (overageMs > 0) {
+    // The meter event carries the entry's own time, so invoices and the ledger agree on its period.
+    const [entry] = await tx.select({ createdAt: ledgerEntries.createdAt }).from(ledgerEntries).where(eq(ledgerEntries.idempotencyKey, key));
+    const payload: MeterEventPayload = { studioId: usage.studioId, identifier: key, valueMs: overageMs, timestamp: Math.floor(entry.createdAt.getTime() / 1000) };
+    await enqueueOutbox(tx, { kind: METER_EVENT_KIND, idempotencyKey: `meter:${key}`, payload, studioId: usage.studioId });
+  }
+  const balanceAfter = balanceBefore - prepaidMs;
+  if (balanceBefore > LOW_BALANCE_MS && balanceAfter <= LOW_BALANCE_MS) {
+    // Once per crossing: the key names the chunk that crossed, so a retried writer queues nothing new.
+    for (const to of await billingContacts(tx, usage.studioId)) {
+      await queueMail(tx, { idempotencyKey: `mail:low-balance:${key}:${to}`, to, content: lowBalanceMail({ studioId: usage.studioId, studioName: studio.name, balanceMs: balanceAfter }), studioId: usage.studioId });
+    }
+  }
+  return { billed: true, prepaidMs, overageMs };
+}

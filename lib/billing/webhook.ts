@@ -1,0 +1,174 @@
+/**
+ * Stripe webhook events. The route verifies the signature on the raw body; this module dedupes by
+ * event id and acts on the object as Stripe holds it *now* (re-read through the API), so duplicates
+ * and events that arrive out of order change nothing twice.
+ */
+import { eq } from "drizzle-orm";
+import type Stripe from "stripe";
+import { z } from "zod";
+import type { Db } from "@/db/client";
+import { invoices, stripeEvents, studios, type InvoiceLineRecord } from "@/db/schema";
+import { ApiError } from "@/lib/errors";
+import { parseWith } from "@/lib/api/body";
+import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { queueMail } from "@/lib/outbox/mail";
+import { pokeOutbox } from "@/lib/outbox/process";
+import { billingContacts, studioOfCustomer } from "./catalog";
+import { invoiceFinalizedMail, receiptMail } from "./mail";
+import { findPack } from "./packs";
+import { stripeFailure } from "./stripe";
+
+/** The event types the endpoint subscribes to; anything else is refused with 400. */
+export const HANDLED_EVENT_TYPES = [
+  "checkout.session.completed",
+  "checkout.session.expired",
+  "invoice.created",
+  "invoice.finalized",
+  "invoice.paid",
+  "invoice.payment_succeeded",
+  "invoice.payment_failed",
+  "invoice.voided",
+] as const;
+
+const eventSchema = z.object({
+  id: z.string().regex(/^evt_[A-Za-z0-9_]+$/, "must be a Stripe event id (evt_…)").max(255),
+  type: z.string().min(1).max(100),
+  data: z.object({ object: z.object({ id: z.string().min(1).max(255) }).loose() }).loose(),
+}).loose();
+
+export interface WebhookResult {
+  received: true;
+  duplicate: boolean;
+  outcome: string;
+}
+
+export const purchaseKey = (sessionId: string) => `purchase:${sessionId}`;
+
+/** Validates the parsed event's shape and type (400 naming the field), before anything is read or written. */
+export function checkEvent(event: unknown): { id: string; type: string; objectId: string } {
+  const parsed = parseWith(eventSchema, event);
+  if (!(HANDLED_EVENT_TYPES as readonly string[]).includes(parsed.type))
+    throw new ApiError(400, "unknown_event_type", `type: Kickdrift does not handle "${parsed.type}" events; it handles ${HANDLED_EVENT_TYPES.join(", ")}.`, "type");
+  return { id: parsed.id, type: parsed.type, objectId: parsed.data.object.id };
+}
+
+export async function handleStripeEvent(db: Db, stripe: Stripe, event: unknown): Promise<WebhookResult> {
+  const { id, type, objectId } = checkEvent(event);
+  const [seen] = await db.select().from(stripeEvents).where(eq(stripeEvents.id, id));
+  if (seen) return { received: true, duplicate: true, outcome: seen.outcome };
+  let outcome: string;
+  try {
+    if (type.startsWith("checkout.session.")) {
+      const session = await stripe.checkout.sessions.retrieve(objectId);
+      outcome = await creditCheckout(db, session, { id, type });
+    } else {
+      const invoice = await stripe.invoices.retrieve(objectId);
+      outcome = await syncInvoice(db, stripe, invoice, { id, type });
+    }
+  } catch (error) {
+    if (error instanceof ApiError) throw error;
+    if ((error as { statusCode?: number }).statusCode === 404) throw new ApiError(400, "validation_failed", `data.object.id: Stripe has no object "${objectId}".`, "data.object.id");
+    throw stripeFailure(error);
+  }
+  pokeOutbox();
+  return { received: true, duplicate: false, outcome };
+}
+
+async function recordEvent(db: Pick<Db, "insert">, event: { id: string; type: string }, outcome: string): Promise<void> {
+  await db.insert(stripeEvents).values({ id: event.id, type: event.type, outcome }).onConflictDoNothing();
+}
+
+/** Credits a paid Checkout session once (key purchase:{sessionId}), whichever event or call sees it first. */
+export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, event: { id: string; type: string } | null): Promise<string> {
+  const studioId = session.metadata?.studio_id ?? session.client_reference_id ?? null;
+  const pack = findPack(session.metadata?.pack_id ?? "");
+  const quantity = Number(session.metadata?.quantity ?? "1");
+  return db.transaction(async (tx) => {
+    let outcome: string;
+    const [studio] = studioId ? await tx.select().from(studios).where(eq(studios.id, studioId)) : [];
+    if (session.status !== "complete" || session.payment_status !== "paid") outcome = `ignored: session ${session.id} is ${session.status}/${session.payment_status}`;
+    else if (!studio || !pack || !Number.isInteger(quantity) || quantity < 1) outcome = `ignored: session ${session.id} names no studio or pack of ours`;
+    else if (typeof session.amount_total !== "number" || !Number.isInteger(session.amount_total)) outcome = `ignored: session ${session.id} has no integer amount`;
+    else {
+      const computeMs = pack.minutes * quantity * 60_000;
+      const written = await appendLedgerEntry(tx, {
+        studioId: studio.id,
+        kind: "purchase",
+        computeMs,
+        amountCents: session.amount_total,
+        idempotencyKey: purchaseKey(session.id),
+        memo: `${pack.name} pack × ${quantity}: ${pack.minutes * quantity} minutes (${session.id})`,
+      });
+      outcome = written ? `credited ${purchaseKey(session.id)}` : `already credited ${purchaseKey(session.id)}`;
+      const buyer = session.metadata?.buyer_email || session.customer_details?.email;
+      if (written && buyer) {
+        await queueMail(tx, {
+          idempotencyKey: `mail:receipt:${session.id}`,
+          to: buyer,
+          content: receiptMail({ studioId: studio.id, studioName: studio.name, packName: pack.name, minutes: pack.minutes * quantity, amountCents: session.amount_total, sessionId: session.id }),
+          studioId: studio.id,
+        });
+      }
+    }
+    if (event) await recordEvent(tx, event, outcome);
+    return outcome;
+  });
+}
+
+function lineQuantityMs(line: Stripe.InvoiceLineItem): number {
+  if (line.quantity_decimal !== null && line.quantity_decimal !== undefined) return Math.round(Number(String(line.quantity_decimal)));
+  return line.quantity ?? 0;
+}
+
+/** Mirrors the invoice as Stripe holds it now; mails owners and finance once when it is first seen finalised. */
+export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoice, event: { id: string; type: string } | null): Promise<string> {
+  const customerId = typeof invoice.customer === "string" ? invoice.customer : invoice.customer?.id;
+  const studioId = customerId ? await studioOfCustomer(db, customerId) : null;
+  const lineItems: Stripe.InvoiceLineItem[] = [];
+  if (studioId) for await (const line of stripe.invoices.listLineItems(invoice.id!, { limit: 100 })) lineItems.push(line);
+  return db.transaction(async (tx) => {
+    let outcome: string;
+    if (!studioId) outcome = `ignored: invoice ${invoice.id} is not for a studio of ours`;
+    else {
+      const lines: InvoiceLineRecord[] = lineItems.map((line) => ({
+        id: line.id,
+        description: line.description ?? "",
+        periodStart: line.period.start,
+        periodEnd: line.period.end,
+        quantityMs: lineQuantityMs(line),
+        amountCents: line.amount,
+      }));
+      const periodStart = new Date(Math.min(invoice.period_start, ...lines.map((l) => l.periodStart)) * 1000);
+      const periodEnd = new Date(Math.max(invoice.period_end, ...lines.map((l) => l.periodEnd)) * 1000);
+      const finalizedAtUnix = invoice.status_transitions?.finalized_at ?? null;
+      const values = {
+        studioId,
+        number: invoice.number ?? null,
+        status: invoice.status ?? "draft",
+        currency: invoice.currency,
+        periodStart,
+        periodEnd,
+        quantityMs: lines.reduce((sum, l) => sum + l.quantityMs, 0),
+        totalCents: invoice.total,
+        lines,
+        finalizedAt: finalizedAtUnix ? new Date(finalizedAtUnix * 1000) : null,
+        updatedAt: new Date(),
+      };
+      await tx.insert(invoices).values({ id: invoice.id!, ...values }).onConflictDoUpdate({ target: invoices.id, set: values });
+      outcome = `invoice ${invoice.id} is ${values.status}`;
+      if (values.status !== "draft" && values.finalizedAt) {
+        const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId));
+        for (const to of await billingContacts(tx, studioId)) {
+          await queueMail(tx, {
+            idempotencyKey: `mail:invoice-finalized:${invoice.id}:${to}`,
+            to,
+            content: invoiceFinalizedMail({ studioId, studioName: studio.name, number: invoice.number ?? invoice.id!, quantityMs: values.quantityMs, totalCents: values.totalCents, periodStart, periodEnd }),
+            studioId,
+          });
+        }
+      }
+    }
+    if (event) await recordEvent(tx, event, outcome);
+    return outcome;
+  });
+}

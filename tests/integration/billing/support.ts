@@ -1,0 +1,98 @@
+/**
+ * Billing tests: the local Stripe fake on a free port, the app's billing configured against it, and
+ * the app's webhook route served over HTTP so the fake's signed deliveries reach the real handler.
+ */
+import { createServer, type Server } from "node:http";
+import type { AddressInfo } from "node:net";
+import { count, eq } from "drizzle-orm";
+import type Stripe from "stripe";
+import { getDb, type Db } from "@/db/client";
+import { ledgerEntries, outbox, stripeEvents } from "@/db/schema";
+import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
+import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
+import { HANDLED_EVENT_TYPES } from "@/lib/billing/webhook";
+import { balanceMs } from "@/lib/ledger/ledger";
+import { OutboxDispatcher } from "@/lib/outbox/outbox";
+import { deliverMeterEvent } from "@/lib/billing/meter";
+import { METER_EVENT_KIND } from "@/lib/billing/usage";
+import { POST as webhookPost } from "@/app/api/v1/stripe/webhook/route";
+import { TEST_BASE_URL } from "../../helpers/db";
+
+export interface BillingHarness {
+  fake: StripeFake;
+  stripe: Stripe;
+  receiver: Server;
+  close(): Promise<void>;
+}
+
+/** Serves the webhook route on a loopback port and starts the fake delivering to it. */
+export async function startBillingHarness(): Promise<BillingHarness> {
+  const receiver = createServer((req, res) => {
+    const chunks: Buffer[] = [];
+    req.on("data", (c: Buffer) => chunks.push(c));
+    req.on("end", async () => {
+      const request = new Request(new URL(req.url ?? "/", TEST_BASE_URL), {
+        method: req.method,
+        headers: Object.entries(req.headers).flatMap(([k, v]) => (typeof v === "string" ? [[k, v] as [string, string]] : [])),
+        body: Buffer.concat(chunks),
+      });
+      const answer = await webhookPost(request, { params: Promise.resolve({}) });
+      res.writeHead(answer.status, { "content-type": "application/json" });
+      res.end(await answer.text());
+    });
+  });
+  await new Promise<void>((resolve) => receiver.listen(0, "127.0.0.1", resolve));
+  const port = (receiver.address() as AddressInfo).port;
+  const fake = await startStripeFake({
+    port: 0,
+    webhookUrl: `http://127.0.0.1:${port}/api/v1/stripe/webhook`,
+    webhookEvents: [...HANDLED_EVENT_TYPES],
+    webhookRetryDelaysMs: [50, 100],
+  });
+  const stripe = fakeStripeClient(fake.port);
+  configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });
+  return {
+    fake,
+    stripe,
+    receiver,
+    async close() {
+      configureBilling(undefined);
+      await fake.close();
+      receiver.closeAllConnections();
+      await new Promise<void>((resolve) => receiver.close(() => resolve()));
+    },
+  };
+}
+
+/** Pays a Checkout session on the fake's hosted page as a browser would (form post), answering JSON. */
+export async function payOnHostedPage(fake: StripeFake, sessionId: string, card: string): Promise<{ status: number; body: Record<string, unknown> }> {
+  const res = await fetch(`${fake.url}/c/pay/${sessionId}`, {
+    method: "POST",
+    headers: { "content-type": "application/x-www-form-urlencoded", accept: "application/json" },
+    body: new URLSearchParams({ card_number: card, email: "buyer@gannetyard.test" }).toString(),
+  });
+  return { status: res.status, body: (await res.json()) as Record<string, unknown> };
+}
+
+/** A dispatcher with only the meter-event handler and a clock the test moves (to make retries due). */
+export function meterDispatcher(db: Db, stripe: Stripe): { dispatcher: OutboxDispatcher; advance(ms: number): void } {
+  let now = Date.now();
+  const dispatcher = new OutboxDispatcher({ db, handlers: { [METER_EVENT_KIND]: (row) => deliverMeterEvent(db, stripe, row) }, now: () => new Date(now) });
+  return { dispatcher, advance: (ms) => (now += ms) };
+}
+
+export async function ledgerSnapshot(studioId: string) {
+  const db = await getDb();
+  const [entries] = await db.select({ n: count() }).from(ledgerEntries).where(eq(ledgerEntries.studioId, studioId));
+  const [events] = await db.select({ n: count() }).from(stripeEvents);
+  const [queued] = await db.select({ n: count() }).from(outbox);
+  return { entries: Number(entries.n), events: Number(events.n), outbox: Number(queued.n), balanceMs: await balanceMs(db, studioId) };
+}
+
+export async function waitUntil(predicate: () => Promise<boolean>, what: string, timeoutMs = 15_000): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  while (!(await predicate())) {
+    if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
+    await new Promise((r) => setTimeout(r, 25));
+  }
+}
