@@ -1,7 +1,8 @@
 /**
  * The Stripe client of this process. With STRIPE_SECRET_KEY (and STRIPE_WEBHOOK_SECRET) set it talks
  * to Stripe itself (use a test-mode key, sk_test_…); otherwise to the local Stripe fake that
- * db/startup.ts starts on STRIPE_FAKE_PORT (default 12111). Tests install their own with configureBilling.
+ * db/startup.ts starts on STRIPE_FAKE_PORT (default 12111). STRIPE_API_URL sends a configured key to
+ * another address (the compose file's fake service). Tests install their own with configureBilling.
  */
 import Stripe from "stripe";
 import { ApiError } from "@/lib/errors";
@@ -41,6 +42,24 @@ export function configureBilling(config: BillingConfig | undefined): void {
   (globalThis as Holder)[key] = config;
 }
 
+/**
+ * STRIPE_API_URL points the client at another Stripe-compatible address (the compose file's
+ * Stripe fake service); unset means Stripe itself.
+ */
+export function stripeApiAddress(): { host?: string; port?: number; protocol?: "http" | "https" } {
+  const raw = process.env.STRIPE_API_URL;
+  if (!raw) return {};
+  let url: URL;
+  try {
+    url = new URL(raw);
+  } catch {
+    throw new RangeError(`STRIPE_API_URL must be a URL such as http://stripe:12111; got ${raw}`);
+  }
+  if (url.protocol !== "http:" && url.protocol !== "https:") throw new RangeError(`STRIPE_API_URL must use http or https; got ${raw}`);
+  const protocol = url.protocol === "http:" ? "http" : "https";
+  return { host: url.hostname, port: Number(url.port || (protocol === "http" ? 80 : 443)), protocol };
+}
+
 /** The configured client and webhook secret; 503 when billing is not available in this process. */
 export function billingConfig(): BillingConfig {
   const holder = globalThis as Holder;
@@ -49,7 +68,7 @@ export function billingConfig(): BillingConfig {
   if (secretKey) {
     const webhookSecret = process.env.STRIPE_WEBHOOK_SECRET;
     if (!webhookSecret) throw new ApiError(503, "billing_unavailable", "STRIPE_WEBHOOK_SECRET must be set together with STRIPE_SECRET_KEY.");
-    holder[key] = { stripe: new Stripe(secretKey, { maxNetworkRetries: 2, timeout: 20_000 }), webhookSecret, mode: "stripe" };
+    holder[key] = { stripe: new Stripe(secretKey, { maxNetworkRetries: 2, timeout: 20_000, ...stripeApiAddress() }), webhookSecret, mode: "stripe" };
     return holder[key];
   }
   throw new ApiError(503, "billing_unavailable", "Billing is starting up (the local Stripe fake is not running yet); try again in a moment.");
