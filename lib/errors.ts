@@ -28,6 +28,7 @@ export type ErrorCode =
   | "insufficient_minutes"
   | "invalid_state"
   | "quote_changed"
+  | "quota_exceeded"
   | "internal_error";
 
 export interface FieldIssue {
@@ -50,3 +51,30 @@ export class ApiError extends Error {
 }
 
 export const notFound = (what = "Resource") => new ApiError(404, "not_found", `${what} not found.`);
+
+/** Which limit a request ran into, as the error body names it (`error.limit`). */
+export interface LimitDetail {
+  /** The quota's name, as in lib/quotas/plan.ts (e.g. "maxCellsPerSweep", "monthlyComputeMs"). */
+  name: string;
+  /** The studio's value of that limit. */
+  value: number;
+  /** What the request asked for. */
+  requested: number;
+  /** What is left of the limit now (never negative). */
+  remaining: number;
+  unit: string;
+}
+
+/** An ApiError raised by a quota: the response also carries `error.limit`. */
+export class LimitError extends ApiError {
+  constructor(
+    status: number,
+    code: ErrorCode,
+    message: string,
+    readonly limit: LimitDetail,
+    field?: string,
+  ) {
+    super(status, code, message, field);
+    this.name = "LimitError";
+  }
+}
