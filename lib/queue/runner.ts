@@ -15,7 +15,7 @@ import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep, type SweepChunk } from "@/db/schema";
 import { appendLedgerEntry, usageKey } from "@/lib/ledger/ledger";
-import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { effectiveQuotas, PLAN_DEFAULTS } from "@/lib/quotas/plan";
 import { applyRunLimits, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
 import { unpackResults, type ChunkOutcome, type ChunkTask } from "@/lib/sweeps/chunk-task";
 import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
@@ -192,11 +192,38 @@ export class QueueRunner {
     if (!rows.length) return null;
     const [chunk] = await this.db.select().from(sweepChunks).where(eq(sweepChunks.id, rows[0].id));
     await this.db.execute(sql`update studios set last_chunk_claimed_at = clock_timestamp() where id = (select studio_id from sweeps where id = ${chunk.sweepId})`);
-    await this.db
-      .update(sweeps)
-      .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
-      .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
+    if (!(await this.startSweep(chunk))) return null;
     return chunk;
+  }
+
+  /**
+   * Marks the chunk's sweep running. Starting a queued sweep re-checks maxRunningSweeps under a lock
+   * on the studio row, so runners in several processes cannot together start one sweep too many;
+   * the loser puts the chunk back (false).
+   */
+  private async startSweep(chunk: SweepChunk): Promise<boolean> {
+    return this.db.transaction(async (tx) => {
+      const [sweep] = await tx.select({ studioId: sweeps.studioId, status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      if (!sweep || sweep.status !== "queued") return true;
+      await tx.execute(sql`select id from studios where id = ${sweep.studioId} for update`);
+      // Another runner may have started it while this one waited for the lock.
+      const [now] = await tx.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      if (now?.status !== "queued") return true;
+      const { maxRunningSweeps } = await effectiveQuotas(tx, sweep.studioId);
+      const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweeps).where(and(eq(sweeps.studioId, sweep.studioId), eq(sweeps.status, "running")));
+      if (Number(n) >= maxRunningSweeps) {
+        await tx
+          .update(sweepChunks)
+          .set({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: sql`${sweepChunks.attempts} - 1` })
+          .where(and(eq(sweepChunks.id, chunk.id), eq(sweepChunks.leaseOwner, this.ownerId)));
+        return false;
+      }
+      await tx
+        .update(sweeps)
+        .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
+        .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
+      return true;
+    });
   }
 
   private async renewLeases(): Promise<void> {
