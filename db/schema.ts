@@ -51,6 +51,8 @@ export const studios = pgTable(
     id: text("id").primaryKey(),
     name: text("name").notNull(),
     status: text("status", { enum: STUDIO_STATUSES }).notNull().default("active"),
+    /** When the queue last gave this studio a chunk: fair share serves the longest-waiting studio first. */
+    lastChunkClaimedAt: ts("last_chunk_claimed_at"),
     createdAt: createdAt(),
   },
   (t) => [check("studios_status_known", sql`${t.status} in ('active', 'suspended')`)],

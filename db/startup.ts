@@ -16,6 +16,11 @@ async function run(): Promise<void> {
   const { getDb } = await import("./client");
   const { getAuthSecret, appBaseUrl } = await import("../lib/auth/config");
   const db = await getDb();
+  {
+    // The database refuses UPDATE and DELETE on the audit log (a trigger drizzle-kit cannot generate).
+    const { ensureAuditAppendOnly } = await import("../lib/audit/audit");
+    await ensureAuditAppendOnly(db);
+  }
   getAuthSecret();
   const { isMailFakeEnabled } = await import("../lib/mail/mode");
   if (isMailFakeEnabled() && process.env.MAIL_FAKE_HOST) {

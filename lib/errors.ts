@@ -33,6 +33,7 @@ export type ErrorCode =
   | "unknown_event_type"
   | "billing_unavailable"
   | "payment_provider_error"
+  | "quota_exceeded"
   | "internal_error";
 
 export interface FieldIssue {
@@ -55,3 +56,30 @@ export class ApiError extends Error {
 }
 
 export const notFound = (what = "Resource") => new ApiError(404, "not_found", `${what} not found.`);
+
+/** Which limit a request ran into, as the error body names it (`error.limit`). */
+export interface LimitDetail {
+  /** The quota's name, as in lib/quotas/plan.ts (e.g. "maxCellsPerSweep", "monthlyComputeMs"). */
+  name: string;
+  /** The studio's value of that limit. */
+  value: number;
+  /** What the request asked for. */
+  requested: number;
+  /** What is left of the limit now (never negative). */
+  remaining: number;
+  unit: string;
+}
+
+/** An ApiError raised by a quota: the response also carries `error.limit`. */
+export class LimitError extends ApiError {
+  constructor(
+    status: number,
+    code: ErrorCode,
+    message: string,
+    readonly limit: LimitDetail,
+    field?: string,
+  ) {
+    super(status, code, message, field);
+    this.name = "LimitError";
+  }
+}

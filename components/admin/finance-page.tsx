@@ -20,7 +20,7 @@ export function FinancePage() {
       <PageHeading eyebrow="Platform admin" title="Finance">
         Per studio and invoiced period: overage in the ledger, overage delivered to Stripe’s meter, and the quantity Stripe invoiced; a period matches when all three agree. Revenue by month. {TAX_NOTE}
       </PageHeading>
-      <AdminNav current="/admin/finance" />
+      <AdminNav />
       {finance.isPending ? (
         <LoadingRows label="finance" />
       ) : finance.isError ? (

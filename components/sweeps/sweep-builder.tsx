@@ -421,6 +421,9 @@ function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pendi
         ["Limit: cells per sweep", quote.limits.maxCells.toLocaleString("en")],
         ["Limit: steps per cell", quote.limits.maxStepsPerCell.toLocaleString("en")],
         ["Limit: bodies per scene", quote.limits.maxBodies.toLocaleString("en")],
+        ["Limit: compute this month", `${formatMinutes(quote.limits.monthUsedMs)} used of ${formatMinutes(quote.limits.monthlyComputeMs)}`],
+        ["Compute left this month", formatMinutes(quote.limits.monthRemainingMs)],
+        ["Limit: sweeps at once", `${quote.limits.runningSweeps} running of ${quote.limits.maxRunningSweeps} (more wait in the queue)`],
       ]
     : [];
   return (

@@ -14,11 +14,15 @@ type Handler = (req: Request) => Promise<Response>;
 export function otherMethods(allowed: readonly HttpMethod[]): Record<HttpMethod | "OPTIONS", Handler> {
   const allow = [...allowed, ...(allowed.includes("GET") ? ["HEAD"] : []), "OPTIONS"].join(", ");
   const options: Handler = async () => new Response(null, { status: 204, headers: { allow } });
-  const handler: Handler = async (req) =>
-    errorResponse(
-      new ApiError(405, "method_not_allowed", `Method ${req.method} is not allowed here; allowed: ${allow}.`, undefined, undefined, {
-        allow,
-      }),
-    );
+  // Marked so the authorisation matrix can tell a 405 stub from a handler that forgot its guard.
+  const handler: Handler = Object.assign(
+    async (req: Request) =>
+      errorResponse(
+        new ApiError(405, "method_not_allowed", `Method ${req.method} is not allowed here; allowed: ${allow}.`, undefined, undefined, {
+          allow,
+        }),
+      ),
+    { methodNotAllowed: true as const },
+  );
   return { ...(Object.fromEntries(HTTP_METHODS.map((m) => [m, handler])) as Record<HttpMethod, Handler>), OPTIONS: options };
 }

@@ -1,7 +1,7 @@
-import { ApiError } from "@/lib/errors";
+import { ApiError, LimitError, type LimitDetail } from "@/lib/errors";
 
 export interface ErrorBody {
-  error: { code: string; message: string; field?: string; issues?: { field: string; message: string }[] };
+  error: { code: string; message: string; field?: string; issues?: { field: string; message: string }[]; limit?: LimitDetail };
 }
 
 export function json(body: unknown, status = 200, headers?: HeadersInit): Response {
@@ -15,6 +15,7 @@ export function errorResponse(error: ApiError): Response {
   const body: ErrorBody = { error: { code: error.code, message: error.message } };
   if (error.field !== undefined) body.error.field = error.field;
   if (error.issues?.length) body.error.issues = error.issues;
+  if (error instanceof LimitError) body.error.limit = error.limit;
   return json(body, error.status, error.headers);
 }
 

@@ -1,8 +1,9 @@
-import { and, desc, eq } from "drizzle-orm";
+import { and, desc, eq, isNull } from "drizzle-orm";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { newId, sha256Hex } from "@/db/ids";
-import { API_TOKEN_SCOPES, apiTokens, type ApiToken, type ApiTokenScope } from "@/db/schema";
+import { API_TOKEN_SCOPES, apiTokens, type ApiToken, type ApiTokenScope, type User } from "@/db/schema";
+import { writeAudit } from "@/lib/audit/audit";
 import { randomBytes } from "node:crypto";
 import { ApiError } from "@/lib/errors";
 
@@ -49,25 +50,30 @@ export function tokenView(token: ApiToken): ApiTokenView {
 
 export async function createApiToken(
   studioId: string,
-  createdByUserId: string,
+  createdBy: Pick<User, "id" | "email">,
   input: z.infer<typeof createTokenSchema>,
 ): Promise<{ token: ApiTokenView; secret: string }> {
   const secret = API_TOKEN_SECRET_PREFIX + randomBytes(32).toString("base64url");
   const db = await getDb();
   // Stored in a fixed order so the same choice always reads the same.
   const scopes = API_TOKEN_SCOPES.filter((s) => input.scopes.includes(s));
-  const [row] = await db
-    .insert(apiTokens)
-    .values({
-      id: newId("tok"),
-      studioId,
-      name: input.name,
-      tokenHash: sha256Hex(secret),
-      prefix: secret.slice(0, DISPLAY_PREFIX_LENGTH),
-      scopes,
-      createdByUserId,
-    })
-    .returning();
+  const row = await db.transaction(async (tx) => {
+    const [created] = await tx
+      .insert(apiTokens)
+      .values({
+        id: newId("tok"),
+        studioId,
+        name: input.name,
+        tokenHash: sha256Hex(secret),
+        prefix: secret.slice(0, DISPLAY_PREFIX_LENGTH),
+        scopes,
+        createdByUserId: createdBy.id,
+      })
+      .returning();
+    // The secret never enters the audit log; the prefix identifies the token.
+    await writeAudit(tx, { actor: createdBy, studioId, action: "token.create", subjectType: "api_token", subjectId: created.id, before: null, after: { name: created.name, scopes, prefix: created.prefix } });
+    return created;
+  });
   return { token: tokenView(row), secret };
 }
 
@@ -78,7 +84,7 @@ export async function listApiTokens(studioId: string): Promise<ApiTokenView[]> {
 }
 
 /** Revokes (the row stays, with revokedAt); revoking twice keeps the first time. */
-export async function revokeApiToken(studioId: string, tokenId: string): Promise<ApiTokenView> {
+export async function revokeApiToken(studioId: string, tokenId: string, actor: Pick<User, "id" | "email"> | null = null): Promise<ApiTokenView> {
   const db = await getDb();
   const [row] = await db
     .select()
@@ -86,7 +92,20 @@ export async function revokeApiToken(studioId: string, tokenId: string): Promise
     .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.studioId, studioId)));
   if (!row) throw new ApiError(404, "not_found", "API token not found.");
   if (row.revokedAt) return tokenView(row);
-  const [updated] = await db.update(apiTokens).set({ revokedAt: new Date() }).where(eq(apiTokens.id, tokenId)).returning();
+  const updated = await db.transaction(async (tx) => {
+    const [revoked] = await tx
+      .update(apiTokens)
+      .set({ revokedAt: new Date() })
+      .where(and(eq(apiTokens.id, tokenId), isNull(apiTokens.revokedAt)))
+      .returning();
+    if (!revoked) return null; // a concurrent revoke won; keep its time and its audit record
+    await writeAudit(tx, { actor, studioId, action: "token.revoke", subjectType: "api_token", subjectId: tokenId, before: { revokedAt: null }, after: { revokedAt: revoked.revokedAt?.toISOString() ?? null } });
+    return revoked;
+  });
+  if (!updated) {
+    const [current] = await db.select().from(apiTokens).where(eq(apiTokens.id, tokenId));
+    return tokenView(current);
+  }
   return tokenView(updated);
 }
 

@@ -14,7 +14,7 @@ function escapeHtml(value: string): string {
     .replaceAll("'", "&#39;");
 }
 
-function layout(title: string, paragraphs: string[], action: { label: string; url: string }, footer: string): string {
+export function layout(title: string, paragraphs: string[], action: { label: string; url: string }, footer: string): string {
   const body = paragraphs.map((p) => `<p style="margin:0 0 12px">${escapeHtml(p)}</p>`).join("");
   return `<!doctype html><html><body style="font-family:system-ui,sans-serif;color:#1b2330;max-width:560px;margin:24px auto">
 <h1 style="font-size:20px">${escapeHtml(title)}</h1>${body}

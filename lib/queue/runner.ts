@@ -15,7 +15,8 @@ import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep, type SweepChunk } from "@/db/schema";
 import { recordChunkUsage } from "@/lib/billing/usage";
-import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { effectiveQuotas, PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { applyRunLimits, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
 import { unpackResults, type ChunkOutcome, type ChunkTask } from "@/lib/sweeps/chunk-task";
 import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { scenarioHash } from "@/lib/sweeps/hash";
@@ -26,7 +27,9 @@ import { storableMetrics } from "./views";
 
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
-export const OUT_OF_MINUTES = "out of minutes";
+export const OUT_OF_MINUTES = RUN_LIMIT_REASONS.outOfMinutes;
+/** Longest wait between two checks of the run limits while no chunk lands (ms). */
+const LIMITS_EVERY_MS = 250;
 
 export interface RunnerOptions {
   db: Db;
@@ -63,6 +66,8 @@ export class QueueRunner {
   private wake: (() => void) | null = null;
   private renewTimer: NodeJS.Timeout | null = null;
   private landing = new Set<Promise<void>>();
+  private limitsCheckedAt = 0;
+  private landedSinceLimits = true;
 
   constructor(options: RunnerOptions) {
     this.db = options.db;
@@ -152,7 +157,7 @@ export class QueueRunner {
     while (this.running) {
       try {
         await this.reclaimLapsed(false);
-        await this.applyBalances();
+        await this.applyLimits();
         await this.dropCancelled();
         let claimed = false;
         while (this.running && this.inFlight.size < this.concurrency) {
@@ -183,19 +188,17 @@ export class QueueRunner {
       where status = 'running' and (lease_expires_at < now() ${foreignToo ? sql`or lease_owner is distinct from ${this.ownerId}` : sql``})`);
   }
 
-  /** Pause sweeps of studios with no minutes left; resume them once the balance is positive again. */
-  private async applyBalances(): Promise<void> {
-    const balance = sql`(select coalesce(sum(l.compute_ms), 0) from ledger_entries l where l.studio_id = sweeps.studio_id)`;
-    // Overage allowed with headroom under this month's overage cap keeps a sweep running past a zero balance.
-    const overageHeadroom = sql`exists (select 1 from studio_quotas q where q.studio_id = sweeps.studio_id and q.overage_allowed
-      and coalesce(q.overage_cap_ms, ${PLAN_DEFAULTS.overageCapMs}) > (select coalesce(sum(l.overage_ms), 0) from ledger_entries l
-        where l.studio_id = sweeps.studio_id and l.kind = 'usage' and l.created_at >= date_trunc('month', now() at time zone 'UTC') at time zone 'UTC'))`;
-    await this.db.execute(sql`
-      update sweeps set status = 'paused', reason = ${OUT_OF_MINUTES}
-      where status in ('queued', 'running') and ${balance} <= 0 and not ${overageHeadroom}`);
-    await this.db.execute(sql`
-      update sweeps set status = case when started_at is null then 'queued' else 'running' end, reason = null
-      where status = 'paused' and reason = ${OUT_OF_MINUTES} and (${balance} > 0 or ${overageHeadroom})`);
+  /**
+   * Quotas, balance and suspension (lib/quotas/enforce.ts): checked before the next claim whenever a
+   * chunk has landed (usage changed: pause at the chunk boundary), else at most every LIMITS_EVERY_MS
+   * (a top-up, quota raise or lifted suspension resumes within that), so an idle loop does not keep
+   * the database busy.
+   */
+  private async applyLimits(): Promise<void> {
+    if (!this.landedSinceLimits && Date.now() - this.limitsCheckedAt < LIMITS_EVERY_MS) return;
+    this.landedSinceLimits = false;
+    this.limitsCheckedAt = Date.now();
+    await applyRunLimits(this.db);
   }
 
   /** Chunks of sweeps cancelled meanwhile: drop them if they still wait for a thread. */
@@ -213,19 +216,53 @@ export class QueueRunner {
       update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
         lease_expires_at = now() + make_interval(secs => ${leaseSeconds}), attempts = attempts + 1
       where id = (
-        select c.id from sweep_chunks c join sweeps s on s.id = c.sweep_id
-        where c.status = 'queued' and s.status in ('queued', 'running')
-        order by s.created_at, c.sweep_id, c.chunk_index
+        -- Fair share: the studio with the fewest chunks running, then the one served longest ago.
+        -- A queued sweep starts only while its studio runs fewer sweeps than maxRunningSweeps.
+        with busy as (select s2.studio_id, count(*) as n from sweep_chunks c2 join sweeps s2 on s2.id = c2.sweep_id where c2.status = 'running' group by s2.studio_id),
+          slots as (select studio_id, count(*) as n from sweeps where status = 'running' group by studio_id)
+        select c.id from sweep_chunks c join sweeps s on s.id = c.sweep_id join studios st on st.id = s.studio_id
+          left join studio_quotas q on q.studio_id = s.studio_id left join busy on busy.studio_id = s.studio_id left join slots on slots.studio_id = s.studio_id
+        where c.status = 'queued' and s.status in ('queued', 'running') and st.status = 'active'
+          and (s.status = 'running' or coalesce(slots.n, 0) < coalesce(q.max_running_sweeps, ${PLAN_DEFAULTS.maxRunningSweeps}))
+        order by coalesce(busy.n, 0), st.last_chunk_claimed_at nulls first, s.created_at, c.sweep_id, c.chunk_index
         limit 1 for update of c skip locked)
       returning id`);
     const rows = (result as unknown as { rows: { id: number }[] }).rows;
     if (!rows.length) return null;
     const [chunk] = await this.db.select().from(sweepChunks).where(eq(sweepChunks.id, rows[0].id));
-    await this.db
-      .update(sweeps)
-      .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
-      .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
+    await this.db.execute(sql`update studios set last_chunk_claimed_at = clock_timestamp() where id = (select studio_id from sweeps where id = ${chunk.sweepId})`);
+    if (!(await this.startSweep(chunk))) return null;
     return chunk;
+  }
+
+  /**
+   * Marks the chunk's sweep running. Starting a queued sweep re-checks maxRunningSweeps under a lock
+   * on the studio row, so runners in several processes cannot together start one sweep too many;
+   * the loser puts the chunk back (false).
+   */
+  private async startSweep(chunk: SweepChunk): Promise<boolean> {
+    return this.db.transaction(async (tx) => {
+      const [sweep] = await tx.select({ studioId: sweeps.studioId, status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      if (!sweep || sweep.status !== "queued") return true;
+      await tx.execute(sql`select id from studios where id = ${sweep.studioId} for update`);
+      // Another runner may have started it while this one waited for the lock.
+      const [now] = await tx.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      if (now?.status !== "queued") return true;
+      const { maxRunningSweeps } = await effectiveQuotas(tx, sweep.studioId);
+      const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweeps).where(and(eq(sweeps.studioId, sweep.studioId), eq(sweeps.status, "running")));
+      if (Number(n) >= maxRunningSweeps) {
+        await tx
+          .update(sweepChunks)
+          .set({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: sql`${sweepChunks.attempts} - 1` })
+          .where(and(eq(sweepChunks.id, chunk.id), eq(sweepChunks.leaseOwner, this.ownerId)));
+        return false;
+      }
+      await tx
+        .update(sweeps)
+        .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
+        .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
+      return true;
+    });
   }
 
   private async renewLeases(): Promise<void> {
@@ -243,6 +280,7 @@ export class QueueRunner {
       .catch(logError)
       .finally(() => {
         this.inFlight.delete(chunk.id);
+        this.landedSinceLimits = true;
         this.landing.delete(landed);
         this.poke();
       });
@@ -287,6 +325,7 @@ export class QueueRunner {
     }
     if (this.crashed) return;
     await this.recordOutcome(sweep, chunk, outcome, hashes, (index) => axisValuesAt(axes, index));
+    await sendCapAlerts(this.db, sweep.studioId); // the chunk may have crossed 80 % or 100 % of the monthly cap
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */

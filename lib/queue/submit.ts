@@ -9,11 +9,12 @@ import type { Db } from "@/db/client";
 import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
+import { enforceSubmitLimits, quoteLimits, type QuoteLimits, type SweepDemand } from "@/lib/quotas/enforce";
+import { bodyCount } from "@/lib/sweeps/axes";
 import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
 import { QUOTE_BAND, predictSweep } from "@/lib/sweeps/cost";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { scenarioHash, specHash } from "@/lib/sweeps/hash";
-import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import { parseSweepSpec, type SweepSpec } from "@/lib/sweeps/spec";
 
 export interface Quote {
@@ -26,7 +27,8 @@ export interface Quote {
   band: { lowMs: number; highMs: number };
   balanceMs: number;
   balanceAfterMs: number;
-  limits: { maxCells: number; maxStepsPerCell: number; maxBodies: number };
+  /** The studio's effective limits, what is used and what remains; `violations` lists what submit would refuse. */
+  limits: QuoteLimits;
   warnings: string[];
 }
 
@@ -55,6 +57,9 @@ interface Plan {
   /** Scenario hash per cell, in index order (null when the studio had nothing cached to compare with). */
   hashes: (string | null)[];
   steps: number;
+  /** The largest step count and body count of any cell, for the per-sweep quotas. */
+  maxCellSteps: number;
+  maxCellBodies: number;
   /** Cache rows by cell index, for the cells found in the studio's cache. */
   cached: Map<number, CachedRow>;
   /** Predicted compute of the cells still to run, per chunk (0 for a fully cached chunk). */
@@ -72,9 +77,15 @@ async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions
   const [anyCached] = await db.select({ one: sql<number>`1` }).from(resultCache).where(eq(resultCache.studioId, studioId)).limit(1);
   const hashes: (string | null)[] = new Array(estimate.cells).fill(null);
   let steps = 0;
+  let maxCellSteps = 0;
+  let maxCellBodies = 0;
   forEachCellInRange(spec, axes, 0, estimate.cells, (cell) => {
     if (anyCached) hashes[cell.index] = scenarioHash(cell.scenario);
-    steps += Math.ceil(cell.scenario.durationS / (cell.scenario.dtS / cell.scenario.substeps));
+    const cellSteps = Math.ceil(cell.scenario.durationS / (cell.scenario.dtS / cell.scenario.substeps));
+    steps += cellSteps;
+    if (cellSteps > maxCellSteps) maxCellSteps = cellSteps;
+    const bodies = bodyCount(cell.scenario);
+    if (bodies > maxCellBodies) maxCellBodies = bodies;
   });
   const byHash = new Map<string, CachedRow>();
   if (anyCached) {
@@ -105,14 +116,19 @@ async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions
     for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (!cached.has(i)) misses++;
     return misses === 0 ? 0 : Math.ceil((chunk.predictedMs * misses) / chunk.cellCount);
   });
-  return { spec, chunks: estimate.plan, hashes, steps, cached, chunkEstimateMs, estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0) };
+  return { spec, chunks: estimate.plan, hashes, steps, maxCellSteps, maxCellBodies, cached, chunkEstimateMs, estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0) };
 }
 
-function quoteOf(plan: Plan, balance: number): Quote {
+function demandOf(plan: Plan): SweepDemand {
+  return { cells: plan.hashes.length, maxCellSteps: plan.maxCellSteps, maxCellBodies: plan.maxCellBodies, estimatedComputeMs: plan.estimatedComputeMs };
+}
+
+function quoteOf(plan: Plan, balance: number, limits: QuoteLimits): Quote {
   const warnings: string[] = [];
   const cells = plan.hashes.length;
   if (plan.estimatedComputeMs > balance) warnings.push(`The estimate (${plan.estimatedComputeMs} ms) exceeds the balance (${balance} ms): buy minutes before submitting.`);
-  if (cells >= SPEC_LIMITS.maxCellsPerSweep / 2) warnings.push(`${cells} cells is over half the limit of ${SPEC_LIMITS.maxCellsPerSweep} cells per sweep.`);
+  if (cells >= limits.maxCells / 2 && cells <= limits.maxCells) warnings.push(`${cells} cells is over half the limit of ${limits.maxCells} cells per sweep.`);
+  for (const violation of limits.violations) warnings.push(violation.message);
   return {
     cells,
     cachedCells: plan.cached.size,
@@ -123,7 +139,7 @@ function quoteOf(plan: Plan, balance: number): Quote {
     band: { lowMs: Math.floor(plan.estimatedComputeMs * QUOTE_BAND.low), highMs: Math.ceil(plan.estimatedComputeMs * QUOTE_BAND.high) },
     balanceMs: balance,
     balanceAfterMs: balance - plan.estimatedComputeMs,
-    limits: { maxCells: SPEC_LIMITS.maxCellsPerSweep, maxStepsPerCell: SPEC_LIMITS.maxStepsPerCell, maxBodies: SPEC_LIMITS.maxBodies },
+    limits,
     warnings,
   };
 }
@@ -136,7 +152,7 @@ export interface SubmitOptions {
 export async function quoteSweep(db: Db, studioId: string, specInput: unknown, options: SubmitOptions = {}): Promise<Quote> {
   const spec = parseSpecOrThrow(specInput);
   const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
-  return quoteOf(plan, await balanceMs(db, studioId));
+  return quoteOf(plan, await balanceMs(db, studioId), await quoteLimits(db, studioId, demandOf(plan)));
 }
 
 function newSweepId(): string {
@@ -158,15 +174,8 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
   const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
   const name = input.name ?? spec.name ?? "Untitled sweep";
   return db.transaction(async (tx) => {
-    const balance = await balanceMs(tx, studioId);
-    if (plan.estimatedComputeMs > 0 && plan.estimatedComputeMs > balance) {
-      throw new ApiError(
-        402,
-        "insufficient_minutes",
-        `The sweep is estimated at ${plan.estimatedComputeMs} ms of compute; the studio's balance is ${balance} ms.`,
-        "spec",
-      );
-    }
+    // Suspension, per-sweep quotas, the monthly cap and the balance, under a lock on the studio row.
+    await enforceSubmitLimits(tx, studioId, demandOf(plan));
     if (input.acceptedQuoteMs !== undefined && plan.estimatedComputeMs > input.acceptedQuoteMs) {
       throw new ApiError(
         409,

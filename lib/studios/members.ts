@@ -1,7 +1,8 @@
 import { and, asc, eq } from "drizzle-orm";
 import { z } from "zod";
 import { getDb, type DbOrTx } from "@/db/client";
-import { memberships, STUDIO_ROLES, users, type StudioRole } from "@/db/schema";
+import { memberships, STUDIO_ROLES, users, type StudioRole, type User } from "@/db/schema";
+import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 
 export const roleSchema = z.enum(STUDIO_ROLES, { error: `Role must be one of ${STUDIO_ROLES.join(", ")}.` });
@@ -37,7 +38,10 @@ async function lockMembers(tx: DbOrTx, studioId: string) {
   return tx.select().from(memberships).where(eq(memberships.studioId, studioId)).for("update");
 }
 
-export async function changeRole(studioId: string, userId: string, role: StudioRole): Promise<MemberView> {
+/** The person making a change, for the audit log. */
+export type ChangeActor = Pick<User, "id" | "email"> | null;
+
+export async function changeRole(studioId: string, userId: string, role: StudioRole, actor: ChangeActor = null): Promise<MemberView> {
   const db = await getDb();
   await db.transaction(async (tx) => {
     const rows = await lockMembers(tx, studioId);
@@ -47,13 +51,14 @@ export async function changeRole(studioId: string, userId: string, role: StudioR
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("demote");
     await tx.update(memberships).set({ role }).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+    await writeAudit(tx, { actor, studioId, action: "member.role_change", subjectType: "user", subjectId: userId, before: { role: target.role }, after: { role } });
   });
   const member = (await listMembers(studioId)).find((m) => m.userId === userId);
   if (!member) throw new ApiError(404, "not_found", "Member not found.");
   return member;
 }
 
-export async function removeMember(studioId: string, userId: string): Promise<void> {
+export async function removeMember(studioId: string, userId: string, actor: ChangeActor = null): Promise<void> {
   const db = await getDb();
   await db.transaction(async (tx) => {
     const rows = await lockMembers(tx, studioId);
@@ -62,5 +67,6 @@ export async function removeMember(studioId: string, userId: string): Promise<vo
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("remove");
     await tx.delete(memberships).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+    await writeAudit(tx, { actor, studioId, action: "member.remove", subjectType: "user", subjectId: userId, before: { role: target.role }, after: null });
   });
 }

@@ -153,6 +153,7 @@ test("only platform admins open the admin lists", async ({ browser }) => {
   await signInWithPassword(admin, "ops@kickdrift.test", "kickdrift-operator");
   await admin.getByRole("link", { name: "Admin", exact: true }).click();
   await expect(admin.getByTestId("admin-studios")).toContainText(DEMO_OWNER.studio);
+  await admin.getByRole("navigation", { name: "Admin sections" }).getByRole("link", { name: "Users" }).click();
   await expect(admin.getByTestId("admin-users")).toContainText(DEMO_OWNER.email);
   await adminContext.close();
 

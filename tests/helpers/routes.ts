@@ -1,4 +1,4 @@
-import { readdirSync, statSync } from "node:fs";
+import { readFileSync, readdirSync, statSync } from "node:fs";
 import path from "node:path";
 import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
 import type { RoutePolicy } from "@/lib/auth/guard";
@@ -38,6 +38,42 @@ export async function routePolicies(): Promise<{ route: string; method: HttpMeth
     }
   }
   return out;
+}
+
+/**
+ * Exported HTTP method handlers of a route module that carry no policy and are not the 405 stubs
+ * of `otherMethods`: each one is a handler that skipped `withAuth`.
+ */
+export function unguardedHandlers(mod: Record<string, unknown>): string[] {
+  return [...HTTP_METHODS, "HEAD" as const].filter((method) => {
+    const handler = mod[method] as ({ policy?: unknown; methodNotAllowed?: true } & ((...args: unknown[]) => unknown)) | undefined;
+    return typeof handler === "function" && !handler.policy && !handler.methodNotAllowed;
+  });
+}
+
+const SOURCE_ROOTS = ["app", "components", "lib"].map((dir) => path.join(process.cwd(), dir));
+const USE_SERVER = /^\s*["']use server["'];?\s*$/m;
+
+/** Source files under app/, components/ and lib/ that declare server actions ("use server"). */
+export function serverActionFiles(roots: readonly string[] = SOURCE_ROOTS): string[] {
+  const found: string[] = [];
+  const walk = (dir: string) => {
+    for (const entry of readdirSync(dir)) {
+      const full = path.join(dir, entry);
+      if (statSync(full).isDirectory()) {
+        if (entry !== "node_modules" && !entry.startsWith(".")) walk(full);
+      } else if (/\.(ts|tsx)$/.test(entry) && USE_SERVER.test(readFileSync(full, "utf8"))) found.push(full);
+    }
+  };
+  for (const root of roots) walk(root);
+  return found.sort();
+}
+
+/** Exported functions of a server-action module that carry no policy (every action must be guarded like a route). */
+export function unguardedActions(mod: Record<string, unknown>): string[] {
+  return Object.entries(mod)
+    .filter(([, value]) => typeof value === "function" && !(value as { policy?: unknown }).policy)
+    .map(([name]) => name);
 }
 
 /** A concrete URL path for a route folder, filling [param] segments. */

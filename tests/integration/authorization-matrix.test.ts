@@ -18,7 +18,11 @@ import { closeTestDb, useFreshDb } from "../helpers/db";
 import { puckSpec } from "./sweeps/support";
 import { makeInvite, makePasswordReset, makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf, sessionCookie } from "../helpers/http";
-import { concretePath, loadRoute, routeFolders, routePolicies, UNGUARDED_ROUTES } from "../helpers/routes";
+import { concretePath, loadRoute, routeFolders, routePolicies, serverActionFiles, UNGUARDED_ROUTES, unguardedActions, unguardedHandlers } from "../helpers/routes";
+import { otherMethods } from "@/lib/api/methods";
+import { mkdtempSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 
 const ACTORS = [
   "anonymous",
@@ -206,7 +210,40 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun", method: "POST", params: cell, expect: SWEEP_WRITERS(201) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/envelope", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/admin/studios", method: "GET", expect: ADMIN_ONLY(200) },
+  { route: "v1/admin/studios/[studioId]", method: "GET", params: studio, expect: ADMIN_ONLY(200) },
+  { route: "v1/admin/studios/[studioId]/quotas", method: "GET", params: studio, expect: ADMIN_ONLY(200) },
+  {
+    route: "v1/admin/studios/[studioId]/quotas",
+    method: "PATCH",
+    params: studio,
+    body: () => ({ monthlyComputeMs: 600_000, reason: "matrix" }),
+    expect: ADMIN_ONLY(200),
+  },
+  { route: "v1/admin/studios/[studioId]/adjustments", method: "GET", params: studio, expect: ADMIN_ONLY(200) },
+  {
+    route: "v1/admin/studios/[studioId]/adjustments",
+    method: "POST",
+    params: studio,
+    body: () => ({ computeMs: 60_000, reason: "matrix goodwill" }),
+    expect: ADMIN_ONLY(201),
+  },
+  {
+    route: "v1/admin/studios/[studioId]/status",
+    method: "PUT",
+    params: studio,
+    body: () => ({ status: "suspended", reason: "matrix" }),
+    expect: ADMIN_ONLY(200),
+  },
   { route: "v1/admin/users", method: "GET", expect: ADMIN_ONLY(200) },
+  {
+    route: "v1/admin/users/[userId]",
+    method: "PATCH",
+    params: (w) => ({ userId: w.subjectUserId }),
+    body: () => ({ isAdmin: true, reason: "matrix" }),
+    expect: ADMIN_ONLY(200),
+  },
+  { route: "v1/admin/audit", method: "GET", expect: ADMIN_ONLY(200) },
+  { route: "v1/admin/queue", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/dev/mail", method: "GET", expect: PUBLIC(200) },
   { route: "health", method: "GET", expect: PUBLIC(200) },
   { route: "ready", method: "GET", expect: PUBLIC(200) },
@@ -247,6 +284,25 @@ describe("every route method has a row, and every other method answers 405", () 
     const exported = (await routePolicies()).map((p) => `${p.method} ${p.route}`);
     const table = ROUTES.map((r) => `${r.method} ${r.route}`);
     expect(exported.sort()).toEqual([...table].sort());
+  });
+
+  it("fails on any route method exported without a policy (every handler goes through withAuth)", async () => {
+    for (const route of routeFolders()) {
+      if (route in UNGUARDED_ROUTES) continue;
+      expect(unguardedHandlers(await loadRoute(route)), `app/api/${route}/route.ts`).toEqual([]);
+    }
+    // The check itself catches a handler that skipped the guard.
+    expect(unguardedHandlers({ ...otherMethods(["GET"]), GET: async () => new Response("open") })).toEqual(["GET"]);
+  });
+
+  it("fails on any server action without a policy", async () => {
+    for (const file of serverActionFiles()) expect(unguardedActions((await import(/* @vite-ignore */ file)) as Record<string, unknown>), file).toEqual([]);
+    // The scanner finds a "use server" module, and an unguarded action in it is reported.
+    const dir = mkdtempSync(path.join(tmpdir(), "kd-actions-"));
+    writeFileSync(path.join(dir, "actions.ts"), '"use server";\nexport async function launch() {}\n');
+    writeFileSync(path.join(dir, "plain.ts"), "export const x = 1;\n");
+    expect(serverActionFiles([dir])).toEqual([path.join(dir, "actions.ts")]);
+    expect(unguardedActions({ launch: async () => undefined, guarded: Object.assign(async () => undefined, { policy: { access: "admin" } }) })).toEqual(["launch"]);
   });
 
   it("answers 405 JSON with an Allow header for the methods a route does not support", async () => {

@@ -1,11 +1,13 @@
+import { getDb } from "@/db/client";
 import { withAuth } from "@/lib/auth/guard";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
-import { allStudios } from "@/lib/studios/studios";
+import { adminStudioList } from "@/lib/quotas/admin";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const GET = withAuth({ access: "admin" }, async () => json({ studios: await allStudios() }));
+// Every studio with this month's usage against its cap, balance, sweeps and status.
+export const GET = withAuth({ access: "admin" }, async () => json({ studios: await adminStudioList(await getDb()) }));
 
 export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

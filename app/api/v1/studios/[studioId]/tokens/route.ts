@@ -14,7 +14,7 @@ export const GET = withAuth({ access: "studio", roles: "member", token: "never" 
 
 export const POST = withAuth(OWNERS_ONLY, async ({ req, studio, user }) => {
   const input = await parseBody(req, createTokenSchema);
-  const { token, secret } = await createApiToken(studio.id, user!.id, input);
+  const { token, secret } = await createApiToken(studio.id, user!, input);
   return json(
     { token: { id: token.id, name: token.name, scopes: token.scopes, prefix: token.prefix, createdAt: token.createdAt }, secret },
     201,

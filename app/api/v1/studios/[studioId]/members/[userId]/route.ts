@@ -7,13 +7,13 @@ import { changeRole, changeRoleSchema, removeMember } from "@/lib/studios/member
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const PATCH = withAuth(OWNERS_ONLY, async ({ req, studio, params }) => {
+export const PATCH = withAuth(OWNERS_ONLY, async ({ req, studio, params, user }) => {
   const { role } = await parseBody(req, changeRoleSchema);
-  return json({ member: await changeRole(studio.id, params.userId, role) });
+  return json({ member: await changeRole(studio.id, params.userId, role, user) });
 });
 
-export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
-  await removeMember(studio.id, params.userId);
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params, user }) => {
+  await removeMember(studio.id, params.userId, user);
   return json({ removed: { userId: params.userId } });
 });
 

@@ -7,8 +7,8 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 // Revokes; the row stays (with revokedAt) so the list still shows it.
-export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
-  return json({ token: await revokeApiToken(studio.id, params.tokenId) });
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params, user }) => {
+  return json({ token: await revokeApiToken(studio.id, params.tokenId, user) });
 });
 
 export const { GET, POST, PUT, PATCH, OPTIONS } = otherMethods(["DELETE"]);

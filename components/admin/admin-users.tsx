@@ -1,0 +1,82 @@
+"use client";
+
+import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
+import { useState } from "react";
+import { Alert, Button, Card, EmptyState, LoadingRows, PageHeading, TextField } from "@/components/ui";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
+import { formatDate } from "@/lib/ui/format";
+import { queryKeys } from "@/lib/ui/queries";
+import type { AdminUser } from "@/lib/ui/types";
+import { AdminNav } from "./admin-nav";
+import { td, th } from "./admin-format";
+
+export function AdminUsers({ selfId }: { selfId: string }) {
+  const queryClient = useQueryClient();
+  const [filter, setFilter] = useState("");
+  const users = useQuery({
+    queryKey: queryKeys.adminUsers,
+    queryFn: async () => (await apiFetch<{ users: AdminUser[] }>("/api/v1/admin/users")).users,
+  });
+  const change = useMutation({
+    mutationFn: ({ id, isAdmin }: { id: string; isAdmin: boolean }) => apiFetch(`/api/v1/admin/users/${encodeURIComponent(id)}`, { method: "PATCH", body: { isAdmin } }),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.adminUsers }),
+  });
+  const needle = filter.trim().toLowerCase();
+  return (
+    <div>
+      <PageHeading eyebrow="Platform admin" title="Users and platform roles">
+        Every account. Platform admins set quotas, adjust credit and suspend studios; they are not studio members unless invited. Role changes are audited.
+      </PageHeading>
+      <AdminNav />
+      <div className="mb-6 max-w-sm">
+        <TextField id="users-filter" label="Filter by name or e-mail" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} />
+      </div>
+      {change.isError ? <Alert>{errorMessage(change.error)}</Alert> : null}
+      <Card title={`Users${users.data ? ` (${users.data.length})` : ""}`}>
+        {users.isPending ? (
+          <LoadingRows label="users" />
+        ) : users.isError ? (
+          <Alert>{errorMessage(users.error)}</Alert>
+        ) : users.data.length === 0 ? (
+          <EmptyState>No users yet.</EmptyState>
+        ) : (
+          <table className="w-full text-sm" data-testid="admin-users">
+            <thead className="border-b border-line">
+              <tr>
+                <th scope="col" className={th}>User</th>
+                <th scope="col" className={th}>Studios</th>
+                <th scope="col" className={th}>Platform role</th>
+                <th scope="col" className={th}>Joined</th>
+                <th scope="col" className={th}><span className="sr-only">Change</span></th>
+              </tr>
+            </thead>
+            <tbody className="divide-y divide-line">
+              {users.data
+                .filter((u) => !needle || [u.name, u.email].some((v) => v?.toLowerCase().includes(needle)))
+                .map((u) => (
+                  <tr key={u.id}>
+                    <td className={td}>
+                      <div className="font-medium">{u.name || "—"}</div>
+                      <div className="font-mono text-xs text-ink-muted">{u.email}</div>
+                    </td>
+                    <td className={td}>{u.studioCount ?? "—"}</td>
+                    <td className={td}>{u.isAdmin ? "admin" : "user"}</td>
+                    <td className={`${td} text-ink-muted`}>{formatDate(u.createdAt)}</td>
+                    <td className={td}>
+                      {u.id === selfId ? (
+                        <span className="text-xs text-ink-muted">you</span>
+                      ) : (
+                        <Button variant="secondary" disabled={change.isPending} onClick={() => change.mutate({ id: u.id, isAdmin: !u.isAdmin })}>
+                          {u.isAdmin ? "Remove admin" : "Make admin"}
+                        </Button>
+                      )}
+                    </td>
+                  </tr>
+                ))}
+            </tbody>
+          </table>
+        )}
+      </Card>
+    </div>
+  );
+}

@@ -1,0 +1,14 @@
+import type { AuditAction } from "@/lib/audit/audit";
+
+/** Labels of the audit actions (the keys are lib/audit's AUDIT_ACTIONS; the type keeps them in step). */
+export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
+  "quota.update": "Quota change",
+  "credit.adjust": "Credit adjustment",
+  "studio.suspend": "Suspension",
+  "studio.reinstate": "Suspension lifted",
+  "member.role_change": "Role change",
+  "member.remove": "Member removed",
+  "token.create": "Token created",
+  "token.revoke": "Token revoked",
+  "user.platform_role": "Platform role change",
+};

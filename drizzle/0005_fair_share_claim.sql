@@ -1,0 +1,1 @@
+ALTER TABLE "studios" ADD COLUMN "last_chunk_claimed_at" timestamp with time zone;
