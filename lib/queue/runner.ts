@@ -1,8 +1,14 @@
 /**
  * The queue runner: claims queued chunks with a lease, runs them on the worker-thread pool, and
- * for each finished chunk writes in ONE transaction its cells, the result cache, the chunk
- * state, the sweep's counters and the ledger debit `usage:{sweepId}:{chunkIndex}` (written with
- * ON CONFLICT DO NOTHING, so a chunk run twice after a lost lease is billed once).
+ * for each finished chunk records in ONE statement (atomic, like a transaction) its results row
+ * (the packed blob, lib/queue/result-store.ts), the chunk state, the sweep's running counters
+ * (cells, chunks, verdicts, compute) and the ledger debit `usage:{sweepId}:{chunkIndex}` (ON
+ * CONFLICT DO NOTHING, so a chunk run twice after a lost lease is billed once).
+ *
+ * The main thread does as little per cell as it can (the workers pack and key the results; the
+ * main thread stores one blob per chunk), because on a machine whose cores all run workers any
+ * main-thread work adds to a sweep's wall time. It holds twice as many chunks as the pool has
+ * threads, so each thread starts its next chunk while the previous one is being stored.
  *
  * Leases: a claimed chunk carries its runner's id and an expiry that the runner renews while the
  * chunk runs. A chunk whose lease lapsed (its runner died) goes back to the queue. Claims use
@@ -13,15 +19,15 @@
 import { randomBytes } from "node:crypto";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep, type SweepChunk } from "@/db/schema";
-import { appendLedgerEntry, usageKey } from "@/lib/ledger/ledger";
-import { unpackResults, type ChunkOutcome, type ChunkTask } from "@/lib/sweeps/chunk-task";
-import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
-import { scenarioHash } from "@/lib/sweeps/hash";
+import { sweepChunks, sweepResults, sweeps, type SweepChunk } from "@/db/schema";
+import { usageKey } from "@/lib/ledger/ledger";
+import { VERDICTS } from "@/lib/physics/types";
+import type { ChunkOutcome, ChunkTask } from "@/lib/sweeps/chunk-task";
+import { PackedView, mergePacked, verdictTally } from "@/lib/sweeps/packed";
 import type { ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import { RUNNER_KEY } from "./poke";
-import { storableMetrics } from "./views";
+import { dropBlobFile, putBlob, readBlob } from "./result-store";
 
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
@@ -30,7 +36,7 @@ export const OUT_OF_MINUTES = "out of minutes";
 export interface RunnerOptions {
   db: Db;
   pool: ChunkPool;
-  /** Chunks this runner holds at once; default the pool's thread count. */
+  /** Chunks this runner holds at once; default twice the pool's thread count (one running, one ready per thread). */
   concurrency?: number;
   /** Lease length (ms); renewed every third of it while a chunk runs. */
   leaseMs?: number;
@@ -62,11 +68,15 @@ export class QueueRunner {
   private wake: (() => void) | null = null;
   private renewTimer: NodeJS.Timeout | null = null;
   private landing = new Set<Promise<void>>();
+  private poked = false;
+  private nextHousekeeping = 0;
+  /** What a chunk needs of its sweep (the spec never changes once submitted). */
+  private readonly sweepInfo = new Map<string, SweepInfo>();
 
   constructor(options: RunnerOptions) {
     this.db = options.db;
     this.pool = options.pool;
-    this.concurrency = options.concurrency ?? options.pool.threads;
+    this.concurrency = options.concurrency ?? options.pool.threads * 2;
     this.leaseMs = options.leaseMs ?? 60_000;
     this.pollMs = options.pollMs ?? 250;
     this.reclaimForeignAtStart = options.reclaimForeignAtStart ?? false;
@@ -85,6 +95,7 @@ export class QueueRunner {
 
   /** Nudge the loop (after a submit) instead of waiting for the next poll. */
   poke(): void {
+    this.poked = true;
     this.wake?.();
   }
 
@@ -110,23 +121,23 @@ export class QueueRunner {
 
   private async loop(): Promise<void> {
     while (this.running) {
+      this.poked = false;
       try {
-        await this.reclaimLapsed(false);
-        await this.applyBalances();
-        await this.dropCancelled();
-        let claimed = false;
-        while (this.running && this.inFlight.size < this.concurrency) {
-          const chunk = await this.claim();
-          if (!chunk) break;
-          claimed = true;
-          this.launch(chunk);
+        // Lease, balance and cancel checks run once per poll interval, not after every chunk.
+        if (Date.now() >= this.nextHousekeeping) {
+          this.nextHousekeeping = Date.now() + this.pollMs;
+          await this.reclaimLapsed(false);
+          await this.applyBalances();
+          await this.dropCancelled();
         }
-        if (claimed) continue;
+        const free = this.concurrency - this.inFlight.size;
+        if (this.running && free > 0) for (const chunk of await this.claim(free)) this.launch(chunk);
       } catch (error) {
         logError(error);
       }
+      if (this.poked || !this.running) continue;
       await new Promise<void>((resolve) => {
-        const timer = setTimeout(resolve, this.pollMs);
+        const timer = setTimeout(resolve, Math.max(1, Math.min(this.pollMs, this.nextHousekeeping - Date.now())));
         this.wake = () => {
           clearTimeout(timer);
           resolve();
@@ -163,25 +174,39 @@ export class QueueRunner {
     for (const flight of this.inFlight.values()) if (stopped.has(flight.chunk.sweepId)) flight.abort.abort("sweep stopped");
   }
 
-  private async claim(): Promise<SweepChunk | null> {
+  /** Claim up to `limit` queued chunks (oldest sweep first) and mark their sweeps running, in one statement. */
+  private async claim(limit: number): Promise<SweepChunk[]> {
     const leaseSeconds = this.leaseMs / 1000;
     const result = await this.db.execute(sql`
-      update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
-        lease_expires_at = now() + make_interval(secs => ${leaseSeconds}), attempts = attempts + 1
-      where id = (
-        select c.id from sweep_chunks c join sweeps s on s.id = c.sweep_id
-        where c.status = 'queued' and s.status in ('queued', 'running')
-        order by s.created_at, c.sweep_id, c.chunk_index
-        limit 1 for update of c skip locked)
-      returning id`);
-    const rows = (result as unknown as { rows: { id: number }[] }).rows;
-    if (!rows.length) return null;
-    const [chunk] = await this.db.select().from(sweepChunks).where(eq(sweepChunks.id, rows[0].id));
-    await this.db
-      .update(sweeps)
-      .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
-      .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
-    return chunk;
+      with claimed as (
+        update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
+          lease_expires_at = now() + make_interval(secs => ${leaseSeconds}::double precision), attempts = attempts + 1
+        where id in (
+          select c.id from sweep_chunks c join sweeps s on s.id = c.sweep_id
+          where c.status = 'queued' and s.status in ('queued', 'running')
+          order by s.created_at, c.sweep_id, c.chunk_index
+          limit ${limit}::int for update of c skip locked)
+        returning *
+      ), started as (
+        update sweeps set status = 'running', started_at = coalesce(started_at, now())
+        where id in (select sweep_id from claimed) and status = 'queued'
+        returning id
+      )
+      select id, sweep_id, chunk_index, first_cell, cell_count, attempts from claimed order by sweep_id, chunk_index`);
+    const rows = (result as unknown as { rows: { id: number; sweep_id: string; chunk_index: number; first_cell: number; cell_count: number; attempts: number }[] }).rows;
+    return rows.map((row) => ({
+      id: Number(row.id),
+      sweepId: row.sweep_id,
+      chunkIndex: Number(row.chunk_index),
+      firstCell: Number(row.first_cell),
+      cellCount: Number(row.cell_count),
+      status: "running" as const,
+      leaseOwner: this.ownerId,
+      leaseExpiresAt: null,
+      attempts: Number(row.attempts),
+      lastError: null,
+      computeMs: 0,
+    }));
   }
 
   private async renewLeases(): Promise<void> {
@@ -205,31 +230,41 @@ export class QueueRunner {
     this.landing.add(landed);
   }
 
+  private async infoOf(sweepId: string): Promise<SweepInfo | null> {
+    const known = this.sweepInfo.get(sweepId);
+    if (known) return known;
+    const [row] = await this.db
+      .select({ studioId: sweeps.studioId, spec: sweeps.spec, cachedCells: sweeps.cachedCells })
+      .from(sweeps)
+      .where(eq(sweeps.id, sweepId));
+    if (!row) return null;
+    const info = { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
+    if (this.sweepInfo.size > 1000) this.sweepInfo.clear();
+    this.sweepInfo.set(sweepId, info);
+    return info;
+  }
+
   private async runChunk(chunk: SweepChunk, signal: AbortSignal): Promise<void> {
-    const [sweep] = await this.db.select().from(sweeps).where(eq(sweeps.id, chunk.sweepId));
-    if (!sweep) return;
-    const spec = sweep.spec as SweepSpec;
-    const axes = expandAxes(spec);
-    // Cells already present (served from the cache at submit) are not run again.
-    const present = new Set(
-      (
-        await this.db
-          .select({ index: sweepCells.cellIndex })
-          .from(sweepCells)
-          .where(and(eq(sweepCells.sweepId, sweep.id), sql`${sweepCells.cellIndex} >= ${chunk.firstCell} and ${sweepCells.cellIndex} < ${chunk.firstCell + chunk.cellCount}`))
-      ).map((r) => r.index),
-    );
-    const hashes = new Map<number, string>();
-    const missing: { index: number; axisValues: (number | string)[]; scenario: import("@/lib/physics/types").Scenario }[] = [];
-    forEachCellInRange(spec, axes, chunk.firstCell, chunk.cellCount, (cell) => {
-      if (present.has(cell.index)) return;
-      hashes.set(cell.index, scenarioHash(cell.scenario));
-      missing.push(cell);
-    });
-    const task: ChunkTask =
-      present.size === 0
-        ? { kind: "range", chunkIndex: chunk.chunkIndex, spec, firstCell: chunk.firstCell, cellCount: chunk.cellCount }
-        : { kind: "cells", chunkIndex: chunk.chunkIndex, cells: missing };
+    const info = await this.infoOf(chunk.sweepId);
+    if (!info) return;
+    // Cells served from the cache at submit are already stored (a partial row): run the others.
+    let partial: { view: PackedView; location: string | null } | null = null;
+    if (info.hasCached) {
+      const [row] = await this.db
+        .select()
+        .from(sweepResults)
+        .where(and(eq(sweepResults.sweepId, chunk.sweepId), eq(sweepResults.chunkIndex, chunk.chunkIndex)));
+      if (row) partial = { view: new PackedView(await readBlob(row)), location: row.location };
+    }
+    const task: ChunkTask = {
+      kind: "range",
+      chunkIndex: chunk.chunkIndex,
+      spec: info.spec,
+      firstCell: chunk.firstCell,
+      cellCount: chunk.cellCount,
+      skip: partial ? Int32Array.from(partial.view.indices) : undefined,
+      keys: true,
+    };
     let outcome: ChunkOutcome;
     try {
       outcome = await this.pool.run(task, { signal });
@@ -242,7 +277,12 @@ export class QueueRunner {
       return;
     }
     if (this.crashed) return;
-    await this.recordOutcome(sweep, chunk, outcome, hashes, (index) => axisValuesAt(axes, index));
+    const fresh = new PackedView(outcome.packed);
+    const packed = partial ? mergePacked(partial.view, fresh) : outcome.packed;
+    const blob = await putBlob(chunk.sweepId, chunk.chunkIndex, `a${chunk.attempts}`, packed);
+    if (this.crashed) return;
+    const recorded = await this.recordOutcome(info, chunk, outcome, verdictTally(fresh), blob);
+    if (recorded && partial && partial.location !== blob.location) await dropBlobFile(partial.location).catch(logError);
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */
@@ -274,70 +314,70 @@ export class QueueRunner {
     });
   }
 
+  /**
+   * Record a finished chunk in one statement: lock the sweep, mark the chunk done (only if this
+   * runner still holds it and the sweep was not stopped), upsert its results row, insert the
+   * debit, and add the chunk to the sweep's counters. Returns whether the chunk was recorded.
+   */
   private async recordOutcome(
-    sweep: Sweep,
+    info: SweepInfo,
     chunk: SweepChunk,
     outcome: ChunkOutcome,
-    hashes: Map<number, string>,
-    axisValuesOf: (index: number) => (number | string)[],
-  ): Promise<void> {
-    const results = unpackResults(outcome, axisValuesOf);
-    await this.db.transaction(async (tx) => {
-      const [current] = await tx.select().from(sweeps).where(eq(sweeps.id, sweep.id)).for("update");
-      const [chunkNow] = await tx.select().from(sweepChunks).where(eq(sweepChunks.id, chunk.id)).for("update");
-      if (!current || !chunkNow) return;
-      if (chunkNow.status !== "running" || chunkNow.leaseOwner !== this.ownerId) return; // lease lost: another runner owns it now
-      if (current.status === "cancelled" || current.status === "failed") {
-        // Landed after the sweep stopped: its result is discarded and not billed.
-        await tx.update(sweepChunks).set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null }).where(eq(sweepChunks.id, chunk.id));
-        return;
-      }
-      const rows = results.map((result) => ({
-        sweepId: sweep.id,
-        cellIndex: result.index,
-        scenarioHash: hashes.get(result.index) as string,
-        metrics: storableMetrics(result.metrics),
-        verdict: result.verdict,
-        reason: result.reason,
-        fromCache: false,
-      }));
-      for (let i = 0; i < rows.length; i += 500) {
-        const batch = rows.slice(i, i + 500);
-        await tx.insert(sweepCells).values(batch).onConflictDoNothing();
-        // Distinct hashes per batch: one INSERT cannot touch the same key twice.
-        const cacheRows = new Map(batch.map((row) => [row.scenarioHash, { studioId: sweep.studioId, scenarioHash: row.scenarioHash, metrics: row.metrics, verdict: row.verdict, reason: row.reason }]));
-        await tx.insert(resultCache).values([...cacheRows.values()]).onConflictDoNothing();
-      }
-      await tx
-        .update(sweepChunks)
-        .set({ status: "done", leaseOwner: null, leaseExpiresAt: null, computeMs: outcome.computeMs, lastError: null })
-        .where(eq(sweepChunks.id, chunk.id));
-      const billed = await appendLedgerEntry(tx, {
-        studioId: sweep.studioId,
-        kind: "usage",
-        computeMs: -outcome.computeMs,
-        idempotencyKey: usageKey(sweep.id, chunk.chunkIndex),
-        sweepId: sweep.id,
-        chunkIndex: chunk.chunkIndex,
-        memo: `Sweep ${sweep.id} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`,
-      });
-      const [cellsDone] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweepCells).where(eq(sweepCells.sweepId, sweep.id));
-      const [chunksDone] = await tx
-        .select({ n: sql<number>`count(*)::int` })
-        .from(sweepChunks)
-        .where(and(eq(sweepChunks.sweepId, sweep.id), eq(sweepChunks.status, "done")));
-      const finished = Number(chunksDone.n) === current.chunks;
-      await tx
-        .update(sweeps)
-        .set({
-          cellsDone: Number(cellsDone.n),
-          chunksDone: Number(chunksDone.n),
-          computeMs: billed ? current.computeMs + outcome.computeMs : current.computeMs,
-          ...(finished ? { status: "done" as const, reason: null, finishedAt: new Date() } : current.status === "queued" ? { status: "running" as const } : {}),
-        })
-        .where(eq(sweeps.id, sweep.id));
-    });
+    tally: number[],
+    blob: { bytes: number; location: string | null; data: Uint8Array | null },
+  ): Promise<boolean> {
+    const cellsInBlob = chunk.cellCount; // a recorded chunk holds all its cells (cached ones merged in)
+    const counts = sql.join(
+      VERDICTS.map((verdict, code) => sql`${verdict}::text, coalesce((verdict_counts ->> ${verdict}::text)::int, 0) + ${tally[code]}::int`),
+      sql`, `,
+    );
+    const result = await this.db.execute(sql`
+      with locked as (
+        select id, status from sweeps where id = ${chunk.sweepId} for update
+      ), done as (
+        update sweep_chunks set status = 'done', lease_owner = null, lease_expires_at = null, compute_ms = ${outcome.computeMs}::int, last_error = null
+        where id = ${chunk.id}::int and status = 'running' and lease_owner = ${this.ownerId}
+          and exists (select 1 from locked where locked.status not in ('cancelled', 'failed'))
+        returning chunk_index
+      ), stored as (
+        insert into sweep_results (sweep_id, studio_id, chunk_index, cells, complete, bytes, location, data)
+        select ${chunk.sweepId}, ${info.studioId}, chunk_index, ${cellsInBlob}::int, true, ${blob.bytes}::int, ${blob.location}::text, ${blob.data}::bytea from done
+        on conflict (sweep_id, chunk_index) do update set cells = excluded.cells, complete = true, bytes = excluded.bytes, location = excluded.location, data = excluded.data
+        returning id
+      ), billed as (
+        insert into ledger_entries (studio_id, kind, compute_ms, amount_cents, idempotency_key, sweep_id, chunk_index, memo)
+        select ${info.studioId}, 'usage', ${-outcome.computeMs}::bigint, 0, ${usageKey(chunk.sweepId, chunk.chunkIndex)}, ${chunk.sweepId}, chunk_index,
+          ${`Sweep ${chunk.sweepId} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`} from done
+        on conflict (idempotency_key) do nothing
+        returning compute_ms
+      ), counted as (
+        update sweeps set
+          cells_done = cells_done + ${outcome.cellCount}::int,
+          chunks_done = chunks_done + 1,
+          compute_ms = compute_ms + coalesce((select -compute_ms from billed), 0)::int,
+          verdict_counts = jsonb_build_object(${counts}),
+          status = case when chunks_done + 1 >= chunks then 'done' when status = 'queued' then 'running' else status end,
+          reason = case when chunks_done + 1 >= chunks then null else reason end,
+          finished_at = case when chunks_done + 1 >= chunks then now() else finished_at end
+        where id = ${chunk.sweepId} and exists (select 1 from done) and exists (select 1 from stored)
+        returning id
+      )
+      select (select count(*) from counted)::int as recorded, (select status from locked) as sweep_status`);
+    const [row] = (result as unknown as { rows: { recorded: number; sweep_status: string | null }[] }).rows;
+    if (Number(row?.recorded ?? 0) > 0) return true;
+    if (row?.sweep_status === "cancelled" || row?.sweep_status === "failed") {
+      // Landed after the sweep stopped: its result is discarded and not billed.
+      await this.discard(chunk);
+    }
+    return false;
   }
+}
+
+interface SweepInfo {
+  studioId: string;
+  spec: SweepSpec;
+  /** Some cells came from the cache at submit (partial results rows may exist). */
+  hasCached: boolean;
 }
 
 function logError(error: unknown): void {

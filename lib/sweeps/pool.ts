@@ -47,7 +47,8 @@ export interface ChunkPool {
   readonly entry: WorkerEntry;
   /**
    * Run one chunk on a worker thread (waits for a slot when maxInFlight chunks are running).
-   * Aborting the signal drops the chunk if it is still waiting; a running chunk finishes.
+   * Aborting the signal drops the chunk if it is still waiting, and stops it if it is running:
+   * piscina ends that thread (a simulation cannot be interrupted from inside) and starts a fresh one.
    */
   run(task: ChunkTask, options?: { signal?: AbortSignal }): Promise<ChunkOutcome>;
   /** Chunks waiting for a slot, and chunks running. */
@@ -118,7 +119,7 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
       queue.add(() => {
         const signal = runOptions?.signal;
         if (signal?.aborted) return Promise.reject(new Error(`chunk ${task.chunkIndex} dropped: ${String(signal.reason ?? "aborted")}`));
-        return piscina.run(task);
+        return signal ? piscina.run(task, { signal }) : piscina.run(task);
       }),
     get pending() {
       return queue.size;
