@@ -70,6 +70,7 @@ export class QueueRunner {
   private landing = new Set<Promise<void>>();
   private poked = false;
   private nextHousekeeping = 0;
+  private nextLeaseCheck = 0;
   /** What a chunk needs of its sweep (the spec never changes once submitted). */
   private readonly sweepInfo = new Map<string, SweepInfo>();
 
@@ -123,12 +124,16 @@ export class QueueRunner {
     while (this.running) {
       this.poked = false;
       try {
-        // Lease, balance and cancel checks run once per poll interval, not after every chunk.
+        // Cancel checks run once per poll interval, lease and balance checks at most once a
+        // second: not after every chunk (each statement is main-thread work).
         if (Date.now() >= this.nextHousekeeping) {
           this.nextHousekeeping = Date.now() + this.pollMs;
-          await this.reclaimLapsed(false);
-          await this.applyBalances();
           await this.dropCancelled();
+          if (Date.now() >= this.nextLeaseCheck) {
+            this.nextLeaseCheck = Date.now() + Math.max(this.pollMs, 1000);
+            await this.reclaimLapsed(false);
+            await this.applyBalances();
+          }
         }
         const free = this.concurrency - this.inFlight.size;
         if (this.running && free > 0) for (const chunk of await this.claim(free)) this.launch(chunk);
