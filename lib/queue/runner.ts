@@ -275,7 +275,7 @@ export class QueueRunner {
       outcome = await this.pool.run(task, { signal });
     } catch (error) {
       if (this.crashed || signal.aborted) {
-        if (!this.crashed) await this.discard(chunk);
+        if (!this.crashed) await this.discard(chunk, true);
         return;
       }
       await this.recordFailure(chunk, error);
@@ -291,10 +291,10 @@ export class QueueRunner {
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */
-  private async discard(chunk: SweepChunk): Promise<void> {
+  private async discard(chunk: SweepChunk, stoppedOnThread = false): Promise<void> {
     await this.db
       .update(sweepChunks)
-      .set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null })
+      .set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null, ...(stoppedOnThread ? { lastError: "stopped on its thread: the sweep was stopped" } : {}) })
       .where(and(eq(sweepChunks.id, chunk.id), eq(sweepChunks.leaseOwner, this.ownerId), eq(sweepChunks.status, "running")));
   }
 

@@ -100,6 +100,11 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
     // minThreads = maxThreads keeps every thread alive between sweeps: chunks arrive in bursts.
     maxThreads: threads,
   });
+  // A chunk stopped on its thread (an aborted signal) can race with that thread's answer; piscina
+  // then reports the answer as unexpected on its 'error' event, which would throw without a listener.
+  piscina.on("error", (error: unknown) => {
+    if (!(error instanceof Error && error.message.startsWith("Unexpected message from Worker"))) console.error("[kickdrift] worker pool:", error);
+  });
   const queue = new PQueue({ concurrency: maxInFlight });
   // One warm-up chunk per thread, run before any real chunk (the queue is paused until they finish).
   // It takes the compile-on-first-use cost; a fresh thread's first few real chunks still run
