@@ -25,15 +25,22 @@ const specInput = { name: "bench", scenario: { scene: { kind: "pair", massAKg: 0
 const db = await useFreshDb();
 const pool = createChunkPool({ threads: 2, entry: "source" });
 const runner = new QueueRunner({ db, pool });
-const studio = await makeSweepStudio("X", 600 * 60_000);
+
 await runner.start();
 await new Promise((r) => setTimeout(r, 3000));
-recording = true;
+{ const w = await submitSweep(db, (await makeSweepStudio("W", 600 * 60_000)).studioId, { spec: specInput }); runner.poke();
+  for (;;) { const [row] = await db.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, w.id)); if (row.status === "done") break; await new Promise((r) => setTimeout(r, 20)); } }
+const { readFileSync, readdirSync } = await import("node:fs");
+const cpu = () => Object.fromEntries(readdirSync("/proc/self/task").map((tid) => { const f = readFileSync(`/proc/self/task/${tid}/stat`, "utf8").split(") ")[1].split(" "); const comm = readFileSync(`/proc/self/task/${tid}/comm`, "utf8").trim(); return [`${tid}:${comm}`, (Number(f[11]) + Number(f[12])) * 10]; }));
+const cpu0 = cpu();
+recording = true; const { performance: np } = await import("node:perf_hooks"); const elu = np.eventLoopUtilization();
+const studio = await makeSweepStudio("X", 600 * 60_000);
 const t0 = performance.now();
 const s = await submitSweep(db, studio.studioId, { spec: specInput });
 runner.poke();
-for (;;) { const [row] = await db.select().from(sweeps).where(eq(sweeps.id, s.id)); if (row.status === "done") break; await new Promise((r) => setTimeout(r, 20)); }
+for (;;) { const [row] = await db.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, s.id)); if (row.status === "done") break; await new Promise((r) => setTimeout(r, 20)); }
 console.log("total", performance.now() - t0);
-recording = false;
+const cpu1 = cpu(); for (const k of Object.keys(cpu1)) { const d = cpu1[k] - (cpu0[k] ?? 0); if (d > 0) console.log("cpu ms", k, d); }
+recording = false; console.log("busy", np.eventLoopUtilization(elu).active);
 [...stats].sort((a, b) => b[1].ms - a[1].ms).slice(0, 20).forEach(([k, v]) => console.log(v.n, v.ms.toFixed(0), k));
 await runner.stop(); await pool.close(); await closeTestDb();

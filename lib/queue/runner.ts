@@ -36,7 +36,11 @@ export const OUT_OF_MINUTES = "out of minutes";
 export interface RunnerOptions {
   db: Db;
   pool: ChunkPool;
-  /** Chunks this runner holds at once; default twice the pool's thread count (one running, one ready per thread). */
+  /**
+   * Chunks this runner holds at once (running, or ready for a thread); default four per pool
+   * thread. New chunks are claimed half a window at a time, so one claim statement serves
+   * several chunks.
+   */
   concurrency?: number;
   /** Lease length (ms); renewed every third of it while a chunk runs. */
   leaseMs?: number;
@@ -57,6 +61,7 @@ export class QueueRunner {
   private readonly db: Db;
   private readonly pool: ChunkPool;
   private readonly concurrency: number;
+  private readonly claimBatch: number;
   private readonly leaseMs: number;
   private readonly pollMs: number;
   private readonly reclaimForeignAtStart: boolean;
@@ -77,7 +82,8 @@ export class QueueRunner {
   constructor(options: RunnerOptions) {
     this.db = options.db;
     this.pool = options.pool;
-    this.concurrency = options.concurrency ?? options.pool.threads * 2;
+    this.concurrency = options.concurrency ?? options.pool.threads * 4;
+    this.claimBatch = Math.max(1, Math.floor(this.concurrency / 2));
     this.leaseMs = options.leaseMs ?? 60_000;
     this.pollMs = options.pollMs ?? 250;
     this.reclaimForeignAtStart = options.reclaimForeignAtStart ?? false;
@@ -136,7 +142,10 @@ export class QueueRunner {
           }
         }
         const free = this.concurrency - this.inFlight.size;
-        if (this.running && free > 0) for (const chunk of await this.claim(free)) this.launch(chunk);
+        // Claim once half the window is free, or at once if a thread could be left without work.
+        if (this.running && free > 0 && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
+          for (const chunk of await this.claim(free)) this.launch(chunk);
+        }
       } catch (error) {
         logError(error);
       }

@@ -9,7 +9,7 @@
  */
 import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, oneOffKey, predictCellNs, type CostConstants } from "./cost";
 import { stepsPerCell } from "./axes";
-import { cellCount, expandAxes, forEachCellInRange, type ExpandedAxis } from "./grid";
+import { cellCount, expandAxes, forEachScenarioInPlace, type ExpandedAxis } from "./grid";
 import type { SweepSpec } from "./spec";
 
 export interface ChunkPlan {
@@ -66,7 +66,8 @@ export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {})
   };
   let largestCellNs = 0;
   let steps = 0;
-  forEachCellInRange(spec, axes, 0, total, ({ scenario }) => {
+  // The cost model reads each scenario once: no per-cell copies (a 262,144-cell quote stays fast).
+  forEachScenarioInPlace(spec, axes, 0, total, (_index, scenario) => {
     steps += stepsPerCell(scenario);
     const cellNs = predictCellNs(scenario, constants);
     if (cellNs > largestCellNs) largestCellNs = cellNs;
