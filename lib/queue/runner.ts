@@ -49,6 +49,8 @@ export interface RunnerOptions {
   /** Treat running chunks of other owners as dead at start (one process per database, as with PGlite). */
   reclaimForeignAtStart?: boolean;
   ownerId?: string;
+  /** Called after each chunk this runner records, with whether that finished its sweep (benchmarks, tests, push updates). */
+  onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
 }
 
 interface InFlight {
@@ -62,6 +64,7 @@ export class QueueRunner {
   private readonly pool: ChunkPool;
   private readonly concurrency: number;
   private readonly claimBatch: number;
+  private readonly onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
   private readonly leaseMs: number;
   private readonly pollMs: number;
   private readonly reclaimForeignAtStart: boolean;
@@ -84,6 +87,7 @@ export class QueueRunner {
     this.pool = options.pool;
     this.concurrency = options.concurrency ?? options.pool.threads * 4;
     this.claimBatch = Math.max(1, Math.floor(this.concurrency / 2));
+    this.onRecorded = options.onRecorded;
     this.leaseMs = options.leaseMs ?? 60_000;
     this.pollMs = options.pollMs ?? 250;
     this.reclaimForeignAtStart = options.reclaimForeignAtStart ?? false;
@@ -374,11 +378,14 @@ export class QueueRunner {
           reason = case when chunks_done + 1 >= chunks then null else reason end,
           finished_at = case when chunks_done + 1 >= chunks then now() else finished_at end
         where id = ${chunk.sweepId} and exists (select 1 from done) and exists (select 1 from stored)
-        returning id
+        returning status
       )
-      select (select count(*) from counted)::int as recorded, (select status from locked) as sweep_status`);
-    const [row] = (result as unknown as { rows: { recorded: number; sweep_status: string | null }[] }).rows;
-    if (Number(row?.recorded ?? 0) > 0) return true;
+      select (select count(*) from counted)::int as recorded, (select status from counted) as new_status, (select status from locked) as sweep_status`);
+    const [row] = (result as unknown as { rows: { recorded: number; new_status: string | null; sweep_status: string | null }[] }).rows;
+    if (Number(row?.recorded ?? 0) > 0) {
+      this.onRecorded?.(chunk.sweepId, row.new_status === "done");
+      return true;
+    }
     if (row?.sweep_status === "cancelled" || row?.sweep_status === "failed") {
       // Landed after the sweep stopped: its result is discarded and not billed.
       await this.discard(chunk);
