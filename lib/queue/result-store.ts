@@ -39,6 +39,8 @@ export interface StoredBlob {
 }
 
 const SAFE_NAME = /^[A-Za-z0-9_-]+$/;
+/** Sweep folders already made by this process (one mkdir per sweep, not per chunk). */
+const madeFolders = new Set<string>();
 
 /**
  * Keep a chunk's blob where the store wants it, ready to be recorded: for files, written and
@@ -49,7 +51,12 @@ export async function putBlob(sweepId: string, chunkIndex: number, tag: string, 
   if (!SAFE_NAME.test(sweepId) || !SAFE_NAME.test(tag)) throw new Error(`unsafe result file name: ${sweepId}/${tag}`);
   const location = `${sweepId}/${chunkIndex}-${tag}.kdr`;
   const target = path.join(resultsDir(), location);
-  await mkdir(path.dirname(target), { recursive: true });
+  const folder = path.dirname(target);
+  if (!madeFolders.has(folder)) {
+    await mkdir(folder, { recursive: true });
+    if (madeFolders.size > 10_000) madeFolders.clear();
+    madeFolders.add(folder);
+  }
   const temporary = `${target}.${process.pid}.tmp`;
   const handle = await open(temporary, "w");
   try {
