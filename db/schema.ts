@@ -3,6 +3,7 @@ import {
   bigint,
   boolean,
   check,
+  customType,
   index,
   integer,
   jsonb,
@@ -185,7 +186,7 @@ export type Invite = typeof invites.$inferSelect;
 export type ApiToken = typeof apiTokens.$inferSelect;
 
 // ---------------------------------------------------------------------------
-// Sweeps, their chunks and cells, the per-studio result cache, and the compute ledger.
+// Sweeps, their chunks, the chunks' packed results (also the per-studio result cache), and the compute ledger.
 
 export const SWEEP_STATUSES = ["queued", "running", "paused", "done", "failed", "cancelled"] as const;
 export type SweepStatus = (typeof SWEEP_STATUSES)[number];
@@ -214,6 +215,8 @@ export const sweeps = pgTable(
     chunksDone: integer("chunks_done").notNull().default(0),
     estimatedComputeMs: integer("estimated_compute_ms").notNull(),
     computeMs: integer("compute_ms").notNull().default(0),
+    /** Running totals of the done cells' verdicts, kept in the transaction that stores each chunk. */
+    verdictCounts: jsonb("verdict_counts").$type<Record<string, number>>().notNull().default({}),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
     startedAt: ts("started_at"),
@@ -249,36 +252,36 @@ export const sweepChunks = pgTable(
   ],
 );
 
-export const sweepCells = pgTable(
-  "sweep_cells",
+/** PostgreSQL bytea as a Node Buffer / Uint8Array. */
+const bytea = customType<{ data: Uint8Array; driverData: Uint8Array }>({ dataType: () => "bytea" });
+
+/**
+ * A chunk's results, packed (lib/sweeps/packed.ts: indices, scenario keys, metrics, verdicts,
+ * reasons of its cells in index order) as ONE blob: a chunk is written in one statement and read
+ * in one, instead of one row per cell. The blob lives in the result store: a file under the data
+ * folder (`location`, PGlite) or the `data` column (`DATABASE_URL`, so every host sees it).
+ * `cells` counts the cells in the blob: fewer than the chunk's while only its cached cells are
+ * known (`complete` false). The studio's result cache is the keys inside its rows' blobs.
+ */
+export const sweepResults = pgTable(
+  "sweep_results",
   {
+    id: serial("id").primaryKey(),
     sweepId: text("sweep_id")
       .notNull()
       .references(() => sweeps.id, { onDelete: "cascade" }),
-    cellIndex: integer("cell_index").notNull(),
-    scenarioHash: text("scenario_hash").notNull(),
-    metrics: jsonb("metrics").notNull(),
-    verdict: text("verdict").notNull(),
-    reason: text("reason").notNull(),
-    fromCache: boolean("from_cache").notNull().default(false),
-  },
-  (t) => [primaryKey({ columns: [t.sweepId, t.cellIndex] })],
-);
-
-/** Results of simulated scenarios per studio: a cell whose scenario hash is here is not run (nor billed) again. */
-export const resultCache = pgTable(
-  "result_cache",
-  {
     studioId: text("studio_id")
       .notNull()
       .references(() => studios.id, { onDelete: "cascade" }),
-    scenarioHash: text("scenario_hash").notNull(),
-    metrics: jsonb("metrics").notNull(),
-    verdict: text("verdict").notNull(),
-    reason: text("reason").notNull(),
+    chunkIndex: integer("chunk_index").notNull(),
+    cells: integer("cells").notNull(),
+    complete: boolean("complete").notNull(),
+    bytes: integer("bytes").notNull(),
+    location: text("location"),
+    data: bytea("data"),
     createdAt: createdAt(),
   },
-  (t) => [primaryKey({ columns: [t.studioId, t.scenarioHash] })],
+  (t) => [uniqueIndex("sweep_results_sweep_chunk_uq").on(t.sweepId, t.chunkIndex), index("sweep_results_studio_idx").on(t.studioId, t.id)],
 );
 
 /** Append-only: balance = Σ computeMs; every writer supplies an idempotency key. */
@@ -312,6 +315,7 @@ export const ledgerEntries = pgTable(
 
 export type Sweep = typeof sweeps.$inferSelect;
 export type SweepChunk = typeof sweepChunks.$inferSelect;
+export type SweepResult = typeof sweepResults.$inferSelect;
 export type LedgerEntry = typeof ledgerEntries.$inferSelect;
 
 // ---------------------------------------------------------------------------

@@ -264,12 +264,57 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
                 <label htmlFor="spec-contact-model" className="block text-sm font-medium text-ink">
                   Contact model
                 </label>
-                <select id="spec-contact-model" className={inputClasses} {...register("scenario.contact.model")}>
+                <select
+                  id="spec-contact-model"
+                  className={inputClasses}
+                  value={scenario.contact.model}
+                  onChange={(event) => {
+                    const model = event.target.value as "linear" | "hertz";
+                    setValue("scenario.contact.model", model, { shouldValidate: true });
+                    // The linear model takes a stiffness only: a material set for Hertz goes.
+                    if (model === "linear" && scenario.contact.material) {
+                      setValue("scenario.contact.material", undefined, { shouldValidate: true });
+                      setValue("scenario.contact.stiffness", 1e5, { shouldValidate: true });
+                    }
+                  }}
+                >
                   <option value="linear">Linear spring, F = k·δ</option>
                   <option value="hertz">Hertz, F = k·δ^1.5</option>
                 </select>
               </div>
-              {numberField("scenario.contact.stiffness", "Contact stiffness k", stiffnessUnit(scenario.contact.model))}
+              {scenario.contact.model === "hertz" ? (
+                <div className="space-y-1">
+                  <label htmlFor="spec-hertz-source" className="block text-sm font-medium text-ink">
+                    Hertz stiffness from
+                  </label>
+                  <select
+                    id="spec-hertz-source"
+                    className={inputClasses}
+                    value={scenario.contact.material ? "material" : "stiffness"}
+                    onChange={(event) => {
+                      if (event.target.value === "material") {
+                        setValue("scenario.contact.stiffness", undefined, { shouldValidate: true });
+                        // A rigid plastic puck as a starting point (E = 2.4 GPa, ν = 0.37, from memory).
+                        setValue("scenario.contact.material", { youngsModulusPa: 2.4e9, poissonRatio: 0.37 }, { shouldValidate: true });
+                      } else {
+                        setValue("scenario.contact.material", undefined, { shouldValidate: true });
+                        setValue("scenario.contact.stiffness", 1e9, { shouldValidate: true });
+                      }
+                    }}
+                  >
+                    <option value="stiffness">A stiffness k</option>
+                    <option value="material">A material (E, ν)</option>
+                  </select>
+                </div>
+              ) : null}
+              {scenario.contact.model === "hertz" && scenario.contact.material ? (
+                <>
+                  {numberField("scenario.contact.material.youngsModulusPa", "Young's modulus E", "Pa")}
+                  {numberField("scenario.contact.material.poissonRatio", "Poisson ratio ν", "")}
+                </>
+              ) : (
+                numberField("scenario.contact.stiffness", "Contact stiffness k", stiffnessUnit(scenario.contact.model))
+              )}
               <div className="space-y-1">
                 <label htmlFor="spec-damping-kind" className="block text-sm font-medium text-ink">
                   Damping

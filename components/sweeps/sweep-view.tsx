@@ -400,8 +400,12 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
   const [yAxis, setYAxis] = useState(numericAxes[1] ?? -1);
   const [marginPercent, setMarginPercent] = useState(10);
   const [bound, setBound] = useState<"max" | "min">("max");
+  // Where the axes other than x and y are held (a position per axis; x and y ignore theirs).
+  const [at, setAt] = useState<number[]>(() => sweep.axes.map(() => 0));
+  const otherAxes = sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis);
   const marginValid = Number.isFinite(marginPercent) && marginPercent >= 0 && marginPercent <= 90;
   const query = new URLSearchParams({ x: String(xAxis), y: String(yAxis), margin: String(marginPercent / 100), bound });
+  if (otherAxes.length > 0) query.set("at", at.join(","));
   const base = `${sweepPath(studioId, sweep.id)}/envelope`;
   const ready = numericAxes.length >= 2 && xAxis !== yAxis && marginValid;
   const envelope = useQuery({
@@ -415,7 +419,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
   const yAxisView = sweep.axes[yAxis];
   // The verdicts under the envelope: the first value of any other axis.
   const envelopeVerdicts = ready
-    ? layerData(mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sweep.axes.map(() => 0) }), new Map(cells.map((cell) => [cell.index, cell])), null).verdicts
+    ? layerData(mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: at }), new Map(cells.map((cell) => [cell.index, cell])), null).verdicts
     : [];
 
   return (
@@ -423,7 +427,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
       <p className="mb-3 text-sm text-ink-muted">
         For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable, reduced by the
         margin. Export it for your game&apos;s config.
-        {sweep.axes.length > 2 ? " Any other axis stays at its first value." : ""}
+        {otherAxes.length > 0 ? " Any other axis is held at the value chosen below." : ""}
       </p>
       <div className="grid gap-3 md:grid-cols-4">
         <div className="space-y-1">
@@ -482,6 +486,29 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
           </select>
         </div>
       </div>
+      {otherAxes.length > 0 ? (
+        <div className="mt-3 grid gap-3 md:grid-cols-4">
+          {otherAxes.map((i) => (
+            <div key={i} className="space-y-1">
+              <label htmlFor={`envelope-at-${i}`} className="block text-sm font-medium">
+                {sweep.axes[i].label} held at
+              </label>
+              <select
+                id={`envelope-at-${i}`}
+                className={selectClasses}
+                value={at[i] ?? 0}
+                onChange={(event) => setAt((current) => current.map((position, j) => (j === i ? Number(event.target.value) : position)))}
+              >
+                {sweep.axes[i].values.map((value, position) => (
+                  <option key={position} value={position}>
+                    {typeof value === "number" ? formatSI(value, sweep.axes[i].unit) : value}
+                  </option>
+                ))}
+              </select>
+            </div>
+          ))}
+        </div>
+      ) : null}
       {xAxis === yAxis ? <p className="mt-3 text-sm text-danger">Pick two different axes.</p> : null}
       {envelope.isError ? (
         <div className="mt-3">

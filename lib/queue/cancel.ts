@@ -5,8 +5,9 @@ import { ApiError } from "@/lib/errors";
 
 /**
  * Cancels a sweep: the sweep is marked cancelled and its queued chunks too, at once. A chunk
- * running meanwhile is discarded when it lands (the runner sees the status) and is not billed;
- * chunks already done stay billed. Cancelling a finished sweep answers 409.
+ * running meanwhile is stopped on its worker thread when the runner next looks (every poll
+ * interval, 250 ms by default) and is not billed; one that lands first is discarded unbilled.
+ * Chunks already done stay billed. Cancelling a finished sweep answers 409.
  */
 export async function cancelSweep(db: Db, studioId: string, sweepId: string, by: string): Promise<Sweep> {
   return db.transaction(async (tx) => {

@@ -1,8 +1,21 @@
 /**
  * The queue runner: claims queued chunks with a lease, runs them on the worker-thread pool, and
- * for each finished chunk writes in ONE transaction its cells, the result cache, the chunk
- * state, the sweep's counters and the ledger debit `usage:{sweepId}:{chunkIndex}` (written with
- * ON CONFLICT DO NOTHING, so a chunk run twice after a lost lease is billed once).
+ * for each finished chunk records in ONE transaction its results row (the packed blob,
+ * lib/queue/result-store.ts), the chunk state, the sweep's running counters (cells, chunks,
+ * verdicts, compute) and the ledger debit `usage:{sweepId}:{chunkIndex}` (idempotent, so a chunk
+ * run twice after a lost lease is billed once). A chunk far from every limit (balance well above
+ * the low-balance mark, usage well under the monthly cap) is debited inside the one recording
+ * statement; near a limit the debit goes through lib/billing/usage.ts (prepaid first, overage
+ * metered through the outbox, nothing billed past a cap) and the cap alerts are checked.
+ *
+ * Limits (lib/quotas/enforce.ts) pause and resume sweeps at chunk boundaries; claims share the
+ * pool out between studios (fair share) and start a queued sweep only while its studio runs fewer
+ * sweeps than its limit.
+ *
+ * The main thread does as little per cell as it can (the workers pack and key the results; the
+ * main thread stores one blob per chunk), because on a machine whose cores all run workers any
+ * main-thread work adds to a sweep's wall time. It holds twice as many chunks as the pool has
+ * threads, so each thread starts its next chunk while the previous one is being stored.
  *
  * Leases: a claimed chunk carries its runner's id and an expiry that the runner renews while the
  * chunk runs. A chunk whose lease lapsed (its runner died) goes back to the queue. Claims use
@@ -13,28 +26,35 @@
 import { randomBytes } from "node:crypto";
 import { and, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep, type SweepChunk } from "@/db/schema";
+import { sweepChunks, sweepResults, sweeps, type SweepChunk } from "@/db/schema";
 import { recordChunkUsage } from "@/lib/billing/usage";
-import { effectiveQuotas, PLAN_DEFAULTS } from "@/lib/quotas/plan";
-import { applyRunLimits, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
-import { unpackResults, type ChunkOutcome, type ChunkTask } from "@/lib/sweeps/chunk-task";
-import { axisValuesAt, expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
-import { scenarioHash } from "@/lib/sweeps/hash";
+import { LOW_BALANCE_MS } from "@/lib/billing/packs";
+import { usageKey } from "@/lib/ledger/ledger";
+import { effectiveQuotas, monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { applyRunLimits, CAP_ALERT_THRESHOLDS, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
+import { pokeOutbox } from "@/lib/outbox/process";
+import { VERDICTS } from "@/lib/physics/types";
+import type { ChunkOutcome, ChunkTask } from "@/lib/sweeps/chunk-task";
+import { PackedView, mergePacked, verdictTally } from "@/lib/sweeps/packed";
 import type { ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import { RUNNER_KEY } from "./poke";
-import { storableMetrics } from "./views";
+import { dropBlobFile, putBlob, readBlob } from "./result-store";
 
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
 export const OUT_OF_MINUTES = RUN_LIMIT_REASONS.outOfMinutes;
-/** Longest wait between two checks of the run limits while no chunk lands (ms). */
+/** Longest wait between two checks of the run limits while chunks land far from every limit (ms). */
 const LIMITS_EVERY_MS = 250;
 
 export interface RunnerOptions {
   db: Db;
   pool: ChunkPool;
-  /** Chunks this runner holds at once; default the pool's thread count. */
+  /**
+   * Chunks this runner holds at once (running, or ready for a thread); default four per pool
+   * thread. New chunks are claimed half a window at a time, so one claim statement serves
+   * several chunks.
+   */
   concurrency?: number;
   /** Lease length (ms); renewed every third of it while a chunk runs. */
   leaseMs?: number;
@@ -43,6 +63,8 @@ export interface RunnerOptions {
   /** Treat running chunks of other owners as dead at start (one process per database, as with PGlite). */
   reclaimForeignAtStart?: boolean;
   ownerId?: string;
+  /** Called after each chunk this runner records, with whether that finished its sweep (benchmarks, tests, push updates). */
+  onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
 }
 
 interface InFlight {
@@ -55,6 +77,8 @@ export class QueueRunner {
   private readonly db: Db;
   private readonly pool: ChunkPool;
   private readonly concurrency: number;
+  private readonly claimBatch: number;
+  private readonly onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
   private readonly leaseMs: number;
   private readonly pollMs: number;
   private readonly reclaimForeignAtStart: boolean;
@@ -66,13 +90,21 @@ export class QueueRunner {
   private wake: (() => void) | null = null;
   private renewTimer: NodeJS.Timeout | null = null;
   private landing = new Set<Promise<void>>();
+  private poked = false;
+  private nextHousekeeping = 0;
+  private nextLeaseCheck = 0;
+  /** What a chunk needs of its sweep (the spec never changes once submitted). */
+  private readonly sweepInfo = new Map<string, SweepInfo>();
   private limitsCheckedAt = 0;
-  private landedSinceLimits = true;
+  /** A chunk landed near a limit (its debit went the careful way): check the limits before the next claim. */
+  private nearLimit = true;
 
   constructor(options: RunnerOptions) {
     this.db = options.db;
     this.pool = options.pool;
-    this.concurrency = options.concurrency ?? options.pool.threads;
+    this.concurrency = options.concurrency ?? options.pool.threads * 4;
+    this.claimBatch = Math.max(1, Math.floor(this.concurrency / 2));
+    this.onRecorded = options.onRecorded;
     this.leaseMs = options.leaseMs ?? 60_000;
     this.pollMs = options.pollMs ?? 250;
     this.reclaimForeignAtStart = options.reclaimForeignAtStart ?? false;
@@ -91,6 +123,7 @@ export class QueueRunner {
 
   /** Nudge the loop (after a submit) instead of waiting for the next poll. */
   poke(): void {
+    this.poked = true;
     this.wake?.();
   }
 
@@ -101,6 +134,17 @@ export class QueueRunner {
     await this.loopDone;
     await Promise.allSettled([...this.landing]);
     if (this.renewTimer) clearInterval(this.renewTimer);
+  }
+
+  /** Stop abruptly as a crashed process would: nothing more is written, leases stay held until they lapse. */
+  async crash(): Promise<void> {
+    this.crashed = true;
+    this.running = false;
+    if (this.renewTimer) clearInterval(this.renewTimer);
+    for (const flight of this.inFlight.values()) flight.abort.abort("runner crashed");
+    this.poke();
+    await this.loopDone;
+    await Promise.allSettled([...this.landing]);
   }
 
   /** Whether the runner is claiming chunks (started and not stopped). */
@@ -142,36 +186,33 @@ export class QueueRunner {
     return { returned: (result as unknown as { rows: unknown[] }).rows.length };
   }
 
-  /** Stop abruptly as a crashed process would: nothing more is written, leases stay held until they lapse. */
-  async crash(): Promise<void> {
-    this.crashed = true;
-    this.running = false;
-    if (this.renewTimer) clearInterval(this.renewTimer);
-    for (const flight of this.inFlight.values()) flight.abort.abort("runner crashed");
-    this.poke();
-    await this.loopDone;
-    await Promise.allSettled([...this.landing]);
-  }
-
   private async loop(): Promise<void> {
     while (this.running) {
+      this.poked = false;
       try {
-        await this.reclaimLapsed(false);
-        await this.applyLimits();
-        await this.dropCancelled();
-        let claimed = false;
-        while (this.running && this.inFlight.size < this.concurrency) {
-          const chunk = await this.claim();
-          if (!chunk) break;
-          claimed = true;
-          this.launch(chunk);
+        // Cancel checks run once per poll interval, lease checks at most once a second: not after
+        // every chunk (each statement is main-thread work). The run limits are checked before the
+        // next claim when a chunk landed near a limit, else every LIMITS_EVERY_MS.
+        if (Date.now() >= this.nextHousekeeping) {
+          this.nextHousekeeping = Date.now() + this.pollMs;
+          await this.dropCancelled();
+          if (Date.now() >= this.nextLeaseCheck) {
+            this.nextLeaseCheck = Date.now() + Math.max(this.pollMs, 1000);
+            await this.reclaimLapsed(false);
+          }
         }
-        if (claimed) continue;
+        await this.applyLimits();
+        const free = this.concurrency - this.inFlight.size;
+        // Claim once half the window is free, or at once if a thread could be left without work.
+        if (this.running && free > 0 && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
+          for (const chunk of await this.claim(free)) this.launch(chunk);
+        }
       } catch (error) {
         logError(error);
       }
+      if (this.poked || !this.running) continue;
       await new Promise<void>((resolve) => {
-        const timer = setTimeout(resolve, this.pollMs);
+        const timer = setTimeout(resolve, Math.max(1, Math.min(this.pollMs, this.nextHousekeeping - Date.now())));
         this.wake = () => {
           clearTimeout(timer);
           resolve();
@@ -189,14 +230,12 @@ export class QueueRunner {
   }
 
   /**
-   * Quotas, balance and suspension (lib/quotas/enforce.ts): checked before the next claim whenever a
-   * chunk has landed (usage changed: pause at the chunk boundary), else at most every LIMITS_EVERY_MS
-   * (a top-up, quota raise or lifted suspension resumes within that), so an idle loop does not keep
-   * the database busy.
+   * Quotas, balance and suspension (lib/quotas/enforce.ts): pause at a chunk boundary with the
+   * reason, resume when the cause is gone (a top-up, a quota raise, a lifted suspension).
    */
   private async applyLimits(): Promise<void> {
-    if (!this.landedSinceLimits && Date.now() - this.limitsCheckedAt < LIMITS_EVERY_MS) return;
-    this.landedSinceLimits = false;
+    if (!this.nearLimit && Date.now() - this.limitsCheckedAt < LIMITS_EVERY_MS) return;
+    this.nearLimit = false;
     this.limitsCheckedAt = Date.now();
     await applyRunLimits(this.db);
   }
@@ -210,57 +249,95 @@ export class QueueRunner {
     for (const flight of this.inFlight.values()) if (stopped.has(flight.chunk.sweepId)) flight.abort.abort("sweep stopped");
   }
 
-  private async claim(): Promise<SweepChunk | null> {
+  /**
+   * Claim up to `limit` queued chunks in one statement. Fair share: chunks are dealt out between
+   * studios in turn (each studio's k-th chunk before anyone's (k+1)-th), the studio with the fewest
+   * chunks running and then the one served longest ago first. A queued sweep is eligible only while
+   * its studio runs fewer sweeps than maxRunningSweeps; starting it is re-checked under a lock.
+   */
+  private async claim(limit: number): Promise<SweepChunk[]> {
     const leaseSeconds = this.leaseMs / 1000;
     const result = await this.db.execute(sql`
-      update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
-        lease_expires_at = now() + make_interval(secs => ${leaseSeconds}), attempts = attempts + 1
-      where id = (
-        -- Fair share: the studio with the fewest chunks running, then the one served longest ago.
-        -- A queued sweep starts only while its studio runs fewer sweeps than maxRunningSweeps.
-        with busy as (select s2.studio_id, count(*) as n from sweep_chunks c2 join sweeps s2 on s2.id = c2.sweep_id where c2.status = 'running' group by s2.studio_id),
-          slots as (select studio_id, count(*) as n from sweeps where status = 'running' group by studio_id)
-        select c.id from sweep_chunks c join sweeps s on s.id = c.sweep_id join studios st on st.id = s.studio_id
+      with busy as (
+        select s2.studio_id, count(*) as n from sweep_chunks c2 join sweeps s2 on s2.id = c2.sweep_id where c2.status = 'running' group by s2.studio_id
+      ), slots as (
+        select studio_id, count(*) as n from sweeps where status = 'running' group by studio_id
+      ), ranked as (
+        select c.id, row_number() over (partition by s.studio_id order by s.created_at, c.sweep_id, c.chunk_index) as turn,
+          coalesce(busy.n, 0) as busy, st.last_chunk_claimed_at as served, s.created_at, c.sweep_id, c.chunk_index
+        from sweep_chunks c join sweeps s on s.id = c.sweep_id join studios st on st.id = s.studio_id
           left join studio_quotas q on q.studio_id = s.studio_id left join busy on busy.studio_id = s.studio_id left join slots on slots.studio_id = s.studio_id
         where c.status = 'queued' and s.status in ('queued', 'running') and st.status = 'active'
-          and (s.status = 'running' or coalesce(slots.n, 0) < coalesce(q.max_running_sweeps, ${PLAN_DEFAULTS.maxRunningSweeps}))
-        order by coalesce(busy.n, 0), st.last_chunk_claimed_at nulls first, s.created_at, c.sweep_id, c.chunk_index
-        limit 1 for update of c skip locked)
-      returning id`);
-    const rows = (result as unknown as { rows: { id: number }[] }).rows;
-    if (!rows.length) return null;
-    const [chunk] = await this.db.select().from(sweepChunks).where(eq(sweepChunks.id, rows[0].id));
-    await this.db.execute(sql`update studios set last_chunk_claimed_at = clock_timestamp() where id = (select studio_id from sweeps where id = ${chunk.sweepId})`);
-    if (!(await this.startSweep(chunk))) return null;
-    return chunk;
+          and (s.status = 'running' or coalesce(slots.n, 0) < coalesce(q.max_running_sweeps, ${PLAN_DEFAULTS.maxRunningSweeps}::int))
+      ), claimed as (
+        update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
+          lease_expires_at = now() + make_interval(secs => ${leaseSeconds}::double precision), attempts = attempts + 1
+        where id in (
+          select c.id from sweep_chunks c join ranked r on r.id = c.id
+          where c.status = 'queued'
+          order by r.turn, r.busy, r.served nulls first, r.created_at, r.sweep_id, r.chunk_index
+          limit ${limit}::int for update of c skip locked)
+        returning *
+      ), served as (
+        update studios set last_chunk_claimed_at = clock_timestamp()
+        where id in (select s.studio_id from sweeps s where s.id in (select sweep_id from claimed))
+        returning id
+      )
+      select c.id, c.sweep_id, c.chunk_index, c.first_cell, c.cell_count, c.attempts, s.status as sweep_status, (select count(*) from served) as served
+      from claimed c join sweeps s on s.id = c.sweep_id order by c.sweep_id, c.chunk_index`);
+    const rows = (
+      result as unknown as {
+        rows: { id: number; sweep_id: string; chunk_index: number; first_cell: number; cell_count: number; attempts: number; sweep_status: string }[];
+      }
+    ).rows;
+    const chunks = rows.map((row) => ({
+      id: Number(row.id),
+      sweepId: row.sweep_id,
+      chunkIndex: Number(row.chunk_index),
+      firstCell: Number(row.first_cell),
+      cellCount: Number(row.cell_count),
+      status: "running" as const,
+      leaseOwner: this.ownerId,
+      leaseExpiresAt: null,
+      attempts: Number(row.attempts),
+      lastError: null,
+      computeMs: 0,
+    }));
+    const toStart = [...new Set(rows.filter((row) => row.sweep_status === "queued").map((row) => row.sweep_id))];
+    const refused = new Set<string>();
+    for (const sweepId of toStart) {
+      const ids = chunks.filter((chunk) => chunk.sweepId === sweepId).map((chunk) => chunk.id);
+      if (!(await this.startSweep(sweepId, ids))) refused.add(sweepId);
+    }
+    return refused.size === 0 ? chunks : chunks.filter((chunk) => !refused.has(chunk.sweepId));
   }
 
   /**
-   * Marks the chunk's sweep running. Starting a queued sweep re-checks maxRunningSweeps under a lock
-   * on the studio row, so runners in several processes cannot together start one sweep too many;
-   * the loser puts the chunk back (false).
+   * Marks a queued sweep running. Starting it re-checks maxRunningSweeps under a lock on the studio
+   * row, so runners in several processes cannot together start one sweep too many; when refused,
+   * the claimed chunks go back to the queue with their attempt not counted (false).
    */
-  private async startSweep(chunk: SweepChunk): Promise<boolean> {
+  private async startSweep(sweepId: string, chunkIds: number[]): Promise<boolean> {
     return this.db.transaction(async (tx) => {
-      const [sweep] = await tx.select({ studioId: sweeps.studioId, status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      const [sweep] = await tx.select({ studioId: sweeps.studioId, status: sweeps.status }).from(sweeps).where(eq(sweeps.id, sweepId));
       if (!sweep || sweep.status !== "queued") return true;
       await tx.execute(sql`select id from studios where id = ${sweep.studioId} for update`);
       // Another runner may have started it while this one waited for the lock.
-      const [now] = await tx.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, chunk.sweepId));
+      const [now] = await tx.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, sweepId));
       if (now?.status !== "queued") return true;
       const { maxRunningSweeps } = await effectiveQuotas(tx, sweep.studioId);
       const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweeps).where(and(eq(sweeps.studioId, sweep.studioId), eq(sweeps.status, "running")));
       if (Number(n) >= maxRunningSweeps) {
         await tx
           .update(sweepChunks)
-          .set({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: sql`${sweepChunks.attempts} - 1` })
-          .where(and(eq(sweepChunks.id, chunk.id), eq(sweepChunks.leaseOwner, this.ownerId)));
+          .set({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: sql`greatest(${sweepChunks.attempts} - 1, 0)` })
+          .where(and(inArray(sweepChunks.id, chunkIds), eq(sweepChunks.leaseOwner, this.ownerId)));
         return false;
       }
       await tx
         .update(sweeps)
         .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
-        .where(and(eq(sweeps.id, chunk.sweepId), eq(sweeps.status, "queued")));
+        .where(and(eq(sweeps.id, sweepId), eq(sweeps.status, "queued")));
       return true;
     });
   }
@@ -280,59 +357,72 @@ export class QueueRunner {
       .catch(logError)
       .finally(() => {
         this.inFlight.delete(chunk.id);
-        this.landedSinceLimits = true;
         this.landing.delete(landed);
         this.poke();
       });
     this.landing.add(landed);
   }
 
+  private async infoOf(sweepId: string): Promise<SweepInfo | null> {
+    const known = this.sweepInfo.get(sweepId);
+    if (known) return known;
+    const [row] = await this.db
+      .select({ studioId: sweeps.studioId, spec: sweeps.spec, cachedCells: sweeps.cachedCells })
+      .from(sweeps)
+      .where(eq(sweeps.id, sweepId));
+    if (!row) return null;
+    const info = { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
+    if (this.sweepInfo.size > 1000) this.sweepInfo.clear();
+    this.sweepInfo.set(sweepId, info);
+    return info;
+  }
+
   private async runChunk(chunk: SweepChunk, signal: AbortSignal): Promise<void> {
-    const [sweep] = await this.db.select().from(sweeps).where(eq(sweeps.id, chunk.sweepId));
-    if (!sweep) return;
-    const spec = sweep.spec as SweepSpec;
-    const axes = expandAxes(spec);
-    // Cells already present (served from the cache at submit) are not run again.
-    const present = new Set(
-      (
-        await this.db
-          .select({ index: sweepCells.cellIndex })
-          .from(sweepCells)
-          .where(and(eq(sweepCells.sweepId, sweep.id), sql`${sweepCells.cellIndex} >= ${chunk.firstCell} and ${sweepCells.cellIndex} < ${chunk.firstCell + chunk.cellCount}`))
-      ).map((r) => r.index),
-    );
-    const hashes = new Map<number, string>();
-    const missing: { index: number; axisValues: (number | string)[]; scenario: import("@/lib/physics/types").Scenario }[] = [];
-    forEachCellInRange(spec, axes, chunk.firstCell, chunk.cellCount, (cell) => {
-      if (present.has(cell.index)) return;
-      hashes.set(cell.index, scenarioHash(cell.scenario));
-      missing.push(cell);
-    });
-    const task: ChunkTask =
-      present.size === 0
-        ? { kind: "range", chunkIndex: chunk.chunkIndex, spec, firstCell: chunk.firstCell, cellCount: chunk.cellCount }
-        : { kind: "cells", chunkIndex: chunk.chunkIndex, cells: missing };
+    const info = await this.infoOf(chunk.sweepId);
+    if (!info) return;
+    // Cells served from the cache at submit are already stored (a partial row): run the others.
+    let partial: { view: PackedView; location: string | null } | null = null;
+    if (info.hasCached) {
+      const [row] = await this.db
+        .select()
+        .from(sweepResults)
+        .where(and(eq(sweepResults.sweepId, chunk.sweepId), eq(sweepResults.chunkIndex, chunk.chunkIndex)));
+      if (row) partial = { view: new PackedView(await readBlob(row)), location: row.location };
+    }
+    const task: ChunkTask = {
+      kind: "range",
+      chunkIndex: chunk.chunkIndex,
+      spec: info.spec,
+      firstCell: chunk.firstCell,
+      cellCount: chunk.cellCount,
+      skip: partial ? Int32Array.from(partial.view.indices) : undefined,
+      keys: true,
+    };
     let outcome: ChunkOutcome;
     try {
       outcome = await this.pool.run(task, { signal });
     } catch (error) {
       if (this.crashed || signal.aborted) {
-        if (!this.crashed) await this.discard(chunk);
+        if (!this.crashed) await this.discard(chunk, true);
         return;
       }
       await this.recordFailure(chunk, error);
       return;
     }
     if (this.crashed) return;
-    await this.recordOutcome(sweep, chunk, outcome, hashes, (index) => axisValuesAt(axes, index));
-    await sendCapAlerts(this.db, sweep.studioId); // the chunk may have crossed 80 % or 100 % of the monthly cap
+    const fresh = new PackedView(outcome.packed);
+    const packed = partial ? mergePacked(partial.view, fresh) : outcome.packed;
+    const blob = await putBlob(chunk.sweepId, chunk.chunkIndex, `a${chunk.attempts}`, packed);
+    if (this.crashed) return;
+    const recorded = await this.recordOutcome(info, chunk, outcome, verdictTally(fresh), blob);
+    if (recorded && partial && partial.location !== blob.location) await dropBlobFile(partial.location).catch(logError);
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */
-  private async discard(chunk: SweepChunk): Promise<void> {
+  private async discard(chunk: SweepChunk, stoppedOnThread = false): Promise<void> {
     await this.db
       .update(sweepChunks)
-      .set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null })
+      .set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null, ...(stoppedOnThread ? { lastError: "stopped on its thread: the sweep was stopped" } : {}) })
       .where(and(eq(sweepChunks.id, chunk.id), eq(sweepChunks.leaseOwner, this.ownerId), eq(sweepChunks.status, "running")));
   }
 
@@ -357,68 +447,108 @@ export class QueueRunner {
     });
   }
 
+  /**
+   * Record a finished chunk in one transaction: lock the studio (the one debit writer per studio at
+   * a time, as lib/billing/usage.ts does), then in one statement lock the sweep, mark the chunk done
+   * (only if this runner still holds it and the sweep was not stopped), upsert its results row, add
+   * the chunk to the sweep's counters and — when the chunk is far from every limit — insert its
+   * debit. Near a limit the debit goes through recordChunkUsage in the same transaction and the cap
+   * alerts are checked after it. Returns whether the chunk was recorded.
+   */
   private async recordOutcome(
-    sweep: Sweep,
+    info: SweepInfo,
     chunk: SweepChunk,
     outcome: ChunkOutcome,
-    hashes: Map<number, string>,
-    axisValuesOf: (index: number) => (number | string)[],
-  ): Promise<void> {
-    const results = unpackResults(outcome, axisValuesOf);
-    await this.db.transaction(async (tx) => {
-      const [current] = await tx.select().from(sweeps).where(eq(sweeps.id, sweep.id)).for("update");
-      const [chunkNow] = await tx.select().from(sweepChunks).where(eq(sweepChunks.id, chunk.id)).for("update");
-      if (!current || !chunkNow) return;
-      if (chunkNow.status !== "running" || chunkNow.leaseOwner !== this.ownerId) return; // lease lost: another runner owns it now
-      if (current.status === "cancelled" || current.status === "failed") {
-        // Landed after the sweep stopped: its result is discarded and not billed.
-        await tx.update(sweepChunks).set({ status: "cancelled", leaseOwner: null, leaseExpiresAt: null }).where(eq(sweepChunks.id, chunk.id));
-        return;
+    tally: number[],
+    blob: { bytes: number; location: string | null; data: Uint8Array | null },
+  ): Promise<boolean> {
+    const cellsInBlob = chunk.cellCount; // a recorded chunk holds all its cells (cached ones merged in)
+    const counts = sql.join(
+      VERDICTS.map((verdict, code) => sql`${verdict}::text, coalesce((verdict_counts ->> ${verdict}::text)::int, 0) + ${tally[code]}::int`),
+      sql`, `,
+    );
+    const memo = `Sweep ${chunk.sweepId} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`;
+    const month = monthOf(new Date());
+    const firstAlertPercent = Math.min(...CAP_ALERT_THRESHOLDS);
+    const landed = await this.db.transaction(async (tx) => {
+      await tx.execute(sql`select id from studios where id = ${info.studioId} for update`);
+      const result = await tx.execute(sql`
+        with locked as (
+          select id, status from sweeps where id = ${chunk.sweepId} for update
+        ), standing as (
+          select
+            (select coalesce(sum(compute_ms), 0) from ledger_entries where studio_id = ${info.studioId}) as balance,
+            (select coalesce(sum(overage_ms - compute_ms), 0) from ledger_entries
+              where studio_id = ${info.studioId} and kind = 'usage' and created_at >= ${month.start.toISOString()}::timestamptz and created_at < ${month.end.toISOString()}::timestamptz) as used,
+            coalesce((select monthly_compute_ms from studio_quotas where studio_id = ${info.studioId}), ${PLAN_DEFAULTS.monthlyComputeMs}::bigint) as cap
+        ), easy as (
+          -- Far from every limit: paid in full from the balance, which stays above the low-balance
+          -- mark, and this month's usage stays under the first cap alert.
+          select 1 from standing
+          where balance - ${outcome.computeMs}::bigint > ${LOW_BALANCE_MS}::bigint and (used + ${outcome.computeMs}::bigint) * 100 < cap * ${firstAlertPercent}::int
+        ), done as (
+          update sweep_chunks set status = 'done', lease_owner = null, lease_expires_at = null, compute_ms = ${outcome.computeMs}::int, last_error = null
+          where id = ${chunk.id}::int and status = 'running' and lease_owner = ${this.ownerId}
+            and exists (select 1 from locked where locked.status not in ('cancelled', 'failed'))
+          returning chunk_index
+        ), stored as (
+          insert into sweep_results (sweep_id, studio_id, chunk_index, cells, complete, bytes, location, data)
+          select ${chunk.sweepId}, ${info.studioId}, chunk_index, ${cellsInBlob}::int, true, ${blob.bytes}::int, ${blob.location}::text, ${blob.data}::bytea from done
+          on conflict (sweep_id, chunk_index) do update set cells = excluded.cells, complete = true, bytes = excluded.bytes, location = excluded.location, data = excluded.data
+          returning id
+        ), billed as (
+          insert into ledger_entries (studio_id, kind, compute_ms, amount_cents, idempotency_key, sweep_id, chunk_index, memo)
+          select ${info.studioId}, 'usage', ${-outcome.computeMs}::bigint, 0, ${usageKey(chunk.sweepId, chunk.chunkIndex)}, ${chunk.sweepId}, chunk_index, ${memo}
+          from done where exists (select 1 from easy)
+          on conflict (idempotency_key) do nothing
+          returning compute_ms
+        ), counted as (
+          update sweeps set
+            cells_done = cells_done + ${outcome.cellCount}::int,
+            chunks_done = chunks_done + 1,
+            compute_ms = compute_ms + coalesce((select -compute_ms from billed), 0)::int,
+            verdict_counts = jsonb_build_object(${counts}),
+            status = case when chunks_done + 1 >= chunks then 'done' when status = 'queued' then 'running' else status end,
+            reason = case when chunks_done + 1 >= chunks then null else reason end,
+            finished_at = case when chunks_done + 1 >= chunks then now() else finished_at end
+          where id = ${chunk.sweepId} and exists (select 1 from done) and exists (select 1 from stored)
+          returning status
+        )
+        select (select count(*) from counted)::int as recorded, (select status from counted) as new_status, (select status from locked) as sweep_status,
+          (select count(*) from easy)::int as easy`);
+      const [row] = (result as unknown as { rows: { recorded: number; new_status: string | null; sweep_status: string | null; easy: number }[] }).rows;
+      if (Number(row?.recorded ?? 0) === 0) return { recorded: false, sweepStatus: row?.sweep_status ?? null, newStatus: null, careful: false };
+      const careful = Number(row.easy) === 0;
+      if (careful) {
+        const usage = await recordChunkUsage(tx, { studioId: info.studioId, sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex, computeMs: outcome.computeMs, memo });
+        if (usage.billed) await tx.update(sweeps).set({ computeMs: sql`${sweeps.computeMs} + ${outcome.computeMs}::int` }).where(eq(sweeps.id, chunk.sweepId));
       }
-      const rows = results.map((result) => ({
-        sweepId: sweep.id,
-        cellIndex: result.index,
-        scenarioHash: hashes.get(result.index) as string,
-        metrics: storableMetrics(result.metrics),
-        verdict: result.verdict,
-        reason: result.reason,
-        fromCache: false,
-      }));
-      for (let i = 0; i < rows.length; i += 500) {
-        const batch = rows.slice(i, i + 500);
-        await tx.insert(sweepCells).values(batch).onConflictDoNothing();
-        // Distinct hashes per batch: one INSERT cannot touch the same key twice.
-        const cacheRows = new Map(batch.map((row) => [row.scenarioHash, { studioId: sweep.studioId, scenarioHash: row.scenarioHash, metrics: row.metrics, verdict: row.verdict, reason: row.reason }]));
-        await tx.insert(resultCache).values([...cacheRows.values()]).onConflictDoNothing();
-      }
-      await tx
-        .update(sweepChunks)
-        .set({ status: "done", leaseOwner: null, leaseExpiresAt: null, computeMs: outcome.computeMs, lastError: null })
-        .where(eq(sweepChunks.id, chunk.id));
-      const { billed } = await recordChunkUsage(tx, {
-        studioId: sweep.studioId,
-        sweepId: sweep.id,
-        chunkIndex: chunk.chunkIndex,
-        computeMs: outcome.computeMs,
-        memo: `Sweep ${sweep.id} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`,
-      });
-      const [cellsDone] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweepCells).where(eq(sweepCells.sweepId, sweep.id));
-      const [chunksDone] = await tx
-        .select({ n: sql<number>`count(*)::int` })
-        .from(sweepChunks)
-        .where(and(eq(sweepChunks.sweepId, sweep.id), eq(sweepChunks.status, "done")));
-      const finished = Number(chunksDone.n) === current.chunks;
-      await tx
-        .update(sweeps)
-        .set({
-          cellsDone: Number(cellsDone.n),
-          chunksDone: Number(chunksDone.n),
-          computeMs: billed ? current.computeMs + outcome.computeMs : current.computeMs,
-          ...(finished ? { status: "done" as const, reason: null, finishedAt: new Date() } : current.status === "queued" ? { status: "running" as const } : {}),
-        })
-        .where(eq(sweeps.id, sweep.id));
+      return { recorded: true, sweepStatus: row.sweep_status, newStatus: row.new_status, careful };
     });
+    if (landed.recorded) {
+      if (landed.careful) {
+        // Near a limit: the chunk may have crossed 80 % or 100 % of the monthly cap, queued a meter
+        // event or a low-balance mail; check the limits before the next claim.
+        this.nearLimit = true;
+        await sendCapAlerts(this.db, info.studioId);
+        pokeOutbox();
+      }
+      this.onRecorded?.(chunk.sweepId, landed.newStatus === "done");
+      return true;
+    }
+    if (landed.sweepStatus === "cancelled" || landed.sweepStatus === "failed") {
+      // Landed after the sweep stopped: its result is discarded and not billed.
+      await this.discard(chunk);
+    }
+    return false;
   }
+}
+
+interface SweepInfo {
+  studioId: string;
+  spec: SweepSpec;
+  /** Some cells came from the cache at submit (partial results rows may exist). */
+  hasCached: boolean;
 }
 
 function logError(error: unknown): void {

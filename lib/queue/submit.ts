@@ -1,21 +1,26 @@
 /**
- * Quotes and submission of sweeps. Submission validates, predicts, counts cache hits, checks the
- * balance, then writes the sweep, its chunks and its cached cells in ONE transaction: on any
- * error nothing is queued.
+ * Quotes and submission of sweeps. Submission validates, predicts, matches cells against the
+ * studio's stored results (the result cache), checks the balance, then writes the sweep, its
+ * chunks and the results rows of its cached cells in ONE transaction: on any error nothing is
+ * queued. (With the file result store, the cached cells' blobs are written just before that
+ * transaction, under the new sweep's id: nothing points at them unless it commits.)
  */
 import { randomBytes } from "node:crypto";
-import { and, eq, sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { resultCache, sweepCells, sweepChunks, sweeps, type Sweep } from "@/db/schema";
+import { sweepChunks, sweepResults, sweeps, type Sweep } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { enforceSubmitLimits, quoteLimits, type QuoteLimits, type SweepDemand } from "@/lib/quotas/enforce";
-import { bodyCount } from "@/lib/sweeps/axes";
+import { VERDICTS } from "@/lib/physics/types";
+import { KeyTable, scenarioKey } from "@/lib/sweeps/cell-key";
 import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
 import { QUOTE_BAND, predictSweep } from "@/lib/sweeps/cost";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
-import { scenarioHash, specHash } from "@/lib/sweeps/hash";
-import { parseSweepSpec, type SweepSpec } from "@/lib/sweeps/spec";
+import { specHash } from "@/lib/sweeps/hash";
+import { KEY_WORDS, PackedView, PackedWriter } from "@/lib/sweeps/packed";
+import { bodyCount, cornerScenarios, parseSweepSpec, stepsPerCell, type SweepSpec } from "@/lib/sweeps/spec";
+import { putBlob, readBlob, type StoredBlob } from "./result-store";
 
 export interface Quote {
   cells: number;
@@ -44,95 +49,125 @@ export function parseSpecOrThrow(input: unknown, prefix = "spec"): SweepSpec {
   throw new ApiError(422, "invalid_spec", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
 }
 
-interface CachedRow {
-  scenarioHash: string;
-  metrics: unknown;
-  verdict: string;
-  reason: string;
-}
-
 interface Plan {
   spec: SweepSpec;
+  cells: number;
   chunks: ChunkPlan[];
-  /** Scenario hash per cell, in index order (null when the studio had nothing cached to compare with). */
-  hashes: (string | null)[];
   steps: number;
-  /** The largest step count and body count of any cell, for the per-sweep quotas. */
+  /** The largest step count and body count of any cell (at the grid's corners), for the per-sweep quotas. */
   maxCellSteps: number;
   maxCellBodies: number;
-  /** Cache rows by cell index, for the cells found in the studio's cache. */
-  cached: Map<number, CachedRow>;
+  /** Per cell index: the stored result it reuses (index into `sources`, and position there), or −1. */
+  hitSource: Int32Array | null;
+  hitPosition: Int32Array | null;
+  cachedCells: number;
+  sources: PackedView[];
   /** Predicted compute of the cells still to run, per chunk (0 for a fully cached chunk). */
   chunkEstimateMs: number[];
   estimatedComputeMs: number;
 }
 
-const CACHE_LOOKUP_BATCH = 10_000;
+/**
+ * Match the sweep's cells against every stored result of the studio by scenario key. Only done
+ * when the studio has stored results: a first sweep pays nothing for the cache.
+ */
+async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: number): Promise<Pick<Plan, "hitSource" | "hitPosition" | "cachedCells" | "sources">> {
+  const none = { hitSource: null, hitPosition: null, cachedCells: 0, sources: [] };
+  const [anyStored] = await db.select({ one: sql<number>`1` }).from(sweepResults).where(eq(sweepResults.studioId, studioId)).limit(1);
+  if (!anyStored) return none;
+  const keys = new Uint32Array(cells * KEY_WORDS);
+  forEachCellInRange(spec, expandAxes(spec), 0, cells, (cell) => scenarioKey(cell.scenario, keys, cell.index * KEY_WORDS));
+  // Key → first cell with it; later cells with the same key chain from there.
+  const table = new KeyTable(cells);
+  const nextSame = new Int32Array(cells).fill(-1);
+  const lastSame = new Int32Array(cells);
+  for (let i = 0; i < cells; i++) {
+    const first = table.insert(keys, i * KEY_WORDS, i);
+    if (first !== i) nextSame[lastSame[first]] = i;
+    lastSame[first] = i;
+  }
+  const hitSource = new Int32Array(cells).fill(-1);
+  const hitPosition = new Int32Array(cells);
+  const sources: PackedView[] = [];
+  let cachedCells = 0;
+  const rows = await db.select().from(sweepResults).where(eq(sweepResults.studioId, studioId)).orderBy(sweepResults.id);
+  for (const row of rows) {
+    const view = new PackedView(await readBlob(row));
+    if (!view.hasKeys) continue;
+    let used = false;
+    for (let n = 0; n < view.count; n++) {
+      const first = table.get(view.keys, n * KEY_WORDS);
+      if (first < 0 || hitSource[first] !== -1) continue;
+      for (let cell = first; cell !== -1; cell = nextSame[cell]) {
+        hitSource[cell] = sources.length;
+        hitPosition[cell] = n;
+        cachedCells++;
+      }
+      used = true;
+    }
+    if (used) sources.push(view);
+    if (cachedCells === cells) break;
+  }
+  return cachedCells === 0 ? none : { hitSource, hitPosition, cachedCells, sources };
+}
 
 async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions: ChunkOptions): Promise<Plan> {
   const axes = expandAxes(spec);
   const estimate = predictSweep(spec, { ...chunkOptions, axes });
-  // Hashing every cell costs about 20 µs a cell (262,144 cells: ~5 s), so it is skipped when the
-  // studio has nothing cached yet (then no cell can be a hit; the runner hashes what it runs).
-  const [anyCached] = await db.select({ one: sql<number>`1` }).from(resultCache).where(eq(resultCache.studioId, studioId)).limit(1);
-  const hashes: (string | null)[] = new Array(estimate.cells).fill(null);
-  let steps = 0;
-  let maxCellSteps = 0;
-  let maxCellBodies = 0;
-  forEachCellInRange(spec, axes, 0, estimate.cells, (cell) => {
-    if (anyCached) hashes[cell.index] = scenarioHash(cell.scenario);
-    const cellSteps = Math.ceil(cell.scenario.durationS / (cell.scenario.dtS / cell.scenario.substeps));
-    steps += cellSteps;
-    if (cellSteps > maxCellSteps) maxCellSteps = cellSteps;
-    const bodies = bodyCount(cell.scenario);
-    if (bodies > maxCellBodies) maxCellBodies = bodies;
-  });
-  const byHash = new Map<string, CachedRow>();
-  if (anyCached) {
-    // Matching in memory against the studio's cached hashes is much faster than asking the
-    // database about every cell; only the hits' results are then fetched.
-    const known = new Set(
-      (await db.select({ scenarioHash: resultCache.scenarioHash }).from(resultCache).where(eq(resultCache.studioId, studioId))).map((r) => r.scenarioHash),
-    );
-    const hits = [...new Set(hashes as string[])].filter((hash) => known.has(hash));
-    for (let i = 0; i < hits.length; i += CACHE_LOOKUP_BATCH) {
-      // One array parameter per batch (hex hashes, safe in an array literal) instead of one parameter per hash.
-      const literal = `{${hits.slice(i, i + CACHE_LOOKUP_BATCH).join(",")}}`;
-      const rows = await db
-        .select({ scenarioHash: resultCache.scenarioHash, metrics: resultCache.metrics, verdict: resultCache.verdict, reason: resultCache.reason })
-        .from(resultCache)
-        .where(and(eq(resultCache.studioId, studioId), sql`${resultCache.scenarioHash} = any(${literal}::text[])`));
-      for (const row of rows) byHash.set(row.scenarioHash, row);
-    }
-  }
-  const cached = new Map<number, CachedRow>();
-  hashes.forEach((hash, index) => {
-    const row = hash === null ? undefined : byHash.get(hash);
-    if (row) cached.set(index, row);
-  });
+  const cache = await matchCache(db, studioId, spec, estimate.cells);
   // A chunk's prediction scaled by the share of its cells still to run; a fully cached chunk costs nothing.
   const chunkEstimateMs = estimate.plan.map((chunk) => {
+    if (!cache.hitSource) return chunk.predictedMs;
     let misses = 0;
-    for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (!cached.has(i)) misses++;
+    for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (cache.hitSource[i] === -1) misses++;
     return misses === 0 ? 0 : Math.ceil((chunk.predictedMs * misses) / chunk.cellCount);
   });
-  return { spec, chunks: estimate.plan, hashes, steps, maxCellSteps, maxCellBodies, cached, chunkEstimateMs, estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0) };
+  const corners = cornerScenarios(spec);
+  return {
+    spec,
+    cells: estimate.cells,
+    chunks: estimate.plan,
+    steps: estimate.steps,
+    maxCellSteps: Math.max(...corners.map(stepsPerCell)),
+    maxCellBodies: Math.max(...corners.map(bodyCount)),
+    ...cache,
+    chunkEstimateMs,
+    estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0),
+  };
+}
+
+/** The cached cells of one chunk, packed in index order (null when none of its cells is cached). */
+function cachedChunk(plan: Plan, chunk: ChunkPlan): { packed: Uint8Array; cells: number; tally: number[] } | null {
+  const { hitSource, hitPosition } = plan;
+  if (!hitSource || !hitPosition) return null;
+  let cells = 0;
+  for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (hitSource[i] !== -1) cells++;
+  if (cells === 0) return null;
+  const writer = new PackedWriter(cells);
+  const tally = new Array<number>(VERDICTS.length).fill(0);
+  for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) {
+    if (hitSource[i] === -1) continue;
+    const source = plan.sources[hitSource[i]];
+    writer.copyAs(source, hitPosition[i], i);
+    tally[source.verdicts[hitPosition[i]]]++;
+  }
+  return { packed: writer.finish(), cells, tally };
 }
 
 function demandOf(plan: Plan): SweepDemand {
-  return { cells: plan.hashes.length, maxCellSteps: plan.maxCellSteps, maxCellBodies: plan.maxCellBodies, estimatedComputeMs: plan.estimatedComputeMs };
+  return { cells: plan.cells, maxCellSteps: plan.maxCellSteps, maxCellBodies: plan.maxCellBodies, estimatedComputeMs: plan.estimatedComputeMs };
 }
 
 function quoteOf(plan: Plan, balance: number, limits: QuoteLimits): Quote {
   const warnings: string[] = [];
-  const cells = plan.hashes.length;
+  const cells = plan.cells;
   if (plan.estimatedComputeMs > balance) warnings.push(`The estimate (${plan.estimatedComputeMs} ms) exceeds the balance (${balance} ms): buy minutes before submitting.`);
   if (cells >= limits.maxCells / 2 && cells <= limits.maxCells) warnings.push(`${cells} cells is over half the limit of ${limits.maxCells} cells per sweep.`);
   for (const violation of limits.violations) warnings.push(violation.message);
   return {
     cells,
-    cachedCells: plan.cached.size,
-    cellsToRun: cells - plan.cached.size,
+    cachedCells: plan.cachedCells,
+    cellsToRun: cells - plan.cachedCells,
     steps: plan.steps,
     estimatedComputeMs: plan.estimatedComputeMs,
     estimatedMinutes: Math.round((plan.estimatedComputeMs / 60_000) * 100) / 100,
@@ -167,14 +202,16 @@ export interface SubmitInput {
   acceptedQuoteMs?: number;
 }
 
-const CELL_INSERT_BATCH = 500;
-
 export async function submitSweep(db: Db, studioId: string, input: SubmitInput, options: SubmitOptions = {}): Promise<Sweep> {
   const spec = parseSpecOrThrow(input.spec);
   const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
   const name = input.name ?? spec.name ?? "Untitled sweep";
-  return db.transaction(async (tx) => {
-    // Suspension, per-sweep quotas, the monthly cap and the balance, under a lock on the studio row.
+  const sweepId = newSweepId();
+  const cachedRows: { chunk: ChunkPlan; cells: number; blob: StoredBlob }[] = [];
+  const verdictCounts: Record<string, number> = Object.fromEntries(VERDICTS.map((verdict) => [verdict, 0]));
+  const checkLimits = async (tx: Parameters<Parameters<Db["transaction"]>[0]>[0] | Db) => {
+    // Suspension, per-sweep quotas, the monthly cap and the balance (plus allowed overage), under a
+    // lock on the studio row when inside the transaction.
     await enforceSubmitLimits(tx, studioId, demandOf(plan));
     if (input.acceptedQuoteMs !== undefined && plan.estimatedComputeMs > input.acceptedQuoteMs) {
       throw new ApiError(
@@ -184,6 +221,19 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
         "acceptedQuoteMs",
       );
     }
+  };
+  if (plan.cachedCells > 0) {
+    // Checked before any file is written (and again inside the transaction).
+    await checkLimits(db);
+    for (const chunk of plan.chunks) {
+      const cached = cachedChunk(plan, chunk);
+      if (!cached) continue;
+      cachedRows.push({ chunk, cells: cached.cells, blob: await putBlob(sweepId, chunk.index, "cached", cached.packed) });
+      cached.tally.forEach((n, code) => (verdictCounts[VERDICTS[code]] += n));
+    }
+  }
+  return db.transaction(async (tx) => {
+    await checkLimits(tx);
     const chunkDone = plan.chunkEstimateMs.map((ms) => ms === 0);
     const chunksDone = chunkDone.filter(Boolean).length;
     const allDone = chunksDone === plan.chunks.length;
@@ -191,17 +241,18 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
     const [sweep] = await tx
       .insert(sweeps)
       .values({
-        id: newSweepId(),
+        id: sweepId,
         studioId,
         name,
         spec,
         specHash: specHash(spec),
         status: allDone ? "done" : "queued",
-        cells: plan.hashes.length,
-        cellsDone: plan.cached.size,
-        cachedCells: plan.cached.size,
+        cells: plan.cells,
+        cellsDone: plan.cachedCells,
+        cachedCells: plan.cachedCells,
         chunks: plan.chunks.length,
         chunksDone,
+        verdictCounts,
         estimatedComputeMs: plan.estimatedComputeMs,
         createdByUserId: input.createdByUserId ?? null,
         startedAt: allDone ? now : null,
@@ -217,16 +268,20 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
         status: chunkDone[chunk.index] ? ("done" as const) : ("queued" as const),
       })),
     );
-    const cachedRows = [...plan.cached].map(([index, row]) => ({
-      sweepId: sweep.id,
-      cellIndex: index,
-      scenarioHash: row.scenarioHash,
-      metrics: row.metrics,
-      verdict: row.verdict,
-      reason: row.reason,
-      fromCache: true,
-    }));
-    for (let i = 0; i < cachedRows.length; i += CELL_INSERT_BATCH) await tx.insert(sweepCells).values(cachedRows.slice(i, i + CELL_INSERT_BATCH));
+    if (cachedRows.length > 0) {
+      await tx.insert(sweepResults).values(
+        cachedRows.map(({ chunk, cells, blob }) => ({
+          sweepId: sweep.id,
+          studioId,
+          chunkIndex: chunk.index,
+          cells,
+          complete: cells === chunk.cellCount,
+          bytes: blob.bytes,
+          location: blob.location,
+          data: blob.data,
+        })),
+      );
+    }
     return sweep;
   });
 }

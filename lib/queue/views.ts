@@ -1,15 +1,18 @@
 /**
- * JSON views of sweeps and cells, as the API answers them. Cells are written with a fixed key
- * order (metrics in METRIC_KEYS order), so the same results give the same bytes however the
- * sweep was chunked, restarted or served from the cache.
+ * JSON views of sweeps and cells, as the API answers them, read from the packed results rows
+ * (one per chunk). Cells are written with a fixed key order (metrics in METRIC_KEYS order), so
+ * the same results give the same bytes however the sweep was chunked, restarted or served from
+ * the cache.
  */
-import { and, asc, count, eq } from "drizzle-orm";
+import { and, asc, eq, gt, lte, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { sweepCells, type Sweep } from "@/db/schema";
+import { sweepChunks, sweepResults, sweeps, type Sweep, type SweepResult } from "@/db/schema";
 import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
 import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
-import { METRIC_KEYS, emptyVerdictCounts, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
+import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
+import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, guardFormula, quoteCsvField, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { readBlob } from "./result-store";
 
 export interface SweepAxisView {
   path: string;
@@ -49,15 +52,16 @@ export function axisViews(spec: SweepSpec, axes: readonly ExpandedAxis[] = expan
   }));
 }
 
-export async function verdictCountsOf(db: DbOrTx, sweepId: string): Promise<VerdictCounts> {
-  const rows = await db
-    .select({ verdict: sweepCells.verdict, n: count() })
-    .from(sweepCells)
-    .where(eq(sweepCells.sweepId, sweepId))
-    .groupBy(sweepCells.verdict);
+/** The sweep's verdict counts as stored with it (running totals kept as chunks land). */
+export function verdictCountsFrom(stored: Record<string, number> | null | undefined): VerdictCounts {
   const counts = emptyVerdictCounts();
-  for (const row of rows) if ((VERDICTS as readonly string[]).includes(row.verdict)) counts[row.verdict as Verdict] = Number(row.n);
+  for (const verdict of VERDICTS) counts[verdict] = Number(stored?.[verdict] ?? 0);
   return counts;
+}
+
+export async function verdictCountsOf(db: DbOrTx, sweepId: string): Promise<VerdictCounts> {
+  const [row] = await db.select({ verdictCounts: sweeps.verdictCounts }).from(sweeps).where(eq(sweeps.id, sweepId));
+  return verdictCountsFrom(row?.verdictCounts);
 }
 
 export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
@@ -77,7 +81,7 @@ export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
     chunksDone: sweep.chunksDone,
     computeMs: sweep.computeMs,
     estimatedComputeMs: sweep.estimatedComputeMs,
-    verdictCounts: await verdictCountsOf(db, sweep.id),
+    verdictCounts: verdictCountsFrom(sweep.verdictCounts),
     axes: axisViews(spec),
     spec,
   };
@@ -102,19 +106,171 @@ export function storableMetrics(metrics: Metrics): Record<string, number | boole
   return out;
 }
 
-/** The sweep's finished cells in index order, as CellResult records. */
+const ROWS_PER_READ = 8;
+
+/**
+ * The sweep's stored results, one decoded chunk at a time in chunk (= cell) order. Rows are read
+ * a few at a time, so a large sweep is never held whole. `onlyIndex` reads just the chunk holding
+ * that cell.
+ */
+export async function* storedChunks(db: DbOrTx, sweep: Sweep, onlyIndex?: number): AsyncGenerator<PackedView> {
+  if (onlyIndex !== undefined) {
+    const [row] = await db
+      .select({ result: sweepResults })
+      .from(sweepResults)
+      .innerJoin(sweepChunks, and(eq(sweepChunks.sweepId, sweepResults.sweepId), eq(sweepChunks.chunkIndex, sweepResults.chunkIndex)))
+      .where(and(eq(sweepResults.sweepId, sweep.id), lte(sweepChunks.firstCell, onlyIndex), sql`${sweepChunks.firstCell} + ${sweepChunks.cellCount} > ${onlyIndex}`));
+    if (row) yield new PackedView(await readBlob(row.result));
+    return;
+  }
+  let after = -1;
+  for (;;) {
+    const rows: SweepResult[] = await db
+      .select()
+      .from(sweepResults)
+      .where(and(eq(sweepResults.sweepId, sweep.id), gt(sweepResults.chunkIndex, after)))
+      .orderBy(asc(sweepResults.chunkIndex))
+      .limit(ROWS_PER_READ);
+    for (const row of rows) yield new PackedView(await readBlob(row));
+    if (rows.length < ROWS_PER_READ) return;
+    after = rows[rows.length - 1].chunkIndex;
+  }
+}
+
+/** Metrics of a stored cell as the API shows them: fixed key order, non-finite as null, −0 as 0. */
+function apiMetrics(view: PackedView, n: number): Metrics {
+  const out: Record<string, number | boolean | null> = {};
+  for (let m = 0; m < METRIC_COUNT; m++) {
+    const value = view.metric(n, m);
+    out[METRIC_KEYS[m]] = typeof value === "number" ? (Number.isFinite(value) ? value + 0 : null) : value;
+  }
+  return out as unknown as Metrics;
+}
+
+/** The sweep's finished cells in index order, as CellResult records (`onlyIndex`: just that cell, if done). */
 export async function storedCells(db: DbOrTx, sweep: Sweep, onlyIndex?: number): Promise<CellResult[]> {
-  const spec = sweep.spec as SweepSpec;
-  const axes = expandAxes(spec);
-  const where = onlyIndex === undefined ? eq(sweepCells.sweepId, sweep.id) : and(eq(sweepCells.sweepId, sweep.id), eq(sweepCells.cellIndex, onlyIndex));
-  const rows = await db.select().from(sweepCells).where(where).orderBy(asc(sweepCells.cellIndex));
-  return rows.map((row) => ({
-    index: row.cellIndex,
-    axisValues: axisValuesAt(axes, row.cellIndex),
-    metrics: orderedMetrics(row.metrics),
-    verdict: row.verdict as Verdict,
-    reason: row.reason,
-  }));
+  const axes = expandAxes(sweep.spec as SweepSpec);
+  const cells: CellResult[] = [];
+  for await (const view of storedChunks(db, sweep, onlyIndex)) {
+    if (onlyIndex !== undefined) {
+      const n = view.find(onlyIndex);
+      if (n >= 0) cells.push({ index: onlyIndex, axisValues: axisValuesAt(axes, onlyIndex), metrics: apiMetrics(view, n), verdict: view.verdict(n), reason: view.reason(n) });
+      continue;
+    }
+    for (let n = 0; n < view.count; n++) {
+      const index = view.indices[n];
+      cells.push({ index, axisValues: axisValuesAt(axes, index), metrics: apiMetrics(view, n), verdict: view.verdict(n), reason: view.reason(n) });
+    }
+  }
+  return cells;
+}
+
+/** Verdict code per cell index (255 where the cell is not done yet), for maps and envelopes. */
+export async function storedVerdictCodes(db: DbOrTx, sweep: Sweep): Promise<Uint8Array> {
+  const codes = new Uint8Array(sweep.cells).fill(255);
+  for await (const view of storedChunks(db, sweep)) for (let n = 0; n < view.count; n++) codes[view.indices[n]] = view.verdicts[n];
+  return codes;
+}
+
+// ---------------------------------------------------------------------------
+// The cells route's bodies, written straight from the packed rows.
+
+/** Text of each axis value, per axis, in the given format (computed once per request). */
+function axisTexts(axes: readonly ExpandedAxis[], format: "json" | "csv"): string[][] {
+  return axes.map((axis) =>
+    axis.values.map((value) =>
+      format === "json" ? JSON.stringify(value) : typeof value === "number" ? (Number.isFinite(value) ? formatNumber(value) : "") : quoteCsvField(guardFormula(value)),
+    ),
+  );
+}
+
+const JSON_METRIC_PREFIXES = METRIC_KEYS.map((key, m) => `${m === 0 ? "" : ","}${JSON.stringify(key)}:`);
+
+function metricText(view: PackedView, n: number, m: number, nullText: string): string {
+  const value = view.metric(n, m);
+  if (value === null) return nullText;
+  if (typeof value === "boolean") return value ? "true" : "false";
+  return Number.isFinite(value) ? String(value) : nullText; // String(−0) is "0"
+}
+
+function cellPositions(axes: readonly ExpandedAxis[], index: number, out: number[]): void {
+  let rest = index;
+  for (let i = axes.length - 1; i >= 0; i--) {
+    const length = axes[i].values.length;
+    out[i] = rest % length;
+    rest = Math.floor(rest / length);
+  }
+}
+
+/** One stored chunk as JSON array items: the bytes JSON.stringify(cellJson(cell)) gives, comma-led after the first. */
+function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], first: boolean): string {
+  const positions = new Array<number>(axes.length);
+  let out = "";
+  for (let n = 0; n < view.count; n++) {
+    const index = view.indices[n];
+    cellPositions(axes, index, positions);
+    let axisValues = "";
+    for (let i = 0; i < axes.length; i++) axisValues += (i === 0 ? "" : ",") + texts[i][positions[i]];
+    let metrics = "";
+    for (let m = 0; m < METRIC_COUNT; m++) metrics += JSON_METRIC_PREFIXES[m] + metricText(view, n, m, "null");
+    out += `${first && n === 0 ? "" : ","}{"index":${index},"axisValues":[${axisValues}],"metrics":{${metrics}},"verdict":${JSON.stringify(view.verdict(n))},"reason":${JSON.stringify(view.reason(n))}}`;
+  }
+  return out;
+}
+
+/** One stored chunk as CSV rows: the bytes cellToCsv(cell) + CRLF gives. */
+function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][]): string {
+  const positions = new Array<number>(axes.length);
+  let out = "";
+  for (let n = 0; n < view.count; n++) {
+    const index = view.indices[n];
+    cellPositions(axes, index, positions);
+    let row = String(index);
+    for (let i = 0; i < axes.length; i++) row += `,${texts[i][positions[i]]}`;
+    row += `,${quoteCsvField(guardFormula(view.verdict(n)))},${quoteCsvField(guardFormula(view.reason(n)))}`;
+    for (let m = 0; m < METRIC_COUNT; m++) row += `,${metricText(view, n, m, "")}`;
+    out += `${row}\r\n`;
+  }
+  return out;
+}
+
+/**
+ * The done cells as a stream of bytes, chunk by chunk: JSON `{"cells":[…]}` (the bytes
+ * JSON.stringify({ cells: cells.map(cellJson) }) gives) or CSV (header row, then one CRLF row per cell).
+ */
+export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv"): ReadableStream<Uint8Array> {
+  const axes = expandAxes(sweep.spec as SweepSpec);
+  const texts = axisTexts(axes, format);
+  const encoder = new TextEncoder();
+  const chunks = storedChunks(db, sweep);
+  let started = false;
+  let first = true;
+  return new ReadableStream<Uint8Array>({
+    async pull(controller) {
+      try {
+        if (!started) {
+          started = true;
+          controller.enqueue(encoder.encode(format === "json" ? `{"cells":[` : `${csvHeader(axes)}\r\n`));
+          return;
+        }
+        const next = await chunks.next();
+        if (next.done) {
+          if (format === "json") controller.enqueue(encoder.encode("]}"));
+          controller.close();
+          return;
+        }
+        const view = next.value;
+        if (view.count === 0) return;
+        controller.enqueue(encoder.encode(format === "json" ? chunkJson(view, axes, texts, first) : chunkCsv(view, axes, texts)));
+        first = false;
+      } catch (error) {
+        controller.error(error);
+      }
+    },
+    async cancel() {
+      await chunks.return(undefined);
+    },
+  });
 }
 
 export function cellJson(cell: CellResult): { index: number; axisValues: (number | string)[]; metrics: Metrics; verdict: Verdict; reason: string } {

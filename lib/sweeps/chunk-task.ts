@@ -4,69 +4,70 @@
  * and typed arrays only (it crosses threads by structured clone).
  */
 import { simulate } from "../physics/index";
-import { VERDICTS, type Metrics, type Scenario } from "../physics/types";
+import type { Scenario } from "../physics/types";
+import { scenarioKey } from "./cell-key";
 import { expandAxes, forEachCellInRange, type SweepCell } from "./grid";
-import { METRIC_KEYS, type CellResult } from "./results";
+import { KEY_WORDS, PackedView, PackedWriter } from "./packed";
+import type { CellResult } from "./results";
 import type { SweepSpec } from "./spec";
 
 export type ChunkTask =
-  /** A contiguous run of a sweep's cells, expanded inside the worker (small messages). */
-  | { kind: "range"; chunkIndex: number; spec: SweepSpec; firstCell: number; cellCount: number }
-  /** Explicit cells, e.g. the cache misses of a sweep. */
-  | { kind: "cells"; chunkIndex: number; cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[] };
+  /**
+   * A contiguous run of a sweep's cells, expanded inside the worker (small messages); `skip`
+   * lists cells of the range (ascending) that are not run, e.g. those already in the cache.
+   */
+  | { kind: "range"; chunkIndex: number; spec: SweepSpec; firstCell: number; cellCount: number; skip?: Int32Array; keys?: boolean }
+  /** Explicit cells (the warm-up, tests). */
+  | { kind: "cells"; chunkIndex: number; cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[]; keys?: boolean };
 
 /**
- * A chunk's results, packed for the trip back to the main thread: typed arrays clone as one
- * copy each, where thousands of small result objects would be walked field by field (which
- * made result passing a serial bottleneck on the main thread). `unpackResults` turns it back
- * into CellResult records.
+ * A chunk's results, packed by the worker (lib/sweeps/packed.ts) into one byte array that
+ * crosses back to the main thread as a single copy and is stored as it is: the main thread
+ * builds nothing per cell. `unpackResults` turns it into CellResult records when needed.
  */
 export interface ChunkOutcome {
   chunkIndex: number;
-  /** Cells in the chunk. */
+  /** Cells run (the range less its skipped cells). */
   cellCount: number;
-  /** Cell index per result, in the order the task gave the cells. */
-  indices: Int32Array;
-  /** Index into VERDICTS per result. */
-  verdicts: Uint8Array;
-  /** METRIC_KEYS.length numbers per result (booleans as 0/1, null as NaN with its bit in nullMask). */
-  metrics: Float64Array;
-  /** One bit per metric per result: set where the metric is null. */
-  nullMask: Uint8Array;
-  reasons: string[];
+  /** The results in index order, packed; with scenario keys when the task asked for them. */
+  packed: Uint8Array;
   /** Worker time spent on this chunk, measured inside the worker thread; integer ms, rounded up. */
   computeMs: number;
   /** The same, in integer nanoseconds (for calibration and benchmarks). */
   computeNs: number;
 }
 
-const METRIC_COUNT = METRIC_KEYS.length;
-const MASK_BYTES_PER_CELL = Math.ceil(METRIC_COUNT / 8);
-const BOOLEAN_METRICS: ReadonlySet<string> = new Set(["tunneled", "exploded"]);
-const VERDICT_CODES = new Map(VERDICTS.map((verdict, code) => [verdict, code]));
-
 function cellCountOf(task: ChunkTask): number {
-  return task.kind === "cells" ? task.cells.length : task.cellCount;
+  return task.kind === "cells" ? task.cells.length : task.cellCount - (task.skip?.length ?? 0);
 }
 
 function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
-  if (task.kind === "cells") task.cells.forEach(visit);
-  else forEachCellInRange(task.spec, expandAxes(task.spec), task.firstCell, task.cellCount, visit);
+  if (task.kind === "cells") {
+    task.cells.forEach(visit);
+    return;
+  }
+  const skip = task.skip;
+  if (!skip || skip.length === 0) {
+    forEachCellInRange(task.spec, expandAxes(task.spec), task.firstCell, task.cellCount, visit);
+    return;
+  }
+  let next = 0;
+  forEachCellInRange(task.spec, expandAxes(task.spec), task.firstCell, task.cellCount, (cell) => {
+    if (next < skip.length && skip[next] === cell.index) next++;
+    else visit(cell);
+  });
 }
 
 /**
- * Run every cell of a chunk through the engine. The clock covers expansion, simulation and
- * packing, i.e. everything billed; it starts when the task arrives.
+ * Run every cell of a chunk through the engine. The clock covers expansion, simulation, keying
+ * and packing, i.e. everything billed; it starts when the task arrives.
  */
 export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const started = process.hrtime.bigint();
   const count = cellCountOf(task);
-  const indices = new Int32Array(count);
-  const verdicts = new Uint8Array(count);
-  const metrics = new Float64Array(count * METRIC_COUNT);
-  const nullMask = new Uint8Array(count * MASK_BYTES_PER_CELL);
-  const reasons: string[] = new Array(count);
-  let n = 0;
+  const writer = new PackedWriter(count);
+  const withKeys = task.keys === true;
+  writer.hasKeys = withKeys;
   forEachCell(task, (cell) => {
     let run;
     try {
@@ -75,39 +76,19 @@ export function runChunkTask(task: ChunkTask): ChunkOutcome {
       const message = error instanceof Error ? error.message : String(error);
       throw new Error(`cell ${cell.index} of chunk ${task.chunkIndex} failed in the engine: ${message}`);
     }
-    indices[n] = cell.index;
-    verdicts[n] = VERDICT_CODES.get(run.verdict) as number;
-    reasons[n] = run.reason;
-    const record = run.metrics as unknown as Record<string, number | boolean | null>;
-    for (let m = 0; m < METRIC_COUNT; m++) {
-      const value = record[METRIC_KEYS[m]];
-      if (value === null) {
-        metrics[n * METRIC_COUNT + m] = Number.NaN;
-        nullMask[n * MASK_BYTES_PER_CELL + (m >> 3)] |= 1 << (m & 7);
-      } else {
-        metrics[n * METRIC_COUNT + m] = typeof value === "boolean" ? (value ? 1 : 0) : value;
-      }
-    }
-    n++;
+    if (withKeys) scenarioKey(cell.scenario, writer.keys, writer.next * KEY_WORDS);
+    writer.add(cell.index, run.verdict, run.reason, run.metrics);
   });
+  const packed = writer.finish();
   const computeNs = Number(process.hrtime.bigint() - started);
-  return { chunkIndex: task.chunkIndex, cellCount: count, indices, verdicts, metrics, nullMask, reasons, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+  return { chunkIndex: task.chunkIndex, cellCount: count, packed, computeMs: Math.ceil(computeNs / 1e6), computeNs };
 }
 
 /** CellResult records of a packed outcome; `axisValuesOf` gives each cell's axis values. */
-export function unpackResults(outcome: ChunkOutcome, axisValuesOf: (index: number) => (number | string)[]): CellResult[] {
-  const results: CellResult[] = new Array(outcome.cellCount);
-  for (let n = 0; n < outcome.cellCount; n++) {
-    const metrics: Record<string, number | boolean | null> = {};
-    for (let m = 0; m < METRIC_COUNT; m++) {
-      const key = METRIC_KEYS[m];
-      const isNull = (outcome.nullMask[n * MASK_BYTES_PER_CELL + (m >> 3)] >> (m & 7)) & 1;
-      const value = outcome.metrics[n * METRIC_COUNT + m];
-      metrics[key] = isNull ? null : BOOLEAN_METRICS.has(key) ? value === 1 : value;
-    }
-    const index = outcome.indices[n];
-    results[n] = { index, axisValues: axisValuesOf(index), verdict: VERDICTS[outcome.verdicts[n]], reason: outcome.reasons[n], metrics: metrics as unknown as Metrics };
-  }
+export function unpackResults(outcome: Pick<ChunkOutcome, "packed">, axisValuesOf: (index: number) => (number | string)[]): CellResult[] {
+  const view = new PackedView(outcome.packed);
+  const results: CellResult[] = new Array(view.count);
+  for (let n = 0; n < view.count; n++) results[n] = view.result(n, axisValuesOf);
   return results;
 }
 

@@ -8,7 +8,8 @@
  * Pure: safe to import in the browser.
  */
 import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, oneOffKey, predictCellNs, type CostConstants } from "./cost";
-import { cellAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";
+import { stepsPerCell } from "./axes";
+import { cellCount, expandAxes, forEachScenarioInPlace, type ExpandedAxis } from "./grid";
 import type { SweepSpec } from "./spec";
 
 export interface ChunkPlan {
@@ -41,8 +42,8 @@ export function planChunks(spec: SweepSpec, options: ChunkOptions = {}): ChunkPl
   return planChunksWithStats(spec, options).chunks;
 }
 
-/** planChunks, plus the largest predicted cell (ns), from the same single pass over the cells. */
-export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {}): { chunks: ChunkPlan[]; largestCellNs: number } {
+/** planChunks, plus the largest predicted cell (ns) and the total integrator steps, from the same single pass over the cells. */
+export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {}): { chunks: ChunkPlan[]; largestCellNs: number; steps: number } {
   const targetNs = (options.targetChunkMs ?? DEFAULT_TARGET_CHUNK_MS) * 1e6;
   const maxCells = options.maxCellsPerChunk ?? DEFAULT_MAX_CELLS_PER_CHUNK;
   if (!(targetNs > 0)) throw new RangeError(`targetChunkMs must be > 0; got ${options.targetChunkMs}`);
@@ -64,8 +65,10 @@ export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {})
     oneOffs.clear();
   };
   let largestCellNs = 0;
-  for (let index = 0; index < total; index++) {
-    const scenario = cellAt(spec, axes, index).scenario;
+  let steps = 0;
+  // The cost model reads each scenario once: no per-cell copies (a 262,144-cell quote stays fast).
+  forEachScenarioInPlace(spec, axes, 0, total, (_index, scenario) => {
+    steps += stepsPerCell(scenario);
     const cellNs = predictCellNs(scenario, constants);
     if (cellNs > largestCellNs) largestCellNs = cellNs;
     chunkNs += cellNs;
@@ -76,7 +79,7 @@ export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {})
     }
     cells++;
     if (chunkNs >= targetNs || cells >= maxCells) close();
-  }
+  });
   if (cells > 0) close();
-  return { chunks, largestCellNs };
+  return { chunks, largestCellNs, steps };
 }

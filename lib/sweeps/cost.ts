@@ -159,6 +159,8 @@ export interface SweepCostEstimate {
   bandMs: { low: number; high: number };
   /** The chunks the quote assumes (pass them to runSweep so the run is the one quoted). */
   plan: ChunkPlan[];
+  /** Integrator steps of all cells. */
+  steps: number;
 }
 
 /**
@@ -167,7 +169,7 @@ export interface SweepCostEstimate {
  */
 export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): SweepCostEstimate {
   const axes = options.axes ?? expandAxes(spec);
-  const { chunks, largestCellNs } = planChunksWithStats(spec, { ...options, axes });
+  const { chunks, largestCellNs, steps } = planChunksWithStats(spec, { ...options, axes });
   const computeMs = chunks.reduce((sum, chunk) => sum + chunk.predictedMs, 0);
   return {
     cells: cellCount(axes),
@@ -176,6 +178,7 @@ export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): Sweep
     largestCellMs: Math.ceil(largestCellNs / 1e6),
     bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },
     plan: chunks,
+    steps,
   };
 }
 

@@ -160,6 +160,28 @@ export function forEachCellInRange(spec: SweepSpec, axes: readonly ExpandedAxis[
   }
 }
 
+/**
+ * Visit the scenarios of cells [first, first + count) in index order, written one after the other
+ * into ONE scratch scenario (no copy per cell; the seed is left at the spec's): for passes that
+ * only read each scenario during the visit, such as the cost model over a 262,144-cell grid.
+ * Every axis's setter runs for every cell, so each visit sees exactly the fields buildCell sets.
+ */
+export function forEachScenarioInPlace(spec: SweepSpec, axes: readonly ExpandedAxis[], first: number, count: number, visit: (index: number, scenario: Readonly<Scenario>) => void): void {
+  checkRange(axes, first, count);
+  if (count === 0) return;
+  const expansion = expansionFor(spec, axes);
+  const positions = axisPositions(axes, first);
+  const scenario = copyScenario(spec.scenario);
+  for (let n = 0; n < count; n++) {
+    for (const i of expansion.order) expansion.setters[i](scenario, axes[i].values[positions[i]]);
+    visit(first + n, scenario);
+    for (let i = axes.length - 1; i >= 0; i--) {
+      if (++positions[i] < axes[i].values.length) break;
+      positions[i] = 0;
+    }
+  }
+}
+
 /** Cells [first, first + count) in index order. */
 export function cellRange(spec: SweepSpec, axes: readonly ExpandedAxis[], first: number, count: number): SweepCell[] {
   const cells: SweepCell[] = [];

@@ -47,7 +47,8 @@ export interface ChunkPool {
   readonly entry: WorkerEntry;
   /**
    * Run one chunk on a worker thread (waits for a slot when maxInFlight chunks are running).
-   * Aborting the signal drops the chunk if it is still waiting; a running chunk finishes.
+   * Aborting the signal drops the chunk if it is still waiting, and stops it if it is running:
+   * piscina ends that thread (a simulation cannot be interrupted from inside) and starts a fresh one.
    */
   run(task: ChunkTask, options?: { signal?: AbortSignal }): Promise<ChunkOutcome>;
   /** Chunks waiting for a slot, and chunks running. */
@@ -99,6 +100,11 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
     // minThreads = maxThreads keeps every thread alive between sweeps: chunks arrive in bursts.
     maxThreads: threads,
   });
+  // A chunk stopped on its thread (an aborted signal) can race with that thread's answer; piscina
+  // then reports the answer as unexpected on its 'error' event, which would throw without a listener.
+  piscina.on("error", (error: unknown) => {
+    if (!(error instanceof Error && error.message.startsWith("Unexpected message from Worker"))) console.error("[kickdrift] worker pool:", error);
+  });
   const queue = new PQueue({ concurrency: maxInFlight });
   // One warm-up chunk per thread, run before any real chunk (the queue is paused until they finish).
   // It takes the compile-on-first-use cost; a fresh thread's first few real chunks still run
@@ -118,7 +124,7 @@ export function createChunkPool(options: ChunkPoolOptions = {}): ChunkPool {
       queue.add(() => {
         const signal = runOptions?.signal;
         if (signal?.aborted) return Promise.reject(new Error(`chunk ${task.chunkIndex} dropped: ${String(signal.reason ?? "aborted")}`));
-        return piscina.run(task);
+        return signal ? piscina.run(task, { signal }) : piscina.run(task);
       }),
     get pending() {
       return queue.size;

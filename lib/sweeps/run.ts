@@ -66,10 +66,11 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
 
   const accept = (outcome: ChunkOutcome) => {
     const plan = chunks[outcome.chunkIndex];
-    if (outcome.cellCount !== plan.cellCount || outcome.indices[0] !== plan.firstCell) {
-      throw new Error(`chunk ${plan.index} returned ${outcome.cellCount} results from cell ${outcome.indices[0]} for ${plan.cellCount} cells from ${plan.firstCell}`);
+    const results = unpackResults(outcome, (index) => axisValuesAt(axes, index));
+    if (results.length !== plan.cellCount || results[0]?.index !== plan.firstCell) {
+      throw new Error(`chunk ${plan.index} returned ${results.length} results from cell ${results[0]?.index} for ${plan.cellCount} cells from ${plan.firstCell}`);
     }
-    finished.set(outcome.chunkIndex, unpackResults(outcome, (index) => axisValuesAt(axes, index)));
+    finished.set(outcome.chunkIndex, results);
     chunkComputeMs[outcome.chunkIndex] = outcome.computeMs;
     chunkComputeNs[outcome.chunkIndex] = outcome.computeNs;
     computeMs += outcome.computeMs;

@@ -27,7 +27,7 @@ import {
 
 export { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parametersForScene } from "./parameters";
 export { applicationOrder, applyAxisValues, axisValues, bodyCount, copyScenario, fieldSetter, isIntegerParameter, stepsPerCell } from "./axes";
-import { applyAxisValues, axisValues, bodyCount } from "./axes";
+import { applyAxisValues, axisValues, bodyCount, isIntegerParameter } from "./axes";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
 export const SPEC_DEFAULT_TOLERANCES: Readonly<Tolerances> = DEFAULT_TOLERANCES;
@@ -463,6 +463,17 @@ function extremes(values: readonly (number | string)[]): (number | string)[] {
     if (value > hi) hi = value;
   }
   return lo === hi ? [lo] : [lo, hi];
+}
+
+/**
+ * The cells at the corners of a parsed spec's grid (each numeric axis at its ends, every choice):
+ * every limit that is monotone in each parameter (steps per cell, bodies) is at its worst in one of
+ * them, so quotas can be checked without visiting every cell.
+ */
+export function cornerScenarios(spec: SweepSpec): Scenario[] {
+  const sceneKind = spec.scenario.scene.kind;
+  const lists = spec.axes.map((axis) => extremes(axisValues(axis, isIntegerParameter(axis.parameter, sceneKind))));
+  return cartesian(lists).map((corner) => applyAxisValues(spec.scenario as Scenario, spec.axes, corner));
 }
 
 function describeCorner(axes: readonly AxisSpec[], corner: readonly (number | string)[]): string {

@@ -1,3 +1,6 @@
+import { mkdtempSync, rmSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { PGlite } from "@electric-sql/pglite";
 import { drizzle } from "drizzle-orm/pglite";
 import { migrate } from "drizzle-orm/pglite/migrator";
@@ -18,6 +21,13 @@ export function setTestEnv(): void {
 }
 
 let createdPgDatabase: { adminUrl: string; name: string } | undefined;
+let createdResultsDir: string | undefined;
+
+/** A fresh folder for the file result store (packed chunk results) of this test file's database. */
+function makeFreshResultsDir(): void {
+  createdResultsDir = mkdtempSync(path.join(tmpdir(), "kd-results-"));
+  process.env.KICKDRIFT_RESULTS_DIR = createdResultsDir;
+}
 
 /**
  * With KICKDRIFT_TEST_DATABASE_URL (a PostgreSQL server URL), each test file gets its own new
@@ -45,6 +55,7 @@ async function openFreshPostgres(adminUrl: string): Promise<Db> {
  */
 export async function useFreshDb(): Promise<Db> {
   setTestEnv();
+  makeFreshResultsDir();
   const pgUrl = process.env.KICKDRIFT_TEST_DATABASE_URL;
   if (pgUrl) return openFreshPostgres(pgUrl);
   const client = new PGlite();
@@ -56,6 +67,10 @@ export async function useFreshDb(): Promise<Db> {
 
 export async function closeTestDb(): Promise<void> {
   await closeDb();
+  if (createdResultsDir) {
+    rmSync(createdResultsDir, { recursive: true, force: true });
+    createdResultsDir = undefined;
+  }
   if (createdPgDatabase) {
     const { Client } = await import("pg");
     const admin = new Client({ connectionString: createdPgDatabase.adminUrl });

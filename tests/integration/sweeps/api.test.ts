@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
-import { ledgerEntries, resultCache, sweepCells, sweepChunks, sweeps } from "@/db/schema";
+import { ledgerEntries, sweepChunks, sweepResults, sweeps } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
@@ -51,7 +51,7 @@ async function submit(s: TestStudio, spec: unknown, cookie = s.cookies.engineer)
 }
 
 async function rowCounts() {
-  return Promise.all([sweeps, sweepChunks, sweepCells, ledgerEntries, resultCache].map((t) => countRows(db, t)));
+  return Promise.all([sweeps, sweepChunks, sweepResults, ledgerEntries].map((t) => countRows(db, t)));
 }
 
 type Spec = { scenario: Record<string, unknown>; axes: Record<string, unknown>[] };

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { canonicalJson, hash32, hashFlatRecord } from "../../../lib/sweeps/canonical";
-import { axisPositions, cellAt, cellCount, cellIndex, expandAxes, expandSweep } from "../../../lib/sweeps/grid";
+import { axisPositions, cellAt, cellCount, cellIndex, expandAxes, expandSweep, forEachScenarioInPlace } from "../../../lib/sweeps/grid";
 import { scenarioHash, sha256Hex } from "../../../lib/sweeps/hash";
 import { axisValues, parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
 import { ballPitBoxSpec, clone, puckPairSpec, type Draft } from "./fixtures";
@@ -107,6 +107,20 @@ describe("grid expansion", () => {
       [0.1, 0.2],
       [0.3, 0.6],
     ]);
+  });
+
+  it("the in-place pass the cost model reads sees every cell's scenario as built (seed aside), mass ratio and model axes included", () => {
+    const input = clone(puckPairSpec()) as Draft;
+    input.axes = [
+      { parameter: "contact.model", values: ["linear", "hertz"] },
+      { parameter: "scene.massRatio", values: [0.5, 2] },
+      { parameter: "scene.massAKg", values: [0.1, 0.3] },
+    ];
+    const spec = parsed(input);
+    const built = expandSweep(spec).map((cell) => ({ ...cell.scenario, seed: spec.scenario.seed }));
+    const seen: unknown[] = [];
+    forEachScenarioInPlace(spec, expandAxes(spec), 0, built.length, (_index, scenario) => seen.push(structuredClone(scenario)));
+    expect(seen).toEqual(built);
   });
 
   it("cellAt builds the same cell as the full expansion, and refuses indices outside the grid", () => {

@@ -10,6 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { simulate } from "../../../lib/physics/index";
 import { expandSweep } from "../../../lib/sweeps/grid";
 import { closeChunkPool, createChunkPool, getChunkPool, type ChunkPool } from "../../../lib/sweeps/pool";
+import { PackedView } from "../../../lib/sweeps/packed";
 import { pickMetrics, resultsToJson, type CellResult } from "../../../lib/sweeps/results";
 import { runSweep } from "../../../lib/sweeps/run";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
@@ -138,7 +139,7 @@ describe("process-wide pool", { timeout: 120_000 }, () => {
     expect(getChunkPool()).toBe(first);
     expect(first.threads).toBe(1);
     const outcome = await first.run({ kind: "range", chunkIndex: 0, spec: wallSpec, firstCell: 0, cellCount: 3 });
-    expect([...outcome.indices]).toEqual([0, 1, 2]);
+    expect([...new PackedView(outcome.packed).indices]).toEqual([0, 1, 2]);
     await closeChunkPool();
     const second = getChunkPool({ threads: 1, entry: "source" });
     expect(second).not.toBe(first);

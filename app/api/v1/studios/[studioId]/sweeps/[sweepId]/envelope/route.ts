@@ -3,9 +3,9 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
-import type { Verdict } from "@/lib/physics/types";
+import { VERDICTS } from "@/lib/physics/types";
 import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
-import { storedCells } from "@/lib/queue/views";
+import { storedVerdictCodes } from "@/lib/queue/views";
 import { EnvelopeInputError, computeEnvelope, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { expandAxes } from "@/lib/sweeps/grid";
 import { formatNumber, quoteCsvField, guardFormula } from "@/lib/sweeps/results";
@@ -40,11 +40,10 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   const axes = expandAxes(sweep.spec as SweepSpec);
-  const verdicts = new Map<number, Verdict>();
-  for (const cell of await storedCells(db, sweep)) verdicts.set(cell.index, cell.verdict);
+  const codes = await storedVerdictCodes(db, sweep);
   let envelope;
   try {
-    envelope = computeEnvelope({ axes, verdictAt: (index) => verdicts.get(index), x, y, margin, bound, at });
+    envelope = computeEnvelope({ axes, verdictAt: (index) => VERDICTS[codes[index]], x, y, margin, bound, at });
   } catch (error) {
     if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
     throw error;

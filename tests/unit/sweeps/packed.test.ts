@@ -1,0 +1,116 @@
+/**
+ * The packed chunk results (lib/sweeps/packed.ts) and the scenario keys of the result cache
+ * (lib/sweeps/cell-key.ts): what the worker writes reads back exactly, merges keep index order,
+ * and keys are equal exactly when scenarios are.
+ */
+import { describe, expect, it } from "vitest";
+import { simulate } from "../../../lib/physics/index";
+import type { Metrics, Scenario } from "../../../lib/physics/types";
+import { KeyTable, scenarioKey } from "../../../lib/sweeps/cell-key";
+import { runChunkTask, unpackResults } from "../../../lib/sweeps/chunk-task";
+import { axisValuesAt, cellRange, expandAxes } from "../../../lib/sweeps/grid";
+import { KEY_WORDS, PackedView, PackedWriter, mergePacked, verdictTally } from "../../../lib/sweeps/packed";
+import { pickMetrics } from "../../../lib/sweeps/results";
+import { parseSweepSpec, type SweepSpec } from "../../../lib/sweeps/spec";
+import { bumperWallSpec, puckPairSpec } from "./fixtures";
+
+function parsed(input: unknown): SweepSpec {
+  const result = parseSweepSpec(input);
+  if (!result.ok) throw new Error(JSON.stringify(result.issues));
+  return result.spec;
+}
+
+function keyOf(scenario: Scenario): number[] {
+  const out = new Uint32Array(KEY_WORDS);
+  scenarioKey(scenario, out);
+  return [...out];
+}
+
+describe("packed results", () => {
+  it("round-trip the engine's results exactly, with keys, whatever the values (NaN, ±Infinity, −0, null, booleans)", () => {
+    const spec = parsed(puckPairSpec());
+    const axes = expandAxes(spec);
+    const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, keys: true });
+    const runs = cellRange(spec, axes, 0, 15).map((cell) => simulate(cell.scenario));
+    expect(unpackResults(outcome, (index) => axisValuesAt(axes, index))).toEqual(
+      runs.map((run, index) => ({ index, axisValues: axisValuesAt(axes, index), verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) })),
+    );
+    const view = new PackedView(outcome.packed);
+    expect(view.hasKeys).toBe(true);
+    cellRange(spec, axes, 0, 15).forEach((cell, n) => expect([...view.keys.subarray(n * 4, n * 4 + 4)]).toEqual(keyOf(cell.scenario)));
+
+    // Values the engine may return at the edges: written and read back bit for bit.
+    const edge = { ...pickMetrics(runs[0].metrics), energyErrorRel: Number.NaN, maxEnergyErrorRel: Number.POSITIVE_INFINITY, momentumDriftRelX: -0, effectiveRestitution: null, contactDurationS: null, tunneled: true, exploded: false } as Metrics;
+    const writer = new PackedWriter(1);
+    writer.add(7, "exploded", "energy grew ×1e6 — see “why”", edge);
+    const back = new PackedView(writer.finish()).result(0, () => []);
+    expect(back.metrics).toEqual(edge);
+    expect(Object.is(back.metrics.momentumDriftRelX, -0)).toBe(true);
+    expect(back.reason).toBe("energy grew ×1e6 — see “why”");
+    expect(back.verdict).toBe("exploded");
+  });
+
+  it("merges two runs with disjoint cells in index order; skipped cells are the ones left out", () => {
+    const spec = parsed(puckPairSpec());
+    const axes = expandAxes(spec);
+    const whole = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, keys: true });
+    const skip = Int32Array.from([0, 3, 4, 9, 14]);
+    const rest = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, skip, keys: true });
+    expect(rest.cellCount).toBe(10);
+    expect([...new PackedView(rest.packed).indices]).toEqual([1, 2, 5, 6, 7, 8, 10, 11, 12, 13]);
+    const wholeView = new PackedView(whole.packed);
+    const cached = new PackedWriter(skip.length);
+    for (const index of skip) cached.copyFrom(wholeView, wholeView.find(index));
+    const merged = mergePacked(new PackedView(cached.finish()), new PackedView(rest.packed));
+    expect(Buffer.from(merged).equals(Buffer.from(whole.packed))).toBe(true);
+    expect(verdictTally(new PackedView(merged)).reduce((a, b) => a + b, 0)).toBe(15);
+    expect(() => mergePacked(wholeView, wholeView)).toThrow(/in both runs/);
+    void axes;
+  });
+
+  it("refuses bytes that are not a packed run of the length they claim", () => {
+    const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec: parsed(bumperWallSpec()), firstCell: 0, cellCount: 3 });
+    expect(() => new PackedView(outcome.packed.subarray(0, outcome.packed.length - 1))).toThrow(/bytes where the header describes/);
+    expect(() => new PackedView(new Uint8Array(64))).toThrow(/unknown format/);
+  });
+});
+
+describe("scenario keys", () => {
+  const base = parsed(bumperWallSpec()).scenario;
+
+  it("are equal for equal scenarios in any key order, and for −0 and 0", () => {
+    const reordered = JSON.parse(JSON.stringify({ seed: base.seed, tolerances: base.tolerances, durationS: base.durationS, substeps: base.substeps, dtS: base.dtS, integrator: base.integrator, contact: base.contact, scene: base.scene })) as Scenario;
+    expect(keyOf(reordered)).toEqual(keyOf(base));
+    const zero = { ...base, scene: { ...base.scene, angleDeg: 0 } } as Scenario;
+    const negativeZero = { ...base, scene: { ...base.scene, angleDeg: -0 } } as Scenario;
+    expect(keyOf(negativeZero)).toEqual(keyOf(zero));
+  });
+
+  it("differ when any one field differs, including the last bit of a number and an absent optional field", () => {
+    const variants: Scenario[] = [
+      { ...base, dtS: base.dtS * (1 + Number.EPSILON) },
+      { ...base, seed: base.seed + 1 },
+      { ...base, integrator: "explicit-euler" },
+      { ...base, contact: { ...base.contact, material: undefined, stiffness: 1e9 } },
+      { ...base, contact: { ...base.contact, damping: { kind: "restitution", value: 0.9 } } },
+      { ...base, tolerances: { ...base.tolerances, energyDriftRel: base.tolerances.energyDriftRel * 2 } },
+      { ...base, scene: { ...base.scene, gapM: 0.003 } } as Scenario,
+    ];
+    const keys = [base, ...variants].map((scenario) => keyOf(scenario).join(","));
+    expect(new Set(keys).size).toBe(keys.length);
+  });
+
+  it("a key table finds every key it holds and no other (65,536 keys of a grid)", () => {
+    const spec = parsed({ ...puckPairSpec(), axes: [
+      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 256 },
+      { parameter: "scene.speedAMPerS", spacing: "log", from: 0.5, to: 20, count: 256 },
+    ] });
+    const axes = expandAxes(spec);
+    const keys = new Uint32Array(65_536 * KEY_WORDS);
+    cellRange(spec, axes, 0, 65_536).forEach((cell) => scenarioKey(cell.scenario, keys, cell.index * KEY_WORDS));
+    const table = new KeyTable(32_768);
+    for (let i = 0; i < 32_768; i++) expect(table.insert(keys, i * KEY_WORDS, i)).toBe(i);
+    expect(table.size).toBe(32_768); // no two cells of the grid share a key
+    for (let i = 0; i < 65_536; i += 97) expect(table.get(keys, i * KEY_WORDS)).toBe(i < 32_768 ? i : -1);
+  });
+});
