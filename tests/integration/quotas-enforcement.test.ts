@@ -227,7 +227,8 @@ describe("run-time limits", { timeout: 180_000 }, () => {
     const small = await makeSweepStudio("Pine Vole Arcade");
     const large = await submitSweep(db, big.studioId, { spec: puckSpec() }, { chunkOptions: { maxCellsPerChunk: 1 } }); // 15 chunks
     const later = await submitSweep(db, small.studioId, { spec: { ...puckSpec(), name: "small" } }, { chunkOptions: { maxCellsPerChunk: 5 } }); // 3 chunks
-    const runner = newRunner(); // one thread: one chunk at a time
+    // One thread and one chunk held at a time, so the order chunks land in is the order they were claimed.
+    const runner = new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000, concurrency: 1 });
     await runner.start();
     try {
       await waitForSweep(later.id, (s) => s.status === "done");
