@@ -18,7 +18,7 @@
 import type { Scenario, SceneKind } from "../physics/types";
 import { hashFlatRecord } from "./canonical";
 import { findParameter } from "./parameters";
-import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter } from "./axes";
+import { PAIR_AXIS_PATH, applicationOrder, axisSetter, axisValues, copyScenario, isIntegerParameter } from "./axes";
 import type { AxisSpec, SweepSpec } from "./spec";
 
 export interface ExpandedAxis {
@@ -42,6 +42,7 @@ export interface SweepCell {
 export function expandAxes(spec: SweepSpec): ExpandedAxis[] {
   const sceneKind: SceneKind = spec.scenario.scene.kind;
   return spec.axes.map((axis: AxisSpec) => {
+    if (axis.parameter === PAIR_AXIS_PATH) return { parameter: axis.parameter, label: "object pair", unit: "", values: axisValues(axis) };
     const parameter = findParameter(axis.parameter, sceneKind);
     return {
       parameter: axis.parameter,
@@ -103,7 +104,7 @@ function expansionFor(spec: SweepSpec, axes: readonly ExpandedAxis[]): Expansion
   if (known && known.spec === spec) return known;
   const expansion: Expansion = {
     spec,
-    setters: spec.axes.map((axis: AxisSpec) => fieldSetter(axis.parameter)),
+    setters: spec.axes.map((axis: AxisSpec) => axisSetter(axis)),
     order: applicationOrder(spec.axes),
     sceneAxes: spec.axes.flatMap((axis: AxisSpec, i: number) => (axis.parameter.startsWith("scene.") ? [i] : [])),
     seedByScene: new Map(),

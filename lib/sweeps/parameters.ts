@@ -31,6 +31,8 @@ export const SPEC_LIMITS = {
   maxSubsteps: 1_000,
   /** Choices listed on one axis. */
   maxListValues: 64,
+  /** Object pairs on one scene.pair axis: every unordered pair of 64 objects, 64 · 65 / 2. */
+  maxPairs: 2_080,
   /** Characters of the optional sweep name. */
   maxNameLength: 120,
 } as const;
@@ -189,6 +191,15 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     { min: 0, minInclusive: true, max: 1, maxInclusive: false },
     "linear",
     "Impact parameter / sum of radii: 0 head-on, towards 1 glancing.",
+  ),
+  numeric(
+    "scene.closingSpeedFraction",
+    "fraction of closing speed",
+    "",
+    ["pair"],
+    { ...positive, max: 100 },
+    "linear",
+    "Multiplies both speeds of each cell (after scene.pair and the speed axes): 1 is the pair's closing speed.",
   ),
   numeric("scene.gapM", "initial gap", "m", ["pair", "wall", "row"], { ...nonNegative, max: MAX_LENGTH_M }, "linear", "Surface gap before the first contact."),
   // wall, row, box
