@@ -95,7 +95,8 @@ export function fieldSetter(path: string): FieldSetter {
 
 /**
  * A setter for one axis. A pair axis writes both bodies of the named pair (masses, radii, top
- * speeds and, when the pair carries one, the contact stiffness); every other axis writes its field.
+ * speeds and, when the pair carries them, the contact stiffness and target restitution); every
+ * other axis writes its field.
  */
 export function axisSetter(axis: AxisSpec): FieldSetter {
   if (axis.parameter !== PAIR_AXIS_PATH) return fieldSetter(axis.parameter);
@@ -111,6 +112,7 @@ export function axisSetter(axis: AxisSpec): FieldSetter {
     scene.radiusBM = pair.radiusBM;
     scene.speedBMPerS = pair.speedBMPerS;
     if (pair.stiffness !== undefined) scenario.contact.stiffness = pair.stiffness;
+    if (pair.restitution !== undefined && scenario.contact.damping.kind === "restitution") scenario.contact.damping.value = pair.restitution;
   };
 }
 

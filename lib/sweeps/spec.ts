@@ -189,6 +189,8 @@ export const axisPairSchema = z.strictObject({
   speedBMPerS: sceneNumber("pair", "speedBMPerS"),
   /** The pair's own contact stiffness (per-group stiffness); absent: the scenario's. */
   stiffness: ruledNumber(numericRule("contact.stiffness", "pair")).optional(),
+  /** The pair's own target restitution (needs damping kind "restitution"); absent: the scenario's. */
+  restitution: ruledNumber(numericRule("contact.damping.restitution", "pair")).optional(),
 });
 
 export type AxisPair = z.infer<typeof axisPairSchema>;
@@ -511,6 +513,15 @@ function checkPairAxis(axis: AxisSpec, scenario: Scenario, at: (...rest: (string
     addIssue(at("pairs"), "pairs with their own stiffness cannot be used while contact.material sets the Hertz stiffness");
     return null;
   }
+  const perPairRestitution = axis.pairs.some((pair) => pair.restitution !== undefined);
+  if (perPairRestitution && !axis.pairs.every((pair) => pair.restitution !== undefined)) {
+    addIssue(at("pairs"), "give a restitution for every pair or for none");
+    return null;
+  }
+  if (perPairRestitution && scenario.contact.damping.kind !== "restitution") {
+    addIssue(at("pairs"), `pairs with their own restitution need scenario.contact.damping.kind "restitution"; it is "${scenario.contact.damping.kind}"`);
+    return null;
+  }
   for (const [j, pair] of axis.pairs.entries()) {
     if (!(pair.speedAMPerS + pair.speedBMPerS > 0)) {
       addIssue(at("pairs", j), `pair ${JSON.stringify(pair.name)}: speedAMPerS + speedBMPerS must be > 0 so the discs approach`);
@@ -577,6 +588,11 @@ function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue):
     const stiffnessAxis = seen.get("contact.stiffness");
     if (stiffnessAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.stiffness !== undefined)) {
       addIssue(["axes", stiffnessAxis, "parameter"], `contact.stiffness is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
+      axesSound = false;
+    }
+    const restitutionAxis = seen.get("contact.damping.restitution");
+    if (restitutionAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.restitution !== undefined)) {
+      addIssue(["axes", restitutionAxis, "parameter"], `contact.damping.restitution is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
       axesSound = false;
     }
   }
