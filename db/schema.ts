@@ -305,3 +305,56 @@ export const ledgerEntries = pgTable(
 export type Sweep = typeof sweeps.$inferSelect;
 export type SweepChunk = typeof sweepChunks.$inferSelect;
 export type LedgerEntry = typeof ledgerEntries.$inferSelect;
+
+// ---------------------------------------------------------------------------
+// Catalogues of a game's objects (versioned per studio and name) and the checks run on them.
+
+/** One version of a catalogue: the file as uploaded (base64 of its bytes), its hash and its parsed objects. */
+export const catalogues = pgTable(
+  "catalogues",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    /** The catalogue's name; uploads under the same name are its versions 1, 2, … */
+    name: text("name").notNull(),
+    version: integer("version").notNull(),
+    /** SHA-256 (hex) of the file's bytes. */
+    contentHash: text("content_hash").notNull(),
+    fileName: text("file_name").notNull(),
+    mediaType: text("media_type").notNull(),
+    fileBase64: text("file_base64").notNull(),
+    fileBytes: integer("file_bytes").notNull(),
+    format: text("format", { enum: ["csv", "json"] }).notNull(),
+    objects: jsonb("objects").notNull(),
+    objectCount: integer("object_count").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("catalogues_studio_name_version_uq").on(t.studioId, t.name, t.version), index("catalogues_studio_created_idx").on(t.studioId, t.createdAt)],
+);
+
+/** A catalogue check: the settings it ran with and the sweep that ran it (quoted, queued and billed as any sweep). */
+export const catalogueChecks = pgTable(
+  "catalogue_checks",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    catalogueId: text("catalogue_id")
+      .notNull()
+      .references(() => catalogues.id, { onDelete: "cascade" }),
+    sweepId: text("sweep_id")
+      .notNull()
+      .references(() => sweeps.id, { onDelete: "cascade" }),
+    settings: jsonb("settings").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("catalogue_checks_catalogue_idx").on(t.catalogueId, t.createdAt), uniqueIndex("catalogue_checks_sweep_uq").on(t.sweepId)],
+);
+
+export type Catalogue = typeof catalogues.$inferSelect;
+export type CatalogueCheck = typeof catalogueChecks.$inferSelect;

@@ -25,6 +25,8 @@ export type ErrorCode =
   | "reset_token_used"
   | "studio_suspended"
   | "invalid_spec"
+  | "invalid_catalogue"
+  | "invalid_settings"
   | "insufficient_minutes"
   | "invalid_state"
   | "quote_changed"
