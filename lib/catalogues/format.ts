@@ -226,6 +226,28 @@ function failed(format: ParsedCatalogue["format"], problem: CatalogueProblem, no
   return { format, delimiter: null, firstRow: format === "csv" ? 2 : 1, table: [], problems: [problem], notes, objects: null };
 }
 
+/** Offset of the first byte that does not continue a well-formed UTF-8 sequence (overlongs and surrogates count as bad). */
+export function firstInvalidUtf8Byte(bytes: Uint8Array): number {
+  let i = 0;
+  while (i < bytes.length) {
+    const lead = bytes[i];
+    const length = lead < 0x80 ? 1 : lead >= 0xc2 && lead <= 0xdf ? 2 : lead >= 0xe0 && lead <= 0xef ? 3 : lead >= 0xf0 && lead <= 0xf4 ? 4 : 0;
+    if (length === 0) return i;
+    for (let k = 1; k < length; k++) {
+      const next = bytes[i + k];
+      let low = 0x80;
+      let high = 0xbf;
+      if (k === 1 && lead === 0xe0) low = 0xa0;
+      if (k === 1 && lead === 0xed) high = 0x9f;
+      if (k === 1 && lead === 0xf0) low = 0x90;
+      if (k === 1 && lead === 0xf4) high = 0x8f;
+      if (next === undefined || next < low || next > high) return i;
+    }
+    i += length;
+  }
+  return -1;
+}
+
 /** Decodes UTF-8 (a leading byte-order mark is dropped); any other encoding is refused with the reason. */
 export function decodeCatalogueBytes(bytes: Uint8Array): { text: string; notes: string[] } | { problem: CatalogueProblem } {
   if (bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
@@ -241,16 +263,7 @@ export function decodeCatalogueBytes(bytes: Uint8Array): { text: string; notes: 
   try {
     text = new TextDecoder("utf-8", { fatal: true }).decode(hasBom ? bytes.subarray(3) : bytes);
   } catch {
-    let offset = 0;
-    // Find the first byte that breaks UTF-8, to name it.
-    for (let end = 1; end <= bytes.length; end++) {
-      try {
-        new TextDecoder("utf-8", { fatal: true }).decode(bytes.subarray(0, end));
-        offset = end;
-      } catch {
-        if (end - offset > 4) break;
-      }
-    }
+    const offset = Math.max(0, firstInvalidUtf8Byte(bytes));
     const line = new TextDecoder("utf-8").decode(bytes.subarray(0, offset)).split("\n").length;
     return {
       problem: {
