@@ -16,6 +16,7 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
   const tabs = [
     { href: base, label: "Overview" },
     { href: `${base}/sweeps`, label: "Sweeps" },
+    { href: `${base}/catalogues`, label: "Catalogues" },
   ];
   if (role === "owner") {
     tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
@@ -42,8 +43,8 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
       {tabs.length > 1 ? (
         <nav aria-label="Studio" className="mb-6 flex gap-1">
           {tabs.map((tab) => {
-            // The Sweeps tab stays marked on the builder, a sweep and its cells.
-            const active = pathname === tab.href || (tab.label === "Sweeps" && pathname.startsWith(`${tab.href}/`));
+            // The Sweeps tab stays marked on the builder, a sweep and its cells; Catalogues on a catalogue and its checks.
+            const active = pathname === tab.href || ((tab.label === "Sweeps" || tab.label === "Catalogues") && pathname.startsWith(`${tab.href}/`));
             return (
               <Link
                 key={tab.href}
