@@ -1,6 +1,6 @@
 /**
  * The demo catalogue: the objects of "Crateslide", the invented arcade game of the invented demo
- * studio Gannet Yard Games (a warehouse floor where crates slide, coins scatter and barrels roll).
+ * studio Gannet Yard Games (pucks knocking crates, coins and barrels across an ice deck).
  * Used by the demo seed, the docs and the tests.
  *
  * Pure data: safe to import in the browser.

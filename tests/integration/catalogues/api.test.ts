@@ -9,7 +9,8 @@ import { catalogueChecks, catalogues, sweeps } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { CRATESLIDE_CATALOGUE_CSV } from "@/lib/catalogues/demo";
-import { contentHash } from "@/lib/catalogues/store";
+import { contentHash, listCatalogues } from "@/lib/catalogues/store";
+import { seedDemo } from "@/db/seed";
 import * as cataloguesRoute from "@/app/api/v1/studios/[studioId]/catalogues/route";
 import * as catalogueRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/route";
 import * as fileRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/file/route";
@@ -100,6 +101,16 @@ describe("uploads", () => {
     // Another studio sees nothing.
     const foreign = await call(catalogueRoute.GET, { path: `${base(rival)}/${v1.id}`, params: { studioId: rival.studioId, catalogueId: v1.id }, cookie: rival.cookies.owner });
     expect(foreign.status).toBe(404);
+  });
+});
+
+describe("the demo", () => {
+  it("seeds Crateslide's catalogue once", async () => {
+    const { studioId } = await seedDemo(db);
+    await seedDemo(db);
+    const seeded = await listCatalogues(db, studioId);
+    expect(seeded.map((c) => [c.name, c.version, c.objectCount])).toEqual([["Crateslide objects", 1, 5]]);
+    expect(seeded[0].contentHash).toBe(contentHash(new TextEncoder().encode(CRATESLIDE_CATALOGUE_CSV)));
   });
 });
 
