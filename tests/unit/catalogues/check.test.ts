@@ -3,7 +3,7 @@
  * simulation of every pair at that stiffness; the pair matrix; the exports' CSV escaping.
  */
 import { describe, expect, it } from "vitest";
-import { checkSettingsSchema, checkSpec, pairMatrix, recommend, type CheckSettings } from "@/lib/catalogues/check";
+import { CheckInputError, cataloguePairs, checkSettingsSchema, checkSpec, pairMatrix, recommend, type CheckSettings } from "@/lib/catalogues/check";
 import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_SETTINGS } from "@/lib/catalogues/demo";
 import { checkExportJson, pairMatrixCsv, recommendationCsv } from "@/lib/catalogues/exports";
 import { parseCatalogueFile, type CatalogueObject } from "@/lib/catalogues/format";
@@ -33,6 +33,27 @@ describe("the check's sweep", () => {
     // 5 objects: 5·6/2 = 15 pairs; 6 speed steps; 2 offsets.
     expect(axes.map((axis) => axis.values.length)).toEqual([15, 6, 2]);
     expect(axes[0].values[1]).toBe("crate × coin");
+  });
+});
+
+describe("per-group stiffness", () => {
+  it("gives a pair the harmonic mean of its two groups, and a group meeting itself its own stiffness", () => {
+    const settings = checkSettingsSchema.parse({ ...CRATESLIDE_SETTINGS, stiffness: undefined, groupStiffness: { cargo: 40_000, loot: 10_000, player: 20_000 } });
+    const pairs = cataloguePairs(objects, settings);
+    const stiffnessOf = (name: string) => pairs.find((pair) => pair.name === name)?.stiffness;
+    // Harmonic mean 2·kA·kB/(kA + kB): cargo × loot = 2·40,000·10,000 / 50,000 = 16,000 N/m (worked by hand).
+    expect(stiffnessOf("crate × coin")).toBe(16_000);
+    expect(stiffnessOf("crate × barrel")).toBe(40_000);
+    // The sweep carries each pair's own stiffness on the pair axis.
+    const spec = checkSpec("Crateslide objects", 1, objects, settings);
+    expect(spec.axes?.[0].pairs?.[1]).toMatchObject({ name: "crate × coin", stiffness: 16_000, restitution: 0.4 });
+    expect(parseSweepSpec(spec).ok).toBe(true);
+  });
+
+  it("names the group that has no stiffness", () => {
+    const settings = checkSettingsSchema.parse({ ...CRATESLIDE_SETTINGS, stiffness: undefined, groupStiffness: { cargo: 40_000, loot: 10_000 } });
+    expect(() => cataloguePairs(objects, settings)).toThrow(CheckInputError);
+    expect(() => cataloguePairs(objects, settings)).toThrow('no stiffness for group "player" (object "slider puck"): add it to groupStiffness or give stiffness');
   });
 });
 
