@@ -77,5 +77,10 @@ test("an engineer uploads a catalogue with three mistakes, fixes them in the tab
   const file = await download;
   expect(file.suggestedFilename()).toMatch(/^chk_.*-pairs\.csv$/);
 
+  // --- The check is an ordinary sweep too: its page draws the map with the pair as one more axis.
+  await page.getByRole("link", { name: /^sweep swp_/ }).click();
+  await expect(page).toHaveURL(/\/sweeps\/swp_/);
+  await expect(page.getByRole("application").first()).toHaveAttribute("data-plot", /^[\d.]+,/);
+
   expect(pageErrors).toEqual([]);
 });
