@@ -49,7 +49,9 @@ export const checkSettingsSchema = z.strictObject({
   /** One stiffness for every pair (N/m linear, N/m^1.5 Hertz); with groupStiffness, the stiffness of objects without a listed group. */
   stiffness: ruled("contact.stiffness").optional(),
   /** Stiffness per object group; a pair takes the harmonic mean 2·kA·kB/(kA + kB) of its two objects. */
-  groupStiffness: z.record(z.string().max(80), ruled("contact.stiffness")).optional(),
+  groupStiffness: z
+    .record(z.string().max(80, { error: "a group name has at most 80 characters" }).regex(/^[^\u0000-\u001f\u007f]+$/, { error: "a group name must not be empty or hold control characters" }), ruled("contact.stiffness"))
+    .optional(),
   /** "catalogue": each pair's target restitution is the smaller of its two objects'; "none": undamped contacts. */
   damping: z.enum(["catalogue", "none"], { error: "damping must be catalogue or none" }).default("catalogue"),
   /** Closing speeds per pair: speedSteps evenly spaced fractions of the pair's closing speed, up to 1. */

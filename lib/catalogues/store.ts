@@ -75,6 +75,7 @@ export function catalogueSummary(row: Catalogue): CatalogueSummary {
 
 function catalogueNameOf(upload: CatalogueUpload): string {
   const name = (upload.name ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
+  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError(400, "validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
   if (name === "") throw new ApiError(400, "validation_failed", "name: a catalogue needs a name (or a file name to take it from).", "name");
   if (name.length > CATALOGUE_LIMITS.maxCatalogueNameLength) {
     throw new ApiError(400, "validation_failed", `name: at most ${CATALOGUE_LIMITS.maxCatalogueNameLength} characters; got ${name.length}.`, "name");
@@ -107,8 +108,8 @@ export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueU
             name,
             version: (latest ?? 0) + 1,
             contentHash: hash,
-            fileName: upload.fileName.slice(0, 200) || "catalogue",
-            mediaType: upload.mediaType || (parsed.format === "json" ? "application/json" : "text/csv"),
+            fileName: upload.fileName.replace(/[\u0000-\u001f\u007f]/g, "").slice(0, 200) || "catalogue",
+            mediaType: parsed.format === "json" ? "application/json" : "text/csv",
             fileBase64: Buffer.from(upload.bytes).toString("base64"),
             fileBytes: upload.bytes.length,
             format: parsed.format,

@@ -164,3 +164,37 @@ describe("a catalogue check", () => {
     expect(await countRows(db, sweeps)).toBeGreaterThanOrEqual(2);
   });
 });
+
+describe("hostile uploads and settings", () => {
+  it("answer 4xx naming the field, never a 500", async () => {
+    const nulName = await upload(studio, form(CRATESLIDE_CATALOGUE_CSV, "c.csv", "crate\u0000s"));
+    expect(nulName.status).toBe(400);
+    expect(errorOf(nulName.body).field).toBe("name");
+    const nulCell = await upload(studio, form(CRATESLIDE_CATALOGUE_CSV.replace("crate,", "cr\u0000ate,"), "c.csv"));
+    expect(nulCell.status).toBe(422);
+    expect(errorOf(nulCell.body).issues?.[0].message).toBe("the file holds NUL characters: it is not a text file");
+    const noFile = new FormData();
+    noFile.set("name", "nothing");
+    expect((await upload(studio, noFile)).status).toBe(400);
+    const uploaded = await upload(studio, form(CRATESLIDE_CATALOGUE_CSV, "c.csv", "Hostile settings"));
+    const catalogueId = (uploaded.body as { catalogue: { id: string } }).catalogue.id;
+    const res = await call(checksRoute.POST, {
+      method: "POST",
+      path: `${base(studio)}/${catalogueId}/checks`,
+      params: { studioId: studio.studioId, catalogueId },
+      body: { settings: { ...SETTINGS, groupStiffness: { "car\u0000go": 1000 } } },
+      cookie: studio.cookies.engineer,
+    });
+    expect(res.status).toBe(400);
+    expect(errorOf(res.body).field).toMatch(/^settings\.groupStiffness/);
+    const empty = await call(checksRoute.POST, {
+      method: "POST",
+      path: `${base(studio)}/${catalogueId}/checks`,
+      params: { studioId: studio.studioId, catalogueId },
+      body: { settings: { ...SETTINGS, groupStiffness: { "": 1000 } } },
+      cookie: studio.cookies.engineer,
+    });
+    expect(empty.status).toBe(400);
+    expect(errorOf(empty.body).code).toBe("invalid_settings");
+  });
+});
