@@ -30,6 +30,22 @@ const SCENE_DEFAULTS: Record<SceneKind, SweepSpecInput["scenario"]["scene"]> = {
   wall: { kind: "wall", massKg: 0.05, radiusM: 0.02, speedMPerS: 4, angleDeg: 0, gapM: 0.02 },
   row: { kind: "row", count: 5, massKg: 0.17, radiusM: 0.028, strikerMassKg: 0.17, strikerSpeedMPerS: 2, spacingM: 0.001, gapM: 0.02 },
   box: { kind: "box", count: 40, massKg: 0.01, radiusM: 0.01, widthM: 0.5, heightM: 0.5, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
+  // Three crates and a barrel rolling at a loading-bay wall (x = 0); upload a snapshot for a real floor.
+  snapshot: {
+    kind: "snapshot",
+    bodies: [
+      { xM: 0.5, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.1, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.7, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.1, yM: 1.0, vxMPerS: -3, vyMPerS: -0.5, massKg: 40, radiusM: 0.3 },
+    ],
+    walls: [
+      { normalX: 1, normalY: 0, offsetM: 0 },
+      { normalX: 0, normalY: 1, offsetM: 0 },
+    ],
+    gravityMPerS2: 0,
+    speedScale: 1,
+  },
 };
 
 const SCENE_LABELS: Record<SceneKind, string> = {
@@ -37,6 +53,7 @@ const SCENE_LABELS: Record<SceneKind, string> = {
   wall: "Wall — one disc hits a wall",
   row: "Row — a striker hits a row of resting discs",
   box: "Box — many discs in a walled box",
+  snapshot: "Snapshot — discs and walls exported from a game",
 };
 
 const INTEGRATOR_LABELS: Record<string, string> = {

@@ -153,5 +153,7 @@ export function bodyCount(scenario: Scenario): number {
       return scenario.scene.count + 1;
     case "box":
       return scenario.scene.count;
+    case "snapshot":
+      return scenario.scene.bodies.length;
   }
 }

@@ -84,7 +84,10 @@ export function cellIndex(axes: readonly ExpandedAxis[], positions: readonly num
 
 /** The seed of a cell: a function of the spec seed and the cell's scene only. */
 export function deriveCellSeed(specSeed: number, scenario: Scenario): number {
-  return hashFlatRecord(scenario.scene as unknown as Record<string, number | string>, specSeed);
+  const scene = scenario.scene;
+  // A snapshot draws nothing at random; its scalar fields key the seed (the bodies are the same in every cell).
+  if (scene.kind === "snapshot") return hashFlatRecord({ kind: scene.kind, gravityMPerS2: scene.gravityMPerS2, speedScale: scene.speedScale }, specSeed);
+  return hashFlatRecord(scene as unknown as Record<string, number | string>, specSeed);
 }
 
 /** What expanding many cells of one spec can share: setters, application order and the seeds of scenes already seen. */

@@ -10,7 +10,7 @@
  */
 import { z } from "zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
-import { boxSceneProblem } from "../physics/scenes";
+import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import type { Scenario, SceneKind, Tolerances } from "../physics/types";
 import {
   CHOICE_PARAMETERS,
@@ -20,6 +20,7 @@ import {
   numericRule,
   rangeViolation,
   readNumericField,
+  SNAPSHOT_FIELD_RULES,
   scenesOfPath,
   SWEEPABLE_PATHS,
   type NumericParameter,
@@ -124,9 +125,66 @@ export const boxSceneSchema = z.strictObject({
   gravityMPerS2: sceneNumber("box", "gravityMPerS2"),
 });
 
-export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema], {
+const snapshotBodySchema = z.strictObject(
+  {
+    xM: ruledNumber(SNAPSHOT_FIELD_RULES.xM),
+    yM: ruledNumber(SNAPSHOT_FIELD_RULES.yM),
+    vxMPerS: ruledNumber(SNAPSHOT_FIELD_RULES.vxMPerS),
+    vyMPerS: ruledNumber(SNAPSHOT_FIELD_RULES.vyMPerS),
+    massKg: ruledNumber(SNAPSHOT_FIELD_RULES.massKg),
+    radiusM: ruledNumber(SNAPSHOT_FIELD_RULES.radiusM),
+  },
+  { error: (issue) => (issue.code === "invalid_type" ? `each body must be an object with xM, yM, vxMPerS, vyMPerS, massKg, radiusM; got ${describeReceived(issue.input)}` : undefined) },
+);
+
+const snapshotWallSchema = z
+  .strictObject(
+    {
+      normalX: ruledNumber(SNAPSHOT_FIELD_RULES.normalX),
+      normalY: ruledNumber(SNAPSHOT_FIELD_RULES.normalY),
+      offsetM: ruledNumber(SNAPSHOT_FIELD_RULES.offsetM),
+    },
+    { error: (issue) => (issue.code === "invalid_type" ? `each wall must be an object with normalX, normalY, offsetM; got ${describeReceived(issue.input)}` : undefined) },
+  )
+  .superRefine((wall, ctx) => {
+    if (Math.hypot(wall.normalX, wall.normalY) < 1e-6) ctx.addIssue({ code: "custom", path: ["normalX"], message: "the wall normal (normalX, normalY) must not be zero" });
+  });
+
+/** The bodies of a snapshot: 1 to SPEC_LIMITS.maxBodies discs, the count named when over. */
+export const snapshotBodiesSchema = z
+  .array(snapshotBodySchema, { error: (issue) => `bodies must be an array of discs; got ${describeReceived(issue.input)}` })
+  .min(1, { error: "bodies must list at least one disc" })
+  .max(SPEC_LIMITS.maxBodies, {
+    error: (issue) => `${Array.isArray(issue.input) ? `${formatLimit(issue.input.length)} bodies exceed` : "bodies exceed"} the limit of ${formatLimit(SPEC_LIMITS.maxBodies)} bodies per scene`,
+  });
+
+export const snapshotWallsSchema = z
+  .array(snapshotWallSchema, { error: (issue) => `walls must be an array; got ${describeReceived(issue.input)}` })
+  .max(SPEC_LIMITS.maxWalls, { error: `a snapshot has at most ${SPEC_LIMITS.maxWalls} walls` });
+
+/** At most this many initial overlaps are listed one by one (the rest are counted). */
+const MAX_LISTED_OVERLAPS = 20;
+
+/** Initial overlaps, each at the path of its (first) body, as zod issues. */
+export function addSnapshotOverlapIssues(scene: { bodies: z.output<typeof snapshotBodiesSchema>; walls: z.output<typeof snapshotWallsSchema> }, ctx: z.RefinementCtx, prefix: (string | number)[] = []): void {
+  const overlaps = snapshotOverlaps(scene, MAX_LISTED_OVERLAPS + 1);
+  overlaps.slice(0, MAX_LISTED_OVERLAPS).forEach((overlap) => ctx.addIssue({ code: "custom", path: [...prefix, "bodies", overlap.a], message: describeSnapshotOverlap(overlap) }));
+  if (overlaps.length > MAX_LISTED_OVERLAPS) ctx.addIssue({ code: "custom", path: [...prefix, "bodies"], message: `more initial overlaps beyond the ${MAX_LISTED_OVERLAPS} listed` });
+}
+
+export const snapshotSceneSchema = z
+  .strictObject({
+    kind: z.literal("snapshot"),
+    bodies: snapshotBodiesSchema,
+    walls: snapshotWallsSchema.default(() => []),
+    gravityMPerS2: sceneNumber("snapshot", "gravityMPerS2").default(0),
+    speedScale: sceneNumber("snapshot", "speedScale").default(1),
+  })
+  .superRefine((scene, ctx) => addSnapshotOverlapIssues(scene, ctx));
+
+export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema, snapshotSceneSchema], {
   error: (issue) =>
-    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
+    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box, snapshot; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
 });
 
 const dampingSchema = z.discriminatedUnion(
@@ -285,12 +343,13 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
     }
   }
 
-  if (scene.kind === "row" || scene.kind === "box") {
+  if (scene.kind === "row" || scene.kind === "box" || scene.kind === "snapshot") {
     const bodies = bodyCount(scenario);
+    const countPath = scene.kind === "snapshot" ? "scene.bodies" : "scene.count";
     if (bodies > SPEC_LIMITS.maxBodies) {
       problems.push({
         check: "bodies",
-        paths: ["scene.count"],
+        paths: [countPath],
         message: `${formatLimit(bodies)} bodies exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodies)}`,
         severity: bodies / SPEC_LIMITS.maxBodies,
       });
@@ -299,7 +358,7 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
     if (bodySteps > SPEC_LIMITS.maxBodyStepsPerCell) {
       problems.push({
         check: "body-steps",
-        paths: ["scene.count", "dtS", "durationS", "substeps"],
+        paths: [countPath, "dtS", "durationS", "substeps"],
         message: `bodies × steps per cell (${formatLimit(bodies)} × ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodyStepsPerCell)}`,
         severity: bodySteps / SPEC_LIMITS.maxBodyStepsPerCell,
       });
