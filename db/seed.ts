@@ -1,9 +1,11 @@
 import { and, eq } from "drizzle-orm";
 import type { Db } from "./client";
 import { newId } from "./ids";
-import { catalogues, memberships, studios, users, type StudioRole } from "./schema";
+import { catalogues, memberships, snapshots, studios, users, type StudioRole } from "./schema";
 import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_CATALOGUE_NAME } from "@/lib/catalogues/demo";
 import { saveCatalogue } from "@/lib/catalogues/store";
+import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapshots/demo";
+import { saveSnapshot } from "@/lib/snapshots/store";
 import { hashPassword } from "@/lib/auth/password";
 import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
 
@@ -91,6 +93,22 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
       fileName: "crateslide-objects.csv",
       mediaType: "text/csv",
       bytes: new TextEncoder().encode(CRATESLIDE_CATALOGUE_CSV),
+      createdByUserId: userIds.get(engineer.email) ?? null,
+    });
+    created = true;
+  }
+  // A snapshot of Crateslide's loading bay, ready for a sweep over a custom scene.
+  const [snapshot] = await db
+    .select({ id: snapshots.id })
+    .from(snapshots)
+    .where(and(eq(snapshots.studioId, studioId), eq(snapshots.name, CRATESLIDE_SNAPSHOT_NAME)))
+    .limit(1);
+  if (!snapshot) {
+    const engineer = DEMO_ACCOUNTS.find((a) => a.role === "engineer")!;
+    await saveSnapshot(db, studioId, {
+      name: CRATESLIDE_SNAPSHOT_NAME,
+      fileName: "crateslide-loading-bay.json",
+      bytes: new TextEncoder().encode(CRATESLIDE_SNAPSHOT_JSON),
       createdByUserId: userIds.get(engineer.email) ?? null,
     });
     created = true;

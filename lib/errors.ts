@@ -26,6 +26,7 @@ export type ErrorCode =
   | "studio_suspended"
   | "invalid_spec"
   | "invalid_catalogue"
+  | "invalid_snapshot"
   | "invalid_settings"
   | "insufficient_minutes"
   | "invalid_state"
