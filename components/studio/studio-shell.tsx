@@ -17,6 +17,7 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
     { href: base, label: "Overview" },
     { href: `${base}/sweeps`, label: "Sweeps" },
     { href: `${base}/catalogues`, label: "Catalogues" },
+    { href: `${base}/snapshots`, label: "Snapshots" },
   ];
   if (role === "owner") {
     tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });

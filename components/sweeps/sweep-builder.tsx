@@ -122,13 +122,13 @@ function FieldError({ id, message }: { id: string; message?: string }) {
   );
 }
 
-export function SweepBuilder({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+export function SweepBuilder({ studioId, studioName, role, initialSpec }: { studioId: string; studioName: string; role: StudioRole; initialSpec?: SweepSpecInput }) {
   const router = useRouter();
-  const [templateId, setTemplateId] = useState(SWEEP_TEMPLATES[0].id);
+  const [templateId, setTemplateId] = useState(initialSpec ? "" : SWEEP_TEMPLATES[0].id);
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
     resolver: zodResolver(sweepSpecSchema) as never,
-    defaultValues: withTolerances(SWEEP_TEMPLATES[0].spec),
+    defaultValues: withTolerances(initialSpec ?? SWEEP_TEMPLATES[0].spec),
     mode: "onChange",
   });
   const { register, setValue, reset, formState, handleSubmit, control } = form;
@@ -269,6 +269,11 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
                   ))}
                 </select>
               </div>
+              {scenario.scene.kind === "snapshot" ? (
+                <p className="text-sm text-ink-muted md:col-span-2" data-testid="snapshot-scene-summary">
+                  {scenario.scene.bodies?.length ?? 0} discs and {scenario.scene.walls?.length ?? 0} walls as exported; upload another snapshot on the Snapshots tab to change them.
+                </p>
+              ) : null}
               {sceneParameters.map((parameter: NumericParameter) =>
                 numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any" }),
               )}
