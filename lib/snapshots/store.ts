@@ -165,3 +165,29 @@ export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scen
     ],
   };
 }
+
+/**
+ * A spec whose scene names a stored snapshot (`{ kind: "snapshot", snapshotId, speedScale?,
+ * gravityMPerS2? }`) with that snapshot's discs and walls written in, so the stored spec is
+ * self-contained (its results never depend on what is uploaded later). Any other spec is returned
+ * as it is; the schema checks the result as usual (other fields beside the reference are refused
+ * there as unknown). An id of another studio, or none, is a 422 naming the field.
+ */
+export async function resolveSnapshotReference(db: Db, studioId: string, spec: unknown): Promise<unknown> {
+  const scene = (spec as { scenario?: { scene?: unknown } } | null)?.scenario?.scene as Record<string, unknown> | undefined;
+  if (!scene || typeof scene !== "object" || scene.kind !== "snapshot" || !("snapshotId" in scene)) return spec;
+  const field = "spec.scenario.scene.snapshotId";
+  const { snapshotId, ...rest } = scene;
+  if (typeof snapshotId !== "string" || snapshotId === "") {
+    throw new ApiError(422, "invalid_spec", `${field}: must be the id of one of the studio's snapshots.`, field, [{ field, message: "must be the id of one of the studio's snapshots" }]);
+  }
+  const [row] = await db
+    .select()
+    .from(snapshots)
+    .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
+  if (!row) throw new ApiError(422, "invalid_spec", `${field}: no snapshot ${JSON.stringify(snapshotId)} in this studio.`, field, [{ field, message: `no snapshot ${JSON.stringify(snapshotId)} in this studio` }]);
+  const stored = row.scene as SnapshotScene;
+  const inline = { ...stored, ...rest, bodies: stored.bodies, walls: stored.walls, kind: "snapshot" };
+  const typed = spec as { scenario: Record<string, unknown> };
+  return { ...typed, scenario: { ...typed.scenario, scene: inline } };
+}

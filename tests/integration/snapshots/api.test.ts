@@ -22,6 +22,7 @@ import * as snapshotsRoute from "@/app/api/v1/studios/[studioId]/snapshots/route
 import * as snapshotRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snapshotId]/route";
 import * as fileRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snapshotId]/file/route";
 import * as sweepsRoute from "@/app/api/v1/studios/[studioId]/sweeps/route";
+import * as quotesRoute from "@/app/api/v1/studios/[studioId]/quotes/route";
 import { closeTestDb, countRows, useFreshDb } from "../../helpers/db";
 import { buildRequest, call, errorOf } from "../../helpers/http";
 import { makeSweepStudio, waitForSweep, type TestStudio } from "../sweeps/support";
@@ -140,6 +141,28 @@ describe("a sweep over a stored snapshot", () => {
     const parsed = parseSweepSpec(done.spec);
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
     expect(rows.map((row) => [row.verdict, row.reason])).toEqual(expandSweep(parsed.spec).map((cell) => { const run = simulate(cell.scenario); return [run.verdict, run.reason]; }));
+  });
+});
+
+describe("a sweep naming a stored snapshot by id", () => {
+  it("is quoted and stored with the snapshot's discs written in; an id of another studio is a 422 naming the field", async () => {
+    const uploaded = await upload(studio, form(CRATESLIDE_SNAPSHOT_JSON, "bay.json", "Bay by reference"));
+    const id = (uploaded.body as { snapshot: { id: string } }).snapshot.id;
+    const spec = (snapshotId: string) => ({
+      scenario: { scene: { kind: "snapshot", snapshotId, speedScale: 2 }, contact: { model: "linear", stiffness: 1e5, damping: { kind: "restitution", value: 0.5 } }, integrator: "velocity-verlet", dtS: 1 / 240, durationS: 0.1 },
+      axes: [{ parameter: "dtS", values: [1 / 240, 1 / 480] }],
+    });
+    const quoted = await call(quotesRoute.POST, { method: "POST", path: `/api/v1/studios/${studio.studioId}/quotes`, params: { studioId: studio.studioId }, body: { spec: spec(id) }, cookie: studio.cookies.engineer });
+    expect(quoted.status).toBe(200);
+    expect((quoted.body as { quote: { cells: number } }).quote.cells).toBe(2);
+    const submitted = await call(sweepsRoute.POST, { method: "POST", path: `/api/v1/studios/${studio.studioId}/sweeps`, params: { studioId: studio.studioId }, body: { spec: spec(id) }, cookie: studio.cookies.engineer });
+    expect(submitted.status).toBe(201);
+    const done = await waitForSweep((submitted.body as { sweep: { id: string } }).sweep.id, (row) => row.status === "done");
+    const scene = (done.spec as { scenario: { scene: { bodies: unknown[]; walls: unknown[]; speedScale: number; snapshotId?: string } } }).scenario.scene;
+    expect([scene.bodies.length, scene.walls.length, scene.speedScale, scene.snapshotId]).toEqual([41, 4, 2, undefined]);
+    const foreign = await call(sweepsRoute.POST, { method: "POST", path: `/api/v1/studios/${rival.studioId}/sweeps`, params: { studioId: rival.studioId }, body: { spec: spec(id) }, cookie: rival.cookies.owner });
+    expect(foreign.status).toBe(422);
+    expect(errorOf(foreign.body).field).toBe("spec.scenario.scene.snapshotId");
   });
 });
 
