@@ -122,8 +122,41 @@ function FieldError({ id, message }: { id: string; message?: string }) {
   );
 }
 
-export function SweepBuilder({ studioId, studioName, role, initialSpec }: { studioId: string; studioName: string; role: StudioRole; initialSpec?: SweepSpecInput }) {
+/**
+ * The spec as sent to the quote and submit routes. A scene still holding the discs and walls of the
+ * stored snapshot it was opened from is sent by reference (the routes write them back in), so a
+ * large snapshot stays within the JSON body limit.
+ */
+function specForRequest(json: string, snapshot: { id: string; geometry: string } | undefined): unknown {
+  const spec = JSON.parse(json) as SweepSpecInput;
+  const scene = spec.scenario?.scene;
+  if (!snapshot || scene?.kind !== "snapshot" || JSON.stringify([scene.bodies, scene.walls ?? []]) !== snapshot.geometry) return spec;
+  const { bodies: _bodies, walls: _walls, ...rest } = scene;
+  void _bodies;
+  void _walls;
+  return { ...spec, scenario: { ...spec.scenario, scene: { ...rest, snapshotId: snapshot.id } } };
+}
+
+export function SweepBuilder({
+  studioId,
+  studioName,
+  role,
+  initialSpec,
+  snapshotId,
+}: {
+  studioId: string;
+  studioName: string;
+  role: StudioRole;
+  /** A spec to start from instead of the first template (e.g. a stored snapshot's). */
+  initialSpec?: SweepSpecInput;
+  /** The stored snapshot `initialSpec` was made from: sent by reference while its discs are unchanged. */
+  snapshotId?: string;
+}) {
   const router = useRouter();
+  const snapshotRef = useMemo(() => {
+    const scene = initialSpec?.scenario.scene;
+    return snapshotId && scene?.kind === "snapshot" ? { id: snapshotId, geometry: JSON.stringify([scene.bodies, scene.walls ?? []]) } : undefined;
+  }, [initialSpec, snapshotId]);
   const [templateId, setTemplateId] = useState(initialSpec ? "" : SWEEP_TEMPLATES[0].id);
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
@@ -142,7 +175,7 @@ export function SweepBuilder({ studioId, studioName, role, initialSpec }: { stud
 
   const quote = useQuery({
     queryKey: ["studio", studioId, "quote", debouncedJson],
-    queryFn: async () => (await apiFetch<{ quote: Quote }>(`${studioApiPath(studioId)}/quotes`, { method: "POST", body: { spec: JSON.parse(debouncedJson) } })).quote,
+    queryFn: async () => (await apiFetch<{ quote: Quote }>(`${studioApiPath(studioId)}/quotes`, { method: "POST", body: { spec: specForRequest(debouncedJson, snapshotRef) } })).quote,
     enabled: local.ok,
     retry: false,
     staleTime: 30_000,
@@ -156,7 +189,7 @@ export function SweepBuilder({ studioId, studioName, role, initialSpec }: { stud
       (
         await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
           method: "POST",
-          body: { spec: JSON.parse(debouncedJson), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
+          body: { spec: specForRequest(debouncedJson, snapshotRef), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
         })
       ).sweep,
     onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),

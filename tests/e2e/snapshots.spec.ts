@@ -49,7 +49,12 @@ test("an engineer uploads a snapshot, sees its problems by JSON path, saves the 
   await expect(page.getByTestId("snapshot-scene-summary")).toContainText("41 discs and 4 walls");
   await expect(page.getByTestId("quote-panel").getByTestId("quote-cells")).toHaveText("25");
   await page.getByRole("button", { name: "Review and run" }).click();
+  // The spec goes by reference to the stored snapshot (its discs unchanged), so a large snapshot fits the JSON body limit.
+  const submitted = page.waitForRequest((request) => request.method() === "POST" && /\/api\/v1\/studios\/[^/]+\/sweeps$/.test(new URL(request.url()).pathname));
   await page.getByTestId("confirm-sweep").getByRole("button", { name: "Run sweep" }).click();
+  const scene = ((await submitted).postDataJSON() as { spec: { scenario: { scene: Record<string, unknown> } } }).spec.scenario.scene;
+  expect(scene).toMatchObject({ kind: "snapshot", snapshotId: expect.stringMatching(/^snp_/) });
+  expect(scene).not.toHaveProperty("bodies");
   await expect(page).toHaveURL(/\/sweeps\/(?!new)[^/?]+$/);
   await expect(page.getByTestId("sweep-progress")).toHaveAttribute("aria-valuenow", "100", { timeout: 90_000 });
   await expect(page.getByTestId("sweep-status").first()).toHaveText("done");

@@ -25,5 +25,5 @@ export default async function NewSweepRoute({ params, searchParams }: { params: 
       if (!(error instanceof ApiError && error.status === 404)) throw error;
     }
   }
-  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} />;
+  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} snapshotId={initialSpec ? snapshotId : undefined} />;
 }
