@@ -79,3 +79,20 @@ describe("snapshot scene in the sweep spec", () => {
     expect(predictCellNs(cells[0].scenario)).toBe(CALIBRATION.cellOverheadNs + stepsPerCell(cells[0].scenario) * (CALIBRATION.boxStepNs + 41 * CALIBRATION.boxBodyStepNs));
   });
 });
+
+describe("result cache identity of snapshot cells", () => {
+  it("equal scenes hash equal (also from a fresh copy), any changed disc or field changes the hash", async () => {
+    const { scenarioHash } = await import("../../../lib/sweeps/hash");
+    const parsed = parseSweepSpec(spec(loadingBay()));
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+    const scenario = parsed.spec.scenario;
+    const copy = structuredClone(scenario);
+    expect(scenarioHash(copy)).toBe(scenarioHash(scenario));
+    const moved = structuredClone(scenario);
+    if (moved.scene.kind === "snapshot") moved.scene.bodies[40].xM += 1e-9;
+    expect(scenarioHash(moved)).not.toBe(scenarioHash(scenario));
+    const faster = structuredClone(scenario);
+    if (faster.scene.kind === "snapshot") faster.scene.speedScale = 2;
+    expect(scenarioHash(faster)).not.toBe(scenarioHash(scenario));
+  });
+});
