@@ -54,4 +54,7 @@ test("every form control on the studio pages has a label", async ({ page }) => {
   await page.getByRole("link", { name: "Crateslide objects" }).first().click();
   await expect(page.getByRole("button", { name: "Get quote" })).toBeVisible();
   expect(await unlabelledControls(page), "catalogue").toEqual([]);
+  await page.goto(`${studioPath}/snapshots`);
+  await expect(page.getByTestId("snapshot-file")).toBeVisible();
+  expect(await unlabelledControls(page), "snapshots").toEqual([]);
 });
