@@ -47,6 +47,9 @@ export const snapshotFileSchema = z
   )
   .superRefine((file, ctx) => addSnapshotOverlapIssues(file, ctx));
 
+/** Problems listed one by one; the rest are counted in one last line. */
+export const MAX_LISTED_PROBLEMS = 100;
+
 export type SnapshotFile = z.output<typeof snapshotFileSchema>;
 
 export interface SnapshotProblem {
@@ -91,7 +94,13 @@ export function parseSnapshotValue(json: unknown): ParseSnapshotResult {
       problems.push({ path: base.join(".") || "(file)", reason: issue.message });
     }
   }
-  return { ok: false, problems };
+  // Whole-array problems (the body and wall limits) first; then at most MAX_LISTED_PROBLEMS in file order.
+  const whole = problems.filter((problem) => problem.path === "bodies" || problem.path === "walls" || problem.path === "(file)");
+  const ordered = [...whole, ...problems.filter((problem) => !whole.includes(problem))];
+  if (ordered.length <= MAX_LISTED_PROBLEMS) return { ok: false, problems: ordered };
+  const listed = ordered.slice(0, MAX_LISTED_PROBLEMS);
+  listed.push({ path: "(file)", reason: `and ${formatLimit(ordered.length - MAX_LISTED_PROBLEMS)} more problems not listed` });
+  return { ok: false, problems: listed };
 }
 
 /** The sweep scene of a snapshot, run as exported (speedScale 1). */

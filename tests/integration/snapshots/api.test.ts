@@ -83,7 +83,15 @@ describe("snapshot uploads", () => {
     // Arrays instead of objects: one problem per body would be 10,001; the limit is named first.
     const tooMany = await upload(studio, form(many, "many.json"));
     expect(tooMany.status).toBe(422);
-    expect(errorOf(tooMany.body).issues?.map((issue) => issue.message)).toContain("10,001 bodies exceed the limit of 10,000 bodies per scene");
+    const issues = errorOf(tooMany.body).issues ?? [];
+    expect(issues[0]).toEqual({ field: "file.bodies", message: "10,001 bodies exceed the limit of 10,000 bodies per scene" });
+    expect(issues).toHaveLength(1);
+    // 150 discs with a negative mass: the first 100 problems are listed, the rest counted.
+    const negative = JSON.stringify({ bodies: Array.from({ length: 150 }, (_, i) => disc(i, { massKg: -1 })) });
+    const listed = errorOf((await upload(studio, form(negative, "negative.json"))).body).issues ?? [];
+    expect(listed).toHaveLength(101);
+    expect(listed[99].field).toBe("file.bodies.99.massKg");
+    expect(listed[100]).toEqual({ field: "file", message: "and 50 more problems not listed" });
     const big = await upload(studio, form(new Uint8Array(4 * 1024 * 1024 + 1).fill(0x20), "big.json"));
     expect(big.status).toBe(413);
     expect(errorOf(big.body).message).toMatch(/4,194,304 bytes \(4 MiB\)/);
