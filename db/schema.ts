@@ -468,3 +468,86 @@ export interface InvoiceLineRecord {
 
 export type StudioBilling = typeof studioBilling.$inferSelect;
 export type InvoiceRow = typeof invoices.$inferSelect;
+
+// ---------------------------------------------------------------------------
+// Catalogues of a game's objects (versioned per studio and name) and the checks run on them.
+
+/** One version of a catalogue: the file as uploaded (base64 of its bytes), its hash and its parsed objects. */
+export const catalogues = pgTable(
+  "catalogues",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    /** The catalogue's name; uploads under the same name are its versions 1, 2, … */
+    name: text("name").notNull(),
+    version: integer("version").notNull(),
+    /** SHA-256 (hex) of the file's bytes. */
+    contentHash: text("content_hash").notNull(),
+    fileName: text("file_name").notNull(),
+    mediaType: text("media_type").notNull(),
+    fileBase64: text("file_base64").notNull(),
+    fileBytes: integer("file_bytes").notNull(),
+    format: text("format", { enum: ["csv", "json"] }).notNull(),
+    objects: jsonb("objects").notNull(),
+    objectCount: integer("object_count").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("catalogues_studio_name_version_uq").on(t.studioId, t.name, t.version), index("catalogues_studio_created_idx").on(t.studioId, t.createdAt)],
+);
+
+/** A catalogue check: the settings it ran with and the sweep that ran it (quoted, queued and billed as any sweep). */
+export const catalogueChecks = pgTable(
+  "catalogue_checks",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    catalogueId: text("catalogue_id")
+      .notNull()
+      .references(() => catalogues.id, { onDelete: "cascade" }),
+    sweepId: text("sweep_id")
+      .notNull()
+      .references(() => sweeps.id, { onDelete: "cascade" }),
+    settings: jsonb("settings").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index("catalogue_checks_catalogue_idx").on(t.catalogueId, t.createdAt), uniqueIndex("catalogue_checks_sweep_uq").on(t.sweepId)],
+);
+
+/**
+ * A scene snapshot: discs and walls exported from a game, stored only when valid. Uploads under the
+ * same name are its versions 1, 2, …; the original bytes are kept (downloadable, with their hash).
+ */
+export const snapshots = pgTable(
+  "snapshots",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    version: integer("version").notNull(),
+    /** SHA-256 (hex) of the file's bytes. */
+    contentHash: text("content_hash").notNull(),
+    fileName: text("file_name").notNull(),
+    fileBase64: text("file_base64").notNull(),
+    fileBytes: integer("file_bytes").notNull(),
+    /** The parsed scene (lib/physics/types.ts SnapshotScene, speedScale 1). */
+    scene: jsonb("scene").notNull(),
+    bodyCount: integer("body_count").notNull(),
+    wallCount: integer("wall_count").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("snapshots_studio_name_version_uq").on(t.studioId, t.name, t.version), index("snapshots_studio_created_idx").on(t.studioId, t.createdAt)],
+);
+
+export type Snapshot = typeof snapshots.$inferSelect;
+
+export type Catalogue = typeof catalogues.$inferSelect;
+export type CatalogueCheck = typeof catalogueChecks.$inferSelect;

@@ -1,14 +1,18 @@
 import { and, eq } from "drizzle-orm";
 import type { Db } from "./client";
 import { newId } from "./ids";
-import { memberships, studios, users, type StudioRole } from "./schema";
+import { catalogues, memberships, snapshots, studios, users, type StudioRole } from "./schema";
+import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_CATALOGUE_NAME } from "@/lib/catalogues/demo";
+import { saveCatalogue } from "@/lib/catalogues/store";
+import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapshots/demo";
+import { saveSnapshot } from "@/lib/snapshots/store";
 import { hashPassword } from "@/lib/auth/password";
 import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
 
 /**
  * The demo: an invented studio, Gannet Yard Games, tuning the physics of its invented arcade game
- * "Crateslide" (hockey pucks knocking crates across an ice deck), with one person per role and a
- * platform admin. The passwords are public on purpose: this data exists only for demos.
+ * "Crateslide" (hockey pucks knocking crates across an ice deck), with one person per role, a
+ * platform admin and the catalogue of the game's objects. The passwords are public on purpose: this data exists only for demos.
  */
 export const DEMO_STUDIO_NAME = "Gannet Yard Games";
 
@@ -76,6 +80,39 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
   }
   // The demo studio's compute: one grant, keyed so a second seed run adds nothing.
   if (await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: DEMO_GRANT_MS, idempotencyKey: "seed:grant", memo: "Demo grant: 600 compute minutes" })) created = true;
+  // Crateslide's object catalogue (crates, coins, barrels …), ready for a catalogue check.
+  const [catalogue] = await db
+    .select({ id: catalogues.id })
+    .from(catalogues)
+    .where(and(eq(catalogues.studioId, studioId), eq(catalogues.name, CRATESLIDE_CATALOGUE_NAME)))
+    .limit(1);
+  if (!catalogue) {
+    const engineer = DEMO_ACCOUNTS.find((a) => a.role === "engineer")!;
+    await saveCatalogue(db, studioId, {
+      name: CRATESLIDE_CATALOGUE_NAME,
+      fileName: "crateslide-objects.csv",
+      mediaType: "text/csv",
+      bytes: new TextEncoder().encode(CRATESLIDE_CATALOGUE_CSV),
+      createdByUserId: userIds.get(engineer.email) ?? null,
+    });
+    created = true;
+  }
+  // A snapshot of Crateslide's loading bay, ready for a sweep over a custom scene.
+  const [snapshot] = await db
+    .select({ id: snapshots.id })
+    .from(snapshots)
+    .where(and(eq(snapshots.studioId, studioId), eq(snapshots.name, CRATESLIDE_SNAPSHOT_NAME)))
+    .limit(1);
+  if (!snapshot) {
+    const engineer = DEMO_ACCOUNTS.find((a) => a.role === "engineer")!;
+    await saveSnapshot(db, studioId, {
+      name: CRATESLIDE_SNAPSHOT_NAME,
+      fileName: "crateslide-loading-bay.json",
+      bytes: new TextEncoder().encode(CRATESLIDE_SNAPSHOT_JSON),
+      createdByUserId: userIds.get(engineer.email) ?? null,
+    });
+    created = true;
+  }
   return { studioId, created };
 }
 

@@ -16,6 +16,8 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
   const tabs = [
     { href: base, label: "Overview" },
     { href: `${base}/sweeps`, label: "Sweeps" },
+    { href: `${base}/catalogues`, label: "Catalogues" },
+    { href: `${base}/snapshots`, label: "Snapshots" },
   ];
   if (role === "owner") {
     tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
@@ -45,8 +47,9 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
       {tabs.length > 1 ? (
         <nav aria-label="Studio" className="mb-6 flex gap-1">
           {tabs.map((tab) => {
-            // The Sweeps tab stays marked on the builder, a sweep and its cells; Invoices on one invoice.
-            const active = pathname === tab.href || ((tab.label === "Sweeps" || tab.label === "Invoices") && pathname.startsWith(`${tab.href}/`));
+            // The Sweeps tab stays marked on the builder, a sweep and its cells; Invoices on one invoice;
+            // Catalogues on a catalogue and its checks.
+            const active = pathname === tab.href || ((tab.label === "Sweeps" || tab.label === "Invoices" || tab.label === "Catalogues") && pathname.startsWith(`${tab.href}/`));
             return (
               <Link
                 key={tab.href}

@@ -30,6 +30,22 @@ const SCENE_DEFAULTS: Record<SceneKind, SweepSpecInput["scenario"]["scene"]> = {
   wall: { kind: "wall", massKg: 0.05, radiusM: 0.02, speedMPerS: 4, angleDeg: 0, gapM: 0.02 },
   row: { kind: "row", count: 5, massKg: 0.17, radiusM: 0.028, strikerMassKg: 0.17, strikerSpeedMPerS: 2, spacingM: 0.001, gapM: 0.02 },
   box: { kind: "box", count: 40, massKg: 0.01, radiusM: 0.01, widthM: 0.5, heightM: 0.5, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
+  // Three crates and a barrel rolling at a loading-bay wall (x = 0); upload a snapshot for a real floor.
+  snapshot: {
+    kind: "snapshot",
+    bodies: [
+      { xM: 0.5, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.1, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.7, yM: 0.3, vxMPerS: -2, vyMPerS: 0, massKg: 12, radiusM: 0.25 },
+      { xM: 1.1, yM: 1.0, vxMPerS: -3, vyMPerS: -0.5, massKg: 40, radiusM: 0.3 },
+    ],
+    walls: [
+      { normalX: 1, normalY: 0, offsetM: 0 },
+      { normalX: 0, normalY: 1, offsetM: 0 },
+    ],
+    gravityMPerS2: 0,
+    speedScale: 1,
+  },
 };
 
 const SCENE_LABELS: Record<SceneKind, string> = {
@@ -37,6 +53,7 @@ const SCENE_LABELS: Record<SceneKind, string> = {
   wall: "Wall — one disc hits a wall",
   row: "Row — a striker hits a row of resting discs",
   box: "Box — many discs in a walled box",
+  snapshot: "Snapshot — discs and walls exported from a game",
 };
 
 const INTEGRATOR_LABELS: Record<string, string> = {
@@ -105,13 +122,46 @@ function FieldError({ id, message }: { id: string; message?: string }) {
   );
 }
 
-export function SweepBuilder({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+/**
+ * The spec as sent to the quote and submit routes. A scene still holding the discs and walls of the
+ * stored snapshot it was opened from is sent by reference (the routes write them back in), so a
+ * large snapshot stays within the JSON body limit.
+ */
+function specForRequest(json: string, snapshot: { id: string; geometry: string } | undefined): unknown {
+  const spec = JSON.parse(json) as SweepSpecInput;
+  const scene = spec.scenario?.scene;
+  if (!snapshot || scene?.kind !== "snapshot" || JSON.stringify([scene.bodies, scene.walls ?? []]) !== snapshot.geometry) return spec;
+  const { bodies: _bodies, walls: _walls, ...rest } = scene;
+  void _bodies;
+  void _walls;
+  return { ...spec, scenario: { ...spec.scenario, scene: { ...rest, snapshotId: snapshot.id } } };
+}
+
+export function SweepBuilder({
+  studioId,
+  studioName,
+  role,
+  initialSpec,
+  snapshotId,
+}: {
+  studioId: string;
+  studioName: string;
+  role: StudioRole;
+  /** A spec to start from instead of the first template (e.g. a stored snapshot's). */
+  initialSpec?: SweepSpecInput;
+  /** The stored snapshot `initialSpec` was made from: sent by reference while its discs are unchanged. */
+  snapshotId?: string;
+}) {
   const router = useRouter();
-  const [templateId, setTemplateId] = useState(SWEEP_TEMPLATES[0].id);
+  const snapshotRef = useMemo(() => {
+    const scene = initialSpec?.scenario.scene;
+    return snapshotId && scene?.kind === "snapshot" ? { id: snapshotId, geometry: JSON.stringify([scene.bodies, scene.walls ?? []]) } : undefined;
+  }, [initialSpec, snapshotId]);
+  const [templateId, setTemplateId] = useState(initialSpec ? "" : SWEEP_TEMPLATES[0].id);
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
     resolver: zodResolver(sweepSpecSchema) as never,
-    defaultValues: withTolerances(SWEEP_TEMPLATES[0].spec),
+    defaultValues: withTolerances(initialSpec ?? SWEEP_TEMPLATES[0].spec),
     mode: "onChange",
   });
   const { register, setValue, reset, formState, handleSubmit, control } = form;
@@ -125,7 +175,7 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
 
   const quote = useQuery({
     queryKey: ["studio", studioId, "quote", debouncedJson],
-    queryFn: async () => (await apiFetch<{ quote: Quote }>(`${studioApiPath(studioId)}/quotes`, { method: "POST", body: { spec: JSON.parse(debouncedJson) } })).quote,
+    queryFn: async () => (await apiFetch<{ quote: Quote }>(`${studioApiPath(studioId)}/quotes`, { method: "POST", body: { spec: specForRequest(debouncedJson, snapshotRef) } })).quote,
     enabled: local.ok,
     retry: false,
     staleTime: 30_000,
@@ -139,7 +189,7 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
       (
         await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
           method: "POST",
-          body: { spec: JSON.parse(debouncedJson), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
+          body: { spec: specForRequest(debouncedJson, snapshotRef), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
         })
       ).sweep,
     onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),
@@ -252,6 +302,11 @@ export function SweepBuilder({ studioId, studioName, role }: { studioId: string;
                   ))}
                 </select>
               </div>
+              {scenario.scene.kind === "snapshot" ? (
+                <p className="text-sm text-ink-muted md:col-span-2" data-testid="snapshot-scene-summary">
+                  {scenario.scene.bodies?.length ?? 0} discs and {scenario.scene.walls?.length ?? 0} walls as exported; upload another snapshot on the Snapshots tab to change them.
+                </p>
+              ) : null}
               {sceneParameters.map((parameter: NumericParameter) =>
                 numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any" }),
               )}

@@ -103,6 +103,11 @@ function contactMass(spec: SweepSpecInput): number | null {
       return effectiveMassKg(scene.strikerMassKg, scene.massKg);
     case "box":
       return effectiveMassKg(scene.massKg, scene.massKg);
+    case "snapshot": {
+      // The lightest pair of the snapshot sets the stiffest demand on dt.
+      const lightest = Math.min(...scene.bodies.map((body) => body.massKg));
+      return effectiveMassKg(lightest, lightest);
+    }
   }
 }
 

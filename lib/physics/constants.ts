@@ -16,3 +16,10 @@ export const MAX_BODIES_FOR_FREE_FLIGHT_JUMPS = 64;
 
 /** Largest box scene the engine accepts. */
 export const MAX_BOX_DISCS = 10_000;
+
+/**
+ * Largest initial overlap a snapshot scene accepts between two discs or a disc and a wall, as a
+ * fraction of the smaller radius: exports of resting stacks carry overlaps of solver slop; more
+ * than this starts with a stored spring force the game did not have (common practice).
+ */
+export const SNAPSHOT_OVERLAP_TOLERANCE = 0.01;

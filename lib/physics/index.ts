@@ -4,8 +4,8 @@
  */
 export * from "./types";
 export { simulate, totalSubsteps, judge } from "./simulate";
-export { DEFAULT_TOLERANCES, MAX_BOX_DISCS } from "./constants";
-export { boxSceneProblem, boxLayout } from "./scenes";
+export { DEFAULT_TOLERANCES, MAX_BOX_DISCS, SNAPSHOT_OVERLAP_TOLERANCE } from "./constants";
+export { boxSceneProblem, boxLayout, snapshotOverlaps, describeSnapshotOverlap } from "./scenes";
 export * from "./analytic";
 export {
   linearDampingRatioForRestitution,

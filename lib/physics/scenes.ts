@@ -1,13 +1,13 @@
 /**
- * Initial states of the four scenes. Coordinates are chosen so the first contact happens near the
+ * Initial states of the five scenes. Coordinates are chosen so the first contact happens near the
  * origin (keeps rounding small), and initial layouts never overlap: where rounding could create a
  * overlap of one ulp between touching bodies, the layout is nudged apart.
  */
-import type { BoxScene, PairScene, RowScene, Scene, WallScene } from "./types";
+import type { BoxScene, PairScene, RowScene, Scene, SnapshotScene, WallScene } from "./types";
 import { reusableBodies, setBody, type Bodies } from "./bodies";
 import type { Wall } from "./contact-field";
 import { Xoshiro128StarStar } from "./random";
-import { MAX_BOX_DISCS } from "./constants";
+import { MAX_BOX_DISCS, SNAPSHOT_OVERLAP_TOLERANCE } from "./constants";
 
 export interface SceneSetup {
   bodies: Bodies;
@@ -25,6 +25,8 @@ export function buildScene(scene: Scene, seed: number): SceneSetup {
       return buildRow(scene);
     case "box":
       return buildBox(scene, seed);
+    case "snapshot":
+      return buildSnapshot(scene);
   }
 }
 
@@ -151,4 +153,75 @@ function buildBox(scene: BoxScene, seed: number): SceneSetup {
     { normalX: 0, normalY: -1, offsetM: -scene.heightM },
   ];
   return { bodies, walls, gravityMPerS2: scene.gravityMPerS2 };
+}
+
+/** A snapshot wall with a unit normal (offset divided by the normal's length). */
+export function normalisedWall(wall: { normalX: number; normalY: number; offsetM: number }): Wall {
+  const length = Math.hypot(wall.normalX, wall.normalY);
+  return { normalX: wall.normalX / length, normalY: wall.normalY / length, offsetM: wall.offsetM / length };
+}
+
+/** An initial overlap of a snapshot beyond SNAPSHOT_OVERLAP_TOLERANCE. `wall` set: body `a` against that wall. */
+export interface SnapshotOverlap {
+  a: number;
+  b?: number;
+  wall?: number;
+  /** Overlap depth over the smaller radius of the pair (the disc's radius against a wall). */
+  fraction: number;
+}
+
+/**
+ * Initial overlaps deeper than SNAPSHOT_OVERLAP_TOLERANCE, disc pairs in ascending (a, b) order,
+ * then discs against walls; at most `limit`. Pairs are found by sweeping discs sorted by their
+ * left edge, so a large snapshot costs about N log N plus the touching pairs.
+ */
+export function snapshotOverlaps(scene: Pick<SnapshotScene, "bodies" | "walls">, limit = 20): SnapshotOverlap[] {
+  const { bodies } = scene;
+  const count = bodies.length;
+  const order = Array.from({ length: count }, (_, i) => i).sort((i, j) => bodies[i].xM - bodies[i].radiusM - (bodies[j].xM - bodies[j].radiusM) || i - j);
+  const pairs: SnapshotOverlap[] = [];
+  for (let p = 0; p < count; p++) {
+    const i = order[p];
+    const bi = bodies[i];
+    const right = bi.xM + bi.radiusM;
+    for (let q = p + 1; q < count; q++) {
+      const j = order[q];
+      const bj = bodies[j];
+      if (bj.xM - bj.radiusM > right) break;
+      const depth = bi.radiusM + bj.radiusM - Math.hypot(bj.xM - bi.xM, bj.yM - bi.yM);
+      const fraction = depth / Math.min(bi.radiusM, bj.radiusM);
+      if (fraction > SNAPSHOT_OVERLAP_TOLERANCE) pairs.push({ a: Math.min(i, j), b: Math.max(i, j), fraction });
+    }
+  }
+  pairs.sort((u, v) => u.a - v.a || (u.b as number) - (v.b as number));
+  const found = pairs.slice(0, limit);
+  for (let w = 0; w < scene.walls.length && found.length < limit; w++) {
+    const wall = normalisedWall(scene.walls[w]);
+    for (let i = 0; i < count && found.length < limit; i++) {
+      const body = bodies[i];
+      const depth = body.radiusM - (wall.normalX * body.xM + wall.normalY * body.yM - wall.offsetM);
+      const fraction = depth / body.radiusM;
+      if (fraction > SNAPSHOT_OVERLAP_TOLERANCE) found.push({ a: i, wall: w, fraction });
+    }
+  }
+  return found;
+}
+
+/** A sentence naming one initial overlap by body (and wall) index. */
+export function describeSnapshotOverlap(overlap: SnapshotOverlap): string {
+  const percent = `${Number((overlap.fraction * 100).toPrecision(3))}%`;
+  const limit = `${SNAPSHOT_OVERLAP_TOLERANCE * 100}%`;
+  return overlap.wall !== undefined
+    ? `body ${overlap.a} starts ${percent} of its radius inside wall ${overlap.wall} (tolerance ${limit})`
+    : `bodies ${overlap.a} and ${overlap.b} start overlapping by ${percent} of the smaller radius (tolerance ${limit})`;
+}
+
+/** The discs as exported, every velocity times speedScale; the walls with unit normals. */
+function buildSnapshot(scene: SnapshotScene): SceneSetup {
+  const overlaps = snapshotOverlaps(scene, 1);
+  if (overlaps.length > 0) throw new RangeError(`snapshot scene: ${describeSnapshotOverlap(overlaps[0])}`);
+  const bodies = reusableBodies(scene.bodies.length);
+  const scale = scene.speedScale;
+  scene.bodies.forEach((body, i) => setBody(bodies, i, body.xM, body.yM, body.vxMPerS * scale, body.vyMPerS * scale, body.massKg, body.radiusM));
+  return { bodies, walls: scene.walls.map(normalisedWall), gravityMPerS2: scene.gravityMPerS2 };
 }

@@ -71,7 +71,39 @@ export interface BoxScene {
   gravityMPerS2: number;
 }
 
-export type Scene = PairScene | WallScene | RowScene | BoxScene;
+/** One disc of a snapshot scene, as exported from a game. */
+export interface SnapshotBody {
+  xM: number;
+  yM: number;
+  vxMPerS: number;
+  vyMPerS: number;
+  massKg: number;
+  radiusM: number;
+}
+
+/**
+ * A static wall: the half-plane normal · p ≥ offsetM is free space, the line normal · p = offsetM
+ * its surface (the box scene's four walls are of this form). The normal need not have unit length:
+ * the engine normalises it (offsetM is then divided by its length).
+ */
+export interface SnapshotWall {
+  normalX: number;
+  normalY: number;
+  offsetM: number;
+}
+
+/** Discs and static walls exactly as a game exported them (a custom scene). */
+export interface SnapshotScene {
+  kind: "snapshot";
+  bodies: SnapshotBody[];
+  walls: SnapshotWall[];
+  /** Gravity along -y (0 for none). */
+  gravityMPerS2: number;
+  /** Multiplies every initial velocity (1 runs the snapshot as exported). */
+  speedScale: number;
+}
+
+export type Scene = PairScene | WallScene | RowScene | BoxScene | SnapshotScene;
 export type SceneKind = Scene["kind"];
 
 export type Damping =
@@ -109,7 +141,7 @@ export interface Scenario {
   substeps: number;
   durationS: number;
   tolerances: Tolerances;
-  /** Seed of the one random generator (box scene positions and velocities). */
+  /** Seed of the one random generator (box scene positions and velocities; unused by the other scenes). */
   seed: number;
 }
 

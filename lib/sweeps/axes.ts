@@ -52,6 +52,13 @@ export function copyScenario(scenario: Scenario): Scenario {
 
 type FieldSetter = (scenario: Scenario, value: number | string) => void;
 
+/** The pseudo parameter of a list axis over object pairs (catalogue checks): each value names one entry of the axis's `pairs`. */
+export const PAIR_AXIS_PATH = "scene.pair";
+/** The pseudo parameter that scales both speeds of a pair cell: a fraction of the pair's closing speed. */
+export const CLOSING_SPEED_FRACTION_PATH = "scene.closingSpeedFraction";
+/** Axes applied after every other axis, in this order (each reads fields the others set). */
+const APPLIED_LAST = ["scene.massRatio", CLOSING_SPEED_FRACTION_PATH];
+
 /**
  * A setter that writes one axis value into a scenario copy in place
  * (scene.massRatio sets massBKg from the copy's massAKg, so apply it last).
@@ -69,6 +76,12 @@ export function fieldSetter(path: string): FieldSetter {
       return (scenario, value) => {
         if (scenario.scene.kind === "pair") scenario.scene.massBKg = scenario.scene.massAKg * (value as number);
       };
+    case CLOSING_SPEED_FRACTION_PATH:
+      return (scenario, value) => {
+        if (scenario.scene.kind !== "pair") return;
+        scenario.scene.speedAMPerS *= value as number;
+        scenario.scene.speedBMPerS *= value as number;
+      };
   }
   const keys = path.split(".");
   const last = keys[keys.length - 1];
@@ -80,16 +93,47 @@ export function fieldSetter(path: string): FieldSetter {
   };
 }
 
-/** Axes in the order their values must be applied: scene.massRatio last, so it sees the cell's own massAKg. */
+/**
+ * A setter for one axis. A pair axis writes both bodies of the named pair (masses, radii, top
+ * speeds and, when the pair carries them, the contact stiffness and target restitution); every
+ * other axis writes its field.
+ */
+export function axisSetter(axis: AxisSpec): FieldSetter {
+  if (axis.parameter !== PAIR_AXIS_PATH) return fieldSetter(axis.parameter);
+  const byName = new Map((axis.pairs ?? []).map((pair) => [pair.name, pair]));
+  return (scenario, value) => {
+    const pair = byName.get(value as string);
+    if (!pair || scenario.scene.kind !== "pair") return;
+    const scene = scenario.scene;
+    scene.massAKg = pair.massAKg;
+    scene.radiusAM = pair.radiusAM;
+    scene.speedAMPerS = pair.speedAMPerS;
+    scene.massBKg = pair.massBKg;
+    scene.radiusBM = pair.radiusBM;
+    scene.speedBMPerS = pair.speedBMPerS;
+    if (pair.stiffness !== undefined) scenario.contact.stiffness = pair.stiffness;
+    if (pair.restitution !== undefined && scenario.contact.damping.kind === "restitution") scenario.contact.damping.value = pair.restitution;
+  };
+}
+
+/**
+ * Axes in the order their values must be applied: a pair axis first (it sets both bodies), then
+ * the others, then scene.massRatio (so it sees the cell's own massAKg) and
+ * scene.closingSpeedFraction (so it scales the cell's own speeds).
+ */
 export function applicationOrder(axes: readonly AxisSpec[]): number[] {
-  const order = axes.map((_, i) => i);
-  return [...order.filter((i) => axes[i].parameter !== "scene.massRatio"), ...order.filter((i) => axes[i].parameter === "scene.massRatio")];
+  // Rank 0: the pair axis; 1: ordinary axes; 2, 3, …: APPLIED_LAST in its order. Ties keep the spec order.
+  const rank = (path: string) => (path === PAIR_AXIS_PATH ? 0 : APPLIED_LAST.includes(path) ? 2 + APPLIED_LAST.indexOf(path) : 1);
+  return axes
+    .map((axis, i) => ({ i, rank: rank(axis.parameter) }))
+    .sort((a, b) => a.rank - b.rank || a.i - b.i)
+    .map((entry) => entry.i);
 }
 
 /** A copy of the base scenario with one value per axis applied. */
 export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
   const scenario = copyScenario(base);
-  for (const i of applicationOrder(axes)) fieldSetter(axes[i].parameter)(scenario, values[i]);
+  for (const i of applicationOrder(axes)) axisSetter(axes[i])(scenario, values[i]);
   return scenario;
 }
 
@@ -109,5 +153,7 @@ export function bodyCount(scenario: Scenario): number {
       return scenario.scene.count + 1;
     case "box":
       return scenario.scene.count;
+    case "snapshot":
+      return scenario.scene.bodies.length;
   }
 }

@@ -11,7 +11,7 @@
  *
  * Pure: safe to import anywhere.
  */
-import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, WallScene } from "../physics/types";
+import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, SnapshotBody, SnapshotScene, SnapshotWall, WallScene } from "../physics/types";
 import { fmix32 } from "./canonical";
 
 type Fields<T> = readonly Exclude<keyof T, "kind">[];
@@ -21,19 +21,39 @@ const SCENE_FIELDS = {
   wall: ["massKg", "radiusM", "speedMPerS", "angleDeg", "gapM"] as Fields<WallScene>,
   row: ["count", "massKg", "radiusM", "strikerMassKg", "strikerSpeedMPerS", "spacingM", "gapM"] as Fields<RowScene>,
   box: ["count", "massKg", "radiusM", "widthM", "heightM", "maxSpeedMPerS", "gravityMPerS2"] as Fields<BoxScene>,
+  // The snapshot's scalar fields; its bodies and walls are written after them, each in this order.
+  snapshot: ["gravityMPerS2", "speedScale"] as readonly Exclude<keyof SnapshotScene, "kind" | "bodies" | "walls">[],
 } satisfies Record<SceneKind, readonly string[]>;
+const SNAPSHOT_BODY_FIELDS = ["xM", "yM", "vxMPerS", "vyMPerS", "massKg", "radiusM"] as const satisfies readonly (keyof SnapshotBody)[];
+const SNAPSHOT_WALL_FIELDS = ["normalX", "normalY", "offsetM"] as const satisfies readonly (keyof SnapshotWall)[];
 type Exhaustive<T, F extends readonly unknown[]> = [Exclude<Exclude<keyof T, "kind">, F[number]>] extends [never] ? true : false;
-const allSceneFields: [Exhaustive<PairScene, typeof SCENE_FIELDS.pair>, Exhaustive<WallScene, typeof SCENE_FIELDS.wall>, Exhaustive<RowScene, typeof SCENE_FIELDS.row>, Exhaustive<BoxScene, typeof SCENE_FIELDS.box>] = [true, true, true, true];
+const allSceneFields: [
+  Exhaustive<PairScene, typeof SCENE_FIELDS.pair>,
+  Exhaustive<WallScene, typeof SCENE_FIELDS.wall>,
+  Exhaustive<RowScene, typeof SCENE_FIELDS.row>,
+  Exhaustive<BoxScene, typeof SCENE_FIELDS.box>,
+  Exhaustive<Omit<SnapshotScene, "bodies" | "walls">, typeof SCENE_FIELDS.snapshot>,
+  Exhaustive<SnapshotBody & { kind: never }, typeof SNAPSHOT_BODY_FIELDS>,
+  Exhaustive<SnapshotWall & { kind: never }, typeof SNAPSHOT_WALL_FIELDS>,
+] = [true, true, true, true, true, true, true];
 void allSceneFields;
 // Scenario and contact fields written below; a new one fails this check until it is keyed.
 type KeyedScenarioFields = "scene" | "contact" | "integrator" | "dtS" | "substeps" | "durationS" | "tolerances" | "seed";
 const allScenarioFields: [Exclude<keyof Scenario, KeyedScenarioFields>] extends [never] ? true : false = true;
 void allScenarioFields;
 
-const words = new Uint32Array(256);
+/** Grows for snapshot scenes (every body and wall is keyed); other scenes fit in the first 256 words. */
+let words = new Uint32Array(256);
 const float64 = new Float64Array(1);
 const float64Words = new Uint32Array(float64.buffer);
 let used = 0;
+
+function reserve(more: number): void {
+  if (used + more <= words.length) return;
+  const grown = new Uint32Array(Math.max(words.length * 2, used + more));
+  grown.set(words.subarray(0, used));
+  words = grown;
+}
 
 function putNumber(value: number): void {
   float64[0] = value === 0 ? 0 : value;
@@ -62,6 +82,14 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   const scene = scenario.scene as unknown as Record<string, number> & { kind: SceneKind };
   putString(scene.kind);
   for (const field of SCENE_FIELDS[scene.kind] as readonly string[]) putNumber(scene[field]);
+  if (scene.kind === "snapshot") {
+    const snapshot = scenario.scene as SnapshotScene;
+    reserve(2 + 2 * (snapshot.bodies.length * SNAPSHOT_BODY_FIELDS.length + snapshot.walls.length * SNAPSHOT_WALL_FIELDS.length) + 64);
+    words[used++] = snapshot.bodies.length;
+    for (const body of snapshot.bodies) for (const field of SNAPSHOT_BODY_FIELDS) putNumber(body[field]);
+    words[used++] = snapshot.walls.length;
+    for (const wall of snapshot.walls) for (const field of SNAPSHOT_WALL_FIELDS) putNumber(wall[field]);
+  }
   const contact = scenario.contact;
   putString(contact.model);
   putOptional(contact.stiffness);

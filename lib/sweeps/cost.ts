@@ -138,6 +138,8 @@ export function predictCellNs(scenario: Scenario, constants: CostConstants = CAL
     case "row":
       return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.rowStepNs + bodyCount(scenario) * constants.rowBodyStepNs);
     case "box":
+    // A snapshot takes the box's force pass, integrator and walls per body and step: priced alike.
+    case "snapshot":
       return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.boxStepNs + bodyCount(scenario) * constants.boxBodyStepNs);
   }
 }

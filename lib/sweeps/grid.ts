@@ -18,7 +18,7 @@
 import type { Scenario, SceneKind } from "../physics/types";
 import { hashFlatRecord } from "./canonical";
 import { findParameter } from "./parameters";
-import { applicationOrder, axisValues, copyScenario, fieldSetter, isIntegerParameter } from "./axes";
+import { PAIR_AXIS_PATH, applicationOrder, axisSetter, axisValues, copyScenario, isIntegerParameter } from "./axes";
 import type { AxisSpec, SweepSpec } from "./spec";
 
 export interface ExpandedAxis {
@@ -42,6 +42,7 @@ export interface SweepCell {
 export function expandAxes(spec: SweepSpec): ExpandedAxis[] {
   const sceneKind: SceneKind = spec.scenario.scene.kind;
   return spec.axes.map((axis: AxisSpec) => {
+    if (axis.parameter === PAIR_AXIS_PATH) return { parameter: axis.parameter, label: "object pair", unit: "", values: axisValues(axis) };
     const parameter = findParameter(axis.parameter, sceneKind);
     return {
       parameter: axis.parameter,
@@ -83,7 +84,10 @@ export function cellIndex(axes: readonly ExpandedAxis[], positions: readonly num
 
 /** The seed of a cell: a function of the spec seed and the cell's scene only. */
 export function deriveCellSeed(specSeed: number, scenario: Scenario): number {
-  return hashFlatRecord(scenario.scene as unknown as Record<string, number | string>, specSeed);
+  const scene = scenario.scene;
+  // A snapshot draws nothing at random; its scalar fields key the seed (the bodies are the same in every cell).
+  if (scene.kind === "snapshot") return hashFlatRecord({ kind: scene.kind, gravityMPerS2: scene.gravityMPerS2, speedScale: scene.speedScale }, specSeed);
+  return hashFlatRecord(scene as unknown as Record<string, number | string>, specSeed);
 }
 
 /** What expanding many cells of one spec can share: setters, application order and the seeds of scenes already seen. */
@@ -103,7 +107,7 @@ function expansionFor(spec: SweepSpec, axes: readonly ExpandedAxis[]): Expansion
   if (known && known.spec === spec) return known;
   const expansion: Expansion = {
     spec,
-    setters: spec.axes.map((axis: AxisSpec) => fieldSetter(axis.parameter)),
+    setters: spec.axes.map((axis: AxisSpec) => axisSetter(axis)),
     order: applicationOrder(spec.axes),
     sceneAxes: spec.axes.flatMap((axis: AxisSpec, i: number) => (axis.parameter.startsWith("scene.") ? [i] : [])),
     seedByScene: new Map(),

@@ -12,9 +12,23 @@ export function sha256Hex(text: string): string {
   return createHash("sha256").update(text, "utf8").digest("hex");
 }
 
-/** Identity of one cell's simulation: equal scenarios (after canonical ordering) give equal hashes. */
+/** Digests of snapshot discs by array identity: every cell of a sweep shares its spec's array. */
+const snapshotBodiesDigests = new WeakMap<object, string>();
+
+/**
+ * Identity of one cell's simulation: equal scenarios (after canonical ordering) give equal hashes.
+ * A snapshot scene's discs enter as the SHA-256 of their canonical JSON, computed once per array,
+ * so hashing each cell of a many-disc snapshot does not re-serialise thousands of discs.
+ */
 export function scenarioHash(scenario: Scenario): string {
-  return sha256Hex(canonicalJson(scenario));
+  const scene = scenario.scene;
+  if (scene.kind !== "snapshot") return sha256Hex(canonicalJson(scenario));
+  let digest = snapshotBodiesDigests.get(scene.bodies);
+  if (digest === undefined) {
+    digest = sha256Hex(canonicalJson(scene.bodies));
+    snapshotBodiesDigests.set(scene.bodies, digest);
+  }
+  return sha256Hex(canonicalJson({ ...scenario, scene: { ...scene, bodies: `sha256:${digest}` } }));
 }
 
 /** Identity of a parsed sweep spec (defaults filled in, so equivalent inputs agree). */

@@ -9,7 +9,7 @@
 import type { ContactModelName, IntegratorName, Scenario, SceneKind } from "../physics/types";
 
 /** Every scene kind, in the order the contract lists them. */
-export const SCENE_KINDS: readonly SceneKind[] = ["pair", "wall", "row", "box"];
+export const SCENE_KINDS: readonly SceneKind[] = ["pair", "wall", "row", "box", "snapshot"];
 
 /**
  * Limits every spec must stay within. The limits on cells, steps and body-steps
@@ -25,12 +25,16 @@ export const SPEC_LIMITS = {
   maxStepsPerCell: 2_000_000,
   /** Discs in one scene (the row scene counts its striker). */
   maxBodies: 10_000,
-  /** Bodies × steps of one cell for the many-body scenes (row, box): bounds the compute of one cell. */
+  /** Static walls of one snapshot scene. */
+  maxWalls: 64,
+  /** Bodies × steps of one cell for the many-body scenes (row, box, snapshot): bounds the compute of one cell. */
   maxBodyStepsPerCell: 500_000_000,
   /** Substeps per frame step. */
   maxSubsteps: 1_000,
   /** Choices listed on one axis. */
   maxListValues: 64,
+  /** Object pairs on one scene.pair axis: every unordered pair of 64 objects, 64 · 65 / 2. */
+  maxPairs: 2_080,
   /** Characters of the optional sweep name. */
   maxNameLength: 120,
 } as const;
@@ -190,6 +194,15 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     "linear",
     "Impact parameter / sum of radii: 0 head-on, towards 1 glancing.",
   ),
+  numeric(
+    "scene.closingSpeedFraction",
+    "fraction of closing speed",
+    "",
+    ["pair"],
+    { ...positive, max: 100 },
+    "linear",
+    "Multiplies both speeds of each cell (after scene.pair and the speed axes): 1 is the pair's closing speed.",
+  ),
   numeric("scene.gapM", "initial gap", "m", ["pair", "wall", "row"], { ...nonNegative, max: MAX_LENGTH_M }, "linear", "Surface gap before the first contact."),
   // wall, row, box
   numeric("scene.massKg", "disc mass", "kg", ["wall", "row", "box"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of each disc."),
@@ -248,12 +261,38 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     "scene.gravityMPerS2",
     "gravity",
     "m/s²",
-    ["box"],
+    ["box", "snapshot"],
     { ...nonNegative, max: MAX_GRAVITY_M_PER_S2 },
     "linear",
     "Gravity along −y; 0 for none.",
   ),
+  // snapshot
+  numeric(
+    "scene.speedScale",
+    "speed scale",
+    "",
+    ["snapshot"],
+    { ...nonNegative, max: 100 },
+    "linear",
+    "Multiplies every initial velocity of the snapshot: 1 runs it as exported.",
+  ),
 ];
+
+/**
+ * Per-body and per-wall fields of a snapshot scene: checked like the parameters above, but not
+ * sweepable (an axis varies the whole scene through scene.speedScale and scene.gravityMPerS2).
+ */
+export const SNAPSHOT_FIELD_RULES: Readonly<Record<"xM" | "yM" | "vxMPerS" | "vyMPerS" | "massKg" | "radiusM" | "normalX" | "normalY" | "offsetM", NumericParameter>> = {
+  xM: numeric("xM", "x position", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "Centre of the disc."),
+  yM: numeric("yM", "y position", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "Centre of the disc (y up)."),
+  vxMPerS: numeric("vxMPerS", "x velocity", "m/s", ["snapshot"], { min: -MAX_SPEED_M_PER_S, minInclusive: true, max: MAX_SPEED_M_PER_S }, "linear", "Velocity of the disc."),
+  vyMPerS: numeric("vyMPerS", "y velocity", "m/s", ["snapshot"], { min: -MAX_SPEED_M_PER_S, minInclusive: true, max: MAX_SPEED_M_PER_S }, "linear", "Velocity of the disc."),
+  massKg: numeric("massKg", "mass", "kg", ["snapshot"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of the disc."),
+  radiusM: numeric("radiusM", "radius", "m", ["snapshot"], { ...positive, max: MAX_LENGTH_M }, "log", "Radius of the disc."),
+  normalX: numeric("normalX", "wall normal x", "", ["snapshot"], { min: -1, minInclusive: true, max: 1 }, "linear", "Points into the free side."),
+  normalY: numeric("normalY", "wall normal y", "", ["snapshot"], { min: -1, minInclusive: true, max: 1 }, "linear", "Points into the free side."),
+  offsetM: numeric("offsetM", "wall offset", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "normal · p = offset on the wall."),
+};
 
 export const CHOICE_PARAMETERS: readonly ChoiceParameter[] = [
   {

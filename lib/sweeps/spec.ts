@@ -10,7 +10,7 @@
  */
 import { z } from "zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
-import { boxSceneProblem } from "../physics/scenes";
+import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import type { Scenario, SceneKind, Tolerances } from "../physics/types";
 import {
   CHOICE_PARAMETERS,
@@ -20,6 +20,7 @@ import {
   numericRule,
   rangeViolation,
   readNumericField,
+  SNAPSHOT_FIELD_RULES,
   scenesOfPath,
   SWEEPABLE_PATHS,
   type NumericParameter,
@@ -27,7 +28,8 @@ import {
 
 export { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parametersForScene } from "./parameters";
 export { applicationOrder, applyAxisValues, axisValues, bodyCount, copyScenario, fieldSetter, isIntegerParameter, stepsPerCell } from "./axes";
-import { applyAxisValues, axisValues, bodyCount, isIntegerParameter } from "./axes";
+import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParameter } from "./axes";
+export { CLOSING_SPEED_FRACTION_PATH, PAIR_AXIS_PATH, axisSetter } from "./axes";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
 export const SPEC_DEFAULT_TOLERANCES: Readonly<Tolerances> = DEFAULT_TOLERANCES;
@@ -123,9 +125,66 @@ export const boxSceneSchema = z.strictObject({
   gravityMPerS2: sceneNumber("box", "gravityMPerS2"),
 });
 
-export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema], {
+const snapshotBodySchema = z.strictObject(
+  {
+    xM: ruledNumber(SNAPSHOT_FIELD_RULES.xM),
+    yM: ruledNumber(SNAPSHOT_FIELD_RULES.yM),
+    vxMPerS: ruledNumber(SNAPSHOT_FIELD_RULES.vxMPerS),
+    vyMPerS: ruledNumber(SNAPSHOT_FIELD_RULES.vyMPerS),
+    massKg: ruledNumber(SNAPSHOT_FIELD_RULES.massKg),
+    radiusM: ruledNumber(SNAPSHOT_FIELD_RULES.radiusM),
+  },
+  { error: (issue) => (issue.code === "invalid_type" ? `each body must be an object with xM, yM, vxMPerS, vyMPerS, massKg, radiusM; got ${describeReceived(issue.input)}` : undefined) },
+);
+
+const snapshotWallSchema = z
+  .strictObject(
+    {
+      normalX: ruledNumber(SNAPSHOT_FIELD_RULES.normalX),
+      normalY: ruledNumber(SNAPSHOT_FIELD_RULES.normalY),
+      offsetM: ruledNumber(SNAPSHOT_FIELD_RULES.offsetM),
+    },
+    { error: (issue) => (issue.code === "invalid_type" ? `each wall must be an object with normalX, normalY, offsetM; got ${describeReceived(issue.input)}` : undefined) },
+  )
+  .superRefine((wall, ctx) => {
+    if (Math.hypot(wall.normalX, wall.normalY) < 1e-6) ctx.addIssue({ code: "custom", path: ["normalX"], message: "the wall normal (normalX, normalY) must not be zero" });
+  });
+
+/** The bodies of a snapshot: 1 to SPEC_LIMITS.maxBodies discs, the count named when over. */
+export const snapshotBodiesSchema = z
+  .array(snapshotBodySchema, { error: (issue) => `bodies must be an array of discs; got ${describeReceived(issue.input)}` })
+  .min(1, { error: "bodies must list at least one disc" })
+  .max(SPEC_LIMITS.maxBodies, {
+    error: (issue) => `${Array.isArray(issue.input) ? `${formatLimit(issue.input.length)} bodies exceed` : "bodies exceed"} the limit of ${formatLimit(SPEC_LIMITS.maxBodies)} bodies per scene`,
+  });
+
+export const snapshotWallsSchema = z
+  .array(snapshotWallSchema, { error: (issue) => `walls must be an array; got ${describeReceived(issue.input)}` })
+  .max(SPEC_LIMITS.maxWalls, { error: `a snapshot has at most ${SPEC_LIMITS.maxWalls} walls` });
+
+/** At most this many initial overlaps are listed one by one (the rest are counted). */
+const MAX_LISTED_OVERLAPS = 20;
+
+/** Initial overlaps, each at the path of its (first) body, as zod issues. */
+export function addSnapshotOverlapIssues(scene: { bodies: z.output<typeof snapshotBodiesSchema>; walls: z.output<typeof snapshotWallsSchema> }, ctx: z.RefinementCtx, prefix: (string | number)[] = []): void {
+  const overlaps = snapshotOverlaps(scene, MAX_LISTED_OVERLAPS + 1);
+  overlaps.slice(0, MAX_LISTED_OVERLAPS).forEach((overlap) => ctx.addIssue({ code: "custom", path: [...prefix, "bodies", overlap.a], message: describeSnapshotOverlap(overlap) }));
+  if (overlaps.length > MAX_LISTED_OVERLAPS) ctx.addIssue({ code: "custom", path: [...prefix, "bodies"], message: `more initial overlaps beyond the ${MAX_LISTED_OVERLAPS} listed` });
+}
+
+export const snapshotSceneSchema = z
+  .strictObject({
+    kind: z.literal("snapshot"),
+    bodies: snapshotBodiesSchema,
+    walls: snapshotWallsSchema.default(() => []),
+    gravityMPerS2: sceneNumber("snapshot", "gravityMPerS2").default(0),
+    speedScale: sceneNumber("snapshot", "speedScale").default(1),
+  })
+  .superRefine((scene, ctx) => addSnapshotOverlapIssues(scene, ctx));
+
+export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema, snapshotSceneSchema], {
   error: (issue) =>
-    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
+    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box, snapshot; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
 });
 
 const dampingSchema = z.discriminatedUnion(
@@ -177,6 +236,23 @@ export const scenarioSchema = z.strictObject({
 // ---------------------------------------------------------------------------
 // Axes
 
+/** One entry of a scene.pair axis: body A and body B of a pair scene, at their top speeds. */
+export const axisPairSchema = z.strictObject({
+  name: z.string({ error: "pair name must be a string" }).min(1, { error: "pair name must not be empty" }).max(SPEC_LIMITS.maxNameLength, { error: `pair name may have at most ${SPEC_LIMITS.maxNameLength} characters` }),
+  massAKg: sceneNumber("pair", "massAKg"),
+  radiusAM: sceneNumber("pair", "radiusAM"),
+  speedAMPerS: sceneNumber("pair", "speedAMPerS"),
+  massBKg: sceneNumber("pair", "massBKg"),
+  radiusBM: sceneNumber("pair", "radiusBM"),
+  speedBMPerS: sceneNumber("pair", "speedBMPerS"),
+  /** The pair's own contact stiffness (per-group stiffness); absent: the scenario's. */
+  stiffness: ruledNumber(numericRule("contact.stiffness", "pair")).optional(),
+  /** The pair's own target restitution (needs damping kind "restitution"); absent: the scenario's. */
+  restitution: ruledNumber(numericRule("contact.damping.restitution", "pair")).optional(),
+});
+
+export type AxisPair = z.infer<typeof axisPairSchema>;
+
 export const axisSchema = z.strictObject({
   /** A path from SWEEPABLE_PARAMETERS, e.g. "contact.stiffness". */
   parameter: z.string({ error: "parameter must be a string naming a sweepable parameter" }),
@@ -191,8 +267,10 @@ export const axisSchema = z.strictObject({
   values: z
     .array(z.union([z.number(), z.string()], { error: "each value must be a finite number or a choice name" }))
     .min(1, { error: "values must list at least one value" })
-    .max(SPEC_LIMITS.maxListValues, { error: `values may list at most ${SPEC_LIMITS.maxListValues} entries` })
+    .max(SPEC_LIMITS.maxPairs, { error: `values may list at most ${SPEC_LIMITS.maxListValues} entries (${SPEC_LIMITS.maxPairs} on a scene.pair axis)` })
     .optional(),
+  /** scene.pair only: what each value (a pair name) sets, in the order of values. */
+  pairs: z.array(axisPairSchema).min(1, { error: "pairs must list at least one pair" }).max(SPEC_LIMITS.maxPairs, { error: `pairs may list at most ${SPEC_LIMITS.maxPairs} entries` }).optional(),
 });
 
 export type AxisSpec = z.infer<typeof axisSchema>;
@@ -265,12 +343,13 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
     }
   }
 
-  if (scene.kind === "row" || scene.kind === "box") {
+  if (scene.kind === "row" || scene.kind === "box" || scene.kind === "snapshot") {
     const bodies = bodyCount(scenario);
+    const countPath = scene.kind === "snapshot" ? "scene.bodies" : "scene.count";
     if (bodies > SPEC_LIMITS.maxBodies) {
       problems.push({
         check: "bodies",
-        paths: ["scene.count"],
+        paths: [countPath],
         message: `${formatLimit(bodies)} bodies exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodies)}`,
         severity: bodies / SPEC_LIMITS.maxBodies,
       });
@@ -279,7 +358,7 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
     if (bodySteps > SPEC_LIMITS.maxBodyStepsPerCell) {
       problems.push({
         check: "body-steps",
-        paths: ["scene.count", "dtS", "durationS", "substeps"],
+        paths: [countPath, "dtS", "durationS", "substeps"],
         message: `bodies × steps per cell (${formatLimit(bodies)} × ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodyStepsPerCell)}`,
         severity: bodySteps / SPEC_LIMITS.maxBodyStepsPerCell,
       });
@@ -326,6 +405,15 @@ type AddIssue = (path: (string | number)[], message: string) => void;
 function checkAxis(axis: AxisSpec, index: number, scenario: Scenario, addIssue: AddIssue): (number | string)[] | null {
   const at = (...rest: (string | number)[]) => ["axes", index, ...rest];
   const sceneKind = scenario.scene.kind;
+  if (axis.parameter === PAIR_AXIS_PATH) return checkPairAxis(axis, scenario, at, addIssue);
+  if (axis.pairs !== undefined) {
+    addIssue(at("pairs"), `pairs belong to a ${PAIR_AXIS_PATH} axis only`);
+    return null;
+  }
+  if (axis.values !== undefined && axis.values.length > SPEC_LIMITS.maxListValues) {
+    addIssue(at("values"), `values may list at most ${SPEC_LIMITS.maxListValues} entries`);
+    return null;
+  }
   if (!SWEEPABLE_PATHS.includes(axis.parameter)) {
     addIssue(at("parameter"), `unknown parameter "${axis.parameter}"; sweepable parameters: ${SWEEPABLE_PATHS.join(", ")}`);
     return null;
@@ -442,6 +530,66 @@ function checkAxis(axis: AxisSpec, index: number, scenario: Scenario, addIssue: 
   return values;
 }
 
+/** Scene fields a pair axis sets: no other axis may sweep them. */
+const PAIR_AXIS_FIELDS = ["scene.massAKg", "scene.massBKg", "scene.massRatio", "scene.radiusAM", "scene.radiusBM", "scene.speedAMPerS", "scene.speedBMPerS"];
+
+/** A scene.pair axis: a list of pair names in values, each defined once, in the same order, in pairs. */
+function checkPairAxis(axis: AxisSpec, scenario: Scenario, at: (...rest: (string | number)[]) => (string | number)[], addIssue: AddIssue): string[] | null {
+  if (scenario.scene.kind !== "pair") {
+    addIssue(at("parameter"), `${PAIR_AXIS_PATH} applies to the pair scene only (the scenario's scene is ${scenario.scene.kind})`);
+    return null;
+  }
+  if (axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
+    addIssue(at("values"), `${PAIR_AXIS_PATH} is a list axis: give values (pair names) and pairs, without spacing, from, to or count`);
+    return null;
+  }
+  if (!axis.values || !axis.pairs) {
+    addIssue(at(axis.values ? "pairs" : "values"), `${PAIR_AXIS_PATH} needs values (the pair names) and pairs (what each name sets), in the same order`);
+    return null;
+  }
+  if (axis.values.length !== axis.pairs.length) {
+    addIssue(at("pairs"), `values list ${axis.values.length} pair names but pairs defines ${axis.pairs.length}`);
+    return null;
+  }
+  let sound = true;
+  axis.values.forEach((value, j) => {
+    if (value !== axis.pairs?.[j].name) {
+      addIssue(at("values", j), `values.${j} must be the name of pairs.${j} (${JSON.stringify(axis.pairs?.[j].name)}); got ${JSON.stringify(value)}`);
+      sound = false;
+    }
+  });
+  if (!sound) return null;
+  if (new Set(axis.values).size !== axis.values.length) {
+    addIssue(at("values"), `pair names on ${PAIR_AXIS_PATH} must be distinct`);
+    return null;
+  }
+  const perPairStiffness = axis.pairs.some((pair) => pair.stiffness !== undefined);
+  if (perPairStiffness && !axis.pairs.every((pair) => pair.stiffness !== undefined)) {
+    addIssue(at("pairs"), "give a stiffness for every pair or for none");
+    return null;
+  }
+  if (perPairStiffness && scenario.contact.material !== undefined) {
+    addIssue(at("pairs"), "pairs with their own stiffness cannot be used while contact.material sets the Hertz stiffness");
+    return null;
+  }
+  const perPairRestitution = axis.pairs.some((pair) => pair.restitution !== undefined);
+  if (perPairRestitution && !axis.pairs.every((pair) => pair.restitution !== undefined)) {
+    addIssue(at("pairs"), "give a restitution for every pair or for none");
+    return null;
+  }
+  if (perPairRestitution && scenario.contact.damping.kind !== "restitution") {
+    addIssue(at("pairs"), `pairs with their own restitution need scenario.contact.damping.kind "restitution"; it is "${scenario.contact.damping.kind}"`);
+    return null;
+  }
+  for (const [j, pair] of axis.pairs.entries()) {
+    if (!(pair.speedAMPerS + pair.speedBMPerS > 0)) {
+      addIssue(at("pairs", j), `pair ${JSON.stringify(pair.name)}: speedAMPerS + speedBMPerS must be > 0 so the discs approach`);
+      return null;
+    }
+  }
+  return [...axis.values] as string[];
+}
+
 function cartesian<T>(lists: readonly (readonly T[])[]): T[][] {
   let combos: T[][] = [[]];
   for (const list of lists) {
@@ -498,6 +646,26 @@ function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue):
     if (values) axisValueLists.push(values);
     else axesSound = false;
   });
+  const pairAxis = seen.get(PAIR_AXIS_PATH);
+  if (pairAxis !== undefined) {
+    for (const field of PAIR_AXIS_FIELDS) {
+      const clash = seen.get(field);
+      if (clash !== undefined) {
+        addIssue(["axes", clash, "parameter"], `${field} is set by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
+        axesSound = false;
+      }
+    }
+    const stiffnessAxis = seen.get("contact.stiffness");
+    if (stiffnessAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.stiffness !== undefined)) {
+      addIssue(["axes", stiffnessAxis, "parameter"], `contact.stiffness is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
+      axesSound = false;
+    }
+    const restitutionAxis = seen.get("contact.damping.restitution");
+    if (restitutionAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.restitution !== undefined)) {
+      addIssue(["axes", restitutionAxis, "parameter"], `contact.damping.restitution is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
+      axesSound = false;
+    }
+  }
   if (seen.has("scene.massRatio") && seen.has("scene.massBKg")) {
     addIssue(["axes", seen.get("scene.massRatio") as number, "parameter"], "scene.massRatio sets massBKg: it cannot be swept together with scene.massBKg");
     axesSound = false;

@@ -48,4 +48,13 @@ test("every form control on the studio pages has a label", async ({ page }) => {
   await page.goto(`${studioPath}/tokens`);
   await expect(page.locator("form").first()).toBeVisible();
   expect(await unlabelledControls(page), "tokens").toEqual([]);
+  await page.goto(`${studioPath}/catalogues`);
+  await expect(page.getByTestId("catalogue-file")).toBeVisible();
+  expect(await unlabelledControls(page), "catalogues").toEqual([]);
+  await page.getByRole("link", { name: "Crateslide objects" }).first().click();
+  await expect(page.getByRole("button", { name: "Get quote" })).toBeVisible();
+  expect(await unlabelledControls(page), "catalogue").toEqual([]);
+  await page.goto(`${studioPath}/snapshots`);
+  await expect(page.getByTestId("snapshot-file")).toBeVisible();
+  expect(await unlabelledControls(page), "snapshots").toEqual([]);
 });

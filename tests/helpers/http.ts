@@ -8,7 +8,7 @@ export interface CallOptions {
   method?: string;
   path: string;
   params?: Record<string, string | string[]>;
-  /** Serialised as JSON unless it is already a string. */
+  /** Serialised as JSON unless it is already a string or FormData (sent as multipart/form-data). */
   body?: unknown;
   cookie?: string;
   bearer?: string;
@@ -19,8 +19,10 @@ export function buildRequest(options: CallOptions): Request {
   const headers = new Headers(options.headers);
   if (options.cookie) headers.set("cookie", options.cookie);
   if (options.bearer) headers.set("authorization", `Bearer ${options.bearer}`);
-  let body: string | undefined;
-  if (options.body !== undefined) {
+  let body: string | FormData | undefined;
+  if (options.body instanceof FormData) {
+    body = options.body;
+  } else if (options.body !== undefined) {
     body = typeof options.body === "string" ? options.body : JSON.stringify(options.body);
     if (!headers.has("content-type")) headers.set("content-type", "application/json");
   }

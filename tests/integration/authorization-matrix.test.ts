@@ -14,6 +14,8 @@ import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
 import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { submitSweep } from "@/lib/queue/submit";
+import { saveCatalogue, submitCheck } from "@/lib/catalogues/store";
+import { saveSnapshot } from "@/lib/snapshots/store";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { puckSpec } from "./sweeps/support";
 import { makeInvite, makePasswordReset, makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
@@ -44,6 +46,11 @@ interface World {
   studioId: string;
   /** A queued two-axis sweep of the studio (nothing runs it here). */
   sweepId: string;
+  /** A two-object catalogue of the studio and a queued check of it. */
+  catalogueId: string;
+  checkId: string;
+  /** A two-disc snapshot of the studio. */
+  snapshotId: string;
   subjectUserId: string; // a spare engineer of the studio, the target of member changes
   pendingInviteId: string;
   spareTokenId: string;
@@ -81,9 +88,21 @@ async function buildWorld(): Promise<World> {
   const sweep = await submitSweep(await getDb(), studioId, { spec: puckSpec() });
   const invoiceId = `in_matrix_${studioId}`;
   await (await getDb()).insert(invoices).values({ id: invoiceId, studioId, status: "open", periodStart: new Date(Date.now() - 86_400_000), periodEnd: new Date(), lines: [] });
+  const { catalogue } = await saveCatalogue(await getDb(), studioId, {
+    name: "Pebble Ferry pieces",
+    fileName: "pieces.csv",
+    mediaType: "text/csv",
+    bytes: new TextEncoder().encode(MATRIX_CATALOGUE_CSV),
+    createdByUserId: null,
+  });
+  const check = await submitCheck(await getDb(), studioId, catalogue, { settings: MATRIX_CHECK_SETTINGS, createdByUserId: null });
+  const snapshot = await saveSnapshot(await getDb(), studioId, { name: "Ferry deck", fileName: "deck.json", bytes: new TextEncoder().encode(MATRIX_SNAPSHOT_JSON), createdByUserId: null });
   return {
     studioId,
     sweepId: sweep.id,
+    catalogueId: catalogue.id,
+    checkId: check.id,
+    snapshotId: snapshot.id,
     subjectUserId: subject.id,
     pendingInviteId: (await makeInvite(studioId, uniqueEmail("pending"), "finance")).id,
     spareTokenId: (await makeToken(studioId, ["read"])).id,
@@ -93,6 +112,25 @@ async function buildWorld(): Promise<World> {
     inviteFor,
     auth,
   };
+}
+
+/** Two pieces of an invented ferry-loading game. */
+const MATRIX_CATALOGUE_CSV = "name,mass_kg,radius_m,top_speed_m_per_s,restitution\nferry crate,2,0.3,2,0.5\nrope coil,0.5,0.2,3,0.3\n";
+const MATRIX_CHECK_SETTINGS = { dtS: 1 / 60, substeps: 8, integrator: "symplectic-euler", stiffness: 5_000, speedSteps: 2, offsets: [0] };
+
+/** Two crates on an invented ferry deck. */
+const MATRIX_SNAPSHOT_JSON = JSON.stringify({ bodies: [{ xM: 0, yM: 0, vxMPerS: 1, vyMPerS: 0, massKg: 2, radiusM: 0.3 }, { xM: 1, yM: 0, vxMPerS: 0, vyMPerS: 0, massKg: 2, radiusM: 0.3 }] });
+
+function snapshotForm(): FormData {
+  const form = new FormData();
+  form.set("file", new Blob([MATRIX_SNAPSHOT_JSON], { type: "application/json" }), "deck.json");
+  return form;
+}
+
+function catalogueForm(): FormData {
+  const form = new FormData();
+  form.set("file", new Blob([MATRIX_CATALOGUE_CSV], { type: "text/csv" }), "pieces.csv");
+  return form;
 }
 
 interface RouteRow {
@@ -139,6 +177,9 @@ const studio = (w: World) => ({ studioId: w.studioId });
 const BILLING_PEOPLE_ROW = (ok: number) => row((a) => (a === "finance" ? ok : OWNER_MANAGES(ok)[a]));
 const sweep = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId });
 const cell = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId, index: "0" });
+const catalogue = (w: World) => ({ studioId: w.studioId, catalogueId: w.catalogueId });
+const check = (w: World) => ({ studioId: w.studioId, catalogueId: w.catalogueId, checkId: w.checkId });
+const snapshotParams = (w: World) => ({ studioId: w.studioId, snapshotId: w.snapshotId });
 // Sweep work: engineers and owners, and write tokens; finance and read tokens are refused.
 const SWEEP_WRITERS = (ok: number) =>
   row((a) => (a === "finance" || a === "tokenRead" ? 403 : STUDIO_READ_TOKENS_OK(ok)[a]));
@@ -209,6 +250,19 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]", method: "GET", params: cell, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun", method: "POST", params: cell, expect: SWEEP_WRITERS(201) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/envelope", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues", method: "POST", params: studio, body: () => catalogueForm(), expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]", method: "GET", params: catalogue, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/file", method: "GET", params: catalogue, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/quote", method: "POST", params: catalogue, body: () => ({ settings: MATRIX_CHECK_SETTINGS }), expect: SWEEP_WRITERS(200) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/checks", method: "GET", params: catalogue, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/checks", method: "POST", params: catalogue, body: () => ({ settings: MATRIX_CHECK_SETTINGS }), expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]", method: "GET", params: check, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]/export", method: "GET", params: check, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/snapshots", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/snapshots", method: "POST", params: studio, body: () => snapshotForm(), expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/snapshots/[snapshotId]", method: "GET", params: snapshotParams, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/snapshots/[snapshotId]/file", method: "GET", params: snapshotParams, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/admin/studios", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/admin/studios/[studioId]", method: "GET", params: studio, expect: ADMIN_ONLY(200) },
   { route: "v1/admin/studios/[studioId]/quotas", method: "GET", params: studio, expect: ADMIN_ONLY(200) },

@@ -97,3 +97,26 @@ describe("stability map adapter", () => {
     expect(wall.scenario.scene.kind === "wall" && wall.scenario.scene.radiusM).toBe(0.02);
   });
 });
+
+describe("stability map overlays over a snapshot", () => {
+  it("draw the ω·dt = 2 bound for the snapshot's lightest pair of discs", () => {
+    const coin = { yM: 0, vxMPerS: 0, vyMPerS: 0, massKg: 3, radiusM: 0.12 };
+    const spec: SweepSpecInput = {
+      scenario: {
+        scene: { kind: "snapshot", bodies: [{ ...coin, xM: 0 }, { ...coin, xM: 1 }, { ...coin, xM: 3, massKg: 25, radiusM: 0.3 }], walls: [], gravityMPerS2: 0, speedScale: 1 },
+        contact: { model: "linear", stiffness: 1e5 },
+        integrator: "velocity-verlet",
+        dtS: 1 / 240,
+        durationS: 1,
+      },
+      axes: [
+        { parameter: "contact.stiffness", spacing: "log", from: 1e4, to: 1e6, count: 3 },
+        { parameter: "dtS", spacing: "log", from: 1 / 960, to: 1 / 60, count: 3 },
+      ],
+    };
+    const bound = overlaysFor(spec, "contact.stiffness", "dtS").find((overlay) => overlay.label.startsWith("ω·dt = 2")) as { y: (x: number) => number } | undefined;
+    // Two 3 kg coins: reduced mass μ = m₁m₂/(m₁ + m₂) = 1.5 kg (Goldstein, Poole & Safko 2002, Classical Mechanics, §3.1);
+    // the leapfrog/Verlet step is stable for ω·h < 2 with ω = √(k/μ) (Hairer, Lubich & Wanner 2006, Geometric Numerical Integration, §I.5).
+    expect(bound?.y(1e5)).toBeCloseTo(2 / Math.sqrt(1e5 / 1.5), 15);
+  });
+});

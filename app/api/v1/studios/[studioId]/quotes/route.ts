@@ -4,6 +4,7 @@ import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
+import { resolveSnapshotReference } from "@/lib/snapshots/store";
 import { SWEEP_WRITE } from "@/lib/queue/api";
 import { quoteSweep } from "@/lib/queue/submit";
 
@@ -14,7 +15,8 @@ const quoteBody = z.strictObject({ spec: z.unknown().optional() });
 
 export const POST = withAuth(SWEEP_WRITE, async ({ req, studio }) => {
   const { spec } = await parseBody(req, quoteBody);
-  return json({ quote: await quoteSweep(await getDb(), studio.id, spec) });
+  const db = await getDb();
+  return json({ quote: await quoteSweep(db, studio.id, await resolveSnapshotReference(db, studio.id, spec)) });
 });
 
 export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

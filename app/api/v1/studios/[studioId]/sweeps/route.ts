@@ -4,6 +4,7 @@ import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
+import { resolveSnapshotReference } from "@/lib/snapshots/store";
 import { SWEEP_READ, SWEEP_WRITE, listSweeps, parseListQuery } from "@/lib/queue/api";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
@@ -40,7 +41,9 @@ export const GET = withAuth(SWEEP_READ, async ({ req, studio }) => {
 export const POST = withAuth(SWEEP_WRITE, async ({ req, studio, user }) => {
   const input = await parseBody(req, submitBody);
   const db = await getDb();
-  const sweep = await submitSweep(db, studio.id, { spec: input.spec, name: input.name, createdByUserId: user?.id ?? null, acceptedQuoteMs: input.acceptedQuoteMs });
+  // A scene naming a stored snapshot gets its discs written in before the spec is checked and stored.
+  const spec = await resolveSnapshotReference(db, studio.id, input.spec);
+  const sweep = await submitSweep(db, studio.id, { spec, name: input.name, createdByUserId: user?.id ?? null, acceptedQuoteMs: input.acceptedQuoteMs });
   pokeProcessRunner();
   return json({ sweep: await sweepView(db, sweep) }, 201);
 });

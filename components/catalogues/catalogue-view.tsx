@@ -1,0 +1,314 @@
+"use client";
+/**
+ * One catalogue version: its objects, its versions and original file, its checks, and the form
+ * that runs a check with the game's settings (quoted first, then queued like any sweep).
+ */
+import Link from "next/link";
+import { useRouter } from "next/navigation";
+import { useQuery } from "@tanstack/react-query";
+import { useMemo, useState } from "react";
+import { Alert, Button, Card, LoadingRows, SelectField, TextField, buttonClasses } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { StatusBadge } from "@/components/sweeps/sweeps-list";
+import { formatMinutes, type Quote, type SweepStatus } from "@/components/sweeps/sweep-api";
+import { CATALOGUE_COLUMNS } from "@/lib/catalogues/format";
+import type { CheckSettingsInput } from "@/lib/catalogues/check";
+import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { formatDateTime } from "@/lib/ui/format";
+import type { StudioRole } from "@/lib/ui/types";
+import { catalogueKeys, cataloguePath, type CatalogueDetail, type CheckSummary, type CheckView } from "./catalogue-api";
+
+const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
+const td = "px-3 py-2 align-middle";
+
+interface FormState {
+  frameRateHz: string;
+  substeps: string;
+  integrator: string;
+  contactModel: string;
+  stiffness: string;
+  groupStiffness: Record<string, string>;
+  damping: string;
+  speedSteps: string;
+  offsets: string;
+  margin: string;
+}
+
+const DEFAULT_FORM: FormState = {
+  frameRateHz: "60",
+  substeps: "16",
+  integrator: "symplectic-euler",
+  contactModel: "linear",
+  stiffness: "1500000",
+  groupStiffness: {},
+  damping: "catalogue",
+  speedSteps: "6",
+  offsets: "0, 0.6",
+  margin: "0.8",
+};
+
+/** The form as the API's settings; fields left empty are left out so the API names what is missing. */
+export function settingsOf(form: FormState): CheckSettingsInput {
+  const number = (text: string) => (text.trim() === "" ? undefined : Number(text));
+  const groups = Object.fromEntries(Object.entries(form.groupStiffness).filter(([, value]) => value.trim() !== "").map(([group, value]) => [group, Number(value)]));
+  const hz = number(form.frameRateHz);
+  return {
+    dtS: hz === undefined ? (undefined as unknown as number) : 1 / hz,
+    substeps: number(form.substeps),
+    integrator: form.integrator as CheckSettingsInput["integrator"],
+    contactModel: form.contactModel as CheckSettingsInput["contactModel"],
+    stiffness: number(form.stiffness),
+    ...(Object.keys(groups).length > 0 ? { groupStiffness: groups } : {}),
+    damping: form.damping as CheckSettingsInput["damping"],
+    speedSteps: number(form.speedSteps),
+    offsets: form.offsets
+      .split(/[,;\s]+/)
+      .filter(Boolean)
+      .map(Number),
+    margin: number(form.margin),
+  };
+}
+
+export function CatalogueView({ studioId, studioName, role, catalogueId }: { studioId: string; studioName: string; role: StudioRole; catalogueId: string }) {
+  const canWrite = role === "owner" || role === "engineer";
+  const detail = useQuery({
+    queryKey: catalogueKeys.one(studioId, catalogueId),
+    queryFn: () => apiFetch<{ catalogue: CatalogueDetail; checks: CheckSummary[] }>(cataloguePath(studioId, catalogueId)),
+    refetchInterval: (query) => (query.state.data?.checks.some((check) => ["queued", "running", "paused"].includes(check.status)) ? 2000 : false),
+  });
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      {detail.isPending ? (
+        <LoadingRows label="catalogue" />
+      ) : detail.isError ? (
+        <Alert>{errorMessage(detail.error)}</Alert>
+      ) : (
+        <div className="space-y-6">
+          <Card
+            title={
+              <span data-testid="catalogue-title">
+                {detail.data.catalogue.name} <span className="font-mono text-sm text-ink-muted">v{detail.data.catalogue.version}</span>
+              </span>
+            }
+            actions={
+              <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file`} download>
+                Download original file
+              </a>
+            }
+          >
+            <dl className="mb-4 grid gap-2 text-sm sm:grid-cols-3">
+              <div>
+                <dt className="text-ink-muted">File</dt>
+                <dd className="font-mono text-xs">
+                  {detail.data.catalogue.fileName} ({detail.data.catalogue.fileBytes.toLocaleString("en")} bytes)
+                </dd>
+              </div>
+              <div>
+                <dt className="text-ink-muted">SHA-256</dt>
+                <dd className="break-all font-mono text-xs" data-testid="catalogue-hash">
+                  {detail.data.catalogue.contentHash}
+                </dd>
+              </div>
+              <div>
+                <dt className="text-ink-muted">Versions</dt>
+                <dd className="flex flex-wrap gap-2">
+                  {detail.data.catalogue.versions.map((version) => (
+                    <Link key={version.id} href={`/studios/${studioId}/catalogues/${version.id}`} aria-current={version.id === catalogueId ? "page" : undefined} className="font-mono text-xs text-action hover:underline aria-[current=page]:font-bold">
+                      v{version.version}
+                    </Link>
+                  ))}
+                </dd>
+              </div>
+            </dl>
+            <div className="overflow-x-auto">
+              <table className="w-full text-sm" data-testid="catalogue-objects">
+                <thead className="border-b border-line">
+                  <tr>
+                    {CATALOGUE_COLUMNS.map((column) => (
+                      <th key={column} scope="col" className={th}>
+                        {column}
+                      </th>
+                    ))}
+                  </tr>
+                </thead>
+                <tbody className="divide-y divide-line">
+                  {detail.data.catalogue.objects.map((object) => (
+                    <tr key={object.name}>
+                      <td className={`${td} font-medium`}>{object.name}</td>
+                      <td className={`${td} font-mono`}>{object.massKg}</td>
+                      <td className={`${td} font-mono`}>{object.radiusM}</td>
+                      <td className={`${td} font-mono`}>{object.topSpeedMPerS}</td>
+                      <td className={`${td} font-mono`}>{object.restitution}</td>
+                      <td className={td}>{object.group ?? "—"}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          </Card>
+          <ChecksCard studioId={studioId} catalogueId={catalogueId} checks={detail.data.checks} />
+          {canWrite ? <CheckForm studioId={studioId} catalogueId={catalogueId} groups={[...new Set(detail.data.catalogue.objects.flatMap((object) => (object.group ? [object.group] : [])))]} /> : null}
+        </div>
+      )}
+    </StudioShell>
+  );
+}
+
+function ChecksCard({ studioId, catalogueId, checks }: { studioId: string; catalogueId: string; checks: CheckSummary[] }) {
+  return (
+    <Card title="Checks">
+      {checks.length === 0 ? (
+        <p className="text-sm text-ink-muted">No checks of this version yet.</p>
+      ) : (
+        <table className="w-full text-sm" data-testid="checks-table">
+          <thead className="border-b border-line">
+            <tr>
+              <th scope="col" className={th}>Check</th>
+              <th scope="col" className={th}>Settings</th>
+              <th scope="col" className={th}>Status</th>
+              <th scope="col" className={th}>Cells</th>
+            </tr>
+          </thead>
+          <tbody className="divide-y divide-line">
+            {checks.map((check) => (
+              <tr key={check.id}>
+                <td className={td}>
+                  <Link href={`/studios/${studioId}/catalogues/${catalogueId}/checks/${check.id}`} className="text-action hover:underline">
+                    {formatDateTime(check.createdAt)}
+                  </Link>
+                </td>
+                <td className={`${td} font-mono text-xs`}>
+                  {Math.round(1 / check.settings.dtS)} Hz × {check.settings.substeps} substeps, {check.settings.integrator}, {check.settings.contactModel}
+                  {check.settings.stiffness !== undefined ? ` k = ${check.settings.stiffness.toPrecision(4)}` : ""}
+                  {check.settings.groupStiffness ? " (per group)" : ""}
+                </td>
+                <td className={td}>
+                  <StatusBadge status={check.status as SweepStatus} />
+                </td>
+                <td className={`${td} font-mono text-xs`}>
+                  {check.cellsDone} / {check.cells}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
+    </Card>
+  );
+}
+
+function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalogueId: string; groups: string[] }) {
+  const router = useRouter();
+  const [form, setForm] = useState<FormState>(DEFAULT_FORM);
+  const [quote, setQuote] = useState<{ quote: Quote; key: string } | null>(null);
+  const [error, setError] = useState<ApiClientError | Error | null>(null);
+  const [busy, setBusy] = useState(false);
+  const settings = useMemo(() => settingsOf(form), [form]);
+  const key = JSON.stringify(settings);
+  const set = (field: keyof FormState) => (event: { target: { value: string } }) => setForm((current) => ({ ...current, [field]: event.target.value }));
+  const fieldError = (field: string) => (error instanceof ApiClientError ? error.messageFor(`settings.${field}`) : undefined);
+
+  async function ask() {
+    setBusy(true);
+    setError(null);
+    try {
+      const answer = await apiFetch<{ quote: Quote }>(`${cataloguePath(studioId, catalogueId)}/quote`, { method: "POST", body: { settings } });
+      setQuote({ quote: answer.quote, key });
+    } catch (failure) {
+      setError(failure as Error);
+      setQuote(null);
+    } finally {
+      setBusy(false);
+    }
+  }
+
+  async function run() {
+    if (!quote || quote.key !== key) return;
+    setBusy(true);
+    setError(null);
+    try {
+      const answer = await apiFetch<{ check: CheckView }>(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings, acceptedQuoteMs: quote.quote.estimatedComputeMs } });
+      router.push(`/studios/${studioId}/catalogues/${catalogueId}/checks/${answer.check.id}`);
+    } catch (failure) {
+      setError(failure as Error);
+      setBusy(false);
+    }
+  }
+
+  return (
+    <Card title="Run a catalogue check">
+      <form
+        className="space-y-4"
+        onSubmit={(event) => {
+          event.preventDefault();
+          void ask();
+        }}
+      >
+        <p className="text-sm text-ink-muted">
+          Every unordered pair of objects (each with itself too) meets at fractions of its closing speed (the two top speeds added) and at each impact offset, with your game&apos;s settings.
+        </p>
+        <div className="grid gap-4 sm:grid-cols-3">
+          <TextField id="check-hz" label="Frame rate [Hz]" inputMode="decimal" value={form.frameRateHz} onChange={set("frameRateHz")} error={fieldError("dtS")} hint="dt = 1 / frame rate" />
+          <TextField id="check-substeps" label="Substeps per frame" inputMode="numeric" value={form.substeps} onChange={set("substeps")} error={fieldError("substeps")} />
+          <SelectField id="check-integrator" label="Integrator" value={form.integrator} onChange={set("integrator")}>
+            <option value="symplectic-euler">symplectic Euler</option>
+            <option value="velocity-verlet">velocity Verlet</option>
+            <option value="explicit-euler">explicit Euler</option>
+          </SelectField>
+          <SelectField id="check-model" label="Contact model" value={form.contactModel} onChange={set("contactModel")}>
+            <option value="linear">linear spring</option>
+            <option value="hertz">Hertz</option>
+          </SelectField>
+          <TextField id="check-stiffness" label={`Stiffness [${form.contactModel === "linear" ? "N/m" : "N/m^1.5"}]`} inputMode="decimal" value={form.stiffness} onChange={set("stiffness")} error={fieldError("stiffness")} hint={groups.length ? "for objects whose group has no stiffness below" : undefined} />
+          <SelectField id="check-damping" label="Damping" value={form.damping} onChange={set("damping")}>
+            <option value="catalogue">restitution from the catalogue (smaller of the pair)</option>
+            <option value="none">none (undamped)</option>
+          </SelectField>
+          <TextField id="check-speeds" label="Speed steps per pair" inputMode="numeric" value={form.speedSteps} onChange={set("speedSteps")} error={fieldError("speedSteps")} hint="1/n, 2/n … 1 of the closing speed" />
+          <TextField id="check-offsets" label="Impact offsets" value={form.offsets} onChange={set("offsets")} error={fieldError("offsets")} hint="fractions of the sum of radii, 0 head-on" />
+          <TextField id="check-margin" label="Margin" inputMode="decimal" value={form.margin} onChange={set("margin")} error={fieldError("margin")} hint="recommendations keep ω·h ≤ 2·(1 − margin)" />
+        </div>
+        {groups.length > 0 ? (
+          <fieldset className="space-y-2">
+            <legend className="text-sm font-medium">Per-group stiffness (optional; a pair takes the harmonic mean of its two groups)</legend>
+            <div className="grid gap-4 sm:grid-cols-4">
+              {groups.map((group) => (
+                <TextField
+                  key={group}
+                  id={`check-group-${group}`}
+                  label={`${group} [${form.contactModel === "linear" ? "N/m" : "N/m^1.5"}]`}
+                  inputMode="decimal"
+                  value={form.groupStiffness[group] ?? ""}
+                  onChange={(event) => setForm((current) => ({ ...current, groupStiffness: { ...current.groupStiffness, [group]: event.target.value } }))}
+                  error={fieldError(`groupStiffness.${group}`)}
+                />
+              ))}
+            </div>
+          </fieldset>
+        ) : null}
+        {error ? <Alert>{error.message}</Alert> : null}
+        {quote && quote.key === key ? (
+          <div className="rounded-md border border-line p-3 text-sm" data-testid="check-quote">
+            <p>
+              <strong>{quote.quote.cells.toLocaleString("en")}</strong> cells ({quote.quote.cachedCells.toLocaleString("en")} cached), estimated{" "}
+              <strong>{formatMinutes(quote.quote.estimatedComputeMs)}</strong> ({quote.quote.estimatedComputeMs.toLocaleString("en")} ms) of compute; balance after: {formatMinutes(quote.quote.balanceAfterMs)}.
+            </p>
+            {quote.quote.warnings.map((warning) => (
+              <p key={warning} className="text-danger">
+                {warning}
+              </p>
+            ))}
+          </div>
+        ) : null}
+        <div className="flex gap-3">
+          <Button type="submit" variant="secondary" disabled={busy}>
+            Get quote
+          </Button>
+          <Button onClick={() => void run()} disabled={busy || !quote || quote.key !== key} data-testid="check-run">
+            Run check
+          </Button>
+        </div>
+      </form>
+    </Card>
+  );
+}

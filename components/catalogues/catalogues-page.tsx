@@ -1,0 +1,320 @@
+"use client";
+/**
+ * The studio's catalogues: every version by name, and (for engineers and owners) the upload: a
+ * file input with drag and drop, every problem of the file at once with its row and column, and an
+ * editable table to fix the values before anything is saved.
+ */
+import Link from "next/link";
+import { useRouter } from "next/navigation";
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useId, useMemo, useRef, useState, type DragEvent } from "react";
+import { Alert, Button, Card, EmptyState, LoadingRows, TextField, cx } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import {
+  CATALOGUE_COLUMNS,
+  CATALOGUE_LIMITS,
+  COLUMN_HELP,
+  describeProblem,
+  parseCatalogueFile,
+  tableToCsv,
+  validateTable,
+  type CatalogueProblem,
+  type CatalogueTable,
+} from "@/lib/catalogues/format";
+import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { formatDateTime } from "@/lib/ui/format";
+import type { StudioRole } from "@/lib/ui/types";
+import { catalogueKeys, cataloguesPath, uploadCatalogue, type CatalogueDetail, type CatalogueSummary } from "./catalogue-api";
+
+const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
+const td = "px-3 py-2 align-middle";
+
+interface Loaded {
+  fileName: string;
+  bytes: Uint8Array;
+  /** The file could not be read as a table (encoding, size, JSON syntax): only problems. */
+  readable: boolean;
+  format: "csv" | "json";
+  firstRow: number;
+  table: CatalogueTable;
+  /** The table as loaded, to tell whether the user changed it. */
+  original: string;
+  /** Problems of the file itself (size, encoding, syntax, row count): only another file fixes them. */
+  fileProblems: CatalogueProblem[];
+  /** Problems of the CSV header (unknown or missing columns): gone once the table is edited, as it is then saved with the standard header. */
+  headerProblems: CatalogueProblem[];
+  notes: string[];
+}
+
+function load(fileName: string, bytes: Uint8Array): Loaded {
+  const parsed = parseCatalogueFile(bytes, fileName);
+  const fileProblems = parsed.problems.filter((problem) => problem.row === null);
+  const headerProblems = parsed.problems.filter((problem) => parsed.format === "csv" && problem.row === 1);
+  return {
+    fileName,
+    bytes,
+    readable: parsed.table.length > 0,
+    format: parsed.format,
+    firstRow: parsed.firstRow,
+    table: parsed.table,
+    original: JSON.stringify(parsed.table),
+    fileProblems,
+    headerProblems,
+    notes: parsed.notes,
+  };
+}
+
+export function CataloguesPage({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+  const canWrite = role === "owner" || role === "engineer";
+  const list = useQuery({
+    queryKey: catalogueKeys.list(studioId),
+    queryFn: () => apiFetch<{ catalogues: CatalogueSummary[] }>(cataloguesPath(studioId)),
+  });
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      <div className="space-y-6">
+        {canWrite ? <UploadCard studioId={studioId} /> : null}
+        <Card title="Catalogues">
+          {list.isPending ? (
+            <LoadingRows label="catalogues" />
+          ) : list.isError ? (
+            <Alert>{errorMessage(list.error)}</Alert>
+          ) : list.data.catalogues.length === 0 ? (
+            <EmptyState>{canWrite ? "No catalogues yet. Upload one row per object type of your game above." : "No catalogues yet."}</EmptyState>
+          ) : (
+            <div className="overflow-x-auto">
+              <table className="w-full text-sm" data-testid="catalogues-table">
+                <thead className="border-b border-line">
+                  <tr>
+                    <th scope="col" className={th}>Catalogue</th>
+                    <th scope="col" className={th}>Version</th>
+                    <th scope="col" className={th}>Objects</th>
+                    <th scope="col" className={th}>File</th>
+                    <th scope="col" className={th}>SHA-256</th>
+                    <th scope="col" className={th}>Uploaded</th>
+                  </tr>
+                </thead>
+                <tbody className="divide-y divide-line">
+                  {list.data.catalogues.map((catalogue) => (
+                    <tr key={catalogue.id}>
+                      <td className={`${td} font-medium`}>
+                        <Link href={`/studios/${studioId}/catalogues/${catalogue.id}`} className="text-action hover:underline">
+                          {catalogue.name}
+                        </Link>
+                      </td>
+                      <td className={`${td} font-mono`}>v{catalogue.version}</td>
+                      <td className={td}>{catalogue.objectCount}</td>
+                      <td className={`${td} font-mono text-xs`}>{catalogue.fileName}</td>
+                      <td className={`${td} font-mono text-xs`} title={catalogue.contentHash}>
+                        {catalogue.contentHash.slice(0, 12)}…
+                      </td>
+                      <td className={td}>{formatDateTime(catalogue.createdAt)}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          )}
+        </Card>
+      </div>
+    </StudioShell>
+  );
+}
+
+function UploadCard({ studioId }: { studioId: string }) {
+  const router = useRouter();
+  const queryClient = useQueryClient();
+  const inputId = useId();
+  const inputRef = useRef<HTMLInputElement>(null);
+  const [loaded, setLoaded] = useState<Loaded | null>(null);
+  const [name, setName] = useState("");
+  const [dragging, setDragging] = useState(false);
+  const [saving, setSaving] = useState(false);
+  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
+
+  const checked = useMemo(() => (loaded && loaded.readable ? validateTable(loaded.table, loaded.firstRow) : null), [loaded]);
+  const edited = loaded !== null && JSON.stringify(loaded.table) !== loaded.original;
+  const problems: CatalogueProblem[] = loaded ? [...loaded.fileProblems, ...(edited ? [] : loaded.headerProblems), ...(checked?.problems ?? [])] : [];
+  const invalid = new Set(problems.filter((p) => p.row !== null && p.column).map((p) => `${p.row}:${p.column}`));
+  const canSave = loaded !== null && loaded.readable && problems.length === 0 && !saving;
+
+  async function take(file: File) {
+    setServerError(null);
+    const bytes = new Uint8Array(await file.arrayBuffer());
+    setLoaded(load(file.name, bytes));
+    if (!name) setName(file.name.replace(/\.[^.]*$/, ""));
+  }
+
+  function onDrop(event: DragEvent<HTMLDivElement>) {
+    event.preventDefault();
+    setDragging(false);
+    const file = event.dataTransfer.files[0];
+    if (file) void take(file);
+  }
+
+  function setCell(rowIndex: number, column: (typeof CATALOGUE_COLUMNS)[number], value: string) {
+    setLoaded((current) => {
+      if (!current) return current;
+      const table = current.table.map((row, i) => (i === rowIndex ? { ...row, [column]: value } : row));
+      // Header problems stay; the fixed table is saved as a CSV with the standard header.
+      return { ...current, table };
+    });
+  }
+
+  async function save() {
+    if (!loaded) return;
+    setSaving(true);
+    setServerError(null);
+    try {
+      // An untouched valid file is saved byte for byte; a table fixed here is saved as the CSV it now is.
+      const fileName = edited ? loaded.fileName.replace(/\.[^.]*$/, "") + ".csv" : loaded.fileName;
+      const blob = edited ? new Blob([tableToCsv(loaded.table)], { type: "text/csv" }) : new Blob([loaded.bytes as BlobPart], { type: loaded.format === "json" ? "application/json" : "text/csv" });
+      const result = await uploadCatalogue<{ catalogue: CatalogueDetail }>(studioId, blob, fileName, name);
+      await queryClient.invalidateQueries({ queryKey: catalogueKeys.list(studioId) });
+      router.push(`/studios/${studioId}/catalogues/${result.catalogue.id}`);
+    } catch (error) {
+      setServerError(error instanceof Error ? error : new Error(String(error)));
+      setSaving(false);
+    }
+  }
+
+  return (
+    <Card title="Upload a catalogue">
+      <div className="space-y-4">
+        <p className="text-sm text-ink-muted">
+          One row per object type, as CSV (comma, semicolon or tab separated, UTF-8) or JSON, with the columns{" "}
+          {CATALOGUE_COLUMNS.map((column, i) => (
+            <span key={column}>
+              <code className="font-mono text-xs">{column}</code>
+              {i < CATALOGUE_COLUMNS.length - 1 ? ", " : ""}
+            </span>
+          ))}
+          . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.
+        </p>
+        <div
+          onDragOver={(event) => {
+            event.preventDefault();
+            setDragging(true);
+          }}
+          onDragLeave={() => setDragging(false)}
+          onDrop={onDrop}
+          className={cx("rounded-lg border-2 border-dashed p-6 text-center", dragging ? "border-action bg-surface-muted" : "border-line")}
+          data-testid="catalogue-drop-zone"
+        >
+          <label htmlFor={inputId} className="block text-sm font-medium">
+            Drop a file here, or choose one
+          </label>
+          <input
+            ref={inputRef}
+            id={inputId}
+            type="file"
+            accept=".csv,.json,text/csv,application/json"
+            className="mx-auto mt-2 block text-sm"
+            data-testid="catalogue-file"
+            onChange={(event) => {
+              const file = event.target.files?.[0];
+              if (file) void take(file);
+            }}
+          />
+        </div>
+        {loaded ? (
+          <div className="space-y-4">
+            <TextField id="catalogue-name" label="Catalogue name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={CATALOGUE_LIMITS.maxCatalogueNameLength} />
+            {problems.length > 0 ? (
+              <div role="alert" className="rounded-md border border-danger/60 bg-danger-soft p-3 text-sm" data-testid="catalogue-problems">
+                <p className="font-semibold">
+                  {problems.length === 1 ? "1 problem" : `${problems.length} problems`} in {loaded.fileName}; fix {problems.length === 1 ? "it" : "them"} {loaded.readable ? "in the table below" : "in the file"} before saving:
+                </p>
+                <ul className="mt-2 list-disc space-y-1 pl-5">
+                  {problems.map((problem, i) => (
+                    <li key={i} data-testid="catalogue-problem">
+                      {describeProblem(problem)}
+                    </li>
+                  ))}
+                </ul>
+              </div>
+            ) : loaded.readable ? (
+              <Alert tone="ok">
+                {loaded.table.length} objects, every row valid{edited ? " (fixed here; saved as CSV)" : ""}.
+              </Alert>
+            ) : null}
+            {loaded.notes.length > 0 ? (
+              <ul className="space-y-1 text-sm text-ink-muted" data-testid="catalogue-notes">
+                {loaded.notes.map((note, i) => (
+                  <li key={i}>{note}</li>
+                ))}
+              </ul>
+            ) : null}
+            {loaded.readable ? (
+              <div className="overflow-x-auto">
+                <table className="w-full text-sm" data-testid="catalogue-edit-table">
+                  <caption className="sr-only">Objects of the file; every cell can be edited</caption>
+                  <thead className="border-b border-line">
+                    <tr>
+                      <th scope="col" className={th}>Row</th>
+                      {CATALOGUE_COLUMNS.map((column) => (
+                        <th key={column} scope="col" className={th} title={COLUMN_HELP[column]}>
+                          {column}
+                        </th>
+                      ))}
+                    </tr>
+                  </thead>
+                  <tbody className="divide-y divide-line">
+                    {loaded.table.map((row, i) => {
+                      const rowNumber = loaded.firstRow + i;
+                      return (
+                        <tr key={i}>
+                          <th scope="row" className={`${td} font-mono text-xs text-ink-muted`}>
+                            {rowNumber}
+                          </th>
+                          {CATALOGUE_COLUMNS.map((column) => (
+                            <td key={column} className="px-1 py-1">
+                              <input
+                                aria-label={`Row ${rowNumber}, ${column}`}
+                                aria-invalid={invalid.has(`${rowNumber}:${column}`) || undefined}
+                                value={row[column]}
+                                onChange={(event) => setCell(i, column, event.target.value)}
+                                className="w-full min-w-20 rounded border border-line bg-surface px-2 py-1 font-mono text-xs aria-[invalid=true]:border-danger aria-[invalid=true]:bg-danger-soft"
+                              />
+                            </td>
+                          ))}
+                        </tr>
+                      );
+                    })}
+                  </tbody>
+                </table>
+              </div>
+            ) : null}
+            {serverError ? (
+              <Alert>
+                {serverError.message}
+                {serverError instanceof ApiClientError && serverError.issues.length > 1 ? (
+                  <ul className="mt-1 list-disc pl-5">
+                    {serverError.issues.map((issue, i) => (
+                      <li key={i}>{issue.message}</li>
+                    ))}
+                  </ul>
+                ) : null}
+              </Alert>
+            ) : null}
+            <div className="flex gap-3">
+              <Button onClick={() => void save()} disabled={!canSave} data-testid="catalogue-save">
+                {saving ? "Saving…" : "Save catalogue"}
+              </Button>
+              <Button
+                variant="secondary"
+                onClick={() => {
+                  setLoaded(null);
+                  setServerError(null);
+                  if (inputRef.current) inputRef.current.value = "";
+                }}
+              >
+                Discard
+              </Button>
+            </div>
+          </div>
+        ) : null}
+      </div>
+    </Card>
+  );
+}

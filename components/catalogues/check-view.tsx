@@ -1,0 +1,364 @@
+"use client";
+/**
+ * A catalogue check's result: the pair matrix (objects × objects, each square coloured by the
+ * pair's worst verdict), the summary of pairs at risk with the recommendation and its confirmation
+ * by simulation, the selected pair's stability map (closing speed × impact offset), and exports.
+ */
+import Link from "next/link";
+import { useRouter } from "next/navigation";
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useMemo, useState } from "react";
+import { StabilityMap } from "@/components/maps";
+import { Alert, Button, Card, LoadingRows, buttonClasses, cx } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { StatusBadge, progressPercent } from "@/components/sweeps/sweeps-list";
+import { isActive, sweepsPath, type CellRow, type Quote } from "@/components/sweeps/sweep-api";
+import { VERDICT_STYLES } from "@/lib/charts/categories";
+import type { PairSummary } from "@/lib/catalogues/check";
+import type { Verdict } from "@/lib/physics/types";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
+import type { StudioRole } from "@/lib/ui/types";
+import { catalogueKeys, cataloguePath, checkPath, type CheckView as CheckViewData } from "./catalogue-api";
+
+const VERDICT_WORDS: Record<Verdict, string> = { stable: "stable", "energy-drift": "energy drift", "deep-overlap": "deep overlap (sinks)", tunneled: "tunnels", exploded: "explodes" };
+
+function fmt(value: number | null, digits = 3): string {
+  if (value === null || !Number.isFinite(value)) return "—";
+  return Number(value.toPrecision(digits)).toLocaleString("en", { maximumSignificantDigits: digits });
+}
+
+export function CheckView({ studioId, studioName, role, catalogueId, checkId }: { studioId: string; studioName: string; role: StudioRole; catalogueId: string; checkId: string }) {
+  const canWrite = role === "owner" || role === "engineer";
+  const [selected, setSelected] = useState<string | null>(null);
+  const check = useQuery({
+    queryKey: catalogueKeys.check(studioId, catalogueId, checkId),
+    queryFn: async () => (await apiFetch<{ check: CheckViewData }>(checkPath(studioId, catalogueId, checkId))).check,
+    refetchInterval: (query) => {
+      const data = query.state.data;
+      return data && (isActive(data.sweep.status) || data.confirmation?.status === "running") ? 1500 : false;
+    },
+  });
+  const data = check.data;
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      {check.isPending ? (
+        <LoadingRows label="check" />
+      ) : check.isError ? (
+        <Alert>{errorMessage(check.error)}</Alert>
+      ) : data ? (
+        <div className="space-y-6">
+          <Card
+            title={
+              <span>
+                Catalogue check of{" "}
+                <Link href={`/studios/${studioId}/catalogues/${catalogueId}`} className="text-action hover:underline">
+                  {data.catalogue.name} v{data.catalogue.version}
+                </Link>
+              </span>
+            }
+            actions={<StatusBadge status={data.sweep.status} />}
+          >
+            <p className="text-sm text-ink-muted">
+              {fmt(1 / data.settings.dtS)} Hz × {data.settings.substeps} substeps (h = {fmt((data.settings.dtS / data.settings.substeps) * 1000)} ms), {data.settings.integrator}, {data.settings.contactModel} contact
+              {data.settings.stiffness !== undefined ? `, stiffness ${fmt(data.settings.stiffness, 4)} ${data.settings.contactModel === "linear" ? "N/m" : "N/m^1.5"}` : ""}
+              {data.settings.groupStiffness ? " (per group)" : ""}, damping {data.settings.damping === "catalogue" ? "from the catalogue's restitution" : "none"}; run as{" "}
+              <Link href={`/studios/${studioId}/sweeps/${data.sweep.id}`} className="text-action hover:underline">
+                sweep {data.sweep.id.slice(0, 12)}
+              </Link>{" "}
+              ({data.sweep.cellsDone.toLocaleString("en")} / {data.sweep.cells.toLocaleString("en")} cells, {progressPercent(data.sweep)} %).
+            </p>
+            {data.sweep.reason ? <Alert>{data.sweep.reason}</Alert> : null}
+          </Card>
+          <Summary data={data} onOpen={setSelected} canWrite={canWrite} studioId={studioId} catalogueId={catalogueId} />
+          <Card title="Pair matrix">
+            <PairMatrixGrid data={data} selected={selected} onSelect={setSelected} />
+          </Card>
+          {selected ? <PairDetail studioId={studioId} data={data} pairName={selected} /> : null}
+          <Card title="Exports">
+            <div className="flex flex-wrap gap-3">
+              <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=csv&table=pairs`} download data-testid="export-pairs-csv">
+                Pair matrix (CSV)
+              </a>
+              <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=csv&table=recommendation`} download>
+                Recommendation (CSV)
+              </a>
+              <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=json`} download>
+                Matrix and recommendation (JSON)
+              </a>
+            </div>
+          </Card>
+        </div>
+      ) : null}
+    </StudioShell>
+  );
+}
+
+function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: CheckViewData; onOpen: (name: string) => void; canWrite: boolean; studioId: string; catalogueId: string }) {
+  const { matrix, recommendation, confirmation } = data;
+  const queryClient = useQueryClient();
+  const [confirmError, setConfirmError] = useState<string | null>(null);
+  const [confirming, setConfirming] = useState(false);
+  const unit = data.settings.contactModel === "linear" ? "N/m" : "N/m^1.5";
+
+  async function confirm() {
+    if (!confirmation) return;
+    setConfirming(true);
+    setConfirmError(null);
+    try {
+      const { quote } = await apiFetch<{ quote: Quote }>(`${cataloguePath(studioId, catalogueId)}/quote`, { method: "POST", body: { settings: confirmation.settings } });
+      await apiFetch(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings: confirmation.settings, acceptedQuoteMs: quote.estimatedComputeMs } });
+      await queryClient.invalidateQueries({ queryKey: catalogueKeys.check(studioId, catalogueId, data.id) });
+    } catch (error) {
+      setConfirmError(errorMessage(error));
+    } finally {
+      setConfirming(false);
+    }
+  }
+
+  return (
+    <Card title="Summary">
+      <div className="space-y-4 text-sm" data-testid="check-summary">
+        {!matrix.complete ? <p className="text-ink-muted">The matrix fills as the cells finish.</p> : null}
+        {matrix.atRisk.length === 0 ? (
+          matrix.complete ? (
+            <Alert tone="ok">Every pair stays stable up to its closing speed at every offset.</Alert>
+          ) : null
+        ) : (
+          <div>
+            <p>
+              <strong>{matrix.atRisk.length}</strong> of {matrix.pairs.length} pairs are at risk{matrix.riskiest ? (
+                <>
+                  ; the riskiest is <strong>{matrix.riskiest}</strong>.
+                </>
+              ) : "."}
+            </p>
+            {matrix.riskiest ? (
+              <Button className="mt-2" onClick={() => onOpen(matrix.riskiest as string)} data-testid="open-riskiest">
+                Open the riskiest pair
+              </Button>
+            ) : null}
+            <ul className="mt-2 flex flex-wrap gap-2" aria-label="Pairs at risk">
+              {matrix.atRisk.map((name) => {
+                const pair = matrix.pairs.find((candidate) => candidate.name === name) as PairSummary;
+                return (
+                  <li key={name}>
+                    <button type="button" onClick={() => onOpen(name)} className="rounded-full border border-line px-2 py-0.5 text-xs hover:bg-surface-muted">
+                      {name}: {VERDICT_WORDS[pair.worstVerdict as Verdict]}
+                    </button>
+                  </li>
+                );
+              })}
+            </ul>
+          </div>
+        )}
+        <div className="rounded-md border border-line p-3" data-testid="recommendation">
+          <p className="font-semibold">Recommendation (margin {fmt(recommendation.margin)}: ω·h ≤ {fmt(2 * (1 - recommendation.margin))})</p>
+          <p className="mt-1">
+            Lightest reduced mass: {fmt(recommendation.lightestReducedMassKg)} kg ({recommendation.lightestPair}).
+          </p>
+          <p className="mt-1">
+            Largest single stiffness:{" "}
+            {recommendation.stiffness !== null ? (
+              <strong data-testid="recommended-stiffness">
+                {fmt(recommendation.stiffness, 4)} {unit}
+              </strong>
+            ) : (
+              <span>none. {recommendation.stiffnessNote}</span>
+            )}
+          </p>
+          <p className="mt-1">
+            Smallest substep count at this stiffness: {recommendation.substeps !== null ? <strong>{recommendation.substeps}</strong> : <span>none. {recommendation.substepsNote}</span>}
+          </p>
+          <p className="mt-1 text-xs text-ink-muted">
+            From the bound ω·h &lt; 2 of symplectic Euler and velocity Verlet on a linear spring, with ω = √(k/m*) and h = dt / substeps; a stiffness also needs every pair to stay within the overlap tolerance and clear of tunnelling.
+          </p>
+          {confirmation ? (
+            <div className="mt-2" data-testid="confirmation">
+              {confirmation.status === "confirmed" ? (
+                <Alert tone="ok">
+                  Confirmed by simulation:{" "}
+                  <Link className="underline" href={`/studios/${studioId}/catalogues/${catalogueId}/checks/${confirmation.checkId}`}>
+                    the check at {fmt(confirmation.settings.stiffness ?? null, 4)} {unit}
+                  </Link>{" "}
+                  keeps every pair stable.
+                </Alert>
+              ) : confirmation.status === "refuted" ? (
+                <Alert>
+                  Not confirmed: at the recommended stiffness {confirmation.pairsAtRisk.join(", ")} still fail (
+                  <Link className="underline" href={`/studios/${studioId}/catalogues/${catalogueId}/checks/${confirmation.checkId}`}>
+                    see that check
+                  </Link>
+                  ).
+                </Alert>
+              ) : confirmation.status === "running" ? (
+                <p className="text-ink-muted">Confirmation by simulation is running…</p>
+              ) : canWrite ? (
+                <Button variant="secondary" onClick={() => void confirm()} disabled={confirming}>
+                  {confirming ? "Submitting…" : "Confirm by simulation (a check at the recommended stiffness)"}
+                </Button>
+              ) : (
+                <p className="text-ink-muted">Not yet confirmed by simulation.</p>
+              )}
+              {confirmError ? <Alert>{confirmError}</Alert> : null}
+            </div>
+          ) : null}
+        </div>
+      </div>
+    </Card>
+  );
+}
+
+function PairMatrixGrid({ data, selected, onSelect }: { data: CheckViewData; selected: string | null; onSelect: (name: string) => void }) {
+  const { matrix } = data;
+  const byIndex = useMemo(() => {
+    const map = new Map<string, PairSummary>();
+    for (const pair of matrix.pairs) {
+      map.set(`${pair.i}:${pair.j}`, pair);
+      map.set(`${pair.j}:${pair.i}`, pair);
+    }
+    return map;
+  }, [matrix.pairs]);
+  const size = matrix.objects.length;
+  return (
+    <div className="space-y-3">
+      <div className="overflow-x-auto">
+        <table className="border-separate border-spacing-1 text-xs" data-testid="pair-matrix">
+          <caption className="sr-only">Worst verdict of each pair of objects; select a square to open the pair</caption>
+          <thead>
+            <tr>
+              <td />
+              {matrix.objects.map((name) => (
+                <th key={name} scope="col" className="max-w-24 px-1 text-left align-bottom font-medium">
+                  {name}
+                </th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {matrix.objects.map((rowName, i) => (
+              <tr key={rowName}>
+                <th scope="row" className="pr-2 text-right font-medium">
+                  {rowName}
+                </th>
+                {Array.from({ length: size }, (_, j) => {
+                  const pair = byIndex.get(`${i}:${j}`) as PairSummary;
+                  const verdict = pair.worstVerdict;
+                  const label = `${pair.name}: ${verdict ? VERDICT_WORDS[verdict] : "not computed yet"}`;
+                  return (
+                    <td key={j} className="p-0">
+                      <button
+                        type="button"
+                        onClick={() => onSelect(pair.name)}
+                        aria-label={label}
+                        title={label}
+                        aria-pressed={selected === pair.name}
+                        data-verdict={verdict ?? "pending"}
+                        data-pair={pair.name}
+                        className={cx("block h-9 w-9 rounded border border-line", selected === pair.name && "ring-2 ring-ink ring-offset-1")}
+                        style={{ backgroundColor: verdict ? VERDICT_STYLES[verdict].colour : "transparent" }}
+                      />
+                    </td>
+                  );
+                })}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+      <ul className="flex flex-wrap gap-3 text-xs" aria-label="Legend">
+        {(Object.keys(VERDICT_STYLES) as Verdict[]).map((verdict) => (
+          <li key={verdict} className="flex items-center gap-1">
+            <span className="inline-block h-3 w-3 rounded-sm border border-line" style={{ backgroundColor: VERDICT_STYLES[verdict].colour }} aria-hidden="true" />
+            {VERDICT_STYLES[verdict].label}
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
+function PairDetail({ studioId, data, pairName }: { studioId: string; data: CheckViewData; pairName: string }) {
+  const router = useRouter();
+  const pair = data.matrix.pairs.find((candidate) => candidate.name === pairName);
+  const cells = useQuery({
+    queryKey: ["catalogue-check-cells", data.sweep.id, data.sweep.cellsDone],
+    queryFn: () => apiFetch<{ cells: CellRow[] }>(`${sweepsPath(studioId)}/${data.sweep.id}/cells`),
+  });
+  const map = useMemo(() => {
+    if (!pair || !cells.data) return null;
+    const fractions = Array.from({ length: data.settings.speedSteps }, (_, i) => (i + 1) / data.settings.speedSteps);
+    const offsets = [...data.settings.offsets].sort((a, b) => a - b);
+    const verdicts: (Verdict | null)[] = new Array(fractions.length * offsets.length).fill(null);
+    const reasons: (string | null)[] = new Array(verdicts.length).fill(null);
+    const indices: number[] = new Array(verdicts.length).fill(-1);
+    for (const cell of cells.data.cells) {
+      if (cell.axisValues[0] !== pairName) continue;
+      const column = fractions.indexOf(cell.axisValues[1] as number);
+      const row = offsets.indexOf(cell.axisValues[2] as number);
+      if (column < 0 || row < 0) continue;
+      const at = row * fractions.length + column;
+      verdicts[at] = cell.verdict;
+      reasons[at] = cell.reason;
+      indices[at] = cell.index;
+    }
+    return {
+      x: { label: "Closing speed", unit: "m/s", values: fractions.map((f) => f * pair.closingSpeedMPerS), spacing: "linear" as const },
+      y: { label: "Impact offset", unit: "", values: offsets, spacing: "linear" as const },
+      verdicts,
+      reasons,
+      indices,
+    };
+  }, [pair, cells.data, data.settings, pairName]);
+  if (!pair) return null;
+  return (
+    <Card title={<span data-testid="pair-title">{pair.name}</span>}>
+      <dl className="mb-4 grid gap-2 text-sm sm:grid-cols-3" data-testid="pair-detail">
+        <div>
+          <dt className="text-ink-muted">Worst verdict</dt>
+          <dd className="font-semibold">{pair.worstVerdict ? VERDICT_WORDS[pair.worstVerdict] : "not computed yet"}</dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Highest stable closing speed</dt>
+          <dd>
+            {pair.highestStableSpeedMPerS === null ? "—" : `${fmt(pair.highestStableSpeedMPerS)} m/s`} of {fmt(pair.closingSpeedMPerS)} m/s
+          </dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Margin to the bound (1 − ω·h/2)</dt>
+          <dd className={pair.boundMargin < 0 ? "font-semibold text-danger" : undefined}>{fmt(pair.boundMargin)}</dd>
+        </div>
+        <div>
+          <dt className="text-ink-muted">Stiffness</dt>
+          <dd>{fmt(pair.stiffness, 4)}</dd>
+        </div>
+        <div className="sm:col-span-2">
+          <dt className="text-ink-muted">Cells</dt>
+          <dd>
+            {(Object.keys(pair.counts) as Verdict[])
+              .filter((verdict) => pair.counts[verdict] > 0)
+              .map((verdict) => `${pair.counts[verdict]} ${VERDICT_WORDS[verdict]}`)
+              .join(", ") || "none yet"}
+          </dd>
+        </div>
+      </dl>
+      {cells.isError ? <Alert>{errorMessage(cells.error)}</Alert> : null}
+      {map ? (
+        <StabilityMap
+          x={map.x}
+          y={map.y}
+          layer={{ kind: "verdict", verdicts: map.verdicts }}
+          verdicts={map.verdicts}
+          reasons={map.reasons}
+          title={`${pair.name}: verdict by closing speed and impact offset`}
+          height={260}
+          onCellClick={(index) => {
+            const cellIndex = map.indices[index];
+            if (cellIndex >= 0) router.push(`/studios/${studioId}/sweeps/${data.sweep.id}/cells/${cellIndex}`);
+          }}
+        />
+      ) : (
+        <LoadingRows label="pair cells" />
+      )}
+    </Card>
+  );
+}

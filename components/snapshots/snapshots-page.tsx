@@ -1,0 +1,248 @@
+"use client";
+/**
+ * The studio's scene snapshots: every version by name with its original file and a link that opens
+ * the sweep builder on it, and (for engineers and owners) the upload: a file input with drag and
+ * drop, every problem of the file at once with its JSON path (checked here first, then again by the
+ * server), nothing saved until the file is valid.
+ */
+import Link from "next/link";
+import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useId, useRef, useState, type DragEvent } from "react";
+import { Alert, Button, Card, EmptyState, LoadingRows, TextField, cx } from "@/components/ui";
+import { StudioShell } from "@/components/studio/studio-shell";
+import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
+import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { formatDateTime } from "@/lib/ui/format";
+import { studioApiPath } from "@/lib/ui/queries";
+import type { StudioRole } from "@/lib/ui/types";
+import type { SnapshotDetail, SnapshotSummary } from "@/lib/snapshots/store";
+
+const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
+const td = "px-3 py-2 align-middle";
+
+const snapshotsPath = (studioId: string) => `${studioApiPath(studioId)}/snapshots`;
+const listKey = (studioId: string) => ["snapshots", studioId] as const;
+
+export function SnapshotsPage({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+  const canWrite = role === "owner" || role === "engineer";
+  const list = useQuery({ queryKey: listKey(studioId), queryFn: () => apiFetch<{ snapshots: SnapshotSummary[] }>(snapshotsPath(studioId)) });
+  return (
+    <StudioShell studioId={studioId} studioName={studioName} role={role}>
+      <div className="space-y-6">
+        {canWrite ? <UploadCard studioId={studioId} /> : null}
+        <Card title="Snapshots">
+          {list.isPending ? (
+            <LoadingRows label="snapshots" />
+          ) : list.isError ? (
+            <Alert>{errorMessage(list.error)}</Alert>
+          ) : list.data.snapshots.length === 0 ? (
+            <EmptyState>{canWrite ? "No snapshots yet. Upload the discs and walls of a moment of your game above." : "No snapshots yet."}</EmptyState>
+          ) : (
+            <div className="overflow-x-auto">
+              <table className="w-full text-sm" data-testid="snapshots-table">
+                <thead className="border-b border-line">
+                  <tr>
+                    <th scope="col" className={th}>Snapshot</th>
+                    <th scope="col" className={th}>Version</th>
+                    <th scope="col" className={th}>Discs</th>
+                    <th scope="col" className={th}>Walls</th>
+                    <th scope="col" className={th}>SHA-256</th>
+                    <th scope="col" className={th}>Uploaded</th>
+                    <th scope="col" className={th}>
+                      <span className="sr-only">Actions</span>
+                    </th>
+                  </tr>
+                </thead>
+                <tbody className="divide-y divide-line">
+                  {list.data.snapshots.map((snapshot) => (
+                    <tr key={snapshot.id}>
+                      <td className={`${td} font-medium`}>{snapshot.name}</td>
+                      <td className={`${td} font-mono`}>v{snapshot.version}</td>
+                      <td className={td}>{snapshot.bodyCount}</td>
+                      <td className={td}>{snapshot.wallCount}</td>
+                      <td className={`${td} font-mono text-xs`} title={snapshot.contentHash}>
+                        {snapshot.contentHash.slice(0, 12)}…
+                      </td>
+                      <td className={td}>{formatDateTime(snapshot.createdAt)}</td>
+                      <td className={`${td} space-x-3 whitespace-nowrap`}>
+                        <a href={`${snapshotsPath(studioId)}/${snapshot.id}/file`} className="text-action hover:underline">
+                          Original file
+                        </a>
+                        {canWrite ? (
+                          <Link href={`/studios/${studioId}/sweeps/new?snapshot=${encodeURIComponent(snapshot.id)}`} className="text-action hover:underline">
+                            New sweep from this snapshot
+                          </Link>
+                        ) : null}
+                      </td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          )}
+        </Card>
+      </div>
+    </StudioShell>
+  );
+}
+
+interface Loaded {
+  fileName: string;
+  bytes: Uint8Array;
+  parsed: ParseSnapshotResult;
+}
+
+function UploadCard({ studioId }: { studioId: string }) {
+  const queryClient = useQueryClient();
+  const inputId = useId();
+  const inputRef = useRef<HTMLInputElement>(null);
+  const [loaded, setLoaded] = useState<Loaded | null>(null);
+  const [name, setName] = useState("");
+  const [dragging, setDragging] = useState(false);
+  const [saving, setSaving] = useState(false);
+  const [saved, setSaved] = useState<SnapshotDetail | null>(null);
+  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
+
+  const problems = loaded && !loaded.parsed.ok ? loaded.parsed.problems : [];
+  const canSave = loaded !== null && loaded.parsed.ok && !saving;
+
+  async function take(file: File) {
+    setServerError(null);
+    setSaved(null);
+    const bytes = new Uint8Array(await file.arrayBuffer());
+    const parsed = parseSnapshotFile(bytes);
+    setLoaded({ fileName: file.name, bytes, parsed });
+    setName(parsed.ok && parsed.snapshot.name ? parsed.snapshot.name : file.name.replace(/\.[^.]*$/, ""));
+  }
+
+  function onDrop(event: DragEvent<HTMLDivElement>) {
+    event.preventDefault();
+    setDragging(false);
+    const file = event.dataTransfer.files[0];
+    if (file) void take(file);
+  }
+
+  async function save() {
+    if (!loaded) return;
+    setSaving(true);
+    setServerError(null);
+    try {
+      const form = new FormData();
+      form.set("file", new Blob([loaded.bytes as BlobPart], { type: "application/json" }), loaded.fileName);
+      if (name.trim()) form.set("name", name.trim());
+      const response = await fetch(snapshotsPath(studioId), { method: "POST", body: form, credentials: "same-origin", cache: "no-store", headers: { accept: "application/json" } });
+      const body = (await response.json().catch(() => ({}))) as { snapshot?: SnapshotDetail; error?: { code?: string; message?: string; field?: string; issues?: { field: string; message: string }[] } };
+      if (!response.ok || !body.snapshot) {
+        const error = body.error ?? {};
+        throw new ApiClientError(response.status, error.code ?? `http_${response.status}`, error.message ?? `The server answered ${response.status}.`, error.field, error.issues ?? []);
+      }
+      setSaved(body.snapshot);
+      setLoaded(null);
+      if (inputRef.current) inputRef.current.value = "";
+      await queryClient.invalidateQueries({ queryKey: listKey(studioId) });
+    } catch (error) {
+      setServerError(error instanceof Error ? error : new Error(String(error)));
+    } finally {
+      setSaving(false);
+    }
+  }
+
+  return (
+    <Card title="Upload a snapshot">
+      <div className="space-y-4">
+        <p className="text-sm text-ink-muted">
+          A JSON file with <code className="font-mono text-xs">bodies</code> (each <code className="font-mono text-xs">xM, yM, vxMPerS, vyMPerS, massKg, radiusM</code>), optional{" "}
+          <code className="font-mono text-xs">walls</code> (each <code className="font-mono text-xs">normalX, normalY, offsetM</code>), <code className="font-mono text-xs">gravityMPerS2</code> and{" "}
+          <code className="font-mono text-xs">name</code>. At most {SNAPSHOT_LIMITS.maxBodies.toLocaleString("en-US")} discs, {SNAPSHOT_LIMITS.maxWalls} walls and {SNAPSHOT_LIMITS.maxFileBytes / (1024 * 1024)} MiB;
+          discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.
+        </p>
+        <div
+          onDragOver={(event) => {
+            event.preventDefault();
+            setDragging(true);
+          }}
+          onDragLeave={() => setDragging(false)}
+          onDrop={onDrop}
+          className={cx("rounded-lg border-2 border-dashed p-6 text-center", dragging ? "border-action bg-surface-muted" : "border-line")}
+          data-testid="snapshot-drop-zone"
+        >
+          <label htmlFor={inputId} className="block text-sm font-medium">
+            Drop a snapshot file here, or choose one
+          </label>
+          <input
+            ref={inputRef}
+            id={inputId}
+            type="file"
+            accept=".json,application/json"
+            className="mx-auto mt-2 block text-sm"
+            data-testid="snapshot-file"
+            onChange={(event) => {
+              const file = event.target.files?.[0];
+              if (file) void take(file);
+            }}
+          />
+        </div>
+        {saved ? (
+          <Alert tone="ok">
+            Saved {saved.name} v{saved.version} ({saved.bodyCount} discs, {saved.wallCount} walls).{" "}
+            <Link href={`/studios/${studioId}/sweeps/new?snapshot=${encodeURIComponent(saved.id)}`} className="font-medium text-action hover:underline">
+              New sweep from this snapshot
+            </Link>
+          </Alert>
+        ) : null}
+        {loaded ? (
+          <div className="space-y-4">
+            <TextField id="snapshot-name" label="Snapshot name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={SNAPSHOT_LIMITS.maxNameLength} />
+            {problems.length > 0 ? (
+              <div role="alert" className="rounded-md border border-danger/60 bg-danger-soft p-3 text-sm" data-testid="snapshot-problems">
+                <p className="font-semibold">
+                  {problems.length === 1 ? "1 problem" : `${problems.length} problems`} in {loaded.fileName}; fix {problems.length === 1 ? "it" : "them"} in the file and choose it again:
+                </p>
+                <ul className="mt-2 list-disc space-y-1 pl-5">
+                  {problems.map((problem, i) => (
+                    <li key={i} data-testid="snapshot-problem">
+                      <code className="font-mono text-xs">{problem.path}</code>: {problem.reason}
+                    </li>
+                  ))}
+                </ul>
+              </div>
+            ) : loaded.parsed.ok ? (
+              <Alert tone="ok">
+                {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid.
+              </Alert>
+            ) : null}
+            {serverError ? (
+              <Alert>
+                {serverError.message}
+                {serverError instanceof ApiClientError && serverError.issues.length > 1 ? (
+                  <ul className="mt-1 list-disc pl-5">
+                    {serverError.issues.map((issue, i) => (
+                      <li key={i}>
+                        <code className="font-mono text-xs">{issue.field}</code>: {issue.message}
+                      </li>
+                    ))}
+                  </ul>
+                ) : null}
+              </Alert>
+            ) : null}
+            <div className="flex gap-3">
+              <Button onClick={() => void save()} disabled={!canSave} data-testid="snapshot-save">
+                {saving ? "Saving…" : "Save snapshot"}
+              </Button>
+              <Button
+                variant="secondary"
+                onClick={() => {
+                  setLoaded(null);
+                  setServerError(null);
+                  if (inputRef.current) inputRef.current.value = "";
+                }}
+              >
+                Discard
+              </Button>
+            </div>
+          </div>
+        ) : null}
+      </div>
+    </Card>
+  );
+}

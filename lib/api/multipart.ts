@@ -1,0 +1,52 @@
+import { ApiError } from "@/lib/errors";
+
+export interface UploadedFile {
+  fileName: string;
+  mediaType: string;
+  bytes: Uint8Array;
+}
+
+/**
+ * Reads a multipart/form-data body of at most `limit` bytes (never buffers more) and returns its
+ * text fields and its first file field. A body over the limit is a 413 naming the limit.
+ */
+export async function readMultipart(req: Request, limit: number, fileLimitText: string): Promise<{ fields: Map<string, string>; file: UploadedFile | null }> {
+  const type = req.headers.get("content-type") ?? "";
+  if (!/^multipart\/form-data\s*;/i.test(type)) {
+    throw new ApiError(415, "validation_failed", 'The body must be multipart/form-data with the file in a field named "file" (curl -F file=@catalogue.csv).', "file");
+  }
+  const tooLarge = () => new ApiError(413, "payload_too_large", `file: the upload exceeds the limit (${fileLimitText}).`, "file");
+  const declared = req.headers.get("content-length");
+  if (declared !== null && Number(declared) > limit) throw tooLarge();
+  const chunks: Uint8Array[] = [];
+  let total = 0;
+  if (req.body) {
+    const reader = req.body.getReader();
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) break;
+      total += value.byteLength;
+      if (total > limit) {
+        await reader.cancel().catch(() => undefined);
+        throw tooLarge();
+      }
+      chunks.push(value);
+    }
+  }
+  let form: FormData;
+  try {
+    form = await new Response(Buffer.concat(chunks), { headers: { "content-type": type } }).formData();
+  } catch {
+    throw new ApiError(400, "validation_failed", "The multipart body could not be read.", "file");
+  }
+  const fields = new Map<string, string>();
+  let file: UploadedFile | null = null;
+  for (const [key, value] of form.entries()) {
+    if (typeof value === "string") {
+      if (!fields.has(key)) fields.set(key, value);
+    } else if (key === "file" && file === null) {
+      file = { fileName: value.name || "catalogue", mediaType: value.type, bytes: new Uint8Array(await value.arrayBuffer()) };
+    }
+  }
+  return { fields, file };
+}

@@ -1,0 +1,101 @@
+/**
+ * Exports of a check for a game's config: the pair matrix (one row per pair) and the
+ * recommendation, as CSV and JSON. CSV text cells go through the results serialiser's formula
+ * guard and RFC 4180 quoting (lib/sweeps/results.ts), so an object named "=cmd|…" is written as
+ * text a spreadsheet will not run.
+ *
+ * Pure: safe to import in the browser.
+ */
+import { VERDICTS } from "../physics/types";
+import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
+import type { CheckSettings, PairMatrix, Recommendation } from "./check";
+
+function text(value: string): string {
+  return quoteCsvField(guardFormula(value));
+}
+
+function num(value: number | null): string {
+  return value === null || !Number.isFinite(value) ? "" : formatNumber(value);
+}
+
+export const PAIR_CSV_COLUMNS = [
+  "pair",
+  "object_a",
+  "object_b",
+  "closing_speed_m_per_s",
+  "stiffness",
+  "worst_verdict",
+  "highest_stable_speed_m_per_s",
+  "bound_margin",
+  "cells",
+  ...VERDICTS.map((verdict) => `cells_${verdict.replace("-", "_")}`),
+] as const;
+
+/** One row per pair (catalogue order), CRLF line ends. */
+export function pairMatrixCsv(matrix: PairMatrix): string {
+  const lines = [PAIR_CSV_COLUMNS.join(",")];
+  for (const pair of matrix.pairs) {
+    lines.push(
+      [
+        text(pair.name),
+        text(pair.a),
+        text(pair.b),
+        num(pair.closingSpeedMPerS),
+        num(pair.stiffness),
+        text(pair.worstVerdict ?? ""),
+        num(pair.highestStableSpeedMPerS),
+        num(pair.boundMargin),
+        String(pair.cellsDone),
+        ...VERDICTS.map((verdict) => String(pair.counts[verdict])),
+      ].join(","),
+    );
+  }
+  return `${lines.join("\r\n")}\r\n`;
+}
+
+/** The recommendation as setting,value,unit,note rows. */
+export function recommendationCsv(settings: CheckSettings, recommendation: Recommendation): string {
+  const rows: [string, number | string | null, string, string][] = [
+    ["dt", settings.dtS, "s", "frame step of the check"],
+    ["substeps", settings.substeps, "", "substeps of the check"],
+    ["integrator", settings.integrator, "", ""],
+    ["contact_model", settings.contactModel, "", ""],
+    ["margin", recommendation.margin, "", "share of the bound omega*h < 2 kept in reserve"],
+    ["lightest_reduced_mass", recommendation.lightestReducedMassKg, "kg", recommendation.lightestPair],
+    ["recommended_stiffness", recommendation.stiffness, settings.contactModel === "linear" ? "N/m" : "N/m^1.5", recommendation.stiffnessNote],
+    ["recommended_substeps", recommendation.substeps, "", recommendation.substepsNote],
+  ];
+  const lines = ["setting,value,unit,note"];
+  for (const [name, value, unit, note] of rows) lines.push([text(name), typeof value === "string" ? text(value) : num(value), text(unit), text(note)].join(","));
+  return `${lines.join("\r\n")}\r\n`;
+}
+
+/** Everything a game's config needs, as one JSON document. */
+export function checkExportJson(input: { checkId: string; catalogue: { name: string; version: number; contentHash: string }; settings: CheckSettings; matrix: PairMatrix; recommendation: Recommendation }): string {
+  const { matrix } = input;
+  return `${JSON.stringify(
+    {
+      format: "kickdrift-catalogue-check",
+      version: 1,
+      checkId: input.checkId,
+      catalogue: input.catalogue,
+      settings: input.settings,
+      complete: matrix.complete,
+      pairsAtRisk: matrix.atRisk,
+      pairs: matrix.pairs.map((pair) => ({
+        pair: pair.name,
+        objectA: pair.a,
+        objectB: pair.b,
+        closingSpeedMPerS: pair.closingSpeedMPerS,
+        stiffness: pair.stiffness,
+        worstVerdict: pair.worstVerdict,
+        highestStableSpeedMPerS: pair.highestStableSpeedMPerS,
+        boundMargin: Number.isFinite(pair.boundMargin) ? pair.boundMargin : null,
+        counts: pair.counts,
+      })),
+      recommendation: input.recommendation,
+    },
+    null,
+    2,
+  )}\n`;
+}

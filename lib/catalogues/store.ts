@@ -1,0 +1,311 @@
+/**
+ * Catalogues and their checks in the database, scoped by studio. A catalogue is stored only when
+ * its file has no problem; each upload under a name is that name's next version. A check builds
+ * its pair sweep and goes through the same quote → submit → queue runner → ledger path as every
+ * sweep; its results are read back only through lib/queue/views.ts.
+ */
+import { createHash } from "node:crypto";
+import { and, asc, desc, eq, max } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { newId } from "@/db/ids";
+import { catalogueChecks, catalogues, sweeps, type Catalogue, type CatalogueCheck } from "@/db/schema";
+import { ApiError, type FieldIssue } from "@/lib/errors";
+import { quoteSweep, submitSweep, type Quote } from "@/lib/queue/submit";
+import { storedCells, sweepView, type SweepView } from "@/lib/queue/views";
+import { canonicalJson } from "@/lib/sweeps/canonical";
+import { formatLimit } from "@/lib/sweeps/parameters";
+import { CheckInputError, checkSettingsSchema, checkSpec, pairMatrix, recommend, type CheckSettings, type PairMatrix, type Recommendation } from "./check";
+import { CATALOGUE_LIMITS, describeProblem, parseCatalogueFile, type CatalogueObject, type CatalogueProblem } from "./format";
+
+export function contentHash(bytes: Uint8Array): string {
+  return createHash("sha256").update(bytes).digest("hex");
+}
+
+function problemField(problem: CatalogueProblem): string {
+  return ["file", problem.row !== null ? `row ${problem.row}` : null, problem.column].filter(Boolean).join(".");
+}
+
+/** Every problem of a file as one 422, each issue naming its row and column. */
+export function catalogueProblemsError(problems: readonly CatalogueProblem[]): ApiError {
+  const issues: FieldIssue[] = problems.map((problem) => ({ field: problemField(problem), message: describeProblem(problem) }));
+  const summary = problems.length === 1 ? describeProblem(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describeProblem).join("; ")}${problems.length > 3 ? "; …" : ""}`;
+  return new ApiError(422, "invalid_catalogue", `The catalogue was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
+}
+
+export interface CatalogueUpload {
+  name?: string;
+  fileName: string;
+  mediaType: string;
+  bytes: Uint8Array;
+  createdByUserId: string | null;
+}
+
+export interface CatalogueSummary {
+  id: string;
+  name: string;
+  version: number;
+  contentHash: string;
+  fileName: string;
+  fileBytes: number;
+  format: "csv" | "json";
+  objectCount: number;
+  createdAt: string;
+}
+
+export interface CatalogueDetail extends CatalogueSummary {
+  objects: CatalogueObject[];
+  notes: string[];
+  /** Every version of the same name, newest first. */
+  versions: CatalogueSummary[];
+}
+
+export function catalogueSummary(row: Catalogue): CatalogueSummary {
+  return {
+    id: row.id,
+    name: row.name,
+    version: row.version,
+    contentHash: row.contentHash,
+    fileName: row.fileName,
+    fileBytes: row.fileBytes,
+    format: row.format,
+    objectCount: row.objectCount,
+    createdAt: row.createdAt.toISOString(),
+  };
+}
+
+function catalogueNameOf(upload: CatalogueUpload): string {
+  const name = (upload.name ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
+  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError(400, "validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
+  if (name === "") throw new ApiError(400, "validation_failed", "name: a catalogue needs a name (or a file name to take it from).", "name");
+  if (name.length > CATALOGUE_LIMITS.maxCatalogueNameLength) {
+    throw new ApiError(400, "validation_failed", `name: at most ${CATALOGUE_LIMITS.maxCatalogueNameLength} characters; got ${name.length}.`, "name");
+  }
+  return name;
+}
+
+/** Parses, checks and stores a catalogue file as the next version of its name; nothing is stored on any problem. */
+export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueUpload): Promise<{ catalogue: Catalogue; notes: string[] }> {
+  const name = catalogueNameOf(upload);
+  if (upload.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
+    throw new ApiError(413, "payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "file");
+  }
+  const parsed = parseCatalogueFile(upload.bytes, upload.fileName);
+  if (!parsed.objects) throw catalogueProblemsError(parsed.problems);
+  const objects = parsed.objects;
+  const hash = contentHash(upload.bytes);
+  for (let attempt = 0; ; attempt++) {
+    try {
+      const catalogue = await db.transaction(async (tx) => {
+        const [{ latest }] = await tx
+          .select({ latest: max(catalogues.version) })
+          .from(catalogues)
+          .where(and(eq(catalogues.studioId, studioId), eq(catalogues.name, name)));
+        const [row] = await tx
+          .insert(catalogues)
+          .values({
+            id: newId("cat"),
+            studioId,
+            name,
+            version: (latest ?? 0) + 1,
+            contentHash: hash,
+            fileName: upload.fileName.replace(/[\u0000-\u001f\u007f]/g, "").slice(0, 200) || "catalogue",
+            mediaType: parsed.format === "json" ? "application/json" : "text/csv",
+            fileBase64: Buffer.from(upload.bytes).toString("base64"),
+            fileBytes: upload.bytes.length,
+            format: parsed.format,
+            objects,
+            objectCount: objects.length,
+            createdByUserId: upload.createdByUserId,
+          })
+          .returning();
+        return row;
+      });
+      return { catalogue, notes: parsed.notes };
+    } catch (error) {
+      // Two uploads of one name at once: the unique (studio, name, version) index refuses the second; take the next number.
+      if (attempt < 2 && /catalogues_studio_name_version_uq|duplicate key/.test(String((error as { cause?: unknown }).cause ?? error))) continue;
+      throw error;
+    }
+  }
+}
+
+export async function listCatalogues(db: Db, studioId: string): Promise<CatalogueSummary[]> {
+  const rows = await db.select().from(catalogues).where(eq(catalogues.studioId, studioId)).orderBy(asc(catalogues.name), desc(catalogues.version));
+  return rows.map(catalogueSummary);
+}
+
+export async function catalogueOfStudio(db: Db, studioId: string, catalogueId: string): Promise<Catalogue> {
+  const [row] = await db
+    .select()
+    .from(catalogues)
+    .where(and(eq(catalogues.id, catalogueId), eq(catalogues.studioId, studioId)));
+  if (!row) throw new ApiError(404, "not_found", "Catalogue not found.");
+  return row;
+}
+
+export async function catalogueDetail(db: Db, row: Catalogue): Promise<CatalogueDetail> {
+  const versions = await db
+    .select()
+    .from(catalogues)
+    .where(and(eq(catalogues.studioId, row.studioId), eq(catalogues.name, row.name)))
+    .orderBy(desc(catalogues.version));
+  return { ...catalogueSummary(row), objects: row.objects as CatalogueObject[], notes: [], versions: versions.map(catalogueSummary) };
+}
+
+export function catalogueFileBytes(row: Catalogue): Uint8Array {
+  return new Uint8Array(Buffer.from(row.fileBase64, "base64"));
+}
+
+// ---------------------------------------------------------------------------
+// Checks
+
+export function parseSettingsOrThrow(input: unknown): CheckSettings {
+  if (input === undefined) throw new ApiError(400, "invalid_settings", "settings: the game's settings are required (dtS, substeps, integrator, stiffness …).", "settings");
+  const parsed = checkSettingsSchema.safeParse(input);
+  if (parsed.success) return parsed.data;
+  const issues = parsed.error.issues.map((issue) => {
+    const field = ["settings", ...issue.path.map(String), ...(issue.code === "unrecognized_keys" ? [issue.keys[0]] : [])].join(".");
+    return { field, message: issue.code === "unrecognized_keys" ? `unknown field "${issue.keys.join(", ")}"` : issue.message };
+  });
+  return (() => {
+    throw new ApiError(400, "invalid_settings", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
+  })();
+}
+
+/** The sweep spec of a check, with input problems as 400s naming the settings field. */
+export function specOfCheck(catalogue: Catalogue, settings: CheckSettings) {
+  try {
+    return checkSpec(catalogue.name, catalogue.version, catalogue.objects as CatalogueObject[], settings);
+  } catch (error) {
+    if (error instanceof CheckInputError) throw new ApiError(400, "invalid_settings", `settings.${error.field}: ${error.message}`, `settings.${error.field}`);
+    throw error;
+  }
+}
+
+export async function quoteCheck(db: Db, studioId: string, catalogue: Catalogue, settingsInput: unknown): Promise<{ quote: Quote; settings: CheckSettings; cells: number }> {
+  const settings = parseSettingsOrThrow(settingsInput);
+  const spec = specOfCheck(catalogue, settings);
+  const quote = await quoteSweep(db, studioId, spec);
+  return { quote, settings, cells: quote.cells };
+}
+
+export async function submitCheck(
+  db: Db,
+  studioId: string,
+  catalogue: Catalogue,
+  input: { settings: unknown; acceptedQuoteMs?: number; createdByUserId: string | null },
+): Promise<CatalogueCheck> {
+  const settings = parseSettingsOrThrow(input.settings);
+  const spec = specOfCheck(catalogue, settings);
+  const sweep = await submitSweep(db, studioId, { spec, createdByUserId: input.createdByUserId, acceptedQuoteMs: input.acceptedQuoteMs });
+  const [check] = await db
+    .insert(catalogueChecks)
+    .values({ id: newId("chk"), studioId, catalogueId: catalogue.id, sweepId: sweep.id, settings, createdByUserId: input.createdByUserId })
+    .returning();
+  return check;
+}
+
+export async function checkOfCatalogue(db: Db, catalogue: Catalogue, checkId: string): Promise<CatalogueCheck> {
+  const [row] = await db
+    .select()
+    .from(catalogueChecks)
+    .where(and(eq(catalogueChecks.id, checkId), eq(catalogueChecks.catalogueId, catalogue.id), eq(catalogueChecks.studioId, catalogue.studioId)));
+  if (!row) throw new ApiError(404, "not_found", "Catalogue check not found.");
+  return row;
+}
+
+export interface CheckSummary {
+  id: string;
+  catalogueId: string;
+  createdAt: string;
+  settings: CheckSettings;
+  sweepId: string;
+  status: string;
+  cells: number;
+  cellsDone: number;
+}
+
+export async function listChecks(db: Db, catalogue: Catalogue): Promise<CheckSummary[]> {
+  const rows = await db
+    .select({ check: catalogueChecks, sweep: sweeps })
+    .from(catalogueChecks)
+    .innerJoin(sweeps, eq(sweeps.id, catalogueChecks.sweepId))
+    .where(and(eq(catalogueChecks.catalogueId, catalogue.id), eq(catalogueChecks.studioId, catalogue.studioId)))
+    .orderBy(desc(catalogueChecks.createdAt), desc(catalogueChecks.id));
+  return rows.map(({ check, sweep }) => ({
+    id: check.id,
+    catalogueId: check.catalogueId,
+    createdAt: check.createdAt.toISOString(),
+    settings: check.settings as CheckSettings,
+    sweepId: sweep.id,
+    status: sweep.status,
+    cells: sweep.cells,
+    cellsDone: sweep.cellsDone,
+  }));
+}
+
+export interface Confirmation {
+  /** The settings a confirming check runs with: the game's, at the recommended stiffness. */
+  settings: CheckSettings;
+  /** The latest check of this catalogue with exactly those settings, if any. */
+  checkId: string | null;
+  status: "not-run" | "running" | "confirmed" | "refuted";
+  /** Pairs not stable at the recommended stiffness (when refuted). */
+  pairsAtRisk: string[];
+}
+
+export interface CheckView {
+  id: string;
+  catalogue: CatalogueSummary;
+  objects: CatalogueObject[];
+  settings: CheckSettings;
+  sweep: SweepView;
+  matrix: PairMatrix;
+  recommendation: Recommendation;
+  confirmation: Confirmation | null;
+}
+
+/** The settings of a check confirming the recommended single stiffness. */
+export function confirmationSettings(settings: CheckSettings, recommendation: Recommendation): CheckSettings | null {
+  if (recommendation.stiffness === null) return null;
+  const { groupStiffness: _ignored, ...rest } = settings;
+  void _ignored;
+  return { ...rest, stiffness: recommendation.stiffness };
+}
+
+export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCheck): Promise<CheckView> {
+  const [sweep] = await db.select().from(sweeps).where(eq(sweeps.id, check.sweepId));
+  const objects = catalogue.objects as CatalogueObject[];
+  const settings = checkSettingsSchema.parse(check.settings);
+  const cells = await storedCells(db, sweep);
+  const recommendation = recommend(objects, settings);
+  const wanted = confirmationSettings(settings, recommendation);
+  let confirmation: Confirmation | null = null;
+  if (wanted) {
+    confirmation = { settings: wanted, checkId: null, status: "not-run", pairsAtRisk: [] };
+    const key = canonicalJson(wanted);
+    for (const other of await listChecks(db, catalogue)) {
+      if (canonicalJson(checkSettingsSchema.parse(other.settings)) !== key) continue;
+      confirmation.checkId = other.id;
+      if (other.status !== "done") {
+        confirmation.status = "running";
+      } else {
+        const [otherSweep] = await db.select().from(sweeps).where(eq(sweeps.id, other.sweepId));
+        const matrix = pairMatrix(objects, wanted, await storedCells(db, otherSweep));
+        confirmation.pairsAtRisk = matrix.atRisk;
+        confirmation.status = matrix.complete && matrix.atRisk.length === 0 ? "confirmed" : "refuted";
+      }
+      break;
+    }
+  }
+  return {
+    id: check.id,
+    catalogue: catalogueSummary(catalogue),
+    objects,
+    settings,
+    sweep: await sweepView(db, sweep),
+    matrix: pairMatrix(objects, settings, cells),
+    recommendation,
+    confirmation,
+  };
+}

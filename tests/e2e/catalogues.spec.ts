@@ -1,0 +1,86 @@
+import { expect, test } from "@playwright/test";
+import { CRATESLIDE_CATALOGUE_CSV } from "../../lib/catalogues/demo";
+import { signInWithPassword } from "./helpers";
+
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+
+/** Crateslide's catalogue with three mistakes: a mass that is a word, a restitution above 1, a name used twice. */
+const WITH_MISTAKES = CRATESLIDE_CATALOGUE_CSV.replace("coin,0.6,", "coin,heavy,").replace("barrel,5,0.45,2,0.3", "barrel,5,0.45,2,1.7").replace("bumper,", "Crate,");
+
+test("an engineer uploads a catalogue with three mistakes, fixes them in the table, runs a check and opens the riskiest pair", async ({ page }) => {
+  test.setTimeout(180_000);
+  const pageErrors: string[] = [];
+  page.on("pageerror", (error) => pageErrors.push(error.message));
+
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
+  await expect(page.getByRole("heading", { name: "Upload a catalogue" })).toBeVisible();
+  // The demo catalogue is listed already.
+  await expect(page.getByTestId("catalogues-table")).toContainText("Crateslide objects");
+
+  // --- The file with three mistakes: all three named at once with their rows; nothing can be saved yet.
+  await page.getByTestId("catalogue-file").setInputFiles({ name: "crateslide-new.csv", mimeType: "text/csv", buffer: Buffer.from(WITH_MISTAKES) });
+  const problems = page.getByTestId("catalogue-problem");
+  await expect(problems).toHaveCount(3);
+  await expect(problems.nth(0)).toHaveText('Row 3, mass_kg: not a number: "heavy" (mass in kg)');
+  await expect(problems.nth(1)).toHaveText("Row 4, restitution: out of range: restitution must be > 0 and ≤ 1; got 1.7");
+  await expect(problems.nth(2)).toHaveText('Row 6, name: duplicate name "Crate": row 2 already uses it (names are compared ignoring case)');
+  await expect(page.getByLabel("Row 3, mass_kg")).toHaveAttribute("aria-invalid", "true");
+  await expect(page.getByTestId("catalogue-save")).toBeDisabled();
+
+  // --- Fixed in the table, one by one: the list shrinks as each is fixed.
+  await page.getByLabel("Row 3, mass_kg").fill("0.6");
+  await expect(problems).toHaveCount(2);
+  await page.getByLabel("Row 4, restitution").fill("0.3");
+  await page.getByLabel("Row 6, name").fill("bumper");
+  await expect(problems).toHaveCount(0);
+  await expect(page.getByText("5 objects, every row valid (fixed here; saved as CSV).")).toBeVisible();
+  await page.getByLabel("Catalogue name").fill("Crateslide objects, spring build");
+  await page.getByTestId("catalogue-save").click();
+
+  // --- The saved version: its objects, its hash, the original file.
+  await expect(page.getByTestId("catalogue-title")).toContainText("Crateslide objects, spring build v1");
+  await expect(page.getByTestId("catalogue-objects")).toContainText("bumper");
+  await expect(page.getByTestId("catalogue-hash")).toHaveText(/^[0-9a-f]{64}$/);
+  await expect(page.getByRole("link", { name: "Download original file" })).toBeVisible();
+
+  // --- A check with the game's settings (the form's defaults: 60 Hz, 16 substeps, 1.5e6 N/m): quote, then run.
+  await page.getByRole("button", { name: "Get quote" }).click();
+  await expect(page.getByTestId("check-quote")).toContainText("180 cells");
+  await page.getByTestId("check-run").click();
+  await expect(page).toHaveURL(/\/checks\/chk_/);
+
+  // --- The pair matrix fills; the summary names the pairs at risk and the recommendation.
+  const matrix = page.getByTestId("pair-matrix");
+  await expect(matrix.locator("button[data-verdict]")).toHaveCount(25);
+  await expect(matrix.locator('button[data-verdict="pending"]')).toHaveCount(0, { timeout: 60_000 });
+  const summary = page.getByTestId("check-summary");
+  await expect(summary).toContainText("pairs are at risk");
+  await expect(page.getByTestId("recommended-stiffness")).toHaveText("44,240 N/m");
+
+  // --- Open the riskiest pair: its numbers and its stability map.
+  const riskiest = (await summary.locator("strong").nth(1).textContent())!.trim();
+  await page.getByTestId("open-riskiest").click();
+  await expect(page.getByTestId("pair-title")).toHaveText(riskiest);
+  await expect(matrix.locator(`button[data-pair="${riskiest}"][aria-pressed="true"]`).first()).toBeVisible();
+  await expect(page.getByTestId("pair-detail")).toContainText("Margin to the bound");
+  // The pair's stability map: 6 closing speeds across, 2 impact offsets up, drawn (it publishes its plot rectangle).
+  const map = page.getByRole("application", { name: `${riskiest}: verdict by closing speed and impact offset map, 6 by 2 cells, Closing speed across, Impact offset up.` });
+  await expect(map).toBeVisible();
+  await expect(map).toHaveAttribute("data-plot", /^[\d.]+,[\d.]+,[\d.]+,[\d.]+$/);
+
+  // --- The pair matrix downloads as CSV for the game's config.
+  const download = page.waitForEvent("download");
+  await page.getByTestId("export-pairs-csv").click();
+  const file = await download;
+  expect(file.suggestedFilename()).toMatch(/^chk_.*-pairs\.csv$/);
+
+  // --- The check is an ordinary sweep too: its page draws the map with the pair as one more axis.
+  await page.getByRole("link", { name: /^sweep swp_/ }).click();
+  await expect(page).toHaveURL(/\/sweeps\/swp_/);
+  await expect(page.getByRole("application").first()).toHaveAttribute("data-plot", /^[\d.]+,/);
+
+  expect(pageErrors).toEqual([]);
+});

@@ -1,0 +1,62 @@
+import { expect, test } from "@playwright/test";
+import { CRATESLIDE_SNAPSHOT_JSON } from "../../lib/snapshots/demo";
+import { signInWithPassword } from "./helpers";
+
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+
+/** Two mistakes: a negative mass and a crate pushed into its neighbour. */
+const WITH_MISTAKES = JSON.stringify({
+  bodies: [
+    { xM: 1, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: -25, radiusM: 0.3 },
+    { xM: 3, yM: 1, vxMPerS: -1, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
+    { xM: 3.3, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
+  ],
+});
+
+test("an engineer uploads a snapshot, sees its problems by JSON path, saves the loading bay and runs a sweep over it", async ({ page }) => {
+  test.setTimeout(180_000);
+  const pageErrors: string[] = [];
+  page.on("pageerror", (error) => pageErrors.push(error.message));
+
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Snapshots" }).click();
+  await expect(page.getByRole("heading", { name: "Upload a snapshot" })).toBeVisible();
+  // The demo snapshot is listed already.
+  await expect(page.getByTestId("snapshots-table")).toContainText("Crateslide loading bay");
+
+  // --- A file with two mistakes: both named at once with their paths; nothing can be saved.
+  await page.getByTestId("snapshot-file").setInputFiles({ name: "bay-broken.json", mimeType: "application/json", buffer: Buffer.from(WITH_MISTAKES) });
+  const problems = page.getByTestId("snapshot-problem");
+  await expect(problems).toHaveCount(2);
+  await expect(problems.nth(0)).toHaveText("bodies.0.massKg: mass must be > 0 and ≤ 1,000,000 (kg); got -25");
+  // Bodies 1 and 2 start 0.3 m apart with radii 0.3 m: 0.3 m of overlap, 100 % of the smaller radius.
+  await expect(problems.nth(1)).toHaveText("bodies.1: bodies 1 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)");
+  await expect(page.getByTestId("snapshot-save")).toBeDisabled();
+
+  // --- The example file: valid, saved, listed.
+  await page.getByTestId("snapshot-file").setInputFiles({ name: "crateslide-loading-bay.json", mimeType: "application/json", buffer: Buffer.from(CRATESLIDE_SNAPSHOT_JSON) });
+  await expect(page.getByText("41 discs and 4 walls, every field valid.")).toBeVisible();
+  await page.getByLabel("Snapshot name").fill("Loading bay, night shift");
+  await page.getByTestId("snapshot-save").click();
+  await expect(page.getByText(/Saved Loading bay, night shift v1 \(41 discs, 4 walls\)/)).toBeVisible();
+  await expect(page.getByTestId("snapshots-table")).toContainText("Loading bay, night shift");
+
+  // --- New sweep from it: the builder opens on the snapshot's scene; quote, confirm, run, done.
+  await page.getByText(/Saved Loading bay/).getByRole("link", { name: "New sweep from this snapshot" }).click();
+  await expect(page).toHaveURL(/\/sweeps\/new\?snapshot=/);
+  await expect(page.getByTestId("snapshot-scene-summary")).toContainText("41 discs and 4 walls");
+  await expect(page.getByTestId("quote-panel").getByTestId("quote-cells")).toHaveText("25");
+  await page.getByRole("button", { name: "Review and run" }).click();
+  // The spec goes by reference to the stored snapshot (its discs unchanged), so a large snapshot fits the JSON body limit.
+  const submitted = page.waitForRequest((request) => request.method() === "POST" && /\/api\/v1\/studios\/[^/]+\/sweeps$/.test(new URL(request.url()).pathname));
+  await page.getByTestId("confirm-sweep").getByRole("button", { name: "Run sweep" }).click();
+  const scene = ((await submitted).postDataJSON() as { spec: { scenario: { scene: Record<string, unknown> } } }).spec.scenario.scene;
+  expect(scene).toMatchObject({ kind: "snapshot", snapshotId: expect.stringMatching(/^snp_/) });
+  expect(scene).not.toHaveProperty("bodies");
+  await expect(page).toHaveURL(/\/sweeps\/(?!new)[^/?]+$/);
+  await expect(page.getByTestId("sweep-progress")).toHaveAttribute("aria-valuenow", "100", { timeout: 90_000 });
+  await expect(page.getByTestId("sweep-status").first()).toHaveText("done");
+  expect(pageErrors).toEqual([]);
+});
