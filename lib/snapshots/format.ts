@@ -7,7 +7,8 @@
  * Pure: safe to import in the browser (the upload page checks before sending; the server again).
  */
 import { z } from "zod";
-import type { SnapshotScene } from "../physics/types";
+import { describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
+import type { SnapshotBody, SnapshotScene, SnapshotWall } from "../physics/types";
 import { SPEC_LIMITS, formatLimit, numericRule } from "../sweeps/parameters";
 import { addSnapshotOverlapIssues, snapshotBodiesSchema, snapshotWallsSchema } from "../sweeps/spec";
 
@@ -94,6 +95,9 @@ export function parseSnapshotValue(json: unknown): ParseSnapshotResult {
       problems.push({ path: base.join(".") || "(file)", reason: issue.message });
     }
   }
+  for (const problem of overlapsAmongSoundEntries(json)) {
+    if (!problems.some((known) => known.path === problem.path && known.reason === problem.reason)) problems.push(problem);
+  }
   // Whole-array problems (the body and wall limits) first; then at most MAX_LISTED_PROBLEMS in file order.
   const whole = problems.filter((problem) => problem.path === "bodies" || problem.path === "walls" || problem.path === "(file)");
   const ordered = [...whole, ...problems.filter((problem) => !whole.includes(problem))];
@@ -101,6 +105,36 @@ export function parseSnapshotValue(json: unknown): ParseSnapshotResult {
   const listed = ordered.slice(0, MAX_LISTED_PROBLEMS);
   listed.push({ path: "(file)", reason: `and ${formatLimit(ordered.length - MAX_LISTED_PROBLEMS)} more problems not listed` });
   return { ok: false, problems: listed };
+}
+
+/**
+ * Initial overlaps among the discs and walls whose own fields are sound, named by their index in
+ * the file: the schema checks overlaps only once every field parses, and a file is reported whole.
+ */
+function overlapsAmongSoundEntries(json: unknown): SnapshotProblem[] {
+  const file = json as { bodies?: unknown; walls?: unknown } | null;
+  if (!file || typeof file !== "object" || !Array.isArray(file.bodies) || file.bodies.length > SNAPSHOT_LIMITS.maxBodies) return [];
+  const finite = (entry: Record<string, unknown>, keys: readonly string[]) => keys.every((key) => typeof entry[key] === "number" && Number.isFinite(entry[key]));
+  const indices: number[] = [];
+  const bodies: SnapshotBody[] = [];
+  file.bodies.forEach((entry, i) => {
+    if (entry && typeof entry === "object" && finite(entry as Record<string, unknown>, ["xM", "yM", "massKg", "radiusM"]) && (entry as SnapshotBody).radiusM > 0) {
+      indices.push(i);
+      bodies.push(entry as SnapshotBody);
+    }
+  });
+  const wallIndices: number[] = [];
+  const walls: SnapshotWall[] = [];
+  (Array.isArray(file.walls) && file.walls.length <= SNAPSHOT_LIMITS.maxWalls ? file.walls : []).forEach((entry: unknown, w: number) => {
+    if (entry && typeof entry === "object" && finite(entry as Record<string, unknown>, ["normalX", "normalY", "offsetM"]) && Math.hypot((entry as SnapshotWall).normalX, (entry as SnapshotWall).normalY) >= 1e-6) {
+      wallIndices.push(w);
+      walls.push(entry as SnapshotWall);
+    }
+  });
+  return snapshotOverlaps({ bodies, walls }, 20).map((overlap) => {
+    const named = { ...overlap, a: indices[overlap.a], b: overlap.b === undefined ? undefined : indices[overlap.b], wall: overlap.wall === undefined ? undefined : wallIndices[overlap.wall] };
+    return { path: `bodies.${named.a}`, reason: describeSnapshotOverlap(named) };
+  });
 }
 
 /** The sweep scene of a snapshot, run as exported (speedScale 1). */

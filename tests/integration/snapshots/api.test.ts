@@ -73,6 +73,12 @@ describe("snapshot uploads", () => {
     expect(error.code).toBe("invalid_snapshot");
     expect(error.issues?.map((issue) => issue.field)).toEqual(["file.bodies.0.massKg", "file.bodies.1.radiusM", "file.bodies.2.spin", "file.walls.0.normalX"]);
     expect(error.issues?.[0].message).toBe("mass must be > 0 and ≤ 1,000,000 (kg); got -2");
+    // Overlaps are named by body index, also beside problems of other fields (body 1 has a word for a speed).
+    const both = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3, { vxMPerS: "fast" }), disc(0.1)] }), "stack.json"));
+    expect(errorOf(both.body).issues).toEqual([
+      { field: "file.bodies.1.vxMPerS", message: "x velocity must be a finite number (m/s); got a string" },
+      { field: "file.bodies.0", message: "bodies 0 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)" },
+    ]);
     // Overlaps are named by body index.
     const overlapping = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3), disc(0.1)] }), "stack.json"));
     expect(errorOf(overlapping.body).issues).toEqual([{ field: "file.bodies.0", message: "bodies 0 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)" }]);
