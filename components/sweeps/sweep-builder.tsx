@@ -12,7 +12,7 @@ import { get, useForm, useWatch, type FieldPath } from "react-hook-form";
 import { Alert, Button, Card, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import type { SceneKind } from "@/lib/physics/types";
-import { CHOICE_PARAMETERS, NUMERIC_PARAMETERS, SCENE_KINDS, SPEC_LIMITS, parametersForScene, type NumericParameter, type SweepableParameter } from "@/lib/sweeps/parameters";
+import { AXIS_ONLY_PATHS, CHOICE_PARAMETERS, NUMERIC_PARAMETERS, SCENE_KINDS, SPEC_LIMITS, parametersForScene, type NumericParameter, type SweepableParameter } from "@/lib/sweeps/parameters";
 import { SPEC_DEFAULT_TOLERANCES, parseSweepSpec, scenarioValue, sweepSpecSchema, type SweepSpecInput } from "@/lib/sweeps/spec";
 import type { Scenario } from "@/lib/physics/types";
 import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
@@ -209,7 +209,7 @@ export function SweepBuilder({
   const scenario = values.scenario;
   const sceneKind = scenario.scene.kind;
   const axes = values.axes ?? [];
-  const sceneParameters = NUMERIC_PARAMETERS.filter((parameter) => parameter.path.startsWith("scene.") && parameter.path !== "scene.massRatio" && parameter.scenes !== "all" && parameter.scenes.includes(sceneKind));
+  const sceneParameters = NUMERIC_PARAMETERS.filter((parameter) => parameter.path.startsWith("scene.") && !AXIS_ONLY_PATHS.has(parameter.path) && parameter.scenes !== "all" && parameter.scenes.includes(sceneKind));
   const axisParameters = parametersForScene(sceneKind);
 
   const applyTemplate = (id: string) => {

@@ -379,6 +379,12 @@ export function formatLimit(value: number): string {
   return String(value);
 }
 
+/**
+ * Pseudo parameters that only an axis sets (each writes other scene fields); a scenario has no
+ * field of that name, so forms must not offer them as scenario fields.
+ */
+export const AXIS_ONLY_PATHS: ReadonlySet<string> = new Set(["scene.massRatio", "scene.closingSpeedFraction"]);
+
 /** Read a numeric field of a scenario by its dotted path (the pseudo path scene.massRatio is derived). */
 export function readNumericField(scenario: Scenario, path: string): number | undefined {
   if (path === "scene.massRatio") {

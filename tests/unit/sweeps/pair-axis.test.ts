@@ -1,6 +1,7 @@
 /** The scene.pair list axis and scene.closingSpeedFraction: what each cell simulates, and what the schema refuses. */
 import { describe, expect, it } from "vitest";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
+import { AXIS_ONLY_PATHS, NUMERIC_PARAMETERS } from "@/lib/sweeps/parameters";
 import { parseSweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
 
 function spec(axes: SweepSpecInput["axes"], damping: "none" | "restitution" = "restitution"): SweepSpecInput {
@@ -51,5 +52,24 @@ describe("scene.pair", () => {
       'axes.0.pairs: pairs with their own restitution need scenario.contact.damping.kind "restitution"; it is "none"',
     ]);
     expect(bad([{ parameter: "scene.offsetFraction", values: [0], pairs }])).toEqual(["axes.0.pairs: pairs belong to a scene.pair axis only"]);
+  });
+});
+
+describe("scenario fields a form may offer", () => {
+  const base = spec([]);
+  const withSceneField = (path: string, value: number) => ({ ...base, scenario: { ...base.scenario, scene: { ...base.scenario.scene, [path.slice("scene.".length)]: value } } });
+  it("axis-only parameters are not fields of a scene: a spec that sets one there is refused", () => {
+    for (const path of AXIS_ONLY_PATHS) {
+      const parsed = parseSweepSpec(withSceneField(path, 1));
+      expect(parsed.ok, path).toBe(false);
+    }
+  });
+  it("every other pair parameter is a field the scene accepts", () => {
+    const offered = NUMERIC_PARAMETERS.filter((p) => p.path.startsWith("scene.") && !AXIS_ONLY_PATHS.has(p.path) && p.scenes !== "all" && p.scenes.includes("pair"));
+    expect(offered.length).toBeGreaterThan(0);
+    for (const parameter of offered) {
+      const current = (base.scenario.scene as Record<string, unknown>)[parameter.path.slice("scene.".length)] as number;
+      expect(parseSweepSpec(withSceneField(parameter.path, current)).ok, parameter.path).toBe(true);
+    }
   });
 });
