@@ -4,13 +4,13 @@
  * the month's overage cap and compute cap. The queue runner calls recordChunkUsage inside its
  * per-chunk transaction.
  */
-import { and, eq, gte, lt, sql } from "drizzle-orm";
+import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { ledgerEntries, studios } from "@/db/schema";
 import { appendLedgerEntry, balanceMs, usageKey } from "@/lib/ledger/ledger";
 import { queueMail } from "@/lib/outbox/mail";
 import { enqueueOutbox } from "@/lib/outbox/outbox";
-import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
+import { effectiveQuotas, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/plan";
 import { billingContacts } from "./catalog";
 import { lowBalanceMail } from "./mail";
 import { LOW_BALANCE_MS } from "./packs";
@@ -43,15 +43,8 @@ export interface ChunkUsageResult {
   overageMs: number;
 }
 
-/** Overage already accrued by the studio in the UTC month of `at` (integer ms). */
-export async function monthlyOverageMs(db: DbOrTx, studioId: string, at: Date): Promise<number> {
-  const { start, end } = monthOf(at);
-  const [row] = await db
-    .select({ total: sql<string | null>`coalesce(sum(${ledgerEntries.overageMs}), 0)` })
-    .from(ledgerEntries)
-    .where(and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "usage"), gte(ledgerEntries.createdAt, start), lt(ledgerEntries.createdAt, end)));
-  return Number(row?.total ?? 0);
-}
+/** Overage already accrued by the studio in the UTC month of `at` (integer ms); re-exported for the billing views. */
+export { monthlyOverageMs };
 
 export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<ChunkUsageResult> {
   if (!Number.isInteger(usage.computeMs) || usage.computeMs < 0) throw new RangeError(`computeMs must be a non-negative integer; got ${usage.computeMs}`);
