@@ -99,7 +99,7 @@ export class QueueRunner {
   private nextHousekeeping = 0;
   private nextLeaseCheck = 0;
   /** What a chunk needs of its sweep (the spec never changes once submitted). */
-  private readonly sweepInfo = new Map<string, SweepInfo>();
+  private readonly sweepInfo = new Map<string, Promise<SweepInfo | null>>();
   private limitsCheckedAt = 0;
   /** A chunk landed near a limit (its debit went the careful way): check the limits before the next claim. */
   private nearLimit = true;
@@ -261,35 +261,10 @@ export class QueueRunner {
    * its studio runs fewer sweeps than maxRunningSweeps; starting it is re-checked under a lock.
    */
   private async claim(limit: number): Promise<SweepChunk[]> {
-    const leaseSeconds = this.leaseMs / 1000;
+    // The statement is the function kickdrift_claim_chunks (drizzle/0008_queue_functions.sql):
+    // planned once per connection instead of at every claim.
     const result = await this.db.execute(sql`
-      with busy as (
-        select s2.studio_id, count(*) as n from sweep_chunks c2 join sweeps s2 on s2.id = c2.sweep_id where c2.status = 'running' group by s2.studio_id
-      ), slots as (
-        select studio_id, count(*) as n from sweeps where status = 'running' group by studio_id
-      ), ranked as (
-        select c.id, row_number() over (partition by s.studio_id order by s.created_at, c.sweep_id, c.chunk_index) as turn,
-          coalesce(busy.n, 0) as busy, st.last_chunk_claimed_at as served, s.created_at, c.sweep_id, c.chunk_index
-        from sweep_chunks c join sweeps s on s.id = c.sweep_id join studios st on st.id = s.studio_id
-          left join studio_quotas q on q.studio_id = s.studio_id left join busy on busy.studio_id = s.studio_id left join slots on slots.studio_id = s.studio_id
-        where c.status = 'queued' and s.status in ('queued', 'running') and st.status = 'active'
-          and (s.status = 'running' or coalesce(slots.n, 0) < coalesce(q.max_running_sweeps, ${PLAN_DEFAULTS.maxRunningSweeps}::int))
-      ), claimed as (
-        update sweep_chunks set status = 'running', lease_owner = ${this.ownerId},
-          lease_expires_at = now() + make_interval(secs => ${leaseSeconds}::double precision), attempts = attempts + 1
-        where id in (
-          select c.id from sweep_chunks c join ranked r on r.id = c.id
-          where c.status = 'queued'
-          order by r.turn, r.busy, r.served nulls first, r.created_at, r.sweep_id, r.chunk_index
-          limit ${limit}::int for update of c skip locked)
-        returning *
-      ), served as (
-        update studios set last_chunk_claimed_at = clock_timestamp()
-        where id in (select s.studio_id from sweeps s where s.id in (select sweep_id from claimed))
-        returning id
-      )
-      select c.id, c.sweep_id, c.chunk_index, c.first_cell, c.cell_count, c.attempts, s.status as sweep_status, (select count(*) from served) as served
-      from claimed c join sweeps s on s.id = c.sweep_id order by c.sweep_id, c.chunk_index`);
+      select * from kickdrift_claim_chunks(${this.ownerId}::text, ${this.leaseMs / 1000}::double precision, ${limit}::integer, ${PLAN_DEFAULTS.maxRunningSweeps}::integer)`);
     const rows = (
       result as unknown as {
         rows: { id: number; sweep_id: string; chunk_index: number; first_cell: number; cell_count: number; attempts: number; sweep_status: string }[];
@@ -368,18 +343,25 @@ export class QueueRunner {
     this.landing.add(landed);
   }
 
-  private async infoOf(sweepId: string): Promise<SweepInfo | null> {
+  /** The sweep's info, read once per sweep: chunks launched together share one read. */
+  private infoOf(sweepId: string): Promise<SweepInfo | null> {
     const known = this.sweepInfo.get(sweepId);
     if (known) return known;
+    const reading = this.readInfo(sweepId);
+    if (this.sweepInfo.size > 1000) this.sweepInfo.clear();
+    this.sweepInfo.set(sweepId, reading);
+    // A failed or empty read is not kept: the next chunk of that sweep reads again.
+    reading.then((info) => info ?? this.sweepInfo.delete(sweepId), () => this.sweepInfo.delete(sweepId));
+    return reading;
+  }
+
+  private async readInfo(sweepId: string): Promise<SweepInfo | null> {
     const [row] = await this.db
       .select({ studioId: sweeps.studioId, spec: sweeps.spec, cachedCells: sweeps.cachedCells })
       .from(sweeps)
       .where(eq(sweeps.id, sweepId));
     if (!row) return null;
-    const info = { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
-    if (this.sweepInfo.size > 1000) this.sweepInfo.clear();
-    this.sweepInfo.set(sweepId, info);
-    return info;
+    return { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
   }
 
   private async runChunk(chunk: SweepChunk, signal: AbortSignal): Promise<void> {
@@ -464,63 +446,24 @@ export class QueueRunner {
     info: SweepInfo,
     chunk: SweepChunk,
     outcome: ChunkOutcome,
-    tally: number[],
+    tallyByCode: number[],
     blob: { bytes: number; location: string | null; data: Uint8Array | null },
   ): Promise<boolean> {
     const cellsInBlob = chunk.cellCount; // a recorded chunk holds all its cells (cached ones merged in)
-    const counts = sql.join(
-      VERDICTS.map((verdict, code) => sql`${verdict}::text, coalesce((verdict_counts ->> ${verdict}::text)::int, 0) + ${tally[code]}::int`),
-      sql`, `,
-    );
+    const tally = JSON.stringify(Object.fromEntries(VERDICTS.map((verdict, code) => [verdict, tallyByCode[code]])));
     const memo = `Sweep ${chunk.sweepId} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`;
     const month = monthOf(new Date());
     const firstAlertPercent = Math.min(...CAP_ALERT_THRESHOLDS);
     const landed = await this.db.transaction(async (tx) => {
-      await tx.execute(sql`select id from studios where id = ${info.studioId} for update`);
+      // One statement: the function kickdrift_record_chunk (drizzle/0008_queue_functions.sql), planned
+      // once per connection; it locks the studio and the sweep and does the steps described above.
       const result = await tx.execute(sql`
-        with locked as (
-          select id, status from sweeps where id = ${chunk.sweepId} for update
-        ), standing as (
-          select
-            (select coalesce(sum(compute_ms), 0) from ledger_entries where studio_id = ${info.studioId}) as balance,
-            (select coalesce(sum(overage_ms - compute_ms), 0) from ledger_entries
-              where studio_id = ${info.studioId} and kind = 'usage' and created_at >= ${month.start.toISOString()}::timestamptz and created_at < ${month.end.toISOString()}::timestamptz) as used,
-            coalesce((select monthly_compute_ms from studio_quotas where studio_id = ${info.studioId}), ${PLAN_DEFAULTS.monthlyComputeMs}::bigint) as cap
-        ), easy as (
-          -- Far from every limit: paid in full from the balance, which stays above the low-balance
-          -- mark, and this month's usage stays under the first cap alert.
-          select 1 from standing
-          where balance - ${outcome.computeMs}::bigint > ${LOW_BALANCE_MS}::bigint and (used + ${outcome.computeMs}::bigint) * 100 < cap * ${firstAlertPercent}::int
-        ), done as (
-          update sweep_chunks set status = 'done', lease_owner = null, lease_expires_at = null, compute_ms = ${outcome.computeMs}::int, last_error = null
-          where id = ${chunk.id}::int and status = 'running' and lease_owner = ${this.ownerId}
-            and exists (select 1 from locked where locked.status not in ('cancelled', 'failed'))
-          returning chunk_index
-        ), stored as (
-          insert into sweep_results (sweep_id, studio_id, chunk_index, cells, complete, bytes, location, data)
-          select ${chunk.sweepId}, ${info.studioId}, chunk_index, ${cellsInBlob}::int, true, ${blob.bytes}::int, ${blob.location}::text, ${blob.data}::bytea from done
-          on conflict (sweep_id, chunk_index) do update set cells = excluded.cells, complete = true, bytes = excluded.bytes, location = excluded.location, data = excluded.data
-          returning id
-        ), billed as (
-          insert into ledger_entries (studio_id, kind, compute_ms, amount_cents, idempotency_key, sweep_id, chunk_index, memo)
-          select ${info.studioId}, 'usage', ${-outcome.computeMs}::bigint, 0, ${usageKey(chunk.sweepId, chunk.chunkIndex)}, ${chunk.sweepId}, chunk_index, ${memo}
-          from done where exists (select 1 from easy)
-          on conflict (idempotency_key) do nothing
-          returning compute_ms
-        ), counted as (
-          update sweeps set
-            cells_done = cells_done + ${outcome.cellCount}::int,
-            chunks_done = chunks_done + 1,
-            compute_ms = compute_ms + coalesce((select -compute_ms from billed), 0)::int,
-            verdict_counts = jsonb_build_object(${counts}),
-            status = case when chunks_done + 1 >= chunks then 'done' when status = 'queued' then 'running' else status end,
-            reason = case when chunks_done + 1 >= chunks then null else reason end,
-            finished_at = case when chunks_done + 1 >= chunks then now() else finished_at end
-          where id = ${chunk.sweepId} and exists (select 1 from done) and exists (select 1 from stored)
-          returning status
-        )
-        select (select count(*) from counted)::int as recorded, (select status from counted) as new_status, (select status from locked) as sweep_status,
-          (select count(*) from easy)::int as easy`);
+        select * from kickdrift_record_chunk(
+          ${this.ownerId}::text, ${chunk.id}::integer, ${chunk.sweepId}::text, ${info.studioId}::text,
+          ${cellsInBlob}::integer, ${outcome.cellCount}::integer, ${outcome.computeMs}::bigint,
+          ${blob.bytes}::integer, ${blob.location}::text, ${blob.data}::bytea, ${tally}::jsonb,
+          ${usageKey(chunk.sweepId, chunk.chunkIndex)}::text, ${memo}::text, ${month.start.toISOString()}::timestamptz, ${month.end.toISOString()}::timestamptz,
+          ${LOW_BALANCE_MS}::bigint, ${PLAN_DEFAULTS.monthlyComputeMs}::bigint, ${firstAlertPercent}::integer)`);
       const [row] = (result as unknown as { rows: { recorded: number; new_status: string | null; sweep_status: string | null; easy: number }[] }).rows;
       if (Number(row?.recorded ?? 0) === 0) return { recorded: false, sweepStatus: row?.sweep_status ?? null, newStatus: null, careful: false };
       const careful = Number(row.easy) === 0;

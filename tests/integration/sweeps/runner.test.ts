@@ -34,8 +34,8 @@ async function cellsText(sweepId: string): Promise<string> {
   return JSON.stringify({ cells: (await storedCells(db, await sweepRow(sweepId))).map(cellJson) });
 }
 
-function newRunner(): QueueRunner {
-  return new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000 });
+function newRunner(onRecorded?: (sweepId: string, sweepFinished: boolean) => void): QueueRunner {
+  return new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000, onRecorded });
 }
 
 describe("queue runner", { timeout: 180_000 }, () => {
@@ -146,10 +146,20 @@ describe("queue runner", { timeout: 180_000 }, () => {
     // A second studio, so nothing comes from the first one's cache.
     const other = await makeSweepStudio("Quillbarrow Studio East");
     const sweep = await submitSweep(db, other.studioId, { spec }, { chunkOptions: { maxCellsPerChunk: 2 } });
-    const doomed = newRunner();
+    // The runner "dies" right after its second chunk is recorded (from its own hook, so the moment
+    // does not depend on how fast the machine is): the crash stops it before it records another.
+    let recorded = 0;
+    let crashed: Promise<void> | undefined;
+    let secondRecorded = () => {};
+    const twoRecorded = new Promise<void>((resolve) => (secondRecorded = resolve));
+    const doomed: QueueRunner = newRunner((sweepId) => {
+      if (sweepId !== sweep.id || ++recorded !== 2) return;
+      crashed = doomed.crash();
+      secondRecorded();
+    });
     await doomed.start();
-    await waitForSweep(sweep.id, (s) => s.chunksDone >= 2);
-    await doomed.crash();
+    await twoRecorded;
+    await crashed;
     const midway = await sweepRow(sweep.id);
     expect(midway.status).toBe("running");
     expect(midway.chunksDone).toBeLessThan(midway.chunks);
