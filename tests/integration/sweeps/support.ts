@@ -71,24 +71,8 @@ export async function grant(studioId: string, computeMs: number, key: string): P
   await appendLedgerEntry(await getDb(), { studioId, kind: "adjustment", computeMs, idempotencyKey: key, memo: "test grant" });
 }
 
-/** Puck against striker of the invented air-hockey game "Puckyard": 5 stiffnesses × 3 timesteps. */
-export function puckSpec(): SweepSpecInput {
-  return {
-    name: "Puckyard puck vs striker",
-    scenario: {
-      scene: { kind: "pair", massAKg: 0.17, massBKg: 0.4, radiusAM: 0.04, radiusBM: 0.05, speedAMPerS: 6, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 },
-      contact: { model: "linear", stiffness: 2e5, damping: { kind: "restitution", value: 0.8 } },
-      integrator: "symplectic-euler",
-      dtS: 1 / 240,
-      substeps: 4,
-      durationS: 0.1,
-    },
-    axes: [
-      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 5 },
-      { parameter: "dtS", spacing: "log", from: 1 / 960, to: 1 / 60, count: 3 },
-    ],
-  };
-}
+/** Puck against striker of the invented air-hockey game "Puckyard": 5 stiffnesses × 3 timesteps (the unit tests' fixture). */
+export { puckPairSpec as puckSpec } from "../../unit/sweeps/fixtures";
 
 /** A ball pit of an invented party game, "Jellybean Jar": enough work per cell for measured compute to mean something. */
 export function ballPitSpec(durationS = 0.5): SweepSpecInput {
