@@ -7,9 +7,9 @@
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useMemo, useRef, useState } from "react";
+import { useMemo } from "react";
 import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
-import { FileDropZone, FileProblems, UploadActions, UploadError } from "@/components/uploads/file-upload";
+import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
 import { StudioShell } from "@/components/studio/studio-shell";
 import {
   CATALOGUE_COLUMNS,
@@ -22,7 +22,7 @@ import {
   type CatalogueProblem,
   type CatalogueTable,
 } from "@/lib/catalogues/format";
-import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguesPath, uploadCatalogue, type CatalogueDetail, type CatalogueSummary } from "./catalogue-api";
@@ -125,11 +125,7 @@ export function CataloguesPage({ studioId, studioName, role }: { studioId: strin
 function UploadCard({ studioId }: { studioId: string }) {
   const router = useRouter();
   const queryClient = useQueryClient();
-  const inputRef = useRef<HTMLInputElement>(null);
-  const [loaded, setLoaded] = useState<Loaded | null>(null);
-  const [name, setName] = useState("");
-  const [saving, setSaving] = useState(false);
-  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
+  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, discard, failed } = useUploadCard<Loaded>();
 
   const checked = useMemo(() => (loaded && loaded.readable ? validateTable(loaded.table, loaded.firstRow) : null), [loaded]);
   const edited = loaded !== null && JSON.stringify(loaded.table) !== loaded.original;
@@ -165,7 +161,7 @@ function UploadCard({ studioId }: { studioId: string }) {
       await queryClient.invalidateQueries({ queryKey: catalogueKeys.list(studioId) });
       router.push(`/studios/${studioId}/catalogues/${result.catalogue.id}`);
     } catch (error) {
-      setServerError(error instanceof Error ? error : new Error(String(error)));
+      failed(error);
       setSaving(false);
     }
   }
@@ -256,18 +252,7 @@ function UploadCard({ studioId }: { studioId: string }) {
               </div>
             ) : null}
             <UploadError error={serverError} />
-            <UploadActions
-              saveLabel="Save catalogue"
-              saveTestId="catalogue-save"
-              saving={saving}
-              canSave={canSave}
-              onSave={() => void save()}
-              onDiscard={() => {
-                setLoaded(null);
-                setServerError(null);
-                if (inputRef.current) inputRef.current.value = "";
-              }}
-            />
+            <UploadActions saveLabel="Save catalogue" saveTestId="catalogue-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
           </div>
         ) : null}
       </div>

@@ -7,12 +7,12 @@
  */
 import Link from "next/link";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useRef, useState } from "react";
+import { useState } from "react";
 import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
-import { FileDropZone, FileProblems, UploadActions, UploadError } from "@/components/uploads/file-upload";
+import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
-import { apiFetch, errorMessage, uploadFile, type ApiClientError } from "@/lib/ui/api";
+import { apiFetch, errorMessage, uploadFile } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
@@ -95,12 +95,8 @@ interface Loaded {
 
 function UploadCard({ studioId }: { studioId: string }) {
   const queryClient = useQueryClient();
-  const inputRef = useRef<HTMLInputElement>(null);
-  const [loaded, setLoaded] = useState<Loaded | null>(null);
-  const [name, setName] = useState("");
-  const [saving, setSaving] = useState(false);
+  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, clearFile, discard, failed } = useUploadCard<Loaded>();
   const [saved, setSaved] = useState<SnapshotDetail | null>(null);
-  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
 
   const problems = loaded && !loaded.parsed.ok ? loaded.parsed.problems : [];
   const canSave = loaded !== null && loaded.parsed.ok && !saving;
@@ -121,11 +117,10 @@ function UploadCard({ studioId }: { studioId: string }) {
     try {
       const body = await uploadFile<{ snapshot: SnapshotDetail }>(snapshotsPath(studioId), new Blob([loaded.bytes as BlobPart], { type: "application/json" }), loaded.fileName, name);
       setSaved(body.snapshot);
-      setLoaded(null);
-      if (inputRef.current) inputRef.current.value = "";
+      clearFile();
       await queryClient.invalidateQueries({ queryKey: listKey(studioId) });
     } catch (error) {
-      setServerError(error instanceof Error ? error : new Error(String(error)));
+      failed(error);
     } finally {
       setSaving(false);
     }
@@ -178,18 +173,7 @@ function UploadCard({ studioId }: { studioId: string }) {
               </Alert>
             ) : null}
             <UploadError error={serverError} showFields />
-            <UploadActions
-              saveLabel="Save snapshot"
-              saveTestId="snapshot-save"
-              saving={saving}
-              canSave={canSave}
-              onSave={() => void save()}
-              onDiscard={() => {
-                setLoaded(null);
-                setServerError(null);
-                if (inputRef.current) inputRef.current.value = "";
-              }}
-            />
+            <UploadActions saveLabel="Save snapshot" saveTestId="snapshot-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
           </div>
         ) : null}
       </div>

@@ -1,12 +1,47 @@
 "use client";
 /**
- * The pieces of a file upload card shared by the catalogue and snapshot pages: the drop zone with
- * its file input, the list of a file's problems, the server's refusal with its issues, and the
- * save / discard buttons. Each page keeps its own wording, ids and test ids through the props.
+ * The pieces of a file upload card shared by the catalogue and snapshot pages: its state, the drop
+ * zone with its file input, the list of a file's problems, the server's refusal with its issues,
+ * and the save / discard buttons. Each page keeps its own wording, ids and test ids through the props.
  */
-import { useId, useState, type DragEvent, type ReactNode, type RefObject } from "react";
+import { useId, useRef, useState, type DragEvent, type ReactNode, type RefObject } from "react";
 import { Alert, Button, cx } from "@/components/ui";
 import { ApiClientError } from "@/lib/ui/api";
+
+/** The state of an upload card: the file as loaded (`L`, the page's own), the name to save it under, saving, and the server's refusal. */
+export function useUploadCard<L>() {
+  const inputRef = useRef<HTMLInputElement>(null);
+  const [loaded, setLoaded] = useState<L | null>(null);
+  const [name, setName] = useState("");
+  const [saving, setSaving] = useState(false);
+  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
+  /** Forgets the loaded file and empties the file input (so the same file can be chosen again). */
+  function clearFile() {
+    setLoaded(null);
+    if (inputRef.current) inputRef.current.value = "";
+  }
+  return {
+    inputRef,
+    loaded,
+    setLoaded,
+    name,
+    setName,
+    saving,
+    setSaving,
+    serverError,
+    setServerError,
+    clearFile,
+    /** What Discard does: the file and the server's refusal are forgotten. */
+    discard() {
+      clearFile();
+      setServerError(null);
+    },
+    /** Keeps what a save threw, to show it with UploadError. */
+    failed(error: unknown) {
+      setServerError(error instanceof Error ? error : new Error(String(error)));
+    },
+  };
+}
 
 /** A dashed zone to drop a file on, around a labelled file input; either way the file goes to `onFile`. */
 export function FileDropZone({
