@@ -7,8 +7,9 @@
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useId, useMemo, useRef, useState, type DragEvent } from "react";
-import { Alert, Button, Card, EmptyState, LoadingRows, TextField, cx } from "@/components/ui";
+import { useMemo } from "react";
+import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
 import { StudioShell } from "@/components/studio/studio-shell";
 import {
   CATALOGUE_COLUMNS,
@@ -21,7 +22,7 @@ import {
   type CatalogueProblem,
   type CatalogueTable,
 } from "@/lib/catalogues/format";
-import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguesPath, uploadCatalogue, type CatalogueDetail, type CatalogueSummary } from "./catalogue-api";
@@ -124,13 +125,7 @@ export function CataloguesPage({ studioId, studioName, role }: { studioId: strin
 function UploadCard({ studioId }: { studioId: string }) {
   const router = useRouter();
   const queryClient = useQueryClient();
-  const inputId = useId();
-  const inputRef = useRef<HTMLInputElement>(null);
-  const [loaded, setLoaded] = useState<Loaded | null>(null);
-  const [name, setName] = useState("");
-  const [dragging, setDragging] = useState(false);
-  const [saving, setSaving] = useState(false);
-  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
+  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, discard, failed } = useUploadCard<Loaded>();
 
   const checked = useMemo(() => (loaded && loaded.readable ? validateTable(loaded.table, loaded.firstRow) : null), [loaded]);
   const edited = loaded !== null && JSON.stringify(loaded.table) !== loaded.original;
@@ -143,13 +138,6 @@ function UploadCard({ studioId }: { studioId: string }) {
     const bytes = new Uint8Array(await file.arrayBuffer());
     setLoaded(load(file.name, bytes));
     if (!name) setName(file.name.replace(/\.[^.]*$/, ""));
-  }
-
-  function onDrop(event: DragEvent<HTMLDivElement>) {
-    event.preventDefault();
-    setDragging(false);
-    const file = event.dataTransfer.files[0];
-    if (file) void take(file);
   }
 
   function setCell(rowIndex: number, column: (typeof CATALOGUE_COLUMNS)[number], value: string) {
@@ -173,7 +161,7 @@ function UploadCard({ studioId }: { studioId: string }) {
       await queryClient.invalidateQueries({ queryKey: catalogueKeys.list(studioId) });
       router.push(`/studios/${studioId}/catalogues/${result.catalogue.id}`);
     } catch (error) {
-      setServerError(error instanceof Error ? error : new Error(String(error)));
+      failed(error);
       setSaving(false);
     }
   }
@@ -191,48 +179,26 @@ function UploadCard({ studioId }: { studioId: string }) {
           ))}
           . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.
         </p>
-        <div
-          onDragOver={(event) => {
-            event.preventDefault();
-            setDragging(true);
-          }}
-          onDragLeave={() => setDragging(false)}
-          onDrop={onDrop}
-          className={cx("rounded-lg border-2 border-dashed p-6 text-center", dragging ? "border-action bg-surface-muted" : "border-line")}
-          data-testid="catalogue-drop-zone"
-        >
-          <label htmlFor={inputId} className="block text-sm font-medium">
-            Drop a file here, or choose one
-          </label>
-          <input
-            ref={inputRef}
-            id={inputId}
-            type="file"
-            accept=".csv,.json,text/csv,application/json"
-            className="mx-auto mt-2 block text-sm"
-            data-testid="catalogue-file"
-            onChange={(event) => {
-              const file = event.target.files?.[0];
-              if (file) void take(file);
-            }}
-          />
-        </div>
+        <FileDropZone
+          label="Drop a file here, or choose one"
+          accept=".csv,.json,text/csv,application/json"
+          inputRef={inputRef}
+          onFile={(file) => void take(file)}
+          testId="catalogue-drop-zone"
+          inputTestId="catalogue-file"
+        />
         {loaded ? (
           <div className="space-y-4">
             <TextField id="catalogue-name" label="Catalogue name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={CATALOGUE_LIMITS.maxCatalogueNameLength} />
             {problems.length > 0 ? (
-              <div role="alert" className="rounded-md border border-danger/60 bg-danger-soft p-3 text-sm" data-testid="catalogue-problems">
-                <p className="font-semibold">
-                  {problems.length === 1 ? "1 problem" : `${problems.length} problems`} in {loaded.fileName}; fix {problems.length === 1 ? "it" : "them"} {loaded.readable ? "in the table below" : "in the file"} before saving:
-                </p>
-                <ul className="mt-2 list-disc space-y-1 pl-5">
-                  {problems.map((problem, i) => (
-                    <li key={i} data-testid="catalogue-problem">
-                      {describeProblem(problem)}
-                    </li>
-                  ))}
-                </ul>
-              </div>
+              <FileProblems
+                problems={problems}
+                fileName={loaded.fileName}
+                fixWhere={`${loaded.readable ? "in the table below" : "in the file"} before saving`}
+                testId="catalogue-problems"
+                itemTestId="catalogue-problem"
+                renderProblem={describeProblem}
+              />
             ) : loaded.readable ? (
               <Alert tone="ok">
                 {loaded.table.length} objects, every row valid{edited ? " (fixed here; saved as CSV)" : ""}.
@@ -285,33 +251,8 @@ function UploadCard({ studioId }: { studioId: string }) {
                 </table>
               </div>
             ) : null}
-            {serverError ? (
-              <Alert>
-                {serverError.message}
-                {serverError instanceof ApiClientError && serverError.issues.length > 1 ? (
-                  <ul className="mt-1 list-disc pl-5">
-                    {serverError.issues.map((issue, i) => (
-                      <li key={i}>{issue.message}</li>
-                    ))}
-                  </ul>
-                ) : null}
-              </Alert>
-            ) : null}
-            <div className="flex gap-3">
-              <Button onClick={() => void save()} disabled={!canSave} data-testid="catalogue-save">
-                {saving ? "Saving…" : "Save catalogue"}
-              </Button>
-              <Button
-                variant="secondary"
-                onClick={() => {
-                  setLoaded(null);
-                  setServerError(null);
-                  if (inputRef.current) inputRef.current.value = "";
-                }}
-              >
-                Discard
-              </Button>
-            </div>
+            <UploadError error={serverError} />
+            <UploadActions saveLabel="Save catalogue" saveTestId="catalogue-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
           </div>
         ) : null}
       </div>

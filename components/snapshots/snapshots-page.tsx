@@ -7,11 +7,12 @@
  */
 import Link from "next/link";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useId, useRef, useState, type DragEvent } from "react";
-import { Alert, Button, Card, EmptyState, LoadingRows, TextField, cx } from "@/components/ui";
+import { useState } from "react";
+import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
-import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
+import { apiFetch, errorMessage, uploadFile } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
@@ -94,14 +95,8 @@ interface Loaded {
 
 function UploadCard({ studioId }: { studioId: string }) {
   const queryClient = useQueryClient();
-  const inputId = useId();
-  const inputRef = useRef<HTMLInputElement>(null);
-  const [loaded, setLoaded] = useState<Loaded | null>(null);
-  const [name, setName] = useState("");
-  const [dragging, setDragging] = useState(false);
-  const [saving, setSaving] = useState(false);
+  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, clearFile, discard, failed } = useUploadCard<Loaded>();
   const [saved, setSaved] = useState<SnapshotDetail | null>(null);
-  const [serverError, setServerError] = useState<ApiClientError | Error | null>(null);
 
   const problems = loaded && !loaded.parsed.ok ? loaded.parsed.problems : [];
   const canSave = loaded !== null && loaded.parsed.ok && !saving;
@@ -115,33 +110,17 @@ function UploadCard({ studioId }: { studioId: string }) {
     setName(parsed.ok && parsed.snapshot.name ? parsed.snapshot.name : file.name.replace(/\.[^.]*$/, ""));
   }
 
-  function onDrop(event: DragEvent<HTMLDivElement>) {
-    event.preventDefault();
-    setDragging(false);
-    const file = event.dataTransfer.files[0];
-    if (file) void take(file);
-  }
-
   async function save() {
     if (!loaded) return;
     setSaving(true);
     setServerError(null);
     try {
-      const form = new FormData();
-      form.set("file", new Blob([loaded.bytes as BlobPart], { type: "application/json" }), loaded.fileName);
-      if (name.trim()) form.set("name", name.trim());
-      const response = await fetch(snapshotsPath(studioId), { method: "POST", body: form, credentials: "same-origin", cache: "no-store", headers: { accept: "application/json" } });
-      const body = (await response.json().catch(() => ({}))) as { snapshot?: SnapshotDetail; error?: { code?: string; message?: string; field?: string; issues?: { field: string; message: string }[] } };
-      if (!response.ok || !body.snapshot) {
-        const error = body.error ?? {};
-        throw new ApiClientError(response.status, error.code ?? `http_${response.status}`, error.message ?? `The server answered ${response.status}.`, error.field, error.issues ?? []);
-      }
+      const body = await uploadFile<{ snapshot: SnapshotDetail }>(snapshotsPath(studioId), new Blob([loaded.bytes as BlobPart], { type: "application/json" }), loaded.fileName, name);
       setSaved(body.snapshot);
-      setLoaded(null);
-      if (inputRef.current) inputRef.current.value = "";
+      clearFile();
       await queryClient.invalidateQueries({ queryKey: listKey(studioId) });
     } catch (error) {
-      setServerError(error instanceof Error ? error : new Error(String(error)));
+      failed(error);
     } finally {
       setSaving(false);
     }
@@ -156,32 +135,14 @@ function UploadCard({ studioId }: { studioId: string }) {
           <code className="font-mono text-xs">name</code>. At most {SNAPSHOT_LIMITS.maxBodies.toLocaleString("en-US")} discs, {SNAPSHOT_LIMITS.maxWalls} walls and {SNAPSHOT_LIMITS.maxFileBytes / (1024 * 1024)} MiB;
           discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.
         </p>
-        <div
-          onDragOver={(event) => {
-            event.preventDefault();
-            setDragging(true);
-          }}
-          onDragLeave={() => setDragging(false)}
-          onDrop={onDrop}
-          className={cx("rounded-lg border-2 border-dashed p-6 text-center", dragging ? "border-action bg-surface-muted" : "border-line")}
-          data-testid="snapshot-drop-zone"
-        >
-          <label htmlFor={inputId} className="block text-sm font-medium">
-            Drop a snapshot file here, or choose one
-          </label>
-          <input
-            ref={inputRef}
-            id={inputId}
-            type="file"
-            accept=".json,application/json"
-            className="mx-auto mt-2 block text-sm"
-            data-testid="snapshot-file"
-            onChange={(event) => {
-              const file = event.target.files?.[0];
-              if (file) void take(file);
-            }}
-          />
-        </div>
+        <FileDropZone
+          label="Drop a snapshot file here, or choose one"
+          accept=".json,application/json"
+          inputRef={inputRef}
+          onFile={(file) => void take(file)}
+          testId="snapshot-drop-zone"
+          inputTestId="snapshot-file"
+        />
         {saved ? (
           <Alert tone="ok">
             Saved {saved.name} v{saved.version} ({saved.bodyCount} discs, {saved.wallCount} walls).{" "}
@@ -194,52 +155,25 @@ function UploadCard({ studioId }: { studioId: string }) {
           <div className="space-y-4">
             <TextField id="snapshot-name" label="Snapshot name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={SNAPSHOT_LIMITS.maxNameLength} />
             {problems.length > 0 ? (
-              <div role="alert" className="rounded-md border border-danger/60 bg-danger-soft p-3 text-sm" data-testid="snapshot-problems">
-                <p className="font-semibold">
-                  {problems.length === 1 ? "1 problem" : `${problems.length} problems`} in {loaded.fileName}; fix {problems.length === 1 ? "it" : "them"} in the file and choose it again:
-                </p>
-                <ul className="mt-2 list-disc space-y-1 pl-5">
-                  {problems.map((problem, i) => (
-                    <li key={i} data-testid="snapshot-problem">
-                      <code className="font-mono text-xs">{problem.path}</code>: {problem.reason}
-                    </li>
-                  ))}
-                </ul>
-              </div>
+              <FileProblems
+                problems={problems}
+                fileName={loaded.fileName}
+                fixWhere="in the file and choose it again"
+                testId="snapshot-problems"
+                itemTestId="snapshot-problem"
+                renderProblem={(problem) => (
+                  <>
+                    <code className="font-mono text-xs">{problem.path}</code>: {problem.reason}
+                  </>
+                )}
+              />
             ) : loaded.parsed.ok ? (
               <Alert tone="ok">
                 {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid.
               </Alert>
             ) : null}
-            {serverError ? (
-              <Alert>
-                {serverError.message}
-                {serverError instanceof ApiClientError && serverError.issues.length > 1 ? (
-                  <ul className="mt-1 list-disc pl-5">
-                    {serverError.issues.map((issue, i) => (
-                      <li key={i}>
-                        <code className="font-mono text-xs">{issue.field}</code>: {issue.message}
-                      </li>
-                    ))}
-                  </ul>
-                ) : null}
-              </Alert>
-            ) : null}
-            <div className="flex gap-3">
-              <Button onClick={() => void save()} disabled={!canSave} data-testid="snapshot-save">
-                {saving ? "Saving…" : "Save snapshot"}
-              </Button>
-              <Button
-                variant="secondary"
-                onClick={() => {
-                  setLoaded(null);
-                  setServerError(null);
-                  if (inputRef.current) inputRef.current.value = "";
-                }}
-              >
-                Discard
-              </Button>
-            </div>
+            <UploadError error={serverError} showFields />
+            <UploadActions saveLabel="Save snapshot" saveTestId="snapshot-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
           </div>
         ) : null}
       </div>

@@ -3,41 +3,16 @@
 import { useQuery } from "@tanstack/react-query";
 import type { Metrics, TimeSeries, Verdict } from "@/lib/physics/types";
 import type { Scenario } from "@/lib/physics/types";
-import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
 
-export type SweepStatus = "queued" | "running" | "paused" | "done" | "failed" | "cancelled";
 export const SWEEP_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused", "done", "failed", "cancelled"];
 export const ACTIVE_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused"];
 
-export interface SweepAxisView {
-  path: string;
-  label: string;
-  unit: string;
-  spacing: string | null;
-  values: (number | string)[];
-}
-
-export interface Sweep {
-  id: string;
-  name: string | null;
-  status: SweepStatus;
-  reason: string | null;
-  createdAt: string;
-  startedAt: string | null;
-  finishedAt: string | null;
-  cells: number;
-  cellsDone: number;
-  cachedCells: number;
-  chunks: number;
-  chunksDone: number;
-  computeMs: number;
-  estimatedComputeMs: number;
-  verdictCounts: Record<Verdict, number>;
-  axes: SweepAxisView[];
-  spec: SweepSpecInput;
-}
+/** A sweep and its axes as the server builds them (type-only: nothing of the server reaches the client bundle). */
+export type { SweepAxisView, SweepStatus } from "@/lib/sweeps/sweep-view";
+export type Sweep = SweepView;
 
 /** The quote as the server computes it (a type-only import: nothing of the server reaches the client bundle). */
 export type { Quote } from "@/lib/queue/submit";

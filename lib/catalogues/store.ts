@@ -4,8 +4,7 @@
  * its pair sweep and goes through the same quote → submit → queue runner → ledger path as every
  * sweep; its results are read back only through lib/queue/views.ts.
  */
-import { createHash } from "node:crypto";
-import { and, asc, desc, eq, max } from "drizzle-orm";
+import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { newId } from "@/db/ids";
 import { catalogueChecks, catalogues, sweeps, type Catalogue, type CatalogueCheck } from "@/db/schema";
@@ -14,12 +13,11 @@ import { quoteSweep, submitSweep, type Quote } from "@/lib/queue/submit";
 import { storedCells, sweepView, type SweepView } from "@/lib/queue/views";
 import { canonicalJson } from "@/lib/sweeps/canonical";
 import { formatLimit } from "@/lib/sweeps/parameters";
+import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
 import { CheckInputError, checkSettingsSchema, checkSpec, pairMatrix, recommend, type CheckSettings, type PairMatrix, type Recommendation } from "./check";
 import { CATALOGUE_LIMITS, describeProblem, parseCatalogueFile, type CatalogueObject, type CatalogueProblem } from "./format";
 
-export function contentHash(bytes: Uint8Array): string {
-  return createHash("sha256").update(bytes).digest("hex");
-}
+export { contentHash } from "@/lib/uploads/versioned";
 
 function problemField(problem: CatalogueProblem): string {
   return ["file", problem.row !== null ? `row ${problem.row}` : null, problem.column].filter(Boolean).join(".");
@@ -92,41 +90,26 @@ export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueU
   const parsed = parseCatalogueFile(upload.bytes, upload.fileName);
   if (!parsed.objects) throw catalogueProblemsError(parsed.problems);
   const objects = parsed.objects;
-  const hash = contentHash(upload.bytes);
-  for (let attempt = 0; ; attempt++) {
-    try {
-      const catalogue = await db.transaction(async (tx) => {
-        const [{ latest }] = await tx
-          .select({ latest: max(catalogues.version) })
-          .from(catalogues)
-          .where(and(eq(catalogues.studioId, studioId), eq(catalogues.name, name)));
-        const [row] = await tx
-          .insert(catalogues)
-          .values({
-            id: newId("cat"),
-            studioId,
-            name,
-            version: (latest ?? 0) + 1,
-            contentHash: hash,
-            fileName: upload.fileName.replace(/[\u0000-\u001f\u007f]/g, "").slice(0, 200) || "catalogue",
-            mediaType: parsed.format === "json" ? "application/json" : "text/csv",
-            fileBase64: Buffer.from(upload.bytes).toString("base64"),
-            fileBytes: upload.bytes.length,
-            format: parsed.format,
-            objects,
-            objectCount: objects.length,
-            createdByUserId: upload.createdByUserId,
-          })
-          .returning();
-        return row;
-      });
-      return { catalogue, notes: parsed.notes };
-    } catch (error) {
-      // Two uploads of one name at once: the unique (studio, name, version) index refuses the second; take the next number.
-      if (attempt < 2 && /catalogues_studio_name_version_uq|duplicate key/.test(String((error as { cause?: unknown }).cause ?? error))) continue;
-      throw error;
-    }
-  }
+  const file = storedFile(upload.bytes, upload.fileName, "catalogue");
+  const catalogue = await insertNextVersion(db, { table: catalogues, uniqueIndex: "catalogues_studio_name_version_uq", studioId, name }, async (tx, version) => {
+    const [row] = await tx
+      .insert(catalogues)
+      .values({
+        id: newId("cat"),
+        studioId,
+        name,
+        version,
+        ...file,
+        mediaType: parsed.format === "json" ? "application/json" : "text/csv",
+        format: parsed.format,
+        objects,
+        objectCount: objects.length,
+        createdByUserId: upload.createdByUserId,
+      })
+      .returning();
+    return row;
+  });
+  return { catalogue, notes: parsed.notes };
 }
 
 export async function listCatalogues(db: Db, studioId: string): Promise<CatalogueSummary[]> {

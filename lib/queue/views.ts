@@ -12,35 +12,10 @@ import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
 import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
 import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, guardFormula, quoteCsvField, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import type { SweepAxisView, SweepView } from "@/lib/sweeps/sweep-view";
 import { readBlob } from "./result-store";
 
-export interface SweepAxisView {
-  path: string;
-  label: string;
-  unit: string;
-  spacing: "linear" | "log" | "list";
-  values: (number | string)[];
-}
-
-export interface SweepView {
-  id: string;
-  name: string;
-  status: Sweep["status"];
-  reason: string | null;
-  createdAt: string;
-  startedAt: string | null;
-  finishedAt: string | null;
-  cells: number;
-  cellsDone: number;
-  cachedCells: number;
-  chunks: number;
-  chunksDone: number;
-  computeMs: number;
-  estimatedComputeMs: number;
-  verdictCounts: VerdictCounts;
-  axes: SweepAxisView[];
-  spec: SweepSpec;
-}
+export type { SweepAxisView, SweepView } from "@/lib/sweeps/sweep-view";
 
 export function axisViews(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): SweepAxisView[] {
   return axes.map((axis, i) => ({

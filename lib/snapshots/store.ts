@@ -4,15 +4,15 @@
  * SHA-256. A sweep over a snapshot carries its scene inline (the spec stays self-contained, so its
  * results are deterministic whatever is uploaded later): `snapshotSweepSpec` builds that spec.
  */
-import { and, asc, desc, eq, max } from "drizzle-orm";
+import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { newId } from "@/db/ids";
 import { snapshots, type Snapshot } from "@/db/schema";
 import { ApiError, type FieldIssue } from "@/lib/errors";
-import { contentHash } from "@/lib/catalogues/store";
 import type { SnapshotScene } from "@/lib/physics/types";
 import { formatLimit, SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, snapshotScene, type SnapshotProblem } from "./format";
 
 /** Every problem of a file as one 422, each issue naming its JSON path. */
@@ -79,39 +79,24 @@ export async function saveSnapshot(db: Db, studioId: string, upload: SnapshotUpl
   if (!parsed.ok) throw snapshotProblemsError(parsed.problems);
   const name = nameOf(upload, parsed.snapshot.name);
   const scene = snapshotScene(parsed.snapshot);
-  const hash = contentHash(upload.bytes);
-  for (let attempt = 0; ; attempt++) {
-    try {
-      return await db.transaction(async (tx) => {
-        const [{ latest }] = await tx
-          .select({ latest: max(snapshots.version) })
-          .from(snapshots)
-          .where(and(eq(snapshots.studioId, studioId), eq(snapshots.name, name)));
-        const [row] = await tx
-          .insert(snapshots)
-          .values({
-            id: newId("snp"),
-            studioId,
-            name,
-            version: (latest ?? 0) + 1,
-            contentHash: hash,
-            fileName: upload.fileName.replace(/[\u0000-\u001f\u007f]/g, "").slice(0, 200) || "snapshot.json",
-            fileBase64: Buffer.from(upload.bytes).toString("base64"),
-            fileBytes: upload.bytes.length,
-            scene,
-            bodyCount: scene.bodies.length,
-            wallCount: scene.walls.length,
-            createdByUserId: upload.createdByUserId,
-          })
-          .returning();
-        return row;
-      });
-    } catch (error) {
-      // Two uploads of one name at once: the unique (studio, name, version) index refuses the second; take the next number.
-      if (attempt < 2 && /snapshots_studio_name_version_uq|duplicate key/.test(String((error as { cause?: unknown }).cause ?? error))) continue;
-      throw error;
-    }
-  }
+  const file = storedFile(upload.bytes, upload.fileName, "snapshot.json");
+  return insertNextVersion(db, { table: snapshots, uniqueIndex: "snapshots_studio_name_version_uq", studioId, name }, async (tx, version) => {
+    const [row] = await tx
+      .insert(snapshots)
+      .values({
+        id: newId("snp"),
+        studioId,
+        name,
+        version,
+        ...file,
+        scene,
+        bodyCount: scene.bodies.length,
+        wallCount: scene.walls.length,
+        createdByUserId: upload.createdByUserId,
+      })
+      .returning();
+    return row;
+  });
 }
 
 export async function listSnapshots(db: Db, studioId: string): Promise<SnapshotSummary[]> {

@@ -77,3 +77,26 @@ export function errorMessage(error: unknown): string {
   if (error instanceof Error) return error.message;
   return "Something went wrong. Please try again.";
 }
+
+/**
+ * POSTs a file as multipart/form-data (field "file", and "name" when not blank) to an upload route;
+ * errors come back as ApiClientError with the API's issues.
+ */
+export async function uploadFile<T>(path: string, file: Blob, fileName: string, name: string): Promise<T> {
+  const form = new FormData();
+  form.set("file", file, fileName);
+  if (name.trim()) form.set("name", name.trim());
+  const response = await fetch(path, { method: "POST", body: form, credentials: "same-origin", cache: "no-store", headers: { accept: "application/json" } });
+  const text = await response.text();
+  let parsed: unknown;
+  try {
+    parsed = text ? JSON.parse(text) : undefined;
+  } catch {
+    parsed = undefined;
+  }
+  if (!response.ok) {
+    const error = ((parsed ?? {}) as { error?: { code?: string; message?: string; field?: string; issues?: { field: string; message: string }[] } }).error ?? {};
+    throw new ApiClientError(response.status, error.code ?? `http_${response.status}`, error.message ?? `The server answered ${response.status}.`, error.field, error.issues ?? []);
+  }
+  return parsed as T;
+}

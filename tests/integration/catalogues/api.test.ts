@@ -6,8 +6,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, sweeps } from "@/db/schema";
-import { QueueRunner } from "@/lib/queue/runner";
-import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { CRATESLIDE_CATALOGUE_CSV } from "@/lib/catalogues/demo";
 import { contentHash, listCatalogues } from "@/lib/catalogues/store";
 import { seedDemo } from "@/db/seed";
@@ -19,29 +17,16 @@ import * as checksRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalo
 import * as checkRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]/route";
 import * as exportRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]/export/route";
 import * as quotesRoute from "@/app/api/v1/studios/[studioId]/quotes/route";
-import { closeTestDb, countRows, useFreshDb } from "../../helpers/db";
+import { countRows } from "../../helpers/db";
 import { buildRequest, call, errorOf } from "../../helpers/http";
-import { makeSweepStudio, usageEntries, waitForSweep, type TestStudio } from "../sweeps/support";
+import { startSweepRunner, stopSweepRunner, usageEntries, waitForSweep, type TestStudio } from "../sweeps/support";
 
 let db: Db;
-let pool: ChunkPool;
-let runner: QueueRunner;
 let studio: TestStudio;
 let rival: TestStudio;
 
-beforeAll(async () => {
-  db = await useFreshDb();
-  pool = createChunkPool({ threads: 1, entry: "source" });
-  runner = new QueueRunner({ db, pool, pollMs: 20 });
-  await runner.start();
-  studio = await makeSweepStudio("Gannet Test Yard");
-  rival = await makeSweepStudio("Shingle Bay Games");
-});
-afterAll(async () => {
-  await runner?.stop();
-  await pool?.close();
-  await closeTestDb();
-});
+beforeAll(async () => ({ db, studios: [studio, rival] } = await startSweepRunner("Gannet Test Yard", "Shingle Bay Games")));
+afterAll(stopSweepRunner);
 
 const base = (s: TestStudio) => `/api/v1/studios/${s.studioId}/catalogues`;
 

@@ -13,8 +13,6 @@ import { storedCells } from "@/lib/queue/views";
 import { simulate } from "@/lib/physics";
 import { expandSweep } from "@/lib/sweeps/grid";
 import { parseSweepSpec } from "@/lib/sweeps/spec";
-import { QueueRunner } from "@/lib/queue/runner";
-import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { contentHash } from "@/lib/catalogues/store";
 import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapshots/demo";
 import { listSnapshots } from "@/lib/snapshots/store";
@@ -24,29 +22,16 @@ import * as snapshotRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snaps
 import * as fileRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snapshotId]/file/route";
 import * as sweepsRoute from "@/app/api/v1/studios/[studioId]/sweeps/route";
 import * as quotesRoute from "@/app/api/v1/studios/[studioId]/quotes/route";
-import { closeTestDb, countRows, useFreshDb } from "../../helpers/db";
+import { countRows } from "../../helpers/db";
 import { buildRequest, call, errorOf } from "../../helpers/http";
-import { makeSweepStudio, waitForSweep, type TestStudio } from "../sweeps/support";
+import { startSweepRunner, stopSweepRunner, waitForSweep, type TestStudio } from "../sweeps/support";
 
 let db: Db;
-let pool: ChunkPool;
-let runner: QueueRunner;
 let studio: TestStudio;
 let rival: TestStudio;
 
-beforeAll(async () => {
-  db = await useFreshDb();
-  pool = createChunkPool({ threads: 1, entry: "source" });
-  runner = new QueueRunner({ db, pool, pollMs: 20 });
-  await runner.start();
-  studio = await makeSweepStudio("Gannet Snapshot Yard");
-  rival = await makeSweepStudio("Shingle Bay Games");
-});
-afterAll(async () => {
-  await runner?.stop();
-  await pool?.close();
-  await closeTestDb();
-});
+beforeAll(async () => ({ db, studios: [studio, rival] } = await startSweepRunner("Gannet Snapshot Yard", "Shingle Bay Games")));
+afterAll(stopSweepRunner);
 
 const base = (s: TestStudio) => `/api/v1/studios/${s.studioId}/snapshots`;
 

@@ -6,8 +6,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { ledgerEntries, sweepChunks, sweepResults, sweeps } from "@/db/schema";
-import { QueueRunner } from "@/lib/queue/runner";
-import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import { createStudio } from "@/lib/studios/studios";
 import { balanceMs, WELCOME_GRANT_MS } from "@/lib/ledger/ledger";
@@ -19,30 +17,17 @@ import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/ce
 import * as cellRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/route";
 import * as rerunRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/route";
 import * as envelopeRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/envelope/route";
-import { closeTestDb, countRows, useFreshDb } from "../../helpers/db";
+import { countRows } from "../../helpers/db";
 import { makeToken, makeUser } from "../../helpers/factories";
 import { call, errorOf } from "../../helpers/http";
-import { makeSweepStudio, puckSpec, waitForSweep, type TestStudio } from "./support";
+import { makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, waitForSweep, type TestStudio } from "./support";
 
 let db: Db;
-let pool: ChunkPool;
-let runner: QueueRunner;
 let studio: TestStudio;
 let rival: TestStudio;
 
-beforeAll(async () => {
-  db = await useFreshDb();
-  pool = createChunkPool({ threads: 1, entry: "source" });
-  runner = new QueueRunner({ db, pool, pollMs: 20 });
-  await runner.start();
-  studio = await makeSweepStudio("Gullwing Pinball Co");
-  rival = await makeSweepStudio("Marram Dune Games");
-});
-afterAll(async () => {
-  await runner?.stop();
-  await pool?.close();
-  await closeTestDb();
-});
+beforeAll(async () => ({ db, studios: [studio, rival] } = await startSweepRunner("Gullwing Pinball Co", "Marram Dune Games")));
+afterAll(stopSweepRunner);
 
 const base = (s: TestStudio) => `/api/v1/studios/${s.studioId}`;
 

@@ -9,32 +9,20 @@ import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepChunks, sweepResults, type Sweep } from "@/db/schema";
 import { cancelSweep } from "@/lib/queue/cancel";
-import { QueueRunner } from "@/lib/queue/runner";
 import { submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
 import { expandAxes } from "@/lib/sweeps/grid";
 import { cellToCsv, countVerdicts, csvHeader } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
-import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/route";
-import { closeTestDb, useFreshDb } from "../../helpers/db";
 import { buildRequest, type RouteHandler } from "../../helpers/http";
-import { ballPitSpec, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForSweep, type TestStudio } from "./support";
+import { ballPitSpec, makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, sweepRow, usageEntries, waitForSweep, type TestStudio } from "./support";
 
 let db: Db;
-let pool: ChunkPool;
-let runner: QueueRunner;
 
-beforeAll(async () => {
-  db = await useFreshDb();
-  pool = createChunkPool({ threads: 1, entry: "source" });
-  runner = new QueueRunner({ db, pool, pollMs: 20 });
-  await runner.start();
-});
+beforeAll(async () => ({ db } = await startSweepRunner()));
 afterAll(async () => {
-  await runner?.stop();
-  await pool?.close();
-  await closeTestDb();
+  await stopSweepRunner();
   delete process.env.KICKDRIFT_RESULT_STORE;
 });
 

@@ -1,12 +1,16 @@
 /**
- * Shared set-up for the sweep integration tests: invented studios, small specs of invented game
- * scenes, grants, and a way to wait for the runner.
+ * Shared set-up for the sweep integration tests: a fresh database with a running queue runner,
+ * invented studios, small specs of invented game scenes, grants, and a way to wait for the runner.
  */
 import { eq } from "drizzle-orm";
-import { getDb } from "@/db/client";
+import { getDb, type Db } from "@/db/client";
 import { ledgerEntries, sweeps, type Sweep, type User } from "@/db/schema";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { QueueRunner } from "@/lib/queue/runner";
+import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
+// Aliased as in tests/bench: "use…" names are taken for React hooks by the linter.
+import { closeTestDb, useFreshDb as openFreshTestDb } from "../../helpers/db";
 import { makeStudio, makeUser } from "../../helpers/factories";
 import { sessionCookie } from "../../helpers/http";
 
@@ -37,28 +41,38 @@ export async function makeSweepStudio(name: string, grantMs = 60 * 60_000): Prom
   };
 }
 
+let running: { pool: ChunkPool; runner: QueueRunner } | undefined;
+
+/**
+ * A fresh database (useFreshDb) with a queue runner on one worker thread, started, and a studio
+ * (makeSweepStudio) for each name given: the set-up of test files whose sweeps must run to the
+ * end. Call once per file in beforeAll, with stopSweepRunner in afterAll.
+ */
+export async function startSweepRunner(...studioNames: string[]): Promise<{ db: Db; studios: TestStudio[] }> {
+  const db = await openFreshTestDb();
+  const pool = createChunkPool({ threads: 1, entry: "source" });
+  const runner = new QueueRunner({ db, pool, pollMs: 20 });
+  running = { pool, runner };
+  await runner.start();
+  const studios: TestStudio[] = [];
+  for (const name of studioNames) studios.push(await makeSweepStudio(name));
+  return { db, studios };
+}
+
+/** Stops the runner of startSweepRunner, closes its threads and the test database. */
+export async function stopSweepRunner(): Promise<void> {
+  await running?.runner.stop();
+  await running?.pool.close();
+  running = undefined;
+  await closeTestDb();
+}
+
 export async function grant(studioId: string, computeMs: number, key: string): Promise<void> {
   await appendLedgerEntry(await getDb(), { studioId, kind: "adjustment", computeMs, idempotencyKey: key, memo: "test grant" });
 }
 
-/** Puck against striker of the invented air-hockey game "Puckyard": 5 stiffnesses × 3 timesteps. */
-export function puckSpec(): SweepSpecInput {
-  return {
-    name: "Puckyard puck vs striker",
-    scenario: {
-      scene: { kind: "pair", massAKg: 0.17, massBKg: 0.4, radiusAM: 0.04, radiusBM: 0.05, speedAMPerS: 6, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 },
-      contact: { model: "linear", stiffness: 2e5, damping: { kind: "restitution", value: 0.8 } },
-      integrator: "symplectic-euler",
-      dtS: 1 / 240,
-      substeps: 4,
-      durationS: 0.1,
-    },
-    axes: [
-      { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 5 },
-      { parameter: "dtS", spacing: "log", from: 1 / 960, to: 1 / 60, count: 3 },
-    ],
-  };
-}
+/** Puck against striker of the invented air-hockey game "Puckyard": 5 stiffnesses × 3 timesteps (the unit tests' fixture). */
+export { puckPairSpec as puckSpec } from "../../unit/sweeps/fixtures";
 
 /** A ball pit of an invented party game, "Jellybean Jar": enough work per cell for measured compute to mean something. */
 export function ballPitSpec(durationS = 0.5): SweepSpecInput {

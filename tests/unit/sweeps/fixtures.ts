@@ -5,7 +5,7 @@
  */
 import type { SweepSpecInput } from "../../../lib/sweeps/spec";
 
-/** A hockey puck (0.17 kg, 4 cm) hitting a heavier striker head-on. */
+/** A hockey puck (0.17 kg, 4 cm) hitting a heavier striker head-on (also the integration tests' puckSpec). */
 export function puckPairSpec(): SweepSpecInput {
   return {
     name: "Puckyard puck vs striker",
