@@ -55,14 +55,16 @@ END $$;
 -- counters and verdict totals (p_tally: verdict → cells), and — only when the chunk is far from
 -- every limit ("easy": the balance stays above p_low_balance_ms and this month's usage stays under
 -- p_first_alert_percent of the monthly cap) — insert its ledger debit under p_key (idempotent).
--- Returns whether the chunk was recorded, the sweep's new and previous status, and whether the
--- debit was made here (easy = 1) or is left to the caller's careful path in the same transaction.
+-- With p_only_if_easy, a chunk that is not easy is left untouched (recorded = 0, easy = 0), so the
+-- easy case can run as one statement on its own and the caller redoes the rest in a transaction of
+-- its own. Returns whether the chunk was recorded, the sweep's new and previous status, and whether
+-- the debit was made here (easy = 1) or is left to the caller's careful path in the same transaction.
 CREATE OR REPLACE FUNCTION kickdrift_record_chunk(
   p_owner text, p_chunk_id integer, p_sweep_id text, p_studio_id text,
   p_cells_in_blob integer, p_cells_run integer, p_compute_ms bigint,
   p_bytes integer, p_location text, p_data bytea, p_tally jsonb,
   p_key text, p_memo text, p_month_start timestamptz, p_month_end timestamptz,
-  p_low_balance_ms bigint, p_default_cap_ms bigint, p_first_alert_percent integer)
+  p_low_balance_ms bigint, p_default_cap_ms bigint, p_first_alert_percent integer, p_only_if_easy boolean)
 RETURNS TABLE (recorded integer, new_status text, sweep_status text, easy integer)
 LANGUAGE plpgsql SET plan_cache_mode = force_generic_plan AS $$
 #variable_conflict use_column
@@ -84,6 +86,7 @@ BEGIN
     UPDATE sweep_chunks SET status = 'done', lease_owner = NULL, lease_expires_at = NULL, compute_ms = p_compute_ms, last_error = NULL
     WHERE sweep_chunks.id = p_chunk_id AND sweep_chunks.status = 'running' AND sweep_chunks.lease_owner = p_owner
       AND EXISTS (SELECT 1 FROM locked WHERE locked.status NOT IN ('cancelled', 'failed'))
+      AND (NOT p_only_if_easy OR EXISTS (SELECT 1 FROM easy))
     RETURNING sweep_chunks.chunk_index
   ), stored AS (
     INSERT INTO sweep_results AS r (sweep_id, studio_id, chunk_index, cells, complete, bytes, location, data)

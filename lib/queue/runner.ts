@@ -25,7 +25,7 @@
  */
 import { randomBytes } from "node:crypto";
 import { and, eq, inArray, sql } from "drizzle-orm";
-import type { Db } from "@/db/client";
+import type { Db, DbOrTx } from "@/db/client";
 import { sweepChunks, sweepResults, sweeps, type SweepChunk } from "@/db/schema";
 import { recordChunkUsage } from "@/lib/billing/usage";
 import { LOW_BALANCE_MS } from "@/lib/billing/packs";
@@ -101,6 +101,11 @@ export class QueueRunner {
   /** What a chunk needs of its sweep (the spec never changes once submitted). */
   private readonly sweepInfo = new Map<string, Promise<SweepInfo | null>>();
   private limitsCheckedAt = 0;
+  /**
+   * The last claim found fewer chunks than it asked for: until a poke (a submit, a resume) or the
+   * next poll, a landing chunk does not trigger another claim that would find nothing.
+   */
+  private drainedUntil = 0;
   /** A chunk landed near a limit (its debit went the careful way): check the limits before the next claim. */
   private nearLimit = true;
 
@@ -128,6 +133,12 @@ export class QueueRunner {
 
   /** Nudge the loop (after a submit) instead of waiting for the next poll. */
   poke(): void {
+    this.drainedUntil = 0;
+    this.wakeLoop();
+  }
+
+  /** Run the loop now (a chunk landed): it claims again only if the queue was not found drained. */
+  private wakeLoop(): void {
     this.poked = true;
     this.wake?.();
   }
@@ -209,8 +220,10 @@ export class QueueRunner {
         await this.applyLimits();
         const free = this.concurrency - this.inFlight.size;
         // Claim once half the window is free, or at once if a thread could be left without work.
-        if (this.running && free > 0 && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
-          for (const chunk of await this.claim(free)) this.launch(chunk);
+        if (this.running && free > 0 && Date.now() >= this.drainedUntil && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
+          const claimed = await this.claim(free);
+          if (claimed.length < free) this.drainedUntil = Date.now() + this.pollMs;
+          for (const chunk of claimed) this.launch(chunk);
         }
       } catch (error) {
         logError(error);
@@ -338,7 +351,7 @@ export class QueueRunner {
       .finally(() => {
         this.inFlight.delete(chunk.id);
         this.landing.delete(landed);
-        this.poke();
+        this.wakeLoop();
       });
     this.landing.add(landed);
   }
@@ -435,12 +448,12 @@ export class QueueRunner {
   }
 
   /**
-   * Record a finished chunk in one transaction: lock the studio (the one debit writer per studio at
-   * a time, as lib/billing/usage.ts does), then in one statement lock the sweep, mark the chunk done
-   * (only if this runner still holds it and the sweep was not stopped), upsert its results row, add
-   * the chunk to the sweep's counters and — when the chunk is far from every limit — insert its
-   * debit. Near a limit the debit goes through recordChunkUsage in the same transaction and the cap
-   * alerts are checked after it. Returns whether the chunk was recorded.
+   * Record a finished chunk atomically: lock the studio (the one debit writer per studio at a time,
+   * as lib/billing/usage.ts does) and the sweep, mark the chunk done (only if this runner still
+   * holds it and the sweep was not stopped), upsert its results row, add the chunk to the sweep's
+   * counters and insert its debit. Far from every limit that is one statement (its own
+   * transaction); near a limit the chunk is recorded in a transaction whose debit goes through
+   * recordChunkUsage, and the cap alerts are checked after it. Returns whether it was recorded.
    */
   private async recordOutcome(
     info: SweepInfo,
@@ -454,25 +467,38 @@ export class QueueRunner {
     const memo = `Sweep ${chunk.sweepId} chunk ${chunk.chunkIndex} (${outcome.cellCount} cells)`;
     const month = monthOf(new Date());
     const firstAlertPercent = Math.min(...CAP_ALERT_THRESHOLDS);
-    const landed = await this.db.transaction(async (tx) => {
-      // One statement: the function kickdrift_record_chunk (drizzle/0008_queue_functions.sql), planned
-      // once per connection; it locks the studio and the sweep and does the steps described above.
-      const result = await tx.execute(sql`
+    const call = (db: DbOrTx, onlyIfEasy: boolean) =>
+      db.execute(sql`
         select * from kickdrift_record_chunk(
           ${this.ownerId}::text, ${chunk.id}::integer, ${chunk.sweepId}::text, ${info.studioId}::text,
           ${cellsInBlob}::integer, ${outcome.cellCount}::integer, ${outcome.computeMs}::bigint,
           ${blob.bytes}::integer, ${blob.location}::text, ${blob.data}::bytea, ${tally}::jsonb,
           ${usageKey(chunk.sweepId, chunk.chunkIndex)}::text, ${memo}::text, ${month.start.toISOString()}::timestamptz, ${month.end.toISOString()}::timestamptz,
-          ${LOW_BALANCE_MS}::bigint, ${PLAN_DEFAULTS.monthlyComputeMs}::bigint, ${firstAlertPercent}::integer)`);
-      const [row] = (result as unknown as { rows: { recorded: number; new_status: string | null; sweep_status: string | null; easy: number }[] }).rows;
-      if (Number(row?.recorded ?? 0) === 0) return { recorded: false, sweepStatus: row?.sweep_status ?? null, newStatus: null, careful: false };
-      const careful = Number(row.easy) === 0;
-      if (careful) {
-        const usage = await recordChunkUsage(tx, { studioId: info.studioId, sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex, computeMs: outcome.computeMs, memo });
-        if (usage.billed) await tx.update(sweeps).set({ computeMs: sql`${sweeps.computeMs} + ${outcome.computeMs}::int` }).where(eq(sweeps.id, chunk.sweepId));
-      }
-      return { recorded: true, sweepStatus: row.sweep_status, newStatus: row.new_status, careful };
-    });
+          ${LOW_BALANCE_MS}::bigint, ${PLAN_DEFAULTS.monthlyComputeMs}::bigint, ${firstAlertPercent}::integer, ${onlyIfEasy}::boolean)`)
+        .then((result) => (result as unknown as { rows: RecordRow[] }).rows[0]);
+    // Far from every limit (the usual case) the chunk is recorded by one statement on its own: the
+    // function kickdrift_record_chunk (drizzle/0008_queue_functions.sql), planned once per
+    // connection, which locks the studio and the sweep and does all of the above.
+    const fast = await call(this.db, true);
+    let landed: { recorded: boolean; sweepStatus: string | null; newStatus: string | null; careful: boolean };
+    if (Number(fast?.recorded ?? 0) > 0) {
+      landed = { recorded: true, sweepStatus: fast.sweep_status, newStatus: fast.new_status, careful: false };
+    } else if (fast && Number(fast.easy) === 0 && fast.sweep_status !== "cancelled" && fast.sweep_status !== "failed") {
+      // Near a limit: record it without the in-place debit and bill it through lib/billing/usage.ts
+      // (prepaid first, overage metered through the outbox, nothing past a cap), in one transaction.
+      landed = await this.db.transaction(async (tx) => {
+        const row = await call(tx, false);
+        if (Number(row?.recorded ?? 0) === 0) return { recorded: false, sweepStatus: row?.sweep_status ?? null, newStatus: null, careful: false };
+        const careful = Number(row.easy) === 0;
+        if (careful) {
+          const usage = await recordChunkUsage(tx, { studioId: info.studioId, sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex, computeMs: outcome.computeMs, memo });
+          if (usage.billed) await tx.update(sweeps).set({ computeMs: sql`${sweeps.computeMs} + ${outcome.computeMs}::int` }).where(eq(sweeps.id, chunk.sweepId));
+        }
+        return { recorded: true, sweepStatus: row.sweep_status, newStatus: row.new_status, careful };
+      });
+    } else {
+      landed = { recorded: false, sweepStatus: fast?.sweep_status ?? null, newStatus: null, careful: false };
+    }
     if (landed.recorded) {
       if (landed.careful) {
         // Near a limit: the chunk may have crossed 80 % or 100 % of the monthly cap, queued a meter
@@ -490,6 +516,14 @@ export class QueueRunner {
     }
     return false;
   }
+}
+
+/** What kickdrift_record_chunk returns. */
+interface RecordRow {
+  recorded: number;
+  new_status: string | null;
+  sweep_status: string | null;
+  easy: number;
 }
 
 interface SweepInfo {

@@ -5,8 +5,8 @@
  *    minutes through the ledger) and run by the real QueueRunner on the worker-thread pool until
  *    it is done; its wall time (submit + run) is set against `runSweep(spec)` on the same pool
  *    (same threads; it plans the same chunks the submit does, and both sides' times include that
- *    planning). Target ratio ≤ 1.15×. Both sides get one untimed warm-up run; the timed queue run
- *    is in a studio with no cache.
+ *    planning). Target: the ratio of the medians ≤ 1.15×. Both sides get one untimed warm-up run,
+ *    then ROUNDS rounds alternate engine and queue; each queue run is in a studio with no cache.
  * 2. GET …/sweeps/{sweepId}/cells (JSON and `?format=csv`) for that sweep, through the route
  *    handler as the integration tests call it: median of 3, target < 1 s, and the response size.
  *
@@ -36,6 +36,8 @@ import { formatSi, table, type BenchModule } from "./bench-module";
 const TARGET_RATIO = 1.15;
 const TARGET_CELLS_S = 1;
 const CELLS_REPEATS = 3;
+/** Timed rounds of engine alone then queue (after one warm-up of each). */
+const ROUNDS = 7;
 /** Enough minutes for the sweep's estimate with room to spare (integer ms). */
 const GRANT_MS = 600 * 60_000;
 /** A hang guard for the queue run, not a speed check. */
@@ -78,30 +80,25 @@ function seconds(fromMs: number): number {
 
 /**
  * The engine alone on the pool, as a program using the engine runs a sweep: `runSweep(spec)` expands
- * the axes and plans the chunks itself (the same default plan the submit makes, checked below), then
- * runs them. Best of two timed calls after one warm-up run. The planning share is timed apart too.
+ * the axes and plans the chunks itself (the same default plan the submit makes, checked), then runs
+ * them.
  */
-async function engineOnly(spec: SweepSpec, pool: ChunkPool): Promise<{ wallS: number; planS: number; chunks: number; computeMs: number }> {
-  const planStarted = performance.now();
-  const plan = planChunks(spec, { axes: expandAxes(spec) });
-  const planS = seconds(planStarted);
-  await runSweep(spec, { pool });
-  let wallS = Number.POSITIVE_INFINITY;
-  let computeMs = 0;
+async function engineOnce(spec: SweepSpec, pool: ChunkPool, chunksPlanned: number): Promise<EngineRun> {
   let chunks = 0;
-  for (let attempt = 0; attempt < 2; attempt++) {
-    let progressChunks = 0;
-    const started = performance.now();
-    const summary = await runSweep(spec, { pool, onProgress: (progress) => (progressChunks = progress.chunks) });
-    const wall = seconds(started);
-    if (wall < wallS) {
-      wallS = wall;
-      computeMs = summary.computeMs;
-      chunks = progressChunks;
-    }
-  }
-  if (chunks !== plan.length) throw new Error(`runSweep ran ${chunks} chunks where the submit's plan has ${plan.length}`);
-  return { wallS, planS, chunks, computeMs };
+  const started = performance.now();
+  const elu = nodePerformance.eventLoopUtilization();
+  const summary = await runSweep(spec, { pool, onProgress: (progress) => (chunks = progress.chunks) });
+  const wallS = seconds(started);
+  const busy = nodePerformance.eventLoopUtilization(elu);
+  if (chunks !== chunksPlanned) throw new Error(`runSweep ran ${chunks} chunks where the submit's plan has ${chunksPlanned}`);
+  return { wallS, computeMs: summary.computeMs, mainBusyS: busy.active / 1e3 };
+}
+
+interface EngineRun {
+  wallS: number;
+  computeMs: number;
+  /** Seconds the main thread was busy (event-loop utilisation). */
+  mainBusyS: number;
 }
 
 async function sweepRow(db: Db, id: string): Promise<Sweep> {
@@ -175,31 +172,54 @@ async function run(): Promise<void> {
   const threads = defaultThreadCount();
   console.log(`${cells} cells × ${stepsPerCell(spec.scenario)} steps = ${formatSi(cells * stepsPerCell(spec.scenario))} cell-steps; ${threads} threads (entry "source")`);
 
+  const planStarted = performance.now();
+  const chunksPlanned = planChunks(spec, { axes: expandAxes(spec) }).length;
+  const planS = seconds(planStarted);
+
   const db = await openFreshTestDb();
   const pool = createChunkPool({ threads, entry: "source" });
   const runner = new QueueRunner({ db, pool, onRecorded });
   try {
-    const engine = await engineOnly(spec, pool);
+    // One untimed run of each first: the database's WASM code, the runner's and the engine's paths
+    // are compiled once per process, not once per sweep.
+    await engineOnce(spec, pool, chunksPlanned);
     await runner.start();
-    // One untimed run first, as the engine side gets: the database's WASM code and the runner's
-    // paths are compiled once per process, not once per sweep. A fresh studio then has no cache.
     await throughQueue(db, runner, (await makeSweepStudio("Pebblecourt Warm-up", GRANT_MS)).studioId);
-    const studio = await makeSweepStudio("Pebblecourt Games", GRANT_MS);
-    const queue = await throughQueue(db, runner, studio.studioId);
     await runner.stop();
+    // Then ROUNDS rounds of engine alone, queue, alternating so a slower spell of the machine falls
+    // on both sides. The runner is stopped while the engine runs alone. Each queue run is in a new
+    // studio: nothing comes from the result cache.
+    const engineRuns: EngineRun[] = [];
+    const queueRuns: QueueRun[] = [];
+    let studio: Awaited<ReturnType<typeof makeSweepStudio>> | undefined;
+    for (let round = 0; round < ROUNDS; round++) {
+      engineRuns.push(await engineOnce(spec, pool, chunksPlanned));
+      studio = await makeSweepStudio(`Pebblecourt Games ${round + 1}`, GRANT_MS);
+      await runner.start();
+      queueRuns.push(await throughQueue(db, runner, studio.studioId));
+      await runner.stop();
+    }
+    if (!studio) throw new Error("no rounds ran");
+    const engineS = median(engineRuns.map((r) => r.wallS));
+    const totalS = median(queueRuns.map((r) => r.totalS));
+    const list = (values: number[]) => values.map((v) => v.toFixed(3)).join(" ");
 
     const rows: (string | number)[][] = [
-      ["path", "wall s", "chunks", "cells done", "note"],
-      ["runSweep (engine on pool)", engine.wallS.toFixed(3), engine.chunks, cells, `best of 2 after a warm-up run, its own planning included (${engine.planS.toFixed(3)} s); worker compute ${engine.computeMs} ms`],
-      ["queue: submit", queue.submitS.toFixed(3), "", "", "validate, plan, write sweep + chunks"],
-      ["queue: run to done", queue.runS.toFixed(3), queue.sweep.chunks, queue.sweep.cellsDone, `billed ${queue.sweep.computeMs} ms, estimated ${queue.sweep.estimatedComputeMs} ms`],
-      ["queue: total", queue.totalS.toFixed(3), "", "", `submit + run; main thread busy ${queue.mainBusyS.toFixed(3)} s`],
+      ["path", `median of ${ROUNDS} s`, "each run s", "note"],
+      ["runSweep (engine on pool)", engineS.toFixed(3), list(engineRuns.map((r) => r.wallS)), `its own planning included (planning alone ${planS.toFixed(3)} s); ${chunksPlanned} chunks; worker compute ${list(engineRuns.map((r) => r.computeMs / 1e3))} s; main thread busy ${list(engineRuns.map((r) => r.mainBusyS))} s`],
+      ["queue: submit", median(queueRuns.map((r) => r.submitS)).toFixed(3), list(queueRuns.map((r) => r.submitS)), "validate, plan, check limits, write sweep + chunks"],
+      ["queue: run to done", median(queueRuns.map((r) => r.runS)).toFixed(3), list(queueRuns.map((r) => r.runS)), `billed ${list(queueRuns.map((r) => r.sweep.computeMs / 1e3))} s; estimated ${(queueRuns[0].sweep.estimatedComputeMs / 1e3).toFixed(3)} s`],
+      ["queue: total", totalS.toFixed(3), list(queueRuns.map((r) => r.totalS)), `submit + run; main thread busy ${list(queueRuns.map((r) => r.mainBusyS))} s`],
     ];
     console.log(table(rows));
-    console.log(`queue total / runSweep: ${(queue.totalS / engine.wallS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); run only / runSweep: ${(queue.runS / engine.wallS).toFixed(2)}×`);
+    const ratios = queueRuns.map((r, i) => r.totalS / engineRuns[i].wallS);
+    console.log(
+      `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); per round: ${ratios.map((r) => r.toFixed(2)).join(" ")}; ` +
+        `${queueRuns[0].sweep.cellsDone} cells done per queue run`,
+    );
 
-    const json = await timeCellsRoute(studio.studioId, queue.sweep.id, studio.cookies.owner, "");
-    const csv = await timeCellsRoute(studio.studioId, queue.sweep.id, studio.cookies.owner, "?format=csv");
+    const json = await timeCellsRoute(studio.studioId, queueRuns[queueRuns.length - 1].sweep.id, studio.cookies.owner, "");
+    const csv = await timeCellsRoute(studio.studioId, queueRuns[queueRuns.length - 1].sweep.id, studio.cookies.owner, "?format=csv");
     console.log(
       table([
         ["GET …/cells", "status", `median of ${CELLS_REPEATS} s`, "size", "target"],
