@@ -5,9 +5,11 @@
  * The scenario's fields are written as 32-bit words in a fixed order (each scene kind's fields
  * listed below; an absent optional field writes a marker of its own) and hashed by four
  * MurmurHash3-style lanes with distinct seeds and rotations, finished by fmix32 with cross-lane
- * mixing. Integer-only arithmetic: the same key on every platform and thread. About a tenth of a
- * microsecond a cell, so workers key every cell they run. Not a cryptographic hash: it identifies
- * a studio's own results to that studio.
+ * mixing. Integer-only arithmetic: the same key on every platform and thread. About 0.6 µs a
+ * pair cell on this project's 2-core test machine (a few per cent of a cheap cell's simulation),
+ * so workers key every cell they run. Not a cryptographic hash: it identifies a studio's own
+ * results to that studio. The values are pinned by tests/unit/sweeps/packed.test.ts: changing
+ * them makes every stored result miss the cache.
  *
  * Pure: safe to import anywhere.
  */
@@ -43,75 +45,90 @@ const allScenarioFields: [Exclude<keyof Scenario, KeyedScenarioFields>] extends 
 void allScenarioFields;
 
 /** Grows for snapshot scenes (every body and wall is keyed); other scenes fit in the first 256 words. */
-let words = new Uint32Array(256);
+let buffer = new Uint32Array(256);
 const float64 = new Float64Array(1);
 const float64Words = new Uint32Array(float64.buffer);
-let used = 0;
+/** The words of the strings met so far (scene kinds, models, damping kinds, integrators: a handful). */
+const stringWords = new Map<string, Uint32Array>();
 
-function reserve(more: number): void {
-  if (used + more <= words.length) return;
-  const grown = new Uint32Array(Math.max(words.length * 2, used + more));
-  grown.set(words.subarray(0, used));
-  words = grown;
-}
-
-function putNumber(value: number): void {
+function putNumber(w: Uint32Array, n: number, value: number): number {
   float64[0] = value === 0 ? 0 : value;
-  words[used++] = float64Words[0];
-  words[used++] = float64Words[1];
+  w[n] = float64Words[0];
+  w[n + 1] = float64Words[1];
+  return n + 2;
 }
 
-function putOptional(value: number | undefined): void {
-  if (value === undefined) words[used++] = 0x554e4445;
-  else {
-    words[used++] = 0x56414c55;
-    putNumber(value);
+function putOptional(w: Uint32Array, n: number, value: number | undefined): number {
+  if (value === undefined) {
+    w[n] = 0x554e4445;
+    return n + 1;
   }
+  w[n] = 0x56414c55;
+  return putNumber(w, n + 1, value);
 }
 
-function putString(text: string): void {
-  words[used++] = 0x53000000 | text.length;
+function encodeString(text: string): Uint32Array {
+  const encoded = new Uint32Array(1 + Math.ceil(text.length / 2));
+  let n = 0;
+  encoded[n++] = 0x53000000 | text.length;
   let i = 0;
-  for (; i + 1 < text.length; i += 2) words[used++] = text.charCodeAt(i) | (text.charCodeAt(i + 1) << 16);
-  if (i < text.length) words[used++] = text.charCodeAt(i);
+  for (; i + 1 < text.length; i += 2) encoded[n++] = text.charCodeAt(i) | (text.charCodeAt(i + 1) << 16);
+  if (i < text.length) encoded[n++] = text.charCodeAt(i);
+  return encoded;
+}
+
+function putString(w: Uint32Array, n: number, text: string): number {
+  let encoded = stringWords.get(text);
+  if (!encoded) {
+    encoded = encodeString(text);
+    // Bounded: an unexpected stream of distinct strings is encoded each time instead of kept.
+    if (stringWords.size < 256) stringWords.set(text, encoded);
+  }
+  for (let i = 0; i < encoded.length; i++) w[n + i] = encoded[i];
+  return n + encoded.length;
 }
 
 /** Write the key of `scenario` as four u32 words into `out` at `offset`. */
 export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): void {
-  used = 0;
   const scene = scenario.scene as unknown as Record<string, number> & { kind: SceneKind };
-  putString(scene.kind);
-  for (const field of SCENE_FIELDS[scene.kind] as readonly string[]) putNumber(scene[field]);
   if (scene.kind === "snapshot") {
     const snapshot = scenario.scene as SnapshotScene;
-    reserve(2 + 2 * (snapshot.bodies.length * SNAPSHOT_BODY_FIELDS.length + snapshot.walls.length * SNAPSHOT_WALL_FIELDS.length) + 64);
-    words[used++] = snapshot.bodies.length;
-    for (const body of snapshot.bodies) for (const field of SNAPSHOT_BODY_FIELDS) putNumber(body[field]);
-    words[used++] = snapshot.walls.length;
-    for (const wall of snapshot.walls) for (const field of SNAPSHOT_WALL_FIELDS) putNumber(wall[field]);
+    const need = 256 + 2 * (snapshot.bodies.length * SNAPSHOT_BODY_FIELDS.length + snapshot.walls.length * SNAPSHOT_WALL_FIELDS.length);
+    if (buffer.length < need) buffer = new Uint32Array(need * 2);
+  }
+  const w = buffer;
+  let n = putString(w, 0, scene.kind);
+  const fields = SCENE_FIELDS[scene.kind] as readonly string[];
+  for (let i = 0; i < fields.length; i++) n = putNumber(w, n, scene[fields[i]]);
+  if (scene.kind === "snapshot") {
+    const snapshot = scenario.scene as SnapshotScene;
+    w[n++] = snapshot.bodies.length;
+    for (const body of snapshot.bodies) for (const field of SNAPSHOT_BODY_FIELDS) n = putNumber(w, n, body[field]);
+    w[n++] = snapshot.walls.length;
+    for (const wall of snapshot.walls) for (const field of SNAPSHOT_WALL_FIELDS) n = putNumber(w, n, wall[field]);
   }
   const contact = scenario.contact;
-  putString(contact.model);
-  putOptional(contact.stiffness);
-  putOptional(contact.material?.youngsModulusPa);
-  putOptional(contact.material?.poissonRatio);
-  putString(contact.damping.kind);
-  putOptional(contact.damping.kind === "none" ? undefined : contact.damping.value);
-  putString(scenario.integrator);
-  putNumber(scenario.dtS);
-  putNumber(scenario.substeps);
-  putNumber(scenario.durationS);
-  putNumber(scenario.tolerances.energyDriftRel);
-  putNumber(scenario.tolerances.maxOverlapFraction);
-  putNumber(scenario.tolerances.blowUpEnergyFactor);
-  putNumber(scenario.seed);
+  n = putString(w, n, contact.model);
+  n = putOptional(w, n, contact.stiffness);
+  n = putOptional(w, n, contact.material?.youngsModulusPa);
+  n = putOptional(w, n, contact.material?.poissonRatio);
+  n = putString(w, n, contact.damping.kind);
+  n = putOptional(w, n, contact.damping.kind === "none" ? undefined : contact.damping.value);
+  n = putString(w, n, scenario.integrator);
+  n = putNumber(w, n, scenario.dtS);
+  n = putNumber(w, n, scenario.substeps);
+  n = putNumber(w, n, scenario.durationS);
+  n = putNumber(w, n, scenario.tolerances.energyDriftRel);
+  n = putNumber(w, n, scenario.tolerances.maxOverlapFraction);
+  n = putNumber(w, n, scenario.tolerances.blowUpEnergyFactor);
+  n = putNumber(w, n, scenario.seed);
 
   let h0 = 0x9747b28c | 0;
   let h1 = 0x2f8b6a11 | 0;
   let h2 = 0x61c88647 | 0;
   let h3 = 0x7f4a7c15 | 0;
-  for (let i = 0; i < used; i++) {
-    let k = Math.imul(words[i], 0xcc9e2d51);
+  for (let i = 0; i < n; i++) {
+    let k = Math.imul(w[i], 0xcc9e2d51);
     k = (k << 15) | (k >>> 17);
     k = Math.imul(k, 0x1b873593);
     h0 ^= k;
@@ -127,7 +144,7 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
     h3 = (h3 << 11) | (h3 >>> 21);
     h3 = (Math.imul(h3, 5) + 0x32ac3b17) | 0;
   }
-  h0 ^= used;
+  h0 ^= n;
   const a = fmix32(h0 ^ h2);
   const b = fmix32(h1 ^ h3);
   out[offset] = fmix32((h0 + b) | 0);

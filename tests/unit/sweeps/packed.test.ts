@@ -78,6 +78,34 @@ describe("packed results", () => {
 describe("scenario keys", () => {
   const base = parsed(bumperWallSpec()).scenario;
 
+  function firstCell(input: unknown): Scenario {
+    const spec = parsed(input);
+    return cellRange(spec, expandAxes(spec), 0, 1)[0].scenario;
+  }
+
+  // Stored results are matched by these keys in later sweeps: a change to the key function (field
+  // order, encoding, hash) would make every studio's stored results miss the cache and be billed
+  // again. The values are those of the key function as first released (its own output; no outside
+  // source); change them only with a deliberate re-keying of stored results.
+  it("keep the values they were first released with, for every scene kind", () => {
+    const box = { name: "Jellybean Jar", scenario: { scene: { kind: "box", count: 12, massKg: 0.05, radiusM: 0.03, widthM: 1, heightM: 0.8, maxSpeedMPerS: 1, gravityMPerS2: 9.81 }, contact: { model: "linear", stiffness: 1e4, damping: { kind: "coefficient", value: 0.5 } }, integrator: "velocity-verlet", dtS: 1e-3, durationS: 0.5, seed: 7 }, axes: [] };
+    const snapshot = {
+      name: "Loading bay crates",
+      scenario: {
+        scene: { kind: "snapshot", bodies: [{ xM: 0, yM: 1, vxMPerS: 1, vyMPerS: 0, massKg: 2, radiusM: 0.2 }, { xM: 0.5, yM: 1.1, vxMPerS: -0.5, vyMPerS: 0, massKg: 1, radiusM: 0.15 }], walls: [{ normalX: 0, normalY: 1, offsetM: 0 }], gravityMPerS2: 9.81, speedScale: 1 },
+        contact: { model: "linear", stiffness: 1e5, damping: { kind: "restitution", value: 0.5 } },
+        integrator: "symplectic-euler",
+        dtS: 1e-3,
+        durationS: 0.2,
+      },
+      axes: [],
+    };
+    expect(keyOf(firstCell(puckPairSpec()))).toEqual([0x8d54f120, 0x22240c91, 0xdfb75148, 0x6a446b1b]);
+    expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0xa8e591b7, 0xc9ffd09b, 0xa6312c37, 0xca357ce4]);
+    expect(keyOf(firstCell(box))).toEqual([0x65550550, 0xb40de569, 0x935b08e4, 0x849c4c3e]);
+    expect(keyOf(firstCell(snapshot))).toEqual([0x298ecd32, 0x4b5308f6, 0x475f4841, 0x7139ff69]);
+  });
+
   it("are equal for equal scenarios in any key order, and for −0 and 0", () => {
     const reordered = JSON.parse(JSON.stringify({ seed: base.seed, tolerances: base.tolerances, durationS: base.durationS, substeps: base.substeps, dtS: base.dtS, integrator: base.integrator, contact: base.contact, scene: base.scene })) as Scenario;
     expect(keyOf(reordered)).toEqual(keyOf(base));
