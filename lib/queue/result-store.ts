@@ -15,9 +15,11 @@
  *
  * Node only.
  */
-import { mkdir, open, readFile, rename, rm } from "node:fs/promises";
+import { mkdir, open, readFile, readdir, rename, rm, rmdir, stat } from "node:fs/promises";
 import path from "node:path";
-import { dataDir } from "@/db/client";
+import { isNotNull } from "drizzle-orm";
+import { dataDir, type Db } from "@/db/client";
+import { sweepResults } from "@/db/schema";
 
 export type ResultStoreKind = "file" | "database";
 
@@ -82,4 +84,44 @@ export async function readBlob(row: { location: string | null; data: Uint8Array 
 /** Drop a file the database no longer points at (a partial chunk's cached cells once merged). */
 export async function dropBlobFile(location: string | null): Promise<void> {
   if (location) await rm(path.join(resultsDir(), location), { force: true });
+}
+
+/** How old an unreferenced result file must be before removeOrphanBlobs takes it (ms). */
+export const ORPHAN_MIN_AGE_MS = 10 * 60_000;
+
+/**
+ * Remove result files no results row points at: a chunk's blob written just before its runner
+ * died, or before a transaction that failed. Only files older than `minAgeMs` go, so a blob
+ * written a moment before its recording transaction is never taken. Run at start by the queue
+ * runner (file store only). Returns how many files were removed.
+ */
+export async function removeOrphanBlobs(db: Db, minAgeMs = ORPHAN_MIN_AGE_MS): Promise<number> {
+  if (resultStoreKind() !== "file") return 0;
+  const root = resultsDir();
+  const folders = await readdir(root).catch(() => [] as string[]);
+  if (folders.length === 0) return 0;
+  const rows = await db.select({ location: sweepResults.location }).from(sweepResults).where(isNotNull(sweepResults.location));
+  const referenced = new Set(rows.map((row) => row.location));
+  const cutoff = Date.now() - minAgeMs;
+  let removed = 0;
+  for (const folder of folders) {
+    if (!SAFE_NAME.test(folder)) continue;
+    const files = await readdir(path.join(root, folder)).catch(() => [] as string[]);
+    let left = files.length;
+    for (const file of files) {
+      if (referenced.has(`${folder}/${file}`)) continue;
+      const full = path.join(root, folder, file);
+      const info = await stat(full).catch(() => null);
+      if (!info?.isFile() || info.mtimeMs > cutoff) continue;
+      await rm(full, { force: true });
+      removed++;
+      left--;
+    }
+    if (left === 0) {
+      // rmdir refuses a folder that is not empty (a blob written meanwhile): it stays.
+      await rmdir(path.join(root, folder)).catch(() => undefined);
+      madeFolders.delete(path.join(root, folder));
+    }
+  }
+  return removed;
 }

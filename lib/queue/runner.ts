@@ -39,7 +39,7 @@ import { PackedView, mergePacked, verdictTally } from "@/lib/sweeps/packed";
 import type { ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import { RUNNER_KEY } from "./poke";
-import { dropBlobFile, putBlob, readBlob } from "./result-store";
+import { dropBlobFile, putBlob, readBlob, removeOrphanBlobs } from "./result-store";
 
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
@@ -126,6 +126,8 @@ export class QueueRunner {
     this.running = true;
     this.crashed = false;
     await this.reclaimLapsed(this.reclaimForeignAtStart);
+    // Result files left by a process that died between writing a blob and recording it.
+    void removeOrphanBlobs(this.db).catch(logError);
     this.renewTimer = setInterval(() => void this.renewLeases().catch(logError), Math.max(50, Math.floor(this.leaseMs / 3)));
     this.renewTimer.unref?.();
     this.loopDone = this.loop();
@@ -416,6 +418,8 @@ export class QueueRunner {
     if (this.crashed) return;
     const recorded = await this.recordOutcome(info, chunk, outcome, verdictTally(fresh), blob);
     if (recorded && partial && partial.location !== blob.location) await dropBlobFile(partial.location).catch(logError);
+    // Not recorded (the sweep was stopped, or the lease went to another runner): nothing points at this file.
+    if (!recorded) await dropBlobFile(blob.location).catch(logError);
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */

@@ -3,13 +3,15 @@
  * the quote, the result cache, cancel, and a crash mid-sweep followed by a restart.
  */
 import { readFileSync } from "node:fs";
+import { readdir } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { sweepChunks } from "@/db/schema";
+import { sweepChunks, sweepResults } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { cancelSweep } from "@/lib/queue/cancel";
+import { resultsDir } from "@/lib/queue/result-store";
 import { quoteSweep, submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
 import { balanceMs } from "@/lib/ledger/ledger";
@@ -128,6 +130,11 @@ describe("queue runner", { timeout: 180_000 }, () => {
       expect(row.computeMs).toBe(-debits.reduce((sum, d) => sum + d.computeMs, 0));
       // Cancelled chunks never ran: none of them has a result row beyond the done chunks' cells.
       expect(row.cellsDone).toBe(done.reduce((sum, c) => sum + c.cellCount, 0));
+      // A chunk that finished after the cancel left no file behind: the sweep's folder holds the
+      // files of its results rows and nothing else.
+      const rows = await db.select({ location: sweepResults.location }).from(sweepResults).where(eq(sweepResults.sweepId, sweep.id));
+      const files = await readdir(path.join(resultsDir(), sweep.id)).catch(() => [] as string[]);
+      expect(files.map((file) => `${sweep.id}/${file}`).sort()).toEqual(rows.map((r) => r.location).sort());
     } finally {
       await runner.stop();
     }
