@@ -94,8 +94,9 @@ export interface ChangeWindow {
 
 /**
  * The sweep's change cursor: the largest recorded_seq of its results rows, 0 before any. Rows of
- * one sweep are written under its studio's and its own lock, so every row with a cursor up to this
- * one is committed once it is read (and a row written later gets a larger one).
+ * one sweep are written by the transaction that creates it (cached cells) or by
+ * kickdrift_record_chunk holding its studio's and its own lock until commit, so every row with a
+ * cursor up to this one is committed once it is read, and a row written later gets a larger one.
  */
 export async function resultsCursor(db: DbOrTx, sweepId: string): Promise<bigint> {
   const [row] = await db
