@@ -1,6 +1,7 @@
 import { sql } from "drizzle-orm";
 import {
   bigint,
+  bigserial,
   boolean,
   check,
   customType,
@@ -262,6 +263,12 @@ const bytea = customType<{ data: Uint8Array; driverData: Uint8Array }>({ dataTyp
  * folder (`location`, PGlite) or the `data` column (`DATABASE_URL`, so every host sees it).
  * `cells` counts the cells in the blob: fewer than the chunk's while only its cached cells are
  * known (`complete` false). The studio's result cache is the keys inside its rows' blobs.
+ *
+ * `recordedSeq` is the row's change cursor: a value of the column's own sequence, taken when the
+ * row is inserted (its default) and again whenever the row is rewritten (the partial row made
+ * complete by kickdrift_record_chunk, drizzle/0009_queue_functions.sql, sets it to nextval of
+ * `sweep_results_recorded_seq_seq`). A sweep's rows are written under its lock, so within one
+ * sweep a larger value was committed later: the cells route answers "what changed after cursor N".
  */
 export const sweepResults = pgTable(
   "sweep_results",
@@ -279,9 +286,14 @@ export const sweepResults = pgTable(
     bytes: integer("bytes").notNull(),
     location: text("location"),
     data: bytea("data"),
+    recordedSeq: bigserial("recorded_seq", { mode: "bigint" }).notNull(),
     createdAt: createdAt(),
   },
-  (t) => [uniqueIndex("sweep_results_sweep_chunk_uq").on(t.sweepId, t.chunkIndex), index("sweep_results_studio_idx").on(t.studioId, t.id)],
+  (t) => [
+    uniqueIndex("sweep_results_sweep_chunk_uq").on(t.sweepId, t.chunkIndex),
+    index("sweep_results_studio_idx").on(t.studioId, t.id),
+    index("sweep_results_sweep_seq_idx").on(t.sweepId, t.recordedSeq),
+  ],
 );
 
 /** Append-only: balance = Σ computeMs; every writer supplies an idempotency key. */

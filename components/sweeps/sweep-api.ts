@@ -1,11 +1,12 @@
 "use client";
 /** Client access to the sweep routes of issue 4 (`/api/v1/studios/{studioId}/…`), typed by the shared contract. */
-import { useQuery } from "@tanstack/react-query";
+import { useQuery, useQueryClient } from "@tanstack/react-query";
 import type { Metrics, TimeSeries, Verdict } from "@/lib/physics/types";
 import type { Scenario } from "@/lib/physics/types";
 import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
+import { FIRST_CURSOR, withPage, type CellsPage, type HeldCells } from "./sweep-cells";
 
 export const SWEEP_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused", "done", "failed", "cancelled"];
 export const ACTIVE_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused"];
@@ -82,10 +83,27 @@ export function useSweep(studioId: string, sweepId: string) {
   });
 }
 
+const heldCellRows = (held: HeldCells) => held.cells;
+
+/**
+ * The sweep's done cells, in index order. The first read asks for every cell; each later one
+ * (every second while the sweep is active, and once more when it finishes) only for the cells of
+ * the results written after the cursor of the cells already held, merged in by index.
+ */
 export function useSweepCells(studioId: string, sweepId: string, active: boolean) {
+  const queryClient = useQueryClient();
+  const queryKey = sweepKeys.cells(studioId, sweepId);
   return useQuery({
-    queryKey: sweepKeys.cells(studioId, sweepId),
-    queryFn: async () => (await apiFetch<{ cells: CellRow[] }>(`${sweepPath(studioId, sweepId)}/cells`)).cells,
+    queryKey,
+    queryFn: async () => {
+      const held = queryClient.getQueryData<HeldCells>(queryKey);
+      const after = encodeURIComponent(held?.cursor ?? FIRST_CURSOR);
+      return withPage(held, await apiFetch<CellsPage>(`${sweepPath(studioId, sweepId)}/cells?after=${after}`));
+    },
+    select: heldCellRows,
+    // withPage keeps the held object when nothing changed; comparing tens of thousands of cells
+    // deeply every second, as structural sharing would, is the work this avoids.
+    structuralSharing: false,
     refetchInterval: active ? 1000 : false,
   });
 }

@@ -161,7 +161,7 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
   const cellsQuery = useSweepCells(studioId, sweepId, active);
   const canRun = role === "owner" || role === "engineer";
 
-  // One last read of the cells once the sweep has finished, so the map shows every cell.
+  // One last read of the cells once the sweep has finished (only what changed since the last poll), so the map shows every cell.
   const wasActive = useRef(false);
   useEffect(() => {
     if (active) wasActive.current = true;

@@ -67,3 +67,25 @@ export async function listSweeps(db: Db, studioId: string, query: ListQuery): Pr
     .offset((query.page - 1) * query.pageSize);
   return { rows, total: Number(n) };
 }
+
+/** The response header of the cells route that carries the sweep's change cursor (JSON and CSV alike). */
+export const CURSOR_HEADER = "x-kickdrift-cursor";
+
+/** The largest change cursor there can be (sweep_results.recorded_seq is a PostgreSQL bigint). */
+export const MAX_CURSOR = 9_223_372_036_854_775_807n;
+
+/**
+ * `?after=` of the cells route: a cursor an earlier answer gave (a whole number from 0 to
+ * MAX_CURSOR, decimal digits only), or null when the query has none. Anything else is a 400
+ * naming `after`: a negative, fractional, exponent or text value is never read as some other number.
+ */
+export function cursorParam(url: URL, name = "after"): bigint | null {
+  const raw = url.searchParams.get(name);
+  if (raw === null) return null;
+  const shown = raw.length > 40 ? `${raw.slice(0, 40)}…` : raw;
+  const limit = `${name} must be a whole number from 0 to ${MAX_CURSOR} (the cursor of an earlier answer); got "${shown}".`;
+  if (!/^[0-9]{1,19}$/.test(raw)) throw new ApiError(400, "validation_failed", limit, name);
+  const value = BigInt(raw);
+  if (value > MAX_CURSOR) throw new ApiError(400, "validation_failed", limit, name);
+  return value;
+}

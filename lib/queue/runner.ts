@@ -276,7 +276,7 @@ export class QueueRunner {
    * its studio runs fewer sweeps than maxRunningSweeps; starting it is re-checked under a lock.
    */
   private async claim(limit: number): Promise<SweepChunk[]> {
-    // The statement is the function kickdrift_claim_chunks (drizzle/0008_queue_functions.sql):
+    // The statement is the function kickdrift_claim_chunks (drizzle/0009_queue_functions.sql):
     // planned once per connection instead of at every claim.
     const result = await this.db.execute(sql`
       select * from kickdrift_claim_chunks(${this.ownerId}::text, ${this.leaseMs / 1000}::double precision, ${limit}::integer, ${PLAN_DEFAULTS.maxRunningSweeps}::integer)`);
@@ -481,7 +481,7 @@ export class QueueRunner {
           ${LOW_BALANCE_MS}::bigint, ${PLAN_DEFAULTS.monthlyComputeMs}::bigint, ${firstAlertPercent}::integer, ${onlyIfEasy}::boolean)`)
         .then((result) => (result as unknown as { rows: RecordRow[] }).rows[0]);
     // Far from every limit (the usual case) the chunk is recorded by one statement on its own: the
-    // function kickdrift_record_chunk (drizzle/0008_queue_functions.sql), planned once per
+    // function kickdrift_record_chunk (drizzle/0009_queue_functions.sql), planned once per
     // connection, which locks the studio and the sweep and does all of the above.
     const fast = await call(this.db, true);
     let landed: { recorded: boolean; sweepStatus: string | null; newStatus: string | null; careful: boolean };

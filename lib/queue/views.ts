@@ -84,11 +84,34 @@ export function storableMetrics(metrics: Metrics): Record<string, number | boole
 const ROWS_PER_READ = 8;
 
 /**
+ * Which results rows to read by their change cursor (sweep_results.recorded_seq): those written
+ * after `after` and no later than `upTo` (a cursor taken before the rows are read).
+ */
+export interface ChangeWindow {
+  after: bigint;
+  upTo: bigint;
+}
+
+/**
+ * The sweep's change cursor: the largest recorded_seq of its results rows, 0 before any. Rows of
+ * one sweep are written by the transaction that creates it (cached cells) or by
+ * kickdrift_record_chunk holding its studio's and its own lock until commit, so every row with a
+ * cursor up to this one is committed once it is read, and a row written later gets a larger one.
+ */
+export async function resultsCursor(db: DbOrTx, sweepId: string): Promise<bigint> {
+  const [row] = await db
+    .select({ cursor: sql<string>`coalesce(max(${sweepResults.recordedSeq}), 0)::text` })
+    .from(sweepResults)
+    .where(eq(sweepResults.sweepId, sweepId));
+  return BigInt(row?.cursor ?? "0");
+}
+
+/**
  * The sweep's stored results, one decoded chunk at a time in chunk (= cell) order. Rows are read
  * a few at a time, so a large sweep is never held whole. `onlyIndex` reads just the chunk holding
- * that cell.
+ * that cell; `changed` only the rows whose cursor lies in that window.
  */
-export async function* storedChunks(db: DbOrTx, sweep: Sweep, onlyIndex?: number): AsyncGenerator<PackedView> {
+export async function* storedChunks(db: DbOrTx, sweep: Sweep, onlyIndex?: number, changed?: ChangeWindow): AsyncGenerator<PackedView> {
   if (onlyIndex !== undefined) {
     const [row] = await db
       .select({ result: sweepResults })
@@ -103,7 +126,14 @@ export async function* storedChunks(db: DbOrTx, sweep: Sweep, onlyIndex?: number
     const rows: SweepResult[] = await db
       .select()
       .from(sweepResults)
-      .where(and(eq(sweepResults.sweepId, sweep.id), gt(sweepResults.chunkIndex, after)))
+      .where(
+        and(
+          eq(sweepResults.sweepId, sweep.id),
+          gt(sweepResults.chunkIndex, after),
+          changed ? gt(sweepResults.recordedSeq, changed.after) : undefined,
+          changed ? lte(sweepResults.recordedSeq, changed.upTo) : undefined,
+        ),
+      )
       .orderBy(asc(sweepResults.chunkIndex))
       .limit(ROWS_PER_READ);
     for (const row of rows) yield new PackedView(await readBlob(row));
@@ -212,12 +242,16 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
 /**
  * The done cells as a stream of bytes, chunk by chunk: JSON `{"cells":[…]}` (the bytes
  * JSON.stringify({ cells: cells.map(cellJson) }) gives) or CSV (header row, then one CRLF row per cell).
+ * With `changed`, only the cells of the rows in that window, and the JSON ends with the window's
+ * end as a string field: `{"cells":[…],"cursor":"123"}` (the bytes JSON.stringify gives for
+ * `{ cells, cursor: String(changed.upTo) }`).
  */
-export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv"): ReadableStream<Uint8Array> {
+export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", changed?: ChangeWindow): ReadableStream<Uint8Array> {
   const axes = expandAxes(sweep.spec as SweepSpec);
   const texts = axisTexts(axes, format);
   const encoder = new TextEncoder();
-  const chunks = storedChunks(db, sweep);
+  const chunks = storedChunks(db, sweep, undefined, changed);
+  const jsonEnd = changed ? `],"cursor":${JSON.stringify(String(changed.upTo))}}` : "]}";
   let started = false;
   let first = true;
   return new ReadableStream<Uint8Array>({
@@ -230,7 +264,7 @@ export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv"): R
         }
         const next = await chunks.next();
         if (next.done) {
-          if (format === "json") controller.enqueue(encoder.encode("]}"));
+          if (format === "json") controller.enqueue(encoder.encode(jsonEnd));
           controller.close();
           return;
         }

@@ -8,7 +8,9 @@
  *    planning). Target: the ratio of the medians ≤ 1.15×. Both sides get one untimed warm-up run,
  *    then ROUNDS rounds alternate engine and queue; each queue run is in a studio with no cache.
  * 2. GET …/sweeps/{sweepId}/cells (JSON and `?format=csv`) for that sweep, through the route
- *    handler as the integration tests call it: median of 3, target < 1 s, and the response size.
+ *    handler as the integration tests call it: median of 3, target < 1 s, and the response size;
+ *    and the sweep page's poll while a sweep runs, `?after=<cursor>`, when one chunk has landed
+ *    since (the cursor before the sweep's last row) and when nothing has.
  *
  * Prints figures and asserts nothing. Run alone: `npx tsx tests/bench/queue-end-to-end.ts`; or
  * through tests/bench/run-all.ts as `queueEndToEnd`.
@@ -16,9 +18,9 @@
 import path from "node:path";
 import { performance as nodePerformance } from "node:perf_hooks";
 import { fileURLToPath } from "node:url";
-import { eq } from "drizzle-orm";
+import { desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { sweeps, type Sweep } from "@/db/schema";
+import { sweepResults, sweeps, type Sweep } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { submitSweep } from "@/lib/queue/submit";
 import { planChunks } from "@/lib/sweeps/chunks";
@@ -218,13 +220,25 @@ async function run(): Promise<void> {
         `${queueRuns[0].sweep.cellsDone} cells done per queue run`,
     );
 
-    const json = await timeCellsRoute(studio.studioId, queueRuns[queueRuns.length - 1].sweep.id, studio.cookies.owner, "");
-    const csv = await timeCellsRoute(studio.studioId, queueRuns[queueRuns.length - 1].sweep.id, studio.cookies.owner, "?format=csv");
+    const lastSweepId = queueRuns[queueRuns.length - 1].sweep.id;
+    const json = await timeCellsRoute(studio.studioId, lastSweepId, studio.cookies.owner, "");
+    const csv = await timeCellsRoute(studio.studioId, lastSweepId, studio.cookies.owner, "?format=csv");
+    // The sweep's two newest change cursors: after the second, one chunk is new (a poll while the sweep runs); after the first, none.
+    const newest = await db
+      .select({ cursor: sweepResults.recordedSeq })
+      .from(sweepResults)
+      .where(eq(sweepResults.sweepId, lastSweepId))
+      .orderBy(desc(sweepResults.recordedSeq))
+      .limit(2);
+    const oneChunk = await timeCellsRoute(studio.studioId, lastSweepId, studio.cookies.owner, `?after=${newest[newest.length - 1].cursor}`);
+    const nothing = await timeCellsRoute(studio.studioId, lastSweepId, studio.cookies.owner, `?after=${newest[0].cursor}`);
     console.log(
       table([
         ["GET …/cells", "status", `median of ${CELLS_REPEATS} s`, "size", "target"],
         ["JSON", json.status, json.medianS.toFixed(3), formatBytes(json.bytes), `< ${TARGET_CELLS_S} s`],
         ["?format=csv", csv.status, csv.medianS.toFixed(3), formatBytes(csv.bytes), `< ${TARGET_CELLS_S} s`],
+        [`?after= (one chunk of ${chunksPlanned} new)`, oneChunk.status, oneChunk.medianS.toFixed(3), formatBytes(oneChunk.bytes), "the sweep page's poll"],
+        ["?after= (nothing new)", nothing.status, nothing.medianS.toFixed(3), formatBytes(nothing.bytes), "the sweep page's poll"],
       ]),
     );
   } finally {

@@ -24,6 +24,12 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
+  // Every read of a sweep's cells the page makes: the sweep's API path and its `after` cursor.
+  const cellReads: { path: string; after: string | null }[] = [];
+  page.on("request", (request) => {
+    const url = new URL(request.url());
+    if (/^\/api\/v1\/studios\/[^/]+\/sweeps\/[^/]+\/cells$/.test(url.pathname)) cellReads.push({ path: url.pathname, after: url.searchParams.get("after") });
+  });
 
   await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
   const studioPath = await openStudio(page);
@@ -76,6 +82,15 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   await expect(tooltip).toContainText("contact stiffness k");
   await expect(tooltip).toContainText("timestep dt");
   await expect(tooltip).toContainText("Exploded");
+
+  // While it ran, the page asked only for the cells that changed: every read names the cursor it
+  // holds, from 0 upwards (never the whole list again).
+  const reads = cellReads.filter((read) => read.path === `/api/v1${sweepPath}/cells`);
+  expect(reads.length).toBeGreaterThan(0);
+  expect(reads[0].after).toBe("0");
+  const afters = reads.map((read) => read.after ?? "");
+  for (const after of afters) expect(after).toMatch(/^[0-9]+$/);
+  for (let i = 1; i < afters.length; i++) expect(BigInt(afters[i])).toBeGreaterThanOrEqual(BigInt(afters[i - 1]));
 
   // --- Open that exploded cell: its energy grows far beyond the start.
   await page.mouse.click(box.x + topRight.x, box.y + topRight.y);

@@ -4,6 +4,7 @@
 -- with EXPLAIN ANALYZE: ≈4 ms planning, <1 ms execution), which on a machine whose cores all run
 -- simulation threads added straight to a sweep's wall time. Written by hand: drizzle-kit does not
 -- generate functions. A later change to either function is a new migration with CREATE OR REPLACE.
+-- Runs after 0008_results_cursor, which adds the sweep_results.recorded_seq column used below.
 
 -- Claim up to p_limit queued chunks for runner p_owner with a lease of p_lease_s seconds. Fair
 -- share: chunks are dealt out between studios in turn (each studio's k-th chunk before anyone's
@@ -51,7 +52,9 @@ END $$;
 
 -- Record a finished chunk: lock the studio (one debit writer per studio at a time, as
 -- lib/billing/usage.ts does), lock the sweep, mark the chunk done (only if runner p_owner still
--- holds it and the sweep was not stopped), upsert its results row, add the chunk to the sweep's
+-- holds it and the sweep was not stopped), upsert its results row (a new row takes its change
+-- cursor recorded_seq from the column's default; a partial row made complete takes a new value of
+-- the same sequence, so the cells route's `after=` readers see it again), add the chunk to the sweep's
 -- counters and verdict totals (p_tally: verdict → cells), and — only when the chunk is far from
 -- every limit ("easy": the balance stays above p_low_balance_ms and this month's usage stays under
 -- p_first_alert_percent of the monthly cap) — insert its ledger debit under p_key (idempotent).
@@ -91,7 +94,8 @@ BEGIN
   ), stored AS (
     INSERT INTO sweep_results AS r (sweep_id, studio_id, chunk_index, cells, complete, bytes, location, data)
     SELECT p_sweep_id, p_studio_id, done.chunk_index, p_cells_in_blob, true, p_bytes, p_location, p_data FROM done
-    ON CONFLICT (sweep_id, chunk_index) DO UPDATE SET cells = excluded.cells, complete = true, bytes = excluded.bytes, location = excluded.location, data = excluded.data
+    ON CONFLICT (sweep_id, chunk_index) DO UPDATE SET cells = excluded.cells, complete = true, bytes = excluded.bytes, location = excluded.location, data = excluded.data,
+      recorded_seq = nextval('sweep_results_recorded_seq_seq')
     RETURNING r.id
   ), billed AS (
     INSERT INTO ledger_entries AS l (studio_id, kind, compute_ms, amount_cents, idempotency_key, sweep_id, chunk_index, memo)
