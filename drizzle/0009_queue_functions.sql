@@ -10,14 +10,29 @@
 -- share: chunks are dealt out between studios in turn (each studio's k-th chunk before anyone's
 -- (k+1)-th), the studio with the fewest chunks running and then the one served longest ago first.
 -- A queued sweep is eligible only while its studio runs fewer sweeps than its limit
--- (studio_quotas.max_running_sweeps, else p_default_max_running); the runner re-checks that under a
--- lock when it starts the sweep.
+-- (studio_quotas.max_running_sweeps, else p_default_max_running). A queued sweep among the claimed
+-- chunks is then started here, the limit re-checked under a lock on its studio row, so runners in
+-- several processes cannot together start one sweep too many; when refused, its chunks go back to
+-- the queue with their attempt not counted and are not returned. sweep_status is the sweep's status
+-- before the claim.
 CREATE OR REPLACE FUNCTION kickdrift_claim_chunks(p_owner text, p_lease_s double precision, p_limit integer, p_default_max_running integer)
 RETURNS TABLE (id integer, sweep_id text, chunk_index integer, first_cell integer, cell_count integer, attempts integer, sweep_status text)
 LANGUAGE plpgsql SET plan_cache_mode = force_generic_plan AS $$
 #variable_conflict use_column
+DECLARE
+  v_ids integer[];
+  v_sweeps text[];
+  v_indexes integer[];
+  v_firsts integer[];
+  v_counts integer[];
+  v_attempts integer[];
+  v_statuses text[];
+  v_start record;
+  v_status text;
+  v_max integer;
+  v_running integer;
+  v_refused text[] := '{}';
 BEGIN
-  RETURN QUERY
   WITH busy AS (
     SELECT s2.studio_id, count(*) AS n FROM sweep_chunks c2 JOIN sweeps s2 ON s2.id = c2.sweep_id WHERE c2.status = 'running' GROUP BY s2.studio_id
   ), slots AS (
@@ -44,9 +59,36 @@ BEGIN
     WHERE studios.id IN (SELECT s4.studio_id FROM sweeps s4 WHERE s4.id IN (SELECT cl.sweep_id FROM claimed cl))
     RETURNING studios.id
   )
-  SELECT cl.id, cl.sweep_id, cl.chunk_index, cl.first_cell, cl.cell_count, cl.attempts, s.status
-  FROM claimed cl JOIN sweeps s ON s.id = cl.sweep_id
-  ORDER BY cl.sweep_id, cl.chunk_index;
+  SELECT array_agg(cl.id), array_agg(cl.sweep_id), array_agg(cl.chunk_index), array_agg(cl.first_cell), array_agg(cl.cell_count), array_agg(cl.attempts), array_agg(s.status)
+  INTO v_ids, v_sweeps, v_indexes, v_firsts, v_counts, v_attempts, v_statuses
+  FROM claimed cl JOIN sweeps s ON s.id = cl.sweep_id;
+  IF v_ids IS NULL THEN
+    RETURN;
+  END IF;
+
+  FOR v_start IN
+    SELECT DISTINCT u.sid, sw.studio_id FROM unnest(v_sweeps, v_statuses) AS u(sid, st) JOIN sweeps sw ON sw.id = u.sid WHERE u.st = 'queued'
+  LOOP
+    PERFORM 1 FROM studios WHERE studios.id = v_start.studio_id FOR UPDATE;
+    -- Another runner may have started it while this one waited for the lock.
+    SELECT sw.status INTO v_status FROM sweeps sw WHERE sw.id = v_start.sid;
+    CONTINUE WHEN v_status IS DISTINCT FROM 'queued';
+    v_max := coalesce((SELECT q.max_running_sweeps FROM studio_quotas q WHERE q.studio_id = v_start.studio_id), p_default_max_running);
+    SELECT count(*) INTO v_running FROM sweeps sw WHERE sw.studio_id = v_start.studio_id AND sw.status = 'running';
+    IF v_running >= v_max THEN
+      UPDATE sweep_chunks SET status = 'queued', lease_owner = NULL, lease_expires_at = NULL, attempts = greatest(sweep_chunks.attempts - 1, 0)
+      WHERE sweep_chunks.id = ANY (v_ids) AND sweep_chunks.sweep_id = v_start.sid AND sweep_chunks.lease_owner = p_owner;
+      v_refused := v_refused || v_start.sid;
+    ELSE
+      UPDATE sweeps SET status = 'running', started_at = coalesce(sweeps.started_at, now()) WHERE sweeps.id = v_start.sid AND sweeps.status = 'queued';
+    END IF;
+  END LOOP;
+
+  RETURN QUERY
+  SELECT u.id, u.sweep_id, u.chunk_index, u.first_cell, u.cell_count, u.attempts, u.sweep_status
+  FROM unnest(v_ids, v_sweeps, v_indexes, v_firsts, v_counts, v_attempts, v_statuses) AS u(id, sweep_id, chunk_index, first_cell, cell_count, attempts, sweep_status)
+  WHERE NOT (u.sweep_id = ANY (v_refused))
+  ORDER BY u.sweep_id, u.chunk_index;
 END $$;
 --> statement-breakpoint
 

@@ -30,7 +30,7 @@ import { sweepChunks, sweepResults, sweeps, type SweepChunk } from "@/db/schema"
 import { recordChunkUsage } from "@/lib/billing/usage";
 import { LOW_BALANCE_MS } from "@/lib/billing/packs";
 import { usageKey } from "@/lib/ledger/ledger";
-import { effectiveQuotas, monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
 import { applyRunLimits, CAP_ALERT_THRESHOLDS, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { VERDICTS } from "@/lib/physics/types";
@@ -273,7 +273,8 @@ export class QueueRunner {
    * Claim up to `limit` queued chunks in one statement. Fair share: chunks are dealt out between
    * studios in turn (each studio's k-th chunk before anyone's (k+1)-th), the studio with the fewest
    * chunks running and then the one served longest ago first. A queued sweep is eligible only while
-   * its studio runs fewer sweeps than maxRunningSweeps; starting it is re-checked under a lock.
+   * its studio runs fewer sweeps than maxRunningSweeps; the same statement starts it, the limit re-checked
+   * under a lock on the studio row (a refused sweep's chunks go back to the queue and are not returned).
    */
   private async claim(limit: number): Promise<SweepChunk[]> {
     // The statement is the function kickdrift_claim_chunks (drizzle/0009_queue_functions.sql):
@@ -298,43 +299,7 @@ export class QueueRunner {
       lastError: null,
       computeMs: 0,
     }));
-    const toStart = [...new Set(rows.filter((row) => row.sweep_status === "queued").map((row) => row.sweep_id))];
-    const refused = new Set<string>();
-    for (const sweepId of toStart) {
-      const ids = chunks.filter((chunk) => chunk.sweepId === sweepId).map((chunk) => chunk.id);
-      if (!(await this.startSweep(sweepId, ids))) refused.add(sweepId);
-    }
-    return refused.size === 0 ? chunks : chunks.filter((chunk) => !refused.has(chunk.sweepId));
-  }
-
-  /**
-   * Marks a queued sweep running. Starting it re-checks maxRunningSweeps under a lock on the studio
-   * row, so runners in several processes cannot together start one sweep too many; when refused,
-   * the claimed chunks go back to the queue with their attempt not counted (false).
-   */
-  private async startSweep(sweepId: string, chunkIds: number[]): Promise<boolean> {
-    return this.db.transaction(async (tx) => {
-      const [sweep] = await tx.select({ studioId: sweeps.studioId, status: sweeps.status }).from(sweeps).where(eq(sweeps.id, sweepId));
-      if (!sweep || sweep.status !== "queued") return true;
-      await tx.execute(sql`select id from studios where id = ${sweep.studioId} for update`);
-      // Another runner may have started it while this one waited for the lock.
-      const [now] = await tx.select({ status: sweeps.status }).from(sweeps).where(eq(sweeps.id, sweepId));
-      if (now?.status !== "queued") return true;
-      const { maxRunningSweeps } = await effectiveQuotas(tx, sweep.studioId);
-      const [{ n }] = await tx.select({ n: sql<number>`count(*)::int` }).from(sweeps).where(and(eq(sweeps.studioId, sweep.studioId), eq(sweeps.status, "running")));
-      if (Number(n) >= maxRunningSweeps) {
-        await tx
-          .update(sweepChunks)
-          .set({ status: "queued", leaseOwner: null, leaseExpiresAt: null, attempts: sql`greatest(${sweepChunks.attempts} - 1, 0)` })
-          .where(and(inArray(sweepChunks.id, chunkIds), eq(sweepChunks.leaseOwner, this.ownerId)));
-        return false;
-      }
-      await tx
-        .update(sweeps)
-        .set({ status: "running", startedAt: sql`coalesce(${sweeps.startedAt}, now())` })
-        .where(and(eq(sweeps.id, sweepId), eq(sweeps.status, "queued")));
-      return true;
-    });
+    return chunks;
   }
 
   private async renewLeases(): Promise<void> {

@@ -71,6 +71,11 @@ function rowsOf<T>(result: unknown): T[] {
 /** One query: the studio's status, quotas, balance, month's usage, reservations and running sweeps. */
 async function readStanding(db: DbOrTx, studioId: string, at: Date, lock: boolean): Promise<Standing | null> {
   const { key, start, end } = monthOf(at);
+  // The lock is its own statement, taken before the standing is read: in PostgreSQL's READ COMMITTED
+  // a statement that waits for a row lock re-reads that row afterwards but not its subqueries, so
+  // one "select … for update" would sum the ledger and the reserved sweeps as they were before the
+  // transaction it waited for committed (two concurrent submits could then both pass a limit).
+  if (lock) await db.execute(sql`select id from studios where id = ${studioId} for update`);
   const result = await db.execute(sql`
     select st.status,
       (select coalesce(sum(l.compute_ms), 0) from ledger_entries l where l.studio_id = st.id) as balance,
@@ -83,8 +88,7 @@ async function readStanding(db: DbOrTx, studioId: string, at: Date, lock: boolea
       (select count(*) from sweeps s where s.studio_id = st.id and s.status = 'running') as running,
       q.monthly_compute_ms, q.max_running_sweeps, q.max_cells_per_sweep, q.max_steps_per_cell, q.max_bodies, q.overage_allowed, q.overage_cap_ms
     from studios st left join studio_quotas q on q.studio_id = st.id
-    where st.id = ${studioId}
-    ${lock ? sql`for update of st` : sql``}`);
+    where st.id = ${studioId}`);
   const [row] = rowsOf<StandingRow>(result);
   if (!row) return null;
   return standingFromRow(row, key);

@@ -37,7 +37,7 @@ afterAll(async () => {
   await closeTestDb();
 });
 
-const newRunner = () => new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000 });
+const newRunner = (concurrency?: number) => new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000, concurrency });
 
 async function sweepCount(studioId: string): Promise<number> {
   return (await db.select().from(sweeps).where(eq(sweeps.studioId, studioId))).length;
@@ -181,7 +181,9 @@ describe("run-time limits", { timeout: 180_000 }, () => {
   it("suspension pauses running sweeps with the reason; lifting it resumes them", async () => {
     const studio = await makeSweepStudio("Cobble Heron Games");
     const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(0.2) }, { chunkOptions: { maxCellsPerChunk: 1 } });
-    const runner = newRunner();
+    // One chunk held at a time: when the suspension lands, at most the chunk on the thread still
+    // finishes (pausing is at chunk boundaries), however fast the machine runs the rest.
+    const runner = newRunner(1);
     await runner.start();
     try {
       await waitForSweep(sweep.id, (s) => s.chunksDone >= 1);

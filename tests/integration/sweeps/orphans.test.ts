@@ -17,9 +17,15 @@ import { makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, sweepRow,
 
 let db: Db;
 
-beforeAll(async () => ({ db } = await startSweepRunner()));
+// The file store is the one that can leave files behind (the default with PGlite; chosen here
+// also when the tests run on PostgreSQL, whose default is the database store).
+beforeAll(async () => {
+  process.env.KICKDRIFT_RESULT_STORE = "file";
+  ({ db } = await startSweepRunner());
+});
 afterAll(async () => {
   await stopSweepRunner();
+  delete process.env.KICKDRIFT_RESULT_STORE;
 });
 
 async function writeAged(file: string, ageMs: number): Promise<void> {
