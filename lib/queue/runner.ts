@@ -12,7 +12,7 @@
  * pool out between studios (fair share) and start a queued sweep only while its studio runs fewer
  * sweeps than its limit.
  *
- * The main thread does as little per cell as it can (the workers pack and key the results; the
+ * The main thread does as little per cell as it can (the workers pack the results; the
  * main thread stores one blob per chunk), because on a machine whose cores all run workers any
  * main-thread work adds to a sweep's wall time. It holds twice as many chunks as the pool has
  * threads, so each thread starts its next chunk while the previous one is being stored.
@@ -20,6 +20,10 @@
  * Leases: a claimed chunk carries its runner's id and an expiry that the runner renews while the
  * chunk runs. A chunk whose lease lapsed (its runner died) goes back to the queue. Claims use
  * `FOR UPDATE SKIP LOCKED`, so several processes can share one PostgreSQL.
+ *
+ * Result-cache keys: chunks run without scenario keys (keying costs up to a third of a cheap cell's
+ * simulation); each recorded run is keyed afterwards on the pool while this runner holds no chunk
+ * (keyStored), and a submit that meets a run not keyed yet keys it itself.
  *
  * Node only (worker threads).
  */
@@ -41,6 +45,8 @@ import type { SweepSpec } from "@/lib/sweeps/spec";
 import { RUNNER_KEY } from "./poke";
 import { dropBlobFile, putBlob, readBlob, removeOrphanBlobs } from "./result-store";
 
+/** Recorded runs waiting for their keys, at most (beyond it, submit keys a run itself when it needs it). */
+const MAX_TO_KEY = 100_000;
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
 export const OUT_OF_MINUTES = RUN_LIMIT_REASONS.outOfMinutes;
@@ -106,6 +112,9 @@ export class QueueRunner {
    * next poll, a landing chunk does not trigger another claim that would find nothing.
    */
   private drainedUntil = 0;
+  /** Recorded runs still without scenario keys, keyed one at a time while no chunk is held. */
+  private readonly toKey: { sweepId: string; chunkIndex: number }[] = [];
+  private keying = false;
   /** A chunk landed near a limit (its debit went the careful way): check the limits before the next claim. */
   private nearLimit = true;
 
@@ -170,6 +179,11 @@ export class QueueRunner {
     return this.running;
   }
 
+  /** Recorded runs this runner has still to key (waiting, or being keyed now). */
+  get runsToKey(): number {
+    return this.toKey.length + (this.keying ? 1 : 0);
+  }
+
   /** Chunks this runner holds a lease on right now. */
   get chunksHeld(): number {
     return this.inFlight.size;
@@ -227,6 +241,7 @@ export class QueueRunner {
           if (claimed.length < free) this.drainedUntil = Date.now() + this.pollMs;
           for (const chunk of claimed) this.launch(chunk);
         }
+        if (this.running && this.inFlight.size === 0 && this.toKey.length > 0 && !this.keying) this.keyNext();
       } catch (error) {
         logError(error);
       }
@@ -344,6 +359,53 @@ export class QueueRunner {
     return { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
   }
 
+  /** Key the next recorded run on the pool (the pool is idle: no chunk is held), then look again. */
+  private keyNext(): void {
+    const item = this.toKey.shift();
+    if (!item) return;
+    this.keying = true;
+    const keyed = this.keyStored(item)
+      .catch(logError)
+      .finally(() => {
+        this.keying = false;
+        this.landing.delete(keyed);
+        this.wakeLoop();
+      });
+    this.landing.add(keyed);
+  }
+
+  /**
+   * Rewrite a stored run with every cell's scenario key, so later quotes and submits of the studio
+   * find its cells without keying them (lib/queue/submit.ts keys a run not keyed yet itself). The
+   * row moves to the new blob only if it has not changed meanwhile (its change cursor, which stays
+   * as it is: the cells are the same); the old file goes a minute later, as an export may be reading it.
+   */
+  private async keyStored(item: { sweepId: string; chunkIndex: number }): Promise<void> {
+    const info = await this.infoOf(item.sweepId);
+    if (!info) return;
+    const [row] = await this.db
+      .select()
+      .from(sweepResults)
+      .where(and(eq(sweepResults.sweepId, item.sweepId), eq(sweepResults.chunkIndex, item.chunkIndex)));
+    if (!row || !row.complete) return;
+    const stored = await readBlob(row);
+    if (new PackedView(stored).hasKeys) return;
+    const outcome = await this.pool.run({ kind: "keys", chunkIndex: item.chunkIndex, spec: info.spec, packed: stored });
+    if (this.crashed) return;
+    const blob = await putBlob(item.sweepId, item.chunkIndex, `k${row.recordedSeq}`, outcome.packed);
+    const moved = await this.db
+      .update(sweepResults)
+      .set({ location: blob.location, bytes: blob.bytes, data: blob.data })
+      .where(and(eq(sweepResults.id, row.id), eq(sweepResults.recordedSeq, row.recordedSeq)))
+      .returning({ id: sweepResults.id });
+    if (moved.length === 0) {
+      await dropBlobFile(blob.location);
+      return;
+    }
+    const old = row.location;
+    if (old && old !== blob.location) setTimeout(() => void dropBlobFile(old).catch(logError), 60_000).unref?.();
+  }
+
   private async runChunk(chunk: SweepChunk, signal: AbortSignal): Promise<void> {
     const info = await this.infoOf(chunk.sweepId);
     if (!info) return;
@@ -363,7 +425,8 @@ export class QueueRunner {
       firstCell: chunk.firstCell,
       cellCount: chunk.cellCount,
       skip: partial ? Int32Array.from(partial.view.indices) : undefined,
-      keys: true,
+      // Keys for the result cache are added while the pool is idle (keyStored), not on the sweep's time.
+      keys: false,
     };
     let outcome: ChunkOutcome;
     try {
@@ -385,6 +448,7 @@ export class QueueRunner {
     if (recorded && partial && partial.location !== blob.location) await dropBlobFile(partial.location).catch(logError);
     // Not recorded (the sweep was stopped, or the lease went to another runner): nothing points at this file.
     if (!recorded) await dropBlobFile(blob.location).catch(logError);
+    else if (this.toKey.length < MAX_TO_KEY) this.toKey.push({ sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex });
   }
 
   /** The chunk's sweep was stopped while it waited: mark it cancelled, bill nothing. */

@@ -14,6 +14,7 @@ import { balanceMs } from "@/lib/ledger/ledger";
 import { enforceSubmitLimits, quoteLimits, type QuoteLimits, type SweepDemand } from "@/lib/quotas/enforce";
 import { VERDICTS } from "@/lib/physics/types";
 import { KeyTable, scenarioKey } from "@/lib/sweeps/cell-key";
+import { keysOfCells } from "@/lib/sweeps/chunk-task";
 import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
 import { QUOTE_BAND, predictSweep } from "@/lib/sweeps/cost";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
@@ -91,12 +92,25 @@ async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: numb
   const sources: PackedView[] = [];
   let cachedCells = 0;
   const rows = await db.select().from(sweepResults).where(eq(sweepResults.studioId, studioId)).orderBy(sweepResults.id);
+  // Runs are stored without keys and keyed while the pool is idle (lib/queue/runner.ts): a run not
+  // keyed yet is keyed here from its sweep's spec, so the cache never misses a stored cell.
+  const specs = new Map<string, SweepSpec>();
   for (const row of rows) {
     const view = new PackedView(await readBlob(row));
-    if (!view.hasKeys) continue;
+    let storedKeys = view.keys;
+    if (!view.hasKeys) {
+      let storedSpec = specs.get(row.sweepId);
+      if (!storedSpec) {
+        const [owner] = await db.select({ spec: sweeps.spec }).from(sweeps).where(eq(sweeps.id, row.sweepId));
+        if (!owner) continue;
+        storedSpec = owner.spec as SweepSpec;
+        specs.set(row.sweepId, storedSpec);
+      }
+      storedKeys = keysOfCells(storedSpec, view.indices);
+    }
     let used = false;
     for (let n = 0; n < view.count; n++) {
-      const first = table.get(view.keys, n * KEY_WORDS);
+      const first = table.get(storedKeys, n * KEY_WORDS);
       if (first < 0 || hitSource[first] !== -1) continue;
       for (let cell = first; cell !== -1; cell = nextSame[cell]) {
         hitSource[cell] = sources.length;

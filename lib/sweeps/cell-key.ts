@@ -6,9 +6,10 @@
  * listed below; an absent optional field writes a marker of its own) and hashed by four
  * MurmurHash3-style lanes with distinct seeds and rotations, finished by fmix32 with cross-lane
  * mixing. Integer-only arithmetic: the same key on every platform and thread. About 0.6 µs a
- * pair cell on this project's 2-core test machine (a few per cent of a cheap cell's simulation),
- * so workers key every cell they run. Not a cryptographic hash: it identifies a studio's own
- * results to that studio. The values are pinned by tests/unit/sweeps/packed.test.ts: changing
+ * pair cell on its own, 1.4–3.7 µs interleaved with the simulation (up to a third of a cheap
+ * pair cell's compute), so the queue keys stored results in idle time, not while a sweep runs
+ * (lib/queue/runner.ts keyStored; lib/queue/submit.ts keys a stored run not keyed yet itself).
+ * Not a cryptographic hash: it identifies a studio's own results to that studio. The values are pinned by tests/unit/sweeps/packed.test.ts: changing
  * them makes every stored result miss the cache.
  *
  * Pure: safe to import anywhere.

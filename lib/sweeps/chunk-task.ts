@@ -7,7 +7,7 @@ import { simulate } from "../physics/index";
 import type { Scenario } from "../physics/types";
 import { scenarioKey } from "./cell-key";
 import { expandAxes, forEachCellInRange, type SweepCell } from "./grid";
-import { KEY_WORDS, PackedView, PackedWriter } from "./packed";
+import { KEY_WORDS, PackedView, PackedWriter, withKeys as packedWithKeys } from "./packed";
 import type { CellResult } from "./results";
 import type { SweepSpec } from "./spec";
 
@@ -18,7 +18,12 @@ export type ChunkTask =
    */
   | { kind: "range"; chunkIndex: number; spec: SweepSpec; firstCell: number; cellCount: number; skip?: Int32Array; keys?: boolean }
   /** Explicit cells (the warm-up, tests). */
-  | { kind: "cells"; chunkIndex: number; cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[]; keys?: boolean };
+  | { kind: "cells"; chunkIndex: number; cells: { index: number; axisValues: (number | string)[]; scenario: Scenario }[]; keys?: boolean }
+  /**
+   * Key a stored run after the fact (the queue runs chunks without keys and keys them while the
+   * pool is idle): `packed` comes back with every cell's scenario key; nothing is simulated.
+   */
+  | { kind: "keys"; chunkIndex: number; spec: SweepSpec; packed: Uint8Array };
 
 /**
  * A chunk's results, packed by the worker (lib/sweeps/packed.ts) into one byte array that
@@ -37,11 +42,29 @@ export interface ChunkOutcome {
   computeNs: number;
 }
 
-function cellCountOf(task: ChunkTask): number {
+function cellCountOf(task: Exclude<ChunkTask, { kind: "keys" }>): number {
   return task.kind === "cells" ? task.cells.length : task.cellCount - (task.skip?.length ?? 0);
 }
 
-function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
+/**
+ * The scenario keys of a sweep's cells `indices` (ascending), 4 words a cell in that order: each
+ * run of consecutive indices is expanded once.
+ */
+export function keysOfCells(spec: SweepSpec, indices: ArrayLike<number>): Uint32Array {
+  const keys = new Uint32Array(indices.length * KEY_WORDS);
+  const axes = expandAxes(spec);
+  let n = 0;
+  while (n < indices.length) {
+    let last = n;
+    while (last + 1 < indices.length && indices[last + 1] === indices[last] + 1) last++;
+    let slot = n;
+    forEachCellInRange(spec, axes, indices[n], last - n + 1, (cell) => scenarioKey(cell.scenario, keys, slot++ * KEY_WORDS));
+    n = last + 1;
+  }
+  return keys;
+}
+
+function forEachCell(task: Exclude<ChunkTask, { kind: "keys" }>, visit: (cell: SweepCell) => void): void {
   if (task.kind === "cells") {
     task.cells.forEach(visit);
     return;
@@ -64,6 +87,12 @@ function forEachCell(task: ChunkTask, visit: (cell: SweepCell) => void): void {
  */
 export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const started = process.hrtime.bigint();
+  if (task.kind === "keys") {
+    const view = new PackedView(task.packed);
+    const packed = view.hasKeys ? task.packed : packedWithKeys(view, keysOfCells(task.spec, view.indices));
+    const computeNs = Number(process.hrtime.bigint() - started);
+    return { chunkIndex: task.chunkIndex, cellCount: view.count, packed, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+  }
   const count = cellCountOf(task);
   const writer = new PackedWriter(count);
   const withKeys = task.keys === true;

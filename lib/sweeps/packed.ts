@@ -68,6 +68,8 @@ export class PackedWriter {
   private readonly sections: Sections;
   private written = 0;
   hasKeys = false;
+  /** A cell copied from a run without keys: the result has none either (a zero key is no key). */
+  private keysMissing = false;
 
   constructor(count: number) {
     this.count = count;
@@ -115,6 +117,15 @@ export class PackedWriter {
     this.verdicts[n] = source.verdicts[from];
     this.reasons[n] = source.reason(from);
     if (source.hasKeys) this.hasKeys = true;
+    else this.keysMissing = true;
+  }
+
+  /** Every cell's key at once (4 words a cell, in slot order): the run then has keys. */
+  setAllKeys(keys: Uint32Array): void {
+    if (keys.length !== KEY_WORDS * this.count) throw new Error(`${keys.length / KEY_WORDS} keys for ${this.count} cells`);
+    this.keys.set(keys);
+    this.hasKeys = true;
+    this.keysMissing = false;
   }
 
   /** Same as copyFrom, but the cell gets another index (a cached result reused at a new position). */
@@ -135,7 +146,7 @@ export class PackedWriter {
     header[1] = VERSION;
     header[2] = this.count;
     header[3] = reasonBytes.length;
-    header[4] = this.hasKeys ? FLAG_KEYS : 0;
+    header[4] = this.hasKeys && !this.keysMissing ? FLAG_KEYS : 0;
     return out;
   }
 }
@@ -232,6 +243,14 @@ export function mergePacked(a: PackedView, b: PackedView): Uint8Array {
     else if (i >= a.count || b.indices[j] < a.indices[i]) writer.copyFrom(b, j++);
     else throw new Error(`cell ${a.indices[i]} is in both runs`);
   }
+  return writer.finish();
+}
+
+/** The same run with every cell's key (4 words a cell, in the run's order). */
+export function withKeys(view: PackedView, keys: Uint32Array): Uint8Array {
+  const writer = new PackedWriter(view.count);
+  for (let n = 0; n < view.count; n++) writer.copyFrom(view, n);
+  writer.setAllKeys(keys);
   return writer.finish();
 }
 

@@ -5,7 +5,9 @@
  *    minutes through the ledger) and run by the real QueueRunner on the worker-thread pool until
  *    it is done; its wall time (submit + run) is set against `runSweep(spec)` on the same pool
  *    (same threads; it plans the same chunks the submit does, and both sides' times include that
- *    planning). Target: the ratio of the medians ≤ 1.15×. Both sides get one untimed warm-up run,
+ *    planning). The runner keys the stored runs for the result cache once the sweep is done, while
+ *    its pool is idle; that keying is left to finish, untimed, before the next round. Target: the
+ *    ratio of the medians ≤ 1.15×. Both sides get one untimed warm-up run,
  *    then ROUNDS rounds alternate engine and queue; each queue run is in a studio with no cache.
  * 2. GET …/sweeps/{sweepId}/cells (JSON and `?format=csv`) for that sweep, through the route
  *    handler as the integration tests call it: median of 3, target < 1 s, and the response size;
@@ -187,6 +189,7 @@ async function run(): Promise<void> {
     await engineOnce(spec, pool, chunksPlanned);
     await runner.start();
     await throughQueue(db, runner, (await makeSweepStudio("Pebblecourt Warm-up", GRANT_MS)).studioId);
+    while (runner.runsToKey > 0) await new Promise((resolve) => setTimeout(resolve, 20));
     await runner.stop();
     // Then ROUNDS rounds of engine alone, queue, alternating so a slower spell of the machine falls
     // on both sides. The runner is stopped while the engine runs alone. Each queue run is in a new
@@ -199,6 +202,9 @@ async function run(): Promise<void> {
       studio = await makeSweepStudio(`Pebblecourt Games ${round + 1}`, GRANT_MS);
       await runner.start();
       queueRuns.push(await throughQueue(db, runner, studio.studioId));
+      // Untimed: the runner keys the stored runs for the result cache while the pool is idle
+      // (after the sweep is done); let it finish before the engine's next turn.
+      while (runner.runsToKey > 0) await new Promise((resolve) => setTimeout(resolve, 20));
       await runner.stop();
     }
     if (!studio) throw new Error("no rounds ran");

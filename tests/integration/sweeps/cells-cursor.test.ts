@@ -63,7 +63,8 @@ beforeAll(async () => {
     ...realPool,
     threads: realPool.threads,
     async run(task, options) {
-      await gate.pass();
+      // Chunks wait at the gate; keying a stored run in idle time (no cells change) does not.
+      if (task.kind !== "keys") await gate.pass();
       return realPool.run(task, options);
     },
   };

@@ -13,7 +13,7 @@ import { sweepResults } from "@/db/schema";
 import { ORPHAN_MIN_AGE_MS, removeOrphanBlobs, resultsDir } from "@/lib/queue/result-store";
 import { submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
-import { makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, sweepRow, waitForSweep } from "./support";
+import { makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, sweepRow, waitForKeyed, waitForSweep } from "./support";
 
 let db: Db;
 
@@ -40,6 +40,8 @@ describe("orphan result files", { timeout: 120_000 }, () => {
     const studio = await makeSweepStudio("Sandpiper Slides");
     const sweep = await submitSweep(db, studio.studioId, { spec: puckSpec() }, { chunkOptions: { maxCellsPerChunk: 6 } });
     const done = await waitForSweep(sweep.id, (s) => s.status === "done");
+    // The runner rewrites each stored run with its keys once idle: wait, so the rows stay put below.
+    await waitForKeyed(done.id);
     const before = JSON.stringify((await storedCells(db, done)).map(cellJson));
     const rows = await db.select({ location: sweepResults.location }).from(sweepResults).where(eq(sweepResults.sweepId, done.id));
     expect(rows.length).toBe(done.chunks);
@@ -50,6 +52,9 @@ describe("orphan result files", { timeout: 120_000 }, () => {
     }
 
     const folder = path.join(resultsDir(), done.id);
+    // Besides the rows' files: the unkeyed blobs the keying replaced, young, so kept for now.
+    const present = (await readdir(folder)).map((file) => `${done.id}/${file}`);
+    for (const row of rows) expect(present).toContain(row.location);
     await writeAged(path.join(folder, "0-a7.kdr"), 2 * ORPHAN_MIN_AGE_MS); // an attempt that died before recording
     await writeAged(path.join(folder, "1-a1.kdr.4242.tmp"), 2 * ORPHAN_MIN_AGE_MS); // a write cut short
     await writeAged(path.join(folder, "2-a9.kdr"), 1_000); // being recorded right now, perhaps
@@ -58,7 +63,7 @@ describe("orphan result files", { timeout: 120_000 }, () => {
 
     expect(await removeOrphanBlobs(db)).toBe(3);
     const left = (await readdir(folder)).map((file) => `${done.id}/${file}`).sort();
-    expect(left).toEqual([...rows.map((row) => row.location as string), `${done.id}/2-a9.kdr`].sort());
+    expect(left).toEqual([...present, `${done.id}/2-a9.kdr`].sort());
     expect(existsSync(goneSweepFolder)).toBe(false);
     expect(JSON.stringify((await storedCells(db, await sweepRow(done.id))).map(cellJson))).toBe(before);
     // Nothing left to take the second time.

@@ -4,7 +4,9 @@
  */
 import { eq } from "drizzle-orm";
 import { getDb, type Db } from "@/db/client";
-import { ledgerEntries, sweeps, type Sweep, type User } from "@/db/schema";
+import { ledgerEntries, sweepResults, sweeps, type Sweep, type User } from "@/db/schema";
+import { readBlob } from "@/lib/queue/result-store";
+import { PackedView } from "@/lib/sweeps/packed";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { QueueRunner } from "@/lib/queue/runner";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
@@ -96,6 +98,22 @@ export function ballPitSpec(durationS = 0.5): SweepSpecInput {
 export async function sweepRow(id: string): Promise<Sweep> {
   const [row] = await (await getDb()).select().from(sweeps).where(eq(sweeps.id, id));
   return row;
+}
+
+/**
+ * Polls until every results row of the sweep holds scenario keys: the runner keys stored runs while
+ * its pool is idle (a hang guard, not a speed check). Returns the rows' blob locations.
+ */
+export async function waitForKeyed(sweepId: string, timeoutMs = 60_000): Promise<(string | null)[]> {
+  const db = await getDb();
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const rows = await db.select().from(sweepResults).where(eq(sweepResults.sweepId, sweepId));
+    const views = await Promise.all(rows.map(async (row) => new PackedView(await readBlob(row))));
+    if (rows.length > 0 && views.every((view) => view.hasKeys)) return rows.map((row) => row.location);
+    if (Date.now() > deadline) throw new Error(`sweep ${sweepId}: ${views.filter((v) => !v.hasKeys).length} of ${rows.length} runs still without keys after ${timeoutMs} ms`);
+    await new Promise((resolve) => setTimeout(resolve, 50));
+  }
 }
 
 /** Polls until the predicate holds for the sweep (a hang guard, not a speed check). */

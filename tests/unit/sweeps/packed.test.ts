@@ -68,6 +68,21 @@ describe("packed results", () => {
     void axes;
   });
 
+  it("a merge of a keyed run with one not keyed has no keys (a zero key is no key); keying it afterwards gives the keys of a keyed run", () => {
+    const spec = parsed(puckPairSpec());
+    const keyed = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, skip: Int32Array.from([1, 2]), keys: true });
+    const plain = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 1, cellCount: 2 });
+    const merged = new PackedView(mergePacked(new PackedView(keyed.packed), new PackedView(plain.packed)));
+    expect(merged.count).toBe(15);
+    expect(merged.hasKeys).toBe(false);
+    // Keyed on the pool later (the queue's idle-time keying): the same bytes as a run keyed from the start.
+    const later = runChunkTask({ kind: "keys", chunkIndex: 0, spec, packed: mergePacked(new PackedView(keyed.packed), new PackedView(plain.packed)) });
+    const fromStart = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, keys: true });
+    expect(new PackedView(later.packed).hasKeys).toBe(true);
+    expect([...new PackedView(later.packed).keys]).toEqual([...new PackedView(fromStart.packed).keys]);
+    expect(later.packed).toEqual(fromStart.packed);
+  });
+
   it("refuses bytes that are not a packed run of the length they claim", () => {
     const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec: parsed(bumperWallSpec()), firstCell: 0, cellCount: 3 });
     expect(() => new PackedView(outcome.packed.subarray(0, outcome.packed.length - 1))).toThrow(/bytes where the header describes/);
