@@ -163,13 +163,14 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
     expect(done.cellsDone).toBe(4096);
     expect(done.chunksDone).toBe(64);
 
-    // The killed worker's chunks came back after their lease and were run again, by the survivor.
+    // The killed worker's chunks came back after their lease and were run again, by the survivor;
+    // all but at most one: a chunk is recorded by one statement, and one the victim had already
+    // sent when it was frozen is finished by the database on its own, done at its first attempt.
+    // Either way each chunk is done and billed once (below).
     const heldIds = held.map((c) => c.id);
     const afterwards = await db.select().from(sweepChunks).where(inArray(sweepChunks.id, heldIds));
-    for (const chunk of afterwards) {
-      expect(chunk.status).toBe("done");
-      expect(chunk.attempts).toBeGreaterThanOrEqual(2);
-    }
+    for (const chunk of afterwards) expect(chunk.status).toBe("done");
+    expect(afterwards.filter((chunk) => chunk.attempts < 2).length).toBeLessThanOrEqual(1);
 
     // Billed exactly once per chunk: one usage entry per chunk index, summing to the sweep's compute.
     const debits = await usageEntries(submitted.id);
