@@ -76,6 +76,12 @@ export interface RunnerOptions {
   ownerId?: string;
   /** Called after each chunk this runner records, with whether that finished its sweep (benchmarks, tests, push updates). */
   onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
+  /**
+   * Called after each claim statement with the sweeps of the chunks it returned (none when the queue
+   * had nothing eligible): lets a test see that the runner looked at the queue, in order of events
+   * rather than by waiting a fixed time.
+   */
+  onClaimed?: (sweepIds: string[]) => void;
 }
 
 interface InFlight {
@@ -90,6 +96,7 @@ export class QueueRunner {
   private readonly concurrency: number;
   private readonly claimBatch: number;
   private readonly onRecorded?: (sweepId: string, sweepFinished: boolean) => void;
+  private readonly onClaimed?: (sweepIds: string[]) => void;
   private readonly leaseMs: number;
   private readonly pollMs: number;
   private readonly reclaimForeignAtStart: boolean;
@@ -124,6 +131,7 @@ export class QueueRunner {
     this.concurrency = options.concurrency ?? options.pool.threads * 4;
     this.claimBatch = Math.max(1, Math.floor(this.concurrency / 2));
     this.onRecorded = options.onRecorded;
+    this.onClaimed = options.onClaimed;
     this.leaseMs = options.leaseMs ?? 60_000;
     this.pollMs = options.pollMs ?? 250;
     this.reclaimForeignAtStart = options.reclaimForeignAtStart ?? false;
@@ -238,6 +246,7 @@ export class QueueRunner {
         // Claim once half the window is free, or at once if a thread could be left without work.
         if (this.running && free > 0 && Date.now() >= this.drainedUntil && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
           const claimed = await this.claim(free);
+          this.onClaimed?.(claimed.map((chunk) => chunk.sweepId));
           if (claimed.length < free) this.drainedUntil = Date.now() + this.pollMs;
           for (const chunk of claimed) this.launch(chunk);
         }

@@ -76,7 +76,9 @@ describe("credentials sign-in", () => {
 
   it("lets the account in again once the 15-minute lock has passed", async () => {
     const user = await makeUser({ password: PASSWORD });
-    const start = new Date("2026-12-01T10:00:00Z");
+    // The limiter takes "now" from its caller's clock for both what it writes and what it reads, so a
+    // fake clock started from the real one moves every party together; no calendar date is the subject.
+    const start = new Date();
     vi.useFakeTimers({ now: start, toFake: ["Date"] });
     try {
       for (let i = 0; i < 5; i++) await passwordSignIn(user.email, "wrong-wrong-wrong", "198.51.100.60");

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from "vitest";
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { outbox, type OutboxRow } from "@/db/schema";
 import { backoffMs, enqueueOutbox, OutboxDispatcher, PermanentDeliveryError } from "@/lib/outbox/outbox";
@@ -15,9 +15,14 @@ beforeEach(async () => {
   await db.delete(outbox);
 });
 
-/** A clock the test moves by hand, so retries become due without waiting. */
-function manualClock(start = new Date("2026-12-02T10:00:00Z")) {
-  let now = start.getTime();
+/**
+ * A clock the test moves by hand, so retries become due without waiting. It starts at the database's
+ * own now(), which is what enqueueOutbox stamps on a new row: a clock of its own (a fixed date, or
+ * this process's clock against a server elsewhere) would leave rows never due, or due at once.
+ */
+async function manualClock() {
+  const result = await db.execute(sql`select now() as now`);
+  let now = new Date((result as unknown as { rows: { now: string | Date }[] }).rows[0].now).getTime();
   return { now: () => new Date(now), advance: (ms: number) => (now += ms) };
 }
 
@@ -53,7 +58,9 @@ describe("outbox", () => {
   });
 
   it("keeps a message while the receiver is down and delivers it once when it returns", async () => {
-    const clock = manualClock();
+    await enqueueOutbox(db, { kind: "test", idempotencyKey: "down", payload: {} });
+    // Started after the row was stamped, so the row is due at once under this clock.
+    const clock = await manualClock();
     let up = false;
     let deliveries = 0;
     const dispatcher = new OutboxDispatcher({
@@ -66,7 +73,6 @@ describe("outbox", () => {
         },
       },
     });
-    await enqueueOutbox(db, { kind: "test", idempotencyKey: "down", payload: {} });
     expect(await dispatcher.dispatchDue()).toEqual({ delivered: 0, retried: 1, failed: 0 });
     // Not due again before its back-off has passed.
     expect(await dispatcher.dispatchDue()).toEqual({ delivered: 0, retried: 0, failed: 0 });
@@ -123,8 +129,8 @@ describe("outbox", () => {
   });
 
   it("a row whose dispatcher died mid-delivery is delivered again once its lease lapses", async () => {
-    const clock = manualClock();
     await enqueueOutbox(db, { kind: "test", idempotencyKey: "orphan", payload: {} });
+    const clock = await manualClock();
     // A dispatcher that claimed the row and then died: its lease is set, nothing else.
     await db.update(outbox).set({ leaseOwner: "dead", leaseExpiresAt: new Date(clock.now().getTime() + 60_000) }).where(eq(outbox.idempotencyKey, "orphan"));
     let delivered = 0;

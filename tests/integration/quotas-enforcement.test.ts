@@ -20,7 +20,7 @@ import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeUser } from "../helpers/factories";
 import { call, errorOf } from "../helpers/http";
 import { loadRoute } from "../helpers/routes";
-import { ballPitSpec, grant, makeSweepStudio, puckSpec, sweepRow, waitForSweep } from "./sweeps/support";
+import { ballPitSpec, gatedPool, grant, makeSweepStudio, puckSpec, sweepRow, waitForCondition, waitForSweep } from "./sweeps/support";
 
 let db: Db;
 let pool: ChunkPool;
@@ -38,6 +38,27 @@ afterAll(async () => {
 });
 
 const newRunner = (concurrency?: number) => new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000, concurrency });
+
+/**
+ * A runner that reports each claim it makes: `claimsAfter()` counts the claims since a mark and the
+ * chunks of a given sweep they returned, so a test can see the runner look at the queue several
+ * times without handing out a paused sweep's chunks (order of events, not a fixed wait).
+ */
+function watchedRunner(options: { pool: typeof pool; concurrency?: number }) {
+  const claims: string[][] = [];
+  const runner = new QueueRunner({ db, pool: options.pool, pollMs: 20, leaseMs: 30_000, concurrency: options.concurrency, onClaimed: (ids) => void claims.push(ids) });
+  return {
+    runner,
+    mark: () => claims.length,
+    claimsSince: (mark: number) => claims.slice(mark),
+  };
+}
+
+/** After `mark`, waits for three more claims with the runner holding no chunk, and returns the chunks those claims handed out for the sweep. */
+async function claimedWhileIdle(watch: ReturnType<typeof watchedRunner>, mark: number, sweepId: string): Promise<number> {
+  await waitForCondition("the runner to drain and look at the queue three more times", () => watch.runner.chunksHeld === 0 && watch.claimsSince(mark).length >= 3);
+  return watch.claimsSince(mark).flat().filter((id) => id === sweepId).length;
+}
 
 async function sweepCount(studioId: string): Promise<number> {
   return (await db.select().from(sweeps).where(eq(sweeps.studioId, studioId))).length;
@@ -146,13 +167,16 @@ describe("run-time limits", { timeout: 180_000 }, () => {
     const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(0.2) }, { chunkOptions: { maxCellsPerChunk: 1 } });
     // Any finished chunk uses at least 1 ms, so the cap is reached after the first one.
     await updateQuotas(db, admin, studio.studioId, { monthlyComputeMs: 1, reason: "test: lower below the sweep's need" });
-    const runner = newRunner();
+    const watch = watchedRunner({ pool });
+    const runner = watch.runner;
     await runner.start();
     try {
       const paused = await waitForSweep(sweep.id, (s) => s.status === "paused" && s.chunksDone > 0);
       expect(paused.reason).toBe(RUN_LIMIT_REASONS.monthlyCap);
-      // Let anything in flight land, then check nothing more is claimed while paused.
-      await new Promise((r) => setTimeout(r, 600));
+      // Let anything in flight land; the claims after it hand out nothing of the paused sweep.
+      await waitForCondition("chunks in flight to land", () => runner.chunksHeld === 0);
+      const mark = watch.mark();
+      expect(await claimedWhileIdle(watch, mark, sweep.id)).toBe(0);
       const settled = await sweepRow(sweep.id);
       expect(settled.status).toBe("paused");
       expect(settled.chunksDone).toBeLessThan(settled.chunks);
@@ -181,18 +205,28 @@ describe("run-time limits", { timeout: 180_000 }, () => {
   it("suspension pauses running sweeps with the reason; lifting it resumes them", async () => {
     const studio = await makeSweepStudio("Cobble Heron Games");
     const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(0.2) }, { chunkOptions: { maxCellsPerChunk: 1 } });
-    // One chunk held at a time: when the suspension lands, at most the chunk on the thread still
-    // finishes (pausing is at chunk boundaries), however fast the machine runs the rest.
-    const runner = newRunner(1);
+    // One chunk held at a time, and chunks start only through the gate: the suspension lands while
+    // the sweep is known to be part-way (one chunk recorded, the next claimed and held), however
+    // fast or loaded the machine is.
+    const gate = gatedPool(pool);
+    const watch = watchedRunner({ pool: gate, concurrency: 1 });
+    const runner = watch.runner;
     await runner.start();
     try {
+      gate.allow(1);
       await waitForSweep(sweep.id, (s) => s.chunksDone >= 1);
+      await waitForCondition("the next chunk to be claimed and held at the gate", () => gate.waiting === 1);
       await setStudioStatus(db, admin, studio.studioId, { status: "suspended", reason: "abuse report" });
       const paused = await sweepRow(sweep.id);
       expect(paused).toMatchObject({ status: "paused", reason: RUN_LIMIT_REASONS.suspended });
-      await new Promise((r) => setTimeout(r, 600));
+      // The chunk claimed before the suspension may still run (pausing is at chunk boundaries);
+      // after it, the runner looks at the queue again and again and hands out nothing of the sweep.
+      const mark = watch.mark();
+      gate.open();
+      expect(await claimedWhileIdle(watch, mark, sweep.id)).toBe(0);
       const still = await sweepRow(sweep.id);
       expect(still.status).toBe("paused");
+      expect(still.chunksDone).toBe(2);
       expect(still.chunksDone).toBeLessThan(still.chunks);
       await setStudioStatus(db, admin, studio.studioId, { status: "active", reason: "resolved" });
       const done = await waitForSweep(sweep.id, (s) => s.status === "done");

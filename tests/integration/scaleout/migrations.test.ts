@@ -40,7 +40,15 @@ describe.skipIf(!PG_URL)("migrations from processes starting together", { timeou
     const runs = starters.map((pool) =>
       withMigrationLock(pool, () => migrate(drizzle(pool), { migrationsFolder: migrationsFolder() })).then(() => (finished += 1)),
     );
-    await new Promise((resolve) => setTimeout(resolve, 500));
+    // Every starter is seen queued behind the lock (PostgreSQL's own view of waiting lock requests),
+    // not assumed to be after a fixed wait.
+    const deadline = Date.now() + 30_000;
+    for (;;) {
+      const waiting = await held.query("select count(*)::int as n from pg_locks where locktype = 'advisory' and not granted");
+      if (waiting.rows[0].n >= starters.length) break;
+      if (Date.now() > deadline) throw new Error(`only ${waiting.rows[0].n} of ${starters.length} starters wait for the migration lock`);
+      await new Promise((resolve) => setTimeout(resolve, 20));
+    }
     expect(finished).toBe(0);
     const before = await holder.query("select to_regclass('drizzle.__drizzle_migrations') as t");
     expect(before.rows[0].t).toBeNull();

@@ -87,10 +87,16 @@ describe("signed webhooks", () => {
     const receiver = await startReceiver();
     const url = receiver.url;
     await receiver.close(); // nothing listens on this port now
-    const { fake, stripe } = await startFake({ webhookUrl: url, webhookSecret: SECRET, webhookRetryDelaysMs: [100, 200, 400, 800] });
+    // Retries spread over ~13 s: a loaded machine still brings the receiver up before they run out.
+    const { fake, stripe } = await startFake({ webhookUrl: url, webhookSecret: SECRET, webhookRetryDelaysMs: [100, 200, 400, 800, 1_600, 3_200, 6_400] });
     cleanups.push(() => fake.close());
     await stripe.customers.create({ email: "later@order.test" });
-    await new Promise((r) => setTimeout(r, 50));
+    // The first attempt has been made (and refused), whatever the machine's speed.
+    const deadline = Date.now() + 10_000;
+    while ((fake.deliveries()[0]?.attempts.length ?? 0) < 1) {
+      if (Date.now() > deadline) throw new Error("the fake made no first delivery attempt");
+      await new Promise((r) => setTimeout(r, 10));
+    }
     const [first] = fake.deliveries();
     expect(first.attempts[0]?.status ?? null).toBeNull();
     expect(first.state).toBe("pending");
@@ -109,7 +115,7 @@ describe("signed webhooks", () => {
     });
     await new Promise<void>((resolve) => server.listen(port, "127.0.0.1", resolve));
     cleanups.push(() => new Promise<void>((resolve) => server.close(() => resolve())));
-    await fake.waitForWebhooks({ includeRetries: true, timeoutMs: 5_000 });
+    await fake.waitForWebhooks({ includeRetries: true, timeoutMs: 20_000 });
     expect(bodies).toHaveLength(1);
     expect(fake.deliveries()[0].state).toBe("succeeded");
   });

@@ -131,3 +131,69 @@ export async function usageEntries(sweepId: string) {
   const rows = await (await getDb()).select().from(ledgerEntries).where(eq(ledgerEntries.sweepId, sweepId));
   return rows.filter((row) => row.kind === "usage");
 }
+
+/**
+ * A pool whose chunks start only when the test lets them: the test holds the work at a known point
+ * (a chunk claimed and waiting) instead of racing the machine's speed.
+ */
+export interface GatedPool extends ChunkPool {
+  /** Let `n` more chunks start (those already waiting first). */
+  allow(n: number): void;
+  /** Let every chunk start from now on. */
+  open(): void;
+  /** Chunks claimed and waiting at the gate. */
+  readonly waiting: number;
+}
+
+export function gatedPool(inner: ChunkPool): GatedPool {
+  let permits = 0;
+  const queue: (() => void)[] = [];
+  const release = () => {
+    while (permits > 0 && queue.length > 0) {
+      permits -= 1;
+      queue.shift()!();
+    }
+  };
+  return {
+    get threads() {
+      return inner.threads;
+    },
+    get entry() {
+      return inner.entry;
+    },
+    get pending() {
+      return inner.pending + queue.length;
+    },
+    get inFlight() {
+      return inner.inFlight;
+    },
+    get waiting() {
+      return queue.length;
+    },
+    async run(task, options) {
+      if (permits > 0) permits -= 1;
+      else await new Promise<void>((resolve) => queue.push(resolve));
+      if (options?.signal?.aborted) throw options.signal.reason ?? new Error("aborted");
+      return inner.run(task, options);
+    },
+    allow(n) {
+      permits += n;
+      release();
+    },
+    open() {
+      permits = Number.POSITIVE_INFINITY;
+      release();
+    },
+    idle: () => inner.idle(),
+    close: () => inner.close(),
+  };
+}
+
+/** Polls until the condition holds (a hang guard, not a speed check). */
+export async function waitForCondition(what: string, condition: () => boolean | Promise<boolean>, timeoutMs = 90_000): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  while (!(await condition())) {
+    if (Date.now() > deadline) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}`);
+    await new Promise((resolve) => setTimeout(resolve, 20));
+  }
+}
