@@ -95,6 +95,19 @@ export const ORPHAN_MIN_AGE_MS = 10 * 60_000;
  * written a moment before its recording transaction is never taken. Run at start by the queue
  * runner (file store only). Returns how many files were removed.
  */
+/** The file system's "now": the modification time it gives a file written in `folder` at this moment. */
+export async function fileSystemNowMs(folder: string): Promise<number> {
+  const probe = path.join(folder, `.clock-${process.pid}-${Math.random().toString(36).slice(2)}`);
+  const handle = await open(probe, "w");
+  try {
+    await handle.write("now");
+    return (await handle.stat()).mtimeMs;
+  } finally {
+    await handle.close();
+    await rm(probe, { force: true });
+  }
+}
+
 export async function removeOrphanBlobs(db: Db, minAgeMs = ORPHAN_MIN_AGE_MS): Promise<number> {
   if (resultStoreKind() !== "file") return 0;
   const root = resultsDir();
@@ -102,7 +115,10 @@ export async function removeOrphanBlobs(db: Db, minAgeMs = ORPHAN_MIN_AGE_MS): P
   if (folders.length === 0) return 0;
   const rows = await db.select({ location: sweepResults.location }).from(sweepResults).where(isNotNull(sweepResults.location));
   const referenced = new Set(rows.map((row) => row.location));
-  const cutoff = Date.now() - minAgeMs;
+  // Ages are measured on the file system's clock (the mtime of a file written now), not this
+  // process's: the two can disagree (a shared volume, a clock step), and a young blob taken for an
+  // old one would be deleted while its chunk is being recorded.
+  const cutoff = (await fileSystemNowMs(root)) - minAgeMs;
   let removed = 0;
   for (const folder of folders) {
     if (!SAFE_NAME.test(folder)) continue;

@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepResults } from "@/db/schema";
-import { ORPHAN_MIN_AGE_MS, removeOrphanBlobs, resultsDir } from "@/lib/queue/result-store";
+import { fileSystemNowMs, ORPHAN_MIN_AGE_MS, removeOrphanBlobs, resultsDir } from "@/lib/queue/result-store";
 import { submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
 import { makeSweepStudio, puckSpec, startSweepRunner, stopSweepRunner, sweepRow, waitForKeyed, waitForSweep } from "./support";
@@ -28,11 +28,19 @@ afterAll(async () => {
   delete process.env.KICKDRIFT_RESULT_STORE;
 });
 
+/**
+ * Ages are set on the file system's clock, as removeOrphanBlobs reads them: the process clock may
+ * differ from it (`npm run test:hostile` shifts the process clock by 400 days; file times stay real).
+ */
+async function ageFile(file: string, ageMs: number): Promise<void> {
+  const when = new Date((await fileSystemNowMs(path.dirname(file))) - ageMs);
+  await utimes(file, when, when);
+}
+
 async function writeAged(file: string, ageMs: number): Promise<void> {
   await mkdir(path.dirname(file), { recursive: true });
   await writeFile(file, new Uint8Array([1, 2, 3]));
-  const when = new Date(Date.now() - ageMs);
-  await utimes(file, when, when);
+  await ageFile(file, ageMs);
 }
 
 describe("orphan result files", { timeout: 120_000 }, () => {
@@ -46,10 +54,7 @@ describe("orphan result files", { timeout: 120_000 }, () => {
     const rows = await db.select({ location: sweepResults.location }).from(sweepResults).where(eq(sweepResults.sweepId, done.id));
     expect(rows.length).toBe(done.chunks);
     // The rows' own files are as old as any orphan: age alone must not take them.
-    for (const row of rows) {
-      const when = new Date(Date.now() - 2 * ORPHAN_MIN_AGE_MS);
-      await utimes(path.join(resultsDir(), row.location as string), when, when);
-    }
+    for (const row of rows) await ageFile(path.join(resultsDir(), row.location as string), 2 * ORPHAN_MIN_AGE_MS);
 
     const folder = path.join(resultsDir(), done.id);
     // Besides the rows' files: the unkeyed blobs the keying replaced, young, so kept for now.
