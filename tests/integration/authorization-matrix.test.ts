@@ -189,6 +189,8 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/password-reset", method: "POST", body: () => ({ email: uniqueEmail("nobody") }), expect: PUBLIC(202) },
   { route: "v1/password-reset/confirm", method: "POST", body: (w) => ({ token: w.resetSecret, password: "a-new-long-password" }), expect: PUBLIC(200) },
   { route: "v1/me", method: "GET", expect: SIGNED_IN_PERSON(200) },
+  // A token presents itself (its studio and scopes); people are told to use /me.
+  { route: "v1/token", method: "GET", expect: row((a) => (a === "anonymous" || a === "tokenRevoked" ? 401 : a === "tokenRead" || a === "tokenWrite" || a === "otherStudioToken" ? 200 : 403)) },
   { route: "v1/studios", method: "GET", expect: SIGNED_IN_PERSON(200) },
   { route: "v1/studios", method: "POST", body: () => ({ name: "Driftwood Puck Co" }), expect: SIGNED_IN_PERSON(201) },
   { route: "v1/studios/[studioId]", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
