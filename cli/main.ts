@@ -209,6 +209,7 @@ async function checkReport(api: ApiClient, studioId: string, catalogueId: string
     kind: "catalogue-check",
     id: check.id,
     sweepId: check.sweep.id,
+    catalogueId,
     name: check.sweep.name,
     status: check.sweep.status,
     failOn,

@@ -23,6 +23,8 @@ export interface Report {
   kind: "sweep" | "catalogue-check";
   id: string;
   sweepId: string;
+  /** The check's catalogue (cat_…), for `kickdrift fetch <id> --catalogue`; absent for sweeps. */
+  catalogueId?: string;
   name: string;
   status: string;
   failOn: Verdict[];

@@ -117,8 +117,9 @@ describe("kickdrift check", () => {
     expect((xml.match(/<testcase /g) ?? []).length).toBe(3);
     expect(xml).not.toContain("<failure");
     expect(await validJunit(xml)).toEqual({ valid: true, errors: [] });
-    const report = JSON.parse(readFileSync(path.join(work, "gentle.json.out"), "utf8")) as { exitCode: number; cases: { name: string; verdict: string }[] };
+    const report = JSON.parse(readFileSync(path.join(work, "gentle.json.out"), "utf8")) as { exitCode: number; catalogueId: string; cases: { name: string; verdict: string }[] };
     expect(report.exitCode).toBe(0);
+    expect(report.catalogueId).toMatch(/^cat_/);
     expect(report.cases.map((entry) => [entry.name, entry.verdict])).toEqual([
       ["crate × crate", "stable"],
       ["crate × coin", "stable"],
