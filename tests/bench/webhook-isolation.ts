@@ -100,6 +100,7 @@ export const webhookIsolation: BenchModule = {
     let variant = 0;
     const results: Record<"0" | "A" | "B", { wallMs: number[]; gapMs: number[] }> = { "0": { wallMs: [], gapMs: [] }, A: { wallMs: [], gapMs: [] }, B: { wallMs: [], gapMs: [] } };
     let attempted = 0;
+    const stopping: Promise<void>[] = [];
     let heldOpen = 0;
 
     async function round(kind: "0" | "A" | "B"): Promise<void> {
@@ -137,7 +138,7 @@ export const webhookIsolation: BenchModule = {
         const rows = await db.select().from(webhookDeliveries).where(eq(webhookDeliveries.endpointId, endpoint.id));
         if (kind === "B") attempted += rows.length;
         if (scan) clearInterval(scan);
-        void dispatcher?.stop(); // an attempt in flight ends by its own time limit
+        if (dispatcher) stopping.push(dispatcher.stop()); // an attempt in flight ends by its own time limit
       }
     }
 
@@ -165,6 +166,7 @@ export const webhookIsolation: BenchModule = {
     );
     console.log(`target B / A ≤ ${TARGET_RATIO}×; ${SWEEPS} sweeps of 384 cells per round, ${ROUNDS} rounds of each set-up in rotation`);
     console.log(`in B: ${attempted} deliveries queued to the hanging receiver, up to ${heldOpen} requests held open by it (each attempt gives up after ${WEBHOOK_TIMEOUT_MS} ms)`);
+    await Promise.all(stopping);
     for (const server of [receiver.server, fastReceiver.server]) {
       server.closeAllConnections();
       server.close();

@@ -119,3 +119,24 @@ describe("catalogue pairs and game settings", () => {
     expect(() => gameSettings({ checkId: "chk_x", catalogue: { name: "c", version: 1 }, objects, settings: hertz, recommendation: recommend(objects, hertz), stiffness: "checked" })).toThrow(GameSettingsError);
   });
 });
+
+describe("docs/game-settings.md", () => {
+  it("describes every field of the game-settings document and of a contact", async () => {
+    const { readFileSync } = await import("node:fs");
+    const doc = readFileSync(`${process.cwd()}/docs/game-settings.md`, "utf8");
+    const settings = checkSettingsSchema.parse(CRATESLIDE_SETTINGS);
+    const document = gameSettings({ checkId: "chk_x", catalogue: { name: "c", version: 1 }, objects, settings, recommendation: recommend(objects, settings), stiffness: "checked" });
+    const fields = [
+      ...Object.keys(document).filter((key) => typeof (document as unknown as Record<string, unknown>)[key] !== "object"),
+      ...Object.keys(document.source).map((key) => `source.${key}`),
+      ...Object.keys(document.contact).map((key) => `contact.${key}`),
+      ...Object.keys(document.pairs[0]).map((key) => `pairs[].${key}`),
+    ];
+    const tableText = doc.split("## The game-settings document")[1];
+    for (const field of fields) {
+      const bare = field.replace(/^pairs\[\]\./, "");
+      expect(tableText.includes(`\`${field}\``) || tableText.includes(`\`${bare}\``), field).toBe(true);
+    }
+    for (const key of Object.keys(scenarioContactTuning(parsed().scenario) ?? {})) expect(doc).toContain(`| \`${key}\` |`);
+  });
+});
