@@ -44,7 +44,7 @@ beforeAll(async () => {
   token = (await createApiToken(studio.studioId, studio.owner, { name: "ci", scopes: ["read", "write"] })).secret;
   app = await startAppServer();
   work = mkdtempSync(path.join(tmpdir(), "kd-cli-"));
-});
+}, 180_000); // a fresh database, a worker thread and (for the client) its bundle: slow on a loaded machine
 
 afterAll(async () => {
   await app?.stop();
@@ -107,7 +107,8 @@ async function validJunit(xml: string): Promise<{ valid: boolean; errors: readon
   return { valid: result.valid, errors: result.errors };
 }
 
-describe("kickdrift check", () => {
+// Each test runs the client two or three times, each a separate node process: minutes on a loaded machine.
+describe("kickdrift check", { timeout: 180_000 }, () => {
   it("passes a catalogue within the bound: exit 0, one passing test case per pairing", async () => {
     const run = await kickdrift(["check", file("crateslide.csv", CATALOGUE), file("gentle.json", JSON.stringify(GENTLE)), "--junit", "gentle.xml", "--json", "gentle.json.out"]);
     expect(run.stderr).toMatch(/Quote: 6 cells/);
@@ -156,7 +157,7 @@ describe("kickdrift check", () => {
   });
 });
 
-describe("kickdrift submit", () => {
+describe("kickdrift submit", { timeout: 180_000 }, () => {
   it("refuses an invalid spec with exit 2, naming the field, before calling the service", async () => {
     const spec = puckPairSpec();
     spec.scenario.dtS = -0.01;

@@ -85,7 +85,7 @@ beforeAll(async () => {
   ({ db, studios: [studio] } = await startSweepRunner("Gannet Test Yard"));
   await receiver.start();
   dispatcher = new OutboxDispatcher({ db, handlers: { [WEBHOOK_KIND]: (row) => deliverWebhook(db, row) }, now: clock });
-});
+}, 180_000); // a fresh database, a worker thread and (for the client) its bundle: slow on a loaded machine
 afterAll(async () => {
   await receiver.stop();
   await stopSweepRunner();
