@@ -563,3 +563,71 @@ export type Snapshot = typeof snapshots.$inferSelect;
 
 export type Catalogue = typeof catalogues.$inferSelect;
 export type CatalogueCheck = typeof catalogueChecks.$inferSelect;
+
+export const WEBHOOK_EVENT_TYPES = ["sweep.finished", "sweep.failed", "sweep.paused", "catalogue_check.finished", "balance.low"] as const;
+export type WebhookEventType = (typeof WEBHOOK_EVENT_TYPES)[number];
+
+/** An HTTPS endpoint a studio's owners registered for some event types; its secret signs every delivery. */
+export const webhookEndpoints = pgTable(
+  "webhook_endpoints",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    url: text("url").notNull(),
+    eventTypes: text("event_types").array().notNull(),
+    /** whsec_ + base64 of 32 random bytes; kept (not hashed) because every delivery is signed with it. */
+    secret: text("secret").notNull(),
+    createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    disabledAt: ts("disabled_at"),
+  },
+  (t) => [index("webhook_endpoints_studio_idx").on(t.studioId)],
+);
+
+/**
+ * One event a studio's endpoints are told about. The id is derived from what happened (type and
+ * subject), so finding the same change twice writes nothing new: receivers deduplicate by it.
+ */
+export const webhookEvents = pgTable(
+  "webhook_events",
+  {
+    id: text("id").primaryKey(),
+    studioId: text("studio_id")
+      .notNull()
+      .references(() => studios.id, { onDelete: "cascade" }),
+    type: text("type").notNull(),
+    payload: jsonb("payload").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index("webhook_events_studio_idx").on(t.studioId, t.createdAt)],
+);
+
+/** The delivery log: one row per (endpoint, event), updated after every attempt. */
+export const webhookDeliveries = pgTable(
+  "webhook_deliveries",
+  {
+    endpointId: text("endpoint_id")
+      .notNull()
+      .references(() => webhookEndpoints.id, { onDelete: "cascade" }),
+    eventId: text("event_id")
+      .notNull()
+      .references(() => webhookEvents.id, { onDelete: "cascade" }),
+    status: text("status", { enum: ["pending", "delivered", "failed"] }).notNull().default("pending"),
+    attempts: integer("attempts").notNull().default(0),
+    /** HTTP status of the last answer; null when there was none (refused, timed out). */
+    lastStatusCode: integer("last_status_code"),
+    lastError: text("last_error"),
+    /** How many times an owner asked to send it again. */
+    resends: integer("resends").notNull().default(0),
+    createdAt: createdAt(),
+    lastAttemptAt: ts("last_attempt_at"),
+    deliveredAt: ts("delivered_at"),
+  },
+  (t) => [primaryKey({ columns: [t.endpointId, t.eventId] }), index("webhook_deliveries_endpoint_idx").on(t.endpointId, t.createdAt)],
+);
+
+export type WebhookEndpoint = typeof webhookEndpoints.$inferSelect;
+export type WebhookEvent = typeof webhookEvents.$inferSelect;
+export type WebhookDelivery = typeof webhookDeliveries.$inferSelect;

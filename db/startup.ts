@@ -47,7 +47,10 @@ async function run(): Promise<void> {
     }
   }
   {
-    // Delivers queued side effects (mail, Stripe meter events); every process may run one.
+    // Signed webhooks: their outbox handler, and the scan that queues sweep and check events.
+    const { startWebhooks } = await import("../lib/webhooks/startup");
+    startWebhooks(db);
+    // Delivers queued side effects (mail, Stripe meter events, webhooks); every process may run one.
     const { startProcessOutbox } = await import("../lib/outbox/process");
     await startProcessOutbox();
   }

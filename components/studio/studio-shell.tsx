@@ -20,7 +20,7 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
     { href: `${base}/snapshots`, label: "Snapshots" },
   ];
   if (role === "owner") {
-    tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" });
+    tabs.push({ href: `${base}/members`, label: "Members" }, { href: `${base}/tokens`, label: "API tokens" }, { href: `${base}/webhooks`, label: "Webhooks" });
   }
   if (role === "owner" || role === "finance") {
     tabs.push({ href: `${base}/billing`, label: "Billing" }, { href: `${base}/invoices`, label: "Invoices" });

@@ -12,6 +12,7 @@ import { queueMail } from "@/lib/outbox/mail";
 import { enqueueOutbox } from "@/lib/outbox/outbox";
 import { effectiveQuotas, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/plan";
 import { billingContacts } from "./catalog";
+import { queueWebhookEvent } from "@/lib/webhooks/webhooks";
 import { lowBalanceMail } from "./mail";
 import { LOW_BALANCE_MS } from "./packs";
 
@@ -92,6 +93,8 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
     for (const to of await billingContacts(tx, usage.studioId)) {
       await queueMail(tx, { idempotencyKey: `mail:low-balance:${key}:${to}`, to, content: lowBalanceMail({ studioId: usage.studioId, studioName: studio.name, balanceMs: balanceAfter }), studioId: usage.studioId });
     }
+    // The studio's webhook endpoints hear of it in the same transaction (event id from the same key).
+    await queueWebhookEvent(tx, { studioId: usage.studioId, type: "balance.low", subject: key, data: { balanceMs: balanceAfter, lowBalanceMs: LOW_BALANCE_MS, sweepId: usage.sweepId } });
   }
   return { billed: true, prepaidMs, overageMs };
 }

@@ -9,6 +9,7 @@
 import { VERDICTS } from "../physics/types";
 import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
 import type { CheckSettings, PairMatrix, Recommendation } from "./check";
+import type { PairContactTuning } from "./contact-tuning";
 
 function text(value: string): string {
   return quoteCsvField(guardFormula(value));
@@ -71,7 +72,7 @@ export function recommendationCsv(settings: CheckSettings, recommendation: Recom
 }
 
 /** Everything a game's config needs, as one JSON document. */
-export function checkExportJson(input: { checkId: string; catalogue: { name: string; version: number; contentHash: string }; settings: CheckSettings; matrix: PairMatrix; recommendation: Recommendation }): string {
+export function checkExportJson(input: { checkId: string; catalogue: { name: string; version: number; contentHash: string }; settings: CheckSettings; matrix: PairMatrix; recommendation: Recommendation; contacts?: readonly PairContactTuning[] }): string {
   const { matrix } = input;
   return `${JSON.stringify(
     {
@@ -94,6 +95,7 @@ export function checkExportJson(input: { checkId: string; catalogue: { name: str
         counts: pair.counts,
       })),
       recommendation: input.recommendation,
+      ...(input.contacts ? { contacts: input.contacts } : {}),
     },
     null,
     2,

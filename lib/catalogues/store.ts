@@ -4,6 +4,7 @@
  * its pair sweep and goes through the same quote → submit → queue runner → ledger path as every
  * sweep; its results are read back only through lib/queue/views.ts.
  */
+import { pairContactTuning, type PairContactTuning } from "./contact-tuning";
 import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { newId } from "@/db/ids";
@@ -245,6 +246,8 @@ export interface CheckView {
   sweep: SweepView;
   matrix: PairMatrix;
   recommendation: Recommendation;
+  /** Each pairing's contact as natural frequency and damping ratio (lib/catalogues/contact-tuning.ts). */
+  contacts: PairContactTuning[];
   confirmation: Confirmation | null;
 }
 
@@ -289,6 +292,7 @@ export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCh
     sweep: await sweepView(db, sweep),
     matrix: pairMatrix(objects, settings, cells),
     recommendation,
+    contacts: pairContactTuning(objects, settings, recommendation),
     confirmation,
   };
 }

@@ -10,6 +10,7 @@ import { sweepChunks, sweepResults, sweeps, type Sweep, type SweepResult } from 
 import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
 import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
 import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
+import { CONTACT_CSV_COLUMNS, cellContactTuning, contactTuningCsv, contactTuningJson } from "@/lib/sweeps/contact-tuning";
 import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, guardFormula, quoteCsvField, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import type { SweepAxisView, SweepView } from "@/lib/sweeps/sweep-view";
@@ -208,7 +209,7 @@ function cellPositions(axes: readonly ExpandedAxis[], index: number, out: number
 }
 
 /** One stored chunk as JSON array items: the bytes JSON.stringify(cellJson(cell)) gives, comma-led after the first. */
-function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], first: boolean): string {
+function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], first: boolean, contact?: SweepSpec): string {
   const positions = new Array<number>(axes.length);
   let out = "";
   for (let n = 0; n < view.count; n++) {
@@ -218,13 +219,13 @@ function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: strin
     for (let i = 0; i < axes.length; i++) axisValues += (i === 0 ? "" : ",") + texts[i][positions[i]];
     let metrics = "";
     for (let m = 0; m < METRIC_COUNT; m++) metrics += JSON_METRIC_PREFIXES[m] + metricText(view, n, m, "null");
-    out += `${first && n === 0 ? "" : ","}{"index":${index},"axisValues":[${axisValues}],"metrics":{${metrics}},"verdict":${JSON.stringify(view.verdict(n))},"reason":${JSON.stringify(view.reason(n))}}`;
+    out += `${first && n === 0 ? "" : ","}{"index":${index},"axisValues":[${axisValues}],"metrics":{${metrics}},"verdict":${JSON.stringify(view.verdict(n))},"reason":${JSON.stringify(view.reason(n))}${contact ? `,${contactTuningJson(cellContactTuning(contact, axes, index))}` : ""}}`;
   }
   return out;
 }
 
 /** One stored chunk as CSV rows: the bytes cellToCsv(cell) + CRLF gives. */
-function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][]): string {
+function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], contact?: SweepSpec): string {
   const positions = new Array<number>(axes.length);
   let out = "";
   for (let n = 0; n < view.count; n++) {
@@ -234,6 +235,7 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
     for (let i = 0; i < axes.length; i++) row += `,${texts[i][positions[i]]}`;
     row += `,${quoteCsvField(guardFormula(view.verdict(n)))},${quoteCsvField(guardFormula(view.reason(n)))}`;
     for (let m = 0; m < METRIC_COUNT; m++) row += `,${metricText(view, n, m, "")}`;
+    if (contact) row += contactTuningCsv(cellContactTuning(contact, axes, index));
     out += `${row}\r\n`;
   }
   return out;
@@ -246,8 +248,10 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
  * end as a string field: `{"cells":[…],"cursor":"123"}` (the bytes JSON.stringify gives for
  * `{ cells, cursor: String(changed.upTo) }`).
  */
-export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", changed?: ChangeWindow): ReadableStream<Uint8Array> {
+export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", changed?: ChangeWindow, options: { contact?: boolean } = {}): ReadableStream<Uint8Array> {
   const axes = expandAxes(sweep.spec as SweepSpec);
+  // With `contact`, each cell also carries its contact as frequency and damping ratio (lib/sweeps/contact-tuning.ts).
+  const contact = options.contact ? (sweep.spec as SweepSpec) : undefined;
   const texts = axisTexts(axes, format);
   const encoder = new TextEncoder();
   const chunks = storedChunks(db, sweep, undefined, changed);
@@ -259,7 +263,7 @@ export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", ch
       try {
         if (!started) {
           started = true;
-          controller.enqueue(encoder.encode(format === "json" ? `{"cells":[` : `${csvHeader(axes)}\r\n`));
+          controller.enqueue(encoder.encode(format === "json" ? `{"cells":[` : `${csvHeader(axes)}${contact ? `,${CONTACT_CSV_COLUMNS.join(",")}` : ""}\r\n`));
           return;
         }
         const next = await chunks.next();
@@ -270,7 +274,7 @@ export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", ch
         }
         const view = next.value;
         if (view.count === 0) return;
-        controller.enqueue(encoder.encode(format === "json" ? chunkJson(view, axes, texts, first) : chunkCsv(view, axes, texts)));
+        controller.enqueue(encoder.encode(format === "json" ? chunkJson(view, axes, texts, first, contact) : chunkCsv(view, axes, texts, contact)));
         first = false;
       } catch (error) {
         controller.error(error);

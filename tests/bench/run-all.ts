@@ -10,8 +10,9 @@ import { mapRender } from "./map-render";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
 import { scaleOut } from "./scale-out";
+import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut, webhookIsolation];
 
 async function main() {
   const wanted = process.argv.slice(2);

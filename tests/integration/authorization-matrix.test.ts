@@ -4,6 +4,7 @@
  * Expected statuses are written out here from the policy in the contract (not read from the code),
  * so a guard that drifts from the contract fails a cell.
  */
+import { createEndpoint, queueWebhookEvent } from "@/lib/webhooks/webhooks";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { User } from "@/db/schema";
 import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
@@ -58,6 +59,9 @@ interface World {
   publicInviteSecret: string;
   /** An invoice of the studio (as the webhook would have mirrored it). */
   invoiceId: string;
+  /** A webhook endpoint of the studio and an event queued to it. */
+  webhookEndpointId: string;
+  webhookEventId: string;
   /** An invite addressed to each person-actor (to a third studio), so accepting can succeed. */
   inviteFor: Partial<Record<ActorName, string>>;
   auth: Record<ActorName, { cookie?: string; bearer?: string }>;
@@ -96,6 +100,8 @@ async function buildWorld(): Promise<World> {
     createdByUserId: null,
   });
   const check = await submitCheck(await getDb(), studioId, catalogue, { settings: MATRIX_CHECK_SETTINGS, createdByUserId: null });
+  const { endpoint } = await createEndpoint(await getDb(), studioId, people.owner!, { url: "http://localhost:9/kd-hooks", events: ["sweep.finished"] });
+  const webhookEventId = (await queueWebhookEvent(await getDb(), { studioId, type: "sweep.finished", subject: `matrix:${studioId}`, data: {} })) as string;
   const snapshot = await saveSnapshot(await getDb(), studioId, { name: "Ferry deck", fileName: "deck.json", bytes: new TextEncoder().encode(MATRIX_SNAPSHOT_JSON), createdByUserId: null });
   return {
     studioId,
@@ -109,6 +115,8 @@ async function buildWorld(): Promise<World> {
     resetSecret: await makePasswordReset(subject.id),
     publicInviteSecret: (await makeInvite(studioId, uniqueEmail("public"), "engineer")).secret,
     invoiceId,
+    webhookEndpointId: endpoint.id,
+    webhookEventId,
     inviteFor,
     auth,
   };
@@ -189,6 +197,8 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/password-reset", method: "POST", body: () => ({ email: uniqueEmail("nobody") }), expect: PUBLIC(202) },
   { route: "v1/password-reset/confirm", method: "POST", body: (w) => ({ token: w.resetSecret, password: "a-new-long-password" }), expect: PUBLIC(200) },
   { route: "v1/me", method: "GET", expect: SIGNED_IN_PERSON(200) },
+  // A token presents itself (its studio and scopes); people are told to use /me.
+  { route: "v1/token", method: "GET", expect: row((a) => (a === "anonymous" || a === "tokenRevoked" ? 401 : a === "tokenRead" || a === "tokenWrite" || a === "otherStudioToken" ? 200 : 403)) },
   { route: "v1/studios", method: "GET", expect: SIGNED_IN_PERSON(200) },
   { route: "v1/studios", method: "POST", body: () => ({ name: "Driftwood Puck Co" }), expect: SIGNED_IN_PERSON(201) },
   { route: "v1/studios/[studioId]", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
@@ -314,6 +324,17 @@ export const ROUTES: RouteRow[] = [
     expect: BILLING_PEOPLE_ROW(200),
   },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
+  // Webhook endpoints: owners only, never tokens.
+  { route: "v1/studios/[studioId]/webhooks", method: "GET", params: studio, expect: OWNER_MANAGES(200) },
+  { route: "v1/studios/[studioId]/webhooks", method: "POST", params: studio, body: () => ({ url: "https://hooks.pebble-ferry.test/kd", events: ["sweep.finished", "balance.low"] }), expect: OWNER_MANAGES(201) },
+  { route: "v1/studios/[studioId]/webhooks/[endpointId]", method: "DELETE", params: (w) => ({ studioId: w.studioId, endpointId: w.webhookEndpointId }), expect: OWNER_MANAGES(200) },
+  { route: "v1/studios/[studioId]/webhooks/[endpointId]/deliveries", method: "GET", params: (w) => ({ studioId: w.studioId, endpointId: w.webhookEndpointId }), expect: OWNER_MANAGES(200) },
+  {
+    route: "v1/studios/[studioId]/webhooks/[endpointId]/deliveries/[eventId]/resend",
+    method: "POST",
+    params: (w) => ({ studioId: w.studioId, endpointId: w.webhookEndpointId, eventId: w.webhookEventId }),
+    expect: OWNER_MANAGES(202),
+  },
   // Stripe's deliveries are public; without a valid signature every caller gets 400 and nothing happens.
   { route: "v1/stripe/webhook", method: "POST", body: () => ({ id: "evt_matrix", type: "invoice.paid", data: { object: { id: "in_matrix" } } }), expect: PUBLIC(400) },
 ];

@@ -13,6 +13,8 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   const format = url.searchParams.get("format") ?? "json";
   if (format !== "json" && format !== "csv") throw new ApiError(400, "validation_failed", `format must be json or csv; got "${format}".`, "format");
   const after = cursorParam(url);
+  const contactRaw = url.searchParams.get("contact") ?? "false";
+  if (contactRaw !== "true" && contactRaw !== "false") throw new ApiError(400, "validation_failed", `contact must be true or false; got "${contactRaw}".`, "contact");
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   // The cursor is read before any row: every row written up to it is committed by then, and a row
@@ -21,7 +23,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   // The done cells (with `after`: of the rows changed after it, up to the cursor), in index order,
   // streamed chunk by chunk from the packed results. Without `after` the body is the whole export,
   // the same bytes for the same spec on any run, so the cursor travels in the header only.
-  const body = cellsStream(db, sweep, format, after === null ? undefined : { after, upTo: cursor });
+  const body = cellsStream(db, sweep, format, after === null ? undefined : { after, upTo: cursor }, { contact: contactRaw === "true" });
   const headers: Record<string, string> = { "cache-control": "no-store", [CURSOR_HEADER]: String(cursor) };
   if (format === "json") return new Response(body, { status: 200, headers: { "content-type": "application/json; charset=utf-8", ...headers } });
   return new Response(body, {

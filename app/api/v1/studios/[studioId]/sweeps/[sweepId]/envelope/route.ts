@@ -7,6 +7,7 @@ import { VERDICTS } from "@/lib/physics/types";
 import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
 import { storedVerdictCodes } from "@/lib/queue/views";
 import { EnvelopeInputError, computeEnvelope, type EnvelopeBound } from "@/lib/sweeps/envelope";
+import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
 import { formatNumber, quoteCsvField, guardFormula } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
@@ -48,7 +49,8 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
     if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
     throw error;
   }
-  if (format === "json") return json({ envelope });
+  // Each row's contact at its limit as natural frequency and damping ratio (lib/sweeps/contact-tuning.ts).
+  if (format === "json") return json({ envelope: withContactTuning(envelope, sweep.spec as SweepSpec, axes, { x, y, at }) });
   const rows = envelope.rows.map(
     (row) => `${typeof row.x === "number" ? formatNumber(row.x) : csvText(row.x)},${row.yLimit === null ? "" : formatNumber(row.yLimit)}\r\n`,
   );

@@ -1,0 +1,100 @@
+/**
+ * What a build reads after a wait: one test case per cell (a sweep) or per pairing (a catalogue
+ * check), as JUnit XML (CI servers display it; validated against cli/schemas/jenkins-junit.xsd in
+ * the tests) and as JSON.
+ * A case fails when its verdict is one of the verdicts the build counts (--fail-on); the failure
+ * carries the verdict as its type and the engine's reason as its message.
+ */
+import { mkdirSync, writeFileSync } from "node:fs";
+import path from "node:path";
+import { VERDICTS, type Verdict } from "../lib/physics/types";
+
+export const RISK_VERDICTS: readonly Verdict[] = VERDICTS.filter((verdict) => verdict !== "stable");
+
+export interface ReportCase {
+  /** "cell 17: contact.stiffness=1000, dtS=0.001" or "crate × coin". */
+  name: string;
+  verdict: Verdict | null;
+  reason: string;
+  failed: boolean;
+}
+
+export interface Report {
+  kind: "sweep" | "catalogue-check";
+  id: string;
+  sweepId: string;
+  /** The check's catalogue (cat_…), for `kickdrift fetch <id> --catalogue`; absent for sweeps. */
+  catalogueId?: string;
+  name: string;
+  status: string;
+  failOn: Verdict[];
+  verdictCounts: Record<string, number>;
+  cases: ReportCase[];
+  failures: number;
+  exitCode: 0 | 1;
+}
+
+/** Parses --fail-on: a comma-separated list of verdicts, or "none". */
+export function parseFailOn(text: string): Verdict[] {
+  if (text.trim() === "none") return [];
+  const list = text.split(",").map((part) => part.trim()).filter(Boolean);
+  for (const item of list) {
+    if (!(VERDICTS as readonly string[]).includes(item)) throw new Error(`"${item}" is not a verdict; use a comma-separated list of ${VERDICTS.join(", ")}, or none`);
+  }
+  return [...new Set(list)] as Verdict[];
+}
+
+export function buildReport(input: Omit<Report, "cases" | "failures" | "exitCode"> & { cases: Omit<ReportCase, "failed">[] }): Report {
+  const cases = input.cases.map((entry) => ({ ...entry, failed: entry.verdict !== null && input.failOn.includes(entry.verdict) }));
+  const failures = cases.filter((entry) => entry.failed).length;
+  return { ...input, cases, failures, exitCode: failures > 0 ? 1 : 0 };
+}
+
+/** Text for an XML attribute or element: the five predefined entities escaped, characters XML 1.0 forbids dropped. */
+export function xmlText(text: string): string {
+  return text
+    .replace(/[\u0000-\u0008\u000B\u000C\u000E-\u001F\uFFFE\uFFFF]/g, "")
+    .replace(/&/g, "&amp;")
+    .replace(/</g, "&lt;")
+    .replace(/>/g, "&gt;")
+    .replace(/"/g, "&quot;")
+    .replace(/'/g, "&apos;");
+}
+
+/**
+ * The JUnit XML document: <testsuites> with one <testsuite> and a <testcase> per case, written to
+ * the schema of cli/schemas/jenkins-junit.xsd (the attributes and element order it allows; the
+ * well-known builder packages add a `skipped` attribute to <testsuites> that it refuses).
+ */
+export function junitXml(report: Report): string {
+  const className = `kickdrift.${report.kind}.${report.id}`;
+  const skipped = report.cases.filter((entry) => entry.verdict === null).length;
+  const counts = `tests="${report.cases.length}" failures="${report.failures}" errors="0"`;
+  const lines = [
+    `<?xml version="1.0" encoding="UTF-8"?>`,
+    `<testsuites name="kickdrift" ${counts}>`,
+    `  <testsuite name="${xmlText(`kickdrift ${report.kind} ${report.name} (${report.id})`)}" ${counts} skipped="${skipped}">`,
+    `    <properties>`,
+    `      <property name="kickdrift.id" value="${xmlText(report.id)}"/>`,
+    `      <property name="kickdrift.sweep" value="${xmlText(report.sweepId)}"/>`,
+    `      <property name="kickdrift.fail-on" value="${xmlText(report.failOn.join(",") || "none")}"/>`,
+    `    </properties>`,
+  ];
+  for (const entry of report.cases) {
+    const open = `    <testcase classname="${xmlText(className)}" name="${xmlText(entry.name)}">`;
+    if (entry.failed) lines.push(open, `      <failure message="${xmlText(`${entry.verdict}: ${entry.reason}`)}" type="${xmlText(entry.verdict ?? "unknown")}">${xmlText(`${entry.verdict}: ${entry.reason}`)}</failure>`, `    </testcase>`);
+    else if (entry.verdict === null) lines.push(open, `      <skipped/>`, `    </testcase>`);
+    else lines.push(open, `      <system-out>${xmlText(`${entry.verdict}${entry.reason ? `: ${entry.reason}` : ""}`)}</system-out>`, `    </testcase>`);
+  }
+  lines.push(`  </testsuite>`, `</testsuites>`);
+  return `${lines.join("\n")}\n`;
+}
+
+export function reportJson(report: Report): string {
+  return `${JSON.stringify(report, null, 2)}\n`;
+}
+
+export function writeOut(file: string, text: string): void {
+  mkdirSync(path.dirname(path.resolve(file)), { recursive: true });
+  writeFileSync(file, text);
+}
