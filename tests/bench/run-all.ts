@@ -7,11 +7,13 @@ import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
+import { metering } from "./metering";
+import { workUnitCalibration } from "./work-unit-calibration";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
 import { scaleOut } from "./scale-out";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut];
 
 async function main() {
   const wanted = process.argv.slice(2);
