@@ -16,3 +16,8 @@ export const METERING_WALL_CLOCK = "wall-clock";
 export const METERING_WORK_UNITS = `work-units-v${WORK_UNITS_VERSION}` as const;
 export type Metering = typeof METERING_WALL_CLOCK | typeof METERING_WORK_UNITS;
 
+
+/** When and how the billed unit is defined, as the billing page and the pricing section say it. */
+export const METERING_SINCE = "2026-12-04";
+export const METERING_NOTE =
+  `Since ${METERING_SINCE}, sweeps are billed by work: the engine counts each cell's work units (integrator steps × bodies, pairs examined, contacts evaluated, free-flight steps at a lower rate), and ${WORK_UNITS_PER_BILLED_MS.toLocaleString("en-US")} work units make one billed millisecond, about a millisecond of one worker thread of our reference machine. The same sweep always costs the same, never more than its quote's ceiling; cached cells cost nothing. Sweeps submitted before then were billed worker wall time, and their ledger entries stay as they were.`;
