@@ -1,4 +1,5 @@
 import { expect, test } from "@playwright/test";
+import Papa from "papaparse";
 import { signInWithPassword } from "./helpers";
 
 // The demo studio's engineer and finance member, seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
@@ -14,6 +15,7 @@ test("an engineer reads the quote's ceiling and expected cost, runs the sweep an
   const page = await engineerContext.newPage();
   await signInWithPassword(page, ENGINEER.email, ENGINEER.password);
   await page.getByRole("link", { name: STUDIO }).first().click();
+  await expect(page.getByTestId("studio-name")).toHaveText(STUDIO);
   const studioPath = new URL(page.url()).pathname;
   await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Sweeps" }).click();
   await page.getByRole("link", { name: "New sweep" }).click();
@@ -63,14 +65,10 @@ test("an engineer reads the quote's ceiling and expected cost, runs the sweep an
   await expect(row.getByTestId("usage-sweep-ms")).toHaveText(billedMs.toLocaleString("en"));
   const csvHref = await finance.getByRole("link", { name: "Download CSV" }).getAttribute("href");
   const csv = await (await finance.request.get(new URL(csvHref!, finance.url()).toString())).text();
-  const lines = csv.trim().split("\n");
-  const header = lines[0].split(",");
-  const [kindAt, computeAt, overageAt, sweepAt] = ["kind", "compute_ms", "overage_ms", "sweep_id"].map((column) => header.indexOf(column));
+  // Every CSV cell is quoted (lib/billing/queries.ts): parsed as a spreadsheet would.
+  const rows = Papa.parse<Record<string, string>>(csv.trim(), { header: true }).data;
   let ledgerMs = 0;
-  for (const line of lines.slice(1)) {
-    const cells = line.split(",");
-    if (cells[sweepAt] === sweepId && cells[kindAt] === "usage") ledgerMs += Number(cells[overageAt]) - Number(cells[computeAt]);
-  }
+  for (const row of rows) if (row.sweep_id === sweepId && row.kind === "usage") ledgerMs += Number(row.overage_ms) - Number(row.compute_ms);
   expect(ledgerMs).toBe(billedMs);
   await finance.screenshot({ path: test.info().outputPath("metering-billing.png"), fullPage: true });
   await financeContext.close();
