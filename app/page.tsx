@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import { SAFETY_CAUTION, TAX_NOTE } from "@/components/site-footer";
 import { StabilityMapIllustration } from "@/components/stability-map-illustration";
 import { ButtonLink } from "@/components/ui";
+import { METERING_NOTE } from "@/lib/sweeps/metering-rate";
 import { CREDIT_PACKS, centsPerMinute, formatPriceCents } from "@/lib/billing/packs";
 
 export const metadata: Metadata = { title: { absolute: "Kickdrift — stability maps for game collision physics" } };
@@ -127,8 +128,11 @@ export default function LandingPage() {
             Credit packs
           </h2>
           <p className="text-ink-muted">
-            Buy compute minutes in packs; sweeps draw them down by the millisecond of worker time they use. Every quote shows the cost before a
-            sweep runs. {TAX_NOTE}
+            Buy compute minutes in packs; sweeps draw them down by the millisecond. Every quote shows, before a sweep runs, its ceiling (the most
+            it can cost) and the expected cost, in minutes and in money; a sweep is never billed above the ceiling it was quoted. {TAX_NOTE}
+          </p>
+          <p className="text-sm text-ink-muted" data-testid="metering-note">
+            {METERING_NOTE}
           </p>
         </div>
         <ul className="grid gap-4 md:grid-cols-3" data-testid="credit-packs">

@@ -214,8 +214,21 @@ export const sweeps = pgTable(
     cachedCells: integer("cached_cells").notNull().default(0),
     chunks: integer("chunks").notNull(),
     chunksDone: integer("chunks_done").notNull().default(0),
+    /** The quote's expected bill (ms); for sweeps metered by wall clock, the old estimate. */
     estimatedComputeMs: integer("estimated_compute_ms").notNull(),
+    /** Billed so far (ms): the sum of the chunks' debits. */
     computeMs: integer("compute_ms").notNull().default(0),
+    /**
+     * How the sweep is billed (lib/sweeps/metering.ts): "wall-clock" for sweeps submitted before
+     * work units (their chunks bill worker wall time, as they did), else the work-unit version.
+     */
+    metering: text("metering").notNull().default("wall-clock"),
+    /** The quote's ceiling (ms): the most the sweep can be billed; reserved until its chunks land. */
+    ceilingMs: integer("ceiling_ms").notNull().default(0),
+    /** The ceiling shares of the chunks landed so far (ms): reserved = ceilingMs − releasedCeilingMs. */
+    releasedCeilingMs: integer("released_ceiling_ms").notNull().default(0),
+    /** Work units of the chunks landed so far; the bill is ⌈workUnits / rate⌉ once all have landed. */
+    workUnits: bigint("work_units", { mode: "number" }).notNull().default(0),
     /** Running totals of the done cells' verdicts, kept in the transaction that stores each chunk. */
     verdictCounts: jsonb("verdict_counts").$type<Record<string, number>>().notNull().default({}),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
@@ -244,7 +257,14 @@ export const sweepChunks = pgTable(
     leaseExpiresAt: ts("lease_expires_at"),
     attempts: integer("attempts").notNull().default(0),
     lastError: text("last_error"),
+    /** What the chunk was billed (ms). */
     computeMs: integer("compute_ms").notNull().default(0),
+    /** The chunk's share of its sweep's ceiling (ms), released when it lands. */
+    ceilingMs: integer("ceiling_ms").notNull().default(0),
+    /** Work units of the chunk's cells run. */
+    workUnits: bigint("work_units", { mode: "number" }).notNull().default(0),
+    /** Worker wall time of the chunk (ms): capacity planning only, never billed. */
+    wallMs: integer("wall_ms").notNull().default(0),
   },
   (t) => [
     uniqueIndex("sweep_chunks_sweep_index_uq").on(t.sweepId, t.chunkIndex),

@@ -135,7 +135,7 @@ async function main(): Promise<number> {
       plan: quote.plan,
       onResults: (results) => write(encoder.cells(results)),
       onProgress: (progress) => {
-        const line = `chunk ${progress.chunksDone}/${progress.chunks}, cells ${progress.cellsDone}/${progress.cells}, compute ${progress.computeMs} ms`;
+        const line = `chunk ${progress.chunksDone}/${progress.chunks}, cells ${progress.cellsDone}/${progress.cells}, billed ${progress.billedMs} ms`;
         // A terminal gets one line rewritten in place; a log gets a line per tenth of the chunks.
         if (process.stderr.isTTY) log(`\r${line}`);
         else if (progress.chunksDone === progress.chunks || progress.chunksDone % Math.max(1, Math.ceil(progress.chunks / 10)) === 0) log(`${line}\n`);
@@ -147,7 +147,7 @@ async function main(): Promise<number> {
     const wallMs = Math.round(performance.now() - startedMs);
     const counts = VERDICTS.map((verdict) => `${verdict} ${summary.verdictCounts[verdict]}`).join(", ");
     process.stdout.write(`cells ${header.cellCount}: ${counts}\n`);
-    process.stdout.write(`chunks ${summary.chunks.length}, worker compute ${summary.computeMs} ms (predicted ${quote.computeMs} ms), wall ${wallMs} ms; wrote ${args.outFile}\n`);
+    process.stdout.write(`chunks ${summary.chunks.length}, billed ${summary.billedMs} ms (${summary.workUnits} work units), worker wall time ${summary.wallMs} ms, wall ${wallMs} ms; wrote ${args.outFile}\n`);
     return 0;
   } catch (error) {
     // A half-written file would look like results: remove it.

@@ -61,7 +61,7 @@ function countingPool(pool: ChunkPool, stats: WorkerStats): ChunkPool {
         if (task.kind === "keys") return outcome;
         stats.chunksComputed += 1;
         stats.cellsComputed += outcome.cellCount;
-        stats.computeMs += outcome.computeMs;
+        stats.computeMs += outcome.wallMs;
         stats.recent.push({ at: performance.now(), cells: outcome.cellCount });
         cellsPerSecond(stats);
         return outcome;
@@ -91,7 +91,7 @@ function workerMetrics(ownerId: string, threads: number, runner: QueueRunner | n
     { name: "kickdrift_worker_cells_per_second", type: "gauge", help: "Cells this worker computed per second over the last minute.", samples: one(cellsPerSecond(stats)) },
     { name: "kickdrift_worker_chunks_computed_total", type: "counter", help: "Chunks this worker's threads computed.", samples: one(stats.chunksComputed) },
     { name: "kickdrift_worker_cells_computed_total", type: "counter", help: "Cells this worker's threads computed.", samples: one(stats.cellsComputed) },
-    { name: "kickdrift_worker_compute_ms_total", type: "counter", help: "Measured compute of this worker's chunks, in milliseconds.", samples: one(stats.computeMs) },
+    { name: "kickdrift_worker_compute_ms_total", type: "counter", help: "Wall time of this worker's chunks on their threads, in milliseconds (capacity; bills use work units).", samples: one(stats.computeMs) },
     { name: "kickdrift_worker_chunk_errors_total", type: "counter", help: "Chunks whose run threw (retried up to the attempt limit).", samples: one(stats.chunkErrors) },
   ];
 }

@@ -36,7 +36,7 @@ export function AdminQueue() {
                 <th scope="col" className={th}>Sweep</th>
                 <th scope="col" className={th}>Status</th>
                 <th scope="col" className={th}>Chunks done · running · total</th>
-                <th scope="col" className={th}>Compute used / estimate</th>
+                <th scope="col" className={th}>Billed / expected (ceiling, wall time)</th>
                 <th scope="col" className={th}>Submitted</th>
               </tr>
             </thead>
@@ -61,6 +61,8 @@ export function AdminQueue() {
                   </td>
                   <td className={td}>
                     {minutes(s.computeMs)} / {minutes(s.estimatedComputeMs)}
+                    {s.ceilingMs > 0 ? <div className="text-xs text-ink-muted">ceiling {minutes(s.ceilingMs)}</div> : null}
+                    <div className="text-xs text-ink-muted">wall {minutes(s.wallMs)}</div>
                   </td>
                   <td className={`${td} text-ink-muted`}>{formatDateTime(s.createdAt)}</td>
                 </tr>

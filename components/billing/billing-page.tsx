@@ -10,6 +10,8 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
+import { formatCompute } from "@/lib/billing/format";
+import { METERING_NOTE } from "@/lib/sweeps/metering-rate";
 
 type Summary = {
   balanceMs: number;
@@ -235,6 +237,39 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
         )}
       </Card>
       <HorizontalBars title="Usage by sweep (minutes)" data={bySweep} testId="usage-by-sweep" />
+      <Card title="Billed per sweep">
+        {usage.data.bySweep.length === 0 ? (
+          <EmptyState>Nothing yet.</EmptyState>
+        ) : (
+          <table className="w-full text-sm" data-testid="usage-sweep-table">
+            <thead className="border-b border-line">
+              <tr>
+                <th scope="col" className={th}>
+                  Sweep
+                </th>
+                <th scope="col" className={cx(th, "text-right")}>
+                  Billed (ms)
+                </th>
+                <th scope="col" className={cx(th, "text-right")}>
+                  Billed
+                </th>
+              </tr>
+            </thead>
+            <tbody className="divide-y divide-line">
+              {usage.data.bySweep.map((sweep) => (
+                <tr key={sweep.sweepId ?? "none"} data-testid={`usage-sweep-${sweep.sweepId ?? "none"}`}>
+                  <td className={td}>{sweep.name}</td>
+                  <td className={cx(td, "text-right tabular-nums")} data-testid="usage-sweep-ms">
+                    {sweep.usedMs.toLocaleString("en")}
+                  </td>
+                  <td className={cx(td, "text-right tabular-nums")}>{formatCompute(sweep.usedMs)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        )}
+        <p className="mt-3 text-xs text-ink-muted">{METERING_NOTE}</p>
+      </Card>
       <HorizontalBars title="Usage by member (minutes)" data={byMember} testId="usage-by-member" />
     </div>
   );

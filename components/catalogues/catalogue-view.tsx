@@ -11,6 +11,8 @@ import { Alert, Button, Card, LoadingRows, SelectField, TextField, buttonClasses
 import { StudioShell } from "@/components/studio/studio-shell";
 import { StatusBadge } from "@/components/sweeps/sweeps-list";
 import { formatMinutes, type Quote, type SweepStatus } from "@/components/sweeps/sweep-api";
+import { formatCompute } from "@/lib/billing/format";
+import { formatPriceCents } from "@/lib/billing/packs";
 import { CATALOGUE_COLUMNS } from "@/lib/catalogues/format";
 import type { CheckSettingsInput } from "@/lib/catalogues/check";
 import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
@@ -227,7 +229,7 @@ function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalo
     setBusy(true);
     setError(null);
     try {
-      const answer = await apiFetch<{ check: CheckView }>(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings, acceptedQuoteMs: quote.quote.estimatedComputeMs } });
+      const answer = await apiFetch<{ check: CheckView }>(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings, acceptedQuoteMs: quote.quote.ceilingMs } });
       router.push(`/studios/${studioId}/catalogues/${catalogueId}/checks/${answer.check.id}`);
     } catch (failure) {
       setError(failure as Error);
@@ -290,8 +292,9 @@ function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalo
         {quote && quote.key === key ? (
           <div className="rounded-md border border-line p-3 text-sm" data-testid="check-quote">
             <p>
-              <strong>{quote.quote.cells.toLocaleString("en")}</strong> cells ({quote.quote.cachedCells.toLocaleString("en")} cached), estimated{" "}
-              <strong>{formatMinutes(quote.quote.estimatedComputeMs)}</strong> ({quote.quote.estimatedComputeMs.toLocaleString("en")} ms) of compute; balance after: {formatMinutes(quote.quote.balanceAfterMs)}.
+              <strong>{quote.quote.cells.toLocaleString("en")}</strong> cells ({quote.quote.cachedCells.toLocaleString("en")} cached), expected{" "}
+              <strong>{formatCompute(quote.quote.expectedMs)}</strong> ({quote.quote.expectedMs.toLocaleString("en")} ms) of compute, at most <strong>{formatCompute(quote.quote.ceilingMs)}</strong> (
+              {quote.quote.ceilingMs.toLocaleString("en")} ms, {formatPriceCents(quote.quote.money.ceilingCents)}); balance after: {formatMinutes(quote.quote.balanceAfterMs)}.
             </p>
             {quote.quote.warnings.map((warning) => (
               <p key={warning} className="text-danger">

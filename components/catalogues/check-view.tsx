@@ -106,7 +106,7 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
     setConfirmError(null);
     try {
       const { quote } = await apiFetch<{ quote: Quote }>(`${cataloguePath(studioId, catalogueId)}/quote`, { method: "POST", body: { settings: confirmation.settings } });
-      await apiFetch(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings: confirmation.settings, acceptedQuoteMs: quote.estimatedComputeMs } });
+      await apiFetch(`${cataloguePath(studioId, catalogueId)}/checks`, { method: "POST", body: { settings: confirmation.settings, acceptedQuoteMs: quote.ceilingMs } });
       await queryClient.invalidateQueries({ queryKey: catalogueKeys.check(studioId, catalogueId, data.id) });
     } catch (error) {
       setConfirmError(errorMessage(error));

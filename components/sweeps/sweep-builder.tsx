@@ -20,6 +20,9 @@ import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatMinutes, sweepsPath, type Quote, type Sweep } from "./sweep-api";
+import { formatCompute } from "@/lib/billing/format";
+import { formatPriceCents } from "@/lib/billing/packs";
+import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering-rate";
 
 type AxisInput = NonNullable<SweepSpecInput["axes"]>[number];
 type FormPath = FieldPath<SweepSpecInput>;
@@ -183,13 +186,15 @@ export function SweepBuilder({
 
   // Only a quote of exactly the spec on screen may be accepted (the debounce and the request lag behind typing).
   const quoteIsCurrent = local.ok && debouncedJson === specJson && quote.isSuccess && !quote.isFetching;
+  // What submit would refuse (a limit, a suspension, the balance) is shown before the click, not as an error after it.
+  const refusal = quote.data && quote.data.limits.violations.length > 0 ? quote.data.limits.violations[0].message : null;
 
   const create = useMutation({
     mutationFn: async () =>
       (
         await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
           method: "POST",
-          body: { spec: specForRequest(debouncedJson, snapshotRef), name: values.name || undefined, acceptedQuoteMs: quote.data?.estimatedComputeMs },
+          body: { spec: specForRequest(debouncedJson, snapshotRef), name: values.name || undefined, acceptedQuoteMs: quote.data?.ceilingMs },
         })
       ).sweep,
     onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),
@@ -472,10 +477,15 @@ export function SweepBuilder({
           {serverError ? <Alert>{serverError.message}</Alert> : null}
 
           <div className="flex gap-3">
-            <Button type="submit" disabled={!quoteIsCurrent || create.isPending}>
+            <Button type="submit" disabled={!quoteIsCurrent || refusal !== null || create.isPending}>
               Review and run
             </Button>
             {local.ok && !quoteIsCurrent ? <span className="self-center text-sm text-ink-muted">Waiting for the quote of this spec…</span> : null}
+            {quoteIsCurrent && refusal ? (
+              <span className="self-center text-sm text-danger" data-testid="quote-refusal">
+                Cannot run: {refusal}
+              </span>
+            ) : null}
           </div>
         </form>
 
@@ -487,8 +497,8 @@ export function SweepBuilder({
                 Run this sweep?
               </h2>
               <p className="mt-1 text-sm text-ink-muted">
-                {quote.data.cellsToRun.toLocaleString("en")} cells to run, about {quote.data.estimatedMinutes.toFixed(2)} compute minutes (between {formatMinutes(quote.data.band.lowMs)} and{" "}
-                {formatMinutes(quote.data.band.highMs)}). Only the compute actually used is debited.
+                {quote.data.cellsToRun.toLocaleString("en")} cells to run: expected {formatCompute(quote.data.expectedMs)} ({formatPriceCents(quote.data.money.expectedCents)}), at most{" "}
+                {formatCompute(quote.data.ceilingMs)} ({formatPriceCents(quote.data.money.ceilingCents)}). The ceiling is reserved now; the sweep is billed the work its cells do, never more than the ceiling.
               </p>
               <div className="mt-3 flex gap-2">
                 <Button onClick={() => create.mutate()} disabled={create.isPending}>
@@ -506,6 +516,10 @@ export function SweepBuilder({
   );
 }
 
+function formatTenthsOfCent(tenths: number): string {
+  return `${(tenths / 10).toFixed(tenths % 10 === 0 ? 0 : 1)}¢`;
+}
+
 function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pending: boolean; error: string | null }) {
   const rows: [string, string][] = quote
     ? [
@@ -513,11 +527,14 @@ function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pendi
         ["Cached cells (not billed)", quote.cachedCells.toLocaleString("en")],
         ["Cells to run", quote.cellsToRun.toLocaleString("en")],
         ["Integrator steps", quote.steps.toLocaleString("en")],
-        ["Estimated compute", `${quote.estimatedMinutes.toFixed(2)} min`],
-        ["Estimated compute in ms", `${quote.estimatedComputeMs.toLocaleString("en")} ms`],
-        ["Likely range", `${formatMinutes(quote.band.lowMs)} – ${formatMinutes(quote.band.highMs)}`],
-        ["Balance now", formatMinutes(quote.balanceMs)],
-        ["Balance after (estimate)", formatMinutes(quote.balanceAfterMs)],
+        ["Ceiling (most it can cost)", `${formatCompute(quote.ceilingMs)} · ${formatPriceCents(quote.money.ceilingCents)}`],
+        ["Ceiling in ms", `${quote.ceilingMs.toLocaleString("en")} ms`],
+        ["Expected", `${formatCompute(quote.expectedMs)} · ${formatPriceCents(quote.money.expectedCents)}`],
+        ["Expected in ms", `${quote.expectedMs.toLocaleString("en")} ms`],
+        ["Ceiling from prepaid minutes", `${formatCompute(quote.money.ceilingPrepaidMs)} at ${formatTenthsOfCent(quote.money.prepaidTenthsOfCentPerMinute)}/min (${quote.money.prepaidPriceSource === "purchases" ? "your packs' average" : "smallest pack's list price"})`],
+        ...(quote.money.ceilingOverageMs > 0 ? ([["Ceiling past the balance (overage)", `${formatCompute(quote.money.ceilingOverageMs)} at ${formatTenthsOfCent(quote.money.overageTenthsOfCentPerMinute)}/min`]] as [string, string][]) : []),
+        ["Balance now", formatCompute(quote.balanceMs)],
+        ["Balance after (expected)", formatCompute(quote.balanceAfterMs)],
         ["Limit: cells per sweep", quote.limits.maxCells.toLocaleString("en")],
         ["Limit: steps per cell", quote.limits.maxStepsPerCell.toLocaleString("en")],
         ["Limit: bodies per scene", quote.limits.maxBodies.toLocaleString("en")],
@@ -550,7 +567,9 @@ function QuotePanel({ quote, pending, error }: { quote: Quote | undefined; pendi
             {warning}
           </p>
         ))}
-        <p className="mt-3 text-xs text-ink-muted">Compute is metered in milliseconds of worker time and shown in minutes. Prices are before tax.</p>
+        <p className="mt-3 text-xs text-ink-muted">
+          Compute is billed in milliseconds from the work units the engine counts for each cell ({WORK_UNITS_PER_BILLED_MS.toLocaleString("en")} units a millisecond): the same sweep always costs the same, and never more than its ceiling. Cached cells cost nothing. Prices are before tax.
+        </p>
       </div>
     </Card>
   );

@@ -15,7 +15,8 @@ import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
-import { formatMinutes, isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
+import { formatCompute } from "@/lib/billing/format";
+import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
 import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 
@@ -93,11 +94,32 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
           <dd className="font-mono">{active ? formatDuration(leftMs) : "—"}</dd>
         </div>
         <div>
-          <dt className="text-ink-muted">Compute used (estimate)</dt>
-          <dd className="font-mono" data-testid="sweep-minutes">
-            {formatMinutes(sweep.computeMs)} · {sweep.computeMs.toLocaleString("en")} ms (estimate {formatMinutes(sweep.estimatedComputeMs)})
+          <dt className="text-ink-muted">{active ? "Billed so far" : "Billed"}</dt>
+          <dd className="font-mono" data-testid="sweep-billed">
+            {formatCompute(sweep.computeMs)} · {sweep.computeMs.toLocaleString("en")} ms
           </dd>
         </div>
+        {sweep.metering !== "wall-clock" ? (
+          <>
+            <div>
+              <dt className="text-ink-muted">Quoted ceiling</dt>
+              <dd className="font-mono" data-testid="sweep-ceiling">
+                {formatCompute(sweep.ceilingMs)} · {sweep.ceilingMs.toLocaleString("en")} ms
+              </dd>
+            </div>
+            <div>
+              <dt className="text-ink-muted">Quoted expected</dt>
+              <dd className="font-mono" data-testid="sweep-expected">
+                {formatCompute(sweep.estimatedComputeMs)} · {sweep.estimatedComputeMs.toLocaleString("en")} ms
+              </dd>
+            </div>
+          </>
+        ) : (
+          <div>
+            <dt className="text-ink-muted">Metering</dt>
+            <dd className="font-mono">worker wall time (submitted before work units; estimate {formatCompute(sweep.estimatedComputeMs)})</dd>
+          </div>
+        )}
         <div>
           <dt className="text-ink-muted">Created</dt>
           <dd className="font-mono">{formatDateTime(sweep.createdAt)}</dd>

@@ -19,6 +19,7 @@ interface QueueRow {
   completed_chunks: string | number;
   completed_cells: string | number;
   compute_ms: string | number;
+  wall_ms: string | number;
 }
 
 export async function queueMetrics(db: DbOrTx): Promise<Metric[]> {
@@ -33,7 +34,8 @@ export async function queueMetrics(db: DbOrTx): Promise<Metric[]> {
       count(distinct c.lease_owner) filter (where c.status = 'running' and c.lease_expires_at >= now()) as runners,
       count(*) filter (where c.status = 'done' and c.attempts > 0) as completed_chunks,
       coalesce(sum(c.cell_count) filter (where c.status = 'done' and c.attempts > 0), 0) as completed_cells,
-      coalesce(sum(c.compute_ms) filter (where c.status = 'done'), 0) as compute_ms
+      coalesce(sum(c.compute_ms) filter (where c.status = 'done'), 0) as compute_ms,
+      coalesce(sum(c.wall_ms) filter (where c.status = 'done'), 0) as wall_ms
     from sweep_chunks c join sweeps s on s.id = c.sweep_id`);
   const row = (result as unknown as { rows: QueueRow[] }).rows[0];
   const statusResult = await db.execute(sql`select status, count(*) as n from sweeps group by status`);
@@ -48,7 +50,8 @@ export async function queueMetrics(db: DbOrTx): Promise<Metric[]> {
     { name: "kickdrift_active_runners", type: "gauge", help: "Runners (worker processes or in-process runners) holding at least one live lease.", samples: [{ value: n(row.runners) }] },
     { name: "kickdrift_chunks_completed_total", type: "counter", help: "Chunks computed and written.", samples: [{ value: n(row.completed_chunks) }] },
     { name: "kickdrift_cells_completed_total", type: "counter", help: "Cells in the chunks computed and written.", samples: [{ value: n(row.completed_cells) }] },
-    { name: "kickdrift_compute_ms_total", type: "counter", help: "Worker compute of the completed chunks, in milliseconds (what studios are billed).", samples: [{ value: n(row.compute_ms) }] },
+    { name: "kickdrift_compute_ms_total", type: "counter", help: "Billed compute of the completed chunks, in milliseconds (work units at the published rate; wall time for sweeps metered before work units).", samples: [{ value: n(row.compute_ms) }] },
+    { name: "kickdrift_chunk_wall_ms_total", type: "counter", help: "Worker wall time of the completed chunks, in milliseconds (capacity planning; never billed).", samples: [{ value: n(row.wall_ms) }] },
     {
       name: "kickdrift_sweeps",
       type: "gauge",

@@ -14,3 +14,4 @@ export {
   hertzRestitutionEstimate,
 } from "./damping";
 export { Xoshiro128StarStar } from "./random";
+export { WORK_UNITS_VERSION, WORK_UNIT_WEIGHTS, CONTACTS_CHARGED_PER_BODY, workUnitCeiling, wallCount, type WorkShape } from "./work-units";

@@ -3,7 +3,7 @@
  * and gives the verdict. Pure and deterministic: the same scenario always yields byte-identical
  * metrics (no clocks, no Math.random, no dependence on object iteration order).
  */
-import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict } from "./types";
+import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict, WorkCounts } from "./types";
 import { buildScene } from "./scenes";
 import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
 import { primeForces, stepFunctionFor } from "./integrators";
@@ -27,6 +27,7 @@ import {
 import { hertzDimensionlessDampingForRestitution, hertzRestitutionEstimate, linearDampingRatioForRestitution } from "./damping";
 import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
+import { contactCap, workUnitsOf } from "./work-units";
 
 /** Number of integrator substeps a run takes: ⌈duration / (dtS / substeps)⌉ (at least 1). */
 export function totalSubsteps(scenario: Pick<Scenario, "dtS" | "substeps" | "durationS">): number {
@@ -100,6 +101,13 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const totalSteps = totalSubsteps(scenario);
   const tolerances = scenario.tolerances;
   const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
+  // Work counts (./work-units.ts): what the run does, never a clock.
+  const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
+  let chargedContacts = 0;
+  let flightChecks = 0;
+  let flightSteps = 0;
+  let finalFlights = 0;
+  let integratedSteps = 0;
 
   const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
 
@@ -137,16 +145,21 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   while (n < totalSteps) {
     if (allowJumps && field.overlappingContacts === 0) {
       const timeToContactS = field.timeToFirstContactS(bodies);
+      flightChecks++;
       // Land at least one full step before the contact so the entry is integrated as plain stepping would.
       const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
       if (target > n + 1) {
         jumpFreeFlight(bodies, n, target, h, recorder, gravity, timeToContactS !== Infinity);
+        if (timeToContactS !== Infinity) flightSteps += target - n;
+        else finalFlights++;
         n = target;
         if (n >= totalSteps) break;
       }
     }
     step(bodies, field, h);
     n++;
+    integratedSteps++;
+    chargedContacts += field.overlappingContacts < contactsChargedMax ? field.overlappingContacts : contactsChargedMax;
 
     if (isVerlet) {
       externalImpulseXNs += 0.5 * h * (lastWallForceXN + field.wallForceXN);
@@ -217,7 +230,18 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     tunnelBodyB: field.tunnelBodyB,
     expectedRestitution: expected,
   });
-  const result: RunResult = { metrics, verdict, reason };
+  const work: WorkCounts = {
+    bodies: bodies.count,
+    walls: setup.walls.length,
+    grid: field.broadPhase === BROAD_PHASE_GRID,
+    hertz: field.model === CONTACT_HERTZ,
+    integratedSteps,
+    chargedContacts,
+    flightChecks,
+    flightSteps,
+    finalFlights,
+  };
+  const result: RunResult = { metrics, verdict, reason, workUnits: workUnitsOf(work), work };
   if (recorder) result.series = recorder.series;
   return result;
 }

@@ -191,7 +191,33 @@ export interface RunResult {
   verdict: Verdict;
   /** Why the verdict (short, human readable; e.g. "energy grew ×1e6 at t = 0.12 s"). */
   reason: string;
+  /**
+   * The run's work units (./work-units.ts): a deterministic integer count of the work done, the
+   * basis of billing. Not part of the stored results.
+   */
+  workUnits: number;
+  /** What the work units were counted from. */
+  work: WorkCounts;
   series?: TimeSeries;
+}
+
+/** The work of one run, as counted by the engine (lib/physics/work-units.ts prices it). */
+export interface WorkCounts {
+  bodies: number;
+  walls: number;
+  /** The grid broad phase (else every pair is examined). */
+  grid: boolean;
+  hertz: boolean;
+  /** Steps integrated (force pass and integrator). */
+  integratedSteps: number;
+  /** Contacts evaluated over the integrated steps, at most contactCap per step. */
+  chargedContacts: number;
+  /** Free-flight look-aheads (time to the next contact). */
+  flightChecks: number;
+  /** Steps advanced by the free-flight shortcut before a contact (positions added step by step). */
+  flightSteps: number;
+  /** Jumps to the end of the run after the last contact (one product per body). */
+  finalFlights: number;
 }
 
 export interface RunOptions {

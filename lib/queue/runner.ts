@@ -42,6 +42,7 @@ import type { ChunkOutcome, ChunkTask } from "@/lib/sweeps/chunk-task";
 import { PackedView, mergePacked, verdictTally } from "@/lib/sweeps/packed";
 import type { ChunkPool } from "@/lib/sweeps/pool";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering";
 import { RUNNER_KEY } from "./poke";
 import { dropBlobFile, putBlob, readBlob, removeOrphanBlobs } from "./result-store";
 
@@ -322,6 +323,9 @@ export class QueueRunner {
       attempts: Number(row.attempts),
       lastError: null,
       computeMs: 0,
+      ceilingMs: 0,
+      workUnits: 0,
+      wallMs: 0,
     }));
     return chunks;
   }
@@ -513,7 +517,7 @@ export class QueueRunner {
       db.execute(sql`
         select * from kickdrift_record_chunk(
           ${this.ownerId}::text, ${chunk.id}::integer, ${chunk.sweepId}::text, ${info.studioId}::text,
-          ${cellsInBlob}::integer, ${outcome.cellCount}::integer, ${outcome.computeMs}::bigint,
+          ${cellsInBlob}::integer, ${outcome.cellCount}::integer, ${outcome.workUnits}::bigint, ${outcome.wallMs}::bigint, ${WORK_UNITS_PER_BILLED_MS}::bigint,
           ${blob.bytes}::integer, ${blob.location}::text, ${blob.data}::bytea, ${tally}::jsonb,
           ${usageKey(chunk.sweepId, chunk.chunkIndex)}::text, ${memo}::text, ${month.start.toISOString()}::timestamptz, ${month.end.toISOString()}::timestamptz,
           ${LOW_BALANCE_MS}::bigint, ${PLAN_DEFAULTS.monthlyComputeMs}::bigint, ${firstAlertPercent}::integer, ${onlyIfEasy}::boolean)`)
@@ -533,8 +537,10 @@ export class QueueRunner {
         if (Number(row?.recorded ?? 0) === 0) return { recorded: false, sweepStatus: row?.sweep_status ?? null, newStatus: null, careful: false };
         const careful = Number(row.easy) === 0;
         if (careful) {
-          const usage = await recordChunkUsage(tx, { studioId: info.studioId, sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex, computeMs: outcome.computeMs, memo });
-          if (usage.billed) await tx.update(sweeps).set({ computeMs: sql`${sweeps.computeMs} + ${outcome.computeMs}::int` }).where(eq(sweeps.id, chunk.sweepId));
+          // The debit kickdrift_record_chunk worked out from the chunk's work units (its wall time for a sweep metered by wall clock).
+          const billedMs = Number(row.billed_ms);
+          const usage = await recordChunkUsage(tx, { studioId: info.studioId, sweepId: chunk.sweepId, chunkIndex: chunk.chunkIndex, computeMs: billedMs, memo });
+          if (usage.billed) await tx.update(sweeps).set({ computeMs: sql`${sweeps.computeMs} + ${billedMs}::int` }).where(eq(sweeps.id, chunk.sweepId));
         }
         return { recorded: true, sweepStatus: row.sweep_status, newStatus: row.new_status, careful };
       });
@@ -566,6 +572,8 @@ interface RecordRow {
   new_status: string | null;
   sweep_status: string | null;
   easy: number;
+  /** The chunk's debit (ms), recorded here when easy, else for the caller's careful path. */
+  billed_ms: string | number;
 }
 
 interface SweepInfo {

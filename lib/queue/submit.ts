@@ -6,9 +6,11 @@
  * transaction, under the new sweep's id: nothing points at them unless it commits.)
  */
 import { randomBytes } from "node:crypto";
-import { eq, sql } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { sweepChunks, sweepResults, sweeps, type Sweep } from "@/db/schema";
+import { ledgerEntries, sweepChunks, sweepResults, sweeps, type Sweep } from "@/db/schema";
+import { centsForMs, formatCompute } from "@/lib/billing/format";
+import { CREDIT_PACKS, OVERAGE_CENTS_PER_MINUTE } from "@/lib/billing/packs";
 import { ApiError } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { enforceSubmitLimits, quoteLimits, type QuoteLimits, type SweepDemand } from "@/lib/quotas/enforce";
@@ -16,7 +18,8 @@ import { VERDICTS } from "@/lib/physics/types";
 import { KeyTable, scenarioKey } from "@/lib/sweeps/cell-key";
 import { keysOfCells } from "@/lib/sweeps/chunk-task";
 import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
-import { QUOTE_BAND, predictSweep } from "@/lib/sweeps/cost";
+import { predictSweep } from "@/lib/sweeps/cost";
+import { meterSweep, type Metering, type SweepMeter } from "@/lib/sweeps/metering";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { specHash } from "@/lib/sweeps/hash";
 import { KEY_WORDS, PackedView, PackedWriter } from "@/lib/sweeps/packed";
@@ -28,14 +31,37 @@ export interface Quote {
   cachedCells: number;
   cellsToRun: number;
   steps: number;
+  /** How the sweep will be billed (lib/sweeps/metering.ts). */
+  metering: Metering;
+  /** The most the sweep can be billed (ms): reserved against balance and monthly cap at submit, never exceeded. */
+  ceilingMs: number;
+  /** The expected bill (ms), from a sample of the cells run through the engine; never above the ceiling. */
+  expectedMs: number;
+  /** The same as expectedMs (the name earlier clients read). */
   estimatedComputeMs: number;
-  estimatedMinutes: number;
-  band: { lowMs: number; highMs: number };
+  /** Cells the expected figure ran (all cells to run when they were cheap enough: then it is the bill). */
+  sampledCells: number;
   balanceMs: number;
+  /** The balance after the expected bill; at worst (the ceiling) balanceMs − ceilingMs. */
   balanceAfterMs: number;
+  /** What the ceiling and the expected bill cost in money, before tax. */
+  money: QuoteMoney;
   /** The studio's effective limits, what is used and what remains; `violations` lists what submit would refuse. */
   limits: QuoteLimits;
   warnings: string[];
+}
+
+export interface QuoteMoney {
+  /** Of the ceiling, the part drawn from prepaid minutes and the part past the balance (overage, when allowed). */
+  ceilingPrepaidMs: number;
+  ceilingOverageMs: number;
+  /** The studio's price of a prepaid minute (tenths of a cent): the average of its pack purchases, else the list price of the smallest pack. */
+  prepaidTenthsOfCentPerMinute: number;
+  prepaidPriceSource: "purchases" | "list price";
+  overageTenthsOfCentPerMinute: number;
+  /** Integer cents, rounded up: prepaid part at the prepaid price plus overage at the overage price. */
+  ceilingCents: number;
+  expectedCents: number;
 }
 
 /** Parses a spec from a request body; field paths are prefixed with "spec." as the body names them. */
@@ -63,9 +89,8 @@ interface Plan {
   hitPosition: Int32Array | null;
   cachedCells: number;
   sources: PackedView[];
-  /** Predicted compute of the cells still to run, per chunk (0 for a fully cached chunk). */
-  chunkEstimateMs: number[];
-  estimatedComputeMs: number;
+  /** Ceiling and expected work of the cells still to run, per chunk (a fully cached chunk has none). */
+  meter: SweepMeter;
 }
 
 /**
@@ -129,13 +154,9 @@ async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions
   const axes = expandAxes(spec);
   const estimate = predictSweep(spec, { ...chunkOptions, axes });
   const cache = await matchCache(db, studioId, spec, estimate.cells);
-  // A chunk's prediction scaled by the share of its cells still to run; a fully cached chunk costs nothing.
-  const chunkEstimateMs = estimate.plan.map((chunk) => {
-    if (!cache.hitSource) return chunk.predictedMs;
-    let misses = 0;
-    for (let i = chunk.firstCell; i < chunk.firstCell + chunk.cellCount; i++) if (cache.hitSource[i] === -1) misses++;
-    return misses === 0 ? 0 : Math.ceil((chunk.predictedMs * misses) / chunk.cellCount);
-  });
+  // Cached cells cost nothing: they are left out of the ceiling and the expected figure.
+  const hits = cache.hitSource;
+  const meter = meterSweep(spec, estimate.plan, hits ? (index) => hits[index] !== -1 : undefined, axes);
   const corners = cornerScenarios(spec);
   return {
     spec,
@@ -145,8 +166,7 @@ async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions
     maxCellSteps: Math.max(...corners.map(stepsPerCell)),
     maxCellBodies: Math.max(...corners.map(bodyCount)),
     ...cache,
-    chunkEstimateMs,
-    estimatedComputeMs: chunkEstimateMs.reduce((a, b) => a + b, 0),
+    meter,
   };
 }
 
@@ -169,25 +189,61 @@ function cachedChunk(plan: Plan, chunk: ChunkPlan): { packed: Uint8Array; cells:
 }
 
 function demandOf(plan: Plan): SweepDemand {
-  return { cells: plan.cells, maxCellSteps: plan.maxCellSteps, maxCellBodies: plan.maxCellBodies, estimatedComputeMs: plan.estimatedComputeMs };
+  return { cells: plan.cells, maxCellSteps: plan.maxCellSteps, maxCellBodies: plan.maxCellBodies, ceilingMs: plan.meter.ceilingMs };
 }
 
-function quoteOf(plan: Plan, balance: number, limits: QuoteLimits): Quote {
+/** The studio's price of a prepaid minute in tenths of a cent: what its pack purchases cost on average, else the smallest pack's list price. */
+async function prepaidPrice(db: Db, studioId: string): Promise<{ tenths: number; source: QuoteMoney["prepaidPriceSource"] }> {
+  const [row] = await db
+    .select({ cents: sql<string>`coalesce(sum(${ledgerEntries.amountCents}), 0)`, ms: sql<string>`coalesce(sum(${ledgerEntries.computeMs}), 0)` })
+    .from(ledgerEntries)
+    .where(and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "purchase")));
+  const cents = Number(row?.cents ?? 0);
+  const ms = Number(row?.ms ?? 0);
+  if (cents > 0 && ms > 0) return { tenths: Math.round((cents * 600_000) / ms), source: "purchases" };
+  const pack = CREDIT_PACKS[0];
+  return { tenths: Math.round((pack.priceCents * 10) / pack.minutes), source: "list price" };
+}
+
+function moneyOf(ms: number, balance: number, overageHeadroomMs: number, price: { tenths: number }): { prepaidMs: number; overageMs: number; cents: number } {
+  const prepaidMs = Math.min(ms, Math.max(0, balance));
+  const overageMs = Math.min(ms - prepaidMs, overageHeadroomMs);
+  const overageTenths = OVERAGE_CENTS_PER_MINUTE * 10;
+  return { prepaidMs, overageMs, cents: centsForMs(prepaidMs, price.tenths) + centsForMs(overageMs, overageTenths) };
+}
+
+function quoteOf(plan: Plan, balance: number, limits: QuoteLimits, price: { tenths: number; source: QuoteMoney["prepaidPriceSource"] }): Quote {
   const warnings: string[] = [];
   const cells = plan.cells;
-  if (plan.estimatedComputeMs > balance) warnings.push(`The estimate (${plan.estimatedComputeMs} ms) exceeds the balance (${balance} ms): buy minutes before submitting.`);
+  const { ceilingMs, expectedMs } = plan.meter;
+  const reservable = Math.max(0, balance - limits.monthReservedMs) + limits.overageRemainingMs;
+  if (ceilingMs > reservable && !limits.violations.some((v) => v.name === "balance"))
+    warnings.push(`The ceiling (${formatCompute(ceilingMs)}) is more than the balance: buy minutes before submitting.`);
   if (cells >= limits.maxCells / 2 && cells <= limits.maxCells) warnings.push(`${cells} cells is over half the limit of ${limits.maxCells} cells per sweep.`);
   for (const violation of limits.violations) warnings.push(violation.message);
+  const ceiling = moneyOf(ceilingMs, balance - limits.monthReservedMs, limits.overageRemainingMs, price);
+  const expected = moneyOf(expectedMs, balance - limits.monthReservedMs, limits.overageRemainingMs, price);
   return {
     cells,
     cachedCells: plan.cachedCells,
     cellsToRun: cells - plan.cachedCells,
     steps: plan.steps,
-    estimatedComputeMs: plan.estimatedComputeMs,
-    estimatedMinutes: Math.round((plan.estimatedComputeMs / 60_000) * 100) / 100,
-    band: { lowMs: Math.floor(plan.estimatedComputeMs * QUOTE_BAND.low), highMs: Math.ceil(plan.estimatedComputeMs * QUOTE_BAND.high) },
+    metering: plan.meter.metering,
+    ceilingMs,
+    expectedMs,
+    estimatedComputeMs: expectedMs,
+    sampledCells: plan.meter.sampledCells,
     balanceMs: balance,
-    balanceAfterMs: balance - plan.estimatedComputeMs,
+    balanceAfterMs: balance - expectedMs,
+    money: {
+      ceilingPrepaidMs: ceiling.prepaidMs,
+      ceilingOverageMs: ceiling.overageMs,
+      prepaidTenthsOfCentPerMinute: price.tenths,
+      prepaidPriceSource: price.source,
+      overageTenthsOfCentPerMinute: OVERAGE_CENTS_PER_MINUTE * 10,
+      ceilingCents: ceiling.cents,
+      expectedCents: expected.cents,
+    },
     limits,
     warnings,
   };
@@ -201,7 +257,7 @@ export interface SubmitOptions {
 export async function quoteSweep(db: Db, studioId: string, specInput: unknown, options: SubmitOptions = {}): Promise<Quote> {
   const spec = parseSpecOrThrow(specInput);
   const plan = await planSweep(db, studioId, spec, options.chunkOptions ?? {});
-  return quoteOf(plan, await balanceMs(db, studioId), await quoteLimits(db, studioId, demandOf(plan)));
+  return quoteOf(plan, await balanceMs(db, studioId), await quoteLimits(db, studioId, demandOf(plan)), await prepaidPrice(db, studioId));
 }
 
 function newSweepId(): string {
@@ -212,7 +268,7 @@ export interface SubmitInput {
   spec: unknown;
   name?: string;
   createdByUserId?: string | null;
-  /** The estimate the caller accepted (ms): a submit whose estimate has grown past it is refused (409). */
+  /** The quote ceiling the caller accepted (ms): a submit whose ceiling has grown past it is refused (409). */
   acceptedQuoteMs?: number;
 }
 
@@ -227,11 +283,11 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
     // Suspension, per-sweep quotas, the monthly cap and the balance (plus allowed overage), under a
     // lock on the studio row when inside the transaction.
     await enforceSubmitLimits(tx, studioId, demandOf(plan));
-    if (input.acceptedQuoteMs !== undefined && plan.estimatedComputeMs > input.acceptedQuoteMs) {
+    if (input.acceptedQuoteMs !== undefined && plan.meter.ceilingMs > input.acceptedQuoteMs) {
       throw new ApiError(
         409,
         "quote_changed",
-        `The estimate is now ${plan.estimatedComputeMs} ms, above the accepted quote of ${input.acceptedQuoteMs} ms: ask for a new quote.`,
+        `The ceiling is now ${plan.meter.ceilingMs} ms, above the accepted quote of ${input.acceptedQuoteMs} ms: ask for a new quote.`,
         "acceptedQuoteMs",
       );
     }
@@ -248,7 +304,8 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
   }
   return db.transaction(async (tx) => {
     await checkLimits(tx);
-    const chunkDone = plan.chunkEstimateMs.map((ms) => ms === 0);
+    // A chunk whose cells all came from the cache is done at submit and costs nothing.
+    const chunkDone = plan.meter.chunks.map((chunk) => chunk.ceilingUnits === 0);
     const chunksDone = chunkDone.filter(Boolean).length;
     const allDone = chunksDone === plan.chunks.length;
     const now = new Date();
@@ -267,7 +324,9 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
         chunks: plan.chunks.length,
         chunksDone,
         verdictCounts,
-        estimatedComputeMs: plan.estimatedComputeMs,
+        estimatedComputeMs: plan.meter.expectedMs,
+        metering: plan.meter.metering,
+        ceilingMs: plan.meter.ceilingMs,
         createdByUserId: input.createdByUserId ?? null,
         startedAt: allDone ? now : null,
         finishedAt: allDone ? now : null,
@@ -279,6 +338,7 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
         chunkIndex: chunk.index,
         firstCell: chunk.firstCell,
         cellCount: chunk.cellCount,
+        ceilingMs: plan.meter.chunks[chunk.index].ceilingMs,
         status: chunkDone[chunk.index] ? ("done" as const) : ("queued" as const),
       })),
     );

@@ -57,6 +57,8 @@ export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
     chunksDone: sweep.chunksDone,
     computeMs: sweep.computeMs,
     estimatedComputeMs: sweep.estimatedComputeMs,
+    ceilingMs: sweep.ceilingMs,
+    metering: sweep.metering,
     verdictCounts: verdictCountsFrom(sweep.verdictCounts),
     axes: axisViews(spec),
     spec,

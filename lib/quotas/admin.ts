@@ -337,6 +337,10 @@ export interface QueueEntryView {
   chunksRunning: number;
   estimatedComputeMs: number;
   computeMs: number;
+  /** The quote's ceiling (0 for sweeps metered by wall clock). */
+  ceilingMs: number;
+  /** Worker wall time of the chunks landed so far (capacity; not billed). */
+  wallMs: number;
   createdAt: string;
 }
 
@@ -345,7 +349,8 @@ export async function adminQueue(db: Db): Promise<QueueEntryView[]> {
   const result = await db.execute(sql`
     select s.id, s.name, s.studio_id, st.name as studio_name, s.status, s.reason, s.chunks, s.chunks_done,
       (select count(*) from sweep_chunks c where c.sweep_id = s.id and c.status = 'running') as chunks_running,
-      s.estimated_compute_ms, s.compute_ms, s.created_at
+      s.estimated_compute_ms, s.compute_ms, s.ceiling_ms,
+      (select coalesce(sum(c.wall_ms), 0) from sweep_chunks c where c.sweep_id = s.id and c.status = 'done') as wall_ms, s.created_at
     from sweeps s join studios st on st.id = s.studio_id
     where s.status in ('queued', 'running', 'paused')
     order by s.created_at, s.id`);
@@ -362,6 +367,8 @@ export async function adminQueue(db: Db): Promise<QueueEntryView[]> {
     chunksRunning: Number(r.chunks_running),
     estimatedComputeMs: Number(r.estimated_compute_ms),
     computeMs: Number(r.compute_ms),
+    ceilingMs: Number(r.ceiling_ms),
+    wallMs: Number(r.wall_ms),
     createdAt: (r.created_at as unknown) instanceof Date ? (r.created_at as unknown as Date).toISOString() : new Date(String(r.created_at)).toISOString(),
   }));
 }

@@ -5,9 +5,11 @@
  * pause at a chunk boundary with the reason, resume on its own when the cause is gone), plus the
  * 80 % / 100 % monthly-cap alerts.
  *
- * Compute already promised to a studio's unfinished sweeps (their estimate minus what they used)
- * is "reserved": it counts against the monthly cap and the balance at submit, so a second sweep
- * cannot be admitted on minutes the first one will use.
+ * Compute already promised to a studio's unfinished sweeps is "reserved": it counts against the
+ * monthly cap and the balance at submit, so a second sweep cannot be admitted on minutes the first
+ * one may use. A sweep metered by work units reserves its quote's ceiling, released chunk by chunk
+ * as its chunks land (each its share); one metered by wall clock (submitted before work units) its
+ * estimate less what it used.
  */
 import { sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
@@ -43,7 +45,7 @@ export interface Standing {
   monthUsedMs: number;
   /** Overage accrued this calendar month. */
   monthOverageMs: number;
-  /** Compute still expected from the studio's unfinished sweeps. */
+  /** Compute reserved by the studio's unfinished sweeps (the unreleased part of their ceilings). */
   reservedMs: number;
   runningSweeps: number;
 }
@@ -83,7 +85,8 @@ async function readStanding(db: DbOrTx, studioId: string, at: Date, lock: boolea
         where l.studio_id = st.id and l.kind = 'usage' and l.created_at >= ${start.toISOString()}::timestamptz and l.created_at < ${end.toISOString()}::timestamptz) as used,
       (select coalesce(sum(l.overage_ms), 0) from ledger_entries l
         where l.studio_id = st.id and l.kind = 'usage' and l.created_at >= ${start.toISOString()}::timestamptz and l.created_at < ${end.toISOString()}::timestamptz) as overage,
-      (select coalesce(sum(greatest(s.estimated_compute_ms - s.compute_ms, 0)), 0) from sweeps s
+      (select coalesce(sum(case when s.metering = 'wall-clock' then greatest(s.estimated_compute_ms - s.compute_ms, 0)
+          else greatest(s.ceiling_ms - s.released_ceiling_ms, 0) end), 0) from sweeps s
         where s.studio_id = st.id and s.status in ('queued', 'running', 'paused')) as reserved,
       (select count(*) from sweeps s where s.studio_id = st.id and s.status = 'running') as running,
       q.monthly_compute_ms, q.max_running_sweeps, q.max_cells_per_sweep, q.max_steps_per_cell, q.max_bodies, q.overage_allowed, q.overage_cap_ms
@@ -144,7 +147,8 @@ export interface SweepDemand {
   maxCellSteps: number;
   /** The most bodies of any cell's scene. */
   maxCellBodies: number;
-  estimatedComputeMs: number;
+  /** The quote's ceiling (ms): what the sweep reserves. */
+  ceilingMs: number;
 }
 
 export interface LimitViolation {
@@ -197,32 +201,32 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
         message: `The studio's limit ${name} is ${fmt(value)} ${label}; this sweep asks for ${fmt(requested)}.`,
       });
   }
-  if (demand.estimatedComputeMs > 0) {
+  if (demand.ceilingMs > 0) {
     const monthLeft = monthRemainingMs(s);
-    if (demand.estimatedComputeMs > monthLeft)
+    if (demand.ceilingMs > monthLeft)
       out.push({
         status: 422,
         code: "quota_exceeded",
         name: "monthlyComputeMs",
         value: q.monthlyComputeMs,
-        requested: demand.estimatedComputeMs,
+        requested: demand.ceilingMs,
         remaining: monthLeft,
         unit: "ms",
         field: "spec",
-        message: `The studio's monthly compute cap (monthlyComputeMs) is ${fmt(q.monthlyComputeMs)} ms; ${fmt(s.monthUsedMs)} ms are used this month and ${fmt(s.reservedMs)} ms are reserved by unfinished sweeps, so ${fmt(monthLeft)} ms remain; this sweep is estimated at ${fmt(demand.estimatedComputeMs)} ms.`,
+        message: `The studio's monthly compute cap (monthlyComputeMs) is ${fmt(q.monthlyComputeMs)} ms; ${fmt(s.monthUsedMs)} ms are used this month and ${fmt(s.reservedMs)} ms are reserved by unfinished sweeps, so ${fmt(monthLeft)} ms remain; this sweep's quote ceiling is ${fmt(demand.ceilingMs)} ms.`,
       });
     const funds = spendableMs(s);
-    if (demand.estimatedComputeMs > funds)
+    if (demand.ceilingMs > funds)
       out.push({
         status: 402,
         code: "insufficient_minutes",
         name: "balance",
         value: s.balanceMs,
-        requested: demand.estimatedComputeMs,
+        requested: demand.ceilingMs,
         remaining: funds,
         unit: "ms",
         field: "spec",
-        message: `The sweep is estimated at ${fmt(demand.estimatedComputeMs)} ms of compute; the studio's balance is ${fmt(s.balanceMs)} ms${overageHeadroomMs(s) > 0 ? ` plus ${fmt(overageHeadroomMs(s))} ms of allowed overage` : ""}${s.reservedMs > 0 ? `, of which ${fmt(s.reservedMs)} ms are reserved by unfinished sweeps` : ""}, so ${fmt(funds)} ms remain.`,
+        message: `The sweep's quote ceiling is ${fmt(demand.ceilingMs)} ms of compute; the studio's balance is ${fmt(s.balanceMs)} ms${overageHeadroomMs(s) > 0 ? ` plus ${fmt(overageHeadroomMs(s))} ms of allowed overage` : ""}${s.reservedMs > 0 ? `, of which ${fmt(s.reservedMs)} ms are reserved by unfinished sweeps` : ""}, so ${fmt(funds)} ms remain.`,
       });
   }
   return out;

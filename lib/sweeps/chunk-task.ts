@@ -36,10 +36,15 @@ export interface ChunkOutcome {
   cellCount: number;
   /** The results in index order, packed; with scenario keys when the task asked for them. */
   packed: Uint8Array;
-  /** Worker time spent on this chunk, measured inside the worker thread; integer ms, rounded up. */
-  computeMs: number;
+  /**
+   * The work units of the cells run (lib/physics/work-units.ts): deterministic, the basis of the
+   * bill (lib/sweeps/metering.ts). Zero for a keys task.
+   */
+  workUnits: number;
+  /** Wall time the worker thread spent on this chunk; integer ms, rounded up. Capacity planning only: never billed. */
+  wallMs: number;
   /** The same, in integer nanoseconds (for calibration and benchmarks). */
-  computeNs: number;
+  wallNs: number;
 }
 
 function cellCountOf(task: Exclude<ChunkTask, { kind: "keys" }>): number {
@@ -82,21 +87,23 @@ function forEachCell(task: Exclude<ChunkTask, { kind: "keys" }>, visit: (cell: S
 }
 
 /**
- * Run every cell of a chunk through the engine. The clock covers expansion, simulation, keying
- * and packing, i.e. everything billed; it starts when the task arrives.
+ * Run every cell of a chunk through the engine, adding up the cells' work units (what is billed).
+ * The wall clock covers expansion, simulation, keying and packing, for capacity planning; it
+ * starts when the task arrives.
  */
 export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const started = process.hrtime.bigint();
   if (task.kind === "keys") {
     const view = new PackedView(task.packed);
     const packed = view.hasKeys ? task.packed : packedWithKeys(view, keysOfCells(task.spec, view.indices));
-    const computeNs = Number(process.hrtime.bigint() - started);
-    return { chunkIndex: task.chunkIndex, cellCount: view.count, packed, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+    const wallNs = Number(process.hrtime.bigint() - started);
+    return { chunkIndex: task.chunkIndex, cellCount: view.count, packed, workUnits: 0, wallMs: Math.ceil(wallNs / 1e6), wallNs };
   }
   const count = cellCountOf(task);
   const writer = new PackedWriter(count);
   const withKeys = task.keys === true;
   writer.hasKeys = withKeys;
+  let workUnits = 0;
   forEachCell(task, (cell) => {
     let run;
     try {
@@ -105,12 +112,13 @@ export function runChunkTask(task: ChunkTask): ChunkOutcome {
       const message = error instanceof Error ? error.message : String(error);
       throw new Error(`cell ${cell.index} of chunk ${task.chunkIndex} failed in the engine: ${message}`);
     }
+    workUnits += run.workUnits;
     if (withKeys) scenarioKey(cell.scenario, writer.keys, writer.next * KEY_WORDS);
     writer.add(cell.index, run.verdict, run.reason, run.metrics);
   });
   const packed = writer.finish();
-  const computeNs = Number(process.hrtime.bigint() - started);
-  return { chunkIndex: task.chunkIndex, cellCount: count, packed, computeMs: Math.ceil(computeNs / 1e6), computeNs };
+  const wallNs = Number(process.hrtime.bigint() - started);
+  return { chunkIndex: task.chunkIndex, cellCount: count, packed, workUnits, wallMs: Math.ceil(wallNs / 1e6), wallNs };
 }
 
 /** CellResult records of a packed outcome; `axisValuesOf` gives each cell's axis values. */

@@ -10,6 +10,7 @@ import { unpackResults, type ChunkOutcome } from "./chunk-task";
 import { planChunks, type ChunkOptions, type ChunkPlan } from "./chunks";
 import { axisValuesAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";
 import { specHash } from "./hash";
+import { billedMsOfUnits } from "./metering";
 import type { ChunkPool } from "./pool";
 import { countVerdicts, emptyVerdictCounts, type CellResult, type ResultsHeader, type VerdictCounts } from "./results";
 import type { SweepSpec } from "./spec";
@@ -19,7 +20,8 @@ export interface SweepProgress {
   chunks: number;
   cellsDone: number;
   cells: number;
-  computeMs: number;
+  /** Billed compute so far (ms): ⌈work units of the chunks done / rate⌉. */
+  billedMs: number;
 }
 
 export interface RunSweepOptions extends ChunkOptions {
@@ -36,12 +38,18 @@ export interface SweepRunSummary {
   header: ResultsHeader;
   chunks: ChunkPlan[];
   verdictCounts: VerdictCounts;
-  /** Sum of the chunks' measured worker compute (integer ms). */
-  computeMs: number;
-  /** Measured compute per chunk, by chunk index (integer ms). */
-  chunkComputeMs: number[];
+  /** Work units of all cells run (lib/physics/work-units.ts). */
+  workUnits: number;
+  /** What the sweep is billed: ⌈workUnits / WORK_UNITS_PER_BILLED_MS⌉ ms, the same for any chunking and thread count. */
+  billedMs: number;
+  /** Work units per chunk, by chunk index. */
+  chunkWorkUnits: number[];
+  /** Sum of the chunks' worker wall time (integer ms; capacity figures, not billed). */
+  wallMs: number;
+  /** Wall time per chunk, by chunk index (integer ms). */
+  chunkWallMs: number[];
   /** The same in ns, for calibration. */
-  chunkComputeNs: number[];
+  chunkWallNs: number[];
 }
 
 export function resultsHeader(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): ResultsHeader {
@@ -53,15 +61,17 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
   const header = resultsHeader(spec, axes);
   const chunks = options.plan ?? planChunks(spec, { ...options, axes });
   const verdictCounts = emptyVerdictCounts();
-  const chunkComputeMs: number[] = new Array(chunks.length).fill(0);
-  const chunkComputeNs: number[] = new Array(chunks.length).fill(0);
+  const chunkWorkUnits: number[] = new Array(chunks.length).fill(0);
+  const chunkWallMs: number[] = new Array(chunks.length).fill(0);
+  const chunkWallNs: number[] = new Array(chunks.length).fill(0);
 
   // Reorder buffer: chunks finish in any order; results leave in chunk (= cell) order.
   const finished = new Map<number, CellResult[]>();
   let nextChunk = 0;
   let chunksDone = 0;
   let cellsDone = 0;
-  let computeMs = 0;
+  let workUnits = 0;
+  let wallMs = 0;
   let failed = false;
 
   const accept = (outcome: ChunkOutcome) => {
@@ -71,9 +81,11 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
       throw new Error(`chunk ${plan.index} returned ${results.length} results from cell ${results[0]?.index} for ${plan.cellCount} cells from ${plan.firstCell}`);
     }
     finished.set(outcome.chunkIndex, results);
-    chunkComputeMs[outcome.chunkIndex] = outcome.computeMs;
-    chunkComputeNs[outcome.chunkIndex] = outcome.computeNs;
-    computeMs += outcome.computeMs;
+    chunkWorkUnits[outcome.chunkIndex] = outcome.workUnits;
+    chunkWallMs[outcome.chunkIndex] = outcome.wallMs;
+    chunkWallNs[outcome.chunkIndex] = outcome.wallNs;
+    workUnits += outcome.workUnits;
+    wallMs += outcome.wallMs;
     chunksDone++;
     cellsDone += plan.cellCount;
     while (finished.has(nextChunk)) {
@@ -83,7 +95,7 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
       options.onResults?.(results);
       nextChunk++;
     }
-    options.onProgress?.({ chunksDone, chunks: chunks.length, cellsDone, cells: header.cellCount, computeMs });
+    options.onProgress?.({ chunksDone, chunks: chunks.length, cellsDone, cells: header.cellCount, billedMs: billedMsOfUnits(workUnits) });
   };
 
   // On the first failure, drop the chunks still waiting for a thread: the sweep has failed anyway.
@@ -103,5 +115,5 @@ export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promi
       }
     }),
   );
-  return { header, chunks, verdictCounts, computeMs, chunkComputeMs, chunkComputeNs };
+  return { header, chunks, verdictCounts, workUnits, billedMs: billedMsOfUnits(workUnits), chunkWorkUnits, wallMs, chunkWallMs, chunkWallNs };
 }

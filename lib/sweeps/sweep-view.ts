@@ -31,8 +31,14 @@ export interface SweepView {
   cachedCells: number;
   chunks: number;
   chunksDone: number;
+  /** Billed so far (ms). */
   computeMs: number;
+  /** The quote's expected bill (ms). */
   estimatedComputeMs: number;
+  /** The quote's ceiling (ms): the most the sweep can be billed (0 for sweeps metered by wall clock, which had none). */
+  ceilingMs: number;
+  /** How the sweep is billed: "wall-clock" (submitted before work units) or "work-units-v1". */
+  metering: string;
   verdictCounts: VerdictCounts;
   axes: SweepAxisView[];
   spec: SweepSpec;

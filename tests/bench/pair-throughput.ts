@@ -55,7 +55,7 @@ async function measure(spec: SweepSpec, threads: number): Promise<{ wallS: numbe
       const elapsedS = (performance.now() - started) / 1e3;
       if (elapsedS < wallS) {
         wallS = elapsedS;
-        computeS = summary.chunkComputeNs.reduce((sum, ns) => sum + ns, 0) / 1e9;
+        computeS = summary.chunkWallNs.reduce((sum, ns) => sum + ns, 0) / 1e9;
       }
     }
     return { wallS, computeS, chunks: plan.length };

@@ -7,12 +7,14 @@ import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
+import { metering } from "./metering";
+import { workUnitCalibration } from "./work-unit-calibration";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut, webhookIsolation];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation];
 
 async function main() {
   const wanted = process.argv.slice(2);

@@ -52,11 +52,11 @@ test("an admin lowers a studio's cap under a running sweep: it pauses with the r
   // The quote shows the studio's limits before submitting.
   const quote = await owner.request.post(`/api/v1/studios/${studioId}/quotes`, { data: { spec: CRATE_PILE } });
   expect(quote.status()).toBe(200);
-  const { quote: q } = (await quote.json()) as { quote: { cells: number; estimatedComputeMs: number; limits: { monthlyComputeMs: number; violations: unknown[] } } };
+  const { quote: q } = (await quote.json()) as { quote: { cells: number; estimatedComputeMs: number; ceilingMs: number; limits: { monthlyComputeMs: number; violations: unknown[] } } };
   expect(q.cells).toBe(300);
   expect(q.limits.violations).toEqual([]);
   expect(q.estimatedComputeMs).toBeGreaterThan(6_000 * 2);
-  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.estimatedComputeMs } });
+  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.ceilingMs } });
   expect(submitted.status()).toBe(201);
   const { sweep } = (await submitted.json()) as { sweep: { id: string } };
   await owner.goto(`${studioPath}/sweeps/${sweep.id}`);

@@ -106,27 +106,28 @@ describe("submit enforcement", () => {
     const quote = await quoteSweep(db, studio.studioId, puckSpec());
     expect(quote.limits.violations).toEqual([]);
     expect(quote.limits.monthlyComputeMs).toBe(PLAN_DEFAULTS.monthlyComputeMs);
-    const cap = quote.estimatedComputeMs - 1;
+    // The quote's ceiling is what a sweep reserves against the cap and the balance.
+    const cap = quote.ceilingMs - 1;
     await updateQuotas(db, admin, studio.studioId, { monthlyComputeMs: cap, reason: "test" });
     const refused = await submitThroughApi(studio, puckSpec());
     expect(refused.status).toBe(422);
-    expect((refused.body as LimitBody).error.limit).toEqual({ name: "monthlyComputeMs", value: cap, requested: quote.estimatedComputeMs, remaining: cap, unit: "ms" });
+    expect((refused.body as LimitBody).error.limit).toEqual({ name: "monthlyComputeMs", value: cap, requested: quote.ceilingMs, remaining: cap, unit: "ms" });
     const capped = await quoteSweep(db, studio.studioId, puckSpec());
     expect(capped.limits.monthRemainingMs).toBe(cap);
     expect(capped.limits.violations.map((v) => v.name)).toEqual(["monthlyComputeMs"]);
 
     await updateQuotas(db, admin, studio.studioId, { monthlyComputeMs: null, reason: "test" });
-    await grant(studio.studioId, -10 * 60_000 + quote.estimatedComputeMs - 1, `spend:${studio.studioId}`);
+    await grant(studio.studioId, -10 * 60_000 + quote.ceilingMs - 1, `spend:${studio.studioId}`);
     const poor = await submitThroughApi(studio, puckSpec());
     expect(poor.status).toBe(402);
-    expect((poor.body as LimitBody).error).toMatchObject({ code: "insufficient_minutes", limit: { name: "balance", requested: quote.estimatedComputeMs, remaining: quote.estimatedComputeMs - 1 } });
+    expect((poor.body as LimitBody).error).toMatchObject({ code: "insufficient_minutes", limit: { name: "balance", requested: quote.ceilingMs, remaining: quote.ceilingMs - 1 } });
     expect(await sweepCount(studio.studioId)).toBe(0);
   });
 
   it("two sweeps submitted at once cannot together pass the monthly cap or the balance", async () => {
     const studio = await makeSweepStudio("Thimble Reef Games");
-    const { estimatedComputeMs } = await quoteSweep(db, studio.studioId, puckSpec());
-    // Room for one sweep, not two.
+    // A sweep reserves its quote's ceiling: room for one sweep, not two.
+    const { ceilingMs: estimatedComputeMs } = await quoteSweep(db, studio.studioId, puckSpec());
     await updateQuotas(db, admin, studio.studioId, { monthlyComputeMs: Math.floor(estimatedComputeMs * 1.5), reason: "test" });
     const results = await Promise.allSettled([submitSweep(db, studio.studioId, { spec: puckSpec() }), submitSweep(db, studio.studioId, { spec: puckSpec() })]);
     expect(results.filter((r) => r.status === "fulfilled")).toHaveLength(1);
@@ -165,7 +166,7 @@ describe("run-time limits", { timeout: 180_000 }, () => {
   it("pauses at a chunk boundary when the monthly cap is reached, alerts 80 % and 100 % once, resumes after a raise, keeps every finished chunk", async () => {
     const studio = await makeSweepStudio("Brambleway Games");
     const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(0.2) }, { chunkOptions: { maxCellsPerChunk: 1 } });
-    // Any finished chunk uses at least 1 ms, so the cap is reached after the first one.
+    // The cap is reached once the chunks' work units add up to 1 billed ms (a few chunks of this sweep).
     await updateQuotas(db, admin, studio.studioId, { monthlyComputeMs: 1, reason: "test: lower below the sweep's need" });
     const watch = watchedRunner({ pool });
     const runner = watch.runner;

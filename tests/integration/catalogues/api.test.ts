@@ -111,10 +111,10 @@ describe("a catalogue check", () => {
 
     const quoted = await call(quoteRoute.POST, { method: "POST", path: `${base(studio)}/${catalogueId}/quote`, params, body: { settings: SETTINGS }, cookie: studio.cookies.engineer });
     expect(quoted.status).toBe(200);
-    const quote = (quoted.body as { quote: { cells: number; estimatedComputeMs: number } }).quote;
+    const quote = (quoted.body as { quote: { cells: number; estimatedComputeMs: number; ceilingMs: number } }).quote;
     expect(quote.cells).toBe(15 * 3);
 
-    const submitted = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${catalogueId}/checks`, params, body: { settings: SETTINGS, acceptedQuoteMs: quote.estimatedComputeMs }, cookie: studio.cookies.engineer });
+    const submitted = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${catalogueId}/checks`, params, body: { settings: SETTINGS, acceptedQuoteMs: quote.ceilingMs }, cookie: studio.cookies.engineer });
     expect(submitted.status).toBe(201);
     const check = (submitted.body as { check: { id: string; sweep: { id: string; spec: unknown } } }).check;
     // The same spec quoted through the plain sweep quote gives the same quote: one path for both.

@@ -84,7 +84,7 @@ describe("bad input: 422 naming the spec path, nothing queued", () => {
     const poor = await submit(broke, puckSpec());
     expect(poor.status).toBe(402);
     expect(errorOf(poor.body).code).toBe("insufficient_minutes");
-    expect(errorOf(poor.body).message).toMatch(/estimated at \d+ ms.*balance is 0 ms/);
+    expect(errorOf(poor.body).message).toMatch(/quote ceiling is \d+ ms.*balance is 0 ms/);
     expect(await rowCounts()).toEqual(before);
   });
 

@@ -15,7 +15,10 @@ import { resultStoreKind, resultsDir } from "@/lib/queue/result-store";
 import { quoteSweep, submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
 import { balanceMs } from "@/lib/ledger/ledger";
-import { QUOTE_BAND } from "@/lib/sweeps/cost";
+import { simulate } from "@/lib/physics/index";
+import { expandSweep } from "@/lib/sweeps/grid";
+import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering";
+import { parseSweepSpec } from "@/lib/sweeps/spec";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { closeTestDb, useFreshDb } from "../../helpers/db";
 import { ballPitSpec, grant, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForSweep } from "./support";
@@ -36,12 +39,18 @@ async function cellsText(sweepId: string): Promise<string> {
   return JSON.stringify({ cells: (await storedCells(db, await sweepRow(sweepId))).map(cellJson) });
 }
 
+function parsedSpec(input: unknown) {
+  const parsed = parseSweepSpec(input);
+  if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+  return parsed.spec;
+}
+
 function newRunner(onRecorded?: (sweepId: string, sweepFinished: boolean) => void): QueueRunner {
   return new QueueRunner({ db, pool, pollMs: 20, leaseMs: 30_000, onRecorded });
 }
 
 describe("queue runner", { timeout: 180_000 }, () => {
-  it("bills within QUOTE_BAND of the quote, one debit per chunk, and serves a second identical sweep from the cache for nothing", async () => {
+  it("bills the cells' work units, at most the quote's ceiling, one debit per chunk, and serves a second identical sweep from the cache for nothing", async () => {
     const studio = await makeSweepStudio("Tidewrack Toys");
     // The shipped example: about a second of compute, so the measured figure is not all rounding and start-up.
     const spec = JSON.parse(readFileSync(path.join(process.cwd(), "examples", "jellybean-jar-box.json"), "utf8")) as unknown;
@@ -58,10 +67,14 @@ describe("queue runner", { timeout: 180_000 }, () => {
       expect(new Set(debits.map((d) => d.idempotencyKey)).size).toBe(done.chunks);
       const billedMs = -debits.reduce((sum, d) => sum + d.computeMs, 0);
       expect(billedMs).toBe(done.computeMs);
-      // QUOTE_BAND: the documented range of billed / quoted compute (lib/sweeps/cost.ts, measured by the calibration bench).
-      expect(billedMs).toBeGreaterThanOrEqual(quote.band.lowMs);
-      expect(billedMs).toBeLessThanOrEqual(quote.band.highMs);
-      expect(quote.band.lowMs).toBe(Math.floor(quote.estimatedComputeMs * QUOTE_BAND.low));
+      // The bill is ⌈Σ cells' work units / rate⌉ (lib/sweeps/metering.ts), recomputed here cell by cell in this thread.
+      const units = expandSweep(parsedSpec(spec)).reduce((sum, cell) => sum + simulate(cell.scenario).workUnits, 0);
+      expect(billedMs).toBe(Math.ceil(units / WORK_UNITS_PER_BILLED_MS));
+      expect(billedMs).toBeLessThanOrEqual(quote.ceilingMs);
+      expect(done.ceilingMs).toBe(quote.ceilingMs);
+      expect(done.releasedCeilingMs).toBe(quote.ceilingMs);
+      // The issue's target for the expected figure on the shipped examples: within ±25 % of the bill.
+      expect(Math.abs(billedMs - quote.expectedMs)).toBeLessThanOrEqual(0.25 * billedMs);
       expect(await balanceMs(db, studio.studioId)).toBe(60 * 60_000 - billedMs);
 
       const again = await quoteSweep(db, studio.studioId, spec);

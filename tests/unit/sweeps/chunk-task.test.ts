@@ -27,6 +27,6 @@ describe("packed chunk results", () => {
     expect(runs[2].metrics.exploded).toBe(true);
     expect(results).toEqual(runs.map((run, i) => ({ index: 10 + i, axisValues: [i], verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) })));
     expect(outcome.chunkIndex).toBe(5);
-    expect(Number.isInteger(outcome.computeMs) && outcome.computeMs >= 1).toBe(true);
+    expect(Number.isInteger(outcome.wallMs) && outcome.wallMs >= 1).toBe(true);
   });
 });

@@ -64,3 +64,32 @@ export function clone<T>(value: T): T {
  */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- deliberately untyped test input
 export type Draft = any;
+
+/**
+ * A snapshot scene as a game would export it: twelve crates (discs) of an invented warehouse game
+ * dropped on the floor and one side wall, some moving; swept over stiffness and speed scale.
+ */
+export function crateDropSnapshotSpec(): SweepSpecInput {
+  const bodies = Array.from({ length: 12 }, (_, i) => ({
+    xM: 0.15 + (i % 4) * 0.2,
+    yM: 0.12 + Math.floor(i / 4) * 0.22,
+    vxMPerS: ((i * 5) % 3) * 0.3 - 0.3,
+    vyMPerS: -0.5,
+    massKg: 2 + (i % 3),
+    radiusM: 0.08,
+  }));
+  return {
+    name: "Crate drop",
+    scenario: {
+      scene: { kind: "snapshot", bodies, walls: [{ normalX: 0, normalY: 1, offsetM: 0 }, { normalX: 1, normalY: 0, offsetM: 0 }], gravityMPerS2: 9.81 },
+      contact: { model: "linear", stiffness: 2e5, damping: { kind: "restitution", value: 0.5 } },
+      integrator: "velocity-verlet",
+      dtS: 1e-3,
+      durationS: 0.1,
+    },
+    axes: [
+      { parameter: "contact.stiffness", spacing: "log", from: 2e4, to: 2e6, count: 3 },
+      { parameter: "scene.speedScale", spacing: "linear", from: 0.5, to: 2, count: 2 },
+    ],
+  };
+}

@@ -25,7 +25,7 @@ function parsed(input: SweepSpecInput): SweepSpec {
 async function sweepJson(spec: SweepSpec, pool: ChunkPool, maxCellsPerChunk: number): Promise<{ json: string; chunks: number; computeMs: number[] }> {
   const collected: CellResult[] = [];
   const summary = await runSweep(spec, { pool, maxCellsPerChunk, targetChunkMs: 10_000, onResults: (results) => collected.push(...results) });
-  return { json: resultsToJson(summary.header, collected), chunks: summary.chunks.length, computeMs: summary.chunkComputeMs };
+  return { json: resultsToJson(summary.header, collected), chunks: summary.chunks.length, computeMs: summary.chunkWallMs };
 }
 
 const pairSpec = (() => {
@@ -69,8 +69,8 @@ describe("chunk pool (piscina, TypeScript entry under tsx)", { timeout: 120_000 
       const run = simulate(cell.scenario);
       expect(collected[cell.index]).toEqual({ index: cell.index, axisValues: cell.axisValues, verdict: run.verdict, reason: run.reason, metrics: pickMetrics(run.metrics) });
     }
-    expect(summary.chunkComputeMs.every((ms) => Number.isInteger(ms) && ms >= 1)).toBe(true);
-    expect(summary.computeMs).toBe(summary.chunkComputeMs.reduce((sum, ms) => sum + ms, 0));
+    expect(summary.chunkWallMs.every((ms) => Number.isInteger(ms) && ms >= 1)).toBe(true);
+    expect(summary.wallMs).toBe(summary.chunkWallMs.reduce((sum, ms) => sum + ms, 0));
   });
 
   it("rejects a chunk whose cell fails, naming the cell", async () => {
