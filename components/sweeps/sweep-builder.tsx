@@ -19,6 +19,7 @@ import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
+import { HelpPanel } from "@/components/help/verdict-help";
 import { describeSpecField } from "@/lib/ui/spec-fields";
 import { FRAME_STEP_PATH, formatFrameStep, ordinal, frameStepInputText, frameStepListText, parseFrameStep, parseFrameStepList } from "@/lib/ui/units";
 import { formatMinutes, sweepsPath, type Quote, type Sweep } from "./sweep-api";
@@ -200,7 +201,10 @@ export function SweepBuilder({
   role,
   initialSpec,
   snapshotId,
+  templateId: startTemplateId,
 }: {
+  /** A template to start from (the studio home's "run a template" links here with ?template=). */
+  templateId?: string;
   studioId: string;
   studioName: string;
   role: StudioRole;
@@ -214,13 +218,14 @@ export function SweepBuilder({
     const scene = initialSpec?.scenario.scene;
     return snapshotId && scene?.kind === "snapshot" ? { id: snapshotId, geometry: JSON.stringify([scene.bodies, scene.walls ?? []]) } : undefined;
   }, [initialSpec, snapshotId]);
-  const [templateId, setTemplateId] = useState(initialSpec ? "" : SWEEP_TEMPLATES[0].id);
+  const startTemplate = (startTemplateId ? SWEEP_TEMPLATES.find((template) => template.id === startTemplateId) : undefined) ?? SWEEP_TEMPLATES[0];
+  const [templateId, setTemplateId] = useState(initialSpec ? "" : startTemplate.id);
   // Bumped on every template switch, so the text fields that keep what was typed start again from the new spec.
   const [generation, setGeneration] = useState(0);
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
     resolver: zodResolver(sweepSpecSchema) as never,
-    defaultValues: withTolerances(initialSpec ?? SWEEP_TEMPLATES[0].spec),
+    defaultValues: withTolerances(initialSpec ?? startTemplate.spec),
     mode: "onChange",
   });
   const { register, setValue, reset, formState, handleSubmit, control } = form;
@@ -553,6 +558,7 @@ export function SweepBuilder({
         </form>
 
         <aside className="space-y-4 lg:sticky lg:top-4 lg:self-start">
+          <HelpPanel overlays={false} />
           <QuotePanel quote={quote.data} pending={local.ok && (quote.isFetching || debouncedJson !== specJson)} error={local.ok ? (quote.error ? errorMessage(quote.error) : null) : "Fix the spec to get a quote."} />
           {confirming && quoteIsCurrent && quote.data ? (
             <section className="rounded-lg border-2 border-action bg-surface p-5" role="dialog" aria-labelledby="confirm-heading" data-testid="confirm-sweep">

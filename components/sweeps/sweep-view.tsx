@@ -11,6 +11,7 @@ import { Alert, Button, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
 import { formatParameterValue, parameterUnitLabel } from "@/lib/ui/units";
+import { HelpPanel } from "@/components/help/verdict-help";
 import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
@@ -375,6 +376,9 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
         />
       )}
       <p className="mt-2 text-xs text-ink-muted">Hatched cells are not computed yet. Click a cell (or focus the map and press Enter) to open its time series and replay.</p>
+      <div className="mt-3">
+        <HelpPanel />
+      </div>
     </Card>
   );
 }
