@@ -160,7 +160,7 @@ function LatestCard({ studioId, sweeps, canRun }: { studioId: string; sweeps: Ov
       ) : (
         <ul className="divide-y divide-line" data-testid="home-latest">
           {sweeps.map((sweep) => (
-            <li key={sweep.id} className="grid gap-2 py-3 sm:grid-cols-[minmax(0,1fr)_14rem] sm:items-center">
+            <li key={sweep.id} className="grid gap-2 py-3 sm:grid-cols-[minmax(0,1fr)_14rem] sm:items-center" data-testid="home-latest-item">
               <div className="min-w-0">
                 <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="block truncate text-sm font-medium text-action hover:underline" data-testid="home-latest-link">
                   {sweep.name}

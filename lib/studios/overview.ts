@@ -18,7 +18,7 @@ import type { VerdictCounts } from "@/lib/sweeps/results";
 
 /** Days of daily usage the trend shows. */
 export const TREND_DAYS = 30;
-const LATEST_SWEEPS = 5;
+const LATEST_SWEEPS = 6;
 const LATEST_CHECKS = 3;
 
 export interface OverviewSweep {
