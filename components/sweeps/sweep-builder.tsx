@@ -280,11 +280,13 @@ export function SweepBuilder({
   const sceneParameters = NUMERIC_PARAMETERS.filter((parameter) => parameter.path.startsWith("scene.") && !AXIS_ONLY_PATHS.has(parameter.path) && parameter.scenes !== "all" && parameter.scenes.includes(sceneKind));
   const axisParameters = parametersForScene(sceneKind);
 
+  // Read during render: react-hook-form computes isDirty only for form state read while rendering.
+  const isDirty = formState.isDirty;
   const applyTemplate = (id: string) => {
     const template = SWEEP_TEMPLATES.find((candidate) => candidate.id === id);
     if (!template) return;
     // Edits are never thrown away without asking.
-    if (formState.isDirty && !window.confirm(`Start from "${template.title}"? Your edits to this spec will be replaced.`)) return;
+    if (isDirty && !window.confirm(`Start from "${template.title}"? Your edits to this spec will be replaced.`)) return;
     setTemplateId(id);
     setGeneration((n) => n + 1);
     setServerError(null);
