@@ -8,6 +8,7 @@ import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapsh
 import { saveSnapshot } from "@/lib/snapshots/store";
 import { hashPassword } from "@/lib/auth/password";
 import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
+import { seedDemoResults } from "@/lib/demo/results";
 
 /**
  * The demo: an invented studio, Gannet Yard Games, tuning the physics of its invented arcade game
@@ -113,6 +114,9 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
     });
     created = true;
   }
+  // Work the studio has done: sweeps, a catalogue check and a snapshot sweep, through the ordinary queue.
+  const engineer = DEMO_ACCOUNTS.find((a) => a.role === "engineer")!;
+  if ((await seedDemoResults(db, studioId, userIds.get(engineer.email) ?? null)) > 0) created = true;
   return { studioId, created };
 }
 

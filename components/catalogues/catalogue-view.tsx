@@ -1,4 +1,5 @@
 "use client";
+import { formatFrameRate } from "@/lib/ui/units";
 /**
  * One catalogue version: its objects, its versions and original file, its checks, and the form
  * that runs a check with the game's settings (quoted first, then queued like any sweep).
@@ -180,7 +181,7 @@ function ChecksCard({ studioId, catalogueId, checks }: { studioId: string; catal
                   </Link>
                 </td>
                 <td className={`${td} font-mono text-xs`}>
-                  {Math.round(1 / check.settings.dtS)} Hz × {check.settings.substeps} substeps, {check.settings.integrator}, {check.settings.contactModel}
+                  {formatFrameRate(check.settings.dtS)} × {check.settings.substeps} substeps, {check.settings.integrator}, {check.settings.contactModel}
                   {check.settings.stiffness !== undefined ? ` k = ${check.settings.stiffness.toPrecision(4)}` : ""}
                   {check.settings.groupStiffness ? " (per group)" : ""}
                 </td>

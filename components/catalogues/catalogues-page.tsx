@@ -1,4 +1,5 @@
 "use client";
+import { CRATESLIDE_CATALOGUE_CSV } from "@/lib/catalogues/demo";
 /**
  * The studio's catalogues: every version by name, and (for engineers and owners) the upload: a
  * file input with drag and drop, every problem of the file at once with its row and column, and an
@@ -177,7 +178,10 @@ function UploadCard({ studioId }: { studioId: string }) {
               {i < CATALOGUE_COLUMNS.length - 1 ? ", " : ""}
             </span>
           ))}
-          . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.
+          . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.{" "}
+          <a className="font-medium text-action hover:underline" href={`data:text/csv;charset=utf-8,${encodeURIComponent(CRATESLIDE_CATALOGUE_CSV)}`} download="sample-catalogue-crateslide.csv" data-testid="sample-catalogue">
+            Download a sample catalogue (CSV)
+          </a>
         </p>
         <FileDropZone
           label="Drop a file here, or choose one"

@@ -1,4 +1,5 @@
 "use client";
+import { formatFrameRate, formatFrameStep, formatSI } from "@/lib/ui/units";
 /**
  * A catalogue check's result: the pair matrix (objects × objects, each square coloured by the
  * pair's worst verdict), the summary of pairs at risk with the recommendation and its confirmation
@@ -59,7 +60,7 @@ export function CheckView({ studioId, studioName, role, catalogueId, checkId }: 
             actions={<StatusBadge status={data.sweep.status} />}
           >
             <p className="text-sm text-ink-muted">
-              {fmt(1 / data.settings.dtS)} Hz × {data.settings.substeps} substeps (h = {fmt((data.settings.dtS / data.settings.substeps) * 1000)} ms), {data.settings.integrator}, {data.settings.contactModel} contact
+              {formatFrameRate(data.settings.dtS)} ({formatFrameStep(data.settings.dtS)}) × {data.settings.substeps} substeps (h = {formatSI(data.settings.dtS / data.settings.substeps, "s")}), {data.settings.integrator}, {data.settings.contactModel} contact
               {data.settings.stiffness !== undefined ? `, stiffness ${fmt(data.settings.stiffness, 4)} ${data.settings.contactModel === "linear" ? "N/m" : "N/m^1.5"}` : ""}
               {data.settings.groupStiffness ? " (per group)" : ""}, damping {data.settings.damping === "catalogue" ? "from the catalogue's restitution" : "none"}; run as{" "}
               <Link href={`/studios/${studioId}/sweeps/${data.sweep.id}`} className="text-action hover:underline">

@@ -15,7 +15,7 @@
  * - `onCellClick(thirdIndex, cellIndex)`.
  */
 import { useId, useMemo, useState } from "react";
-import { formatSI } from "@/lib/charts/format";
+import { formatFrameStep, formatSI } from "@/lib/ui/units";
 import { countCodes, PENDING_CODE, verdictCodes } from "@/lib/charts/categories";
 import { resolveMetricScale, verdictScale, type MapAxis, type MapLayer, type OverlayInput, type ResolvedScale } from "./map-model";
 import { MapLegend } from "./MapLegend";
@@ -26,7 +26,7 @@ export type MapGridMode = "grid" | "selector";
 export interface MapGridProps {
   x: MapAxis;
   y: MapAxis;
-  third: { label: string; unit: string; values: readonly number[] };
+  third: { label: string; unit: string; values: readonly number[]; quantity?: MapAxis["quantity"] };
   layers: readonly MapLayer[];
   mode?: MapGridMode;
   defaultMode?: MapGridMode;
@@ -76,7 +76,8 @@ export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overl
 
   // One overlay list per map, kept between renders so the maps do not redraw for nothing.
   const overlaySets = useMemo(() => third.values.map((value) => (typeof overlays === "function" ? overlays(value) : overlays)), [overlays, third]);
-  const valueLabel = (i: number) => `${third.label} = ${formatSI(third.values[i], third.unit, 4)}`;
+  const thirdText = (value: number) => (third.quantity === "frame-step" ? formatFrameStep(value, 4) : formatSI(value, third.unit, 4));
+  const valueLabel = (i: number) => `${third.label} = ${thirdText(third.values[i])}`;
   const index = Math.min(chosen, Math.max(0, third.values.length - 1));
 
   return (
@@ -135,11 +136,11 @@ export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overl
               step={1}
               value={index}
               onChange={(event) => setChosen(Number(event.target.value))}
-              aria-valuetext={formatSI(third.values[index], third.unit, 4)}
+              aria-valuetext={thirdText(third.values[index])}
               className="w-64 accent-[var(--kd-action)]"
             />
             <output htmlFor={sliderId} className="font-mono text-ink-muted">
-              {formatSI(third.values[index], third.unit, 4)} ({index + 1} of {third.values.length})
+              {thirdText(third.values[index])} ({index + 1} of {third.values.length})
             </output>
           </div>
           <StabilityMap

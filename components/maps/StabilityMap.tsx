@@ -30,7 +30,7 @@ import type { Verdict } from "@/lib/physics/types";
 import { formatPrecise } from "@/lib/charts/format";
 import { hitTestCell, cellRect } from "@/lib/charts/scales";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
-import { buildMapModel, CELL_NO_VALUE, CELL_PENDING, MapInputError, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
+import { axisValueText, buildMapModel, CELL_NO_VALUE, CELL_PENDING, MapInputError, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
 import { readChrome, renderHighlights, renderMap, type MapLayout } from "./render";
 import { downloadBlob, exportMapPng, exportMapPngDataUrl } from "./export";
 import { useDevicePixelRatio, useElementWidth, useThemeVersion } from "./use-canvas-env";
@@ -92,8 +92,8 @@ export function cellDescription(
   const column = index % model.columns;
   const row = Math.floor(index / model.columns);
   const lines = [
-    `${model.x.label}: ${formatPrecise(model.x.values[column], model.x.unit)}`,
-    `${model.y.label}: ${formatPrecise(model.y.values[row], model.y.unit)}`,
+    `${model.x.label}: ${axisValueText(model.x, model.x.values[column])}`,
+    `${model.y.label}: ${axisValueText(model.y, model.y.values[row])}`,
   ];
   const label = layer.kind === "metric" ? layer.label : layer.kind === "verdict" ? "Verdict" : layer.label;
   lines.push(`${label}: ${describeValue(model, layer, index)}`);

@@ -10,6 +10,7 @@ import { autoDomain, domainProblem, normalise, type Normalisation, type Normalis
 import { axisValuesProblem, type AxisSpacing } from "@/lib/charts/scales";
 import { countCodes, PENDING_CODE, VERDICT_CATEGORIES, verdictCodes, type CategoryStyle } from "@/lib/charts/categories";
 import { overlayFromFunction, type Overlay, type OverlayStroke } from "@/lib/charts/overlays";
+import { formatFrameRate, formatFrameStepWithRate, formatPrecise, formatSI } from "@/lib/ui/units";
 
 /** One axis of a map. `values` are the cells' parameter values along it, strictly increasing. */
 export interface MapAxis {
@@ -20,6 +21,18 @@ export interface MapAxis {
   values: readonly number[] | Float64Array;
   /** "log" places cells at their log positions (values must be > 0). */
   spacing: AxisSpacing;
+  /** "frame-step": values are frame steps in seconds, read in Hz on ticks and as "1/60 s · 16.7 ms" on hover. */
+  quantity?: "frame-step";
+}
+
+/** A tick label in the axis's own reading: frame steps as frame rates ("60 Hz"), the rest with an SI prefix. */
+export function axisTickLabel(axis: Pick<MapAxis, "unit" | "quantity">, value: number): string {
+  return axis.quantity === "frame-step" ? formatFrameRate(value) : formatSI(value, axis.unit);
+}
+
+/** An axis value on hover: "60 Hz (1/60 s · 16.67 ms)" for a frame step, six figures with an SI prefix for the rest. */
+export function axisValueText(axis: Pick<MapAxis, "unit" | "quantity">, value: number): string {
+  return axis.quantity === "frame-step" ? formatFrameStepWithRate(value, 4) : formatPrecise(value, axis.unit);
 }
 
 /** How metric values map to colour. Defaults: linear, domain from the data, viridis (diverging for symmetric). */

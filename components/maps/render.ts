@@ -9,11 +9,12 @@
 import { formatSI } from "@/lib/charts/format";
 import { legendTicks } from "@/lib/charts/normalise";
 import { logMinorTicks, logTicks, niceLinearTicks, type Tick } from "@/lib/charts/ticks";
+import { frameStepTickValues } from "@/lib/ui/units";
 import { cellRect, cellsAreUniform, mapGeometry, valueToPixel, type AxisScale, type MapGeometry, type PlotRect } from "@/lib/charts/scales";
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
 import type { GlyphName } from "@/lib/charts/categories";
 import { lutColourCss } from "@/lib/charts/colormaps";
-import { inkOn, type MapModel } from "./map-model";
+import { axisTickLabel, inkOn, type MapAxis, type MapModel } from "./map-model";
 
 /** Theme colours of the chrome (text, lines, background); the data colours are the map's own. */
 export interface ChromeColours {
@@ -76,8 +77,11 @@ function font(chrome: ChromeColours, sizePx: number, weight = 400): string {
   return `${weight} ${sizePx}px ${chrome.fontFamily}`;
 }
 
-function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean): Tick[] {
+function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean, axis?: MapAxis): Tick[] {
   const [lo, hi] = scale.domain;
+  if (axis?.quantity === "frame-step") {
+    return frameStepTickValues(lo, hi, axis.values, compact ? 4 : Math.max(3, Math.floor(lengthPx / 48))).map((value) => ({ value, major: true }));
+  }
   if (scale.spacing === "log") return logTicks(lo, hi, compact ? 4 : Math.max(3, Math.floor(lengthPx / 48)));
   return niceLinearTicks(lo, hi, Math.max(2, Math.floor(lengthPx / (compact ? 70 : 80))));
 }
@@ -127,9 +131,9 @@ export function layoutMap(model: MapModel, ctx: CanvasRenderingContext2D, option
   ctx.font = font(options.chrome, fontSize);
   // y tick label width: measure against a provisional scale (ticks depend on the domain, not pixels much).
   const provisional = mapGeometry({ left: 0, top: 0, width: 100, height: Math.max(40, options.heightCss - 60) }, model.x, model.y);
-  const yTicks = axisTicks(provisional.y, options.heightCss - 60, compact);
+  const yTicks = axisTicks(provisional.y, options.heightCss - 60, compact, model.y);
   let yLabelWidth = 0;
-  for (const t of yTicks) yLabelWidth = Math.max(yLabelWidth, ctx.measureText(formatSI(t.value, model.y.unit)).width);
+  for (const t of yTicks) yLabelWidth = Math.max(yLabelWidth, ctx.measureText(axisTickLabel(model.y, t.value)).width);
   const titleHeight = options.title ? 26 : 0;
   const left = Math.ceil(yLabelWidth) + TICK_LENGTH + 6 + (compact ? 14 : 20);
   const bottom = TICK_LENGTH + fontSize + 8 + (compact ? 14 : 20);
@@ -317,7 +321,7 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
   ctx.font = font(chrome, fontSize);
 
   // x ticks: skip labels that would collide with the previous one (minor ticks go first).
-  const xTicks = axisTicks(geometry.x, plot.width, compact);
+  const xTicks = axisTicks(geometry.x, plot.width, compact, model.x);
   ctx.textAlign = "center";
   ctx.textBaseline = "top";
   let lastRight = Number.NEGATIVE_INFINITY;
@@ -330,7 +334,7 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
     ctx.moveTo(Math.round(px) + 0.5, plot.top + plot.height);
     ctx.lineTo(Math.round(px) + 0.5, plot.top + plot.height + (tick.major ? TICK_LENGTH : TICK_LENGTH - 2));
     ctx.stroke();
-    const label = formatSI(tick.value, model.x.unit);
+    const label = axisTickLabel(model.x, tick.value);
     const half = ctx.measureText(label).width / 2;
     if (drawnX.some(([a, b]) => px - half < b + 6 && px + half > a - 6)) continue;
     drawnX.push([px - half, px + half]);
@@ -351,7 +355,7 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
   }
   ctx.stroke();
   // y ticks
-  const yTicks = axisTicks(geometry.y, plot.height, compact);
+  const yTicks = axisTicks(geometry.y, plot.height, compact, model.y);
   ctx.textAlign = "right";
   ctx.textBaseline = "middle";
   const drawnY: [number, number][] = [];
@@ -364,7 +368,7 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
     ctx.stroke();
     if (drawnY.some(([a, b]) => py - fontSize / 2 < b + 3 && py + fontSize / 2 > a - 3)) continue;
     drawnY.push([py - fontSize / 2, py + fontSize / 2]);
-    ctx.fillText(formatSI(tick.value, model.y.unit), plot.left - TICK_LENGTH - 3, py);
+    ctx.fillText(axisTickLabel(model.y, tick.value), plot.left - TICK_LENGTH - 3, py);
   }
   // Axis labels (the unit is on every tick label, so the label is the quantity's name).
   ctx.fillStyle = chrome.inkMuted;

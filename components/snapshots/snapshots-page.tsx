@@ -1,4 +1,5 @@
 "use client";
+import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
 /**
  * The studio's scene snapshots: every version by name with its original file and a link that opens
  * the sweep builder on it, and (for engineers and owners) the upload: a file input with drag and
@@ -133,7 +134,10 @@ function UploadCard({ studioId }: { studioId: string }) {
           A JSON file with <code className="font-mono text-xs">bodies</code> (each <code className="font-mono text-xs">xM, yM, vxMPerS, vyMPerS, massKg, radiusM</code>), optional{" "}
           <code className="font-mono text-xs">walls</code> (each <code className="font-mono text-xs">normalX, normalY, offsetM</code>), <code className="font-mono text-xs">gravityMPerS2</code> and{" "}
           <code className="font-mono text-xs">name</code>. At most {SNAPSHOT_LIMITS.maxBodies.toLocaleString("en-US")} discs, {SNAPSHOT_LIMITS.maxWalls} walls and {SNAPSHOT_LIMITS.maxFileBytes / (1024 * 1024)} MiB;
-          discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.
+          discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.{" "}
+          <a className="font-medium text-action hover:underline" href={`data:application/json;charset=utf-8,${encodeURIComponent(CRATESLIDE_SNAPSHOT_JSON)}`} download="sample-snapshot-loading-bay.json" data-testid="sample-snapshot">
+            Download a sample snapshot (JSON)
+          </a>
         </p>
         <FileDropZone
           label="Drop a snapshot file here, or choose one"

@@ -25,6 +25,7 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
   if (role === "owner" || role === "finance") {
     tabs.push({ href: `${base}/billing`, label: "Billing" }, { href: `${base}/invoices`, label: "Invoices" });
   }
+  tabs.push({ href: "/help", label: "Help" });
   return (
     <div>
       <div className="mb-6 flex flex-wrap items-end justify-between gap-4 border-b border-line pb-4">
@@ -45,7 +46,7 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
         )}
       </div>
       {tabs.length > 1 ? (
-        <nav aria-label="Studio" className="mb-6 flex gap-1">
+        <nav aria-label="Studio" className="mb-6 flex flex-wrap gap-1">
           {tabs.map((tab) => {
             // The Sweeps tab stays marked on the builder, a sweep and its cells; Invoices on one invoice;
             // Catalogues on a catalogue and its checks.

@@ -3,6 +3,7 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useState, type FormEvent } from "react";
 import { CopyButton } from "@/components/copy-button";
+import Link from "next/link";
 import { Alert, Button, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { TokensTable } from "@/components/studio/studio-tables";
@@ -65,7 +66,11 @@ export function TokensManager({ studioId, studioName }: { studioId: string; stud
           <p className="text-sm text-ink-muted">
             Send a token as <code className="font-mono">Authorization: Bearer kd_…</code>. It acts for this studio only: <code className="font-mono">read</code> allows
             GET requests, <code className="font-mono">write</code> also allows creating studio resources such as sweeps. Tokens never manage members,
-            invitations or other tokens.
+            invitations or other tokens.{" "}
+            <Link href="/help/api" className="font-medium text-action hover:underline">
+              Read the API reference
+            </Link>{" "}
+            for every route, with curl examples.
           </p>
         </div>
         <Card title="Create a token">

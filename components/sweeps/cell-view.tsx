@@ -8,7 +8,7 @@ import { CellTimeSeries, TrajectoryReplay } from "@/components/maps";
 import { Alert, Button, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
-import { formatPrecise } from "@/lib/charts/format";
+import { formatFrameStepWithRate, formatParameterValue, formatPrecise } from "@/lib/ui/units";
 import { buildScene } from "@/lib/physics/scenes";
 import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
@@ -94,14 +94,14 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                   const axis = sweep.data?.axes[i];
                   return (
                     <div key={i} className="contents">
-                      <dt className="text-ink-muted">{axis ? `${axis.label} [${axis.unit || "no unit"}]` : `axis ${i + 1}`}</dt>
-                      <dd className="text-right font-mono">{typeof value === "number" ? formatPrecise(value, axis?.unit ?? "") : value}</dd>
+                      <dt className="text-ink-muted">{axis ? (axis.path === "dtS" ? axis.label : `${axis.label} [${axis.unit || "no unit"}]`) : `axis ${i + 1}`}</dt>
+                      <dd className="text-right font-mono">{formatParameterValue(axis?.path ?? "", value, axis?.unit ?? "", { precise: true })}</dd>
                     </div>
                   );
                 })}
                 {(
                   [
-                    ["dtS", "timestep dt [s]", formatPrecise(detail.data.cell.scenario.dtS, "s")],
+                    ["dtS", "frame step dt", formatFrameStepWithRate(detail.data.cell.scenario.dtS, 4)],
                     ["substeps", "substeps per frame [no unit]", String(detail.data.cell.scenario.substeps)],
                     ["integrator", "integrator", detail.data.cell.scenario.integrator],
                   ] as const

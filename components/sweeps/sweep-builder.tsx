@@ -19,6 +19,9 @@ import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
+import { HelpPanel } from "@/components/help/verdict-help";
+import { describeSpecField } from "@/lib/ui/spec-fields";
+import { FRAME_STEP_PATH, formatFrameStep, ordinal, frameStepInputText, frameStepListText, parseFrameStep, parseFrameStepList } from "@/lib/ui/units";
 import { formatMinutes, sweepsPath, type Quote, type Sweep } from "./sweep-api";
 import { formatCompute } from "@/lib/billing/format";
 import { formatPriceCents } from "@/lib/billing/packs";
@@ -88,6 +91,8 @@ function dampingUnit(model: string): string {
 /** A sensible first axis for a parameter, centred on the scenario's current value. */
 function defaultAxis(parameter: SweepableParameter, scenario: SweepSpecInput["scenario"]): AxisInput {
   if (parameter.kind === "choice") return { parameter: parameter.path, values: parameter.choices.slice(0, 2) };
+  // The frame rates games ship at, rather than a decade around the scenario's step.
+  if (parameter.path === FRAME_STEP_PATH) return { parameter: parameter.path, values: [1 / 120, 1 / 60, 1 / 30] };
   let base: number | undefined;
   if (parameter.path === "scene.massRatio" && scenario.scene.kind === "pair") base = scenario.scene.massBKg / scenario.scene.massAKg;
   else {
@@ -125,6 +130,59 @@ function FieldError({ id, message }: { id: string; message?: string }) {
   );
 }
 
+/** The first message at or under a react-hook-form error node, with the words of where it sits ("2nd value: …"). */
+function firstNestedMessage(node: unknown, describe: (relative: string) => string, relative = ""): string | undefined {
+  if (!node || typeof node !== "object") return undefined;
+  const record = node as Record<string, unknown>;
+  if (typeof record.message === "string" && record.message) return relative ? `${describe(relative)}: ${record.message}` : record.message;
+  for (const [key, child] of Object.entries(record)) {
+    if (key === "ref" || key === "type" || key === "types") continue;
+    const found = firstNestedMessage(child, describe, relative ? `${relative}.${key}` : key);
+    if (found) return found;
+  }
+  return undefined;
+}
+
+/**
+ * A frame step typed the way a game programmer says it: "60 Hz", "1/60", "16.7 ms". The stored
+ * value stays seconds; a text that does not parse keeps its own message beside the field and makes
+ * the spec invalid (NaN) so no quote is given for the old value.
+ */
+function FrameStepInput({ id, label, seconds, onSeconds, error }: { id: string; label: string; seconds: number | undefined; onSeconds: (seconds: number) => void; error?: string }) {
+  const [text, setText] = useState(() => frameStepInputText(seconds));
+  const [localError, setLocalError] = useState<string | null>(null);
+  const message = localError ?? error;
+  return (
+    <div className="space-y-1">
+      <label htmlFor={id} className="block text-sm font-medium text-ink">
+        {label} <span className="font-mono text-xs text-ink-muted">[Hz, s or ms]</span>
+      </label>
+      <input
+        id={id}
+        type="text"
+        inputMode="decimal"
+        autoComplete="off"
+        aria-invalid={message ? true : undefined}
+        aria-describedby={message ? `${id}-error` : `${id}-hint`}
+        className={inputClasses}
+        value={text}
+        onChange={(event) => {
+          setText(event.target.value);
+          const parsed = parseFrameStep(event.target.value);
+          setLocalError(parsed.ok ? null : parsed.message);
+          onSeconds(parsed.ok ? parsed.seconds : Number.NaN);
+        }}
+      />
+      {message ? null : (
+        <p id={`${id}-hint`} className="text-xs text-ink-muted" data-testid={`${id}-reading`}>
+          {seconds !== undefined && Number.isFinite(seconds) ? `= ${formatFrameStep(seconds)}` : "e.g. 60 Hz, 1/60 s or 16.7 ms"}
+        </p>
+      )}
+      <FieldError id={id} message={message} />
+    </div>
+  );
+}
+
 /**
  * The spec as sent to the quote and submit routes. A scene still holding the discs and walls of the
  * stored snapshot it was opened from is sent by reference (the routes write them back in), so a
@@ -146,7 +204,10 @@ export function SweepBuilder({
   role,
   initialSpec,
   snapshotId,
+  templateId: startTemplateId,
 }: {
+  /** A template to start from (the studio home's "run a template" links here with ?template=). */
+  templateId?: string;
   studioId: string;
   studioName: string;
   role: StudioRole;
@@ -160,11 +221,14 @@ export function SweepBuilder({
     const scene = initialSpec?.scenario.scene;
     return snapshotId && scene?.kind === "snapshot" ? { id: snapshotId, geometry: JSON.stringify([scene.bodies, scene.walls ?? []]) } : undefined;
   }, [initialSpec, snapshotId]);
-  const [templateId, setTemplateId] = useState(initialSpec ? "" : SWEEP_TEMPLATES[0].id);
+  const startTemplate = (startTemplateId ? SWEEP_TEMPLATES.find((template) => template.id === startTemplateId) : undefined) ?? SWEEP_TEMPLATES[0];
+  const [templateId, setTemplateId] = useState(initialSpec ? "" : startTemplate.id);
+  // Bumped on every template switch, so the text fields that keep what was typed start again from the new spec.
+  const [generation, setGeneration] = useState(0);
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
     resolver: zodResolver(sweepSpecSchema) as never,
-    defaultValues: withTolerances(initialSpec ?? SWEEP_TEMPLATES[0].spec),
+    defaultValues: withTolerances(initialSpec ?? startTemplate.spec),
     mode: "onChange",
   });
   const { register, setValue, reset, formState, handleSubmit, control } = form;
@@ -206,9 +270,13 @@ export function SweepBuilder({
 
   const quoteError = quote.error instanceof ApiClientError ? quote.error : null;
   const apiIssue = (path: string): string | undefined => serverError?.messageFor(path) ?? quoteError?.messageFor(path) ?? quoteError?.messageFor(`spec.${path}`) ?? serverError?.messageFor(`spec.${path}`);
+  const axisParameterPaths = (values.axes ?? []).map((axis) => axis.parameter);
+  const describe = (path: string) => describeSpecField(path, values.scenario.scene.kind, axisParameterPaths);
   const fieldError = (path: string): string | undefined => {
     const found = get(formState.errors, path) as { message?: string; root?: { message?: string } } | undefined;
-    return found?.message ?? found?.root?.message ?? apiIssue(path);
+    // An error inside a list (axes.1.values.0) shows at the list's field, named in words ("2nd value: …").
+    const nested = found?.message || found?.root?.message ? undefined : firstNestedMessage(found, (relative) => describe(`${path}.${relative}`).replace(/^.*?, /, ""));
+    return found?.message ?? found?.root?.message ?? nested ?? apiIssue(path);
   };
 
   const scenario = values.scenario;
@@ -217,10 +285,15 @@ export function SweepBuilder({
   const sceneParameters = NUMERIC_PARAMETERS.filter((parameter) => parameter.path.startsWith("scene.") && !AXIS_ONLY_PATHS.has(parameter.path) && parameter.scenes !== "all" && parameter.scenes.includes(sceneKind));
   const axisParameters = parametersForScene(sceneKind);
 
+  // Read during render: react-hook-form computes isDirty only for form state read while rendering.
+  const isDirty = formState.isDirty;
   const applyTemplate = (id: string) => {
     const template = SWEEP_TEMPLATES.find((candidate) => candidate.id === id);
     if (!template) return;
+    // Edits are never thrown away without asking.
+    if (isDirty && !window.confirm(`Start from "${template.title}"? Your edits to this spec will be replaced.`)) return;
     setTemplateId(id);
+    setGeneration((n) => n + 1);
     setServerError(null);
     reset(withTolerances(template.spec));
   };
@@ -296,7 +369,7 @@ export function SweepBuilder({
                   value={sceneKind}
                   onChange={(event) => {
                     const kind = event.target.value as SceneKind;
-                    setValue("scenario.scene", structuredClone(SCENE_DEFAULTS[kind]), { shouldValidate: true });
+                    setValue("scenario.scene", structuredClone(SCENE_DEFAULTS[kind]), { shouldValidate: true, shouldDirty: true });
                     setTemplateId("");
                   }}
                 >
@@ -414,7 +487,14 @@ export function SweepBuilder({
                   ))}
                 </select>
               </div>
-              {numberField("scenario.dtS", "Timestep dt", "s")}
+              <FrameStepInput
+                key={`dt-${generation}`}
+                id="spec-scenario-dtS"
+                label="Frame step dt"
+                seconds={scenario.dtS}
+                onSeconds={(seconds) => setValue("scenario.dtS", seconds, { shouldValidate: true, shouldDirty: true })}
+                error={fieldError("scenario.dtS")}
+              />
               {numberField("scenario.substeps", "Substeps per frame", "", { step: "1" })}
               {numberField("scenario.durationS", "Duration", "s")}
             </div>
@@ -448,7 +528,7 @@ export function SweepBuilder({
             <div className="space-y-4">
               {axes.map((axis, index) => (
                 <AxisEditor
-                  key={`${index}-${axis.parameter}`}
+                  key={`${generation}-${index}-${axis.parameter}`}
                   index={index}
                   axis={axis}
                   parameters={axisParameters}
@@ -468,7 +548,7 @@ export function SweepBuilder({
               <ul className="mt-1 list-disc pl-5">
                 {allIssues.map((issue) => (
                   <li key={`${issue.field}:${issue.message}`}>
-                    <span className="font-mono">{issue.field}</span>: {issue.message}
+                    <span className="font-semibold">{describe(issue.field)}</span>: {issue.message}
                   </li>
                 ))}
               </ul>
@@ -490,6 +570,7 @@ export function SweepBuilder({
         </form>
 
         <aside className="space-y-4 lg:sticky lg:top-4 lg:self-start">
+          <HelpPanel overlays={false} />
           <QuotePanel quote={quote.data} pending={local.ok && (quote.isFetching || debouncedJson !== specJson)} error={local.ok ? (quote.error ? errorMessage(quote.error) : null) : "Fix the spec to get a quote."} />
           {confirming && quoteIsCurrent && quote.data ? (
             <section className="rounded-lg border-2 border-action bg-surface p-5" role="dialog" aria-labelledby="confirm-heading" data-testid="confirm-sweep">
@@ -595,11 +676,25 @@ function AxisEditor({
   const parameter = parameters.find((candidate) => candidate.path === axis.parameter);
   const idBase = `axis-${index}`;
   const isList = axis.values !== undefined;
-  const [listText, setListText] = useState(() => (axis.values ?? []).join(", "));
+  const isFrameStep = axis.parameter === FRAME_STEP_PATH;
+  const [listText, setListText] = useState(() => (isFrameStep ? frameStepListText((axis.values ?? []) as number[]) : (axis.values ?? []).join(", ")));
+  // What is wrong with the typed list, when it does not parse (the spec then holds NaN there).
+  const [localErrors, setLocalErrors] = useState<{ values?: string }>({});
   const unit = parameter?.kind === "number" ? (parameter.path === "contact.stiffness" ? stiffnessUnit(scenario.contact.model) : parameter.path === "contact.damping.coefficient" ? dampingUnit(scenario.contact.model) : parameter.unit) : "";
 
   const rangeInput = (key: "from" | "to" | "count", label: string, fieldUnit: string) => {
     const id = `${idBase}-${key}`;
+    if (isFrameStep && key !== "count") {
+      return (
+        <FrameStepInput
+          id={id}
+          label={label}
+          seconds={axis[key]}
+          error={error(key)}
+          onSeconds={(seconds) => onChange({ ...axis, [key]: seconds })}
+        />
+      );
+    }
     const message = error(key);
     return (
       <div className="space-y-1">
@@ -662,7 +757,7 @@ function AxisEditor({
                 if (choice === "list") {
                   const start = defaultAxis(parameter, scenario);
                   const values = start.values ?? [start.from as number, start.to as number];
-                  setListText(values.join(", "));
+                  setListText(isFrameStep ? frameStepListText(values as number[]) : values.join(", "));
                   onChange({ parameter: axis.parameter, values });
                 } else if (isList) {
                   const start = defaultAxis({ ...parameter, integer: false, suggestedSpacing: choice as "linear" | "log" }, scenario);
@@ -710,24 +805,37 @@ function AxisEditor({
         ) : isList ? (
           <div className="space-y-1 md:col-span-3">
             <label htmlFor={`${idBase}-values`} className="block text-sm font-medium text-ink">
-              Values, comma-separated <span className="font-mono text-xs text-ink-muted">[{unitLabel(unit)}]</span>
+              Values, comma-separated <span className="font-mono text-xs text-ink-muted">[{isFrameStep ? "Hz, s or ms — e.g. 30, 60, 120 Hz or 1/120, 1/60, 1/30" : unitLabel(unit)}]</span>
             </label>
             <input
               id={`${idBase}-values`}
               className={inputClasses}
               value={listText}
-              aria-invalid={error("values") ? true : undefined}
+              aria-invalid={localErrors.values ?? error("values") ? true : undefined}
+              aria-describedby={localErrors.values ?? error("values") ? `${idBase}-values-error` : undefined}
               onChange={(event) => {
                 setListText(event.target.value);
-                const parsed = event.target.value
+                if (isFrameStep) {
+                  const parsed = parseFrameStepList(event.target.value);
+                  setLocalErrors((old) => ({ ...old, values: parsed.ok ? undefined : parsed.message }));
+                  onChange({ parameter: axis.parameter, values: parsed.ok ? parsed.seconds : [Number.NaN] });
+                  return;
+                }
+                const parts = event.target.value
                   .split(",")
                   .map((part) => part.trim())
-                  .filter((part) => part !== "")
-                  .map(Number);
-                onChange({ parameter: axis.parameter, values: parsed });
+                  .filter((part) => part !== "");
+                const bad = parts.findIndex((part) => !Number.isFinite(Number(part)));
+                setLocalErrors((old) => ({ ...old, values: bad >= 0 ? `${ordinal(bad + 1)} value "${parts[bad]}" is not a number` : undefined }));
+                onChange({ parameter: axis.parameter, values: parts.map(Number) });
               }}
             />
-            <FieldError id={`${idBase}-values`} message={error("values")} />
+            {isFrameStep && !localErrors.values && !error("values") && axis.values?.length ? (
+              <p className="text-xs text-ink-muted" data-testid={`${idBase}-values-reading`}>
+                = {(axis.values as number[]).map((value) => formatFrameStep(value)).join("; ")}
+              </p>
+            ) : null}
+            <FieldError id={`${idBase}-values`} message={localErrors.values ?? error("values")} />
           </div>
         ) : parameter ? (
           <>

@@ -7,6 +7,7 @@ import type { MapAxis, OverlayInput } from "@/components/maps";
 import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
 import type { Metrics, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import { FRAME_STEP_PATH } from "@/lib/ui/units";
 import type { CellRow, SweepAxisView } from "./sweep-api";
 
 export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: string; normalisation: "linear" | "log" | "symmetric"; domain?: readonly [number, number] }[] = [
@@ -35,7 +36,7 @@ export function mapAxisFor(axis: SweepAxisView): MapAxis {
   const numbers = axis.values as number[];
   const sorted = increasingOrder(numbers).map((i) => numbers[i]);
   const spacing = axis.spacing === "log" || (axis.spacing !== "linear" && sorted.length > 2 && sorted[0] > 0 && sorted[sorted.length - 1] / sorted[0] >= 10) ? "log" : "linear";
-  return { label: axis.label, unit: axis.unit, values: sorted, spacing };
+  return { label: axis.label, unit: axis.unit, values: sorted, spacing, ...(axis.path === FRAME_STEP_PATH ? { quantity: "frame-step" as const } : {}) };
 }
 
 /** A one-row axis for a sweep with a single numeric axis. */

@@ -10,7 +10,8 @@ import { CompareMaps, MapGrid, StabilityMap, type MapLayer, type OverlayInput } 
 import { Alert, Button, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
-import { formatSI } from "@/lib/charts/format";
+import { formatParameterValue, parameterUnitLabel } from "@/lib/ui/units";
+import { HelpPanel } from "@/components/help/verdict-help";
 import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
@@ -166,7 +167,7 @@ function AxisSelect({ id, label, axes, choices, value, onChange }: {
       <select id={id} className={selectClasses} value={value} onChange={(event) => onChange(Number(event.target.value))}>
         {choices.map((i) => (
           <option key={i} value={i}>
-            {axes[i].label} [{axes[i].unit || "no unit"}]
+            {axes[i].label} [{parameterUnitLabel(axes[i].path, axes[i].unit)}]
           </option>
         ))}
       </select>
@@ -274,7 +275,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
   const axisValueLabel = (axisIndex: number, position: number) => {
     const axis = sweep.axes[axisIndex];
     const value = axis.values[position];
-    return typeof value === "number" ? formatSI(value, axis.unit) : String(value);
+    return formatParameterValue(axis.path, value, axis.unit);
   };
 
   return (
@@ -376,7 +377,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             <MapGrid
               x={x}
               y={y}
-              third={{ label: third.label, unit: third.unit, values: third.values as number[] }}
+              third={{ label: third.label, unit: third.unit, values: third.values as number[], quantity: third.quantity }}
               layers={order.map((position) => layers[position].layer)}
               overlays={(thirdValue) => overlaysFor(specWithValue(sweep.spec, sweep.axes[gridAxis].path, thirdValue), sweep.axes[xAxis].path, sweep.axes[yAxis].path)}
               onCellClick={(thirdIndex, mapIndex) => onOpenCell(layers[order[thirdIndex]].indices[mapIndex])}
@@ -397,6 +398,9 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
         />
       )}
       <p className="mt-2 text-xs text-ink-muted">Hatched cells are not computed yet. Click a cell (or focus the map and press Enter) to open its time series and replay.</p>
+      <div className="mt-3">
+        <HelpPanel />
+      </div>
     </Card>
   );
 }
@@ -459,7 +463,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
           <select id="envelope-x" className={selectClasses} value={xAxis} onChange={(event) => setXAxis(Number(event.target.value))}>
             {numericAxes.map((i) => (
               <option key={i} value={i}>
-                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+                {sweep.axes[i].label} [{parameterUnitLabel(sweep.axes[i].path, sweep.axes[i].unit)}]
               </option>
             ))}
           </select>
@@ -471,7 +475,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
           <select id="envelope-y" className={selectClasses} value={yAxis} onChange={(event) => setYAxis(Number(event.target.value))}>
             {numericAxes.map((i) => (
               <option key={i} value={i}>
-                {sweep.axes[i].label} [{sweep.axes[i].unit || "no unit"}]
+                {sweep.axes[i].label} [{parameterUnitLabel(sweep.axes[i].path, sweep.axes[i].unit)}]
               </option>
             ))}
           </select>
@@ -523,7 +527,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
               >
                 {sweep.axes[i].values.map((value, position) => (
                   <option key={position} value={position}>
-                    {typeof value === "number" ? formatSI(value, sweep.axes[i].unit) : value}
+                    {formatParameterValue(sweep.axes[i].path, value, sweep.axes[i].unit)}
                   </option>
                 ))}
               </select>
@@ -559,18 +563,18 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
               <thead>
                 <tr className="border-b border-line text-left text-xs uppercase text-ink-muted">
                   <th scope="col" className="py-1">
-                    {xAxisView.label} [{xAxisView.unit || "no unit"}]
+                    {xAxisView.label} [{parameterUnitLabel(xAxisView.path, xAxisView.unit)}]
                   </th>
                   <th scope="col" className="py-1">
-                    limit [{yAxisView.unit || "no unit"}]
+                    limit [{parameterUnitLabel(yAxisView.path, yAxisView.unit)}]
                   </th>
                 </tr>
               </thead>
               <tbody className="font-mono text-xs">
                 {envelope.data.rows.map((row) => (
                   <tr key={row.x}>
-                    <td className="py-0.5">{formatSI(row.x, xAxisView.unit)}</td>
-                    <td className="py-0.5">{row.yLimit === null ? "none stable" : formatSI(row.yLimit, yAxisView.unit)}</td>
+                    <td className="py-0.5">{formatParameterValue(xAxisView.path, row.x, xAxisView.unit)}</td>
+                    <td className="py-0.5">{row.yLimit === null ? "none stable" : formatParameterValue(yAxisView.path, row.yLimit, yAxisView.unit)}</td>
                   </tr>
                 ))}
               </tbody>

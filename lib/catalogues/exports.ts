@@ -58,6 +58,7 @@ export function pairMatrixCsv(matrix: PairMatrix): string {
 export function recommendationCsv(settings: CheckSettings, recommendation: Recommendation): string {
   const rows: [string, number | string | null, string, string][] = [
     ["dt", settings.dtS, "s", "frame step of the check"],
+    ["frame_rate", 1 / settings.dtS, "Hz", "1 / dt"],
     ["substeps", settings.substeps, "", "substeps of the check"],
     ["integrator", settings.integrator, "", ""],
     ["contact_model", settings.contactModel, "", ""],

@@ -113,7 +113,7 @@ const MAX_DURATION_S = 3_600;
 const MAX_DT_S = 1;
 
 export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
-  numeric("dtS", "timestep dt", "s", "all", { ...positive, max: MAX_DT_S }, "log", "Frame step of the fixed-step integrator."),
+  numeric("dtS", "frame step dt", "s", "all", { ...positive, max: MAX_DT_S }, "log", "Frame step of the fixed-step integrator."),
   numeric(
     "substeps",
     "substeps per frame",

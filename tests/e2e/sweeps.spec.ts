@@ -41,7 +41,10 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   await expect(page).toHaveURL(`${studioPath}/sweeps/new`);
   await page.getByLabel(/Stiffness a frame rate can carry/).check();
   // Every scenario field shows its unit beside the label.
-  await expect(page.locator("label[for='spec-scenario-dtS']")).toContainText("[s]");
+  // The frame step reads in the game's units and takes them as typed.
+  await expect(page.locator("label[for='spec-scenario-dtS']")).toContainText("[Hz, s or ms]");
+  await expect(page.locator("#spec-scenario-dtS")).toHaveValue("60 Hz");
+  await expect(page.getByTestId("spec-scenario-dtS-reading")).toHaveText("= 1/60 s · 16.7 ms");
   await expect(page.locator("label[for='spec-scenario-contact-stiffness']")).toContainText("[N/m]");
 
   // --- A bad value gets an inline message naming the field's limit, and no quote; fixing it brings the quote back.
@@ -80,7 +83,7 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   await page.mouse.move(box.x + topRight.x, box.y + topRight.y);
   const tooltip = page.getByRole("tooltip");
   await expect(tooltip).toContainText("contact stiffness k");
-  await expect(tooltip).toContainText("timestep dt");
+  await expect(tooltip).toContainText("frame step dt: 30 Hz (1/30 s · 33.33 ms)");
   await expect(tooltip).toContainText("Exploded");
 
   // While it ran, the page asked only for the cells that changed: every read names the cursor it

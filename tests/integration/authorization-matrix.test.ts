@@ -202,6 +202,7 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios", method: "GET", expect: SIGNED_IN_PERSON(200) },
   { route: "v1/studios", method: "POST", body: () => ({ name: "Driftwood Puck Co" }), expect: SIGNED_IN_PERSON(201) },
   { route: "v1/studios/[studioId]", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
+  { route: "v1/studios/[studioId]/overview", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/members", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
   {
     route: "v1/studios/[studioId]/members/[userId]",

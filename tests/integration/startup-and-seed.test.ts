@@ -33,6 +33,8 @@ describe("start-up", () => {
     vi.stubEnv("NEXT_RUNTIME", "nodejs");
     vi.stubEnv("KICKDRIFT_DEMO", "1");
     vi.stubEnv("MAIL_FAKE_PORT", "0");
+    // The seed submits the demo's sweeps; no runner here, so none runs against this file's database after it closes.
+    vi.stubEnv("KICKDRIFT_RUNNER", "off");
     const log = vi.spyOn(console, "log").mockImplementation(() => undefined);
     let printed = "";
     try {

@@ -9,9 +9,9 @@ import type { SweepSpecInput } from "@/lib/sweeps/spec";
 export const metadata: Metadata = { title: "New sweep" };
 export const dynamic = "force-dynamic";
 
-export default async function NewSweepRoute({ params, searchParams }: { params: Promise<{ studioId: string }>; searchParams: Promise<{ snapshot?: string | string[] }> }) {
+export default async function NewSweepRoute({ params, searchParams }: { params: Promise<{ studioId: string }>; searchParams: Promise<{ snapshot?: string | string[]; template?: string | string[] }> }) {
   const { studioId } = await params;
-  const { snapshot } = await searchParams;
+  const { snapshot, template } = await searchParams;
   const snapshotId = typeof snapshot === "string" ? snapshot : undefined;
   const callbackUrl = `/studios/${studioId}/sweeps/new${snapshotId ? `?snapshot=${encodeURIComponent(snapshotId)}` : ""}`;
   // Finance members read sweeps and invoices but do not spend compute: they get the 403 page here.
@@ -25,5 +25,5 @@ export default async function NewSweepRoute({ params, searchParams }: { params: 
       if (!(error instanceof ApiError && error.status === 404)) throw error;
     }
   }
-  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} snapshotId={initialSpec ? snapshotId : undefined} />;
+  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} snapshotId={initialSpec ? snapshotId : undefined} templateId={typeof template === "string" ? template : undefined} />;
 }
