@@ -6,8 +6,11 @@ export default defineConfig({
   test: {
     include: ["tests/unit/**/*.test.ts", "tests/integration/**/*.test.ts"],
     environment: "node",
-    testTimeout: 30_000,
-    hookTimeout: 60_000,
+    // Hang guards, not speed checks: sized for a machine whose two cores also carry other work
+    // (`npm run test:hostile -- load`), where a fresh database with its migrations and a warm pool
+    // can take a minute to set up.
+    testTimeout: 120_000,
+    hookTimeout: 240_000,
     pool: "forks",
   },
 });
