@@ -89,6 +89,10 @@ export class ContactField implements ForceField {
   maxOverlapM = 0;
   wallForceXN = 0;
   wallForceYN = 0;
+  /** Largest K/m_eff (1/s²) of any contact this pass: K the contact's current stiffness (k, or dF/dδ for Hertz). */
+  maxOmegaSquared = 0;
+  /** Stiffness K (N/m) of the contact whose force was evaluated last (set by normalForce). */
+  private lastStiffnessNPerM = 0;
 
   // First tunnel seen (sticky).
   tunnelKind = TUNNEL_NONE;
@@ -161,6 +165,7 @@ export class ContactField implements ForceField {
     this.maxOverlapM = 0;
     this.wallForceXN = 0;
     this.wallForceYN = 0;
+    this.maxOmegaSquared = 0;
     this.tunnelKind = TUNNEL_NONE;
     this.tunnelBodyA = -1;
     this.tunnelBodyB = -1;
@@ -197,6 +202,7 @@ export class ContactField implements ForceField {
     this.maxOverlapM = 0;
     this.wallForceXN = 0;
     this.wallForceYN = 0;
+    this.maxOmegaSquared = 0;
     this.tunnelDetectedThisPass = false;
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
@@ -353,6 +359,8 @@ export class ContactField implements ForceField {
     const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
     const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
     const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const omegaSquared = this.lastStiffnessNPerM / reducedMass;
+    if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
     const pushX = force > 0 ? force * normalX : 0;
     const pushY = force > 0 ? force * normalY : 0;
     const { fx, fy } = bodies;
@@ -401,6 +409,8 @@ export class ContactField implements ForceField {
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
         const force = this.normalForce(overlap, overlapRate, mass[i], radius[i]);
+        const omegaSquared = this.lastStiffnessNPerM / mass[i];
+        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
         if (force > 0) {
           fx[i] += force * normalX;
           fy[i] += force * normalY;
@@ -428,6 +438,7 @@ export class ContactField implements ForceField {
     const magnitude = overlap < 0 ? -overlap : overlap;
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
+      this.lastStiffnessNPerM = k;
       if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
       return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
@@ -441,6 +452,8 @@ export class ContactField implements ForceField {
     }
     const root = Math.sqrt(magnitude);
     const springMagnitude = k * magnitude * root;
+    // dF/dδ of k_H·δ^{3/2}: the local stiffness that sets the contact's frequency at this overlap.
+    this.lastStiffnessNPerM = 1.5 * k * root;
     if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
     return (overlap >= 0 ? springMagnitude : -springMagnitude) + this.dampingCoefficient(reducedMass, k) * Math.sqrt(root) * overlapRate;
   }

@@ -38,12 +38,18 @@ export const METRIC_KEYS = [
   "tunneled",
   "exploded",
   "steps",
+  // Added with verdict rules 2 (results stored before have them null).
+  "maxOmegaH",
+  "amplification",
 ] as const satisfies readonly (keyof Metrics)[];
 
 // Every Metrics field must be listed (a new engine metric fails the type check here).
 type MissingMetric = Exclude<keyof Metrics, (typeof METRIC_KEYS)[number]>;
 const allMetricsListed: [MissingMetric] extends [never] ? true : false = true;
 void allMetricsListed;
+
+/** Metric fields of packed runs of format version 1 (before maxOmegaH and amplification): the first entries of METRIC_KEYS. */
+export const METRIC_COUNT_V1 = 11;
 
 /** Just the contract's metric fields, in the fixed order (drops anything extra an engine returns). */
 export function pickMetrics(metrics: Metrics): Metrics {

@@ -54,7 +54,7 @@ describe("stability map adapter", () => {
       axisValues: [],
       verdict: "stable",
       reason: null,
-      metrics: { momentumDriftRelX: 0, momentumDriftRelY: 0, energyErrorRel: -0.25, maxEnergyErrorRel: 0.001, effectiveRestitution: null, maxOverlapFraction: 0.05, contactDurationS: null, contactSteps: 3, tunneled: false, exploded: false, steps: 120 },
+      metrics: { momentumDriftRelX: 0, momentumDriftRelY: 0, energyErrorRel: -0.25, maxEnergyErrorRel: 0.001, effectiveRestitution: null, maxOverlapFraction: 0.05, contactDurationS: null, contactSteps: 3, tunneled: false, exploded: false, steps: 120, maxOmegaH: 0.1, amplification: null },
     };
     const data = layerData(indices, new Map([[done.index, done]]), "energyErrorRel");
     expect(data.values[0]).toBe(-0.25);
