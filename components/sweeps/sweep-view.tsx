@@ -368,6 +368,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           layer={single.layer}
           verdicts={single.verdicts}
           reasons={single.reasons}
+          extraLines={(mapIndex) => (single.dynamics[mapIndex] ? [single.dynamics[mapIndex] as string] : [])}
           overlays={overlays}
           showLegend
           exportFileName={`sweep-${sweep.id}-map`}

@@ -92,12 +92,15 @@ export interface ResultsHeader {
   name?: string;
   /** specHash() of the parsed spec. */
   specHash: string;
+  /** Version of the verdict rules the cells were judged by (the spec's scenario.verdictRules; 1 when absent). */
+  verdictRules: number;
   axes: readonly ExpandedAxis[];
   cellCount: number;
 }
 
 export const RESULTS_FORMAT = "kickdrift-sweep-results";
-export const RESULTS_FORMAT_VERSION = 1;
+/** 2: verdictRules in the head, metrics maxOmegaH and amplification, the verdicts of rules 2. */
+export const RESULTS_FORMAT_VERSION = 2;
 
 /** One cell as a JSON object with fixed key order. */
 export function cellToJson(result: CellResult, axes: readonly ExpandedAxis[]): string {
@@ -133,7 +136,7 @@ function orderGuard(header: ResultsHeader) {
 
 /**
  * The JSON document:
- * { format, version, name?, specHash, cellCount, axes, cells: [one per line], verdictCounts }.
+ * { format, version, name?, specHash, verdictRules, cellCount, axes, cells: [one per line], verdictCounts }.
  */
 export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
   const guard = orderGuard(header);
@@ -147,7 +150,7 @@ export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
             `{"parameter":${JSON.stringify(axis.parameter)},"label":${JSON.stringify(axis.label)},"unit":${JSON.stringify(axis.unit)},"values":[${axis.values.map((value) => jsonValue(value)).join(",")}]}`,
         )
         .join(",");
-      return `{"format":${JSON.stringify(RESULTS_FORMAT)},"version":${RESULTS_FORMAT_VERSION},${name}"specHash":${JSON.stringify(header.specHash)},"cellCount":${header.cellCount},\n"axes":[${axes}],\n"cells":[\n`;
+      return `{"format":${JSON.stringify(RESULTS_FORMAT)},"version":${RESULTS_FORMAT_VERSION},${name}"specHash":${JSON.stringify(header.specHash)},"verdictRules":${header.verdictRules},"cellCount":${header.cellCount},\n"axes":[${axes}],\n"cells":[\n`;
     },
     cells(results) {
       let text = "";

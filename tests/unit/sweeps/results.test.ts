@@ -37,7 +37,7 @@ const axes: ExpandedAxis[] = [
   { parameter: "contact.stiffness", label: "contact stiffness k", unit: "N/m", values: [1e3, 1e7] },
   { parameter: "integrator", label: "integrator", unit: "", values: ["symplectic-euler"] },
 ];
-const header: ResultsHeader = { name: "Puckyard, rink \"B\"", specHash: "ab".repeat(32), axes, cellCount: 2 };
+const header: ResultsHeader = { name: "Puckyard, rink \"B\"", specHash: "ab".repeat(32), verdictRules: 2, axes, cellCount: 2 };
 const cells: CellResult[] = [
   { index: 0, axisValues: [1e3, "symplectic-euler"], verdict: "stable", reason: "no problem found", metrics: metrics() },
   {
@@ -53,7 +53,8 @@ describe("JSON results", () => {
   it("parse back to the same records, with fixed key order and non-finite numbers as null", () => {
     const text = resultsToJson(header, cells);
     const document = JSON.parse(text);
-    expect(Object.keys(document)).toEqual(["format", "version", "name", "specHash", "cellCount", "axes", "cells", "verdictCounts"]);
+    expect(Object.keys(document)).toEqual(["format", "version", "name", "specHash", "verdictRules", "cellCount", "axes", "cells", "verdictCounts"]);
+    expect(document.verdictRules).toBe(2);
     expect(document.cells[0]).toEqual({
       index: 0,
       parameters: { "contact.stiffness": 1000, integrator: "symplectic-euler" },
