@@ -204,7 +204,8 @@ export interface Metrics {
   maxOmegaH: number | null;
   /**
    * Rebound of the first contact against the model: (|v_out|/|v_in|) / e_model for the normal
-   * relative speed (1: the model's restitution exactly); null if no contact ended.
+   * relative speed (1: the model's restitution exactly); pair and wall scenes only (in a row or a
+   * box the first contact's bodies are pushed by neighbours); null if no contact ended.
    */
   amplification: number | null;
   /** Integrator steps actually taken or skipped over analytically (counts as duration / (dt/substeps) when the run completes). */
