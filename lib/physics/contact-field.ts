@@ -72,6 +72,12 @@ export interface ContactFieldParameters {
   walls: readonly Wall[];
   gravityMPerS2: number;
   broadPhase: typeof BROAD_PHASE_ALL_PAIRS | typeof BROAD_PHASE_GRID;
+  /**
+   * Depth (fraction of the smaller radius) a step's straight-line motion must cut into contact to
+   * count as a skipped contact or an entry past the closest approach: SKIPPED_CONTACT_DEPTH_FRACTION
+   * under verdict rules 2, 0 under rules 1 (so re-run cells of stored sweeps match their other cells).
+   */
+  nearMissDepthFraction: number;
 }
 
 const EMPTY_INDICES = new Int32Array(0);
@@ -84,6 +90,7 @@ export class ContactField implements ForceField {
   dampingValue = 0;
   gravityMPerS2 = 0;
   broadPhase = 0;
+  nearMissDepthFraction = 0;
   private readonly wallNormalX: number[] = [];
   private readonly wallNormalY: number[] = [];
   private readonly wallOffset: number[] = [];
@@ -157,6 +164,7 @@ export class ContactField implements ForceField {
     this.dampingValue = parameters.dampingValue;
     this.gravityMPerS2 = parameters.gravityMPerS2;
     this.broadPhase = parameters.broadPhase;
+    this.nearMissDepthFraction = parameters.nearMissDepthFraction;
     this.wallCount = parameters.walls.length;
     this.wallNormalX.length = 0;
     this.wallNormalY.length = 0;
@@ -413,7 +421,7 @@ export class ContactField implements ForceField {
     const closestX = previousDx + along * stepX;
     const closestY = previousDy + along * stepY;
     const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
-    const depthLimit = Math.sqrt(contactDistanceSquared) - SKIPPED_CONTACT_DEPTH_FRACTION * smallerRadius;
+    const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
     if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
   }
 
@@ -428,7 +436,7 @@ export class ContactField implements ForceField {
     else if (along > 1) along = 1;
     const closestX = startX + along * stepX;
     const closestY = startY + along * stepY;
-    const depthLimit = contactDistance - SKIPPED_CONTACT_DEPTH_FRACTION * (radiusA < radiusB ? radiusA : radiusB);
+    const depthLimit = contactDistance - this.nearMissDepthFraction * (radiusA < radiusB ? radiusA : radiusB);
     return closestX * closestX + closestY * closestY < depthLimit * depthLimit;
   }
 

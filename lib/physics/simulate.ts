@@ -18,6 +18,7 @@ import {
   DAMPING_DIMENSIONLESS,
   DAMPING_NONE,
   FIRST_CONTACT_ENDED,
+  SKIPPED_CONTACT_DEPTH_FRACTION,
   TUNNEL_CENTRES_CROSSED,
   TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
   TUNNEL_NONE,
@@ -72,6 +73,7 @@ export function createContactField(
     walls,
     gravityMPerS2,
     broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
+    nearMissDepthFraction: (scenario.verdictRules ?? 1) >= 2 ? SKIPPED_CONTACT_DEPTH_FRACTION : 0,
   };
   if (!reuse) return new ContactField(parameters);
   reusedField.configure(parameters);
@@ -88,6 +90,7 @@ const reusedField = new ContactField({
   walls: [],
   gravityMPerS2: 0,
   broadPhase: BROAD_PHASE_ALL_PAIRS,
+  nearMissDepthFraction: 0,
 });
 
 export function simulate(scenario: Scenario, options: RunOptions = {}): RunResult {
