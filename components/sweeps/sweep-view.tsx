@@ -426,8 +426,8 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
   return (
     <Card title="Safe envelope">
       <p className="mb-3 text-sm text-ink-muted">
-        For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable, reduced by the
-        margin. Export it for your game&apos;s config.
+        For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable (safe),
+        then the limit: {bound === "max" ? "(1 − margin) × safe" : "safe ÷ (1 − margin)"}. A row waits (pending) while a cell of its walk is not computed. Export it for your game&apos;s config.
         {otherAxes.length > 0 ? " Any other axis is held at the value chosen below." : ""}
       </p>
       <div className="grid gap-3 md:grid-cols-4">
@@ -549,7 +549,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
                 {envelope.data.rows.map((row) => (
                   <tr key={row.x}>
                     <td className="py-0.5">{formatSI(row.x, xAxisView.unit)}</td>
-                    <td className="py-0.5">{row.yLimit === null ? "none stable" : formatSI(row.yLimit, yAxisView.unit)}</td>
+                    <td className="py-0.5">{row.status === "pending" ? "pending (cells not computed yet)" : row.yLimit === null ? "none stable" : formatSI(row.yLimit, yAxisView.unit)}</td>
                   </tr>
                 ))}
               </tbody>
