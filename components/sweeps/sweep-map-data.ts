@@ -193,3 +193,22 @@ export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string):
   }
   return overlays;
 }
+
+/**
+ * Why two maps of an integrator axis can be the same: without damping and without gravity, symplectic
+ * Euler and velocity Verlet take the bodies through the same positions step for step (both satisfy
+ * x_{n+1} − 2x_n + x_{n−1} = h²·a(x_n), and from a force-free start the first steps agree), so
+ * contacts, overlaps and verdicts coincide. Returns the note to show when the two compared values are
+ * those integrators, the contact is undamped, there is no gravity and the verdict maps are identical.
+ */
+export function identicalIntegratorsNote(spec: SweepSpecInput, axisPath: string, aValue: unknown, bValue: unknown, aVerdicts: readonly (Verdict | null)[], bVerdicts: readonly (Verdict | null)[]): string | null {
+  if (axisPath !== "integrator") return null;
+  const pair = new Set([aValue, bValue]);
+  if (!(pair.has("symplectic-euler") && pair.has("velocity-verlet"))) return null;
+  const damping = spec.scenario.contact.damping ?? { kind: "none" };
+  const undamped = damping.kind === "none" || (damping.kind === "coefficient" && damping.value === 0) || (damping.kind === "restitution" && damping.value === 1);
+  const scene = spec.scenario.scene as { gravityMPerS2?: number };
+  if (!undamped || (scene.gravityMPerS2 ?? 0) !== 0) return null;
+  if (aVerdicts.length !== bVerdicts.length || aVerdicts.some((verdict, i) => verdict !== bVerdicts[i])) return null;
+  return "The two maps are identical because the contact is undamped: without damping (and gravity) symplectic Euler and velocity Verlet move the bodies through the same positions step for step. Damp the contact (a restitution below 1) to see them differ.";
+}

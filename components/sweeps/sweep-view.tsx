@@ -16,7 +16,7 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatMinutes, isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
+import { METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 
 type ViewMode = "single" | "compare" | "grid";
@@ -333,7 +333,14 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           const bPosition = aPosition === 0 ? 1 : 0;
           const a = layerAt(withSlice(compareAxis, aPosition));
           const b = layerAt(withSlice(compareAxis, bPosition));
+          const sameNote = identicalIntegratorsNote(sweep.spec, sweep.axes[compareAxis].path, sweep.axes[compareAxis].values[aPosition], sweep.axes[compareAxis].values[bPosition], a.verdicts, b.verdicts);
           return (
+            <>
+            {sameNote ? (
+              <p className="mb-2 text-sm" role="note">
+                {sameNote}
+              </p>
+            ) : null}
             <CompareMaps
               x={x}
               y={y}
@@ -342,6 +349,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
               overlays={overlays}
               onCellClick={(mapIndex) => onOpenCell(a.indices[mapIndex])}
             />
+            </>
           );
         })()
       ) : effectiveMode === "grid" ? (
