@@ -17,11 +17,14 @@ const AXES = [
 ];
 
 const VERDICTS = [
-  { name: "stable", colour: "var(--kd-verdict-stable)", text: "Energy stays within tolerance and overlap stays shallow." },
-  { name: "energy-drift", colour: "var(--kd-verdict-drift)", text: "The contact gains or loses energy it should not: bounces grow or die too soon." },
+  { name: "stable", colour: "var(--kd-verdict-stable)", text: "Energy, rebound and overlap stay within tolerance, and every contact is resolved in enough steps." },
+  { name: "coarse-contact", colour: "var(--kd-verdict-coarse)", text: "A contact took too few steps, or its energy spiked inside it: the result hangs on luck." },
+  { name: "energy-drift", colour: "var(--kd-verdict-drift)", text: "The scene as a whole gained energy over the run (or lost it with no damping to explain it)." },
+  { name: "restitution-off", colour: "var(--kd-verdict-restitution)", text: "A bounce came out livelier or deader than the restitution you asked for." },
   { name: "deep-overlap", colour: "var(--kd-verdict-overlap)", text: "Bodies sink further into each other than your tolerance allows." },
   { name: "tunneled", colour: "var(--kd-verdict-tunneled)", text: "A body passed through the collider between two steps." },
-  { name: "exploded", colour: "var(--kd-verdict-exploded)", text: "The step diverged: velocities blew up within the run." },
+  { name: "step-unstable", colour: "var(--kd-verdict-step)", text: "The step is past what the contact's stiffness allows (ω·h ≥ 2), or a contact threw bodies apart far faster than they came." },
+  { name: "exploded", colour: "var(--kd-verdict-exploded)", text: "The run blew up: energy grew a thousand-fold or became non-finite." },
 ];
 
 const STEPS = [

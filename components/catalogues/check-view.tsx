@@ -21,7 +21,16 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguePath, checkPath, type CheckView as CheckViewData } from "./catalogue-api";
 
-const VERDICT_WORDS: Record<Verdict, string> = { stable: "stable", "energy-drift": "energy drift", "deep-overlap": "deep overlap (sinks)", tunneled: "tunnels", exploded: "explodes" };
+const VERDICT_WORDS: Record<Verdict, string> = {
+  stable: "stable",
+  "coarse-contact": "coarse contact (too few steps)",
+  "energy-drift": "energy drift",
+  "restitution-off": "restitution off target",
+  "deep-overlap": "deep overlap (sinks)",
+  tunneled: "tunnels",
+  "step-unstable": "step unstable",
+  exploded: "explodes",
+};
 
 function fmt(value: number | null, digits = 3): string {
   if (value === null || !Number.isFinite(value)) return "—";

@@ -263,6 +263,12 @@ export function traceGlyph(ctx: CanvasRenderingContext2D, glyph: GlyphName, cx: 
       ctx.moveTo(cx - s * 0.6, cy);
       ctx.lineTo(cx + s * 0.6, cy);
       break;
+    case "zigzag":
+      ctx.moveTo(cx - s * 0.6, cy + s * 0.3);
+      ctx.lineTo(cx - s * 0.2, cy - s * 0.3);
+      ctx.lineTo(cx + s * 0.2, cy + s * 0.3);
+      ctx.lineTo(cx + s * 0.6, cy - s * 0.3);
+      break;
     case "none":
       break;
   }

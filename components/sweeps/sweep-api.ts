@@ -36,7 +36,7 @@ export interface Envelope {
   yPath: string;
   margin: number;
   bound: "max" | "min";
-  rows: { x: number; yLimit: number | null }[];
+  rows: { x: number; safeY: number | null; yLimit: number | null; status: "ok" | "none-stable" | "pending" }[];
 }
 
 export const sweepsPath = (studioId: string) => `${studioApiPath(studioId)}/sweeps`;

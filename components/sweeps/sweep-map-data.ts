@@ -16,6 +16,8 @@ export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: 
   // 0 … 1: an overlap as deep as the radius is the top colour; blown-up cells far beyond it would
   // otherwise squeeze every useful cell into the bottom of the scale.
   { key: "maxOverlapFraction", label: "deepest overlap / smaller radius", unit: "", normalisation: "linear", domain: [0, 1] },
+  { key: "maxOmegaH", label: "largest ω·h in contact", unit: "", normalisation: "log" },
+  { key: "amplification", label: "rebound / model's restitution", unit: "", normalisation: "log" },
   { key: "effectiveRestitution", label: "measured restitution", unit: "", normalisation: "linear" },
   { key: "contactDurationS", label: "first contact duration", unit: "s", normalisation: "log" },
   { key: "contactSteps", label: "steps in contact", unit: "steps", normalisation: "linear" },
@@ -76,21 +78,38 @@ export interface LayerData {
 }
 
 /** The map's per-cell data: NaN / null for cells not done yet; null metrics (no value) as null. */
-export function layerData(indices: Int32Array, cellsByIndex: ReadonlyMap<number, CellRow>, metric: keyof Metrics | null): { verdicts: (Verdict | null)[]; reasons: (string | null)[]; values: (number | null)[] } {
+/**
+ * The hover line on what the integrator did to the contacts: the largest ω·h and the rebound against
+ * the model (null when the cell has neither, e.g. no contact, or a result stored before they were measured).
+ */
+export function dynamicsLine(metrics: Metrics): string | null {
+  const parts: string[] = [];
+  if (typeof metrics.maxOmegaH === "number") parts.push(`ω·h up to ${Number(metrics.maxOmegaH.toPrecision(3))}`);
+  if (typeof metrics.amplification === "number") parts.push(`rebound ${Number(metrics.amplification.toPrecision(3))}× the model's`);
+  return parts.length ? parts.join(" · ") : null;
+}
+
+export function layerData(
+  indices: Int32Array,
+  cellsByIndex: ReadonlyMap<number, CellRow>,
+  metric: keyof Metrics | null,
+): { verdicts: (Verdict | null)[]; reasons: (string | null)[]; values: (number | null)[]; dynamics: (string | null)[] } {
   const verdicts: (Verdict | null)[] = [];
   const reasons: (string | null)[] = [];
   const values: (number | null)[] = [];
+  const dynamics: (string | null)[] = [];
   for (const index of indices) {
     const cell = cellsByIndex.get(index);
     verdicts.push(cell ? cell.verdict : null);
     reasons.push(cell ? cell.reason : null);
+    dynamics.push(cell ? dynamicsLine(cell.metrics) : null);
     if (!cell || metric === null) values.push(Number.NaN);
     else {
       const value = cell.metrics[metric];
       values.push(typeof value === "number" && Number.isFinite(value) ? value : typeof value === "boolean" ? Number(value) : null);
     }
   }
-  return { verdicts, reasons, values };
+  return { verdicts, reasons, values, dynamics };
 }
 
 function contactMass(spec: SweepSpecInput): number | null {
@@ -174,4 +193,23 @@ export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string):
     });
   }
   return overlays;
+}
+
+/**
+ * Why two maps of an integrator axis can be the same: without damping and without gravity, symplectic
+ * Euler and velocity Verlet take the bodies through the same positions step for step (both satisfy
+ * x_{n+1} − 2x_n + x_{n−1} = h²·a(x_n), and from a force-free start the first steps agree), so
+ * contacts, overlaps and verdicts coincide. Returns the note to show when the two compared values are
+ * those integrators, the contact is undamped, there is no gravity and the verdict maps are identical.
+ */
+export function identicalIntegratorsNote(spec: SweepSpecInput, axisPath: string, aValue: unknown, bValue: unknown, aVerdicts: readonly (Verdict | null)[], bVerdicts: readonly (Verdict | null)[]): string | null {
+  if (axisPath !== "integrator") return null;
+  const pair = new Set([aValue, bValue]);
+  if (!(pair.has("symplectic-euler") && pair.has("velocity-verlet"))) return null;
+  const damping = spec.scenario.contact.damping ?? { kind: "none" };
+  const undamped = damping.kind === "none" || (damping.kind === "coefficient" && damping.value === 0) || (damping.kind === "restitution" && damping.value === 1);
+  const scene = spec.scenario.scene as { gravityMPerS2?: number };
+  if (!undamped || (scene.gravityMPerS2 ?? 0) !== 0) return null;
+  if (aVerdicts.length !== bVerdicts.length || aVerdicts.some((verdict, i) => verdict !== bVerdicts[i])) return null;
+  return "The two maps are identical because the contact is undamped: without damping (and gravity) symplectic Euler and velocity Verlet move the bodies through the same positions step for step. Damp the contact (a restitution below 1) to see them differ.";
 }

@@ -18,7 +18,7 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { METRIC_LAYERS, SINGLE_ROW_AXIS, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
+import { METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 
 type ViewMode = "single" | "compare" | "grid";
@@ -356,7 +356,14 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           const bPosition = aPosition === 0 ? 1 : 0;
           const a = layerAt(withSlice(compareAxis, aPosition));
           const b = layerAt(withSlice(compareAxis, bPosition));
+          const sameNote = identicalIntegratorsNote(sweep.spec, sweep.axes[compareAxis].path, sweep.axes[compareAxis].values[aPosition], sweep.axes[compareAxis].values[bPosition], a.verdicts, b.verdicts);
           return (
+            <>
+            {sameNote ? (
+              <p className="mb-2 text-sm" role="note">
+                {sameNote}
+              </p>
+            ) : null}
             <CompareMaps
               x={x}
               y={y}
@@ -365,6 +372,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
               overlays={overlays}
               onCellClick={(mapIndex) => onOpenCell(a.indices[mapIndex])}
             />
+            </>
           );
         })()
       ) : effectiveMode === "grid" ? (
@@ -391,6 +399,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           layer={single.layer}
           verdicts={single.verdicts}
           reasons={single.reasons}
+          extraLines={(mapIndex) => (single.dynamics[mapIndex] ? [single.dynamics[mapIndex] as string] : [])}
           overlays={overlays}
           showLegend
           exportFileName={`sweep-${sweep.id}-map`}
@@ -451,8 +460,8 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
   return (
     <Card title="Safe envelope">
       <p className="mb-3 text-sm text-ink-muted">
-        For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable, reduced by the
-        margin. Export it for your game&apos;s config.
+        For each value of the first axis, the {bound === "max" ? "largest" : "smallest"} value of the second axis up to which every cell from the start of the axis is stable (safe),
+        then the limit: {bound === "max" ? "(1 − margin) × safe" : "safe ÷ (1 − margin)"}. A row waits (pending) while a cell of its walk is not computed. Export it for your game&apos;s config.
         {otherAxes.length > 0 ? " Any other axis is held at the value chosen below." : ""}
       </p>
       <div className="grid gap-3 md:grid-cols-4">
@@ -574,7 +583,7 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
                 {envelope.data.rows.map((row) => (
                   <tr key={row.x}>
                     <td className="py-0.5">{formatParameterValue(xAxisView.path, row.x, xAxisView.unit)}</td>
-                    <td className="py-0.5">{row.yLimit === null ? "none stable" : formatParameterValue(yAxisView.path, row.yLimit, yAxisView.unit)}</td>
+                    <td className="py-0.5">{row.status === "pending" ? "pending (cells not computed yet)" : row.yLimit === null ? "none stable" : formatParameterValue(yAxisView.path, row.yLimit, yAxisView.unit)}</td>
                   </tr>
                 ))}
               </tbody>

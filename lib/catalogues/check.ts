@@ -19,7 +19,7 @@ import {
 } from "../physics/analytic";
 import { linearDampingRatioForRestitution } from "../physics/damping";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
-import { VERDICTS, type Verdict } from "../physics/types";
+import { VERDICT_PRECEDENCE, VERDICTS, type Verdict } from "../physics/types";
 import { formatLimit, numericRule, rangeViolation, SPEC_LIMITS } from "../sweeps/parameters";
 import type { CellResult } from "../sweeps/results";
 import type { AxisPair, SweepSpecInput } from "../sweeps/spec";
@@ -65,7 +65,8 @@ export const checkSettingsSchema = z.strictObject({
     .default(() => [0, 0.6]),
   /**
    * Verdict tolerances of the check's cells. Defaults for game contacts (common practice): the
-   * measured restitution within 0.1 of the target (energy 10 %), overlap up to 10 % of the smaller radius.
+   * measured restitution within 10 % of the target (relative, either way; energyDriftRel is used for
+   * both), overlap up to 10 % of the smaller radius.
    */
   tolerances: z
     .strictObject({
@@ -221,7 +222,9 @@ export function checkSpec(catalogueName: string, version: number, objects: reado
       dtS: settings.dtS,
       substeps: settings.substeps,
       durationS,
-      tolerances: { ...DEFAULT_TOLERANCES, ...settings.tolerances },
+      // The check's energy tolerance also bounds the rebound (verdict rules 2 judge it relative to
+      // the target restitution): one number for "how far off may a bounce be" in the check's settings.
+      tolerances: { ...DEFAULT_TOLERANCES, ...settings.tolerances, restitutionRel: settings.tolerances.energyDriftRel },
     },
     axes: [
       { parameter: "scene.pair", values: pairs.map((pair) => pair.name), pairs: axisPairs },
@@ -334,7 +337,7 @@ export function recommend(objects: readonly CatalogueObject[], settings: CheckSe
 
 /** Verdicts from worst to best (the engine's precedence). */
 export function verdictRank(verdict: Verdict): number {
-  return VERDICTS.indexOf(verdict);
+  return VERDICT_PRECEDENCE.indexOf(verdict);
 }
 
 export interface PairSummary {

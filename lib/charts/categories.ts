@@ -2,14 +2,14 @@
  * Categorical map styles: the verdict palette and glyphs, and the comparison categories of a
  * verdict difference map (A vs B).
  *
- * The palette is Kickdrift's own. Lightness falls monotonically with severity (CIE L* 91, 79, 63,
- * 44, 25 for stable → exploded), so the map reads in greyscale and for every kind of colour
+ * The palette is Kickdrift's own. Lightness falls monotonically with severity (CIE L* 91, 81, 71,
+ * 61, 51, 42, 33, 25 for stable → exploded; neighbours differ by a luminance ratio above 1.3), so the map reads in greyscale and for every kind of colour
  * vision; hue adds a second cue, and each category has its own glyph for when colour is not
  * available at all. Colours were chosen in CIE LCh and converted to sRGB with lib/charts/color.ts.
  */
 import type { Verdict } from "../physics/types";
 
-export type GlyphName = "dot" | "slash" | "backslash" | "ring" | "chevron" | "cross" | "bar" | "none";
+export type GlyphName = "dot" | "slash" | "backslash" | "ring" | "chevron" | "cross" | "bar" | "zigzag" | "none";
 
 export interface CategoryStyle {
   /** Stable key (verdict name, comparison name). */
@@ -21,14 +21,17 @@ export interface CategoryStyle {
 }
 
 /** Verdicts from least to most severe (the reverse of the engine's precedence list). */
-export const VERDICTS_BY_SEVERITY: readonly Verdict[] = ["stable", "energy-drift", "deep-overlap", "tunneled", "exploded"];
+export const VERDICTS_BY_SEVERITY: readonly Verdict[] = ["stable", "coarse-contact", "energy-drift", "restitution-off", "deep-overlap", "tunneled", "step-unstable", "exploded"];
 
 export const VERDICT_STYLES: Record<Verdict, CategoryStyle> = {
   stable: { key: "stable", label: "Stable", colour: "#b9f1dd", glyph: "dot" },
-  "energy-drift": { key: "energy-drift", label: "Energy drift", colour: "#e7bf4a", glyph: "slash" },
-  "deep-overlap": { key: "deep-overlap", label: "Deep overlap", colour: "#e57d3e", glyph: "ring" },
-  tunneled: { key: "tunneled", label: "Tunneled", colour: "#725aaa", glyph: "chevron" },
-  exploded: { key: "exploded", label: "Exploded", colour: "#72182a", glyph: "cross" },
+  "coarse-contact": { key: "coarse-contact", label: "Coarse contact", colour: "#c5d079", glyph: "bar" },
+  "energy-drift": { key: "energy-drift", label: "Energy drift", colour: "#d4a83a", glyph: "slash" },
+  "restitution-off": { key: "restitution-off", label: "Restitution off", colour: "#dd793c", glyph: "backslash" },
+  "deep-overlap": { key: "deep-overlap", label: "Deep overlap", colour: "#ce5042", glyph: "ring" },
+  tunneled: { key: "tunneled", label: "Tunneled", colour: "#585ca7", glyph: "chevron" },
+  "step-unstable": { key: "step-unstable", label: "Step unstable", colour: "#892463", glyph: "zigzag" },
+  exploded: { key: "exploded", label: "Exploded", colour: "#701a2e", glyph: "cross" },
 };
 
 /** The verdict categories in severity order, as the map's category list (code i ↔ entry i). */

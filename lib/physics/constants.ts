@@ -1,15 +1,43 @@
 import type { Tolerances } from "./types";
 
 /**
- * Default verdict tolerances (common practice for tuning game contacts, not derived from a source):
- * 1 % energy change, overlap up to 10 % of the smaller radius, and a thousand-fold energy growth
- * treated as a blow-up.
+ * Default verdict tolerances, each with its basis (docs/sweep-spec.md "Verdict rules" repeats them):
+ * - energyDriftRel 0.01: common practice in games (a scene may gain 1 % of its energy over a run
+ *   before a player sees things speed up); our choice, not from a published source.
+ * - maxOverlapFraction 0.1: common practice in games (a sink of a tenth of the smaller radius is
+ *   where discs start to look interpenetrated on screen); our choice. Engineering DEM keeps overlaps
+ *   far smaller, and a spec may lower it.
+ * - blowUpEnergyFactor 1000: common practice (a thousand-fold energy growth is a blow-up whatever
+ *   the scene); the run stops there.
+ * - amplificationLimit 2: our choice. A contact that sends the bodies apart more than twice as fast
+ *   as the model's restitution says (four times the rebound energy) reads as an explosion in a game.
+ *   On the one-sided linear contact, symplectic Euler and velocity Verlet reach it only within about
+ *   15 % of ω·h = 2 (measured: worst rebound 1.89 at ω·h = 1.7, 2.24 at 1.8; tests/unit/physics/
+ *   step-stability.test.ts), so the amplification and the ω·h bound agree to within a grid cell.
+ * - restitutionRel 0.05: our choice (common practice in games: a bounce within ±5 % of the tuned
+ *   speed, ±10 % of its energy, is not told apart in play). Relative, checked in both directions.
+ * - energyPeakRel 0.5: our choice; the staggered energy symplectic Euler shows inside a contact
+ *   peaks about ω·h/2 above the start (measured 0.50 at ω·h = 1), so 0.5 matches minStepsPerContact.
+ * - minStepsPerContact 3: common practice in games (fewer than three steps cannot show compression
+ *   and release; engineering DEM resolves a contact in tens of steps, from memory); our choice. A linear contact lasts π/ω, about 3 steps at ω·h = 1.
  */
-export const DEFAULT_TOLERANCES: Readonly<Tolerances> = Object.freeze({
+export const DEFAULT_TOLERANCES: Readonly<Required<Tolerances>> = Object.freeze({
   energyDriftRel: 0.01,
   maxOverlapFraction: 0.1,
   blowUpEnergyFactor: 1e3,
+  amplificationLimit: 2,
+  restitutionRel: 0.05,
+  energyPeakRel: 0.5,
+  minStepsPerContact: 3,
 });
+
+/**
+ * ω·h at and above which a contact is "step-unstable" (verdict rules 2): the linear stability bound
+ * of symplectic Euler and velocity (Störmer–)Verlet on the harmonic oscillator, whose one-step
+ * matrix has trace 2 − (ω·h)² and determinant 1, so its eigenvalues leave the unit circle when
+ * |2 − (ω·h)²| > 2 (Hairer, Lubich & Wanner, Geometric Numerical Integration, 2nd ed., 2006).
+ */
+export const STEP_STABILITY_LIMIT_OMEGA_H = 2;
 
 /** Scenes with at most this many bodies (and no gravity) skip free flight analytically. */
 export const MAX_BODIES_FOR_FREE_FLIGHT_JUMPS = 64;

@@ -43,6 +43,13 @@ export const TUNNEL_CENTRES_CROSSED = 2;
 export const TUNNEL_SKIPPED_CONTACT = 3;
 export const TUNNEL_THROUGH_WALL = 4;
 
+/**
+ * Depth, as a fraction of the smaller radius, by which a step's straight-line relative motion must
+ * cut into contact before a contact counts as skipped (our choice: far above rounding and the
+ * chord error of a resting pile, far below any pass-through; see checkSkippedContact).
+ */
+export const SKIPPED_CONTACT_DEPTH_FRACTION = 1e-3;
+
 export const FIRST_CONTACT_PENDING = 0;
 export const FIRST_CONTACT_ACTIVE = 1;
 export const FIRST_CONTACT_ENDED = 2;
@@ -65,6 +72,12 @@ export interface ContactFieldParameters {
   walls: readonly Wall[];
   gravityMPerS2: number;
   broadPhase: typeof BROAD_PHASE_ALL_PAIRS | typeof BROAD_PHASE_GRID;
+  /**
+   * Depth (fraction of the smaller radius) a step's straight-line motion must cut into contact to
+   * count as a skipped contact or an entry past the closest approach: SKIPPED_CONTACT_DEPTH_FRACTION
+   * under verdict rules 2, 0 under rules 1 (so re-run cells of stored sweeps match their other cells).
+   */
+  nearMissDepthFraction: number;
 }
 
 const EMPTY_INDICES = new Int32Array(0);
@@ -77,6 +90,7 @@ export class ContactField implements ForceField {
   dampingValue = 0;
   gravityMPerS2 = 0;
   broadPhase = 0;
+  nearMissDepthFraction = 0;
   private readonly wallNormalX: number[] = [];
   private readonly wallNormalY: number[] = [];
   private readonly wallOffset: number[] = [];
@@ -89,6 +103,10 @@ export class ContactField implements ForceField {
   maxOverlapM = 0;
   wallForceXN = 0;
   wallForceYN = 0;
+  /** Largest K/m_eff (1/s²) of any contact this pass: K the contact's current stiffness (k, or dF/dδ for Hertz). */
+  maxOmegaSquared = 0;
+  /** Stiffness K (N/m) of the contact whose force was evaluated last (set by normalForce). */
+  private lastStiffnessNPerM = 0;
 
   // First tunnel seen (sticky).
   tunnelKind = TUNNEL_NONE;
@@ -146,6 +164,7 @@ export class ContactField implements ForceField {
     this.dampingValue = parameters.dampingValue;
     this.gravityMPerS2 = parameters.gravityMPerS2;
     this.broadPhase = parameters.broadPhase;
+    this.nearMissDepthFraction = parameters.nearMissDepthFraction;
     this.wallCount = parameters.walls.length;
     this.wallNormalX.length = 0;
     this.wallNormalY.length = 0;
@@ -161,6 +180,7 @@ export class ContactField implements ForceField {
     this.maxOverlapM = 0;
     this.wallForceXN = 0;
     this.wallForceYN = 0;
+    this.maxOmegaSquared = 0;
     this.tunnelKind = TUNNEL_NONE;
     this.tunnelBodyA = -1;
     this.tunnelBodyB = -1;
@@ -197,6 +217,7 @@ export class ContactField implements ForceField {
     this.maxOverlapM = 0;
     this.wallForceXN = 0;
     this.wallForceYN = 0;
+    this.maxOmegaSquared = 0;
     this.tunnelDetectedThisPass = false;
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
@@ -342,8 +363,11 @@ export class ContactField implements ForceField {
       this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
     }
     if (previousDistanceSquared >= contactDistanceSquared) {
-      // New contact: entering it while already receding means the step jumped past the approach.
-      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0) this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+      // New contact: entering it while already receding means the step jumped past the approach,
+      // unless the approach it jumped past only grazed contact (see checkSkippedContact).
+      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radius[i], radius[j], contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+        this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+      }
     } else if (dx * previousDx + dy * previousDy <= 0) {
       this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
     }
@@ -353,6 +377,8 @@ export class ContactField implements ForceField {
     const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
     const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
     const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const omegaSquared = this.lastStiffnessNPerM / reducedMass;
+    if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
     const pushX = force > 0 ? force * normalX : 0;
     const pushY = force > 0 ? force * normalY : 0;
     const { fx, fy } = bodies;
@@ -372,8 +398,17 @@ export class ContactField implements ForceField {
     }
   }
 
+  /**
+   * A skipped contact: neither end of the step overlaps, but the straight line between them comes
+   * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
+   * The tolerance keeps near misses out: in a resting pile neighbours sit nanometres apart, and the
+   * chord between two step ends of a curved (accelerated) path dips below the true path by up to
+   * |Δv|·h/8, so a straight line that grazes contact by that much is no body passing another.
+   * A body that does pass through another misses by (1 − f) of the sum of radii (f the impact
+   * offset), so only passes within 1/1000 of a radius of grazing are no longer called tunnels.
+   */
   private checkSkippedContact(bodies: Bodies, i: number, j: number, dx: number, dy: number, contactDistanceSquared: number): void {
-    const { previousX, previousY } = bodies;
+    const { previousX, previousY, radius } = bodies;
     const previousDx = previousX[j] - previousX[i];
     const previousDy = previousY[j] - previousY[i];
     if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return; // contact ended this step
@@ -385,7 +420,24 @@ export class ContactField implements ForceField {
     if (along <= 0 || along >= 1) return;
     const closestX = previousDx + along * stepX;
     const closestY = previousDy + along * stepY;
-    if (closestX * closestX + closestY * closestY < contactDistanceSquared) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
+    const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
+    if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+  }
+
+  /**
+   * Whether the straight-line relative motion of a step (from (startX, startY) by (stepX, stepY))
+   * came closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
+   */
+  private passedDeeperThanTolerance(radiusA: number, radiusB: number, contactDistance: number, startX: number, startY: number, stepX: number, stepY: number): boolean {
+    const stepSquared = stepX * stepX + stepY * stepY;
+    let along = stepSquared > 0 ? -(startX * stepX + startY * stepY) / stepSquared : 0;
+    if (along < 0) along = 0;
+    else if (along > 1) along = 1;
+    const closestX = startX + along * stepX;
+    const closestY = startY + along * stepY;
+    const depthLimit = contactDistance - this.nearMissDepthFraction * (radiusA < radiusB ? radiusA : radiusB);
+    return closestX * closestX + closestY * closestY < depthLimit * depthLimit;
   }
 
   private walls(bodies: Bodies): void {
@@ -401,6 +453,8 @@ export class ContactField implements ForceField {
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
         const force = this.normalForce(overlap, overlapRate, mass[i], radius[i]);
+        const omegaSquared = this.lastStiffnessNPerM / mass[i];
+        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
         if (force > 0) {
           fx[i] += force * normalX;
           fy[i] += force * normalY;
@@ -428,6 +482,7 @@ export class ContactField implements ForceField {
     const magnitude = overlap < 0 ? -overlap : overlap;
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
+      this.lastStiffnessNPerM = k;
       if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
       return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
@@ -441,6 +496,8 @@ export class ContactField implements ForceField {
     }
     const root = Math.sqrt(magnitude);
     const springMagnitude = k * magnitude * root;
+    // dF/dδ of k_H·δ^{3/2}: the local stiffness that sets the contact's frequency at this overlap.
+    this.lastStiffnessNPerM = 1.5 * k * root;
     if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
     return (overlap >= 0 ? springMagnitude : -springMagnitude) + this.dampingCoefficient(reducedMass, k) * Math.sqrt(root) * overlapRate;
   }

@@ -4,6 +4,7 @@
  * metrics (no clocks, no Math.random, no dependence on object iteration order).
  */
 import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict, WorkCounts } from "./types";
+import { DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
 import { buildScene } from "./scenes";
 import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
 import { primeForces, stepFunctionFor } from "./integrators";
@@ -17,6 +18,7 @@ import {
   DAMPING_DIMENSIONLESS,
   DAMPING_NONE,
   FIRST_CONTACT_ENDED,
+  SKIPPED_CONTACT_DEPTH_FRACTION,
   TUNNEL_CENTRES_CROSSED,
   TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
   TUNNEL_NONE,
@@ -72,6 +74,7 @@ export function createContactField(
     walls,
     gravityMPerS2,
     broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
+    nearMissDepthFraction: (scenario.verdictRules ?? 1) >= 2 ? SKIPPED_CONTACT_DEPTH_FRACTION : 0,
   };
   if (!reuse) return new ContactField(parameters);
   reusedField.configure(parameters);
@@ -88,6 +91,7 @@ const reusedField = new ContactField({
   walls: [],
   gravityMPerS2: 0,
   broadPhase: BROAD_PHASE_ALL_PAIRS,
+  nearMissDepthFraction: 0,
 });
 
 export function simulate(scenario: Scenario, options: RunOptions = {}): RunResult {
@@ -130,6 +134,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   let energy = startEnergy;
   let maxEnergyErrorRel = 0;
   let maxOverlapFraction = field.maxOverlapFraction;
+  let maxOmegaSquared = field.maxOmegaSquared;
   let contactSteps = 0;
   let exploded = false;
   let explodedAtS = 0;
@@ -176,6 +181,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
     if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
+    if (field.maxOmegaSquared > maxOmegaSquared) maxOmegaSquared = field.maxOmegaSquared;
     if (field.overlappingContacts > 0) contactSteps++;
     if (field.tunnelDetectedThisPass && tunnelAtS < 0) tunnelAtS = n * h;
 
@@ -203,6 +209,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     }
   }
 
+  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
+  const isolatedScene = scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
   const endMomentumX = totalMomentumXNs(bodies);
   const endMomentumY = totalMomentumYNs(bodies);
   const metrics: Metrics = {
@@ -217,9 +225,12 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     tunneled: field.tunnelKind !== TUNNEL_NONE,
     exploded,
     steps: n,
+    maxOmegaH: contactSteps > 0 || maxOmegaSquared > 0 ? Math.sqrt(maxOmegaSquared) * h : null,
+    // Only an isolated binary contact (pair, wall) has a rebound to compare with the model's: in a
+    // row or a box the first contact's bodies are pushed by neighbours while it lasts.
+    amplification: isolatedScene && effectiveRestitution !== null && expected !== null && expected > 0 ? Math.abs(effectiveRestitution) / expected : null,
   };
 
-  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
   const { verdict, reason } = judge(metrics, scenario, {
     explodedAtS,
     energy,
@@ -229,6 +240,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     tunnelBodyA: field.tunnelBodyA,
     tunnelBodyB: field.tunnelBodyB,
     expectedRestitution: expected,
+    stepS: h,
   });
   const work: WorkCounts = {
     bodies: bodies.count,
@@ -310,10 +322,18 @@ export interface VerdictContext {
   tunnelBodyA: number;
   tunnelBodyB: number;
   expectedRestitution: number | null;
+  /** Integrator step h (s); verdict rules 2 count a contact's steps as its duration / h. */
+  stepS?: number;
+}
+
+/** The verdict of a run by the rules its scenario names (`verdictRules`, absent: 1). */
+export function judge(metrics: Metrics, scenario: Scenario, context: VerdictContext): { verdict: Verdict; reason: string } {
+  return (scenario.verdictRules ?? 1) >= 2 ? judgeByRules2(metrics, scenario, context) : judgeByRules1(metrics, scenario, context);
 }
 
 /**
- * Verdict by precedence exploded → tunneled → deep-overlap → energy-drift → stable.
+ * Verdict rules 1 (kept unchanged so re-run chunks of sweeps stored before versioning get the
+ * verdicts their other cells have). Precedence exploded → tunneled → deep-overlap → energy-drift → stable.
  * Energy-drift: the run ends with more energy than it started with by more than energyDriftRel;
  * for undamped contacts also with less (nothing should dissipate); and for any first contact whose
  * measured restitution exceeds the model's target by more than energyDriftRel. Excursions during a
@@ -321,7 +341,7 @@ export interface VerdictContext {
  * reported but does not decide the verdict unless it reaches the blow-up factor. The restitution
  * check applies to the pair and wall scenes, whose first contact is an isolated binary impact.
  */
-export function judge(metrics: Metrics, scenario: Scenario, context: VerdictContext): { verdict: Verdict; reason: string } {
+export function judgeByRules1(metrics: Metrics, scenario: Scenario, context: VerdictContext): { verdict: Verdict; reason: string } {
   const tolerances = scenario.tolerances;
   if (metrics.exploded) {
     const reason = Number.isFinite(context.energy)
@@ -356,6 +376,79 @@ export function judge(metrics: Metrics, scenario: Scenario, context: VerdictCont
   }
   const contactNote = metrics.contactSteps > 0 ? `, overlap up to ${formatPercent(metrics.maxOverlapFraction)} of the smaller radius` : ", no contact";
   return { verdict: "stable", reason: `energy changed ${formatSignedPercent(metrics.energyErrorRel)}${contactNote}` };
+}
+
+/**
+ * Verdict rules 2 (docs/sweep-spec.md "Verdict rules"). Precedence:
+ *  exploded        non-finite state, or energy above blowUpEnergyFactor × start (the run stopped);
+ *  step-unstable   a contact was integrated at ω·h ≥ 2, the symplectic integrators' stability bound,
+ *                  or an isolated contact (pair, wall) rebounded faster than amplificationLimit × the
+ *                  model's restitution: the integrator, not the model, decided the bounce;
+ *  tunneled, deep-overlap   as in rules 1;
+ *  restitution-off an isolated contact's rebound off the model's restitution by more than
+ *                  restitutionRel, relative, either way;
+ *  energy-drift    the scene ended with more energy than it started with (by energyDriftRel), or
+ *                  without damping with less;
+ *  coarse-contact  the first contact took fewer than minStepsPerContact steps, or the energy inside
+ *                  a contact peaked more than energyPeakRel above the start;
+ *  stable.
+ */
+export function judgeByRules2(metrics: Metrics, scenario: Scenario, context: VerdictContext): { verdict: Verdict; reason: string } {
+  const tolerances = scenario.tolerances;
+  const amplificationLimit = tolerances.amplificationLimit ?? DEFAULT_TOLERANCES.amplificationLimit;
+  const restitutionRel = tolerances.restitutionRel ?? DEFAULT_TOLERANCES.restitutionRel;
+  const energyPeakRel = tolerances.energyPeakRel ?? DEFAULT_TOLERANCES.energyPeakRel;
+  const minStepsPerContact = tolerances.minStepsPerContact ?? DEFAULT_TOLERANCES.minStepsPerContact;
+  if (metrics.exploded) return judgeByRules1(metrics, scenario, context);
+  const isolatedContact = scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
+  const omegaH = metrics.maxOmegaH;
+  if (omegaH !== null && omegaH >= STEP_STABILITY_LIMIT_OMEGA_H) {
+    return { verdict: "step-unstable", reason: `a contact ran at ω·h = ${formatNumber(omegaH)}, at or past the stability bound ${STEP_STABILITY_LIMIT_OMEGA_H}${amplificationNote(metrics)}` };
+  }
+  const amplification = metrics.amplification;
+  if (isolatedContact && amplification !== null && amplification > amplificationLimit) {
+    return {
+      verdict: "step-unstable",
+      reason: `the contact sent the bodies apart ${formatNumber(amplification)}× as fast as the model's restitution (limit ${formatNumber(amplificationLimit)}×) at ω·h = ${formatNumber(omegaH ?? 0)}`,
+    };
+  }
+  if (metrics.tunneled) return judgeByRules1(metrics, scenario, context);
+  if (metrics.maxOverlapFraction > tolerances.maxOverlapFraction) return judgeByRules1(metrics, scenario, context);
+  if (isolatedContact && amplification !== null && Math.abs(amplification - 1) > restitutionRel) {
+    return {
+      verdict: "restitution-off",
+      reason: `restitution ${formatNumber(metrics.effectiveRestitution ?? 0)} is ${formatSignedPercent(amplification - 1)} off the model's ${formatNumber(context.expectedRestitution ?? 0)} (limit ±${formatPercent(restitutionRel)})`,
+    };
+  }
+  // An isolated contact that ended has its energy change judged through its restitution (the
+  // scene's energy is what the contact returned); the scene energy rule is for everything else.
+  const judgedByRestitution = isolatedContact && amplification !== null;
+  const undamped = isUndamped(scenario);
+  if (!judgedByRestitution && metrics.energyErrorRel > tolerances.energyDriftRel) {
+    return { verdict: "energy-drift", reason: `the scene gained ${formatPercent(metrics.energyErrorRel)} energy over the run (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  if (!judgedByRestitution && undamped && metrics.energyErrorRel < -tolerances.energyDriftRel) {
+    return { verdict: "energy-drift", reason: `the scene lost ${formatPercent(-metrics.energyErrorRel)} energy without damping (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  const stepS = context.stepS ?? scenario.dtS / scenario.substeps;
+  const stepsPerContact = metrics.contactDurationS !== null ? metrics.contactDurationS / stepS : null;
+  if (stepsPerContact !== null && stepsPerContact < minStepsPerContact) {
+    return { verdict: "coarse-contact", reason: `the first contact lasted ${formatNumber(stepsPerContact)} steps (minimum ${formatNumber(minStepsPerContact)})` };
+  }
+  if (metrics.maxEnergyErrorRel > energyPeakRel) {
+    return { verdict: "coarse-contact", reason: `energy peaked ${formatPercent(metrics.maxEnergyErrorRel)} above the start inside a contact (limit ${formatPercent(energyPeakRel)})` };
+  }
+  const contactNote = metrics.contactSteps > 0 ? `, overlap up to ${formatPercent(metrics.maxOverlapFraction)} of the smaller radius, ω·h up to ${formatNumber(omegaH ?? 0)}` : ", no contact";
+  return { verdict: "stable", reason: `energy changed ${formatSignedPercent(metrics.energyErrorRel)}${contactNote}` };
+}
+
+function amplificationNote(metrics: Metrics): string {
+  return metrics.amplification !== null ? `; rebound ${formatNumber(metrics.amplification)}× the model's` : "";
+}
+
+function isUndamped(scenario: Scenario): boolean {
+  const damping = scenario.contact.damping;
+  return damping.kind === "none" || (damping.kind === "coefficient" && damping.value === 0) || (damping.kind === "restitution" && damping.value === 1);
 }
 
 function describeTunnel(context: VerdictContext): string {

@@ -11,9 +11,24 @@ export const INTEGRATORS: readonly IntegratorName[] = ["symplectic-euler", "velo
 export type ContactModelName = "linear" | "hertz";
 export const CONTACT_MODELS: readonly ContactModelName[] = ["linear", "hertz"];
 
-export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable";
-/** Precedence: the first verdict whose condition holds wins. */
-export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
+export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable" | "step-unstable" | "restitution-off" | "coarse-contact";
+/**
+ * Every verdict, in the order of its stored code (lib/sweeps/packed.ts stores a verdict as its index
+ * here): verdicts added later are appended so stored results keep theirs. Not the precedence.
+ */
+export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable", "step-unstable", "restitution-off", "coarse-contact"];
+/** Precedence of the current verdict rules (VERDICT_RULES_VERSION): the first verdict whose condition holds wins. */
+export const VERDICT_PRECEDENCE: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap", "restitution-off", "energy-drift", "coarse-contact", "stable"];
+/** Precedence of verdict rules 1 (sweeps stored before the rules were versioned). */
+export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
+
+/**
+ * Version of the rules that turn metrics into a verdict. 1: the rules before versioning (no
+ * instability, restitution-off or coarse-contact verdicts). 2: docs/sweep-spec.md "Verdict rules".
+ * A scenario without `verdictRules` is judged by rules 1, as every sweep stored before it was.
+ */
+export const VERDICT_RULES_VERSION = 2;
+export const VERDICT_RULES_VERSIONS: readonly number[] = [1, 2];
 
 /** Two discs; body A moves towards body B along +x. */
 export interface PairScene {
@@ -129,6 +144,17 @@ export interface Tolerances {
   maxOverlapFraction: number;
   /** Energy growth factor (relative to the initial energy) treated as a blow-up; the run stops there. */
   blowUpEnergyFactor: number;
+  /**
+   * Verdict rules 2 (absent: DEFAULT_TOLERANCES). Amplification (rebound speed over the model's)
+   * above which an isolated contact is "step-unstable".
+   */
+  amplificationLimit?: number;
+  /** Verdict rules 2: relative deviation of the rebound from the model's restitution, either way, above which a run is "restitution-off". */
+  restitutionRel?: number;
+  /** Verdict rules 2: in-contact energy peak (maxEnergyErrorRel) above which a run is "coarse-contact". */
+  energyPeakRel?: number;
+  /** Verdict rules 2: a contact resolved in fewer integrator steps than this is "coarse-contact". */
+  minStepsPerContact?: number;
 }
 
 export interface Scenario {
@@ -141,6 +167,8 @@ export interface Scenario {
   substeps: number;
   durationS: number;
   tolerances: Tolerances;
+  /** Version of the verdict rules (VERDICT_RULES_VERSIONS); absent: 1, the rules stored sweeps were judged by. */
+  verdictRules?: number;
   /** Seed of the one random generator (box scene positions and velocities; unused by the other scenes). */
   seed: number;
 }
@@ -168,6 +196,18 @@ export interface Metrics {
   contactSteps: number;
   tunneled: boolean;
   exploded: boolean;
+  /**
+   * Largest ω·h any contact saw, with ω = √(K/m_eff) from the contact's current stiffness K (k for
+   * linear, dF/dδ = (3/2)·k_H·√δ for Hertz) and h the integrator step; null without contact. The
+   * symplectic integrators are unstable on a linear spring for ω·h ≥ 2.
+   */
+  maxOmegaH: number | null;
+  /**
+   * Rebound of the first contact against the model: (|v_out|/|v_in|) / e_model for the normal
+   * relative speed (1: the model's restitution exactly); pair and wall scenes only (in a row or a
+   * box the first contact's bodies are pushed by neighbours); null if no contact ended.
+   */
+  amplification: number | null;
   /** Integrator steps actually taken or skipped over analytically (counts as duration / (dt/substeps) when the run completes). */
   steps: number;
 }

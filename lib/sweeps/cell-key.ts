@@ -41,7 +41,7 @@ const allSceneFields: [
 ] = [true, true, true, true, true, true, true];
 void allSceneFields;
 // Scenario and contact fields written below; a new one fails this check until it is keyed.
-type KeyedScenarioFields = "scene" | "contact" | "integrator" | "dtS" | "substeps" | "durationS" | "tolerances" | "seed";
+type KeyedScenarioFields = "scene" | "contact" | "integrator" | "dtS" | "substeps" | "durationS" | "tolerances" | "seed" | "verdictRules";
 const allScenarioFields: [Exclude<keyof Scenario, KeyedScenarioFields>] extends [never] ? true : false = true;
 void allScenarioFields;
 
@@ -123,6 +123,20 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   n = putNumber(w, n, scenario.tolerances.maxOverlapFraction);
   n = putNumber(w, n, scenario.tolerances.blowUpEnergyFactor);
   n = putNumber(w, n, scenario.seed);
+  // Verdict rules: a scenario judged by rules 1 (no `verdictRules`, as every cell stored before the
+  // rules were versioned) writes nothing more, so its key is the one it always had; later rules
+  // write a marker, their version and the tolerances they added, so a cell judged by one version
+  // never serves a sweep judged by another.
+  const rules = scenario.verdictRules ?? 1;
+  if (rules >= 2) {
+    const tolerances = scenario.tolerances;
+    w[n++] = 0x56524c53;
+    w[n++] = rules;
+    n = putOptional(w, n, tolerances.amplificationLimit);
+    n = putOptional(w, n, tolerances.restitutionRel);
+    n = putOptional(w, n, tolerances.energyPeakRel);
+    n = putOptional(w, n, tolerances.minStepsPerContact);
+  }
 
   let h0 = 0x9747b28c | 0;
   let h1 = 0x2f8b6a11 | 0;

@@ -1,28 +1,31 @@
 /**
- * The safe envelope of a stability map: for each value of axis x, the furthest value of axis y
- * reached from the start of y (bound "max": from the first y upward; "min": from the last y
+ * The safe envelope of a stability map: for each value of axis x, the furthest value of axis y that
+ * can be reached from the start of y (bound "max": from the first y upward; "min": from the last y
  * downward) through stable cells only, pulled back by a margin.
  *
- * Margin rule (documented in docs/api.md): the walk along y stops at the first cell that is not
- * stable. The reference is that first unstable y, or the last y of the walk when every cell is
- * stable. With bound "max" the limit is the largest y of the walk with y ≤ (1 − margin) ×
- * reference; with "min" the smallest y of the walk with y ≥ reference / (1 − margin). With margin 0
- * and y values rising along the axis, the limit is the last stable y. When no y of the walk qualifies (or the first cell is not
- * stable), the limit is null. Margins apply to positive y values (y axes with a value ≤ 0 accept
- * only margin 0).
+ * Rule (docs/api.md "Safe envelope", the help text of the sweep page says the same):
+ *  - safeY is the last y of the walk along y while every cell is stable: the largest y (bound max)
+ *    such that every cell at or below it is stable. With verdicts monotone along y (stable up to a
+ *    point, then not), safeY is that point; where they are also monotone along x, so is safeY.
+ *  - limit = (1 − margin) × safeY (bound max) or safeY / (1 − margin) (bound min), exactly, not
+ *    snapped to a grid value: a 10 % margin on 5.64 ms is 5.076 ms.
+ *  - a row whose walk meets a cell not computed yet is "pending" (no limit yet), one whose first cell
+ *    is not stable is "none-stable"; the others are "ok".
  *
  * Other axes stay at the positions given (`at`, default position 0).
  *
  * Pure: safe to import in the browser.
  */
 import type { Verdict } from "../physics/types";
+import { z } from "zod";
 import { cellIndex, type ExpandedAxis } from "./grid";
+import { formatNumber, guardFormula, quoteCsvField } from "./results";
 
 export type EnvelopeBound = "max" | "min";
 
 export interface EnvelopeInput {
   axes: readonly ExpandedAxis[];
-  /** Verdict of a cell by index; undefined while the cell is not done (treated as not stable). */
+  /** Verdict of a cell by index; undefined while the cell is not done (its row is then pending). */
   verdictAt: (index: number) => Verdict | undefined;
   x: number;
   y: number;
@@ -32,9 +35,15 @@ export interface EnvelopeInput {
   at?: readonly number[];
 }
 
+export type EnvelopeRowStatus = "ok" | "none-stable" | "pending";
+
 export interface EnvelopeRow {
   x: number | string;
+  /** The last stable y of the walk (null unless status is "ok"). */
+  safeY: number | null;
+  /** safeY pulled back by the margin (null unless status is "ok"). */
   yLimit: number | null;
+  status: EnvelopeRowStatus;
 }
 
 export interface Envelope {
@@ -80,6 +89,11 @@ export function validateEnvelopeInput(input: Omit<EnvelopeInput, "verdictAt">): 
   }
 }
 
+/** The limit a margin leaves of a safe value (the rule above). */
+export function applyMargin(safeY: number, margin: number, bound: EnvelopeBound): number {
+  return bound === "max" ? (1 - margin) * safeY : safeY / (1 - margin);
+}
+
 export function computeEnvelope(input: EnvelopeInput): Envelope {
   validateEnvelopeInput(input);
   const { axes, x, y, margin, bound, verdictAt } = input;
@@ -88,26 +102,110 @@ export function computeEnvelope(input: EnvelopeInput): Envelope {
   const n = yValues.length;
   const rows: EnvelopeRow[] = axes[x].values.map((xValue, ix) => {
     positions[x] = ix;
-    const walked: number[] = [];
-    let reference: number | null = null;
+    let safeY: number | null = null;
+    let status: EnvelopeRowStatus = "ok";
     for (let step = 0; step < n; step++) {
       positions[y] = bound === "max" ? step : n - 1 - step;
-      const value = yValues[positions[y]];
-      if (verdictAt(cellIndex(axes, positions)) !== "stable") {
-        reference = value;
+      const verdict = verdictAt(cellIndex(axes, positions));
+      if (verdict === undefined) {
+        status = "pending";
         break;
       }
-      walked.push(value);
+      if (verdict !== "stable") break;
+      safeY = yValues[positions[y]];
     }
-    if (walked.length === 0) return { x: xValue, yLimit: null };
-    reference ??= walked[walked.length - 1];
-    let limit: number | null = null;
-    for (const value of walked) {
-      if (bound === "max" ? value <= (1 - margin) * reference : value >= reference / (1 - margin)) {
-        if (limit === null || (bound === "max" ? value > limit : value < limit)) limit = value;
-      }
-    }
-    return { x: xValue, yLimit: limit };
+    if (status === "pending") return { x: xValue, safeY: null, yLimit: null, status };
+    if (safeY === null) return { x: xValue, safeY: null, yLimit: null, status: "none-stable" };
+    return { x: xValue, safeY, yLimit: applyMargin(safeY, margin, bound), status };
   });
   return { xPath: axes[x].parameter, yPath: axes[y].parameter, margin, bound, rows };
+}
+
+// ---------------------------------------------------------------------------
+// Exports
+
+export const ENVELOPE_FORMAT = "kickdrift-envelope";
+/** 2: rows carry safeY and status, the document its sweep, units, rules, tolerances and criterion. */
+export const ENVELOPE_FORMAT_VERSION = 2;
+/**
+ * When the engine ends a contact (and converts a target restitution into damping): when the
+ * clamped contact force returns to zero, slightly before the overlap does (Schwager & Pöschel 2007).
+ */
+export const CONTACT_END_CRITERION = "force-zero";
+
+export const ENVELOPE_RULE =
+  "safeY: the last y, walking y from its start, up to which every cell is stable; limit = (1 − margin) × safeY (bound max) or safeY / (1 − margin) (bound min); pending while a walked cell is not computed";
+
+const axisDescription = z.strictObject({ parameter: z.string(), label: z.string(), unit: z.string() });
+
+/** The published schema of an envelope export (JSON); docs/api.md describes every field. */
+export const envelopeDocumentSchema = z.strictObject({
+  format: z.literal(ENVELOPE_FORMAT),
+  version: z.literal(ENVELOPE_FORMAT_VERSION),
+  sweep: z.strictObject({ id: z.string(), name: z.string(), specHash: z.string().regex(/^[0-9a-f]{64}$/) }),
+  x: axisDescription,
+  y: axisDescription,
+  bound: z.enum(["max", "min"]),
+  margin: z.number().min(0).max(MAX_ENVELOPE_MARGIN),
+  rule: z.literal(ENVELOPE_RULE),
+  verdictRules: z.number().int().min(1),
+  tolerances: z.record(z.string(), z.number()),
+  contactEnd: z.literal(CONTACT_END_CRITERION),
+  rows: z.array(
+    z.strictObject({
+      x: z.union([z.number(), z.string()]),
+      safeY: z.number().nullable(),
+      limit: z.number().nullable(),
+      status: z.enum(["ok", "none-stable", "pending"]),
+    }),
+  ),
+});
+
+export type EnvelopeDocument = z.infer<typeof envelopeDocumentSchema>;
+
+export interface EnvelopeExportContext {
+  sweepId: string;
+  name: string;
+  specHash: string;
+  axes: readonly ExpandedAxis[];
+  x: number;
+  y: number;
+  verdictRules: number;
+  tolerances: Readonly<Record<string, number | undefined>>;
+}
+
+export function envelopeDocument(envelope: Envelope, context: EnvelopeExportContext): EnvelopeDocument {
+  const describe = (axis: ExpandedAxis) => ({ parameter: axis.parameter, label: axis.label, unit: axis.unit });
+  const tolerances: Record<string, number> = {};
+  for (const [key, value] of Object.entries(context.tolerances)) if (typeof value === "number") tolerances[key] = value;
+  return {
+    format: ENVELOPE_FORMAT,
+    version: ENVELOPE_FORMAT_VERSION,
+    sweep: { id: context.sweepId, name: context.name, specHash: context.specHash },
+    x: describe(context.axes[context.x]),
+    y: describe(context.axes[context.y]),
+    bound: envelope.bound,
+    margin: envelope.margin,
+    rule: ENVELOPE_RULE,
+    verdictRules: context.verdictRules,
+    tolerances,
+    contactEnd: CONTACT_END_CRITERION,
+    rows: envelope.rows.map((row) => ({ x: row.x, safeY: row.safeY, limit: row.yLimit, status: row.status })),
+  };
+}
+
+/**
+ * CSV of an envelope document: "#"-prefixed lines with the document's fields (key: JSON value),
+ * then a header whose columns carry their units, then one row per x (RFC 4180, CRLF).
+ */
+export function envelopeCsv(document: EnvelopeDocument): string {
+  const { rows, x, y, ...meta } = document;
+  const lines: string[] = [];
+  for (const [key, value] of Object.entries({ ...meta, x, y })) lines.push(`# ${key}: ${JSON.stringify(value)}`);
+  const unit = (axis: { unit: string }) => (axis.unit ? ` [${axis.unit}]` : "");
+  const text = (value: string) => quoteCsvField(guardFormula(value));
+  const number = (value: number | null) => (value === null ? "" : formatNumber(value));
+  lines.push([text(`${x.parameter}${unit(x)}`), text(`${y.parameter} safe${unit(y)}`), text(`${y.parameter} ${document.bound} limit${unit(y)}`), "status"].join(","));
+  for (const row of rows) lines.push([typeof row.x === "number" ? formatNumber(row.x) : text(row.x), number(row.safeY), number(row.limit), row.status].join(","));
+  return `${lines.join("\r\n")}\r\n`;
 }

@@ -6,6 +6,8 @@
  *
  * Layout (little-endian; every section starts on an 8-byte boundary):
  *   header  8 × u32: magic "KDR1", version, n, reason bytes, flags (bit 0: keys present), 3 reserved
+ *           (version 1: 11 metrics a cell, the first METRIC_COUNT_V1 of METRIC_KEYS; version 2: all of
+ *           them. A version-1 run is widened on reading, its new metrics null, its verdicts as stored.)
  *   indices i32[n]
  *   keys    u32[4n]   (128-bit scenario key per cell; zero when the flag is clear)
  *   metrics f64[n · METRIC_KEYS.length]  (booleans 0/1; null as 0 with its bit set in the mask)
@@ -20,13 +22,14 @@
  * Pure: safe to import anywhere (TextEncoder/TextDecoder only).
  */
 import { VERDICTS, type Metrics, type Verdict } from "../physics/types";
-import { METRIC_KEYS, type CellResult } from "./results";
+import { METRIC_COUNT_V1, METRIC_KEYS, type CellResult } from "./results";
 
 export const METRIC_COUNT = METRIC_KEYS.length;
 export const MASK_BYTES = Math.ceil(METRIC_COUNT / 8);
 export const KEY_WORDS = 4;
 const MAGIC = 0x3152444b; // "KDR1" little-endian
-const VERSION = 1;
+const VERSION = 2;
+const MASK_BYTES_V1 = Math.ceil(METRIC_COUNT_V1 / 8);
 const HEADER_BYTES = 32;
 const FLAG_KEYS = 1;
 const REASON_SEPARATOR = "\u001e";
@@ -45,12 +48,12 @@ interface Sections {
   reasons: number;
 }
 
-function sectionsFor(n: number): Sections {
+function sectionsFor(n: number, metricCount: number = METRIC_COUNT, maskBytes: number = MASK_BYTES): Sections {
   const indices = HEADER_BYTES;
   const keys = align8(indices + 4 * n);
   const metrics = align8(keys + 16 * n);
-  const mask = metrics + 8 * METRIC_COUNT * n;
-  const verdicts = mask + MASK_BYTES * n;
+  const mask = metrics + 8 * metricCount * n;
+  const verdicts = mask + maskBytes * n;
   const reasons = verdicts + n;
   return { indices, keys, metrics, mask, verdicts, reasons };
 }
@@ -166,8 +169,12 @@ export class PackedView {
   constructor(bytes: Uint8Array) {
     if (bytes.byteLength < HEADER_BYTES) throw new Error(`packed results: ${bytes.byteLength} bytes is shorter than the header`);
     // Typed arrays need aligned offsets: copy when the bytes sit at an odd place in their buffer.
-    const data = bytes.byteOffset % 8 === 0 ? bytes : bytes.slice();
-    const header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
+    let data = bytes.byteOffset % 8 === 0 ? bytes : bytes.slice();
+    let header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
+    if (header[0] === MAGIC && header[1] === 1) {
+      data = widenVersion1(data);
+      header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
+    }
     if (header[0] !== MAGIC || header[1] !== VERSION) throw new Error("packed results: unknown format or version");
     const n = header[2];
     const sections = sectionsFor(n);
@@ -231,6 +238,33 @@ export class PackedView {
     }
     return -1;
   }
+}
+
+/**
+ * A version-1 run in the current layout: same cells, keys, verdicts and reasons; the metrics added
+ * since are null. Stored results keep their verdicts (they were judged by verdict rules 1).
+ */
+function widenVersion1(data: Uint8Array): Uint8Array {
+  const header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
+  const n = header[2];
+  const old = sectionsFor(n, METRIC_COUNT_V1, MASK_BYTES_V1);
+  if (data.byteLength !== old.reasons + header[3]) throw new Error(`packed results: ${data.byteLength} bytes where the header describes ${old.reasons + header[3]}`);
+  const now = sectionsFor(n);
+  const out = new Uint8Array(now.reasons + header[3]);
+  out.set(data.subarray(0, old.metrics), 0);
+  const oldMetrics = new Float64Array(data.buffer, data.byteOffset + old.metrics, METRIC_COUNT_V1 * n);
+  const newMetrics = new Float64Array(out.buffer, now.metrics, METRIC_COUNT * n);
+  const oldMask = data.subarray(old.mask, old.mask + MASK_BYTES_V1 * n);
+  const newMask = out.subarray(now.mask, now.mask + MASK_BYTES * n);
+  for (let c = 0; c < n; c++) {
+    newMetrics.set(oldMetrics.subarray(c * METRIC_COUNT_V1, (c + 1) * METRIC_COUNT_V1), c * METRIC_COUNT);
+    for (let b = 0; b < MASK_BYTES_V1; b++) newMask[c * MASK_BYTES + b] = oldMask[c * MASK_BYTES_V1 + b];
+    for (let m = METRIC_COUNT_V1; m < METRIC_COUNT; m++) newMask[c * MASK_BYTES + (m >> 3)] |= 1 << (m & 7);
+  }
+  out.set(data.subarray(old.verdicts, old.verdicts + n), now.verdicts);
+  out.set(data.subarray(old.reasons, old.reasons + header[3]), now.reasons);
+  new Uint32Array(out.buffer, 0, HEADER_BYTES / 4)[1] = VERSION;
+  return out;
 }
 
 /** Cells of two packed runs with disjoint indices, merged in index order. */

@@ -38,12 +38,18 @@ export const METRIC_KEYS = [
   "tunneled",
   "exploded",
   "steps",
+  // Added with verdict rules 2 (results stored before have them null).
+  "maxOmegaH",
+  "amplification",
 ] as const satisfies readonly (keyof Metrics)[];
 
 // Every Metrics field must be listed (a new engine metric fails the type check here).
 type MissingMetric = Exclude<keyof Metrics, (typeof METRIC_KEYS)[number]>;
 const allMetricsListed: [MissingMetric] extends [never] ? true : false = true;
 void allMetricsListed;
+
+/** Metric fields of packed runs of format version 1 (before maxOmegaH and amplification): the first entries of METRIC_KEYS. */
+export const METRIC_COUNT_V1 = 11;
 
 /** Just the contract's metric fields, in the fixed order (drops anything extra an engine returns). */
 export function pickMetrics(metrics: Metrics): Metrics {
@@ -86,12 +92,15 @@ export interface ResultsHeader {
   name?: string;
   /** specHash() of the parsed spec. */
   specHash: string;
+  /** Version of the verdict rules the cells were judged by (the spec's scenario.verdictRules; 1 when absent). */
+  verdictRules: number;
   axes: readonly ExpandedAxis[];
   cellCount: number;
 }
 
 export const RESULTS_FORMAT = "kickdrift-sweep-results";
-export const RESULTS_FORMAT_VERSION = 1;
+/** 2: verdictRules in the head, metrics maxOmegaH and amplification, the verdicts of rules 2. */
+export const RESULTS_FORMAT_VERSION = 2;
 
 /** One cell as a JSON object with fixed key order. */
 export function cellToJson(result: CellResult, axes: readonly ExpandedAxis[]): string {
@@ -127,7 +136,7 @@ function orderGuard(header: ResultsHeader) {
 
 /**
  * The JSON document:
- * { format, version, name?, specHash, cellCount, axes, cells: [one per line], verdictCounts }.
+ * { format, version, name?, specHash, verdictRules, cellCount, axes, cells: [one per line], verdictCounts }.
  */
 export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
   const guard = orderGuard(header);
@@ -141,7 +150,7 @@ export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
             `{"parameter":${JSON.stringify(axis.parameter)},"label":${JSON.stringify(axis.label)},"unit":${JSON.stringify(axis.unit)},"values":[${axis.values.map((value) => jsonValue(value)).join(",")}]}`,
         )
         .join(",");
-      return `{"format":${JSON.stringify(RESULTS_FORMAT)},"version":${RESULTS_FORMAT_VERSION},${name}"specHash":${JSON.stringify(header.specHash)},"cellCount":${header.cellCount},\n"axes":[${axes}],\n"cells":[\n`;
+      return `{"format":${JSON.stringify(RESULTS_FORMAT)},"version":${RESULTS_FORMAT_VERSION},${name}"specHash":${JSON.stringify(header.specHash)},"verdictRules":${header.verdictRules},"cellCount":${header.cellCount},\n"axes":[${axes}],\n"cells":[\n`;
     },
     cells(results) {
       let text = "";

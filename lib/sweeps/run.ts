@@ -53,7 +53,7 @@ export interface SweepRunSummary {
 }
 
 export function resultsHeader(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): ResultsHeader {
-  return { name: spec.name, specHash: specHash(spec), axes, cellCount: cellCount(axes) };
+  return { name: spec.name, specHash: specHash(spec), verdictRules: spec.scenario.verdictRules ?? 1, axes, cellCount: cellCount(axes) };
 }
 
 export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promise<SweepRunSummary> {

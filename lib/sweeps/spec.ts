@@ -11,7 +11,7 @@
 import { z } from "zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
 import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
-import type { Scenario, SceneKind, Tolerances } from "../physics/types";
+import { VERDICT_RULES_VERSION, VERDICT_RULES_VERSIONS, type Scenario, type SceneKind, type Tolerances } from "../physics/types";
 import {
   CHOICE_PARAMETERS,
   SPEC_LIMITS,
@@ -32,7 +32,7 @@ import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParame
 export { CLOSING_SPEED_FRACTION_PATH, PAIR_AXIS_PATH, axisSetter } from "./axes";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
-export const SPEC_DEFAULT_TOLERANCES: Readonly<Tolerances> = DEFAULT_TOLERANCES;
+export const SPEC_DEFAULT_TOLERANCES: Readonly<Required<Tolerances>> = DEFAULT_TOLERANCES;
 /** Seed used when a spec leaves it out. */
 export const SPEC_DEFAULT_SEED = 1;
 const MAX_SEED = 0xffff_ffff;
@@ -213,6 +213,11 @@ export const tolerancesSchema = z.strictObject({
   energyDriftRel: boundedNumber("tolerances.energyDriftRel", 0, false, 1e6),
   maxOverlapFraction: boundedNumber("tolerances.maxOverlapFraction", 0, false, 100),
   blowUpEnergyFactor: boundedNumber("tolerances.blowUpEnergyFactor", 1, false, 1e300),
+  // Used by verdict rules 2 (lib/physics/simulate.ts judgeByRules2); defaults and their basis in lib/physics/constants.ts.
+  amplificationLimit: boundedNumber("tolerances.amplificationLimit", 1, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.amplificationLimit),
+  restitutionRel: boundedNumber("tolerances.restitutionRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.restitutionRel),
+  energyPeakRel: boundedNumber("tolerances.energyPeakRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.energyPeakRel),
+  minStepsPerContact: boundedNumber("tolerances.minStepsPerContact", 0, true, 1e6).default(SPEC_DEFAULT_TOLERANCES.minStepsPerContact),
 });
 
 export const scenarioSchema = z.strictObject({
@@ -225,6 +230,10 @@ export const scenarioSchema = z.strictObject({
   substeps: ruledNumber(numericRule("substeps", "pair")).default(1),
   durationS: ruledNumber(numericRule("durationS", "pair")),
   tolerances: tolerancesSchema.default(() => ({ ...SPEC_DEFAULT_TOLERANCES })),
+  verdictRules: z
+    .number({ error: (issue) => `verdictRules must be one of ${VERDICT_RULES_VERSIONS.join(", ")}; got ${describeReceived(issue.input)}` })
+    .refine((value) => VERDICT_RULES_VERSIONS.includes(value), { error: `verdictRules must be one of ${VERDICT_RULES_VERSIONS.join(", ")}` })
+    .default(VERDICT_RULES_VERSION),
   seed: z
     .number({ error: (issue) => `seed must be an integer from 0 to ${MAX_SEED}; got ${describeReceived(issue.input)}` })
     .int({ error: `seed must be an integer from 0 to ${MAX_SEED}` })
@@ -714,10 +723,11 @@ export type SweepSpecInput = z.input<typeof sweepSpecSchema>;
 /** A parsed, valid sweep spec; its scenario is exactly a `Scenario`. */
 export type SweepSpec = Omit<z.output<typeof sweepSpecSchema>, "scenario"> & { scenario: Scenario };
 
-// The scenario schema's output must be assignable to the engine's Scenario, and back.
+// The scenario schema's output must be assignable to the engine's Scenario, and a Scenario must be
+// a valid input (its verdict rules and newer tolerances are optional: absent in stored specs).
 type ParsedScenario = z.output<typeof scenarioSchema>;
 type Assignable<From, To> = [From] extends [To] ? true : false;
-const scenarioMatchesContract: [Assignable<ParsedScenario, Scenario>, Assignable<Scenario, ParsedScenario>] = [true, true];
+const scenarioMatchesContract: [Assignable<ParsedScenario, Scenario>, Assignable<Scenario, z.input<typeof scenarioSchema>>] = [true, true];
 void scenarioMatchesContract;
 
 // ---------------------------------------------------------------------------

@@ -3,6 +3,7 @@
  * nothing queued, studio isolation, the read routes (cells JSON/CSV, drill-down, envelope) and
  * rerun, with a real runner finishing the sweeps.
  */
+import { envelopeDocumentSchema } from "@/lib/sweeps/envelope";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { ledgerEntries, sweepChunks, sweepResults, sweeps } from "@/db/schema";
@@ -178,7 +179,13 @@ describe("a sweep through the API", { timeout: 120_000 }, () => {
     expect(envelope.xPath).toBe("contact.stiffness");
     expect(envelope.rows.length).toBe(5);
     const csv = await call(envelopeRoute.GET, { path: `${base(studio)}/sweeps/${sweepId}/envelope?x=0&y=1&format=csv`, params, cookie: studio.cookies.finance });
-    expect((csv.body as string).split("\r\n")[0]).toBe("contact.stiffness,dtS max limit");
+    const lines = (csv.body as string).split("\r\n");
+    expect(lines[0]).toBe('# format: "kickdrift-envelope"');
+    expect(lines.some((line) => /^contact\.stiffness \[N\/m[^\]]*\],dtS safe \[s\],dtS max limit \[s\],status$/.test(line))).toBe(true);
+    // The export states the sweep and the verdict rules, and validates against its published schema.
+    const document = (body as { document: unknown }).document;
+    expect(envelopeDocumentSchema.safeParse(document).success).toBe(true);
+    expect((document as { sweep: { id: string } }).sweep.id).toBe(sweepId);
     const bad = await call(envelopeRoute.GET, { path: `${base(studio)}/sweeps/${sweepId}/envelope?x=0&y=1&margin=0.95`, params, cookie: studio.cookies.finance });
     expect(bad.status).toBe(422);
     expect(errorOf(bad.body).field).toBe("margin");

@@ -48,7 +48,7 @@ describe("metric difference map", () => {
 
 describe("verdict codes", () => {
   it("orders verdicts by severity and marks missing ones pending", () => {
-    expect(Array.from(verdictCodes(["stable", "exploded", null, "energy-drift"]))).toEqual([0, 4, PENDING_CODE, 1]);
-    expect(countCodes(verdictCodes(["stable", "stable", "tunneled", undefined]), 5)).toEqual([2, 0, 0, 1, 0]);
+    expect(Array.from(verdictCodes(["stable", "exploded", null, "energy-drift", "step-unstable", "coarse-contact"]))).toEqual([0, 7, PENDING_CODE, 2, 6, 1]);
+    expect(countCodes(verdictCodes(["stable", "stable", "tunneled", undefined, "restitution-off"]), 8)).toEqual([2, 0, 0, 1, 0, 1, 0, 0]);
   });
 });

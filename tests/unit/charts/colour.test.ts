@@ -125,7 +125,7 @@ describe("categorical palettes", () => {
       expect(luminance[i]).toBeLessThan(luminance[i - 1]);
       expect((luminance[i - 1] + 0.05) / (luminance[i] + 0.05)).toBeGreaterThan(1.3);
     }
-    expect(VERDICT_CATEGORIES.map((c) => c.key)).toEqual(["stable", "energy-drift", "deep-overlap", "tunneled", "exploded"]);
+    expect(VERDICT_CATEGORIES.map((c) => c.key)).toEqual(["stable", "coarse-contact", "energy-drift", "restitution-off", "deep-overlap", "tunneled", "step-unstable", "exploded"]);
   });
 
   it("gives each verdict its own glyph", () => {

@@ -24,39 +24,36 @@ function grid(rows: string[], yValues: number[], xValues: (number | string)[] = 
 const Y = [1, 2, 4, 8, 10];
 
 describe("computeEnvelope", () => {
-  it("bound max with margin 0 gives the last stable y before the first unstable one, walking from the start", () => {
+  it("bound max with margin 0 gives the last stable y of the walk from the start; a row meeting an uncomputed cell is pending", () => {
     const g = grid(["ssxss", "sssss", "xssss", "ss.ss"], Y);
     const env = computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "max" });
-    // Row 0 stops at y=4 (unstable) → 2; row 1 never stops → 10; row 2 unstable at the start → null;
-    // row 3: a cell not done yet counts as not stable → 2. Stable cells beyond a gap are not reached.
+    // Row 0 stops at y=4 (unstable) → 2; row 1 never stops → 10; row 2 unstable at the start → none;
+    // row 3 meets a cell not done yet → pending (never "none stable"). Stable cells beyond a gap are not reached.
     expect(env.rows).toEqual([
-      { x: 1, yLimit: 2 },
-      { x: 2, yLimit: 10 },
-      { x: 3, yLimit: null },
-      { x: 4, yLimit: 2 },
+      { x: 1, safeY: 2, yLimit: 2, status: "ok" },
+      { x: 2, safeY: 10, yLimit: 10, status: "ok" },
+      { x: 3, safeY: null, yLimit: null, status: "none-stable" },
+      { x: 4, safeY: null, yLimit: null, status: "pending" },
     ]);
     expect(env.xPath).toBe("integrator");
     expect(env.yPath).toBe("dtS");
   });
 
-  it("a margin pulls the limit back to the largest walked y ≤ (1 − margin) × the first unstable y", () => {
+  it("applies the margin exactly as the help text says: limit = (1 − margin) × safe", () => {
     const g = grid(["sssxs", "sssss"], Y);
-    // Row 0: first unstable y = 8; 0.5 × 8 = 4 → 4. With margin 0.6: 0.4 × 8 = 3.2 → 2.
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "max" }).rows[0].yLimit).toBe(4);
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.6, bound: "max" }).rows[0].yLimit).toBe(2);
-    // Row 1: all stable, the reference is the last y (10); 0.5 × 10 = 5 → 4.
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "max" }).rows[1].yLimit).toBe(4);
-    // A margin that leaves no walked y qualifying gives null: 0.1 × 8 = 0.8 < 1.
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.9, bound: "max" }).rows[0].yLimit).toBeNull();
+    // Row 0: safe 4; 0.5 × 4 = 2; 0.9 × 4 = 3.6 (not snapped to a grid value). Row 1: safe 10 → 5.
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "max" }).rows.map((row) => row.yLimit)).toEqual([2, 5]);
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.1, bound: "max" }).rows[0].yLimit).toBe(0.9 * 4);
+    // Issue 14's browser finding: a 10 % margin on 5.64 ms is 0.9 × 5.64 = 5.076 ms.
+    const ms = grid(["ssx"], [4.1e-3, 5.64e-3, 7e-3]);
+    expect(computeEnvelope({ ...ms, x: 0, y: 1, margin: 0.1, bound: "max" }).rows[0].yLimit).toBe(0.9 * 5.64e-3);
   });
 
-  it("bound min walks down from the last y and keeps the smallest walked y ≥ reference / (1 − margin)", () => {
+  it("bound min walks down from the last y; limit = safe / (1 − margin)", () => {
     const g = grid(["xssss", "sxsss", "sssss"], Y);
-    // Row 0: walk 10, 8, 4, 2, then 1 is unstable → margin 0: 2; margin 0.5: ≥ 2 → 2; margin 0.6: ≥ 2.5 → 4.
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "min" }).rows[0].yLimit).toBe(2);
-    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.6, bound: "min" }).rows[0].yLimit).toBe(4);
-    // Row 1: walk 10, 8, 4, then 2 unstable → 4.  Row 2: all stable → 1.
+    // Row 0: walk 10, 8, 4, 2, then 1 is unstable → safe 2; margin 0.5 → 4.
     expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0, bound: "min" }).rows.map((r) => r.yLimit)).toEqual([2, 4, 1]);
+    expect(computeEnvelope({ ...g, x: 0, y: 1, margin: 0.5, bound: "min" }).rows[0].yLimit).toBe(4);
   });
 
   it("keeps other axes at the positions given", () => {
@@ -64,8 +61,8 @@ describe("computeEnvelope", () => {
     const stable = new Set([cellIndex(axes, [0, 0, 1]), cellIndex(axes, [0, 1, 1]), cellIndex(axes, [0, 2, 1])]);
     const verdictAt = (index: number): Verdict => (stable.has(index) ? "stable" : "tunneled");
     expect(computeEnvelope({ axes, verdictAt, x: 2, y: 1, margin: 0, bound: "max", at: [0, 0, 0] }).rows).toEqual([
-      { x: 10, yLimit: null },
-      { x: 20, yLimit: 3 },
+      { x: 10, safeY: null, yLimit: null, status: "none-stable" },
+      { x: 20, safeY: 3, yLimit: 3, status: "ok" },
     ]);
     expect(computeEnvelope({ axes, verdictAt, x: 2, y: 1, margin: 0, bound: "max", at: [1, 0, 0] }).rows[1].yLimit).toBeNull();
   });

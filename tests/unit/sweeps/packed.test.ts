@@ -90,6 +90,53 @@ describe("packed results", () => {
   });
 });
 
+describe("packed runs stored before verdict rules 2 (format version 1)", () => {
+  // Written by hand from the version-1 layout documented in lib/sweeps/packed.ts: 11 metrics a cell
+  // (momentumDriftRelX … steps), a 2-byte null mask, verdict codes 0–4 (exploded … stable).
+  function version1Blob(): Uint8Array {
+    const n = 2;
+    const reasons = new TextEncoder().encode("energy rose 3% over the run (limit 1%)\u001estable run");
+    const align8 = (x: number) => (x + 7) & ~7;
+    const keys = align8(32 + 4 * n);
+    const metrics = align8(keys + 16 * n);
+    const mask = metrics + 8 * 11 * n;
+    const verdicts = mask + 2 * n;
+    const bytes = new Uint8Array(verdicts + n + reasons.length);
+    const header = new Uint32Array(bytes.buffer, 0, 8);
+    header.set([0x3152444b, 1, n, reasons.length, 1]);
+    new Int32Array(bytes.buffer, 32, n).set([4, 9]);
+    new Uint32Array(bytes.buffer, keys, 4 * n).set([1, 2, 3, 4, 5, 6, 7, 8]);
+    const values = new Float64Array(bytes.buffer, metrics, 11 * n);
+    for (let m = 0; m < 11; m++) {
+      values[m] = m + 0.5;
+      values[11 + m] = -m;
+    }
+    bytes[mask + 0] = 1 << 4; // cell 0: effectiveRestitution null
+    bytes.set([3, 4], verdicts); // energy-drift, stable
+    bytes.set(reasons, verdicts + n);
+    return bytes;
+  }
+
+  it("read with their verdicts, reasons, keys and metrics as stored, the newer metrics null", () => {
+    const view = new PackedView(version1Blob());
+    expect(view.count).toBe(2);
+    expect([...view.indices]).toEqual([4, 9]);
+    expect(view.hasKeys).toBe(true);
+    expect([...view.keys]).toEqual([1, 2, 3, 4, 5, 6, 7, 8]);
+    expect([view.verdict(0), view.verdict(1)]).toEqual(["energy-drift", "stable"]);
+    expect(view.reason(0)).toBe("energy rose 3% over the run (limit 1%)");
+    const first = view.metricsOf(0);
+    expect(first.momentumDriftRelX).toBe(0.5);
+    expect(first.effectiveRestitution).toBeNull();
+    expect(first.steps).toBe(10.5);
+    expect(first.maxOmegaH).toBeNull();
+    expect(first.amplification).toBeNull();
+    expect(view.metricsOf(1).contactSteps).toBe(-7);
+    // Copied into a new run (the cache, merges), they stay as they were.
+    expect(new PackedView(mergePacked(view, new PackedView(new PackedWriter(0).finish()))).verdict(0)).toBe("energy-drift");
+  });
+});
+
 describe("scenario keys", () => {
   const base = parsed(bumperWallSpec()).scenario;
 
@@ -115,14 +162,28 @@ describe("scenario keys", () => {
       },
       axes: [],
     };
-    expect(keyOf(firstCell(puckPairSpec()))).toEqual([0x8d54f120, 0x22240c91, 0xdfb75148, 0x6a446b1b]);
-    expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0xa8e591b7, 0xc9ffd09b, 0xa6312c37, 0xca357ce4]);
-    expect(keyOf(firstCell(box))).toEqual([0x65550550, 0xb40de569, 0x935b08e4, 0x849c4c3e]);
-    expect(keyOf(firstCell(snapshot))).toEqual([0x298ecd32, 0x4b5308f6, 0x475f4841, 0x7139ff69]);
+    // Cells judged by verdict rules 1: every stored result before the rules were versioned (their
+    // stored specs have no verdictRules; a spec may also ask for 1). Their keys are the released ones.
+    const rules1 = <T extends { scenario: object }>(spec: T) => ({ ...spec, scenario: { ...spec.scenario, verdictRules: 1 } });
+    expect(keyOf(firstCell(rules1(puckPairSpec() as { scenario: object })))).toEqual([0x8d54f120, 0x22240c91, 0xdfb75148, 0x6a446b1b]);
+    expect(keyOf(firstCell(rules1(bumperWallSpec() as { scenario: object })))).toEqual([0xa8e591b7, 0xc9ffd09b, 0xa6312c37, 0xca357ce4]);
+    expect(keyOf(firstCell(rules1(box)))).toEqual([0x65550550, 0xb40de569, 0x935b08e4, 0x849c4c3e]);
+    expect(keyOf(firstCell(rules1(snapshot)))).toEqual([0x298ecd32, 0x4b5308f6, 0x475f4841, 0x7139ff69]);
+    // A stored spec has no verdictRules field at all: same key as rules 1.
+    const stored = { ...firstCell(rules1(puckPairSpec() as { scenario: object })) };
+    delete stored.verdictRules;
+    expect(keyOf(stored)).toEqual([0x8d54f120, 0x22240c91, 0xdfb75148, 0x6a446b1b]);
+    // New sweeps are judged by rules 2 (the default): their keys carry the version and the tolerances
+    // it added, so a cell judged by rules 1 never serves them. Values as first released with rules 2.
+    expect(keyOf(firstCell(puckPairSpec()))).toEqual([0xc892b111, 0x74ec2c13, 0x8fb65498, 0xdfe1b824]);
+    expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0x4bbb015f, 0x7a697f0a, 0x5b63bb52, 0x69a1505e]);
+    expect(keyOf(firstCell(box))).toEqual([0x738b20bd, 0x4ca20e06, 0x4ad9bc62, 0x8299ded2]);
+    const stricter = firstCell({ ...box, scenario: { ...box.scenario, tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1000, restitutionRel: 0.02 } } });
+    expect(keyOf(stricter)).not.toEqual(keyOf(firstCell(box)));
   });
 
   it("are equal for equal scenarios in any key order, and for −0 and 0", () => {
-    const reordered = JSON.parse(JSON.stringify({ seed: base.seed, tolerances: base.tolerances, durationS: base.durationS, substeps: base.substeps, dtS: base.dtS, integrator: base.integrator, contact: base.contact, scene: base.scene })) as Scenario;
+    const reordered = JSON.parse(JSON.stringify({ seed: base.seed, verdictRules: base.verdictRules, tolerances: base.tolerances, durationS: base.durationS, substeps: base.substeps, dtS: base.dtS, integrator: base.integrator, contact: base.contact, scene: base.scene })) as Scenario;
     expect(keyOf(reordered)).toEqual(keyOf(base));
     const zero = { ...base, scene: { ...base.scene, angleDeg: 0 } } as Scenario;
     const negativeZero = { ...base, scene: { ...base.scene, angleDeg: -0 } } as Scenario;

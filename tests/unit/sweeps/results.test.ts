@@ -27,6 +27,8 @@ function metrics(overrides: Partial<Metrics> = {}): Metrics {
     tunneled: false,
     exploded: false,
     steps: 96,
+    maxOmegaH: 0.12,
+    amplification: 1.0000000000000002,
     ...overrides,
   };
 }
@@ -35,7 +37,7 @@ const axes: ExpandedAxis[] = [
   { parameter: "contact.stiffness", label: "contact stiffness k", unit: "N/m", values: [1e3, 1e7] },
   { parameter: "integrator", label: "integrator", unit: "", values: ["symplectic-euler"] },
 ];
-const header: ResultsHeader = { name: "Puckyard, rink \"B\"", specHash: "ab".repeat(32), axes, cellCount: 2 };
+const header: ResultsHeader = { name: "Puckyard, rink \"B\"", specHash: "ab".repeat(32), verdictRules: 2, axes, cellCount: 2 };
 const cells: CellResult[] = [
   { index: 0, axisValues: [1e3, "symplectic-euler"], verdict: "stable", reason: "no problem found", metrics: metrics() },
   {
@@ -51,7 +53,8 @@ describe("JSON results", () => {
   it("parse back to the same records, with fixed key order and non-finite numbers as null", () => {
     const text = resultsToJson(header, cells);
     const document = JSON.parse(text);
-    expect(Object.keys(document)).toEqual(["format", "version", "name", "specHash", "cellCount", "axes", "cells", "verdictCounts"]);
+    expect(Object.keys(document)).toEqual(["format", "version", "name", "specHash", "verdictRules", "cellCount", "axes", "cells", "verdictCounts"]);
+    expect(document.verdictRules).toBe(2);
     expect(document.cells[0]).toEqual({
       index: 0,
       parameters: { "contact.stiffness": 1000, integrator: "symplectic-euler" },
@@ -63,7 +66,7 @@ describe("JSON results", () => {
     expect(document.cells[1].metrics.energyErrorRel).toBeNull();
     expect(document.cells[1].metrics.maxEnergyErrorRel).toBeNull();
     expect(document.cells[1].reason).toBe(cells[1].reason);
-    expect(document.verdictCounts).toEqual({ exploded: 1, tunneled: 0, "deep-overlap": 0, "energy-drift": 0, stable: 1 });
+    expect(document.verdictCounts).toEqual({ exploded: 1, tunneled: 0, "deep-overlap": 0, "energy-drift": 0, stable: 1, "step-unstable": 0, "restitution-off": 0, "coarse-contact": 0 });
     expect(document.name).toBe(header.name);
   });
 

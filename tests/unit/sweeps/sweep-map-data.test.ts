@@ -1,5 +1,6 @@
+import { simulate } from "@/lib/physics";
 import { describe, expect, it } from "vitest";
-import { increasingOrder, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "@/components/sweeps/sweep-map-data";
+import { identicalIntegratorsNote, increasingOrder, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "@/components/sweeps/sweep-map-data";
 import type { CellRow, SweepAxisView } from "@/components/sweeps/sweep-api";
 import { expandAxes, axisValuesAt } from "@/lib/sweeps/grid";
 import { parseSweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
@@ -54,7 +55,7 @@ describe("stability map adapter", () => {
       axisValues: [],
       verdict: "stable",
       reason: null,
-      metrics: { momentumDriftRelX: 0, momentumDriftRelY: 0, energyErrorRel: -0.25, maxEnergyErrorRel: 0.001, effectiveRestitution: null, maxOverlapFraction: 0.05, contactDurationS: null, contactSteps: 3, tunneled: false, exploded: false, steps: 120 },
+      metrics: { momentumDriftRelX: 0, momentumDriftRelY: 0, energyErrorRel: -0.25, maxEnergyErrorRel: 0.001, effectiveRestitution: null, maxOverlapFraction: 0.05, contactDurationS: null, contactSteps: 3, tunneled: false, exploded: false, steps: 120, maxOmegaH: 0.1, amplification: null },
     };
     const data = layerData(indices, new Map([[done.index, done]]), "energyErrorRel");
     expect(data.values[0]).toBe(-0.25);
@@ -118,5 +119,37 @@ describe("stability map overlays over a snapshot", () => {
     // Two 3 kg coins: reduced mass μ = m₁m₂/(m₁ + m₂) = 1.5 kg (Goldstein, Poole & Safko 2002, Classical Mechanics, §3.1);
     // the leapfrog/Verlet step is stable for ω·h < 2 with ω = √(k/μ) (Hairer, Lubich & Wanner 2006, Geometric Numerical Integration, §I.5).
     expect(bound?.y(1e5)).toBeCloseTo(2 / Math.sqrt(1e5 / 1.5), 15);
+  });
+});
+
+describe("compare view: identical integrator maps", () => {
+  // Invented: "Bellhop" luggage carts bumping, undamped; engine runs, not hand-made verdicts.
+  const spec = {
+    scenario: {
+      scene: { kind: "pair" as const, massAKg: 20, massBKg: 30, radiusAM: 0.4, radiusBM: 0.5, speedAMPerS: 1.5, speedBMPerS: 0, offsetFraction: 0.3, gapM: 0.02 },
+      contact: { model: "linear" as const, stiffness: 1e5, damping: { kind: "none" as const } },
+      integrator: "symplectic-euler" as const,
+      dtS: 1 / 60,
+      durationS: 1,
+    },
+    axes: [],
+  };
+  const verdictsOf = (integrator: "symplectic-euler" | "velocity-verlet", damping: { kind: "none" } | { kind: "restitution"; value: number }) =>
+    [1e3, 1e4, 1e5, 1e6, 1e7].map((stiffness) => {
+      const parsed = parseSweepSpec({ ...spec, scenario: { ...spec.scenario, integrator, contact: { ...spec.scenario.contact, stiffness, damping } } });
+      if (!parsed.ok) throw new Error("spec");
+      return simulate(parsed.spec.scenario).verdict;
+    });
+
+  it("says why when the contact is undamped (both integrators take the same positions), and not when damped", () => {
+    const a = verdictsOf("symplectic-euler", { kind: "none" });
+    const b = verdictsOf("velocity-verlet", { kind: "none" });
+    expect(a).toEqual(b);
+    expect(identicalIntegratorsNote(spec, "integrator", "symplectic-euler", "velocity-verlet", a, b)).toMatch(/identical because the contact is undamped/);
+    const damped = { ...spec, scenario: { ...spec.scenario, contact: { ...spec.scenario.contact, damping: { kind: "restitution" as const, value: 0.5 } } } };
+    const c = verdictsOf("symplectic-euler", { kind: "restitution", value: 0.5 });
+    const d = verdictsOf("velocity-verlet", { kind: "restitution", value: 0.5 });
+    expect(identicalIntegratorsNote(damped, "integrator", "symplectic-euler", "velocity-verlet", c, d)).toBeNull();
+    expect(identicalIntegratorsNote(spec, "dtS", 1, 2, a, b)).toBeNull();
   });
 });

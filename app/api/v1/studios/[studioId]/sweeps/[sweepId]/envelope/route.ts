@@ -6,10 +6,9 @@ import { ApiError } from "@/lib/errors";
 import { VERDICTS } from "@/lib/physics/types";
 import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
 import { storedVerdictCodes } from "@/lib/queue/views";
-import { EnvelopeInputError, computeEnvelope, type EnvelopeBound } from "@/lib/sweeps/envelope";
+import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDocument, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
-import { formatNumber, quoteCsvField, guardFormula } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 
 export const runtime = "nodejs";
@@ -25,8 +24,6 @@ function numberParam(url: URL, name: string, fallback: number | undefined): numb
   if (!/^[0-9.eE+-]+$/.test(raw) || !Number.isFinite(value)) throw new ApiError(400, "validation_failed", `${name} must be a number; got "${raw}".`, name);
   return value;
 }
-
-const csvText = (text: string) => quoteCsvField(guardFormula(text));
 
 export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: string }>(SWEEP_READ, async ({ req, studio, params }) => {
   const url = new URL(req.url);
@@ -49,12 +46,20 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
     if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
     throw error;
   }
+  const spec = sweep.spec as SweepSpec;
+  const document = envelopeDocument(envelope, {
+    sweepId: sweep.id,
+    name: sweep.name,
+    specHash: sweep.specHash,
+    axes,
+    x,
+    y,
+    verdictRules: spec.scenario.verdictRules ?? 1,
+    tolerances: spec.scenario.tolerances as unknown as Record<string, number | undefined>,
+  });
   // Each row's contact at its limit as natural frequency and damping ratio (lib/sweeps/contact-tuning.ts).
-  if (format === "json") return json({ envelope: withContactTuning(envelope, sweep.spec as SweepSpec, axes, { x, y, at }) });
-  const rows = envelope.rows.map(
-    (row) => `${typeof row.x === "number" ? formatNumber(row.x) : csvText(row.x)},${row.yLimit === null ? "" : formatNumber(row.yLimit)}\r\n`,
-  );
-  const text = `${csvText(envelope.xPath)},${csvText(`${envelope.yPath} ${bound} limit`)}\r\n${rows.join("")}`;
+  if (format === "json") return json({ envelope: withContactTuning(envelope, spec, axes, { x, y, at }), document });
+  const text = envelopeCsv(document);
   return new Response(text, {
     status: 200,
     headers: {
