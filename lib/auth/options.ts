@@ -8,6 +8,7 @@ import { authenticateWithPassword, findUserById, LOGIN_ERROR_MESSAGE } from "./a
 import { kickdriftAdapter } from "./adapter";
 import { getAuthSecret } from "./config";
 import { clientAddress } from "./limiter";
+import { safeCallbackUrl } from "@/lib/ui/callback-url";
 import "./session-types";
 
 export const SESSION_MAX_AGE_S = 30 * 24 * 3600;
@@ -52,6 +53,10 @@ export const authOptions: AuthOptions = {
     }),
   ],
   callbacks: {
+    // Every redirect next-auth makes (after sign-in, sign-out, a magic link) goes through the same check as our pages.
+    async redirect({ url, baseUrl }) {
+      return `${baseUrl}${safeCallbackUrl(url, "/studios")}`;
+    },
     async jwt({ token, user }) {
       if (user) {
         token.sub = user.id;

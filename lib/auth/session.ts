@@ -36,6 +36,11 @@ function sessionCookieValue(cookies: Record<string, string>): string | undefined
   return chunks.length ? chunks.map((k) => cookies[k]).join("") : undefined;
 }
 
+/** Whether a Cookie header carries a session cookie at all (valid or not). */
+export function hasSessionCookie(cookieHeader: string | null | undefined): boolean {
+  return sessionCookieValue(parseCookieHeader(cookieHeader)) !== undefined;
+}
+
 /**
  * JWT `iat` has whole seconds: a session issued in the same second as the revocation counts as
  * after it (the sign-in that follows a reset or a first magic link happens in that same request).

@@ -19,6 +19,9 @@ export function buildRequest(options: CallOptions): Request {
   const headers = new Headers(options.headers);
   if (options.cookie) headers.set("cookie", options.cookie);
   if (options.bearer) headers.set("authorization", `Bearer ${options.bearer}`);
+  // A browser sends Origin with every fetch that is not GET/HEAD; our own pages send ours.
+  const method = (options.method ?? "GET").toUpperCase();
+  if (method !== "GET" && method !== "HEAD" && !headers.has("origin")) headers.set("origin", TEST_BASE_URL);
   let body: string | FormData | undefined;
   if (options.body instanceof FormData) {
     body = options.body;
