@@ -20,8 +20,9 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
   const studio = useStudio(studioId);
   const members = useMembers(studioId);
   const isOwner = role === "owner";
-  const invites = useInvites(studioId);
-  const tokens = useTokens(studioId);
+  // Invitations and tokens are listed to owners only (the API answers 403 to everyone else).
+  const invites = useInvites(studioId, isOwner);
+  const tokens = useTokens(studioId, isOwner);
   const pendingInvites = invites.data ?? [];
 
   return (
@@ -60,6 +61,7 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
             <MembersTable members={members.data} />
           )}
         </Card>
+        {isOwner ? (
         <Card title="Pending invitations" className="lg:col-span-3">
           {invites.isPending ? (
             <LoadingRows label="invitations" />
@@ -71,6 +73,8 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
             <InvitesTable invites={pendingInvites} />
           )}
         </Card>
+        ) : null}
+        {isOwner ? (
         <Card
           title="API tokens"
           className="lg:col-span-3"
@@ -86,6 +90,7 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
             <TokensTable tokens={tokens.data} />
           )}
         </Card>
+        ) : null}
       </div>
     </StudioShell>
   );

@@ -10,7 +10,9 @@ import { trySendMail } from "@/lib/mail/send";
 import { appBaseUrl } from "./config";
 import { accountKey, addressKey, isLocked, RANGE_LOGIN_LIMIT, rangeKey, recordAttempt } from "./limiter";
 import { consumeRateLimit } from "./rate-limits";
+import { endUserSessions } from "./user-sessions";
 import { burnPasswordCheck, emailSchema, hashPassword, passwordSchema, verifyPassword } from "./password";
+import { displayNameSchema } from "@/lib/api/text";
 
 /** The one message every failed password sign-in gets, whatever the reason (unknown account, wrong password, locked). */
 export const LOGIN_ERROR_MESSAGE = "Invalid e-mail or password";
@@ -28,11 +30,7 @@ export function publicUser(user: User): PublicUser {
   return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin };
 }
 
-export const nameSchema = z
-  .string({ error: "Name is required." })
-  .trim()
-  .min(1, { error: "Name is required." })
-  .max(100, { error: "Name must be at most 100 characters." });
+export const nameSchema = displayNameSchema("Name", 100);
 
 export const signUpSchema = z.strictObject({ email: emailSchema, password: passwordSchema, name: nameSchema });
 
@@ -146,6 +144,8 @@ export async function confirmPasswordReset(input: z.infer<typeof passwordResetCo
       .set({ passwordHash, emailVerified: now, sessionsRevokedAt: now })
       .where(eq(users.id, reset.userId))
       .returning();
+    // And ends every session row of the account (a new password means nobody else stays signed in).
+    await endUserSessions(user.id, { db: tx });
     // Proving control of the mailbox lifts a lock on the account.
     await recordAttempt(tx, [accountKey(user.email)], true, now);
   });

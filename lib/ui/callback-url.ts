@@ -35,6 +35,7 @@ const SIGN_IN_ERRORS: Record<string, string> = {
   Verification: "That sign-in link has expired or was already used. Ask for a new one below.",
   EmailSignin: "We could not send the sign-in e-mail. Check the address and try again.",
   SessionRequired: "Please sign in to see that page.",
+  TooManyRequests: "Too many sign-in links were asked for. Wait a while, then try again.",
 };
 
 /** next-auth reports failures as short codes in `?error=`; turn them into sentences. */

@@ -1,5 +1,6 @@
 import { encode } from "next-auth/jwt";
 import type { User } from "@/db/schema";
+import { openSession } from "@/lib/auth/user-sessions";
 import { TEST_AUTH_SECRET, TEST_BASE_URL } from "./db";
 
 export type RouteHandler = (req: Request, context: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>;
@@ -47,8 +48,9 @@ export async function call(handler: unknown, options: CallOptions): Promise<{ st
 
 /** A next-auth session cookie for the user, as next-auth itself would mint it after sign-in. */
 export async function sessionCookie(user: Pick<User, "id" | "email" | "name">): Promise<string> {
+  const sid = await openSession(user.id);
   const value = await encode({
-    token: { sub: user.id, id: user.id, email: user.email, name: user.name },
+    token: { sub: user.id, id: user.id, sid, email: user.email, name: user.name },
     secret: TEST_AUTH_SECRET,
   });
   return `next-auth.session-token=${value}`;

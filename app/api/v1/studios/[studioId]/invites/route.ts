@@ -7,8 +7,8 @@ import { createInvite, createInviteSchema, listInvites } from "@/lib/studios/inv
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-// Any member sees who is invited (the studio home lists it); tokens never touch invites.
-export const GET = withAuth({ access: "studio", roles: "member", token: "never" }, async ({ studio }) => {
+// Owners only, as documented: names, prefixes, last use and invitees' addresses are not for every member.
+export const GET = withAuth(OWNERS_ONLY, async ({ studio }) => {
   return json({ invites: await listInvites(studio.id) });
 });
 
