@@ -52,8 +52,9 @@ export async function changeRole(studioId: string, userId: string, role: StudioR
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("demote");
     await tx.update(memberships).set({ role }).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
-    // Losing a role ends the member's sessions: whatever a page or tab still holds is signed out.
-    await endUserSessions(userId, { db: tx });
+    // Losing a role to someone else's decision ends the member's sessions: whatever a page or tab
+    // still holds is signed out. Stepping down oneself keeps one's own sessions.
+    if (actor?.id !== userId) await endUserSessions(userId, { db: tx });
     await writeAudit(tx, { actor, studioId, action: "member.role_change", subjectType: "user", subjectId: userId, before: { role: target.role }, after: { role } });
   });
   const member = (await listMembers(studioId)).find((m) => m.userId === userId);
@@ -70,7 +71,7 @@ export async function removeMember(studioId: string, userId: string, actor: Chan
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("remove");
     await tx.delete(memberships).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
-    await endUserSessions(userId, { db: tx });
+    if (actor?.id !== userId) await endUserSessions(userId, { db: tx });
     await writeAudit(tx, { actor, studioId, action: "member.remove", subjectType: "user", subjectId: userId, before: { role: target.role }, after: null });
   });
 }

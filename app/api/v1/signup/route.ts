@@ -12,7 +12,7 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
   const input = await parseBody(req, signUpSchema);
   await signUp(input, clientAddress(req.headers));
   // The same answer whether the address was new or already had an account (its owner gets a mail).
-  return json({ accepted: true, message: `If ${input.email} is new to Kickdrift, its account is ready: sign in with your password. If it already had one, we sent its owner a mail.` }, 202);
+  return json({ accepted: true, message: "If this address is new to Kickdrift, its account is ready: sign in with your password. If it already had one, we sent its owner a mail." }, 202);
 });
 
 export const { GET, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["POST"]);

@@ -1,5 +1,6 @@
 import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
 import { parseBody } from "@/lib/api/body";
+import { consumeRateLimit } from "@/lib/auth/rate-limits";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { createInvite, createInviteSchema, listInvites } from "@/lib/studios/invites";
@@ -14,6 +15,8 @@ export const GET = withAuth(OWNERS_ONLY, async ({ studio }) => {
 
 export const POST = withAuth(OWNERS_ONLY, async ({ req, studio, user }) => {
   const input = await parseBody(req, createInviteSchema);
+  // Each invitation is a mail: limited per studio.
+  await consumeRateLimit("invitesPerStudio", studio.id);
   const { invite, mailSent } = await createInvite(studio.id, user!, input);
   return json({ invite: { id: invite.id, email: invite.email, role: invite.role, expiresAt: invite.expiresAt }, mailSent }, 201);
 });
