@@ -9,9 +9,10 @@ import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
+import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, mapRender, queueEndToEnd, scaleOut, requestHardening];
 
 async function main() {
   const wanted = process.argv.slice(2);
