@@ -63,11 +63,15 @@ function serve(routes: Record<string, Handler>): Promise<{ url: string; close():
         res.writeHead(404).end();
         return;
       }
-      const headers = Object.entries(req.headers).flatMap(([k, v]) => (typeof v === "string" ? [[k, v] as [string, string]] : []));
-      const request = new Request(`http://localhost:3000${req.url}`, { method: req.method, headers, body: req.method === "GET" ? undefined : Buffer.concat(chunks) });
-      const answer = await handler(request, { params: Promise.resolve({}) });
-      res.writeHead(answer.status, { "content-type": "application/json" });
-      res.end(await answer.text());
+      try {
+        const headers = Object.entries(req.headers).flatMap(([k, v]) => (typeof v === "string" && k !== "content-length" && k !== "connection" ? [[k, v] as [string, string]] : []));
+        const request = new Request(`http://localhost:3000${req.url}`, { method: req.method, headers, body: req.method === "GET" ? undefined : Buffer.concat(chunks) });
+        const answer = await handler(request, { params: Promise.resolve({}) });
+        res.writeHead(answer.status, { "content-type": "application/json" });
+        res.end(await answer.text());
+      } catch (error) {
+        res.writeHead(500).end(String(error));
+      }
     });
   });
   return new Promise((resolve) =>
@@ -99,9 +103,13 @@ async function underLoad(url: string, path: string, n: number): Promise<{ health
   const statuses = new Set<number>();
   const clients = Array.from({ length: 8 }, async () => {
     while (running) {
-      const res = await fetch(`${url}${path}`, { method: "POST", headers: { "content-type": "application/json" }, body: DEEP_BODY });
-      statuses.add(res.status);
-      await res.text();
+      try {
+        const res = await fetch(`${url}${path}`, { method: "POST", headers: { "content-type": "application/json" }, body: DEEP_BODY });
+        statuses.add(res.status);
+        await res.text();
+      } catch {
+        statuses.add(0);
+      }
       deepSent++;
     }
   });
