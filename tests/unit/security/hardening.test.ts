@@ -174,12 +174,15 @@ describe("10. user-named groups and headers are read as own properties", () => {
 describe("11. malformed percent-escapes in a path answer 404 before routing", () => {
   it.each(["/api/v1/studios/%ZZ/sweeps", "/api/v1/studios/%E0%A4%A/sweeps", "/api/v1/invites/%"])("%s → 404 JSON not_found", async (path) => {
     const res = proxy(new NextRequest(new URL(path, BASE)));
-    expect(res?.status).toBe(404);
-    expect(await res!.json()).toMatchObject({ error: { code: "not_found" } });
+    expect(res.status).toBe(404);
+    expect(await res.json()).toMatchObject({ error: { code: "not_found" } });
   });
-  it("leaves well-formed paths to the router", () => {
-    expect(proxy(new NextRequest(new URL("/api/v1/studios/std_%41/sweeps", BASE)))).toBeUndefined();
-    expect(proxy(new NextRequest(new URL("/studios/caf%C3%A9", BASE)))).toBeUndefined();
-    expect(proxy(new NextRequest(new URL("/studios/%ZZ", BASE)))?.status).toBe(404);
+  it("leaves well-formed paths to the router (and forbids framing them)", () => {
+    for (const path of ["/api/v1/studios/std_%41/sweeps", "/studios/caf%C3%A9", "/signin"]) {
+      const res = proxy(new NextRequest(new URL(path, BASE)));
+      expect(res.headers.get("x-middleware-next")).toBe("1");
+      expect(res.headers.get("x-frame-options")).toBe("DENY");
+    }
+    expect(proxy(new NextRequest(new URL("/studios/%ZZ", BASE))).status).toBe(404);
   });
 });
