@@ -6,6 +6,7 @@ import { signOut, useSession } from "next-auth/react";
 import { BrandMark } from "@/components/brand-mark";
 import { ThemeToggle } from "@/components/theme-toggle";
 import { buttonClasses, cx } from "@/components/ui";
+import { apiFetch } from "@/lib/ui/api";
 import { sessionUser } from "@/lib/ui/session";
 
 type NavItem = { href: string; label: string };
@@ -56,6 +57,14 @@ export function SiteHeader({ mailboxEnabled }: { mailboxEnabled: boolean }) {
               </span>
               <button type="button" className={buttonClasses("secondary", "py-1.5")} onClick={() => void signOut({ callbackUrl: "/" })}>
                 Sign out
+              </button>
+              <button
+                type="button"
+                className={buttonClasses("ghost", "hidden py-1.5 md:inline-flex")}
+                title="Ends your sessions in every browser and device, this one included"
+                onClick={() => void apiFetch("/api/v1/me/sessions", { method: "DELETE" }).finally(() => void signOut({ callbackUrl: "/" }))}
+              >
+                Sign out everywhere
               </button>
             </>
           ) : status === "loading" ? null : (

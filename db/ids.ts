@@ -1,7 +1,7 @@
 import { createHash, randomBytes } from "node:crypto";
 
 /** Opaque URL-safe identifiers: a type prefix plus 16 random bytes (base64url, 22 characters). */
-export type IdPrefix = "usr" | "std" | "inv" | "tok" | "pwr" | "msg" | "cat" | "chk" | "snp" | "whk";
+export type IdPrefix = "usr" | "std" | "inv" | "tok" | "pwr" | "msg" | "cat" | "chk" | "snp" | "whk" | "ses";
 
 export function newId(prefix: IdPrefix): string {
   return `${prefix}_${randomBytes(16).toString("base64url")}`;

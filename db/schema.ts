@@ -153,6 +153,25 @@ export const passwordResets = pgTable(
  * One row per credentials sign-in attempt and per limited action, under a key such as
  * `account:<email>` or `address:<ip>`; the limiter counts recent failures per key.
  */
+/**
+ * One row per signed-in session (the session cookie's JWT carries its id as `sid`). A session
+ * works only while its row exists and is not revoked: sign-out, "sign out everywhere", a password
+ * change and losing a studio role end sessions on the server, not only in the browser.
+ */
+export const userSessions = pgTable(
+  "user_sessions",
+  {
+    id: text("id").primaryKey(),
+    userId: text("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    createdAt: createdAt(),
+    revokedAt: ts("revoked_at"),
+  },
+  (t) => [index("user_sessions_user_idx").on(t.userId)],
+);
+export type UserSession = typeof userSessions.$inferSelect;
+
 export const loginAttempts = pgTable(
   "login_attempts",
   {

@@ -11,4 +11,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "token.create": "Token created",
   "token.revoke": "Token revoked",
   "user.platform_role": "Platform role change",
+  "payment.mismatch": "Payment not matching its pack",
 };

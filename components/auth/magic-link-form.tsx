@@ -34,7 +34,9 @@ export function MagicLinkForm({
     setState({ kind: "sending" });
     const result = await signIn("email", { email: address, callbackUrl, redirect: false });
     if (!result || result.error) {
-      setState({ kind: "error", message: "We could not send the sign-in e-mail. Check the address and try again." });
+      const message =
+        result?.error === "TooManyRequests" ? "Too many sign-in links were asked for. Wait a while, then try again." : "We could not send the sign-in e-mail. Check the address and try again.";
+      setState({ kind: "error", message });
       return;
     }
     setState({ kind: "sent", email: address });

@@ -6,6 +6,7 @@ import { signIn } from "next-auth/react";
 import { useState, type FormEvent } from "react";
 import { MagicLinkForm } from "@/components/auth/magic-link-form";
 import { Alert, Button, TextField } from "@/components/ui";
+import { safeCallbackUrl } from "@/lib/ui/callback-url";
 
 // One message for every credentials failure, so the form never tells which of the two was wrong
 // (or that an account is locked for too many attempts).
@@ -28,7 +29,7 @@ export function SignInForm({ callbackUrl, initialError, mailboxEnabled }: { call
       setError(GENERIC_SIGN_IN_ERROR);
       return;
     }
-    router.push(callbackUrl);
+    router.push(safeCallbackUrl(callbackUrl));
     router.refresh();
   }
 

@@ -6,6 +6,7 @@ import { useRouter } from "next/navigation";
 import { signIn } from "next-auth/react";
 import { useState, type FormEvent } from "react";
 import { Alert, Button, TextField } from "@/components/ui";
+import { safeCallbackUrl } from "@/lib/ui/callback-url";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 
 type SignUpInput = { email: string; password: string; name: string };
@@ -16,15 +17,16 @@ export function SignUpForm({ callbackUrl }: { callbackUrl: string }) {
   const [signInFailed, setSignInFailed] = useState(false);
 
   const signUp = useMutation({
-    mutationFn: (input: SignUpInput) => apiFetch<{ user: { id: string; email: string; name: string } }>("/api/v1/signup", { method: "POST", body: input }),
+    mutationFn: (input: SignUpInput) => apiFetch<{ accepted: true; message: string }>("/api/v1/signup", { method: "POST", body: input }),
     onSuccess: async (_data, input) => {
-      // The account exists now; sign straight in with the same password so the user lands where they were going.
+      // The answer is the same for a new and a taken address; signing in with the password just
+      // chosen works only for a new account, so the user lands where they were going.
       const result = await signIn("credentials", { email: input.email, password: input.password, callbackUrl, redirect: false });
       if (!result || result.error) {
         setSignInFailed(true);
         return;
       }
-      router.push(callbackUrl);
+      router.push(safeCallbackUrl(callbackUrl));
       router.refresh();
     },
   });
@@ -42,11 +44,11 @@ export function SignUpForm({ callbackUrl }: { callbackUrl: string }) {
   if (signInFailed) {
     return (
       <Alert tone="ok">
-        Your account is ready.{" "}
+        If this address was new, your account is ready:{" "}
         <Link href={`/signin?callbackUrl=${encodeURIComponent(callbackUrl)}`} className="underline">
-          Sign in
+          sign in
         </Link>{" "}
-        to continue.
+        to continue. If it already had an account, we sent its owner an e-mail.
       </Alert>
     );
   }

@@ -275,6 +275,7 @@ export function StudioHome({ studioId, studioName, role }: { studioId: string; s
   });
   const members = useMembers(studioId);
   const isOwner = role === "owner";
+  // Invitations and tokens are listed to owners only (the API answers 403 to everyone else).
   const invites = useInvites(studioId, isOwner);
   const tokens = useTokens(studioId, isOwner);
   const pendingInvites = invites.data ?? [];

@@ -29,27 +29,93 @@ export async function readBodyText(req: Request, limit = MAX_JSON_BODY_BYTES): P
   return Buffer.concat(chunks).toString("utf8");
 }
 
-/** The dotted path of the first string (value or key) holding a NUL character, which PostgreSQL text cannot store. */
-function findNul(value: unknown, path: string[] = []): string[] | null {
-  if (typeof value === "string") return value.includes("\u0000") ? path : null;
-  if (Array.isArray(value)) {
-    for (let i = 0; i < value.length; i++) {
-      const found = findNul(value[i], [...path, String(i)]);
-      if (found) return found;
+/**
+ * Deepest nesting of arrays and objects a JSON body may have. Our deepest schema (a sweep spec)
+ * nests 6 levels; 32 leaves room without letting one request make a scan do real work.
+ */
+export const MAX_JSON_DEPTH = 32;
+
+/** A string holding a UTF-16 surrogate half without its partner (JSON's "\ud800" escapes make one). */
+const LONE_SURROGATE = /[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/;
+export function hasLoneSurrogate(value: string): boolean {
+  return LONE_SURROGATE.test(value);
+}
+
+interface Frame {
+  value: unknown;
+  parent: Frame | null;
+  key: string;
+  depth: number;
+}
+
+function framePath(frame: Frame | null, key?: string): string {
+  const keys: string[] = key === undefined ? [] : [key];
+  for (let f = frame; f && f.parent; f = f.parent) keys.push(f.key);
+  return keys.reverse().join(".");
+}
+
+const printable = (key: string) => key.replaceAll("\u0000", "\\u0000").replace(/[\ud800-\udfff]/g, (c) => `\\u${c.charCodeAt(0).toString(16)}`);
+
+/**
+ * One pass over a parsed body without recursion (an explicit stack, so depth costs no call frames
+ * and no path copies): refuses nesting past `maxDepth`, NUL characters (PostgreSQL text cannot
+ * store them) and lone surrogates (they would be stored as U+FFFD, silently changing the text).
+ * The path of an offending value is built only when one is found.
+ */
+export function checkJsonValue(root: unknown, maxDepth = MAX_JSON_DEPTH): void {
+  const stack: Frame[] = [{ value: root, parent: null, key: "", depth: 0 }];
+  while (stack.length > 0) {
+    const frame = stack.pop()!;
+    const { value } = frame;
+    if (typeof value === "string") {
+      if (value.includes("\u0000")) {
+        const field = framePath(frame);
+        throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || undefined);
+      }
+      if (hasLoneSurrogate(value)) {
+        const field = framePath(frame);
+        throw new ApiError(422, "invalid_text", `${field || "body"}: contains a lone UTF-16 surrogate (an unpaired \\ud800–\\udfff escape); send well-formed Unicode text.`, field || undefined);
+      }
+      continue;
     }
-    return null;
-  }
-  if (value && typeof value === "object") {
-    for (const [key, inner] of Object.entries(value)) {
-      if (key.includes("\u0000")) return [...path, key.replaceAll("\u0000", "\\u0000")];
-      const found = findNul(inner, [...path, key]);
-      if (found) return found;
+    if (value === null || typeof value !== "object") continue;
+    if (frame.depth >= maxDepth) {
+      const field = framePath(frame);
+      throw new ApiError(400, "payload_too_deep", `${field || "body"}: arrays and objects nest deeper than the limit of ${maxDepth} levels.`, field || undefined);
+    }
+    const depth = frame.depth + 1;
+    if (Array.isArray(value)) {
+      for (let i = value.length - 1; i >= 0; i--) stack.push({ value: value[i], parent: frame, key: String(i), depth });
+      continue;
+    }
+    const keys = Object.keys(value);
+    for (let i = keys.length - 1; i >= 0; i--) {
+      const key = keys[i];
+      if (key.includes("\u0000") || hasLoneSurrogate(key)) {
+        const field = framePath(frame, printable(key));
+        const what = key.includes("\u0000") ? "must not contain NUL (\\u0000) characters" : "contains a lone UTF-16 surrogate; send well-formed Unicode text";
+        throw new ApiError(key.includes("\u0000") ? 400 : 422, key.includes("\u0000") ? "validation_failed" : "invalid_text", `${field}: ${what}.`, field);
+      }
+      stack.push({ value: (value as Record<string, unknown>)[key], parent: frame, key, depth });
     }
   }
-  return null;
+}
+
+/**
+ * A JSON body is only read from requests that say so. Browsers send text/plain, form and
+ * multipart bodies cross-origin without asking; requiring application/json (which they must
+ * ask for first) keeps a cookie-carrying page elsewhere from posting to the API. Calls with an
+ * API token in the Authorization header carry no ambient credential and are not held to it.
+ */
+export function requireJsonContentType(req: Request): void {
+  if (req.headers.get("authorization") !== null) return;
+  const type = (req.headers.get("content-type") ?? "").split(";")[0].trim().toLowerCase();
+  if (type !== "application/json")
+    throw new ApiError(415, "unsupported_media_type", `content-type: must be application/json${type ? `, not ${type}` : ""}.`, "content-type");
 }
 
 export async function readJson(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<unknown> {
+  requireJsonContentType(req);
   const text = await readBodyText(req, limit);
   if (text.trim() === "") throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
   let value: unknown;
@@ -58,11 +124,7 @@ export async function readJson(req: Request, limit = MAX_JSON_BODY_BYTES): Promi
   } catch {
     throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
   }
-  const nulAt = findNul(value);
-  if (nulAt) {
-    const field = nulAt.join(".");
-    throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || undefined);
-  }
+  checkJsonValue(value);
   return value;
 }
 

@@ -20,6 +20,7 @@ export const AUDIT_ACTIONS = [
   "token.create",
   "token.revoke",
   "user.platform_role",
+  "payment.mismatch",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

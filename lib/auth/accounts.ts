@@ -4,11 +4,15 @@ import { getDb } from "@/db/client";
 import { newId, newSecret, sha256Hex } from "@/db/ids";
 import { passwordResets, users, type User } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
-import { passwordResetMail } from "@/lib/mail/templates";
+import { afterResponse } from "@/lib/api/after-response";
+import { accountExistsMail, passwordResetMail } from "@/lib/mail/templates";
 import { trySendMail } from "@/lib/mail/send";
 import { appBaseUrl } from "./config";
-import { accountKey, addressKey, isLocked, recordAttempt } from "./limiter";
+import { accountKey, addressKey, isLocked, RANGE_LOGIN_LIMIT, rangeKey, recordAttempt } from "./limiter";
+import { consumeRateLimit } from "./rate-limits";
+import { endUserSessions } from "./user-sessions";
 import { burnPasswordCheck, emailSchema, hashPassword, passwordSchema, verifyPassword } from "./password";
+import { displayNameSchema } from "@/lib/api/text";
 
 /** The one message every failed password sign-in gets, whatever the reason (unknown account, wrong password, locked). */
 export const LOGIN_ERROR_MESSAGE = "Invalid e-mail or password";
@@ -26,36 +30,28 @@ export function publicUser(user: User): PublicUser {
   return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin };
 }
 
-export const nameSchema = z
-  .string({ error: "Name is required." })
-  .trim()
-  .min(1, { error: "Name is required." })
-  .max(100, { error: "Name must be at most 100 characters." });
+export const nameSchema = displayNameSchema("Name", 100);
 
 export const signUpSchema = z.strictObject({ email: emailSchema, password: passwordSchema, name: nameSchema });
 
-function isUniqueViolation(error: unknown): boolean {
-  for (let e: unknown = error; e && typeof e === "object"; e = (e as { cause?: unknown }).cause) {
-    if ((e as { code?: unknown }).code === "23505") return true;
-  }
-  return false;
-}
-
-export async function signUp(input: z.infer<typeof signUpSchema>): Promise<User> {
+/**
+ * Signs up a new account, answering the same whether the address is new or taken: the caller
+ * learns nothing about which. Both paths hash the password (the expensive step), and the owner
+ * of an existing address gets a mail saying someone tried, sent after the answer.
+ */
+export async function signUp(input: z.infer<typeof signUpSchema>, address: string): Promise<void> {
+  await consumeRateLimit("signupPerAddress", address);
+  await consumeRateLimit("signupPerEmail", input.email, "email");
   const db = await getDb();
-  const taken = () => new ApiError(409, "email_taken", "An account with this e-mail already exists.", "email");
-  const [existing] = await db.select({ id: users.id }).from(users).where(eq(users.email, input.email));
-  if (existing) throw taken();
   const passwordHash = await hashPassword(input.password);
-  try {
-    const [user] = await db
-      .insert(users)
-      .values({ id: newId("usr"), email: input.email, name: input.name, passwordHash })
-      .returning();
-    return user;
-  } catch (error) {
-    if (isUniqueViolation(error)) throw taken();
-    throw error;
+  const [created] = await db
+    .insert(users)
+    .values({ id: newId("usr"), email: input.email, name: input.name, passwordHash })
+    .onConflictDoNothing({ target: users.email })
+    .returning({ id: users.id });
+  if (!created) {
+    const base = appBaseUrl();
+    afterResponse("account-exists mail", () => trySendMail(input.email, accountExistsMail({ signInUrl: `${base}/signin`, resetUrl: `${base}/reset` })));
   }
 }
 
@@ -69,10 +65,10 @@ export async function authenticateWithPassword(rawEmail: unknown, rawPassword: u
   const password = rawPassword;
   if (email === "" || email.length > 254 || email.includes("\u0000") || password.length > 1000) return null;
   const db = await getDb();
-  const keys = [accountKey(email), addressKey(address)];
-  for (const key of keys) {
-    if (await isLocked(db, key)) return null;
-  }
+  const keys = [accountKey(email), addressKey(address), rangeKey(address)];
+  if (await isLocked(db, keys[0])) return null;
+  if (await isLocked(db, keys[1])) return null;
+  if (await isLocked(db, keys[2], new Date(), RANGE_LOGIN_LIMIT)) return null;
   const [user] = await db.select().from(users).where(eq(users.email, email));
   let ok = false;
   if (user?.passwordHash) ok = await verifyPassword(password, user.passwordHash);
@@ -96,8 +92,17 @@ export const passwordResetConfirmSchema = z.strictObject({
 /** At most this many reset mails per account per hour (common practice against mail flooding). */
 const RESET_MAILS_PER_HOUR = 5;
 
-/** Always succeeds from the caller's view, so the answer does not reveal whether an account exists. */
-export async function requestPasswordReset(email: string): Promise<void> {
+/**
+ * Always answers the same, and in the same time, whether or not an account exists: after the
+ * rate limits (which count every request alike), the lookup and the mail run after the answer.
+ */
+export async function requestPasswordReset(email: string, address: string): Promise<void> {
+  await consumeRateLimit("resetPerAddress", address);
+  await consumeRateLimit("resetPerEmail", email, "email");
+  afterResponse("password-reset mail", () => sendPasswordReset(email));
+}
+
+async function sendPasswordReset(email: string): Promise<void> {
   const db = await getDb();
   const [user] = await db.select().from(users).where(eq(users.email, email));
   if (!user) return;
@@ -139,6 +144,8 @@ export async function confirmPasswordReset(input: z.infer<typeof passwordResetCo
       .set({ passwordHash, emailVerified: now, sessionsRevokedAt: now })
       .where(eq(users.id, reset.userId))
       .returning();
+    // And ends every session row of the account (a new password means nobody else stays signed in).
+    await endUserSessions(user.id, { db: tx });
     // Proving control of the mailbox lifts a lock on the account.
     await recordAttempt(tx, [accountKey(user.email)], true, now);
   });

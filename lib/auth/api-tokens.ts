@@ -6,6 +6,7 @@ import { API_TOKEN_SCOPES, apiTokens, type ApiToken, type ApiTokenScope, type Us
 import { writeAudit } from "@/lib/audit/audit";
 import { randomBytes } from "node:crypto";
 import { ApiError } from "@/lib/errors";
+import { displayNameSchema } from "@/lib/api/text";
 
 export const API_TOKEN_SECRET_PREFIX = "kd_";
 /** Characters of the secret kept in clear for display ("kd_" plus 8). */
@@ -14,11 +15,7 @@ const DISPLAY_PREFIX_LENGTH = 11;
 const LAST_USED_RESOLUTION_MS = 60_000;
 
 export const createTokenSchema = z.strictObject({
-  name: z
-    .string({ error: "Name is required." })
-    .trim()
-    .min(1, { error: "Name is required." })
-    .max(100, { error: "Name must be at most 100 characters." }),
+  name: displayNameSchema("Name", 100),
   scopes: z
     .array(z.enum(API_TOKEN_SCOPES, { error: 'Each scope must be "read" or "write".' }), { error: "Scopes are required." })
     .min(1, { error: "Choose at least one scope." })

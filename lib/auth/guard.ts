@@ -4,6 +4,7 @@ import { memberships, studios, type ApiToken, type Studio, type StudioRole, type
 import { ApiError } from "@/lib/errors";
 import { toErrorResponse } from "@/lib/api/respond";
 import { authenticateApiToken } from "./api-tokens";
+import { assertSameOriginWrite } from "./same-origin";
 import { userFromCookieHeader } from "./session";
 
 /**
@@ -142,6 +143,7 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
       // No stored id or token contains NUL (PostgreSQL text cannot): such a path names nothing.
       const values = Object.values(params).flat();
       if (values.some((v) => typeof v === "string" && v.includes("\u0000"))) throw new ApiError(404, "not_found", "Not found.");
+      assertSameOriginWrite(req);
       let actor: Actor | null;
       if (policy.access === "public") {
         // A public route does not fail because of a stale token; it just runs anonymously.

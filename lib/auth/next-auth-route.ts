@@ -4,6 +4,9 @@ import { ApiError } from "@/lib/errors";
 import { readBodyText } from "@/lib/api/body";
 import { toErrorResponse } from "@/lib/api/respond";
 import { authOptions } from "./options";
+import { appBaseUrl } from "./config";
+import { clientAddress } from "./limiter";
+import { consumeRateLimit } from "./rate-limits";
 import { parseCookieHeader } from "./session";
 
 /**
@@ -41,6 +44,21 @@ async function runNextAuth(req: Request, segments: string[]): Promise<Response> 
         throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
       body = Object.fromEntries(Object.entries(parsed).map(([k, v]) => [k, String(v)]));
     } else body = Object.fromEntries(new URLSearchParams(text));
+  }
+  // Sign-in links are mail: limited per address and per client address before next-auth sends one.
+  if (req.method === "POST" && segments[0] === "signin" && segments[1] === "email") {
+    const email = (body?.email ?? "").trim().toLowerCase();
+    try {
+      await consumeRateLimit("magicLinkPerAddress", clientAddress(req.headers));
+      if (email) await consumeRateLimit("magicLinkPerEmail", email, "email");
+    } catch (error) {
+      if (!(error instanceof ApiError)) throw error;
+      // next-auth's client reads `url` and its `error` parameter; our JSON error rides along.
+      return new Response(JSON.stringify({ url: `${appBaseUrl()}/signin?error=TooManyRequests`, error: { code: error.code, message: error.message, field: error.field } }), {
+        status: error.status,
+        headers: { "content-type": "application/json", "cache-control": "no-store", ...error.headers },
+      });
+    }
   }
   const headers: Record<string, string> = Object.fromEntries(req.headers);
   const apiReq = {

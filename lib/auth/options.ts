@@ -3,11 +3,14 @@ import CredentialsProvider from "next-auth/providers/credentials";
 import EmailProvider from "next-auth/providers/email";
 import { magicLinkMail } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/send";
+import { afterResponse } from "@/lib/api/after-response";
 import { mailFrom } from "@/lib/mail/transport";
 import { authenticateWithPassword, findUserById, LOGIN_ERROR_MESSAGE } from "./accounts";
 import { kickdriftAdapter } from "./adapter";
+import { endSession, openSession } from "./user-sessions";
 import { getAuthSecret } from "./config";
 import { clientAddress } from "./limiter";
+import { safeCallbackUrl } from "@/lib/ui/callback-url";
 import "./session-types";
 
 export const SESSION_MAX_AGE_S = 30 * 24 * 3600;
@@ -47,15 +50,28 @@ export const authOptions: AuthOptions = {
       // The transport is ours (SMTP_URL or the local fake); next-auth only builds the link.
       server: {},
       async sendVerificationRequest({ identifier, url }) {
-        await sendMail(identifier, magicLinkMail({ url, host: new URL(url).host }));
+        // After the answer, so a request for an address with an account takes as long as one without.
+        afterResponse("sign-in link mail", () => sendMail(identifier, magicLinkMail({ url, host: new URL(url).host })));
       },
     }),
   ],
+  events: {
+    // Sign-out ends the session on the server too, so a copied cookie stops working at once.
+    async signOut({ token }) {
+      if (typeof token?.sid === "string") await endSession(token.sid);
+    },
+  },
   callbacks: {
+    // Every redirect next-auth makes (after sign-in, sign-out, a magic link) goes through the same check as our pages.
+    async redirect({ url, baseUrl }) {
+      return `${baseUrl}${safeCallbackUrl(url, "/studios")}`;
+    },
     async jwt({ token, user }) {
       if (user) {
         token.sub = user.id;
         token.id = user.id;
+        // Each sign-in opens a server-side session; the cookie is only as good as its row.
+        token.sid = await openSession(user.id);
         const row = await findUserById(user.id);
         token.isAdmin = row?.isAdmin ?? false;
         token.name = row?.name ?? user.name;

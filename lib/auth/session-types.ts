@@ -11,6 +11,8 @@ declare module "next-auth" {
 declare module "next-auth/jwt" {
   interface JWT {
     id?: string;
+    /** The server-side session (user_sessions row) this cookie belongs to. */
+    sid?: string;
     isAdmin?: boolean;
   }
 }

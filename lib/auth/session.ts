@@ -1,11 +1,12 @@
-import { eq } from "drizzle-orm";
+import { and, eq, isNull } from "drizzle-orm";
 import { decode } from "next-auth/jwt";
 import { getDb } from "@/db/client";
-import { users, type User } from "@/db/schema";
+import { users, userSessions, type User } from "@/db/schema";
 import { getAuthSecret, usesSecureCookies } from "./config";
 
 export function parseCookieHeader(header: string | null | undefined): Record<string, string> {
-  const cookies: Record<string, string> = {};
+  // No prototype: a cookie named "constructor" or "__proto__" is just a cookie.
+  const cookies: Record<string, string> = Object.create(null) as Record<string, string>;
   if (!header) return cookies;
   for (const part of header.split(";")) {
     const eqAt = part.indexOf("=");
@@ -36,6 +37,11 @@ function sessionCookieValue(cookies: Record<string, string>): string | undefined
   return chunks.length ? chunks.map((k) => cookies[k]).join("") : undefined;
 }
 
+/** Whether a Cookie header carries a session cookie at all (valid or not). */
+export function hasSessionCookie(cookieHeader: string | null | undefined): boolean {
+  return sessionCookieValue(parseCookieHeader(cookieHeader)) !== undefined;
+}
+
 /**
  * JWT `iat` has whole seconds: a session issued in the same second as the revocation counts as
  * after it (the sign-in that follows a reset or a first magic link happens in that same request).
@@ -44,26 +50,38 @@ function issuedAfterRevocation(issuedAtS: number | undefined, revokedAt: Date): 
   return issuedAtS !== undefined && issuedAtS >= Math.floor(revokedAt.getTime() / 1000);
 }
 
-/**
- * The signed-in user from a Cookie header, read fresh from the database (so a deleted user or a
- * revoked admin flag takes effect at once), or null when there is no valid session.
- */
-export async function userFromCookieHeader(cookieHeader: string | null | undefined): Promise<User | null> {
+/** The session id (`sid`) and user of a valid session cookie, before any database check. */
+export async function decodeSessionCookie(cookieHeader: string | null | undefined): Promise<{ userId: string; sessionId: string; issuedAtS?: number } | null> {
   const value = sessionCookieValue(parseCookieHeader(cookieHeader));
   if (!value) return null;
-  let userId: string | undefined;
-  let issuedAtS: number | undefined;
   try {
     const token = await decode({ token: value, secret: getAuthSecret() });
-    userId = typeof token?.id === "string" ? token.id : token?.sub;
-    issuedAtS = typeof token?.iat === "number" ? token.iat : undefined;
+    const userId = typeof token?.id === "string" ? token.id : token?.sub;
+    const sessionId = typeof token?.sid === "string" ? token.sid : undefined;
+    // A cookie without a session id predates server-side sessions and cannot be revoked: not accepted.
+    if (!userId || !sessionId) return null;
+    return { userId, sessionId, issuedAtS: typeof token?.iat === "number" ? token.iat : undefined };
   } catch {
     return null;
   }
-  if (!userId) return null;
+}
+
+/**
+ * The signed-in user from a Cookie header, read fresh from the database (so a deleted user or a
+ * revoked admin flag takes effect at once), or null when there is no valid session: the cookie's
+ * session row must exist, belong to the user and not be revoked.
+ */
+export async function userFromCookieHeader(cookieHeader: string | null | undefined): Promise<User | null> {
+  const decoded = await decodeSessionCookie(cookieHeader);
+  if (!decoded) return null;
   const db = await getDb();
-  const [user] = await db.select().from(users).where(eq(users.id, userId));
-  if (!user) return null;
-  if (user.sessionsRevokedAt && !issuedAfterRevocation(issuedAtS, user.sessionsRevokedAt)) return null;
+  const [row] = await db
+    .select({ user: users })
+    .from(userSessions)
+    .innerJoin(users, eq(users.id, userSessions.userId))
+    .where(and(eq(userSessions.id, decoded.sessionId), eq(userSessions.userId, decoded.userId), isNull(userSessions.revokedAt)));
+  if (!row) return null;
+  const { user } = row;
+  if (user.sessionsRevokedAt && !issuedAfterRevocation(decoded.issuedAtS, user.sessionsRevokedAt)) return null;
   return user;
 }

@@ -10,12 +10,13 @@ import type { Db } from "@/db/client";
 import { invoices, stripeEvents, studios, type InvoiceLineRecord } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { parseWith } from "@/lib/api/body";
+import { writeAudit } from "@/lib/audit/audit";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
 import { invoiceFinalizedMail, receiptMail } from "./mail";
-import { findPack } from "./packs";
+import { findPack, type CreditPack } from "./packs";
 import { stripeFailure } from "./stripe";
 
 /** The event types the endpoint subscribes to; anything else is refused with 400. */
@@ -33,7 +34,8 @@ export const HANDLED_EVENT_TYPES = [
 const eventSchema = z.object({
   id: z.string().regex(/^evt_[A-Za-z0-9_]+$/, "must be a Stripe event id (evt_…)").max(255),
   type: z.string().min(1).max(100),
-  data: z.object({ object: z.object({ id: z.string().min(1).max(255) }).loose() }).loose(),
+  // Stripe object ids are ASCII letters, digits and underscores; anything else (a lone surrogate, say) names nothing of Stripe's.
+  data: z.object({ object: z.object({ id: z.string().min(1).max(255).regex(/^[A-Za-z0-9_]+$/, "must be a Stripe object id (letters, digits, _)") }).loose() }).loose(),
 }).loose();
 
 export interface WebhookResult {
@@ -59,7 +61,8 @@ export async function handleStripeEvent(db: Db, stripe: Stripe, event: unknown):
   let outcome: string;
   try {
     if (type.startsWith("checkout.session.")) {
-      const session = await stripe.checkout.sessions.retrieve(objectId);
+      // With its line items, so what was paid for is checked against the pack, not only the metadata.
+      const session = await stripe.checkout.sessions.retrieve(objectId, { expand: ["line_items"] });
       outcome = await creditCheckout(db, session, { id, type });
     } else {
       const invoice = await stripe.invoices.retrieve(objectId);
@@ -78,6 +81,25 @@ async function recordEvent(db: Pick<Db, "insert">, event: { id: string; type: st
   await db.insert(stripeEvents).values({ id: event.id, type: event.type, outcome }).onConflictDoNothing();
 }
 
+/**
+ * Why a paid session does not pay for what its metadata claims, or null when it does: exactly one
+ * line item, at the pack's unit price, for the metadata's quantity, and a session total and
+ * currency equal to the pack's price × quantity. Metadata alone is not proof of payment.
+ */
+export function paymentMismatch(session: Stripe.Checkout.Session, pack: CreditPack, quantity: number): string | null {
+  const expected = pack.priceCents * quantity;
+  if (session.currency !== pack.currency) return `currency is ${String(session.currency)}, the pack is priced in ${pack.currency}`;
+  if (session.amount_total !== expected) return `amount_total is ${String(session.amount_total)} cents, ${pack.id} × ${quantity} costs ${expected} cents`;
+  const lines = session.line_items?.data;
+  if (!lines) return "the session's line items could not be read";
+  if (lines.length !== 1) return `the session has ${lines.length} line items, a pack purchase has 1`;
+  const [line] = lines;
+  if (line.quantity !== quantity) return `the line item's quantity is ${String(line.quantity)}, the metadata says ${quantity}`;
+  if (line.price?.unit_amount !== pack.priceCents) return `the line item's unit price is ${String(line.price?.unit_amount)} cents, ${pack.id} costs ${pack.priceCents}`;
+  if (line.currency !== pack.currency || line.amount_total !== expected) return `the line item totals ${String(line.amount_total)} ${String(line.currency)}, expected ${expected} ${pack.currency}`;
+  return null;
+}
+
 /** Credits a paid Checkout session once (key purchase:{sessionId}), whichever event or call sees it first. */
 export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, event: { id: string; type: string } | null): Promise<string> {
   const studioId = session.metadata?.studio_id ?? session.client_reference_id ?? null;
@@ -85,11 +107,26 @@ export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, e
   const quantity = Number(session.metadata?.quantity ?? "1");
   return db.transaction(async (tx) => {
     let outcome: string;
+    let mismatch: string | null = null;
     const [studio] = studioId ? await tx.select().from(studios).where(eq(studios.id, studioId)) : [];
     if (session.status !== "complete" || session.payment_status !== "paid") outcome = `ignored: session ${session.id} is ${session.status}/${session.payment_status}`;
     else if (!studio || !pack || !Number.isInteger(quantity) || quantity < 1) outcome = `ignored: session ${session.id} names no studio or pack of ours`;
     else if (typeof session.amount_total !== "number" || !Number.isInteger(session.amount_total)) outcome = `ignored: session ${session.id} has no integer amount`;
-    else {
+    else if ((mismatch = paymentMismatch(session, pack, quantity))) {
+      // Credits nothing; the audit log (admin console) keeps what was paid against what was claimed.
+      outcome = `refused: session ${session.id} does not pay for its pack: ${mismatch}`;
+      console.warn(`[billing] ${outcome}`);
+      await writeAudit(tx, {
+        actor: null,
+        studioId: studio.id,
+        action: "payment.mismatch",
+        subjectType: "checkout_session",
+        subjectId: session.id,
+        before: { packId: pack.id, quantity, expectedCents: pack.priceCents * quantity, currency: pack.currency },
+        after: { amountTotalCents: session.amount_total, currency: session.currency },
+        reason: mismatch,
+      });
+    } else {
       const computeMs = pack.minutes * quantity * 60_000;
       const written = await appendLedgerEntry(tx, {
         studioId: studio.id,

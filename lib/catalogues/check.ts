@@ -114,7 +114,9 @@ export function pairName(a: CatalogueObject, b: CatalogueObject): string {
 
 /** The stiffness of one object under the settings; throws when neither a group nor a single stiffness gives one. */
 function objectStiffness(object: CatalogueObject, settings: CheckSettings): number {
-  const fromGroup = object.group !== null ? settings.groupStiffness?.[object.group] : undefined;
+  // Own properties only: a group named "constructor" or "toString" must not read Object.prototype.
+  const groups = settings.groupStiffness;
+  const fromGroup = object.group !== null && groups !== undefined && Object.hasOwn(groups, object.group) ? groups[object.group] : undefined;
   const value = fromGroup ?? settings.stiffness;
   if (value === undefined) {
     throw new CheckInputError(

@@ -14,6 +14,7 @@ import Papa from "papaparse";
 import { z } from "zod";
 import { guardFormula } from "../sweeps/results";
 import { formatLimit, numericRule, rangeViolation, type NumericParameter } from "../sweeps/parameters";
+import { nameTextProblem } from "@/lib/api/text";
 
 export const CATALOGUE_LIMITS = {
   /** Bytes of one uploaded file. */
@@ -98,7 +99,9 @@ const HEADER_ALIASES: Record<string, CatalogueColumn> = {
 };
 
 export function columnOfHeader(header: string): CatalogueColumn | null {
-  return HEADER_ALIASES[headerKey(header)] ?? null;
+  const key = headerKey(header);
+  // Own properties only: a header named "constructor" or "__proto__" is not a column.
+  return Object.hasOwn(HEADER_ALIASES, key) ? HEADER_ALIASES[key] : null;
 }
 
 // ---------------------------------------------------------------------------
@@ -116,7 +119,7 @@ const DECIMAL_NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
 function numberCell(column: keyof typeof NUMERIC_RULES) {
   const rule = NUMERIC_RULES[column];
   return z.string().transform((raw, ctx) => {
-    const text = raw.trim();
+    const text = raw.trim().normalize("NFC");
     if (text === "") {
       ctx.addIssue({ code: "custom", message: `missing value: ${COLUMN_HELP[column]}` });
       return z.NEVER;
@@ -141,7 +144,7 @@ function numberCell(column: keyof typeof NUMERIC_RULES) {
 
 function textCell(column: "name" | "group", required: boolean) {
   return z.string().transform((raw, ctx): string | null => {
-    const text = raw.trim();
+    const text = raw.trim().normalize("NFC");
     if (text === "") {
       if (required) ctx.addIssue({ code: "custom", message: `missing value: ${COLUMN_HELP[column]}` });
       return required ? z.NEVER : null;
@@ -150,8 +153,14 @@ function textCell(column: "name" | "group", required: boolean) {
       ctx.addIssue({ code: "custom", message: `${text.length} characters; the limit is ${CATALOGUE_LIMITS.maxNameLength}` });
       return z.NEVER;
     }
-    if (/[\u0000-\u001f\u007f]/.test(text)) {
-      ctx.addIssue({ code: "custom", message: "holds a control character (tab, line break or NUL)" });
+    const problem = nameTextProblem(text);
+    if (problem) {
+      ctx.addIssue({ code: "custom", message: problem });
+      return z.NEVER;
+    }
+    if (column === "group" && text === "__proto__") {
+      // A JSON object cannot hold this key as data (groupStiffness would silently lose it).
+      ctx.addIssue({ code: "custom", message: '"__proto__" is reserved; choose another group name' });
       return z.NEVER;
     }
     return text;

@@ -66,3 +66,21 @@ export function passwordResetMail(input: { url: string }): MailContent {
     ),
   };
 }
+
+/** Sent instead of an error when someone signs up with an address that already has an account. */
+export function accountExistsMail(input: { signInUrl: string; resetUrl: string }): MailContent {
+  const footer = "If you did not try to create an account, you can ignore this message; nothing was changed.";
+  return {
+    subject: "You already have a Kickdrift account",
+    text: `Someone (maybe you) tried to create a Kickdrift account with this address, which already has one.\n\nSign in:\n\n${input.signInUrl}\n\nForgot your password? Choose a new one:\n\n${input.resetUrl}\n\n${footer}\n`,
+    html: layout(
+      "You already have an account",
+      [
+        "Someone (maybe you) tried to create a Kickdrift account with this address, which already has one. No second account was made.",
+        `Forgot your password? Choose a new one at ${input.resetUrl}`,
+      ],
+      { label: "Sign in", url: input.signInUrl },
+      footer,
+    ),
+  };
+}

@@ -4,6 +4,7 @@ import { getDb, type DbOrTx } from "@/db/client";
 import { memberships, STUDIO_ROLES, users, type StudioRole, type User } from "@/db/schema";
 import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
+import { endUserSessions } from "@/lib/auth/user-sessions";
 
 export const roleSchema = z.enum(STUDIO_ROLES, { error: `Role must be one of ${STUDIO_ROLES.join(", ")}.` });
 export const changeRoleSchema = z.strictObject({ role: roleSchema });
@@ -51,6 +52,9 @@ export async function changeRole(studioId: string, userId: string, role: StudioR
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("demote");
     await tx.update(memberships).set({ role }).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+    // Losing a role to someone else's decision ends the member's sessions: whatever a page or tab
+    // still holds is signed out. Stepping down oneself keeps one's own sessions.
+    if (actor?.id !== userId) await endUserSessions(userId, { db: tx });
     await writeAudit(tx, { actor, studioId, action: "member.role_change", subjectType: "user", subjectId: userId, before: { role: target.role }, after: { role } });
   });
   const member = (await listMembers(studioId)).find((m) => m.userId === userId);
@@ -67,6 +71,7 @@ export async function removeMember(studioId: string, userId: string, actor: Chan
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("remove");
     await tx.delete(memberships).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));
+    if (actor?.id !== userId) await endUserSessions(userId, { db: tx });
     await writeAudit(tx, { actor, studioId, action: "member.remove", subjectType: "user", subjectId: userId, before: { role: target.role }, after: null });
   });
 }

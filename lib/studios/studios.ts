@@ -4,13 +4,10 @@ import { getDb } from "@/db/client";
 import { newId } from "@/db/ids";
 import { memberships, studios, users, type Studio, type StudioRole } from "@/db/schema";
 import { appendLedgerEntry, welcomeGrant } from "@/lib/ledger/ledger";
+import { displayNameSchema } from "@/lib/api/text";
 
 export const createStudioSchema = z.strictObject({
-  name: z
-    .string({ error: "Name is required." })
-    .trim()
-    .min(1, { error: "Name is required." })
-    .max(80, { error: "Name must be at most 80 characters." }),
+  name: displayNameSchema("Name", 80),
 });
 
 export interface StudioView {

@@ -11,10 +11,11 @@ import { metering } from "./metering";
 import { workUnitCalibration } from "./work-unit-calibration";
 import { pairThroughput } from "./pair-throughput";
 import { queueEndToEnd } from "./queue-end-to-end";
+import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening];
 
 async function main() {
   const wanted = process.argv.slice(2);

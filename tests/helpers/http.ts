@@ -1,5 +1,6 @@
 import { encode } from "next-auth/jwt";
 import type { User } from "@/db/schema";
+import { openSession } from "@/lib/auth/user-sessions";
 import { TEST_AUTH_SECRET, TEST_BASE_URL } from "./db";
 
 export type RouteHandler = (req: Request, context: { params: Promise<Record<string, string | string[]>> }) => Promise<Response>;
@@ -19,6 +20,9 @@ export function buildRequest(options: CallOptions): Request {
   const headers = new Headers(options.headers);
   if (options.cookie) headers.set("cookie", options.cookie);
   if (options.bearer) headers.set("authorization", `Bearer ${options.bearer}`);
+  // A browser sends Origin with every fetch that is not GET/HEAD; our own pages send ours.
+  const method = (options.method ?? "GET").toUpperCase();
+  if (method !== "GET" && method !== "HEAD" && !headers.has("origin")) headers.set("origin", TEST_BASE_URL);
   let body: string | FormData | undefined;
   if (options.body instanceof FormData) {
     body = options.body;
@@ -44,8 +48,9 @@ export async function call(handler: unknown, options: CallOptions): Promise<{ st
 
 /** A next-auth session cookie for the user, as next-auth itself would mint it after sign-in. */
 export async function sessionCookie(user: Pick<User, "id" | "email" | "name">): Promise<string> {
+  const sid = await openSession(user.id);
   const value = await encode({
-    token: { sub: user.id, id: user.id, email: user.email, name: user.name },
+    token: { sub: user.id, id: user.id, sid, email: user.email, name: user.name },
     secret: TEST_AUTH_SECRET,
   });
   return `next-auth.session-token=${value}`;

@@ -1,5 +1,6 @@
 import * as nextAuthRoute from "@/app/api/auth/[...nextauth]/route";
 import { buildRequest, mergeCookies } from "./http";
+import { settleAfterResponse } from "@/lib/api/after-response";
 
 type Segments = string[];
 
@@ -73,6 +74,8 @@ export async function latestCapturedMailTo(email: string) {
 export async function magicLinkSignIn(email: string, callbackUrl = "http://localhost:3000/studios"): Promise<{ response: Response; jar: string; location: string | null }> {
   const { csrfToken, cookie } = await csrf();
   await nextAuth(["signin", "email"], { method: "POST", form: { csrfToken, email, callbackUrl, json: "true" }, cookie });
+  // The link is mailed after the answer (the answer's timing must not depend on the address).
+  await settleAfterResponse();
   const mail = await latestCapturedMailTo(email);
   const link = new URL(mail.links.find((l) => l.includes("/api/auth/callback/email"))!);
   const open = await nextAuth(["callback", "email"], { search: link.search, cookie });

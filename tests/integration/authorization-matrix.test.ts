@@ -193,12 +193,13 @@ const SWEEP_WRITERS = (ok: number) =>
   row((a) => (a === "finance" || a === "tokenRead" ? 403 : STUDIO_READ_TOKENS_OK(ok)[a]));
 
 export const ROUTES: RouteRow[] = [
-  { route: "v1/signup", method: "POST", body: () => ({ email: uniqueEmail("signup"), password: "tidepool-crates", name: "New Person" }), expect: PUBLIC(201) },
+  { route: "v1/signup", method: "POST", body: () => ({ email: uniqueEmail("signup"), password: "tidepool-crates", name: "New Person" }), expect: PUBLIC(202) },
   { route: "v1/password-reset", method: "POST", body: () => ({ email: uniqueEmail("nobody") }), expect: PUBLIC(202) },
   { route: "v1/password-reset/confirm", method: "POST", body: (w) => ({ token: w.resetSecret, password: "a-new-long-password" }), expect: PUBLIC(200) },
   { route: "v1/me", method: "GET", expect: SIGNED_IN_PERSON(200) },
   // A token presents itself (its studio and scopes); people are told to use /me.
   { route: "v1/token", method: "GET", expect: row((a) => (a === "anonymous" || a === "tokenRevoked" ? 401 : a === "tokenRead" || a === "tokenWrite" || a === "otherStudioToken" ? 200 : 403)) },
+  { route: "v1/me/sessions", method: "DELETE", expect: SIGNED_IN_PERSON(200) },
   { route: "v1/studios", method: "GET", expect: SIGNED_IN_PERSON(200) },
   { route: "v1/studios", method: "POST", body: () => ({ name: "Driftwood Puck Co" }), expect: SIGNED_IN_PERSON(201) },
   { route: "v1/studios/[studioId]", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
@@ -217,7 +218,8 @@ export const ROUTES: RouteRow[] = [
     params: (w) => ({ studioId: w.studioId, userId: w.subjectUserId }),
     expect: OWNER_MANAGES(200),
   },
-  { route: "v1/studios/[studioId]/invites", method: "GET", params: studio, expect: STUDIO_READ_NO_TOKENS(200) },
+  // Owners only (docs/api.md): invitees' addresses are not for every member.
+  { route: "v1/studios/[studioId]/invites", method: "GET", params: studio, expect: OWNER_MANAGES(200) },
   {
     route: "v1/studios/[studioId]/invites",
     method: "POST",
@@ -231,7 +233,8 @@ export const ROUTES: RouteRow[] = [
     params: (w) => ({ studioId: w.studioId, inviteId: w.pendingInviteId }),
     expect: OWNER_MANAGES(200),
   },
-  { route: "v1/studios/[studioId]/tokens", method: "GET", params: studio, expect: STUDIO_READ_NO_TOKENS(200) },
+  // Owners only (docs/api.md): token names, prefixes and last use are not for every member.
+  { route: "v1/studios/[studioId]/tokens", method: "GET", params: studio, expect: OWNER_MANAGES(200) },
   {
     route: "v1/studios/[studioId]/tokens",
     method: "POST",

@@ -18,6 +18,7 @@ import { closeTestDb, useFreshDb, TEST_BASE_URL } from "../helpers/db";
 import { makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf, mergeCookies, sessionCookie } from "../helpers/http";
 import { csrf, nextAuth } from "../helpers/next-auth";
+import { settleAfterResponse } from "@/lib/api/after-response";
 
 interface Message {
   id: string;
@@ -56,6 +57,8 @@ async function magicLinkSignIn(email: string, callbackUrl: string): Promise<stri
   const { csrfToken, cookie } = await csrf();
   const ask = await nextAuth(["signin", "email"], { method: "POST", form: { csrfToken, email, callbackUrl, json: "true" }, cookie });
   expect(ask.status).toBe(200);
+  // The link is mailed after the answer (issue 18).
+  await settleAfterResponse();
   const mail = await latestMailTo(email);
   expect(mail.subject).toBe("Your Kickdrift sign-in link");
   const link = new URL(mail.links.find((l) => l.includes("/api/auth/callback/email"))!);
@@ -210,6 +213,7 @@ describe("invite → mail → accept", () => {
     const email = uniqueEmail("once");
     const { csrfToken, cookie } = await csrf();
     await nextAuth(["signin", "email"], { method: "POST", form: { csrfToken, email, callbackUrl: `${TEST_BASE_URL}/studios`, json: "true" }, cookie });
+    await settleAfterResponse();
     const link = new URL((await latestMailTo(email)).links.find((l) => l.includes("/api/auth/callback/email"))!);
     const first = await nextAuth(["callback", "email"], { search: link.search });
     expect(first.headers.getSetCookie().some((c) => c.startsWith("next-auth.session-token="))).toBe(true);

@@ -61,9 +61,12 @@ describe("the last owner", () => {
     expect((await patchRole(studioId, engineer.id, "engineer", cookie)).status).toBe(403);
     const newOwnerCookie = await sessionCookie(engineer);
     expect((await remove(studioId, owner.id, newOwnerCookie)).status).toBe(200);
-    // The removed person no longer sees the studio at all.
+    // Removal by another owner ended the removed person's sessions (issue 18)…
     const gone = await call(studioRoute.GET, { path: "/x", params: { studioId }, cookie });
-    expect(gone.status).toBe(404);
+    expect(gone.status).toBe(401);
+    // …and signed in afresh they no longer see the studio at all.
+    const fresh = await call(studioRoute.GET, { path: "/x", params: { studioId }, cookie: await sessionCookie(owner) });
+    expect(fresh.status).toBe(404);
     // And the one remaining owner is protected again.
     expect((await remove(studioId, engineer.id, newOwnerCookie)).status).toBe(409);
   });
@@ -80,10 +83,11 @@ describe("the last owner", () => {
       patchRole(studioId, a.id, "engineer", await sessionCookie(b)),
     ]);
     // One wins. The other is refused: 409 if both passed the guard before either wrote (the row lock
-    // serialises them), 403 if the winner had already demoted the loser before the loser's guard ran.
+    // serialises them), 401 if the winner's demotion had already ended the loser's session (issue 18)
+    // before the loser's guard ran.
     const statuses = [ra.status, rb.status].sort();
     expect(statuses[0]).toBe(200);
-    expect([403, 409]).toContain(statuses[1]);
+    expect([401, 409]).toContain(statuses[1]);
     const owners = (await db.select().from(memberships).where(eq(memberships.studioId, studioId))).filter((m) => m.role === "owner");
     expect(owners).toHaveLength(1);
   });

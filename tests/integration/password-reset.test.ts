@@ -3,6 +3,7 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { mailMessages, passwordResets, users } from "@/db/schema";
+import { settleAfterResponse } from "@/lib/api/after-response";
 import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import * as resetRoute from "@/app/api/v1/password-reset/route";
 import * as confirmRoute from "@/app/api/v1/password-reset/confirm/route";
@@ -25,8 +26,11 @@ afterAll(async () => {
 const OLD = "old-password-of-the-puck";
 const NEW = "new-password-for-crates";
 
+/** Asks for a reset and waits for the work done after the answer (lookup and mail, issue 18). */
 async function requestReset(email: string) {
-  return call(resetRoute.POST, { method: "POST", path: "/api/v1/password-reset", body: { email } });
+  const res = await call(resetRoute.POST, { method: "POST", path: "/api/v1/password-reset", body: { email } });
+  await settleAfterResponse();
+  return res;
 }
 
 async function tokenFromMail(email: string): Promise<string> {

@@ -44,7 +44,7 @@ describe("a pre-registered account", () => {
     const victim = uniqueEmail("victim");
     const squatter = await minutesAgo(5, async () => {
       const signup = await call(signupRoute.POST, { method: "POST", path: "/api/v1/signup", body: { email: victim, password: "squatters-password", name: "Not Them" } });
-      expect(signup.status).toBe(201);
+      expect(signup.status).toBe(202);
       return passwordSignIn(victim, "squatters-password", "198.51.100.200");
     });
     expect(squatter.ok).toBe(true);

@@ -24,7 +24,9 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
   try {
     event = stripe.webhooks.constructEvent(raw, signature, webhookSecret);
   } catch (error) {
-    if (error instanceof Stripe.errors.StripeSignatureVerificationError)
+    // By the error's type, not instanceof: the SDK the client was built from may be another copy
+    // of the module (its CommonJS and ESM builds load separately), whose classes differ.
+    if (error instanceof Stripe.errors.StripeSignatureVerificationError || (error as { type?: unknown })?.type === "StripeSignatureVerificationError")
       throw new ApiError(400, "invalid_signature", "The Stripe-Signature does not match the body (or is too old).", "stripe-signature");
     throw new ApiError(400, "invalid_json", "The signed body is not a JSON event.");
   }

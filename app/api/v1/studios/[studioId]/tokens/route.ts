@@ -7,8 +7,8 @@ import { json } from "@/lib/api/respond";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-// Any member sees the list (names, prefixes, dates; never secrets); tokens never manage tokens.
-export const GET = withAuth({ access: "studio", roles: "member", token: "never" }, async ({ studio }) => {
+// Owners only, as documented: names, prefixes, last use and invitees' addresses are not for every member.
+export const GET = withAuth(OWNERS_ONLY, async ({ studio }) => {
   return json({ tokens: await listApiTokens(studio.id) });
 });
 
