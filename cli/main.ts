@@ -26,8 +26,10 @@ interface Quote {
   cells: number;
   cachedCells: number;
   cellsToRun: number;
-  estimatedComputeMs: number;
-  band: { lowMs: number; highMs: number };
+  /** The most the sweep can cost (billed compute ms); the studio is never billed above it. */
+  ceilingMs: number;
+  /** What the sweep is expected to cost (billed compute ms). */
+  expectedMs: number;
   balanceMs: number;
   balanceAfterMs: number;
   warnings: string[];
@@ -131,18 +133,21 @@ const minutes = (ms: number) => (ms / 60_000).toFixed(2);
 function printQuote(quote: Quote): void {
   note(
     `Quote: ${quote.cells} cells (${quote.cachedCells} from the studio's stored results, ${quote.cellsToRun} to run); ` +
-      `estimated ${minutes(quote.estimatedComputeMs)} compute minutes (${quote.estimatedComputeMs} ms; expected range ${minutes(quote.band.lowMs)}–${minutes(quote.band.highMs)}); ` +
+      `expected ${minutes(quote.expectedMs)} compute minutes (${quote.expectedMs} ms), at most ${minutes(quote.ceilingMs)} (${quote.ceilingMs} ms, the ceiling); ` +
       `balance ${minutes(quote.balanceMs)} → ${minutes(quote.balanceAfterMs)} minutes after.`,
   );
   for (const warning of quote.warnings ?? []) note(`Quote warning: ${warning}`);
 }
 
-/** Refuses, before anything is submitted, a quote whose estimate exceeds --ceiling (compute minutes). */
+/**
+ * Refuses, before anything is submitted, a quote whose ceiling (the most the sweep can cost) exceeds
+ * --ceiling (compute minutes): the build's budget holds whatever the cells turn out to cost.
+ */
 function guardCeiling(quote: Quote, ceilingMinutes: number | undefined): void {
   if (ceilingMinutes === undefined) return;
   const ceilingMs = Math.floor(ceilingMinutes * 60_000);
-  if (quote.estimatedComputeMs > ceilingMs)
-    throw new InputError("--ceiling", `the quote's estimate, ${minutes(quote.estimatedComputeMs)} compute minutes (${quote.estimatedComputeMs} ms), exceeds the ceiling of ${ceilingMinutes} minutes (${ceilingMs} ms); nothing was submitted`);
+  if (quote.ceilingMs > ceilingMs)
+    throw new InputError("--ceiling", `the quote's ceiling, ${minutes(quote.ceilingMs)} compute minutes (${quote.ceilingMs} ms), exceeds the ceiling of ${ceilingMinutes} minutes (${ceilingMs} ms); nothing was submitted`);
 }
 
 // ---------------------------------------------------------------------------
@@ -257,7 +262,7 @@ async function submitCommand(specFile: string, options: ReportOptions & { name?:
   printQuote(quote);
   guardCeiling(quote, options.ceiling);
   const { sweep } = await api.json<{ sweep: SweepState }>("POST", `/studios/${studioId}/sweeps`, {
-    json: { spec: raw, ...(options.name ? { name: options.name } : {}), acceptedQuoteMs: quote.estimatedComputeMs },
+    json: { spec: raw, ...(options.name ? { name: options.name } : {}), acceptedQuoteMs: quote.ceilingMs },
   });
   out(`Submitted sweep ${sweep.id} (${sweep.cells} cells).`);
   if (!options.wait) return EXIT.stable;
@@ -289,7 +294,7 @@ async function checkCommand(catalogueFile: string, settingsFile: string, options
   const { quote } = await api.json<{ quote: Quote }>("POST", `${base}/quote`, { json: { settings: rawSettings } });
   printQuote(quote);
   guardCeiling(quote, options.ceiling);
-  const { check } = await api.json<{ check: CheckState }>("POST", `${base}/checks`, { json: { settings: rawSettings, acceptedQuoteMs: quote.estimatedComputeMs } });
+  const { check } = await api.json<{ check: CheckState }>("POST", `${base}/checks`, { json: { settings: rawSettings, acceptedQuoteMs: quote.ceilingMs } });
   out(`Submitted catalogue check ${check.id} (sweep ${check.sweep.id}, catalogue ${uploaded.catalogue.id}).`);
   if (!options.wait) return EXIT.stable;
   await waitForSweep(api, studioId, check.sweep.id, globals);

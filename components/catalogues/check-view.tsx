@@ -191,6 +191,9 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
                     the check at {fmt(confirmation.settings.stiffness ?? null, 4)} {unit}
                   </Link>{" "}
                   keeps every pair stable.
+                  {confirmation.pairsOffTarget.length > 0
+                    ? ` Stable but not accurate there: ${confirmation.pairsOffTarget.join(", ")} (rebound off the target or too few steps per contact; more substeps improve them).`
+                    : ""}
                 </Alert>
               ) : confirmation.status === "refuted" ? (
                 <Alert>

@@ -234,9 +234,20 @@ export interface Confirmation {
   /** The latest check of this catalogue with exactly those settings, if any. */
   checkId: string | null;
   status: "not-run" | "running" | "confirmed" | "refuted";
-  /** Pairs not stable at the recommended stiffness (when refuted). */
+  /**
+   * Pairs that failed at the recommended stiffness the way the recommendation is about: blown up,
+   * past the step bound, tunnelled or sunk too deep (when refuted).
+   */
   pairsAtRisk: string[];
+  /**
+   * Pairs that held but were not accurate there (rebound off the target, energy gained, contact in
+   * too few steps): the stiffness is stable, and these pairs say what a finer step would add.
+   */
+  pairsOffTarget: string[];
 }
+
+/** Verdicts that refute a stiffness recommended from the stability bound (the others are about accuracy). */
+const REFUTING_VERDICTS: ReadonlySet<string> = new Set(["exploded", "step-unstable", "tunneled", "deep-overlap"]);
 
 export interface CheckView {
   id: string;
@@ -268,7 +279,7 @@ export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCh
   const wanted = confirmationSettings(settings, recommendation);
   let confirmation: Confirmation | null = null;
   if (wanted) {
-    confirmation = { settings: wanted, checkId: null, status: "not-run", pairsAtRisk: [] };
+    confirmation = { settings: wanted, checkId: null, status: "not-run", pairsAtRisk: [], pairsOffTarget: [] };
     const key = canonicalJson(wanted);
     for (const other of await listChecks(db, catalogue)) {
       if (canonicalJson(checkSettingsSchema.parse(other.settings)) !== key) continue;
@@ -278,8 +289,10 @@ export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCh
       } else {
         const [otherSweep] = await db.select().from(sweeps).where(eq(sweeps.id, other.sweepId));
         const matrix = pairMatrix(objects, wanted, await storedCells(db, otherSweep));
-        confirmation.pairsAtRisk = matrix.atRisk;
-        confirmation.status = matrix.complete && matrix.atRisk.length === 0 ? "confirmed" : "refuted";
+        const worstOf = new Map(matrix.pairs.map((pair) => [pair.name, pair.worstVerdict]));
+        confirmation.pairsAtRisk = matrix.atRisk.filter((name) => REFUTING_VERDICTS.has(String(worstOf.get(name))));
+        confirmation.pairsOffTarget = matrix.atRisk.filter((name) => !REFUTING_VERDICTS.has(String(worstOf.get(name))));
+        confirmation.status = matrix.complete && confirmation.pairsAtRisk.length === 0 ? "confirmed" : "refuted";
       }
       break;
     }

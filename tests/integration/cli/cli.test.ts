@@ -176,7 +176,7 @@ describe("kickdrift submit", { timeout: 180_000 }, () => {
     const run = await kickdrift(["submit", file("puck.json", JSON.stringify(puckPairSpec())), "--ceiling", "0"]);
     expect(run.code).toBe(2);
     expect(run.stderr).toMatch(/Quote: 15 cells/);
-    expect(run.stderr).toMatch(/invalid input: --ceiling: the quote's estimate, .* exceeds the ceiling of 0 minutes .*nothing was submitted/);
+    expect(run.stderr).toMatch(/invalid input: --ceiling: the quote's ceiling, .* exceeds the ceiling of 0 minutes .*nothing was submitted/);
     expect(await countRows(db, sweeps)).toBe(before);
   });
 
