@@ -6,7 +6,7 @@ import { monoFont, sansFont } from "./fonts";
 import { Providers } from "@/components/providers";
 import { SiteFooter } from "@/components/site-footer";
 import { SiteHeader } from "@/components/site-header";
-import { isMailFakeEnabled } from "@/lib/mail/mode";
+import { demoBannerText, isMailFakeEnabled } from "@/lib/mail/mode";
 import { THEME_BOOT_SCRIPT } from "@/lib/ui/theme";
 
 export const metadata: Metadata = {
@@ -18,6 +18,7 @@ export const metadata: Metadata = {
 export default async function RootLayout({ children }: { children: ReactNode }) {
   // The header's Mailbox link follows the running server's SMTP setting, so render per request, not at build.
   await connection();
+  const banner = demoBannerText();
   return (
     // data-theme is set before hydration by the boot script, so React must not complain about it.
     <html lang="en" className={`${sansFont.variable} ${monoFont.variable}`} suppressHydrationWarning>
@@ -29,6 +30,12 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
           Skip to content
         </a>
         <Providers>
+          {banner ? (
+            // Slim, on every page of a demo instance: nobody mistakes it for a deployment that charges or mails.
+            <p role="note" data-testid="demo-banner" className="bg-ink px-4 py-1 text-center text-xs font-medium text-paper">
+              {banner}
+            </p>
+          ) : null}
           <SiteHeader mailboxEnabled={isMailFakeEnabled()} />
           <main id="main" className="mx-auto w-full max-w-6xl flex-1 px-4 py-8 sm:px-6">
             {children}
