@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { headers } from "next/headers";
 import { connection } from "next/server";
 import type { ReactNode } from "react";
 import "./globals.css";
@@ -19,11 +20,13 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
   // The header's Mailbox link follows the running server's SMTP setting, so render per request, not at build.
   await connection();
   const banner = demoBannerText();
+  // The CSP nonce of this request (proxy.ts): the inline theme script runs only with it.
+  const nonce = (await headers()).get("x-nonce") ?? undefined;
   return (
     // data-theme is set before hydration by the boot script, so React must not complain about it.
     <html lang="en" className={`${sansFont.variable} ${monoFont.variable}`} suppressHydrationWarning>
       <head>
-        <script dangerouslySetInnerHTML={{ __html: THEME_BOOT_SCRIPT }} />
+        <script nonce={nonce} dangerouslySetInnerHTML={{ __html: THEME_BOOT_SCRIPT }} />
       </head>
       <body className="flex min-h-screen flex-col bg-paper font-sans text-ink">
         <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-4 focus:top-4 focus:z-50 focus:rounded-md focus:bg-surface focus:px-3 focus:py-2">
