@@ -299,6 +299,7 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/admin/audit", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/admin/queue", method: "GET", expect: ADMIN_ONLY(200) },
   { route: "v1/dev/mail", method: "GET", expect: ADMIN_ONLY(200) },
+  { route: "v1/openapi.json", method: "GET", expect: PUBLIC(200) },
   { route: "health", method: "GET", expect: PUBLIC(200) },
   { route: "ready", method: "GET", expect: PUBLIC(200) },
   { route: "metrics", method: "GET", expect: PUBLIC(200) },
