@@ -54,6 +54,9 @@ npx vitest run --reporter=default --reporter=json --outputFile.json=.build/vites
 step "production build"
 npm run build
 
+step "proxied API campaign: generated requests through Prism's validating proxy to the production build"
+npx tsx scripts/api-campaign.ts --requests 5200
+
 step "browser tests"
 PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json
 
