@@ -144,8 +144,10 @@ for (let i = 0; i < 300; i++) deep = { nested: [deep] };
 const HOSTILE: unknown[] = ["NaN", "Infinity", "-1", "", -1, 0, -1e308, 1e308, 2 ** 53, 0.5, true, null, [], {}, "x".repeat(3000), deep, "\u0000"];
 const BAD_PARAMS = ["-1", "0", "NaN", "1e308", "..%2F..", "%00", "x".repeat(300), "std_doesNotExist000000000", "💥"];
 
+/** Paths into a document, down to a depth that a mutation's targets need (a hostile value may itself be deep). */
 function paths(value: unknown, at: (string | number)[] = []): (string | number)[][] {
   const out: (string | number)[][] = [at];
+  if (at.length >= 12) return out;
   if (Array.isArray(value)) value.forEach((v, i) => out.push(...paths(v, [...at, i])));
   else if (value && typeof value === "object") for (const [k, v] of Object.entries(value)) out.push(...paths(v, [...at, k]));
   return out;
@@ -311,10 +313,20 @@ async function main(): Promise<void> {
         init.body = JSON.stringify(body);
         headers["content-type"] = "application/json";
       }
-      const res = await fetch(`${proxy}${url}`, init);
-      await res.arrayBuffer();
+      let res: Response;
+      try {
+        res = await fetch(`${proxy}${url}`, { ...init, signal: AbortSignal.timeout(60_000) });
+        await res.arrayBuffer();
+      } catch (error) {
+        // No answer at all counts like a 5xx: the client got nothing it could act on.
+        stats.sent += 1;
+        stats.fiveXX += 1;
+        if (samples.length < 20) samples.push(`no answer ${op.method} ${url} as ${auth.name}: ${(error as Error).message}`);
+        continue;
+      }
       stats.sent += 1;
       stats.byKind[kind] += 1;
+      if (stats.sent % 500 === 0) console.log(`[campaign] ${stats.sent} requests sent (${covered.size + 1}/${ops.length} operations)`);
       covered.add(key);
       const violations = JSON.parse(res.headers.get("sl-violations") ?? "[]") as { location: string[]; message: string }[];
       const responseViolations = violations.filter((v) => v.location[0] === "response");

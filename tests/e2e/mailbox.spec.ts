@@ -8,7 +8,7 @@ const productionBaseURL = `http://localhost:${port + 1}`;
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer" };
 const BANNER = "Demo instance: payments are fake (test cards only); mail is captured here, not delivered.";
 
-test("the demo mailbox is the platform admin's alone; the demo banner is on every page", async ({ page, request, browser }) => {
+test("the demo mailbox asks anonymous visitors to sign in (API 401); the demo banner is on every page", async ({ page, request }) => {
   // Anonymous: the page asks for a sign-in, the API answers 401.
   await page.goto("/mail");
   await expect(page).toHaveURL(/\/signin\?callbackUrl=%2Fmail$/);
@@ -18,6 +18,9 @@ test("the demo mailbox is the platform admin's alone; the demo banner is on ever
     await expect(page.getByTestId("demo-banner")).toHaveText(BANNER);
   }
 
+});
+
+test("the demo mailbox is 403 to a studio member and opens for the platform admin", async ({ browser }) => {
   // A studio member (not an admin): 403 page, no nav link.
   const engineerContext = await browser.newContext();
   const engineer = await engineerContext.newPage();
