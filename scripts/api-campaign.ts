@@ -47,7 +47,8 @@ interface Auth {
 
 const children: ChildProcess[] = [];
 function start(command: string, argv: string[], env: NodeJS.ProcessEnv): ChildProcess {
-  const child = spawn(command, argv, { env, stdio: ["ignore", "pipe", "pipe"], detached: false });
+  // Its own process group, so stopping it stops what npx started under it (the next-server) too.
+  const child = spawn(command, argv, { env, stdio: ["ignore", "pipe", "pipe"], detached: true });
   let tail = "";
   const keep = (chunk: Buffer) => (tail = (tail + chunk.toString()).slice(-4000));
   child.stdout?.on("data", keep);
@@ -61,9 +62,17 @@ function start(command: string, argv: string[], env: NodeJS.ProcessEnv): ChildPr
 let stopping = false;
 function stopAll(): void {
   stopping = true;
-  for (const child of children) if (child.pid && child.exitCode === null) child.kill("SIGTERM");
+  for (const child of children) {
+    if (!child.pid || child.exitCode !== null) continue;
+    try {
+      process.kill(-child.pid, "SIGTERM");
+    } catch {
+      child.kill("SIGTERM");
+    }
+  }
 }
 process.on("exit", stopAll);
+for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => process.exit(1));
 
 async function waitFor(url: string, deadlineMs: number): Promise<void> {
   const deadline = Date.now() + deadlineMs;
