@@ -338,7 +338,7 @@ async function main(): Promise<void> {
       if (stats.sent % 500 === 0) console.log(`[campaign] ${stats.sent} requests sent (${covered.size + 1}/${ops.length} operations)`);
       covered.add(key);
       // Prism replaces the list with a plain sentence when it is very long ("Too many violations…"): that
-      // happens for heavily mutated requests; it is counted apart and shown, never taken as clean.
+      // happens for heavily mutated requests; it is counted apart and printed in the summary line.
       let violations: { location: string[]; message: string }[] = [];
       const reported = res.headers.get("sl-violations");
       if (reported) {
