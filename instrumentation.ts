@@ -7,6 +7,16 @@ export async function register(): Promise<void> {
     const { installPeerAddressStamp } = await import("./lib/ops/peer-address");
     installPeerAddressStamp();
     const { startServerServices } = await import("./db/startup");
-    await startServerServices();
+    try {
+      await startServerServices();
+    } catch (error) {
+      // A production start without SMTP_URL or the Stripe keys: one clear line, and no server at all
+      // (Next would otherwise log a stack and go on serving with the fakes' routes half set up).
+      if ((error as Error)?.name === "RefusedStart") {
+        console.error((error as Error).message);
+        process.exit(1);
+      }
+      throw error;
+    }
   }
 }

@@ -27,7 +27,10 @@ function freshDataDir(variable: string): string {
 }
 const dataDir = freshDataDir("KD_E2E_DATA_DIR");
 const smtpDataDir = freshDataDir("KD_E2E_SMTP_DATA_DIR");
-/** A second server with SMTP_URL set, where the local mailbox must not exist (tests/e2e/mailbox.spec.ts). */
+/**
+ * A second server started as production would be (no KICKDRIFT_DEMO): SMTP_URL and the Stripe keys set,
+ * so it starts, and neither fake, the mailbox nor the demo banner exists (tests/e2e/mailbox.spec.ts).
+ */
 const smtpPort = port + 1;
 const smtpBaseURL = `http://localhost:${smtpPort}`;
 
@@ -88,11 +91,14 @@ export default defineConfig({
         NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
         KICKDRIFT_DATA_DIR: smtpDataDir,
         NEXTAUTH_URL: smtpBaseURL,
+        KICKDRIFT_DEMO: "",
         // Port 9 (discard) on loopback: a configured relay that no test sends mail through.
         SMTP_URL: "smtp://127.0.0.1:9",
         DATABASE_URL: "",
-        STRIPE_FAKE_PORT: String(stripeFakePort + 1),
-        STRIPE_SECRET_KEY: "",
+        // A configured Stripe account at the same dead address: billing answers 503, nothing is faked.
+        STRIPE_SECRET_KEY: "sk_test_kickdrift_e2e_production",
+        STRIPE_WEBHOOK_SECRET: "whsec_kickdrift_e2e_production",
+        STRIPE_API_URL: "http://127.0.0.1:9",
       },
     },
   ],

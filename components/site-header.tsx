@@ -21,7 +21,8 @@ export function SiteHeader({ mailboxEnabled }: { mailboxEnabled: boolean }) {
   const nav: NavItem[] = [];
   if (signedIn) nav.push({ href: "/studios", label: "Studios" });
   if (signedIn && isAdmin) nav.push({ href: "/admin", label: "Admin" });
-  if (mailboxEnabled) nav.push({ href: "/mail", label: "Mailbox" });
+  // Captured mail holds sign-in and reset links: the mailbox is a platform admin's page.
+  if (mailboxEnabled && isAdmin) nav.push({ href: "/mail", label: "Mailbox" });
 
   return (
     <header className="border-b border-line bg-surface/80 backdrop-blur">

@@ -12,7 +12,18 @@ export function startServerServices(): Promise<void> {
   return store[startupKey];
 }
 
+/** Thrown when a production start lacks the settings that replace the local fakes; its message is the one line printed. */
+export class RefusedStart extends Error {
+  override name = "RefusedStart";
+}
+
 async function run(): Promise<void> {
+  {
+    // Before anything listens or migrates: a production start never falls back to the local fakes.
+    const { productionStartProblem } = await import("../lib/mail/mode");
+    const problem = productionStartProblem();
+    if (problem) throw new RefusedStart(problem);
+  }
   const { getDb } = await import("./client");
   const { getAuthSecret, appBaseUrl } = await import("../lib/auth/config");
   const db = await getDb();

@@ -44,11 +44,16 @@ npx eslint .
 step "typecheck"
 npx tsc --noEmit
 
+step "OpenAPI document: generated from the route schemas, linted by Redocly"
+npx tsx scripts/openapi.ts .build/openapi.json
+npx redocly lint .build/openapi.json
+
 step "unit and integration tests"
 npx vitest run --reporter=default --reporter=json --outputFile.json=.build/vitest.json
 
 step "production build"
 npm run build
+
 
 step "browser tests"
 PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json

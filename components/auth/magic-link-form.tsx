@@ -49,9 +49,9 @@ export function MagicLinkForm({
         {mailboxEnabled ? (
           <>
             {" "}
-            Open it from the{" "}
+            On this demo instance mail is captured, not delivered: a platform admin reads it in the{" "}
             <Link href="/mail" className="underline">
-              local mailbox
+              demo mailbox
             </Link>
             .
           </>

@@ -25,9 +25,9 @@ export function ResetRequestForm({ mailboxEnabled }: { mailboxEnabled: boolean }
         {mailboxEnabled ? (
           <>
             {" "}
-            See the{" "}
+            On this demo instance mail is captured, not delivered: a platform admin reads it in the{" "}
             <Link href="/mail" className="underline">
-              local mailbox
+              demo mailbox
             </Link>
             .
           </>

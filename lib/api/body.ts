@@ -1,6 +1,9 @@
 import type { z } from "zod";
 import { ApiError, type FieldIssue } from "@/lib/errors";
 
+/** The `field` of an error about the request body as a whole (not JSON, not an object, wrong shape at the top). */
+export const ROOT_FIELD = "body";
+
 /** Largest JSON body any route accepts (bytes). */
 export const MAX_JSON_BODY_BYTES = 64 * 1024;
 
@@ -117,12 +120,12 @@ export function requireJsonContentType(req: Request): void {
 export async function readJson(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<unknown> {
   requireJsonContentType(req);
   const text = await readBodyText(req, limit);
-  if (text.trim() === "") throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
+  if (text.trim() === "") throw new ApiError(400, "invalid_json", "Request body must be a JSON object.", ROOT_FIELD);
   let value: unknown;
   try {
     value = JSON.parse(text);
   } catch {
-    throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
+    throw new ApiError(400, "invalid_json", "Request body is not valid JSON.", ROOT_FIELD);
   }
   checkJsonValue(value);
   return value;
@@ -144,15 +147,15 @@ export function validationError(error: z.ZodError): ApiError {
         message: `Unknown field "${[...base, key].join(".")}".`,
       }));
     }
-    return [{ field: issueField(issue), message: issue.message }];
+    return [{ field: issueField(issue) || ROOT_FIELD, message: issue.message }];
   });
   const first = error.issues[0];
   const unknown = first?.code === "unrecognized_keys";
   return new ApiError(
     400,
     unknown ? "unknown_field" : "validation_failed",
-    issues[0]?.field ? `${issues[0].field}: ${issues[0].message}` : (issues[0]?.message ?? "Invalid request."),
-    issues[0]?.field || undefined,
+    issues[0]?.field ? `${issues[0].field}: ${issues[0].message}` : `${ROOT_FIELD}: ${issues[0]?.message ?? "invalid request"}`,
+    issues[0]?.field || ROOT_FIELD,
     issues,
   );
 }

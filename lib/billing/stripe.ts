@@ -6,6 +6,7 @@
  */
 import Stripe from "stripe";
 import { ApiError } from "@/lib/errors";
+import { isStripeFakeEnabled } from "@/lib/mail/mode";
 
 export const DEFAULT_STRIPE_FAKE_PORT = 12111;
 
@@ -28,9 +29,9 @@ export function stripeFakePort(): number {
   return port;
 }
 
-/** True when no STRIPE_SECRET_KEY is configured, so the app runs against the local fake. */
+/** True when no STRIPE_SECRET_KEY is configured and fakes are allowed (demo, development, tests), so the app runs against the local fake. */
 export function usesStripeFake(): boolean {
-  return !process.env.STRIPE_SECRET_KEY;
+  return isStripeFakeEnabled();
 }
 
 /** A client for the local fake on `port` (the fake accepts any sk_test_ key). */
@@ -71,6 +72,7 @@ export function billingConfig(): BillingConfig {
     holder[key] = { stripe: new Stripe(secretKey, { maxNetworkRetries: 2, timeout: 20_000, ...stripeApiAddress() }), webhookSecret, mode: "stripe" };
     return holder[key];
   }
+  if (!usesStripeFake()) throw new ApiError(503, "billing_unavailable", "Billing is not configured on this server (STRIPE_SECRET_KEY is not set).");
   throw new ApiError(503, "billing_unavailable", "Billing is starting up (the local Stripe fake is not running yet); try again in a moment.");
 }
 

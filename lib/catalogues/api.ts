@@ -1,3 +1,4 @@
+import { z } from "zod";
 /** Policies of the catalogue routes: the same as the sweep routes (a check is a sweep). */
 import { SWEEP_READ, SWEEP_WRITE } from "@/lib/queue/api";
 
@@ -8,3 +9,18 @@ export const CATALOGUE_WRITE = SWEEP_WRITE;
 
 /** The largest multipart body an upload may send: the file limit plus room for the form's framing. */
 export const MAX_UPLOAD_BODY_BYTES = 256 * 1024 + 16 * 1024;
+
+// Request bodies of the catalogue-check routes (the OpenAPI document, lib/api/openapi, is generated from these).
+
+/** POST …/checks. */
+export const submitCheckRequestSchema = z.strictObject({
+  settings: z.unknown().optional(),
+  acceptedQuoteMs: z
+    .number({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .int({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .min(0, { error: "acceptedQuoteMs must be ≥ 0" })
+    .optional(),
+});
+
+/** POST …/quote. */
+export const checkQuoteRequestSchema = z.strictObject({ settings: z.unknown().optional() });

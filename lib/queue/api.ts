@@ -4,6 +4,8 @@ import type { Db } from "@/db/client";
 import { SWEEP_STATUSES, sweeps, type Sweep, type SweepStatus } from "@/db/schema";
 import type { RoutePolicy } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
+import { z } from "zod";
+import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 
 /** Reading sweeps: any member, and API tokens with the read (or write) scope. */
 export const SWEEP_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
@@ -89,3 +91,34 @@ export function cursorParam(url: URL, name = "after"): bigint | null {
   if (value > MAX_CURSOR) throw new ApiError(400, "validation_failed", limit, name);
   return value;
 }
+
+// Request bodies of the sweep routes (the OpenAPI document, lib/api/openapi, is generated from these).
+
+/** POST …/quotes: the spec to quote (checked by the sweep spec schema in lib/sweeps/spec.ts). */
+export const quoteRequestSchema = z.strictObject({ spec: z.unknown().optional() });
+
+/** POST …/sweeps. */
+export const submitSweepRequestSchema = z.strictObject({
+  spec: z.unknown().optional(),
+  name: z
+    .string({ error: "name must be a string" })
+    .trim()
+    .min(1, { error: "name must not be empty" })
+    .max(SPEC_LIMITS.maxNameLength, { error: `name must be at most ${SPEC_LIMITS.maxNameLength} characters` })
+    .optional(),
+  acceptedQuoteMs: z
+    .number({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .int({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .min(0, { error: "acceptedQuoteMs must be ≥ 0" })
+    .optional(),
+});
+
+const MIN_DT_FACTOR = 0.001;
+/** POST …/cells/{index}/rerun: the cell again at a smaller timestep. */
+export const rerunRequestSchema = z.strictObject({
+  dtFactor: z
+    .number({ error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .min(MIN_DT_FACTOR, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .max(1, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
+    .default(0.25),
+});

@@ -54,7 +54,8 @@ function ruledNumber(rule: NumericParameter) {
     .number({ error: (issue) => `${rule.label} must be a finite number (${rule.unit || "no unit"}); got ${describeReceived(issue.input)}` })
     .superRefine((value, ctx) => {
       const problem = rangeViolation(rule, value);
-      if (problem) ctx.addIssue({ code: "custom", message: problem, input: value });
+      // Aborting: the whole-spec checks below (grid corners, axis values) never see an out-of-range number.
+      if (problem) ctx.addIssue({ code: "custom", message: problem, input: value, continue: false });
     });
 }
 
@@ -154,13 +155,13 @@ const snapshotWallSchema = z
 export const snapshotBodiesSchema = z
   .array(snapshotBodySchema, { error: (issue) => `bodies must be an array of discs; got ${describeReceived(issue.input)}` })
   .min(1, { error: "bodies must list at least one disc" })
-  .max(SPEC_LIMITS.maxBodies, {
+  .max(SPEC_LIMITS.maxBodies, { abort: true,
     error: (issue) => `${Array.isArray(issue.input) ? `${formatLimit(issue.input.length)} bodies exceed` : "bodies exceed"} the limit of ${formatLimit(SPEC_LIMITS.maxBodies)} bodies per scene`,
   });
 
 export const snapshotWallsSchema = z
   .array(snapshotWallSchema, { error: (issue) => `walls must be an array; got ${describeReceived(issue.input)}` })
-  .max(SPEC_LIMITS.maxWalls, { error: `a snapshot has at most ${SPEC_LIMITS.maxWalls} walls` });
+  .max(SPEC_LIMITS.maxWalls, { abort: true, error: `a snapshot has at most ${SPEC_LIMITS.maxWalls} walls` });
 
 /** At most this many initial overlaps are listed one by one (the rest are counted). */
 const MAX_LISTED_OVERLAPS = 20;
@@ -236,9 +237,9 @@ export const scenarioSchema = z.strictObject({
     .default(VERDICT_RULES_VERSION),
   seed: z
     .number({ error: (issue) => `seed must be an integer from 0 to ${MAX_SEED}; got ${describeReceived(issue.input)}` })
-    .int({ error: `seed must be an integer from 0 to ${MAX_SEED}` })
-    .min(0, { error: `seed must be an integer from 0 to ${MAX_SEED}` })
-    .max(MAX_SEED, { error: `seed must be an integer from 0 to ${MAX_SEED}` })
+    .int({ error: `seed must be an integer from 0 to ${MAX_SEED}`, abort: true })
+    .min(0, { error: `seed must be an integer from 0 to ${MAX_SEED}`, abort: true })
+    .max(MAX_SEED, { error: `seed must be an integer from 0 to ${MAX_SEED}`, abort: true })
     .default(SPEC_DEFAULT_SEED),
 });
 
@@ -270,16 +271,19 @@ export const axisSchema = z.strictObject({
   to: z.number({ error: (issue) => `to must be a finite number; got ${describeReceived(issue.input)}` }).optional(),
   count: z
     .number({ error: (issue) => `count must be an integer ≥ 1; got ${describeReceived(issue.input)}` })
-    .int({ error: "count must be an integer ≥ 1" })
-    .min(1, { error: "count must be an integer ≥ 1" })
+    // Aborting checks: the axis is expanded into count values by the whole-spec checks, which must never
+    // see a negative, fractional or huge count (new Array(-1) is a RangeError, 1e9 an allocation).
+    .int({ error: "count must be an integer ≥ 1", abort: true })
+    .min(1, { error: "count must be an integer ≥ 1", abort: true })
+    .max(SPEC_LIMITS.maxCellsPerSweep, { error: `count must be at most ${SPEC_LIMITS.maxCellsPerSweep} (the cells of a whole sweep)`, abort: true })
     .optional(),
   values: z
     .array(z.union([z.number(), z.string()], { error: "each value must be a finite number or a choice name" }))
     .min(1, { error: "values must list at least one value" })
-    .max(SPEC_LIMITS.maxPairs, { error: `values may list at most ${SPEC_LIMITS.maxListValues} entries (${SPEC_LIMITS.maxPairs} on a scene.pair axis)` })
+    .max(SPEC_LIMITS.maxPairs, { abort: true, error: `values may list at most ${SPEC_LIMITS.maxListValues} entries (${SPEC_LIMITS.maxPairs} on a scene.pair axis)` })
     .optional(),
   /** scene.pair only: what each value (a pair name) sets, in the order of values. */
-  pairs: z.array(axisPairSchema).min(1, { error: "pairs must list at least one pair" }).max(SPEC_LIMITS.maxPairs, { error: `pairs may list at most ${SPEC_LIMITS.maxPairs} entries` }).optional(),
+  pairs: z.array(axisPairSchema).min(1, { error: "pairs must list at least one pair" }).max(SPEC_LIMITS.maxPairs, { abort: true, error: `pairs may list at most ${SPEC_LIMITS.maxPairs} entries` }).optional(),
 });
 
 export type AxisSpec = z.infer<typeof axisSchema>;
@@ -404,7 +408,7 @@ const sweepSpecObject = z.strictObject({
   scenario: scenarioSchema,
   axes: z
     .array(axisSchema)
-    .max(SPEC_LIMITS.maxAxes, { error: `a sweep has at most ${SPEC_LIMITS.maxAxes} axes` })
+    .max(SPEC_LIMITS.maxAxes, { abort: true, error: `a sweep has at most ${SPEC_LIMITS.maxAxes} axes` })
     .default(() => []),
 });
 

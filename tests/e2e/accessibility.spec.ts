@@ -1,5 +1,5 @@
-import { expect, test, type Page } from "@playwright/test";
-import { signInWithPassword } from "./helpers";
+import { type Page } from "@playwright/test";
+import { expect, signInWithPassword, test } from "./helpers";
 
 // The demo owner seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };

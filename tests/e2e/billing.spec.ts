@@ -1,5 +1,5 @@
-import { expect, test, type Page } from "@playwright/test";
-import { signInWithPassword } from "./helpers";
+import { type Page } from "@playwright/test";
+import { expect, openMailboxAsAdmin, signInWithPassword, test } from "./helpers";
 
 // The demo sign-ins seeded by KICKDRIFT_DEMO=1 (db/seed.ts prints them at start).
 const OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
@@ -46,9 +46,10 @@ test("the demo owner buys a pack on the payment page; a declined card credits no
   await expect(owner.getByTestId("balance-minutes")).toHaveText((before + 120).toFixed(2).replace(/\B(?=(\d{3})+(?!\d))/g, ","));
   await expect(owner.getByTestId("ledger-table")).toContainText("Tap-out pack");
   await owner.screenshot({ path: test.info().outputPath("billing-after-purchase.png"), fullPage: true });
-  // The receipt went out through the app's mail transport (the local mail fake's mailbox).
-  await owner.goto("/mail");
-  await expect(owner.getByTestId("mail-message").filter({ hasText: "Receipt: Tap-out pack for Gannet Yard Games" }).filter({ hasText: OWNER.email })).toHaveCount(1);
+  // The receipt went out through the app's mail transport (the demo mailbox, which the platform admin reads).
+  const receiptMailbox = await openMailboxAsAdmin(browser);
+  await expect(receiptMailbox.page.getByTestId("mail-message").filter({ hasText: "Receipt: Tap-out pack for Gannet Yard Games" }).filter({ hasText: OWNER.email })).toHaveCount(1);
+  await receiptMailbox.context.close();
   await ownerContext.close();
 
   // --- The billing period closes at Stripe (the fake's test clock), the invoice arrives by webhook.
@@ -74,7 +75,8 @@ test("the demo owner buys a pack on the payment page; a declined card credits no
   await expect(finance.getByTestId("invoice-status")).not.toHaveText("draft");
   await finance.screenshot({ path: test.info().outputPath("invoice-reconciled.png"), fullPage: true });
   const invoiceNumber = (await finance.getByRole("heading", { name: /^Invoice / }).first().innerText()).replace("Invoice ", "");
-  await finance.goto("/mail");
-  await expect(finance.getByTestId("mail-message").filter({ hasText: `Invoice ${invoiceNumber} for Gannet Yard Games` }).filter({ hasText: FINANCE.email })).toHaveCount(1);
+  const invoiceMailbox = await openMailboxAsAdmin(browser);
+  await expect(invoiceMailbox.page.getByTestId("mail-message").filter({ hasText: `Invoice ${invoiceNumber} for Gannet Yard Games` }).filter({ hasText: FINANCE.email })).toHaveCount(1);
+  await invoiceMailbox.context.close();
   await financeContext.close();
 });

@@ -1,5 +1,5 @@
-import { expect, test } from "@playwright/test";
 import { CREDIT_PACKS, formatPriceCents } from "../../lib/billing/packs";
+import { expect, test } from "./helpers";
 
 const CAUTION = "Simulation results are numerical estimates for tuning game physics, not a basis for safety-critical engineering.";
 

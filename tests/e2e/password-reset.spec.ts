@@ -1,5 +1,4 @@
-import { expect, test } from "@playwright/test";
-import { linkFromMailbox, signInWithPassword } from "./helpers";
+import { expect, linkFromMailbox, signInWithPassword, test } from "./helpers";
 
 // The demo finance member seeded by KICKDRIFT_DEMO=1 (db/seed.ts); no other test signs in as her.
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };

@@ -1,6 +1,5 @@
-import { expect, test } from "@playwright/test";
 import { CRATESLIDE_SNAPSHOT_JSON } from "../../lib/snapshots/demo";
-import { signInWithPassword } from "./helpers";
+import { expect, signInWithPassword, test } from "./helpers";
 
 // The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };

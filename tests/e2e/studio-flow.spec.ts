@@ -1,5 +1,4 @@
-import { expect, test } from "@playwright/test";
-import { linkFromMailbox, signInWithPassword, uniqueEmail } from "./helpers";
+import { expect, linkFromMailbox, signInWithPassword, test, uniqueEmail } from "./helpers";
 
 // The demo owner seeded by KICKDRIFT_DEMO=1 (db/seed.ts prints these sign-ins at start).
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };

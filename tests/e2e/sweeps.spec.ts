@@ -1,6 +1,6 @@
 import { readFile } from "node:fs/promises";
-import { expect, test, type Locator, type Page } from "@playwright/test";
-import { signInWithPassword } from "./helpers";
+import { type Locator, type Page } from "@playwright/test";
+import { expect, signInWithPassword, test } from "./helpers";
 
 // The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };

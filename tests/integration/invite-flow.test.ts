@@ -31,9 +31,12 @@ interface Message {
 
 let db: Db;
 let fake: MailFake;
+/** The mailbox is a platform admin's page: the flows below read it as one. */
+let adminCookie: string;
 beforeAll(async () => {
   db = await useFreshDb();
   fake = await startMailFake({ port: 0 });
+  adminCookie = await sessionCookie(await makeUser({ name: "Mailbox Operator", isAdmin: true }));
 });
 afterAll(async () => {
   await fake.close();
@@ -41,7 +44,7 @@ afterAll(async () => {
 });
 
 async function mailbox(): Promise<Message[]> {
-  const res = await call(mailRoute.GET, { path: "/api/v1/dev/mail" });
+  const res = await call(mailRoute.GET, { path: "/api/v1/dev/mail", cookie: adminCookie });
   expect(res.status).toBe(200);
   return (res.body as { messages: Message[] }).messages;
 }

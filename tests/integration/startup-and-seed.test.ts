@@ -8,7 +8,8 @@ import * as mailRoute from "@/app/api/v1/dev/mail/route";
 import * as meRoute from "@/app/api/v1/me/route";
 import { register } from "@/instrumentation";
 import { closeTestDb, countRows, useFreshDb } from "../helpers/db";
-import { call } from "../helpers/http";
+import { call, sessionCookie } from "../helpers/http";
+import { makeUser } from "../helpers/factories";
 import { passwordSignIn } from "../helpers/next-auth";
 
 let db: Db;
@@ -80,11 +81,12 @@ describe("start-up", () => {
 });
 
 describe("the local mailbox route", () => {
-  it("exists only while the mail fake is on (no SMTP_URL)", async () => {
-    expect((await call(mailRoute.GET, { path: "/api/v1/dev/mail" })).status).toBe(200);
+  it("exists only while the mail fake is on (no SMTP_URL), for a platform admin", async () => {
+    const admin = await sessionCookie(await makeUser({ isAdmin: true }));
+    expect((await call(mailRoute.GET, { path: "/api/v1/dev/mail", cookie: admin })).status).toBe(200);
     vi.stubEnv("SMTP_URL", "smtp://mail.example.test:587");
     try {
-      const res = await call(mailRoute.GET, { path: "/api/v1/dev/mail" });
+      const res = await call(mailRoute.GET, { path: "/api/v1/dev/mail", cookie: admin });
       expect(res.status).toBe(404);
     } finally {
       vi.unstubAllEnvs();

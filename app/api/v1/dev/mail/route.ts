@@ -1,6 +1,6 @@
 import { withAuth } from "@/lib/auth/guard";
 import { otherMethods } from "@/lib/api/methods";
-import { json } from "@/lib/api/respond";
+import { errorResponse, json } from "@/lib/api/respond";
 import { ApiError } from "@/lib/errors";
 import { listCapturedMail } from "@/lib/mail/mailbox";
 import { isMailFakeEnabled } from "@/lib/mail/transport";
@@ -8,10 +8,16 @@ import { isMailFakeEnabled } from "@/lib/mail/transport";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-// The local mailbox: only while the mail fake stands in for SMTP (no SMTP_URL); otherwise it does not exist.
-export const GET = withAuth({ access: "public" }, async () => {
-  if (!isMailFakeEnabled()) throw new ApiError(404, "not_found", "No API route at GET /api/v1/dev/mail.");
-  return json({ messages: await listCapturedMail() });
-});
+const notHere = () => errorResponse(new ApiError(404, "not_found", "No API route at GET /api/v1/dev/mail."));
+
+// The local mailbox: only a signed-in platform admin reads it (captured mail holds sign-in, reset and
+// invite links), and only while the mail fake stands in for SMTP (demo, development, tests; no SMTP_URL).
+const readMailbox = withAuth({ access: "admin" }, async () => json({ messages: await listCapturedMail() }));
+
+// Where the fake is off the route does not exist, for everyone alike (checked before who is asking).
+export const GET = Object.assign(
+  (req: Request, context: { params: Promise<Record<string, string>> }) => (isMailFakeEnabled() ? readMailbox(req, context) : Promise.resolve(notHere())),
+  { policy: readMailbox.policy },
+);
 
 export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -1,20 +1,17 @@
-import { z } from "zod";
 import { getDb } from "@/db/client";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { resolveSnapshotReference } from "@/lib/snapshots/store";
-import { SWEEP_WRITE } from "@/lib/queue/api";
+import { SWEEP_WRITE, quoteRequestSchema } from "@/lib/queue/api";
 import { quoteSweep } from "@/lib/queue/submit";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-const quoteBody = z.strictObject({ spec: z.unknown().optional() });
-
 export const POST = withAuth(SWEEP_WRITE, async ({ req, studio }) => {
-  const { spec } = await parseBody(req, quoteBody);
+  const { spec } = await parseBody(req, quoteRequestSchema);
   const db = await getDb();
   return json({ quote: await quoteSweep(db, studio.id, await resolveSnapshotReference(db, studio.id, spec)) });
 });

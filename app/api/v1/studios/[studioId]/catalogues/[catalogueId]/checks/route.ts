@@ -1,4 +1,3 @@
-import { z } from "zod";
 import { getDb } from "@/db/client";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
@@ -7,20 +6,13 @@ import { withAuth } from "@/lib/auth/guard";
 import { CATALOGUE_READ, CATALOGUE_WRITE } from "@/lib/catalogues/api";
 import { catalogueOfStudio, checkView, listChecks, submitCheck } from "@/lib/catalogues/store";
 import { pokeProcessRunner } from "@/lib/queue/poke";
+import { submitCheckRequestSchema } from "@/lib/catalogues/api";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 type Params = { studioId: string; catalogueId: string };
 
-const submitBody = z.strictObject({
-  settings: z.unknown().optional(),
-  acceptedQuoteMs: z
-    .number({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
-    .int({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
-    .min(0, { error: "acceptedQuoteMs must be ≥ 0" })
-    .optional(),
-});
 
 export const GET = withAuth<typeof CATALOGUE_READ, Params>(CATALOGUE_READ, async ({ studio, params }) => {
   const db = await getDb();
@@ -30,7 +22,7 @@ export const GET = withAuth<typeof CATALOGUE_READ, Params>(CATALOGUE_READ, async
 
 /** Runs a check: its pair sweep is submitted (balance and quote checks included) and queued like any sweep. */
 export const POST = withAuth<typeof CATALOGUE_WRITE, Params>(CATALOGUE_WRITE, async ({ req, studio, user, params }) => {
-  const input = await parseBody(req, submitBody);
+  const input = await parseBody(req, submitCheckRequestSchema);
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);
   const check = await submitCheck(db, studio.id, catalogue, { settings: input.settings, acceptedQuoteMs: input.acceptedQuoteMs, createdByUserId: user?.id ?? null });

@@ -1,20 +1,17 @@
-import { z } from "zod";
 import { getDb } from "@/db/client";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
-import { CATALOGUE_WRITE } from "@/lib/catalogues/api";
+import { CATALOGUE_WRITE, checkQuoteRequestSchema } from "@/lib/catalogues/api";
 import { catalogueOfStudio, quoteCheck } from "@/lib/catalogues/store";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-const quoteBody = z.strictObject({ settings: z.unknown().optional() });
-
 /** The quote of a catalogue check: the same quote as the sweep it would submit. */
 export const POST = withAuth<typeof CATALOGUE_WRITE, { studioId: string; catalogueId: string }>(CATALOGUE_WRITE, async ({ req, studio, params }) => {
-  const { settings } = await parseBody(req, quoteBody);
+  const { settings } = await parseBody(req, checkQuoteRequestSchema);
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);
   const quoted = await quoteCheck(db, studio.id, catalogue, settings);

@@ -1,4 +1,3 @@
-import { z } from "zod";
 import { getDb } from "@/db/client";
 import { parseWith, readBodyText } from "@/lib/api/body";
 import { ApiError } from "@/lib/errors";
@@ -11,18 +10,11 @@ import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { rerunRequestSchema } from "@/lib/queue/api";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-const MIN_DT_FACTOR = 0.001;
-const rerunBody = z.strictObject({
-  dtFactor: z
-    .number({ error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
-    .min(MIN_DT_FACTOR, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
-    .max(1, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
-    .default(0.25),
-});
 
 /** The body is optional here: none (or blank) means the defaults. */
 async function readOptionalJson(req: Request): Promise<unknown> {
@@ -36,7 +28,7 @@ async function readOptionalJson(req: Request): Promise<unknown> {
 }
 
 export const POST = withAuth<typeof SWEEP_WRITE, { studioId: string; sweepId: string; index: string }>(SWEEP_WRITE, async ({ req, studio, params, user }) => {
-  const { dtFactor } = parseWith(rerunBody, await readOptionalJson(req));
+  const { dtFactor } = parseWith(rerunRequestSchema, await readOptionalJson(req));
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   const index = cellIndexParam(params.index, sweep);

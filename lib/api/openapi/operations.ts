@@ -1,0 +1,156 @@
+/**
+ * The registry of the public API: one entry per route method under app/api/v1, with the same zod
+ * schemas and access policies the route handlers use. lib/api/openapi/document.ts turns it into the
+ * OpenAPI 3.1 document served at /api/v1/openapi.json; tests/integration/openapi.test.ts fails when a
+ * route exists that is not listed here, or when an entry's policy differs from the route's.
+ *
+ * Adding a route: add one entry below (path as in the URL, {param} for [param]), with its body/query
+ * schema exported from lib/ (route files may export only what Next allows), its success status and
+ * its policy.
+ */
+import { z } from "zod";
+import { auditQuerySchema } from "@/lib/audit/audit";
+import { createTokenSchema } from "@/lib/auth/api-tokens";
+import { passwordResetConfirmSchema, passwordResetRequestSchema, signUpSchema } from "@/lib/auth/accounts";
+import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
+import { checkoutSchema } from "@/lib/billing/checkout";
+import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
+import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
+import { checkSettingsSchema } from "@/lib/catalogues/check";
+import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
+import { adjustmentSchema, platformRoleSchema, quotaPatchSchema, statusChangeSchema } from "@/lib/quotas/admin";
+import { SNAPSHOT_READ, SNAPSHOT_WRITE } from "@/lib/snapshots/api";
+import { changeRoleSchema } from "@/lib/studios/members";
+import { createInviteSchema } from "@/lib/studios/invites";
+import { createStudioSchema } from "@/lib/studios/studios";
+import { sweepSpecSchema } from "@/lib/sweeps/spec";
+import { SWEEP_STATUSES } from "@/db/schema";
+
+export type Method = "get" | "post" | "put" | "patch" | "delete";
+
+/** What a successful answer carries. */
+export type Produces = "json" | "json-or-csv" | "csv" | "file";
+
+export interface Operation {
+  method: Method;
+  /** The URL path, {param} for each dynamic segment. */
+  path: string;
+  summary: string;
+  tag: string;
+  policy: RoutePolicy;
+  /** The success status. */
+  ok: number;
+  produces?: Produces;
+  /** JSON request body (the route's own schema). */
+  body?: z.ZodType;
+  /** multipart/form-data upload (a file field and an optional name). */
+  upload?: "catalogue" | "snapshot";
+  /** Query parameters (an object schema; the route's own where it has one). */
+  query?: z.ZodObject;
+  /** The body must be signed by Stripe (the webhook); not for clients. */
+  internal?: boolean;
+}
+
+const PUBLIC = { access: "public" } as const satisfies RoutePolicy;
+const USER = { access: "user" } as const satisfies RoutePolicy;
+const ADMIN = { access: "admin" } as const satisfies RoutePolicy;
+const MEMBERS_NO_TOKEN = { access: "studio", roles: "member", token: "never" } as const satisfies RoutePolicy;
+const MEMBERS_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
+
+/** The sweep list's query (parsed by hand in lib/queue/api.ts: parseListQuery, with these limits). */
+const sweepListQuery = z.object({
+  status: z.enum(SWEEP_STATUSES).optional(),
+  page: z.int().min(1).max(1_000_000).optional(),
+  pageSize: z.int().min(1).max(100).optional(),
+});
+const cellsQuery = z.object({
+  format: z.enum(["json", "csv"]).optional(),
+  after: z.string().regex(/^(0|[1-9][0-9]{0,18})$/).optional().describe("change cursor from an earlier answer (x-kickdrift-cursor)"),
+});
+const envelopeQuery = z.object({
+  format: z.enum(["json", "csv"]).optional(),
+  bound: z.enum(["max", "min"]).optional(),
+  at: z.string().max(200).optional(),
+});
+const checkExportQuery = z.object({ format: z.enum(["json", "csv"]).optional(), table: z.enum(["pairs", "matrix"]).optional() });
+const snapshotListQuery = z.object({ name: z.string().max(200).optional() });
+
+/** The sweep spec as the quote and submit routes read it (the spec field is checked by sweepSpecSchema). */
+const quoteBody = quoteRequestSchema.extend({ spec: sweepSpecSchema.optional() });
+const submitBody = submitSweepRequestSchema.extend({ spec: sweepSpecSchema.optional() });
+const checkQuoteBody = checkQuoteRequestSchema.extend({ settings: checkSettingsSchema.optional() });
+const checkSubmitBody = submitCheckRequestSchema.extend({ settings: checkSettingsSchema.optional() });
+
+const S = "/api/v1/studios/{studioId}";
+
+export const OPERATIONS: readonly Operation[] = [
+  // Accounts
+  { method: "post", path: "/api/v1/signup", summary: "Create an account", tag: "Accounts", policy: PUBLIC, ok: 201, body: signUpSchema },
+  { method: "post", path: "/api/v1/password-reset", summary: "E-mail a password-reset link", tag: "Accounts", policy: PUBLIC, ok: 202, body: passwordResetRequestSchema },
+  { method: "post", path: "/api/v1/password-reset/confirm", summary: "Set a new password with a reset token", tag: "Accounts", policy: PUBLIC, ok: 200, body: passwordResetConfirmSchema },
+  { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: USER, ok: 200 },
+  { method: "get", path: "/api/v1/invites/{token}", summary: "An invitation, by its secret", tag: "Accounts", policy: PUBLIC, ok: 200 },
+  { method: "post", path: "/api/v1/invites/{token}/accept", summary: "Accept an invitation", tag: "Accounts", policy: USER, ok: 200 },
+  { method: "get", path: "/api/v1/dev/mail", summary: "Captured mail of the demo's local mail fake (platform admins; demo, development and tests only)", tag: "Admin", policy: ADMIN, ok: 200 },
+  // Studios
+  { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: USER, ok: 200 },
+  { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: USER, ok: 201, body: createStudioSchema },
+  { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
+  { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
+  { method: "patch", path: `${S}/members/{userId}`, summary: "Change a member's role", tag: "Studios", policy: OWNERS_ONLY, ok: 200, body: changeRoleSchema },
+  { method: "delete", path: `${S}/members/{userId}`, summary: "Remove a member", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
+  { method: "get", path: `${S}/invites`, summary: "Pending invitations", tag: "Studios", policy: MEMBERS_NO_TOKEN, ok: 200 },
+  { method: "post", path: `${S}/invites`, summary: "Invite someone by e-mail", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createInviteSchema },
+  { method: "delete", path: `${S}/invites/{inviteId}`, summary: "Withdraw an invitation", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
+  { method: "get", path: `${S}/tokens`, summary: "API tokens of a studio", tag: "Studios", policy: MEMBERS_NO_TOKEN, ok: 200 },
+  { method: "post", path: `${S}/tokens`, summary: "Create an API token (its secret is shown once)", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createTokenSchema },
+  { method: "delete", path: `${S}/tokens/{tokenId}`, summary: "Revoke an API token", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
+  // Sweeps
+  { method: "post", path: `${S}/quotes`, summary: "Quote a sweep spec", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, body: quoteBody },
+  { method: "get", path: `${S}/sweeps`, summary: "Sweeps of a studio", tag: "Sweeps", policy: SWEEP_READ, ok: 200, query: sweepListQuery },
+  { method: "post", path: `${S}/sweeps`, summary: "Submit a sweep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 201, body: submitBody },
+  { method: "get", path: `${S}/sweeps/{sweepId}`, summary: "A sweep and its progress", tag: "Sweeps", policy: SWEEP_READ, ok: 200 },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cancel`, summary: "Cancel a sweep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200 },
+  { method: "get", path: `${S}/sweeps/{sweepId}/cells`, summary: "The done cells (JSON or CSV; after= for the cells changed since a cursor)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: cellsQuery },
+  { method: "get", path: `${S}/sweeps/{sweepId}/cells/{index}`, summary: "One cell with its time series", tag: "Sweeps", policy: SWEEP_READ, ok: 200 },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun`, summary: "Run one cell again at a smaller timestep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 201, body: rerunRequestSchema },
+  { method: "get", path: `${S}/sweeps/{sweepId}/envelope`, summary: "The safe envelope (JSON or CSV)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: envelopeQuery },
+  // Catalogues
+  { method: "get", path: `${S}/catalogues`, summary: "Catalogues of a studio", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200 },
+  { method: "post", path: `${S}/catalogues`, summary: "Upload a catalogue (CSV or JSON file)", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 201, upload: "catalogue" },
+  { method: "get", path: `${S}/catalogues/{catalogueId}`, summary: "A catalogue version", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200 },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/file`, summary: "The catalogue's original file", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, produces: "file" },
+  { method: "post", path: `${S}/catalogues/{catalogueId}/quote`, summary: "Quote a catalogue check", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 200, body: checkQuoteBody },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Checks of a catalogue", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200 },
+  { method: "post", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Submit a catalogue check", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 201, body: checkSubmitBody },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}`, summary: "A catalogue check and its pair matrix", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200 },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}/export`, summary: "Export a check's pairs or matrix (JSON or CSV)", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, produces: "json-or-csv", query: checkExportQuery },
+  // Snapshots
+  { method: "get", path: `${S}/snapshots`, summary: "Snapshots of a studio", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200, query: snapshotListQuery },
+  { method: "post", path: `${S}/snapshots`, summary: "Upload a scene snapshot (JSON file)", tag: "Snapshots", policy: SNAPSHOT_WRITE, ok: 201, upload: "snapshot" },
+  { method: "get", path: `${S}/snapshots/{snapshotId}`, summary: "A snapshot version", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200 },
+  { method: "get", path: `${S}/snapshots/{snapshotId}/file`, summary: "The snapshot's original file", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200, produces: "file" },
+  // Billing
+  { method: "get", path: `${S}/billing`, summary: "Balance, packs and this month's usage", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
+  { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema },
+  { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema },
+  { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema },
+  { method: "get", path: `${S}/billing/invoices`, summary: "Invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
+  { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
+  { method: "post", path: "/api/v1/stripe/webhook", summary: "Stripe's signed event deliveries (for Stripe only)", tag: "Billing", policy: PUBLIC, ok: 200, internal: true },
+  // Admin
+  { method: "get", path: "/api/v1/admin/studios", summary: "Every studio with its usage", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}", summary: "A studio, as the platform sees it", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "A studio's quotas", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "patch", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "Change a studio's quotas", tag: "Admin", policy: ADMIN, ok: 200, body: quotaPatchSchema },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Credit adjustments of a studio", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "post", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Adjust a studio's credit", tag: "Admin", policy: ADMIN, ok: 201, body: adjustmentSchema },
+  { method: "put", path: "/api/v1/admin/studios/{studioId}/status", summary: "Suspend or reinstate a studio", tag: "Admin", policy: ADMIN, ok: 200, body: statusChangeSchema },
+  { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema },
+  { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema },
+  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: ADMIN, ok: 200 },
+  // The document itself
+  { method: "get", path: "/api/v1/openapi.json", summary: "This OpenAPI document", tag: "Reference", policy: PUBLIC, ok: 200 },
+];

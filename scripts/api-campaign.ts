@@ -1,0 +1,378 @@
+/**
+ * The proxied campaign: generated requests (valid, boundary and mutated) across every operation of the
+ * OpenAPI document, sent through Stoplight Prism's validating proxy to the production build of the app,
+ * authenticated as the demo owner, the platform admin, and a studio API token of each scope.
+ * Prism checks every request and response against the document and reports what differs in the
+ * `sl-violations` header; a response that differs from the document is a contract violation.
+ * Requests are generated from the document (openapi-sampler for bodies, the schemas' limits for
+ * boundaries) and mutated with a seeded generator.
+ *
+ *   npx tsx scripts/api-campaign.ts [--requests 5200] [--seed 17]
+ *
+ * Needs `npm run build` first (uses the build in NEXT_DIST_DIR, default .next). Prints one summary
+ * line and exits non-zero when any answer is a 5xx, any response violates the document, any
+ * operation was not exercised, or fewer requests than asked were sent.
+ */
+import { spawn, type ChildProcess } from "node:child_process";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
+import OpenAPISampler from "openapi-sampler";
+import { buildOpenApiDocument } from "@/lib/api/openapi/document";
+import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_SETTINGS } from "@/lib/catalogues/demo";
+import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
+import { DEMO_ACCOUNTS } from "@/db/seed";
+import { puckPairSpec } from "../tests/unit/sweeps/fixtures";
+
+const args = new Map<string, string>();
+for (let i = 2; i < process.argv.length; i += 2) args.set(process.argv[i].replace(/^--/, ""), process.argv[i + 1]);
+const TARGET_REQUESTS = Number(args.get("requests") ?? 5200);
+const SEED = Number(args.get("seed") ?? 17);
+const APP_PORT = Number(process.env.KD_CAMPAIGN_PORT ?? 3290);
+const PROXY_PORT = APP_PORT + 1;
+const MAIL_PORT = Number(process.env.KD_CAMPAIGN_MAIL_PORT ?? 2790);
+const STRIPE_PORT = Number(process.env.KD_CAMPAIGN_STRIPE_PORT ?? 12790);
+
+type Json = Record<string, unknown>;
+interface Op {
+  method: string;
+  path: string;
+  operationId: string;
+  op: Json;
+}
+interface Auth {
+  name: string;
+  headers: Record<string, string>;
+}
+
+const children: ChildProcess[] = [];
+function start(command: string, argv: string[], env: NodeJS.ProcessEnv): ChildProcess {
+  // Its own process group, so stopping it stops what npx started under it (the next-server) too.
+  const child = spawn(command, argv, { env, stdio: ["ignore", "pipe", "pipe"], detached: true });
+  let tail = "";
+  const keep = (chunk: Buffer) => (tail = (tail + chunk.toString()).slice(-4000));
+  child.stdout?.on("data", keep);
+  child.stderr?.on("data", keep);
+  child.on("exit", (code) => {
+    if (code && code !== 0 && !stopping) console.error(`[campaign] ${command} ${argv[0]} exited ${code}:\n${tail}`);
+  });
+  children.push(child);
+  return child;
+}
+let stopping = false;
+function stopAll(): void {
+  stopping = true;
+  for (const child of children) {
+    if (!child.pid || child.exitCode !== null) continue;
+    try {
+      process.kill(-child.pid, "SIGTERM");
+    } catch {
+      child.kill("SIGTERM");
+    }
+  }
+}
+process.on("exit", stopAll);
+for (const signal of ["SIGINT", "SIGTERM"] as const) process.on(signal, () => process.exit(1));
+
+async function waitFor(url: string, deadlineMs: number): Promise<void> {
+  const deadline = Date.now() + deadlineMs;
+  for (;;) {
+    try {
+      const res = await fetch(url);
+      if (res.status < 500) return;
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > deadline) throw new Error(`${url} did not answer within ${deadlineMs} ms`);
+    await new Promise((resolve) => setTimeout(resolve, 250));
+  }
+}
+
+function cookiesOf(res: Response, jar: Map<string, string>): void {
+  for (const line of res.headers.getSetCookie()) {
+    const [pair] = line.split(";");
+    const at = pair.indexOf("=");
+    jar.set(pair.slice(0, at).trim(), pair.slice(at + 1));
+  }
+}
+const cookieHeader = (jar: Map<string, string>) => [...jar].map(([k, v]) => `${k}=${v}`).join("; ");
+
+async function signIn(base: string, email: string, password: string): Promise<string> {
+  const jar = new Map<string, string>();
+  const csrfRes = await fetch(`${base}/api/auth/csrf`);
+  cookiesOf(csrfRes, jar);
+  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
+  const res = await fetch(`${base}/api/auth/callback/credentials`, {
+    method: "POST",
+    redirect: "manual",
+    headers: { "content-type": "application/x-www-form-urlencoded", cookie: cookieHeader(jar), origin: base },
+    body: new URLSearchParams({ csrfToken, email, password, json: "true", callbackUrl: `${base}/studios` }).toString(),
+  });
+  cookiesOf(res, jar);
+  if (![...jar.keys()].some((k) => k.endsWith("next-auth.session-token"))) throw new Error(`sign-in of ${email} failed (${res.status})`);
+  return cookieHeader(jar);
+}
+
+async function api(base: string, method: string, url: string, headers: Record<string, string>, body?: unknown): Promise<{ status: number; body: unknown }> {
+  const init: RequestInit = { method, headers: { ...headers, origin: base } };
+  if (body instanceof FormData) init.body = body;
+  else if (body !== undefined) {
+    init.body = JSON.stringify(body);
+    (init.headers as Record<string, string>)["content-type"] = "application/json";
+  }
+  const res = await fetch(`${base}${url}`, init);
+  const text = await res.text();
+  let parsed: unknown = text;
+  try {
+    parsed = JSON.parse(text);
+  } catch {
+    // CSV or a file
+  }
+  return { status: res.status, body: parsed };
+}
+
+/** One seeded generator, so a campaign is repeatable (mulberry32, a common small PRNG). */
+interface Rng {
+  nextInt(min: number, max: number): number;
+}
+function seededRandom(seed: number): Rng {
+  let a = seed >>> 0;
+  const next = () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+  return { nextInt: (min, max) => min + Math.floor(next() * (max - min + 1)) };
+}
+
+/** Hostile values for mutations (as in tests/integration/mutated-input.test.ts). */
+let deep: unknown = 1;
+for (let i = 0; i < 300; i++) deep = { nested: [deep] };
+const HOSTILE: unknown[] = ["NaN", "Infinity", "-1", "", -1, 0, -1e308, 1e308, 2 ** 53, 0.5, true, null, [], {}, "x".repeat(3000), deep, "\u0000"];
+const BAD_PARAMS = ["-1", "0", "NaN", "1e308", "..%2F..", "%00", "x".repeat(300), "std_doesNotExist000000000", "💥"];
+
+/** Paths into a document, down to a depth that a mutation's targets need (a hostile value may itself be deep). */
+function paths(value: unknown, at: (string | number)[] = []): (string | number)[][] {
+  const out: (string | number)[][] = [at];
+  if (at.length >= 12) return out;
+  if (Array.isArray(value)) value.forEach((v, i) => out.push(...paths(v, [...at, i])));
+  else if (value && typeof value === "object") for (const [k, v] of Object.entries(value)) out.push(...paths(v, [...at, k]));
+  return out;
+}
+function mutate(valid: unknown, rng: Rng): unknown {
+  let doc: unknown = JSON.parse(JSON.stringify(valid ?? {}));
+  const steps = 1 + rng.nextInt(0, 2);
+  for (let s = 0; s < steps; s++) {
+    const all = paths(doc);
+    const target = all[rng.nextInt(0, all.length - 1)];
+    const value = HOSTILE[rng.nextInt(0, HOSTILE.length - 1)];
+    const kind = rng.nextInt(0, 2);
+    if (target.length === 0) {
+      if (kind === 0) doc = value;
+      else if (doc && typeof doc === "object" && !Array.isArray(doc)) Object.defineProperty(doc, ["__proto__", "extra", "constructor"][kind], { value, enumerable: true, configurable: true, writable: true });
+      continue;
+    }
+    const parent = target.slice(0, -1).reduce<unknown>((v, k) => (v as Record<string | number, unknown>)[k], doc) as Record<string | number, unknown>;
+    const key = target[target.length - 1];
+    if (kind === 0) parent[key] = value;
+    else if (kind === 1) {
+      if (Array.isArray(parent)) parent.splice(Number(key), 1);
+      else delete parent[key];
+    } else if (parent && typeof parent === "object" && !Array.isArray(parent)) Object.defineProperty(parent, "__proto__", { value, enumerable: true, configurable: true, writable: true });
+  }
+  return doc;
+}
+
+/** Boundary values of a query parameter's schema: its limits and one past each. */
+function boundaries(schema: Json): unknown[] {
+  const out: unknown[] = [];
+  if (Array.isArray(schema.enum)) out.push(...(schema.enum as unknown[]), "not-a-choice");
+  if (typeof schema.minimum === "number") out.push(schema.minimum, (schema.minimum as number) - 1);
+  if (typeof schema.maximum === "number") out.push(schema.maximum, (schema.maximum as number) + 1);
+  if (typeof schema.maxLength === "number") out.push("y".repeat(schema.maxLength as number), "y".repeat((schema.maxLength as number) + 1));
+  if (out.length === 0) out.push("", "x");
+  return out;
+}
+
+async function main(): Promise<void> {
+  const work = mkdtempSync(path.join(tmpdir(), "kickdrift-campaign-"));
+  const docFile = path.join(work, "openapi.json");
+  const document = buildOpenApiDocument() as unknown as { paths: Record<string, Record<string, Json>> };
+  writeFileSync(docFile, JSON.stringify(document));
+  const ops: Op[] = Object.entries(document.paths).flatMap(([p, item]) => Object.entries(item).map(([method, op]) => ({ method: method.toUpperCase(), path: p, operationId: String(op.operationId), op })));
+
+  const base = `http://127.0.0.1:${APP_PORT}`;
+  const env = Object.fromEntries(Object.entries(process.env).filter(([k]) => !/^(SMTP_URL|STRIPE_|DATABASE_URL|KICKDRIFT_)/.test(k)));
+  start("npx", ["next", "start", "-p", String(APP_PORT)], {
+    ...env,
+    NEXT_DIST_DIR: process.env.NEXT_DIST_DIR ?? ".next",
+    KICKDRIFT_DATA_DIR: path.join(work, "data"),
+    KICKDRIFT_DEMO: "1",
+    KICKDRIFT_RUNNER: "off",
+    NEXTAUTH_URL: base,
+    MAIL_FAKE_PORT: String(MAIL_PORT),
+    STRIPE_FAKE_PORT: String(STRIPE_PORT),
+  } as unknown as NodeJS.ProcessEnv);
+  await waitFor(`${base}/api/health`, 180_000);
+  start(path.join(process.cwd(), "node_modules", ".bin", "prism"), ["proxy", docFile, base, "-p", String(PROXY_PORT), "-h", "127.0.0.1"], process.env);
+  const proxy = `http://127.0.0.1:${PROXY_PORT}`;
+  await waitFor(`${proxy}/api/health`, 120_000).catch(async () => waitFor(`${proxy}/api/v1/openapi.json`, 60_000));
+
+  // --- Who calls: the demo owner, the platform admin, and a studio token of each scope.
+  const owner = DEMO_ACCOUNTS.find((a) => a.role === "owner")!;
+  const admin = DEMO_ACCOUNTS.find((a) => a.role === "admin")!;
+  const ownerCookie = await signIn(base, owner.email, owner.password);
+  const adminCookie = await signIn(base, admin.email, admin.password);
+  const me = (await api(base, "GET", "/api/v1/me", { cookie: ownerCookie })).body as { studios: { id: string }[]; user: { id: string } };
+  const studioId = me.studios[0].id;
+  const S = `/api/v1/studios/${studioId}`;
+  const token = async (scopes: string[]) => ((await api(base, "POST", `${S}/tokens`, { cookie: ownerCookie }, { name: `campaign ${scopes.join("+")}`, scopes })).body as { token: { secret: string; id: string } }).token;
+  const readToken = await token(["read"]);
+  const writeToken = await token(["write"]);
+  const spareToken = await token(["read"]);
+  const auths: Auth[] = [
+    { name: "owner", headers: { cookie: ownerCookie } },
+    { name: "admin", headers: { cookie: adminCookie } },
+    { name: "token:read", headers: { authorization: `Bearer ${readToken.secret}` } },
+    { name: "token:write", headers: { authorization: `Bearer ${writeToken.secret}` } },
+    { name: "anonymous", headers: {} },
+  ];
+
+  // --- Real ids for the path parameters.
+  const sweep = (await api(base, "POST", `${S}/sweeps`, { cookie: ownerCookie }, { spec: puckPairSpec() })).body as { sweep: { id: string } };
+  const catalogueForm = () => {
+    const form = new FormData();
+    form.set("file", new Blob([CRATESLIDE_CATALOGUE_CSV], { type: "text/csv" }), "objects.csv");
+    form.set("name", "Campaign objects");
+    return form;
+  };
+  const snapshotForm = () => {
+    const form = new FormData();
+    form.set("file", new Blob([CRATESLIDE_SNAPSHOT_JSON], { type: "application/json" }), "bay.json");
+    form.set("name", "Campaign bay");
+    return form;
+  };
+  const catalogue = (await api(base, "POST", `${S}/catalogues`, { cookie: ownerCookie }, catalogueForm())).body as { catalogue: { id: string } };
+  const snapshot = (await api(base, "POST", `${S}/snapshots`, { cookie: ownerCookie }, snapshotForm())).body as { snapshot: { id: string } };
+  const check = (await api(base, "POST", `${S}/catalogues/${catalogue.catalogue.id}/checks`, { cookie: ownerCookie }, { settings: CRATESLIDE_SETTINGS })).body as { check: { id: string } };
+  const invite = (await api(base, "POST", `${S}/invites`, { cookie: ownerCookie }, { email: "campaign.invitee@driftwood-pucks.test", role: "engineer" })).body as { invite: { id: string } };
+  const ids: Record<string, string> = {
+    studioId,
+    sweepId: sweep.sweep?.id ?? "swp_missing",
+    catalogueId: catalogue.catalogue?.id ?? "cat_missing",
+    snapshotId: snapshot.snapshot?.id ?? "snp_missing",
+    checkId: check.check?.id ?? "chk_missing",
+    inviteId: invite.invite?.id ?? "inv_missing",
+    tokenId: spareToken.id,
+    userId: me.user.id,
+    index: "0",
+    invoiceId: "inv_none",
+    token: "not-an-invite-secret",
+  };
+
+  /** Valid bodies where a sampled one would mean nothing (the rest come from the document's schemas). */
+  const curated: Record<string, unknown> = {
+    "POST /api/v1/signup": { email: "campaign.signup@driftwood-pucks.test", password: "campaign-long-password", name: "Campaign Person" },
+    "POST /api/v1/password-reset": { email: owner.email },
+    "POST /api/v1/studios/{studioId}/quotes": { spec: puckPairSpec() },
+    "POST /api/v1/studios/{studioId}/sweeps": { spec: puckPairSpec() },
+    "POST /api/v1/studios/{studioId}/catalogues/{catalogueId}/quote": { settings: CRATESLIDE_SETTINGS },
+    "POST /api/v1/studios/{studioId}/catalogues/{catalogueId}/checks": { settings: CRATESLIDE_SETTINGS },
+    "POST /api/v1/studios/{studioId}/billing/checkout": { packId: "tap-out", quantity: 1 },
+    "PATCH /api/v1/studios/{studioId}/members/{userId}": { role: "owner" },
+    "POST /api/v1/studios/{studioId}/tokens": { name: "campaign", scopes: ["read"] },
+    "POST /api/v1/studios/{studioId}/invites": { email: "campaign.more@driftwood-pucks.test", role: "finance" },
+  };
+
+  // --- The campaign.
+  const rng = seededRandom(SEED);
+  const stats = { sent: 0, fiveXX: 0, responseViolations: 0, truncatedReports: 0, requestViolationsOnValid: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
+  const covered = new Set<string>();
+  const samples: string[] = [];
+  const perOp = Math.ceil(TARGET_REQUESTS / ops.length);
+  for (const op of ops) {
+    const key = `${op.method} ${op.path}`;
+    const content = (op.op.requestBody as { content?: Record<string, { schema?: Json }> } | undefined)?.content ?? {};
+    const jsonSchema = content["application/json"]?.schema;
+    const upload = Boolean(content["multipart/form-data"]);
+    let validBody: unknown = curated[key];
+    if (validBody === undefined && jsonSchema) validBody = OpenAPISampler.sample(jsonSchema as never, { skipReadOnly: true, quiet: true }, document as never);
+    const queryParams = ((op.op.parameters as Json[] | undefined) ?? []).filter((p) => p.in === "query");
+    for (let i = 0; i < perOp; i++) {
+      const kind = i % 5 === 0 ? "valid" : i % 5 === 1 ? "boundary" : "mutated";
+      const auth = auths[i % auths.length];
+      let url = op.path.replace(/\{([^}]+)\}/g, (_, name: string) => encodeURIComponent(kind === "mutated" && rng.nextInt(0, 3) === 0 ? BAD_PARAMS[rng.nextInt(0, BAD_PARAMS.length - 1)] : ids[name] ?? name));
+      if (kind === "boundary" && queryParams.length > 0) {
+        const param = queryParams[rng.nextInt(0, queryParams.length - 1)];
+        const values = boundaries((param.schema as Json) ?? {});
+        url += `?${encodeURIComponent(String(param.name))}=${encodeURIComponent(String(values[rng.nextInt(0, values.length - 1)]))}`;
+      } else if (kind === "mutated" && queryParams.length > 0 && rng.nextInt(0, 1) === 0) {
+        const param = queryParams[rng.nextInt(0, queryParams.length - 1)];
+        url += `?${encodeURIComponent(String(param.name))}=${encodeURIComponent(String(HOSTILE[rng.nextInt(0, HOSTILE.length - 1)]).slice(0, 500))}`;
+      }
+      let body: unknown;
+      if (upload) body = op.path.endsWith("/snapshots") ? snapshotForm() : catalogueForm();
+      else if (jsonSchema) body = kind === "mutated" ? mutate(validBody, rng) : kind === "boundary" ? mutate(validBody, rng) : validBody;
+      const headers: Record<string, string> = { ...auth.headers, origin: base };
+      const init: RequestInit = { method: op.method, headers };
+      if (body instanceof FormData) init.body = body;
+      else if (body !== undefined) {
+        init.body = JSON.stringify(body);
+        headers["content-type"] = "application/json";
+      }
+      let res: Response;
+      try {
+        res = await fetch(`${proxy}${url}`, { ...init, signal: AbortSignal.timeout(60_000) });
+        await res.arrayBuffer();
+      } catch (error) {
+        // No answer at all counts like a 5xx: the client got nothing it could act on.
+        stats.sent += 1;
+        stats.fiveXX += 1;
+        if (samples.length < 20) samples.push(`no answer ${op.method} ${url} as ${auth.name}: ${(error as Error).message}`);
+        continue;
+      }
+      stats.sent += 1;
+      stats.byKind[kind] += 1;
+      if (stats.sent % 500 === 0) console.log(`[campaign] ${stats.sent} requests sent (${covered.size + 1}/${ops.length} operations)`);
+      covered.add(key);
+      // Prism replaces the list with a plain sentence when it is very long ("Too many violations…"): that
+      // happens for heavily mutated requests; it is counted apart and printed in the summary line.
+      let violations: { location: string[]; message: string }[] = [];
+      const reported = res.headers.get("sl-violations");
+      if (reported) {
+        try {
+          violations = JSON.parse(reported) as typeof violations;
+        } catch {
+          stats.truncatedReports += 1;
+          if (samples.length < 20) samples.push(`truncated violation report ${res.status} ${op.method} ${url}: ${reported.slice(0, 120)}`);
+        }
+      }
+      const responseViolations = violations.filter((v) => v.location[0] === "response");
+      if (res.status >= 500) {
+        stats.fiveXX += 1;
+        if (samples.length < 20) samples.push(`5xx ${res.status} ${op.method} ${url} as ${auth.name} body=${JSON.stringify(body)?.slice(0, 200)}`);
+      }
+      if (responseViolations.length > 0) {
+        stats.responseViolations += 1;
+        if (samples.length < 20) samples.push(`contract ${res.status} ${op.method} ${url} as ${auth.name}: ${responseViolations.map((v) => v.message).join("; ")}`);
+      }
+      if (kind === "valid" && violations.some((v) => v.location[0] === "request" && v.location[1] !== "query" && !/security|authoriz/i.test(v.message))) stats.requestViolationsOnValid += 1;
+    }
+  }
+  stopAll();
+  rmSync(work, { recursive: true, force: true });
+  for (const line of samples) console.log(`[campaign] ${line}`);
+  console.log(
+    `[campaign] operations covered ${covered.size}/${ops.length}; requests sent ${stats.sent} (valid ${stats.byKind.valid}, boundary ${stats.byKind.boundary}, mutated ${stats.byKind.mutated}); authenticated as ${auths.map((a) => a.name).join(", ")}; 5xx answers ${stats.fiveXX}; contract violations ${stats.responseViolations}; truncated violation reports ${stats.truncatedReports}`,
+  );
+  const ok = covered.size === ops.length && stats.sent >= TARGET_REQUESTS && stats.fiveXX === 0 && stats.responseViolations === 0;
+  process.exit(ok ? 0 : 1);
+}
+
+main().catch((error: unknown) => {
+  console.error(error);
+  stopAll();
+  process.exit(1);
+});
