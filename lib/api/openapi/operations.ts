@@ -22,6 +22,7 @@ import { adjustmentSchema, platformRoleSchema, quotaPatchSchema, statusChangeSch
 import { SNAPSHOT_READ, SNAPSHOT_WRITE } from "@/lib/snapshots/api";
 import { changeRoleSchema } from "@/lib/studios/members";
 import { createInviteSchema } from "@/lib/studios/invites";
+import { createEndpointSchema } from "@/lib/webhooks/webhooks";
 import { createStudioSchema } from "@/lib/studios/studios";
 import { sweepSpecSchema } from "@/lib/sweeps/spec";
 import { SWEEP_STATUSES } from "@/db/schema";
@@ -54,7 +55,6 @@ export interface Operation {
 const PUBLIC = { access: "public" } as const satisfies RoutePolicy;
 const USER = { access: "user" } as const satisfies RoutePolicy;
 const ADMIN = { access: "admin" } as const satisfies RoutePolicy;
-const MEMBERS_NO_TOKEN = { access: "studio", roles: "member", token: "never" } as const satisfies RoutePolicy;
 const MEMBERS_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
 
 /** The sweep list's query (parsed by hand in lib/queue/api.ts: parseListQuery, with these limits). */
@@ -85,10 +85,12 @@ const S = "/api/v1/studios/{studioId}";
 
 export const OPERATIONS: readonly Operation[] = [
   // Accounts
-  { method: "post", path: "/api/v1/signup", summary: "Create an account", tag: "Accounts", policy: PUBLIC, ok: 201, body: signUpSchema },
+  { method: "post", path: "/api/v1/signup", summary: "Create an account (the same answer whether or not the address has one)", tag: "Accounts", policy: PUBLIC, ok: 202, body: signUpSchema },
   { method: "post", path: "/api/v1/password-reset", summary: "E-mail a password-reset link", tag: "Accounts", policy: PUBLIC, ok: 202, body: passwordResetRequestSchema },
   { method: "post", path: "/api/v1/password-reset/confirm", summary: "Set a new password with a reset token", tag: "Accounts", policy: PUBLIC, ok: 200, body: passwordResetConfirmSchema },
   { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: USER, ok: 200 },
+  { method: "delete", path: "/api/v1/me/sessions", summary: "Sign out everywhere (ends every session of the user)", tag: "Accounts", policy: USER, ok: 200 },
+  { method: "get", path: "/api/v1/token", summary: "The calling API token: its studio and scopes", tag: "Accounts", policy: PUBLIC, ok: 200 },
   { method: "get", path: "/api/v1/invites/{token}", summary: "An invitation, by its secret", tag: "Accounts", policy: PUBLIC, ok: 200 },
   { method: "post", path: "/api/v1/invites/{token}/accept", summary: "Accept an invitation", tag: "Accounts", policy: USER, ok: 200 },
   { method: "get", path: "/api/v1/dev/mail", summary: "Captured mail of the demo's local mail fake (platform admins; demo, development and tests only)", tag: "Admin", policy: ADMIN, ok: 200 },
@@ -99,10 +101,16 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
   { method: "patch", path: `${S}/members/{userId}`, summary: "Change a member's role", tag: "Studios", policy: OWNERS_ONLY, ok: 200, body: changeRoleSchema },
   { method: "delete", path: `${S}/members/{userId}`, summary: "Remove a member", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
-  { method: "get", path: `${S}/invites`, summary: "Pending invitations", tag: "Studios", policy: MEMBERS_NO_TOKEN, ok: 200 },
+  { method: "get", path: `${S}/invites`, summary: "Pending invitations", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
   { method: "post", path: `${S}/invites`, summary: "Invite someone by e-mail", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createInviteSchema },
   { method: "delete", path: `${S}/invites/{inviteId}`, summary: "Withdraw an invitation", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
-  { method: "get", path: `${S}/tokens`, summary: "API tokens of a studio", tag: "Studios", policy: MEMBERS_NO_TOKEN, ok: 200 },
+  { method: "get", path: `${S}/tokens`, summary: "API tokens of a studio", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
+  { method: "get", path: `${S}/overview`, summary: "The studio home: compute, running and latest sweeps, checks, next invoice", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
+  { method: "get", path: `${S}/webhooks`, summary: "Webhook endpoints of a studio", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
+  { method: "post", path: `${S}/webhooks`, summary: "Register a webhook endpoint (its signing secret is shown once)", tag: "Webhooks", policy: OWNERS_ONLY, ok: 201, body: createEndpointSchema },
+  { method: "delete", path: `${S}/webhooks/{endpointId}`, summary: "Remove a webhook endpoint", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
+  { method: "get", path: `${S}/webhooks/{endpointId}/deliveries`, summary: "The delivery log of an endpoint", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
+  { method: "post", path: `${S}/webhooks/{endpointId}/deliveries/{eventId}/resend`, summary: "Send an event to an endpoint again", tag: "Webhooks", policy: OWNERS_ONLY, ok: 202 },
   { method: "post", path: `${S}/tokens`, summary: "Create an API token (its secret is shown once)", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createTokenSchema },
   { method: "delete", path: `${S}/tokens/{tokenId}`, summary: "Revoke an API token", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
   // Sweeps
