@@ -12,6 +12,7 @@ import { catalogueChecks, catalogues, sweeps, type Catalogue, type CatalogueChec
 import { ApiError, type FieldIssue } from "@/lib/errors";
 import { quoteSweep, submitSweep, type Quote } from "@/lib/queue/submit";
 import { storedCells, sweepView, type SweepView } from "@/lib/queue/views";
+import { INSTABILITY_VERDICTS } from "@/lib/physics/types";
 import { canonicalJson } from "@/lib/sweeps/canonical";
 import { formatLimit } from "@/lib/sweeps/parameters";
 import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
@@ -247,7 +248,7 @@ export interface Confirmation {
 }
 
 /** Verdicts that refute a stiffness recommended from the stability bound (the others are about accuracy). */
-const REFUTING_VERDICTS: ReadonlySet<string> = new Set(["exploded", "step-unstable", "tunneled", "deep-overlap"]);
+const REFUTING_VERDICTS: ReadonlySet<string> = new Set(INSTABILITY_VERDICTS);
 
 export interface CheckView {
   id: string;

@@ -19,6 +19,13 @@ export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" 
 export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable", "step-unstable", "restitution-off", "coarse-contact"];
 /** Precedence of the current verdict rules (VERDICT_RULES_VERSION): the first verdict whose condition holds wins. */
 export const VERDICT_PRECEDENCE: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap", "restitution-off", "energy-drift", "coarse-contact", "stable"];
+/**
+ * Verdicts that say the integrator failed the contact (blew up, ran past the step bound, let a body
+ * through, or let it sink too deep), as against verdicts about accuracy (rebound off the target,
+ * energy gained, a contact resolved in too few steps). A stiffness recommended from the stability
+ * bound is refuted, and a build fails by default, only on these.
+ */
+export const INSTABILITY_VERDICTS: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap"];
 /** Precedence of verdict rules 1 (sweeps stored before the rules were versioned). */
 export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
 

@@ -15,6 +15,7 @@ import type { Db } from "@/db/client";
 import { sweeps } from "@/db/schema";
 import { createApiToken } from "@/lib/auth/api-tokens";
 import { QueueRunner } from "@/lib/queue/runner";
+import { INSTABILITY_VERDICTS } from "@/lib/physics/types";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { closeTestDb, countRows, useFreshDb as openFreshTestDb } from "../../helpers/db";
 import { startAppServer, type AppServer } from "../../helpers/app-server";
@@ -121,11 +122,10 @@ describe("kickdrift check", { timeout: 180_000 }, () => {
     const report = JSON.parse(readFileSync(path.join(work, "gentle.json.out"), "utf8")) as { exitCode: number; catalogueId: string; cases: { name: string; verdict: string }[] };
     expect(report.exitCode).toBe(0);
     expect(report.catalogueId).toMatch(/^cat_/);
-    expect(report.cases.map((entry) => [entry.name, entry.verdict])).toEqual([
-      ["crate × crate", "stable"],
-      ["crate × coin", "stable"],
-      ["coin × coin", "stable"],
-    ]);
+    expect(report.cases.map((entry) => entry.name)).toEqual(["crate × crate", "crate × coin", "coin × coin"]);
+    // Within the bound no pairing fails the way the build counts by default; an accuracy verdict
+    // (a rebound a little off its target) may show in the report without failing the build.
+    for (const entry of report.cases) expect(INSTABILITY_VERDICTS).not.toContain(entry.verdict);
   });
 
   it("fails a pair at risk: exit 1, the JUnit file valid against the JUnit XML schema with the verdict and reason", async () => {
