@@ -1,4 +1,4 @@
-import { z } from "zod";
+import { z } from "@/lib/zod";
 
 /**
  * Unicode's bidirectional formatting characters (Unicode Standard Annex #9, "Explicit Directional

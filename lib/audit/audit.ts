@@ -5,7 +5,7 @@
  * so a change and its record commit or roll back together.
  */
 import { and, desc, eq, gte, lte, sql, type SQL } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { auditLog, type AuditLogRow, type User } from "@/db/schema";
 import { ApiError } from "@/lib/errors";

@@ -1,5 +1,5 @@
 import { and, eq, isNull } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { getDb } from "@/db/client";
 import { newId, newSecret, sha256Hex } from "@/db/ids";
 import { passwordResets, users, type User } from "@/db/schema";

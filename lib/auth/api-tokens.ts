@@ -1,5 +1,5 @@
 import { and, desc, eq, isNull } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { getDb } from "@/db/client";
 import { newId, sha256Hex } from "@/db/ids";
 import { API_TOKEN_SCOPES, apiTokens, type ApiToken, type ApiTokenScope, type User } from "@/db/schema";

@@ -1,5 +1,5 @@
 import bcrypt from "bcryptjs";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 
 export const PASSWORD_MIN_LENGTH = 10;
 export const PASSWORD_MAX_LENGTH = 200;

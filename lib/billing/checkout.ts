@@ -1,6 +1,6 @@
 /** Buying a credit pack through Stripe Checkout; the webhook credits the ledger once it is paid. */
 import Stripe from "stripe";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
 import type { User } from "@/db/schema";
 import { appBaseUrl } from "@/lib/auth/config";

@@ -1,6 +1,6 @@
 /** Read models of the billing pages and API: balance, the ledger table, usage breakdowns, invoices and their reconciliation, the platform's finance view. */
 import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
 import { parseWith } from "@/lib/api/body";

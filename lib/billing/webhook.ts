@@ -5,7 +5,7 @@
  */
 import { eq } from "drizzle-orm";
 import type Stripe from "stripe";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
 import { invoices, stripeEvents, studios, type InvoiceLineRecord } from "@/db/schema";
 import { ApiError } from "@/lib/errors";

@@ -1,4 +1,4 @@
-import { z } from "zod";
+import { z } from "@/lib/zod";
 /** Policies of the catalogue routes: the same as the sweep routes (a check is a sweep). */
 import { SWEEP_READ, SWEEP_WRITE } from "@/lib/queue/api";
 

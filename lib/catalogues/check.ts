@@ -7,7 +7,7 @@
  *
  * Pure: safe to import in the browser.
  */
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import {
   hertzContactDurationS,
   hertzMaxOverlapM,

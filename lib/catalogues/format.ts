@@ -11,7 +11,7 @@
  * Pure: safe to import in the browser.
  */
 import Papa from "papaparse";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { guardFormula } from "../sweeps/results";
 import { formatLimit, numericRule, rangeViolation, type NumericParameter } from "../sweeps/parameters";
 import { nameTextProblem } from "@/lib/api/text";

@@ -4,7 +4,7 @@ import type { Db } from "@/db/client";
 import { SWEEP_STATUSES, sweeps, type Sweep, type SweepStatus } from "@/db/schema";
 import type { RoutePolicy } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 
 /** Reading sweeps: any member, and API tokens with the read (or write) scope. */

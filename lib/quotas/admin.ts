@@ -5,7 +5,7 @@
  */
 import { randomBytes } from "node:crypto";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
 import { ledgerEntries, memberships, studioQuotas, studios, sweeps, users, type LedgerEntry, type StudioStatus, type User } from "@/db/schema";
 import { writeAudit } from "@/lib/audit/audit";

@@ -6,7 +6,7 @@
  *
  * Pure: safe to import in the browser (the upload page checks before sending; the server again).
  */
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import type { SnapshotBody, SnapshotScene, SnapshotWall } from "../physics/types";
 import { SPEC_LIMITS, formatLimit, numericRule } from "../sweeps/parameters";

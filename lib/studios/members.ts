@@ -1,5 +1,5 @@
 import { and, asc, eq } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { getDb, type DbOrTx } from "@/db/client";
 import { memberships, STUDIO_ROLES, users, type StudioRole, type User } from "@/db/schema";
 import { writeAudit } from "@/lib/audit/audit";

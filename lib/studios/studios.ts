@@ -1,5 +1,5 @@
 import { asc, count, eq } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { getDb } from "@/db/client";
 import { newId } from "@/db/ids";
 import { memberships, studios, users, type Studio, type StudioRole } from "@/db/schema";

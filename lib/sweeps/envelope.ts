@@ -17,7 +17,7 @@
  * Pure: safe to import in the browser.
  */
 import type { Verdict } from "../physics/types";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { cellIndex, type ExpandedAxis } from "./grid";
 import { formatNumber, guardFormula, quoteCsvField } from "./results";
 

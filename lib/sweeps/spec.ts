@@ -8,7 +8,7 @@
  *
  * Pure: safe to import in the browser.
  */
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
 import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import { VERDICT_RULES_VERSION, VERDICT_RULES_VERSIONS, type Scenario, type SceneKind, type Tolerances } from "../physics/types";

@@ -15,7 +15,7 @@
  */
 import { createHash } from "node:crypto";
 import { and, desc, eq, gte, inArray, isNull, or, sql } from "drizzle-orm";
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import type { Db, DbOrTx } from "@/db/client";
 import { newId } from "@/db/ids";
 import {

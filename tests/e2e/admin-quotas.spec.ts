@@ -1,4 +1,4 @@
-import { expect, signInWithPassword, test, uniqueEmail } from "./helpers";
+import { expect, sameOrigin, signInWithPassword, test, uniqueEmail } from "./helpers";
 
 // The demo platform admin seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_ADMIN = { email: "ops@kickdrift.test", password: "kickdrift-operator" };
@@ -49,13 +49,13 @@ test("an admin lowers a studio's cap under a running sweep: it pauses with the r
   const studioId = studioPath.split("/").pop()!;
 
   // The quote shows the studio's limits before submitting.
-  const quote = await owner.request.post(`/api/v1/studios/${studioId}/quotes`, { data: { spec: CRATE_PILE } });
+  const quote = await owner.request.post(`/api/v1/studios/${studioId}/quotes`, { data: { spec: CRATE_PILE }, headers: sameOrigin(owner) });
   expect(quote.status()).toBe(200);
   const { quote: q } = (await quote.json()) as { quote: { cells: number; estimatedComputeMs: number; ceilingMs: number; limits: { monthlyComputeMs: number; violations: unknown[] } } };
   expect(q.cells).toBe(300);
   expect(q.limits.violations).toEqual([]);
   expect(q.estimatedComputeMs).toBeGreaterThan(6_000 * 2);
-  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.ceilingMs } });
+  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.ceilingMs }, headers: sameOrigin(owner) });
   expect(submitted.status()).toBe(201);
   const { sweep } = (await submitted.json()) as { sweep: { id: string } };
   await owner.goto(`${studioPath}/sweeps/${sweep.id}`);

@@ -91,3 +91,11 @@ export async function signInWithPassword(page: Page, email: string, password: st
   await page.getByRole("button", { name: "Sign in", exact: true }).click();
   await expect(page).toHaveURL(landing);
 }
+
+/**
+ * Headers a browser's own fetch would carry: a page's request context sends the session cookie but
+ * no Origin, and a cookie-authenticated write must come from the site itself (lib/auth/same-origin.ts).
+ */
+export function sameOrigin(page: Page): Record<string, string> {
+  return { origin: new URL(page.url()).origin };
+}

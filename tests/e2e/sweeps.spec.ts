@@ -1,6 +1,6 @@
 import { readFile } from "node:fs/promises";
 import { type Locator, type Page } from "@playwright/test";
-import { expect, signInWithPassword, test } from "./helpers";
+import { expect, sameOrigin, signInWithPassword, test } from "./helpers";
 
 // The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
@@ -146,7 +146,7 @@ test("a finance member sees sweeps but gets the 403 page for the builder", async
   const members = (await (await owner.request.get(membersApi)).json()) as { members: { userId: string; email: string }[] };
   const engineer = members.members.find((member) => member.email === DEMO_ENGINEER.email)!;
   const setRole = async (role: string) => {
-    const response = await owner.request.patch(`${membersApi}/${engineer.userId}`, { data: { role } });
+    const response = await owner.request.patch(`${membersApi}/${engineer.userId}`, { data: { role }, headers: sameOrigin(owner) });
     expect(response.status()).toBe(200);
   };
   await setRole("finance");

@@ -2,7 +2,7 @@
  * The OpenAPI 3.1 document of the public API, generated (zod-openapi) from the registry in
  * ./operations.ts, which holds the same zod schemas and policies the route handlers use.
  */
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObject, type ZodOpenApiResponsesObject } from "zod-openapi";
 import { MAX_JSON_BODY_BYTES } from "@/lib/api/body";
 import type { RoutePolicy } from "@/lib/auth/guard";

@@ -8,7 +8,7 @@
  * schema exported from lib/ (route files may export only what Next allows), its success status and
  * its policy.
  */
-import { z } from "zod";
+import { z } from "@/lib/zod";
 import { auditQuerySchema } from "@/lib/audit/audit";
 import { createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, signUpSchema } from "@/lib/auth/accounts";
