@@ -63,6 +63,8 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   const map = page.getByRole("application").first();
   await expect(map).toHaveAttribute("data-plot", /.+/);
   // The map's frame-step axis reads in Hz: hover the top-right cell (stiffest contact, 30 Hz).
+  // The mouse moves in viewport coordinates: bring the map into view first.
+  await map.scrollIntoViewIfNeeded();
   const box = (await map.boundingBox())!;
   const topRight = await plotPoint(map, 0.99, 0.02);
   await page.mouse.move(box.x + topRight.x, box.y + topRight.y);

@@ -78,6 +78,8 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   // --- Hover a cell: the tooltip shows its values. Top right = the stiffest contact at 30 Hz with symplectic Euler.
   const map = page.getByRole("application").first();
   await expect(map).toHaveAttribute("data-plot", /.+/);
+  // The mouse moves in viewport coordinates: bring the map into view first.
+  await map.scrollIntoViewIfNeeded();
   const box = (await map.boundingBox())!;
   const topRight = await plotPoint(map, 0.99, 0.02);
   await page.mouse.move(box.x + topRight.x, box.y + topRight.y);
