@@ -25,8 +25,9 @@ test("an engineer reads the quote's ceiling and expected cost, runs the sweep an
 
   // --- The quote: a ceiling and an expected figure, each in time and money, never "0.00 min".
   const quote = page.getByTestId("quote-panel");
-  // The template's own quote: nothing of it is cached in the demo studio, so its ceiling is above 0 ms
-  // (the builder may show an earlier quote for a moment while the template's one is on its way).
+  // The template's own quote (357 cells: its grid), not the builder's first template's one that shows
+  // while it is on its way; nothing of it is cached in the demo studio, so its ceiling is above 0 ms.
+  await expect(quote.getByTestId("quote-cells")).toHaveText("357");
   await expect(quote.getByTestId("quote-ceiling-in-ms")).toHaveText(/^[1-9][\d,]* ms$/);
   const ceilingMs = msOf(await quote.getByTestId("quote-ceiling-in-ms").textContent());
   const expectedMs = msOf(await quote.getByTestId("quote-expected-in-ms").textContent());
