@@ -8,7 +8,7 @@ export const ROOT_FIELD = "body";
 export const MAX_JSON_BODY_BYTES = 64 * 1024;
 
 function tooLarge(limit: number): ApiError {
-  return new ApiError(413, "payload_too_large", `Request body exceeds the limit of ${limit} bytes.`);
+  return new ApiError(413, "payload_too_large", `Request body exceeds the limit of ${limit} bytes.`, ROOT_FIELD);
 }
 
 /** Reads the body as text, stopping as soon as it passes the limit (never buffers an oversize body). */
@@ -73,18 +73,18 @@ export function checkJsonValue(root: unknown, maxDepth = MAX_JSON_DEPTH): void {
     if (typeof value === "string") {
       if (value.includes("\u0000")) {
         const field = framePath(frame);
-        throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || undefined);
+        throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || ROOT_FIELD);
       }
       if (hasLoneSurrogate(value)) {
         const field = framePath(frame);
-        throw new ApiError(422, "invalid_text", `${field || "body"}: contains a lone UTF-16 surrogate (an unpaired \\ud800–\\udfff escape); send well-formed Unicode text.`, field || undefined);
+        throw new ApiError(422, "invalid_text", `${field || "body"}: contains a lone UTF-16 surrogate (an unpaired \\ud800–\\udfff escape); send well-formed Unicode text.`, field || ROOT_FIELD);
       }
       continue;
     }
     if (value === null || typeof value !== "object") continue;
     if (frame.depth >= maxDepth) {
       const field = framePath(frame);
-      throw new ApiError(400, "payload_too_deep", `${field || "body"}: arrays and objects nest deeper than the limit of ${maxDepth} levels.`, field || undefined);
+      throw new ApiError(400, "payload_too_deep", `${field || "body"}: arrays and objects nest deeper than the limit of ${maxDepth} levels.`, field || ROOT_FIELD);
     }
     const depth = frame.depth + 1;
     if (Array.isArray(value)) {
