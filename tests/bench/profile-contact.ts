@@ -10,7 +10,7 @@ if (which === "pair") {
   const scenarios = pairGridScenarios();
   let steps = 0;
   const started = performance.now();
-  for (let round = 0; round < 5; round++) for (const scenario of scenarios) steps += runPlain(scenario);
+  for (let round = 0; round < 30; round++) for (const scenario of scenarios) steps += runPlain(scenario);
   console.log(`pair grid plain: ${steps} steps in ${((performance.now() - started) / 1e3).toFixed(2)} s`);
 } else {
   const count = which === "box4000" ? 4000 : 1000;
