@@ -5,7 +5,7 @@
  */
 import { spawnSync } from "node:child_process";
 import { createHash } from "node:crypto";
-import { mkdtempSync, readFileSync, writeFileSync, existsSync } from "node:fs";
+import { existsSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
@@ -32,11 +32,14 @@ export function buildPeer(): PeerBuild {
   const hash = createHash("sha256").update(source).update(PEER_CFLAGS.join(" ")).digest("hex").slice(0, 16);
   const binary = path.join(tmpdir(), `kickdrift-contact-peer-${hash}`);
   if (!existsSync(binary)) {
-    const compile = spawnSync("cc", [...PEER_CFLAGS, "-o", binary, SOURCE, "-lm"], { encoding: "utf8" });
+    // Built under a private name and renamed into place, so concurrent test files never run a half-written binary.
+    const partial = `${binary}.${process.pid}.${Date.now()}`;
+    const compile = spawnSync("cc", [...PEER_CFLAGS, "-o", partial, SOURCE, "-lm"], { encoding: "utf8" });
     if (compile.status !== 0) {
       built = { ok: false, why: `cc failed: ${compile.stderr.trim()}` };
       return built;
     }
+    renameSync(partial, binary);
   }
   built = { ok: true, binary };
   return built;
@@ -67,6 +70,7 @@ function runPeer(binary: string, input: Float64Array, repeats: number): PeerRun 
     .map((line) => Number(line.slice(3)));
   const bytes = readFileSync(outputPath);
   const state = new Float64Array(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength));
+  rmSync(directory, { recursive: true, force: true });
   return { ns, state };
 }
 
