@@ -81,6 +81,16 @@ export interface ContactFieldParameters {
 }
 
 const EMPTY_INDICES = new Int32Array(0);
+const EMPTY_POSITIONS = new Float64Array(0);
+
+/**
+ * Skin of the neighbour list, as a fraction of the largest radius: the list holds every pair
+ * within the step's cutoff plus this margin, and is rebuilt once some body has drifted half of
+ * it (our choice: a settled pile keeps one list for hundreds of steps, a gas rebuilds every few).
+ */
+export const NEIGHBOUR_LIST_SKIN_FRACTION = 0.25;
+/** Relative slack on the list's reach, far above the rounding of the distances compared with it. */
+const NEIGHBOUR_LIST_SLACK = 1e-9;
 
 export class ContactField implements ForceField {
   model = 0;
@@ -148,6 +158,16 @@ export class ContactField implements ForceField {
   private bodiesByCell: Int32Array = EMPTY_INDICES;
   private candidates: Int32Array = EMPTY_INDICES;
 
+  // Neighbour list of the grid broad phase (CSR: partners of i, all > i and ascending, at
+  // listPartners[listStart[i] .. listStart[i + 1]]), the positions it was built at and its reach.
+  private listStart: Int32Array = EMPTY_INDICES;
+  private listPartners: Int32Array = EMPTY_INDICES;
+  private listX: Float64Array = EMPTY_POSITIONS;
+  private listY: Float64Array = EMPTY_POSITIONS;
+  /** Pairs closer than this (m) at the build are listed; ≤ 0: no valid list. */
+  private listReachM = 0;
+  private listBodies: Bodies | null = null;
+
   constructor(parameters: ContactFieldParameters) {
     this.configure(parameters);
   }
@@ -202,6 +222,8 @@ export class ContactField implements ForceField {
     this.memoEffectiveRadius = NaN;
     this.memoReducedMass = NaN;
     this.memoStiffness = NaN;
+    this.listReachM = 0;
+    this.listBodies = null;
   }
 
   evaluate(bodies: Bodies): void {
@@ -237,7 +259,7 @@ export class ContactField implements ForceField {
     const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
     this.cutoffSquaredM2 = cutoffM * cutoffM;
 
-    if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByGrid(bodies, cutoffM);
+    if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByNeighbourList(bodies, cutoffM, maxRadius);
     else this.pairsAllPairs(bodies);
     if (this.wallCount > 0) this.walls(bodies);
 
@@ -251,6 +273,141 @@ export class ContactField implements ForceField {
     for (let i = 0; i < count; i++) {
       for (let j = i + 1; j < count; j++) this.pair(bodies, i, j);
     }
+  }
+
+  /**
+   * The grid broad phase without a grid every step: a list of the pairs within the cutoff plus a
+   * skin, kept while no body has drifted far enough for an unlisted pair to come within the
+   * cutoff (a pair now closer than the cutoff was closer than cutoff + 2·drift at the build).
+   * Pairs beyond the cutoff do nothing in `pair`, and the list keeps the canonical (i, j) order,
+   * so the result is byte-identical to the grid's every step.
+   */
+  private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number): void {
+    const { count, x, y } = bodies;
+    let valid = this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
+    if (valid) {
+      const { listX, listY } = this;
+      let driftSquared = 0;
+      for (let i = 0; i < count; i++) {
+        const dx = x[i] - listX[i];
+        const dy = y[i] - listY[i];
+        const squared = dx * dx + dy * dy;
+        // Written so that NaN propagates: a non-finite drift invalidates the list.
+        if (!(squared <= driftSquared)) driftSquared = squared;
+      }
+      valid = cutoffM + 2 * Math.sqrt(driftSquared) <= this.listReachM * (1 - NEIGHBOUR_LIST_SLACK);
+    }
+    if (!valid && !this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius)) {
+      // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
+      this.listReachM = 0;
+      this.pairsByGrid(bodies, cutoffM);
+      return;
+    }
+    const { listStart, listPartners } = this;
+    for (let i = 0; i < count; i++) {
+      const end = listStart[i + 1];
+      for (let slot = listStart[i]; slot < end; slot++) this.pair(bodies, i, listPartners[slot]);
+    }
+  }
+
+  /** Lists every pair closer than `reachM`, in (i, j) order; false (no list) when a position is not finite. */
+  private buildNeighbourList(bodies: Bodies, reachM: number): boolean {
+    const { count, x, y } = bodies;
+    let minX = Infinity;
+    let minY = Infinity;
+    let maxX = -Infinity;
+    let maxY = -Infinity;
+    for (let i = 0; i < count; i++) {
+      const xi = x[i];
+      const yi = y[i];
+      if (!(xi - xi === 0 && yi - yi === 0)) return false;
+      if (xi < minX) minX = xi;
+      if (xi > maxX) maxX = xi;
+      if (yi < minY) minY = yi;
+      if (yi > maxY) maxY = yi;
+    }
+    if (!(reachM < Infinity) || !(maxX - minX < Infinity && maxY - minY < Infinity)) return false;
+    const maxCells = 4 * count + 16;
+    let cellSizeM = Math.max(reachM, 1e-300);
+    const spanX = maxX - minX;
+    const spanY = maxY - minY;
+    while ((Math.floor(spanX / cellSizeM) + 1) * (Math.floor(spanY / cellSizeM) + 1) > maxCells) cellSizeM *= 1.5;
+    const cellsX = Math.floor(spanX / cellSizeM) + 1;
+    const cellsY = Math.floor(spanY / cellSizeM) + 1;
+    const cellCount = cellsX * cellsY;
+    if (this.cellOfBody.length < count) {
+      this.cellOfBody = new Int32Array(count);
+      this.bodiesByCell = new Int32Array(count);
+      this.candidates = new Int32Array(count);
+    }
+    if (this.listStart.length < count + 1) {
+      this.listStart = new Int32Array(count + 1);
+      this.listX = new Float64Array(count);
+      this.listY = new Float64Array(count);
+    }
+    if (this.listPartners.length < 8 * count) this.listPartners = new Int32Array(8 * count);
+    if (this.cellStart.length < cellCount + 1) this.cellStart = new Int32Array(cellCount + 1);
+    const { cellOfBody, cellStart, bodiesByCell, candidates, listStart, listX, listY } = this;
+    cellStart.fill(0, 0, cellCount + 1);
+    for (let i = 0; i < count; i++) {
+      const cx = Math.min(cellsX - 1, Math.floor((x[i] - minX) / cellSizeM));
+      const cy = Math.min(cellsY - 1, Math.floor((y[i] - minY) / cellSizeM));
+      const cell = cy * cellsX + cx;
+      cellOfBody[i] = cell;
+      cellStart[cell + 1]++;
+      listX[i] = x[i];
+      listY[i] = y[i];
+    }
+    for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
+    for (let i = 0; i < count; i++) bodiesByCell[cellStart[cellOfBody[i]]++] = i;
+    for (let c = cellCount; c > 0; c--) cellStart[c] = cellStart[c - 1];
+    cellStart[0] = 0;
+    const reachSquared = reachM * reachM;
+    let listed = 0;
+    for (let i = 0; i < count; i++) {
+      listStart[i] = listed;
+      const cell = cellOfBody[i];
+      const cx = cell % cellsX;
+      const cy = (cell - cx) / cellsX;
+      let candidateCount = 0;
+      const yLow = cy > 0 ? cy - 1 : 0;
+      const yHigh = cy < cellsY - 1 ? cy + 1 : cy;
+      const xLow = cx > 0 ? cx - 1 : 0;
+      const xHigh = cx < cellsX - 1 ? cx + 1 : cx;
+      const xi = x[i];
+      const yi = y[i];
+      for (let ny = yLow; ny <= yHigh; ny++) {
+        for (let nx = xLow; nx <= xHigh; nx++) {
+          const neighbour = ny * cellsX + nx;
+          const end = cellStart[neighbour + 1];
+          for (let slot = cellStart[neighbour]; slot < end; slot++) {
+            const j = bodiesByCell[slot];
+            if (j <= i) continue;
+            const dx = x[j] - xi;
+            const dy = y[j] - yi;
+            if (dx * dx + dy * dy >= reachSquared) continue;
+            let position = candidateCount++;
+            while (position > 0 && candidates[position - 1] > j) {
+              candidates[position] = candidates[position - 1];
+              position--;
+            }
+            candidates[position] = j;
+          }
+        }
+      }
+      if (listed + candidateCount > this.listPartners.length) {
+        // Rare (a list longer than 8 partners per body): grow once, keeping what is listed.
+        const grown = new Int32Array(Math.max(2 * this.listPartners.length, listed + candidateCount));
+        grown.set(this.listPartners.subarray(0, listed));
+        this.listPartners = grown;
+      }
+      const listPartners = this.listPartners;
+      for (let c = 0; c < candidateCount; c++) listPartners[listed++] = candidates[c];
+    }
+    listStart[count] = listed;
+    this.listReachM = reachM;
+    this.listBodies = bodies;
+    return true;
   }
 
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {

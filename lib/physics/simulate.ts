@@ -7,7 +7,7 @@ import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict, Wor
 import { DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
 import { buildScene } from "./scenes";
 import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
-import { primeForces, stepFunctionFor } from "./integrators";
+import { primeForces, stepFunctionFor, type StepFunction } from "./integrators";
 import {
   BROAD_PHASE_ALL_PAIRS,
   BROAD_PHASE_GRID,
@@ -107,11 +107,6 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
   // Work counts (./work-units.ts): what the run does, never a clock.
   const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
-  let chargedContacts = 0;
-  let flightChecks = 0;
-  let flightSteps = 0;
-  let finalFlights = 0;
-  let integratedSteps = 0;
 
   const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
 
@@ -127,6 +122,120 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   for (let i = 0; i < bodies.count; i++) totalMassKg += bodies.mass[i];
   const gravityImpulsePerStepNs = -h * gravity * totalMassKg;
 
+  const progress = integrate(bodies, field, step, {
+    isVerlet,
+    h,
+    totalSteps,
+    allowJumps,
+    contactsChargedMax,
+    gravity,
+    gravityImpulsePerStepNs,
+    startEnergy,
+    energyScale,
+    blowUpEnergyFactor: tolerances.blowUpEnergyFactor,
+    recorder,
+  });
+  const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;
+
+  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
+  const isolatedScene = scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
+  const endMomentumX = totalMomentumXNs(bodies);
+  const endMomentumY = totalMomentumYNs(bodies);
+  const metrics: Metrics = {
+    momentumDriftRelX: (endMomentumX - startMomentumX - externalImpulseXNs) / momentumScale,
+    momentumDriftRelY: (endMomentumY - startMomentumY - externalImpulseYNs) / momentumScale,
+    energyErrorRel: (energy - startEnergy) / energyScale,
+    maxEnergyErrorRel,
+    effectiveRestitution,
+    maxOverlapFraction,
+    contactDurationS,
+    contactSteps,
+    tunneled: field.tunnelKind !== TUNNEL_NONE,
+    exploded,
+    steps: n,
+    maxOmegaH: contactSteps > 0 || maxOmegaSquared > 0 ? Math.sqrt(maxOmegaSquared) * h : null,
+    // Only an isolated binary contact (pair, wall) has a rebound to compare with the model's: in a
+    // row or a box the first contact's bodies are pushed by neighbours while it lasts.
+    amplification: isolatedScene && effectiveRestitution !== null && expected !== null && expected > 0 ? Math.abs(effectiveRestitution) / expected : null,
+  };
+
+  const { verdict, reason } = judge(metrics, scenario, {
+    explodedAtS,
+    energy,
+    startEnergy,
+    tunnelAtS,
+    tunnelKind: field.tunnelKind,
+    tunnelBodyA: field.tunnelBodyA,
+    tunnelBodyB: field.tunnelBodyB,
+    expectedRestitution: expected,
+    stepS: h,
+  });
+  const work: WorkCounts = {
+    bodies: bodies.count,
+    walls: setup.walls.length,
+    grid: field.broadPhase === BROAD_PHASE_GRID,
+    hertz: field.model === CONTACT_HERTZ,
+    integratedSteps,
+    chargedContacts,
+    flightChecks,
+    flightSteps,
+    finalFlights,
+  };
+  const result: RunResult = { metrics, verdict, reason, workUnits: workUnitsOf(work), work };
+  if (recorder) result.series = recorder.series;
+  return result;
+}
+
+/** What the step loop needs besides the state and the force field. */
+interface LoopSettings {
+  isVerlet: boolean;
+  h: number;
+  totalSteps: number;
+  allowJumps: boolean;
+  contactsChargedMax: number;
+  gravity: number;
+  gravityImpulsePerStepNs: number;
+  startEnergy: number;
+  energyScale: number;
+  blowUpEnergyFactor: number;
+  recorder: SeriesRecorder | null;
+}
+
+/** What the step loop measured (work counts, impulses, energy and contact metrics). */
+interface LoopProgress {
+  n: number;
+  integratedSteps: number;
+  chargedContacts: number;
+  flightChecks: number;
+  flightSteps: number;
+  finalFlights: number;
+  externalImpulseXNs: number;
+  externalImpulseYNs: number;
+  energy: number;
+  maxEnergyErrorRel: number;
+  maxOverlapFraction: number;
+  maxOmegaSquared: number;
+  contactSteps: number;
+  exploded: boolean;
+  explodedAtS: number;
+  tunnelAtS: number;
+  effectiveRestitution: number | null;
+  contactDurationS: number | null;
+}
+
+/**
+ * The step loop of `simulate`, in a function of its own: the loop is hot and compiled on its own,
+ * so the code after it (metrics, verdict) never sits in an on-stack-replaced compilation of the
+ * loop, which the JIT threw away at the end of every run (a deoptimisation per cell).
+ */
+function integrate(bodies: Bodies, field: ContactField, step: StepFunction, settings: LoopSettings): LoopProgress {
+  const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder } = settings;
+  let chargedContacts = 0;
+  let flightChecks = 0;
+  let flightSteps = 0;
+  let finalFlights = 0;
+  let integratedSteps = 0;
+  if (recorder) recorder.recordUpTo(0, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
   let externalImpulseXNs = 0;
   let externalImpulseYNs = 0;
   let lastWallForceXN = field.wallForceXN;
@@ -202,60 +311,33 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
 
     if (recorder) recorder.recordUpTo(n, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
 
-    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > tolerances.blowUpEnergyFactor * startEnergy)) {
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
       exploded = true;
       explodedAtS = n * h;
       break;
     }
   }
 
-  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
-  const isolatedScene = scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
-  const endMomentumX = totalMomentumXNs(bodies);
-  const endMomentumY = totalMomentumYNs(bodies);
-  const metrics: Metrics = {
-    momentumDriftRelX: (endMomentumX - startMomentumX - externalImpulseXNs) / momentumScale,
-    momentumDriftRelY: (endMomentumY - startMomentumY - externalImpulseYNs) / momentumScale,
-    energyErrorRel: (energy - startEnergy) / energyScale,
-    maxEnergyErrorRel,
-    effectiveRestitution,
-    maxOverlapFraction,
-    contactDurationS,
-    contactSteps,
-    tunneled: field.tunnelKind !== TUNNEL_NONE,
-    exploded,
-    steps: n,
-    maxOmegaH: contactSteps > 0 || maxOmegaSquared > 0 ? Math.sqrt(maxOmegaSquared) * h : null,
-    // Only an isolated binary contact (pair, wall) has a rebound to compare with the model's: in a
-    // row or a box the first contact's bodies are pushed by neighbours while it lasts.
-    amplification: isolatedScene && effectiveRestitution !== null && expected !== null && expected > 0 ? Math.abs(effectiveRestitution) / expected : null,
-  };
-
-  const { verdict, reason } = judge(metrics, scenario, {
-    explodedAtS,
-    energy,
-    startEnergy,
-    tunnelAtS,
-    tunnelKind: field.tunnelKind,
-    tunnelBodyA: field.tunnelBodyA,
-    tunnelBodyB: field.tunnelBodyB,
-    expectedRestitution: expected,
-    stepS: h,
-  });
-  const work: WorkCounts = {
-    bodies: bodies.count,
-    walls: setup.walls.length,
-    grid: field.broadPhase === BROAD_PHASE_GRID,
-    hertz: field.model === CONTACT_HERTZ,
+  return {
+    n,
     integratedSteps,
     chargedContacts,
     flightChecks,
     flightSteps,
     finalFlights,
+    externalImpulseXNs,
+    externalImpulseYNs,
+    energy,
+    maxEnergyErrorRel,
+    maxOverlapFraction,
+    maxOmegaSquared,
+    contactSteps,
+    exploded,
+    explodedAtS,
+    tunnelAtS,
+    effectiveRestitution,
+    contactDurationS,
   };
-  const result: RunResult = { metrics, verdict, reason, workUnits: workUnitsOf(work), work };
-  if (recorder) result.series = recorder.series;
-  return result;
 }
 
 /**

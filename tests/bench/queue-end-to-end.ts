@@ -42,6 +42,8 @@ const TARGET_CELLS_S = 1;
 const CELLS_REPEATS = 3;
 /** Timed rounds of engine alone then queue (after one warm-up of each). */
 const ROUNDS = 7;
+/** Rounds of the box sweep (each run takes seconds). */
+const BOX_ROUNDS = 5;
 /** Enough minutes for the sweep's estimate with room to spare (integer ms). */
 const GRANT_MS = 600 * 60_000;
 /** A hang guard for the queue run, not a speed check. */
@@ -67,8 +69,30 @@ function specInput(): SweepSpecInput {
   };
 }
 
-function parsedSpec(): SweepSpec {
-  const result = parseSweepSpec(specInput());
+/**
+ * An invented loading-bay game, "Cratefall": 240 crates (discs) settling under gravity in a bay,
+ * a box sweep of stiffness × step (6 × 6 cells, 0.4 s each): contact-heavy cells end to end.
+ */
+function boxSpecInput(): SweepSpecInput {
+  return {
+    name: "bench: Cratefall loading bay",
+    scenario: {
+      scene: { kind: "box", count: 240, massKg: 2, radiusM: 0.25, widthM: 12, heightM: 12, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
+      contact: { model: "linear", stiffness: 2e5, damping: { kind: "restitution", value: 0.4 } },
+      integrator: "symplectic-euler",
+      dtS: 1e-3,
+      substeps: 1,
+      durationS: 0.4,
+    },
+    axes: [
+      { parameter: "contact.stiffness", spacing: "log", from: 2e4, to: 2e6, count: 6 },
+      { parameter: "dtS", spacing: "log", from: 1e-4, to: 1e-3, count: 6 },
+    ],
+  };
+}
+
+function parsedSpec(input: SweepSpecInput = specInput()): SweepSpec {
+  const result = parseSweepSpec(input);
   if (!result.ok) throw new Error(JSON.stringify(result.issues));
   return result.spec;
 }
@@ -129,10 +153,10 @@ function onRecorded(sweepId: string, sweepFinished: boolean): void {
 }
 
 /** Submit then run through the queue until done; the runner is already started, as in the server. */
-async function throughQueue(db: Db, runner: QueueRunner, studioId: string): Promise<QueueRun> {
+async function throughQueue(db: Db, runner: QueueRunner, studioId: string, input: SweepSpecInput): Promise<QueueRun> {
   const started = performance.now();
   const elu = nodePerformance.eventLoopUtilization();
-  const submitted = await submitSweep(db, studioId, { spec: specInput() });
+  const submitted = await submitSweep(db, studioId, { spec: input });
   const submitS = seconds(started);
   runner.poke();
   const runStarted = performance.now();
@@ -171,7 +195,16 @@ function formatBytes(bytes: number): string {
 }
 
 async function run(): Promise<void> {
-  const spec = parsedSpec();
+  await runWith(specInput(), ROUNDS, true);
+}
+
+/** The box sweep through the queue against the engine alone (the cells route is the pair sweep's business). */
+async function runBox(): Promise<void> {
+  await runWith(boxSpecInput(), BOX_ROUNDS, false);
+}
+
+async function runWith(input: SweepSpecInput, rounds: number, timeCells: boolean): Promise<void> {
+  const spec = parsedSpec(input);
   const cells = cellCount(expandAxes(spec));
   const threads = defaultThreadCount();
   console.log(`${cells} cells × ${stepsPerCell(spec.scenario)} steps = ${formatSi(cells * stepsPerCell(spec.scenario))} cell-steps; ${threads} threads (entry "source")`);
@@ -188,7 +221,7 @@ async function run(): Promise<void> {
     // are compiled once per process, not once per sweep.
     await engineOnce(spec, pool, chunksPlanned);
     await runner.start();
-    await throughQueue(db, runner, (await makeSweepStudio("Pebblecourt Warm-up", GRANT_MS)).studioId);
+    await throughQueue(db, runner, (await makeSweepStudio("Pebblecourt Warm-up", GRANT_MS)).studioId, input);
     while (runner.runsToKey > 0) await new Promise((resolve) => setTimeout(resolve, 20));
     await runner.stop();
     // Then ROUNDS rounds of engine alone, queue, alternating so a slower spell of the machine falls
@@ -197,11 +230,11 @@ async function run(): Promise<void> {
     const engineRuns: EngineRun[] = [];
     const queueRuns: QueueRun[] = [];
     let studio: Awaited<ReturnType<typeof makeSweepStudio>> | undefined;
-    for (let round = 0; round < ROUNDS; round++) {
+    for (let round = 0; round < rounds; round++) {
       engineRuns.push(await engineOnce(spec, pool, chunksPlanned));
       studio = await makeSweepStudio(`Pebblecourt Games ${round + 1}`, GRANT_MS);
       await runner.start();
-      queueRuns.push(await throughQueue(db, runner, studio.studioId));
+      queueRuns.push(await throughQueue(db, runner, studio.studioId, input));
       // Untimed: the runner keys the stored runs for the result cache while the pool is idle
       // (after the sweep is done); let it finish before the engine's next turn.
       while (runner.runsToKey > 0) await new Promise((resolve) => setTimeout(resolve, 20));
@@ -213,7 +246,7 @@ async function run(): Promise<void> {
     const list = (values: number[]) => values.map((v) => v.toFixed(3)).join(" ");
 
     const rows: (string | number)[][] = [
-      ["path", `median of ${ROUNDS} s`, "each run s", "note"],
+      ["path", `median of ${rounds} s`, "each run s", "note"],
       ["runSweep (engine on pool)", engineS.toFixed(3), list(engineRuns.map((r) => r.wallS)), `its own planning included (planning alone ${planS.toFixed(3)} s); ${chunksPlanned} chunks; worker compute ${list(engineRuns.map((r) => r.computeMs / 1e3))} s; main thread busy ${list(engineRuns.map((r) => r.mainBusyS))} s`],
       ["queue: submit", median(queueRuns.map((r) => r.submitS)).toFixed(3), list(queueRuns.map((r) => r.submitS)), "validate, plan, check limits, write sweep + chunks"],
       ["queue: run to done", median(queueRuns.map((r) => r.runS)).toFixed(3), list(queueRuns.map((r) => r.runS)), `billed ${list(queueRuns.map((r) => r.sweep.computeMs / 1e3))} s; expected ${(queueRuns[0].sweep.estimatedComputeMs / 1e3).toFixed(3)} s`],
@@ -225,6 +258,7 @@ async function run(): Promise<void> {
       `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); per round: ${ratios.map((r) => r.toFixed(2)).join(" ")}; ` +
         `${queueRuns[0].sweep.cellsDone} cells done per queue run`,
     );
+    if (!timeCells) return;
 
     const lastSweepId = queueRuns[queueRuns.length - 1].sweep.id;
     const json = await timeCellsRoute(studio.studioId, lastSweepId, studio.cookies.owner, "");
@@ -259,6 +293,13 @@ export const queueEndToEnd: BenchModule = {
   id: "queue-end-to-end",
   title: "a 65,536-cell pair sweep through submit + queue runner vs runSweep, and the cells route",
   run,
+};
+
+/** For tests/bench/run-all.ts (BENCH_MODULES): the same comparison on a contact-heavy box sweep. */
+export const queueBoxEndToEnd: BenchModule = {
+  id: "queue-box-end-to-end",
+  title: "a 36-cell box sweep (240 discs settling under gravity) through submit + queue runner vs runSweep",
+  run: runBox,
 };
 
 if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {

@@ -5,17 +5,18 @@
  */
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
+import { contactKernel } from "./contact-kernel";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { metering } from "./metering";
 import { workUnitCalibration } from "./work-unit-calibration";
 import { pairThroughput } from "./pair-throughput";
-import { queueEndToEnd } from "./queue-end-to-end";
+import { queueBoxEndToEnd, queueEndToEnd } from "./queue-end-to-end";
 import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, contactKernel, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, queueBoxEndToEnd, scaleOut, webhookIsolation, requestHardening];
 
 async function main() {
   const wanted = process.argv.slice(2);
