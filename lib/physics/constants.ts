@@ -51,3 +51,10 @@ export const MAX_BOX_DISCS = 10_000;
  * than this starts with a stored spring force the game did not have (common practice).
  */
 export const SNAPSHOT_OVERLAP_TOLERANCE = 0.01;
+
+/**
+ * k_t/k_n when a friction spec gives neither a ratio nor k_t: 2/7, the lower end of the range
+ * common practice uses (2/7 to 1); for a solid sphere it makes the tangential and normal
+ * oscillations equally fast (common practice).
+ */
+export const DEFAULT_TANGENTIAL_STIFFNESS_RATIO = 2 / 7;

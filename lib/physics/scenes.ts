@@ -4,7 +4,7 @@
  * overlap of one ulp between touching bodies, the layout is nudged apart.
  */
 import type { BoxScene, PairScene, RowScene, Scene, SnapshotScene, WallScene } from "./types";
-import { reusableBodies, setBody, type Bodies } from "./bodies";
+import { reusableBodies, setBody, setSpin, type Bodies } from "./bodies";
 import type { Wall } from "./contact-field";
 import { Xoshiro128StarStar } from "./random";
 import { MAX_BOX_DISCS, SNAPSHOT_OVERLAP_TOLERANCE } from "./constants";
@@ -41,6 +41,8 @@ function buildPair(scene: PairScene): SceneSetup {
   }
   setBody(bodies, 0, -separationXM, -offsetM, scene.speedAMPerS, 0, scene.massAKg, scene.radiusAM);
   setBody(bodies, 1, 0, 0, -scene.speedBMPerS, 0, scene.massBKg, scene.radiusBM);
+  setSpin(bodies, 0, scene.spinARadPerS ?? 0);
+  setSpin(bodies, 1, scene.spinBRadPerS ?? 0);
   return { bodies, walls: [], gravityMPerS2: 0 };
 }
 
@@ -50,6 +52,7 @@ function buildWall(scene: WallScene): SceneSetup {
   const angleRad = (scene.angleDeg * Math.PI) / 180;
   const speed = scene.speedMPerS;
   setBody(bodies, 0, scene.radiusM + scene.gapM, 0, -speed * Math.cos(angleRad), speed * Math.sin(angleRad), scene.massKg, scene.radiusM);
+  setSpin(bodies, 0, scene.spinRadPerS ?? 0);
   return { bodies, walls: [{ normalX: 1, normalY: 0, offsetM: 0 }], gravityMPerS2: 0 };
 }
 
@@ -222,6 +225,9 @@ function buildSnapshot(scene: SnapshotScene): SceneSetup {
   if (overlaps.length > 0) throw new RangeError(`snapshot scene: ${describeSnapshotOverlap(overlaps[0])}`);
   const bodies = reusableBodies(scene.bodies.length);
   const scale = scene.speedScale;
-  scene.bodies.forEach((body, i) => setBody(bodies, i, body.xM, body.yM, body.vxMPerS * scale, body.vyMPerS * scale, body.massKg, body.radiusM));
+  scene.bodies.forEach((body, i) => {
+    setBody(bodies, i, body.xM, body.yM, body.vxMPerS * scale, body.vyMPerS * scale, body.massKg, body.radiusM);
+    setSpin(bodies, i, (body.omegaRadPerS ?? 0) * scale);
+  });
   return { bodies, walls: scene.walls.map(normalisedWall), gravityMPerS2: scene.gravityMPerS2 };
 }

@@ -4,9 +4,11 @@
  * metrics (no clocks, no Math.random, no dependence on object iteration order).
  */
 import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict, WorkCounts } from "./types";
-import { DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
+import { DEFAULT_TANGENTIAL_STIFFNESS_RATIO, DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
+import type { TangentialParameters } from "./tangential";
 import { buildScene } from "./scenes";
-import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
+import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, rotationalEnergyJ, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
+import { SpinTracker, isIsolatedScene } from "./spin-metrics";
 import { primeForces, stepFunctionFor } from "./integrators";
 import {
   BROAD_PHASE_ALL_PAIRS,
@@ -64,6 +66,20 @@ export function createContactField(
     dampingMode = DAMPING_DIMENSIONLESS;
     dampingValue = isHertz ? hertzDimensionlessDampingForRestitution(damping.value) : linearDampingRatioForRestitution(damping.value);
   }
+  const friction = contact.friction;
+  const rollingResistance = contact.rollingResistance ?? 0;
+  let tangential: TangentialParameters | undefined;
+  if ((friction !== undefined && (friction.coefficient > 0 || (friction.staticCoefficient ?? 0) > 0)) || rollingResistance > 0) {
+    const coefficient = friction?.coefficient ?? 0;
+    tangential = {
+      coefficient,
+      staticCoefficient: friction?.staticCoefficient ?? coefficient,
+      stiffnessRatio: friction?.stiffnessRatio ?? DEFAULT_TANGENTIAL_STIFFNESS_RATIO,
+      stiffnessNPerM: friction?.stiffness ?? 0,
+      dampingRatio: friction?.dampingRatio ?? 0,
+      rollingResistance,
+    };
+  }
   const useGrid = broadPhase === undefined ? scenario.scene.kind === "box" || bodyCount > MAX_BODIES_FOR_FREE_FLIGHT_JUMPS : broadPhase === "grid";
   const parameters: ContactFieldParameters = {
     model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
@@ -75,6 +91,7 @@ export function createContactField(
     gravityMPerS2,
     broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
     nearMissDepthFraction: (scenario.verdictRules ?? 1) >= 2 ? SKIPPED_CONTACT_DEPTH_FRACTION : 0,
+    tangential,
   };
   if (!reuse) return new ContactField(parameters);
   reusedField.configure(parameters);
@@ -99,12 +116,17 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const bodies = setup.bodies;
   const gravity = setup.gravityMPerS2;
   const field = createContactField(scenario, setup.walls, gravity, bodies.count, options.broadPhase, bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS);
+  // Rotation is integrated only when friction or rolling resistance can turn a body: a
+  // frictionless run keeps exactly the arithmetic (and the results) it had before rotation existed.
+  const rotating = field.frictional;
+  bodies.rotating = rotating;
+  const spin = rotating ? new SpinTracker(bodies, field, gravity, isIsolatedScene(scenario)) : null;
   const step = stepFunctionFor(scenario.integrator);
   const isVerlet = scenario.integrator === "velocity-verlet";
   const h = scenario.dtS / scenario.substeps;
   const totalSteps = totalSubsteps(scenario);
   const tolerances = scenario.tolerances;
-  const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
+  const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS && !rotating;
   // Work counts (./work-units.ts): what the run does, never a clock.
   const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
   let chargedContacts = 0;
@@ -116,7 +138,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
 
   primeForces(bodies, field);
-  const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+  const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity) + rotationalEnergyJ(bodies);
+  if (spin) spin.start(bodies, field);
   const energyScale = startEnergy !== 0 ? Math.abs(startEnergy) : 1;
   const startMomentumX = totalMomentumXNs(bodies);
   const startMomentumY = totalMomentumYNs(bodies);
@@ -178,6 +201,10 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     lastWallForceYN = field.wallForceYN;
 
     energy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+    if (spin) {
+      energy += rotationalEnergyJ(bodies);
+      spin.afterStep(bodies, field, h, isVerlet);
+    }
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
     if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
@@ -198,6 +225,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
       contactDurationS = firstContactEndS - firstContactStartS;
       const approachIn = field.firstContactApproachSpeedMPerS;
       effectiveRestitution = approachIn > 0 ? -field.firstContactEndApproachSpeed(bodies) / approachIn : null;
+      if (spin) spin.firstContactEnded(bodies, field);
     }
 
     if (recorder) recorder.recordUpTo(n, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
@@ -230,6 +258,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     // row or a box the first contact's bodies are pushed by neighbours while it lasts.
     amplification: isolatedScene && effectiveRestitution !== null && expected !== null && expected > 0 ? Math.abs(effectiveRestitution) / expected : null,
   };
+
+  if (spin) spin.finish(metrics, bodies, field, h);
 
   const { verdict, reason } = judge(metrics, scenario, {
     explodedAtS,

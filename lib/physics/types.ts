@@ -52,6 +52,9 @@ export interface PairScene {
   offsetFraction: number;
   /** Surface-to-surface gap along x at t = 0 (≥ 0). */
   gapM: number;
+  /** Initial angular velocities (rad/s, counter-clockwise positive); absent: 0. */
+  spinARadPerS?: number;
+  spinBRadPerS?: number;
 }
 
 /** One disc hitting a static wall (the line x = 0, disc starting at x > 0 moving towards it). */
@@ -63,6 +66,8 @@ export interface WallScene {
   /** Angle between the velocity and the wall normal: 0 is head-on, towards 90 grazing. In [0, 90). */
   angleDeg: number;
   gapM: number;
+  /** Initial angular velocity (rad/s, counter-clockwise positive); absent: 0. */
+  spinRadPerS?: number;
 }
 
 /** `count` resting discs in a row along x, struck head-on by one more disc (the striker). */
@@ -101,6 +106,8 @@ export interface SnapshotBody {
   vyMPerS: number;
   massKg: number;
   radiusM: number;
+  /** Angular velocity (rad/s, counter-clockwise positive); absent: 0. */
+  omegaRadPerS?: number;
 }
 
 /**
@@ -135,6 +142,23 @@ export type Damping =
   /** Target coefficient of restitution e in (0, 1], converted by the engine. */
   | { kind: "restitution"; value: number };
 
+/**
+ * Tangential contact (lib/physics/tangential.ts): Cundall–Strack spring and dashpot capped by
+ * Coulomb's limit. Absent or coefficient 0 (and no rolling resistance): frictionless, no rotation.
+ */
+export interface FrictionSpec {
+  /** Sliding friction coefficient μ (dimensionless, ≥ 0). */
+  coefficient: number;
+  /** Static coefficient μ_s ≥ μ; absent: μ_s = μ. */
+  staticCoefficient?: number;
+  /** k_t as a multiple of the normal stiffness (for Hertz: of dF/dδ); absent and no `stiffness`: DEFAULT_TANGENTIAL_STIFFNESS_RATIO. */
+  stiffnessRatio?: number;
+  /** Given k_t (N/m); overrides the ratio. */
+  stiffness?: number;
+  /** Tangential damping ratio ζ_t (c_t = 2ζ_t√(m_t·k_t)); absent: 0. */
+  dampingRatio?: number;
+}
+
 export interface ContactSpec {
   model: ContactModelName;
   /** linear: k in N/m. hertz: k_H in N/m^(3/2), used when `material` is absent. */
@@ -142,6 +166,9 @@ export interface ContactSpec {
   /** hertz only: k_H derived from Young's modulus and Poisson ratio (and the radii). */
   material?: { youngsModulusPa: number; poissonRatio: number };
   damping: Damping;
+  friction?: FrictionSpec;
+  /** Rolling resistance coefficient μ_r (dimensionless; torque μ_r·R·F_n); absent: none. */
+  rollingResistance?: number;
 }
 
 export interface Tolerances {
@@ -217,6 +244,23 @@ export interface Metrics {
   amplification: number | null;
   /** Integrator steps actually taken or skipped over analytically (counts as duration / (dt/substeps) when the run completes). */
   steps: number;
+  // Present only in runs with friction or rolling resistance (lib/physics/spin-metrics.ts).
+  /**
+   * (L_end − L_start − ∫τ_external dt) / |L_start|, L the angular momentum about the origin (orbital
+   * plus spin) and τ_external the torque of walls and gravity about it: zero up to rounding for
+   * symplectic Euler and velocity Verlet.
+   */
+  angularMomentumDriftRel?: number;
+  /** Largest ω_t·h of any tangential spring, ω_t = √(k_t/m_t) with m_t the effective tangential mass; null without contact. */
+  maxTangentialOmegaH?: number | null;
+  /** Integrator steps with at least one sliding contact. */
+  slidingSteps?: number;
+  /** Pair and wall scenes: slip velocity at the contact point when the first contact ended (0: rolling). */
+  endSlipMPerS?: number | null;
+  /** Pair and wall scenes: angular velocity of the first contact's first body when it ended. */
+  reboundSpinRadPerS?: number | null;
+  /** Pair and wall scenes: angle of the rebound (relative) velocity from the contact normal, degrees, same side as the incidence positive. */
+  reboundAngleDeg?: number | null;
 }
 
 export interface TimeSeries {
