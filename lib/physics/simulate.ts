@@ -135,7 +135,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   let finalFlights = 0;
   let integratedSteps = 0;
 
-  const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
+  const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps, rotating ? field : null) : null;
 
   primeForces(bodies, field);
   const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity) + rotationalEnergyJ(bodies);
@@ -517,13 +517,20 @@ class SeriesRecorder {
   private readonly maxSamples: number;
   private readonly totalSteps: number;
   private sampleIndex = 0;
+  /** The field of a run with friction (spin and stick/slide are recorded), else null. */
+  private readonly frictionField: ContactField | null;
 
-  constructor(bodyCount: number, maxSamples: number, totalSteps: number) {
+  constructor(bodyCount: number, maxSamples: number, totalSteps: number, frictionField: ContactField | null) {
     this.maxSamples = maxSamples;
     this.totalSteps = totalSteps;
+    this.frictionField = frictionField;
     const bodies: TimeSeries["bodies"] = [];
-    for (let i = 0; i < bodyCount; i++) bodies.push({ xM: [], yM: [], pxNs: [], pyNs: [] });
+    for (let i = 0; i < bodyCount; i++) bodies.push(frictionField ? { xM: [], yM: [], pxNs: [], pyNs: [], angleRad: [], omegaRadPerS: [] } : { xM: [], yM: [], pxNs: [], pyNs: [] });
     this.series = { tS: [], bodies, totalPxNs: [], totalPyNs: [], kineticJ: [], potentialJ: [], totalJ: [], maxOverlapM: [] };
+    if (frictionField) {
+      this.series.slidingContacts = [];
+      this.series.stickingContacts = [];
+    }
   }
 
   private stepOfSample(index: number): number {
@@ -552,12 +559,20 @@ class SeriesRecorder {
       track.yM.push(bodies.y[i]);
       track.pxNs.push(px);
       track.pyNs.push(py);
+      if (track.angleRad && track.omegaRadPerS) {
+        track.angleRad.push(bodies.angle[i]);
+        track.omegaRadPerS.push(bodies.omega[i]);
+      }
       totalPx += px;
       totalPy += py;
     }
     series.totalPxNs.push(totalPx);
     series.totalPyNs.push(totalPy);
-    const kinetic = kineticEnergyJ(bodies);
+    const kinetic = kineticEnergyJ(bodies) + rotationalEnergyJ(bodies);
+    if (this.frictionField && series.slidingContacts && series.stickingContacts) {
+      series.slidingContacts.push(this.frictionField.tangential.slidingContacts);
+      series.stickingContacts.push(this.frictionField.tangential.stickingContacts);
+    }
     const potential = contactPotentialJ + gravityPotentialJ(bodies, gravity);
     series.kineticJ.push(kinetic);
     series.potentialJ.push(potential);

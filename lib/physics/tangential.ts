@@ -162,11 +162,22 @@ export class TangentialContacts {
     const leverI = (distanceM * radius[i]) / radiusSum;
     const leverJ = (distanceM * radius[j]) / radiusSum;
     const slip = (vx[i] - vx[j]) * tangentX + (vy[i] - vy[j]) * tangentY + omega[i] * leverI + omega[j] * leverJ;
+    // The step's tangential shift, taken with the tangent and lever arms halfway through the step
+    // (the mean of the step's ends): the end values alone would make the spring first-order
+    // accurate whatever the integrator.
+    const previousDx = previousX[j] - previousX[i];
+    const previousDy = previousY[j] - previousY[i];
+    const previousDistance = Math.sqrt(previousDx * previousDx + previousDy * previousDy);
+    const previousNormalX = previousDistance > 0 ? previousDx / previousDistance : normalX;
+    const previousNormalY = previousDistance > 0 ? previousDy / previousDistance : normalY;
+    const midTangentX = -0.5 * (normalY + previousNormalY);
+    const midTangentY = 0.5 * (normalX + previousNormalX);
+    const midDistance = 0.5 * (distanceM + previousDistance);
     const shift =
-      (x[i] - previousX[i] - (x[j] - previousX[j])) * tangentX +
-      (y[i] - previousY[i] - (y[j] - previousY[j])) * tangentY +
-      (angle[i] - previousAngle[i]) * leverI +
-      (angle[j] - previousAngle[j]) * leverJ;
+      (x[i] - previousX[i] - (x[j] - previousX[j])) * midTangentX +
+      (y[i] - previousY[i] - (y[j] - previousY[j])) * midTangentY +
+      ((angle[i] - previousAngle[i]) * midDistance * radius[i]) / radiusSum +
+      ((angle[j] - previousAngle[j]) * midDistance * radius[j]) / radiusSum;
     const inverseTangentialMass = inverseMass[i] + inverseMass[j] + leverI * leverI * inverseInertia[i] + leverJ * leverJ * inverseInertia[j];
     this.find(i, j);
     const force = this.law(this.foundSpring + shift, slip, normalForceN, normalStiffnessNPerM, inverseTangentialMass, i, j);
@@ -197,7 +208,12 @@ export class TangentialContacts {
     const tangentY = normalX;
     const lever = centreDistanceM > 0 ? centreDistanceM : 0;
     const slip = vx[i] * tangentX + vy[i] * tangentY - omega[i] * lever;
-    const shift = (x[i] - previousX[i]) * tangentX + (y[i] - previousY[i]) * tangentY - (angle[i] - previousAngle[i]) * lever;
+    // The step's tangential shift with the lever arm halfway through the step (see pair()).
+    const stepX = x[i] - previousX[i];
+    const stepY = y[i] - previousY[i];
+    const previousLever = centreDistanceM - (normalX * stepX + normalY * stepY);
+    const midLever = 0.5 * (lever + (previousLever > 0 ? previousLever : 0));
+    const shift = stepX * tangentX + stepY * tangentY - (angle[i] - previousAngle[i]) * midLever;
     this.find(i, -1 - w);
     const force = this.law(this.foundSpring + shift, slip, normalForceN, normalStiffnessNPerM, inverseMass[i] + lever * lever * inverseInertia[i], i, -1 - w);
     fx[i] += force * tangentX;

@@ -267,14 +267,17 @@ export interface TimeSeries {
   /** Sample times (s). */
   tS: number[];
   /** Per body, per sample. */
-  bodies: { xM: number[]; yM: number[]; pxNs: number[]; pyNs: number[] }[];
+  /** Per body, per sample; angle and angular velocity only in runs with friction or rolling resistance. */
+  bodies: { xM: number[]; yM: number[]; pxNs: number[]; pyNs: number[]; angleRad?: number[]; omegaRadPerS?: number[] }[];
   totalPxNs: number[];
   totalPyNs: number[];
   kineticJ: number[];
   potentialJ: number[];
   totalJ: number[];
   /** Largest overlap among all pairs (m). */
-  maxOverlapM: number[];
+  maxOverlapM: number[];  /** Runs with friction: contacts sliding and sticking at each sample (the replay's stick/slide state). */
+  slidingContacts?: number[];
+  stickingContacts?: number[];
 }
 
 export interface RunResult {
