@@ -114,7 +114,7 @@ export function setSpin(bodies: Bodies, index: number, omegaRadPerS: number): vo
   bodies.omega[index] = omegaRadPerS;
 }
 
-/** A moment of inertia other than the solid disc's (a ring m·r², a shell). */
+/** A moment of inertia other than the solid disc's (a ring m·r², a shell); Infinity holds the rotation (a crate). */
 export function setInertia(bodies: Bodies, index: number, inertiaKgM2: number): void {
   bodies.inertia[index] = inertiaKgM2;
   bodies.inverseInertia[index] = 1 / inertiaKgM2;
@@ -125,7 +125,8 @@ export function rotationalEnergyJ(bodies: Bodies): number {
   if (!bodies.rotating) return 0;
   const { count, omega, inertia } = bodies;
   let sum = 0;
-  for (let i = 0; i < count; i++) sum += 0.5 * inertia[i] * omega[i] * omega[i];
+  // A body with its rotation held (inverse inertia 0) never spins and carries no rotational energy.
+  for (let i = 0; i < count; i++) if (omega[i] !== 0) sum += 0.5 * inertia[i] * omega[i] * omega[i];
   return sum;
 }
 
@@ -133,7 +134,7 @@ export function rotationalEnergyJ(bodies: Bodies): number {
 export function angularMomentumKgM2PerS(bodies: Bodies): number {
   const { count, x, y, vx, vy, mass, omega, inertia } = bodies;
   let sum = 0;
-  for (let i = 0; i < count; i++) sum += mass[i] * (x[i] * vy[i] - y[i] * vx[i]) + inertia[i] * omega[i];
+  for (let i = 0; i < count; i++) sum += mass[i] * (x[i] * vy[i] - y[i] * vx[i]) + (omega[i] !== 0 ? inertia[i] * omega[i] : 0);
   return sum;
 }
 

@@ -9,6 +9,7 @@ import type { TangentialParameters } from "./tangential";
 import { buildScene } from "./scenes";
 import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, rotationalEnergyJ, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
 import { SpinTracker, isIsolatedScene } from "./spin-metrics";
+import { RestTracker, isRestingScene, slopeShouldHold } from "./rest-metrics";
 import { primeForces, stepFunctionFor } from "./integrators";
 import {
   BROAD_PHASE_ALL_PAIRS,
@@ -121,6 +122,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const rotating = field.frictional;
   bodies.rotating = rotating;
   const spin = rotating ? new SpinTracker(bodies, field, gravity, isIsolatedScene(scenario)) : null;
+  const rest = isRestingScene(scenario) ? new RestTracker(scenario, bodies, gravity, totalSubsteps(scenario)) : null;
   const step = stepFunctionFor(scenario.integrator);
   const isVerlet = scenario.integrator === "velocity-verlet";
   const h = scenario.dtS / scenario.substeps;
@@ -205,6 +207,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
       energy += rotationalEnergyJ(bodies);
       spin.afterStep(bodies, field, h, isVerlet);
     }
+    if (rest) rest.afterStep(n, kineticEnergyJ(bodies) + rotationalEnergyJ(bodies), bodies);
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
     if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
@@ -260,6 +263,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   };
 
   if (spin) spin.finish(metrics, bodies, field, h);
+  if (rest) rest.finish(metrics, bodies, field, h, !exploded);
 
   const { verdict, reason } = judge(metrics, scenario, {
     explodedAtS,
@@ -442,8 +446,18 @@ export function judgeByRules2(metrics: Metrics, scenario: Scenario, context: Ver
       reason: `the contact sent the bodies apart ${formatNumber(amplification)}× as fast as the model's restitution (limit ${formatNumber(amplificationLimit)}×) at ω·h = ${formatNumber(omegaH ?? 0)}`,
     };
   }
+  const tangentialOmegaH = metrics.maxTangentialOmegaH ?? null;
+  if (tangentialOmegaH !== null && tangentialOmegaH >= STEP_STABILITY_LIMIT_OMEGA_H) {
+    return { verdict: "step-unstable", reason: `a tangential (friction) spring ran at ω_t·h = ${formatNumber(tangentialOmegaH)}, at or past the stability bound ${STEP_STABILITY_LIMIT_OMEGA_H}` };
+  }
   if (metrics.tunneled) return judgeByRules1(metrics, scenario, context);
   if (metrics.maxOverlapFraction > tolerances.maxOverlapFraction) return judgeByRules1(metrics, scenario, context);
+  const scene = scenario.scene;
+  const resting = scene.kind === "slope" || scene.kind === "stack";
+  const restingOverlapLimit = tolerances.restingOverlapFraction ?? DEFAULT_TOLERANCES.restingOverlapFraction;
+  if (resting && metrics.restingOverlapFraction !== undefined && metrics.restingOverlapFraction > restingOverlapLimit) {
+    return { verdict: "sinking", reason: `a resting body ended ${formatPercent(metrics.restingOverlapFraction)} of its radius deep in its support (limit ${formatPercent(restingOverlapLimit)})` };
+  }
   if (isolatedContact && amplification !== null && Math.abs(amplification - 1) > restitutionRel) {
     return {
       verdict: "restitution-off",
@@ -457,8 +471,21 @@ export function judgeByRules2(metrics: Metrics, scenario: Scenario, context: Ver
   if (!judgedByRestitution && metrics.energyErrorRel > tolerances.energyDriftRel) {
     return { verdict: "energy-drift", reason: `the scene gained ${formatPercent(metrics.energyErrorRel)} energy over the run (limit ${formatPercent(tolerances.energyDriftRel)})` };
   }
-  if (!judgedByRestitution && undamped && metrics.energyErrorRel < -tolerances.energyDriftRel) {
+  // Friction dissipates energy by sliding: a loss is the model's, not the integrator's.
+  const frictional = (scenario.contact.friction?.coefficient ?? 0) > 0 || (scenario.contact.friction?.staticCoefficient ?? 0) > 0 || (scenario.contact.rollingResistance ?? 0) > 0;
+  if (!judgedByRestitution && undamped && !frictional && metrics.energyErrorRel < -tolerances.energyDriftRel) {
     return { verdict: "energy-drift", reason: `the scene lost ${formatPercent(-metrics.energyErrorRel)} energy without damping (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  const shouldRest = scene.kind === "stack" || (scene.kind === "slope" && slopeShouldHold(scene, scenario.contact));
+  const restSpeed = tolerances.restSpeedMPerS ?? DEFAULT_TOLERANCES.restSpeedMPerS;
+  if (shouldRest && metrics.residualMaxSpeedMPerS !== undefined && metrics.residualMaxSpeedMPerS > restSpeed) {
+    return { verdict: "jitter", reason: `bodies that should rest still moved at up to ${formatNumber(metrics.residualMaxSpeedMPerS)} m/s over the last quarter of the run (limit ${formatNumber(restSpeed)} m/s)` };
+  }
+  if (scene.kind === "slope" && shouldRest && metrics.creepM !== undefined) {
+    const creepLimitM = (tolerances.creepFraction ?? DEFAULT_TOLERANCES.creepFraction) * scene.radiusM;
+    if (metrics.creepM > creepLimitM) {
+      return { verdict: "creep", reason: `friction should hold the body at ${formatNumber(scene.angleDeg)}°, yet it moved ${formatNumber(metrics.creepM)} m down the slope in the second half of the run (limit ${formatNumber(creepLimitM)} m)` };
+    }
   }
   const stepS = context.stepS ?? scenario.dtS / scenario.substeps;
   const stepsPerContact = metrics.contactDurationS !== null ? metrics.contactDurationS / stepS : null;

@@ -14,7 +14,7 @@
  *
  * Pure: safe to import anywhere.
  */
-import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, SnapshotBody, SnapshotScene, SnapshotWall, WallScene } from "../physics/types";
+import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, SlopeScene, SnapshotBody, SnapshotScene, SnapshotWall, StackScene, WallScene } from "../physics/types";
 import { fmix32 } from "./canonical";
 
 type Fields<T> = readonly Exclude<keyof T, "kind">[];
@@ -26,6 +26,9 @@ const SCENE_FIELDS = {
   box: ["count", "massKg", "radiusM", "widthM", "heightM", "maxSpeedMPerS", "gravityMPerS2"] as Fields<BoxScene>,
   // The snapshot's scalar fields; its bodies and walls are written after them, each in this order.
   snapshot: ["gravityMPerS2", "speedScale"] as readonly Exclude<keyof SnapshotScene, "kind" | "bodies" | "walls">[],
+  // The slope's `body` (a string) is written with the friction settings below.
+  slope: ["massKg", "radiusM", "angleDeg", "speedMPerS", "spinRadPerS", "gravityMPerS2"] as readonly Exclude<keyof SlopeScene, "kind" | "body">[],
+  stack: ["count", "massKg", "radiusM", "gravityMPerS2", "perturbationFraction"] as Fields<StackScene>,
 } satisfies Record<SceneKind, readonly string[]>;
 const SNAPSHOT_BODY_FIELDS = ["xM", "yM", "vxMPerS", "vyMPerS", "massKg", "radiusM"] as const satisfies readonly (keyof SnapshotBody)[];
 const SNAPSHOT_WALL_FIELDS = ["normalX", "normalY", "offsetM"] as const satisfies readonly (keyof SnapshotWall)[];
@@ -39,7 +42,9 @@ const allSceneFields: [
   Exhaustive<Omit<SnapshotScene, "bodies" | "walls">, typeof SCENE_FIELDS.snapshot>,
   Exhaustive<Omit<SnapshotBody, "omegaRadPerS"> & { kind: never }, typeof SNAPSHOT_BODY_FIELDS>,
   Exhaustive<SnapshotWall & { kind: never }, typeof SNAPSHOT_WALL_FIELDS>,
-] = [true, true, true, true, true, true, true];
+  Exhaustive<Omit<SlopeScene, "body">, typeof SCENE_FIELDS.slope>,
+  Exhaustive<StackScene, typeof SCENE_FIELDS.stack>,
+] = [true, true, true, true, true, true, true, true, true];
 void allSceneFields;
 // Scenario and contact fields written below; a new one fails this check until it is keyed.
 type KeyedScenarioFields = "scene" | "contact" | "integrator" | "dtS" | "substeps" | "durationS" | "tolerances" | "seed" | "verdictRules";
@@ -95,6 +100,8 @@ function hasRotationSettings(scenario: Scenario): boolean {
   const contact = scenario.contact;
   if (contact.friction !== undefined || contact.rollingResistance !== undefined) return true;
   const scene = scenario.scene;
+  // Scene kinds that came with friction always write the block (they have no older keys to keep).
+  if (scene.kind === "slope" || scene.kind === "stack") return true;
   if (scene.kind === "pair") return scene.spinARadPerS !== undefined || scene.spinBRadPerS !== undefined;
   if (scene.kind === "wall") return scene.spinRadPerS !== undefined;
   if (scene.kind === "snapshot") return scene.bodies.some((body) => body.omegaRadPerS !== undefined);
@@ -168,7 +175,13 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
       n = putOptional(w, n, spinScene.spinRadPerS);
     } else if (spinScene.kind === "snapshot") {
       for (const body of spinScene.bodies) n = putOptional(w, n, body.omegaRadPerS);
+    } else if (spinScene.kind === "slope") {
+      n = putString(w, n, spinScene.body);
     }
+    const tolerances = scenario.tolerances;
+    n = putOptional(w, n, tolerances.restSpeedMPerS);
+    n = putOptional(w, n, tolerances.creepFraction);
+    n = putOptional(w, n, tolerances.restingOverlapFraction);
   }
 
   let h0 = 0x9747b28c | 0;
