@@ -5,6 +5,7 @@
  */
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
+import { frictionBench } from "./friction";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { metering } from "./metering";
@@ -15,7 +16,7 @@ import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, frictionBench, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening];
 
 async function main() {
   const wanted = process.argv.slice(2);
