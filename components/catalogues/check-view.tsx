@@ -30,6 +30,9 @@ const VERDICT_WORDS: Record<Verdict, string> = {
   tunneled: "tunnels",
   "step-unstable": "step unstable",
   exploded: "explodes",
+  jitter: "jitters (never comes to rest)",
+  creep: "creeps (slides where friction should hold)",
+  sinking: "sinks into its support at rest",
 };
 
 function fmt(value: number | null, digits = 3): string {

@@ -269,6 +269,25 @@ export function traceGlyph(ctx: CanvasRenderingContext2D, glyph: GlyphName, cx: 
       ctx.lineTo(cx + s * 0.2, cy + s * 0.3);
       ctx.lineTo(cx + s * 0.6, cy - s * 0.3);
       break;
+    case "ticks":
+      ctx.moveTo(cx - s * 0.5, cy - s * 0.35);
+      ctx.lineTo(cx - s * 0.5, cy + s * 0.35);
+      ctx.moveTo(cx, cy - s * 0.35);
+      ctx.lineTo(cx, cy + s * 0.35);
+      ctx.moveTo(cx + s * 0.5, cy - s * 0.35);
+      ctx.lineTo(cx + s * 0.5, cy + s * 0.35);
+      break;
+    case "arrow":
+      ctx.moveTo(cx - s * 0.6, cy - s * 0.3);
+      ctx.lineTo(cx + s * 0.6, cy + s * 0.3);
+      ctx.moveTo(cx + s * 0.15, cy + s * 0.4);
+      ctx.lineTo(cx + s * 0.6, cy + s * 0.3);
+      ctx.lineTo(cx + s * 0.35, cy - s * 0.1);
+      break;
+    case "cup":
+      ctx.moveTo(cx - s * 0.55, cy - s * 0.2);
+      ctx.arc(cx, cy - s * 0.2, s * 0.55, Math.PI, 0, true);
+      break;
     case "none":
       break;
   }

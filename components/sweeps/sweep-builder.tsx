@@ -52,6 +52,10 @@ const SCENE_DEFAULTS: Record<SceneKind, SweepSpecInput["scenario"]["scene"]> = {
     gravityMPerS2: 0,
     speedScale: 1,
   },
+  // A 4 kg supply crate released on a 15° loading ramp.
+  slope: { kind: "slope", massKg: 4, radiusM: 0.2, angleDeg: 15, speedMPerS: 0, spinRadPerS: 0, gravityMPerS2: 9.81, body: "crate" },
+  // Ten stacked loot coins, each nudged sideways by up to 1 % of its radius.
+  stack: { kind: "stack", count: 10, massKg: 0.05, radiusM: 0.015, gravityMPerS2: 9.81, perturbationFraction: 0.01 },
 };
 
 const SCENE_LABELS: Record<SceneKind, string> = {
@@ -60,6 +64,8 @@ const SCENE_LABELS: Record<SceneKind, string> = {
   row: "Row — a striker hits a row of resting discs",
   box: "Box — many discs in a walled box",
   snapshot: "Snapshot — discs and walls exported from a game",
+  slope: "Slope — one disc or crate released on a ramp (needs friction to hold)",
+  stack: "Stack — a tower of discs resting on the floor",
 };
 
 const INTEGRATOR_LABELS: Record<string, string> = {

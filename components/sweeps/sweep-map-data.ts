@@ -122,7 +122,10 @@ function contactMass(spec: SweepSpecInput): number | null {
     case "row":
       return effectiveMassKg(scene.strikerMassKg, scene.massKg);
     case "box":
+    case "stack":
       return effectiveMassKg(scene.massKg, scene.massKg);
+    case "slope":
+      return effectiveMassKg(scene.massKg);
     case "snapshot": {
       // The lightest pair of the snapshot sets the stiffest demand on dt.
       const lightest = Math.min(...scene.bodies.map((body) => body.massKg));

@@ -9,7 +9,7 @@
  */
 import type { Verdict } from "../physics/types";
 
-export type GlyphName = "dot" | "slash" | "backslash" | "ring" | "chevron" | "cross" | "bar" | "zigzag" | "none";
+export type GlyphName = "dot" | "slash" | "backslash" | "ring" | "chevron" | "cross" | "bar" | "zigzag" | "none" | "ticks" | "arrow" | "cup";
 
 export interface CategoryStyle {
   /** Stable key (verdict name, comparison name). */
@@ -21,7 +21,7 @@ export interface CategoryStyle {
 }
 
 /** Verdicts from least to most severe (the reverse of the engine's precedence list). */
-export const VERDICTS_BY_SEVERITY: readonly Verdict[] = ["stable", "coarse-contact", "energy-drift", "restitution-off", "deep-overlap", "tunneled", "step-unstable", "exploded"];
+export const VERDICTS_BY_SEVERITY: readonly Verdict[] = ["stable", "creep", "coarse-contact", "jitter", "energy-drift", "restitution-off", "sinking", "deep-overlap", "tunneled", "step-unstable", "exploded"];
 
 export const VERDICT_STYLES: Record<Verdict, CategoryStyle> = {
   stable: { key: "stable", label: "Stable", colour: "#b9f1dd", glyph: "dot" },
@@ -32,6 +32,10 @@ export const VERDICT_STYLES: Record<Verdict, CategoryStyle> = {
   tunneled: { key: "tunneled", label: "Tunneled", colour: "#585ca7", glyph: "chevron" },
   "step-unstable": { key: "step-unstable", label: "Step unstable", colour: "#892463", glyph: "zigzag" },
   exploded: { key: "exploded", label: "Exploded", colour: "#701a2e", glyph: "cross" },
+  // Resting-contact verdicts, placed by lightness between their neighbours in severity (L* 85.5, 75.6, 54.5).
+  creep: { key: "creep", label: "Creep", colour: "#bcd9f5", glyph: "arrow" },
+  jitter: { key: "jitter", label: "Jitter", colour: "#a9b9ec", glyph: "ticks" },
+  sinking: { key: "sinking", label: "Sinking", colour: "#b46a9e", glyph: "cup" },
 };
 
 /** The verdict categories in severity order, as the map's category list (code i ↔ entry i). */

@@ -20,6 +20,24 @@ export interface Bodies {
   /** Integrator scratch (velocity Verlet keeps the half-step velocity here). */
   readonly scratchVx: Float64Array;
   readonly scratchVy: Float64Array;
+  /**
+   * Rotation (used only while `rotating`: a run with friction or rolling resistance). Angle rad,
+   * angular velocity rad/s (counter-clockwise positive), torque N·m, moment of inertia kg·m².
+   */
+  readonly angle: Float64Array;
+  readonly omega: Float64Array;
+  readonly torque: Float64Array;
+  readonly inertia: Float64Array;
+  readonly inverseInertia: Float64Array;
+  /** Angles before the last drift; the tangential law takes the step's rotation from them. */
+  readonly previousAngle: Float64Array;
+  /** Integrator scratch for the half-step angular velocity (velocity Verlet). */
+  readonly scratchOmega: Float64Array;
+  /**
+   * Whether the integrators advance the rotation. False for frictionless runs, whose translational
+   * arithmetic then stays exactly what it was before rotation existed.
+   */
+  rotating: boolean;
 }
 
 export function createBodies(count: number): Bodies {
@@ -38,6 +56,14 @@ export function createBodies(count: number): Bodies {
     previousY: new Float64Array(count),
     scratchVx: new Float64Array(count),
     scratchVy: new Float64Array(count),
+    angle: new Float64Array(count),
+    omega: new Float64Array(count),
+    torque: new Float64Array(count),
+    inertia: new Float64Array(count),
+    inverseInertia: new Float64Array(count),
+    previousAngle: new Float64Array(count),
+    scratchOmega: new Float64Array(count),
+    rotating: false,
   };
 }
 
@@ -58,6 +84,7 @@ export function reusableBodies(count: number): Bodies {
     bodies = createBodies(count);
     reusedBodies[count] = bodies;
   }
+  bodies.rotating = false;
   return bodies;
 }
 
@@ -72,6 +99,43 @@ export function setBody(bodies: Bodies, index: number, xM: number, yM: number, v
   bodies.radius[index] = radiusM;
   bodies.previousX[index] = xM;
   bodies.previousY[index] = yM;
+  // A solid disc (I = ½·m·r²) at rest in rotation; setSpin and setInertia override.
+  const inertia = 0.5 * massKg * radiusM * radiusM;
+  bodies.inertia[index] = inertia;
+  bodies.inverseInertia[index] = 1 / inertia;
+  bodies.angle[index] = 0;
+  bodies.previousAngle[index] = 0;
+  bodies.omega[index] = 0;
+  bodies.torque[index] = 0;
+}
+
+/** Initial angular velocity (rad/s, counter-clockwise positive) of one body. */
+export function setSpin(bodies: Bodies, index: number, omegaRadPerS: number): void {
+  bodies.omega[index] = omegaRadPerS;
+}
+
+/** A moment of inertia other than the solid disc's (a ring m·r², a shell); Infinity holds the rotation (a crate). */
+export function setInertia(bodies: Bodies, index: number, inertiaKgM2: number): void {
+  bodies.inertia[index] = inertiaKgM2;
+  bodies.inverseInertia[index] = 1 / inertiaKgM2;
+}
+
+/** Rotational kinetic energy Σ ½·I·ω². */
+export function rotationalEnergyJ(bodies: Bodies): number {
+  if (!bodies.rotating) return 0;
+  const { count, omega, inertia } = bodies;
+  let sum = 0;
+  // A body with its rotation held (inverse inertia 0) never spins and carries no rotational energy.
+  for (let i = 0; i < count; i++) if (omega[i] !== 0) sum += 0.5 * inertia[i] * omega[i] * omega[i];
+  return sum;
+}
+
+/** Angular momentum about the origin Σ (x·m·v_y − y·m·v_x + I·ω) (kg·m²/s). */
+export function angularMomentumKgM2PerS(bodies: Bodies): number {
+  const { count, x, y, vx, vy, mass, omega, inertia } = bodies;
+  let sum = 0;
+  for (let i = 0; i < count; i++) sum += mass[i] * (x[i] * vy[i] - y[i] * vx[i]) + (omega[i] !== 0 ? inertia[i] * omega[i] : 0);
+  return sum;
 }
 
 export function kineticEnergyJ(bodies: Bodies): number {

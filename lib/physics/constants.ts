@@ -18,6 +18,9 @@ import type { Tolerances } from "./types";
  *   speed, ±10 % of its energy, is not told apart in play). Relative, checked in both directions.
  * - energyPeakRel 0.5: our choice; the staggered energy symplectic Euler shows inside a contact
  *   peaks about ω·h/2 above the start (measured 0.50 at ω·h = 1), so 0.5 matches minStepsPerContact.
+ * - restSpeedMPerS 0.01: our choice (a resting crate still moving 1 cm/s at the end shimmers on screen).
+ * - creepFraction 0.01: our choice (a held crate that slides a hundredth of its size in half the run visibly walks off over a level).
+ * - restingOverlapFraction 0.02: common practice in games (a resting body sunk 2 % of its size into the floor shows as a lost gap); our choice.
  * - minStepsPerContact 3: common practice in games (fewer than three steps cannot show compression
  *   and release; engineering DEM resolves a contact in tens of steps, from memory); our choice. A linear contact lasts π/ω, about 3 steps at ω·h = 1.
  */
@@ -29,6 +32,9 @@ export const DEFAULT_TOLERANCES: Readonly<Required<Tolerances>> = Object.freeze(
   restitutionRel: 0.05,
   energyPeakRel: 0.5,
   minStepsPerContact: 3,
+  restSpeedMPerS: 0.01,
+  creepFraction: 0.01,
+  restingOverlapFraction: 0.02,
 });
 
 /**
@@ -51,3 +57,23 @@ export const MAX_BOX_DISCS = 10_000;
  * than this starts with a stored spring force the game did not have (common practice).
  */
 export const SNAPSHOT_OVERLAP_TOLERANCE = 0.01;
+
+/**
+ * k_t/k_n when a friction spec gives neither a ratio nor k_t: 2/7, the lower end of the range
+ * common practice uses (2/7 to 1); for a solid sphere it makes the tangential and normal
+ * oscillations equally fast (common practice).
+ */
+export const DEFAULT_TANGENTIAL_STIFFNESS_RATIO = 2 / 7;
+
+/** Largest stack scene the engine accepts. */
+export const MAX_STACK_DISCS = 1000;
+
+/**
+ * A slope or stack scene has settled once its kinetic energy (with spin) stays below this fraction
+ * of Σ m·g·r (the energy of lifting every body by its radius): our choice, far below any motion
+ * a player sees.
+ */
+export const SETTLE_ENERGY_FRACTION = 1e-6;
+
+/** Half-width of the stack scene's channel beyond the disc radius and its perturbation, as a fraction of the radius (our choice: room to shift, no room to fall). */
+export const STACK_CHANNEL_CLEARANCE_FRACTION = 0.05;

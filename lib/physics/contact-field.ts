@@ -24,6 +24,7 @@
  */
 import type { Bodies } from "./bodies";
 import type { ForceField } from "./integrators";
+import { NO_TANGENTIAL, TangentialContacts, tangentialActive, type TangentialParameters } from "./tangential";
 
 export const CONTACT_LINEAR = 0;
 export const CONTACT_HERTZ = 1;
@@ -78,6 +79,8 @@ export interface ContactFieldParameters {
    * under verdict rules 2, 0 under rules 1 (so re-run cells of stored sweeps match their other cells).
    */
   nearMissDepthFraction: number;
+  /** Friction and rolling resistance (./tangential.ts); absent: frictionless, no rotation. */
+  tangential?: TangentialParameters;
 }
 
 const EMPTY_INDICES = new Int32Array(0);
@@ -101,6 +104,9 @@ export class ContactField implements ForceField {
   gravityMPerS2 = 0;
   broadPhase = 0;
   nearMissDepthFraction = 0;
+  /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
+  frictional = false;
+  readonly tangential = new TangentialContacts();
   private readonly wallNormalX: number[] = [];
   private readonly wallNormalY: number[] = [];
   private readonly wallOffset: number[] = [];
@@ -185,6 +191,9 @@ export class ContactField implements ForceField {
     this.gravityMPerS2 = parameters.gravityMPerS2;
     this.broadPhase = parameters.broadPhase;
     this.nearMissDepthFraction = parameters.nearMissDepthFraction;
+    const tangential = parameters.tangential ?? NO_TANGENTIAL;
+    this.frictional = tangentialActive(tangential);
+    this.tangential.configure(tangential);
     this.wallCount = parameters.walls.length;
     this.wallNormalX.length = 0;
     this.wallNormalY.length = 0;
@@ -244,6 +253,7 @@ export class ContactField implements ForceField {
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
     this.firstContactSeenThisPass = false;
+    if (this.frictional) this.tangential.beginPass(bodies);
 
     // Pairs farther apart than this cannot touch now nor have skipped a contact during the step.
     const { x, y, previousX, previousY, radius } = bodies;
@@ -262,6 +272,7 @@ export class ContactField implements ForceField {
     if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByNeighbourList(bodies, cutoffM, maxRadius);
     else this.pairsAllPairs(bodies);
     if (this.wallCount > 0) this.walls(bodies);
+    if (this.frictional) this.contactPotentialJ += this.tangential.springPotentialJ;
 
     if (this.firstContactPhase === FIRST_CONTACT_ACTIVE && !this.firstContactSeenThisPass) {
       this.endFirstContactWithoutOverlap(bodies);
@@ -543,6 +554,7 @@ export class ContactField implements ForceField {
     fy[i] -= pushY;
     fx[j] += pushX;
     fy[j] += pushY;
+    if (this.frictional) this.tangential.pair(bodies, i, j, normalX, normalY, distance, force > 0 ? force : 0, this.lastStiffnessNPerM);
     this.overlappingContacts++;
     const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
     const fraction = overlap / smallerRadius;
@@ -617,6 +629,11 @@ export class ContactField implements ForceField {
           fy[i] += force * normalY;
           this.wallForceXN += force * normalX;
           this.wallForceYN += force * normalY;
+        }
+        if (this.frictional) {
+          const tangentialForce = this.tangential.wall(bodies, i, w, normalX, normalY, centreDistance, force > 0 ? force : 0, this.lastStiffnessNPerM);
+          this.wallForceXN -= tangentialForce * normalY;
+          this.wallForceYN += tangentialForce * normalX;
         }
         this.overlappingContacts++;
         const fraction = overlap / radius[i];

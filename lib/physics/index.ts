@@ -7,6 +7,7 @@ export { simulate, totalSubsteps, judge } from "./simulate";
 export { DEFAULT_TOLERANCES, MAX_BOX_DISCS, SNAPSHOT_OVERLAP_TOLERANCE } from "./constants";
 export { boxSceneProblem, boxLayout, snapshotOverlaps, describeSnapshotOverlap } from "./scenes";
 export * from "./analytic";
+export * from "./friction-analytic";
 export {
   linearDampingRatioForRestitution,
   hertzDimensionlessDampingForRestitution,

@@ -15,6 +15,7 @@ export interface ForceField {
 export function primeForces(bodies: Bodies, field: ForceField): void {
   bodies.previousX.set(bodies.x);
   bodies.previousY.set(bodies.y);
+  bodies.previousAngle.set(bodies.angle);
   field.evaluate(bodies);
 }
 
@@ -32,6 +33,15 @@ export function stepSymplecticEuler(bodies: Bodies, field: ForceField, substepS:
     previousY[i] = y[i];
     x[i] += substepS * vx[i];
     y[i] += substepS * vy[i];
+  }
+  if (bodies.rotating) {
+    // Rotation in the translation's order: kick ω by the torque, then drift θ by the new ω.
+    const { angle, omega, torque, inverseInertia, previousAngle } = bodies;
+    for (let i = 0; i < count; i++) {
+      omega[i] += substepS * inverseInertia[i] * torque[i];
+      previousAngle[i] = angle[i];
+      angle[i] += substepS * omega[i];
+    }
   }
   field.evaluate(bodies);
 }
@@ -57,11 +67,27 @@ export function stepVelocityVerlet(bodies: Bodies, field: ForceField, substepS: 
     vx[i] = halfVx + kick * fx[i];
     vy[i] = halfVy + kick * fy[i];
   }
+  const rotating = bodies.rotating;
+  const { angle, omega, torque, inverseInertia, previousAngle, scratchOmega } = bodies;
+  if (rotating) {
+    // Rotation in the translation's order: half kick, drift, predicted ω for the dashpot, half kick.
+    for (let i = 0; i < count; i++) {
+      const kick = halfStep * inverseInertia[i];
+      const halfOmega = omega[i] + kick * torque[i];
+      scratchOmega[i] = halfOmega;
+      previousAngle[i] = angle[i];
+      angle[i] += substepS * halfOmega;
+      omega[i] = halfOmega + kick * torque[i];
+    }
+  }
   field.evaluate(bodies);
   for (let i = 0; i < count; i++) {
     const kick = halfStep * inverseMass[i];
     vx[i] = scratchVx[i] + kick * fx[i];
     vy[i] = scratchVy[i] + kick * fy[i];
+  }
+  if (rotating) {
+    for (let i = 0; i < count; i++) omega[i] = scratchOmega[i] + halfStep * inverseInertia[i] * torque[i];
   }
 }
 
@@ -76,6 +102,15 @@ export function stepExplicitEuler(bodies: Bodies, field: ForceField, substepS: n
     const kick = substepS * inverseMass[i];
     vx[i] += kick * fx[i];
     vy[i] += kick * fy[i];
+  }
+  if (bodies.rotating) {
+    // Rotation in the translation's order: drift θ by the old ω, then kick ω.
+    const { angle, omega, torque, inverseInertia, previousAngle } = bodies;
+    for (let i = 0; i < count; i++) {
+      previousAngle[i] = angle[i];
+      angle[i] += substepS * omega[i];
+      omega[i] += substepS * inverseInertia[i] * torque[i];
+    }
   }
   field.evaluate(bodies);
 }

@@ -3,11 +3,11 @@
  * origin (keeps rounding small), and initial layouts never overlap: where rounding could create a
  * overlap of one ulp between touching bodies, the layout is nudged apart.
  */
-import type { BoxScene, PairScene, RowScene, Scene, SnapshotScene, WallScene } from "./types";
-import { reusableBodies, setBody, type Bodies } from "./bodies";
+import type { BoxScene, PairScene, RowScene, Scene, SlopeScene, SnapshotScene, StackScene, WallScene } from "./types";
+import { reusableBodies, setBody, setInertia, setSpin, type Bodies } from "./bodies";
 import type { Wall } from "./contact-field";
 import { Xoshiro128StarStar } from "./random";
-import { MAX_BOX_DISCS, SNAPSHOT_OVERLAP_TOLERANCE } from "./constants";
+import { MAX_BOX_DISCS, MAX_STACK_DISCS, SNAPSHOT_OVERLAP_TOLERANCE, STACK_CHANNEL_CLEARANCE_FRACTION } from "./constants";
 
 export interface SceneSetup {
   bodies: Bodies;
@@ -27,7 +27,61 @@ export function buildScene(scene: Scene, seed: number): SceneSetup {
       return buildBox(scene, seed);
     case "snapshot":
       return buildSnapshot(scene);
+    case "slope":
+      return buildSlope(scene);
+    case "stack":
+      return buildStack(scene, seed);
   }
+}
+
+/** Unit normal (into free space) and downhill direction of the slope scene's incline. */
+export function slopeGeometry(angleDeg: number): { normalX: number; normalY: number; downX: number; downY: number } {
+  const angleRad = (angleDeg * Math.PI) / 180;
+  const sin = Math.sin(angleRad);
+  const cos = Math.cos(angleRad);
+  return { normalX: -sin, normalY: cos, downX: -cos, downY: -sin };
+}
+
+/** The body touches the incline at the origin (overlap 0), moving down it at `speedMPerS`. */
+function buildSlope(scene: SlopeScene): SceneSetup {
+  const bodies = reusableBodies(1);
+  const { normalX, normalY, downX, downY } = slopeGeometry(scene.angleDeg);
+  const r = scene.radiusM;
+  setBody(bodies, 0, r * normalX, r * normalY, scene.speedMPerS * downX, scene.speedMPerS * downY, scene.massKg, r);
+  if (scene.body === "crate") setInertia(bodies, 0, Infinity);
+  else setSpin(bodies, 0, scene.spinRadPerS);
+  return { bodies, walls: [{ normalX, normalY, offsetM: 0 }], gravityMPerS2: scene.gravityMPerS2 };
+}
+
+/** Why a stack scene cannot be built, or null (for input validation upstream). */
+export function stackSceneProblem(scene: Pick<StackScene, "count" | "perturbationFraction">): string | null {
+  if (!(Number.isInteger(scene.count) && scene.count >= 1 && scene.count <= MAX_STACK_DISCS)) return `count must be an integer from 1 to ${MAX_STACK_DISCS}`;
+  if (!(scene.perturbationFraction >= 0 && scene.perturbationFraction <= 0.5)) return "perturbationFraction must be from 0 to 0.5";
+  return null;
+}
+
+/**
+ * Disc k (0 at the bottom) centred 2r·k above the bottom disc, which touches the floor y = 0,
+ * shifted sideways by a seeded amount in ±perturbation·r; the channel walls stand
+ * r·(1 + perturbation + STACK_CHANNEL_CLEARANCE_FRACTION) either side of x = 0.
+ */
+function buildStack(scene: StackScene, seed: number): SceneSetup {
+  const problem = stackSceneProblem(scene);
+  if (problem !== null) throw new RangeError(`stack scene: ${problem}`);
+  const random = new Xoshiro128StarStar(seed);
+  const bodies = reusableBodies(scene.count);
+  const r = scene.radiusM;
+  const shift = scene.perturbationFraction * r;
+  for (let k = 0; k < scene.count; k++) {
+    setBody(bodies, k, shift * (2 * random.nextFloat() - 1), r + 2 * r * k, 0, 0, scene.massKg, r);
+  }
+  const halfWidth = r * (1 + scene.perturbationFraction + STACK_CHANNEL_CLEARANCE_FRACTION);
+  const walls: Wall[] = [
+    { normalX: 0, normalY: 1, offsetM: 0 },
+    { normalX: 1, normalY: 0, offsetM: -halfWidth },
+    { normalX: -1, normalY: 0, offsetM: -halfWidth },
+  ];
+  return { bodies, walls, gravityMPerS2: scene.gravityMPerS2 };
 }
 
 /** A (index 0) below and left of B (index 1, at the origin), moving along +x; B moves along −x. */
@@ -41,6 +95,8 @@ function buildPair(scene: PairScene): SceneSetup {
   }
   setBody(bodies, 0, -separationXM, -offsetM, scene.speedAMPerS, 0, scene.massAKg, scene.radiusAM);
   setBody(bodies, 1, 0, 0, -scene.speedBMPerS, 0, scene.massBKg, scene.radiusBM);
+  setSpin(bodies, 0, scene.spinARadPerS ?? 0);
+  setSpin(bodies, 1, scene.spinBRadPerS ?? 0);
   return { bodies, walls: [], gravityMPerS2: 0 };
 }
 
@@ -50,6 +106,7 @@ function buildWall(scene: WallScene): SceneSetup {
   const angleRad = (scene.angleDeg * Math.PI) / 180;
   const speed = scene.speedMPerS;
   setBody(bodies, 0, scene.radiusM + scene.gapM, 0, -speed * Math.cos(angleRad), speed * Math.sin(angleRad), scene.massKg, scene.radiusM);
+  setSpin(bodies, 0, scene.spinRadPerS ?? 0);
   return { bodies, walls: [{ normalX: 1, normalY: 0, offsetM: 0 }], gravityMPerS2: 0 };
 }
 
@@ -222,6 +279,9 @@ function buildSnapshot(scene: SnapshotScene): SceneSetup {
   if (overlaps.length > 0) throw new RangeError(`snapshot scene: ${describeSnapshotOverlap(overlaps[0])}`);
   const bodies = reusableBodies(scene.bodies.length);
   const scale = scene.speedScale;
-  scene.bodies.forEach((body, i) => setBody(bodies, i, body.xM, body.yM, body.vxMPerS * scale, body.vyMPerS * scale, body.massKg, body.radiusM));
+  scene.bodies.forEach((body, i) => {
+    setBody(bodies, i, body.xM, body.yM, body.vxMPerS * scale, body.vyMPerS * scale, body.massKg, body.radiusM);
+    setSpin(bodies, i, (body.omegaRadPerS ?? 0) * scale);
+  });
   return { bodies, walls: scene.walls.map(normalisedWall), gravityMPerS2: scene.gravityMPerS2 };
 }

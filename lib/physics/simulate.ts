@@ -4,9 +4,12 @@
  * metrics (no clocks, no Math.random, no dependence on object iteration order).
  */
 import type { Metrics, RunOptions, RunResult, Scenario, TimeSeries, Verdict, WorkCounts } from "./types";
-import { DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
+import { DEFAULT_TANGENTIAL_STIFFNESS_RATIO, DEFAULT_TOLERANCES, STEP_STABILITY_LIMIT_OMEGA_H } from "./constants";
+import type { TangentialParameters } from "./tangential";
 import { buildScene } from "./scenes";
-import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
+import { kineticEnergyJ, gravityPotentialJ, momentumMagnitudeSumNs, rotationalEnergyJ, totalMomentumXNs, totalMomentumYNs, type Bodies } from "./bodies";
+import { SpinTracker, isIsolatedScene } from "./spin-metrics";
+import { RestTracker, isRestingScene, slopeShouldHold } from "./rest-metrics";
 import { primeForces, stepFunctionFor, type StepFunction } from "./integrators";
 import {
   BROAD_PHASE_ALL_PAIRS,
@@ -64,6 +67,20 @@ export function createContactField(
     dampingMode = DAMPING_DIMENSIONLESS;
     dampingValue = isHertz ? hertzDimensionlessDampingForRestitution(damping.value) : linearDampingRatioForRestitution(damping.value);
   }
+  const friction = contact.friction;
+  const rollingResistance = contact.rollingResistance ?? 0;
+  let tangential: TangentialParameters | undefined;
+  if ((friction !== undefined && (friction.coefficient > 0 || (friction.staticCoefficient ?? 0) > 0)) || rollingResistance > 0) {
+    const coefficient = friction?.coefficient ?? 0;
+    tangential = {
+      coefficient,
+      staticCoefficient: friction?.staticCoefficient ?? coefficient,
+      stiffnessRatio: friction?.stiffnessRatio ?? DEFAULT_TANGENTIAL_STIFFNESS_RATIO,
+      stiffnessNPerM: friction?.stiffness ?? 0,
+      dampingRatio: friction?.dampingRatio ?? 0,
+      rollingResistance,
+    };
+  }
   const useGrid = broadPhase === undefined ? scenario.scene.kind === "box" || bodyCount > MAX_BODIES_FOR_FREE_FLIGHT_JUMPS : broadPhase === "grid";
   const parameters: ContactFieldParameters = {
     model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
@@ -75,6 +92,7 @@ export function createContactField(
     gravityMPerS2,
     broadPhase: useGrid ? BROAD_PHASE_GRID : BROAD_PHASE_ALL_PAIRS,
     nearMissDepthFraction: (scenario.verdictRules ?? 1) >= 2 ? SKIPPED_CONTACT_DEPTH_FRACTION : 0,
+    tangential,
   };
   if (!reuse) return new ContactField(parameters);
   reusedField.configure(parameters);
@@ -99,19 +117,26 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const bodies = setup.bodies;
   const gravity = setup.gravityMPerS2;
   const field = createContactField(scenario, setup.walls, gravity, bodies.count, options.broadPhase, bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS);
+  // Rotation is integrated only when friction or rolling resistance can turn a body: a
+  // frictionless run keeps exactly the arithmetic (and the results) it had before rotation existed.
+  const rotating = field.frictional;
+  bodies.rotating = rotating;
+  const spin = rotating ? new SpinTracker(bodies, field, gravity, isIsolatedScene(scenario)) : null;
+  const rest = isRestingScene(scenario) ? new RestTracker(scenario, bodies, gravity, totalSubsteps(scenario)) : null;
   const step = stepFunctionFor(scenario.integrator);
   const isVerlet = scenario.integrator === "velocity-verlet";
   const h = scenario.dtS / scenario.substeps;
   const totalSteps = totalSubsteps(scenario);
   const tolerances = scenario.tolerances;
-  const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
+  const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS && !rotating;
   // Work counts (./work-units.ts): what the run does, never a clock.
   const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
 
-  const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps) : null;
+  const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps, rotating ? field : null) : null;
 
   primeForces(bodies, field);
-  const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+  const startEnergy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity) + rotationalEnergyJ(bodies);
+  if (spin) spin.start(bodies, field);
   const energyScale = startEnergy !== 0 ? Math.abs(startEnergy) : 1;
   const startMomentumX = totalMomentumXNs(bodies);
   const startMomentumY = totalMomentumYNs(bodies);
@@ -134,6 +159,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     energyScale,
     blowUpEnergyFactor: tolerances.blowUpEnergyFactor,
     recorder,
+    spin,
+    rest,
   });
   const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;
 
@@ -158,6 +185,9 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     // row or a box the first contact's bodies are pushed by neighbours while it lasts.
     amplification: isolatedScene && effectiveRestitution !== null && expected !== null && expected > 0 ? Math.abs(effectiveRestitution) / expected : null,
   };
+
+  if (spin) spin.finish(metrics, bodies, field, h);
+  if (rest) rest.finish(metrics, bodies, field, h, !exploded);
 
   const { verdict, reason } = judge(metrics, scenario, {
     explodedAtS,
@@ -199,6 +229,10 @@ interface LoopSettings {
   energyScale: number;
   blowUpEnergyFactor: number;
   recorder: SeriesRecorder | null;
+  /** Spin metrics of a run with friction, else null. */
+  spin: SpinTracker | null;
+  /** Resting metrics of a slope or stack, else null. */
+  rest: RestTracker | null;
 }
 
 /** What the step loop measured (work counts, impulses, energy and contact metrics). */
@@ -229,7 +263,7 @@ interface LoopProgress {
  * loop, which the JIT threw away at the end of every run (a deoptimisation per cell).
  */
 function integrate(bodies: Bodies, field: ContactField, step: StepFunction, settings: LoopSettings): LoopProgress {
-  const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder } = settings;
+  const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder, spin, rest } = settings;
   let chargedContacts = 0;
   let flightChecks = 0;
   let flightSteps = 0;
@@ -287,6 +321,11 @@ function integrate(bodies: Bodies, field: ContactField, step: StepFunction, sett
     lastWallForceYN = field.wallForceYN;
 
     energy = kineticEnergyJ(bodies) + field.contactPotentialJ + gravityPotentialJ(bodies, gravity);
+    if (spin) {
+      energy += rotationalEnergyJ(bodies);
+      spin.afterStep(bodies, field, h, isVerlet);
+    }
+    if (rest) rest.afterStep(n, kineticEnergyJ(bodies) + rotationalEnergyJ(bodies), bodies);
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
     if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
@@ -307,6 +346,7 @@ function integrate(bodies: Bodies, field: ContactField, step: StepFunction, sett
       contactDurationS = firstContactEndS - firstContactStartS;
       const approachIn = field.firstContactApproachSpeedMPerS;
       effectiveRestitution = approachIn > 0 ? -field.firstContactEndApproachSpeed(bodies) / approachIn : null;
+      if (spin) spin.firstContactEnded(bodies, field);
     }
 
     if (recorder) recorder.recordUpTo(n, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
@@ -494,8 +534,18 @@ export function judgeByRules2(metrics: Metrics, scenario: Scenario, context: Ver
       reason: `the contact sent the bodies apart ${formatNumber(amplification)}× as fast as the model's restitution (limit ${formatNumber(amplificationLimit)}×) at ω·h = ${formatNumber(omegaH ?? 0)}`,
     };
   }
+  const tangentialOmegaH = metrics.maxTangentialOmegaH ?? null;
+  if (tangentialOmegaH !== null && tangentialOmegaH >= STEP_STABILITY_LIMIT_OMEGA_H) {
+    return { verdict: "step-unstable", reason: `a tangential (friction) spring ran at ω_t·h = ${formatNumber(tangentialOmegaH)}, at or past the stability bound ${STEP_STABILITY_LIMIT_OMEGA_H}` };
+  }
   if (metrics.tunneled) return judgeByRules1(metrics, scenario, context);
   if (metrics.maxOverlapFraction > tolerances.maxOverlapFraction) return judgeByRules1(metrics, scenario, context);
+  const scene = scenario.scene;
+  const resting = scene.kind === "slope" || scene.kind === "stack";
+  const restingOverlapLimit = tolerances.restingOverlapFraction ?? DEFAULT_TOLERANCES.restingOverlapFraction;
+  if (resting && metrics.restingOverlapFraction !== undefined && metrics.restingOverlapFraction > restingOverlapLimit) {
+    return { verdict: "sinking", reason: `a resting body ended ${formatPercent(metrics.restingOverlapFraction)} of its radius deep in its support (limit ${formatPercent(restingOverlapLimit)})` };
+  }
   if (isolatedContact && amplification !== null && Math.abs(amplification - 1) > restitutionRel) {
     return {
       verdict: "restitution-off",
@@ -509,8 +559,21 @@ export function judgeByRules2(metrics: Metrics, scenario: Scenario, context: Ver
   if (!judgedByRestitution && metrics.energyErrorRel > tolerances.energyDriftRel) {
     return { verdict: "energy-drift", reason: `the scene gained ${formatPercent(metrics.energyErrorRel)} energy over the run (limit ${formatPercent(tolerances.energyDriftRel)})` };
   }
-  if (!judgedByRestitution && undamped && metrics.energyErrorRel < -tolerances.energyDriftRel) {
+  // Friction dissipates energy by sliding: a loss is the model's, not the integrator's.
+  const frictional = (scenario.contact.friction?.coefficient ?? 0) > 0 || (scenario.contact.friction?.staticCoefficient ?? 0) > 0 || (scenario.contact.rollingResistance ?? 0) > 0;
+  if (!judgedByRestitution && undamped && !frictional && metrics.energyErrorRel < -tolerances.energyDriftRel) {
     return { verdict: "energy-drift", reason: `the scene lost ${formatPercent(-metrics.energyErrorRel)} energy without damping (limit ${formatPercent(tolerances.energyDriftRel)})` };
+  }
+  const shouldRest = scene.kind === "stack" || (scene.kind === "slope" && slopeShouldHold(scene, scenario.contact));
+  const restSpeed = tolerances.restSpeedMPerS ?? DEFAULT_TOLERANCES.restSpeedMPerS;
+  if (shouldRest && metrics.residualMaxSpeedMPerS !== undefined && metrics.residualMaxSpeedMPerS > restSpeed) {
+    return { verdict: "jitter", reason: `bodies that should rest still moved at up to ${formatNumber(metrics.residualMaxSpeedMPerS)} m/s over the last quarter of the run (limit ${formatNumber(restSpeed)} m/s)` };
+  }
+  if (scene.kind === "slope" && shouldRest && metrics.creepM !== undefined) {
+    const creepLimitM = (tolerances.creepFraction ?? DEFAULT_TOLERANCES.creepFraction) * scene.radiusM;
+    if (metrics.creepM > creepLimitM) {
+      return { verdict: "creep", reason: `friction should hold the body at ${formatNumber(scene.angleDeg)}°, yet it moved ${formatNumber(metrics.creepM)} m down the slope in the second half of the run (limit ${formatNumber(creepLimitM)} m)` };
+    }
   }
   const stepS = context.stepS ?? scenario.dtS / scenario.substeps;
   const stepsPerContact = metrics.contactDurationS !== null ? metrics.contactDurationS / stepS : null;
@@ -569,13 +632,20 @@ class SeriesRecorder {
   private readonly maxSamples: number;
   private readonly totalSteps: number;
   private sampleIndex = 0;
+  /** The field of a run with friction (spin and stick/slide are recorded), else null. */
+  private readonly frictionField: ContactField | null;
 
-  constructor(bodyCount: number, maxSamples: number, totalSteps: number) {
+  constructor(bodyCount: number, maxSamples: number, totalSteps: number, frictionField: ContactField | null) {
     this.maxSamples = maxSamples;
     this.totalSteps = totalSteps;
+    this.frictionField = frictionField;
     const bodies: TimeSeries["bodies"] = [];
-    for (let i = 0; i < bodyCount; i++) bodies.push({ xM: [], yM: [], pxNs: [], pyNs: [] });
+    for (let i = 0; i < bodyCount; i++) bodies.push(frictionField ? { xM: [], yM: [], pxNs: [], pyNs: [], angleRad: [], omegaRadPerS: [] } : { xM: [], yM: [], pxNs: [], pyNs: [] });
     this.series = { tS: [], bodies, totalPxNs: [], totalPyNs: [], kineticJ: [], potentialJ: [], totalJ: [], maxOverlapM: [] };
+    if (frictionField) {
+      this.series.slidingContacts = [];
+      this.series.stickingContacts = [];
+    }
   }
 
   private stepOfSample(index: number): number {
@@ -604,12 +674,20 @@ class SeriesRecorder {
       track.yM.push(bodies.y[i]);
       track.pxNs.push(px);
       track.pyNs.push(py);
+      if (track.angleRad && track.omegaRadPerS) {
+        track.angleRad.push(bodies.angle[i]);
+        track.omegaRadPerS.push(bodies.omega[i]);
+      }
       totalPx += px;
       totalPy += py;
     }
     series.totalPxNs.push(totalPx);
     series.totalPyNs.push(totalPy);
-    const kinetic = kineticEnergyJ(bodies);
+    const kinetic = kineticEnergyJ(bodies) + rotationalEnergyJ(bodies);
+    if (this.frictionField && series.slidingContacts && series.stickingContacts) {
+      series.slidingContacts.push(this.frictionField.tangential.slidingContacts);
+      series.stickingContacts.push(this.frictionField.tangential.stickingContacts);
+    }
     const potential = contactPotentialJ + gravityPotentialJ(bodies, gravity);
     series.kineticJ.push(kinetic);
     series.potentialJ.push(potential);

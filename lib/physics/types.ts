@@ -11,14 +11,20 @@ export const INTEGRATORS: readonly IntegratorName[] = ["symplectic-euler", "velo
 export type ContactModelName = "linear" | "hertz";
 export const CONTACT_MODELS: readonly ContactModelName[] = ["linear", "hertz"];
 
-export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable" | "step-unstable" | "restitution-off" | "coarse-contact";
+export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable" | "step-unstable" | "restitution-off" | "coarse-contact" | "jitter" | "creep" | "sinking";
 /**
  * Every verdict, in the order of its stored code (lib/sweeps/packed.ts stores a verdict as its index
  * here): verdicts added later are appended so stored results keep theirs. Not the precedence.
  */
-export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable", "step-unstable", "restitution-off", "coarse-contact"];
-/** Precedence of the current verdict rules (VERDICT_RULES_VERSION): the first verdict whose condition holds wins. */
-export const VERDICT_PRECEDENCE: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap", "restitution-off", "energy-drift", "coarse-contact", "stable"];
+export const VERDICTS: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable", "step-unstable", "restitution-off", "coarse-contact", "jitter", "creep", "sinking"];
+/**
+ * Precedence of the current verdict rules (VERDICT_RULES_VERSION): the first verdict whose condition holds wins.
+ * The resting-contact verdicts (only judged in the slope and stack scenes, where bodies should come to rest):
+ * - sinking: a body ended the run resting deeper in its support than the resting-overlap tolerance.
+ * - jitter: bodies that should have come to rest were still moving faster than the rest-speed tolerance at the end.
+ * - creep: friction should hold the body (the analytic sliding and rolling limits say so), yet it moved down the slope while at rest.
+ */
+export const VERDICT_PRECEDENCE: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap", "sinking", "restitution-off", "energy-drift", "jitter", "creep", "coarse-contact", "stable"];
 /**
  * Verdicts that say the integrator failed the contact (blew up, ran past the step bound, let a body
  * through, or let it sink too deep), as against verdicts about accuracy (rebound off the target,
@@ -26,6 +32,11 @@ export const VERDICT_PRECEDENCE: readonly Verdict[] = ["exploded", "step-unstabl
  * bound is refuted, and a build fails by default, only on these.
  */
 export const INSTABILITY_VERDICTS: readonly Verdict[] = ["exploded", "step-unstable", "tunneled", "deep-overlap"];
+// jitter, creep and sinking are not instability verdicts: each says a resting contact is off in
+// accuracy (residual motion, slow slip, a soft spring's rest depth), not that the integrator blew up
+// or let a body through. A stiffness from the stability bound is not refuted by them, and a
+// build fails on them only when asked (--fail-on). A tangential spring past its step bound is
+// judged step-unstable, which is an instability verdict.
 /** Precedence of verdict rules 1 (sweeps stored before the rules were versioned). */
 export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
 
@@ -52,6 +63,9 @@ export interface PairScene {
   offsetFraction: number;
   /** Surface-to-surface gap along x at t = 0 (≥ 0). */
   gapM: number;
+  /** Initial angular velocities (rad/s, counter-clockwise positive); absent: 0. */
+  spinARadPerS?: number;
+  spinBRadPerS?: number;
 }
 
 /** One disc hitting a static wall (the line x = 0, disc starting at x > 0 moving towards it). */
@@ -63,6 +77,8 @@ export interface WallScene {
   /** Angle between the velocity and the wall normal: 0 is head-on, towards 90 grazing. In [0, 90). */
   angleDeg: number;
   gapM: number;
+  /** Initial angular velocity (rad/s, counter-clockwise positive); absent: 0. */
+  spinRadPerS?: number;
 }
 
 /** `count` resting discs in a row along x, struck head-on by one more disc (the striker). */
@@ -101,6 +117,8 @@ export interface SnapshotBody {
   vyMPerS: number;
   massKg: number;
   radiusM: number;
+  /** Angular velocity (rad/s, counter-clockwise positive); absent: 0. */
+  omegaRadPerS?: number;
 }
 
 /**
@@ -125,7 +143,42 @@ export interface SnapshotScene {
   speedScale: number;
 }
 
-export type Scene = PairScene | WallScene | RowScene | BoxScene | SnapshotScene;
+/**
+ * One body released on an incline: the line through the origin rising at `angleDeg` to the right
+ * (free space above), gravity along −y. The body starts resting on it at its static overlap, or
+ * moving down the slope.
+ */
+export interface SlopeScene {
+  kind: "slope";
+  massKg: number;
+  radiusM: number;
+  /** Incline angle from the horizontal, [0, 90). */
+  angleDeg: number;
+  /** Initial speed down the slope (≥ 0). */
+  speedMPerS: number;
+  /** Initial angular velocity (rad/s, counter-clockwise positive; rolling down the slope is clockwise, negative). */
+  spinRadPerS: number;
+  gravityMPerS2: number;
+  /** "disc": a solid disc that can roll; "crate": rotation held (the body can only stick or slide). */
+  body: "disc" | "crate";
+}
+
+/**
+ * A tower of `count` discs resting on the floor (y = 0) in a channel a little wider than a disc,
+ * each disc shifted sideways by a seeded amount up to `perturbationFraction` of its radius, all
+ * starting at rest at their static overlaps.
+ */
+export interface StackScene {
+  kind: "stack";
+  count: number;
+  massKg: number;
+  radiusM: number;
+  gravityMPerS2: number;
+  /** Largest sideways shift of a disc, as a fraction of its radius, in [0, 0.5]. */
+  perturbationFraction: number;
+}
+
+export type Scene = PairScene | WallScene | RowScene | BoxScene | SnapshotScene | SlopeScene | StackScene;
 export type SceneKind = Scene["kind"];
 
 export type Damping =
@@ -135,6 +188,23 @@ export type Damping =
   /** Target coefficient of restitution e in (0, 1], converted by the engine. */
   | { kind: "restitution"; value: number };
 
+/**
+ * Tangential contact (lib/physics/tangential.ts): Cundall–Strack spring and dashpot capped by
+ * Coulomb's limit. Absent or coefficient 0 (and no rolling resistance): frictionless, no rotation.
+ */
+export interface FrictionSpec {
+  /** Sliding friction coefficient μ (dimensionless, ≥ 0). */
+  coefficient: number;
+  /** Static coefficient μ_s ≥ μ; absent: μ_s = μ. */
+  staticCoefficient?: number;
+  /** k_t as a multiple of the normal stiffness (for Hertz: of dF/dδ); absent and no `stiffness`: DEFAULT_TANGENTIAL_STIFFNESS_RATIO. */
+  stiffnessRatio?: number;
+  /** Given k_t (N/m); overrides the ratio. */
+  stiffness?: number;
+  /** Tangential damping ratio ζ_t (c_t = 2ζ_t√(m_t·k_t)); absent: 0. */
+  dampingRatio?: number;
+}
+
 export interface ContactSpec {
   model: ContactModelName;
   /** linear: k in N/m. hertz: k_H in N/m^(3/2), used when `material` is absent. */
@@ -142,6 +212,9 @@ export interface ContactSpec {
   /** hertz only: k_H derived from Young's modulus and Poisson ratio (and the radii). */
   material?: { youngsModulusPa: number; poissonRatio: number };
   damping: Damping;
+  friction?: FrictionSpec;
+  /** Rolling resistance coefficient μ_r (dimensionless; torque μ_r·R·F_n); absent: none. */
+  rollingResistance?: number;
 }
 
 export interface Tolerances {
@@ -162,6 +235,12 @@ export interface Tolerances {
   energyPeakRel?: number;
   /** Verdict rules 2: a contact resolved in fewer integrator steps than this is "coarse-contact". */
   minStepsPerContact?: number;
+  /** Slope and stack scenes: largest speed (m/s) a body that should rest may keep at the end of the run before it is "jitter". */
+  restSpeedMPerS?: number;
+  /** Slope scene: distance, as a fraction of the radius, a held body may move in the second half of the run before it is "creep". */
+  creepFraction?: number;
+  /** Slope and stack scenes: resting overlap at the end of the run, as a fraction of the radius, beyond which it is "sinking". */
+  restingOverlapFraction?: number;
 }
 
 export interface Scenario {
@@ -217,20 +296,53 @@ export interface Metrics {
   amplification: number | null;
   /** Integrator steps actually taken or skipped over analytically (counts as duration / (dt/substeps) when the run completes). */
   steps: number;
+  // Present only in runs with friction or rolling resistance (lib/physics/spin-metrics.ts).
+  /**
+   * (L_end − L_start − ∫τ_external dt) / |L_start|, L the angular momentum about the origin (orbital
+   * plus spin) and τ_external the torque of walls and gravity about it: zero up to rounding for
+   * symplectic Euler and velocity Verlet.
+   */
+  angularMomentumDriftRel?: number;
+  /** Largest ω_t·h of any tangential spring, ω_t = √(k_t/m_t) with m_t the effective tangential mass; null without contact. */
+  maxTangentialOmegaH?: number | null;
+  /** Integrator steps with at least one sliding contact. */
+  slidingSteps?: number;
+  /** Pair and wall scenes: slip velocity at the contact point when the first contact ended (0: rolling). */
+  endSlipMPerS?: number | null;
+  /** Pair and wall scenes: angular velocity of the first contact's first body when it ended. */
+  reboundSpinRadPerS?: number | null;
+  /** Pair and wall scenes: angle of the rebound (relative) velocity from the contact normal, degrees, same side as the incidence positive. */
+  reboundAngleDeg?: number | null;
+  // Present only in the slope and stack scenes (bodies that should come to rest).
+  /** First time after which the kinetic energy (with spin) stayed below SETTLE_ENERGY_FRACTION of Σ m·g·r; null if it never did. */
+  settleTimeS?: number | null;
+  /** Mean kinetic energy (with spin) over the last quarter of the run (J). */
+  residualKineticJ?: number;
+  /** Largest speed of any body over the last quarter of the run (m/s). */
+  residualMaxSpeedMPerS?: number;
+  /** Slope: distance moved along the slope in the second half of the run (m). */
+  creepM?: number;
+  /** Deepest contact overlap at the end of the run, as a fraction of the radius. */
+  restingOverlapFraction?: number;
+  /** That overlap over the static overlap the model predicts (m·g/k for linear, per body supported): 1 for a correct rest. */
+  restingOverlapRatio?: number | null;
 }
 
 export interface TimeSeries {
   /** Sample times (s). */
   tS: number[];
   /** Per body, per sample. */
-  bodies: { xM: number[]; yM: number[]; pxNs: number[]; pyNs: number[] }[];
+  /** Per body, per sample; angle and angular velocity only in runs with friction or rolling resistance. */
+  bodies: { xM: number[]; yM: number[]; pxNs: number[]; pyNs: number[]; angleRad?: number[]; omegaRadPerS?: number[] }[];
   totalPxNs: number[];
   totalPyNs: number[];
   kineticJ: number[];
   potentialJ: number[];
   totalJ: number[];
   /** Largest overlap among all pairs (m). */
-  maxOverlapM: number[];
+  maxOverlapM: number[];  /** Runs with friction: contacts sliding and sticking at each sample (the replay's stick/slide state). */
+  slidingContacts?: number[];
+  stickingContacts?: number[];
 }
 
 export interface RunResult {

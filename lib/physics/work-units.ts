@@ -122,5 +122,9 @@ export function wallCount(scenario: Scenario): number {
       return 4;
     case "snapshot":
       return scenario.scene.walls.length;
+    case "slope":
+      return 1;
+    case "stack":
+      return 3;
   }
 }

@@ -155,5 +155,9 @@ export function bodyCount(scenario: Scenario): number {
       return scenario.scene.count;
     case "snapshot":
       return scenario.scene.bodies.length;
+    case "slope":
+      return 1;
+    case "stack":
+      return scenario.scene.count;
   }
 }

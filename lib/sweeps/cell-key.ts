@@ -14,7 +14,7 @@
  *
  * Pure: safe to import anywhere.
  */
-import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, SnapshotBody, SnapshotScene, SnapshotWall, WallScene } from "../physics/types";
+import type { BoxScene, PairScene, RowScene, Scenario, SceneKind, SlopeScene, SnapshotBody, SnapshotScene, SnapshotWall, StackScene, WallScene } from "../physics/types";
 import { fmix32 } from "./canonical";
 
 type Fields<T> = readonly Exclude<keyof T, "kind">[];
@@ -26,19 +26,25 @@ const SCENE_FIELDS = {
   box: ["count", "massKg", "radiusM", "widthM", "heightM", "maxSpeedMPerS", "gravityMPerS2"] as Fields<BoxScene>,
   // The snapshot's scalar fields; its bodies and walls are written after them, each in this order.
   snapshot: ["gravityMPerS2", "speedScale"] as readonly Exclude<keyof SnapshotScene, "kind" | "bodies" | "walls">[],
+  // The slope's `body` (a string) is written with the friction settings below.
+  slope: ["massKg", "radiusM", "angleDeg", "speedMPerS", "spinRadPerS", "gravityMPerS2"] as readonly Exclude<keyof SlopeScene, "kind" | "body">[],
+  stack: ["count", "massKg", "radiusM", "gravityMPerS2", "perturbationFraction"] as Fields<StackScene>,
 } satisfies Record<SceneKind, readonly string[]>;
 const SNAPSHOT_BODY_FIELDS = ["xM", "yM", "vxMPerS", "vyMPerS", "massKg", "radiusM"] as const satisfies readonly (keyof SnapshotBody)[];
 const SNAPSHOT_WALL_FIELDS = ["normalX", "normalY", "offsetM"] as const satisfies readonly (keyof SnapshotWall)[];
 type Exhaustive<T, F extends readonly unknown[]> = [Exclude<Exclude<keyof T, "kind">, F[number]>] extends [never] ? true : false;
+// Initial spins are keyed with the friction settings (below), only when given, so keys of scenes without them stay as they were.
 const allSceneFields: [
-  Exhaustive<PairScene, typeof SCENE_FIELDS.pair>,
-  Exhaustive<WallScene, typeof SCENE_FIELDS.wall>,
+  Exhaustive<Omit<PairScene, "spinARadPerS" | "spinBRadPerS">, typeof SCENE_FIELDS.pair>,
+  Exhaustive<Omit<WallScene, "spinRadPerS">, typeof SCENE_FIELDS.wall>,
   Exhaustive<RowScene, typeof SCENE_FIELDS.row>,
   Exhaustive<BoxScene, typeof SCENE_FIELDS.box>,
   Exhaustive<Omit<SnapshotScene, "bodies" | "walls">, typeof SCENE_FIELDS.snapshot>,
-  Exhaustive<SnapshotBody & { kind: never }, typeof SNAPSHOT_BODY_FIELDS>,
+  Exhaustive<Omit<SnapshotBody, "omegaRadPerS"> & { kind: never }, typeof SNAPSHOT_BODY_FIELDS>,
   Exhaustive<SnapshotWall & { kind: never }, typeof SNAPSHOT_WALL_FIELDS>,
-] = [true, true, true, true, true, true, true];
+  Exhaustive<Omit<SlopeScene, "body">, typeof SCENE_FIELDS.slope>,
+  Exhaustive<StackScene, typeof SCENE_FIELDS.stack>,
+] = [true, true, true, true, true, true, true, true, true];
 void allSceneFields;
 // Scenario and contact fields written below; a new one fails this check until it is keyed.
 type KeyedScenarioFields = "scene" | "contact" | "integrator" | "dtS" | "substeps" | "durationS" | "tolerances" | "seed" | "verdictRules";
@@ -89,12 +95,25 @@ function putString(w: Uint32Array, n: number, text: string): number {
   return n + encoded.length;
 }
 
+/** Whether a scenario sets friction, rolling resistance or an initial spin (their key words are written only then). */
+function hasRotationSettings(scenario: Scenario): boolean {
+  const contact = scenario.contact;
+  if (contact.friction !== undefined || contact.rollingResistance !== undefined) return true;
+  const scene = scenario.scene;
+  // Scene kinds that came with friction always write the block (they have no older keys to keep).
+  if (scene.kind === "slope" || scene.kind === "stack") return true;
+  if (scene.kind === "pair") return scene.spinARadPerS !== undefined || scene.spinBRadPerS !== undefined;
+  if (scene.kind === "wall") return scene.spinRadPerS !== undefined;
+  if (scene.kind === "snapshot") return scene.bodies.some((body) => body.omegaRadPerS !== undefined);
+  return false;
+}
+
 /** Write the key of `scenario` as four u32 words into `out` at `offset`. */
 export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): void {
   const scene = scenario.scene as unknown as Record<string, number> & { kind: SceneKind };
   if (scene.kind === "snapshot") {
     const snapshot = scenario.scene as SnapshotScene;
-    const need = 256 + 2 * (snapshot.bodies.length * SNAPSHOT_BODY_FIELDS.length + snapshot.walls.length * SNAPSHOT_WALL_FIELDS.length);
+    const need = 256 + 2 * (snapshot.bodies.length * (SNAPSHOT_BODY_FIELDS.length + 2) + snapshot.walls.length * SNAPSHOT_WALL_FIELDS.length);
     if (buffer.length < need) buffer = new Uint32Array(need * 2);
   }
   const w = buffer;
@@ -136,6 +155,33 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
     n = putOptional(w, n, tolerances.restitutionRel);
     n = putOptional(w, n, tolerances.energyPeakRel);
     n = putOptional(w, n, tolerances.minStepsPerContact);
+  }
+  // Friction, rolling resistance and initial spins: written (after a marker) only when any is
+  // given, so every scenario without them keeps the key it had before they existed.
+  if (hasRotationSettings(scenario)) {
+    const friction = contact.friction;
+    w[n++] = 0x46524943;
+    n = putOptional(w, n, friction?.coefficient);
+    n = putOptional(w, n, friction?.staticCoefficient);
+    n = putOptional(w, n, friction?.stiffnessRatio);
+    n = putOptional(w, n, friction?.stiffness);
+    n = putOptional(w, n, friction?.dampingRatio);
+    n = putOptional(w, n, contact.rollingResistance);
+    const spinScene = scenario.scene;
+    if (spinScene.kind === "pair") {
+      n = putOptional(w, n, spinScene.spinARadPerS);
+      n = putOptional(w, n, spinScene.spinBRadPerS);
+    } else if (spinScene.kind === "wall") {
+      n = putOptional(w, n, spinScene.spinRadPerS);
+    } else if (spinScene.kind === "snapshot") {
+      for (const body of spinScene.bodies) n = putOptional(w, n, body.omegaRadPerS);
+    } else if (spinScene.kind === "slope") {
+      n = putString(w, n, spinScene.body);
+    }
+    const tolerances = scenario.tolerances;
+    n = putOptional(w, n, tolerances.restSpeedMPerS);
+    n = putOptional(w, n, tolerances.creepFraction);
+    n = putOptional(w, n, tolerances.restingOverlapFraction);
   }
 
   let h0 = 0x9747b28c | 0;

@@ -47,7 +47,10 @@ export function sceneEffectiveMassKg(scenario: Readonly<Scenario>): number | nul
       return scene.massKg;
     case "row":
     case "box":
+    case "stack":
       return scene.count >= 2 ? scene.massKg / 2 : scene.massKg;
+    case "slope":
+      return scene.massKg;
     case "snapshot": {
       let lightest = Infinity;
       let second = Infinity;

@@ -140,8 +140,27 @@ export function predictCellNs(scenario: Scenario, constants: CostConstants = CAL
     case "box":
     // A snapshot takes the box's force pass, integrator and walls per body and step: priced alike.
     case "snapshot":
-      return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.boxStepNs + bodyCount(scenario) * constants.boxBodyStepNs);
+      return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.boxStepNs + bodyCount(scenario) * constants.boxBodyStepNs) * frictionCostFactor(scenario);
+    // The body rests on the incline: in contact at every step.
+    case "slope":
+      return constants.cellOverheadNs + stepsPerCell(scenario) * constants.wallContactStepNs * frictionCostFactor(scenario);
+    // A stack's force pass is the box's (grid, walls, a contact or two per body).
+    case "stack":
+      return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.boxStepNs + bodyCount(scenario) * constants.boxBodyStepNs) * frictionCostFactor(scenario);
   }
+}
+
+/**
+ * Cost of friction per step relative to the frictionless engine (the tangential law, its history
+ * and the rotational update): FRICTION_STEP_COST_FACTOR when friction or rolling resistance is on,
+ * else 1. Measured by `npm run bench -- friction` (the 1,000-disc box with and without friction).
+ */
+export const FRICTION_STEP_COST_FACTOR = 1.6;
+
+export function frictionCostFactor(scenario: Scenario): number {
+  const { friction, rollingResistance } = scenario.contact;
+  const on = (friction !== undefined && (friction.coefficient > 0 || (friction.staticCoefficient ?? 0) > 0)) || (rollingResistance ?? 0) > 0;
+  return on ? FRICTION_STEP_COST_FACTOR : 1;
 }
 
 /** A key for the one-off work a cell needs in a fresh chunk (see hertzRestitutionSolveNs), or null. */

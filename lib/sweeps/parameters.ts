@@ -9,7 +9,7 @@
 import type { ContactModelName, IntegratorName, Scenario, SceneKind } from "../physics/types";
 
 /** Every scene kind, in the order the contract lists them. */
-export const SCENE_KINDS: readonly SceneKind[] = ["pair", "wall", "row", "box", "snapshot"];
+export const SCENE_KINDS: readonly SceneKind[] = ["pair", "wall", "row", "box", "snapshot", "slope", "stack"];
 
 /**
  * Limits every spec must stay within. The limits on cells, steps and body-steps
@@ -111,6 +111,22 @@ const MAX_YOUNGS_MODULUS_PA = 1e13;
 const MAX_GRAVITY_M_PER_S2 = 1e4;
 const MAX_DURATION_S = 3_600;
 const MAX_DT_S = 1;
+/**
+ * Largest friction coefficient (static or sliding) a spec accepts: rubber on dry rough surfaces
+ * stays below about 2 (from memory); 10 leaves room for "never slides" studies without letting
+ * a typo pass unnoticed (our choice).
+ */
+export const MAX_FRICTION_COEFFICIENT = 10;
+/** Largest k_t/k_n: common practice keeps it within 2/7 … 1; 10 is far beyond any use (our choice). */
+export const MAX_TANGENTIAL_STIFFNESS_RATIO = 10;
+/** Largest tangential damping ratio (5× critical; our choice). */
+export const MAX_TANGENTIAL_DAMPING_RATIO = 5;
+/** Largest rolling resistance coefficient μ_r (a lever arm of one radius; measured values are below 0.1, Ai et al. 2011). */
+export const MAX_ROLLING_RESISTANCE = 1;
+/** Largest initial spin (rad/s; our choice). */
+const MAX_SPIN_RAD_PER_S = 1e5;
+/** Largest stack (the engine's MAX_STACK_DISCS). */
+export const MAX_STACK_COUNT = 1_000;
 
 export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
   numeric("dtS", "frame step dt", "s", "all", { ...positive, max: MAX_DT_S }, "log", "Frame step of the fixed-step integrator."),
@@ -169,6 +185,60 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     "linear",
     "Hertz contact from a material; needs contact.material in the scenario.",
   ),
+  numeric(
+    "contact.friction.coefficient",
+    "friction coefficient μ",
+    "",
+    "all",
+    { ...nonNegative, max: MAX_FRICTION_COEFFICIENT },
+    "linear",
+    "Sliding (Coulomb) friction coefficient; 0 for frictionless, non-rotating discs. Needs contact.friction in the scenario.",
+  ),
+  numeric(
+    "contact.friction.staticCoefficient",
+    "static friction coefficient μ_s",
+    "",
+    "all",
+    { ...nonNegative, max: MAX_FRICTION_COEFFICIENT },
+    "linear",
+    "Coefficient a sticking contact must exceed to start sliding (at least μ). Needs contact.friction in the scenario.",
+  ),
+  numeric(
+    "contact.friction.stiffnessRatio",
+    "tangential stiffness ratio k_t/k",
+    "",
+    "all",
+    { ...positive, max: MAX_TANGENTIAL_STIFFNESS_RATIO },
+    "linear",
+    "Tangential spring as a multiple of the normal stiffness (common practice: 2/7 to 1). Needs contact.friction in the scenario.",
+  ),
+  numeric(
+    "contact.friction.stiffness",
+    "tangential stiffness k_t",
+    "N/m",
+    "all",
+    { ...positive, max: MAX_STIFFNESS },
+    "log",
+    "Tangential spring given directly (overrides the ratio). Needs contact.friction in the scenario.",
+  ),
+  numeric(
+    "contact.friction.dampingRatio",
+    "tangential damping ratio ζ_t",
+    "",
+    "all",
+    { ...nonNegative, max: MAX_TANGENTIAL_DAMPING_RATIO },
+    "linear",
+    "Tangential dashpot as a fraction of critical damping. Needs contact.friction in the scenario.",
+  ),
+  numeric(
+    "contact.rollingResistance",
+    "rolling resistance μ_r",
+    "",
+    "all",
+    { ...nonNegative, max: MAX_ROLLING_RESISTANCE },
+    "linear",
+    "Resisting torque μ_r·R·F_n against rolling (Ai, Chen, Rotter & Ooi 2011); 0 for none.",
+  ),
   // pair
   numeric("scene.massAKg", "mass of A", "kg", ["pair"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of the moving disc A."),
   numeric("scene.massBKg", "mass of B", "kg", ["pair"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of disc B."),
@@ -204,9 +274,48 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     "Multiplies both speeds of each cell (after scene.pair and the speed axes): 1 is the pair's closing speed.",
   ),
   numeric("scene.gapM", "initial gap", "m", ["pair", "wall", "row"], { ...nonNegative, max: MAX_LENGTH_M }, "linear", "Surface gap before the first contact."),
-  // wall, row, box
-  numeric("scene.massKg", "disc mass", "kg", ["wall", "row", "box"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of each disc."),
-  numeric("scene.radiusM", "disc radius", "m", ["wall", "row", "box"], { ...positive, max: MAX_LENGTH_M }, "log", "Radius of each disc."),
+  numeric("scene.spinARadPerS", "initial spin of A", "rad/s", ["pair"], { min: -MAX_SPIN_RAD_PER_S, minInclusive: true, max: MAX_SPIN_RAD_PER_S }, "linear", "Angular velocity of A, counter-clockwise positive (turns only with friction)."),
+  numeric("scene.spinBRadPerS", "initial spin of B", "rad/s", ["pair"], { min: -MAX_SPIN_RAD_PER_S, minInclusive: true, max: MAX_SPIN_RAD_PER_S }, "linear", "Angular velocity of B, counter-clockwise positive (turns only with friction)."),
+  numeric(
+    "scene.spinRadPerS",
+    "initial spin",
+    "rad/s",
+    ["wall", "slope"],
+    { min: -MAX_SPIN_RAD_PER_S, minInclusive: true, max: MAX_SPIN_RAD_PER_S },
+    "linear",
+    "Angular velocity of the disc, counter-clockwise positive (turns only with friction).",
+  ),
+  // wall, row, box, slope, stack
+  numeric("scene.massKg", "disc mass", "kg", ["wall", "row", "box", "slope", "stack"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of each disc."),
+  numeric("scene.radiusM", "disc radius", "m", ["wall", "row", "box", "slope", "stack"], { ...positive, max: MAX_LENGTH_M }, "log", "Radius of each disc."),
+  numeric("scene.speedMPerS", "speed down the slope", "m/s", ["slope"], { ...nonNegative, max: MAX_SPEED_M_PER_S }, "linear", "Initial speed of the body down the incline; 0 releases it at rest."),
+  numeric(
+    "scene.angleDeg",
+    "slope angle",
+    "°",
+    ["slope"],
+    { min: 0, minInclusive: true, max: 90, maxInclusive: false },
+    "linear",
+    "Angle of the incline from the horizontal.",
+  ),
+  numeric(
+    "scene.count",
+    "stacked discs N",
+    "",
+    ["stack"],
+    { min: 1, minInclusive: true, max: MAX_STACK_COUNT, integer: true },
+    "log",
+    "Discs in the tower.",
+  ),
+  numeric(
+    "scene.perturbationFraction",
+    "sideways perturbation",
+    "",
+    ["stack"],
+    { min: 0, minInclusive: true, max: 0.5, maxInclusive: true },
+    "linear",
+    "Largest seeded sideways shift of each disc, as a fraction of its radius.",
+  ),
   numeric("scene.speedMPerS", "disc speed", "m/s", ["wall"], { ...positive, max: MAX_SPEED_M_PER_S }, "log", "Speed of the disc towards the wall."),
   numeric(
     "scene.angleDeg",
@@ -261,7 +370,7 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
     "scene.gravityMPerS2",
     "gravity",
     "m/s²",
-    ["box", "snapshot"],
+    ["box", "snapshot", "slope", "stack"],
     { ...nonNegative, max: MAX_GRAVITY_M_PER_S2 },
     "linear",
     "Gravity along −y; 0 for none.",
@@ -282,13 +391,14 @@ export const NUMERIC_PARAMETERS: readonly NumericParameter[] = [
  * Per-body and per-wall fields of a snapshot scene: checked like the parameters above, but not
  * sweepable (an axis varies the whole scene through scene.speedScale and scene.gravityMPerS2).
  */
-export const SNAPSHOT_FIELD_RULES: Readonly<Record<"xM" | "yM" | "vxMPerS" | "vyMPerS" | "massKg" | "radiusM" | "normalX" | "normalY" | "offsetM", NumericParameter>> = {
+export const SNAPSHOT_FIELD_RULES: Readonly<Record<"xM" | "yM" | "vxMPerS" | "vyMPerS" | "massKg" | "radiusM" | "omegaRadPerS" | "normalX" | "normalY" | "offsetM", NumericParameter>> = {
   xM: numeric("xM", "x position", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "Centre of the disc."),
   yM: numeric("yM", "y position", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "Centre of the disc (y up)."),
   vxMPerS: numeric("vxMPerS", "x velocity", "m/s", ["snapshot"], { min: -MAX_SPEED_M_PER_S, minInclusive: true, max: MAX_SPEED_M_PER_S }, "linear", "Velocity of the disc."),
   vyMPerS: numeric("vyMPerS", "y velocity", "m/s", ["snapshot"], { min: -MAX_SPEED_M_PER_S, minInclusive: true, max: MAX_SPEED_M_PER_S }, "linear", "Velocity of the disc."),
   massKg: numeric("massKg", "mass", "kg", ["snapshot"], { ...positive, max: MAX_MASS_KG }, "log", "Mass of the disc."),
   radiusM: numeric("radiusM", "radius", "m", ["snapshot"], { ...positive, max: MAX_LENGTH_M }, "log", "Radius of the disc."),
+  omegaRadPerS: numeric("omegaRadPerS", "angular velocity", "rad/s", ["snapshot"], { min: -MAX_SPIN_RAD_PER_S, minInclusive: true, max: MAX_SPIN_RAD_PER_S }, "linear", "Spin of the disc, counter-clockwise positive (turns only with friction)."),
   normalX: numeric("normalX", "wall normal x", "", ["snapshot"], { min: -1, minInclusive: true, max: 1 }, "linear", "Points into the free side."),
   normalY: numeric("normalY", "wall normal y", "", ["snapshot"], { min: -1, minInclusive: true, max: 1 }, "linear", "Points into the free side."),
   offsetM: numeric("offsetM", "wall offset", "m", ["snapshot"], { min: -MAX_LENGTH_M, minInclusive: true, max: MAX_LENGTH_M }, "linear", "normal · p = offset on the wall."),

@@ -43,8 +43,29 @@ export const METRIC_KEYS = [
   "amplification",
 ] as const satisfies readonly (keyof Metrics)[];
 
+/**
+ * Metrics of runs with friction (lib/physics/spin-metrics.ts) and of the resting scenes
+ * (lib/physics/rest-metrics.ts). Not stored in packed results yet: a stored cell keeps its
+ * verdict and reason (which name the figure that decided it), and a cell's page re-runs the cell
+ * for its series. Storing them needs packed format version 3 (open work of issue #15).
+ */
+export const ROTATION_METRIC_KEYS = [
+  "angularMomentumDriftRel",
+  "maxTangentialOmegaH",
+  "slidingSteps",
+  "endSlipMPerS",
+  "reboundSpinRadPerS",
+  "reboundAngleDeg",
+  "settleTimeS",
+  "residualKineticJ",
+  "residualMaxSpeedMPerS",
+  "creepM",
+  "restingOverlapFraction",
+  "restingOverlapRatio",
+] as const satisfies readonly (keyof Metrics)[];
+
 // Every Metrics field must be listed (a new engine metric fails the type check here).
-type MissingMetric = Exclude<keyof Metrics, (typeof METRIC_KEYS)[number]>;
+type MissingMetric = Exclude<keyof Metrics, (typeof METRIC_KEYS)[number] | (typeof ROTATION_METRIC_KEYS)[number]>;
 const allMetricsListed: [MissingMetric] extends [never] ? true : false = true;
 void allMetricsListed;
 

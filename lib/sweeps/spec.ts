@@ -32,7 +32,21 @@ import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParame
 export { CLOSING_SPEED_FRACTION_PATH, PAIR_AXIS_PATH, axisSetter } from "./axes";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
-export const SPEC_DEFAULT_TOLERANCES: Readonly<Required<Tolerances>> = DEFAULT_TOLERANCES;
+export const SPEC_DEFAULT_TOLERANCES: Readonly<Required<Omit<Tolerances, RestingTolerance>>> = Object.freeze({
+  energyDriftRel: DEFAULT_TOLERANCES.energyDriftRel,
+  maxOverlapFraction: DEFAULT_TOLERANCES.maxOverlapFraction,
+  blowUpEnergyFactor: DEFAULT_TOLERANCES.blowUpEnergyFactor,
+  amplificationLimit: DEFAULT_TOLERANCES.amplificationLimit,
+  restitutionRel: DEFAULT_TOLERANCES.restitutionRel,
+  energyPeakRel: DEFAULT_TOLERANCES.energyPeakRel,
+  minStepsPerContact: DEFAULT_TOLERANCES.minStepsPerContact,
+});
+/**
+ * Tolerances of the resting-contact verdicts (slope and stack scenes). Left out of the defaults a
+ * spec is filled with, so specs without them keep the form (and hash) they always had; the engine
+ * falls back to DEFAULT_TOLERANCES.
+ */
+type RestingTolerance = "restSpeedMPerS" | "creepFraction" | "restingOverlapFraction";
 /** Seed used when a spec leaves it out. */
 export const SPEC_DEFAULT_SEED = 1;
 const MAX_SEED = 0xffff_ffff;
@@ -93,6 +107,8 @@ export const pairSceneSchema = z.strictObject({
   speedBMPerS: sceneNumber("pair", "speedBMPerS"),
   offsetFraction: sceneNumber("pair", "offsetFraction"),
   gapM: sceneNumber("pair", "gapM"),
+  spinARadPerS: sceneNumber("pair", "spinARadPerS").optional(),
+  spinBRadPerS: sceneNumber("pair", "spinBRadPerS").optional(),
 });
 
 export const wallSceneSchema = z.strictObject({
@@ -102,6 +118,7 @@ export const wallSceneSchema = z.strictObject({
   speedMPerS: sceneNumber("wall", "speedMPerS"),
   angleDeg: sceneNumber("wall", "angleDeg"),
   gapM: sceneNumber("wall", "gapM"),
+  spinRadPerS: sceneNumber("wall", "spinRadPerS").optional(),
 });
 
 export const rowSceneSchema = z.strictObject({
@@ -126,6 +143,26 @@ export const boxSceneSchema = z.strictObject({
   gravityMPerS2: sceneNumber("box", "gravityMPerS2"),
 });
 
+export const slopeSceneSchema = z.strictObject({
+  kind: z.literal("slope"),
+  massKg: sceneNumber("slope", "massKg"),
+  radiusM: sceneNumber("slope", "radiusM"),
+  angleDeg: sceneNumber("slope", "angleDeg"),
+  speedMPerS: sceneNumber("slope", "speedMPerS").default(0),
+  spinRadPerS: sceneNumber("slope", "spinRadPerS").default(0),
+  gravityMPerS2: sceneNumber("slope", "gravityMPerS2"),
+  body: z.enum(["disc", "crate"], { error: "scene.body must be disc or crate" }).default("disc"),
+});
+
+export const stackSceneSchema = z.strictObject({
+  kind: z.literal("stack"),
+  count: sceneNumber("stack", "count"),
+  massKg: sceneNumber("stack", "massKg"),
+  radiusM: sceneNumber("stack", "radiusM"),
+  gravityMPerS2: sceneNumber("stack", "gravityMPerS2"),
+  perturbationFraction: sceneNumber("stack", "perturbationFraction").default(0.01),
+});
+
 const snapshotBodySchema = z.strictObject(
   {
     xM: ruledNumber(SNAPSHOT_FIELD_RULES.xM),
@@ -134,6 +171,7 @@ const snapshotBodySchema = z.strictObject(
     vyMPerS: ruledNumber(SNAPSHOT_FIELD_RULES.vyMPerS),
     massKg: ruledNumber(SNAPSHOT_FIELD_RULES.massKg),
     radiusM: ruledNumber(SNAPSHOT_FIELD_RULES.radiusM),
+    omegaRadPerS: ruledNumber(SNAPSHOT_FIELD_RULES.omegaRadPerS).optional(),
   },
   { error: (issue) => (issue.code === "invalid_type" ? `each body must be an object with xM, yM, vxMPerS, vyMPerS, massKg, radiusM; got ${describeReceived(issue.input)}` : undefined) },
 );
@@ -183,9 +221,9 @@ export const snapshotSceneSchema = z
   })
   .superRefine((scene, ctx) => addSnapshotOverlapIssues(scene, ctx));
 
-export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema, snapshotSceneSchema], {
+export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSceneSchema, rowSceneSchema, boxSceneSchema, snapshotSceneSchema, slopeSceneSchema, stackSceneSchema], {
   error: (issue) =>
-    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box, snapshot; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
+    issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box, snapshot, slope, stack; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
 });
 
 const dampingSchema = z.discriminatedUnion(
@@ -208,6 +246,16 @@ export const contactSchema = z.strictObject({
     })
     .optional(),
   damping: dampingSchema.default(() => ({ kind: "none" as const })),
+  friction: z
+    .strictObject({
+      coefficient: ruledNumber(numericRule("contact.friction.coefficient", "pair")),
+      staticCoefficient: ruledNumber(numericRule("contact.friction.staticCoefficient", "pair")).optional(),
+      stiffnessRatio: ruledNumber(numericRule("contact.friction.stiffnessRatio", "pair")).optional(),
+      stiffness: ruledNumber(numericRule("contact.friction.stiffness", "pair")).optional(),
+      dampingRatio: ruledNumber(numericRule("contact.friction.dampingRatio", "pair")).optional(),
+    })
+    .optional(),
+  rollingResistance: ruledNumber(numericRule("contact.rollingResistance", "pair")).optional(),
 });
 
 export const tolerancesSchema = z.strictObject({
@@ -219,6 +267,10 @@ export const tolerancesSchema = z.strictObject({
   restitutionRel: boundedNumber("tolerances.restitutionRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.restitutionRel),
   energyPeakRel: boundedNumber("tolerances.energyPeakRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.energyPeakRel),
   minStepsPerContact: boundedNumber("tolerances.minStepsPerContact", 0, true, 1e6).default(SPEC_DEFAULT_TOLERANCES.minStepsPerContact),
+  // Resting-contact verdicts (slope and stack scenes); absent: DEFAULT_TOLERANCES.
+  restSpeedMPerS: boundedNumber("tolerances.restSpeedMPerS", 0, false, 1e6).optional(),
+  creepFraction: boundedNumber("tolerances.creepFraction", 0, false, 1e6).optional(),
+  restingOverlapFraction: boundedNumber("tolerances.restingOverlapFraction", 0, false, 100).optional(),
 });
 
 export const scenarioSchema = z.strictObject({

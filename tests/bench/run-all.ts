@@ -6,6 +6,7 @@
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { contactKernel } from "./contact-kernel";
+import { frictionBench } from "./friction";
 import { costCalibration } from "./cost-calibration";
 import { mapRender } from "./map-render";
 import { metering } from "./metering";
@@ -16,7 +17,7 @@ import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, contactKernel, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, queueBoxEndToEnd, scaleOut, webhookIsolation, requestHardening];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, contactKernel, boxScaling, frictionBench, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, queueBoxEndToEnd, scaleOut, webhookIsolation, requestHardening];
 
 async function main() {
   const wanted = process.argv.slice(2);

@@ -58,6 +58,21 @@ describe("bad input: 422 naming the spec path, nothing queued", () => {
       field: "spec.axes",
       mentions: new RegExp(`1,000,000 cells.*${SPEC_LIMITS.maxCellsPerSweep.toLocaleString("en-US")}`),
     },
+
+    // Friction (issue #15): limits from lib/sweeps/parameters.ts.
+    { what: "negative friction coefficient", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: -0.1 }), field: "spec.scenario.contact.friction.coefficient", mentions: /≥ 0/ },
+    { what: "friction coefficient over the limit", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: 11 }), field: "spec.scenario.contact.friction.coefficient", mentions: /10/ },
+    { what: "friction coefficient not a number", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: "NaN" }), field: "spec.scenario.contact.friction.coefficient" },
+    { what: "tangential stiffness ratio zero", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: 0.5, stiffnessRatio: 0 }), field: "spec.scenario.contact.friction.stiffnessRatio", mentions: /> 0/ },
+    {
+      what: "a stack over the body limit",
+      mutate: (s) => {
+        s.scenario.scene = { kind: "stack", count: 1001, massKg: 0.05, radiusM: 0.015, gravityMPerS2: 9.81 };
+        s.axes = [{ parameter: "contact.stiffness", spacing: "log", from: 1e4, to: 1e6, count: 3 }];
+      },
+      field: "spec.scenario.scene.count",
+      mentions: /1,?000/,
+    },
   ];
   it.each(cases)("$what → $field", async ({ mutate, field, mentions }) => {
     const spec = JSON.parse(JSON.stringify(puckSpec())) as Spec;

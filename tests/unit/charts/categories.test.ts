@@ -48,7 +48,8 @@ describe("metric difference map", () => {
 
 describe("verdict codes", () => {
   it("orders verdicts by severity and marks missing ones pending", () => {
-    expect(Array.from(verdictCodes(["stable", "exploded", null, "energy-drift", "step-unstable", "coarse-contact"]))).toEqual([0, 7, PENDING_CODE, 2, 6, 1]);
-    expect(countCodes(verdictCodes(["stable", "stable", "tunneled", undefined, "restitution-off"]), 8)).toEqual([2, 0, 0, 1, 0, 1, 0, 0]);
+    // stable, creep, coarse-contact, jitter, energy-drift, restitution-off, sinking, deep-overlap, tunneled, step-unstable, exploded.
+    expect(Array.from(verdictCodes(["stable", "exploded", null, "energy-drift", "step-unstable", "coarse-contact", "creep", "jitter", "sinking"]))).toEqual([0, 10, PENDING_CODE, 4, 9, 2, 1, 3, 6]);
+    expect(countCodes(verdictCodes(["stable", "stable", "tunneled", undefined, "restitution-off"]), 11)).toEqual([2, 0, 0, 0, 0, 1, 0, 0, 1, 0, 0]);
   });
 });

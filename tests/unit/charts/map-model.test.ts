@@ -20,7 +20,8 @@ describe("map model", () => {
     // Cell index 3 is row 1, column 0 (tunneled) → image position 0.
     const tunneled = hexToRgb(VERDICT_STYLES.tunneled.colour).map((c) => Math.round(c * 255));
     expect(bytesOf(model.pixels[0])).toEqual([...tunneled, 255]);
-    expect(model.counts).toEqual([4, 0, 0, 0, 0, 1, 0, 1]);
+    // Severity order (lib/charts/categories.ts): stable 0 … tunneled 8, step-unstable 9, exploded 10.
+    expect(model.counts).toEqual([4, 0, 0, 0, 0, 0, 0, 0, 1, 0, 1]);
   });
 
   it("leaves cells not computed yet transparent and counts them", () => {

@@ -180,6 +180,20 @@ describe("scenario keys", () => {
     expect(keyOf(firstCell(box))).toEqual([0x738b20bd, 0x4ca20e06, 0x4ad9bc62, 0x8299ded2]);
     const stricter = firstCell({ ...box, scenario: { ...box.scenario, tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1000, restitutionRel: 0.02 } } });
     expect(keyOf(stricter)).not.toEqual(keyOf(firstCell(box)));
+    // Friction (issue #15): a scenario without friction, rolling resistance or spins keeps the key
+    // pinned above; each friction setting gives a key of its own.
+    const puck = firstCell(puckPairSpec());
+    expect(keyOf(puck)).toEqual([0xc892b111, 0x74ec2c13, 0x8fb65498, 0xdfe1b824]);
+    const withFriction = (friction: Record<string, number>, extra: Record<string, unknown> = {}) => keyOf({ ...puck, contact: { ...puck.contact, friction, ...extra } } as unknown as Scenario);
+    const frictionKeys = [
+      withFriction({ coefficient: 0.4 }),
+      withFriction({ coefficient: 0.5 }),
+      withFriction({ coefficient: 0.4, stiffnessRatio: 1 }),
+      withFriction({ coefficient: 0.4, dampingRatio: 0.2 }),
+      withFriction({ coefficient: 0.4 }, { rollingResistance: 0.01 }),
+      keyOf({ ...puck, scene: { ...puck.scene, spinARadPerS: 3 } } as Scenario),
+    ].map((key) => key.join(","));
+    expect(new Set([...frictionKeys, keyOf(puck).join(",")]).size).toBe(frictionKeys.length + 1);
   });
 
   it("are equal for equal scenarios in any key order, and for −0 and 0", () => {

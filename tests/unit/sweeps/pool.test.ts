@@ -35,6 +35,12 @@ const pairSpec = (() => {
 })();
 const boxSpec = parsed(ballPitBoxSpec());
 const wallSpec = parsed(bumperWallSpec());
+/** The ball pit with friction (issue #15): per-contact tangential history across threads and chunkings. */
+const frictionBoxSpec = (() => {
+  const input = clone(ballPitBoxSpec()) as Draft;
+  (input.scenario.contact as Record<string, unknown>).friction = { coefficient: 0.5, stiffnessRatio: 2 / 7, dampingRatio: 0.2 };
+  return parsed(input);
+})();
 
 describe("chunk pool (piscina, TypeScript entry under tsx)", { timeout: 120_000 }, () => {
   let onePool: ChunkPool;
@@ -48,7 +54,7 @@ describe("chunk pool (piscina, TypeScript entry under tsx)", { timeout: 120_000 
   });
 
   it("gives byte-identical JSON for 1 and 2 threads and two chunk sizes", async () => {
-    for (const spec of [pairSpec, boxSpec, wallSpec]) {
+    for (const spec of [pairSpec, boxSpec, wallSpec, frictionBoxSpec]) {
       const runs = [
         await sweepJson(spec, onePool, 1_000),
         await sweepJson(spec, onePool, 2),

@@ -66,7 +66,7 @@ describe("JSON results", () => {
     expect(document.cells[1].metrics.energyErrorRel).toBeNull();
     expect(document.cells[1].metrics.maxEnergyErrorRel).toBeNull();
     expect(document.cells[1].reason).toBe(cells[1].reason);
-    expect(document.verdictCounts).toEqual({ exploded: 1, tunneled: 0, "deep-overlap": 0, "energy-drift": 0, stable: 1, "step-unstable": 0, "restitution-off": 0, "coarse-contact": 0 });
+    expect(document.verdictCounts).toEqual({ exploded: 1, tunneled: 0, "deep-overlap": 0, "energy-drift": 0, stable: 1, "step-unstable": 0, "restitution-off": 0, "coarse-contact": 0, jitter: 0, creep: 0, sinking: 0 });
     expect(document.name).toBe(header.name);
   });
 

@@ -19,7 +19,10 @@ describe("sweep spec: valid input", () => {
     const result = parseSweepSpec(bumperWallSpec());
     expect(result.ok).toBe(true);
     if (!result.ok) return;
-    expect(result.spec.scenario.tolerances).toEqual(DEFAULT_TOLERANCES);
+    // The engine's defaults, without the resting-contact tolerances (left out so specs without them keep their form).
+    const { restSpeedMPerS, creepFraction, restingOverlapFraction, ...impactDefaults } = DEFAULT_TOLERANCES;
+    void [restSpeedMPerS, creepFraction, restingOverlapFraction];
+    expect(result.spec.scenario.tolerances).toEqual(impactDefaults);
     expect(result.spec.scenario.substeps).toBe(1);
     expect(result.spec.scenario.seed).toBe(1);
     expect(result.spec.scenario.contact.damping).toEqual({ kind: "none" });
@@ -288,5 +291,74 @@ describe("sweep spec: generated mutations (fast-check)", () => {
       }),
       { seed: 20261201, numRuns: 150 },
     );
+  });
+});
+
+describe("sweep spec: friction, spin and the resting scenes (issue #15)", () => {
+  const withFriction = (friction: unknown): Draft => {
+    const spec = clone(puckPairSpec()) as Draft;
+    (spec.scenario.contact as Record<string, unknown>).friction = friction;
+    return spec;
+  };
+
+  it("accepts friction, rolling resistance and the slope and stack scenes, with their axes", () => {
+    const spec = withFriction({ coefficient: 0.4, stiffnessRatio: 2 / 7, dampingRatio: 0.2 });
+    (spec.scenario.contact as Record<string, unknown>).rollingResistance = 0.02;
+    spec.axes = [{ parameter: "contact.friction.coefficient", spacing: "linear", from: 0.1, to: 0.9, count: 5 }, { parameter: "contact.friction.stiffnessRatio", values: [2 / 7, 0.5, 1] }];
+    expect(parseSweepSpec(spec).ok).toBe(true);
+    const ramp = {
+      scenario: {
+        scene: { kind: "slope", massKg: 4, radiusM: 0.2, angleDeg: 15, gravityMPerS2: 9.81, body: "crate" },
+        contact: { model: "linear", stiffness: 1e6, damping: { kind: "restitution", value: 0.3 }, friction: { coefficient: 0.5 } },
+        integrator: "symplectic-euler",
+        dtS: 1 / 60,
+        substeps: 8,
+        durationS: 2,
+      },
+      axes: [
+        { parameter: "scene.angleDeg", spacing: "linear", from: 5, to: 40, count: 8 },
+        { parameter: "contact.friction.coefficient", spacing: "linear", from: 0.1, to: 0.8, count: 8 },
+      ],
+    };
+    expect(parseSweepSpec(ramp).ok).toBe(true);
+    const tower = {
+      scenario: {
+        scene: { kind: "stack", count: 10, massKg: 0.05, radiusM: 0.015, gravityMPerS2: 9.81 },
+        contact: { model: "linear", stiffness: 1e5, damping: { kind: "restitution", value: 0.3 }, friction: { coefficient: 0.5 } },
+        integrator: "velocity-verlet",
+        dtS: 1 / 240,
+        substeps: 8,
+        durationS: 1,
+      },
+      axes: [{ parameter: "scene.count", values: [5, 10, 20, 40] }],
+    };
+    expect(parseSweepSpec(tower).ok).toBe(true);
+  });
+
+  it.each([
+    ["a negative μ", { coefficient: -0.1 }, "scenario.contact.friction.coefficient", /≥ 0/],
+    ["μ = NaN", { coefficient: Number.NaN }, "scenario.contact.friction.coefficient", /finite number.*NaN/],
+    ["μ over the limit of 10", { coefficient: 11 }, "scenario.contact.friction.coefficient", /≤ 10/],
+    ["k_t ratio 0", { coefficient: 0.5, stiffnessRatio: 0 }, "scenario.contact.friction.stiffnessRatio", /> 0/],
+  ])("refuses %s, naming the field and the limit", (_what, friction, field, message) => {
+    const issues = issuesOf(withFriction(friction));
+    expect(issues.map((issue) => issue.field)).toEqual([field]);
+    expect(issues[0].message).toMatch(message);
+  });
+
+  it("refuses a stack of more discs than the limit, and an axis that reaches past it", () => {
+    const tower = (count: number, axis?: unknown) => ({
+      scenario: {
+        scene: { kind: "stack", count, massKg: 0.05, radiusM: 0.015, gravityMPerS2: 9.81 },
+        contact: { model: "linear", stiffness: 1e5, damping: { kind: "none" } },
+        integrator: "velocity-verlet",
+        dtS: 1e-3,
+        durationS: 0.01,
+      },
+      axes: axis ? [axis] : [{ parameter: "contact.stiffness", values: [1e5, 1e6] }],
+    });
+    expect(fieldsOf(tower(1001))).toEqual(["scenario.scene.count"]);
+    expect(issuesOf(tower(1001))[0].message).toMatch(/1,?000/);
+    expect(fieldsOf(tower(10, { parameter: "scene.count", values: [10, 2000] }))).toContain("axes.0.values.1");
   });
 });
