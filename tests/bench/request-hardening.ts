@@ -224,8 +224,8 @@ async function timeRequests(url: string, n: number, init: RequestInit = {}, budg
       // a reset connection still cost the caller this long
     }
     out.push(performance.now() - t);
-    // A stalled server (the former scan) gets a time budget per round; at least 5 samples are kept.
-    if (i >= 4 && performance.now() - started > budgetMs) break;
+    // A stalled server (the former scan) gets a time budget per round; at least 3 samples are kept.
+    if (i >= 2 && performance.now() - started > budgetMs) break;
   }
   return out;
 }
@@ -375,7 +375,7 @@ export const requestHardening: BenchModule = {
       answered.set(variant, seen);
     };
     const HEALTH_ROUNDS = 3;
-    // Each loaded round is bounded in time (at least 5 samples): the former scan stalls the server for seconds.
+    // Each loaded round is bounded in time (at least 3 samples): the former scan stalls the server for seconds.
     const LOADED_BUDGET_MS = 4000;
     const health = `${app.url}/api/health`;
     for (let r = 0; r < HEALTH_ROUNDS; r++) {
