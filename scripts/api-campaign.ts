@@ -7,18 +7,20 @@
  * Requests are generated from the document (openapi-sampler for bodies, the schemas' limits for
  * boundaries) and mutated with a seeded generator.
  *
- *   npx tsx scripts/api-campaign.ts [--requests 5200] [--seed 17]
+ *   npx tsx scripts/api-campaign.ts [--requests 5200] [--seed 17] [--concurrency 4] [--timeout-ms 30000]
  *
  * Needs `npm run build` first (uses the build in NEXT_DIST_DIR, default .next). Prints one summary
- * line and exits non-zero when any answer is a 5xx, any response violates the document, any
- * operation was not exercised, or fewer requests than asked were sent.
+ * line and exits non-zero when any answer is a 5xx, any request gets no answer, any response violates
+ * the document (Prism's log, which has every violation whole, is the count), a truncated violation
+ * report shows a response violation, any operation was not exercised, or fewer requests than asked
+ * were sent.
  */
 import { spawn, type ChildProcess } from "node:child_process";
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import OpenAPISampler from "openapi-sampler";
-import { buildOpenApiDocument } from "@/lib/api/openapi/document";
+import { buildOpenApiDocument, errorBodySchema } from "@/lib/api/openapi/document";
 import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_SETTINGS } from "@/lib/catalogues/demo";
 import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
 import { DEMO_ACCOUNTS } from "@/db/seed";
@@ -32,6 +34,22 @@ const APP_PORT = Number(process.env.KD_CAMPAIGN_PORT ?? 3290);
 const PROXY_PORT = APP_PORT + 1;
 const MAIL_PORT = Number(process.env.KD_CAMPAIGN_MAIL_PORT ?? 2790);
 const STRIPE_PORT = Number(process.env.KD_CAMPAIGN_STRIPE_PORT ?? 12790);
+/** Requests in flight at once: the app and Prism each wait on I/O, so a few overlap well on two cores. */
+const CONCURRENCY = Number(args.get("concurrency") ?? 4);
+/** An answer slower than this counts as none (a hang guard, not a speed check). */
+const REQUEST_TIMEOUT_MS = Number(args.get("timeout-ms") ?? 30_000);
+
+/** Prism logs every violation on a line of its own ("Violation: response.body …"), never truncated. */
+const prismLog = { responseViolations: 0, samples: [] as string[], partial: "" };
+function watchPrismLog(chunk: Buffer): void {
+  const lines = (prismLog.partial + chunk.toString()).split("\n");
+  prismLog.partial = lines.pop() ?? "";
+  for (const line of lines) {
+    if (!/Violation: response\b/.test(line)) continue;
+    prismLog.responseViolations += 1;
+    if (prismLog.samples.length < 10) prismLog.samples.push(line.replace(/\x1b\[[0-9;]*m/g, "").trim().slice(0, 300));
+  }
+}
 
 type Json = Record<string, unknown>;
 interface Op {
@@ -216,7 +234,9 @@ async function main(): Promise<void> {
     STRIPE_FAKE_PORT: String(STRIPE_PORT),
   } as unknown as NodeJS.ProcessEnv);
   await waitFor(`${base}/api/health`, 180_000);
-  start(path.join(process.cwd(), "node_modules", ".bin", "prism"), ["proxy", docFile, base, "-p", String(PROXY_PORT), "-h", "127.0.0.1"], process.env);
+  const prism = start(path.join(process.cwd(), "node_modules", ".bin", "prism"), ["proxy", docFile, base, "-p", String(PROXY_PORT), "-h", "127.0.0.1"], process.env);
+  prism.stdout?.on("data", watchPrismLog);
+  prism.stderr?.on("data", watchPrismLog);
   const proxy = `http://127.0.0.1:${PROXY_PORT}`;
   await waitFor(`${proxy}/api/health`, 120_000).catch(async () => waitFor(`${proxy}/api/v1/openapi.json`, 60_000));
 
@@ -228,7 +248,14 @@ async function main(): Promise<void> {
   const me = (await api(base, "GET", "/api/v1/me", { cookie: ownerCookie })).body as { studios: { id: string }[]; user: { id: string } };
   const studioId = me.studios[0].id;
   const S = `/api/v1/studios/${studioId}`;
-  const token = async (scopes: string[]) => ((await api(base, "POST", `${S}/tokens`, { cookie: ownerCookie }, { name: `campaign ${scopes.join("+")}`, scopes })).body as { token: { secret: string; id: string } }).token;
+  const token = async (scopes: string[]) => {
+    const created = (await api(base, "POST", `${S}/tokens`, { cookie: ownerCookie }, { name: `campaign ${scopes.join("+")}`, scopes })).body as { token?: { id: string }; secret?: string };
+    if (!created.token || !created.secret) throw new Error(`could not create a campaign token of scope ${scopes.join("+")}: ${JSON.stringify(created).slice(0, 200)}`);
+    // The token must work, or every "token" request would only exercise the 401 path.
+    const check = await api(base, "GET", "/api/v1/token", { authorization: `Bearer ${created.secret}` });
+    if (check.status !== 200) throw new Error(`the campaign token of scope ${scopes.join("+")} is refused (${check.status})`);
+    return { id: created.token.id, secret: created.secret };
+  };
   const readToken = await token(["read"]);
   const writeToken = await token(["write"]);
   const spareToken = await token(["read"]);
@@ -286,17 +313,24 @@ async function main(): Promise<void> {
     "POST /api/v1/studios/{studioId}/invites": { email: "campaign.more@driftwood-pucks.test", role: "finance" },
   };
 
-  // --- The campaign.
+  // --- The campaign: every request is generated first (seeded, so a run is repeatable), then sent.
   const rng = seededRandom(SEED);
-  const stats = { sent: 0, fiveXX: 0, responseViolations: 0, truncatedReports: 0, requestViolationsOnValid: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
-  const covered = new Set<string>();
-  const samples: string[] = [];
+  interface Planned {
+    key: string;
+    method: string;
+    url: string;
+    kind: "valid" | "boundary" | "mutated";
+    auth: Auth;
+    body: unknown;
+    upload: "catalogue" | "snapshot" | null;
+  }
+  const planned: Planned[] = [];
   const perOp = Math.ceil(TARGET_REQUESTS / ops.length);
   for (const op of ops) {
     const key = `${op.method} ${op.path}`;
     const content = (op.op.requestBody as { content?: Record<string, { schema?: Json }> } | undefined)?.content ?? {};
     const jsonSchema = content["application/json"]?.schema;
-    const upload = Boolean(content["multipart/form-data"]);
+    const upload = content["multipart/form-data"] ? (op.path.endsWith("/snapshots") ? "snapshot" : "catalogue") : null;
     let validBody: unknown = curated[key];
     if (validBody === undefined && jsonSchema) validBody = OpenAPISampler.sample(jsonSchema as never, { skipReadOnly: true, quiet: true }, document as never);
     const queryParams = ((op.op.parameters as Json[] | undefined) ?? []).filter((p) => p.in === "query");
@@ -313,61 +347,115 @@ async function main(): Promise<void> {
         url += `?${encodeURIComponent(String(param.name))}=${encodeURIComponent(String(HOSTILE[rng.nextInt(0, HOSTILE.length - 1)]).slice(0, 500))}`;
       }
       let body: unknown;
-      if (upload) body = op.path.endsWith("/snapshots") ? snapshotForm() : catalogueForm();
-      else if (jsonSchema) body = kind === "mutated" ? mutate(validBody, rng) : kind === "boundary" ? mutate(validBody, rng) : validBody;
-      const headers: Record<string, string> = { ...auth.headers, origin: base };
-      const init: RequestInit = { method: op.method, headers };
-      if (body instanceof FormData) init.body = body;
-      else if (body !== undefined) {
-        init.body = JSON.stringify(body);
-        headers["content-type"] = "application/json";
-      }
-      let res: Response;
-      try {
-        res = await fetch(`${proxy}${url}`, { ...init, signal: AbortSignal.timeout(60_000) });
-        await res.arrayBuffer();
-      } catch (error) {
-        // No answer at all counts like a 5xx: the client got nothing it could act on.
-        stats.sent += 1;
-        stats.fiveXX += 1;
-        if (samples.length < 20) samples.push(`no answer ${op.method} ${url} as ${auth.name}: ${(error as Error).message}`);
-        continue;
-      }
-      stats.sent += 1;
-      stats.byKind[kind] += 1;
-      if (stats.sent % 500 === 0) console.log(`[campaign] ${stats.sent} requests sent (${covered.size + 1}/${ops.length} operations)`);
-      covered.add(key);
-      // Prism replaces the list with a plain sentence when it is very long ("Too many violations…"): that
-      // happens for heavily mutated requests; it is counted apart and printed in the summary line.
-      let violations: { location: string[]; message: string }[] = [];
-      const reported = res.headers.get("sl-violations");
-      if (reported) {
-        try {
-          violations = JSON.parse(reported) as typeof violations;
-        } catch {
-          stats.truncatedReports += 1;
-          if (samples.length < 20) samples.push(`truncated violation report ${res.status} ${op.method} ${url}: ${reported.slice(0, 120)}`);
-        }
-      }
-      const responseViolations = violations.filter((v) => v.location[0] === "response");
-      if (res.status >= 500) {
-        stats.fiveXX += 1;
-        if (samples.length < 20) samples.push(`5xx ${res.status} ${op.method} ${url} as ${auth.name} body=${JSON.stringify(body)?.slice(0, 200)}`);
-      }
-      if (responseViolations.length > 0) {
-        stats.responseViolations += 1;
-        if (samples.length < 20) samples.push(`contract ${res.status} ${op.method} ${url} as ${auth.name}: ${responseViolations.map((v) => v.message).join("; ")}`);
-      }
-      if (kind === "valid" && violations.some((v) => v.location[0] === "request" && v.location[1] !== "query" && !/security|authoriz/i.test(v.message))) stats.requestViolationsOnValid += 1;
+      if (jsonSchema) body = kind === "valid" ? validBody : mutate(validBody, rng);
+      planned.push({ key, method: op.method, url, kind, auth, body, upload });
     }
   }
+
+  const stats = { sent: 0, unanswered: 0, fiveXX: 0, headerViolations: 0, truncatedReports: 0, truncatedWithResponse: 0, direct: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
+  const covered = new Set<string>();
+  const samples: string[] = [];
+  const note = (line: string) => {
+    if (samples.length < 25) samples.push(line);
+  };
+  /**
+   * Prism's forwarder drops a JSON body that parses to a falsy value (0, null, false, "") but forwards the
+   * request's Content-Length, so the app waits for a body that never comes and neither answers
+   * (@stoplight/prism-http 5.x, forwarder serializeBody's `if (body)`). The app itself answers such bodies
+   * at once (400 naming "body"; tests/integration/hostile-paths.test.ts). These requests go straight to the
+   * app, and their answers are checked here against the document's own error schema.
+   */
+  const prismDropsBody = (p: Planned) => p.body !== undefined && !p.body;
+  const send = async (p: Planned): Promise<void> => {
+    const headers: Record<string, string> = { ...p.auth.headers, origin: base };
+    const init: RequestInit = { method: p.method, headers };
+    if (p.upload) init.body = p.upload === "snapshot" ? snapshotForm() : catalogueForm();
+    else if (p.body !== undefined) {
+      init.body = JSON.stringify(p.body);
+      headers["content-type"] = "application/json";
+    }
+    const direct = prismDropsBody(p);
+    let res: Response;
+    let text: string;
+    try {
+      res = await fetch(`${direct ? base : proxy}${p.url}`, { ...init, signal: AbortSignal.timeout(REQUEST_TIMEOUT_MS) });
+      text = await res.text();
+    } catch (error) {
+      // No answer at all counts like a 5xx: the client got nothing it could act on.
+      stats.sent += 1;
+      stats.unanswered += 1;
+      note(`no answer within ${REQUEST_TIMEOUT_MS} ms: ${p.method} ${p.url} as ${p.auth.name} body=${JSON.stringify(p.body)?.slice(0, 120)}: ${(error as Error).message}`);
+      return;
+    }
+    stats.sent += 1;
+    stats.byKind[p.kind] += 1;
+    covered.add(p.key);
+    if (stats.sent % 500 === 0) console.log(`[campaign] ${stats.sent}/${planned.length} requests sent`);
+    if (res.status >= 500) {
+      stats.fiveXX += 1;
+      note(`5xx ${res.status} ${p.method} ${p.url} as ${p.auth.name} body=${JSON.stringify(p.body)?.slice(0, 200)}`);
+    }
+    if (direct) {
+      stats.direct += 1;
+      let parsed: unknown;
+      try {
+        parsed = JSON.parse(text);
+      } catch {
+        parsed = undefined;
+      }
+      if (res.status < 400 || !errorBodySchema.safeParse(parsed).success) {
+        stats.headerViolations += 1;
+        note(`contract ${res.status} ${p.method} ${p.url} (body ${JSON.stringify(p.body)}, sent directly): not the document's error shape: ${text.slice(0, 120)}`);
+      }
+      return;
+    }
+    // The header lists the request's and the response's violations; Prism replaces a list longer than
+    // 8 KiB with "Too many violations! <its first 8 KiB>". Prism's log has every violation whole, and the
+    // count below comes from there; the header gives the samples.
+    const reported = res.headers.get("sl-violations");
+    if (!reported) return;
+    let violations: { location: string[]; message: string }[] = [];
+    try {
+      violations = JSON.parse(reported) as typeof violations;
+    } catch {
+      stats.truncatedReports += 1;
+      if (reported.includes('"location":["response"')) stats.truncatedWithResponse += 1;
+      note(`truncated violation report ${res.status} ${p.method} ${p.url}: ${reported.slice(0, 120)}`);
+      return;
+    }
+    const responseViolations = violations.filter((v) => v.location[0] === "response");
+    if (responseViolations.length > 0) {
+      stats.headerViolations += 1;
+      note(`contract ${res.status} ${p.method} ${p.url} as ${p.auth.name}: ${responseViolations.map((v) => `${v.location.join(".")} ${v.message}`).join("; ").slice(0, 400)}`);
+    }
+  };
+
+  const started = performance.now();
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: CONCURRENCY }, async () => {
+      while (next < planned.length) await send(planned[next++]);
+    }),
+  );
+  const seconds = (performance.now() - started) / 1000;
+  // Give Prism a moment to flush its last log lines, then count the response violations it logged.
+  await new Promise((resolve) => setTimeout(resolve, 500));
+  const loggedResponseViolations = prismLog.responseViolations;
   stopAll();
   rmSync(work, { recursive: true, force: true });
   for (const line of samples) console.log(`[campaign] ${line}`);
+  for (const line of prismLog.samples) console.log(`[campaign] prism: ${line}`);
+  const contractViolations = Math.max(loggedResponseViolations, stats.headerViolations);
   console.log(
-    `[campaign] operations covered ${covered.size}/${ops.length}; requests sent ${stats.sent} (valid ${stats.byKind.valid}, boundary ${stats.byKind.boundary}, mutated ${stats.byKind.mutated}); authenticated as ${auths.map((a) => a.name).join(", ")}; 5xx answers ${stats.fiveXX}; contract violations ${stats.responseViolations}; truncated violation reports ${stats.truncatedReports}`,
+    `[campaign] operations covered ${covered.size}/${ops.length}; requests sent ${stats.sent} (valid ${stats.byKind.valid}, boundary ${stats.byKind.boundary}, mutated ${stats.byKind.mutated}; ${stats.direct} with a falsy JSON body sent straight to the app) in ${seconds.toFixed(0)} s, ${CONCURRENCY} at a time, seed ${SEED}; authenticated as ${auths.map((a) => a.name).join(", ")}; 5xx answers ${stats.fiveXX}; unanswered ${stats.unanswered}; contract violations ${contractViolations}; truncated violation reports ${stats.truncatedReports} (with a response violation ${stats.truncatedWithResponse})`,
   );
-  const ok = covered.size === ops.length && stats.sent >= TARGET_REQUESTS && stats.fiveXX === 0 && stats.responseViolations === 0;
+  const ok =
+    covered.size === ops.length &&
+    stats.sent >= TARGET_REQUESTS &&
+    stats.fiveXX === 0 &&
+    stats.unanswered === 0 &&
+    contractViolations === 0 &&
+    stats.truncatedWithResponse === 0;
   process.exit(ok ? 0 : 1);
 }
 

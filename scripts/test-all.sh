@@ -54,6 +54,11 @@ npx vitest run --reporter=default --reporter=json --outputFile.json=.build/vites
 step "production build"
 npm run build
 
+# The build above, started as a demo instance, behind Stoplight Prism's validating proxy: every operation
+# of the OpenAPI document driven with seeded valid, boundary and mutated requests by each kind of caller.
+# Fails on any 5xx, any request left unanswered, any response that differs from the document.
+step "API campaign through a validating proxy (Prism)"
+npx tsx scripts/api-campaign.ts --requests "${KD_CAMPAIGN_REQUESTS:-5200}" --seed "${KD_CAMPAIGN_SEED:-17}"
 
 step "browser tests"
 PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json

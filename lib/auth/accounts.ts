@@ -19,12 +19,9 @@ export const LOGIN_ERROR_MESSAGE = "Invalid e-mail or password";
 
 export const PASSWORD_RESET_TTL_MS = 60 * 60_000;
 
-export interface PublicUser {
-  id: string;
-  email: string;
-  name: string;
-  isAdmin: boolean;
-}
+/** A user as the API shows them; the OpenAPI document describes answers with it. */
+export const publicUserSchema = z.strictObject({ id: z.string(), email: z.string(), name: z.string(), isAdmin: z.boolean() }).meta({ id: "User" });
+export type PublicUser = z.infer<typeof publicUserSchema>;
 
 export function publicUser(user: User): PublicUser {
   return { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin };

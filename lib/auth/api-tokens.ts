@@ -23,15 +23,19 @@ export const createTokenSchema = z.strictObject({
     .refine((scopes) => new Set(scopes).size === scopes.length, { error: "Scopes must not repeat." }),
 });
 
-export interface ApiTokenView {
-  id: string;
-  name: string;
-  scopes: ApiTokenScope[];
-  prefix: string;
-  createdAt: string;
-  lastUsedAt: string | null;
-  revokedAt: string | null;
-}
+/** An API token as the API shows it (never its secret); the OpenAPI document describes answers with it. */
+export const apiTokenViewSchema = z
+  .strictObject({
+    id: z.string(),
+    name: z.string(),
+    scopes: z.array(z.enum(API_TOKEN_SCOPES)),
+    prefix: z.string().describe("The secret's first characters, to tell tokens apart."),
+    createdAt: z.iso.datetime(),
+    lastUsedAt: z.iso.datetime().nullable(),
+    revokedAt: z.iso.datetime().nullable(),
+  })
+  .meta({ id: "ApiToken" });
+export type ApiTokenView = z.infer<typeof apiTokenViewSchema>;
 
 export function tokenView(token: ApiToken): ApiTokenView {
   return {

@@ -9,13 +9,9 @@ import { endUserSessions } from "@/lib/auth/user-sessions";
 export const roleSchema = z.enum(STUDIO_ROLES, { error: `Role must be one of ${STUDIO_ROLES.join(", ")}.` });
 export const changeRoleSchema = z.strictObject({ role: roleSchema });
 
-export interface MemberView {
-  userId: string;
-  email: string;
-  name: string;
-  role: StudioRole;
-  joinedAt: string;
-}
+/** A member as the API shows them; the OpenAPI document describes answers with it. */
+export const memberViewSchema = z.strictObject({ userId: z.string(), email: z.string(), name: z.string(), role: roleSchema, joinedAt: z.iso.datetime() }).meta({ id: "Member" });
+export type MemberView = z.infer<typeof memberViewSchema>;
 
 export async function listMembers(studioId: string): Promise<MemberView[]> {
   const db = await getDb();

@@ -2,7 +2,7 @@ import { asc, count, eq } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import { getDb } from "@/db/client";
 import { newId } from "@/db/ids";
-import { memberships, studios, users, type Studio, type StudioRole } from "@/db/schema";
+import { memberships, STUDIO_ROLES, STUDIO_STATUSES, studios, users, type Studio } from "@/db/schema";
 import { appendLedgerEntry, welcomeGrant } from "@/lib/ledger/ledger";
 import { displayNameSchema } from "@/lib/api/text";
 
@@ -10,12 +10,11 @@ export const createStudioSchema = z.strictObject({
   name: displayNameSchema("Name", 80),
 });
 
-export interface StudioView {
-  id: string;
-  name: string;
-  status: Studio["status"];
-  createdAt: string;
-}
+/** A studio as the API shows it; the OpenAPI document describes answers with it. */
+export const studioViewSchema = z.strictObject({ id: z.string(), name: z.string(), status: z.enum(STUDIO_STATUSES), createdAt: z.iso.datetime() }).meta({ id: "Studio" });
+export type StudioView = z.infer<typeof studioViewSchema>;
+/** One of the caller's studios, with the caller's role in it. */
+export const studioOfUserSchema = z.strictObject({ id: z.string(), name: z.string(), role: z.enum(STUDIO_ROLES) }).meta({ id: "StudioMembership" });
 
 export function studioView(studio: Studio): StudioView {
   return { id: studio.id, name: studio.name, status: studio.status, createdAt: studio.createdAt.toISOString() };
@@ -32,7 +31,7 @@ export async function createStudio(ownerUserId: string, input: z.infer<typeof cr
   });
 }
 
-export async function studiosOfUser(userId: string): Promise<{ id: string; name: string; role: StudioRole }[]> {
+export async function studiosOfUser(userId: string): Promise<z.infer<typeof studioOfUserSchema>[]> {
   const db = await getDb();
   return db
     .select({ id: studios.id, name: studios.name, role: memberships.role })

@@ -52,3 +52,50 @@ describe("the OpenAPI document", () => {
     expect(text).toMatch(/"count":\{[^}]*"minimum":1/);
   });
 });
+
+describe("success bodies described field by field", () => {
+  it("match what the routes answer (and refuse a field the document does not list)", async () => {
+    const { closeTestDb, useFreshDb } = await import("../helpers/db");
+    const { makeStudio, makeToken, makeUser } = await import("../helpers/factories");
+    const { sessionCookie } = await import("../helpers/http");
+    const { loadRoute } = await import("../helpers/routes");
+    await useFreshDb();
+    try {
+      const owner = await makeUser();
+      const engineer = await makeUser();
+      const studioId = await makeStudio("Tidewater Kites", [
+        { user: owner, role: "owner" },
+        { user: engineer, role: "engineer" },
+      ]);
+      const cookie = await sessionCookie(owner);
+      await makeToken(studioId, ["read"]);
+      const S = "/api/v1/studios/{studioId}";
+      const cases: { method: string; path: string; route: string; body?: unknown; bearer?: boolean }[] = [
+        { method: "GET", path: "/api/v1/me", route: "v1/me" },
+        { method: "GET", path: "/api/v1/studios", route: "v1/studios" },
+        { method: "POST", path: "/api/v1/studios", route: "v1/studios", body: { name: "Second Kites" } },
+        { method: "GET", path: S, route: "v1/studios/[studioId]" },
+        { method: "GET", path: `${S}/members`, route: "v1/studios/[studioId]/members" },
+        { method: "GET", path: `${S}/tokens`, route: "v1/studios/[studioId]/tokens" },
+        { method: "POST", path: `${S}/tokens`, route: "v1/studios/[studioId]/tokens", body: { name: "nightly import", scopes: ["read"] } },
+      ];
+      for (const c of cases) {
+        const op = OPERATIONS.find((o) => o.path === c.path && o.method === c.method.toLowerCase());
+        expect(op?.response, `${c.method} ${c.path} has a success schema`).toBeDefined();
+        const handler = (await loadRoute(c.route))[c.method];
+        const res = await call(handler, { method: c.method, path: c.path.replace("{studioId}", studioId), params: { studioId }, cookie, body: c.body });
+        expect(res.status, `${c.method} ${c.path}`).toBe(op!.ok);
+        const parsed = op!.response!.safeParse(res.body);
+        expect(parsed.success, `${c.method} ${c.path}: ${parsed.error?.message}`).toBe(true);
+        // Strict: an answer carrying a field the document does not describe is a contract violation.
+        expect(op!.response!.safeParse({ ...(res.body as object), undocumented: 1 }).success).toBe(false);
+      }
+      const doc = buildOpenApiDocument() as unknown as { paths: Record<string, Record<string, { responses: Record<string, { content: Record<string, { schema: unknown }> }> }>> };
+      const me = JSON.stringify(doc.paths["/api/v1/me"].get.responses["200"].content["application/json"].schema);
+      expect(me).toContain('"additionalProperties":false');
+      expect(JSON.stringify(doc)).toMatch(/"User":\{[^]*"isAdmin"/);
+    } finally {
+      await closeTestDb();
+    }
+  });
+});

@@ -24,7 +24,7 @@ export const errorBodySchema = z
   })
   .meta({ id: "Error" });
 
-/** Success bodies: JSON objects (their fields are described in docs/api.md). */
+/** Success bodies of operations without a field-level schema yet: JSON objects (docs/api.md has their fields). */
 const objectBody = z.looseObject({}).meta({ id: "Object" });
 
 const uploadSchema = z.object({
@@ -50,7 +50,7 @@ function pathParams(path: string): z.ZodObject | undefined {
 function successContent(op: Operation) {
   switch (op.produces ?? "json") {
     case "json":
-      return { "application/json": { schema: objectBody } };
+      return { "application/json": { schema: op.response ?? objectBody } };
     case "json-or-csv":
       return { "application/json": { schema: z.union([objectBody, z.array(z.unknown())]) }, "text/csv": { schema: z.string() } };
     case "csv":

@@ -10,8 +10,8 @@
  */
 import { z } from "@/lib/zod";
 import { auditQuerySchema } from "@/lib/audit/audit";
-import { createTokenSchema } from "@/lib/auth/api-tokens";
-import { passwordResetConfirmSchema, passwordResetRequestSchema, signUpSchema } from "@/lib/auth/accounts";
+import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
+import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
 import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
@@ -20,10 +20,10 @@ import { checkSettingsSchema } from "@/lib/catalogues/check";
 import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
 import { adjustmentSchema, platformRoleSchema, quotaPatchSchema, statusChangeSchema } from "@/lib/quotas/admin";
 import { SNAPSHOT_READ, SNAPSHOT_WRITE } from "@/lib/snapshots/api";
-import { changeRoleSchema } from "@/lib/studios/members";
+import { changeRoleSchema, memberViewSchema, roleSchema } from "@/lib/studios/members";
 import { createInviteSchema } from "@/lib/studios/invites";
 import { createEndpointSchema } from "@/lib/webhooks/webhooks";
-import { createStudioSchema } from "@/lib/studios/studios";
+import { createStudioSchema, studioOfUserSchema, studioViewSchema } from "@/lib/studios/studios";
 import { sweepSpecSchema } from "@/lib/sweeps/spec";
 import { SWEEP_STATUSES } from "@/db/schema";
 
@@ -50,6 +50,11 @@ export interface Operation {
   query?: z.ZodObject;
   /** The body must be signed by Stripe (the webhook); not for clients. */
   internal?: boolean;
+  /**
+   * The success body, field by field, from the schemas lib/ builds the answer with (the view types are
+   * inferred from them). Operations without one are described as a JSON object only.
+   */
+  response?: z.ZodType;
 }
 
 const PUBLIC = { access: "public" } as const satisfies RoutePolicy;
@@ -83,35 +88,47 @@ const checkSubmitBody = submitCheckRequestSchema.extend({ settings: checkSetting
 
 const S = "/api/v1/studios/{studioId}";
 
+/** Success bodies (the routes build them from these lib/ schemas' types). */
+const meAnswer = z.strictObject({ user: publicUserSchema, studios: z.array(studioOfUserSchema) });
+const studiosAnswer = z.strictObject({ studios: z.array(studioOfUserSchema) });
+const createdStudioAnswer = z.strictObject({ studio: studioOfUserSchema });
+const studioAnswer = z.strictObject({ studio: studioViewSchema, role: roleSchema.nullable().describe("The caller's role; null for an API token.") });
+const membersAnswer = z.strictObject({ members: z.array(memberViewSchema) });
+const tokensAnswer = z.strictObject({ tokens: z.array(apiTokenViewSchema) });
+const createdTokenAnswer = z.strictObject({
+  token: apiTokenViewSchema.pick({ id: true, name: true, scopes: true, prefix: true, createdAt: true }),
+  secret: z.string().describe("The token itself, shown this once."),
+});
+
 export const OPERATIONS: readonly Operation[] = [
   // Accounts
   { method: "post", path: "/api/v1/signup", summary: "Create an account (the same answer whether or not the address has one)", tag: "Accounts", policy: PUBLIC, ok: 202, body: signUpSchema },
   { method: "post", path: "/api/v1/password-reset", summary: "E-mail a password-reset link", tag: "Accounts", policy: PUBLIC, ok: 202, body: passwordResetRequestSchema },
   { method: "post", path: "/api/v1/password-reset/confirm", summary: "Set a new password with a reset token", tag: "Accounts", policy: PUBLIC, ok: 200, body: passwordResetConfirmSchema },
-  { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: USER, ok: 200 },
+  { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: USER, ok: 200, response: meAnswer },
   { method: "delete", path: "/api/v1/me/sessions", summary: "Sign out everywhere (ends every session of the user)", tag: "Accounts", policy: USER, ok: 200 },
   { method: "get", path: "/api/v1/token", summary: "The calling API token: its studio and scopes", tag: "Accounts", policy: PUBLIC, ok: 200 },
   { method: "get", path: "/api/v1/invites/{token}", summary: "An invitation, by its secret", tag: "Accounts", policy: PUBLIC, ok: 200 },
   { method: "post", path: "/api/v1/invites/{token}/accept", summary: "Accept an invitation", tag: "Accounts", policy: USER, ok: 200 },
   { method: "get", path: "/api/v1/dev/mail", summary: "Captured mail of the demo's local mail fake (platform admins; demo, development and tests only)", tag: "Admin", policy: ADMIN, ok: 200 },
   // Studios
-  { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: USER, ok: 200 },
-  { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: USER, ok: 201, body: createStudioSchema },
-  { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
-  { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
+  { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: USER, ok: 200, response: studiosAnswer },
+  { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: USER, ok: 201, body: createStudioSchema, response: createdStudioAnswer },
+  { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: studioAnswer },
+  { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: membersAnswer },
   { method: "patch", path: `${S}/members/{userId}`, summary: "Change a member's role", tag: "Studios", policy: OWNERS_ONLY, ok: 200, body: changeRoleSchema },
   { method: "delete", path: `${S}/members/{userId}`, summary: "Remove a member", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
   { method: "get", path: `${S}/invites`, summary: "Pending invitations", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
   { method: "post", path: `${S}/invites`, summary: "Invite someone by e-mail", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createInviteSchema },
   { method: "delete", path: `${S}/invites/{inviteId}`, summary: "Withdraw an invitation", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
-  { method: "get", path: `${S}/tokens`, summary: "API tokens of a studio", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
+  { method: "get", path: `${S}/tokens`, summary: "API tokens of a studio", tag: "Studios", policy: OWNERS_ONLY, ok: 200, response: tokensAnswer },
   { method: "get", path: `${S}/overview`, summary: "The studio home: compute, running and latest sweeps, checks, next invoice", tag: "Studios", policy: MEMBERS_READ, ok: 200 },
   { method: "get", path: `${S}/webhooks`, summary: "Webhook endpoints of a studio", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
   { method: "post", path: `${S}/webhooks`, summary: "Register a webhook endpoint (its signing secret is shown once)", tag: "Webhooks", policy: OWNERS_ONLY, ok: 201, body: createEndpointSchema },
   { method: "delete", path: `${S}/webhooks/{endpointId}`, summary: "Remove a webhook endpoint", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
   { method: "get", path: `${S}/webhooks/{endpointId}/deliveries`, summary: "The delivery log of an endpoint", tag: "Webhooks", policy: OWNERS_ONLY, ok: 200 },
   { method: "post", path: `${S}/webhooks/{endpointId}/deliveries/{eventId}/resend`, summary: "Send an event to an endpoint again", tag: "Webhooks", policy: OWNERS_ONLY, ok: 202 },
-  { method: "post", path: `${S}/tokens`, summary: "Create an API token (its secret is shown once)", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createTokenSchema },
+  { method: "post", path: `${S}/tokens`, summary: "Create an API token (its secret is shown once)", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createTokenSchema, response: createdTokenAnswer },
   { method: "delete", path: `${S}/tokens/{tokenId}`, summary: "Revoke an API token", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
   // Sweeps
   { method: "post", path: `${S}/quotes`, summary: "Quote a sweep spec", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, body: quoteBody },
