@@ -8,7 +8,8 @@
  * where δ is the overlap and δ̇ its rate (positive while approaching). Because of the clamp a
  * damped contact ends when the force returns to zero, slightly before the overlap does; the first
  * contact's duration and restitution are measured at that moment, and the damping conversions in
- * `damping.ts` use the same criterion.
+ * `damping.ts` use the same criterion. The moment is interpolated between two steps on the end
+ * gauge (endGauge), which is smooth in time there, so it is placed to second order.
  *
  * Tunnelling (a pair or a wall that the step size lets bodies pass through) is flagged when
  *  - a pair is first seen overlapping while already past its closest approach along the step's
@@ -107,6 +108,9 @@ export class ContactField implements ForceField {
   maxOmegaSquared = 0;
   /** Stiffness K (N/m) of the contact whose force was evaluated last (set by normalForce). */
   private lastStiffnessNPerM = 0;
+  /** k_H and η of the Hertz contact whose force was evaluated last (set by normalForce; read by endGauge). */
+  private lastHertzStiffness = 0;
+  private lastHertzDamping = 0;
 
   // First tunnel seen (sticky).
   tunnelKind = TUNNEL_NONE;
@@ -130,6 +134,13 @@ export class ContactField implements ForceField {
   /** Unclamped force at the previous and current evaluation while active. */
   firstContactForcePreviousN = 0;
   firstContactForceN = 0;
+  /**
+   * The end gauge (see endGauge) at the previous and current evaluation while active: the contact
+   * ends where it crosses zero, and it is smooth in time there, so interpolating it linearly
+   * between two evaluations places the end to second order in the step.
+   */
+  firstContactEndGaugePrevious = 0;
+  firstContactEndGauge = 0;
   /** Normal (from A towards B, or the wall normal) at the end of the contact. */
   firstContactEndNormalX = 0;
   firstContactEndNormalY = 0;
@@ -195,6 +206,8 @@ export class ContactField implements ForceField {
     this.firstContactApproachSpeedMPerS = 0;
     this.firstContactForcePreviousN = 0;
     this.firstContactForceN = 0;
+    this.firstContactEndGaugePrevious = 0;
+    this.firstContactEndGauge = 0;
     this.firstContactEndNormalX = 0;
     this.firstContactEndNormalY = 0;
     this.firstContactSeenThisPass = false;
@@ -499,7 +512,10 @@ export class ContactField implements ForceField {
     // dF/dδ of k_H·δ^{3/2}: the local stiffness that sets the contact's frequency at this overlap.
     this.lastStiffnessNPerM = 1.5 * k * root;
     if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
-    return (overlap >= 0 ? springMagnitude : -springMagnitude) + this.dampingCoefficient(reducedMass, k) * Math.sqrt(root) * overlapRate;
+    const eta = this.dampingCoefficient(reducedMass, k);
+    this.lastHertzStiffness = k;
+    this.lastHertzDamping = eta;
+    return (overlap >= 0 ? springMagnitude : -springMagnitude) + eta * Math.sqrt(root) * overlapRate;
   }
 
   /** c (linear) or η (Hertz) for a contact; remembered for the last (mass, stiffness) pair, as most contacts repeat it. */
@@ -546,6 +562,8 @@ export class ContactField implements ForceField {
       this.firstContactApproachSpeedMPerS = overlapRate;
       this.firstContactForcePreviousN = 0;
       this.firstContactForceN = force;
+      this.firstContactEndGaugePrevious = 0;
+      this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
       if (force <= 0) this.endFirstContact(force, normalX, normalY);
       return;
     }
@@ -553,7 +571,24 @@ export class ContactField implements ForceField {
     this.firstContactSeenThisPass = true;
     this.firstContactForcePreviousN = this.firstContactForceN;
     this.firstContactForceN = force;
+    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
+    this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
     if (force <= 0) this.endFirstContact(force, normalX, normalY);
+  }
+
+  /**
+   * A quantity with the sign of the (unclamped) normal force of the contact just evaluated that is
+   * smooth in time where the force crosses zero. Linear: the force itself (linear in δ and δ̇).
+   * Hertz: the force k_H·δ^{3/2} + η·δ^{1/4}·δ̇ is not smooth there when undamped (it leaves like
+   * (t_end − t)^{3/2}, so a linear interpolation on it places the end at first order only); it is
+   * zero where δ = δ₀ := (η·max(0, −δ̇)/k_H)^{4/5}, so the gauge is the overlap beyond that, δ − δ₀:
+   * the overlap itself when undamped, and smooth across the force's zero when damped.
+   */
+  private endGauge(force: number, overlap: number, overlapRate: number): number {
+    if (this.model === CONTACT_LINEAR) return force;
+    const eta = this.lastHertzDamping;
+    if (eta === 0 || overlapRate >= 0) return overlap;
+    return overlap - Math.pow((eta * -overlapRate) / this.lastHertzStiffness, 0.8);
   }
 
   private endFirstContact(force: number, normalX: number, normalY: number): void {
@@ -598,6 +633,8 @@ export class ContactField implements ForceField {
     const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
     this.contactPotentialJ = potentialBefore;
     this.firstContactForcePreviousN = this.firstContactForceN;
+    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
+    this.firstContactEndGauge = Math.min(this.endGauge(force, overlap, overlapRate), 0);
     this.endFirstContact(Math.min(force, 0), normalX, normalY);
   }
 

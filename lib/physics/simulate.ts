@@ -31,6 +31,12 @@ import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
 import { contactCap, workUnitsOf } from "./work-units";
 
+/**
+ * Verdict rules from which the first contact's end is interpolated on the contact field's end gauge
+ * (second order for Hertz contacts) instead of linearly on the force (first order for Hertz).
+ */
+export const CONTACT_END_GAUGE_SINCE_RULES = 3;
+
 /** Number of integrator substeps a run takes: ⌈duration / (dtS / substeps)⌉ (at least 1). */
 export function totalSubsteps(scenario: Pick<Scenario, "dtS" | "substeps" | "durationS">): number {
   const substepS = scenario.dtS / scenario.substeps;
@@ -104,6 +110,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const h = scenario.dtS / scenario.substeps;
   const totalSteps = totalSubsteps(scenario);
   const tolerances = scenario.tolerances;
+  const gaugeContactEnd = (scenario.verdictRules ?? 1) >= CONTACT_END_GAUGE_SINCE_RULES;
   const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS;
   // Work counts (./work-units.ts): what the run does, never a clock.
   const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
@@ -191,9 +198,12 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
       firstContactStartS = (n - 1) * h + (h * -before) / (after - before);
     }
     if (field.firstContactEndedThisPass) {
-      const forceBefore = field.firstContactForcePreviousN;
-      const forceAfter = field.firstContactForceN;
-      const fraction = forceBefore > 0 ? forceBefore / (forceBefore - forceAfter) : 0;
+      // Rules ≥ 3 interpolate the end on the field's end gauge (the force for a linear contact, so
+      // linear results are unchanged; for Hertz the overlap beyond the force's zero, second order);
+      // rules 1 and 2 on the force, as the cells stored under them were.
+      const before = gaugeContactEnd ? field.firstContactEndGaugePrevious : field.firstContactForcePreviousN;
+      const after = gaugeContactEnd ? field.firstContactEndGauge : field.firstContactForceN;
+      const fraction = before > 0 ? before / (before - after) : 0;
       firstContactEndS = Math.max(firstContactStartS, (n - 1) * h + h * fraction);
       contactDurationS = firstContactEndS - firstContactStartS;
       const approachIn = field.firstContactApproachSpeedMPerS;

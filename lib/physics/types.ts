@@ -30,12 +30,15 @@ export const INSTABILITY_VERDICTS: readonly Verdict[] = ["exploded", "step-unsta
 export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
 
 /**
- * Version of the rules that turn metrics into a verdict. 1: the rules before versioning (no
- * instability, restitution-off or coarse-contact verdicts). 2: docs/sweep-spec.md "Verdict rules".
- * A scenario without `verdictRules` is judged by rules 1, as every sweep stored before it was.
+ * Version of the rules that measure a cell and turn its metrics into a verdict. 1: the rules before
+ * versioning (no instability, restitution-off or coarse-contact verdicts). 2: docs/sweep-spec.md
+ * "Verdict rules". 3: rules 2 with the first contact's end interpolated to second order for Hertz
+ * contacts (contactDurationS, and the verdicts that read it, of Hertz cells change; linear cells
+ * are byte-identical to rules 2). A scenario without `verdictRules` is judged by rules 1, as every
+ * sweep stored before it was.
  */
-export const VERDICT_RULES_VERSION = 2;
-export const VERDICT_RULES_VERSIONS: readonly number[] = [1, 2];
+export const VERDICT_RULES_VERSION = 3;
+export const VERDICT_RULES_VERSIONS: readonly number[] = [1, 2, 3];
 
 /** Two discs; body A moves towards body B along +x. */
 export interface PairScene {

@@ -127,11 +127,13 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   // rules were versioned) writes nothing more, so its key is the one it always had; later rules
   // write a marker, their version and the tolerances they added, so a cell judged by one version
   // never serves a sweep judged by another.
+  // Rules 3 differ from rules 2 only in where a Hertz contact ends (CONTACT_END_GAUGE_SINCE_RULES):
+  // a linear cell computes byte-identically under both, so it keys as rules 2 and stored cells keep serving.
   const rules = scenario.verdictRules ?? 1;
   if (rules >= 2) {
     const tolerances = scenario.tolerances;
     w[n++] = 0x56524c53;
-    w[n++] = rules;
+    w[n++] = rules === 3 && scenario.contact.model === "linear" ? 2 : rules;
     n = putOptional(w, n, tolerances.amplificationLimit);
     n = putOptional(w, n, tolerances.restitutionRel);
     n = putOptional(w, n, tolerances.energyPeakRel);
