@@ -68,6 +68,8 @@ export interface ContactFieldParameters {
   stiffness: number;
   /** (4/3)·E* (Pa) when the Hertz stiffness comes from a material: k_H = this·√R*; else 0. */
   hertzModulusFactorPa: number;
+  /** The same for disc–wall contacts (a rigid wall has its own E*); absent: hertzModulusFactorPa. */
+  wallHertzModulusFactorPa?: number;
   dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS;
   dampingValue: number;
   walls: readonly Wall[];
@@ -87,6 +89,7 @@ export class ContactField implements ForceField {
   model = 0;
   stiffness = 0;
   hertzModulusFactorPa = 0;
+  wallHertzModulusFactorPa = 0;
   dampingMode = 0;
   dampingValue = 0;
   gravityMPerS2 = 0;
@@ -148,6 +151,7 @@ export class ContactField implements ForceField {
   private firstContactSeenThisPass = false;
   private cutoffSquaredM2 = 0;
   private memoEffectiveRadius = NaN;
+  private memoModulusFactor = NaN;
   private memoHertzStiffness = 0;
   private memoReducedMass = NaN;
   private memoStiffness = NaN;
@@ -171,6 +175,7 @@ export class ContactField implements ForceField {
     this.model = parameters.model;
     this.stiffness = parameters.stiffness;
     this.hertzModulusFactorPa = parameters.hertzModulusFactorPa;
+    this.wallHertzModulusFactorPa = parameters.wallHertzModulusFactorPa ?? parameters.hertzModulusFactorPa;
     this.dampingMode = parameters.dampingMode;
     this.dampingValue = parameters.dampingValue;
     this.gravityMPerS2 = parameters.gravityMPerS2;
@@ -213,6 +218,7 @@ export class ContactField implements ForceField {
     this.firstContactSeenThisPass = false;
     this.cutoffSquaredM2 = 0;
     this.memoEffectiveRadius = NaN;
+    this.memoModulusFactor = NaN;
     this.memoReducedMass = NaN;
     this.memoStiffness = NaN;
   }
@@ -389,7 +395,7 @@ export class ContactField implements ForceField {
     const overlapRate = (vx[i] - vx[j]) * normalX + (vy[i] - vy[j]) * normalY;
     const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
     const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
-    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, this.hertzModulusFactorPa);
     const omegaSquared = this.lastStiffnessNPerM / reducedMass;
     if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
     const pushX = force > 0 ? force * normalX : 0;
@@ -465,7 +471,7 @@ export class ContactField implements ForceField {
         if (overlap <= 0) continue;
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
-        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i]);
+        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
         const omegaSquared = this.lastStiffnessNPerM / mass[i];
         if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
         if (force > 0) {
@@ -491,7 +497,7 @@ export class ContactField implements ForceField {
    * energy. Callers clamp at zero. Sign-extended for overlap ≤ 0 so that zero crossings can be
    * interpolated; the potential is only counted for real overlaps.
    */
-  private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number): number {
+  private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number, modulusFactorPa: number): number {
     const magnitude = overlap < 0 ? -overlap : overlap;
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
@@ -500,10 +506,11 @@ export class ContactField implements ForceField {
       return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
     let k = this.stiffness;
-    if (this.hertzModulusFactorPa > 0) {
-      if (effectiveRadius !== this.memoEffectiveRadius) {
+    if (modulusFactorPa > 0) {
+      if (effectiveRadius !== this.memoEffectiveRadius || modulusFactorPa !== this.memoModulusFactor) {
         this.memoEffectiveRadius = effectiveRadius;
-        this.memoHertzStiffness = this.hertzModulusFactorPa * Math.sqrt(effectiveRadius);
+        this.memoModulusFactor = modulusFactorPa;
+        this.memoHertzStiffness = modulusFactorPa * Math.sqrt(effectiveRadius);
       }
       k = this.memoHertzStiffness;
     }
@@ -610,6 +617,7 @@ export class ContactField implements ForceField {
     let normalY: number;
     let reducedMass: number;
     let effectiveRadius: number;
+    let modulusFactorPa = this.hertzModulusFactorPa;
     if (b >= 0) {
       const dx = x[b] - x[a];
       const dy = y[b] - y[a];
@@ -628,9 +636,10 @@ export class ContactField implements ForceField {
       overlapRate = -(normalX * vx[a] + normalY * vy[a]);
       reducedMass = mass[a];
       effectiveRadius = radius[a];
+      modulusFactorPa = this.wallHertzModulusFactorPa;
     }
     const potentialBefore = this.contactPotentialJ;
-    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, modulusFactorPa);
     this.contactPotentialJ = potentialBefore;
     this.firstContactForcePreviousN = this.firstContactForceN;
     this.firstContactEndGaugePrevious = this.firstContactEndGauge;
@@ -655,8 +664,8 @@ export class ContactField implements ForceField {
 
   contactStiffness(bodies: Bodies, a: number, b: number): number {
     if (this.model === CONTACT_LINEAR || this.hertzModulusFactorPa === 0) return this.stiffness;
-    const r = b >= 0 ? (bodies.radius[a] * bodies.radius[b]) / (bodies.radius[a] + bodies.radius[b]) : bodies.radius[a];
-    return this.hertzModulusFactorPa * Math.sqrt(r);
+    if (b < 0) return this.wallHertzModulusFactorPa * Math.sqrt(bodies.radius[a]);
+    return this.hertzModulusFactorPa * Math.sqrt((bodies.radius[a] * bodies.radius[b]) / (bodies.radius[a] + bodies.radius[b]));
   }
 
   /** Earliest time (s) from now at which any pair or wall would start to overlap in force-free straight-line motion. */

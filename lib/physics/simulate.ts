@@ -27,7 +27,7 @@ import {
   type Wall,
 } from "./contact-field";
 import { hertzDimensionlessDampingForRestitution, hertzRestitutionEstimate, linearDampingRatioForRestitution } from "./damping";
-import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
+import { effectiveModulusRigidWallPa, effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
 import { contactCap, workUnitsOf } from "./work-units";
 
@@ -56,9 +56,11 @@ export function createContactField(
   const contact = scenario.contact;
   const isHertz = contact.model === "hertz";
   let hertzModulusFactorPa = 0;
+  let wallHertzModulusFactorPa = 0;
   if (isHertz && contact.material) {
-    // Discs and walls are of the same material (1/E* = 2(1 − ν²)/E).
+    // Discs of one material (1/E* = 2(1 − ν²)/E); walls of it too, or rigid (1/E* = (1 − ν²)/E, twice the E*).
     hertzModulusFactorPa = (4 / 3) * effectiveModulusSameMaterialPa(contact.material.youngsModulusPa, contact.material.poissonRatio);
+    wallHertzModulusFactorPa = contact.wall === "rigid" ? (4 / 3) * effectiveModulusRigidWallPa(contact.material.youngsModulusPa, contact.material.poissonRatio) : hertzModulusFactorPa;
   }
   let dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS = DAMPING_NONE;
   let dampingValue = 0;
@@ -75,6 +77,7 @@ export function createContactField(
     model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
     stiffness: contact.stiffness ?? 0,
     hertzModulusFactorPa,
+    wallHertzModulusFactorPa,
     dampingMode,
     dampingValue,
     walls,

@@ -144,6 +144,12 @@ export interface ContactSpec {
   stiffness?: number;
   /** hertz only: k_H derived from Young's modulus and Poisson ratio (and the radii). */
   material?: { youngsModulusPa: number; poissonRatio: number };
+  /**
+   * hertz with `material` only: what the walls are. "disc-material" (absent: the same) — a wall of
+   * the discs' material, 1/E* = 2(1 − ν²)/E; "rigid" — a wall that does not deform, 1/E* = (1 − ν²)/E
+   * (Johnson 1985, Contact Mechanics, §4.2), so k_H at a wall doubles.
+   */
+  wall?: "disc-material" | "rigid";
   damping: Damping;
 }
 

@@ -113,6 +113,11 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   n = putOptional(w, n, contact.stiffness);
   n = putOptional(w, n, contact.material?.youngsModulusPa);
   n = putOptional(w, n, contact.material?.poissonRatio);
+  // The wall's material (Hertz): written only when the spec names it, so earlier keys stay as they were.
+  if (contact.wall !== undefined) {
+    w[n++] = 0x57414c4c;
+    n = putString(w, n, contact.wall);
+  }
   n = putString(w, n, contact.damping.kind);
   n = putOptional(w, n, contact.damping.kind === "none" ? undefined : contact.damping.value);
   n = putString(w, n, scenario.integrator);

@@ -182,6 +182,10 @@ describe("scenario keys", () => {
     expect(keyOf(firstCell(rules2(bumperWallSpec() as { scenario: object })))).toEqual([0x4bbb015f, 0x7a697f0a, 0x5b63bb52, 0x69a1505e]);
     expect(keyOf(firstCell(rules2(puckPairSpec() as { scenario: object })))).toEqual([0xc892b111, 0x74ec2c13, 0x8fb65498, 0xdfe1b824]);
     expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0x23b4ce12, 0x3b743a2e, 0xc4a44c49, 0xa69813e2]);
+    // A named wall is keyed (absent keys as before): rigid and disc-material differ from each other and from absent.
+    const withWall = (wall: string) => { const spec = bumperWallSpec() as { scenario: { contact: object } }; return { ...spec, scenario: { ...spec.scenario, contact: { ...spec.scenario.contact, wall } } }; };
+    const wallKeys = [keyOf(firstCell(withWall("rigid"))), keyOf(firstCell(withWall("disc-material"))), keyOf(firstCell(bumperWallSpec()))].map((key) => key.join(","));
+    expect(new Set(wallKeys).size).toBe(3);
     expect(keyOf(firstCell(box))).toEqual([0x738b20bd, 0x4ca20e06, 0x4ad9bc62, 0x8299ded2]);
     const stricter = firstCell({ ...box, scenario: { ...box.scenario, tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1000, restitutionRel: 0.02 } } });
     expect(keyOf(stricter)).not.toEqual(keyOf(firstCell(box)));
