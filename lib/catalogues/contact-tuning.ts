@@ -7,6 +7,8 @@
  * Pure: safe to import in the browser.
  */
 import { linearDampingRatioForRestitution } from "../physics/damping";
+import { linearDampingRatioOverlapCriterion } from "../physics/analytic";
+import { CONTACT_END_CRITERION } from "../sweeps/envelope";
 import { dampingForRatioNsPerM, naturalFrequencyHz, phasePerSubstep } from "../physics/frequency";
 import type { ContactTuning } from "../sweeps/contact-tuning";
 import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
@@ -59,7 +61,8 @@ export function pairContactTuning(objects: readonly CatalogueObject[], settings:
 }
 
 export const GAME_SETTINGS_FORMAT = "kickdrift-game-settings";
-export const GAME_SETTINGS_VERSION = 1;
+/** 2: `contactEnd`, and each pair's damping for an engine whose contacts end at zero overlap (`overlapZero`). */
+export const GAME_SETTINGS_VERSION = 2;
 
 export interface GameSettingsPair {
   pair: string;
@@ -71,6 +74,13 @@ export interface GameSettingsPair {
   frequencyHz: number;
   dampingRatio: number;
   restitution: number | null;
+  /**
+   * The damping that gives the same restitution in an engine whose contact ends where the overlap
+   * returns to zero and whose force may pull meanwhile (no clamp): ζ = −ln e/√(π² + ln² e)
+   * (Luding 2008), c = 2ζ√(k·m*). `dampingNsPerM`/`dampingRatio` above are for the force-zero
+   * criterion (`contactEnd`), which Kickdrift's engine follows. Equal to them when undamped.
+   */
+  overlapZero: { dampingRatio: number; dampingNsPerM: number };
   worstVerdict: string | null;
 }
 
@@ -83,6 +93,8 @@ export interface GameSettings {
   substeps: number;
   substepS: number;
   integrator: string;
+  /** Where the engine ends a contact (and so which damping gives the restitution): "force-zero" (Schwager & Pöschel 2007). */
+  contactEnd: typeof CONTACT_END_CRITERION;
   contact: {
     model: "linear";
     stiffnessNPerM: number;
@@ -127,6 +139,8 @@ export function gameSettings(input: {
   const pick = (entry: PairContactTuning) => (input.stiffness === "recommended" ? (entry.recommended as ContactTuning) : entry.checked);
   const out: GameSettingsPair[] = tuned.map((entry, n) => {
     const contact = pick(entry);
+    const restitution = settings.damping === "catalogue" ? pairs[n].restitution : null;
+    const overlapRatio = restitution !== null && restitution < 1 ? linearDampingRatioOverlapCriterion(restitution) : 0;
     return {
       pair: entry.pair,
       objectA: entry.objectA,
@@ -136,7 +150,8 @@ export function gameSettings(input: {
       dampingNsPerM: contact.dampingNsPerM,
       frequencyHz: contact.frequencyHz,
       dampingRatio: contact.dampingRatio,
-      restitution: settings.damping === "catalogue" ? pairs[n].restitution : null,
+      restitution,
+      overlapZero: { dampingRatio: overlapRatio, dampingNsPerM: 2 * overlapRatio * Math.sqrt(contact.stiffnessNPerM * contact.effectiveMassKg) },
       worstVerdict: input.worstVerdicts?.get(entry.pair) ?? null,
     };
   });
@@ -150,6 +165,7 @@ export function gameSettings(input: {
     substeps: settings.substeps,
     substepS: settings.dtS / settings.substeps,
     integrator: settings.integrator,
+    contactEnd: CONTACT_END_CRITERION,
     contact: {
       model: "linear",
       stiffnessNPerM: input.stiffness === "recommended" ? (recommendation.stiffness as number) : lightest.stiffnessNPerM,

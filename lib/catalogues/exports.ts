@@ -7,6 +7,7 @@
  * Pure: safe to import in the browser.
  */
 import { VERDICTS } from "../physics/types";
+import { CONTACT_END_CRITERION } from "../sweeps/envelope";
 import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
 import type { CheckSettings, PairMatrix, Recommendation } from "./check";
 import type { PairContactTuning } from "./contact-tuning";
@@ -79,6 +80,8 @@ export function checkExportJson(input: { checkId: string; catalogue: { name: str
     {
       format: "kickdrift-catalogue-check",
       version: 1,
+      // Where the engine ends a contact, so which damping the restitutions convert to (game settings give both).
+      contactEnd: CONTACT_END_CRITERION,
       checkId: input.checkId,
       catalogue: input.catalogue,
       settings: input.settings,

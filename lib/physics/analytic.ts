@@ -123,6 +123,11 @@ export function effectiveModulusSameMaterialPa(youngsModulusPa: number, poissonR
   return youngsModulusPa / (2 * (1 - poissonRatio * poissonRatio));
 }
 
+/** E* of a body against a rigid (non-deforming) wall: 1/E* = (1−ν²)/E (Johnson 1985, Contact Mechanics, §4.2). */
+export function effectiveModulusRigidWallPa(youngsModulusPa: number, poissonRatio: number): number {
+  return youngsModulusPa / (1 - poissonRatio * poissonRatio);
+}
+
 /** Hertz stiffness k_H = (4/3)·E*·√R*, so F = k_H·δ^{3/2} (Johnson 1985, Contact Mechanics, §4.2). */
 export function hertzStiffnessFromModulus(effectiveModulusPa: number, effectiveRadiusMeters: number): number {
   return (4 / 3) * effectiveModulusPa * Math.sqrt(effectiveRadiusMeters);

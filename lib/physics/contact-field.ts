@@ -8,7 +8,8 @@
  * where δ is the overlap and δ̇ its rate (positive while approaching). Because of the clamp a
  * damped contact ends when the force returns to zero, slightly before the overlap does; the first
  * contact's duration and restitution are measured at that moment, and the damping conversions in
- * `damping.ts` use the same criterion.
+ * `damping.ts` use the same criterion. The moment is interpolated between two steps on the end
+ * gauge (endGauge), which is smooth in time there, so it is placed to second order.
  *
  * Tunnelling (a pair or a wall that the step size lets bodies pass through) is flagged when
  *  - a pair is first seen overlapping while already past its closest approach along the step's
@@ -68,6 +69,8 @@ export interface ContactFieldParameters {
   stiffness: number;
   /** (4/3)·E* (Pa) when the Hertz stiffness comes from a material: k_H = this·√R*; else 0. */
   hertzModulusFactorPa: number;
+  /** The same for disc–wall contacts (a rigid wall has its own E*); absent: hertzModulusFactorPa. */
+  wallHertzModulusFactorPa?: number;
   dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS;
   dampingValue: number;
   walls: readonly Wall[];
@@ -99,6 +102,7 @@ export class ContactField implements ForceField {
   model = 0;
   stiffness = 0;
   hertzModulusFactorPa = 0;
+  wallHertzModulusFactorPa = 0;
   dampingMode = 0;
   dampingValue = 0;
   gravityMPerS2 = 0;
@@ -123,6 +127,9 @@ export class ContactField implements ForceField {
   maxOmegaSquared = 0;
   /** Stiffness K (N/m) of the contact whose force was evaluated last (set by normalForce). */
   private lastStiffnessNPerM = 0;
+  /** k_H and η of the Hertz contact whose force was evaluated last (set by normalForce; read by endGauge). */
+  private lastHertzStiffness = 0;
+  private lastHertzDamping = 0;
 
   // First tunnel seen (sticky).
   tunnelKind = TUNNEL_NONE;
@@ -146,6 +153,13 @@ export class ContactField implements ForceField {
   /** Unclamped force at the previous and current evaluation while active. */
   firstContactForcePreviousN = 0;
   firstContactForceN = 0;
+  /**
+   * The end gauge (see endGauge) at the previous and current evaluation while active: the contact
+   * ends where it crosses zero, and it is smooth in time there, so interpolating it linearly
+   * between two evaluations places the end to second order in the step.
+   */
+  firstContactEndGaugePrevious = 0;
+  firstContactEndGauge = 0;
   /** Normal (from A towards B, or the wall normal) at the end of the contact. */
   firstContactEndNormalX = 0;
   firstContactEndNormalY = 0;
@@ -153,6 +167,7 @@ export class ContactField implements ForceField {
   private firstContactSeenThisPass = false;
   private cutoffSquaredM2 = 0;
   private memoEffectiveRadius = NaN;
+  private memoModulusFactor = NaN;
   private memoHertzStiffness = 0;
   private memoReducedMass = NaN;
   private memoStiffness = NaN;
@@ -186,6 +201,7 @@ export class ContactField implements ForceField {
     this.model = parameters.model;
     this.stiffness = parameters.stiffness;
     this.hertzModulusFactorPa = parameters.hertzModulusFactorPa;
+    this.wallHertzModulusFactorPa = parameters.wallHertzModulusFactorPa ?? parameters.hertzModulusFactorPa;
     this.dampingMode = parameters.dampingMode;
     this.dampingValue = parameters.dampingValue;
     this.gravityMPerS2 = parameters.gravityMPerS2;
@@ -224,11 +240,14 @@ export class ContactField implements ForceField {
     this.firstContactApproachSpeedMPerS = 0;
     this.firstContactForcePreviousN = 0;
     this.firstContactForceN = 0;
+    this.firstContactEndGaugePrevious = 0;
+    this.firstContactEndGauge = 0;
     this.firstContactEndNormalX = 0;
     this.firstContactEndNormalY = 0;
     this.firstContactSeenThisPass = false;
     this.cutoffSquaredM2 = 0;
     this.memoEffectiveRadius = NaN;
+    this.memoModulusFactor = NaN;
     this.memoReducedMass = NaN;
     this.memoStiffness = NaN;
     this.listReachM = 0;
@@ -544,7 +563,7 @@ export class ContactField implements ForceField {
     const overlapRate = (vx[i] - vx[j]) * normalX + (vy[i] - vy[j]) * normalY;
     const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
     const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
-    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, this.hertzModulusFactorPa);
     const omegaSquared = this.lastStiffnessNPerM / reducedMass;
     if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
     const pushX = force > 0 ? force * normalX : 0;
@@ -621,7 +640,7 @@ export class ContactField implements ForceField {
         if (overlap <= 0) continue;
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
-        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i]);
+        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
         const omegaSquared = this.lastStiffnessNPerM / mass[i];
         if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
         if (force > 0) {
@@ -652,7 +671,7 @@ export class ContactField implements ForceField {
    * energy. Callers clamp at zero. Sign-extended for overlap ≤ 0 so that zero crossings can be
    * interpolated; the potential is only counted for real overlaps.
    */
-  private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number): number {
+  private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number, modulusFactorPa: number): number {
     const magnitude = overlap < 0 ? -overlap : overlap;
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
@@ -661,10 +680,11 @@ export class ContactField implements ForceField {
       return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
     let k = this.stiffness;
-    if (this.hertzModulusFactorPa > 0) {
-      if (effectiveRadius !== this.memoEffectiveRadius) {
+    if (modulusFactorPa > 0) {
+      if (effectiveRadius !== this.memoEffectiveRadius || modulusFactorPa !== this.memoModulusFactor) {
         this.memoEffectiveRadius = effectiveRadius;
-        this.memoHertzStiffness = this.hertzModulusFactorPa * Math.sqrt(effectiveRadius);
+        this.memoModulusFactor = modulusFactorPa;
+        this.memoHertzStiffness = modulusFactorPa * Math.sqrt(effectiveRadius);
       }
       k = this.memoHertzStiffness;
     }
@@ -673,7 +693,10 @@ export class ContactField implements ForceField {
     // dF/dδ of k_H·δ^{3/2}: the local stiffness that sets the contact's frequency at this overlap.
     this.lastStiffnessNPerM = 1.5 * k * root;
     if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
-    return (overlap >= 0 ? springMagnitude : -springMagnitude) + this.dampingCoefficient(reducedMass, k) * Math.sqrt(root) * overlapRate;
+    const eta = this.dampingCoefficient(reducedMass, k);
+    this.lastHertzStiffness = k;
+    this.lastHertzDamping = eta;
+    return (overlap >= 0 ? springMagnitude : -springMagnitude) + eta * Math.sqrt(root) * overlapRate;
   }
 
   /** c (linear) or η (Hertz) for a contact; remembered for the last (mass, stiffness) pair, as most contacts repeat it. */
@@ -720,6 +743,8 @@ export class ContactField implements ForceField {
       this.firstContactApproachSpeedMPerS = overlapRate;
       this.firstContactForcePreviousN = 0;
       this.firstContactForceN = force;
+      this.firstContactEndGaugePrevious = 0;
+      this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
       if (force <= 0) this.endFirstContact(force, normalX, normalY);
       return;
     }
@@ -727,7 +752,24 @@ export class ContactField implements ForceField {
     this.firstContactSeenThisPass = true;
     this.firstContactForcePreviousN = this.firstContactForceN;
     this.firstContactForceN = force;
+    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
+    this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
     if (force <= 0) this.endFirstContact(force, normalX, normalY);
+  }
+
+  /**
+   * A quantity with the sign of the (unclamped) normal force of the contact just evaluated that is
+   * smooth in time where the force crosses zero. Linear: the force itself (linear in δ and δ̇).
+   * Hertz: the force k_H·δ^{3/2} + η·δ^{1/4}·δ̇ is not smooth there when undamped (it leaves like
+   * (t_end − t)^{3/2}, so a linear interpolation on it places the end at first order only); it is
+   * zero where δ = δ₀ := (η·max(0, −δ̇)/k_H)^{4/5}, so the gauge is the overlap beyond that, δ − δ₀:
+   * the overlap itself when undamped, and smooth across the force's zero when damped.
+   */
+  private endGauge(force: number, overlap: number, overlapRate: number): number {
+    if (this.model === CONTACT_LINEAR) return force;
+    const eta = this.lastHertzDamping;
+    if (eta === 0 || overlapRate >= 0) return overlap;
+    return overlap - Math.pow((eta * -overlapRate) / this.lastHertzStiffness, 0.8);
   }
 
   private endFirstContact(force: number, normalX: number, normalY: number): void {
@@ -749,6 +791,7 @@ export class ContactField implements ForceField {
     let normalY: number;
     let reducedMass: number;
     let effectiveRadius: number;
+    let modulusFactorPa = this.hertzModulusFactorPa;
     if (b >= 0) {
       const dx = x[b] - x[a];
       const dy = y[b] - y[a];
@@ -767,11 +810,14 @@ export class ContactField implements ForceField {
       overlapRate = -(normalX * vx[a] + normalY * vy[a]);
       reducedMass = mass[a];
       effectiveRadius = radius[a];
+      modulusFactorPa = this.wallHertzModulusFactorPa;
     }
     const potentialBefore = this.contactPotentialJ;
-    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius);
+    const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, modulusFactorPa);
     this.contactPotentialJ = potentialBefore;
     this.firstContactForcePreviousN = this.firstContactForceN;
+    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
+    this.firstContactEndGauge = Math.min(this.endGauge(force, overlap, overlapRate), 0);
     this.endFirstContact(Math.min(force, 0), normalX, normalY);
   }
 
@@ -792,8 +838,8 @@ export class ContactField implements ForceField {
 
   contactStiffness(bodies: Bodies, a: number, b: number): number {
     if (this.model === CONTACT_LINEAR || this.hertzModulusFactorPa === 0) return this.stiffness;
-    const r = b >= 0 ? (bodies.radius[a] * bodies.radius[b]) / (bodies.radius[a] + bodies.radius[b]) : bodies.radius[a];
-    return this.hertzModulusFactorPa * Math.sqrt(r);
+    if (b < 0) return this.wallHertzModulusFactorPa * Math.sqrt(bodies.radius[a]);
+    return this.hertzModulusFactorPa * Math.sqrt((bodies.radius[a] * bodies.radius[b]) / (bodies.radius[a] + bodies.radius[b]));
   }
 
   /** Earliest time (s) from now at which any pair or wall would start to overlap in force-free straight-line motion. */

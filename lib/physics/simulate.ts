@@ -30,9 +30,15 @@ import {
   type Wall,
 } from "./contact-field";
 import { hertzDimensionlessDampingForRestitution, hertzRestitutionEstimate, linearDampingRatioForRestitution } from "./damping";
-import { effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
+import { effectiveModulusRigidWallPa, effectiveModulusSameMaterialPa, linearRestitutionForDampingRatio } from "./analytic";
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "./constants";
 import { contactCap, workUnitsOf } from "./work-units";
+
+/**
+ * Verdict rules from which the first contact's end is interpolated on the contact field's end gauge
+ * (second order for Hertz contacts) instead of linearly on the force (first order for Hertz).
+ */
+export const CONTACT_END_GAUGE_SINCE_RULES = 3;
 
 /** Number of integrator substeps a run takes: ⌈duration / (dtS / substeps)⌉ (at least 1). */
 export function totalSubsteps(scenario: Pick<Scenario, "dtS" | "substeps" | "durationS">): number {
@@ -53,9 +59,11 @@ export function createContactField(
   const contact = scenario.contact;
   const isHertz = contact.model === "hertz";
   let hertzModulusFactorPa = 0;
+  let wallHertzModulusFactorPa = 0;
   if (isHertz && contact.material) {
-    // Discs and walls are of the same material (1/E* = 2(1 − ν²)/E).
+    // Discs of one material (1/E* = 2(1 − ν²)/E); walls of it too, or rigid (1/E* = (1 − ν²)/E, twice the E*).
     hertzModulusFactorPa = (4 / 3) * effectiveModulusSameMaterialPa(contact.material.youngsModulusPa, contact.material.poissonRatio);
+    wallHertzModulusFactorPa = contact.wall === "rigid" ? (4 / 3) * effectiveModulusRigidWallPa(contact.material.youngsModulusPa, contact.material.poissonRatio) : hertzModulusFactorPa;
   }
   let dampingMode: typeof DAMPING_NONE | typeof DAMPING_COEFFICIENT | typeof DAMPING_DIMENSIONLESS = DAMPING_NONE;
   let dampingValue = 0;
@@ -86,6 +94,7 @@ export function createContactField(
     model: isHertz ? CONTACT_HERTZ : CONTACT_LINEAR,
     stiffness: contact.stiffness ?? 0,
     hertzModulusFactorPa,
+    wallHertzModulusFactorPa,
     dampingMode,
     dampingValue,
     walls,
@@ -128,6 +137,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   const h = scenario.dtS / scenario.substeps;
   const totalSteps = totalSubsteps(scenario);
   const tolerances = scenario.tolerances;
+  const gaugeContactEnd = (scenario.verdictRules ?? 1) >= CONTACT_END_GAUGE_SINCE_RULES;
   const allowJumps = options.stepping !== "plain" && gravity === 0 && bodies.count <= MAX_BODIES_FOR_FREE_FLIGHT_JUMPS && !rotating;
   // Work counts (./work-units.ts): what the run does, never a clock.
   const contactsChargedMax = contactCap(bodies.count, setup.walls.length);
@@ -161,6 +171,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     recorder,
     spin,
     rest,
+    gaugeContactEnd,
   });
   const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;
 
@@ -233,6 +244,8 @@ interface LoopSettings {
   spin: SpinTracker | null;
   /** Resting metrics of a slope or stack, else null. */
   rest: RestTracker | null;
+  /** Whether the first contact's end is interpolated on the end gauge (verdict rules ≥ 3). */
+  gaugeContactEnd: boolean;
 }
 
 /** What the step loop measured (work counts, impulses, energy and contact metrics). */
@@ -263,7 +276,7 @@ interface LoopProgress {
  * loop, which the JIT threw away at the end of every run (a deoptimisation per cell).
  */
 function integrate(bodies: Bodies, field: ContactField, step: StepFunction, settings: LoopSettings): LoopProgress {
-  const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder, spin, rest } = settings;
+  const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder, spin, rest, gaugeContactEnd } = settings;
   let chargedContacts = 0;
   let flightChecks = 0;
   let flightSteps = 0;
@@ -339,9 +352,12 @@ function integrate(bodies: Bodies, field: ContactField, step: StepFunction, sett
       firstContactStartS = (n - 1) * h + (h * -before) / (after - before);
     }
     if (field.firstContactEndedThisPass) {
-      const forceBefore = field.firstContactForcePreviousN;
-      const forceAfter = field.firstContactForceN;
-      const fraction = forceBefore > 0 ? forceBefore / (forceBefore - forceAfter) : 0;
+      // Rules ≥ 3 interpolate the end on the field's end gauge (the force for a linear contact, so
+      // linear results are unchanged; for Hertz the overlap beyond the force's zero, second order);
+      // rules 1 and 2 on the force, as the cells stored under them were.
+      const before = gaugeContactEnd ? field.firstContactEndGaugePrevious : field.firstContactForcePreviousN;
+      const after = gaugeContactEnd ? field.firstContactEndGauge : field.firstContactForceN;
+      const fraction = before > 0 ? before / (before - after) : 0;
       firstContactEndS = Math.max(firstContactStartS, (n - 1) * h + h * fraction);
       contactDurationS = firstContactEndS - firstContactStartS;
       const approachIn = field.firstContactApproachSpeedMPerS;

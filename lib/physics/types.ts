@@ -41,12 +41,15 @@ export const INSTABILITY_VERDICTS: readonly Verdict[] = ["exploded", "step-unsta
 export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
 
 /**
- * Version of the rules that turn metrics into a verdict. 1: the rules before versioning (no
- * instability, restitution-off or coarse-contact verdicts). 2: docs/sweep-spec.md "Verdict rules".
- * A scenario without `verdictRules` is judged by rules 1, as every sweep stored before it was.
+ * Version of the rules that measure a cell and turn its metrics into a verdict. 1: the rules before
+ * versioning (no instability, restitution-off or coarse-contact verdicts). 2: docs/sweep-spec.md
+ * "Verdict rules". 3: rules 2 with the first contact's end interpolated to second order for Hertz
+ * contacts (contactDurationS, and the verdicts that read it, of Hertz cells change; linear cells
+ * are byte-identical to rules 2). A scenario without `verdictRules` is judged by rules 1, as every
+ * sweep stored before it was.
  */
-export const VERDICT_RULES_VERSION = 2;
-export const VERDICT_RULES_VERSIONS: readonly number[] = [1, 2];
+export const VERDICT_RULES_VERSION = 3;
+export const VERDICT_RULES_VERSIONS: readonly number[] = [1, 2, 3];
 
 /** Two discs; body A moves towards body B along +x. */
 export interface PairScene {
@@ -211,6 +214,12 @@ export interface ContactSpec {
   stiffness?: number;
   /** hertz only: k_H derived from Young's modulus and Poisson ratio (and the radii). */
   material?: { youngsModulusPa: number; poissonRatio: number };
+  /**
+   * hertz with `material` only: what the walls are. "disc-material" (absent: the same) — a wall of
+   * the discs' material, 1/E* = 2(1 − ν²)/E; "rigid" — a wall that does not deform, 1/E* = (1 − ν²)/E
+   * (Johnson 1985, Contact Mechanics, §4.2), so k_H at a wall doubles.
+   */
+  wall?: "disc-material" | "rigid";
   damping: Damping;
   friction?: FrictionSpec;
   /** Rolling resistance coefficient μ_r (dimensionless; torque μ_r·R·F_n); absent: none. */

@@ -132,6 +132,11 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   n = putOptional(w, n, contact.stiffness);
   n = putOptional(w, n, contact.material?.youngsModulusPa);
   n = putOptional(w, n, contact.material?.poissonRatio);
+  // The wall's material (Hertz): written only when the spec names it, so earlier keys stay as they were.
+  if (contact.wall !== undefined) {
+    w[n++] = 0x57414c4c;
+    n = putString(w, n, contact.wall);
+  }
   n = putString(w, n, contact.damping.kind);
   n = putOptional(w, n, contact.damping.kind === "none" ? undefined : contact.damping.value);
   n = putString(w, n, scenario.integrator);
@@ -146,11 +151,13 @@ export function scenarioKey(scenario: Scenario, out: Uint32Array, offset = 0): v
   // rules were versioned) writes nothing more, so its key is the one it always had; later rules
   // write a marker, their version and the tolerances they added, so a cell judged by one version
   // never serves a sweep judged by another.
+  // Rules 3 differ from rules 2 only in where a Hertz contact ends (CONTACT_END_GAUGE_SINCE_RULES):
+  // a linear cell computes byte-identically under both, so it keys as rules 2 and stored cells keep serving.
   const rules = scenario.verdictRules ?? 1;
   if (rules >= 2) {
     const tolerances = scenario.tolerances;
     w[n++] = 0x56524c53;
-    w[n++] = rules;
+    w[n++] = rules === 3 && scenario.contact.model === "linear" ? 2 : rules;
     n = putOptional(w, n, tolerances.amplificationLimit);
     n = putOptional(w, n, tolerances.restitutionRel);
     n = putOptional(w, n, tolerances.energyPeakRel);

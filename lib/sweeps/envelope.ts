@@ -16,7 +16,8 @@
  *
  * Pure: safe to import in the browser.
  */
-import type { Verdict } from "../physics/types";
+import type { Scenario, Verdict } from "../physics/types";
+import { restitutionDamping } from "../physics/damping";
 import { z } from "@/lib/zod";
 import { cellIndex, type ExpandedAxis } from "./grid";
 import { formatNumber, guardFormula, quoteCsvField } from "./results";
@@ -125,8 +126,11 @@ export function computeEnvelope(input: EnvelopeInput): Envelope {
 // Exports
 
 export const ENVELOPE_FORMAT = "kickdrift-envelope";
-/** 2: rows carry safeY and status, the document its sweep, units, rules, tolerances and criterion. */
-export const ENVELOPE_FORMAT_VERSION = 2;
+/**
+ * 2: rows carry safeY and status, the document its sweep, units, rules, tolerances and criterion.
+ * 3: `damping`, the damping of the sweep's contacts under both contact-end criteria.
+ */
+export const ENVELOPE_FORMAT_VERSION = 3;
 /**
  * When the engine ends a contact (and converts a target restitution into damping): when the
  * clamped contact force returns to zero, slightly before the overlap does (Schwager & Pöschel 2007).
@@ -137,6 +141,50 @@ export const ENVELOPE_RULE =
   "safeY: the last y, walking y from its start, up to which every cell is stable; limit = (1 − margin) × safeY (bound max) or safeY / (1 − margin) (bound min); pending while a walked cell is not computed";
 
 const axisDescription = z.strictObject({ parameter: z.string(), label: z.string(), unit: z.string() });
+
+const criterionDamping = z.union([z.strictObject({ dampingRatio: z.number().min(0) }), z.strictObject({ beta: z.number().min(0) })]);
+
+/**
+ * The damping of the sweep's contacts as a game engine needs it. For a target restitution, the
+ * damping that gives it under each contact-end criterion: `forceZero` (the contact ends where the
+ * clamped force returns to zero, as in Kickdrift's engine; Schwager & Pöschel 2007) and
+ * `overlapZero` (it ends where the overlap does and the force may pull meanwhile, as in an engine
+ * that does not clamp; Luding 2008) — linear as the damping ratio ζ (c = 2ζ√(m*·k)), Hertz as β
+ * (η = β√(m*·k_H)). One entry per contact model and restitution the sweep uses.
+ */
+export const envelopeDampingSchema = z.discriminatedUnion("kind", [
+  z.strictObject({ kind: z.literal("none") }),
+  z.strictObject({
+    kind: z.literal("coefficient"),
+    /** c (N·s/m, linear) or η (N·s/m^1.25, Hertz) as the spec gives it; its restitution depends on the criterion, stiffness and mass. */
+    values: z.array(z.strictObject({ model: z.enum(["linear", "hertz"]), value: z.number().min(0), unit: z.string() })),
+  }),
+  z.strictObject({
+    kind: z.literal("restitution"),
+    values: z.array(z.strictObject({ model: z.enum(["linear", "hertz"]), restitution: z.number(), forceZero: criterionDamping, overlapZero: criterionDamping })),
+  }),
+]);
+
+export type EnvelopeDamping = z.infer<typeof envelopeDampingSchema>;
+
+/** The damping entry of a sweep's envelope export: its contact models × its damping values (axes included). */
+export function envelopeDamping(spec: { scenario: Pick<Scenario, "contact">; axes: readonly { parameter: string; pairs?: readonly { restitution?: number }[] }[] }, axes: readonly ExpandedAxis[]): EnvelopeDamping {
+  const scenario = spec.scenario;
+  const damping = scenario.contact.damping;
+  const modelAxis = axes.find((axis) => axis.parameter === "contact.model");
+  const models = (modelAxis ? modelAxis.values : [scenario.contact.model]) as ("linear" | "hertz")[];
+  if (damping.kind === "none") return { kind: "none" };
+  const valueAxis = axes.find((axis) => axis.parameter === (damping.kind === "restitution" ? "contact.damping.restitution" : "contact.damping.coefficient"));
+  const values = new Set<number>(valueAxis ? (valueAxis.values as number[]) : [damping.value]);
+  if (damping.kind === "restitution") {
+    // Pairs may carry their own restitution (scene.pair axis).
+    for (const axis of spec.axes) for (const pair of axis.pairs ?? []) if (pair.restitution !== undefined) values.add(pair.restitution);
+    const sorted = [...values].sort((a, b) => b - a);
+    return { kind: "restitution", values: models.flatMap((model) => sorted.map((restitution) => restitutionDamping(model, restitution))) };
+  }
+  const sorted = [...values].sort((a, b) => a - b);
+  return { kind: "coefficient", values: models.flatMap((model) => sorted.map((value) => ({ model, value, unit: model === "linear" ? "N·s/m" : "N·s/m^1.25" }))) };
+}
 
 /** The published schema of an envelope export (JSON); docs/api.md describes every field. */
 export const envelopeDocumentSchema = z.strictObject({
@@ -151,6 +199,7 @@ export const envelopeDocumentSchema = z.strictObject({
   verdictRules: z.number().int().min(1),
   tolerances: z.record(z.string(), z.number()),
   contactEnd: z.literal(CONTACT_END_CRITERION),
+  damping: envelopeDampingSchema,
   rows: z.array(
     z.strictObject({
       x: z.union([z.number(), z.string()]),
@@ -172,6 +221,8 @@ export interface EnvelopeExportContext {
   y: number;
   verdictRules: number;
   tolerances: Readonly<Record<string, number | undefined>>;
+  /** envelopeDamping(spec.scenario, axes). */
+  damping: EnvelopeDamping;
 }
 
 export function envelopeDocument(envelope: Envelope, context: EnvelopeExportContext): EnvelopeDocument {
@@ -190,6 +241,7 @@ export function envelopeDocument(envelope: Envelope, context: EnvelopeExportCont
     verdictRules: context.verdictRules,
     tolerances,
     contactEnd: CONTACT_END_CRITERION,
+    damping: context.damping,
     rows: envelope.rows.map((row) => ({ x: row.x, safeY: row.safeY, limit: row.yLimit, status: row.status })),
   };
 }

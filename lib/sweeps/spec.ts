@@ -245,6 +245,7 @@ export const contactSchema = z.strictObject({
       poissonRatio: ruledNumber(numericRule("contact.material.poissonRatio", "pair")),
     })
     .optional(),
+  wall: z.enum(["disc-material", "rigid"], { error: "contact.wall must be disc-material or rigid" }).optional(),
   damping: dampingSchema.default(() => ({ kind: "none" as const })),
   friction: z
     .strictObject({
@@ -371,6 +372,9 @@ function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
       message: "the hertz contact model needs exactly one of contact.stiffness (N/m^1.5) or contact.material",
       severity: 1,
     });
+  }
+  if (contact.wall !== undefined && (contact.model !== "hertz" || contact.material === undefined)) {
+    problems.push({ check: "wall-material", paths: ["contact.wall", "contact.material"], message: "contact.wall applies to the hertz model with contact.material only (a given stiffness is used at walls as it is)", severity: 1 });
   }
 
   const subStepS = scenario.dtS / scenario.substeps;

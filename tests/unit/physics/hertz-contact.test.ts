@@ -54,6 +54,28 @@ describe("Hertz contact", () => {
     expect(relativeError(result.metrics.maxOverlapFraction * radiusM, hertzMaxOverlapM(kH, massKg, speed))).toBeLessThan(1e-5);
   });
 
+  it("a rigid wall: Johnson's contact time with 1/E* = (1 − ν²)/E, 2^(−2/5) of the disc-material wall's", () => {
+    const speed = 0.8;
+    // Johnson 1985, Contact Mechanics, §4.2 and §11.1: a sphere on a rigid half-space, E* = E/(1 − ν²), R* = R, m* = m.
+    const rigidStiffness = hertzStiffnessFromModulus(youngsModulusPa / (1 - poissonRatio * poissonRatio), radiusM);
+    const expectedTime = hertzContactDurationS(rigidStiffness, massKg, speed);
+    const scene: Scene = { kind: "wall", massKg, radiusM, speedMPerS: speed, angleDeg: 0, gapM: 1e-4 };
+    const run = (wall: "rigid" | "disc-material" | undefined) =>
+      simulate(scenario(scene, { ...materialContact(), ...(wall ? { wall } : {}) }, "velocity-verlet", expectedTime / 3000, 4 * expectedTime + 1e-4 / speed, { verdictRules: 3 })).metrics;
+    const rigid = run("rigid");
+    expect(relativeError(rigid.contactDurationS!, expectedTime)).toBeLessThan(1e-5);
+    expect(relativeError(rigid.maxOverlapFraction * radiusM, hertzMaxOverlapM(rigidStiffness, massKg, speed))).toBeLessThan(1e-5);
+    // t_c ∝ k_H^{−2/5} (Johnson §11.1) and k_H doubles against a rigid wall: the disc-material wall lasts 2^{2/5} = 1.32 times as long.
+    const discMaterial = run("disc-material");
+    expect(discMaterial.contactDurationS! / rigid.contactDurationS!).toBeCloseTo(Math.pow(2, 0.4), 4);
+    expect(run(undefined).contactDurationS).toBe(discMaterial.contactDurationS); // absent: the disc's material, as before
+    // Disc–disc contacts keep the discs' material whatever the wall is.
+    const pairContact = { ...materialContact(), wall: "rigid" as const };
+    const pairTime = hertzContactDurationS(hertzStiffnessFromModulus(effectiveModulusSameMaterialPa(youngsModulusPa, poissonRatio), effectiveRadiusM(radiusM, radiusM)), massKg / 2, 1);
+    const pairRun = simulate(scenario(pair(1), pairContact, "velocity-verlet", pairTime / 3000, 4 * pairTime + 1e-4, { verdictRules: 3 }));
+    expect(relativeError(pairRun.metrics.contactDurationS!, pairTime)).toBeLessThan(1e-5);
+  });
+
   it("Tsuji-type damping: restitution is independent of impact speed and equals the target", () => {
     const target = 0.6;
     const measured = [0.1, 1, 10].map((speed) => {

@@ -115,6 +115,16 @@ describe("catalogue pairs and game settings", () => {
     expect(document.contact.lightestPair).toBe(recommendation.lightestPair);
     expect(document.contact.effectiveMassKg).toBe(recommendation.lightestReducedMassKg);
     expect(document.pairs.every((pair) => pair.dampingRatio === linearDampingRatioForRestitution(pair.restitution as number))).toBe(true);
+    // Both contact-end criteria: the force-zero damping above (Schwager & Pöschel 2007) and, for an engine
+    // that does not clamp, the overlap-zero one, ζ = −ln e/√(π² + ln² e) (Luding 2008), c = 2ζ√(k·m*).
+    expect(document.contactEnd).toBe("force-zero");
+    for (const pair of document.pairs) {
+      const logE = Math.log(pair.restitution as number);
+      const zeta = -logE / Math.sqrt(Math.PI ** 2 + logE ** 2);
+      expect(pair.overlapZero.dampingRatio).toBeCloseTo(zeta, 14);
+      expect(pair.overlapZero.dampingNsPerM).toBeCloseTo(2 * zeta * Math.sqrt(pair.stiffnessNPerM * pair.effectiveMassKg), 9);
+      if ((pair.restitution as number) < 1) expect(pair.overlapZero.dampingRatio).toBeLessThan(pair.dampingRatio); // the clamp ends the contact sooner: more damping for the same bounce
+    }
     const hertz = checkSettingsSchema.parse({ ...CRATESLIDE_SETTINGS, contactModel: "hertz", stiffness: 1e8 });
     expect(() => gameSettings({ checkId: "chk_x", catalogue: { name: "c", version: 1 }, objects, settings: hertz, recommendation: recommend(objects, hertz), stiffness: "checked" })).toThrow(GameSettingsError);
   });

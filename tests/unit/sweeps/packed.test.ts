@@ -176,7 +176,16 @@ describe("scenario keys", () => {
     // New sweeps are judged by rules 2 (the default): their keys carry the version and the tolerances
     // it added, so a cell judged by rules 1 never serves them. Values as first released with rules 2.
     expect(keyOf(firstCell(puckPairSpec()))).toEqual([0xc892b111, 0x74ec2c13, 0x8fb65498, 0xdfe1b824]);
-    expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0x4bbb015f, 0x7a697f0a, 0x5b63bb52, 0x69a1505e]);
+    // Rules 3 (the default since) change only Hertz cells (the contact end): a Hertz cell under rules 3
+    // has a key of its own, a linear one keeps its rules-2 key (puckPair and box above are linear).
+    const rules2 = <T extends { scenario: object }>(spec: T) => ({ ...spec, scenario: { ...spec.scenario, verdictRules: 2 } });
+    expect(keyOf(firstCell(rules2(bumperWallSpec() as { scenario: object })))).toEqual([0x4bbb015f, 0x7a697f0a, 0x5b63bb52, 0x69a1505e]);
+    expect(keyOf(firstCell(rules2(puckPairSpec() as { scenario: object })))).toEqual([0xc892b111, 0x74ec2c13, 0x8fb65498, 0xdfe1b824]);
+    expect(keyOf(firstCell(bumperWallSpec()))).toEqual([0x23b4ce12, 0x3b743a2e, 0xc4a44c49, 0xa69813e2]);
+    // A named wall is keyed (absent keys as before): rigid and disc-material differ from each other and from absent.
+    const withWall = (wall: string) => { const spec = bumperWallSpec() as { scenario: { contact: object } }; return { ...spec, scenario: { ...spec.scenario, contact: { ...spec.scenario.contact, wall } } }; };
+    const wallKeys = [keyOf(firstCell(withWall("rigid"))), keyOf(firstCell(withWall("disc-material"))), keyOf(firstCell(bumperWallSpec()))].map((key) => key.join(","));
+    expect(new Set(wallKeys).size).toBe(3);
     expect(keyOf(firstCell(box))).toEqual([0x738b20bd, 0x4ca20e06, 0x4ad9bc62, 0x8299ded2]);
     const stricter = firstCell({ ...box, scenario: { ...box.scenario, tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1000, restitutionRel: 0.02 } } });
     expect(keyOf(stricter)).not.toEqual(keyOf(firstCell(box)));

@@ -14,6 +14,26 @@ function fieldsOf(input: unknown): string[] {
   return issuesOf(input).map((issue) => issue.field);
 }
 
+describe("sweep spec: the wall of a Hertz contact", () => {
+  it("takes rigid or disc-material with a material, and names contact.wall otherwise", () => {
+    for (const wall of ["rigid", "disc-material"]) {
+      const spec = clone(bumperWallSpec()) as Draft;
+      spec.scenario.contact.wall = wall;
+      const result = parseSweepSpec(spec);
+      expect(result.ok && result.spec.scenario.contact.wall).toBe(wall);
+    }
+    const unknown = clone(bumperWallSpec()) as Draft;
+    unknown.scenario.contact.wall = "granite";
+    expect(issuesOf(unknown)).toEqual([{ field: "scenario.contact.wall", message: "contact.wall must be disc-material or rigid" }]);
+    const givenStiffness = clone(bumperWallSpec()) as Draft;
+    givenStiffness.scenario.contact = { model: "hertz", stiffness: 1e9, wall: "rigid", damping: { kind: "none" } };
+    expect(issuesOf(givenStiffness)).toEqual([{ field: "scenario.contact.wall", message: expect.stringContaining("contact.wall applies to the hertz model with contact.material only") }]);
+    const linear = clone(puckPairSpec()) as Draft;
+    linear.scenario.contact.wall = "rigid";
+    expect(fieldsOf(linear)).toEqual(["scenario.contact.wall"]);
+  });
+});
+
 describe("sweep spec: valid input", () => {
   it("parses into the engine's Scenario, with tolerances, substeps and seed defaulted", () => {
     const result = parseSweepSpec(bumperWallSpec());
