@@ -263,12 +263,13 @@ export interface CheckView {
   confirmation: Confirmation | null;
 }
 
-/** The settings of a check confirming the recommended single stiffness. */
+/** The settings of a check confirming the advised single stiffness (and substeps, when the advice raises them). */
 export function confirmationSettings(settings: CheckSettings, recommendation: Recommendation): CheckSettings | null {
-  if (recommendation.stiffness === null) return null;
+  const advised = recommendation.advice.settings;
+  if (advised === null) return null;
   const { groupStiffness: _ignored, ...rest } = settings;
   void _ignored;
-  return { ...rest, stiffness: recommendation.stiffness };
+  return { ...rest, substeps: advised.substeps, stiffness: advised.stiffness };
 }
 
 export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCheck): Promise<CheckView> {
