@@ -103,9 +103,16 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
               </span>
             }
             actions={
-              <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file`} download>
-                Download original file
-              </a>
+              <div className="flex flex-wrap gap-2">
+                <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file`} download data-testid="download-original">
+                  Download original file
+                </a>
+                {detail.data.catalogue.original ? (
+                  <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file?copy=saved`} download data-testid="download-corrected">
+                    Download corrected table (CSV)
+                  </a>
+                ) : null}
+              </div>
             }
           >
             <dl className="mb-4 grid gap-2 text-sm sm:grid-cols-3">
@@ -114,6 +121,11 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
                 <dd className="font-mono text-xs">
                   {detail.data.catalogue.fileName} ({detail.data.catalogue.fileBytes.toLocaleString("en")} bytes)
                 </dd>
+                {detail.data.catalogue.original ? (
+                  <dd className="mt-1 text-xs text-ink-muted" data-testid="catalogue-original">
+                    Corrected on upload from {detail.data.catalogue.original.fileName} ({detail.data.catalogue.original.fileBytes.toLocaleString("en")} bytes, SHA-256 {detail.data.catalogue.original.contentHash.slice(0, 12)}…), kept as the original file.
+                  </dd>
+                ) : null}
               </div>
               <div>
                 <dt className="text-ink-muted">SHA-256</dt>
