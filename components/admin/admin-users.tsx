@@ -10,6 +10,7 @@ import { queryKeys } from "@/lib/ui/queries";
 import type { AdminUser } from "@/lib/ui/types";
 import { AdminNav } from "./admin-nav";
 import { td, th } from "./admin-format";
+import { Pager, usePaged } from "./pager";
 
 export function AdminUsers({ selfId }: { selfId: string }) {
   const queryClient = useQueryClient();
@@ -28,6 +29,7 @@ export function AdminUsers({ selfId }: { selfId: string }) {
     },
   });
   const needle = filter.trim().toLowerCase();
+  const paged = usePaged((users.data ?? []).filter((u) => !needle || [u.name, u.email].some((v) => v?.toLowerCase().includes(needle))));
   return (
     <div>
       <PageHeading eyebrow="Platform admin" title="Users and platform roles">
@@ -56,9 +58,7 @@ export function AdminUsers({ selfId }: { selfId: string }) {
               </tr>
             </thead>
             <tbody className="divide-y divide-line">
-              {users.data
-                .filter((u) => !needle || [u.name, u.email].some((v) => v?.toLowerCase().includes(needle)))
-                .map((u) => (
+              {paged.rows.map((u) => (
                   <tr key={u.id}>
                     <td className={td}>
                       <div className="font-medium">{u.name || "—"}</div>
@@ -81,6 +81,7 @@ export function AdminUsers({ selfId }: { selfId: string }) {
             </tbody>
           </table>
         )}
+        {users.data && users.data.length > 0 ? <Pager paged={paged} label="users" /> : null}
       </Card>
       <ConfirmDialog
         open={pending !== null}
