@@ -4,6 +4,8 @@ import { expect, linkFromMailbox, signInWithPassword, test, uniqueEmail } from "
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };
 
 test("a new owner builds a studio and an invited engineer joins it through the mailed links", async ({ browser }) => {
+  // Sign-up, invitation, role confirmations and the phone layout: more steps than the default 90 s allows on a loaded machine.
+  test.setTimeout(180_000);
   const ownerEmail = uniqueEmail("noor");
   const engineerEmail = uniqueEmail("pavel");
   const studioName = "Driftwood Pucks";
