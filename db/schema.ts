@@ -543,6 +543,14 @@ export const catalogues = pgTable(
     format: text("format", { enum: ["csv", "json"] }).notNull(),
     objects: jsonb("objects").notNull(),
     objectCount: integer("object_count").notNull(),
+    /**
+     * When the table was corrected on the upload page before saving, the file as the user uploaded
+     * it (the columns above then hold the corrected CSV the objects come from); null otherwise.
+     */
+    originalFileName: text("original_file_name"),
+    originalFileBase64: text("original_file_base64"),
+    originalFileBytes: integer("original_file_bytes"),
+    originalContentHash: text("original_content_hash"),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },

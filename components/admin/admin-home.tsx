@@ -9,6 +9,7 @@ import { queryKeys } from "@/lib/ui/queries";
 import type { StudioUsageView } from "@/lib/quotas/admin";
 import { AdminNav } from "./admin-nav";
 import { minutes, td, th } from "./admin-format";
+import { Pager, usePaged } from "./pager";
 
 export function AdminHome() {
   const [filter, setFilter] = useState("");
@@ -19,6 +20,7 @@ export function AdminHome() {
   });
   const needle = filter.trim().toLowerCase();
   const matches = (...values: (string | null | undefined)[]) => !needle || values.some((value) => value?.toLowerCase().includes(needle));
+  const paged = usePaged((studios.data ?? []).filter((studio) => matches(studio.name, studio.id, studio.status)));
 
   return (
     <div>
@@ -28,7 +30,7 @@ export function AdminHome() {
       </PageHeading>
       <AdminNav />
       <div className="mb-6 max-w-sm">
-        <TextField id="admin-filter" label="Filter by name or id" type="search" value={filter} onChange={(event) => setFilter(event.target.value)} />
+        <TextField id="admin-filter" label="Filter by name or id" hint="also matches a status: active, suspended" type="search" value={filter} onChange={(event) => setFilter(event.target.value)} />
       </div>
       <Card title={`Studios${studios.data ? ` (${studios.data.length})` : ""}`}>
         {studios.isPending ? (
@@ -51,9 +53,7 @@ export function AdminHome() {
                 </tr>
               </thead>
               <tbody className="divide-y divide-line">
-                {studios.data
-                  .filter((studio) => matches(studio.name, studio.id))
-                  .map((studio) => (
+                {paged.rows.map((studio) => (
                     <tr key={studio.id}>
                       <td className={td}>
                         <Link href={`/admin/studios/${encodeURIComponent(studio.id)}`} className="font-medium underline-offset-2 hover:underline">
@@ -80,6 +80,7 @@ export function AdminHome() {
                   ))}
               </tbody>
             </table>
+            <Pager paged={paged} label="studios" />
           </div>
         )}
       </Card>

@@ -3,6 +3,7 @@
 import Link from "next/link";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState, type FormEvent } from "react";
+import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, Card, LoadingRows, PageHeading, RoleBadge, SelectField, TextField, cx } from "@/components/ui";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate, formatDateTime } from "@/lib/ui/format";
@@ -45,8 +46,8 @@ export function AdminStudio({ studioId }: { studioId: string }) {
       <div className="grid grid-cols-1 gap-6 xl:grid-cols-2">
         <QuotaForm studioId={studioId} quotas={quotas} onSaved={refresh} />
         <div className="space-y-6">
-          <AdjustmentForm studioId={studioId} adjustments={adjustments} onSaved={refresh} />
-          <StatusForm studioId={studioId} status={studio.status} onSaved={refresh} />
+          <AdjustmentForm studioId={studioId} studioName={studio.name} balanceMs={studio.balanceMs} adjustments={adjustments} onSaved={refresh} />
+          <StatusForm studioId={studioId} studioName={studio.name} status={studio.status} memberCount={members.length} running={studio.runningSweeps + studio.queuedSweeps} onSaved={refresh} />
         </div>
         <Card title={`Members (${members.length})`}>
           <table className="w-full text-sm">
@@ -187,7 +188,9 @@ function QuotaForm({ studioId, quotas, onSaved }: { studioId: string; quotas: Qu
   );
 }
 
-function AdjustmentForm({ studioId, adjustments, onSaved }: { studioId: string; adjustments: AdjustmentView[]; onSaved: () => void }) {
+function AdjustmentForm({ studioId, studioName, balanceMs, adjustments, onSaved }: { studioId: string; studioName: string; balanceMs: number; adjustments: AdjustmentView[]; onSaved: () => void }) {
+  // A revoke waits for confirmation (the amount in minutes, the balance it leaves).
+  const [pendingRevokeMs, setPendingRevokeMs] = useState<number | null>(null);
   const [direction, setDirection] = useState("grant");
   const [amount, setAmount] = useState("");
   const [reason, setReason] = useState("");
@@ -198,6 +201,7 @@ function AdjustmentForm({ studioId, adjustments, onSaved }: { studioId: string; 
     onSuccess: () => {
       setAmount("");
       setReason("");
+      setPendingRevokeMs(null);
       setKey(`ui-${crypto.randomUUID()}`);
       onSaved();
     },
@@ -208,9 +212,11 @@ function AdjustmentForm({ studioId, adjustments, onSaved }: { studioId: string; 
     event.preventDefault();
     const value = Number(amount);
     if (!(value > 0)) return setLocalError("Minutes: enter a number of minutes greater than 0.");
+    if (reason.trim() === "") return setLocalError("Reason: write why; it is shown in the studio's ledger and kept in the audit log.");
     setLocalError(null);
     const ms = Math.round(value * 60_000);
-    adjust.mutate({ computeMs: direction === "grant" ? ms : -ms, reason, idempotencyKey });
+    if (direction === "revoke") return setPendingRevokeMs(ms);
+    adjust.mutate({ computeMs: ms, reason, idempotencyKey });
   }
   return (
     <Card title="Credit adjustments">
@@ -226,6 +232,25 @@ function AdjustmentForm({ studioId, adjustments, onSaved }: { studioId: string; 
           {adjust.isPending ? "Recording…" : "Record adjustment"}
         </Button>
       </form>
+      <ConfirmDialog
+        open={pendingRevokeMs !== null}
+        title={`Revoke ${minutes(pendingRevokeMs ?? 0)} from ${studioName}?`}
+        confirmLabel="Revoke minutes"
+        danger
+        busy={adjust.isPending}
+        error={adjust.isError && pendingRevokeMs !== null ? adjust.error.message : null}
+        onConfirm={() => pendingRevokeMs !== null && adjust.mutate({ computeMs: -pendingRevokeMs, reason, idempotencyKey })}
+        onCancel={() => {
+          adjust.reset();
+          setPendingRevokeMs(null);
+        }}
+        testId="confirm-revoke-minutes"
+      >
+        <p>
+          The balance goes from {minutes(balanceMs)} to {minutes(balanceMs - (pendingRevokeMs ?? 0))}
+          {balanceMs - (pendingRevokeMs ?? 0) < 0 ? " — below zero, which is refused" : ""}. The studio sees the revoke in its ledger with your reason: “{reason.trim()}”.
+        </p>
+      </ConfirmDialog>
       {adjustments.length > 0 ? (
         <ul className="mt-4 divide-y divide-line text-sm" data-testid="adjustments">
           {adjustments.map((a) => (
@@ -243,38 +268,51 @@ function AdjustmentForm({ studioId, adjustments, onSaved }: { studioId: string; 
   );
 }
 
-function StatusForm({ studioId, status, onSaved }: { studioId: string; status: string; onSaved: () => void }) {
-  const [reason, setReason] = useState("");
+function StatusForm({ studioId, studioName, status, memberCount, running, onSaved }: { studioId: string; studioName: string; status: string; memberCount: number; running: number; onSaved: () => void }) {
+  const [confirming, setConfirming] = useState(false);
   const next = status === "suspended" ? "active" : "suspended";
   const change = useMutation({
-    mutationFn: () => apiFetch(`${adminStudioPath(studioId)}/status`, { method: "PUT", body: { status: next, reason } }),
+    mutationFn: (reason: string) => apiFetch(`${adminStudioPath(studioId)}/status`, { method: "PUT", body: { status: next, reason } }),
     onSuccess: () => {
-      setReason("");
+      setConfirming(false);
       onSaved();
     },
   });
-  const error = change.error instanceof ApiClientError ? change.error : null;
   return (
     <Card title="Studio status">
-      <form
-        className="space-y-3"
-        aria-label="Studio status"
-        onSubmit={(event) => {
-          event.preventDefault();
-          change.mutate();
-        }}
-      >
+      <div className="space-y-3">
         <p className="text-sm text-ink-muted">
           {status === "suspended"
             ? "Suspended: its sweeps are paused and new ones are refused; members can still read and export."
             : "Suspending pauses the studio's running sweeps and refuses new ones; members can still read and export."}
         </p>
-        <TextField id="status-reason" label="Reason (recorded in the audit log)" value={reason} onChange={(e) => setReason(e.target.value)} error={error?.messageFor("reason")} />
-        {error && !error.messageFor("reason") ? <Alert>{error.message}</Alert> : null}
-        <Button type="submit" variant={next === "suspended" ? "danger" : "primary"} disabled={change.isPending}>
+        <Button variant={next === "suspended" ? "danger" : "primary"} onClick={() => setConfirming(true)} disabled={change.isPending}>
           {next === "suspended" ? "Suspend studio" : "Lift suspension"}
         </Button>
-      </form>
+      </div>
+      <ConfirmDialog
+        open={confirming}
+        title={next === "suspended" ? `Suspend ${studioName}?` : `Lift the suspension of ${studioName}?`}
+        confirmLabel={next === "suspended" ? "Suspend studio" : "Lift suspension"}
+        danger={next === "suspended"}
+        reason={{ label: "Reason (recorded in the audit log and e-mailed to the members)" }}
+        busy={change.isPending}
+        error={change.isError ? change.error.message : null}
+        onConfirm={(reason) => change.mutate(reason)}
+        onCancel={() => {
+          change.reset();
+          setConfirming(false);
+        }}
+        testId="confirm-studio-status"
+      >
+        {next === "suspended" ? (
+          <p>
+            {running > 0 ? `Its ${running} queued or running sweeps pause at once` : "Nothing of it is running now"}; new sweeps are refused until you lift the suspension. Its {memberCount} members see a banner and get an e-mail with your reason.
+          </p>
+        ) : (
+          <p>Its paused sweeps resume and its {memberCount} members get an e-mail that the studio is active again.</p>
+        )}
+      </ConfirmDialog>
     </Card>
   );
 }

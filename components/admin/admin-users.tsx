@@ -2,6 +2,7 @@
 
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
+import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, Card, EmptyState, LoadingRows, PageHeading, TextField } from "@/components/ui";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
@@ -9,6 +10,7 @@ import { queryKeys } from "@/lib/ui/queries";
 import type { AdminUser } from "@/lib/ui/types";
 import { AdminNav } from "./admin-nav";
 import { td, th } from "./admin-format";
+import { Pager, usePaged } from "./pager";
 
 export function AdminUsers({ selfId }: { selfId: string }) {
   const queryClient = useQueryClient();
@@ -17,11 +19,17 @@ export function AdminUsers({ selfId }: { selfId: string }) {
     queryKey: queryKeys.adminUsers,
     queryFn: async () => (await apiFetch<{ users: AdminUser[] }>("/api/v1/admin/users")).users,
   });
+  const [pending, setPending] = useState<AdminUser | null>(null);
   const change = useMutation({
-    mutationFn: ({ id, isAdmin }: { id: string; isAdmin: boolean }) => apiFetch(`/api/v1/admin/users/${encodeURIComponent(id)}`, { method: "PATCH", body: { isAdmin } }),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: queryKeys.adminUsers }),
+    mutationFn: ({ id, isAdmin, reason }: { id: string; isAdmin: boolean; reason: string }) =>
+      apiFetch(`/api/v1/admin/users/${encodeURIComponent(id)}`, { method: "PATCH", body: { isAdmin, reason } }),
+    onSuccess: () => {
+      setPending(null);
+      return queryClient.invalidateQueries({ queryKey: queryKeys.adminUsers });
+    },
   });
   const needle = filter.trim().toLowerCase();
+  const paged = usePaged((users.data ?? []).filter((u) => !needle || [u.name, u.email].some((v) => v?.toLowerCase().includes(needle))));
   return (
     <div>
       <PageHeading eyebrow="Platform admin" title="Users and platform roles">
@@ -31,7 +39,6 @@ export function AdminUsers({ selfId }: { selfId: string }) {
       <div className="mb-6 max-w-sm">
         <TextField id="users-filter" label="Filter by name or e-mail" type="search" value={filter} onChange={(e) => setFilter(e.target.value)} />
       </div>
-      {change.isError ? <Alert>{errorMessage(change.error)}</Alert> : null}
       <Card title={`Users${users.data ? ` (${users.data.length})` : ""}`}>
         {users.isPending ? (
           <LoadingRows label="users" />
@@ -51,9 +58,7 @@ export function AdminUsers({ selfId }: { selfId: string }) {
               </tr>
             </thead>
             <tbody className="divide-y divide-line">
-              {users.data
-                .filter((u) => !needle || [u.name, u.email].some((v) => v?.toLowerCase().includes(needle)))
-                .map((u) => (
+              {paged.rows.map((u) => (
                   <tr key={u.id}>
                     <td className={td}>
                       <div className="font-medium">{u.name || "—"}</div>
@@ -66,7 +71,7 @@ export function AdminUsers({ selfId }: { selfId: string }) {
                       {u.id === selfId ? (
                         <span className="text-xs text-ink-muted">you</span>
                       ) : (
-                        <Button variant="secondary" disabled={change.isPending} onClick={() => change.mutate({ id: u.id, isAdmin: !u.isAdmin })}>
+                        <Button variant="secondary" disabled={change.isPending} onClick={() => setPending(u)}>
                           {u.isAdmin ? "Remove admin" : "Make admin"}
                         </Button>
                       )}
@@ -76,7 +81,29 @@ export function AdminUsers({ selfId }: { selfId: string }) {
             </tbody>
           </table>
         )}
+        {users.data && users.data.length > 0 ? <Pager paged={paged} label="users" /> : null}
       </Card>
+      <ConfirmDialog
+        open={pending !== null}
+        title={pending ? (pending.isAdmin ? `Remove the platform admin role of ${pending.email}?` : `Make ${pending.email} a platform admin?`) : ""}
+        confirmLabel={pending?.isAdmin ? "Remove admin" : "Make admin"}
+        danger
+        reason={{ label: "Reason (recorded in the audit log)" }}
+        busy={change.isPending}
+        error={change.isError && pending ? errorMessage(change.error) : null}
+        onConfirm={(reason) => pending && change.mutate({ id: pending.id, isAdmin: !pending.isAdmin, reason })}
+        onCancel={() => {
+          change.reset();
+          setPending(null);
+        }}
+        testId="confirm-platform-role"
+      >
+        {pending?.isAdmin ? (
+          <p>They lose the admin console at once: quotas, credit adjustments, suspensions and this list.</p>
+        ) : (
+          <p>A platform admin sets every studio&apos;s quotas, grants and revokes credit, suspends studios and reads the audit log of all of them.</p>
+        )}
+      </ConfirmDialog>
     </div>
   );
 }

@@ -12,4 +12,8 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "token.revoke": "Token revoked",
   "user.platform_role": "Platform role change",
   "payment.mismatch": "Payment not matching its pack",
+  "payment.purchase": "Pack bought",
+  "invite.create": "Invitation sent",
+  "invite.withdraw": "Invitation withdrawn",
+  "invite.accept": "Invitation accepted",
 };

@@ -1,71 +1,146 @@
 "use client";
 
 import { useQuery } from "@tanstack/react-query";
-import { Alert, EmptyState, LoadingRows } from "@/components/ui";
+import { useState } from "react";
+import { Alert, EmptyState, LoadingRows, TextField } from "@/components/ui";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
-import type { AuditView } from "@/lib/audit/audit";
-import { td, th } from "./admin-format";
+import type { AuditAction, AuditView } from "@/lib/audit/audit";
+import { minutes, td, th } from "./admin-format";
+import { AUDIT_ACTION_LABELS } from "./audit-actions";
+import { Pager, usePaged } from "./pager";
 
-function compact(value: unknown): string {
-  if (value === null || value === undefined) return "—";
-  return JSON.stringify(value);
+/** A value of an audit entry for a person: milliseconds of compute as minutes, cents as money, the rest as it is. */
+function readable(key: string, value: unknown): string {
+  if (value === null || value === undefined) return "none";
+  if (typeof value === "number" && /Ms$/.test(key)) return minutes(value);
+  if (typeof value === "number" && /Cents$/.test(key)) return `${(value / 100).toLocaleString("en", { minimumFractionDigits: 2, maximumFractionDigits: 2 })}`;
+  if (typeof value === "boolean") return value ? "yes" : "no";
+  if (Array.isArray(value)) return value.join(", ");
+  if (typeof value === "object") return JSON.stringify(value);
+  return String(value);
 }
 
-/** Audit entries for a query string (the same filters as the API); newest first, with a CSV link for the same rows. */
+/** Words for a field name: "monthlyComputeMs" → "monthly compute". */
+function words(key: string): string {
+  return key
+    .replace(/(Ms|Cents|Kg)$/, "")
+    .replace(/([a-z])([A-Z])/g, "$1 $2")
+    .toLowerCase();
+}
+
+/** One line for the table: what changed, from → to, field by field. */
+export function auditSummary(entry: Pick<AuditView, "before" | "after">): string {
+  const before = (entry.before ?? {}) as Record<string, unknown>;
+  const after = (entry.after ?? {}) as Record<string, unknown>;
+  const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])];
+  if (keys.length === 0) return "—";
+  return keys
+    .map((key) => {
+      if (entry.before === null || entry.before === undefined) return `${words(key)} ${readable(key, after[key])}`;
+      if (entry.after === null || entry.after === undefined) return `${words(key)} was ${readable(key, before[key])}`;
+      return `${words(key)} ${readable(key, before[key])} → ${readable(key, after[key])}`;
+    })
+    .join("; ");
+}
+
+/**
+ * Audit entries for a query string (the same filters as the API); newest first, a page at a time,
+ * searchable, each row opening into its full before and after values; a CSV link for the same rows.
+ */
 export function AuditTable({ query }: { query: URLSearchParams }) {
   const search = query.toString();
+  const [needle, setNeedle] = useState("");
   const entries = useQuery({
     queryKey: ["admin", "audit", search],
     queryFn: async () => (await apiFetch<{ entries: AuditView[] }>(`/api/v1/admin/audit${search ? `?${search}` : ""}`)).entries,
   });
+  const text = needle.trim().toLowerCase();
+  const shown = (entries.data ?? []).filter(
+    (e) => !text || [e.actor, e.action, AUDIT_ACTION_LABELS[e.action as AuditAction] ?? "", e.subjectId, e.reason, auditSummary(e)].some((v) => v.toLowerCase().includes(text)),
+  );
+  const paged = usePaged(shown);
   const csv = new URLSearchParams(query);
   csv.set("format", "csv");
   return (
     <div>
-      <p className="mb-3 text-sm">
-        <a className="font-medium underline" href={`/api/v1/admin/audit?${csv.toString()}`} download>
+      <div className="mb-3 flex flex-wrap items-end justify-between gap-3">
+        <div className="w-full max-w-xs">
+          <TextField id={`audit-search-${search || "all"}`} label="Search these entries" type="search" value={needle} onChange={(e) => setNeedle(e.target.value)} />
+        </div>
+        <a className="text-sm font-medium underline" href={`/api/v1/admin/audit?${csv.toString()}`} download>
           Export these entries as CSV
         </a>
-      </p>
+      </div>
       {entries.isPending ? (
         <LoadingRows label="audit entries" />
       ) : entries.isError ? (
         <Alert>{errorMessage(entries.error)}</Alert>
-      ) : entries.data.length === 0 ? (
+      ) : shown.length === 0 ? (
         <EmptyState>No audit entries match.</EmptyState>
       ) : (
-        <div className="relative overflow-x-auto">
-          <table className="w-full text-sm" data-testid="audit-table">
+        <>
+          <table className="w-full table-fixed text-sm" data-testid="audit-table">
             <thead className="border-b border-line">
               <tr>
-                <th scope="col" className={th}>When</th>
-                <th scope="col" className={th}>Who</th>
-                <th scope="col" className={th}>Action</th>
-                <th scope="col" className={th}>Subject</th>
-                <th scope="col" className={th}>Before</th>
-                <th scope="col" className={th}>After</th>
-                <th scope="col" className={th}>Reason</th>
+                <th scope="col" className={`${th} w-40`}>When</th>
+                <th scope="col" className={`${th} w-48`}>Who</th>
+                <th scope="col" className={`${th} w-44`}>What</th>
+                <th scope="col" className={th}>Change</th>
+                <th scope="col" className={`${th} w-56`}>Reason</th>
               </tr>
             </thead>
-            <tbody className="divide-y divide-line">
-              {entries.data.map((e) => (
-                <tr key={e.id}>
-                  <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDateTime(e.at)}</td>
-                  <td className={td}>{e.actor}</td>
-                  <td className={`${td} font-mono text-xs`}>{e.action}</td>
-                  <td className={`${td} font-mono text-xs`}>
-                    {e.subjectType} {e.subjectId}
-                  </td>
-                  <td className={`${td} font-mono text-xs`}>{compact(e.before)}</td>
-                  <td className={`${td} font-mono text-xs`}>{compact(e.after)}</td>
-                  <td className={td}>{e.reason || "—"}</td>
-                </tr>
-              ))}
-            </tbody>
+            {paged.rows.map((e) => (
+              <AuditRow key={e.id} entry={e} />
+            ))}
           </table>
-        </div>
+          <Pager paged={paged} label="entries" />
+        </>
       )}
     </div>
+  );
+}
+
+function AuditRow({ entry: e }: { entry: AuditView }) {
+  const [open, setOpen] = useState(false);
+  const detailId = `audit-detail-${e.id}`;
+  return (
+    <tbody className="border-b border-line" data-testid="audit-row" data-action={e.action}>
+      <tr>
+        <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDateTime(e.at)}</td>
+        <td className={`${td} break-words`}>{e.actor}</td>
+        <td className={td}>
+          <button type="button" aria-expanded={open} aria-controls={detailId} onClick={() => setOpen(!open)} className="text-left font-medium text-action hover:underline">
+            {AUDIT_ACTION_LABELS[e.action as AuditAction] ?? e.action}
+          </button>
+        </td>
+        <td className={`${td} break-words`}>{auditSummary(e)}</td>
+        <td className={`${td} break-words`}>{e.reason || "—"}</td>
+      </tr>
+      {open ? (
+        <tr id={detailId}>
+          <td colSpan={5} className="bg-surface-muted px-3 pb-3">
+            <dl className="grid gap-2 py-2 text-xs sm:grid-cols-[10rem_1fr]">
+              <dt className="text-ink-muted">Action</dt>
+              <dd className="font-mono">{e.action}</dd>
+              <dt className="text-ink-muted">Subject</dt>
+              <dd className="break-all font-mono">
+                {e.subjectType} {e.subjectId}
+              </dd>
+              <dt className="text-ink-muted">Studio</dt>
+              <dd className="break-all font-mono">{e.studioId ?? "—"}</dd>
+              <dt className="text-ink-muted">Before</dt>
+              <dd>
+                <pre className="whitespace-pre-wrap break-all font-mono">{e.before === null ? "—" : JSON.stringify(e.before, null, 2)}</pre>
+              </dd>
+              <dt className="text-ink-muted">After</dt>
+              <dd>
+                <pre className="whitespace-pre-wrap break-all font-mono">{e.after === null ? "—" : JSON.stringify(e.after, null, 2)}</pre>
+              </dd>
+            </dl>
+          </td>
+        </tr>
+      ) : null}
+    </tbody>
   );
 }

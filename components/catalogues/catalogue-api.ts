@@ -24,6 +24,7 @@ export const catalogueKeys = {
 };
 
 /** Uploads a catalogue file as multipart/form-data; errors come back as ApiClientError with the API's issues. */
-export async function uploadCatalogue<T>(studioId: string, file: Blob, fileName: string, name: string): Promise<T> {
-  return uploadFile<T>(cataloguesPath(studioId), file, fileName, name);
+/** Uploads a catalogue; `original` is the file as chosen when `file` is a table corrected from it. */
+export async function uploadCatalogue<T>(studioId: string, file: Blob, fileName: string, name: string, original?: { file: Blob; fileName: string }): Promise<T> {
+  return uploadFile<T>(cataloguesPath(studioId), file, fileName, name, original ? [{ field: "original", ...original }] : []);
 }

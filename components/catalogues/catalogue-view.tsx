@@ -34,7 +34,8 @@ interface FormState {
   damping: string;
   speedSteps: string;
   offsets: string;
-  margin: string;
+  /** The margin in percent, as the sweep page's safe envelope takes it; the API takes the fraction. */
+  marginPercent: string;
 }
 
 const DEFAULT_FORM: FormState = {
@@ -47,8 +48,16 @@ const DEFAULT_FORM: FormState = {
   damping: "catalogue",
   speedSteps: "6",
   offsets: "0, 0.6",
-  margin: "0.8",
+  marginPercent: "80",
 };
+
+/** What a margin allows: ω·h ≤ 2·(1 − margin), and the steps a contact then lasts (π/(ω·h)). */
+function marginHint(percentText: string): string {
+  const percent = Number(percentText);
+  if (percentText.trim() === "" || !Number.isFinite(percent) || percent < 0 || percent >= 100) return "share of the stability bound ω·h < 2 kept in reserve, 0 to 90 %";
+  const phase = 2 * (1 - percent / 100);
+  return `keeps ω·h ≤ ${Number(phase.toPrecision(3))}: a contact lasts at least ${Number((Math.PI / phase).toPrecision(2))} steps`;
+}
 
 /** The form as the API's settings; fields left empty are left out so the API names what is missing. */
 export function settingsOf(form: FormState): CheckSettingsInput {
@@ -68,7 +77,7 @@ export function settingsOf(form: FormState): CheckSettingsInput {
       .split(/[,;\s]+/)
       .filter(Boolean)
       .map(Number),
-    margin: number(form.margin),
+    margin: form.marginPercent.trim() === "" ? undefined : Number(form.marginPercent) / 100,
   };
 }
 
@@ -94,9 +103,16 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
               </span>
             }
             actions={
-              <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file`} download>
-                Download original file
-              </a>
+              <div className="flex flex-wrap gap-2">
+                <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file`} download data-testid="download-original">
+                  Download original file
+                </a>
+                {detail.data.catalogue.original ? (
+                  <a className={buttonClasses("secondary")} href={`${cataloguePath(studioId, catalogueId)}/file?copy=saved`} download data-testid="download-corrected">
+                    Download corrected table (CSV)
+                  </a>
+                ) : null}
+              </div>
             }
           >
             <dl className="mb-4 grid gap-2 text-sm sm:grid-cols-3">
@@ -105,6 +121,11 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
                 <dd className="font-mono text-xs">
                   {detail.data.catalogue.fileName} ({detail.data.catalogue.fileBytes.toLocaleString("en")} bytes)
                 </dd>
+                {detail.data.catalogue.original ? (
+                  <dd className="mt-1 text-xs text-ink-muted" data-testid="catalogue-original">
+                    Corrected on upload from {detail.data.catalogue.original.fileName} ({detail.data.catalogue.original.fileBytes.toLocaleString("en")} bytes, SHA-256 {detail.data.catalogue.original.contentHash.slice(0, 12)}…), kept as the original file.
+                  </dd>
+                ) : null}
               </div>
               <div>
                 <dt className="text-ink-muted">SHA-256</dt>
@@ -269,7 +290,15 @@ function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalo
           </SelectField>
           <TextField id="check-speeds" label="Speed steps per pair" inputMode="numeric" value={form.speedSteps} onChange={set("speedSteps")} error={fieldError("speedSteps")} hint="1/n, 2/n … 1 of the closing speed" />
           <TextField id="check-offsets" label="Impact offsets" value={form.offsets} onChange={set("offsets")} error={fieldError("offsets")} hint="fractions of the sum of radii, 0 head-on" />
-          <TextField id="check-margin" label="Margin" inputMode="decimal" value={form.margin} onChange={set("margin")} error={fieldError("margin")} hint="recommendations keep ω·h ≤ 2·(1 − margin)" />
+          <TextField
+            id="check-margin"
+            label="Margin [%]"
+            inputMode="decimal"
+            value={form.marginPercent}
+            onChange={set("marginPercent")}
+            error={fieldError("margin")}
+            hint={marginHint(form.marginPercent)}
+          />
         </div>
         {groups.length > 0 ? (
           <fieldset className="space-y-2">

@@ -157,8 +157,10 @@ function UploadCard({ studioId }: { studioId: string }) {
     try {
       // An untouched valid file is saved byte for byte; a table fixed here is saved as the CSV it now is.
       const fileName = edited ? loaded.fileName.replace(/\.[^.]*$/, "") + ".csv" : loaded.fileName;
-      const blob = edited ? new Blob([tableToCsv(loaded.table)], { type: "text/csv" }) : new Blob([loaded.bytes as BlobPart], { type: loaded.format === "json" ? "application/json" : "text/csv" });
-      const result = await uploadCatalogue<{ catalogue: CatalogueDetail }>(studioId, blob, fileName, name);
+      const uploaded = new Blob([loaded.bytes as BlobPart], { type: loaded.format === "json" ? "application/json" : "text/csv" });
+      const blob = edited ? new Blob([tableToCsv(loaded.table)], { type: "text/csv" }) : uploaded;
+      // A corrected table keeps the file it was corrected from: "Download original file" answers those bytes.
+      const result = await uploadCatalogue<{ catalogue: CatalogueDetail }>(studioId, blob, fileName, name, edited ? { file: uploaded, fileName: loaded.fileName } : undefined);
       await queryClient.invalidateQueries({ queryKey: catalogueKeys.list(studioId) });
       router.push(`/studios/${studioId}/catalogues/${result.catalogue.id}`);
     } catch (error) {

@@ -8,14 +8,14 @@ import { formatFrameRate, formatFrameStep, formatSI } from "@/lib/ui/units";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useMemo, useState } from "react";
+import { useEffect, useMemo, useRef, useState } from "react";
 import { StabilityMap } from "@/components/maps";
 import { Alert, Button, Card, LoadingRows, buttonClasses, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { StatusBadge, progressPercent } from "@/components/sweeps/sweeps-list";
 import { isActive, sweepsPath, type CellRow, type Quote } from "@/components/sweeps/sweep-api";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
-import type { PairSummary } from "@/lib/catalogues/check";
+import type { Advice, PairSummary } from "@/lib/catalogues/check";
 import type { Verdict } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { StudioRole } from "@/lib/ui/types";
@@ -43,6 +43,19 @@ function fmt(value: number | null, digits = 3): string {
 export function CheckView({ studioId, studioName, role, catalogueId, checkId }: { studioId: string; studioName: string; role: StudioRole; catalogueId: string; checkId: string }) {
   const canWrite = role === "owner" || role === "engineer";
   const [selected, setSelected] = useState<string | null>(null);
+  // Bumped by every "open" from the summary, so opening the same pair again scrolls again.
+  const [openRequest, setOpenRequest] = useState(0);
+  const detailRef = useRef<HTMLDivElement>(null);
+  useEffect(() => {
+    if (openRequest === 0 || !detailRef.current) return;
+    // The pair's panel sits below the matrix: bring it into view and move focus there for keyboard users.
+    detailRef.current.scrollIntoView({ block: "start", behavior: "smooth" });
+    detailRef.current.focus({ preventScroll: true });
+  }, [openRequest]);
+  const openPair = (name: string) => {
+    setSelected(name);
+    setOpenRequest((count) => count + 1);
+  };
   const check = useQuery({
     queryKey: catalogueKeys.check(studioId, catalogueId, checkId),
     queryFn: async () => (await apiFetch<{ check: CheckViewData }>(checkPath(studioId, catalogueId, checkId))).check,
@@ -82,11 +95,13 @@ export function CheckView({ studioId, studioName, role, catalogueId, checkId }: 
             </p>
             {data.sweep.reason ? <Alert>{data.sweep.reason}</Alert> : null}
           </Card>
-          <Summary data={data} onOpen={setSelected} canWrite={canWrite} studioId={studioId} catalogueId={catalogueId} />
+          <Summary data={data} onOpen={openPair} canWrite={canWrite} studioId={studioId} catalogueId={catalogueId} />
           <Card title="Pair matrix">
             <PairMatrixGrid data={data} selected={selected} onSelect={setSelected} />
           </Card>
-          {selected ? <PairDetail studioId={studioId} data={data} pairName={selected} /> : null}
+          <div ref={detailRef} tabIndex={-1} className="scroll-mt-4 outline-none" data-testid="pair-detail-anchor">
+            {selected ? <PairDetail studioId={studioId} data={data} pairName={selected} /> : null}
+          </div>
           <Card title="Exports">
             <div className="flex flex-wrap gap-3">
               <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=csv&table=pairs`} download data-testid="export-pairs-csv">
@@ -165,23 +180,26 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
           </div>
         )}
         <div className="rounded-md border border-line p-3" data-testid="recommendation">
-          <p className="font-semibold">Recommendation (margin {fmt(recommendation.margin)}: ω·h ≤ {fmt(2 * (1 - recommendation.margin))})</p>
-          <p className="mt-1">
+          <p className="font-semibold">
+            Recommendation (margin {formatPercentValue(recommendation.margin)}: ω·h ≤ {fmt(2 * (1 - recommendation.margin))})
+          </p>
+          <AdviceBlock advice={recommendation.advice} />
+          <p className="mt-2">
             Lightest reduced mass: {fmt(recommendation.lightestReducedMassKg)} kg ({recommendation.lightestPair}).
           </p>
-          <p className="mt-1">
-            Largest single stiffness:{" "}
-            {recommendation.stiffness !== null ? (
+          {recommendation.stiffness !== null ? (
+            <p className="mt-1">
+              Largest single stiffness at your {data.settings.substeps} substeps:{" "}
               <strong data-testid="recommended-stiffness">
                 {fmt(recommendation.stiffness, 4)} {unit}
               </strong>
-            ) : (
-              <span>none. {recommendation.stiffnessNote}</span>
-            )}
-          </p>
-          <p className="mt-1">
-            Smallest substep count at this stiffness: {recommendation.substeps !== null ? <strong>{recommendation.substeps}</strong> : <span>none. {recommendation.substepsNote}</span>}
-          </p>
+            </p>
+          ) : null}
+          {recommendation.substeps !== null ? (
+            <p className="mt-1">
+              Smallest substep count at your own stiffness: <strong>{recommendation.substeps}</strong>
+            </p>
+          ) : null}
           <p className="mt-1 text-xs text-ink-muted">
             From the bound ω·h &lt; 2 of symplectic Euler and velocity Verlet on a linear spring, with ω = √(k/m*) and h = dt / substeps; a stiffness also needs every pair to stay within the overlap tolerance and clear of tunnelling.
           </p>
@@ -210,7 +228,7 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
                 <p className="text-ink-muted">Confirmation by simulation is running…</p>
               ) : canWrite ? (
                 <Button variant="secondary" onClick={() => void confirm()} disabled={confirming}>
-                  {confirming ? "Submitting…" : "Confirm by simulation (a check at the recommended stiffness)"}
+                  {confirming ? "Submitting…" : `Confirm by simulation (a check at ${fmt(confirmation.settings.stiffness ?? null, 4)} ${unit}, ${confirmation.settings.substeps} substeps)`}
                 </Button>
               ) : (
                 <p className="text-ink-muted">Not yet confirmed by simulation.</p>
@@ -222,6 +240,37 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
       </div>
     </Card>
   );
+}
+
+const ADVICE_HEADINGS: Record<Advice["kind"], string> = {
+  keep: "Your settings hold",
+  stiffness: "Change the stiffness",
+  substeps: "Raise the substeps and set the stiffness",
+  groups: "Split the stiffness by group",
+  objects: "Some pairs cannot be made stable at this frame rate",
+};
+
+/** The check's answer: what to do, or what cannot work and why, with the numbers. */
+function AdviceBlock({ advice }: { advice: Advice }) {
+  return (
+    <div className={cx("mt-2 rounded-md border p-3", advice.kind === "keep" ? "border-line" : "border-action")} data-testid="advice" data-advice-kind={advice.kind}>
+      <p className="text-xs font-semibold uppercase tracking-wide text-ink-muted">{ADVICE_HEADINGS[advice.kind]}</p>
+      <p className="mt-1 font-semibold" data-testid="advice-summary">
+        {advice.summary}
+      </p>
+      {advice.details.length > 0 ? (
+        <ul className="mt-2 list-disc space-y-1 pl-5" data-testid="advice-details">
+          {advice.details.map((line) => (
+            <li key={line}>{line}</li>
+          ))}
+        </ul>
+      ) : null}
+    </div>
+  );
+}
+
+function formatPercentValue(fraction: number): string {
+  return `${Number((fraction * 100).toPrecision(3))} %`;
 }
 
 function PairMatrixGrid({ data, selected, onSelect }: { data: CheckViewData; selected: string | null; onSelect: (name: string) => void }) {
@@ -341,7 +390,7 @@ function PairDetail({ studioId, data, pairName }: { studioId: string; data: Chec
         </div>
         <div>
           <dt className="text-ink-muted">Margin to the bound (1 − ω·h/2)</dt>
-          <dd className={pair.boundMargin < 0 ? "font-semibold text-danger" : undefined}>{fmt(pair.boundMargin)}</dd>
+          <dd className={pair.boundMargin < 0 ? "font-semibold text-danger" : undefined}>{formatPercentValue(pair.boundMargin)}</dd>
         </div>
         <div>
           <dt className="text-ink-muted">Stiffness</dt>

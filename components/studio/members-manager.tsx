@@ -3,6 +3,7 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
+import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { InvitesTable, MembersTable } from "@/components/studio/studio-tables";
@@ -17,6 +18,9 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
   const router = useRouter();
   const [actionError, setActionError] = useState<string | null>(null);
   const [notice, setNotice] = useState<string | null>(null);
+  // A role change and a withdrawal wait here for the owner's confirmation.
+  const [pendingRole, setPendingRole] = useState<{ member: Member; role: StudioRole } | null>(null);
+  const [pendingWithdraw, setPendingWithdraw] = useState<Invite | null>(null);
 
   const refresh = () => queryClient.invalidateQueries({ queryKey: queryKeys.studio(studioId) });
 
@@ -28,6 +32,7 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
       setNotice(null);
     },
     onSuccess: (_data, { userId, role }) => {
+      setPendingRole(null);
       setNotice(`Role changed to ${role}.`);
       // Giving up your own owner role takes this page away from you: let the server guard decide again.
       if (userId === currentUserId) router.refresh();
@@ -60,7 +65,10 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
       setActionError(null);
       setNotice(null);
     },
-    onSuccess: (_data, invite) => setNotice(`The invitation for ${invite.email} was withdrawn.`),
+    onSuccess: (_data, invite) => {
+      setPendingWithdraw(null);
+      setNotice(`The invitation for ${invite.email} was withdrawn.`);
+    },
     onError: (error) => setActionError(errorMessage(error)),
     onSettled: refresh,
   });
@@ -80,7 +88,7 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
               <MembersTable
                 members={members.data}
                 roleCell={(member) => (
-                  <RolePicker member={member} busy={changeRole.isPending || removeMember.isPending} onChange={(role) => changeRole.mutate({ userId: member.userId, role })} />
+                  <RolePicker member={member} busy={changeRole.isPending || removeMember.isPending} onChange={(role) => setPendingRole({ member, role })} />
                 )}
                 actions={(member) => (
                   <RemoveMember member={member} isSelf={member.userId === currentUserId} busy={changeRole.isPending || removeMember.isPending} onRemove={() => removeMember.mutate(member)} />
@@ -99,7 +107,7 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
               <InvitesTable
                 invites={invites.data}
                 actions={(invite) => (
-                  <Button variant="ghost" className="py-1" disabled={revokeInvite.isPending} onClick={() => revokeInvite.mutate(invite)} aria-label={`Withdraw the invitation for ${invite.email}`}>
+                  <Button variant="ghost" className="py-1" disabled={revokeInvite.isPending} onClick={() => setPendingWithdraw(invite)} aria-label={`Withdraw the invitation for ${invite.email}`}>
                     Withdraw
                   </Button>
                 )}
@@ -111,7 +119,62 @@ export function MembersManager({ studioId, studioName, currentUserId }: { studio
           <InviteForm studioId={studioId} onInvited={(email) => setNotice(`Invitation e-mailed to ${email}. The link is valid for 7 days.`)} />
         </Card>
       </div>
+      <ConfirmDialog
+        open={pendingRole !== null}
+        title={pendingRole ? roleChangeTitle(pendingRole.member, pendingRole.role, currentUserId) : ""}
+        confirmLabel={pendingRole?.role === "owner" ? "Make owner" : "Change role"}
+        danger={pendingRole !== null && (pendingRole.role === "owner" || pendingRole.member.role === "owner")}
+        busy={changeRole.isPending}
+        error={changeRole.isError && pendingRole ? errorMessage(changeRole.error) : null}
+        onConfirm={() => pendingRole && changeRole.mutate({ userId: pendingRole.member.userId, role: pendingRole.role })}
+        onCancel={() => {
+          changeRole.reset();
+          setPendingRole(null);
+        }}
+        testId="confirm-role-change"
+      >
+        {pendingRole ? <RoleChangeConsequences member={pendingRole.member} role={pendingRole.role} isSelf={pendingRole.member.userId === currentUserId} /> : null}
+      </ConfirmDialog>
+      <ConfirmDialog
+        open={pendingWithdraw !== null}
+        title={pendingWithdraw ? `Withdraw the invitation for ${pendingWithdraw.email}?` : ""}
+        confirmLabel="Withdraw invitation"
+        danger
+        busy={revokeInvite.isPending}
+        error={revokeInvite.isError && pendingWithdraw ? errorMessage(revokeInvite.error) : null}
+        onConfirm={() => pendingWithdraw && revokeInvite.mutate(pendingWithdraw)}
+        onCancel={() => {
+          revokeInvite.reset();
+          setPendingWithdraw(null);
+        }}
+        testId="confirm-withdraw-invite"
+      >
+        <p>The link in the e-mail stops working at once. You can invite the same address again later.</p>
+      </ConfirmDialog>
     </StudioShell>
+  );
+}
+
+function roleChangeTitle(member: Member, role: StudioRole, currentUserId: string): string {
+  const who = member.userId === currentUserId ? "your own role" : `the role of ${member.email}`;
+  return role === "owner" && member.userId !== currentUserId ? `Make ${member.email} an owner?` : `Change ${who} from ${member.role} to ${role}?`;
+}
+
+/** What a role change does, said before it is done. */
+function RoleChangeConsequences({ member, role, isSelf }: { member: Member; role: StudioRole; isSelf: boolean }) {
+  return (
+    <>
+      <p>{ROLE_DESCRIPTIONS[role]}</p>
+      {role === "owner" && !isSelf ? (
+        <p className="font-medium">
+          An owner has every right you have: managing members and their roles (yours included), API tokens, webhooks and billing. Only another owner can take it back.
+        </p>
+      ) : null}
+      {member.role === "owner" && role !== "owner" ? (
+        <p className="font-medium">{isSelf ? "You give up the owner role: this page and billing close to you, and only another owner can give the role back." : `${member.email} loses the owner's rights on members, tokens, webhooks and billing.`}</p>
+      ) : null}
+      <p className="text-ink-muted">The change takes effect at once and is recorded in the audit log.</p>
+    </>
   );
 }
 

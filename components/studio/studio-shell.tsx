@@ -4,6 +4,7 @@ import Link from "next/link";
 import { usePathname } from "next/navigation";
 import type { ReactNode } from "react";
 import { RoleBadge, cx } from "@/components/ui";
+import { formatDateTime } from "@/lib/ui/format";
 import { useStudio } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 
@@ -45,6 +46,15 @@ export function StudioShell({ studioId, studioName, role, children }: { studioId
           <p className="text-sm text-ink-muted">Viewing as platform admin</p>
         )}
       </div>
+      {studio.data?.studio.status === "suspended" ? (
+        <div role="alert" className="mb-6 rounded-md border-2 border-danger bg-danger-soft p-4 text-sm text-ink" data-testid="studio-suspended-banner">
+          <p className="font-semibold">This studio is suspended{studio.data.suspension?.since ? ` since ${formatDateTime(studio.data.suspension.since)}` : ""}.</p>
+          <p className="mt-1">
+            Its sweeps are paused and new sweeps are refused until a Kickdrift administrator lifts the suspension. You can still read and export every result.
+            {studio.data.suspension?.reason ? ` Reason given: “${studio.data.suspension.reason}”.` : ""}
+          </p>
+        </div>
+      ) : null}
       {tabs.length > 1 ? (
         <nav aria-label="Studio" className="mb-6 flex flex-wrap gap-1">
           {tabs.map((tab) => {

@@ -21,9 +21,11 @@ export function MembersTable({
   actions?: (member: Member) => ReactNode;
 }) {
   return (
-    <div className="relative overflow-x-auto">
-      <table className="w-full text-sm" data-testid="members-table">
-        <thead className="border-b border-line">
+    // Below the sm breakpoint each member is a stacked block (name, e-mail, then role, date and
+    // actions on one wrapping line) so a phone never scrolls the table sideways.
+    <div className="relative sm:overflow-x-auto">
+      <table className="w-full text-sm max-sm:block" data-testid="members-table">
+        <thead className="border-b border-line max-sm:sr-only">
           <tr>
             <th scope="col" className={th}>Name</th>
             <th scope="col" className={th}>E-mail</th>
@@ -32,16 +34,16 @@ export function MembersTable({
             {actions ? <th scope="col" className={th}><span className="sr-only">Actions</span></th> : null}
           </tr>
         </thead>
-        <tbody className="divide-y divide-line">
+        <tbody className="divide-y divide-line max-sm:block">
           {members.map((member) => (
-            <tr key={member.userId} data-testid={`member-${member.email}`}>
-              <td className={`${td} font-medium`}>{member.name || "—"}</td>
-              <td className={`${td} font-mono text-xs`}>{member.email}</td>
-              <td className={td}>
+            <tr key={member.userId} data-testid={`member-${member.email}`} className="max-sm:flex max-sm:flex-wrap max-sm:items-center max-sm:gap-x-3 max-sm:py-2">
+              <td className={`${td} font-medium max-sm:block max-sm:w-full max-sm:p-0`}>{member.name || "—"}</td>
+              <td className={`${td} break-all font-mono text-xs max-sm:block max-sm:w-full max-sm:p-0 max-sm:pb-1`}>{member.email}</td>
+              <td className={`${td} max-sm:block max-sm:p-0`}>
                 {roleCell ? roleCell(member) : <RoleBadge role={member.role} />}
               </td>
-              <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDate(member.joinedAt)}</td>
-              {actions ? <td className={`${td} text-right`}>{actions(member)}</td> : null}
+              <td className={`${td} whitespace-nowrap text-ink-muted max-sm:block max-sm:p-0`}>{formatDate(member.joinedAt)}</td>
+              {actions ? <td className={`${td} text-right max-sm:ml-auto max-sm:block max-sm:p-0`}>{actions(member)}</td> : null}
             </tr>
           ))}
         </tbody>

@@ -2,6 +2,7 @@
 
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useState, type FormEvent } from "react";
+import { ConfirmDialog } from "@/components/confirm-dialog";
 import { CopyButton } from "@/components/copy-button";
 import Link from "next/link";
 import { Alert, Button, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
@@ -18,8 +19,10 @@ export function TokensManager({ studioId, studioName }: { studioId: string; stud
   const tokens = useTokens(studioId);
   const queryClient = useQueryClient();
   const [created, setCreated] = useState<CreatedToken | null>(null);
+  const [pendingRevoke, setPendingRevoke] = useState<ApiToken | null>(null);
   const revoke = useMutation({
     mutationFn: (token: ApiToken) => apiFetch<unknown>(`${studioApiPath(studioId)}/tokens/${encodeURIComponent(token.id)}`, { method: "DELETE" }),
+    onSuccess: () => setPendingRevoke(null),
     onSettled: () => queryClient.invalidateQueries({ queryKey: queryKeys.tokens(studioId) }),
   });
 
@@ -56,7 +59,7 @@ export function TokensManager({ studioId, studioName }: { studioId: string; stud
               <TokensTable
                 tokens={tokens.data}
                 actions={(token) => (
-                  <Button variant="danger" className="py-1" disabled={revoke.isPending} onClick={() => revoke.mutate(token)} aria-label={`Revoke ${token.name}`}>
+                  <Button variant="danger" className="py-1" disabled={revoke.isPending} onClick={() => setPendingRevoke(token)} aria-label={`Revoke ${token.name}`}>
                     Revoke
                   </Button>
                 )}
@@ -77,6 +80,22 @@ export function TokensManager({ studioId, studioName }: { studioId: string; stud
           <CreateTokenForm studioId={studioId} onCreated={setCreated} />
         </Card>
       </div>
+      <ConfirmDialog
+        open={pendingRevoke !== null}
+        title={pendingRevoke ? `Revoke the token “${pendingRevoke.name}”?` : ""}
+        confirmLabel="Revoke token"
+        danger
+        busy={revoke.isPending}
+        error={revoke.isError && pendingRevoke ? errorMessage(revoke.error) : null}
+        onConfirm={() => pendingRevoke && revoke.mutate(pendingRevoke)}
+        onCancel={() => {
+          revoke.reset();
+          setPendingRevoke(null);
+        }}
+        testId="confirm-revoke-token"
+      >
+        <p>Every script, build agent or CI job using it is refused from the next request. A revoked token cannot be restored; create a new one instead.</p>
+      </ConfirmDialog>
     </StudioShell>
   );
 }

@@ -7,6 +7,7 @@ import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { CompareMaps, MapGrid, StabilityMap, type MapLayer, type OverlayInput } from "@/components/maps";
+import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
@@ -39,6 +40,18 @@ function useNow(active: boolean): number {
     return () => clearInterval(timer);
   }, [active]);
   return now;
+}
+
+/** Cancelling cannot be undone: say what stays, what stops and what is billed before it happens. */
+function CancelSweepDialog({ open, sweep, busy, error, onConfirm, onCancel }: { open: boolean; sweep: Sweep; busy: boolean; error: string | null; onConfirm: () => void; onCancel: () => void }) {
+  return (
+    <ConfirmDialog open={open} title={`Cancel ${sweep.name ? `“${sweep.name}”` : "this sweep"}?`} confirmLabel="Cancel sweep" danger busy={busy} error={error} onConfirm={onConfirm} onCancel={onCancel} testId="confirm-cancel-sweep">
+      <p>
+        {sweep.cellsDone.toLocaleString("en")} of {sweep.cells.toLocaleString("en")} cells are done; they stay, with their results, and stay billed. Cells not yet run are dropped and not billed; a chunk running now stops unbilled.
+      </p>
+      <p className="text-ink-muted">A cancelled sweep cannot be resumed; run it again to finish it (finished cells come from the cache).</p>
+    </ConfirmDialog>
+  );
 }
 
 function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
@@ -194,9 +207,13 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
     }
   }, [active, sweep, queryClient, studioId, sweepId]);
 
+  const [confirmCancel, setConfirmCancel] = useState(false);
   const cancel = useMutation({
     mutationFn: () => apiFetch<{ sweep: Sweep }>(`${sweepPath(studioId, sweepId)}/cancel`, { method: "POST" }),
-    onSuccess: (data) => queryClient.setQueryData(sweepKeys.sweep(studioId, sweepId), data.sweep),
+    onSuccess: (data) => {
+      setConfirmCancel(false);
+      queryClient.setQueryData(sweepKeys.sweep(studioId, sweepId), data.sweep);
+    },
   });
 
   return (
@@ -207,8 +224,18 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
         <Alert>{errorMessage(sweepQuery.error)}</Alert>
       ) : (
         <div className="space-y-6">
-          <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => cancel.mutate()} cancelling={cancel.isPending} />
-          {cancel.isError ? <Alert>{errorMessage(cancel.error)}</Alert> : null}
+          <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => setConfirmCancel(true)} cancelling={cancel.isPending} />
+          <CancelSweepDialog
+            open={confirmCancel}
+            sweep={sweep!}
+            busy={cancel.isPending}
+            error={cancel.isError ? errorMessage(cancel.error) : null}
+            onConfirm={() => cancel.mutate()}
+            onCancel={() => {
+              cancel.reset();
+              setConfirmCancel(false);
+            }}
+          />
           <SweepMaps
             sweep={sweep!}
             cells={cellsQuery.data ?? []}

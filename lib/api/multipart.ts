@@ -10,7 +10,7 @@ export interface UploadedFile {
  * Reads a multipart/form-data body of at most `limit` bytes (never buffers more) and returns its
  * text fields and its first file field. A body over the limit is a 413 naming the limit.
  */
-export async function readMultipart(req: Request, limit: number, fileLimitText: string): Promise<{ fields: Map<string, string>; file: UploadedFile | null }> {
+export async function readMultipart(req: Request, limit: number, fileLimitText: string): Promise<{ fields: Map<string, string>; file: UploadedFile | null; files: Map<string, UploadedFile> }> {
   const type = req.headers.get("content-type") ?? "";
   if (!/^multipart\/form-data\s*;/i.test(type)) {
     throw new ApiError(415, "validation_failed", 'The body must be multipart/form-data with the file in a field named "file" (curl -F file=@catalogue.csv).', "file");
@@ -40,13 +40,14 @@ export async function readMultipart(req: Request, limit: number, fileLimitText: 
     throw new ApiError(400, "validation_failed", "The multipart body could not be read.", "file");
   }
   const fields = new Map<string, string>();
-  let file: UploadedFile | null = null;
+  // The first file of each field name; "file" is the one every upload route reads.
+  const files = new Map<string, UploadedFile>();
   for (const [key, value] of form.entries()) {
     if (typeof value === "string") {
       if (!fields.has(key)) fields.set(key, value);
-    } else if (key === "file" && file === null) {
-      file = { fileName: value.name || "catalogue", mediaType: value.type, bytes: new Uint8Array(await value.arrayBuffer()) };
+    } else if (!files.has(key)) {
+      files.set(key, { fileName: value.name || "catalogue", mediaType: value.type, bytes: new Uint8Array(await value.arrayBuffer()) });
     }
   }
-  return { fields, file };
+  return { fields, file: files.get("file") ?? null, files };
 }

@@ -21,6 +21,10 @@ export const AUDIT_ACTIONS = [
   "token.revoke",
   "user.platform_role",
   "payment.mismatch",
+  "payment.purchase",
+  "invite.create",
+  "invite.withdraw",
+  "invite.accept",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -138,6 +138,17 @@ export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, e
       });
       outcome = written ? `credited ${purchaseKey(session.id)}` : `already credited ${purchaseKey(session.id)}`;
       const buyer = session.metadata?.buyer_email || session.customer_details?.email;
+      if (written) {
+        await writeAudit(tx, {
+          actor: null,
+          studioId: studio.id,
+          action: "payment.purchase",
+          subjectType: "checkout_session",
+          subjectId: session.id,
+          before: null,
+          after: { packId: pack.id, quantity, computeMs, amountCents: session.amount_total, currency: session.currency, buyer: buyer ?? null },
+        });
+      }
       if (written && buyer) {
         await queueMail(tx, {
           idempotencyKey: `mail:receipt:${session.id}`,

@@ -7,8 +7,11 @@ export const CATALOGUE_READ = SWEEP_READ;
 /** Uploading catalogues and running checks: engineers and owners, and write tokens. */
 export const CATALOGUE_WRITE = SWEEP_WRITE;
 
-/** The largest multipart body an upload may send: the file limit plus room for the form's framing. */
-export const MAX_UPLOAD_BODY_BYTES = 256 * 1024 + 16 * 1024;
+/**
+ * The largest multipart body an upload may send: twice the file limit (a table corrected on the
+ * upload page travels with the file it was corrected from) plus room for the form's framing.
+ */
+export const MAX_UPLOAD_BODY_BYTES = 2 * 256 * 1024 + 16 * 1024;
 
 // Request bodies of the catalogue-check routes (the OpenAPI document, lib/api/openapi, is generated from these).
 

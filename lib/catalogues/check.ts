@@ -74,8 +74,12 @@ export const checkSettingsSchema = z.strictObject({
       maxOverlapFraction: z.number({ error: "tolerances.maxOverlapFraction must be a number" }).gt(0, { error: "tolerances.maxOverlapFraction must be > 0" }).max(1, { error: "tolerances.maxOverlapFraction must be ≤ 1" }),
     })
     .default(() => ({ ...CHECK_DEFAULT_TOLERANCES })),
-  /** Share of the stability bound kept in reserve: recommendations keep ω·h ≤ 2·(1 − margin). */
-  margin: z.number({ error: "margin must be a number" }).min(0, { error: "margin must be ≥ 0" }).max(CHECK_LIMITS.maxMargin, { error: `margin must be ≤ ${CHECK_LIMITS.maxMargin}` }).default(0.8),
+  /** Share of the stability bound kept in reserve, as a fraction (screens show it in percent): recommendations keep ω·h ≤ 2·(1 − margin). */
+  margin: z
+    .number({ error: "margin must be a number (a fraction: 0.8 is 80 %)" })
+    .min(0, { error: "margin must be ≥ 0 (0 %)" })
+    .max(CHECK_LIMITS.maxMargin, { error: `margin must be ≤ ${CHECK_LIMITS.maxMargin} (${CHECK_LIMITS.maxMargin * 100} %)` })
+    .default(0.8),
 });
 
 export type CheckSettingsInput = z.input<typeof checkSettingsSchema>;
@@ -273,13 +277,53 @@ export interface Recommendation {
   /** The lightest reduced mass of the catalogue (kg) and its pair. */
   lightestReducedMassKg: number;
   lightestPair: string;
-  /** Largest single stiffness with ω·h ≤ 2(1 − margin) for every pair at the game's substeps (linear model), or null. */
+  /** Largest single stiffness with ω·h ≤ 2(1 − margin) for every pair at the game's substeps, or null. */
   stiffness: number | null;
   /** Why there is no stiffness recommendation, when there is none. */
   stiffnessNote: string;
   /** Smallest substep count that keeps every pair within the margin at the game's stiffness, or null. */
   substeps: number | null;
   substepsNote: string;
+  /** What to do: always an action or a plain statement of what cannot work (see adviseCheck). */
+  advice: Advice;
+}
+
+/** Settings that keep every pair within the margin with one stiffness for all. */
+export interface AdvisedSettings {
+  substeps: number;
+  /** The advised stiffness: the stiffest in the range (shallowest overlap). */
+  stiffness: number;
+  stiffnessMin: number;
+  stiffnessMax: number;
+}
+
+export interface ImpossiblePair {
+  pair: string;
+  /** Why, with the numbers. */
+  reason: string;
+  /** The highest closing speed at which the pair can be made stable at this frame rate (m/s), 0 when none. */
+  highestClosingSpeedMPerS: number;
+}
+
+/**
+ * The answer a check ends in: one of
+ * - keep: the game's own settings keep every pair within the margin;
+ * - stiffness: one stiffness in a range does it at the game's substeps;
+ * - substeps: more substeps with one stiffness in a range do it;
+ * - groups: no single stiffness fits every pair, but per-group stiffnesses can (each pair's range given);
+ * - objects: some pairs cannot be made stable at this frame rate at any setting; which, why, and the
+ *   object change (a lower top speed) that would make them possible.
+ */
+export interface Advice {
+  kind: "keep" | "stiffness" | "substeps" | "groups" | "objects";
+  /** One sentence: the action, or the plain statement. */
+  summary: string;
+  /** The numbers behind the summary, one sentence each. */
+  details: string[];
+  /** Settings that would work with one stiffness for every pair; null for keep, groups and objects. */
+  settings: AdvisedSettings | null;
+  /** Pairs that cannot be made stable at this frame rate (kind objects). */
+  impossiblePairs: ImpossiblePair[];
 }
 
 /**
@@ -309,6 +353,7 @@ export function recommend(objects: readonly CatalogueObject[], settings: CheckSe
     stiffnessNote: "",
     substeps: null,
     substepsNote: "",
+    advice: { kind: "keep", summary: "", details: [], settings: null, impossiblePairs: [] },
   };
 
   if (settings.contactModel !== "linear") {
@@ -330,8 +375,234 @@ export function recommend(objects: readonly CatalogueObject[], settings: CheckSe
       break;
     }
   }
-  if (result.substeps === null) result.substepsNote = `No substep count up to ${formatLimit(SPEC_LIMITS.maxSubsteps)} keeps every pair within the margin at this stiffness.`;
+  if (result.substeps === null) result.substepsNote = `No substep count up to ${formatLimit(SPEC_LIMITS.maxSubsteps)} keeps every pair within the margin at this stiffness; see the advice for settings that do.`;
+  result.advice = adviseCheck(pairs, settings, result);
   return result;
+}
+
+// ---------------------------------------------------------------------------
+// The advice: every check ends in settings that work or a plain statement of what cannot
+
+/** A number as the advice's sentences print it: three significant digits, grouped. */
+function num(value: number, digits = 3): string {
+  return Number(value.toPrecision(digits)).toLocaleString("en-US", { maximumSignificantDigits: digits });
+}
+
+export function stiffnessUnit(contactModel: CheckSettings["contactModel"]): string {
+  return contactModel === "linear" ? "N/m" : "N/m^1.5";
+}
+
+/** Deepest overlap a pair may reach: the overlap tolerance times its smaller radius (m). */
+function allowedOverlapM(pair: CataloguePair, settings: CheckSettings): number {
+  return settings.tolerances.maxOverlapFraction * Math.min(pair.a.radiusM, pair.b.radiusM);
+}
+
+/**
+ * Stiffness at which the pair's contact frequency is ω. Linear: k = m*·ω². Hertz (linearised as in
+ * pairOmegaRadPerS): ω² = (3/2)·k^(4/5)·(5m*v²/4)^(1/5)/m*, solved for k.
+ */
+export function stiffnessAtOmega(pair: Pick<CataloguePair, "reducedMassKg" | "closingSpeedMPerS">, omegaRadPerS: number, contactModel: CheckSettings["contactModel"]): number {
+  const m = pair.reducedMassKg;
+  if (contactModel === "linear") return m * omegaRadPerS ** 2;
+  const v = pair.closingSpeedMPerS;
+  return Math.pow((omegaRadPerS * omegaRadPerS * m) / (1.5 * Math.pow(1.25 * m * v * v, 0.2)), 1.25);
+}
+
+/**
+ * Smallest stiffness that keeps a pair's head-on overlap at its closing speed within the tolerance.
+ * Linear: undamped k_u = m*·(v/δ)²; with the pair's dashpot at a fixed damping ratio the overlap is
+ * (v/ω0)·g(ζ), so k = k_u·(g(ζ))² = k_u·(δ_damped(k_u)/δ)². Hertz (undamped, hertzMaxOverlapM
+ * solved for k): k = (5/4)·m*·v²/δ^(5/2).
+ */
+export function minStiffnessForOverlap(pair: CataloguePair, settings: CheckSettings): number {
+  const allowedM = allowedOverlapM(pair, settings);
+  const m = pair.reducedMassKg;
+  const v = pair.closingSpeedMPerS;
+  if (settings.contactModel === "hertz") return (1.25 * m * v * v) / Math.pow(allowedM, 2.5);
+  const undamped = (m * v * v) / (allowedM * allowedM);
+  const ratio = linearPairOverlapM(pair, undamped, settings) / allowedM;
+  return undamped * ratio * ratio;
+}
+
+/** Does the pair stay clear of tunnelling at substep h (with the margin's headroom)? */
+function clearOfTunnelling(pair: CataloguePair, substepS: number, settings: CheckSettings): boolean {
+  return pair.closingSpeedMPerS <= (1 - settings.margin) * pairTunnelingThresholdSpeedMPerS(pair.a.radiusM + pair.b.radiusM, substepS, Math.max(...settings.offsets));
+}
+
+/** Highest closing speed at which the pair alone can be kept within the margin at `substeps` (m/s); its own closing speed when it can. */
+function highestFeasibleClosingSpeed(pair: CataloguePair, kMin: number, substeps: number, settings: CheckSettings): number {
+  const h = settings.dtS / substeps;
+  const kMax = stiffnessAtOmega(pair, allowedPhase(settings.margin) / h, settings.contactModel);
+  // kMin grows as v² for both models; kMax is speed-free (linear) or falls as v^(−1/2) (Hertz).
+  const bySpring = settings.contactModel === "linear" ? Math.sqrt(kMax / kMin) : Math.pow(kMax / kMin, 0.4);
+  const tunnelSpeed = (1 - settings.margin) * pairTunnelingThresholdSpeedMPerS(pair.a.radiusM + pair.b.radiusM, h, Math.max(...settings.offsets));
+  return Math.min(pair.closingSpeedMPerS, bySpring * pair.closingSpeedMPerS, tunnelSpeed);
+}
+
+/**
+ * The advice of a check (see Advice). The stability bound ω·h ≤ 2(1 − margin) caps the stiffness
+ * from above (the lightest, or for Hertz the fastest-ringing, pair decides); the overlap tolerance
+ * floors it from below (the heaviest and fastest pair decides); tunnelling depends on the substep
+ * only. More substeps raise the cap as n² and never move the floor, so the smallest substep count
+ * with cap ≥ floor and no tunnelling is found by counting up to the spec's limit.
+ */
+export function adviseCheck(pairs: readonly CataloguePair[], settings: CheckSettings, found: Pick<Recommendation, "substeps">): Advice {
+  const model = settings.contactModel;
+  const unit = stiffnessUnit(model);
+  const phase = allowedPhase(settings.margin);
+  const n0 = settings.substeps;
+  const nMax = SPEC_LIMITS.maxSubsteps;
+  const frameHz = 1 / settings.dtS;
+  const floors = pairs.map((pair) => minStiffnessForOverlap(pair, settings));
+  let floorAt = 0;
+  for (let p = 1; p < pairs.length; p++) if (floors[p] > floors[floorAt]) floorAt = p;
+  const floor = floors[floorAt];
+  const capAt = (n: number): { k: number; at: number } => {
+    // The same arithmetic as the recommended stiffness (phase / h), so the two agree to the last bit.
+    const omega = phase / (settings.dtS / n);
+    let best = { k: Infinity, at: 0 };
+    for (let p = 0; p < pairs.length; p++) {
+      const k = stiffnessAtOmega(pairs[p], omega, model);
+      if (k < best.k) best = { k, at: p };
+    }
+    return best;
+  };
+  const tunnelsAt = (n: number) => pairs.find((pair) => !clearOfTunnelling(pair, settings.dtS / n, settings));
+  const works = (n: number) => tunnelsAt(n) === undefined && floor <= capAt(n).k;
+  const why = (n: number): string => {
+    const tunnels = tunnelsAt(n);
+    if (tunnels) {
+      return `At ${formatLimit(n)} substeps ${tunnels.name} moves ${num(tunnels.closingSpeedMPerS * (settings.dtS / n))} m per substep at ${num(tunnels.closingSpeedMPerS)} m/s, too close to passing through (its radii add up to ${num(tunnels.a.radiusM + tunnels.b.radiusM)} m).`;
+    }
+    const cap = capAt(n);
+    return `At ${formatLimit(n)} substeps the bound ω·h ≤ ${num(phase)} lets ${pairs[cap.at].name} take at most ${num(cap.k)} ${unit}, but ${pairs[floorAt].name} needs at least ${num(floor)} ${unit} to stay within the overlap tolerance (${num(allowedOverlapM(pairs[floorAt], settings))} m at ${num(pairs[floorAt].closingSpeedMPerS)} m/s).`;
+  };
+
+  // The game's own settings, pair by pair at their own stiffness.
+  const h0 = settings.dtS / n0;
+  // Settings advised at a range's edge must read as holding when applied: allow rounding in the last bits.
+  const within = (value: number, limit: number) => value <= limit * (1 + 1e-9);
+  const ownOk = pairs.every(
+    (pair) =>
+      within(pairOmegaRadPerS(pair, model) * h0, phase) &&
+      within(model === "linear" ? linearPairOverlapM(pair, pair.stiffness, settings) : hertzMaxOverlapM(pair.stiffness, pair.reducedMassKg, pair.closingSpeedMPerS), allowedOverlapM(pair, settings)) &&
+      clearOfTunnelling(pair, h0, settings),
+  );
+  if (ownOk) {
+    return {
+      kind: "keep",
+      summary: `Keep your settings: at ${formatLimit(n0)} substeps every pair stays within ω·h ≤ ${num(phase)}, within the overlap tolerance and clear of tunnelling.`,
+      details: works(n0) ? [`One stiffness for every pair would also do from ${num(floor)} to ${num(capAt(n0).k)} ${unit}.`] : [],
+      settings: null,
+      impossiblePairs: [],
+    };
+  }
+  if (works(n0)) {
+    const cap = capAt(n0).k;
+    return {
+      kind: "stiffness",
+      summary: `Set one stiffness between ${num(floor)} and ${num(cap)} ${unit} at your ${formatLimit(n0)} substeps; ${num(cap)} ${unit}, the stiffest, keeps overlaps shallowest.`,
+      details: [
+        `The floor: ${pairs[floorAt].name} needs at least ${num(floor)} ${unit} to stay within the overlap tolerance (${num(allowedOverlapM(pairs[floorAt], settings))} m at ${num(pairs[floorAt].closingSpeedMPerS)} m/s).`,
+        `The cap: ${pairs[capAt(n0).at].name} keeps ω·h ≤ ${num(phase)} up to ${num(cap)} ${unit} with h = ${num(h0)} s.`,
+      ],
+      settings: { substeps: n0, stiffness: cap, stiffnessMin: floor, stiffnessMax: cap },
+      impossiblePairs: [],
+    };
+  }
+  let n = n0 + 1;
+  while (n <= nMax && !works(n)) n++;
+  if (n <= nMax) {
+    const cap = capAt(n).k;
+    const details = [why(n0), `At ${formatLimit(n)} substeps (h = ${num(settings.dtS / n)} s) the cap rises to ${num(cap)} ${unit}, above the floor of ${num(floor)} ${unit}, and every pair stays clear of tunnelling.`];
+    if (settings.groupStiffness === undefined && found.substeps !== null && found.substeps > n0 && floor <= (settings.stiffness ?? 0)) {
+      details.push(`Or keep your stiffness of ${num(settings.stiffness as number)} ${unit} and raise the substeps to ${formatLimit(found.substeps)}.`);
+    }
+    return {
+      kind: "substeps",
+      summary: `Raise the substeps from ${formatLimit(n0)} to ${formatLimit(n)} and set one stiffness between ${num(floor)} and ${num(cap)} ${unit}; ${num(cap)} ${unit} keeps overlaps shallowest.`,
+      details,
+      settings: { substeps: n, stiffness: cap, stiffnessMin: floor, stiffnessMax: cap },
+      impossiblePairs: [],
+    };
+  }
+
+  // No single stiffness at any substep count: which pairs cannot be helped at all at this frame rate?
+  const hMin = settings.dtS / nMax;
+  const impossible: (ImpossiblePair & { substepsPerS: number })[] = [];
+  for (let p = 0; p < pairs.length; p++) {
+    const pair = pairs[p];
+    const cap = stiffnessAtOmega(pair, phase / hMin, model);
+    const tunnels = !clearOfTunnelling(pair, hMin, settings);
+    if (!tunnels && floors[p] <= cap) continue;
+    const highest = highestFeasibleClosingSpeed(pair, floors[p], nMax, settings);
+    // Substeps per second the pair needs: its contact frequency at its floor within the phase, and its travel per substep within the chord.
+    const omegaNeeded = pairOmegaRadPerS({ ...pair, stiffness: floors[p] }, model);
+    const chordM = (pair.a.radiusM + pair.b.radiusM) * Math.sqrt(1 - Math.max(...settings.offsets) ** 2);
+    const substepsPerS = Math.max(omegaNeeded / phase, pair.closingSpeedMPerS / ((1 - settings.margin) * chordM));
+    const reason = tunnels
+      ? `even at ${formatLimit(nMax)} substeps (h = ${num(hMin)} s) it closes ${num(pair.closingSpeedMPerS * hMin)} m per substep at ${num(pair.closingSpeedMPerS)} m/s, more than the margin allows of its ${num(chordM)} m contact chord`
+      : `at ${num(pair.closingSpeedMPerS)} m/s it needs at least ${num(floors[p])} ${unit} to stay within ${num(allowedOverlapM(pair, settings))} m of overlap, but even at ${formatLimit(nMax)} substeps (h = ${num(hMin)} s) the bound ω·h ≤ ${num(phase)} allows at most ${num(cap)} ${unit}`;
+    impossible.push({
+      pair: pair.name,
+      reason: `${pair.name} cannot be made stable at ${num(frameHz)} Hz: ${reason}. It needs about ${num(substepsPerS)} substeps per second (${num(substepsPerS / nMax)} Hz at ${formatLimit(nMax)} substeps).`,
+      highestClosingSpeedMPerS: highest,
+      substepsPerS,
+    });
+  }
+  if (impossible.length > 0) {
+    // One change per object: each impossible pair slows its faster object (both, when the slower
+    // alone closes too fast), and an object takes the lowest top speed any of its pairs asks for.
+    // Lower speeds only lower the floors (k ∝ v²) and raise Hertz caps, so no other pair gets worse.
+    const speedCap = new Map<string, { object: CatalogueObject; topSpeedMPerS: number }>();
+    const ask = (object: CatalogueObject, speed: number) => {
+      const current = speedCap.get(object.name);
+      if (!current || speed < current.topSpeedMPerS) speedCap.set(object.name, { object, topSpeedMPerS: Math.max(0, speed) });
+    };
+    let needsFrameRate = false;
+    for (const entry of impossible) {
+      const pair = pairs.find((candidate) => candidate.name === entry.pair) as CataloguePair;
+      const highest = entry.highestClosingSpeedMPerS;
+      if (highest <= 0) {
+        needsFrameRate = true;
+        continue;
+      }
+      const [fast, slow] = pair.a.topSpeedMPerS >= pair.b.topSpeedMPerS ? [pair.a, pair.b] : [pair.b, pair.a];
+      if (pair.a.name === pair.b.name) ask(pair.a, highest / 2);
+      else if (highest - slow.topSpeedMPerS > 0) ask(fast, highest - slow.topSpeedMPerS);
+      else {
+        const factor = highest / pair.closingSpeedMPerS;
+        ask(fast, fast.topSpeedMPerS * factor);
+        ask(slow, slow.topSpeedMPerS * factor);
+      }
+    }
+    const changes = [...speedCap.values()].map(({ object, topSpeedMPerS }) => `${object.name}: lower its top speed from ${num(object.topSpeedMPerS)} to at most ${num(topSpeedMPerS)} m/s`);
+    const neededHz = Math.max(...impossible.map((entry) => entry.substepsPerS)) / nMax;
+    const names = impossible.map((entry) => entry.pair);
+    const frameRate = `run the physics at ${num(Math.ceil(neededHz))} Hz or more with ${formatLimit(nMax)} substeps`;
+    return {
+      kind: "objects",
+      summary: `${names.length === 1 ? `${names[0]} cannot` : `${names.length} pairs (${names.slice(0, 3).join(", ")}${names.length > 3 ? ", …" : ""}) cannot`} be made stable at ${num(frameHz)} Hz with any stiffness or substep count. ${
+        changes.length > 0 && !needsFrameRate ? `Change the catalogue (${changes.slice(0, 3).join("; ")}${changes.length > 3 ? "; …" : ""}) and check again, or ${frameRate}.` : `Enlarge the objects or ${frameRate}.`
+      }`,
+      details: [...impossible.map((entry) => entry.reason), ...changes.map((change) => `${change}.`)],
+      settings: null,
+      impossiblePairs: impossible.map(({ substepsPerS: _ignored, ...entry }) => (void _ignored, entry)),
+    };
+  }
+  // Every pair can be helped alone, but not with one stiffness: per-group stiffness.
+  let nGroups = n0;
+  while (nGroups < nMax && pairs.some((pair, p) => !clearOfTunnelling(pair, settings.dtS / nGroups, settings) || floors[p] > stiffnessAtOmega(pair, (phase * nGroups) / settings.dtS, model))) nGroups++;
+  const capPair = pairs[capAt(nMax).at];
+  const floorPair = pairs[floorAt];
+  const range = (pair: CataloguePair, p: number) => `${pair.name} from ${num(floors[p])} to ${num(stiffnessAtOmega(pair, (phase * nGroups) / settings.dtS, model))} ${unit}`;
+  return {
+    kind: "groups",
+    summary: `No single stiffness fits every pair even at ${formatLimit(nMax)} substeps: put ${capPair.a.name === capPair.b.name ? capPair.a.name : `${capPair.a.name} and ${capPair.b.name}`} and ${floorPair.a.name === floorPair.b.name ? floorPair.a.name : `${floorPair.a.name} and ${floorPair.b.name}`} in different groups with their own stiffness, at ${formatLimit(nGroups)} substeps.`,
+    details: [why(nMax), `At ${formatLimit(nGroups)} substeps each pair alone has a range: ${range(capPair, pairs.indexOf(capPair))}; ${range(floorPair, floorAt)}.`],
+    settings: null,
+    impossiblePairs: [],
+  };
 }
 
 // ---------------------------------------------------------------------------

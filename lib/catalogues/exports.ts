@@ -9,7 +9,7 @@
 import { VERDICTS } from "../physics/types";
 import { CONTACT_END_CRITERION } from "../sweeps/envelope";
 import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
-import type { CheckSettings, PairMatrix, Recommendation } from "./check";
+import { stiffnessUnit, type CheckSettings, type PairMatrix, type Recommendation } from "./check";
 import type { PairContactTuning } from "./contact-tuning";
 
 function text(value: string): string {
@@ -63,10 +63,16 @@ export function recommendationCsv(settings: CheckSettings, recommendation: Recom
     ["substeps", settings.substeps, "", "substeps of the check"],
     ["integrator", settings.integrator, "", ""],
     ["contact_model", settings.contactModel, "", ""],
-    ["margin", recommendation.margin, "", "share of the bound omega*h < 2 kept in reserve"],
+    ["margin", recommendation.margin, "fraction", `share of the bound omega*h < 2 kept in reserve (${Number((recommendation.margin * 100).toPrecision(3))} % on screen)`],
     ["lightest_reduced_mass", recommendation.lightestReducedMassKg, "kg", recommendation.lightestPair],
     ["recommended_stiffness", recommendation.stiffness, settings.contactModel === "linear" ? "N/m" : "N/m^1.5", recommendation.stiffnessNote],
     ["recommended_substeps", recommendation.substeps, "", recommendation.substepsNote],
+    ["advice", recommendation.advice.kind, "", recommendation.advice.summary],
+    ...recommendation.advice.details.map((detail): [string, null, string, string] => ["advice_detail", null, "", detail]),
+    ["advised_substeps", recommendation.advice.settings?.substeps ?? null, "", "substeps of the advised settings"],
+    ["advised_stiffness", recommendation.advice.settings?.stiffness ?? null, stiffnessUnit(settings.contactModel), "the stiffest in the advised range"],
+    ["advised_stiffness_min", recommendation.advice.settings?.stiffnessMin ?? null, stiffnessUnit(settings.contactModel), "floor: every pair within the overlap tolerance"],
+    ["advised_stiffness_max", recommendation.advice.settings?.stiffnessMax ?? null, stiffnessUnit(settings.contactModel), "cap: every pair within omega*h <= 2(1 - margin)"],
   ];
   const lines = ["setting,value,unit,note"];
   for (const [name, value, unit, note] of rows) lines.push([text(name), typeof value === "string" ? text(value) : num(value), text(unit), text(note)].join(","));

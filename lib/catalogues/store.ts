@@ -37,6 +37,8 @@ export interface CatalogueUpload {
   fileName: string;
   mediaType: string;
   bytes: Uint8Array;
+  /** The file as the user chose it, when `bytes` is a table corrected from it before saving. */
+  original?: { fileName: string; bytes: Uint8Array } | null;
   createdByUserId: string | null;
 }
 
@@ -49,6 +51,8 @@ export interface CatalogueSummary {
   fileBytes: number;
   format: "csv" | "json";
   objectCount: number;
+  /** The uploaded file when the saved one is a table corrected from it (GET …/file answers it; ?copy=saved the corrected one). */
+  original: { fileName: string; fileBytes: number; contentHash: string } | null;
   createdAt: string;
 }
 
@@ -69,6 +73,10 @@ export function catalogueSummary(row: Catalogue): CatalogueSummary {
     fileBytes: row.fileBytes,
     format: row.format,
     objectCount: row.objectCount,
+    original:
+      row.originalFileBase64 !== null && row.originalFileName !== null && row.originalFileBytes !== null && row.originalContentHash !== null
+        ? { fileName: row.originalFileName, fileBytes: row.originalFileBytes, contentHash: row.originalContentHash }
+        : null,
     createdAt: row.createdAt.toISOString(),
   };
 }
@@ -93,6 +101,10 @@ export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueU
   if (!parsed.objects) throw catalogueProblemsError(parsed.problems);
   const objects = parsed.objects;
   const file = storedFile(upload.bytes, upload.fileName, "catalogue");
+  if (upload.original && upload.original.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
+    throw new ApiError(413, "payload_too_large", `original: ${formatLimit(upload.original.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "original");
+  }
+  const original = upload.original ? storedFile(upload.original.bytes, upload.original.fileName, "catalogue") : null;
   const catalogue = await insertNextVersion(db, { table: catalogues, uniqueIndex: "catalogues_studio_name_version_uq", studioId, name }, async (tx, version) => {
     const [row] = await tx
       .insert(catalogues)
@@ -106,6 +118,9 @@ export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueU
         format: parsed.format,
         objects,
         objectCount: objects.length,
+        ...(original
+          ? { originalFileName: original.fileName, originalFileBase64: original.fileBase64, originalFileBytes: original.fileBytes, originalContentHash: original.contentHash }
+          : {}),
         createdByUserId: upload.createdByUserId,
       })
       .returning();
@@ -137,8 +152,17 @@ export async function catalogueDetail(db: Db, row: Catalogue): Promise<Catalogue
   return { ...catalogueSummary(row), objects: row.objects as CatalogueObject[], notes: [], versions: versions.map(catalogueSummary) };
 }
 
+/** The saved file the objects come from. */
 export function catalogueFileBytes(row: Catalogue): Uint8Array {
   return new Uint8Array(Buffer.from(row.fileBase64, "base64"));
+}
+
+/** The file as the user uploaded it: the original when the table was corrected before saving, else the saved file. */
+export function catalogueUploadedFile(row: Catalogue): { fileName: string; bytes: Uint8Array; contentHash: string } {
+  if (row.originalFileBase64 !== null && row.originalFileName !== null && row.originalContentHash !== null) {
+    return { fileName: row.originalFileName, bytes: new Uint8Array(Buffer.from(row.originalFileBase64, "base64")), contentHash: row.originalContentHash };
+  }
+  return { fileName: row.fileName, bytes: catalogueFileBytes(row), contentHash: row.contentHash };
 }
 
 // ---------------------------------------------------------------------------
@@ -263,12 +287,13 @@ export interface CheckView {
   confirmation: Confirmation | null;
 }
 
-/** The settings of a check confirming the recommended single stiffness. */
+/** The settings of a check confirming the advised single stiffness (and substeps, when the advice raises them). */
 export function confirmationSettings(settings: CheckSettings, recommendation: Recommendation): CheckSettings | null {
-  if (recommendation.stiffness === null) return null;
+  const advised = recommendation.advice.settings;
+  if (advised === null) return null;
   const { groupStiffness: _ignored, ...rest } = settings;
   void _ignored;
-  return { ...rest, stiffness: recommendation.stiffness };
+  return { ...rest, substeps: advised.substeps, stiffness: advised.stiffness };
 }
 
 export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCheck): Promise<CheckView> {

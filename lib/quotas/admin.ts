@@ -11,6 +11,9 @@ import { ledgerEntries, memberships, studioQuotas, studios, sweeps, users, type 
 import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { formatCompute } from "@/lib/billing/format";
+import { pokeOutbox } from "@/lib/outbox/process";
+import { queueStudioStatusMail } from "@/lib/studios/suspension";
 import { PLAN_DEFAULTS, type Quotas } from "./plan";
 import { RUN_LIMIT_REASONS, monthRemainingMs, overageHeadroomMs, studioStanding, type Standing } from "./enforce";
 
@@ -37,7 +40,7 @@ export const quotaPatchSchema = z
     maxBodies: intQuota("maxBodies", 2, PLAN_DEFAULTS.maxBodies),
     overageAllowed: z.boolean({ error: "overageAllowed must be true, false or null" }).nullable().optional(),
     overageCapMs: intQuota("overageCapMs", 0, MAX_MS),
-    reason: z.string({ error: "reason must be a string" }).trim().max(500, { error: "reason must be at most 500 characters" }).default(""),
+    reason: z.string({ error: "reason is required" }).trim().min(1, { error: "reason is required: write why, it is kept in the audit log" }).max(500, { error: "reason must be at most 500 characters" }),
   })
   .refine((v) => Object.keys(v).some((k) => k !== "reason"), { error: "Give at least one quota to change." });
 
@@ -145,7 +148,8 @@ export async function adjustCredit(
       throw new ApiError(
         422,
         "validation_failed",
-        `computeMs: cannot revoke ${(-input.computeMs).toLocaleString("en")} ms; the studio's balance is ${balance.toLocaleString("en")} ms.`,
+        // In minutes, the unit the admin screen takes and shows; the field stays the API's computeMs.
+        `computeMs: cannot revoke ${formatCompute(-input.computeMs)}; the studio's balance is ${formatCompute(balance)}.`,
         "computeMs",
       );
     created = await appendLedgerEntry(tx, {
@@ -193,6 +197,7 @@ export const statusChangeSchema = z.strictObject({
  * are refused) or lifts the suspension (the runner resumes what the suspension paused).
  */
 export async function setStudioStatus(db: Db, actor: Actor, studioId: string, input: z.infer<typeof statusChangeSchema>): Promise<StudioStatus> {
+  let mailed = 0;
   await db.transaction(async (tx) => {
     const studio = await lockStudio(tx, studioId);
     if (studio.status === input.status) return;
@@ -212,13 +217,16 @@ export async function setStudioStatus(db: Db, actor: Actor, studioId: string, in
       after: { status: input.status },
       reason: input.reason,
     });
+    // Members hear of it by e-mail (the banner on their pages says the same).
+    mailed = await queueStudioStatusMail(tx, studio, input.status, input.reason);
   });
+  if (mailed > 0) pokeOutbox();
   return input.status;
 }
 
 export const platformRoleSchema = z.strictObject({
   isAdmin: z.boolean({ error: "isAdmin must be true or false" }),
-  reason: z.string({ error: "reason must be a string" }).trim().max(500, { error: "reason must be at most 500 characters" }).default(""),
+  reason: z.string({ error: "reason is required" }).trim().min(1, { error: "reason is required: write why, it is kept in the audit log" }).max(500, { error: "reason must be at most 500 characters" }),
 });
 
 /** Grants or removes the platform admin role; an admin cannot remove their own (so one always remains who can act). */

@@ -5,6 +5,7 @@ import { newId, newSecret, sha256Hex } from "@/db/ids";
 import { invites, memberships, studios, users, type Invite, type StudioRole, type User } from "@/db/schema";
 import { emailSchema } from "@/lib/auth/password";
 import { appBaseUrl } from "@/lib/auth/config";
+import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 import { inviteMail } from "@/lib/mail/templates";
 import { trySendMail } from "@/lib/mail/send";
@@ -78,6 +79,8 @@ export async function createInvite(
         expiresAt: new Date(Date.now() + INVITE_TTL_MS),
       })
       .returning();
+    // The secret never enters the audit log; the invite's id, address and role do.
+    await writeAudit(tx, { actor: inviter, studioId, action: "invite.create", subjectType: "invite", subjectId: row.id, before: null, after: { email: row.email, role: row.role, expiresAt: row.expiresAt.toISOString() } });
     return { invite: row, studioName: studio.name };
   });
   const mailSent = await trySendMail(
@@ -93,13 +96,16 @@ export async function createInvite(
   return { invite: inviteView(invite), mailSent };
 }
 
-export async function deleteInvite(studioId: string, inviteId: string): Promise<void> {
+export async function deleteInvite(studioId: string, inviteId: string, actor: Pick<User, "id" | "email"> | null = null): Promise<void> {
   const db = await getDb();
-  const deleted = await db
-    .delete(invites)
-    .where(and(eq(invites.id, inviteId), eq(invites.studioId, studioId), isNull(invites.acceptedAt)))
-    .returning({ id: invites.id });
-  if (deleted.length === 0) throw new ApiError(404, "not_found", "Invite not found.");
+  await db.transaction(async (tx) => {
+    const deleted = await tx
+      .delete(invites)
+      .where(and(eq(invites.id, inviteId), eq(invites.studioId, studioId), isNull(invites.acceptedAt)))
+      .returning({ id: invites.id, email: invites.email, role: invites.role });
+    if (deleted.length === 0) throw new ApiError(404, "not_found", "Invite not found.");
+    await writeAudit(tx, { actor, studioId, action: "invite.withdraw", subjectType: "invite", subjectId: inviteId, before: { email: deleted[0].email, role: deleted[0].role }, after: null });
+  });
 }
 
 export interface PublicInviteView {
@@ -161,6 +167,7 @@ export async function acceptInvite(secret: string, user: User): Promise<{ id: st
     // An existing member keeps their current role; the invite never demotes anyone.
     if (existing) return { id: studio.id, name: studio.name, role: existing.role };
     await tx.insert(memberships).values({ studioId: studio.id, userId: user.id, role: invite.role, joinedAt: now });
+    await writeAudit(tx, { actor: user, studioId: studio.id, action: "invite.accept", subjectType: "invite", subjectId: invite.id, before: null, after: { email: invite.email, role: invite.role } });
     // Following an invite link from the mailbox proves the address.
     await tx.update(users).set({ emailVerified: now }).where(and(eq(users.id, user.id), isNull(users.emailVerified)));
     return { id: studio.id, name: studio.name, role: invite.role };

@@ -82,9 +82,10 @@ export function errorMessage(error: unknown): string {
  * POSTs a file as multipart/form-data (field "file", and "name" when not blank) to an upload route;
  * errors come back as ApiClientError with the API's issues.
  */
-export async function uploadFile<T>(path: string, file: Blob, fileName: string, name: string): Promise<T> {
+export async function uploadFile<T>(path: string, file: Blob, fileName: string, name: string, extra: { field: string; file: Blob; fileName: string }[] = []): Promise<T> {
   const form = new FormData();
   form.set("file", file, fileName);
+  for (const part of extra) form.set(part.field, part.file, part.fileName);
   if (name.trim()) form.set("name", name.trim());
   const response = await fetch(path, { method: "POST", body: form, credentials: "same-origin", cache: "no-store", headers: { accept: "application/json" } });
   const text = await response.text();

@@ -19,6 +19,8 @@ export type StudioSummary = { id: string; name: string; role: StudioRole };
 export type StudioDetail = {
   studio: { id: string; name: string; status: string; createdAt: string };
   role: StudioRole | null;
+  /** Present while the studio is suspended: the admin's reason and since when. */
+  suspension?: { reason: string; since: string } | null;
 };
 
 export type Member = { userId: string; email: string; name: string | null; role: StudioRole; joinedAt: string };

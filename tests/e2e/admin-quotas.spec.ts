@@ -85,7 +85,7 @@ test("an admin lowers a studio's cap under a running sweep: it pauses with the r
   // The admin's studio page shows the usage over the cap and the audited change.
   await admin.reload();
   await expect(admin.getByTestId("studio-month")).toContainText("of 0.1 min");
-  await expect(admin.getByTestId("audit-table")).toContainText("quota.update");
+  await expect(admin.getByTestId("audit-table")).toContainText("Quota change");
   await expect(admin.getByTestId("audit-table")).toContainText("testing the cap on a running sweep");
   await admin.screenshot({ path: test.info().outputPath("admin-studio-capped.png"), fullPage: true });
 

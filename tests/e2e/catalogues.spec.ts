@@ -1,3 +1,4 @@
+import { readFileSync } from "node:fs";
 import { CRATESLIDE_CATALOGUE_CSV } from "../../lib/catalogues/demo";
 import { expect, signInWithPassword, test } from "./helpers";
 
@@ -44,6 +45,13 @@ test("an engineer uploads a catalogue with three mistakes, fixes them in the tab
   await expect(page.getByTestId("catalogue-objects")).toContainText("bumper");
   await expect(page.getByTestId("catalogue-hash")).toHaveText(/^[0-9a-f]{64}$/);
   await expect(page.getByRole("link", { name: "Download original file" })).toBeVisible();
+  // "Original" is the file as chosen, mistakes and all; the corrected table is a download of its own.
+  const originalDownload = page.waitForEvent("download");
+  await page.getByTestId("download-original").click();
+  const originalFile = await originalDownload;
+  expect(originalFile.suggestedFilename()).toBe("crateslide-new.csv");
+  expect(readFileSync((await originalFile.path()) as string, "utf8")).toBe(WITH_MISTAKES);
+  await expect(page.getByTestId("download-corrected")).toBeVisible();
 
   // --- A check with the game's settings (the form's defaults: 60 Hz, 16 substeps, 1.5e6 N/m): quote, then run.
   await page.getByRole("button", { name: "Get quote" }).click();
@@ -58,11 +66,16 @@ test("an engineer uploads a catalogue with three mistakes, fixes them in the tab
   const summary = page.getByTestId("check-summary");
   await expect(summary).toContainText("pairs are at risk");
   await expect(page.getByTestId("recommended-stiffness")).toHaveText("44,240 N/m");
+  // The advice: the stiffness range at the game's 16 substeps (lib/catalogues/check.ts, adviseCheck).
+  await expect(page.getByTestId("advice")).toHaveAttribute("data-advice-kind", "stiffness");
+  await expect(page.getByTestId("advice-summary")).toContainText("at your 16 substeps");
 
   // --- Open the riskiest pair: its numbers and its stability map.
   const riskiest = (await summary.locator("strong").nth(1).textContent())!.trim();
   await page.getByTestId("open-riskiest").click();
   await expect(page.getByTestId("pair-title")).toHaveText(riskiest);
+  // The pair's panel sits below the matrix: the button brings it into view.
+  await expect(page.getByTestId("pair-title")).toBeInViewport();
   await expect(matrix.locator(`button[data-pair="${riskiest}"][aria-pressed="true"]`).first()).toBeVisible();
   await expect(page.getByTestId("pair-detail")).toContainText("Margin to the bound");
   // The pair's stability map: 6 closing speeds across, 2 impact offsets up, drawn (it publishes its plot rectangle).
@@ -82,4 +95,34 @@ test("an engineer uploads a catalogue with three mistakes, fixes them in the tab
   await expect(page.getByRole("application").first()).toHaveAttribute("data-plot", /^[\d.]+,/);
 
   expect(pageErrors).toEqual([]);
+});
+
+test("a catalogue that no stiffness or substep count can make stable ends in advice, not a dead end", async ({ page }) => {
+  test.setTimeout(120_000);
+  // A fast light pellet next to Crateslide's objects: no single stiffness at any of 1,000 substeps keeps
+  // pellet × pellet within the overlap tolerance at 60 Hz (tests/unit/catalogues/advice.test.ts works the numbers).
+  const withPellet = CRATESLIDE_CATALOGUE_CSV.replace("\r\n", "\r\npellet,0.01,0.01,40,0.5,loot\r\n");
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
+  await page.getByTestId("catalogue-file").setInputFiles({ name: "crateslide-pellet.csv", mimeType: "text/csv", buffer: Buffer.from(withPellet) });
+  await expect(page.getByText("6 objects, every row valid")).toBeVisible();
+  await page.getByLabel("Catalogue name").fill("Crateslide objects, pellet build");
+  await page.getByTestId("catalogue-save").click();
+  await expect(page.getByTestId("catalogue-title")).toContainText("Crateslide objects, pellet build v1");
+  // The margin reads in percent, as on the sweep page's safe envelope.
+  await expect(page.getByLabel("Margin [%]")).toHaveValue("80");
+  await page.getByRole("button", { name: "Get quote" }).click();
+  await expect(page.getByTestId("check-quote")).toBeVisible();
+  await page.getByTestId("check-run").click();
+  await expect(page).toHaveURL(/\/checks\/chk_/);
+
+  const advice = page.getByTestId("advice");
+  await expect(advice).toHaveAttribute("data-advice-kind", "objects");
+  await expect(page.getByTestId("advice-summary")).toContainText("cannot be made stable at 60 Hz with any stiffness or substep count");
+  await expect(page.getByTestId("advice-summary")).toContainText("pellet: lower its top speed from 40 to at most");
+  await expect(page.getByTestId("advice-details")).toContainText("pellet × pellet cannot be made stable at 60 Hz: at 80 m/s it needs at least");
+  await expect(page.getByTestId("check-summary")).toContainText("Recommendation (margin 80 %: ω·h ≤ 0.4)");
+  // The old dead end said "none" twice and stopped there.
+  await expect(page.getByTestId("check-summary")).not.toContainText("none.");
 });

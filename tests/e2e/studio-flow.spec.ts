@@ -4,6 +4,8 @@ import { expect, linkFromMailbox, signInWithPassword, test, uniqueEmail } from "
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };
 
 test("a new owner builds a studio and an invited engineer joins it through the mailed links", async ({ browser }) => {
+  // Sign-up, invitation, role confirmations and the phone layout: more steps than the default 90 s allows on a loaded machine.
+  test.setTimeout(180_000);
   const ownerEmail = uniqueEmail("noor");
   const engineerEmail = uniqueEmail("pavel");
   const studioName = "Driftwood Pucks";
@@ -40,9 +42,15 @@ test("a new owner builds a studio and an invited engineer joins it through the m
   await expect(owner.getByTestId("invites-table")).toContainText(engineerEmail);
   await owner.screenshot({ path: test.info().outputPath("studio-members-owner.png"), fullPage: true });
 
-  // --- The only owner cannot demote themself: the API's reason is shown and the role stays.
+  // --- The only owner cannot demote themself: the change asks first, then the API's reason is shown and the role stays.
   await owner.getByLabel(`Role of ${ownerEmail}`).selectOption("engineer");
-  await expect(owner.getByTestId("member-action-error")).toContainText("at least one owner");
+  const selfDemotion = owner.getByTestId("confirm-role-change");
+  await expect(selfDemotion).toBeVisible();
+  await expect(selfDemotion).toContainText("Change your own role from owner to engineer?");
+  await selfDemotion.getByRole("button", { name: "Change role" }).click();
+  await expect(selfDemotion).toContainText("at least one owner");
+  await selfDemotion.getByRole("button", { name: "Keep as it is" }).click();
+  await expect(selfDemotion).toBeHidden();
   await expect(owner.getByLabel(`Role of ${ownerEmail}`)).toHaveValue("owner");
 
   // --- The engineer, in a browser of their own, opens the invitation from the local mailbox.
@@ -94,9 +102,34 @@ test("a new owner builds a studio and an invited engineer joins it through the m
   const missingStudio = await engineer.goto("/studios/std_doesnotexist0000000000");
   expect(missingStudio?.status()).toBe(404);
 
-  // --- And the owner sees the engineer in the member list now.
+  // --- A promotion to owner asks first and says what it gives; "Keep as it is" changes nothing.
+  await owner.goto(`${studioUrl}/members`);
+  await owner.getByLabel(`Role of ${engineerEmail}`).selectOption("owner");
+  const promotion = owner.getByTestId("confirm-role-change");
+  await expect(promotion).toBeVisible();
+  await expect(promotion).toContainText(`Make ${engineerEmail} an owner?`);
+  await expect(promotion).toContainText("Only another owner can take it back.");
+  await owner.screenshot({ path: test.info().outputPath("members-confirm-role-change.png") });
+  await promotion.getByRole("button", { name: "Keep as it is" }).click();
+  await expect(promotion).toBeHidden();
+  await expect(owner.getByLabel(`Role of ${engineerEmail}`)).toHaveValue("engineer");
+  // Confirmed, it applies.
+  await owner.getByLabel(`Role of ${engineerEmail}`).selectOption("finance");
+  await expect(promotion).toContainText(`Change the role of ${engineerEmail} from engineer to finance?`);
+  await promotion.getByRole("button", { name: "Change role" }).click();
+  await expect(owner.getByText("Role changed to finance.")).toBeVisible();
+  await expect(owner.getByLabel(`Role of ${engineerEmail}`)).toHaveValue("finance");
+  // On a phone the members table stacks instead of scrolling sideways.
+  await owner.setViewportSize({ width: 390, height: 844 });
+  await expect(owner.getByTestId(`member-${engineerEmail}`)).toBeVisible();
+  const overflow = await owner.evaluate(() => ({ page: document.documentElement.scrollWidth - window.innerWidth, table: (() => { const t = document.querySelector('[data-testid="members-table"]') as HTMLElement; return t.scrollWidth - t.clientWidth; })() }));
+  expect(overflow).toEqual({ page: 0, table: 0 });
+  await owner.screenshot({ path: test.info().outputPath("members-390x844.png"), fullPage: true });
+  await owner.setViewportSize({ width: 1440, height: 900 });
+
+  // --- And the owner sees the member (now finance) in the member list on the studio home.
   await owner.goto(studioUrl);
-  await expect(owner.getByTestId(`member-${engineerEmail}`)).toContainText("engineer");
+  await expect(owner.getByTestId(`member-${engineerEmail}`)).toContainText("finance");
   await owner.screenshot({ path: test.info().outputPath("studio-home-owner-after.png"), fullPage: true });
   await owner.evaluate(() => {
     document.documentElement.setAttribute("data-theme", "dark");
@@ -142,6 +175,9 @@ test("an owner creates an API token whose secret is shown once, then revokes it"
   await expect(page.getByText(secret)).toHaveCount(0);
 
   await row.getByRole("button", { name: "Revoke rink build agent" }).click();
+  const revokeDialog = page.getByTestId("confirm-revoke-token");
+  await expect(revokeDialog).toContainText("Revoke the token “rink build agent”?");
+  await revokeDialog.getByRole("button", { name: "Revoke token" }).click();
   await expect(row).toContainText("revoked");
 });
 

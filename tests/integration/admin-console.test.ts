@@ -6,7 +6,8 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { auditLog, ledgerEntries, users, type User } from "@/db/schema";
+import { auditLog, ledgerEntries, outbox, users, type User } from "@/db/schema";
+import { formatCompute } from "@/lib/billing/format";
 import { AUDIT_CSV_COLUMNS, ensureAuditAppendOnly } from "@/lib/audit/audit";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
@@ -45,17 +46,22 @@ describe("admin console API", () => {
     const { quotas } = res.body as { quotas: { overrides: Record<string, unknown>; effective: Record<string, unknown> } };
     expect(quotas.effective).toMatchObject({ monthlyComputeMs: 90 * 60_000, maxRunningSweeps: 1, maxCellsPerSweep: PLAN_DEFAULTS.maxCellsPerSweep });
     expect(quotas.overrides).toMatchObject({ monthlyComputeMs: 90 * 60_000, maxBodies: null });
-    const reset = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxRunningSweeps: null });
+    const noReason = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxRunningSweeps: 2 });
+    expect(noReason.status).toBe(400);
+    expect(errorOf(noReason.body).field).toBe("reason");
+    const blankReason = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxRunningSweeps: 2, reason: "   " });
+    expect(errorOf(blankReason.body).field).toBe("reason");
+    const reset = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxRunningSweeps: null, reason: "back to plan" });
     expect((reset.body as { quotas: { effective: { maxRunningSweeps: number } } }).quotas.effective.maxRunningSweeps).toBe(PLAN_DEFAULTS.maxRunningSweeps);
     const rows = await db.select().from(auditLog).where(and(eq(auditLog.studioId, studio.studioId), eq(auditLog.action, "quota.update")));
     expect(rows.map((r) => [r.before, r.after, r.reason, r.actorLabel])).toEqual([
       [{ monthlyComputeMs: null, maxRunningSweeps: null }, { monthlyComputeMs: 90 * 60_000, maxRunningSweeps: 1 }, "pilot plan", admin.email],
-      [{ maxRunningSweeps: 1 }, { maxRunningSweeps: null }, "", admin.email],
+      [{ maxRunningSweeps: 1 }, { maxRunningSweeps: null }, "back to plan", admin.email],
     ]);
-    const bad = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxCellsPerSweep: PLAN_DEFAULTS.maxCellsPerSweep + 1 });
+    const bad = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", p, { maxCellsPerSweep: PLAN_DEFAULTS.maxCellsPerSweep + 1, reason: "too many" });
     expect(bad.status).toBe(400);
     expect(errorOf(bad.body).field).toBe("maxCellsPerSweep");
-    const missing = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", { studioId: "std_nope" }, { maxBodies: 10 });
+    const missing = await adminCall("v1/admin/studios/[studioId]/quotas", "PATCH", { studioId: "std_nope" }, { maxBodies: 10, reason: "nobody" });
     expect(missing.status).toBe(404);
   });
 
@@ -72,6 +78,10 @@ describe("admin console API", () => {
     const tooMuch = await adminCall("v1/admin/studios/[studioId]/adjustments", "POST", p, { computeMs: -(before + 5 * 60_000 + 1), reason: "clawback" });
     expect(tooMuch.status).toBe(422);
     expect(errorOf(tooMuch.body).field).toBe("computeMs");
+    // In minutes, as the admin screen takes and shows them, never a count of milliseconds.
+    const hugeMs = 999_999 * 60_000;
+    const huge = await adminCall("v1/admin/studios/[studioId]/adjustments", "POST", p, { computeMs: -hugeMs, reason: "clawback" });
+    expect(errorOf(huge.body).message).toBe(`computeMs: cannot revoke 999,999.00 min; the studio's balance is ${formatCompute(before + 5 * 60_000)}.`);
     const revoke = await adminCall("v1/admin/studios/[studioId]/adjustments", "POST", p, { computeMs: -60_000, reason: "duplicate grant" });
     expect(revoke.status).toBe(201);
     expect(await balanceMs(db, studio.studioId)).toBe(before + 4 * 60_000);
@@ -91,7 +101,23 @@ describe("admin console API", () => {
     const listed = (await adminCall("v1/admin/studios", "GET", {})).body as { studios: { id: string; status: string; monthlyComputeMs: number; balanceMs: number; monthUsedMs: number }[] };
     const mine = listed.studios.find((s) => s.id === studio.studioId)!;
     expect(mine).toMatchObject({ status: "suspended", monthlyComputeMs: 90 * 60_000, monthUsedMs: 0, balanceMs: await balanceMs(db, studio.studioId) });
+    // Every member hears of it by e-mail through the outbox, with the reason; their studio page carries it too.
+    const mailTo = async (subject: string) =>
+      (await db.select().from(outbox).where(and(eq(outbox.studioId, studio.studioId), eq(outbox.kind, "mail"))))
+        .map((row) => row.payload as { to: string; subject: string; text: string })
+        .filter((mail) => mail.subject === subject);
+    const suspendedMails = await mailTo("Heronsgate Games is suspended on Kickdrift");
+    expect(suspendedMails.map((mail) => mail.to).sort()).toEqual([studio.owner.email, studio.engineer.email, studio.finance.email].sort());
+    expect(suspendedMails[0].text).toContain("Reason: chargeback");
+    const seen = await call((await loadRoute("v1/studios/[studioId]")).GET, { path: `/api/v1/studios/${studio.studioId}`, params: p, cookie: studio.cookies.engineer });
+    expect((seen.body as { suspension: { reason: string; since: string } | null }).suspension).toMatchObject({ reason: "chargeback" });
+    // Suspending again changes nothing and mails no one twice.
+    expect((await adminCall("v1/admin/studios/[studioId]/status", "PUT", p, { status: "suspended", reason: "again" })).status).toBe(200);
+    expect(await mailTo("Heronsgate Games is suspended on Kickdrift")).toHaveLength(3);
     expect((await adminCall("v1/admin/studios/[studioId]/status", "PUT", p, { status: "active", reason: "paid" })).status).toBe(200);
+    expect(await mailTo("Heronsgate Games is active again on Kickdrift")).toHaveLength(3);
+    const after = await call((await loadRoute("v1/studios/[studioId]")).GET, { path: `/api/v1/studios/${studio.studioId}`, params: p, cookie: studio.cookies.engineer });
+    expect((after.body as { suspension: unknown }).suspension).toBeNull();
     const audits = await db.select().from(auditLog).where(and(eq(auditLog.studioId, studio.studioId), sql`${auditLog.action} like 'studio.%'`));
     expect(audits.map((a) => [a.action, a.before, a.after, a.reason])).toEqual([
       ["studio.suspend", { status: "active" }, { status: "suspended" }, "chargeback"],
@@ -136,7 +162,10 @@ describe("admin console API", () => {
     const res = await adminCall("v1/admin/users/[userId]", "PATCH", { userId: person.id }, { isAdmin: true, reason: "on-call rota" });
     expect(res.status).toBe(200);
     expect((await db.select().from(users).where(eq(users.id, person.id)))[0].isAdmin).toBe(true);
-    const self = await adminCall("v1/admin/users/[userId]", "PATCH", { userId: admin.id }, { isAdmin: false });
+    const noReason = await adminCall("v1/admin/users/[userId]", "PATCH", { userId: person.id }, { isAdmin: false });
+    expect(noReason.status).toBe(400);
+    expect(errorOf(noReason.body).field).toBe("reason");
+    const self = await adminCall("v1/admin/users/[userId]", "PATCH", { userId: admin.id }, { isAdmin: false, reason: "leaving" });
     expect(self.status).toBe(409);
     const [entry] = await db.select().from(auditLog).where(and(eq(auditLog.action, "user.platform_role"), eq(auditLog.subjectId, person.id)));
     expect([entry.before, entry.after]).toEqual([{ isAdmin: false }, { isAdmin: true }]);

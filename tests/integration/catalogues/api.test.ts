@@ -87,6 +87,32 @@ describe("uploads", () => {
     const foreign = await call(catalogueRoute.GET, { path: `${base(rival)}/${v1.id}`, params: { studioId: rival.studioId, catalogueId: v1.id }, cookie: rival.cookies.owner });
     expect(foreign.status).toBe(404);
   });
+
+  it("keeps the uploaded bytes of a table corrected before saving: the original file is what was uploaded, ?copy=saved the corrected table", async () => {
+    // The upload page sends the corrected table as "file" and the file as chosen as "original".
+    const uploaded = new TextEncoder().encode(CRATESLIDE_CATALOGUE_CSV.replace("coin,0.6,", "coin,heavy,"));
+    const corrected = CRATESLIDE_CATALOGUE_CSV;
+    const data = form(corrected, "crateslide-fixed.csv", "Crateslide corrected");
+    data.set("original", new Blob([uploaded as BlobPart], { type: "text/csv" }), "crateslide.csv");
+    const saved = await upload(studio, data);
+    expect(saved.status).toBe(201);
+    const catalogue = (saved.body as { catalogue: { id: string; contentHash: string; original: { fileName: string; fileBytes: number; contentHash: string } | null } }).catalogue;
+    expect(catalogue.contentHash).toBe(contentHash(new TextEncoder().encode(corrected)));
+    expect(catalogue.original).toEqual({ fileName: "crateslide.csv", fileBytes: uploaded.length, contentHash: contentHash(uploaded) });
+    const params = { studioId: studio.studioId, catalogueId: catalogue.id };
+
+    const original = await fileRoute.GET(buildRequest({ path: `${base(studio)}/${catalogue.id}/file`, cookie: studio.cookies.finance }), { params: Promise.resolve(params) });
+    expect(new Uint8Array(await original.arrayBuffer())).toEqual(uploaded);
+    expect(original.headers.get("x-content-sha256")).toBe(contentHash(uploaded));
+    expect(original.headers.get("content-disposition")).toBe('attachment; filename="crateslide.csv"');
+
+    const correctedRes = await fileRoute.GET(buildRequest({ path: `${base(studio)}/${catalogue.id}/file?copy=saved`, cookie: studio.cookies.finance }), { params: Promise.resolve(params) });
+    expect(await correctedRes.text()).toBe(corrected);
+
+    const wrong = await fileRoute.GET(buildRequest({ path: `${base(studio)}/${catalogue.id}/file?copy=fixed`, cookie: studio.cookies.finance }), { params: Promise.resolve(params) });
+    expect(wrong.status).toBe(400);
+    expect(errorOf(await wrong.json())).toMatchObject({ code: "validation_failed", field: "copy" });
+  });
 });
 
 describe("the demo", () => {

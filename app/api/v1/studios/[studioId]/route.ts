@@ -1,13 +1,16 @@
 import { withAuth } from "@/lib/auth/guard";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
+import { getDb } from "@/db/client";
 import { studioView } from "@/lib/studios/studios";
+import { studioSuspension } from "@/lib/studios/suspension";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 export const GET = withAuth({ access: "studio", roles: "member", token: "read" }, async ({ studio, role }) => {
-  return json({ studio: studioView(studio), role });
+  // A suspended studio's members see why and since when (the banner of every studio page).
+  return json({ studio: studioView(studio), role, suspension: await studioSuspension(await getDb(), studio) });
 });
 
 export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);

@@ -16,7 +16,7 @@ export const GET = withAuth(CATALOGUE_READ, async ({ studio }) => {
 });
 
 export const POST = withAuth(CATALOGUE_WRITE, async ({ req, studio, user }) => {
-  const { fields, file } = await readMultipart(req, MAX_UPLOAD_BODY_BYTES, `${CATALOGUE_LIMITS.maxFileBytes.toLocaleString("en-US")} bytes (256 KiB) per file`);
+  const { fields, file, files } = await readMultipart(req, MAX_UPLOAD_BODY_BYTES, `${CATALOGUE_LIMITS.maxFileBytes.toLocaleString("en-US")} bytes (256 KiB) per file`);
   if (!file) throw new ApiError(400, "validation_failed", 'file: attach the catalogue (CSV or JSON) in a field named "file".', "file");
   const db = await getDb();
   const { catalogue, notes } = await saveCatalogue(db, studio.id, {
@@ -24,6 +24,8 @@ export const POST = withAuth(CATALOGUE_WRITE, async ({ req, studio, user }) => {
     fileName: file.fileName,
     mediaType: file.mediaType,
     bytes: file.bytes,
+    // A table corrected on the upload page: "file" is the corrected CSV, "original" the file as the user chose it.
+    original: files.get("original") ?? null,
     createdByUserId: user?.id ?? null,
   });
   return json({ catalogue: { ...(await catalogueDetail(db, catalogue)), notes } }, 201);

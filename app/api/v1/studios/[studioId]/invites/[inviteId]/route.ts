@@ -6,8 +6,8 @@ import { deleteInvite } from "@/lib/studios/invites";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params }) => {
-  await deleteInvite(studio.id, params.inviteId);
+export const DELETE = withAuth(OWNERS_ONLY, async ({ studio, params, user }) => {
+  await deleteInvite(studio.id, params.inviteId, user ?? null);
   return json({ deleted: { id: params.inviteId } });
 });
 

@@ -2,22 +2,30 @@ import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
 import { CATALOGUE_READ } from "@/lib/catalogues/api";
-import { catalogueFileBytes, catalogueOfStudio } from "@/lib/catalogues/store";
+import { catalogueFileBytes, catalogueOfStudio, catalogueUploadedFile } from "@/lib/catalogues/store";
+import { ApiError } from "@/lib/errors";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-/** The file exactly as uploaded (same bytes, same hash). */
-export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogueId: string }>(CATALOGUE_READ, async ({ studio, params }) => {
+/**
+ * The file exactly as uploaded (same bytes, same hash). When the table was corrected on the upload
+ * page before saving, ?copy=saved answers the corrected CSV the objects were read from.
+ */
+export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogueId: string }>(CATALOGUE_READ, async ({ req, studio, params }) => {
+  const copy = new URL(req.url).searchParams.get("copy") ?? "uploaded";
+  if (copy !== "uploaded" && copy !== "saved") throw new ApiError(400, "validation_failed", 'copy: must be "uploaded" (the file as uploaded, the default) or "saved" (the table the objects were read from).', "copy");
   const catalogue = await catalogueOfStudio(await getDb(), studio.id, params.catalogueId);
-  const safeName = catalogue.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");
-  return new Response(Buffer.from(catalogueFileBytes(catalogue)), {
+  const file = copy === "saved" ? { fileName: catalogue.fileName, bytes: catalogueFileBytes(catalogue), contentHash: catalogue.contentHash } : catalogueUploadedFile(catalogue);
+  const safeName = file.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");
+  const json = copy === "saved" ? catalogue.format === "json" : /\.json$/i.test(file.fileName) || (file.fileName === catalogue.fileName && catalogue.format === "json");
+  return new Response(Buffer.from(file.bytes), {
     status: 200,
     headers: {
-      "content-type": catalogue.format === "json" ? "application/json" : "text/csv",
+      "content-type": json ? "application/json" : "text/csv",
       "content-disposition": `attachment; filename="${safeName}"`,
-      "x-content-sha256": catalogue.contentHash,
-      etag: `"${catalogue.contentHash}"`,
+      "x-content-sha256": file.contentHash,
+      etag: `"${file.contentHash}"`,
       "cache-control": "no-store",
       "x-content-type-options": "nosniff",
     },
