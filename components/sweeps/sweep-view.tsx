@@ -6,7 +6,7 @@
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useEffect, useMemo, useRef, useState } from "react";
-import { CompareMaps, MapGrid, StabilityMap, type MapLayer, type OverlayInput } from "@/components/maps";
+import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { Alert, Button, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
@@ -18,7 +18,7 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
+import { COLOUR_RANGES, METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 
 type ViewMode = "single" | "compare" | "grid";
@@ -139,7 +139,7 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
       <ul className="mt-4 flex flex-wrap gap-2 text-sm" aria-label="Verdict counts" data-testid="verdict-counts">
         {VERDICTS_BY_SEVERITY.map((verdict) => (
           <li key={verdict} className="rounded-md border border-line px-2 py-1" data-testid={`verdict-count-${verdict}`}>
-            <span className="mr-1 inline-block h-2.5 w-2.5 rounded-sm align-middle" style={{ background: VERDICT_STYLES[verdict].colour }} aria-hidden="true" />
+            <VerdictSymbol verdict={verdict} size={14} className="mr-1 inline-block align-middle" />
             {VERDICT_STYLES[verdict].label}: <span className="font-mono">{(sweep.verdictCounts[verdict] ?? 0).toLocaleString("en")}</span>
           </li>
         ))}
@@ -224,7 +224,7 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
               <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${sweepPath(studioId, sweepId)}/cells`} download={`sweep-${sweepId}-cells.json`}>
                 All cells (JSON)
               </a>
-              <span className="self-center text-ink-muted">The map itself: “Save PNG” above the map.</span>
+              <span className="self-center text-ink-muted">The map itself: “Save PNG” or “Save SVG” above the map (with a title block: sweep, axes, what is shown, tolerances, date).</span>
             </div>
           </Card>
         </div>
@@ -239,6 +239,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
   const [yAxis, setYAxis] = useState(numericAxes[1] ?? -1);
   const [slice, setSlice] = useState<number[]>(() => sweep.axes.map(() => 0));
   const [show, setShow] = useState<"verdict" | keyof Metrics>("verdict");
+  const [colourRange, setColourRange] = useState(COLOUR_RANGES[0].key);
   const otherAxes = sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis);
   const compareAxis = otherAxes.length === 1 && !isNumericAxis(sweep.axes[otherAxes[0]]) && sweep.axes[otherAxes[0]].values.length >= 2 ? otherAxes[0] : -1;
   const gridAxis = otherAxes.length === 1 && isNumericAxis(sweep.axes[otherAxes[0]]) ? otherAxes[0] : -1;
@@ -265,7 +266,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
     const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
     const data = layerData(indices, cellsByIndex, metric?.key ?? null);
     const layer: MapLayer = metric
-      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: { normalisation: metric.normalisation, domain: metric.domain } }
+      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: metricScale(metric, sweep.spec.scenario.tolerances ?? {}, colourRange) }
       : { kind: "verdict", verdicts: data.verdicts };
     return { indices, layer, ...data };
   };
@@ -295,6 +296,20 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             ))}
           </select>
         </div>
+        {metric && !metric.domain ? (
+          <div className="space-y-1">
+            <label htmlFor="map-colour-range" className="block text-sm font-medium">
+              Colour range
+            </label>
+            <select id="map-colour-range" className={selectClasses} value={colourRange} onChange={(event) => setColourRange(event.target.value)}>
+              {COLOUR_RANGES.map((range) => (
+                <option key={range.key} value={range.key}>
+                  {range.label}
+                </option>
+              ))}
+            </select>
+          </div>
+        ) : null}
         <AxisSelect
           id="map-x"
           label="Horizontal axis"
@@ -403,6 +418,15 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           overlays={overlays}
           showLegend
           exportFileName={`sweep-${sweep.id}-map`}
+          exportTitleBlock={mapTitleBlock({
+            sweepName: sweep.name || `Sweep ${sweep.id.slice(0, 8)}`,
+            sweepId: sweep.id,
+            x,
+            y: yAxis >= 0 ? y : null,
+            held: otherAxes.map((i) => `${sweep.axes[i].label} = ${axisValueLabel(i, slice[i] ?? 0)}`),
+            showing: metric ? `${metric.label}${metric.unit ? ` [${metric.unit}]` : ""}` : "Verdict (symbols as in the legend)",
+            tolerances: sweep.spec.scenario.tolerances ?? {},
+          })}
           onCellClick={(mapIndex) => onOpenCell(single.indices[mapIndex])}
         />
       )}
