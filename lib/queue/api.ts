@@ -121,4 +121,14 @@ export const rerunRequestSchema = z.strictObject({
     .min(MIN_DT_FACTOR, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
     .max(1, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
     .default(0.25),
+  acceptedQuoteMs: z
+    .number({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .int({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .min(0, { error: "acceptedQuoteMs must be ≥ 0" })
+    .optional(),
+});
+
+/** POST …/cells/{index}/rerun/quote: the quote of that re-run (nothing is started). */
+export const rerunQuoteRequestSchema = z.strictObject({
+  dtFactor: rerunRequestSchema.shape.dtFactor,
 });

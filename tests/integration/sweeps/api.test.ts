@@ -17,6 +17,7 @@ import * as cancelRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/c
 import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/route";
 import * as cellRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/route";
 import * as rerunRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/route";
+import * as rerunQuoteRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/quote/route";
 import * as envelopeRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/envelope/route";
 import { countRows } from "../../helpers/db";
 import { makeToken, makeUser } from "../../helpers/factories";
@@ -169,6 +170,30 @@ describe("a sweep through the API", { timeout: 120_000 }, () => {
     const bad = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/2/rerun`, params, body: { dtFactor: 2 }, cookie: studio.cookies.engineer });
     expect(bad.status).toBe(400);
     expect(errorOf(bad.body).field).toBe("dtFactor");
+  });
+
+  it("quotes a re-run before it starts, refuses a re-run whose ceiling outgrew the accepted quote, and links the re-run to its parent cell", async () => {
+    const params = { studioId: studio.studioId, sweepId, index: "3" };
+    const before = await rowCounts();
+    const quoted = await call(rerunQuoteRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun/quote`, params, body: { dtFactor: 0.5 }, cookie: studio.cookies.engineer });
+    expect(quoted.status, JSON.stringify(quoted.body)).toBe(200);
+    const quote = (quoted.body as { quote: { cells: number; ceilingMs: number } }).quote;
+    expect(quote.cells).toBe(1);
+    expect(quote.ceilingMs).toBeGreaterThan(0);
+    // A quote starts nothing.
+    expect(await rowCounts()).toEqual(before);
+    const tooLow = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun`, params, body: { dtFactor: 0.5, acceptedQuoteMs: quote.ceilingMs - 1 }, cookie: studio.cookies.engineer });
+    expect(tooLow.status).toBe(409);
+    expect(errorOf(tooLow.body).field).toBe("acceptedQuoteMs");
+    expect(await rowCounts()).toEqual(before);
+    const { status, body } = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun`, params, body: { dtFactor: 0.5, acceptedQuoteMs: quote.ceilingMs }, cookie: studio.cookies.engineer });
+    expect(status, JSON.stringify(body)).toBe(201);
+    const rerun = (body as { sweep: { id: string; ceilingMs: number; rerunOf: { sweepId: string; cellIndex: number } | null } }).sweep;
+    expect(rerun.ceilingMs).toBe(quote.ceilingMs);
+    expect(rerun.rerunOf).toEqual({ sweepId, cellIndex: 3 });
+    const badQuote = await call(rerunQuoteRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun/quote`, params, body: { dtFactor: 0 }, cookie: studio.cookies.engineer });
+    expect(badQuote.status).toBe(400);
+    expect(errorOf(badQuote.body).field).toBe("dtFactor");
   });
 
   it("answers the envelope as JSON and CSV, and names a bad parameter", async () => {
