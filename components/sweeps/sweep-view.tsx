@@ -20,6 +20,7 @@ import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
 import { COLOUR_RANGES, METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
+import { SingleRunPanel } from "./rerun-comparison";
 
 type ViewMode = "single" | "compare" | "grid";
 
@@ -209,11 +210,16 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
         <div className="space-y-6">
           <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => cancel.mutate()} cancelling={cancel.isPending} />
           {cancel.isError ? <Alert>{errorMessage(cancel.error)}</Alert> : null}
-          <SweepMaps
-            sweep={sweep!}
-            cells={cellsQuery.data ?? []}
-            onOpenCell={(index) => router.push(`/studios/${studioId}/sweeps/${sweepId}/cells/${index}`)}
-          />
+          {sweep!.axes.length === 0 ? (
+            // A one-cell sweep (a re-run at a finer dt, or a spec without axes) has no map: its run, and the comparison with its parent cell.
+            <SingleRunPanel studioId={studioId} sweep={sweep!} cells={cellsQuery.data ?? []} />
+          ) : (
+            <SweepMaps
+              sweep={sweep!}
+              cells={cellsQuery.data ?? []}
+              onOpenCell={(index) => router.push(`/studios/${studioId}/sweeps/${sweepId}/cells/${index}`)}
+            />
+          )}
           {cellsQuery.isError ? <Alert>{errorMessage(cellsQuery.error)}</Alert> : null}
           <EnvelopePanel studioId={studioId} sweep={sweep!} cells={cellsQuery.data ?? []} />
           <Card title="Exports">
@@ -224,7 +230,9 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
               <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${sweepPath(studioId, sweepId)}/cells`} download={`sweep-${sweepId}-cells.json`}>
                 All cells (JSON)
               </a>
-              <span className="self-center text-ink-muted">The map itself: “Save PNG” or “Save SVG” above the map (with a title block: sweep, axes, what is shown, tolerances, date).</span>
+              {sweep!.axes.some(isNumericAxis) ? (
+                <span className="self-center text-ink-muted">The map itself: “Save PNG” or “Save SVG” above the map (with a title block: sweep, axes, what is shown, tolerances, date).</span>
+              ) : null}
             </div>
           </Card>
         </div>
@@ -444,7 +452,8 @@ function CellList({ cells, onOpenCell }: { cells: readonly CellRow[]; onOpenCell
       {cells.map((cell) => (
         <li key={cell.index} className="flex justify-between py-1.5">
           <button type="button" className="text-action hover:underline" onClick={() => onOpenCell(cell.index)}>
-            Cell {cell.index}: {cell.axisValues.join(", ")}
+            Cell {cell.index}
+            {cell.axisValues.length > 0 ? `: ${cell.axisValues.join(", ")}` : ""}
           </button>
           <span>{VERDICT_STYLES[cell.verdict].label}</span>
         </li>
