@@ -14,6 +14,7 @@ import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
+import { reasonForDisplay } from "@/lib/ui/reasons";
 import { formatPriceCents } from "@/lib/billing/packs";
 import { sweepKeys, sweepPath, useSweep, type CellDetail, type Quote, type Sweep } from "./sweep-api";
 
@@ -95,7 +96,7 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                   {VERDICT_STYLES[detail.data.cell.verdict].label}
                 </span>
               </p>
-              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{detail.data.cell.reason}</p> : null}
+              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{reasonForDisplay(detail.data.cell.reason)}</p> : null}
               <h3 className="mb-1 text-sm font-semibold">Swept parameters</h3>
               <dl className="mb-3 grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm">
                 {detail.data.cell.axisValues.map((value, i) => {

@@ -10,6 +10,7 @@ import { Alert, Card, LoadingRows } from "@/components/ui";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
 import type { Metrics, Verdict } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
+import { reasonForDisplay } from "@/lib/ui/reasons";
 import { formatFrameStepWithRate, formatPrecise } from "@/lib/ui/units";
 import { sweepKeys, sweepPath, type CellDetail, type CellRow, type Sweep } from "./sweep-api";
 
@@ -77,7 +78,7 @@ export function SingleRunPanel({ studioId, sweep, cells }: { studioId: string; s
                 {VERDICT_STYLES[run.verdict].label}
               </span>
             </p>
-            {run.reason ? <p className="text-ink-muted">{run.reason}</p> : null}
+            {run.reason ? <p className="text-ink-muted">{reasonForDisplay(run.reason)}</p> : null}
             <p>
               <Link className="font-medium text-action hover:underline" href={`/studios/${studioId}/sweeps/${sweep.id}/cells/0`}>
                 Open its time series and replay

@@ -5,6 +5,7 @@
  */
 import { axisTickLabel, type MapAxis, type MetricScaleOptions, type OverlayInput } from "@/components/maps/map-model";
 import { DEFAULT_TOLERANCES } from "@/lib/physics/constants";
+import { reasonForDisplay } from "@/lib/ui/reasons";
 import type { PercentileClip } from "@/lib/charts/normalise";
 import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
 import type { Metrics, Tolerances, Verdict } from "@/lib/physics/types";
@@ -168,7 +169,7 @@ export function layerData(
   for (const index of indices) {
     const cell = cellsByIndex.get(index);
     verdicts.push(cell ? cell.verdict : null);
-    reasons.push(cell ? cell.reason : null);
+    reasons.push(cell ? reasonForDisplay(cell.reason) : null);
     dynamics.push(cell ? dynamicsLine(cell.metrics) : null);
     if (!cell || metric === null) values.push(Number.NaN);
     else {
