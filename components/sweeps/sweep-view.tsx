@@ -7,7 +7,7 @@ import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
-import { Alert, Button, Card, LoadingRows } from "@/components/ui";
+import { Alert, Button, ButtonLink, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
 import { formatParameterValue, parameterUnitLabel } from "@/lib/ui/units";
@@ -42,7 +42,7 @@ function useNow(active: boolean): number {
   return now;
 }
 
-function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
+function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { studioId: string; sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
   const active = isActive(sweep.status);
   const now = useNow(active);
   const percent = progressPercent(sweep);
@@ -60,10 +60,18 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
         </span>
       }
       actions={
-        canRun && active ? (
-          <Button variant="danger" onClick={onCancel} disabled={cancelling}>
-            {cancelling ? "Cancelling…" : "Cancel sweep"}
-          </Button>
+        canRun ? (
+          <span className="flex flex-wrap gap-2">
+            {/* The spec as it ran, in the builder, under a new name: nothing is resubmitted until it is quoted and confirmed. */}
+            <ButtonLink variant="secondary" href={`/studios/${studioId}/sweeps/new?from=${encodeURIComponent(sweep.id)}`}>
+              Duplicate and edit
+            </ButtonLink>
+            {active ? (
+              <Button variant="danger" onClick={onCancel} disabled={cancelling}>
+                {cancelling ? "Cancelling…" : "Cancel sweep"}
+              </Button>
+            ) : null}
+          </span>
         ) : null
       }
     >
@@ -208,7 +216,7 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
         <Alert>{errorMessage(sweepQuery.error)}</Alert>
       ) : (
         <div className="space-y-6">
-          <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => cancel.mutate()} cancelling={cancel.isPending} />
+          <ProgressPanel studioId={studioId} sweep={sweep!} canRun={canRun} onCancel={() => cancel.mutate()} cancelling={cancel.isPending} />
           {cancel.isError ? <Alert>{errorMessage(cancel.error)}</Alert> : null}
           {sweep!.axes.length === 0 ? (
             // A one-cell sweep (a re-run at a finer dt, or a spec without axes) has no map: its run, and the comparison with its parent cell.

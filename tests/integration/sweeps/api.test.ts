@@ -196,6 +196,34 @@ describe("a sweep through the API", { timeout: 120_000 }, () => {
     expect(errorOf(badQuote.body).field).toBe("dtFactor");
   });
 
+  it("searches the list by name (wildcards taken literally) and filters it by creator and status", async () => {
+    const named = async (name: string, cookie: string) => {
+      const spec = puckSpec() as Spec & { name?: string };
+      const { status, body } = await call(sweepsRoute.POST, { method: "POST", path: `${base(studio)}/sweeps`, params: { studioId: studio.studioId }, body: { spec, name }, cookie });
+      expect(status, JSON.stringify(body)).toBe(201);
+      return (body as { sweep: { id: string } }).sweep.id;
+    };
+    const ownerSweep = await named("Tidewater flippers 100% bounce", studio.cookies.owner);
+    const engineerSweep = await named("Tidewater flippers_low", studio.cookies.engineer);
+    const list = async (query: string) => {
+      const { status, body } = await call(sweepsRoute.GET, { path: `${base(studio)}/sweeps?${query}`, params: { studioId: studio.studioId }, cookie: studio.cookies.finance });
+      expect(status, JSON.stringify(body)).toBe(200);
+      return body as { sweeps: { id: string; createdBy: { id: string; name: string } | null }[]; total: number; creators: { id: string; name: string }[] };
+    };
+    expect((await list("q=tidewater")).sweeps.map((s) => s.id).sort()).toEqual([ownerSweep, engineerSweep].sort());
+    // "%" and "_" match themselves, not any text.
+    expect((await list("q=100%25")).sweeps.map((s) => s.id)).toEqual([ownerSweep]);
+    expect((await list("q=flippers_")).sweeps.map((s) => s.id)).toEqual([engineerSweep]);
+    const all = await list("q=tidewater");
+    const ownerId = all.sweeps.find((s) => s.id === ownerSweep)!.createdBy!.id;
+    expect(all.creators.map((c) => c.id)).toContain(ownerId);
+    expect((await list(`q=tidewater&createdBy=${encodeURIComponent(ownerId)}`)).sweeps.map((s) => s.id)).toEqual([ownerSweep]);
+    expect((await list(`q=tidewater&createdBy=${encodeURIComponent(ownerId)}&status=failed`)).total).toBe(0);
+    const tooLong = await call(sweepsRoute.GET, { path: `${base(studio)}/sweeps?q=${"x".repeat(121)}`, params: { studioId: studio.studioId }, cookie: studio.cookies.finance });
+    expect(tooLong.status).toBe(400);
+    expect(errorOf(tooLong.body).field).toBe("q");
+  });
+
   it("answers the envelope as JSON and CSV, and names a bad parameter", async () => {
     const params = { studioId: studio.studioId, sweepId };
     const { status, body } = await call(envelopeRoute.GET, { path: `${base(studio)}/sweeps/${sweepId}/envelope?x=0&y=1&margin=0&bound=max`, params, cookie: studio.cookies.finance });
