@@ -6,6 +6,7 @@
 import type { BenchModule } from "./bench-module";
 import { boxScaling } from "./box-scaling";
 import { costCalibration } from "./cost-calibration";
+import { firstVisit } from "./first-visit";
 import { mapRender } from "./map-render";
 import { metering } from "./metering";
 import { workUnitCalibration } from "./work-unit-calibration";
@@ -15,7 +16,7 @@ import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, boxScaling, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, scaleOut, webhookIsolation, requestHardening, firstVisit];
 
 async function main() {
   const wanted = process.argv.slice(2);
