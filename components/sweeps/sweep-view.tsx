@@ -184,10 +184,10 @@ function AxisSelect({ id, label, axes, choices, value, onChange }: {
   );
 }
 
-export function SweepView({ studioId, studioName, role, sweepId }: { studioId: string; studioName: string; role: StudioRole; sweepId: string }) {
+export function SweepView({ studioId, studioName, role, sweepId, initialSweep }: { studioId: string; studioName: string; role: StudioRole; sweepId: string; initialSweep?: Sweep }) {
   const router = useRouter();
   const queryClient = useQueryClient();
-  const sweepQuery = useSweep(studioId, sweepId);
+  const sweepQuery = useSweep(studioId, sweepId, initialSweep);
   const sweep = sweepQuery.data;
   const active = isActive(sweep?.status);
   const cellsQuery = useSweepCells(studioId, sweepId, active);
