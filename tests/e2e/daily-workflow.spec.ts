@@ -20,7 +20,7 @@ async function openStudio(page: Page): Promise<string> {
 async function openSweep(page: Page, studioPath: string, name: string): Promise<string> {
   await page.goto(`${studioPath}/sweeps`);
   await page.getByLabel("Name contains").fill("Reedmarsh");
-  await page.getByRole("link", { name }).first().click();
+  await page.getByRole("link", { name, exact: true }).first().click();
   await expect(page.getByTestId("sweep-name")).toHaveText(name);
   await expect(page.getByTestId("sweep-status")).toHaveText("done", { timeout: 120_000 });
   return new URL(page.url()).pathname;
