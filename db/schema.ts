@@ -15,6 +15,7 @@ import {
   timestamp,
   uniqueIndex,
 } from "drizzle-orm/pg-core";
+import type { AnyPgColumn } from "drizzle-orm/pg-core";
 
 /** Studio roles, in the order the UI lists them. */
 export const STUDIO_ROLES = ["owner", "engineer", "finance"] as const;
@@ -251,6 +252,9 @@ export const sweeps = pgTable(
     /** Running totals of the done cells' verdicts, kept in the transaction that stores each chunk. */
     verdictCounts: jsonb("verdict_counts").$type<Record<string, number>>().notNull().default({}),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
+    /** A "re-run at a finer dt" names the sweep and cell it re-runs, so its page can compare the two. */
+    rerunOfSweepId: text("rerun_of_sweep_id").references((): AnyPgColumn => sweeps.id, { onDelete: "set null" }),
+    rerunOfCellIndex: integer("rerun_of_cell_index"),
     createdAt: createdAt(),
     startedAt: ts("started_at"),
     finishedAt: ts("finished_at"),

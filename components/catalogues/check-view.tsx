@@ -9,7 +9,7 @@ import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect, useMemo, useRef, useState } from "react";
-import { StabilityMap } from "@/components/maps";
+import { StabilityMap, VerdictSymbol } from "@/components/maps";
 import { Alert, Button, Card, LoadingRows, buttonClasses, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { StatusBadge, progressPercent } from "@/components/sweeps/sweeps-list";
@@ -319,9 +319,12 @@ function PairMatrixGrid({ data, selected, onSelect }: { data: CheckViewData; sel
                         aria-pressed={selected === pair.name}
                         data-verdict={verdict ?? "pending"}
                         data-pair={pair.name}
-                        className={cx("block h-9 w-9 rounded border border-line", selected === pair.name && "ring-2 ring-ink ring-offset-1")}
+                        className={cx("block h-9 w-9 overflow-hidden rounded border border-line", selected === pair.name && "ring-2 ring-ink ring-offset-1")}
                         style={{ backgroundColor: verdict ? VERDICT_STYLES[verdict].colour : "transparent" }}
-                      />
+                      >
+                        {/* The verdict's glyph too, so the matrix reads without colour. */}
+                        {verdict ? <VerdictSymbol verdict={verdict} size={34} className="block" /> : null}
+                      </button>
                     </td>
                   );
                 })}
@@ -333,7 +336,7 @@ function PairMatrixGrid({ data, selected, onSelect }: { data: CheckViewData; sel
       <ul className="flex flex-wrap gap-3 text-xs" aria-label="Legend">
         {(Object.keys(VERDICT_STYLES) as Verdict[]).map((verdict) => (
           <li key={verdict} className="flex items-center gap-1">
-            <span className="inline-block h-3 w-3 rounded-sm border border-line" style={{ backgroundColor: VERDICT_STYLES[verdict].colour }} aria-hidden="true" />
+            <VerdictSymbol verdict={verdict} size={16} />
             {VERDICT_STYLES[verdict].label}
           </li>
         ))}

@@ -6,16 +6,21 @@
  *
  * Props:
  * - `series`: the engine's TimeSeries (lib/physics/types.ts), SI units.
- * - `bodyLabels` (optional): names per body (default "Body 1", "Body 2", …). Per-body momentum lines
+ * - `bodyLabels` (optional): names per body (default "Disc 1", "Disc 2", …: counted from 1, as the replay and the reasons count them). Per-body momentum lines
  *   are drawn for up to `maxBodyLines` bodies (default 6); beyond that only the total is shown.
  * - `overlapLimitM` (optional): the deep-overlap tolerance in metres, drawn as a reference line.
  * - `maxPoints` (default 800): long series are thinned for drawing, keeping every bucket's extremes.
  * - `chartHeight` (CSS px per chart, default 190).
+ *
+ * Zoom and pan: the charts show a time window, framed on the contacts by default (the first to the
+ * last sample with any overlap, widened by half its length each side); the overview strip below
+ * holds a recharts Brush to drag or resize the window, and buttons return to the contacts or the
+ * whole run. The window is resampled from the full series, so zooming in shows every sample.
  */
-import { useId, useMemo } from "react";
-import { CartesianGrid, Legend, Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
+import { useId, useMemo, useState } from "react";
+import { Brush, CartesianGrid, Legend, Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 import type { TimeSeries } from "@/lib/physics/types";
-import { pickSampleIndices } from "@/lib/charts/decimate";
+import { contactWindow, pickSampleIndices, pickSampleIndicesIn } from "@/lib/charts/decimate";
 import { formatPrecise, formatSI } from "@/lib/charts/format";
 import { seriesColour, seriesDash } from "@/lib/charts/series-style";
 
@@ -138,11 +143,30 @@ function SeriesChart({
 export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 800, maxBodyLines = 6, chartHeight = 190 }: CellTimeSeriesProps) {
   const syncId = useId();
   const problem = timeSeriesProblem(series);
+  const n = series.tS.length;
+  const contacts = useMemo(() => (problem ? null : contactWindow(series.maxOverlapM)), [series, problem]);
+  const whole: [number, number] = [0, Math.max(0, n - 1)];
+  // The window in sample indices; null until the user moves it (then the contact window is used).
+  const [chosen, setChosen] = useState<[number, number] | null>(null);
+  const window: [number, number] = chosen ?? contacts ?? whole;
+  // The overview strip: the total energy and overlap over the whole run, thinned, with the brush.
+  const overview = useMemo(() => {
+    if (problem) return null;
+    const indices = pickSampleIndices(n, [series.maxOverlapM, series.totalJ], 240);
+    return { indices, rows: indices.map((i) => ({ t: series.tS[i], overlap: finiteOrNull(series.maxOverlapM[i]) })) };
+  }, [series, n, problem]);
+  const nearestOverviewRow = (sample: number) => {
+    if (!overview) return 0;
+    let best = 0;
+    for (let r = 0; r < overview.indices.length; r++) if (Math.abs(overview.indices[r] - sample) < Math.abs(overview.indices[best] - sample)) best = r;
+    return best;
+  };
   const prepared = useMemo(() => {
     if (problem) return null;
     const showBodies = series.bodies.length <= maxBodyLines;
-    const thinned = pickSampleIndices(
-      series.tS.length,
+    const thinned = pickSampleIndicesIn(
+      window[0],
+      window[1],
       [series.totalPxNs, series.totalPyNs, series.totalJ, series.kineticJ, series.potentialJ, series.maxOverlapM, ...(showBodies ? series.bodies.flatMap((b) => [b.pxNs, b.pyNs]) : [])],
       maxPoints,
     );
@@ -165,12 +189,14 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
     const hasGaps = [momentum, energy, overlap].some((rows) => rows.some((row) => Object.values(row).some((v) => v === null)));
     const bodyLines = (axis: "x" | "y"): LineSpec[] => [
       ...(showBodies
-        ? series.bodies.map((_, b) => ({ key: `b${b}${axis}`, label: bodyLabels?.[b] ?? `Body ${b + 1}`, colour: seriesColour(b), dash: seriesDash(b), width: 1.5 }))
+        ? series.bodies.map((_, b) => ({ key: `b${b}${axis}`, label: bodyLabels?.[b] ?? `Disc ${b + 1}`, colour: seriesColour(b), dash: seriesDash(b), width: 1.5 }))
         : []),
       { key: `total${axis.toUpperCase()}`, label: "Total", colour: "currentColor", dash: "", width: 2.25 },
     ];
-    return { momentum, energy, overlap, bodyLines, showBodies, hasGaps, thinnedFrom: thinned.length < series.tS.length ? series.tS.length : 0, initialEnergy: series.totalJ[0] };
-  }, [series, bodyLabels, maxPoints, maxBodyLines, problem]);
+    const inWindow = window[1] - window[0] + 1;
+    return { momentum, energy, overlap, bodyLines, showBodies, hasGaps, thinnedFrom: thinned.length < inWindow ? inWindow : 0, initialEnergy: series.totalJ[0] };
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- the window's two numbers, not the tuple's identity
+  }, [series, bodyLabels, maxPoints, maxBodyLines, problem, window[0], window[1]]);
 
   if (problem || !prepared) {
     return (
@@ -179,8 +205,51 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
       </p>
     );
   }
+  const isContacts = contacts !== null && window[0] === contacts[0] && window[1] === contacts[1];
+  const isWhole = window[0] === 0 && window[1] === n - 1;
   return (
     <div className="space-y-3">
+      <div className="flex flex-wrap items-center gap-2 text-sm" role="group" aria-label="Time window">
+        <span className="text-ink-muted" data-testid="series-window">
+          Showing t = {formatPrecise(series.tS[window[0]], "s")} … {formatPrecise(series.tS[window[1]], "s")}
+          {isContacts ? " (the contacts)" : isWhole ? " (the whole run)" : ""}
+        </span>
+        <button type="button" className="rounded-md border border-line px-2 py-0.5 text-xs font-semibold hover:bg-surface-muted disabled:opacity-50" disabled={!contacts || isContacts} onClick={() => setChosen(contacts)}>
+          Frame the contacts
+        </button>
+        <button type="button" className="rounded-md border border-line px-2 py-0.5 text-xs font-semibold hover:bg-surface-muted disabled:opacity-50" disabled={isWhole} onClick={() => setChosen(whole)}>
+          Whole run
+        </button>
+        {!contacts ? <span className="text-xs text-ink-muted">No contact in this run: the whole run is shown.</span> : null}
+      </div>
+      {overview && overview.rows.length > 2 ? (
+        <figure className="m-0 rounded-md border border-line bg-surface px-3 pt-2" data-testid="series-overview">
+          <figcaption className="text-xs text-ink-muted">Overview (overlap over the whole run): drag the handles to zoom, the middle to pan</figcaption>
+          <div className={CHART_CHROME} style={{ height: 86 }}>
+            <ResponsiveContainer width="100%" height="100%">
+              <LineChart data={overview.rows} margin={{ top: 4, right: 16, bottom: 0, left: 92 }}>
+                <XAxis dataKey="t" type="number" domain={["dataMin", "dataMax"]} hide />
+                <YAxis hide domain={[0, "auto"]} />
+                <Line dataKey="overlap" stroke={seriesColour(3)} dot={false} isAnimationActive={false} strokeWidth={1.25} />
+                <Brush
+                  dataKey="t"
+                  height={24}
+                  travellerWidth={8}
+                  startIndex={nearestOverviewRow(window[0])}
+                  endIndex={nearestOverviewRow(window[1])}
+                  tickFormatter={(t: number) => formatSI(t, "s")}
+                  onChange={(range) => {
+                    if (range.startIndex === undefined || range.endIndex === undefined) return;
+                    const from = overview.indices[range.startIndex];
+                    const to = overview.indices[range.endIndex];
+                    if (to > from) setChosen([from, to]);
+                  }}
+                />
+              </LineChart>
+            </ResponsiveContainer>
+          </div>
+        </figure>
+      ) : null}
       <div className="grid gap-3 xl:grid-cols-2">
         <SeriesChart title="Momentum along x" unit="N·s" rows={prepared.momentum} lines={prepared.bodyLines("x")} syncId={syncId} height={chartHeight} />
         <SeriesChart title="Momentum along y" unit="N·s" rows={prepared.momentum} lines={prepared.bodyLines("y")} syncId={syncId} height={chartHeight} />
@@ -209,7 +278,7 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
       </div>
       <p className="text-xs text-ink-muted">
         {!prepared.showBodies && `${series.bodies.length} bodies: momentum charts show the total only. `}
-        {prepared.thinnedFrom > 0 && `Drawn from ${prepared.momentum.length.toLocaleString("en-US")} of ${prepared.thinnedFrom.toLocaleString("en-US")} samples, keeping each stretch's extremes. `}
+        {prepared.thinnedFrom > 0 && `Drawn from ${prepared.momentum.length.toLocaleString("en-US")} of the window's ${prepared.thinnedFrom.toLocaleString("en-US")} samples, keeping each stretch's extremes; zoom in to see every sample. `}
         {prepared.hasGaps && "Gaps mark samples where a value was no longer finite."}
       </p>
     </div>

@@ -19,7 +19,9 @@
  * - `scale` (optional): a ResolvedScale shared with other maps (CompareMaps, MapGrid).
  * - `onCellClick(index)`, `selectedIndex`: opening a cell's drill-down.
  * - `title`, `height` (CSS px, default 420), `compact` (small multiples), `showLegend`,
- *   `exportFileName` (shows a "Save PNG" button), `ref` (StabilityMapHandle: toPngBlob, toPngDataUrl),
+ *   `exportFileName` (shows "Save PNG" and "Save SVG" buttons), `exportTitleBlock` (lines under the
+ *   exported title: sweep, axes, metric, tolerances; the export adds its date),
+ *   `ref` (StabilityMapHandle: toPngBlob, toPngDataUrl, toSvgText),
  *   `onDraw(ms)` (time of the last full draw, for diagnostics and the benchmark).
  *
  * Keyboard: focus the map (Tab), arrows move between cells, Home/End and PageUp/PageDown jump to
@@ -32,12 +34,14 @@ import { hitTestCell, cellRect } from "@/lib/charts/scales";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
 import { axisValueText, buildMapModel, CELL_NO_VALUE, CELL_PENDING, MapInputError, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
 import { readChrome, renderHighlights, renderMap, type MapLayout } from "./render";
-import { downloadBlob, exportMapPng, exportMapPngDataUrl } from "./export";
+import { downloadBlob, exportDateLine, exportMapPng, exportMapPngDataUrl, titleBlockHeight } from "./export";
+import { exportMapSvg } from "./svg-export";
 import { useDevicePixelRatio, useElementWidth, useThemeVersion } from "./use-canvas-env";
 
 export interface StabilityMapHandle {
   toPngBlob(options?: { scale?: number }): Promise<Blob>;
   toPngDataUrl(options?: { scale?: number }): string;
+  toSvgText(): Promise<string>;
 }
 
 export interface StabilityMapProps {
@@ -56,6 +60,7 @@ export interface StabilityMapProps {
   selectedIndex?: number | null;
   onCellClick?: (index: number) => void;
   exportFileName?: string;
+  exportTitleBlock?: readonly string[];
   onDraw?: (milliseconds: number) => void;
   className?: string;
   ref?: Ref<StabilityMapHandle>;
@@ -106,7 +111,7 @@ export function cellDescription(
 }
 
 export function StabilityMap(props: StabilityMapProps) {
-  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null, verdicts, reasons, extraLines, exportFileName, className, ref } = props;
+  const { x, y, layer, overlays, scale, height = 420, compact = false, showLegend, title, onCellClick, onDraw, selectedIndex = null, verdicts, reasons, extraLines, exportFileName, exportTitleBlock, className, ref } = props;
   const boxRef = useRef<HTMLDivElement>(null);
   const baseRef = useRef<HTMLCanvasElement>(null);
   const highlightRef = useRef<HTMLCanvasElement>(null);
@@ -160,19 +165,35 @@ export function StabilityMap(props: StabilityMapProps) {
     renderHighlights(canvas, layout, dpr, cells, readChrome(canvas), model.columns);
   }, [pointed, focusIndex, hasFocus, selectedIndex, drawnLayout, dpr, model]);
 
+  // What an export draws: the map at least 640 px wide, taller by its title block so the plot keeps its size.
+  const exportOptions = useCallback(() => {
+    const titleBlock = [...(exportTitleBlock ?? []), exportDateLine()];
+    return {
+      widthCss: Math.max(width, 640),
+      heightCss: height + titleBlockHeight(title, titleBlock.length),
+      title,
+      titleBlock,
+      chrome: baseRef.current ? readChrome(baseRef.current) : undefined,
+    };
+  }, [width, height, title, exportTitleBlock]);
+
   useImperativeHandle(
     ref,
     () => ({
       toPngBlob: (options) => {
         if (!model) return Promise.reject(new Error("the map has no valid data to export"));
-        return exportMapPng(model, { widthCss: Math.max(width, 640), heightCss: height, scale: options?.scale, title, chrome: baseRef.current ? readChrome(baseRef.current) : undefined });
+        return exportMapPng(model, { ...exportOptions(), scale: options?.scale });
       },
       toPngDataUrl: (options) => {
         if (!model) throw new Error("the map has no valid data to export");
-        return exportMapPngDataUrl(model, { widthCss: Math.max(width, 640), heightCss: height, scale: options?.scale, title, chrome: baseRef.current ? readChrome(baseRef.current) : undefined });
+        return exportMapPngDataUrl(model, { ...exportOptions(), scale: options?.scale });
+      },
+      toSvgText: () => {
+        if (!model) return Promise.reject(new Error("the map has no valid data to export"));
+        return exportMapSvg(model, exportOptions()).text();
       },
     }),
-    [model, width, height, title],
+    [model, exportOptions],
   );
 
   const anchorOf = useCallback(
@@ -252,10 +273,11 @@ export function StabilityMap(props: StabilityMapProps) {
     setFocusIndex(row * model.columns + column);
   };
 
-  const save = async () => {
+  const save = async (format: "png" | "svg") => {
     if (!model || !exportFileName) return;
-    const blob = await exportMapPng(model, { widthCss: Math.max(width, 640), heightCss: height, title, chrome: baseRef.current ? readChrome(baseRef.current) : undefined });
-    downloadBlob(blob, exportFileName.endsWith(".png") ? exportFileName : `${exportFileName}.png`);
+    const base = exportFileName.replace(/\.(png|svg)$/i, "");
+    const blob = format === "png" ? await exportMapPng(model, exportOptions()) : exportMapSvg(model, exportOptions());
+    downloadBlob(blob, `${base}.${format}`);
   };
 
   const tooltipCell = pointed ?? (hasFocus && focusIndex !== null ? anchorOf(focusIndex) : null);
@@ -269,13 +291,18 @@ export function StabilityMap(props: StabilityMapProps) {
         <figcaption className="mb-2 flex items-center justify-between gap-3">
           {title ? <span className={compact ? "text-xs font-semibold text-ink" : "text-sm font-semibold text-ink"}>{title}</span> : <span />}
           {exportFileName && model && (
-            <button
-              type="button"
-              onClick={save}
-              className="rounded-md border border-line bg-surface px-2.5 py-1 text-xs font-semibold text-ink hover:bg-surface-muted"
-            >
-              Save PNG
-            </button>
+            <span className="flex gap-2">
+              {(["png", "svg"] as const).map((format) => (
+                <button
+                  key={format}
+                  type="button"
+                  onClick={() => void save(format)}
+                  className="rounded-md border border-line bg-surface px-2.5 py-1 text-xs font-semibold text-ink hover:bg-surface-muted"
+                >
+                  Save {format.toUpperCase()}
+                </button>
+              ))}
+            </span>
           )}
         </figcaption>
       )}

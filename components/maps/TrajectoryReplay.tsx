@@ -1,7 +1,9 @@
 "use client";
 /**
- * Replay of one cell's trajectory on a canvas: discs at their radii, walls, fading trails,
- * play / pause, a time scrubber and a playback speed; the view fits the whole run automatically.
+ * Replay of one cell's trajectory on a canvas: discs at their radii (numbered 1…N as everywhere
+ * else), walls, fading trails, play / pause, a time scrubber and a playback speed. The camera
+ * follows the bodies by default (fits all of them at each moment), or one disc, or shows the whole
+ * run; playback slows down around contacts so each lasts about a second on screen.
  *
  * Props:
  * - `series`: the engine's TimeSeries (positions per body per sample, SI units).
@@ -14,7 +16,7 @@ import { useEffect, useId, useLayoutEffect, useMemo, useRef, useState } from "re
 import type { TimeSeries } from "@/lib/physics/types";
 import { formatPrecise, formatSI } from "@/lib/charts/format";
 import { niceStep } from "@/lib/charts/ticks";
-import { fitView, includeWalls, interpolateAt, sampleAt, trajectoryBounds, wallSegmentOnCanvas, worldToCanvas, type ReplayWall, type WorldBounds } from "@/lib/charts/replay";
+import { boundsAt, fitView, includeWalls, interpolateAt, sampleAt, trajectoryBounds, typicalContactS, wallSegmentOnCanvas, worldToCanvas, type ReplayWall, type WorldBounds } from "@/lib/charts/replay";
 import { seriesColour } from "@/lib/charts/series-style";
 import { readChrome } from "./render";
 import { inkOn } from "./map-model";
@@ -69,6 +71,12 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
   const [timeS, setTimeS] = useState(startS);
   const [playing, setPlaying] = useState(false);
   const [runSeconds, setRunSeconds] = useState<number>(5);
+  /** "all": fit every body at each moment; "whole": the whole run's frame; a number: follow that disc (0-based). */
+  const [camera, setCamera] = useState<"all" | "whole" | number>("all");
+  const [slowContacts, setSlowContacts] = useState(true);
+  const cameraId = useId();
+  const contactS = useMemo(() => (n > 0 ? typicalContactS(series.tS, series.maxOverlapM) : null), [series, n]);
+  const largestRadius = useMemo(() => radiiM.reduce((a, b) => Math.max(a, b), 0), [radiiM]);
 
   const problem =
     n === 0
@@ -87,7 +95,11 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
     if (!playing || durationS <= 0) return;
     let last = performance.now();
     let handle = requestAnimationFrame(function tick(now) {
-      const next = Math.min(endS, timeRef.current + (((now - last) / 1000) * durationS) / runSeconds);
+        // Around a contact the rate drops so the contact lasts about a second on screen.
+      const normalRate = durationS / runSeconds;
+      const touching = slowContacts && contactS !== null && interpolateAt(series.maxOverlapM, sampleAt(series.tS, timeRef.current)) > 0;
+      const rate = touching ? Math.min(normalRate, (contactS as number) / 1) : normalRate;
+      const next = Math.min(endS, timeRef.current + ((now - last) / 1000) * rate);
       last = now;
       timeRef.current = next;
       setTimeS(next);
@@ -95,7 +107,7 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
       else handle = requestAnimationFrame(tick);
     });
     return () => cancelAnimationFrame(handle);
-  }, [playing, durationS, runSeconds, endS]);
+  }, [playing, durationS, runSeconds, endS, slowContacts, contactS, series]);
 
   useLayoutEffect(() => {
     const canvas = canvasRef.current;
@@ -108,8 +120,10 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
     ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
     ctx.fillStyle = chrome.surface;
     ctx.fillRect(0, 0, width, height);
-    const view = fitView(frame.bounds, width, height, 24);
     const at = sampleAt(series.tS, timeS);
+    // The camera: the whole run's frame, or the bodies (all, or one disc) where they are now.
+    const following = camera === "whole" ? null : boundsAt(series.bodies, radiiM, at, camera === "all" ? null : camera, camera === "all" ? 6 * largestRadius : 10 * (radiiM[camera] ?? largestRadius));
+    const view = fitView(following ? includeWalls(following, walls, following.maxX - following.minX) : frame.bounds, width, height, 24);
 
     // Walls: the line, with short hatching on the solid side.
     ctx.strokeStyle = chrome.inkMuted;
@@ -219,7 +233,7 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
     ctx.textBaseline = "top";
     ctx.fillStyle = overlapM > 0 ? chrome.ink : chrome.inkMuted;
     ctx.fillText(overlapText, width - 12, 10);
-  }, [frame, width, height, dpr, themeVersion, timeS, series, radiiM, walls, trailSamples]);
+  }, [frame, width, height, dpr, themeVersion, timeS, series, radiiM, walls, trailSamples, camera, largestRadius]);
 
   if (problem || !frame) {
     return (
@@ -288,8 +302,33 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
           ))}
         </select>
         <span className="text-xs text-ink-muted">({formatSignificantFactor(realTimeFactor)} real time)</span>
+        <label htmlFor={cameraId} className="text-ink-muted">
+          View
+        </label>
+        <select
+          id={cameraId}
+          value={String(camera)}
+          onChange={(event) => setCamera(event.target.value === "all" || event.target.value === "whole" ? event.target.value : Number(event.target.value))}
+          className="rounded-md border border-line bg-surface px-2 py-1 text-ink"
+        >
+          <option value="all">Follow the bodies</option>
+          <option value="whole">Whole run</option>
+          {series.bodies.length <= 40
+            ? series.bodies.map((_, b) => (
+                <option key={b} value={b}>
+                  Follow {bodyLabels?.[b] ?? `disc ${b + 1}`}
+                </option>
+              ))
+            : null}
+        </select>
+        {contactS !== null ? (
+          <label className="flex items-center gap-1.5 text-ink-muted">
+            <input type="checkbox" checked={slowContacts} onChange={(event) => setSlowContacts(event.target.checked)} />
+            Slow motion around contacts
+          </label>
+        ) : null}
       </div>
-      {frame.fittedToStart && <p className="text-xs text-ink-muted">The bodies fly far apart in this run; the view is fitted to where they started.</p>}
+      {frame.fittedToStart && camera === "whole" && <p className="text-xs text-ink-muted">The bodies fly far apart in this run; the view is fitted to where they started. Pick “Follow the bodies” to keep them in view.</p>}
       {bodyLabels && bodyLabels.length > 0 && (
         <ul className="flex flex-wrap gap-3 text-xs text-ink-muted">
           {bodyLabels.map((label, b) => (

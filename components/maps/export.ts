@@ -1,6 +1,7 @@
 /**
- * PNG export of a stability map: the map is drawn again on a fresh canvas, with its title, axes,
- * overlays and legend, at the requested size and resolution (no hover outline).
+ * PNG export of a stability map: the map is drawn again on a fresh canvas, with its title block,
+ * axes, overlays and legend, at the requested size and resolution (no hover outline). The SVG
+ * export (svg-export.ts) writes the same layout as vector shapes.
  */
 import { buildMapModel, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
 import { LIGHT_CHROME, renderMap, type ChromeColours } from "./render";
@@ -11,6 +12,8 @@ export interface PngExportOptions {
   /** Resolution multiplier (2 gives a sharp image on high-density screens and in documents). */
   scale?: number;
   title?: string;
+  /** Lines under the title: the sweep, axes, metric, tolerances and date. */
+  titleBlock?: readonly string[];
   chrome?: ChromeColours;
 }
 
@@ -22,6 +25,7 @@ function drawForExport(model: MapModel, options: PngExportOptions): HTMLCanvasEl
     devicePixelRatio: options.scale ?? 2,
     chrome: options.chrome ?? LIGHT_CHROME,
     title: options.title,
+    titleBlock: options.titleBlock,
     showLegend: true,
   });
   return canvas;
@@ -58,4 +62,14 @@ export function stabilityMapPng(
   options: PngExportOptions,
 ): Promise<Blob> {
   return exportMapPng(buildMapModel(map.x, map.y, map.layer, map.overlays, map.scale), options);
+}
+
+/** "Exported 2026-05-01 14:03 UTC": the date line of an export's title block. */
+export function exportDateLine(at: Date = new Date()): string {
+  return `Exported ${at.toISOString().slice(0, 16).replace("T", " ")} UTC`;
+}
+
+/** Extra height (CSS px) an export needs for its title block, so the plot keeps its size. */
+export function titleBlockHeight(title: string | undefined, lines: number): number {
+  return (title ? 26 : 0) + lines * 16 + (lines > 0 ? 6 : 0);
 }

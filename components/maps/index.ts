@@ -6,9 +6,11 @@ export { StabilityMap, cellDescription, type StabilityMapHandle, type StabilityM
 export { CompareMaps, type CompareMapsProps, type CompareMode, type CompareSide } from "./CompareMaps";
 export { MapGrid, type MapGridMode, type MapGridProps } from "./MapGrid";
 export { MapLegend, type MapLegendProps } from "./MapLegend";
+export { VerdictSymbol } from "./VerdictSymbol";
 export { CellTimeSeries, timeSeriesProblem, type CellTimeSeriesProps } from "./CellTimeSeries";
 export { TrajectoryReplay, type TrajectoryReplayProps } from "./TrajectoryReplay";
-export { exportMapPng, exportMapPngDataUrl, stabilityMapPng, downloadBlob, type PngExportOptions } from "./export";
+export { exportMapPng, exportMapPngDataUrl, stabilityMapPng, downloadBlob, exportDateLine, type PngExportOptions } from "./export";
+export { exportMapSvg, mapSvg, type SvgExportOptions } from "./svg-export";
 export {
   buildMapModel,
   resolveMetricScale,

@@ -6,7 +6,7 @@
 import type { Verdict } from "@/lib/physics/types";
 import { hexToRgb, relativeLuminance } from "@/lib/charts/color";
 import { buildColourLut, COLOUR_SCALES, type ColourScaleName } from "@/lib/charts/colormaps";
-import { autoDomain, domainProblem, normalise, type Normalisation, type NormalisationKind } from "@/lib/charts/normalise";
+import { autoDomain, clippedDomain, clipProblem, countOutside, domainProblem, normalise, type Normalisation, type NormalisationKind, type PercentileClip } from "@/lib/charts/normalise";
 import { axisValuesProblem, type AxisSpacing } from "@/lib/charts/scales";
 import { countCodes, PENDING_CODE, VERDICT_CATEGORIES, verdictCodes, type CategoryStyle } from "@/lib/charts/categories";
 import { overlayFromFunction, type Overlay, type OverlayStroke } from "@/lib/charts/overlays";
@@ -35,10 +35,15 @@ export function axisValueText(axis: Pick<MapAxis, "unit" | "quantity">, value: n
   return axis.quantity === "frame-step" ? formatFrameStepWithRate(value, 4) : formatPrecise(value, axis.unit);
 }
 
-/** How metric values map to colour. Defaults: linear, domain from the data, viridis (diverging for symmetric). */
+/** How metric values map to colour. Defaults: linear, domain from the data, viridis (diverging for symmetric and symlog). */
 export interface MetricScaleOptions {
   normalisation?: NormalisationKind;
+  /** A fixed domain; otherwise from the data (all of it, or `clip`ped to percentiles). */
   domain?: readonly [number, number];
+  /** Percentiles the domain from the data is clipped to (ignored with a fixed domain). */
+  clip?: PercentileClip;
+  /** "symlog": the constant C below which the scale is nearly linear. */
+  constant?: number;
   colours?: ColourScaleName;
 }
 
@@ -61,6 +66,8 @@ export type OverlayInput = Overlay | { label: string; y: (x: number) => number; 
 export interface ContinuousScale {
   kind: "continuous";
   normalisation: Normalisation;
+  /** The percentiles the domain was clipped to, when it was. */
+  clip?: PercentileClip;
   colours: ColourScaleName;
   /** 256 RGBA entries. */
   lut: Uint8ClampedArray;
@@ -88,6 +95,8 @@ export interface MapModel {
   codes: Int16Array;
   /** Per category (categorical scale) the number of cells; empty for continuous. */
   counts: number[];
+  /** Continuous scale: cells whose value lies below / above the domain (drawn in the end colours). */
+  outside: { below: number; above: number };
   pendingCount: number;
   noValueCount: number;
   overlays: Overlay[];
@@ -129,6 +138,13 @@ export function validateMapInput(x: MapAxis, y: MapAxis, layer: MapLayer): void 
     const problem = domainProblem(layer.scale.normalisation ?? "linear", layer.scale.domain);
     if (problem) throw new MapInputError("layer.scale.domain", problem);
   }
+  if (layer.kind === "metric" && layer.scale?.clip) {
+    const problem = clipProblem(layer.scale.clip);
+    if (problem) throw new MapInputError("layer.scale.clip", problem);
+  }
+  if (layer.kind === "metric" && layer.scale?.constant !== undefined && !(layer.scale.constant > 0 && Number.isFinite(layer.scale.constant))) {
+    throw new MapInputError("layer.scale.constant", `must be a finite number above 0, got ${layer.scale.constant}`);
+  }
 }
 
 /** The continuous scale of a metric layer, optionally over several layers' values (a shared scale). */
@@ -140,15 +156,18 @@ export function resolveMetricScale(
 ): ContinuousScale {
   const kind = options.normalisation ?? "linear";
   let domain: readonly [number, number];
+  let clip: PercentileClip | undefined;
   if (options.domain) {
     domain = options.domain;
   } else {
     const all: (number | null)[] = [];
     for (const set of valueSets) for (let i = 0; i < set.length; i++) all.push(set[i]);
-    domain = autoDomain(all, kind);
+    clip = options.clip && (options.clip.low > 0 || options.clip.high < 100) ? options.clip : undefined;
+    domain = clip ? clippedDomain(all, kind, clip) : autoDomain(all, kind);
   }
-  const colours = options.colours ?? (kind === "symmetric" ? "diverging" : "viridis");
-  return { kind: "continuous", normalisation: { kind, domain }, colours, lut: lutFor(colours), label, unit };
+  const colours = options.colours ?? (kind === "symmetric" || kind === "symlog" ? "diverging" : "viridis");
+  const normalisation: Normalisation = kind === "symlog" && options.constant ? { kind, domain, constant: options.constant } : { kind, domain };
+  return { kind: "continuous", normalisation, ...(clip ? { clip } : {}), colours, lut: lutFor(colours), label, unit };
 }
 
 const lutCache = new Map<ColourScaleName, Uint8ClampedArray>();
@@ -213,6 +232,7 @@ export function buildMapModel(x: MapAxis, y: MapAxis, layer: MapLayer, overlays?
   let pendingCount = 0;
   let noValueCount = 0;
   let counts: number[] = [];
+  let outside = { below: 0, above: 0 };
 
   if (scale.kind === "continuous") {
     if (layer.kind !== "metric") throw new MapInputError("layer", "a continuous scale needs a metric layer");
@@ -221,6 +241,7 @@ export function buildMapModel(x: MapAxis, y: MapAxis, layer: MapLayer, overlays?
     const packedLut = new Uint32Array(lutSize);
     for (let i = 0; i < lutSize; i++) packedLut[i] = pack(lut[i * 4], lut[i * 4 + 1], lut[i * 4 + 2], 255);
     const values = layer.values;
+    outside = countOutside(values, normalisation.domain);
     for (let row = 0; row < rows; row++) {
       const drawnRow = (rows - 1 - row) * columns;
       for (let column = 0; column < columns; column++) {
@@ -271,7 +292,7 @@ export function buildMapModel(x: MapAxis, y: MapAxis, layer: MapLayer, overlays?
     }
     counts = countCodes(categoryCodes, categoryCount);
   }
-  return { columns, rows, x, y, scale, pixels, codes, counts, pendingCount, noValueCount, overlays: resolveOverlays(overlays, x) };
+  return { columns, rows, x, y, scale, pixels, codes, counts, outside, pendingCount, noValueCount, overlays: resolveOverlays(overlays, x) };
 }
 
 /** Black or white, whichever contrasts more with a #rrggbb fill (for glyphs drawn on cells). */

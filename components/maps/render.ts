@@ -7,12 +7,14 @@
  * smoothing off (one call for evenly spaced cells); there is no per-cell fillRect.
  */
 import { formatSI } from "@/lib/charts/format";
-import { legendTicks } from "@/lib/charts/normalise";
+import { legendTicks, normalise } from "@/lib/charts/normalise";
+import { scaleNote } from "./scale-note";
 import { logMinorTicks, logTicks, niceLinearTicks, type Tick } from "@/lib/charts/ticks";
 import { frameStepTickValues } from "@/lib/ui/units";
 import { cellRect, cellsAreUniform, mapGeometry, valueToPixel, type AxisScale, type MapGeometry, type PlotRect } from "@/lib/charts/scales";
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
 import type { GlyphName } from "@/lib/charts/categories";
+import { glyphIsFilled, traceGlyph } from "@/lib/charts/glyphs";
 import { lutColourCss } from "@/lib/charts/colormaps";
 import { axisTickLabel, inkOn, type MapAxis, type MapModel } from "./map-model";
 
@@ -56,6 +58,8 @@ export interface RenderOptions {
   chrome: ChromeColours;
   /** Title drawn above the plot (PNG export); on screen the title is HTML. */
   title?: string;
+  /** Lines under the title (exports): what the map is of, its axes, metric, tolerances and date. */
+  titleBlock?: readonly string[];
   /** Small multiples: smaller type, no legend, fewer ticks. */
   compact?: boolean;
   showLegend?: boolean;
@@ -71,13 +75,14 @@ export interface MapLayout {
 }
 
 const TICK_LENGTH = 5;
+export const TITLE_BLOCK_LINE_PX = 16;
 const GLYPH_MIN_CELL_PX = 11;
 
 function font(chrome: ChromeColours, sizePx: number, weight = 400): string {
   return `${weight} ${sizePx}px ${chrome.fontFamily}`;
 }
 
-function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean, axis?: MapAxis): Tick[] {
+export function axisTicks(scale: AxisScale, lengthPx: number, compact: boolean, axis?: MapAxis): Tick[] {
   const [lo, hi] = scale.domain;
   if (axis?.quantity === "frame-step") {
     return frameStepTickValues(lo, hi, axis.values, compact ? 4 : Math.max(3, Math.floor(lengthPx / 48))).map((value) => ({ value, major: true }));
@@ -94,7 +99,7 @@ function minorMarks(scale: AxisScale, lengthPx: number): number[] {
   return logMinorTicks(scale.domain[0], scale.domain[1]);
 }
 
-function legendWidth(model: MapModel, ctx: CanvasRenderingContext2D, chrome: ChromeColours): number {
+export function legendWidth(model: MapModel, ctx: CanvasRenderingContext2D, chrome: ChromeColours): number {
   ctx.font = font(chrome, 12);
   if (model.scale.kind === "categorical") {
     let widest = 0;
@@ -134,7 +139,7 @@ export function layoutMap(model: MapModel, ctx: CanvasRenderingContext2D, option
   const yTicks = axisTicks(provisional.y, options.heightCss - 60, compact, model.y);
   let yLabelWidth = 0;
   for (const t of yTicks) yLabelWidth = Math.max(yLabelWidth, ctx.measureText(axisTickLabel(model.y, t.value)).width);
-  const titleHeight = options.title ? 26 : 0;
+  const titleHeight = (options.title ? 26 : 0) + (options.titleBlock?.length ?? 0) * TITLE_BLOCK_LINE_PX + (options.titleBlock?.length ? 6 : 0);
   const left = Math.ceil(yLabelWidth) + TICK_LENGTH + 6 + (compact ? 14 : 20);
   const bottom = TICK_LENGTH + fontSize + 8 + (compact ? 14 : 20);
   const top = 8 + titleHeight;
@@ -229,83 +234,78 @@ function drawCells(ctx: CanvasRenderingContext2D, model: MapModel, geometry: Map
   ctx.drawImage(canvas, 0, 0, widthPx, heightPx, plot.left, plot.top, plot.width, plot.height);
 }
 
-/** Add one glyph's path centred at (cx, cy) with half-size s to the current path. */
-export function traceGlyph(ctx: CanvasRenderingContext2D, glyph: GlyphName, cx: number, cy: number, s: number): void {
-  switch (glyph) {
-    case "dot":
-      ctx.moveTo(cx + s * 0.28, cy);
-      ctx.arc(cx, cy, s * 0.28, 0, Math.PI * 2);
-      break;
-    case "ring":
-      ctx.moveTo(cx + s * 0.62, cy);
-      ctx.arc(cx, cy, s * 0.62, 0, Math.PI * 2);
-      break;
-    case "slash":
-      ctx.moveTo(cx - s * 0.6, cy + s * 0.6);
-      ctx.lineTo(cx + s * 0.6, cy - s * 0.6);
-      break;
-    case "backslash":
-      ctx.moveTo(cx - s * 0.6, cy - s * 0.6);
-      ctx.lineTo(cx + s * 0.6, cy + s * 0.6);
-      break;
-    case "chevron":
-      ctx.moveTo(cx - s * 0.35, cy - s * 0.6);
-      ctx.lineTo(cx + s * 0.35, cy);
-      ctx.lineTo(cx - s * 0.35, cy + s * 0.6);
-      break;
-    case "cross":
-      ctx.moveTo(cx - s * 0.55, cy - s * 0.55);
-      ctx.lineTo(cx + s * 0.55, cy + s * 0.55);
-      ctx.moveTo(cx + s * 0.55, cy - s * 0.55);
-      ctx.lineTo(cx - s * 0.55, cy + s * 0.55);
-      break;
-    case "bar":
-      ctx.moveTo(cx - s * 0.6, cy);
-      ctx.lineTo(cx + s * 0.6, cy);
-      break;
-    case "zigzag":
-      ctx.moveTo(cx - s * 0.6, cy + s * 0.3);
-      ctx.lineTo(cx - s * 0.2, cy - s * 0.3);
-      ctx.lineTo(cx + s * 0.2, cy + s * 0.3);
-      ctx.lineTo(cx + s * 0.6, cy - s * 0.3);
-      break;
-    case "ticks":
-      ctx.moveTo(cx - s * 0.5, cy - s * 0.35);
-      ctx.lineTo(cx - s * 0.5, cy + s * 0.35);
-      ctx.moveTo(cx, cy - s * 0.35);
-      ctx.lineTo(cx, cy + s * 0.35);
-      ctx.moveTo(cx + s * 0.5, cy - s * 0.35);
-      ctx.lineTo(cx + s * 0.5, cy + s * 0.35);
-      break;
-    case "arrow":
-      ctx.moveTo(cx - s * 0.6, cy - s * 0.3);
-      ctx.lineTo(cx + s * 0.6, cy + s * 0.3);
-      ctx.moveTo(cx + s * 0.15, cy + s * 0.4);
-      ctx.lineTo(cx + s * 0.6, cy + s * 0.3);
-      ctx.lineTo(cx + s * 0.35, cy - s * 0.1);
-      break;
-    case "cup":
-      ctx.moveTo(cx - s * 0.55, cy - s * 0.2);
-      ctx.arc(cx, cy - s * 0.2, s * 0.55, Math.PI, 0, true);
-      break;
-    case "none":
-      break;
+
+/** Side of the tile (CSS px) of the pattern that stands in for glyphs on cells too small to hold one. */
+export const GLYPH_PATTERN_TILE_PX = 12;
+
+/** A repeating tile with one glyph in the category's ink, anchored at the plot's corner. */
+function glyphPattern(ctx: CanvasRenderingContext2D, glyph: GlyphName, ink: string, dpr: number, origin: { left: number; top: number }): CanvasPattern | null {
+  const size = Math.max(6, Math.round(GLYPH_PATTERN_TILE_PX * dpr));
+  const tile = typeof OffscreenCanvas !== "undefined" ? new OffscreenCanvas(size, size) : document.createElement("canvas");
+  tile.width = size;
+  tile.height = size;
+  const t = tile.getContext("2d") as CanvasRenderingContext2D | null;
+  if (!t) return null;
+  t.lineCap = "round";
+  t.lineJoin = "round";
+  t.lineWidth = Math.max(1, 1.4 * dpr);
+  t.beginPath();
+  traceGlyph(t, glyph, size / 2, size / 2, size * 0.4);
+  if (glyphIsFilled(glyph)) {
+    t.fillStyle = ink;
+    t.fill();
+  } else {
+    t.strokeStyle = ink;
+    t.stroke();
   }
+  const pattern = ctx.createPattern(tile, "repeat");
+  // The tile lives in device pixels; undo the context's DPR scale and start the tiling at the plot's corner.
+  pattern?.setTransform(new DOMMatrix([1 / dpr, 0, 0, 1 / dpr, origin.left, origin.top]));
+  return pattern;
 }
 
-function glyphIsFilled(glyph: GlyphName): boolean {
-  return glyph === "dot";
-}
-
-function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, mode: "auto" | "always" | "never"): void {
+/**
+ * Glyphs on categorical cells, so the map reads without colour. Cells big enough get one glyph
+ * each; on denser maps each category's cells are filled with a repeating pattern of its glyph
+ * instead, so a region of one verdict still carries its symbol however small the cells are.
+ */
+function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, mode: "auto" | "always" | "never", dpr: number): void {
   if (model.scale.kind !== "categorical" || mode === "never") return;
   const categories = model.scale.categories;
   const sample = cellRect(geometry, 0, 0);
   const cellSize = Math.min(geometry.plot.width / model.columns, geometry.plot.height / model.rows, Math.abs(sample.width), Math.abs(sample.height));
-  if (mode === "auto" && cellSize < GLYPH_MIN_CELL_PX) return;
   ctx.save();
   ctx.lineCap = "round";
   ctx.lineJoin = "round";
+  if (mode === "auto" && cellSize < GLYPH_MIN_CELL_PX) {
+    categories.forEach((category, code) => {
+      if (category.glyph === "none" || model.counts[code] === 0) return;
+      // The category's cells as one path, neighbouring cells of a row merged into one rectangle.
+      ctx.beginPath();
+      for (let row = 0; row < model.rows; row++) {
+        let column = 0;
+        while (column < model.columns) {
+          if (model.codes[row * model.columns + column] !== code) {
+            column++;
+            continue;
+          }
+          const start = column;
+          while (column < model.columns && model.codes[row * model.columns + column] === code) column++;
+          const first = cellRect(geometry, start, row);
+          const last = cellRect(geometry, column - 1, row);
+          ctx.rect(first.left, first.top, last.left + last.width - first.left, first.height);
+        }
+      }
+      const pattern = glyphPattern(ctx, category.glyph, inkOn(category.colour), dpr, geometry.plot);
+      if (!pattern) return;
+      ctx.globalAlpha = 0.75;
+      ctx.fillStyle = pattern;
+      ctx.fill();
+      ctx.globalAlpha = 1;
+    });
+    ctx.restore();
+    return;
+  }
   ctx.lineWidth = Math.max(1, Math.min(2, cellSize / 10));
   // One path per category: a few thousand glyphs cost a handful of stroke calls.
   categories.forEach((category, code) => {
@@ -410,7 +410,7 @@ function drawAxes(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapG
   ctx.restore();
 }
 
-function axisTitle(axis: { label: string; spacing: string }): string {
+export function axisTitle(axis: { label: string; spacing: string }): string {
   return axis.spacing === "log" ? `${axis.label} (log scale)` : axis.label;
 }
 
@@ -482,7 +482,7 @@ function drawOverlays(ctx: CanvasRenderingContext2D, model: MapModel, geometry: 
 }
 
 /** Draw the legend into a rectangle (used beside the map and on its own for small multiples). */
-export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, "scale" | "counts" | "pendingCount" | "noValueCount">, rect: PlotRect, chrome: ChromeColours, dpr: number): void {
+export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, "scale" | "counts" | "pendingCount" | "noValueCount"> & Partial<Pick<MapModel, "outside">>, rect: PlotRect, chrome: ChromeColours, dpr: number): void {
   ctx.save();
   ctx.font = font(chrome, 12);
   ctx.fillStyle = chrome.ink;
@@ -537,7 +537,8 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
   }
   const scale = model.scale;
   const barWidth = 14;
-  const extrasHeight = (model.pendingCount > 0 ? 24 : 0) + (model.noValueCount > 0 ? 24 : 0);
+  const noteLines = scaleNote(scale, "outside" in model ? model.outside : undefined);
+  const extrasHeight = (model.pendingCount > 0 ? 24 : 0) + (model.noValueCount > 0 ? 24 : 0) + noteLines.length * 15 + 4;
   const barTop = rect.top + 24;
   const barHeight = Math.max(40, rect.height - 24 - extrasHeight - 8);
   ctx.font = font(chrome, 12, 600);
@@ -556,12 +557,7 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
   ctx.font = font(chrome, 11);
   ctx.fillStyle = chrome.ink;
   const { normalisation } = scale;
-  const lo = normalisation.domain[0];
-  const hi = normalisation.domain[1];
-  const toY = (v: number) => {
-    const t = normalisation.kind === "log" ? (Math.log10(v) - Math.log10(lo)) / (Math.log10(hi) - Math.log10(lo)) : (v - lo) / (hi - lo);
-    return barTop + barHeight - t * barHeight;
-  };
+  const toY = (v: number) => barTop + barHeight - normalise(normalisation, v) * barHeight;
   const drawn: number[] = [];
   for (const tick of legendTicks(normalisation)) {
     const y = toY(tick.value);
@@ -575,6 +571,13 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
     ctx.fillText(formatSI(tick.value, scale.unit), rect.left + barWidth + 7, y);
   }
   let y = barTop + barHeight + 10;
+  ctx.font = font(chrome, 11);
+  ctx.fillStyle = chrome.inkMuted;
+  for (const line of noteLines) {
+    ctx.fillText(fitText(ctx, line, rect.width), rect.left, y + 5);
+    y += 15;
+  }
+  y += 4;
   ctx.font = font(chrome, 12);
   if (model.noValueCount > 0) {
     ctx.fillStyle = "rgb(158 158 158)";
@@ -618,7 +621,15 @@ export function renderMap(canvas: HTMLCanvasElement | OffscreenCanvas, model: Ma
     ctx.fillStyle = options.chrome.ink;
     ctx.textAlign = "left";
     ctx.textBaseline = "top";
-    ctx.fillText(options.title, plot.left, 6);
+    ctx.fillText(options.title, 12, 6);
+  }
+  if (options.titleBlock?.length) {
+    ctx.font = font(options.chrome, 12);
+    ctx.fillStyle = options.chrome.inkMuted;
+    ctx.textAlign = "left";
+    ctx.textBaseline = "top";
+    const top = options.title ? 28 : 6;
+    options.titleBlock.forEach((line, i) => ctx.fillText(fitText(ctx, line, options.widthCss - 24), 12, top + i * TITLE_BLOCK_LINE_PX));
   }
   // Hatching first: cells not computed yet are transparent in the cell image and show it.
   if (model.pendingCount > 0) {
@@ -629,7 +640,7 @@ export function renderMap(canvas: HTMLCanvasElement | OffscreenCanvas, model: Ma
     }
   }
   drawCells(ctx, model, geometry, dpr);
-  drawGlyphs(ctx, model, geometry, options.glyphs ?? "auto");
+  drawGlyphs(ctx, model, geometry, options.glyphs ?? "auto", dpr);
   drawAxes(ctx, model, geometry, options);
   drawOverlays(ctx, model, geometry, options.chrome, options.compact ?? false);
   const compact = options.compact ?? false;

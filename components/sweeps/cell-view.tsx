@@ -13,7 +13,10 @@ import { buildScene } from "@/lib/physics/scenes";
 import type { Metrics } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { StudioRole } from "@/lib/ui/types";
-import { sweepKeys, sweepPath, useSweep, type CellDetail, type Sweep } from "./sweep-api";
+import { formatCompute } from "@/lib/billing/format";
+import { reasonForDisplay } from "@/lib/ui/reasons";
+import { formatPriceCents } from "@/lib/billing/packs";
+import { sweepKeys, sweepPath, useSweep, type CellDetail, type Quote, type Sweep } from "./sweep-api";
 
 const METRIC_ROWS: readonly { key: keyof Metrics; label: string; unit: string }[] = [
   { key: "energyErrorRel", label: "Final energy error (relative)", unit: "" },
@@ -45,8 +48,14 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
   });
   const [dtFactor, setDtFactor] = useState(0.25);
   const dtFactorValid = Number.isFinite(dtFactor) && dtFactor > 0 && dtFactor < 1;
+  // A re-run is a sweep like any other: first its quote, then a confirmation that accepts that ceiling.
+  const quote = useMutation({
+    mutationFn: async (factor: number) => ({ factor, quote: (await apiFetch<{ quote: Quote }>(`${sweepPath(studioId, sweepId)}/cells/${index}/rerun/quote`, { method: "POST", body: { dtFactor: factor } })).quote }),
+  });
+  const quoted = quote.data && quote.data.factor === dtFactor ? quote.data.quote : null;
   const rerun = useMutation({
-    mutationFn: async () => (await apiFetch<{ sweep: Sweep }>(`${sweepPath(studioId, sweepId)}/cells/${index}/rerun`, { method: "POST", body: { dtFactor } })).sweep,
+    mutationFn: async (accepted: Quote) =>
+      (await apiFetch<{ sweep: Sweep }>(`${sweepPath(studioId, sweepId)}/cells/${index}/rerun`, { method: "POST", body: { dtFactor, acceptedQuoteMs: accepted.ceilingMs } })).sweep,
     onSuccess: (created) => router.push(`/studios/${studioId}/sweeps/${created.id}`),
   });
   const canRun = role === "owner" || role === "engineer";
@@ -87,7 +96,7 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                   {VERDICT_STYLES[detail.data.cell.verdict].label}
                 </span>
               </p>
-              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{detail.data.cell.reason}</p> : null}
+              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{reasonForDisplay(detail.data.cell.reason)}</p> : null}
               <h3 className="mb-1 text-sm font-semibold">Swept parameters</h3>
               <dl className="mb-3 grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm">
                 {detail.data.cell.axisValues.map((value, i) => {
@@ -161,10 +170,31 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                     onChange={(event) => setDtFactor(event.target.value === "" ? Number.NaN : Number(event.target.value))}
                   />
                   {dtFactorValid ? null : <p className="text-sm font-medium text-danger">The factor must be greater than 0 and less than 1.</p>}
-                  <Button onClick={() => rerun.mutate()} disabled={!dtFactorValid || rerun.isPending}>
-                    {rerun.isPending ? "Starting…" : "Re-run at a finer dt"}
+                  <Button variant={quoted ? "secondary" : "primary"} onClick={() => quote.mutate(dtFactor)} disabled={!dtFactorValid || quote.isPending}>
+                    {quote.isPending ? "Getting the quote…" : "Re-run at a finer dt"}
                   </Button>
-                  <p className="text-xs text-ink-muted">A new one-cell sweep, quoted and billed as any sweep.</p>
+                  <p className="text-xs text-ink-muted">A new one-cell sweep, quoted and billed as any sweep: you see its quote and confirm before it starts.</p>
+                  {quote.isError ? <Alert>{errorMessage(quote.error)}</Alert> : null}
+                  {quoted ? (
+                    <section className="rounded-lg border-2 border-action bg-surface p-4" role="dialog" aria-labelledby="rerun-confirm-heading" data-testid="confirm-rerun">
+                      <h3 id="rerun-confirm-heading" className="font-semibold">
+                        Re-run this cell at dt × {dtFactor}?
+                      </h3>
+                      <p className="mt-1 text-sm text-ink-muted" data-testid="rerun-quote">
+                        {quoted.limits.violations.length > 0
+                          ? quoted.limits.violations[0].message
+                          : `${quoted.cellsToRun.toLocaleString("en")} cell to run (${quoted.steps.toLocaleString("en")} integrator steps): expected ${formatCompute(quoted.expectedMs)} (${formatPriceCents(quoted.money.expectedCents)}), at most ${formatCompute(quoted.ceilingMs)} (${formatPriceCents(quoted.money.ceilingCents)}). The ceiling is reserved now; the run is billed the work it does, never more.`}
+                      </p>
+                      <div className="mt-3 flex gap-2">
+                        <Button onClick={() => rerun.mutate(quoted)} disabled={rerun.isPending || quoted.limits.violations.length > 0}>
+                          {rerun.isPending ? "Starting…" : "Start the re-run"}
+                        </Button>
+                        <Button variant="ghost" onClick={() => quote.reset()}>
+                          Not now
+                        </Button>
+                      </div>
+                    </section>
+                  ) : null}
                   {rerun.isError ? <Alert>{errorMessage(rerun.error)}</Alert> : null}
                 </div>
               ) : null}

@@ -211,6 +211,7 @@ export function SweepBuilder({
   initialSpec,
   snapshotId,
   templateId: startTemplateId,
+  namePlaceholder,
 }: {
   /** A template to start from (the studio home's "run a template" links here with ?template=). */
   templateId?: string;
@@ -221,6 +222,8 @@ export function SweepBuilder({
   initialSpec?: SweepSpecInput;
   /** The stored snapshot `initialSpec` was made from: sent by reference while its discs are unchanged. */
   snapshotId?: string;
+  /** A suggested name shown as the placeholder of an empty name (duplicate-and-edit: "Copy of …"). */
+  namePlaceholder?: string;
 }) {
   const router = useRouter();
   const snapshotRef = useMemo(() => {
@@ -234,7 +237,8 @@ export function SweepBuilder({
   const form = useForm<SweepSpecInput>({
     // The schema's output type differs from its input (defaults filled in); the form keeps the input shape.
     resolver: zodResolver(sweepSpecSchema) as never,
-    defaultValues: withTolerances(initialSpec ?? startTemplate.spec),
+    // A template's story (or a duplicate's "Copy of …") is only the name's placeholder: the user names the sweep.
+    defaultValues: withTolerances(initialSpec && namePlaceholder === undefined ? initialSpec : { ...(initialSpec ?? startTemplate.spec), name: "" }),
     mode: "onChange",
   });
   const { register, setValue, reset, formState, handleSubmit, control } = form;
@@ -244,6 +248,7 @@ export function SweepBuilder({
   const debouncedJson = useDebounced(specJson, 400);
   const local = useMemo(() => parseSweepSpec(JSON.parse(specJson)), [specJson]);
   const [confirming, setConfirming] = useState(false);
+  const [suggestedName, setSuggestedName] = useState(namePlaceholder ?? (initialSpec ? "" : (startTemplate.spec.name ?? "")));
   const [serverError, setServerError] = useState<ApiClientError | null>(null);
 
   const quote = useQuery({
@@ -259,12 +264,14 @@ export function SweepBuilder({
   // What submit would refuse (a limit, a suspension, the balance) is shown before the click, not as an error after it.
   const refusal = quote.data && quote.data.limits.violations.length > 0 ? quote.data.limits.violations[0].message : null;
 
+  // An unnamed sweep takes the suggestion with the time it was started, so the list never fills with one name.
+  const finalName = (values.name ?? "").trim() || (suggestedName ? `${suggestedName} · ${new Date().toISOString().slice(0, 16).replace("T", " ")} UTC`.slice(0, SPEC_LIMITS.maxNameLength) : "");
   const create = useMutation({
     mutationFn: async () =>
       (
         await apiFetch<{ sweep: Sweep }>(sweepsPath(studioId), {
           method: "POST",
-          body: { spec: specForRequest(debouncedJson, snapshotRef), name: values.name || undefined, acceptedQuoteMs: quote.data?.ceilingMs },
+          body: { spec: specForRequest(debouncedJson, snapshotRef), name: finalName || undefined, acceptedQuoteMs: quote.data?.ceilingMs },
         })
       ).sweep,
     onSuccess: (sweep) => router.push(`/studios/${studioId}/sweeps/${sweep.id}`),
@@ -301,7 +308,8 @@ export function SweepBuilder({
     setTemplateId(id);
     setGeneration((n) => n + 1);
     setServerError(null);
-    reset(withTolerances(template.spec));
+    setSuggestedName(template.spec.name ?? "");
+    reset(withTolerances({ ...template.spec, name: "" }));
   };
 
   const numberField = (path: string, label: string, unit: string, options: { step?: string; integer?: boolean } = {}) => {
@@ -362,7 +370,8 @@ export function SweepBuilder({
                 <label htmlFor="spec-name" className="block text-sm font-medium text-ink">
                   Sweep name <span className="font-mono text-xs text-ink-muted">[text, at most {SPEC_LIMITS.maxNameLength} characters]</span>
                 </label>
-                <input id="spec-name" className={inputClasses} {...register("name")} aria-invalid={fieldError("name") ? true : undefined} />
+                <input id="spec-name" className={inputClasses} placeholder={suggestedName || undefined} {...register("name")} aria-invalid={fieldError("name") ? true : undefined} />
+                {!(values.name ?? "").trim() && suggestedName ? <p className="text-xs text-ink-muted">Give it a name your team will recognise; left empty it is named after the suggestion and the time it starts.</p> : null}
                 <FieldError id="spec-name" message={fieldError("name")} />
               </div>
               <div className="space-y-1 md:col-span-2">
@@ -583,6 +592,9 @@ export function SweepBuilder({
               <h2 id="confirm-heading" className="font-semibold">
                 Run this sweep?
               </h2>
+              <p className="mt-1 text-sm" data-testid="confirm-name">
+                Named “{finalName || "Untitled sweep"}”.
+              </p>
               <p className="mt-1 text-sm text-ink-muted">
                 {quote.data.cellsToRun.toLocaleString("en")} cells to run: expected {formatCompute(quote.data.expectedMs)} ({formatPriceCents(quote.data.money.expectedCents)}), at most{" "}
                 {formatCompute(quote.data.ceilingMs)} ({formatPriceCents(quote.data.money.ceilingCents)}). The ceiling is reserved now; the sweep is billed the work its cells do, never more than the ceiling.

@@ -3,16 +3,37 @@
  * sweep cell index mapping for a chosen x, y and slice of the other axes, and the overlays that
  * apply to the chosen axes. Pure functions (unit-testable, no React).
  */
-import type { MapAxis, OverlayInput } from "@/components/maps";
+import { axisTickLabel, type MapAxis, type MetricScaleOptions, type OverlayInput } from "@/components/maps/map-model";
+import { DEFAULT_TOLERANCES } from "@/lib/physics/constants";
+import { reasonForDisplay } from "@/lib/ui/reasons";
+import type { PercentileClip } from "@/lib/charts/normalise";
 import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
-import type { Metrics, Verdict } from "@/lib/physics/types";
+import type { Metrics, Tolerances, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { FRAME_STEP_PATH } from "@/lib/ui/units";
 import type { CellRow, SweepAxisView } from "./sweep-api";
 
-export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: string; normalisation: "linear" | "log" | "symmetric"; domain?: readonly [number, number] }[] = [
-  { key: "maxEnergyErrorRel", label: "largest energy error (relative)", unit: "", normalisation: "symmetric" },
-  { key: "energyErrorRel", label: "final energy error (relative)", unit: "", normalisation: "symmetric" },
+/**
+ * How each metric is coloured. Energy errors span from 10⁻⁶ on a fine step to 10⁶ on a blown-up
+ * one, so they use a symmetric-log scale whose linear part ends a decade below the sweep's own
+ * energy tolerance (`constantOfTolerance`): errors near the tolerance get their own colours, and
+ * blown-up cells no longer squeeze every other cell into the centre colour.
+ */
+export interface MetricLayerSpec {
+  key: keyof Metrics;
+  label: string;
+  unit: string;
+  normalisation: "linear" | "log" | "symmetric" | "symlog";
+  domain?: readonly [number, number];
+  /** symlog: the constant C from the sweep's tolerances. */
+  constantOfTolerance?: (tolerances: Partial<Tolerances>) => number;
+}
+
+const energyConstant = (tolerances: Partial<Tolerances>) => (tolerances.energyDriftRel ?? DEFAULT_TOLERANCES.energyDriftRel) / 10 || 1e-3;
+
+export const METRIC_LAYERS: readonly MetricLayerSpec[] = [
+  { key: "maxEnergyErrorRel", label: "largest energy error (relative)", unit: "", normalisation: "symlog", constantOfTolerance: energyConstant },
+  { key: "energyErrorRel", label: "final energy error (relative)", unit: "", normalisation: "symlog", constantOfTolerance: energyConstant },
   // 0 … 1: an overlap as deep as the radius is the top colour; blown-up cells far beyond it would
   // otherwise squeeze every useful cell into the bottom of the scale.
   { key: "maxOverlapFraction", label: "deepest overlap / smaller radius", unit: "", normalisation: "linear", domain: [0, 1] },
@@ -24,6 +45,53 @@ export const METRIC_LAYERS: readonly { key: keyof Metrics; label: string; unit: 
   { key: "momentumDriftRelX", label: "momentum drift x (relative)", unit: "", normalisation: "symmetric" },
   { key: "momentumDriftRelY", label: "momentum drift y (relative)", unit: "", normalisation: "symmetric" },
 ];
+
+/** The colour ranges a user can pick for a metric map: every value, or clipped to percentiles. */
+export const COLOUR_RANGES: readonly { key: string; label: string; clip?: PercentileClip }[] = [
+  { key: "p1-99", label: "1st–99th percentile", clip: { low: 1, high: 99 } },
+  { key: "p5-95", label: "5th–95th percentile", clip: { low: 5, high: 95 } },
+  { key: "all", label: "All values" },
+];
+
+/** The map scale of a metric on this sweep, with the colour range chosen. */
+export function metricScale(metric: MetricLayerSpec, tolerances: Partial<Tolerances>, rangeKey: string): MetricScaleOptions {
+  const range = COLOUR_RANGES.find((candidate) => candidate.key === rangeKey) ?? COLOUR_RANGES[0];
+  return {
+    normalisation: metric.normalisation,
+    ...(metric.domain ? { domain: metric.domain } : range.clip ? { clip: range.clip } : {}),
+    ...(metric.constantOfTolerance ? { constant: metric.constantOfTolerance(tolerances) } : {}),
+  };
+}
+
+function rangeText(axis: MapAxis): string {
+  const values = axis.values;
+  const first = axisTickLabel(axis, values[0]);
+  const last = axisTickLabel(axis, values[values.length - 1]);
+  return `${axis.label} ${first} … ${last}, ${values.length} value${values.length === 1 ? "" : "s"}${axis.spacing === "log" ? ", log spacing" : ""}`;
+}
+
+/**
+ * The title block of an exported map (the export adds its date): which sweep, over which axes and
+ * where the others are held, what the cells show, and the tolerances the verdicts were judged by.
+ */
+export function mapTitleBlock(input: {
+  sweepName: string;
+  sweepId: string;
+  x: MapAxis;
+  y: MapAxis | null;
+  held: readonly string[];
+  showing: string;
+  tolerances: Partial<Tolerances>;
+}): string[] {
+  const t = { ...DEFAULT_TOLERANCES, ...input.tolerances };
+  const lines = [`Sweep: ${input.sweepName} (${input.sweepId})`, `Across: ${rangeText(input.x)}${input.y ? ` · Up: ${rangeText(input.y)}` : ""}`];
+  if (input.held.length > 0) lines.push(`Held: ${input.held.join(" · ")}`);
+  lines.push(`Showing: ${input.showing}`);
+  lines.push(
+    `Tolerances: energy drift ${t.energyDriftRel}, overlap ${t.maxOverlapFraction} × radius, blow-up ${t.blowUpEnergyFactor}×, rebound ${t.amplificationLimit}×, restitution ±${t.restitutionRel}, energy peak ${t.energyPeakRel}, ≥ ${t.minStepsPerContact} steps per contact`,
+  );
+  return lines;
+}
 
 export function isNumericAxis(axis: SweepAxisView): boolean {
   return axis.values.length > 0 && axis.values.every((value) => typeof value === "number");
@@ -101,7 +169,7 @@ export function layerData(
   for (const index of indices) {
     const cell = cellsByIndex.get(index);
     verdicts.push(cell ? cell.verdict : null);
-    reasons.push(cell ? cell.reason : null);
+    reasons.push(cell ? reasonForDisplay(cell.reason) : null);
     dynamics.push(cell ? dynamicsLine(cell.metrics) : null);
     if (!cell || metric === null) values.push(Number.NaN);
     else {

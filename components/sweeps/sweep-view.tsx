@@ -6,9 +6,9 @@
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useEffect, useMemo, useRef, useState } from "react";
-import { CompareMaps, MapGrid, StabilityMap, type MapLayer, type OverlayInput } from "@/components/maps";
+import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { ConfirmDialog } from "@/components/confirm-dialog";
-import { Alert, Button, Card, LoadingRows } from "@/components/ui";
+import { Alert, Button, ButtonLink, Card, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
 import { formatParameterValue, parameterUnitLabel } from "@/lib/ui/units";
@@ -19,8 +19,9 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, overlaysFor, specWithValue } from "./sweep-map-data";
+import { COLOUR_RANGES, METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
+import { SingleRunPanel } from "./rerun-comparison";
 
 type ViewMode = "single" | "compare" | "grid";
 
@@ -54,7 +55,7 @@ function CancelSweepDialog({ open, sweep, busy, error, onConfirm, onCancel }: { 
   );
 }
 
-function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
+function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { studioId: string; sweep: Sweep; canRun: boolean; onCancel: () => void; cancelling: boolean }) {
   const active = isActive(sweep.status);
   const now = useNow(active);
   const percent = progressPercent(sweep);
@@ -72,10 +73,18 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
         </span>
       }
       actions={
-        canRun && active ? (
-          <Button variant="danger" onClick={onCancel} disabled={cancelling}>
-            {cancelling ? "Cancelling…" : "Cancel sweep"}
-          </Button>
+        canRun ? (
+          <span className="flex flex-wrap gap-2">
+            {/* The spec as it ran, in the builder, under a new name: nothing is resubmitted until it is quoted and confirmed. */}
+            <ButtonLink variant="secondary" href={`/studios/${studioId}/sweeps/new?from=${encodeURIComponent(sweep.id)}`}>
+              Duplicate and edit
+            </ButtonLink>
+            {active ? (
+              <Button variant="danger" onClick={onCancel} disabled={cancelling}>
+                {cancelling ? "Cancelling…" : "Cancel sweep"}
+              </Button>
+            ) : null}
+          </span>
         ) : null
       }
     >
@@ -152,7 +161,7 @@ function ProgressPanel({ sweep, canRun, onCancel, cancelling }: { sweep: Sweep; 
       <ul className="mt-4 flex flex-wrap gap-2 text-sm" aria-label="Verdict counts" data-testid="verdict-counts">
         {VERDICTS_BY_SEVERITY.map((verdict) => (
           <li key={verdict} className="rounded-md border border-line px-2 py-1" data-testid={`verdict-count-${verdict}`}>
-            <span className="mr-1 inline-block h-2.5 w-2.5 rounded-sm align-middle" style={{ background: VERDICT_STYLES[verdict].colour }} aria-hidden="true" />
+            <VerdictSymbol verdict={verdict} size={14} className="mr-1 inline-block align-middle" />
             {VERDICT_STYLES[verdict].label}: <span className="font-mono">{(sweep.verdictCounts[verdict] ?? 0).toLocaleString("en")}</span>
           </li>
         ))}
@@ -188,10 +197,10 @@ function AxisSelect({ id, label, axes, choices, value, onChange }: {
   );
 }
 
-export function SweepView({ studioId, studioName, role, sweepId }: { studioId: string; studioName: string; role: StudioRole; sweepId: string }) {
+export function SweepView({ studioId, studioName, role, sweepId, initialSweep }: { studioId: string; studioName: string; role: StudioRole; sweepId: string; initialSweep?: Sweep }) {
   const router = useRouter();
   const queryClient = useQueryClient();
-  const sweepQuery = useSweep(studioId, sweepId);
+  const sweepQuery = useSweep(studioId, sweepId, initialSweep);
   const sweep = sweepQuery.data;
   const active = isActive(sweep?.status);
   const cellsQuery = useSweepCells(studioId, sweepId, active);
@@ -224,7 +233,7 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
         <Alert>{errorMessage(sweepQuery.error)}</Alert>
       ) : (
         <div className="space-y-6">
-          <ProgressPanel sweep={sweep!} canRun={canRun} onCancel={() => setConfirmCancel(true)} cancelling={cancel.isPending} />
+          <ProgressPanel studioId={studioId} sweep={sweep!} canRun={canRun} onCancel={() => setConfirmCancel(true)} cancelling={cancel.isPending} />
           <CancelSweepDialog
             open={confirmCancel}
             sweep={sweep!}
@@ -236,11 +245,16 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
               setConfirmCancel(false);
             }}
           />
-          <SweepMaps
-            sweep={sweep!}
-            cells={cellsQuery.data ?? []}
-            onOpenCell={(index) => router.push(`/studios/${studioId}/sweeps/${sweepId}/cells/${index}`)}
-          />
+          {sweep!.axes.length === 0 ? (
+            // A one-cell sweep (a re-run at a finer dt, or a spec without axes) has no map: its run, and the comparison with its parent cell.
+            <SingleRunPanel studioId={studioId} sweep={sweep!} cells={cellsQuery.data ?? []} />
+          ) : (
+            <SweepMaps
+              sweep={sweep!}
+              cells={cellsQuery.data ?? []}
+              onOpenCell={(index) => router.push(`/studios/${studioId}/sweeps/${sweepId}/cells/${index}`)}
+            />
+          )}
           {cellsQuery.isError ? <Alert>{errorMessage(cellsQuery.error)}</Alert> : null}
           <EnvelopePanel studioId={studioId} sweep={sweep!} cells={cellsQuery.data ?? []} />
           <Card title="Exports">
@@ -251,7 +265,9 @@ export function SweepView({ studioId, studioName, role, sweepId }: { studioId: s
               <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${sweepPath(studioId, sweepId)}/cells`} download={`sweep-${sweepId}-cells.json`}>
                 All cells (JSON)
               </a>
-              <span className="self-center text-ink-muted">The map itself: “Save PNG” above the map.</span>
+              {sweep!.axes.some(isNumericAxis) ? (
+                <span className="self-center text-ink-muted">The map itself: “Save PNG” or “Save SVG” above the map (with a title block: sweep, axes, what is shown, tolerances, date).</span>
+              ) : null}
             </div>
           </Card>
         </div>
@@ -266,6 +282,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
   const [yAxis, setYAxis] = useState(numericAxes[1] ?? -1);
   const [slice, setSlice] = useState<number[]>(() => sweep.axes.map(() => 0));
   const [show, setShow] = useState<"verdict" | keyof Metrics>("verdict");
+  const [colourRange, setColourRange] = useState(COLOUR_RANGES[0].key);
   const otherAxes = sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis);
   const compareAxis = otherAxes.length === 1 && !isNumericAxis(sweep.axes[otherAxes[0]]) && sweep.axes[otherAxes[0]].values.length >= 2 ? otherAxes[0] : -1;
   const gridAxis = otherAxes.length === 1 && isNumericAxis(sweep.axes[otherAxes[0]]) ? otherAxes[0] : -1;
@@ -292,7 +309,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
     const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
     const data = layerData(indices, cellsByIndex, metric?.key ?? null);
     const layer: MapLayer = metric
-      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: { normalisation: metric.normalisation, domain: metric.domain } }
+      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: metricScale(metric, sweep.spec.scenario.tolerances ?? {}, colourRange) }
       : { kind: "verdict", verdicts: data.verdicts };
     return { indices, layer, ...data };
   };
@@ -322,6 +339,20 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             ))}
           </select>
         </div>
+        {metric && !metric.domain ? (
+          <div className="space-y-1">
+            <label htmlFor="map-colour-range" className="block text-sm font-medium">
+              Colour range
+            </label>
+            <select id="map-colour-range" className={selectClasses} value={colourRange} onChange={(event) => setColourRange(event.target.value)}>
+              {COLOUR_RANGES.map((range) => (
+                <option key={range.key} value={range.key}>
+                  {range.label}
+                </option>
+              ))}
+            </select>
+          </div>
+        ) : null}
         <AxisSelect
           id="map-x"
           label="Horizontal axis"
@@ -430,6 +461,15 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           overlays={overlays}
           showLegend
           exportFileName={`sweep-${sweep.id}-map`}
+          exportTitleBlock={mapTitleBlock({
+            sweepName: sweep.name || `Sweep ${sweep.id.slice(0, 8)}`,
+            sweepId: sweep.id,
+            x,
+            y: yAxis >= 0 ? y : null,
+            held: otherAxes.map((i) => `${sweep.axes[i].label} = ${axisValueLabel(i, slice[i] ?? 0)}`),
+            showing: metric ? `${metric.label}${metric.unit ? ` [${metric.unit}]` : ""}` : "Verdict (symbols as in the legend)",
+            tolerances: sweep.spec.scenario.tolerances ?? {},
+          })}
           onCellClick={(mapIndex) => onOpenCell(single.indices[mapIndex])}
         />
       )}
@@ -447,7 +487,8 @@ function CellList({ cells, onOpenCell }: { cells: readonly CellRow[]; onOpenCell
       {cells.map((cell) => (
         <li key={cell.index} className="flex justify-between py-1.5">
           <button type="button" className="text-action hover:underline" onClick={() => onOpenCell(cell.index)}>
-            Cell {cell.index}: {cell.axisValues.join(", ")}
+            Cell {cell.index}
+            {cell.axisValues.length > 0 ? `: ${cell.axisValues.join(", ")}` : ""}
           </button>
           <span>{VERDICT_STYLES[cell.verdict].label}</span>
         </li>

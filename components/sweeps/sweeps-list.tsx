@@ -1,8 +1,8 @@
 "use client";
-/** The studio's sweeps, newest first: status with its reason, progress, minutes used, created; filter by status; pages. */
+/** The studio's sweeps, newest first: status with its reason, progress, minutes used, who created it and when; search by name, filter by creator and status; pages. */
 import Link from "next/link";
 import { useQuery } from "@tanstack/react-query";
-import { useState } from "react";
+import { useEffect, useState } from "react";
 import { Alert, ButtonLink, Card, EmptyState, LoadingRows, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
@@ -33,17 +33,32 @@ export function progressPercent(sweep: Pick<Sweep, "cells" | "cellsDone">): numb
 
 export function SweepsList({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
   const [status, setStatus] = useState<"" | SweepStatus>("");
+  const [creator, setCreator] = useState("");
+  const [search, setSearch] = useState("");
+  const [searched, setSearched] = useState("");
   const [page, setPage] = useState(1);
+  // The search follows typing after a short pause, not on every key.
+  useEffect(() => {
+    const timer = setTimeout(() => {
+      setSearched(search.trim());
+      setPage(1);
+    }, 300);
+    return () => clearTimeout(timer);
+  }, [search]);
   const list = useQuery({
-    queryKey: sweepKeys.list(studioId, status, page),
+    queryKey: [...sweepKeys.list(studioId, status, page), creator, searched],
     queryFn: () => {
       const query = new URLSearchParams({ page: String(page), pageSize: String(PAGE_SIZE) });
       if (status) query.set("status", status);
-      return apiFetch<{ sweeps: Sweep[]; page: number; pageSize: number; total: number }>(`${sweepsPath(studioId)}?${query}`);
+      if (creator) query.set("createdBy", creator);
+      if (searched) query.set("q", searched);
+      return apiFetch<{ sweeps: (Sweep & { createdBy: { id: string; name: string } | null })[]; page: number; pageSize: number; total: number; creators: { id: string; name: string }[] }>(`${sweepsPath(studioId)}?${query}`);
     },
+    placeholderData: (previous) => previous,
     // Keep progress current while anything on the page still runs.
     refetchInterval: (query) => (query.state.data?.sweeps.some((sweep) => isActive(sweep.status)) ? 2000 : false),
   });
+  const filtered = Boolean(status || creator || searched);
   const canRun = role === "owner" || role === "engineer";
   const pages = list.data ? Math.max(1, Math.ceil(list.data.total / list.data.pageSize)) : 1;
 
@@ -53,6 +68,40 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
         title="Sweeps"
         actions={
           <div className="flex flex-wrap items-end gap-3">
+            <div className="space-y-1">
+              <label htmlFor="sweep-search" className="block text-xs font-medium text-ink-muted">
+                Name contains
+              </label>
+              <input
+                id="sweep-search"
+                type="search"
+                maxLength={120}
+                className="w-48 rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
+                value={search}
+                onChange={(event) => setSearch(event.target.value)}
+              />
+            </div>
+            <div className="space-y-1">
+              <label htmlFor="sweep-creator-filter" className="block text-xs font-medium text-ink-muted">
+                Created by
+              </label>
+              <select
+                id="sweep-creator-filter"
+                className="rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
+                value={creator}
+                onChange={(event) => {
+                  setCreator(event.target.value);
+                  setPage(1);
+                }}
+              >
+                <option value="">Anyone</option>
+                {(list.data?.creators ?? []).map((option) => (
+                  <option key={option.id} value={option.id}>
+                    {option.name}
+                  </option>
+                ))}
+              </select>
+            </div>
             <div className="space-y-1">
               <label htmlFor="sweep-status-filter" className="block text-xs font-medium text-ink-muted">
                 Status
@@ -83,7 +132,7 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
         ) : list.isError ? (
           <Alert>{errorMessage(list.error)}</Alert>
         ) : list.data.sweeps.length === 0 ? (
-          <EmptyState>{status ? `No ${status} sweeps.` : canRun ? "No sweeps yet. Start one from a template with “New sweep”." : "No sweeps yet."}</EmptyState>
+          <EmptyState>{filtered ? "No sweeps match these filters." : canRun ? "No sweeps yet. Start one from a template with “New sweep”." : "No sweeps yet."}</EmptyState>
         ) : (
           <div className="overflow-x-auto">
             <table className="w-full text-sm" data-testid="sweeps-table">
@@ -93,6 +142,7 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
                   <th scope="col" className={th}>Status</th>
                   <th scope="col" className={th}>Progress [cells]</th>
                   <th scope="col" className={th}>Compute used [min]</th>
+                  <th scope="col" className={th}>Created by</th>
                   <th scope="col" className={th}>Created</th>
                 </tr>
               </thead>
@@ -119,6 +169,7 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
                       </div>
                     </td>
                     <td className={`${td} font-mono text-xs`}>{formatMinutes(sweep.computeMs)}</td>
+                    <td className={`${td} text-xs`} data-testid="sweep-creator">{sweep.createdBy?.name ?? "—"}</td>
                     <td className={`${td} font-mono text-xs`}>{formatDateTime(sweep.createdAt)}</td>
                   </tr>
                 ))}

@@ -33,3 +33,30 @@ export function pickSampleIndices(length: number, series: readonly ArrayLike<num
   }
   return [...keep].sort((a, b) => a - b);
 }
+
+/**
+ * The samples around the contacts: from the first to the last sample with any overlap, widened on
+ * each side by `padFraction` of its own length (at least `minPad` samples), inside [0, length − 1].
+ * Null when nothing ever overlaps (the whole run is the window then).
+ */
+export function contactWindow(overlap: ArrayLike<number>, padFraction = 0.5, minPad = 3): [number, number] | null {
+  let first = -1;
+  let last = -1;
+  for (let i = 0; i < overlap.length; i++) {
+    if (overlap[i] > 0) {
+      if (first < 0) first = i;
+      last = i;
+    }
+  }
+  if (first < 0) return null;
+  const pad = Math.max(minPad, Math.ceil((last - first + 1) * padFraction));
+  return [Math.max(0, first - pad), Math.min(overlap.length - 1, last + pad)];
+}
+
+/** Sample indices to draw inside [from, to] (inclusive), at most maxPoints, keeping each bucket's extremes. */
+export function pickSampleIndicesIn(from: number, to: number, series: readonly ArrayLike<number>[], maxPoints: number): number[] {
+  const length = to - from + 1;
+  if (length <= 0) return [];
+  const views = series.map((values) => Array.prototype.slice.call(values, from, to + 1) as number[]);
+  return pickSampleIndices(length, views, maxPoints).map((i) => i + from);
+}

@@ -119,3 +119,58 @@ export function wallSegmentOnCanvas(wall: ReplayWall, view: ViewTransform, width
   const dy = -wall.normalX;
   return clipSegment(cx - dx * length, cy - dy * length, cx + dx * length, cy + dy * length, { left: 0, top: 0, width: widthPx, height: heightPx });
 }
+
+/**
+ * Bounds of the bodies at one moment (all of them, or one), for a camera that follows them. The
+ * span never falls below `minSpanM`, so a lone disc is shown with room around it rather than
+ * filling the view.
+ */
+export function boundsAt(
+  bodies: readonly { xM: ArrayLike<number>; yM: ArrayLike<number> }[],
+  radiiM: readonly number[],
+  at: { index: number; fraction: number },
+  only: number | null,
+  minSpanM: number,
+): WorldBounds | null {
+  let minX = Number.POSITIVE_INFINITY;
+  let minY = Number.POSITIVE_INFINITY;
+  let maxX = Number.NEGATIVE_INFINITY;
+  let maxY = Number.NEGATIVE_INFINITY;
+  bodies.forEach((body, b) => {
+    if (only !== null && b !== only) return;
+    const x = interpolateAt(body.xM, at);
+    const y = interpolateAt(body.yM, at);
+    if (!Number.isFinite(x) || !Number.isFinite(y)) return;
+    const r = radiiM[b] ?? 0;
+    minX = Math.min(minX, x - r);
+    maxX = Math.max(maxX, x + r);
+    minY = Math.min(minY, y - r);
+    maxY = Math.max(maxY, y + r);
+  });
+  if (!(minX <= maxX)) return null;
+  const cx = (minX + maxX) / 2;
+  const cy = (minY + maxY) / 2;
+  const half = Math.max(maxX - minX, maxY - minY, minSpanM) / 2;
+  return { minX: cx - half, maxX: cx + half, minY: cy - half, maxY: cy + half };
+}
+
+/**
+ * The median duration (s) of the stretches of consecutive samples with any overlap: how long a
+ * contact lasts in this run, for slowing the replay around contacts. Null without contact.
+ */
+export function typicalContactS(tS: ArrayLike<number>, overlapM: ArrayLike<number>): number | null {
+  const durations: number[] = [];
+  let start = -1;
+  for (let i = 0; i <= overlapM.length; i++) {
+    const touching = i < overlapM.length && overlapM[i] > 0;
+    if (touching && start < 0) start = i;
+    if (!touching && start >= 0) {
+      const end = Math.min(i, tS.length - 1);
+      durations.push(Math.max(tS[end] - tS[Math.max(0, start - 1)], 0));
+      start = -1;
+    }
+  }
+  if (durations.length === 0) return null;
+  durations.sort((a, b) => a - b);
+  return durations[Math.floor(durations.length / 2)];
+}

@@ -1,7 +1,7 @@
 /** Lookups and policies shared by the sweep route handlers. */
-import { and, count, desc, eq } from "drizzle-orm";
+import { and, asc, count, desc, eq, ilike, isNotNull, type SQL } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { SWEEP_STATUSES, sweeps, type Sweep, type SweepStatus } from "@/db/schema";
+import { SWEEP_STATUSES, sweeps, users, type Sweep, type SweepStatus } from "@/db/schema";
 import type { RoutePolicy } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
 import { z } from "@/lib/zod";
@@ -34,9 +34,16 @@ export const MAX_PAGE_SIZE = 100;
 
 export interface ListQuery {
   status?: SweepStatus;
+  /** Words the sweep's name contains (case-insensitive). */
+  q?: string;
+  /** The id of the member who created the sweeps. */
+  createdBy?: string;
   page: number;
   pageSize: number;
 }
+
+/** Longest search text of the sweeps list (a name is at most SPEC_LIMITS.maxNameLength long). */
+export const MAX_SEARCH_LENGTH = SPEC_LIMITS.maxNameLength;
 
 function intParam(url: URL, name: string, fallback: number, min: number, max: number): number {
   const raw = url.searchParams.get(name);
@@ -50,15 +57,30 @@ export function parseListQuery(url: URL): ListQuery {
   const status = url.searchParams.get("status");
   if (status !== null && status !== "" && !(SWEEP_STATUSES as readonly string[]).includes(status))
     throw new ApiError(400, "validation_failed", `status must be one of ${SWEEP_STATUSES.join(", ")}; got "${status}".`, "status");
+  const q = (url.searchParams.get("q") ?? "").trim();
+  if (q.length > MAX_SEARCH_LENGTH) throw new ApiError(400, "validation_failed", `q must be at most ${MAX_SEARCH_LENGTH} characters; got ${q.length}.`, "q");
+  const createdBy = (url.searchParams.get("createdBy") ?? "").trim();
+  if (createdBy.length > 200) throw new ApiError(400, "validation_failed", `createdBy must be a member id of at most 200 characters; got ${createdBy.length}.`, "createdBy");
   return {
     status: status ? (status as SweepStatus) : undefined,
+    ...(q ? { q } : {}),
+    ...(createdBy ? { createdBy } : {}),
     page: intParam(url, "page", 1, 1, 1_000_000),
     pageSize: intParam(url, "pageSize", 20, 1, MAX_PAGE_SIZE),
   };
 }
 
+/** A LIKE pattern matching `text` literally anywhere (%, _ and the escape character escaped). */
+function containsPattern(text: string): string {
+  return `%${text.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
 export async function listSweeps(db: Db, studioId: string, query: ListQuery): Promise<{ rows: Sweep[]; total: number }> {
-  const where = query.status ? and(eq(sweeps.studioId, studioId), eq(sweeps.status, query.status)) : eq(sweeps.studioId, studioId);
+  const conditions: SQL[] = [eq(sweeps.studioId, studioId)];
+  if (query.status) conditions.push(eq(sweeps.status, query.status));
+  if (query.q) conditions.push(ilike(sweeps.name, containsPattern(query.q)));
+  if (query.createdBy) conditions.push(eq(sweeps.createdByUserId, query.createdBy));
+  const where = and(...conditions);
   const [{ n }] = await db.select({ n: count() }).from(sweeps).where(where);
   const rows = await db
     .select()
@@ -68,6 +90,17 @@ export async function listSweeps(db: Db, studioId: string, query: ListQuery): Pr
     .limit(query.pageSize)
     .offset((query.page - 1) * query.pageSize);
   return { rows, total: Number(n) };
+}
+
+/** The members who created any of the studio's sweeps (the list's "Created by" choices), by name. */
+export async function sweepCreators(db: Db, studioId: string): Promise<{ id: string; name: string }[]> {
+  const rows = await db
+    .selectDistinct({ id: users.id, name: users.name, email: users.email })
+    .from(sweeps)
+    .innerJoin(users, eq(users.id, sweeps.createdByUserId))
+    .where(and(eq(sweeps.studioId, studioId), isNotNull(sweeps.createdByUserId)))
+    .orderBy(asc(users.name), asc(users.email));
+  return rows.map((row) => ({ id: row.id, name: row.name || row.email }));
 }
 
 /** The response header of the cells route that carries the sweep's change cursor (JSON and CSV alike). */
@@ -121,4 +154,14 @@ export const rerunRequestSchema = z.strictObject({
     .min(MIN_DT_FACTOR, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
     .max(1, { error: `dtFactor must be a number from ${MIN_DT_FACTOR} to 1` })
     .default(0.25),
+  acceptedQuoteMs: z
+    .number({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .int({ error: "acceptedQuoteMs must be an integer number of milliseconds" })
+    .min(0, { error: "acceptedQuoteMs must be ≥ 0" })
+    .optional(),
+});
+
+/** POST …/cells/{index}/rerun/quote: the quote of that re-run (nothing is started). */
+export const rerunQuoteRequestSchema = z.strictObject({
+  dtFactor: rerunRequestSchema.shape.dtFactor,
 });

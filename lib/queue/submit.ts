@@ -270,6 +270,8 @@ export interface SubmitInput {
   createdByUserId?: string | null;
   /** The quote ceiling the caller accepted (ms): a submit whose ceiling has grown past it is refused (409). */
   acceptedQuoteMs?: number;
+  /** A re-run of one cell of another sweep (its page compares the two). */
+  rerunOf?: { sweepId: string; cellIndex: number };
 }
 
 export async function submitSweep(db: Db, studioId: string, input: SubmitInput, options: SubmitOptions = {}): Promise<Sweep> {
@@ -328,6 +330,8 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
         metering: plan.meter.metering,
         ceilingMs: plan.meter.ceilingMs,
         createdByUserId: input.createdByUserId ?? null,
+        rerunOfSweepId: input.rerunOf?.sweepId ?? null,
+        rerunOfCellIndex: input.rerunOf?.cellIndex ?? null,
         startedAt: allDone ? now : null,
         finishedAt: allDone ? now : null,
       })

@@ -62,6 +62,7 @@ export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
     verdictCounts: verdictCountsFrom(sweep.verdictCounts),
     axes: axisViews(spec),
     spec,
+    rerunOf: sweep.rerunOfSweepId !== null && sweep.rerunOfCellIndex !== null ? { sweepId: sweep.rerunOfSweepId, cellIndex: sweep.rerunOfCellIndex } : null,
   };
 }
 

@@ -834,3 +834,13 @@ export function scenarioValue(scenario: Scenario, path: string): number | string
 
 /** Choice parameters, re-exported for the form. */
 export { CHOICE_PARAMETERS };
+
+/**
+ * A stored spec as the starting point of a new one ("duplicate and edit"): everything as it ran,
+ * without its name (the copy gets its own). The stored spec is the parsed one, defaults filled in,
+ * which the schema accepts again as input.
+ */
+export function duplicateSpec(spec: SweepSpec): SweepSpecInput {
+  const copy = structuredClone(spec) as unknown as SweepSpecInput;
+  return { ...copy, name: "" };
+}

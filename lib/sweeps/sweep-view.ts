@@ -42,4 +42,6 @@ export interface SweepView {
   verdictCounts: VerdictCounts;
   axes: SweepAxisView[];
   spec: SweepSpec;
+  /** For a "re-run at a finer dt": the sweep and cell it re-runs (null otherwise, or once that sweep is deleted). */
+  rerunOf: { sweepId: string; cellIndex: number } | null;
 }

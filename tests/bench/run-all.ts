@@ -8,6 +8,7 @@ import { boxScaling } from "./box-scaling";
 import { contactKernel } from "./contact-kernel";
 import { frictionBench } from "./friction";
 import { costCalibration } from "./cost-calibration";
+import { firstVisit } from "./first-visit";
 import { mapRender } from "./map-render";
 import { metering } from "./metering";
 import { workUnitCalibration } from "./work-unit-calibration";
@@ -17,7 +18,7 @@ import { requestHardening } from "./request-hardening";
 import { scaleOut } from "./scale-out";
 import { webhookIsolation } from "./webhook-isolation";
 
-export const BENCH_MODULES: BenchModule[] = [pairThroughput, contactKernel, boxScaling, frictionBench, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, queueBoxEndToEnd, scaleOut, webhookIsolation, requestHardening];
+export const BENCH_MODULES: BenchModule[] = [pairThroughput, contactKernel, boxScaling, frictionBench, costCalibration, workUnitCalibration, metering, mapRender, queueEndToEnd, queueBoxEndToEnd, scaleOut, webhookIsolation, requestHardening, firstVisit];
 
 async function main() {
   const wanted = process.argv.slice(2);

@@ -263,6 +263,7 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]", method: "GET", params: cell, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun", method: "POST", params: cell, expect: SWEEP_WRITERS(201) },
+  { route: "v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/quote", method: "POST", params: cell, body: () => ({ dtFactor: 0.5 }), expect: SWEEP_WRITERS(200) },
   { route: "v1/studios/[studioId]/sweeps/[sweepId]/envelope", method: "GET", params: sweep, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/catalogues", method: "GET", params: studio, expect: STUDIO_READ_TOKENS_OK(200) },
   { route: "v1/studios/[studioId]/catalogues", method: "POST", params: studio, body: () => catalogueForm(), expect: SWEEP_WRITERS(201) },

@@ -17,7 +17,7 @@ import { checkoutSchema } from "@/lib/billing/checkout";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
-import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
+import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
 import { adjustmentSchema, platformRoleSchema, quotaPatchSchema, statusChangeSchema } from "@/lib/quotas/admin";
 import { SNAPSHOT_READ, SNAPSHOT_WRITE } from "@/lib/snapshots/api";
 import { changeRoleSchema, memberViewSchema, roleSchema } from "@/lib/studios/members";
@@ -139,6 +139,7 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: `${S}/sweeps/{sweepId}/cells`, summary: "The done cells (JSON or CSV; after= for the cells changed since a cursor)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: cellsQuery },
   { method: "get", path: `${S}/sweeps/{sweepId}/cells/{index}`, summary: "One cell with its time series", tag: "Sweeps", policy: SWEEP_READ, ok: 200 },
   { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun`, summary: "Run one cell again at a smaller timestep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 201, body: rerunRequestSchema },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun/quote`, summary: "Quote a re-run of one cell at a smaller timestep (nothing starts)", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, body: rerunQuoteRequestSchema },
   { method: "get", path: `${S}/sweeps/{sweepId}/envelope`, summary: "The safe envelope (JSON or CSV)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: envelopeQuery },
   // Catalogues
   { method: "get", path: `${S}/catalogues`, summary: "Catalogues of a studio", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200 },

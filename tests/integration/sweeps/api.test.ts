@@ -17,6 +17,7 @@ import * as cancelRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/c
 import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/route";
 import * as cellRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/route";
 import * as rerunRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/route";
+import * as rerunQuoteRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/[index]/rerun/quote/route";
 import * as envelopeRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/envelope/route";
 import { countRows } from "../../helpers/db";
 import { makeToken, makeUser } from "../../helpers/factories";
@@ -184,6 +185,58 @@ describe("a sweep through the API", { timeout: 120_000 }, () => {
     const bad = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/2/rerun`, params, body: { dtFactor: 2 }, cookie: studio.cookies.engineer });
     expect(bad.status).toBe(400);
     expect(errorOf(bad.body).field).toBe("dtFactor");
+  });
+
+  it("quotes a re-run before it starts, refuses a re-run whose ceiling outgrew the accepted quote, and links the re-run to its parent cell", async () => {
+    const params = { studioId: studio.studioId, sweepId, index: "3" };
+    const before = await rowCounts();
+    const quoted = await call(rerunQuoteRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun/quote`, params, body: { dtFactor: 0.5 }, cookie: studio.cookies.engineer });
+    expect(quoted.status, JSON.stringify(quoted.body)).toBe(200);
+    const quote = (quoted.body as { quote: { cells: number; ceilingMs: number } }).quote;
+    expect(quote.cells).toBe(1);
+    expect(quote.ceilingMs).toBeGreaterThan(0);
+    // A quote starts nothing.
+    expect(await rowCounts()).toEqual(before);
+    const tooLow = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun`, params, body: { dtFactor: 0.5, acceptedQuoteMs: quote.ceilingMs - 1 }, cookie: studio.cookies.engineer });
+    expect(tooLow.status).toBe(409);
+    expect(errorOf(tooLow.body).field).toBe("acceptedQuoteMs");
+    expect(await rowCounts()).toEqual(before);
+    const { status, body } = await call(rerunRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun`, params, body: { dtFactor: 0.5, acceptedQuoteMs: quote.ceilingMs }, cookie: studio.cookies.engineer });
+    expect(status, JSON.stringify(body)).toBe(201);
+    const rerun = (body as { sweep: { id: string; ceilingMs: number; rerunOf: { sweepId: string; cellIndex: number } | null } }).sweep;
+    expect(rerun.ceilingMs).toBe(quote.ceilingMs);
+    expect(rerun.rerunOf).toEqual({ sweepId, cellIndex: 3 });
+    const badQuote = await call(rerunQuoteRoute.POST, { method: "POST", path: `${base(studio)}/sweeps/${sweepId}/cells/3/rerun/quote`, params, body: { dtFactor: 0 }, cookie: studio.cookies.engineer });
+    expect(badQuote.status).toBe(400);
+    expect(errorOf(badQuote.body).field).toBe("dtFactor");
+  });
+
+  it("searches the list by name (wildcards taken literally) and filters it by creator and status", async () => {
+    const named = async (name: string, cookie: string) => {
+      const spec = puckSpec() as Spec & { name?: string };
+      const { status, body } = await call(sweepsRoute.POST, { method: "POST", path: `${base(studio)}/sweeps`, params: { studioId: studio.studioId }, body: { spec, name }, cookie });
+      expect(status, JSON.stringify(body)).toBe(201);
+      return (body as { sweep: { id: string } }).sweep.id;
+    };
+    const ownerSweep = await named("Tidewater flippers 100% bounce", studio.cookies.owner);
+    const engineerSweep = await named("Tidewater flippers_low", studio.cookies.engineer);
+    const list = async (query: string) => {
+      const { status, body } = await call(sweepsRoute.GET, { path: `${base(studio)}/sweeps?${query}`, params: { studioId: studio.studioId }, cookie: studio.cookies.finance });
+      expect(status, JSON.stringify(body)).toBe(200);
+      return body as { sweeps: { id: string; createdBy: { id: string; name: string } | null }[]; total: number; creators: { id: string; name: string }[] };
+    };
+    expect((await list("q=tidewater")).sweeps.map((s) => s.id).sort()).toEqual([ownerSweep, engineerSweep].sort());
+    // "%" and "_" match themselves, not any text.
+    expect((await list("q=100%25")).sweeps.map((s) => s.id)).toEqual([ownerSweep]);
+    expect((await list("q=flippers_")).sweeps.map((s) => s.id)).toEqual([engineerSweep]);
+    const all = await list("q=tidewater");
+    const ownerId = all.sweeps.find((s) => s.id === ownerSweep)!.createdBy!.id;
+    expect(all.creators.map((c) => c.id)).toContain(ownerId);
+    expect((await list(`q=tidewater&createdBy=${encodeURIComponent(ownerId)}`)).sweeps.map((s) => s.id)).toEqual([ownerSweep]);
+    expect((await list(`q=tidewater&createdBy=${encodeURIComponent(ownerId)}&status=failed`)).total).toBe(0);
+    const tooLong = await call(sweepsRoute.GET, { path: `${base(studio)}/sweeps?q=${"x".repeat(121)}`, params: { studioId: studio.studioId }, cookie: studio.cookies.finance });
+    expect(tooLong.status).toBe(400);
+    expect(errorOf(tooLong.body).field).toBe("q");
   });
 
   it("answers the envelope as JSON and CSV, and names a bad parameter", async () => {

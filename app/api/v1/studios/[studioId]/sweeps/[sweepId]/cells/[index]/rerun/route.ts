@@ -8,8 +8,7 @@ import { SWEEP_WRITE, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
-import { cellAt, expandAxes } from "@/lib/sweeps/grid";
-import type { SweepSpec } from "@/lib/sweeps/spec";
+import { rerunPlan } from "@/lib/queue/rerun";
 import { rerunRequestSchema } from "@/lib/queue/api";
 
 export const runtime = "nodejs";
@@ -28,16 +27,12 @@ async function readOptionalJson(req: Request): Promise<unknown> {
 }
 
 export const POST = withAuth<typeof SWEEP_WRITE, { studioId: string; sweepId: string; index: string }>(SWEEP_WRITE, async ({ req, studio, params, user }) => {
-  const { dtFactor } = parseWith(rerunRequestSchema, await readOptionalJson(req));
+  const { dtFactor, acceptedQuoteMs } = parseWith(rerunRequestSchema, await readOptionalJson(req));
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   const index = cellIndexParam(params.index, sweep);
-  const spec = sweep.spec as SweepSpec;
-  const cell = cellAt(spec, expandAxes(spec), index);
-  // The original spec seed with the cell's own scene derives the same cell seed again.
-  const scenario = { ...cell.scenario, seed: spec.scenario.seed, dtS: cell.scenario.dtS * dtFactor };
-  const name = `${sweep.name} · cell ${index} at dt × ${dtFactor}`.slice(0, 120);
-  const rerun = await submitSweep(db, studio.id, { spec: { name, scenario, axes: [] }, name, createdByUserId: user?.id ?? null });
+  const plan = rerunPlan(sweep, index, dtFactor);
+  const rerun = await submitSweep(db, studio.id, { spec: plan.spec, name: plan.name, createdByUserId: user?.id ?? null, acceptedQuoteMs, rerunOf: plan.rerunOf });
   pokeProcessRunner();
   return json({ sweep: await sweepView(db, rerun) }, 201);
 });
