@@ -493,23 +493,24 @@ function integratePair(bodies: Bodies, field: ContactField, settings: LoopSettin
     startedThisPass = false;
     endedThisPass = false;
     let seenThisPass = false;
-    const driftX0 = x0 - px0;
-    const driftY0 = y0 - py0;
-    const drift0 = driftX0 * driftX0 + driftY0 * driftY0;
-    const driftX1 = x1 - px1;
-    const driftY1 = y1 - py1;
-    const drift1 = driftX1 * driftX1 + driftY1 * driftY1;
-    let maxDisplacementSquared = 0;
-    if (drift0 > maxDisplacementSquared) maxDisplacementSquared = drift0;
-    if (drift1 > maxDisplacementSquared) maxDisplacementSquared = drift1;
-    const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
-    const cutoffSquared = cutoffM * cutoffM;
 
     // ContactField.pair(0, 1).
     const dx = x1 - x0;
     const dy = y1 - y0;
     const distanceSquared = dx * dx + dy * dy;
     if (distanceSquared >= contactDistanceSquared) {
+      // The cutoff (largest drift of the step) matters only for a pair out of contact: computed here.
+      const driftX0 = x0 - px0;
+      const driftY0 = y0 - py0;
+      const drift0 = driftX0 * driftX0 + driftY0 * driftY0;
+      const driftX1 = x1 - px1;
+      const driftY1 = y1 - py1;
+      const drift1 = driftX1 * driftX1 + driftY1 * driftY1;
+      let maxDisplacementSquared = 0;
+      if (drift0 > maxDisplacementSquared) maxDisplacementSquared = drift0;
+      if (drift1 > maxDisplacementSquared) maxDisplacementSquared = drift1;
+      const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
+      const cutoffSquared = cutoffM * cutoffM;
       if (distanceSquared < cutoffSquared) {
         // checkSkippedContact
         const previousDx = px1 - px0;
