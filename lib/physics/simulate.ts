@@ -26,6 +26,8 @@ import {
   TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
   TUNNEL_NONE,
   TUNNEL_SKIPPED_CONTACT,
+  FIRST_CONTACT_ACTIVE,
+  FIRST_CONTACT_PENDING,
   type ContactFieldParameters,
   type Wall,
 } from "./contact-field";
@@ -157,7 +159,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
   for (let i = 0; i < bodies.count; i++) totalMassKg += bodies.mass[i];
   const gravityImpulsePerStepNs = -h * gravity * totalMassKg;
 
-  const progress = integrate(bodies, field, step, {
+  const loop = takesTwoBodyPath(scenario, bodies, field, gravity, recorder) ? integratePair : null;
+  const settings: LoopSettings = {
     isVerlet,
     h,
     totalSteps,
@@ -172,7 +175,8 @@ export function simulate(scenario: Scenario, options: RunOptions = {}): RunResul
     spin,
     rest,
     gaugeContactEnd,
-  });
+  };
+  const progress = loop ? loop(bodies, field, settings) : integrate(bodies, field, step, settings);
   const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;
 
   const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
@@ -373,6 +377,407 @@ function integrate(bodies: Bodies, field: ContactField, step: StepFunction, sett
       break;
     }
   }
+
+  return {
+    n,
+    integratedSteps,
+    chargedContacts,
+    flightChecks,
+    flightSteps,
+    finalFlights,
+    externalImpulseXNs,
+    externalImpulseYNs,
+    energy,
+    maxEnergyErrorRel,
+    maxOverlapFraction,
+    maxOmegaSquared,
+    contactSteps,
+    exploded,
+    explodedAtS,
+    tunnelAtS,
+    effectiveRestitution,
+    contactDurationS,
+  };
+}
+
+/** Keys of a contact spec the two-body loop knows; anything else (a tangential law) takes the general path. */
+const TWO_BODY_CONTACT_KEYS = new Set(["model", "stiffness", "material", "damping"]);
+
+/**
+ * Whether a run may take `integratePair`: two discs, no walls, no gravity, a linear normal law,
+ * symplectic Euler, all-pairs broad phase and no series. The contact spec must carry nothing but
+ * the normal law: friction/rotation (its own issue) adds tangential parameters and state that this
+ * loop does not model, so any extra key sends the run through the general path, which stays the
+ * reference for everything.
+ */
+function takesTwoBodyPath(scenario: Scenario, bodies: Bodies, field: ContactField, gravity: number, recorder: SeriesRecorder | null): boolean {
+  if (bodies.count !== 2 || field.wallCount !== 0 || gravity !== 0 || recorder !== null || field.frictional) return false;
+  if (field.model !== CONTACT_LINEAR || field.broadPhase !== BROAD_PHASE_ALL_PAIRS || scenario.integrator !== "symplectic-euler") return false;
+  for (const key of Object.keys(scenario.contact)) if (!TWO_BODY_CONTACT_KEYS.has(key)) return false;
+  return true;
+}
+
+/**
+ * `integrate` for two discs in free space (pair cells): the same arithmetic in the same order as
+ * `stepSymplecticEuler` + `ContactField.evaluate`/`pair`/`normalForce` + the step loop's
+ * bookkeeping, with the state and every running value in locals (no broad phase, no array or
+ * property traffic per step). Results are byte-identical to the general path
+ * (tests/unit/physics/kernel-identity.test.ts and the fast/plain determinism tests hold it to
+ * that); the field and the bodies are written back at the end so `simulate` reads them as before.
+ */
+function integratePair(bodies: Bodies, field: ContactField, settings: LoopSettings): LoopProgress {
+  const { h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor } = settings;
+  const { x, y, vx, vy, fx, fy, previousX, previousY, mass, inverseMass, radius } = bodies;
+  const m0 = mass[0];
+  const m1 = mass[1];
+  const im0 = inverseMass[0];
+  const im1 = inverseMass[1];
+  const r0 = radius[0];
+  const r1 = radius[1];
+  // evaluate(): fy = −m·g, with g = 0 here (kept as the same product so a signed zero stays the same).
+  const restFy0 = -m0 * gravity;
+  const restFy1 = -m1 * gravity;
+  let maxRadius = 0;
+  if (r0 > maxRadius) maxRadius = r0;
+  if (r1 > maxRadius) maxRadius = r1;
+  const contactDistance = r0 + r1;
+  const contactDistanceSquared = contactDistance * contactDistance;
+  const smallerRadius = r0 < r1 ? r0 : r1;
+  const reducedMass = 1 / (im0 + im1);
+  const k = field.stiffness;
+  // dampingCoefficient(reducedMass, k): constant for a linear pair.
+  const dampingMode = field.dampingMode;
+  const c = dampingMode === DAMPING_NONE ? 0 : dampingMode === DAMPING_COEFFICIENT ? field.dampingValue : 2 * field.dampingValue * Math.sqrt(reducedMass * k);
+  const omegaSquared = k / reducedMass;
+  const nearMissDepthFraction = field.nearMissDepthFraction;
+  const wallForceXN = 0;
+  const wallForceYN = 0;
+
+  let x0 = x[0], y0 = y[0], vx0 = vx[0], vy0 = vy[0], fx0 = fx[0], fy0 = fy[0], px0 = previousX[0], py0 = previousY[0];
+  let x1 = x[1], y1 = y[1], vx1 = vx[1], vy1 = vy[1], fx1 = fx[1], fy1 = fy[1], px1 = previousX[1], py1 = previousY[1];
+
+  // Field state after priming.
+  let contactPotentialJ = field.contactPotentialJ;
+  let overlappingContacts = field.overlappingContacts;
+  let passMaxOverlapFraction = field.maxOverlapFraction;
+  let passMaxOverlapM = field.maxOverlapM;
+  let passMaxOmegaSquared = field.maxOmegaSquared;
+  let tunnelKind = field.tunnelKind;
+  let tunnelBodyA = field.tunnelBodyA;
+  let tunnelBodyB = field.tunnelBodyB;
+  let tunnelDetectedThisPass = field.tunnelDetectedThisPass;
+  let phase = field.firstContactPhase;
+  let firstA = field.firstContactA;
+  let firstB = field.firstContactB;
+  let startedThisPass = field.firstContactStartedThisPass;
+  let endedThisPass = field.firstContactEndedThisPass;
+  let startOverlapBefore = field.firstContactStartOverlapBeforeM;
+  let startOverlap = field.firstContactStartOverlapM;
+  let approachSpeed = field.firstContactApproachSpeedMPerS;
+  let forcePrevious = field.firstContactForcePreviousN;
+  let forceNow = field.firstContactForceN;
+  let endNormalX = field.firstContactEndNormalX;
+  let endNormalY = field.firstContactEndNormalY;
+
+  let chargedContacts = 0;
+  let flightChecks = 0;
+  let flightSteps = 0;
+  let finalFlights = 0;
+  let integratedSteps = 0;
+  let externalImpulseXNs = 0;
+  let externalImpulseYNs = 0;
+  let lastWallForceXN = field.wallForceXN;
+  let lastWallForceYN = field.wallForceYN;
+  let energy = startEnergy;
+  let maxEnergyErrorRel = 0;
+  let maxOverlapFraction = field.maxOverlapFraction;
+  let maxOmegaSquared = field.maxOmegaSquared;
+  let contactSteps = 0;
+  let exploded = false;
+  let explodedAtS = 0;
+  let tunnelAtS = -1;
+  let firstContactStartS = 0;
+  let firstContactEndS = 0;
+  let effectiveRestitution: number | null = null;
+  let contactDurationS: number | null = null;
+
+  let n = 0;
+  while (n < totalSteps) {
+    if (allowJumps && overlappingContacts === 0) {
+      x[0] = x0; y[0] = y0; vx[0] = vx0; vy[0] = vy0;
+      x[1] = x1; y[1] = y1; vx[1] = vx1; vy[1] = vy1;
+      const timeToContactS = field.timeToFirstContactS(bodies);
+      flightChecks++;
+      const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
+      if (target > n + 1) {
+        jumpFreeFlight(bodies, n, target, h, null, gravity, timeToContactS !== Infinity);
+        x0 = x[0]; y0 = y[0]; x1 = x[1]; y1 = y[1];
+        if (timeToContactS !== Infinity) flightSteps += target - n;
+        else finalFlights++;
+        n = target;
+        if (n >= totalSteps) break;
+      }
+    }
+
+    // stepSymplecticEuler: kick, remember the position, drift (body 0, then body 1).
+    const kick0 = h * im0;
+    vx0 += kick0 * fx0;
+    vy0 += kick0 * fy0;
+    px0 = x0;
+    py0 = y0;
+    x0 += h * vx0;
+    y0 += h * vy0;
+    const kick1 = h * im1;
+    vx1 += kick1 * fx1;
+    vy1 += kick1 * fy1;
+    px1 = x1;
+    py1 = y1;
+    x1 += h * vx1;
+    y1 += h * vy1;
+
+    // ContactField.evaluate: resets, cutoff, the one pair (no walls).
+    fx0 = 0;
+    fy0 = restFy0;
+    fx1 = 0;
+    fy1 = restFy1;
+    contactPotentialJ = 0;
+    overlappingContacts = 0;
+    passMaxOverlapFraction = 0;
+    passMaxOverlapM = 0;
+    passMaxOmegaSquared = 0;
+    tunnelDetectedThisPass = false;
+    startedThisPass = false;
+    endedThisPass = false;
+    let seenThisPass = false;
+
+    // ContactField.pair(0, 1).
+    const dx = x1 - x0;
+    const dy = y1 - y0;
+    const distanceSquared = dx * dx + dy * dy;
+    if (distanceSquared >= contactDistanceSquared) {
+      // The cutoff (largest drift of the step) matters only for a pair out of contact: computed here.
+      const driftX0 = x0 - px0;
+      const driftY0 = y0 - py0;
+      const drift0 = driftX0 * driftX0 + driftY0 * driftY0;
+      const driftX1 = x1 - px1;
+      const driftY1 = y1 - py1;
+      const drift1 = driftX1 * driftX1 + driftY1 * driftY1;
+      let maxDisplacementSquared = 0;
+      if (drift0 > maxDisplacementSquared) maxDisplacementSquared = drift0;
+      if (drift1 > maxDisplacementSquared) maxDisplacementSquared = drift1;
+      const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
+      const cutoffSquared = cutoffM * cutoffM;
+      if (distanceSquared < cutoffSquared) {
+        // checkSkippedContact
+        const previousDx = px1 - px0;
+        const previousDy = py1 - py0;
+        if (!(previousDx * previousDx + previousDy * previousDy < contactDistanceSquared)) {
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          if (stepSquared !== 0) {
+            const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+            if (!(along <= 0 || along >= 1)) {
+              const closestX = previousDx + along * stepX;
+              const closestY = previousDy + along * stepY;
+              const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
+              if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) {
+                tunnelDetectedThisPass = true;
+                if (tunnelKind === TUNNEL_NONE) {
+                  tunnelKind = TUNNEL_SKIPPED_CONTACT;
+                  tunnelBodyA = 0;
+                  tunnelBodyB = 1;
+                }
+              }
+            }
+          }
+        }
+      }
+    } else {
+      const previousDx = px1 - px0;
+      const previousDy = py1 - py0;
+      const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
+      const distance = Math.sqrt(distanceSquared);
+      let normalX: number;
+      let normalY: number;
+      let tunnel = TUNNEL_NONE;
+      if (distance > 0) {
+        normalX = dx / distance;
+        normalY = dy / distance;
+      } else {
+        const previousDistance = Math.sqrt(previousDistanceSquared);
+        normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+        normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+        tunnel = TUNNEL_CENTRES_CROSSED;
+      }
+      if (tunnel !== TUNNEL_NONE) {
+        tunnelDetectedThisPass = true;
+        if (tunnelKind === TUNNEL_NONE) {
+          tunnelKind = tunnel;
+          tunnelBodyA = 0;
+          tunnelBodyB = 1;
+        }
+      }
+      tunnel = TUNNEL_NONE;
+      if (previousDistanceSquared >= contactDistanceSquared) {
+        if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0) {
+          // passedDeeperThanTolerance(r0, r1, contactDistance, previousDx, previousDy, dx − previousDx, dy − previousDy)
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          let along = stepSquared > 0 ? -(previousDx * stepX + previousDy * stepY) / stepSquared : 0;
+          if (along < 0) along = 0;
+          else if (along > 1) along = 1;
+          const closestX = previousDx + along * stepX;
+          const closestY = previousDy + along * stepY;
+          const depthLimit = contactDistance - nearMissDepthFraction * smallerRadius;
+          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) tunnel = TUNNEL_ENTERED_PAST_CLOSEST_APPROACH;
+        }
+      } else if (dx * previousDx + dy * previousDy <= 0) {
+        tunnel = TUNNEL_CENTRES_CROSSED;
+      }
+      if (tunnel !== TUNNEL_NONE) {
+        tunnelDetectedThisPass = true;
+        if (tunnelKind === TUNNEL_NONE) {
+          tunnelKind = tunnel;
+          tunnelBodyA = 0;
+          tunnelBodyB = 1;
+        }
+      }
+      const overlap = contactDistance - distance;
+      const overlapRate = (vx0 - vx1) * normalX + (vy0 - vy1) * normalY;
+      // normalForce, linear law.
+      if (overlap > 0) contactPotentialJ += 0.5 * k * overlap * overlap;
+      const force = k * overlap + c * overlapRate;
+      if (omegaSquared > passMaxOmegaSquared) passMaxOmegaSquared = omegaSquared;
+      const pushX = force > 0 ? force * normalX : 0;
+      const pushY = force > 0 ? force * normalY : 0;
+      fx0 -= pushX;
+      fy0 -= pushY;
+      fx1 += pushX;
+      fy1 += pushY;
+      overlappingContacts++;
+      const fraction = overlap / smallerRadius;
+      if (fraction > passMaxOverlapFraction) passMaxOverlapFraction = fraction;
+      if (overlap > passMaxOverlapM) passMaxOverlapM = overlap;
+      if (phase !== FIRST_CONTACT_ENDED) {
+        // trackFirstContact(0, 1, …)
+        const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+        if (phase === FIRST_CONTACT_PENDING) {
+          if (isNewContact) {
+            phase = FIRST_CONTACT_ACTIVE;
+            firstA = 0;
+            firstB = 1;
+            startedThisPass = true;
+            seenThisPass = true;
+            startOverlapBefore = contactDistance - Math.sqrt(previousDistanceSquared);
+            startOverlap = overlap;
+            approachSpeed = overlapRate;
+            forcePrevious = 0;
+            forceNow = force;
+            if (force <= 0) {
+              forceNow = force;
+              phase = FIRST_CONTACT_ENDED;
+              endedThisPass = true;
+              endNormalX = normalX;
+              endNormalY = normalY;
+            }
+          }
+        } else if (phase === FIRST_CONTACT_ACTIVE && firstA === 0 && firstB === 1) {
+          seenThisPass = true;
+          forcePrevious = forceNow;
+          forceNow = force;
+          if (force <= 0) {
+            forceNow = force;
+            phase = FIRST_CONTACT_ENDED;
+            endedThisPass = true;
+            endNormalX = normalX;
+            endNormalY = normalY;
+          }
+        }
+      }
+    }
+    if (phase === FIRST_CONTACT_ACTIVE && !seenThisPass) {
+      // endFirstContactWithoutOverlap (the first contact is this pair: the only one there is).
+      const endDx = x1 - x0;
+      const endDy = y1 - y0;
+      const distance = Math.sqrt(endDx * endDx + endDy * endDy);
+      const normalX = endDx / distance;
+      const normalY = endDy / distance;
+      const overlap = contactDistance - distance;
+      const overlapRate = (vx0 - vx1) * normalX + (vy0 - vy1) * normalY;
+      const force = k * overlap + c * overlapRate;
+      forcePrevious = forceNow;
+      forceNow = Math.min(force, 0);
+      phase = FIRST_CONTACT_ENDED;
+      endedThisPass = true;
+      endNormalX = normalX;
+      endNormalY = normalY;
+    }
+
+    // The step loop's bookkeeping (integrate).
+    n++;
+    integratedSteps++;
+    chargedContacts += overlappingContacts < contactsChargedMax ? overlappingContacts : contactsChargedMax;
+    externalImpulseXNs += h * lastWallForceXN;
+    externalImpulseYNs += h * lastWallForceYN;
+    externalImpulseYNs += gravityImpulsePerStepNs;
+    lastWallForceXN = wallForceXN;
+    lastWallForceYN = wallForceYN;
+
+    let kinetic = 0;
+    kinetic += 0.5 * m0 * (vx0 * vx0 + vy0 * vy0);
+    kinetic += 0.5 * m1 * (vx1 * vx1 + vy1 * vy1);
+    energy = kinetic + contactPotentialJ + 0;
+    const energyErrorRel = (energy - startEnergy) / energyScale;
+    if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
+    if (passMaxOverlapFraction > maxOverlapFraction) maxOverlapFraction = passMaxOverlapFraction;
+    if (passMaxOmegaSquared > maxOmegaSquared) maxOmegaSquared = passMaxOmegaSquared;
+    if (overlappingContacts > 0) contactSteps++;
+    if (tunnelDetectedThisPass && tunnelAtS < 0) tunnelAtS = n * h;
+
+    if (startedThisPass) {
+      firstContactStartS = (n - 1) * h + (h * -startOverlapBefore) / (startOverlap - startOverlapBefore);
+    }
+    if (endedThisPass) {
+      const fraction = forcePrevious > 0 ? forcePrevious / (forcePrevious - forceNow) : 0;
+      firstContactEndS = Math.max(firstContactStartS, (n - 1) * h + h * fraction);
+      contactDurationS = firstContactEndS - firstContactStartS;
+      // field.firstContactEndApproachSpeed (b ≥ 0).
+      const endApproach = (vx0 - vx1) * endNormalX + (vy0 - vy1) * endNormalY;
+      effectiveRestitution = approachSpeed > 0 ? -endApproach / approachSpeed : null;
+    }
+
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
+      exploded = true;
+      explodedAtS = n * h;
+      break;
+    }
+  }
+
+  x[0] = x0; y[0] = y0; vx[0] = vx0; vy[0] = vy0; fx[0] = fx0; fy[0] = fy0; previousX[0] = px0; previousY[0] = py0;
+  x[1] = x1; y[1] = y1; vx[1] = vx1; vy[1] = vy1; fx[1] = fx1; fy[1] = fy1; previousX[1] = px1; previousY[1] = py1;
+  field.contactPotentialJ = contactPotentialJ;
+  field.overlappingContacts = overlappingContacts;
+  field.maxOverlapFraction = passMaxOverlapFraction;
+  field.maxOverlapM = passMaxOverlapM;
+  field.maxOmegaSquared = passMaxOmegaSquared;
+  field.tunnelKind = tunnelKind;
+  field.tunnelBodyA = tunnelBodyA;
+  field.tunnelBodyB = tunnelBodyB;
+  field.tunnelDetectedThisPass = tunnelDetectedThisPass;
+  field.firstContactPhase = phase;
+  field.firstContactA = firstA;
+  field.firstContactB = firstB;
+  field.firstContactStartedThisPass = startedThisPass;
+  field.firstContactEndedThisPass = endedThisPass;
+  field.firstContactStartOverlapBeforeM = startOverlapBefore;
+  field.firstContactStartOverlapM = startOverlap;
+  field.firstContactApproachSpeedMPerS = approachSpeed;
+  field.firstContactForcePreviousN = forcePrevious;
+  field.firstContactForceN = forceNow;
+  field.firstContactEndNormalX = endNormalX;
+  field.firstContactEndNormalY = endNormalY;
 
   return {
     n,
