@@ -10,6 +10,7 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { build } from "esbuild";
 import { chromium, type Browser, type Page } from "playwright-core";
+import { titleBlockHeight } from "@/components/maps/export";
 
 const CHROMIUM = "/usr/bin/chromium";
 const repoRoot = path.resolve(__dirname, "..", "..", "..");
@@ -182,7 +183,8 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
     expect(size.prefix).toBe("data:image/png;base64,");
     // The export has the map's CSS size (at least 640 px wide) at scale 2.
     expect(size.width).toBe(2 * Math.max(640, Math.round(mapWidth)));
-    expect(size.height).toBe(2 * 360);
+    // Above the map, its title block: the title and the export date line (titleBlockHeight).
+    expect(size.height).toBe(2 * (360 + titleBlockHeight("Pair, symplectic Euler", 1)));
   });
 
   it("names the field when the data do not fit the axes", async () => {
@@ -192,15 +194,16 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
 
   it("draws the drill-down charts and plays the replay to its end", async () => {
     await page.evaluate(() => (window as unknown as { mountDrillDown: () => void }).mountDrillDown());
-    // Four charts, each with its legend; the body's name in the momentum legends.
-    await expect.poll(() => page.locator("figcaption").allTextContents()).toEqual(["Momentum along x", "Momentum along y", "Energy", "Largest overlap"]);
+    // The overview strip that zooms the run, then four charts, each with its legend; the body's name in the momentum legends.
+    await expect.poll(() => page.locator("figcaption").allTextContents()).toEqual(["Overview (overlap over the whole run): drag the handles to zoom, the middle to pan", "Momentum along x", "Momentum along y", "Energy", "Largest overlap"]);
     await expect.poll(() => page.locator(".recharts-legend-item-text", { hasText: "Hockey puck" }).count()).toBe(2);
-    expect(await page.locator(".recharts-line").count()).toBe(2 + 2 + 3 + 1);
+    // Lines: the overview strip's one, then 2 + 2 + 3 + 1 in the four charts.
+    expect(await page.locator(".recharts-line").count()).toBe(1 + 2 + 2 + 3 + 1);
     // Scrub to the middle: the slider spans 0 … 1000 over the run (1 s), so 500 is t = 500 ms.
     await page.locator("input[type=range]").fill("500");
     await expect.poll(() => page.locator("output").last().textContent()).toBe("t = 500 ms");
     // Fastest setting plays the whole second in 2 s; it stops at the end and offers a replay.
-    await page.getByRole("combobox").selectOption("2");
+    await page.getByLabel("Speed").selectOption("2");
     await page.getByRole("button", { name: "Play" }).click();
     await expect.poll(() => page.getByRole("button", { name: "Replay" }).count(), { timeout: 10_000 }).toBe(1);
     expect(await page.locator("output").last().textContent()).toBe("t = 1 s");
