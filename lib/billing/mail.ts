@@ -48,3 +48,14 @@ export function lowBalanceMail(input: { studioId: string; studioName: string; ba
     { label: "Buy a pack", url: billingUrl(input.studioId) },
   );
 }
+
+export function paymentFailedMail(input: { studioId: string; studioName: string; packName: string; amountCents: number; sessionId: string; reason: string }): MailContent {
+  return message(
+    `Payment failed: ${input.packName} pack for ${input.studioName}`,
+    [
+      `The bank payment of ${formatPriceCents(input.amountCents)} for the ${input.packName} pack did not go through: ${input.reason}.`,
+      `No compute minutes were added and nothing was charged. Buy the pack again with a card or another account. Reference: ${input.sessionId}.`,
+    ],
+    { label: "Open billing", url: billingUrl(input.studioId) },
+  );
+}

@@ -141,6 +141,7 @@ export const OPERATIONS: readonly Operation[] = [
   // Billing
   { method: "get", path: `${S}/billing`, summary: "Balance, packs and this month's usage", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema },
+  { method: "post", path: `${S}/billing/checkout/{sessionId}`, summary: "Check a pack payment with Stripe and credit it if paid (the return page's check)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema },
   { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema },
   { method: "get", path: `${S}/billing/invoices`, summary: "Invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },

@@ -88,6 +88,8 @@ export interface FakeStateData {
   /** payment_intent_data given at session creation, applied when the payment intent is made. */
   session_intent_data: Record<string, { metadata: Record<string, string>; description: string | null }>;
   session_payment_intents: Record<string, string>;
+  /** Processing bank debits (payment intent id → test account number) until settleDelayedPayments. */
+  delayed_payments?: Record<string, string>;
   meter_events: RecordedMeterEvent[];
   deliveries: Delivery[];
   idempotency: Record<string, IdempotencyRecord>;
