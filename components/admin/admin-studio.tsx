@@ -9,6 +9,7 @@ import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { AdjustmentView, QuotaView, StudioUsageView } from "@/lib/quotas/admin";
 import { AdminNav } from "./admin-nav";
 import { AuditTable } from "./audit-table";
+import { RefundForm } from "./refund-form";
 import { minutes, td, th } from "./admin-format";
 
 interface Detail {
@@ -47,6 +48,7 @@ export function AdminStudio({ studioId }: { studioId: string }) {
         <div className="space-y-6">
           <AdjustmentForm studioId={studioId} adjustments={adjustments} onSaved={refresh} />
           <StatusForm studioId={studioId} status={studio.status} onSaved={refresh} />
+          <RefundForm studioId={studioId} onSaved={refresh} />
         </div>
         <Card title={`Members (${members.length})`}>
           <table className="w-full text-sm">

@@ -12,4 +12,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "token.revoke": "Token revoked",
   "user.platform_role": "Platform role change",
   "payment.mismatch": "Payment not matching its pack",
+  "payment.refund": "Refund issued",
 };

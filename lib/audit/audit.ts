@@ -21,6 +21,7 @@ export const AUDIT_ACTIONS = [
   "token.revoke",
   "user.platform_role",
   "payment.mismatch",
+  "payment.refund",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

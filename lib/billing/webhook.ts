@@ -17,6 +17,7 @@ import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
 import { invoiceFinalizedMail, paymentFailedMail, receiptMail } from "./mail";
 import { findPack, type CreditPack } from "./packs";
+import { reportDisputeOpened, syncChargeTakeBacks } from "./refunds";
 import { stripeFailure } from "./stripe";
 
 /**
@@ -37,6 +38,9 @@ export const HANDLED_EVENT_TYPES = [
   "invoice.voided",
   "invoice.marked_uncollectible",
   "invoice.overdue",
+  "charge.refunded",
+  "charge.dispute.created",
+  "charge.dispute.closed",
 ] as const;
 
 export function isHandledEventType(type: string): boolean {
@@ -79,6 +83,13 @@ export async function handleStripeEvent(db: Db, stripe: Stripe, event: unknown):
       // With its line items, so what was paid for is checked against the pack, not only the metadata.
       const session = await stripe.checkout.sessions.retrieve(objectId, { expand: ["line_items", "payment_intent"] });
       outcome = type === "checkout.session.async_payment_failed" ? await reportFailedPayment(db, session, { id, type }) : await creditCheckout(db, session, { id, type });
+    } else if (type === "charge.refunded") {
+      outcome = await syncChargeTakeBacks(db, stripe, objectId, { id, type });
+    } else if (type.startsWith("charge.dispute.")) {
+      const dispute = await stripe.disputes.retrieve(objectId);
+      const chargeId = typeof dispute.charge === "string" ? dispute.charge : dispute.charge.id;
+      // Closed (or created after it was already lost): the charge's take-backs as Stripe holds them now.
+      outcome = dispute.status === "lost" ? await syncChargeTakeBacks(db, stripe, chargeId, { id, type }) : await reportDisputeOpened(db, stripe, dispute, { id, type });
     } else {
       const invoice = await stripe.invoices.retrieve(objectId);
       outcome = await syncInvoice(db, stripe, invoice, { id, type });

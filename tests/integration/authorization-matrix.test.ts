@@ -339,6 +339,8 @@ export const ROUTES: RouteRow[] = [
     expect: BILLING_PEOPLE_ROW(200),
   },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
+  // The studio has no purchase to refund: an admin passes the guard and gets 404 for the purchase.
+  { route: "v1/admin/studios/[studioId]/refunds", method: "POST", params: studio, body: (w) => ({ sessionId: w.checkoutSessionId, reason: "matrix check" }), expect: ADMIN_ONLY(404) },
   // Webhook endpoints: owners only, never tokens.
   { route: "v1/studios/[studioId]/webhooks", method: "GET", params: studio, expect: OWNER_MANAGES(200) },
   { route: "v1/studios/[studioId]/webhooks", method: "POST", params: studio, body: () => ({ url: "https://hooks.pebble-ferry.test/kd", events: ["sweep.finished", "balance.low"] }), expect: OWNER_MANAGES(201) },

@@ -14,6 +14,7 @@ import { createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, signUpSchema } from "@/lib/auth/accounts";
 import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
+import { adminRefundSchema } from "@/lib/billing/refunds";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
@@ -154,6 +155,7 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "patch", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "Change a studio's quotas", tag: "Admin", policy: ADMIN, ok: 200, body: quotaPatchSchema },
   { method: "get", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Credit adjustments of a studio", tag: "Admin", policy: ADMIN, ok: 200 },
   { method: "post", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Adjust a studio's credit", tag: "Admin", policy: ADMIN, ok: 201, body: adjustmentSchema },
+  { method: "post", path: "/api/v1/admin/studios/{studioId}/refunds", summary: "Refund (part of) a pack purchase through Stripe; its minutes are taken back", tag: "Admin", policy: ADMIN, ok: 201, body: adminRefundSchema },
   { method: "put", path: "/api/v1/admin/studios/{studioId}/status", summary: "Suspend or reinstate a studio", tag: "Admin", policy: ADMIN, ok: 200, body: statusChangeSchema },
   { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200 },
   { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema },

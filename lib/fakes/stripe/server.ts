@@ -7,6 +7,7 @@ import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted
 import { Params } from "./params";
 import { closePeriod, closeSubscriptionPeriod, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
+import { closeDispute, openDispute } from "./resources/payments";
 import { payByBankFromHostedPage, payFromHostedPage, refreshExpiry, settleDelayedPayments } from "./resources/checkout";
 import { insertWebhookEndpoint } from "./resources/events";
 import { matchRoute } from "./routes";
@@ -60,6 +61,10 @@ export interface StripeFake {
   setDefaultCard(customerId: string, cardNumber: string): StripeObject;
   /** Settles every processing bank debit paid on the hosted page (async_payment_succeeded / …_failed). */
   settleDelayedPayments(): Array<{ session: string; paymentIntent: string; outcome: "succeeded" | "failed" }>;
+  /** The cardholder's bank disputes a charge (charge.dispute.created). */
+  openDispute(chargeId: string, opts?: { amount?: number; reason?: string }): StripeObject;
+  /** Decides a dispute (charge.dispute.closed with status lost or won). */
+  closeDispute(disputeId: string, outcome: "lost" | "won"): StripeObject;
   /** Sends these events all at once (one attempt each, not awaiting one before the next), as Stripe may. */
   deliverConcurrently(eventIds: string[], endpointId?: string): Promise<Array<{ event: string; endpoint: string } & DeliveryAttempt>>;
 }
@@ -329,6 +334,18 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
       dispatcher.kick();
       return invoices;
     },
+    openDispute(chargeId: string, opts: { amount?: number; reason?: string } = {}) {
+      const dispute = openDispute(makeCtx({ requestId: null, idempotencyKey: null }), chargeId, opts);
+      persist();
+      dispatcher.kick();
+      return dispute;
+    },
+    closeDispute(disputeId: string, outcome: "lost" | "won") {
+      const dispute = closeDispute(makeCtx({ requestId: null, idempotencyKey: null }), disputeId, outcome);
+      persist();
+      dispatcher.kick();
+      return dispute;
+    },
     settleDelayedPayments() {
       const settled = settleDelayedPayments(makeCtx({ requestId: null, idempotencyKey: null }));
       persist();
@@ -390,6 +407,16 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         if (!Array.isArray(ids) || ids.some((x) => typeof x !== "string")) throw invalidRequest("events must be an array of event ids, in the order to deliver them", "events");
         for (const id of ids as string[]) if (!store.get("events", id)) throw invalidRequest(`No such event: '${id}'`, "events", "resource_missing");
         return sendJson(res, 200, { attempts: await dispatcher.deliverInOrder(ids as string[], typeof body.endpoint === "string" ? body.endpoint : undefined) });
+      }
+      const disputeCharge = /^\/_fake\/charges\/([^/]+)\/dispute$/.exec(path);
+      if (method === "POST" && disputeCharge) {
+        const amount = body.amount === undefined ? undefined : num(body.amount);
+        return sendJson(res, 200, control.openDispute(disputeCharge[1], { amount, reason: typeof body.reason === "string" ? body.reason : undefined }));
+      }
+      const disputeClose = /^\/_fake\/disputes\/([^/]+)\/close$/.exec(path);
+      if (method === "POST" && disputeClose) {
+        if (body.status !== "lost" && body.status !== "won") throw invalidRequest("status must be lost or won", "status");
+        return sendJson(res, 200, control.closeDispute(disputeClose[1], body.status));
       }
       if (method === "POST" && path === "/_fake/settle_delayed_payments") return sendJson(res, 200, { settled: control.settleDelayedPayments() });
       if (method === "POST" && path === "/_fake/deliver_concurrently") {
@@ -478,6 +505,8 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     closePeriod: control.closePeriod,
     setDefaultCard: control.setDefaultCard,
     settleDelayedPayments: control.settleDelayedPayments,
+    openDispute: control.openDispute,
+    closeDispute: control.closeDispute,
     deliverConcurrently: (eventIds, endpointId) => dispatcher.deliverConcurrently(eventIds, endpointId),
     setOutage(down, mode = "unavailable") {
       outage = { down, mode };

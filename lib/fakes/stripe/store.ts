@@ -16,7 +16,10 @@ export type CollectionName =
   | "subscriptions"
   | "invoices"
   | "events"
-  | "webhook_endpoints";
+  | "webhook_endpoints"
+  | "charges"
+  | "refunds"
+  | "disputes";
 
 export const COLLECTIONS: readonly CollectionName[] = [
   "customers",
@@ -30,6 +33,9 @@ export const COLLECTIONS: readonly CollectionName[] = [
   "invoices",
   "events",
   "webhook_endpoints",
+  "charges",
+  "refunds",
+  "disputes",
 ];
 
 export interface RecordedMeterEvent {

@@ -1,9 +1,10 @@
-import { cardOutcome, normalizeCardNumber, type CardOutcome } from "../cards";
+import { cardOutcome, DISPUTED_CARDS, normalizeCardNumber, type CardOutcome } from "../cards";
 import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { lineAmountCents } from "../money";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
+import { createCharge, openDispute, settleCharge } from "./payments";
 import { currencyParam, insertPrice, insertProduct, newCustomerObject, paymentMethodObject, readUnitAmount } from "./catalog";
 
 const SESSION_KEYS = [
@@ -312,7 +313,7 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   pi.amount_received = pi.amount;
   pi.payment_method = pm.id;
   pi.last_payment_error = null;
-  pi.latest_charge = newId("ch", 24);
+  const charge = createCharge(ctx, pi, "succeeded");
   const email = form.email?.trim() || (session.customer_email as string | null) || (session.customer_details as { email?: string } | null)?.email || null;
   if (!session.customer && session.customer_creation === "always") {
     // Checkout makes the customer from what was entered on the page.
@@ -328,6 +329,8 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   session.customer_details = { address: null, email, name: (session.customer_details as { name?: string } | null)?.name ?? null, phone: null, tax_exempt: "none", tax_ids: [] };
   ctx.emit("payment_intent.succeeded", pi);
   ctx.emit("checkout.session.completed", session);
+  const disputeReason = DISPUTED_CARDS[digits];
+  if (disputeReason) openDispute(ctx, charge.id, { reason: disputeReason });
   const redirect = (session.success_url as string).replace(/\{CHECKOUT_SESSION_ID\}/g, session.id);
   return { kind: "paid", session, redirect };
 }
@@ -366,7 +369,7 @@ export function payByBankFromHostedPage(ctx: Ctx, sessionId: string, form: { acc
   pi.payment_method = pm.id;
   pi.payment_method_types = ["card", "us_bank_account"];
   pi.last_payment_error = null;
-  pi.latest_charge = newId("py", 24);
+  createCharge(ctx, pi, "pending");
   ctx.store.data.delayed_payments ??= {};
   ctx.store.data.delayed_payments[pi.id] = account;
   const email = form.email?.trim() || (session.customer_email as string | null) || (session.customer_details as { email?: string } | null)?.email || null;
@@ -391,6 +394,8 @@ export function settleDelayedPayments(ctx: Ctx): Array<{ session: string; paymen
     if (!pi || !sessionId || pi.status !== "processing") continue;
     const session = mustGet(ctx.store, "checkout_sessions", sessionId);
     const bank = TEST_BANK_ACCOUNTS[account];
+    const charge = pi.latest_charge ? ctx.store.get("charges", pi.latest_charge as string) : undefined;
+    if (charge) settleCharge(charge, bank?.settles ? { ok: true } : { ok: false, code: bank && !bank.settles ? bank.code : "payment_method_provider_decline", message: bank && !bank.settles ? bank.message : "The payment failed." });
     if (bank?.settles) {
       pi.status = "succeeded";
       pi.amount_received = pi.amount;
