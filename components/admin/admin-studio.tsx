@@ -10,6 +10,7 @@ import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { AdjustmentView, QuotaView, StudioUsageView } from "@/lib/quotas/admin";
 import { AdminNav } from "./admin-nav";
 import { AuditTable } from "./audit-table";
+import { RefundForm } from "./refund-form";
 import { minutes, td, th } from "./admin-format";
 
 interface Detail {
@@ -48,6 +49,7 @@ export function AdminStudio({ studioId }: { studioId: string }) {
         <div className="space-y-6">
           <AdjustmentForm studioId={studioId} studioName={studio.name} balanceMs={studio.balanceMs} adjustments={adjustments} onSaved={refresh} />
           <StatusForm studioId={studioId} studioName={studio.name} status={studio.status} memberCount={members.length} running={studio.runningSweeps + studio.queuedSweeps} onSaved={refresh} />
+          <RefundForm studioId={studioId} onSaved={refresh} />
         </div>
         <Card title={`Members (${members.length})`}>
           <table className="w-full text-sm">

@@ -16,4 +16,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "invite.create": "Invitation sent",
   "invite.withdraw": "Invitation withdrawn",
   "invite.accept": "Invitation accepted",
+  "payment.refund": "Refund issued",
 };

@@ -32,8 +32,17 @@ const SORTS = [
   ["amountCents", "Amount"],
 ] as const;
 
-export function BillingPage({ studioId, studioName, role, checkout }: { studioId: string; studioName: string; role: StudioRole; checkout: string | null }) {
+type PaymentCheck = { sessionId: string; state: "credited" | "processing" | "failed" | "open" | "expired" | "refused"; amountCents: number; creditedMs: number; message: string };
+
+export function BillingPage({ studioId, studioName, role, checkout, sessionId }: { studioId: string; studioName: string; role: StudioRole; checkout: string | null; sessionId: string | null }) {
   const api = billingApi(studioId);
+  // "Check my payment": asks Stripe about this session (and credits it if paid), so the page never claims a payment Stripe has not confirmed.
+  const payment = useQuery({
+    queryKey: ["billing", studioId, "payment", sessionId],
+    queryFn: () => apiFetch<PaymentCheck>(`${api}/checkout/${encodeURIComponent(sessionId ?? "")}`, { method: "POST" }),
+    enabled: sessionId !== null,
+    refetchInterval: (query) => (query.state.data && ["credited", "failed", "expired", "refused"].includes(query.state.data.state) ? false : query.state.dataUpdateCount < 30 ? 2_000 : 30_000),
+  });
   const summary = useQuery({
     queryKey: ["billing", studioId, "summary"],
     queryFn: () => apiFetch<Summary>(api),
@@ -48,8 +57,25 @@ export function BillingPage({ studioId, studioName, role, checkout }: { studioId
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>
       <div className="space-y-6">
-        {checkout === "success" ? (
-          <Alert tone="ok">Payment received. The minutes appear on the balance as soon as Stripe confirms the payment (usually within seconds).</Alert>
+        {checkout === "success" && sessionId ? (
+          <div data-testid="payment-check">
+            {payment.isError ? (
+              <Alert>{errorMessage(payment.error)}</Alert>
+            ) : !payment.data ? (
+              <Alert tone="info">Checking the payment with Stripe…</Alert>
+            ) : (
+              <Alert tone={payment.data.state === "credited" ? "ok" : payment.data.state === "processing" || payment.data.state === "open" ? "info" : undefined}>
+                {payment.data.message}{" "}
+                {payment.data.state === "processing" || payment.data.state === "open" ? (
+                  <Button variant="secondary" onClick={() => void payment.refetch()} disabled={payment.isFetching}>
+                    Check my payment
+                  </Button>
+                ) : null}
+              </Alert>
+            )}
+          </div>
+        ) : checkout === "success" ? (
+          <Alert tone="info">Back from the payment page. The minutes appear on the balance once Stripe confirms the payment.</Alert>
         ) : checkout === "cancelled" ? (
           <Alert tone="info">Checkout cancelled; nothing was charged.</Alert>
         ) : null}

@@ -25,6 +25,7 @@ export const AUDIT_ACTIONS = [
   "invite.create",
   "invite.withdraw",
   "invite.accept",
+  "payment.refund",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -48,3 +48,45 @@ export function lowBalanceMail(input: { studioId: string; studioName: string; ba
     { label: "Buy a pack", url: billingUrl(input.studioId) },
   );
 }
+
+export function paymentFailedMail(input: { studioId: string; studioName: string; packName: string; amountCents: number; sessionId: string; reason: string }): MailContent {
+  return message(
+    `Payment failed: ${input.packName} pack for ${input.studioName}`,
+    [
+      `The bank payment of ${formatPriceCents(input.amountCents)} for the ${input.packName} pack did not go through: ${input.reason}.`,
+      `No compute minutes were added and nothing was charged. Buy the pack again with a card or another account. Reference: ${input.sessionId}.`,
+    ],
+    { label: "Open billing", url: billingUrl(input.studioId) },
+  );
+}
+
+export function refundMail(input: { studioId: string; studioName: string; amountCents: number; takenBackMs: number; reference: string }): MailContent {
+  return message(
+    `Refund of ${formatPriceCents(input.amountCents)} to ${input.studioName}`,
+    [
+      `${formatPriceCents(input.amountCents)} of a pack purchase was refunded to ${input.studioName}; ${formatMinutes(input.takenBackMs)} compute minutes were taken back from the balance.`,
+      `If the balance is now below zero, sweeps pause until a top-up brings it back. Reference: ${input.reference}.`,
+    ],
+    { label: "Open billing", url: billingUrl(input.studioId) },
+  );
+}
+
+export function disputeMail(input: { studioId: string; studioName: string; amountCents: number; takenBackMs: number; reference: string; outcome: "opened" | "lost" }): MailContent {
+  return input.outcome === "opened"
+    ? message(
+        `A payment by ${input.studioName} is disputed`,
+        [
+          `The card issuer disputes a pack payment of ${formatPriceCents(input.amountCents)} by ${input.studioName}. Nothing changes on the balance unless the dispute is lost.`,
+          `Reference: ${input.reference}.`,
+        ],
+        { label: "Open billing", url: billingUrl(input.studioId) },
+      )
+    : message(
+        `Dispute lost: ${formatPriceCents(input.amountCents)} returned to the card of ${input.studioName}`,
+        [
+          `The dispute over a pack payment of ${formatPriceCents(input.amountCents)} was decided for the cardholder; ${formatMinutes(input.takenBackMs)} compute minutes were taken back from the balance.`,
+          `If the balance is now below zero, sweeps pause until a top-up brings it back. Reference: ${input.reference}.`,
+        ],
+        { label: "Open billing", url: billingUrl(input.studioId) },
+      );
+}

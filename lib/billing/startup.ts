@@ -5,6 +5,7 @@ import { dataDir } from "@/db/client";
 import { appBaseUrl } from "@/lib/auth/config";
 import { ensureCatalog } from "./catalog";
 import { registerMeterEventHandler } from "./meter";
+import { startCheckoutReconcile } from "./payments";
 import { billingConfig, configureBilling, fakeStripeClient, stripeFakePort, usesStripeFake } from "./stripe";
 import { HANDLED_EVENT_TYPES } from "./webhook";
 
@@ -15,6 +16,7 @@ export async function startBilling(db: Db): Promise<string> {
   if (!usesStripeFake()) {
     const config = billingConfig();
     await ensureCatalog(config.stripe);
+    await startCheckoutReconcile(db);
     return "billing uses Stripe (STRIPE_SECRET_KEY)";
   }
   const { ensureStripeFake } = await import("@/lib/fakes/stripe");
@@ -27,5 +29,6 @@ export async function startBilling(db: Db): Promise<string> {
   const stripe = fakeStripeClient(fake.port);
   configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });
   await ensureCatalog(stripe);
+  await startCheckoutReconcile(db);
   return `local Stripe fake on ${fake.url}; payment page and webhooks to ${appBaseUrl()}${WEBHOOK_PATH}`;
 }

@@ -3,7 +3,7 @@
  * event id and acts on the object as Stripe holds it *now* (re-read through the API), so duplicates
  * and events that arrive out of order change nothing twice.
  */
-import { eq } from "drizzle-orm";
+import { eq, sql, type SQL } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
@@ -15,13 +15,20 @@ import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
-import { invoiceFinalizedMail, receiptMail } from "./mail";
+import { invoiceFinalizedMail, paymentFailedMail, receiptMail } from "./mail";
 import { findPack, type CreditPack } from "./packs";
+import { reportDisputeOpened, syncChargeTakeBacks } from "./refunds";
 import { stripeFailure } from "./stripe";
 
-/** The event types the endpoint subscribes to; anything else is refused with 400. */
+/**
+ * The event types Kickdrift acts on (and subscribes its endpoint to). Any other signed event is
+ * acknowledged with 2xx and recorded: Stripe retries non-2xx answers and disables endpoints that keep
+ * failing, so refusing an event we do not need would put the ones we do need at risk.
+ */
 export const HANDLED_EVENT_TYPES = [
   "checkout.session.completed",
+  "checkout.session.async_payment_succeeded",
+  "checkout.session.async_payment_failed",
   "checkout.session.expired",
   "invoice.created",
   "invoice.finalized",
@@ -29,7 +36,16 @@ export const HANDLED_EVENT_TYPES = [
   "invoice.payment_succeeded",
   "invoice.payment_failed",
   "invoice.voided",
+  "invoice.marked_uncollectible",
+  "invoice.overdue",
+  "charge.refunded",
+  "charge.dispute.created",
+  "charge.dispute.closed",
 ] as const;
+
+export function isHandledEventType(type: string): boolean {
+  return (HANDLED_EVENT_TYPES as readonly string[]).includes(type);
+}
 
 const eventSchema = z.object({
   id: z.string().regex(/^evt_[A-Za-z0-9_]+$/, "must be a Stripe event id (evt_…)").max(255),
@@ -46,11 +62,9 @@ export interface WebhookResult {
 
 export const purchaseKey = (sessionId: string) => `purchase:${sessionId}`;
 
-/** Validates the parsed event's shape and type (400 naming the field), before anything is read or written. */
+/** Validates the parsed event's shape (400 naming the field), before anything is read or written. */
 export function checkEvent(event: unknown): { id: string; type: string; objectId: string } {
   const parsed = parseWith(eventSchema, event);
-  if (!(HANDLED_EVENT_TYPES as readonly string[]).includes(parsed.type))
-    throw new ApiError(400, "unknown_event_type", `type: Kickdrift does not handle "${parsed.type}" events; it handles ${HANDLED_EVENT_TYPES.join(", ")}.`, "type");
   return { id: parsed.id, type: parsed.type, objectId: parsed.data.object.id };
 }
 
@@ -58,19 +72,36 @@ export async function handleStripeEvent(db: Db, stripe: Stripe, event: unknown):
   const { id, type, objectId } = checkEvent(event);
   const [seen] = await db.select().from(stripeEvents).where(eq(stripeEvents.id, id));
   if (seen) return { received: true, duplicate: true, outcome: seen.outcome };
+  if (!isHandledEventType(type)) {
+    const outcome = `acknowledged: Kickdrift does not act on ${type}`;
+    await recordEvent(db, { id, type }, outcome);
+    return { received: true, duplicate: false, outcome };
+  }
   let outcome: string;
   try {
     if (type.startsWith("checkout.session.")) {
       // With its line items, so what was paid for is checked against the pack, not only the metadata.
-      const session = await stripe.checkout.sessions.retrieve(objectId, { expand: ["line_items"] });
-      outcome = await creditCheckout(db, session, { id, type });
+      const session = await stripe.checkout.sessions.retrieve(objectId, { expand: ["line_items", "payment_intent"] });
+      outcome = type === "checkout.session.async_payment_failed" ? await reportFailedPayment(db, session, { id, type }) : await creditCheckout(db, session, { id, type });
+    } else if (type === "charge.refunded") {
+      outcome = await syncChargeTakeBacks(db, stripe, objectId, { id, type });
+    } else if (type.startsWith("charge.dispute.")) {
+      const dispute = await stripe.disputes.retrieve(objectId);
+      const chargeId = typeof dispute.charge === "string" ? dispute.charge : dispute.charge.id;
+      // Closed (or created after it was already lost): the charge's take-backs as Stripe holds them now.
+      outcome = dispute.status === "lost" ? await syncChargeTakeBacks(db, stripe, chargeId, { id, type }) : await reportDisputeOpened(db, stripe, dispute, { id, type });
     } else {
       const invoice = await stripe.invoices.retrieve(objectId);
       outcome = await syncInvoice(db, stripe, invoice, { id, type });
     }
   } catch (error) {
     if (error instanceof ApiError) throw error;
-    if ((error as { statusCode?: number }).statusCode === 404) throw new ApiError(400, "validation_failed", `data.object.id: Stripe has no object "${objectId}".`, "data.object.id");
+    if ((error as { statusCode?: number }).statusCode === 404) {
+      // Signed by Stripe but naming nothing Stripe holds now (deleted since, or another account's test object): nothing to act on.
+      outcome = `ignored: Stripe has no object ${objectId}`;
+      await recordEvent(db, { id, type }, outcome);
+      return { received: true, duplicate: false, outcome };
+    }
     throw stripeFailure(error);
   }
   pokeOutbox();
@@ -109,7 +140,8 @@ export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, e
     let outcome: string;
     let mismatch: string | null = null;
     const [studio] = studioId ? await tx.select().from(studios).where(eq(studios.id, studioId)) : [];
-    if (session.status !== "complete" || session.payment_status !== "paid") outcome = `ignored: session ${session.id} is ${session.status}/${session.payment_status}`;
+    if (session.status === "complete" && session.payment_status === "unpaid") outcome = `awaiting: session ${session.id} is paid by a delayed method; credited when it settles`;
+    else if (session.status !== "complete" || session.payment_status !== "paid") outcome = `ignored: session ${session.id} is ${session.status}/${session.payment_status}`;
     else if (!studio || !pack || !Number.isInteger(quantity) || quantity < 1) outcome = `ignored: session ${session.id} names no studio or pack of ours`;
     else if (typeof session.amount_total !== "number" || !Number.isInteger(session.amount_total)) outcome = `ignored: session ${session.id} has no integer amount`;
     else if ((mismatch = paymentMismatch(session, pack, quantity))) {
@@ -163,6 +195,60 @@ export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, e
   });
 }
 
+/**
+ * A delayed payment (bank debit) that did not settle: nothing was credited, so nothing is taken back;
+ * the buyer and the studio's owners and finance are told once, with the reason Stripe gives.
+ */
+export async function reportFailedPayment(db: Db, session: Stripe.Checkout.Session, event: { id: string; type: string } | null): Promise<string> {
+  const studioId = session.metadata?.studio_id ?? session.client_reference_id ?? null;
+  const pack = findPack(session.metadata?.pack_id ?? "");
+  let reason = "the bank did not confirm the payment";
+  const intentId = typeof session.payment_intent === "string" ? session.payment_intent : session.payment_intent?.id;
+  return db.transaction(async (tx) => {
+    const [studio] = studioId ? await tx.select().from(studios).where(eq(studios.id, studioId)) : [];
+    let outcome: string;
+    if (!studio || !pack) outcome = `ignored: session ${session.id} names no studio or pack of ours`;
+    else if (session.payment_status === "paid") outcome = `ignored: session ${session.id} is paid`;
+    else {
+      if (session.payment_intent && typeof session.payment_intent !== "string" && session.payment_intent.last_payment_error?.message) reason = session.payment_intent.last_payment_error.message;
+      const recipients = new Set(await billingContacts(tx, studio.id));
+      const buyer = session.metadata?.buyer_email || session.customer_details?.email;
+      if (buyer) recipients.add(buyer);
+      for (const to of recipients) {
+        await queueMail(tx, {
+          idempotencyKey: `mail:payment-failed:${session.id}:${to}`,
+          to,
+          content: paymentFailedMail({ studioId: studio.id, studioName: studio.name, packName: pack.name, amountCents: session.amount_total ?? 0, sessionId: session.id, reason }),
+          studioId: studio.id,
+        });
+      }
+      outcome = `payment failed: session ${session.id}${intentId ? ` (${intentId})` : ""}; nothing credited, ${recipients.size} told`;
+    }
+    if (event) await recordEvent(tx, event, outcome);
+    return outcome;
+  });
+}
+
+/**
+ * The order an invoice's status moves in (Stripe: draft → open → paid | void | uncollectible, and an
+ * uncollectible invoice may still be paid or voided). Paid and void are final.
+ */
+export const INVOICE_STATUS_RANK: Record<string, number> = { draft: 0, open: 1, uncollectible: 2, paid: 3, void: 3 };
+
+function rankSql(status: SQL): SQL {
+  return sql`(case ${status} when 'draft' then 0 when 'open' then 1 when 'uncollectible' then 2 when 'paid' then 3 when 'void' then 3 else 0 end)`;
+}
+
+/** True (in SQL) when a mirror at `current` may take `next`: the same status again, or one further on. */
+export function statusMayMove(current: SQL, next: SQL): SQL {
+  return sql`(${next} = ${current} or ${rankSql(next)} > ${rankSql(current)})`;
+}
+
+/** The same rule in TypeScript, for callers that hold both statuses already. */
+export function invoiceStatusMayMove(current: string, next: string): boolean {
+  return next === current || (INVOICE_STATUS_RANK[next] ?? 0) > (INVOICE_STATUS_RANK[current] ?? 0);
+}
+
 function lineQuantityMs(line: Stripe.InvoiceLineItem): number {
   if (line.quantity_decimal !== null && line.quantity_decimal !== undefined) return Math.round(Number(String(line.quantity_decimal)));
   return line.quantity ?? 0;
@@ -202,9 +288,19 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         finalizedAt: finalizedAtUnix ? new Date(finalizedAtUnix * 1000) : null,
         updatedAt: new Date(),
       };
-      await tx.insert(invoices).values({ id: invoice.id!, ...values }).onConflictDoUpdate({ target: invoices.id, set: values });
-      outcome = `invoice ${invoice.id} is ${values.status}`;
-      if (values.status !== "draft" && values.finalizedAt) {
+      // One conditional statement, not read-then-write: a handler that read the invoice earlier (open)
+      // and commits after one that read it later (paid) changes nothing; statuses only move forward.
+      const written = await tx
+        .insert(invoices)
+        .values({ id: invoice.id!, ...values })
+        .onConflictDoUpdate({ target: invoices.id, set: values, setWhere: statusMayMove(sql`${invoices.status}`, sql`excluded.status`) })
+        .returning({ status: invoices.status });
+      if (written.length === 0) {
+        const [kept] = await tx.select({ status: invoices.status }).from(invoices).where(eq(invoices.id, invoice.id!));
+        outcome = `kept invoice ${invoice.id} at ${kept?.status}: the read (${values.status}) was older`;
+      } else outcome = `invoice ${invoice.id} is ${values.status}`;
+      // A $0 invoice (a period without overage) is kept for the record but mailed to nobody.
+      if (written.length > 0 && values.status !== "draft" && values.finalizedAt && values.totalCents > 0) {
         const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId));
         for (const to of await billingContacts(tx, studioId)) {
           await queueMail(tx, {

@@ -26,6 +26,7 @@ export const RUN_LIMIT_REASONS = {
   suspended: "studio suspended",
   monthlyCap: "monthly compute cap reached",
   outOfMinutes: "out of minutes",
+  negativeBalance: "balance below zero after a refund or lost dispute",
 } as const;
 export type RunLimitReason = (typeof RUN_LIMIT_REASONS)[keyof typeof RUN_LIMIT_REASONS];
 const PAUSE_REASONS: readonly string[] = Object.values(RUN_LIMIT_REASONS);
@@ -291,6 +292,8 @@ export async function quoteLimits(db: DbOrTx, studioId: string, demand: SweepDem
 export function runLimitReason(s: Standing): RunLimitReason | null {
   if (s.studioStatus === "suspended") return RUN_LIMIT_REASONS.suspended;
   if (s.monthUsedMs >= s.quotas.monthlyComputeMs) return RUN_LIMIT_REASONS.monthlyCap;
+  // Minutes taken back by a refund or a lost dispute are owed first: overage does not run on top of them.
+  if (s.balanceMs < 0) return RUN_LIMIT_REASONS.negativeBalance;
   if (s.balanceMs <= 0 && overageHeadroomMs(s) <= 0) return RUN_LIMIT_REASONS.outOfMinutes;
   return null;
 }

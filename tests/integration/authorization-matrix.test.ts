@@ -11,7 +11,7 @@ import { HTTP_METHODS, type HttpMethod } from "@/lib/api/methods";
 import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import { getDb } from "@/db/client";
 import { invoices } from "@/db/schema";
-import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
+import { billingConfig, configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
 import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { submitSweep } from "@/lib/queue/submit";
@@ -59,6 +59,8 @@ interface World {
   publicInviteSecret: string;
   /** An invoice of the studio (as the webhook would have mirrored it). */
   invoiceId: string;
+  /** A Checkout session of the studio at the Stripe fake (open, unpaid). */
+  checkoutSessionId: string;
   /** A webhook endpoint of the studio and an event queued to it. */
   webhookEndpointId: string;
   webhookEventId: string;
@@ -92,6 +94,12 @@ async function buildWorld(): Promise<World> {
   const sweep = await submitSweep(await getDb(), studioId, { spec: puckSpec() });
   const invoiceId = `in_matrix_${studioId}`;
   await (await getDb()).insert(invoices).values({ id: invoiceId, studioId, status: "open", periodStart: new Date(Date.now() - 86_400_000), periodEnd: new Date(), lines: [] });
+  const checkoutSession = await billingConfig().stripe.checkout.sessions.create({
+    mode: "payment",
+    line_items: [{ price_data: { currency: "usd", unit_amount: 900, product_data: { name: "Matrix pack" } }, quantity: 1 }],
+    metadata: { studio_id: studioId },
+    success_url: "http://localhost:3000/done",
+  });
   const { catalogue } = await saveCatalogue(await getDb(), studioId, {
     name: "Pebble Ferry pieces",
     fileName: "pieces.csv",
@@ -115,6 +123,7 @@ async function buildWorld(): Promise<World> {
     resetSecret: await makePasswordReset(subject.id),
     publicInviteSecret: (await makeInvite(studioId, uniqueEmail("public"), "engineer")).secret,
     invoiceId,
+    checkoutSessionId: checkoutSession.id,
     webhookEndpointId: endpoint.id,
     webhookEventId,
     inviteFor,
@@ -320,6 +329,7 @@ export const ROUTES: RouteRow[] = [
   { route: "metrics", method: "GET", expect: PUBLIC(200) },
   { route: "v1/studios/[studioId]/billing", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/checkout", method: "POST", params: studio, body: () => ({ packId: "pack_tapout" }), expect: BILLING_PEOPLE_ROW(201) },
+  { route: "v1/studios/[studioId]/billing/checkout/[sessionId]", method: "POST", params: (w) => ({ studioId: w.studioId, sessionId: w.checkoutSessionId }), expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/ledger", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/usage", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/invoices", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
@@ -330,6 +340,8 @@ export const ROUTES: RouteRow[] = [
     expect: BILLING_PEOPLE_ROW(200),
   },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
+  // The studio has no purchase to refund: an admin passes the guard and gets 404 for the purchase.
+  { route: "v1/admin/studios/[studioId]/refunds", method: "POST", params: studio, body: (w) => ({ sessionId: w.checkoutSessionId, reason: "matrix check" }), expect: ADMIN_ONLY(404) },
   // Webhook endpoints: owners only, never tokens.
   { route: "v1/studios/[studioId]/webhooks", method: "GET", params: studio, expect: OWNER_MANAGES(200) },
   { route: "v1/studios/[studioId]/webhooks", method: "POST", params: studio, body: () => ({ url: "https://hooks.pebble-ferry.test/kd", events: ["sweep.finished", "balance.low"] }), expect: OWNER_MANAGES(201) },

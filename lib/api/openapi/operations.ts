@@ -14,6 +14,7 @@ import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
 import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
+import { adminRefundSchema } from "@/lib/billing/refunds";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
@@ -159,6 +160,7 @@ export const OPERATIONS: readonly Operation[] = [
   // Billing
   { method: "get", path: `${S}/billing`, summary: "Balance, packs and this month's usage", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema },
+  { method: "post", path: `${S}/billing/checkout/{sessionId}`, summary: "Check a pack payment with Stripe and credit it if paid (the return page's check)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema },
   { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema },
   { method: "get", path: `${S}/billing/invoices`, summary: "Invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
@@ -171,6 +173,7 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "patch", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "Change a studio's quotas", tag: "Admin", policy: ADMIN, ok: 200, body: quotaPatchSchema },
   { method: "get", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Credit adjustments of a studio", tag: "Admin", policy: ADMIN, ok: 200 },
   { method: "post", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Adjust a studio's credit", tag: "Admin", policy: ADMIN, ok: 201, body: adjustmentSchema },
+  { method: "post", path: "/api/v1/admin/studios/{studioId}/refunds", summary: "Refund (part of) a pack purchase through Stripe; its minutes are taken back", tag: "Admin", policy: ADMIN, ok: 201, body: adminRefundSchema },
   { method: "put", path: "/api/v1/admin/studios/{studioId}/status", summary: "Suspend or reinstate a studio", tag: "Admin", policy: ADMIN, ok: 200, body: statusChangeSchema },
   { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200 },
   { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema },

@@ -6,7 +6,9 @@ export type CardOutcome =
   | { ok: true; last4: string }
   | { ok: false; code: "incorrect_number" | "card_declined"; declineCode?: string; message: string };
 
-const APPROVED = new Set(["4242424242424242", "4000056655665556", "5555555555554444"]);
+const APPROVED = new Set(["4242424242424242", "4000056655665556", "5555555555554444", "4000000000000259"]);
+/** Stripe's test card whose successful charge is then disputed as fraudulent (a dispute opens right after payment). */
+export const DISPUTED_CARDS: Record<string, string> = { "4000000000000259": "fraudulent" };
 const DECLINED: Record<string, { declineCode: string; message: string }> = {
   "4000000000000002": { declineCode: "generic_decline", message: "Your card was declined." },
   "4000000000009995": { declineCode: "insufficient_funds", message: "Your card has insufficient funds." },

@@ -78,6 +78,9 @@ const OBJECT_LABELS: Record<CollectionName, string> = {
   invoices: "invoice",
   events: "event",
   webhook_endpoints: "webhook endpoint",
+  charges: "charge",
+  refunds: "refund",
+  disputes: "dispute",
 };
 
 export function mustGet(store: StripeFakeStore, collection: CollectionName, id: string, param = "id"): StripeObject {
@@ -148,6 +151,9 @@ const EXPANDABLE_PREFIXES: Array<[string, CollectionName]> = [
   ["mtr_", "meters"],
   ["sub_", "subscriptions"],
   ["in_", "invoices"],
+  ["ch_", "charges"],
+  ["re_", "refunds"],
+  ["du_", "disputes"],
 ];
 
 function lookupById(store: StripeFakeStore, id: string): StripeObject | undefined {

@@ -4,6 +4,7 @@ import * as billing from "./resources/billing";
 import * as catalog from "./resources/catalog";
 import * as checkout from "./resources/checkout";
 import * as events from "./resources/events";
+import * as payments from "./resources/payments";
 
 type Handler = (ctx: Ctx, params: Params, ...ids: string[]) => HandlerResult;
 
@@ -45,6 +46,13 @@ export const ROUTES: Route[] = [
   route("POST", "/v1/checkout/sessions/:id/expire", checkout.expireSession),
   route("GET", "/v1/payment_intents/:id", checkout.retrievePaymentIntent),
   route("GET", "/v1/payment_methods/:id", checkout.retrievePaymentMethod),
+
+  route("GET", "/v1/charges/:id", payments.retrieveCharge),
+  route("POST", "/v1/refunds", payments.createRefund),
+  route("GET", "/v1/refunds", payments.listRefunds),
+  route("GET", "/v1/refunds/:id", payments.retrieveRefund),
+  route("GET", "/v1/disputes", payments.listDisputes),
+  route("GET", "/v1/disputes/:id", payments.retrieveDispute),
 
   route("POST", "/v1/billing/meters", billing.createMeter),
   route("GET", "/v1/billing/meters", billing.listMeters),

@@ -7,7 +7,8 @@ import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted
 import { Params } from "./params";
 import { closePeriod, closeSubscriptionPeriod, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
-import { payFromHostedPage, refreshExpiry } from "./resources/checkout";
+import { closeDispute, openDispute } from "./resources/payments";
+import { payByBankFromHostedPage, payFromHostedPage, refreshExpiry, settleDelayedPayments } from "./resources/checkout";
 import { insertWebhookEndpoint } from "./resources/events";
 import { matchRoute } from "./routes";
 import { newId, StripeFakeStore, type Delivery, type DeliveryAttempt, type StripeObject } from "./store";
@@ -58,6 +59,14 @@ export interface StripeFake {
   waitForWebhooks(opts?: { includeRetries?: boolean; timeoutMs?: number }): Promise<void>;
   /** Puts a test card on file as the customer's default payment method (what auto-charged invoices use). */
   setDefaultCard(customerId: string, cardNumber: string): StripeObject;
+  /** Settles every processing bank debit paid on the hosted page (async_payment_succeeded / …_failed). */
+  settleDelayedPayments(): Array<{ session: string; paymentIntent: string; outcome: "succeeded" | "failed" }>;
+  /** The cardholder's bank disputes a charge (charge.dispute.created). */
+  openDispute(chargeId: string, opts?: { amount?: number; reason?: string }): StripeObject;
+  /** Decides a dispute (charge.dispute.closed with status lost or won). */
+  closeDispute(disputeId: string, outcome: "lost" | "won"): StripeObject;
+  /** Sends these events all at once (one attempt each, not awaiting one before the next), as Stripe may. */
+  deliverConcurrently(eventIds: string[], endpointId?: string): Promise<Array<{ event: string; endpoint: string } & DeliveryAttempt>>;
 }
 
 function requestId(): string {
@@ -255,6 +264,25 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     const form = parseForm(await readBody(req));
     const wantsJson = String(req.headers.accept ?? "").includes("application/json");
     const cardNumber = typeof form.card_number === "string" ? form.card_number : "";
+    const accountNumber = typeof form.account_number === "string" ? form.account_number : "";
+    if (accountNumber.trim() && !cardNumber.trim()) {
+      // A delayed method: the session completes unpaid; money settles on settleDelayedPayments.
+      const bank = payByBankFromHostedPage(ctx, sessionId, { accountNumber, email: typeof form.email === "string" ? form.email : undefined });
+      persist();
+      dispatcher.kick();
+      if (bank.kind === "processing") {
+        if (wantsJson) return sendJson(res, 200, { redirect: bank.redirect, session: bank.session });
+        res.writeHead(303, { location: bank.redirect, "content-length": "0", "request-id": requestId() });
+        res.end();
+        return;
+      }
+      if (bank.kind === "invalid") {
+        if (wantsJson) return sendJson(res, 400, { error: { type: "invalid_request_error", code: "parameter_invalid", param: "account_number", message: bank.message } });
+        return html(400, renderPaymentPage(session, lineItems, { code: "parameter_invalid", message: bank.message }));
+      }
+      if (wantsJson) return sendJson(res, 409, { error: { type: "invalid_request_error", code: "checkout_session_not_open", message: `This Checkout Session is ${String(bank.session.status)}.` } });
+      return html(bank.session.status === "expired" ? 410 : 409, renderClosedPage(bank.session));
+    }
     if (!cardNumber.trim() && session.status === "open") {
       const message = "card_number is required: enter a card number (test card 4242 4242 4242 4242).";
       if (wantsJson) return sendJson(res, 400, { error: { type: "invalid_request_error", code: "parameter_missing", param: "card_number", message } });
@@ -305,6 +333,24 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
       persist();
       dispatcher.kick();
       return invoices;
+    },
+    openDispute(chargeId: string, opts: { amount?: number; reason?: string } = {}) {
+      const dispute = openDispute(makeCtx({ requestId: null, idempotencyKey: null }), chargeId, opts);
+      persist();
+      dispatcher.kick();
+      return dispute;
+    },
+    closeDispute(disputeId: string, outcome: "lost" | "won") {
+      const dispute = closeDispute(makeCtx({ requestId: null, idempotencyKey: null }), disputeId, outcome);
+      persist();
+      dispatcher.kick();
+      return dispute;
+    },
+    settleDelayedPayments() {
+      const settled = settleDelayedPayments(makeCtx({ requestId: null, idempotencyKey: null }));
+      persist();
+      dispatcher.kick();
+      return settled;
     },
     setDefaultCard(customerId: string, cardNumber: string) {
       const ctx = makeCtx({ requestId: null, idempotencyKey: null });
@@ -361,6 +407,23 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         if (!Array.isArray(ids) || ids.some((x) => typeof x !== "string")) throw invalidRequest("events must be an array of event ids, in the order to deliver them", "events");
         for (const id of ids as string[]) if (!store.get("events", id)) throw invalidRequest(`No such event: '${id}'`, "events", "resource_missing");
         return sendJson(res, 200, { attempts: await dispatcher.deliverInOrder(ids as string[], typeof body.endpoint === "string" ? body.endpoint : undefined) });
+      }
+      const disputeCharge = /^\/_fake\/charges\/([^/]+)\/dispute$/.exec(path);
+      if (method === "POST" && disputeCharge) {
+        const amount = body.amount === undefined ? undefined : num(body.amount);
+        return sendJson(res, 200, control.openDispute(disputeCharge[1], { amount, reason: typeof body.reason === "string" ? body.reason : undefined }));
+      }
+      const disputeClose = /^\/_fake\/disputes\/([^/]+)\/close$/.exec(path);
+      if (method === "POST" && disputeClose) {
+        if (body.status !== "lost" && body.status !== "won") throw invalidRequest("status must be lost or won", "status");
+        return sendJson(res, 200, control.closeDispute(disputeClose[1], body.status));
+      }
+      if (method === "POST" && path === "/_fake/settle_delayed_payments") return sendJson(res, 200, { settled: control.settleDelayedPayments() });
+      if (method === "POST" && path === "/_fake/deliver_concurrently") {
+        const ids = body.events;
+        if (!Array.isArray(ids) || ids.some((x) => typeof x !== "string")) throw invalidRequest("events must be an array of event ids, sent all at once", "events");
+        for (const id of ids as string[]) if (!store.get("events", id)) throw invalidRequest(`No such event: '${id}'`, "events", "resource_missing");
+        return sendJson(res, 200, { attempts: await dispatcher.deliverConcurrently(ids as string[], typeof body.endpoint === "string" ? body.endpoint : undefined) });
       }
       if (method === "GET" && path === "/_fake/deliveries") {
         const eventId = url.searchParams.get("event");
@@ -422,6 +485,8 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         { store, now: store.now() },
         { url: options.webhookUrl, enabledEvents: options.webhookEvents ?? ["*"], secret: options.webhookSecret, description: "configured by startStripeFake({ webhookUrl })" },
       );
+    // A restarted app may act on more event types than when its endpoint was made: it subscribes to what it asks for now.
+    if (existing && options.webhookEvents) existing.enabled_events = [...options.webhookEvents];
     webhookSecret = endpoint.secret as string;
     webhookEndpointId = endpoint.id;
     persist();
@@ -439,6 +504,10 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     advanceClock: control.advanceClock,
     closePeriod: control.closePeriod,
     setDefaultCard: control.setDefaultCard,
+    settleDelayedPayments: control.settleDelayedPayments,
+    openDispute: control.openDispute,
+    closeDispute: control.closeDispute,
+    deliverConcurrently: (eventIds, endpointId) => dispatcher.deliverConcurrently(eventIds, endpointId),
     setOutage(down, mode = "unavailable") {
       outage = { down, mode };
     },

@@ -16,7 +16,10 @@ export type CollectionName =
   | "subscriptions"
   | "invoices"
   | "events"
-  | "webhook_endpoints";
+  | "webhook_endpoints"
+  | "charges"
+  | "refunds"
+  | "disputes";
 
 export const COLLECTIONS: readonly CollectionName[] = [
   "customers",
@@ -30,6 +33,9 @@ export const COLLECTIONS: readonly CollectionName[] = [
   "invoices",
   "events",
   "webhook_endpoints",
+  "charges",
+  "refunds",
+  "disputes",
 ];
 
 export interface RecordedMeterEvent {
@@ -88,6 +94,8 @@ export interface FakeStateData {
   /** payment_intent_data given at session creation, applied when the payment intent is made. */
   session_intent_data: Record<string, { metadata: Record<string, string>; description: string | null }>;
   session_payment_intents: Record<string, string>;
+  /** Processing bank debits (payment intent id → test account number) until settleDelayedPayments. */
+  delayed_payments?: Record<string, string>;
   meter_events: RecordedMeterEvent[];
   deliveries: Delivery[];
   idempotency: Record<string, IdempotencyRecord>;

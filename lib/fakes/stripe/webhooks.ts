@@ -176,6 +176,12 @@ export class WebhookDispatcher {
     return results;
   }
 
+  /** Sends the given events all at once (one attempt each), so the receiver handles them concurrently. */
+  async deliverConcurrently(eventIds: string[], endpointId?: string): Promise<Array<{ event: string; endpoint: string } & DeliveryAttempt>> {
+    const all = await Promise.all(eventIds.map(async (id) => (await this.resend(id, endpointId)).map((r) => ({ event: id, ...r }))));
+    return all.flat();
+  }
+
   private endpointsFor(event: StripeObject, endpointId?: string): StripeObject[] {
     if (endpointId) {
       const ep = this.store.get("webhook_endpoints", endpointId);

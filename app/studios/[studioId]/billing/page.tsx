@@ -10,5 +10,6 @@ export default async function BillingRoute({ params, searchParams }: { params: P
   const query = await searchParams;
   const access = await requireStudio(studioId, { callbackUrl: `/studios/${studioId}/billing`, roles: ["owner", "finance"] });
   const checkout = typeof query.checkout === "string" && ["success", "cancelled"].includes(query.checkout) ? query.checkout : null;
-  return <BillingPage studioId={access.studio.id} studioName={access.studio.name} role={access.role} checkout={checkout} />;
+  const sessionId = checkout === "success" && typeof query.session_id === "string" && /^cs_[A-Za-z0-9_]{1,250}$/.test(query.session_id) ? query.session_id : null;
+  return <BillingPage studioId={access.studio.id} studioName={access.studio.name} role={access.role} checkout={checkout} sessionId={sessionId} />;
 }

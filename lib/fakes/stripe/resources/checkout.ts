@@ -1,9 +1,10 @@
-import { cardOutcome, normalizeCardNumber, type CardOutcome } from "../cards";
+import { cardOutcome, DISPUTED_CARDS, normalizeCardNumber, type CardOutcome } from "../cards";
 import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { lineAmountCents } from "../money";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
+import { createCharge, openDispute, settleCharge } from "./payments";
 import { currencyParam, insertPrice, insertProduct, newCustomerObject, paymentMethodObject, readUnitAmount } from "./catalog";
 
 const SESSION_KEYS = [
@@ -312,7 +313,7 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   pi.amount_received = pi.amount;
   pi.payment_method = pm.id;
   pi.last_payment_error = null;
-  pi.latest_charge = newId("ch", 24);
+  const charge = createCharge(ctx, pi, "succeeded");
   const email = form.email?.trim() || (session.customer_email as string | null) || (session.customer_details as { email?: string } | null)?.email || null;
   if (!session.customer && session.customer_creation === "always") {
     // Checkout makes the customer from what was entered on the page.
@@ -328,8 +329,90 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   session.customer_details = { address: null, email, name: (session.customer_details as { name?: string } | null)?.name ?? null, phone: null, tax_exempt: "none", tax_ids: [] };
   ctx.emit("payment_intent.succeeded", pi);
   ctx.emit("checkout.session.completed", session);
+  const disputeReason = DISPUTED_CARDS[digits];
+  if (disputeReason) openDispute(ctx, charge.id, { reason: disputeReason });
   const redirect = (session.success_url as string).replace(/\{CHECKOUT_SESSION_ID\}/g, session.id);
   return { kind: "paid", session, redirect };
+}
+
+/**
+ * Stripe's published test bank accounts for US bank account (ACH) debits, a delayed method: the
+ * session completes at once with `payment_status: "unpaid"` and the PaymentIntent `processing`; the
+ * money settles (or bounces) later, when `checkout.session.async_payment_succeeded` / `…_failed`
+ * follow. Routing number 110000000 in test mode.
+ */
+export const TEST_BANK_ACCOUNTS: Record<string, { settles: true } | { settles: false; code: string; message: string }> = {
+  "000123456789": { settles: true },
+  "000111111116": { settles: false, code: "no_account", message: "The customer's bank account could not be located." },
+  "000111111113": { settles: false, code: "account_closed", message: "The customer's bank account has been closed." },
+};
+
+export type DelayedPaymentResult =
+  | { kind: "processing"; session: StripeObject; redirect: string }
+  | { kind: "invalid"; session: StripeObject; message: string }
+  | { kind: "not_open"; session: StripeObject };
+
+/** The hosted page paid by a test bank account: the session completes unpaid and settles on `settleDelayedPayments`. */
+export function payByBankFromHostedPage(ctx: Ctx, sessionId: string, form: { accountNumber: string; email?: string }): DelayedPaymentResult {
+  const session = refreshExpiry(ctx, mustGet(ctx.store, "checkout_sessions", sessionId));
+  if (session.status !== "open") return { kind: "not_open", session };
+  const account = form.accountNumber.replace(/[\s-]/g, "");
+  if (!TEST_BANK_ACCOUNTS[account]) return { kind: "invalid", session, message: `account_number: use a test bank account (${Object.keys(TEST_BANK_ACCOUNTS).join(", ")}).` };
+  const pi = paymentIntentFor(ctx, session);
+  const pm = ctx.store.insert("payment_methods", {
+    ...paymentMethodObject(ctx, newId("pm", 24), "0000", null),
+    card: null,
+    type: "us_bank_account",
+    us_bank_account: { account_holder_type: "company", account_type: "checking", bank_name: "STRIPE TEST BANK", last4: account.slice(-4), routing_number: "110000000" },
+  });
+  pi.status = "processing";
+  pi.payment_method = pm.id;
+  pi.payment_method_types = ["card", "us_bank_account"];
+  pi.last_payment_error = null;
+  createCharge(ctx, pi, "pending");
+  ctx.store.data.delayed_payments ??= {};
+  ctx.store.data.delayed_payments[pi.id] = account;
+  const email = form.email?.trim() || (session.customer_email as string | null) || (session.customer_details as { email?: string } | null)?.email || null;
+  session.status = "complete";
+  session.payment_status = "unpaid";
+  session.payment_intent = pi.id;
+  session.url = null;
+  session.customer_details = { address: null, email, name: (session.customer_details as { name?: string } | null)?.name ?? null, phone: null, tax_exempt: "none", tax_ids: [] };
+  ctx.emit("payment_intent.processing", pi);
+  ctx.emit("checkout.session.completed", session);
+  return { kind: "processing", session, redirect: (session.success_url as string).replace(/\{CHECKOUT_SESSION_ID\}/g, session.id) };
+}
+
+/** Settles every processing bank debit (Stripe does this days later; the fake when told): events as Stripe sends them. */
+export function settleDelayedPayments(ctx: Ctx): Array<{ session: string; paymentIntent: string; outcome: "succeeded" | "failed" }> {
+  const settled: Array<{ session: string; paymentIntent: string; outcome: "succeeded" | "failed" }> = [];
+  const pending = ctx.store.data.delayed_payments ?? {};
+  for (const [piId, account] of Object.entries(pending)) {
+    const pi = ctx.store.get("payment_intents", piId);
+    const sessionId = Object.entries(ctx.store.data.session_payment_intents).find(([, id]) => id === piId)?.[0];
+    delete pending[piId];
+    if (!pi || !sessionId || pi.status !== "processing") continue;
+    const session = mustGet(ctx.store, "checkout_sessions", sessionId);
+    const bank = TEST_BANK_ACCOUNTS[account];
+    const charge = pi.latest_charge ? ctx.store.get("charges", pi.latest_charge as string) : undefined;
+    if (charge) settleCharge(charge, bank?.settles ? { ok: true } : { ok: false, code: bank && !bank.settles ? bank.code : "payment_method_provider_decline", message: bank && !bank.settles ? bank.message : "The payment failed." });
+    if (bank?.settles) {
+      pi.status = "succeeded";
+      pi.amount_received = pi.amount;
+      session.payment_status = "paid";
+      ctx.emit("payment_intent.succeeded", pi);
+      ctx.emit("checkout.session.async_payment_succeeded", session, { payment_status: "unpaid" });
+      settled.push({ session: session.id, paymentIntent: pi.id, outcome: "succeeded" });
+    } else {
+      const failure = bank && !bank.settles ? bank : { code: "payment_method_provider_decline", message: "The payment failed." };
+      pi.status = "requires_payment_method";
+      pi.last_payment_error = { type: "invalid_request_error", code: failure.code, message: failure.message, payment_method: clone(ctx.store.get("payment_methods", pi.payment_method as string) ?? null) };
+      ctx.emit("payment_intent.payment_failed", pi);
+      ctx.emit("checkout.session.async_payment_failed", session);
+      settled.push({ session: session.id, paymentIntent: pi.id, outcome: "failed" });
+    }
+  }
+  return settled;
 }
 
 export function retrievePaymentIntent(ctx: Ctx, params: Params, id: string): HandlerResult {
