@@ -26,16 +26,26 @@ async function openHome(page: Page, who: keyof typeof PEOPLE): Promise<string> {
   return new URL(page.url()).pathname;
 }
 
-/** The seeded sweeps finish in the background; the home polls while any runs. Waits for them (a hang guard). */
+/** The large demo sweep left running for minutes after start-up (lib/demo/results.ts). */
+const RUNNING_SWEEP = "Jellybean Jar at the fill line";
+
+/**
+ * The seeded sweeps finish in the background (all but the large one, which runs for minutes); the
+ * home polls while any runs. Waits for them (a hang guard).
+ */
 async function waitForSeededWork(page: Page): Promise<void> {
   await expect(async () => {
     await page.reload();
-    // The demo's six sweeps are done (the card lists the latest of them). The card renders once the
-    // overview has loaded after the reload: wait for a fifth link rather than count at once.
+    // The demo's finished sweeps are done (the card lists the latest of them) and the check has its
+    // pairs at risk. The card renders once the overview has loaded after the reload: wait for a
+    // fifth link rather than count at once.
     await expect(page.getByTestId("home-latest-link").nth(4)).toBeAttached({ timeout: 15_000 });
-    await expect(page.getByTestId("home-running")).toHaveCount(0, { timeout: 2_000 });
-  }).toPass({ timeout: 120_000 });
+    await expect(page.getByTestId("home-pairs-at-risk").first()).toBeAttached({ timeout: 2_000 });
+  }).toPass({ timeout: 180_000 });
 }
+
+/** "running · 312 / 2,400 cells" with at least one cell done (the large sweep may be paused for a visitor's work). */
+const RUNNING_PROGRESS = /^(running|paused) · [1-9][\d,]* \/ 2,400 cells/;
 
 test("an engineer lands on the studio home, sees finished sweeps and opens a map with exploded cells in two clicks; the builder takes 60 Hz", async ({ page }) => {
   test.setTimeout(240_000);
@@ -49,6 +59,18 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   await expect(page.getByTestId("home-month-used")).not.toHaveText("0.00 min");
   await expect(page.getByTestId("start-here")).toHaveCount(0);
   await expect(page.getByTestId("results-caution")).toContainText("not a basis for safety-critical engineering");
+  // A sweep still running, with its progress; its own page shows the cells landing.
+  const running = page.getByTestId("home-running-item").filter({ hasText: RUNNING_SWEEP });
+  await expect(running.getByTestId("home-running-progress")).toHaveText(RUNNING_PROGRESS, { timeout: 60_000 });
+  await running.getByTestId("home-running-link").click();
+  await expect(page).toHaveURL(new RegExp(`${home}/sweeps/[^/]+$`));
+  const progress = page.getByTestId("sweep-progress");
+  await expect(progress).toHaveAttribute("aria-valuetext", /^\d+% \([1-9]\d* of 2400 cells\)$/);
+  const firstReading = await progress.getAttribute("aria-valuetext");
+  // Live: the page polls and the count moves on as chunks land (no reload).
+  await expect.poll(() => progress.getAttribute("aria-valuetext"), { timeout: 120_000 }).not.toBe(firstReading);
+  await page.goto(home);
+  await expect(page.getByTestId("home-latest-link").nth(4)).toBeAttached();
 
   // Second click: a finished sweep whose verdict bar shows exploded cells opens on its map.
   await page.getByTestId("home-latest").getByRole("listitem").filter({ hasText: /Exploded \d/ }).first().getByTestId("home-latest-link").click();
