@@ -139,7 +139,8 @@ async function homeShots(browser: Browser, who: keyof typeof PEOPLE): Promise<Pa
 }
 
 test("finance sees the next invoice and usage with data; every role's studio home reads at desktop and phone width", async ({ browser }) => {
-  test.setTimeout(240_000);
+  // A hang guard for a loaded machine: three roles, two widths each, while the demo's large sweep runs.
+  test.setTimeout(480_000);
   const finance = await homeShots(browser, "finance");
   await expect(finance.getByTestId("home-next-invoice")).toHaveText(/^\$\d+\.\d{2}$/);
   await finance.getByRole("link", { name: "Billing and usage →" }).click();
