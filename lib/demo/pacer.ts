@@ -48,7 +48,7 @@ type Holder = { [pacerKey]?: ReturnType<typeof setInterval> };
 /** How often the pacer looks (ms): a visitor's sweep waits at most this plus the chunks in flight. */
 export const PACE_EVERY_MS = 500;
 
-/** Starts the pacer for the demo studio's long sweep (once per process); it stops when the sweep has finished. */
+/** Starts the pacer for the demo studio's long sweep (once per process); it stops when the sweep has finished or a look fails. */
 export function startDemoPacer(db: Db, sweepId: string): void {
   const holder = globalThis as Holder;
   if (holder[pacerKey]) return;
@@ -63,7 +63,12 @@ export function startDemoPacer(db: Db, sweepId: string): void {
           holder[pacerKey] = undefined;
         }
       })
-      .catch((error: unknown) => console.error(`[kickdrift] demo pacer: ${(error as Error).message}`))
+      .catch((error: unknown) => {
+        // A failed look (the database closed, say) stops it: a demo nicety is not worth a log line every 500 ms. The next start-up starts it again.
+        console.error(`[kickdrift] demo pacer stopped: ${(error as Error).message}`);
+        clearInterval(timer);
+        if (holder[pacerKey] === timer) holder[pacerKey] = undefined;
+      })
       .finally(() => {
         busy = false;
       });

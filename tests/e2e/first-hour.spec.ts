@@ -1,5 +1,4 @@
 import { expect, test, type Browser, type Locator, type Page } from "@playwright/test";
-import { signInWithPassword } from "./helpers";
 
 // The demo people seeded by KICKDRIFT_DEMO=1 (db/seed.ts); their studio's work is computed by the
 // server's own queue runner just after start-up (lib/demo/results.ts).
@@ -20,7 +19,13 @@ async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: num
 
 /** Signs in and opens the studio from the studio list: the first click lands on the studio home. */
 async function openHome(page: Page, who: keyof typeof PEOPLE): Promise<string> {
-  await signInWithPassword(page, PEOPLE[who].email, PEOPLE[who].password);
+  // As signInWithPassword (helpers.ts), with a longer hang guard: the demo's large sweep keeps the
+  // server's threads busy, and on a loaded machine a sign-in answered in 15 s once took longer.
+  await page.goto("/signin");
+  await page.getByLabel("E-mail", { exact: true }).fill(PEOPLE[who].email);
+  await page.getByLabel("Password", { exact: true }).fill(PEOPLE[who].password);
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
+  await expect(page).toHaveURL(/\/studios$/, { timeout: 60_000 });
   await page.getByRole("link", { name: STUDIO }).first().click();
   await expect(page.getByTestId("studio-home")).toBeVisible();
   return new URL(page.url()).pathname;
@@ -70,7 +75,7 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   // Live: the page polls and the count moves on as chunks land (no reload).
   await expect.poll(() => progress.getAttribute("aria-valuetext"), { timeout: 120_000 }).not.toBe(firstReading);
   await page.goto(home);
-  await expect(page.getByTestId("home-latest-link").nth(4)).toBeAttached();
+  await waitForSeededWork(page);
 
   // Second click: a finished sweep whose verdict bar shows exploded cells opens on its map.
   await page.getByTestId("home-latest").getByRole("listitem").filter({ hasText: /Exploded \d/ }).first().getByTestId("home-latest-link").click();
