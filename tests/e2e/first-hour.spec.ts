@@ -68,7 +68,8 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   const running = page.getByTestId("home-running-item").filter({ hasText: RUNNING_SWEEP });
   await expect(running.getByTestId("home-running-progress")).toHaveText(RUNNING_PROGRESS, { timeout: 60_000 });
   await running.getByTestId("home-running-link").click();
-  await expect(page).toHaveURL(new RegExp(`${home}/sweeps/[^/]+$`));
+  // A hang guard for a loaded machine (load average 40 once): the navigation took longer than 15 s.
+  await expect(page).toHaveURL(new RegExp(`${home}/sweeps/[^/]+$`), { timeout: 60_000 });
   const progress = page.getByTestId("sweep-progress");
   await expect(progress).toHaveAttribute("aria-valuetext", /^\d+% \([1-9]\d* of 2400 cells\)$/);
   const firstReading = await progress.getAttribute("aria-valuetext");
