@@ -25,6 +25,8 @@ export interface OverviewSweep {
   id: string;
   name: string;
   status: string;
+  /** Why it waits or stopped (a limit, the demo sweep making way), or null. */
+  reason: string | null;
   cells: number;
   cellsDone: number;
   createdAt: string;
@@ -78,6 +80,7 @@ function sweepRow(row: typeof sweeps.$inferSelect): OverviewSweep {
     id: row.id,
     name: row.name,
     status: row.status,
+    reason: row.reason,
     cells: row.cells,
     cellsDone: row.cellsDone,
     createdAt: row.createdAt.toISOString(),
