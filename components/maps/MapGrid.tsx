@@ -35,9 +35,13 @@ export interface MapGridProps {
   height?: number;
   minSmallWidth?: number;
   onCellClick?: (thirdIndex: number, cellIndex: number) => void;
+  /** Per map (in third-value order): each cell's verdict reason, for the hover. */
+  reasons?: readonly (readonly (string | null)[])[];
+  /** Extra hover lines of a cell (e.g. its ω·h and amplification), as on the single map. */
+  extraLines?: (thirdIndex: number, cellIndex: number) => string[];
 }
 
-export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overlays, smallHeight = 230, height = 420, minSmallWidth = 240, onCellClick }: MapGridProps) {
+export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overlays, smallHeight = 230, height = 420, minSmallWidth = 240, onCellClick, reasons, extraLines }: MapGridProps) {
   const [ownMode, setOwnMode] = useState<MapGridMode>(defaultMode);
   const [chosen, setChosen] = useState(0);
   const current = mode ?? ownMode;
@@ -114,6 +118,8 @@ export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overl
                 overlays={overlaySets[i]}
                 height={smallHeight}
                 compact
+                reasons={reasons?.[i]}
+                extraLines={extraLines ? (cell) => extraLines(i, cell) : undefined}
                 onCellClick={onCellClick ? (cell) => onCellClick(i, cell) : undefined}
               />
             ))}
@@ -151,6 +157,8 @@ export function MapGrid({ x, y, third, layers, mode, defaultMode = "grid", overl
             scale={shared.scale}
             overlays={overlaySets[index]}
             height={height}
+            reasons={reasons?.[index]}
+            extraLines={extraLines ? (cell) => extraLines(index, cell) : undefined}
             onCellClick={onCellClick ? (cell) => onCellClick(index, cell) : undefined}
           />
         </div>

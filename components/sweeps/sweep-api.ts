@@ -78,7 +78,7 @@ export function useSweep(studioId: string, sweepId: string, initialSweep?: Sweep
     queryKey: sweepKeys.sweep(studioId, sweepId),
     queryFn: async () => (await apiFetch<{ sweep: Sweep }>(sweepPath(studioId, sweepId))).sweep,
     // The server page's copy, when it sent one: the first paint shows the sweep, not a loading row.
-    ...(initialSweep ? { initialData: initialSweep, initialDataUpdatedAt: Date.now() } : {}),
+    ...(initialSweep ? { initialData: initialSweep, initialDataUpdatedAt: () => Date.now() } : {}),
     select: withResolvedUnits,
     // Poll every second while the sweep can still change; stop once it has finished.
     refetchInterval: (query) => (query.state.data === undefined || isActive(query.state.data.status) ? 1000 : false),

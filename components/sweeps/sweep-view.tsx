@@ -447,6 +447,11 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
               layers={order.map((position) => layers[position].layer)}
               overlays={(thirdValue) => overlaysFor(specWithValue(sweep.spec, sweep.axes[gridAxis].path, thirdValue), sweep.axes[xAxis].path, sweep.axes[yAxis].path)}
               onCellClick={(thirdIndex, mapIndex) => onOpenCell(layers[order[thirdIndex]].indices[mapIndex])}
+              reasons={order.map((position) => layers[position].reasons)}
+              extraLines={(thirdIndex, mapIndex) => {
+                const line = layers[order[thirdIndex]].dynamics[mapIndex];
+                return line ? [line] : [];
+              }}
             />
           );
         })()
