@@ -12,7 +12,7 @@ import { get, useForm, useWatch, type FieldPath } from "react-hook-form";
 import { Alert, Button, Card, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import type { SceneKind } from "@/lib/physics/types";
-import { AXIS_ONLY_PATHS, CHOICE_PARAMETERS, NUMERIC_PARAMETERS, SCENE_KINDS, SPEC_LIMITS, parametersForScene, type NumericParameter, type SweepableParameter } from "@/lib/sweeps/parameters";
+import { AXIS_ONLY_PATHS, OPTIONAL_SCENE_PATHS, CHOICE_PARAMETERS, NUMERIC_PARAMETERS, SCENE_KINDS, SPEC_LIMITS, parametersForScene, type NumericParameter, type SweepableParameter } from "@/lib/sweeps/parameters";
 import { SPEC_DEFAULT_TOLERANCES, parseSweepSpec, scenarioValue, sweepSpecSchema, type SweepSpecInput } from "@/lib/sweeps/spec";
 import type { Scenario } from "@/lib/physics/types";
 import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
@@ -312,7 +312,7 @@ export function SweepBuilder({
     reset(withTolerances({ ...template.spec, name: "" }));
   };
 
-  const numberField = (path: string, label: string, unit: string, options: { step?: string; integer?: boolean } = {}) => {
+  const numberField = (path: string, label: string, unit: string, options: { step?: string; integer?: boolean; optional?: boolean } = {}) => {
     const id = `spec-${path.replaceAll(".", "-")}`;
     const error = fieldError(path);
     return (
@@ -328,7 +328,7 @@ export function SweepBuilder({
           aria-invalid={error ? true : undefined}
           aria-describedby={error ? `${id}-error` : undefined}
           className={inputClasses}
-          {...register(path as FormPath, { valueAsNumber: true })}
+          {...register(path as FormPath, options.optional ? { setValueAs: (value: unknown) => (value === "" || value === undefined || value === null ? undefined : Number(value)) } : { valueAsNumber: true })}
         />
         <FieldError id={id} message={error} />
       </div>
@@ -401,7 +401,7 @@ export function SweepBuilder({
                 </p>
               ) : null}
               {sceneParameters.map((parameter: NumericParameter) =>
-                numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any" }),
+                numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any", optional: OPTIONAL_SCENE_PATHS.has(parameter.path) }),
               )}
             </div>
           </Card>
