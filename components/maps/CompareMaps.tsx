@@ -24,6 +24,8 @@ export interface CompareSide {
   layer: Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>;
   verdicts?: readonly (Verdict | null | undefined)[];
   reasons?: readonly (string | null | undefined)[];
+  /** Extra hover lines of a cell on this side's map (e.g. its ω·h and rebound). */
+  extraLines?: (index: number) => string[];
 }
 
 export interface CompareMapsProps {
@@ -115,6 +117,7 @@ export function CompareMaps({ x, y, a, b, mode, defaultMode = "side-by-side", on
             scale={prepared.shared}
             verdicts={a.verdicts}
             reasons={a.reasons}
+            extraLines={a.extraLines}
             overlays={overlays}
             height={height}
             showLegend={false}
@@ -129,6 +132,7 @@ export function CompareMaps({ x, y, a, b, mode, defaultMode = "side-by-side", on
             scale={prepared.shared}
             verdicts={b.verdicts}
             reasons={b.reasons}
+            extraLines={b.extraLines}
             overlays={overlays}
             height={height}
             selectedIndex={selectedIndex}

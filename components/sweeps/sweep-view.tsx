@@ -425,8 +425,8 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             <CompareMaps
               x={x}
               y={y}
-              a={{ label: axisValueLabel(compareAxis, aPosition), layer: a.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: a.verdicts, reasons: a.reasons }}
-              b={{ label: axisValueLabel(compareAxis, bPosition), layer: b.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: b.verdicts, reasons: b.reasons }}
+              a={{ label: axisValueLabel(compareAxis, aPosition), layer: a.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: a.verdicts, reasons: a.reasons, extraLines: (mapIndex) => (a.dynamics[mapIndex] ? [a.dynamics[mapIndex] as string] : []) }}
+              b={{ label: axisValueLabel(compareAxis, bPosition), layer: b.layer as Extract<MapLayer, { kind: "metric" } | { kind: "verdict" }>, verdicts: b.verdicts, reasons: b.reasons, extraLines: (mapIndex) => (b.dynamics[mapIndex] ? [b.dynamics[mapIndex] as string] : []) }}
               overlays={overlays}
               onCellClick={(mapIndex) => onOpenCell(a.indices[mapIndex])}
             />
