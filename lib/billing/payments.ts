@@ -44,8 +44,13 @@ async function creditedMs(db: Db, sessionId: string): Promise<number | null> {
 }
 
 /** Reads the session from Stripe, credits it if paid and not yet credited, and says where the payment stands. */
-export async function checkPayment(db: Db, stripe: Stripe, studioId: string, sessionId: string): Promise<PaymentCheck> {
+/** Refuses anything that is not a Checkout session id, before Stripe (or its absence) is consulted. */
+export function assertSessionId(sessionId: string): void {
   if (!SESSION_ID.test(sessionId)) throw new ApiError(400, "validation_failed", "sessionId: must be a Checkout session id (cs_…).", "sessionId");
+}
+
+export async function checkPayment(db: Db, stripe: Stripe, studioId: string, sessionId: string): Promise<PaymentCheck> {
+  assertSessionId(sessionId);
   let session: Stripe.Checkout.Session;
   try {
     session = await stripe.checkout.sessions.retrieve(sessionId, { expand: ["line_items", "payment_intent"] });

@@ -94,6 +94,10 @@ const meAnswer = z.strictObject({ user: publicUserSchema, studios: z.array(studi
 const studiosAnswer = z.strictObject({ studios: z.array(studioOfUserSchema) });
 const createdStudioAnswer = z.strictObject({ studio: studioOfUserSchema });
 const studioAnswer = z.strictObject({ studio: studioViewSchema, role: roleSchema.nullable().describe("The caller's role; null for an API token.") });
+/** GET of one studio: also why and since when it is suspended (null while active), for the members' banner. */
+const studioWithSuspensionAnswer = studioAnswer.extend({
+  suspension: z.strictObject({ reason: z.string(), since: z.iso.datetime() }).nullable().describe("The admin's reason and the time of the suspension; null while the studio is active."),
+});
 const membersAnswer = z.strictObject({ members: z.array(memberViewSchema) });
 const tokensAnswer = z.strictObject({ tokens: z.array(apiTokenViewSchema) });
 const createdTokenAnswer = z.strictObject({
@@ -115,7 +119,7 @@ export const OPERATIONS: readonly Operation[] = [
   // Studios
   { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: USER, ok: 200, response: studiosAnswer },
   { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: USER, ok: 201, body: createStudioSchema, response: createdStudioAnswer },
-  { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: studioAnswer },
+  { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: studioWithSuspensionAnswer },
   { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: membersAnswer },
   { method: "patch", path: `${S}/members/{userId}`, summary: "Change a member's role", tag: "Studios", policy: OWNERS_ONLY, ok: 200, body: changeRoleSchema },
   { method: "delete", path: `${S}/members/{userId}`, summary: "Remove a member", tag: "Studios", policy: OWNERS_ONLY, ok: 200 },
