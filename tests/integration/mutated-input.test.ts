@@ -75,17 +75,20 @@ const MUTATION: fc.Arbitrary<Mutation> = fc.oneof(
 function mutate(valid: unknown, mutations: Mutation[]): unknown {
   let doc: unknown = JSON.parse(JSON.stringify(valid));
   for (const m of mutations) {
+    // A fresh copy per mutation: fast-check may hand the same value object to two mutations, and
+    // adding it inside itself would make the document cyclic (not something JSON can carry).
+    const value = structuredClone(m.value);
     const all = paths(doc);
     const target = all[m.pick % all.length];
     if (m.kind === "replace") {
-      if (target.length === 0) doc = m.value;
-      else setAt(doc, target, m.value);
+      if (target.length === 0) doc = value;
+      else setAt(doc, target, value);
     } else if (m.kind === "remove") {
       if (target.length > 0) removeAt(doc, target);
     } else {
       const container = getAt(doc, target);
-      if (container && typeof container === "object" && !Array.isArray(container)) Object.defineProperty(container, m.key, { value: m.value, enumerable: true, configurable: true, writable: true });
-      else if (Array.isArray(container)) container.push(m.value);
+      if (container && typeof container === "object" && !Array.isArray(container)) Object.defineProperty(container, m.key, { value, enumerable: true, configurable: true, writable: true });
+      else if (Array.isArray(container)) container.push(value);
     }
   }
   return doc;
