@@ -77,7 +77,7 @@ function mutate(valid: unknown, mutations: Mutation[]): unknown {
   for (const m of mutations) {
     // A fresh copy per mutation: fast-check may hand the same value object to two mutations, and
     // adding it inside itself would make the document cyclic (not something JSON can carry).
-    const value = structuredClone(m.value);
+    const value = m.kind === "remove" ? undefined : structuredClone(m.value);
     const all = paths(doc);
     const target = all[m.pick % all.length];
     if (m.kind === "replace") {
