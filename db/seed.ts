@@ -120,19 +120,6 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
   return { studioId, created };
 }
 
-/** The demo studio's id (owned by the demo owner), or null when this database has none. */
-export async function demoStudioId(db: Db): Promise<string | null> {
-  const owner = DEMO_ACCOUNTS.find((a) => a.role === "owner")!;
-  const [row] = await db
-    .select({ id: studios.id })
-    .from(studios)
-    .innerJoin(memberships, eq(memberships.studioId, studios.id))
-    .innerJoin(users, eq(users.id, memberships.userId))
-    .where(and(eq(studios.name, DEMO_STUDIO_NAME), eq(users.email, owner.email), eq(memberships.role, "owner")))
-    .limit(1);
-  return row?.id ?? null;
-}
-
 /** Seeds only into an empty database (no users at all), as KICKDRIFT_DEMO=1 asks. */
 export async function seedDemoIfEmpty(db: Db): Promise<{ seeded: boolean }> {
   const [anyUser] = await db.select({ id: users.id }).from(users).limit(1);

@@ -80,14 +80,5 @@ async function run(): Promise<void> {
     const { seeded } = await seedDemoIfEmpty(db);
     console.log(`[kickdrift] ${seeded ? "demo data seeded" : "database not empty; demo seed skipped"}`);
     console.log(demoSignInText(appBaseUrl()));
-    // The demo's long sweep runs for minutes; it makes way whenever the studio has other work.
-    const { demoStudioId } = await import("./seed");
-    const { demoRunningSweepId } = await import("../lib/demo/results");
-    const studioId = await demoStudioId(db);
-    const sweepId = studioId ? await demoRunningSweepId(db, studioId) : null;
-    if (sweepId) {
-      const { startDemoPacer } = await import("../lib/demo/pacer");
-      startDemoPacer(db, sweepId);
-    }
   }
 }

@@ -128,14 +128,13 @@ function RunningCard({ studioId, sweeps, canRun }: { studioId: string; sweeps: O
       ) : (
         <ul className="space-y-3" data-testid="home-running">
           {sweeps.map((sweep) => (
-            <li key={sweep.id} data-testid="home-running-item">
-              <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="block text-sm font-medium hover:underline" data-testid="home-running-link">
+            <li key={sweep.id}>
+              <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="block text-sm font-medium hover:underline">
                 {sweep.name}
               </Link>
               <Meter value={sweep.cellsDone} max={sweep.cells} label={`${sweep.name}: ${sweep.cellsDone} of ${sweep.cells} cells done`} />
-              <p className="text-xs text-ink-muted" data-testid="home-running-progress">
+              <p className="text-xs text-ink-muted">
                 {sweep.status} · {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} cells
-                {sweep.reason ? ` · ${sweep.reason}` : ""}
               </p>
             </li>
           ))}

@@ -2,9 +2,8 @@
  * The demo studio's work, as a studio that has used Kickdrift for a while would have it: sweeps
  * from the templates and examples, a catalogue check and a snapshot sweep, all submitted through
  * the ordinary queue (submitSweep / submitCheck), so the server's queue runner computes and bills
- * them like any other work. The last one is large enough to run for minutes after start-up, so a
- * visitor finds it running and can watch it finish; while the visitor's own work runs it makes way
- * (lib/demo/pacer.ts). Each is keyed by its name: seeding again adds nothing.
+ * them like any other work. The last one is the largest, so a visitor arriving soon after start-up
+ * finds it running and can watch it finish. Each is keyed by its name: seeding again adds nothing.
  */
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
@@ -21,7 +20,7 @@ import puckyard from "@/examples/puckyard-air-hockey.json";
 
 export interface DemoSweep {
   /** What the sweep shows a visitor. */
-  role: "exploded-cells" | "integrators" | "box-scene" | "tunnelling" | "watch-it-run";
+  role: "exploded-cells" | "integrators" | "box-scene" | "watch-it-run";
   spec: SweepSpecInput;
 }
 
@@ -36,30 +35,6 @@ function longer(spec: SweepSpecInput, durationS: number): SweepSpecInput {
   return { ...spec, scenario: { ...spec.scenario, durationS } } as SweepSpecInput;
 }
 
-/** The sweep still running when a visitor arrives (the studio home's "Running now"). */
-export const DEMO_RUNNING_SWEEP_NAME = "Jellybean Jar at the fill line: stiffness × restitution × drop speed";
-
-/**
- * The sweep left running at start-up: the Jellybean Jar's 60 discs over a fine grid (60 stiffnesses
- * × 8 restitutions × 5 drop speeds = 2,400 cells, each a second of settling). Measured on this
- * project's shared 2-core machine under load: ~0.4 s a cell on one worker thread (idle cores are
- * faster), so the queue takes minutes over it. Chunks stay near the planner's 2 s target, so it
- * makes way for a visitor's sweep within a chunk or two (lib/demo/pacer.ts).
- */
-function runningSweepSpec(): SweepSpecInput {
-  const jar = jellybeanJar as SweepSpecInput;
-  return {
-    ...jar,
-    name: DEMO_RUNNING_SWEEP_NAME,
-    scenario: { ...jar.scenario, durationS: 1 },
-    axes: [
-      { parameter: "contact.stiffness", spacing: "log", from: 1_000, to: 1_000_000, count: 60 },
-      { parameter: "contact.damping.restitution", values: [0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8] },
-      { parameter: "scene.maxSpeedMPerS", values: [0.25, 0.5, 1, 2, 4] },
-    ],
-  } as SweepSpecInput;
-}
-
 /** The demo's sweeps in submission order (the queue runs them first come, first served). */
 export function demoSweeps(): DemoSweep[] {
   return [
@@ -71,17 +46,9 @@ export function demoSweeps(): DemoSweep[] {
     { role: "integrators", spec: puckyard as SweepSpecInput },
     // Jellybean Jar: candy discs settling in a walled box.
     { role: "box-scene", spec: jellybeanJar as SweepSpecInput },
-    // Tunnelling speed × frame step.
-    { role: "tunnelling", spec: template("tunnelling-speed") },
-    // The jar on a fine grid: submitted last and large enough to run for minutes after start-up.
-    { role: "watch-it-run", spec: runningSweepSpec() },
+    // Tunnelling speed × frame step: the largest, submitted last, still running when a visitor arrives.
+    { role: "watch-it-run", spec: template("tunnelling-speed") },
   ];
-}
-
-/** The running demo sweep's id in the studio, or null (not seeded, or another database). */
-export async function demoRunningSweepId(db: Db, studioId: string): Promise<string | null> {
-  const [row] = await db.select({ id: sweeps.id }).from(sweeps).where(and(eq(sweeps.studioId, studioId), eq(sweeps.name, DEMO_RUNNING_SWEEP_NAME))).limit(1);
-  return row?.id ?? null;
 }
 
 async function sweepNamed(db: Db, studioId: string, name: string): Promise<boolean> {

@@ -25,8 +25,6 @@ export interface OverviewSweep {
   id: string;
   name: string;
   status: string;
-  /** Why it waits or stopped (a limit, the demo sweep making way), or null. */
-  reason: string | null;
   cells: number;
   cellsDone: number;
   createdAt: string;
@@ -80,7 +78,6 @@ function sweepRow(row: typeof sweeps.$inferSelect): OverviewSweep {
     id: row.id,
     name: row.name,
     status: row.status,
-    reason: row.reason,
     cells: row.cells,
     cellsDone: row.cellsDone,
     createdAt: row.createdAt.toISOString(),

@@ -1,4 +1,5 @@
 import { expect, test, type Browser, type Locator, type Page } from "@playwright/test";
+import { signInWithPassword } from "./helpers";
 
 // The demo people seeded by KICKDRIFT_DEMO=1 (db/seed.ts); their studio's work is computed by the
 // server's own queue runner just after start-up (lib/demo/results.ts).
@@ -19,38 +20,22 @@ async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: num
 
 /** Signs in and opens the studio from the studio list: the first click lands on the studio home. */
 async function openHome(page: Page, who: keyof typeof PEOPLE): Promise<string> {
-  // As signInWithPassword (helpers.ts), with a longer hang guard: the demo's large sweep keeps the
-  // server's threads busy, and on a loaded machine a sign-in answered in 15 s once took longer.
-  await page.goto("/signin");
-  await page.getByLabel("E-mail", { exact: true }).fill(PEOPLE[who].email);
-  await page.getByLabel("Password", { exact: true }).fill(PEOPLE[who].password);
-  await page.getByRole("button", { name: "Sign in", exact: true }).click();
-  await expect(page).toHaveURL(/\/studios$/, { timeout: 60_000 });
+  await signInWithPassword(page, PEOPLE[who].email, PEOPLE[who].password);
   await page.getByRole("link", { name: STUDIO }).first().click();
   await expect(page.getByTestId("studio-home")).toBeVisible();
   return new URL(page.url()).pathname;
 }
 
-/** The large demo sweep left running for minutes after start-up (lib/demo/results.ts). */
-const RUNNING_SWEEP = "Jellybean Jar at the fill line";
-
-/**
- * The seeded sweeps finish in the background (all but the large one, which runs for minutes); the
- * home polls while any runs. Waits for them (a hang guard).
- */
+/** The seeded sweeps finish in the background; the home polls while any runs. Waits for them (a hang guard). */
 async function waitForSeededWork(page: Page): Promise<void> {
   await expect(async () => {
     await page.reload();
-    // The demo's finished sweeps are done (the card lists the latest of them) and the check has its
-    // pairs at risk. The card renders once the overview has loaded after the reload: wait for a
-    // fifth link rather than count at once.
+    // The demo's six sweeps are done (the card lists the latest of them). The card renders once the
+    // overview has loaded after the reload: wait for a fifth link rather than count at once.
     await expect(page.getByTestId("home-latest-link").nth(4)).toBeAttached({ timeout: 15_000 });
-    await expect(page.getByTestId("home-pairs-at-risk").first()).toBeAttached({ timeout: 2_000 });
-  }).toPass({ timeout: 180_000 });
+    await expect(page.getByTestId("home-running")).toHaveCount(0, { timeout: 2_000 });
+  }).toPass({ timeout: 120_000 });
 }
-
-/** "running · 312 / 2,400 cells" with at least one cell done (the large sweep may be paused for a visitor's work). */
-const RUNNING_PROGRESS = /^(running|paused) · [1-9][\d,]* \/ 2,400 cells/;
 
 test("an engineer lands on the studio home, sees finished sweeps and opens a map with exploded cells in two clicks; the builder takes 60 Hz", async ({ page }) => {
   test.setTimeout(240_000);
@@ -64,19 +49,6 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   await expect(page.getByTestId("home-month-used")).not.toHaveText("0.00 min");
   await expect(page.getByTestId("start-here")).toHaveCount(0);
   await expect(page.getByTestId("results-caution")).toContainText("not a basis for safety-critical engineering");
-  // A sweep still running, with its progress; its own page shows the cells landing.
-  const running = page.getByTestId("home-running-item").filter({ hasText: RUNNING_SWEEP });
-  await expect(running.getByTestId("home-running-progress")).toHaveText(RUNNING_PROGRESS, { timeout: 60_000 });
-  await running.getByTestId("home-running-link").click();
-  // A hang guard for a loaded machine (load average 40 once): the navigation took longer than 15 s.
-  await expect(page).toHaveURL(new RegExp(`${home}/sweeps/[^/]+$`), { timeout: 60_000 });
-  const progress = page.getByTestId("sweep-progress");
-  await expect(progress).toHaveAttribute("aria-valuetext", /^\d+% \([1-9]\d* of 2400 cells\)$/);
-  const firstReading = await progress.getAttribute("aria-valuetext");
-  // Live: the page polls and the count moves on as chunks land (no reload).
-  await expect.poll(() => progress.getAttribute("aria-valuetext"), { timeout: 120_000 }).not.toBe(firstReading);
-  await page.goto(home);
-  await waitForSeededWork(page);
 
   // Second click: a finished sweep whose verdict bar shows exploded cells opens on its map.
   await page.getByTestId("home-latest").getByRole("listitem").filter({ hasText: /Exploded \d/ }).first().getByTestId("home-latest-link").click();
@@ -145,8 +117,7 @@ async function homeShots(browser: Browser, who: keyof typeof PEOPLE): Promise<Pa
 }
 
 test("finance sees the next invoice and usage with data; every role's studio home reads at desktop and phone width", async ({ browser }) => {
-  // A hang guard for a loaded machine: three roles, two widths each, while the demo's large sweep runs.
-  test.setTimeout(480_000);
+  test.setTimeout(240_000);
   const finance = await homeShots(browser, "finance");
   await expect(finance.getByTestId("home-next-invoice")).toHaveText(/^\$\d+\.\d{2}$/);
   await finance.getByRole("link", { name: "Billing and usage →" }).click();
