@@ -79,7 +79,10 @@ test("the demo owner buys a pack on the payment page; a declined card credits no
   await finance.screenshot({ path: test.info().outputPath("invoice-reconciled.png"), fullPage: true });
   const invoiceNumber = (await finance.getByRole("heading", { name: /^Invoice / }).first().innerText()).replace("Invoice ", "");
   const invoiceMailbox = await openMailboxAsAdmin(browser);
-  await expect(invoiceMailbox.page.getByTestId("mail-message").filter({ hasText: `Invoice ${invoiceNumber} for Gannet Yard Games` }).filter({ hasText: FINANCE.email })).toHaveCount(1);
+  // The demo has no overage, so this closed period's invoice is $0.00: it is kept on the Invoices page but
+  // not mailed (issue #19: no $0 invoices in finance's inbox). The mailbox has loaded once a message shows.
+  await expect(invoiceMailbox.page.getByTestId("mail-message").first()).toBeVisible();
+  await expect(invoiceMailbox.page.getByTestId("mail-message").filter({ hasText: `Invoice ${invoiceNumber} for Gannet Yard Games` })).toHaveCount(0);
   await invoiceMailbox.context.close();
   await financeContext.close();
 });
