@@ -129,6 +129,8 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   // --- The exploded cell again, re-run at a quarter of its dt: a new one-cell sweep that runs to the end.
   await page.goto(cellPath);
   await page.getByRole("button", { name: "Re-run at a finer dt" }).click();
+  // A re-run is quoted and confirmed like any sweep (issue #22).
+  await page.getByTestId("confirm-rerun").getByRole("button", { name: "Start the re-run" }).click();
   await expect(page).toHaveURL(new RegExp(`${studioPath}/sweeps/(?!new$)[^/]+$`));
   expect(new URL(page.url()).pathname).not.toBe(sweepPath);
   await expect(page.getByTestId("sweep-progress")).toHaveAttribute("aria-valuenow", "100", { timeout: 60_000 });
