@@ -596,6 +596,12 @@ export function SweepBuilder({
                 Named “{finalName || "Untitled sweep"}”.
               </p>
               <p className="mt-1 text-sm text-ink-muted">
+                {quote.data.cachedCells > 0
+                  ? `${quote.data.cells.toLocaleString("en")} cells, ${quote.data.cachedCells.toLocaleString("en")} already computed by earlier sweeps (not billed again), `
+                  : ""}
+                {quote.data.cachedCells > 0
+                  ? `${quote.data.cells.toLocaleString("en")} cells, ${quote.data.cachedCells.toLocaleString("en")} already computed by earlier sweeps (not billed again); `
+                  : ""}
                 {quote.data.cellsToRun.toLocaleString("en")} cells to run: expected {formatCompute(quote.data.expectedMs)} ({formatPriceCents(quote.data.money.expectedCents)}), at most{" "}
                 {formatCompute(quote.data.ceilingMs)} ({formatPriceCents(quote.data.money.ceilingCents)}). The ceiling is reserved now; the sweep is billed the work its cells do, never more than the ceiling.
               </p>
