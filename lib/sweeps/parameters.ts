@@ -493,9 +493,6 @@ export function formatLimit(value: number): string {
  * Pseudo parameters that only an axis sets (each writes other scene fields); a scenario has no
  * field of that name, so forms must not offer them as scenario fields.
  */
-/** Scene fields a spec may leave out (an empty form field means "not set", not NaN). */
-export const OPTIONAL_SCENE_PATHS: ReadonlySet<string> = new Set(["scene.spinARadPerS", "scene.spinBRadPerS", "scene.spinRadPerS"]);
-
 export const AXIS_ONLY_PATHS: ReadonlySet<string> = new Set(["scene.massRatio", "scene.closingSpeedFraction"]);
 
 /** Read a numeric field of a scenario by its dotted path (the pseudo path scene.massRatio is derived). */

@@ -226,6 +226,18 @@ export const sceneSchema = z.discriminatedUnion("kind", [pairSceneSchema, wallSc
     issue.code === "invalid_union" ? `scene.kind must be one of pair, wall, row, box, snapshot, slope, stack; got ${JSON.stringify(issue.input && (issue.input as { kind?: unknown }).kind) ?? "nothing"}` : undefined,
 });
 
+/**
+ * Scene fields a spec may leave out (an empty form field means "not set", not NaN), read from the
+ * scene schemas themselves so that a new optional field needs no second list.
+ */
+export const OPTIONAL_SCENE_PATHS: ReadonlySet<string> = new Set(
+  sceneSchema.options.flatMap((option) =>
+    Object.entries(option.shape)
+      .filter(([, field]) => field.safeParse(undefined).success)
+      .map(([key]) => `scene.${key}`),
+  ),
+);
+
 const dampingSchema = z.discriminatedUnion(
   "kind",
   [
