@@ -40,14 +40,20 @@ const CONCURRENCY = Number(args.get("concurrency") ?? 4);
 const REQUEST_TIMEOUT_MS = Number(args.get("timeout-ms") ?? 30_000);
 
 /** Prism logs every violation on a line of its own ("Violation: response.body …"), never truncated. */
-const prismLog = { responseViolations: 0, samples: [] as string[], partial: "" };
+const prismLog = { responseViolations: 0, samples: [] as string[], kinds: new Set<string>(), partial: "" };
 function watchPrismLog(chunk: Buffer): void {
   const lines = (prismLog.partial + chunk.toString()).split("\n");
   prismLog.partial = lines.pop() ?? "";
   for (const line of lines) {
     if (!/Violation: response\b/.test(line)) continue;
     prismLog.responseViolations += 1;
-    if (prismLog.samples.length < 10) prismLog.samples.push(line.replace(/\x1b\[[0-9;]*m/g, "").trim().slice(0, 300));
+    const text = line.replace(/\x1b\[[0-9;]*m/g, "").trim();
+    // One sample per distinct message (numbers and ids masked), up to 10.
+    const kind = text.replace(/^.*?Violation:/, "").replace(/[0-9]+/g, "#");
+    if (prismLog.samples.length < 10 && !prismLog.kinds.has(kind)) {
+      prismLog.kinds.add(kind);
+      prismLog.samples.push(text.slice(0, 300));
+    }
   }
 }
 
@@ -355,8 +361,12 @@ async function main(): Promise<void> {
   const stats = { sent: 0, unanswered: 0, fiveXX: 0, headerViolations: 0, truncatedReports: 0, truncatedWithResponse: 0, direct: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
   const covered = new Set<string>();
   const samples: string[] = [];
-  const note = (line: string) => {
-    if (samples.length < 25) samples.push(line);
+  const sampled = new Set<string>();
+  /** Keeps the first sample of each distinct problem (`kind`), so one frequent fault does not hide the others. */
+  const note = (line: string, kind = line) => {
+    if (sampled.has(kind) || samples.length >= 25) return;
+    sampled.add(kind);
+    samples.push(line);
   };
   /**
    * Prism's forwarder drops a JSON body that parses to a falsy value (0, null, false, "") but forwards the
@@ -426,7 +436,8 @@ async function main(): Promise<void> {
     const responseViolations = violations.filter((v) => v.location[0] === "response");
     if (responseViolations.length > 0) {
       stats.headerViolations += 1;
-      note(`contract ${res.status} ${p.method} ${p.url} as ${p.auth.name}: ${responseViolations.map((v) => `${v.location.join(".")} ${v.message}`).join("; ").slice(0, 400)}`);
+      const found = responseViolations.map((v) => `${v.location.join(".")} ${v.message}`).join("; ");
+      note(`contract ${res.status} ${p.method} ${p.url} as ${p.auth.name}: ${found.slice(0, 400)}`, `${p.key} ${res.status} ${found.replace(/[0-9]+/g, "#")}`);
     }
   };
 
