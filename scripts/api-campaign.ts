@@ -358,8 +358,17 @@ async function main(): Promise<void> {
     }
   }
 
+  // Requests that end the callers' state go last: a valid DELETE /me/sessions ends every session of the
+  // owner (valid requests) or the admin (boundary requests), after which every cookie request of theirs
+  // would only meet 401 and no success body would be checked; suspending the studio or removing a member
+  // would do the same to the studio's routes. (Array sort is stable: the rest keep their planned order.)
+  const endsState = new Set(["DELETE /api/v1/me/sessions", "PUT /api/v1/admin/studios/{studioId}/status", "DELETE /api/v1/studios/{studioId}/members/{userId}"]);
+  planned.sort((a, b) => Number(endsState.has(a.key)) - Number(endsState.has(b.key)));
+
   const stats = { sent: 0, unanswered: 0, fiveXX: 0, headerViolations: 0, truncatedReports: 0, truncatedWithResponse: 0, direct: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
   const covered = new Set<string>();
+  /** Operations with at least one 2xx answer through the proxy: their success bodies were checked against the document. */
+  const succeeded = new Set<string>();
   const samples: string[] = [];
   const sampled = new Set<string>();
   /** Keeps the first sample of each distinct problem (`kind`), so one frequent fault does not hide the others. */
@@ -419,6 +428,7 @@ async function main(): Promise<void> {
       }
       return;
     }
+    if (res.status >= 200 && res.status < 300) succeeded.add(p.key);
     // The header lists the request's and the response's violations; Prism replaces a list longer than
     // 8 KiB with "Too many violations! <its first 8 KiB>". Prism's log has every violation whole, and the
     // count below comes from there; the header gives the samples.
@@ -457,6 +467,8 @@ async function main(): Promise<void> {
   for (const line of samples) console.log(`[campaign] ${line}`);
   for (const line of prismLog.samples) console.log(`[campaign] prism: ${line}`);
   const contractViolations = Math.max(loggedResponseViolations, stats.headerViolations);
+  const neverSucceeded = ops.map((op) => `${op.method.toUpperCase()} ${op.path}`).filter((key) => !succeeded.has(key));
+  console.log(`[campaign] success bodies checked on ${succeeded.size}/${ops.length} operations; never answered 2xx: ${neverSucceeded.join(", ") || "none"}`);
   console.log(
     `[campaign] operations covered ${covered.size}/${ops.length}; requests sent ${stats.sent} (valid ${stats.byKind.valid}, boundary ${stats.byKind.boundary}, mutated ${stats.byKind.mutated}; ${stats.direct} with a falsy JSON body sent straight to the app) in ${seconds.toFixed(0)} s, ${CONCURRENCY} at a time, seed ${SEED}; authenticated as ${auths.map((a) => a.name).join(", ")}; 5xx answers ${stats.fiveXX}; unanswered ${stats.unanswered}; contract violations ${contractViolations}; truncated violation reports ${stats.truncatedReports} (with a response violation ${stats.truncatedWithResponse})`,
   );
