@@ -40,14 +40,20 @@ const CONCURRENCY = Number(args.get("concurrency") ?? 4);
 const REQUEST_TIMEOUT_MS = Number(args.get("timeout-ms") ?? 30_000);
 
 /** Prism logs every violation on a line of its own ("Violation: response.body …"), never truncated. */
-const prismLog = { responseViolations: 0, samples: [] as string[], partial: "" };
+const prismLog = { responseViolations: 0, samples: [] as string[], kinds: new Set<string>(), partial: "" };
 function watchPrismLog(chunk: Buffer): void {
   const lines = (prismLog.partial + chunk.toString()).split("\n");
   prismLog.partial = lines.pop() ?? "";
   for (const line of lines) {
     if (!/Violation: response\b/.test(line)) continue;
     prismLog.responseViolations += 1;
-    if (prismLog.samples.length < 10) prismLog.samples.push(line.replace(/\x1b\[[0-9;]*m/g, "").trim().slice(0, 300));
+    const text = line.replace(/\x1b\[[0-9;]*m/g, "").trim();
+    // One sample per distinct message (numbers and ids masked), up to 10.
+    const kind = text.replace(/^.*?Violation:/, "").replace(/[0-9]+/g, "#");
+    if (prismLog.samples.length < 10 && !prismLog.kinds.has(kind)) {
+      prismLog.kinds.add(kind);
+      prismLog.samples.push(text.slice(0, 300));
+    }
   }
 }
 
@@ -352,11 +358,24 @@ async function main(): Promise<void> {
     }
   }
 
+  // Requests that end the callers' state go last: a valid DELETE /me/sessions ends every session of the
+  // owner (valid requests) or the admin (boundary requests), after which every cookie request of theirs
+  // would only meet 401 and no success body would be checked; suspending the studio or removing a member
+  // would do the same to the studio's routes. (Array sort is stable: the rest keep their planned order.)
+  const endsState = new Set(["DELETE /api/v1/me/sessions", "PUT /api/v1/admin/studios/{studioId}/status", "DELETE /api/v1/studios/{studioId}/members/{userId}"]);
+  planned.sort((a, b) => Number(endsState.has(a.key)) - Number(endsState.has(b.key)));
+
   const stats = { sent: 0, unanswered: 0, fiveXX: 0, headerViolations: 0, truncatedReports: 0, truncatedWithResponse: 0, direct: 0, byKind: { valid: 0, boundary: 0, mutated: 0 } as Record<string, number> };
   const covered = new Set<string>();
+  /** Operations with at least one 2xx answer through the proxy: their success bodies were checked against the document. */
+  const succeeded = new Set<string>();
   const samples: string[] = [];
-  const note = (line: string) => {
-    if (samples.length < 25) samples.push(line);
+  const sampled = new Set<string>();
+  /** Keeps the first sample of each distinct problem (`kind`), so one frequent fault does not hide the others. */
+  const note = (line: string, kind = line) => {
+    if (sampled.has(kind) || samples.length >= 25) return;
+    sampled.add(kind);
+    samples.push(line);
   };
   /**
    * Prism's forwarder drops a JSON body that parses to a falsy value (0, null, false, "") but forwards the
@@ -409,6 +428,7 @@ async function main(): Promise<void> {
       }
       return;
     }
+    if (res.status >= 200 && res.status < 300) succeeded.add(p.key);
     // The header lists the request's and the response's violations; Prism replaces a list longer than
     // 8 KiB with "Too many violations! <its first 8 KiB>". Prism's log has every violation whole, and the
     // count below comes from there; the header gives the samples.
@@ -426,7 +446,8 @@ async function main(): Promise<void> {
     const responseViolations = violations.filter((v) => v.location[0] === "response");
     if (responseViolations.length > 0) {
       stats.headerViolations += 1;
-      note(`contract ${res.status} ${p.method} ${p.url} as ${p.auth.name}: ${responseViolations.map((v) => `${v.location.join(".")} ${v.message}`).join("; ").slice(0, 400)}`);
+      const found = responseViolations.map((v) => `${v.location.join(".")} ${v.message}`).join("; ");
+      note(`contract ${res.status} ${p.method} ${p.url} as ${p.auth.name}: ${found.slice(0, 400)}`, `${p.key} ${res.status} ${found.replace(/[0-9]+/g, "#")}`);
     }
   };
 
@@ -446,6 +467,8 @@ async function main(): Promise<void> {
   for (const line of samples) console.log(`[campaign] ${line}`);
   for (const line of prismLog.samples) console.log(`[campaign] prism: ${line}`);
   const contractViolations = Math.max(loggedResponseViolations, stats.headerViolations);
+  const neverSucceeded = ops.map((op) => `${op.method.toUpperCase()} ${op.path}`).filter((key) => !succeeded.has(key));
+  console.log(`[campaign] success bodies checked on ${succeeded.size}/${ops.length} operations; never answered 2xx: ${neverSucceeded.join(", ") || "none"}`);
   console.log(
     `[campaign] operations covered ${covered.size}/${ops.length}; requests sent ${stats.sent} (valid ${stats.byKind.valid}, boundary ${stats.byKind.boundary}, mutated ${stats.byKind.mutated}; ${stats.direct} with a falsy JSON body sent straight to the app) in ${seconds.toFixed(0)} s, ${CONCURRENCY} at a time, seed ${SEED}; authenticated as ${auths.map((a) => a.name).join(", ")}; 5xx answers ${stats.fiveXX}; unanswered ${stats.unanswered}; contract violations ${contractViolations}; truncated violation reports ${stats.truncatedReports} (with a response violation ${stats.truncatedWithResponse})`,
   );

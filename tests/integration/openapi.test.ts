@@ -53,7 +53,42 @@ describe("the OpenAPI document", () => {
   });
 });
 
+type JsonSchema = { $ref?: string; additionalProperties?: unknown; anyOf?: JsonSchema[]; oneOf?: JsonSchema[]; properties?: Record<string, unknown> };
+type Doc = {
+  paths: Record<string, Record<string, { responses: Record<string, { content?: Record<string, { schema: JsonSchema }> }> }>>;
+  components: { schemas: Record<string, JsonSchema> };
+};
+
+/** Every branch of a success schema is an object with its fields listed and no others allowed. */
+function strictBranches(schema: JsonSchema, doc: Doc): boolean {
+  const resolved = schema.$ref ? doc.components.schemas[schema.$ref.replace("#/components/schemas/", "")] : schema;
+  const branches = resolved.anyOf ?? resolved.oneOf;
+  if (branches) return branches.every((branch) => strictBranches(branch, doc));
+  return resolved.additionalProperties === false && resolved.properties !== undefined;
+}
+
 describe("success bodies described field by field", () => {
+  it("every operation has a success schema of its own: strict objects, field by field (not just 'a JSON object')", () => {
+    const doc = buildOpenApiDocument() as unknown as Doc;
+    const generic: string[] = [];
+    for (const op of OPERATIONS) {
+      // The file downloads answer the file exactly as it was uploaded: the user's content, not a shape of ours.
+      if (op.produces === "file") continue;
+      const key = `${op.method.toUpperCase()} ${op.path}`;
+      if (!op.response) {
+        generic.push(`${key} (give it a response schema from lib/api/responses.ts)`);
+        continue;
+      }
+      const json = doc.paths[op.path][op.method].responses[String(op.ok)].content?.["application/json"];
+      expect(json, key).toBeDefined();
+      // The OpenAPI document's own shape is the standard's; every other answer is ours and strict.
+      if (op.path === "/api/v1/openapi.json") continue;
+      if (!strictBranches(json!.schema, doc)) generic.push(`${key} (not a strict object)`);
+    }
+    expect(generic).toEqual([]);
+    expect(doc.components.schemas.Object).toBeUndefined();
+  });
+
   it("match what the routes answer (and refuse a field the document does not list)", async () => {
     const { closeTestDb, useFreshDb } = await import("../helpers/db");
     const { makeStudio, makeToken, makeUser } = await import("../helpers/factories");
@@ -62,15 +97,19 @@ describe("success bodies described field by field", () => {
     await useFreshDb();
     try {
       const owner = await makeUser();
+      const admin = await makeUser({ isAdmin: true });
       const engineer = await makeUser();
       const studioId = await makeStudio("Tidewater Kites", [
         { user: owner, role: "owner" },
         { user: engineer, role: "engineer" },
       ]);
       const cookie = await sessionCookie(owner);
+      const adminCookie = await sessionCookie(admin);
       await makeToken(studioId, ["read"]);
       const S = "/api/v1/studios/{studioId}";
-      const cases: { method: string; path: string; route: string; body?: unknown; bearer?: boolean }[] = [
+      const { puckPairSpec } = await import("../unit/sweeps/fixtures");
+      const A = "/api/v1/admin/studios/{studioId}";
+      const cases: { method: string; path: string; route: string; body?: unknown; admin?: boolean }[] = [
         { method: "GET", path: "/api/v1/me", route: "v1/me" },
         { method: "GET", path: "/api/v1/studios", route: "v1/studios" },
         { method: "POST", path: "/api/v1/studios", route: "v1/studios", body: { name: "Second Kites" } },
@@ -78,12 +117,32 @@ describe("success bodies described field by field", () => {
         { method: "GET", path: `${S}/members`, route: "v1/studios/[studioId]/members" },
         { method: "GET", path: `${S}/tokens`, route: "v1/studios/[studioId]/tokens" },
         { method: "POST", path: `${S}/tokens`, route: "v1/studios/[studioId]/tokens", body: { name: "nightly import", scopes: ["read"] } },
+        { method: "GET", path: `${S}/overview`, route: "v1/studios/[studioId]/overview" },
+        { method: "GET", path: `${S}/invites`, route: "v1/studios/[studioId]/invites" },
+        { method: "GET", path: `${S}/webhooks`, route: "v1/studios/[studioId]/webhooks" },
+        { method: "POST", path: `${S}/quotes`, route: "v1/studios/[studioId]/quotes", body: { spec: puckPairSpec() } },
+        { method: "GET", path: `${S}/sweeps`, route: "v1/studios/[studioId]/sweeps" },
+        { method: "GET", path: `${S}/catalogues`, route: "v1/studios/[studioId]/catalogues" },
+        { method: "GET", path: `${S}/snapshots`, route: "v1/studios/[studioId]/snapshots" },
+        { method: "GET", path: `${S}/billing`, route: "v1/studios/[studioId]/billing" },
+        { method: "GET", path: `${S}/billing/ledger`, route: "v1/studios/[studioId]/billing/ledger" },
+        { method: "GET", path: `${S}/billing/usage`, route: "v1/studios/[studioId]/billing/usage" },
+        { method: "GET", path: `${S}/billing/invoices`, route: "v1/studios/[studioId]/billing/invoices" },
+        { method: "GET", path: "/api/v1/admin/studios", route: "v1/admin/studios", admin: true },
+        { method: "GET", path: A, route: "v1/admin/studios/[studioId]", admin: true },
+        { method: "GET", path: `${A}/quotas`, route: "v1/admin/studios/[studioId]/quotas", admin: true },
+        { method: "POST", path: `${A}/adjustments`, route: "v1/admin/studios/[studioId]/adjustments", admin: true, body: { computeMs: 60_000, reason: "goodwill minute", idempotencyKey: "openapi-test-1" } },
+        { method: "GET", path: `${A}/adjustments`, route: "v1/admin/studios/[studioId]/adjustments", admin: true },
+        { method: "GET", path: "/api/v1/admin/users", route: "v1/admin/users", admin: true },
+        { method: "GET", path: "/api/v1/admin/queue", route: "v1/admin/queue", admin: true },
+        { method: "GET", path: "/api/v1/admin/finance", route: "v1/admin/finance", admin: true },
+        { method: "GET", path: "/api/v1/admin/audit", route: "v1/admin/audit", admin: true },
       ];
       for (const c of cases) {
         const op = OPERATIONS.find((o) => o.path === c.path && o.method === c.method.toLowerCase());
         expect(op?.response, `${c.method} ${c.path} has a success schema`).toBeDefined();
         const handler = (await loadRoute(c.route))[c.method];
-        const res = await call(handler, { method: c.method, path: c.path.replace("{studioId}", studioId), params: { studioId }, cookie, body: c.body });
+        const res = await call(handler, { method: c.method, path: c.path.replace("{studioId}", studioId), params: { studioId }, cookie: c.admin ? adminCookie : cookie, body: c.body });
         expect(res.status, `${c.method} ${c.path}`).toBe(op!.ok);
         const parsed = op!.response!.safeParse(res.body);
         expect(parsed.success, `${c.method} ${c.path}: ${parsed.error?.message}`).toBe(true);
