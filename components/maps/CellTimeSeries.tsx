@@ -2,7 +2,8 @@
 /**
  * Drill-down of one cell: its time series as four synchronised charts (recharts) — momentum along
  * x and along y (each body and the total), kinetic, potential and total energy, and the largest
- * overlap.
+ * overlap — and, in runs with friction, two more: each disc's spin (angular velocity) and the
+ * largest slip speed at a sliding contact.
  *
  * Props:
  * - `series`: the engine's TimeSeries (lib/physics/types.ts), SI units.
@@ -60,12 +61,13 @@ export function timeSeriesProblem(series: TimeSeries): string | null {
     if (problem) return problem;
   }
   for (let b = 0; b < series.bodies.length; b++) {
-    for (const key of ["xM", "yM", "pxNs", "pyNs"] as const) {
-      const problem = check(`series.bodies[${b}].${key}`, series.bodies[b][key]);
+    for (const key of ["xM", "yM", "pxNs", "pyNs", "omegaRadPerS"] as const) {
+      const values = series.bodies[b][key];
+      const problem = values ? check(`series.bodies[${b}].${key}`, values) : null;
       if (problem) return problem;
     }
   }
-  return null;
+  return series.slipMPerS ? check("series.slipMPerS", series.slipMPerS) : null;
 }
 
 /** Non-finite numbers (a run that blew up) become gaps instead of breaking the chart's scale. */
@@ -167,12 +169,29 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
     const thinned = pickSampleIndicesIn(
       window[0],
       window[1],
-      [series.totalPxNs, series.totalPyNs, series.totalJ, series.kineticJ, series.potentialJ, series.maxOverlapM, ...(showBodies ? series.bodies.flatMap((b) => [b.pxNs, b.pyNs]) : [])],
+      [series.totalPxNs, series.totalPyNs, series.totalJ, series.kineticJ, series.potentialJ, series.maxOverlapM, ...(showBodies ? series.bodies.flatMap((b) => [b.pxNs, b.pyNs, ...(b.omegaRadPerS ? [b.omegaRadPerS] : [])]) : []), ...(series.slipMPerS ? [series.slipMPerS] : [])],
       maxPoints,
     );
     const momentum: Row[] = [];
     const energy: Row[] = [];
     const overlap: Row[] = [];
+    // Friction runs: spin per disc (or the largest |ω| of many) and the largest slip speed.
+    const spinning = series.bodies.length > 0 && series.bodies.every((body) => body.omegaRadPerS !== undefined);
+    const spin: Row[] = [];
+    const slip: Row[] = [];
+    for (const i of thinned) {
+      if (spinning) {
+        const row: Row = { t: series.tS[i] };
+        if (showBodies) series.bodies.forEach((body, b) => (row[`w${b}`] = finiteOrNull(body.omegaRadPerS![i])));
+        else {
+          let largest = 0;
+          for (const body of series.bodies) largest = Math.max(largest, Math.abs(body.omegaRadPerS![i]));
+          row.wMax = finiteOrNull(largest);
+        }
+        spin.push(row);
+      }
+      if (series.slipMPerS) slip.push({ t: series.tS[i], slip: finiteOrNull(series.slipMPerS[i]) });
+    }
     for (const i of thinned) {
       const t = series.tS[i];
       const m: Row = { t, totalX: finiteOrNull(series.totalPxNs[i]), totalY: finiteOrNull(series.totalPyNs[i]) };
@@ -193,8 +212,23 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
         : []),
       { key: `total${axis.toUpperCase()}`, label: "Total", colour: "currentColor", dash: "", width: 2.25 },
     ];
+    const spinLines: LineSpec[] = showBodies
+      ? series.bodies.map((_, b) => ({ key: `w${b}`, label: bodyLabels?.[b] ?? `Disc ${b + 1}`, colour: seriesColour(b), dash: seriesDash(b), width: 1.5 }))
+      : [{ key: "wMax", label: "Largest |ω|", colour: "currentColor", dash: "", width: 2 }];
     const inWindow = window[1] - window[0] + 1;
-    return { momentum, energy, overlap, bodyLines, showBodies, hasGaps, thinnedFrom: thinned.length < inWindow ? inWindow : 0, initialEnergy: series.totalJ[0] };
+    return {
+      momentum,
+      energy,
+      overlap,
+      spin: spinning ? spin : null,
+      spinLines,
+      slip: series.slipMPerS ? slip : null,
+      bodyLines,
+      showBodies,
+      hasGaps,
+      thinnedFrom: thinned.length < inWindow ? inWindow : 0,
+      initialEnergy: series.totalJ[0],
+    };
     // eslint-disable-next-line react-hooks/exhaustive-deps -- the window's two numbers, not the tuple's identity
   }, [series, bodyLabels, maxPoints, maxBodyLines, problem, window[0], window[1]]);
 
@@ -275,6 +309,19 @@ export function CellTimeSeries({ series, bodyLabels, overlapLimitM, maxPoints = 
           height={chartHeight}
           reference={overlapLimitM !== undefined && Number.isFinite(overlapLimitM) ? { y: overlapLimitM, label: "deep-overlap limit" } : undefined}
         />
+        {prepared.spin ? (
+          <SeriesChart title="Spin (angular velocity, counter-clockwise positive)" unit="rad/s" rows={prepared.spin} lines={prepared.spinLines} syncId={syncId} height={chartHeight} />
+        ) : null}
+        {prepared.slip ? (
+          <SeriesChart
+            title="Slip speed at a sliding contact (0 while every contact sticks)"
+            unit="m/s"
+            rows={prepared.slip}
+            lines={[{ key: "slip", label: "Largest slip speed", colour: seriesColour(2), dash: "", width: 1.75 }]}
+            syncId={syncId}
+            height={chartHeight}
+          />
+        ) : null}
       </div>
       <p className="text-xs text-ink-muted">
         {!prepared.showBodies && `${series.bodies.length} bodies: momentum charts show the total only. `}

@@ -11,12 +11,31 @@
  * - `walls` (optional): static walls as lines n·p = offset (unit normal towards the free side),
  *   the shape lib/physics/scenes.ts uses.
  * - `bodyLabels` (optional), `height` (CSS px, default 360), `trailSamples` (default 80).
+ *
+ * Runs with friction (series.angleRad / frictionContacts present) also show each disc's rotation as
+ * a mark on its rim, and each contact's friction state at the nearest sample: a filled square where
+ * it sticks, an open triangle where it slides (shape, not colour alone, tells them apart), with a
+ * legend and the counts in words.
  */
 import { useEffect, useId, useLayoutEffect, useMemo, useRef, useState } from "react";
 import type { TimeSeries } from "@/lib/physics/types";
 import { formatPrecise, formatSI } from "@/lib/charts/format";
 import { niceStep } from "@/lib/charts/ticks";
-import { boundsAt, fitView, includeWalls, interpolateAt, sampleAt, trajectoryBounds, typicalContactS, wallSegmentOnCanvas, worldToCanvas, type ReplayWall, type WorldBounds } from "@/lib/charts/replay";
+import {
+  boundsAt,
+  fitView,
+  frictionContactsAt,
+  includeWalls,
+  interpolateAt,
+  nearestSample,
+  sampleAt,
+  trajectoryBounds,
+  typicalContactS,
+  wallSegmentOnCanvas,
+  worldToCanvas,
+  type ReplayWall,
+  type WorldBounds,
+} from "@/lib/charts/replay";
 import { seriesColour } from "@/lib/charts/series-style";
 import { readChrome } from "./render";
 import { inkOn } from "./map-model";
@@ -29,6 +48,37 @@ export interface TrajectoryReplayProps {
   bodyLabels?: readonly string[];
   height?: number;
   trailSamples?: number;
+}
+
+/** Glyph sizes (CSS px) of the stick/slide marks, shared by the canvas and the legend. */
+const CONTACT_MARK_PX = 5;
+
+function drawStickMark(ctx: CanvasRenderingContext2D, x: number, y: number, ink: string): void {
+  ctx.fillStyle = ink;
+  ctx.fillRect(x - CONTACT_MARK_PX, y - CONTACT_MARK_PX, 2 * CONTACT_MARK_PX, 2 * CONTACT_MARK_PX);
+}
+
+function drawSlideMark(ctx: CanvasRenderingContext2D, x: number, y: number, ink: string, surface: string): void {
+  const r = CONTACT_MARK_PX + 1.5;
+  ctx.beginPath();
+  ctx.moveTo(x, y - r);
+  ctx.lineTo(x + r * 0.92, y + r * 0.6);
+  ctx.lineTo(x - r * 0.92, y + r * 0.6);
+  ctx.closePath();
+  ctx.fillStyle = surface;
+  ctx.fill();
+  ctx.lineWidth = 2;
+  ctx.strokeStyle = ink;
+  ctx.stroke();
+}
+
+/** "1 sliding, 2 sticking" at a sample, or null for a run without friction. */
+export function frictionStateText(series: TimeSeries, sample: number): string | null {
+  if (!series.slidingContacts || !series.stickingContacts) return null;
+  const sliding = series.slidingContacts[sample] ?? 0;
+  const sticking = series.stickingContacts[sample] ?? 0;
+  if (sliding === 0 && sticking === 0) return "no friction contact";
+  return `${sliding} sliding, ${sticking} sticking`;
 }
 
 /** How long the whole run takes to play, in wall-clock seconds. */
@@ -193,11 +243,39 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
       ctx.lineWidth = 1.25;
       ctx.strokeStyle = chrome.ink;
       ctx.stroke();
+      // Rotation: a spoke from the centre to a dot on the rim at the disc's angle (the canvas flips y).
+      if (body.angleRad && r >= 4) {
+        const angle = interpolateAt(body.angleRad, at);
+        if (Number.isFinite(angle)) {
+          const rimX = cx + r * Math.cos(angle);
+          const rimY = cy - r * Math.sin(angle);
+          ctx.lineWidth = 2;
+          ctx.beginPath();
+          ctx.moveTo(cx, cy);
+          ctx.lineTo(rimX, rimY);
+          ctx.stroke();
+          ctx.beginPath();
+          ctx.arc(rimX, rimY, Math.max(2, Math.min(4, r / 6)), 0, Math.PI * 2);
+          ctx.fillStyle = chrome.ink;
+          ctx.fill();
+        }
+      }
       if (r >= 10 && series.bodies.length <= 20) {
         ctx.fillStyle = inkOn(seriesColour(b));
         ctx.fillText(String(b + 1), cx, cy);
       }
     });
+
+    // Friction contacts at the nearest sample: sticking ■, sliding △.
+    if (series.frictionContacts) {
+      const sample = nearestSample(at);
+      for (const contact of frictionContactsAt(series.bodies, radiiM, walls, series.frictionContacts[sample] ?? [], sample)) {
+        const [px, py] = worldToCanvas(view, contact.xM, contact.yM);
+        if (!Number.isFinite(px) || !Number.isFinite(py)) continue;
+        if (contact.sliding) drawSlideMark(ctx, px, py, chrome.ink, chrome.surface);
+        else drawStickMark(ctx, px, py, chrome.ink);
+      }
+    }
 
     // Scale bar: a 1-2-5 length near 100 px.
     const barM = niceStep(100 / view.scalePxPerM);
@@ -243,6 +321,8 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
     );
   }
 
+  const frictionState = frictionStateText(series, nearestSample(sampleAt(series.tS, timeS)));
+  const rotating = series.bodies.some((body) => body.angleRad !== undefined);
   const progress = durationS > 0 ? (timeS - startS) / durationS : 0;
   const realTimeFactor = durationS / runSeconds;
   return (
@@ -251,7 +331,7 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
         <canvas
           ref={canvasRef}
           role="img"
-          aria-label={`Trajectory of ${series.bodies.length} ${series.bodies.length === 1 ? "body" : "bodies"} at t = ${formatPrecise(timeS, "s")}`}
+          aria-label={`Trajectory of ${series.bodies.length} ${series.bodies.length === 1 ? "body" : "bodies"} at t = ${formatPrecise(timeS, "s")}${frictionState ? `; friction contacts: ${frictionState}` : ""}`}
           className="block"
           style={{ width: width || "100%", height }}
         />
@@ -328,6 +408,39 @@ export function TrajectoryReplay({ series, radiiM, walls = [], bodyLabels, heigh
           </label>
         ) : null}
       </div>
+      {frictionState !== null || rotating ? (
+        <div className="flex flex-wrap items-center gap-x-4 gap-y-1 text-xs text-ink-muted" data-testid="replay-friction-legend">
+          {rotating ? (
+            <span className="flex items-center gap-1.5">
+              <svg aria-hidden="true" width="16" height="16" viewBox="0 0 16 16" className="text-ink">
+                <circle cx="8" cy="8" r="6.5" fill="none" stroke="currentColor" strokeWidth="1.25" />
+                <line x1="8" y1="8" x2="14" y2="8" stroke="currentColor" strokeWidth="2" />
+                <circle cx="14" cy="8" r="2" fill="currentColor" />
+              </svg>
+              rim mark: the disc&apos;s rotation
+            </span>
+          ) : null}
+          {frictionState !== null ? (
+            <>
+              <span className="flex items-center gap-1.5">
+                <svg aria-hidden="true" width="12" height="12" viewBox="0 0 12 12" className="text-ink">
+                  <rect x="1" y="1" width="10" height="10" fill="currentColor" />
+                </svg>
+                contact sticking (below μ·F_n)
+              </span>
+              <span className="flex items-center gap-1.5">
+                <svg aria-hidden="true" width="14" height="14" viewBox="0 0 14 14" className="text-ink">
+                  <polygon points="7,1 13,11.5 1,11.5" fill="none" stroke="currentColor" strokeWidth="2" />
+                </svg>
+                contact sliding (at μ·F_n)
+              </span>
+              <output className="font-mono" data-testid="replay-friction-state">
+                now: {frictionState}
+              </output>
+            </>
+          ) : null}
+        </div>
+      ) : null}
       {frame.fittedToStart && camera === "whole" && <p className="text-xs text-ink-muted">The bodies fly far apart in this run; the view is fitted to where they started. Pick “Follow the bodies” to keep them in view.</p>}
       {bodyLabels && bodyLabels.length > 0 && (
         <ul className="flex flex-wrap gap-3 text-xs text-ink-muted">

@@ -8,6 +8,7 @@ import { DEFAULT_TOLERANCES } from "@/lib/physics/constants";
 import { reasonForDisplay } from "@/lib/ui/reasons";
 import type { PercentileClip } from "@/lib/charts/normalise";
 import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
+import { SOLID_DISC_INERTIA_FACTOR, slidingAngleDeg } from "@/lib/physics/friction-analytic";
 import type { Metrics, Tolerances, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { FRAME_STEP_PATH } from "@/lib/ui/units";
@@ -251,6 +252,20 @@ export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string):
         y: stiffnessX ? (k) => substeps * dtForStepsPerContactS(k, mass, steps) : (dt) => mass * (Math.PI / (steps * (dt / substeps))) ** 2,
       });
     }
+  }
+  // The sliding angle on a slope: a crate (rotation held) slides once tan θ > μ, a rolling solid disc
+  // slips once tan θ > 3μ (slidingAngleDeg; Kleppner & Kolenkow, An Introduction to Mechanics, 2014, ch. 2 and 7).
+  const scene = spec.scenario.scene;
+  if (scene.kind === "slope" && paths.has("scene.angleDeg") && paths.has("contact.friction.coefficient")) {
+    const crate = (scene.body ?? "disc") === "crate";
+    const inertiaFactor = crate ? Infinity : SOLID_DISC_INERTIA_FACTOR;
+    const factor = crate ? 1 : (1 + SOLID_DISC_INERTIA_FACTOR) / SOLID_DISC_INERTIA_FACTOR;
+    const coefficientX = xPath === "contact.friction.coefficient";
+    overlays.push({
+      label: crate ? "tan θ = μ (sliding angle: slides above)" : "tan θ = 3μ (a rolling disc slips above)",
+      stroke: "dashed",
+      y: coefficientX ? (mu) => slidingAngleDeg(mu, inertiaFactor) : (angleDeg) => Math.tan((angleDeg * Math.PI) / 180) / factor,
+    });
   }
   const thickness = tunnelThicknessM(spec);
   const speedPaths = ["scene.speedMPerS", "scene.speedAMPerS"];

@@ -174,3 +174,58 @@ export function typicalContactS(tS: ArrayLike<number>, overlapM: ArrayLike<numbe
   durations.sort((a, b) => a - b);
   return durations[Math.floor(durations.length / 2)];
 }
+
+/** A friction contact of the replay: where it touches (world m) and whether it slides. */
+export interface ReplayFrictionContact {
+  xM: number;
+  yM: number;
+  sliding: boolean;
+}
+
+/**
+ * The friction contacts of one sample (series.frictionContacts, flat (body, other, sliding)
+ * triples) placed where the bodies touch: between two discs on the line of centres at the first
+ * disc's radius scaled to the gap, on a wall at the foot of the perpendicular from the disc's
+ * centre. Positions are the sample's own (no interpolation: a contact's state belongs to a sample).
+ */
+export function frictionContactsAt(
+  bodies: readonly { xM: ArrayLike<number>; yM: ArrayLike<number> }[],
+  radiiM: readonly number[],
+  walls: readonly ReplayWall[],
+  triples: readonly number[],
+  sample: number,
+): ReplayFrictionContact[] {
+  const out: ReplayFrictionContact[] = [];
+  for (let k = 0; k + 2 < triples.length; k += 3) {
+    const a = triples[k];
+    const b = triples[k + 1];
+    const sliding = triples[k + 2] === 1;
+    const body = bodies[a];
+    if (!body) continue;
+    const ax = body.xM[sample];
+    const ay = body.yM[sample];
+    if (b >= 0) {
+      const other = bodies[b];
+      if (!other) continue;
+      const dx = other.xM[sample] - ax;
+      const dy = other.yM[sample] - ay;
+      const ra = radiiM[a] ?? 0;
+      const rb = radiiM[b] ?? 0;
+      // The point splits the overlap in proportion to the radii (the midpoint for equal discs).
+      const share = ra + rb > 0 ? ra / (ra + rb) : 0.5;
+      out.push({ xM: ax + dx * share, yM: ay + dy * share, sliding });
+    } else {
+      const wall = walls[-1 - b];
+      if (!wall) continue;
+      const distance = wall.normalX * ax + wall.normalY * ay - wall.offsetM;
+      out.push({ xM: ax - distance * wall.normalX, yM: ay - distance * wall.normalY, sliding });
+    }
+    if (!Number.isFinite(out[out.length - 1].xM) || !Number.isFinite(out[out.length - 1].yM)) out.pop();
+  }
+  return out;
+}
+
+/** The sample nearest to (index, fraction): a contact's stick/slide state is not interpolated. */
+export function nearestSample(at: { index: number; fraction: number }): number {
+  return at.fraction >= 0.5 ? at.index + 1 : at.index;
+}

@@ -1047,6 +1047,13 @@ function formatSignedPercent(fraction: number): string {
   return fraction > 0 ? `+${formatPercent(fraction)}` : formatPercent(fraction);
 }
 
+/**
+ * Contacts listed per sample in a friction run's series (the replay's stick/slide marks): enough for
+ * a pile of a few dozen bodies; a larger pile lists the first ones in canonical order (the counts
+ * stay complete), so a 2,000-sample series stays a few megabytes at most.
+ */
+export const SERIES_MAX_CONTACTS = 64;
+
 /** Evenly spaced samples over the run's steps, at most `maxSamples`. */
 class SeriesRecorder {
   readonly series: TimeSeries;
@@ -1066,6 +1073,8 @@ class SeriesRecorder {
     if (frictionField) {
       this.series.slidingContacts = [];
       this.series.stickingContacts = [];
+      this.series.slipMPerS = [];
+      this.series.frictionContacts = [];
     }
   }
 
@@ -1106,8 +1115,13 @@ class SeriesRecorder {
     series.totalPyNs.push(totalPy);
     const kinetic = kineticEnergyJ(bodies) + rotationalEnergyJ(bodies);
     if (this.frictionField && series.slidingContacts && series.stickingContacts) {
-      series.slidingContacts.push(this.frictionField.tangential.slidingContacts);
-      series.stickingContacts.push(this.frictionField.tangential.stickingContacts);
+      const tangential = this.frictionField.tangential;
+      series.slidingContacts.push(tangential.slidingContacts);
+      series.stickingContacts.push(tangential.stickingContacts);
+      series.slipMPerS?.push(tangential.maxSlipMPerS);
+      const contacts: number[] = [];
+      tangential.listContacts(contacts, SERIES_MAX_CONTACTS);
+      series.frictionContacts?.push(contacts);
     }
     const potential = contactPotentialJ + gravityPotentialJ(bodies, gravity);
     series.kineticJ.push(kinetic);

@@ -122,6 +122,16 @@ export class TangentialContacts {
     return this.currentCount;
   }
 
+  /**
+   * Appends the last pass's contacts to `out` as (body, other, sliding) triples in canonical order, at
+   * most `max` of them: other ≥ 0 is a body, other < 0 the wall −1 − other; sliding is 1 or 0. For
+   * the replay's stick/slide marks (called at sample times only, not per step).
+   */
+  listContacts(out: number[], max: number): void {
+    const count = this.currentCount < max ? this.currentCount : max;
+    for (let slot = 0; slot < count; slot++) out.push(this.currentA[slot], this.currentB[slot], this.currentSliding[slot]);
+  }
+
   /** Starts a force pass: the last pass's contacts become the history to read; torques are cleared. */
   beginPass(bodies: Bodies): void {
     const { torque, count } = bodies;

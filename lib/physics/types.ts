@@ -349,9 +349,17 @@ export interface TimeSeries {
   potentialJ: number[];
   totalJ: number[];
   /** Largest overlap among all pairs (m). */
-  maxOverlapM: number[];  /** Runs with friction: contacts sliding and sticking at each sample (the replay's stick/slide state). */
+  maxOverlapM: number[];
+  /** Runs with friction: contacts sliding and sticking at each sample (the replay's stick/slide state). */
   slidingContacts?: number[];
   stickingContacts?: number[];
+  /** Runs with friction: the largest slip speed |v_t| at a sliding contact at each sample (m/s; 0 when none slides). */
+  slipMPerS?: number[];
+  /**
+   * Runs with friction: per sample, the contacts as flat (body, other, sliding) triples, at most
+   * SERIES_MAX_CONTACTS of them: other ≥ 0 is a body, other < 0 the scene's wall −1 − other; sliding 1 or 0.
+   */
+  frictionContacts?: number[][];
 }
 
 export interface RunResult {

@@ -106,9 +106,11 @@ export function withContactTuning(envelope: Envelope, spec: SweepSpec, axes: rea
   const positions = axes.map((_, i) => options.at?.[i] ?? 0);
   const yValues = axes[options.y].values;
   const rows = envelope.rows.map((row, ix) => {
-    if (row.yLimit === null) return { ...row, contact: null };
+    if (row.yLimit === null || row.safeY === null) return { ...row, contact: null };
     positions[options.x] = ix;
-    positions[options.y] = yValues.indexOf(row.yLimit);
+    // The row's last safe cell: the limit itself is on the grid only with margin 0 (with a margin,
+    // indexOf(limit) was −1 and named a wrong cell, or none: a RangeError on a three-axis sweep).
+    positions[options.y] = yValues.indexOf(row.safeY);
     const cell = cellAt(spec, axes, cellIndex(axes, positions));
     return { ...row, contact: scenarioContactTuning(cell.scenario) };
   });

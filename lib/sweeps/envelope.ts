@@ -18,6 +18,7 @@
  */
 import type { Scenario, Verdict } from "../physics/types";
 import { restitutionDamping } from "../physics/damping";
+import { DEFAULT_TANGENTIAL_STIFFNESS_RATIO } from "../physics/constants";
 import { z } from "@/lib/zod";
 import { cellIndex, type ExpandedAxis } from "./grid";
 import { formatNumber, guardFormula, quoteCsvField } from "./results";
@@ -129,8 +130,9 @@ export const ENVELOPE_FORMAT = "kickdrift-envelope";
 /**
  * 2: rows carry safeY and status, the document its sweep, units, rules, tolerances and criterion.
  * 3: `damping`, the damping of the sweep's contacts under both contact-end criteria.
+ * 4: `friction`, the tangential contact settings beside the normal ones (μ, k_t, tangential damping, rolling resistance).
  */
-export const ENVELOPE_FORMAT_VERSION = 3;
+export const ENVELOPE_FORMAT_VERSION = 4;
 /**
  * When the engine ends a contact (and converts a target restitution into damping): when the
  * clamped contact force returns to zero, slightly before the overlap does (Schwager & Pöschel 2007).
@@ -186,6 +188,58 @@ export function envelopeDamping(spec: { scenario: Pick<Scenario, "contact">; axe
   return { kind: "coefficient", values: models.flatMap((model) => sorted.map((value) => ({ model, value, unit: model === "linear" ? "N·s/m" : "N·s/m^1.25" }))) };
 }
 
+/**
+ * The friction of the sweep's contacts as a game engine needs it, beside the normal stiffness and
+ * damping: each setting as the list of values the sweep used (its axis's values, else the spec's one
+ * value, else the engine's default), in ascending order. The tangential spring is a ratio of the
+ * normal stiffness unless the spec gives it in N/m (`stiffnessNPerM`; the ratio is then null).
+ * `none`: frictionless, non-rotating discs (no friction and no rolling resistance anywhere in the sweep).
+ */
+export const envelopeFrictionSchema = z.discriminatedUnion("kind", [
+  z.strictObject({ kind: z.literal("none") }),
+  z.strictObject({
+    kind: z.literal("coulomb"),
+    /** Cundall & Strack 1979: a tangential spring and dashpot capped by μ·F_n. */
+    model: z.literal("cundall-strack"),
+    coefficient: z.array(z.number().min(0)),
+    /** μ_s where the spec gives one (a sticking contact needs more than μ to start sliding); null: μ_s = μ. */
+    staticCoefficient: z.array(z.number().min(0)).nullable(),
+    stiffnessRatio: z.array(z.number().positive()).nullable(),
+    stiffnessNPerM: z.array(z.number().positive()).nullable(),
+    dampingRatio: z.array(z.number().min(0)),
+    /** μ_r, a torque μ_r·R·F_n against rolling (Ai, Chen, Rotter & Ooi 2011); 0 for none. */
+    rollingResistance: z.array(z.number().min(0)),
+  }),
+]);
+
+export type EnvelopeFriction = z.infer<typeof envelopeFrictionSchema>;
+
+/** The friction entry of a sweep's envelope export: each setting's values over the sweep (axes included). */
+export function envelopeFriction(spec: { scenario: Pick<Scenario, "contact"> }, axes: readonly ExpandedAxis[]): EnvelopeFriction {
+  const { friction, rollingResistance } = spec.scenario.contact;
+  const valuesOf = (path: string, fixed: number | undefined): number[] | null => {
+    const axis = axes.find((candidate) => candidate.parameter === path);
+    if (axis) return [...new Set(axis.values as number[])].sort((a, b) => a - b);
+    return fixed === undefined ? null : [fixed];
+  };
+  const coefficient = valuesOf("contact.friction.coefficient", friction?.coefficient) ?? [0];
+  const rolling = valuesOf("contact.rollingResistance", rollingResistance) ?? [0];
+  const staticCoefficient = valuesOf("contact.friction.staticCoefficient", friction?.staticCoefficient);
+  if (coefficient.every((value) => value === 0) && (staticCoefficient ?? [0]).every((value) => value === 0) && rolling.every((value) => value === 0)) return { kind: "none" };
+  const stiffnessNPerM = valuesOf("contact.friction.stiffness", friction?.stiffness);
+  return {
+    kind: "coulomb",
+    model: "cundall-strack",
+    coefficient,
+    staticCoefficient,
+    // A k_t in N/m overrides the ratio (lib/physics/tangential.ts).
+    stiffnessRatio: stiffnessNPerM ? null : (valuesOf("contact.friction.stiffnessRatio", friction?.stiffnessRatio) ?? [DEFAULT_TANGENTIAL_STIFFNESS_RATIO]),
+    stiffnessNPerM,
+    dampingRatio: valuesOf("contact.friction.dampingRatio", friction?.dampingRatio) ?? [0],
+    rollingResistance: rolling,
+  };
+}
+
 /** The published schema of an envelope export (JSON); docs/api.md describes every field. */
 export const envelopeDocumentSchema = z.strictObject({
   format: z.literal(ENVELOPE_FORMAT),
@@ -200,6 +254,7 @@ export const envelopeDocumentSchema = z.strictObject({
   tolerances: z.record(z.string(), z.number()),
   contactEnd: z.literal(CONTACT_END_CRITERION),
   damping: envelopeDampingSchema,
+  friction: envelopeFrictionSchema,
   rows: z.array(
     z.strictObject({
       x: z.union([z.number(), z.string()]),
@@ -223,6 +278,8 @@ export interface EnvelopeExportContext {
   tolerances: Readonly<Record<string, number | undefined>>;
   /** envelopeDamping(spec.scenario, axes). */
   damping: EnvelopeDamping;
+  /** envelopeFriction(spec, axes). */
+  friction: EnvelopeFriction;
 }
 
 export function envelopeDocument(envelope: Envelope, context: EnvelopeExportContext): EnvelopeDocument {
@@ -242,6 +299,7 @@ export function envelopeDocument(envelope: Envelope, context: EnvelopeExportCont
     tolerances,
     contactEnd: CONTACT_END_CRITERION,
     damping: context.damping,
+    friction: context.friction,
     rows: envelope.rows.map((row) => ({ x: row.x, safeY: row.safeY, limit: row.yLimit, status: row.status })),
   };
 }

@@ -109,6 +109,69 @@ export const SWEEP_TEMPLATES: readonly SweepTemplate[] = [
       ],
     },
   },
+  {
+    id: "ramp-creep",
+    title: "Friction that holds a crate on a ramp",
+    question: "How much friction holds a crate on a ramp without creeping, at our 60 Hz frame step, and does a stiffer tangential spring change the answer?",
+    spec: {
+      name: "Tallowmere freight: supply crate on the loading ramp, friction × ramp angle × tangential stiffness",
+      scenario: {
+        scene: { kind: "slope", massKg: 20, radiusM: 0.3, angleDeg: 20, speedMPerS: 0, spinRadPerS: 0, gravityMPerS2: 9.81, body: "crate" },
+        // ω·h = √(k/m)·dt/substeps ≈ 1.0: the normal spring the studio ships, resolved but not by much.
+        contact: {
+          model: "linear",
+          stiffness: 1_150_000,
+          damping: { kind: "restitution", value: 0.2 },
+          friction: { coefficient: 0.5, stiffnessRatio: 2 / 7, dampingRatio: 0.5 },
+        },
+        integrator: "symplectic-euler",
+        dtS: HZ_60_S,
+        substeps: 4,
+        durationS: 2,
+        tolerances: {
+          energyDriftRel: 0.01,
+          maxOverlapFraction: 0.1,
+          blowUpEnergyFactor: 1000,
+          // The crate rests on the ramp from the first step: its first contact is no impact to resolve.
+          minStepsPerContact: 0,
+          // The question is whether the crate walks (creep, a distance); a buzz below 5 cm/s that goes
+          // nowhere is left to the stack template's jitter question.
+          restSpeedMPerS: 0.05,
+        },
+      },
+      axes: [
+        { parameter: "contact.friction.coefficient", spacing: "linear", from: 0.1, to: 1, count: 10 },
+        { parameter: "scene.angleDeg", spacing: "linear", from: 5, to: 45, count: 9 },
+        // 2/7 and 1 bracket common practice; 3 is a tangential spring stiffer than the normal one.
+        { parameter: "contact.friction.stiffnessRatio", values: [2 / 7, 1, 3] },
+      ],
+    },
+  },
+  {
+    id: "stack-settle",
+    title: "Tallest pile that settles",
+    question: "What is the largest stack of chests that settles without jitter or sinking, and which contact stiffness carries it at 60 Hz?",
+    spec: {
+      name: "Gildhollow vault: loot chests piled on the vault floor, pile height × contact stiffness",
+      scenario: {
+        scene: { kind: "stack", count: 10, massKg: 2, radiusM: 0.25, gravityMPerS2: 9.81, perturbationFraction: 0.01 },
+        contact: {
+          model: "linear",
+          stiffness: 100_000,
+          damping: { kind: "restitution", value: 0.3 },
+          friction: { coefficient: 0.5, stiffnessRatio: 2 / 7, dampingRatio: 0.5 },
+        },
+        integrator: "symplectic-euler",
+        dtS: HZ_60_S,
+        substeps: 8,
+        durationS: 3,
+      },
+      axes: [
+        { parameter: "scene.count", spacing: "linear", from: 1, to: 24, count: 24 },
+        { parameter: "contact.stiffness", spacing: "log", from: 10_000, to: 1_000_000, count: 9 },
+      ],
+    },
+  },
 ];
 
 export function findTemplate(id: string): SweepTemplate | undefined {

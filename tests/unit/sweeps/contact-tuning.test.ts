@@ -85,6 +85,21 @@ describe("envelope rows", () => {
     });
     expect(tuned.rows.some((row) => row.contact !== null)).toBe(true);
   });
+
+  it("with a margin, carry the contact of the row's last safe cell (the limit is off the grid), also on a three-axis sweep", () => {
+    // A third axis: the limit's old lookup (indexOf the limit, −1) named the cell before the row's first, outside the grid for row 0.
+    const spec = parseSweepSpec({ ...puckPairSpec(), axes: [...puckPairSpec().axes!, { parameter: "substeps", values: [1, 2] }] });
+    if (!spec.ok) throw new Error(JSON.stringify(spec.issues));
+    const axes = expandAxes(spec.spec);
+    expect(axes.length).toBe(3);
+    const envelope = computeEnvelope({ axes, verdictAt: () => "stable", x: 0, y: 1, margin: 0.2, bound: "max" });
+    const tuned = withContactTuning(envelope, spec.spec, axes, { x: 0, y: 1 });
+    tuned.rows.forEach((row, ix) => {
+      expect(row.yLimit).not.toBe(row.safeY);
+      const iy = axes[1].values.indexOf(row.safeY!);
+      expect(row.contact).toEqual(scenarioContactTuning(cellAt(spec.spec, axes, cellIndex(axes, [ix, iy, 0])).scenario));
+    });
+  });
 });
 
 describe("catalogue pairs and game settings", () => {

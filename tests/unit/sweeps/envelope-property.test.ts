@@ -6,7 +6,7 @@ import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import type { Verdict } from "../../../lib/physics/types";
 import { VERDICTS } from "../../../lib/physics/types";
-import { computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeDocumentSchema } from "../../../lib/sweeps/envelope";
+import { computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeDocumentSchema, envelopeFriction } from "../../../lib/sweeps/envelope";
 import { cellIndex, type ExpandedAxis } from "../../../lib/sweeps/grid";
 
 const NOT_STABLE = VERDICTS.filter((verdict) => verdict !== "stable");
@@ -92,6 +92,8 @@ describe("safe envelope properties", () => {
   it("exports validate against the published schema, in JSON and as CSV with units", () => {
     // A damped linear contact with a target restitution of 0.8 (the damping under both criteria).
     const dampingOfGrid = envelopeDamping({ scenario: { contact: { model: "linear", stiffness: 1e4, damping: { kind: "restitution", value: 0.8 } } }, axes: [] }, []);
+    // Coulomb friction μ 0.4 with a tangential spring of 2/7 of the normal one.
+    const frictionOfGrid = envelopeFriction({ scenario: { contact: { model: "linear", stiffness: 1e4, damping: { kind: "none" }, friction: { coefficient: 0.4, stiffnessRatio: 2 / 7 } } } }, []);
     fc.assert(
       fc.property(grids, fc.string({ maxLength: 40 }), ({ base, noise }, name) => {
         const axes = axesOf(base.xs, base.ys, base.start, base.ratio);
@@ -106,6 +108,7 @@ describe("safe envelope properties", () => {
           verdictRules: 2,
           tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1000, restitutionRel: 0.05 },
           damping: dampingOfGrid,
+          friction: frictionOfGrid,
         });
         // Through JSON and back, as a client receives it.
         const parsed = envelopeDocumentSchema.safeParse(JSON.parse(JSON.stringify(document)));
@@ -116,6 +119,7 @@ describe("safe envelope properties", () => {
         expect(csv).toContain("# verdictRules: 2");
         expect(csv).toContain('# contactEnd: "force-zero"');
         expect(csv).toContain('# damping: {"kind":"restitution","values":[{"model":"linear","restitution":0.8,"forceZero":{"dampingRatio":0.0743');
+        expect(csv).toContain(`# friction: {"kind":"coulomb","model":"cundall-strack","coefficient":[0.4],"staticCoefficient":null,"stiffnessRatio":[${2 / 7}],"stiffnessNPerM":null,"dampingRatio":[0],"rollingResistance":[0]}`);
         expect(csv).toContain(`# margin: ${JSON.stringify(base.margin)}`);
         expect(csv.split("\r\n").filter((line) => line && !line.startsWith("#")).length).toBe(base.xs + 1);
       }),

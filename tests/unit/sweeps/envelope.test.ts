@@ -4,8 +4,10 @@
  */
 import { describe, expect, it } from "vitest";
 import type { Verdict } from "../../../lib/physics/types";
-import { computeEnvelope, EnvelopeInputError } from "../../../lib/sweeps/envelope";
-import { cellIndex, type ExpandedAxis } from "../../../lib/sweeps/grid";
+import { computeEnvelope, envelopeFriction, envelopeFrictionSchema, EnvelopeInputError } from "../../../lib/sweeps/envelope";
+import { cellIndex, expandAxes, type ExpandedAxis } from "../../../lib/sweeps/grid";
+import { parseSweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
+import { findTemplate } from "../../../lib/sweeps/templates";
 
 const axis = (parameter: string, values: (number | string)[]): ExpandedAxis => ({ parameter, label: parameter, unit: "", values });
 
@@ -86,5 +88,39 @@ describe("computeEnvelope", () => {
     expect(failure({ at: [0] })).toBe("at");
     const negative = grid(["sss"], [-1, 0, 1]);
     expect(() => computeEnvelope({ ...negative, x: 0, y: 1, margin: 0.2, bound: "max" })).toThrow(/values ≤ 0/);
+  });
+});
+
+describe("envelopeFriction: the friction settings beside the normal ones", () => {
+  const frictionOf = (input: SweepSpecInput) => {
+    const parsed = parseSweepSpec(input);
+    if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
+    return envelopeFriction(parsed.spec, expandAxes(parsed.spec));
+  };
+
+  it("lists the swept μ and k_t ratios of the ramp template, with the fixed tangential damping and no rolling resistance", () => {
+    const friction = frictionOf(findTemplate("ramp-creep")!.spec);
+    expect(envelopeFrictionSchema.safeParse(friction).success).toBe(true);
+    if (friction.kind !== "coulomb") throw new Error("the ramp template has friction");
+    expect(friction.coefficient).toHaveLength(10);
+    expect(friction.coefficient[0]).toBeCloseTo(0.1, 12);
+    expect(friction.coefficient[9]).toBeCloseTo(1, 12);
+    expect(friction.stiffnessRatio).toEqual([2 / 7, 1, 3]);
+    expect(friction.stiffnessNPerM).toBeNull();
+    expect(friction.staticCoefficient).toBeNull();
+    expect(friction.dampingRatio).toEqual([0.5]);
+    expect(friction.rollingResistance).toEqual([0]);
+  });
+
+  it("says none for a frictionless sweep, and gives k_t in N/m (no ratio) when the spec sets it so", () => {
+    const frictionless = findTemplate("frame-rate-stiffness")!.spec;
+    expect(frictionOf(frictionless)).toEqual({ kind: "none" });
+    const given: SweepSpecInput = {
+      ...frictionless,
+      scenario: { ...frictionless.scenario, contact: { ...frictionless.scenario.contact, friction: { coefficient: 0.3, staticCoefficient: 0.45, stiffness: 5000 }, rollingResistance: 0.02 } },
+      axes: [frictionless.axes![0], { parameter: "contact.rollingResistance", values: [0.05, 0.01] }],
+    };
+    // Default tangential damping 0 (docs/sweep-spec.md); the swept μ_r sorted ascending.
+    expect(frictionOf(given)).toEqual({ kind: "coulomb", model: "cundall-strack", coefficient: [0.3], staticCoefficient: [0.45], stiffnessRatio: null, stiffnessNPerM: [5000], dampingRatio: [0], rollingResistance: [0.01, 0.05] });
   });
 });

@@ -86,6 +86,26 @@ describe("stability map adapter", () => {
     if ("y" in line) expect(line.y(10)).toBeCloseTo(0.02 / 10, 15);
   });
 
+  it("draws the sliding angle tan θ = μ over the ramp template's friction × angle map, either way round", () => {
+    const ramp = findTemplate("ramp-creep")!.spec;
+    const [line] = overlaysFor(ramp, "contact.friction.coefficient", "scene.angleDeg");
+    expect(line.label).toContain("tan θ = μ");
+    // atan 0.5 = 26.565° and atan 1 = 45° (Kleppner & Kolenkow, An Introduction to Mechanics, 2nd ed. 2014, ch. 2).
+    if ("y" in line) {
+      expect(line.y(0.5)).toBeCloseTo(26.565, 3);
+      expect(line.y(1)).toBeCloseTo(45, 10);
+    }
+    const [flipped] = overlaysFor(ramp, "scene.angleDeg", "contact.friction.coefficient");
+    if ("y" in flipped) expect(flipped.y(45)).toBeCloseTo(1, 12);
+    // A disc that can roll slips only past tan θ = 3μ (Kleppner & Kolenkow 2014, ch. 7): atan 1.5 = 56.31° at μ = 0.5.
+    const disc = { ...ramp, scenario: { ...ramp.scenario, scene: { ...ramp.scenario.scene, body: "disc" } } } as SweepSpecInput;
+    const [rolling] = overlaysFor(disc, "contact.friction.coefficient", "scene.angleDeg");
+    expect(rolling.label).toContain("3μ");
+    if ("y" in rolling) expect(rolling.y(0.5)).toBeCloseTo(56.31, 2);
+    // No line where the axes are not slope angle and friction.
+    expect(overlaysFor(ramp, "contact.friction.coefficient", "contact.friction.stiffnessRatio")).toEqual([]);
+  });
+
   it("moves the overlays of each small map with a third axis (the radius of the tunnelling line)", () => {
     const wall = findTemplate("tunnelling-speed")!.spec;
     const [line] = overlaysFor(specWithValue(wall, "scene.radiusM", 0.04), "scene.speedMPerS", "dtS");

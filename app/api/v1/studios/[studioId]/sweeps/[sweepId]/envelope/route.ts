@@ -6,7 +6,7 @@ import { ApiError } from "@/lib/errors";
 import { VERDICTS } from "@/lib/physics/types";
 import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
 import { storedVerdictCodes } from "@/lib/queue/views";
-import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, type EnvelopeBound } from "@/lib/sweeps/envelope";
+import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeFriction, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
 import type { SweepSpec } from "@/lib/sweeps/spec";
@@ -57,6 +57,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
     verdictRules: spec.scenario.verdictRules ?? 1,
     tolerances: spec.scenario.tolerances as unknown as Record<string, number | undefined>,
     damping: envelopeDamping(spec, axes),
+    friction: envelopeFriction(spec, axes),
   });
   // Each row's contact at its limit as natural frequency and damping ratio (lib/sweeps/contact-tuning.ts).
   if (format === "json") return json({ envelope: withContactTuning(envelope, spec, axes, { x, y, at }), document });
