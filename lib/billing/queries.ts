@@ -8,17 +8,23 @@ import { notFound } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
+import { overageHold } from "./overdue";
 import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();
   const quotas = await effectiveQuotas(db, studioId);
+  const hold = await overageHold(db, studioId);
   return {
     balanceMs: await balanceMs(db, studioId),
     lowBalanceMs: LOW_BALANCE_MS,
     packs: CREDIT_PACKS,
     overage: {
+      /** What the studio chose (set by an admin); `held` says an unpaid invoice holds it off for now. */
       allowed: quotas.overageAllowed,
+      held: hold.suspended,
+      graceDays: hold.graceDays,
+      unpaidInvoices: hold.unpaid,
       capMs: quotas.overageCapMs,
       centsPerMinute: OVERAGE_CENTS_PER_MINUTE,
       thisMonthMs: await monthlyOverageMs(db, studioId, now),

@@ -14,6 +14,7 @@ import { effectiveQuotas, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/
 import { billingContacts } from "./catalog";
 import { queueWebhookEvent } from "@/lib/webhooks/webhooks";
 import { lowBalanceMail } from "./mail";
+import { overageHold } from "./overdue";
 import { LOW_BALANCE_MS } from "./packs";
 
 export const METER_EVENT_KIND = "stripe.meter_event";
@@ -35,6 +36,8 @@ export interface ChunkUsage {
   /** The chunk's measured compute, integer ms. */
   computeMs: number;
   memo: string;
+  /** The time the overdue-invoice grace period is judged at; default the database's now(). */
+  at?: Date;
 }
 
 export interface ChunkUsageResult {
@@ -64,7 +67,8 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
   const billable = Math.min(usage.computeMs, Math.max(0, quotas.monthlyComputeMs - usedThisMonth));
   const prepaidMs = Math.min(billable, Math.max(0, balanceBefore));
   let overageMs = 0;
-  if (quotas.overageAllowed && billable > prepaidMs) {
+  // An invoice unpaid past its grace period holds overage off (lib/billing/overdue.ts); the owner's choice stays as it was.
+  if (quotas.overageAllowed && billable > prepaidMs && !(await overageHold(tx, usage.studioId, usage.at)).suspended) {
     const overageSoFar = await monthlyOverageMs(tx, usage.studioId, now);
     overageMs = Math.max(0, Math.min(billable - prepaidMs, quotas.overageCapMs - overageSoFar));
   }

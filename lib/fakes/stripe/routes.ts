@@ -76,6 +76,7 @@ export const ROUTES: Route[] = [
   route("POST", "/v1/invoices/:id/finalize", billing.finalizeInvoice),
   route("POST", "/v1/invoices/:id/pay", billing.payInvoice),
   route("POST", "/v1/invoices/:id/void", billing.voidInvoice),
+  route("POST", "/v1/invoices/:id/mark_uncollectible", billing.markUncollectible),
 
   route("GET", "/v1/events", events.listEvents),
   route("GET", "/v1/events/:id", events.retrieveEvent),

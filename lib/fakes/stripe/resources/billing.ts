@@ -639,7 +639,7 @@ function chargeInvoice(ctx: Ctx, invoice: StripeObject, paymentMethodId: string,
   invoice.attempted = true;
   if (outcome.ok) {
     invoice.default_payment_method = pm.id;
-    markPaid(ctx, invoice, "open");
+    markPaid(ctx, invoice, String(invoice.status));
     return;
   }
   invoice.next_payment_attempt = null;
@@ -721,11 +721,12 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
   params.boolean("off_session");
   params.boolean("forgive");
   if (invoice.status === "paid") throw invalidRequest("Invoice is already paid");
-  if (invoice.status === "void" || invoice.status === "uncollectible") throw invalidRequest(`This invoice is ${String(invoice.status)} and cannot be paid.`);
+  // Stripe: an uncollectible invoice can still be paid (status uncollectible → paid); a void one cannot.
+  if (invoice.status === "void") throw invalidRequest(`This invoice is ${String(invoice.status)} and cannot be paid.`);
   if (invoice.status === "draft") finalizeInvoiceObject(ctx, invoice);
   if (invoice.status === "paid") return { body: invoice };
   if (outOfBand) {
-    markPaid(ctx, invoice, "open");
+    markPaid(ctx, invoice, String(invoice.status));
     return { body: invoice };
   }
   const customer = mustGet(ctx.store, "customers", invoice.customer as string);
@@ -741,11 +742,13 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
 export function voidInvoice(ctx: Ctx, params: Params, id: string): HandlerResult {
   params.allowOnly([]);
   const invoice = mustGet(ctx.store, "invoices", id);
-  if (invoice.status !== "open") throw invalidRequest(`You can only void an open invoice; this one is ${String(invoice.status)}.`);
+  // Stripe: "only possible for open or uncollectible invoices".
+  if (invoice.status !== "open" && invoice.status !== "uncollectible") throw invalidRequest(`You can only void an open or uncollectible invoice; this one is ${String(invoice.status)}.`);
+  const previousStatus = String(invoice.status);
   invoice.status = "void";
   invoice.amount_remaining = 0;
   invoice.status_transitions = { ...(invoice.status_transitions as object), voided_at: ctx.now };
-  ctx.emit("invoice.voided", invoice, { status: "open" });
+  ctx.emit("invoice.voided", invoice, { status: previousStatus });
   return { body: invoice };
 }
 
@@ -785,3 +788,41 @@ export function nextPeriodBoundary(ctx: Ctx, to: number): { sub: StripeObject; e
   return best;
 }
 
+
+/**
+ * POST /v1/invoices/:id/mark_uncollectible (Stripe API reference: "Marking an invoice as uncollectible
+ * is useful for keeping track of bad debts"; no parameters; returns the invoice). Only an open
+ * invoice can be marked; it can still be paid or voided afterwards.
+ */
+export function markUncollectible(ctx: Ctx, params: Params, id: string): HandlerResult {
+  params.allowOnly([]);
+  const invoice = mustGet(ctx.store, "invoices", id);
+  if (invoice.status !== "open") throw invalidRequest(`You can only mark an open invoice as uncollectible; this one is ${String(invoice.status)}.`);
+  invoice.status = "uncollectible";
+  invoice.status_transitions = { ...(invoice.status_transitions as object), marked_uncollectible_at: ctx.now };
+  ctx.emit("invoice.marked_uncollectible", invoice, { status: "open" });
+  return { body: invoice };
+}
+
+/**
+ * invoice.overdue (Stripe's event list: "Occurs X number of days after an invoice becomes due", X set
+ * in the account's automations; the fake uses X = 0): once per invoice still unpaid (open or
+ * uncollectible) whose due_date the fake clock has reached.
+ */
+export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
+  const overdue: StripeObject[] = [];
+  const told = new Set(
+    ctx.store
+      .newestFirst("events")
+      .filter((e) => e.type === "invoice.overdue")
+      .map((e) => ((e.data as { object: { id: string } }).object.id)),
+  );
+  for (const invoice of ctx.store.newestFirst("invoices").reverse()) {
+    const due = invoice.due_date as number | null;
+    if (due === null || due > ctx.now || told.has(invoice.id)) continue;
+    if (invoice.status !== "open" && invoice.status !== "uncollectible") continue;
+    ctx.emit("invoice.overdue", invoice);
+    overdue.push(invoice);
+  }
+  return overdue;
+}
