@@ -523,6 +523,11 @@ export interface InvoiceLineRecord {
   periodEnd: number;
   quantityMs: number;
   amountCents: number;
+  /**
+   * Set on a line that bills one chunk's overage late (its meter event came after its period was
+   * invoiced): the chunk's ledger key; the line's period is the period the usage belongs to.
+   */
+  meterIdentifier?: string;
 }
 
 export type StudioBilling = typeof studioBilling.$inferSelect;

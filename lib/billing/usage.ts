@@ -18,6 +18,8 @@ import { overageHold } from "./overdue";
 import { LOW_BALANCE_MS } from "./packs";
 
 export const METER_EVENT_KIND = "stripe.meter_event";
+/** Metadata key of an invoice item (and its line) that bills one chunk's overage late: the chunk's ledger key. */
+export const LATE_USAGE_METADATA_KEY = "kd_meter_identifier";
 
 export interface MeterEventPayload {
   studioId: string;

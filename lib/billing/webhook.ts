@@ -16,6 +16,7 @@ import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
 import { invoiceFinalizedMail, paymentFailedMail, receiptMail } from "./mail";
+import { LATE_USAGE_METADATA_KEY } from "./usage";
 import { findPack, type CreditPack } from "./packs";
 import { endSubscription, notifyUnpaidInvoice, type UnpaidNotice } from "./overdue";
 import { reportDisputeOpened, syncChargeTakeBacks } from "./refunds";
@@ -280,9 +281,12 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         periodEnd: line.period.end,
         quantityMs: lineQuantityMs(line),
         amountCents: line.amount,
+        ...(line.metadata?.[LATE_USAGE_METADATA_KEY] ? { meterIdentifier: line.metadata[LATE_USAGE_METADATA_KEY] } : {}),
       }));
-      const periodStart = new Date(Math.min(invoice.period_start, ...lines.map((l) => l.periodStart)) * 1000);
-      const periodEnd = new Date(Math.max(invoice.period_end, ...lines.map((l) => l.periodEnd)) * 1000);
+      // The invoice's own period: a late-usage line names an earlier period and does not widen it.
+      const own = lines.filter((l) => !l.meterIdentifier);
+      const periodStart = new Date(Math.min(invoice.period_start, ...own.map((l) => l.periodStart)) * 1000);
+      const periodEnd = new Date(Math.max(invoice.period_end, ...own.map((l) => l.periodEnd)) * 1000);
       const finalizedAtUnix = invoice.status_transitions?.finalized_at ?? null;
       const values = {
         studioId,

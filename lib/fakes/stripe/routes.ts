@@ -69,6 +69,10 @@ export const ROUTES: Route[] = [
   route("POST", "/v1/subscriptions/:id", billing.updateSubscription),
   route("DELETE", "/v1/subscriptions/:id", billing.cancelSubscription),
 
+  route("POST", "/v1/invoiceitems", billing.createInvoiceItem),
+  route("GET", "/v1/invoiceitems", billing.listInvoiceItems),
+  route("GET", "/v1/invoiceitems/:id", billing.retrieveInvoiceItem),
+
   route("POST", "/v1/invoices", billing.createInvoice),
   route("GET", "/v1/invoices", billing.listInvoices),
   route("GET", "/v1/invoices/:id", billing.retrieveInvoice),
