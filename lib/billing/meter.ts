@@ -54,8 +54,8 @@ async function billLate(db: Db, stripe: Stripe, row: OutboxRow, payload: MeterEv
   if (!probedBefore) await markRow(db, row.id, { lateProbe: true });
   try {
     await stripe.billing.meterEvents.create(
-      { event_name: METER_EVENT_NAME, identifier: payload.identifier, timestamp: at, payload: { [METER_CUSTOMER_KEY]: customer, [METER_VALUE_KEY]: String(payload.valueMs) } },
-      { idempotencyKey: `kd-meter-late-${payload.identifier}` },
+      { event_name: METER_EVENT_NAME, identifier: (payload as { meterIdentifier?: string }).meterIdentifier ?? payload.identifier, timestamp: at, payload: { [METER_CUSTOMER_KEY]: customer, [METER_VALUE_KEY]: String(payload.valueMs) } },
+      { idempotencyKey: `kd-meter-late-${(payload as { meterIdentifier?: string }).meterIdentifier ?? payload.identifier}` },
     );
   } catch (error) {
     const invalid = error instanceof Stripe.errors.StripeInvalidRequestError;
@@ -88,6 +88,8 @@ export async function deliverMeterEvent(db: Db, stripe: Stripe, row: OutboxRow):
     throw new PermanentDeliveryError("meter-event payload lacks studioId, identifier, valueMs or timestamp");
   const account = await ensureStudioCustomer(db, stripe, payload.studioId);
   const at = meterTimestamp(payload as MeterEventPayload, account.subscriptionStartedAt);
+  // An admin may have re-keyed it (Admin → Finance): Stripe gets the new identifier; the ledger key stays.
+  const stripeIdentifier = typeof (payload as { meterIdentifier?: unknown }).meterIdentifier === "string" ? (payload as { meterIdentifier: string }).meterIdentifier : payload.identifier;
   try {
     if (account.stripeSubscriptionId) {
       const subscription = await stripe.subscriptions.retrieve(account.stripeSubscriptionId);
@@ -101,11 +103,11 @@ export async function deliverMeterEvent(db: Db, stripe: Stripe, row: OutboxRow):
     await stripe.billing.meterEvents.create(
       {
         event_name: METER_EVENT_NAME,
-        identifier: payload.identifier,
+        identifier: stripeIdentifier,
         timestamp: at,
         payload: { [METER_CUSTOMER_KEY]: account.stripeCustomerId, [METER_VALUE_KEY]: String(payload.valueMs) },
       },
-      { idempotencyKey: `kd-meter-${payload.identifier}` },
+      { idempotencyKey: `kd-meter-${stripeIdentifier}` },
     );
   } catch (error) {
     // Stripe already holds an event with this identifier (an earlier attempt got through): it counts once.

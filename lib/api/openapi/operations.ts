@@ -14,6 +14,7 @@ import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
 import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
+import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
@@ -182,7 +183,8 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200 },
   { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema },
   { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema },
-  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good", tag: "Admin", policy: ADMIN, ok: 200 },
+  { method: "post", path: "/api/v1/admin/finance/meter-events/{outboxId}/retry", summary: "Queue a failed meter event again, as it was or under a new Stripe identifier (audited; 202 queued, 200 unchanged)", tag: "Admin", policy: ADMIN, ok: 202, body: meterRetrySchema },
   { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: ADMIN, ok: 200 },
   // The document itself
   { method: "get", path: "/api/v1/openapi.json", summary: "This OpenAPI document", tag: "Reference", policy: PUBLIC, ok: 200 },
