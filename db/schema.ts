@@ -475,6 +475,8 @@ export const studioBilling = pgTable("studio_billing", {
   stripeSubscriptionId: text("stripe_subscription_id"),
   /** Start of the subscription's first period: overage metered earlier counts from here. */
   subscriptionStartedAt: ts("subscription_started_at"),
+  /** The last overage subscription that ended (customer.subscription.deleted): the next one is made under a new idempotency key. */
+  endedSubscriptionId: text("ended_subscription_id"),
   createdAt: createdAt(),
 });
 
@@ -505,6 +507,8 @@ export const invoices = pgTable(
     totalCents: integer("total_cents").notNull().default(0),
     lines: jsonb("lines").$type<InvoiceLineRecord[]>().notNull().default([]),
     finalizedAt: ts("finalized_at"),
+    /** When payment is due (Stripe's due_date); an unpaid invoice past it plus the grace period switches overage off. */
+    dueAt: ts("due_at"),
     createdAt: createdAt(),
     updatedAt: timestamp("updated_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),
   },
@@ -519,6 +523,11 @@ export interface InvoiceLineRecord {
   periodEnd: number;
   quantityMs: number;
   amountCents: number;
+  /**
+   * Set on a line that bills one chunk's overage late (its meter event came after its period was
+   * invoiced): the chunk's ledger key; the line's period is the period the usage belongs to.
+   */
+  meterIdentifier?: string;
 }
 
 export type StudioBilling = typeof studioBilling.$inferSelect;

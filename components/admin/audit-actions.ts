@@ -17,4 +17,6 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "invite.withdraw": "Invitation withdrawn",
   "invite.accept": "Invitation accepted",
   "payment.refund": "Refund issued",
+  "meter_event.retry": "Meter event retried",
+  "meter_event.rekey": "Meter event re-keyed",
 };

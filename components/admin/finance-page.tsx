@@ -7,10 +7,12 @@ import { formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "@/components/
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
 import { AdminNav } from "./admin-nav";
+import { FailedMeterEvents, type FailedMeterEventView } from "./failed-meter-events";
 
 type Finance = {
   periods: { studioId: string; studioName: string; invoiceId: string; number: string | null; status: string; periodStart: string; periodEnd: string; ledgerMs: number; meteredMs: number; invoicedMs: number; totalCents: number; reconciled: boolean }[];
   revenueByMonth: { month: string; packCents: number; overageCents: number }[];
+  failedMeterEvents: FailedMeterEventView[];
 };
 
 export function FinancePage() {
@@ -79,6 +81,7 @@ export function FinancePage() {
               </div>
             )}
           </Card>
+          <FailedMeterEvents events={finance.data.failedMeterEvents} />
         </div>
       )}
     </div>

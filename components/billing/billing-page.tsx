@@ -9,6 +9,7 @@ import type { CreditPack } from "@/lib/billing/packs";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
+import { OVERAGE_DAYS_UNTIL_DUE } from "@/lib/billing/packs";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
 import { formatCompute } from "@/lib/billing/format";
 import { METERING_NOTE } from "@/lib/sweeps/metering-rate";
@@ -17,7 +18,15 @@ type Summary = {
   balanceMs: number;
   lowBalanceMs: number;
   packs: CreditPack[];
-  overage: { allowed: boolean; capMs: number; centsPerMinute: number; thisMonthMs: number };
+  overage: {
+    allowed: boolean;
+    held: boolean;
+    graceDays: number;
+    unpaidInvoices: { id: string; number: string | null; status: string; totalCents: number; dueAt: string; overageOffAt: string; overdue: boolean; overageOff: boolean }[];
+    capMs: number;
+    centsPerMinute: number;
+    thisMonthMs: number;
+  };
   month: { key: string; usedMs: number; capMs: number };
 };
 type LedgerEntry = { id: number; kind: string; computeMs: number; overageMs: number; amountCents: number; sweepId: string | null; chunkIndex: number | null; memo: string; createdAt: string };
@@ -97,10 +106,29 @@ export function BillingPage({ studioId, studioName, role, checkout, sessionId }:
                 <p className="text-ink-muted">
                   Used in {summary.data.month.key}: {formatMinutes(summary.data.month.usedMs)} of {formatMinutes(summary.data.month.capMs)} minutes.
                 </p>
+                {summary.data.overage.unpaidInvoices.map((inv) => (
+                  <Alert key={inv.id} tone={inv.overdue ? undefined : "info"}>
+                    <span data-testid="unpaid-invoice">
+                      Invoice {inv.number ?? inv.id} ({formatPriceCents(inv.totalCents)}) {inv.overdue ? "is overdue" : "is unpaid"}: due {formatDateTime(inv.dueAt)}.{" "}
+                      {inv.overageOff
+                        ? "Overage is switched off until it is paid."
+                        : `If it is still unpaid on ${formatDateTime(inv.overageOffAt)}, overage is switched off until it is paid.`}{" "}
+                      <a className="underline" href={`/studios/${encodeURIComponent(studioId)}/invoices/${encodeURIComponent(inv.id)}`}>
+                        Open the invoice
+                      </a>
+                    </span>
+                  </Alert>
+                ))}
                 <p className="text-ink-muted" data-testid="overage-status">
-                  {summary.data.overage.allowed
+                  {summary.data.overage.allowed && summary.data.overage.held
+                    ? "Overage is switched off while an invoice is unpaid past its grace period: sweeps pause at zero balance. Paying the invoice switches it back on."
+                    : summary.data.overage.allowed
                     ? `Overage allowed: past the balance, compute is invoiced monthly at ${formatPriceCents(summary.data.overage.centsPerMinute)} a minute (this month ${formatMinutes(summary.data.overage.thisMonthMs)} of ${formatMinutes(summary.data.overage.capMs)} minutes).`
                     : "Overage is off: sweeps pause with “out of minutes” at zero and resume after a top-up."}
+                </p>
+                <p className="text-xs text-ink-muted" data-testid="overdue-terms">
+                  Terms: overage invoices are due {OVERAGE_DAYS_UNTIL_DUE} days after they are issued. An invoice still unpaid {summary.data.overage.graceDays} days after its due date switches overage off
+                  until it is paid; prepaid minutes keep working. Owners and finance are e-mailed when a payment fails or an invoice is overdue.
                 </p>
               </div>
             )}

@@ -6,7 +6,8 @@
  */
 import type { output, ZodType } from "zod";
 import type { listAudit } from "@/lib/audit/audit";
-import type { platformFinance, invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";
+import type { invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";
+import type { financeView, retryMeterEvent } from "@/lib/billing/finance-ops";
 import type { adminQueue, adjustCredit, adminStudioDetail, listAdjustments, studioQuotaView, updateQuotas, setStudioStatus, adminStudioList, setPlatformRole } from "@/lib/quotas/admin";
 import type { adminRefund } from "@/lib/billing/refunds";
 import type { allUsers } from "@/lib/studios/studios";
@@ -103,7 +104,8 @@ type Status = Jsonify<{ studio: { id: string; status: R<typeof setStudioStatus> 
 type Users = Jsonify<{ users: R<typeof allUsers> }>;
 type UserPatch = Jsonify<{ user: R<typeof setPlatformRole> }>;
 type Audit = Jsonify<{ entries: R<typeof listAudit> }>;
-type Finance = Jsonify<R<typeof platformFinance>>;
+type Finance = Jsonify<R<typeof financeView>>;
+type MeterRetry = Jsonify<R<typeof retryMeterEvent>>;
 type Queue = Jsonify<{ sweeps: R<typeof adminQueue> }>;
 
 /** One cell as the route builds it (stored result or null while not computed, plus the series run again). */
@@ -166,6 +168,7 @@ export interface ResponseTies {
   userPatch: [LibFitsSchema<UserPatch, Out<typeof A.userPatchAnswer>>, SchemaFitsLib<Out<typeof A.userPatchAnswer>, UserPatch>];
   audit: [LibFitsSchema<Audit, Out<typeof A.auditAnswer>>, SchemaFitsLib<Out<typeof A.auditAnswer>, Audit>];
   finance: [LibFitsSchema<Finance, Out<typeof B.financeAnswer>>, SchemaFitsLib<Out<typeof B.financeAnswer>, Finance>];
+  meterRetry: [LibFitsSchema<MeterRetry, Out<typeof B.meterRetryAnswer>>, SchemaFitsLib<Out<typeof B.meterRetryAnswer>, MeterRetry>];
   queue: [LibFitsSchema<Queue, Out<typeof A.queueAnswer>>, SchemaFitsLib<Out<typeof A.queueAnswer>, Queue>];
   // One way only: every metric is a number in the lib's type, but a non-finite one is sent as null
   // (lib/queue/views.ts apiMetrics), so the schema accepts more than the type says.

@@ -26,6 +26,8 @@ export const AUDIT_ACTIONS = [
   "invite.withdraw",
   "invite.accept",
   "payment.refund",
+  "meter_event.retry",
+  "meter_event.rekey",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

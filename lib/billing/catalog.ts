@@ -7,7 +7,7 @@ import { and, eq } from "drizzle-orm";
 import Stripe from "stripe";
 import type { DbOrTx } from "@/db/client";
 import { memberships, studioBilling, studios, users, type StudioBilling } from "@/db/schema";
-import { CREDIT_PACKS, OVERAGE_UNIT_AMOUNT_DECIMAL } from "./packs";
+import { CREDIT_PACKS, OVERAGE_DAYS_UNTIL_DUE, OVERAGE_UNIT_AMOUNT_DECIMAL } from "./packs";
 
 export const METER_EVENT_NAME = "kickdrift_overage_ms";
 export const METER_CUSTOMER_KEY = "stripe_customer_id";
@@ -127,15 +127,17 @@ export async function ensureStudioCustomer(db: DbOrTx, stripe: Stripe, studioId:
       customer: customerId,
       items: [{ price: catalog.overagePriceId }],
       collection_method: "send_invoice",
-      days_until_due: 30,
+      days_until_due: OVERAGE_DAYS_UNTIL_DUE,
       metadata: { studio_id: studioId },
     },
-    { idempotencyKey: `kd-subscription-${studioId}` },
+    // After a subscription ended (customer.subscription.deleted) the replacement needs its own key, or Stripe would answer with the ended one.
+    { idempotencyKey: row?.endedSubscriptionId ? `kd-subscription-${studioId}-after-${row.endedSubscriptionId}` : `kd-subscription-${studioId}` },
   );
   const startedAt = new Date((subscription.items.data[0]?.current_period_start ?? subscription.start_date) * 1000);
   const [updated] = await db
     .update(studioBilling)
-    .set({ stripeSubscriptionId: subscription.id, subscriptionStartedAt: startedAt })
+    // The first subscription's start stays: it dates the first metered usage the issued invoices are reconciled from.
+    .set({ stripeSubscriptionId: subscription.id, subscriptionStartedAt: row?.subscriptionStartedAt ?? startedAt })
     .where(eq(studioBilling.studioId, studioId))
     .returning();
   return updated;

@@ -90,3 +90,41 @@ export function disputeMail(input: { studioId: string; studioName: string; amoun
         { label: "Open billing", url: billingUrl(input.studioId) },
       );
 }
+
+const NOTICE_HEADLINE = { payment_failed: "Payment failed", overdue: "Overdue", uncollectible: "Unpaid" } as const;
+
+export function invoicePaymentDueMail(input: {
+  studioId: string;
+  studioName: string;
+  number: string;
+  amountCents: number;
+  notice: keyof typeof NOTICE_HEADLINE;
+  dueAt: Date | null;
+  overageOffAt: Date | null;
+  graceDays: number;
+  /** The pay link, given the Billing page's URL to fall back on. */
+  payUrl: (billingPageUrl: string) => string;
+}): MailContent {
+  const day = (d: Date) => d.toISOString().slice(0, 10);
+  const what =
+    input.notice === "payment_failed"
+      ? `The payment of invoice ${input.number} (${formatPriceCents(input.amountCents)}) did not go through.`
+      : input.notice === "overdue"
+        ? `Invoice ${input.number} (${formatPriceCents(input.amountCents)}) is past its due date${input.dueAt ? ` of ${day(input.dueAt)}` : ""}.`
+        : `Invoice ${input.number} (${formatPriceCents(input.amountCents)}) is still unpaid and has been marked uncollectible.`;
+  const consequence = input.overageOffAt
+    ? `If it is still unpaid on ${day(input.overageOffAt)} (UTC, ${input.graceDays} days after the due date), overage is switched off for ${input.studioName} until it is paid; prepaid minutes keep working.`
+    : `Overage is switched off ${input.graceDays} days after the due date if the invoice is still unpaid; prepaid minutes keep working.`;
+  return message(`${NOTICE_HEADLINE[input.notice]}: invoice ${input.number} for ${input.studioName}, ${formatPriceCents(input.amountCents)}`, [what, consequence, "Paying it switches overage back on as the studio had it."], {
+    label: "Pay the invoice",
+    url: input.payUrl(billingUrl(input.studioId)),
+  });
+}
+
+export function subscriptionEndedMail(input: { studioId: string; studioName: string }): MailContent {
+  return message(
+    `Overage billing for ${input.studioName} was cancelled`,
+    [`The overage subscription of ${input.studioName} was cancelled at the payment provider. Invoices already issued stay payable; if overage is allowed, the next overage starts a new subscription.`],
+    { label: "Open billing", url: billingUrl(input.studioId) },
+  );
+}

@@ -60,3 +60,12 @@ export const LOW_BALANCE_MS = 10 * 60_000;
 export function findPack(id: string): CreditPack | undefined {
   return CREDIT_PACKS.find((pack) => pack.id === id);
 }
+
+/**
+ * Days after an overage invoice's due date that overage stays on while it is unpaid; then it is held
+ * off until the invoice is paid (lib/billing/overdue.ts; stated in the Billing page's terms).
+ */
+export const OVERDUE_GRACE_DAYS = 14;
+
+/** Days an overage invoice gives to pay it (the subscription's days_until_due). */
+export const OVERAGE_DAYS_UNTIL_DUE = 30;

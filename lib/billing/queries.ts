@@ -8,17 +8,23 @@ import { notFound } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
+import { overageHold } from "./overdue";
 import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();
   const quotas = await effectiveQuotas(db, studioId);
+  const hold = await overageHold(db, studioId);
   return {
     balanceMs: await balanceMs(db, studioId),
     lowBalanceMs: LOW_BALANCE_MS,
     packs: CREDIT_PACKS,
     overage: {
+      /** What the studio chose (set by an admin); `held` says an unpaid invoice holds it off for now. */
       allowed: quotas.overageAllowed,
+      held: hold.suspended,
+      graceDays: hold.graceDays,
+      unpaidInvoices: hold.unpaid,
       capMs: quotas.overageCapMs,
       centsPerMinute: OVERAGE_CENTS_PER_MINUTE,
       thisMonthMs: await monthlyOverageMs(db, studioId, now),
@@ -146,10 +152,10 @@ export async function listInvoices(db: DbOrTx, studioId: string) {
  * Overage usage entries of a studio whose time falls in [start, end): an entry's time is when it was
  * written, or the start of the studio's overage subscription if later (meter events use the same rule).
  */
-async function overageEntriesIn(db: DbOrTx, studioId: string, start: Date, end: Date, subscriptionStartedAt: Date | null) {
+async function overageEntriesIn(db: DbOrTx, studioId: string, start: Date, end: Date, subscriptionStartedAt: Date | null, billedLate: ReadonlySet<string>) {
   const at = subscriptionStartedAt ? sql`greatest(${ledgerEntries.createdAt}, ${subscriptionStartedAt.toISOString()}::timestamptz)` : sql`${ledgerEntries.createdAt}`;
-  return db
-    .select({ id: ledgerEntries.id, sweepId: ledgerEntries.sweepId, chunkIndex: ledgerEntries.chunkIndex, overageMs: ledgerEntries.overageMs, createdAt: ledgerEntries.createdAt })
+  const rows = await db
+    .select({ id: ledgerEntries.id, key: ledgerEntries.idempotencyKey, sweepId: ledgerEntries.sweepId, chunkIndex: ledgerEntries.chunkIndex, overageMs: ledgerEntries.overageMs, createdAt: ledgerEntries.createdAt })
     .from(ledgerEntries)
     .where(
       and(
@@ -161,6 +167,24 @@ async function overageEntriesIn(db: DbOrTx, studioId: string, start: Date, end: 
       ),
     )
     .orderBy(asc(ledgerEntries.createdAt), asc(ledgerEntries.id));
+  // Usage billed late sits on the later invoice's own line, not on its period's.
+  return rows.filter((r) => !billedLate.has(r.key)).map(({ key: _key, ...rest }) => rest);
+}
+
+/** The overage entry a late-usage line bills (its ledger key), as a one-element list. */
+async function lateEntry(db: DbOrTx, studioId: string, key: string) {
+  return db
+    .select({ id: ledgerEntries.id, sweepId: ledgerEntries.sweepId, chunkIndex: ledgerEntries.chunkIndex, overageMs: ledgerEntries.overageMs, createdAt: ledgerEntries.createdAt })
+    .from(ledgerEntries)
+    .where(and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "usage"), eq(ledgerEntries.idempotencyKey, key)));
+}
+
+/** Ledger keys of a studio's usage billed on late-usage lines of its invoices (void invoices bill nothing). */
+async function lateBilledKeys(db: DbOrTx, studioId: string): Promise<Set<string>> {
+  const rows = await db.select({ lines: invoices.lines, status: invoices.status }).from(invoices).where(eq(invoices.studioId, studioId));
+  const keys = new Set<string>();
+  for (const r of rows) if (r.status !== "void") for (const line of r.lines) if (line.meterIdentifier) keys.add(line.meterIdentifier);
+  return keys;
 }
 
 /** One invoice with each line reconciled against the ledger's overage entries of the line's period. */
@@ -169,8 +193,11 @@ export async function invoiceDetail(db: DbOrTx, studioId: string, invoiceId: str
   if (!row) throw notFound("Invoice");
   const [account] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
   const lines = [];
+  const billedLate = await lateBilledKeys(db, studioId);
   for (const line of row.lines) {
-    const entries = await overageEntriesIn(db, studioId, new Date(line.periodStart * 1000), new Date(line.periodEnd * 1000), account?.subscriptionStartedAt ?? null);
+    const entries = line.meterIdentifier
+      ? await lateEntry(db, studioId, line.meterIdentifier)
+      : await overageEntriesIn(db, studioId, new Date(line.periodStart * 1000), new Date(line.periodEnd * 1000), account?.subscriptionStartedAt ?? null, billedLate);
     const ledgerMs = entries.reduce((sum, e) => sum + e.overageMs, 0);
     lines.push({
       ...line,
@@ -194,7 +221,17 @@ async function deliveredMeterMs(db: DbOrTx, studioId: string, start: number, end
   const [row] = await db
     .select({ total: sql<string | null>`coalesce(sum((${outbox.payload}->>'valueMs')::bigint), 0)` })
     .from(outbox)
-    .where(and(eq(outbox.studioId, studioId), eq(outbox.kind, METER_EVENT_KIND), eq(outbox.status, "delivered"), sql`${at} >= ${start}`, sql`${at} < ${end}`));
+    // Late usage went to an invoice item, not the meter (it is counted on its own line: lateMeterMs).
+    .where(and(eq(outbox.studioId, studioId), eq(outbox.kind, METER_EVENT_KIND), eq(outbox.status, "delivered"), sql`${outbox.payload}->>'lateInvoiceItem' is null`, sql`${at} >= ${start}`, sql`${at} < ${end}`));
+  return Number(row?.total ?? 0);
+}
+
+/** Overage of one chunk delivered to Stripe late, as an invoice item (its outbox row, by ledger key). */
+async function lateMeterMs(db: DbOrTx, studioId: string, identifier: string): Promise<number> {
+  const [row] = await db
+    .select({ total: sql<string | null>`coalesce(sum((${outbox.payload}->>'valueMs')::bigint), 0)` })
+    .from(outbox)
+    .where(and(eq(outbox.studioId, studioId), eq(outbox.kind, METER_EVENT_KIND), eq(outbox.status, "delivered"), sql`${outbox.payload}->>'identifier' = ${identifier}`, sql`${outbox.payload}->>'lateInvoiceItem' is not null`));
   return Number(row?.total ?? 0);
 }
 
@@ -209,7 +246,7 @@ export async function platformFinance(db: DbOrTx) {
     const detail = await invoiceDetail(db, invoice.studioId, invoice.id);
     const ledgerMs = detail.lines.reduce((s, l) => s + l.ledgerMs, 0);
     let meteredMs = 0;
-    for (const line of invoice.lines) meteredMs += await deliveredMeterMs(db, invoice.studioId, line.periodStart, line.periodEnd);
+    for (const line of invoice.lines) meteredMs += line.meterIdentifier ? await lateMeterMs(db, invoice.studioId, line.meterIdentifier) : await deliveredMeterMs(db, invoice.studioId, line.periodStart, line.periodEnd);
     periods.push({
       studioId: invoice.studioId,
       studioName,

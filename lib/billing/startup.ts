@@ -5,6 +5,7 @@ import { dataDir } from "@/db/client";
 import { appBaseUrl } from "@/lib/auth/config";
 import { ensureCatalog } from "./catalog";
 import { registerMeterEventHandler } from "./meter";
+import { startFinanceReconcile } from "./finance-ops";
 import { startCheckoutReconcile } from "./payments";
 import { billingConfig, configureBilling, fakeStripeClient, stripeFakePort, usesStripeFake } from "./stripe";
 import { HANDLED_EVENT_TYPES } from "./webhook";
@@ -17,6 +18,7 @@ export async function startBilling(db: Db): Promise<string> {
     const config = billingConfig();
     await ensureCatalog(config.stripe);
     await startCheckoutReconcile(db);
+    await startFinanceReconcile(db);
     return "billing uses Stripe (STRIPE_SECRET_KEY)";
   }
   const { ensureStripeFake } = await import("@/lib/fakes/stripe");
@@ -30,5 +32,6 @@ export async function startBilling(db: Db): Promise<string> {
   configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });
   await ensureCatalog(stripe);
   await startCheckoutReconcile(db);
+  await startFinanceReconcile(db);
   return `local Stripe fake on ${fake.url}; payment page and webhooks to ${appBaseUrl()}${WEBHOOK_PATH}`;
 }

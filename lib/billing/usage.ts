@@ -14,9 +14,12 @@ import { effectiveQuotas, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/
 import { billingContacts } from "./catalog";
 import { queueWebhookEvent } from "@/lib/webhooks/webhooks";
 import { lowBalanceMail } from "./mail";
+import { overageHold } from "./overdue";
 import { LOW_BALANCE_MS } from "./packs";
 
 export const METER_EVENT_KIND = "stripe.meter_event";
+/** Metadata key of an invoice item (and its line) that bills one chunk's overage late: the chunk's ledger key. */
+export const LATE_USAGE_METADATA_KEY = "kd_meter_identifier";
 
 export interface MeterEventPayload {
   studioId: string;
@@ -35,6 +38,8 @@ export interface ChunkUsage {
   /** The chunk's measured compute, integer ms. */
   computeMs: number;
   memo: string;
+  /** The time the overdue-invoice grace period is judged at; default the database's now(). */
+  at?: Date;
 }
 
 export interface ChunkUsageResult {
@@ -64,7 +69,8 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
   const billable = Math.min(usage.computeMs, Math.max(0, quotas.monthlyComputeMs - usedThisMonth));
   const prepaidMs = Math.min(billable, Math.max(0, balanceBefore));
   let overageMs = 0;
-  if (quotas.overageAllowed && billable > prepaidMs) {
+  // An invoice unpaid past its grace period holds overage off (lib/billing/overdue.ts); the owner's choice stays as it was.
+  if (quotas.overageAllowed && billable > prepaidMs && !(await overageHold(tx, usage.studioId, usage.at)).suspended) {
     const overageSoFar = await monthlyOverageMs(tx, usage.studioId, now);
     overageMs = Math.max(0, Math.min(billable - prepaidMs, quotas.overageCapMs - overageSoFar));
   }

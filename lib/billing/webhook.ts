@@ -16,7 +16,9 @@ import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
 import { invoiceFinalizedMail, paymentFailedMail, receiptMail } from "./mail";
+import { LATE_USAGE_METADATA_KEY } from "./usage";
 import { findPack, type CreditPack } from "./packs";
+import { endSubscription, notifyUnpaidInvoice, type UnpaidNotice } from "./overdue";
 import { reportDisputeOpened, syncChargeTakeBacks } from "./refunds";
 import { stripeFailure } from "./stripe";
 
@@ -41,6 +43,7 @@ export const HANDLED_EVENT_TYPES = [
   "charge.refunded",
   "charge.dispute.created",
   "charge.dispute.closed",
+  "customer.subscription.deleted",
 ] as const;
 
 export function isHandledEventType(type: string): boolean {
@@ -90,6 +93,13 @@ export async function handleStripeEvent(db: Db, stripe: Stripe, event: unknown):
       const chargeId = typeof dispute.charge === "string" ? dispute.charge : dispute.charge.id;
       // Closed (or created after it was already lost): the charge's take-backs as Stripe holds them now.
       outcome = dispute.status === "lost" ? await syncChargeTakeBacks(db, stripe, chargeId, { id, type }) : await reportDisputeOpened(db, stripe, dispute, { id, type });
+    } else if (type === "customer.subscription.deleted") {
+      const subscription = await stripe.subscriptions.retrieve(objectId);
+      outcome = await db.transaction(async (tx) => {
+        const done = await endSubscription(tx, subscription);
+        await recordEvent(tx, { id, type }, done);
+        return done;
+      });
     } else {
       const invoice = await stripe.invoices.retrieve(objectId);
       outcome = await syncInvoice(db, stripe, invoice, { id, type });
@@ -271,9 +281,12 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         periodEnd: line.period.end,
         quantityMs: lineQuantityMs(line),
         amountCents: line.amount,
+        ...(line.metadata?.[LATE_USAGE_METADATA_KEY] ? { meterIdentifier: line.metadata[LATE_USAGE_METADATA_KEY] } : {}),
       }));
-      const periodStart = new Date(Math.min(invoice.period_start, ...lines.map((l) => l.periodStart)) * 1000);
-      const periodEnd = new Date(Math.max(invoice.period_end, ...lines.map((l) => l.periodEnd)) * 1000);
+      // The invoice's own period: a late-usage line names an earlier period and does not widen it.
+      const own = lines.filter((l) => !l.meterIdentifier);
+      const periodStart = new Date(Math.min(invoice.period_start, ...own.map((l) => l.periodStart)) * 1000);
+      const periodEnd = new Date(Math.max(invoice.period_end, ...own.map((l) => l.periodEnd)) * 1000);
       const finalizedAtUnix = invoice.status_transitions?.finalized_at ?? null;
       const values = {
         studioId,
@@ -286,6 +299,7 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         totalCents: invoice.total,
         lines,
         finalizedAt: finalizedAtUnix ? new Date(finalizedAtUnix * 1000) : null,
+        dueAt: invoice.due_date ? new Date(invoice.due_date * 1000) : null,
         updatedAt: new Date(),
       };
       // One conditional statement, not read-then-write: a handler that read the invoice earlier (open)
@@ -311,8 +325,21 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
           });
         }
       }
+      // Unpaid notices act on the invoice as Stripe holds it now: one that is paid by the time the event
+      // arrives tells nobody, nor does a read older than the mirror (it was not written).
+      const notice = event ? UNPAID_NOTICES[event.type] : undefined;
+      if (notice && written.length > 0) {
+        const told = await notifyUnpaidInvoice(tx, studioId, invoice, notice);
+        outcome += told > 0 ? `; ${told} told it is unpaid (${notice})` : "; nothing owed, nobody told";
+      }
     }
     if (event) await recordEvent(tx, event, outcome);
     return outcome;
   });
 }
+
+const UNPAID_NOTICES: Record<string, UnpaidNotice | undefined> = {
+  "invoice.payment_failed": "payment_failed",
+  "invoice.overdue": "overdue",
+  "invoice.marked_uncollectible": "uncollectible",
+};

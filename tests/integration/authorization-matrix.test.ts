@@ -340,6 +340,8 @@ export const ROUTES: RouteRow[] = [
     expect: BILLING_PEOPLE_ROW(200),
   },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
+  // No such outbox row: an admin passes the guard and gets 404 for the meter event.
+  { route: "v1/admin/finance/meter-events/[outboxId]/retry", method: "POST", params: () => ({ outboxId: "999999" }), body: () => ({ reason: "matrix check" }), expect: ADMIN_ONLY(404) },
   // The studio has no purchase to refund: an admin passes the guard and gets 404 for the purchase.
   { route: "v1/admin/studios/[studioId]/refunds", method: "POST", params: studio, body: (w) => ({ sessionId: w.checkoutSessionId, reason: "matrix check" }), expect: ADMIN_ONLY(404) },
   // Webhook endpoints: owners only, never tokens.

@@ -65,6 +65,7 @@ function operation(op: Operation): ZodOpenApiOperationObject {
   const error = { description: "An error naming the field and limit where there is one.", content: { "application/json": { schema: errorBodySchema } } };
   const responses: ZodOpenApiResponsesObject = {
     [String(op.ok)]: { description: op.summary, content: successContent(op) },
+    ...Object.fromEntries((op.alsoOk ?? []).map((status) => [String(status), { description: op.summary, content: successContent(op) }])),
     "4XX": error,
     "5XX": { description: "The service or a provider it needs is unavailable (never for bad input).", content: { "application/json": { schema: errorBodySchema } } },
   };

@@ -64,6 +64,7 @@ import {
   checkoutAnswer,
   checkoutCheckAnswer,
   financeAnswer,
+  meterRetryAnswer,
   invoiceAnswer,
   invoicesAnswer,
   ledgerAnswer,
@@ -76,6 +77,7 @@ import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
 import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
+import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
@@ -104,6 +106,8 @@ export interface Operation {
   policy: RoutePolicy;
   /** The success status. */
   ok: number;
+  /** Other success statuses with the same body (e.g. 200 when a retry found nothing to do). */
+  alsoOk?: readonly number[];
   produces?: Produces;
   /** JSON request body (the route's own schema). */
   body?: z.ZodType;
@@ -244,7 +248,8 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200, response: usersAnswer },
   { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema, response: userPatchAnswer },
   { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema, response: auditAnswer },
-  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios", tag: "Admin", policy: ADMIN, ok: 200, response: financeAnswer },
+  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good", tag: "Admin", policy: ADMIN, ok: 200, response: financeAnswer },
+  { method: "post", path: "/api/v1/admin/finance/meter-events/{outboxId}/retry", summary: "Queue a failed meter event again, as it was or under a new Stripe identifier (audited; 202 queued, 200 unchanged)", tag: "Admin", policy: ADMIN, ok: 202, alsoOk: [200], body: meterRetrySchema, response: meterRetryAnswer },
   { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: ADMIN, ok: 200, response: queueAnswer },
   // The document itself
   { method: "get", path: "/api/v1/openapi.json", summary: "This OpenAPI document", tag: "Reference", policy: PUBLIC, ok: 200, response: openApiDocumentAnswer },

@@ -81,6 +81,7 @@ const OBJECT_LABELS: Record<CollectionName, string> = {
   charges: "charge",
   refunds: "refund",
   disputes: "dispute",
+  invoiceitems: "invoiceitem",
 };
 
 export function mustGet(store: StripeFakeStore, collection: CollectionName, id: string, param = "id"): StripeObject {

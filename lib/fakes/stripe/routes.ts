@@ -69,6 +69,10 @@ export const ROUTES: Route[] = [
   route("POST", "/v1/subscriptions/:id", billing.updateSubscription),
   route("DELETE", "/v1/subscriptions/:id", billing.cancelSubscription),
 
+  route("POST", "/v1/invoiceitems", billing.createInvoiceItem),
+  route("GET", "/v1/invoiceitems", billing.listInvoiceItems),
+  route("GET", "/v1/invoiceitems/:id", billing.retrieveInvoiceItem),
+
   route("POST", "/v1/invoices", billing.createInvoice),
   route("GET", "/v1/invoices", billing.listInvoices),
   route("GET", "/v1/invoices/:id", billing.retrieveInvoice),
@@ -76,6 +80,7 @@ export const ROUTES: Route[] = [
   route("POST", "/v1/invoices/:id/finalize", billing.finalizeInvoice),
   route("POST", "/v1/invoices/:id/pay", billing.payInvoice),
   route("POST", "/v1/invoices/:id/void", billing.voidInvoice),
+  route("POST", "/v1/invoices/:id/mark_uncollectible", billing.markUncollectible),
 
   route("GET", "/v1/events", events.listEvents),
   route("GET", "/v1/events/:id", events.retrieveEvent),

@@ -5,7 +5,7 @@ import { authenticationError, idempotencyMismatch, invalidRequest, serviceUnavai
 import { FormParseError, parseForm, type FormObject } from "./form";
 import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted-page";
 import { Params } from "./params";
-import { closePeriod, closeSubscriptionPeriod, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
+import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
 import { closeDispute, openDispute } from "./resources/payments";
 import { payByBankFromHostedPage, payFromHostedPage, refreshExpiry, settleDelayedPayments } from "./resources/checkout";
@@ -321,9 +321,11 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         if (!next) break;
         store.advanceClockTo(Math.max(next.end, store.now()));
         const ctx = makeCtx({ requestId: null, idempotencyKey: null });
+        emitOverdueInvoices(ctx);
         invoices.push(closeSubscriptionPeriod(ctx, next.sub, next.end, true));
       }
       store.advanceClockTo(to);
+      emitOverdueInvoices(makeCtx({ requestId: null, idempotencyKey: null }));
       persist();
       dispatcher.kick();
       return { now: store.now(), invoices };

@@ -19,7 +19,8 @@ export type CollectionName =
   | "webhook_endpoints"
   | "charges"
   | "refunds"
-  | "disputes";
+  | "disputes"
+  | "invoiceitems";
 
 export const COLLECTIONS: readonly CollectionName[] = [
   "customers",
@@ -36,6 +37,7 @@ export const COLLECTIONS: readonly CollectionName[] = [
   "charges",
   "refunds",
   "disputes",
+  "invoiceitems",
 ];
 
 export interface RecordedMeterEvent {

@@ -550,7 +550,7 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
     metadata: {},
     autoAdvance: opts.finalize,
   });
-  const lines = items.map((item) => {
+  const lines: StripeObject[] = items.map((item) => {
     const price = item.price as StripeObject;
     const meterId = (price.recurring as { meter: string }).meter;
     const meter = mustGet(ctx.store, "meters", meterId);
@@ -586,6 +586,14 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
       taxes: [],
     } satisfies StripeObject;
   });
+  // Pending invoice items of this subscription (or of the customer with none named) each become their own line.
+  for (const pending of ctx.store.newestFirst("invoiceitems").reverse()) {
+    if (pending.customer !== customer.id || pending.invoice !== null) continue;
+    const itemSub = (pending.parent as { subscription_details: { subscription: string } | null } | null)?.subscription_details?.subscription ?? null;
+    if (itemSub !== null && itemSub !== sub.id) continue;
+    pending.invoice = invoice.id;
+    lines.push(invoiceItemLine(pending, invoice.id));
+  }
   setInvoiceLines(invoice, lines);
   ctx.store.insert("invoices", invoice);
   for (const item of items) {
@@ -639,7 +647,7 @@ function chargeInvoice(ctx: Ctx, invoice: StripeObject, paymentMethodId: string,
   invoice.attempted = true;
   if (outcome.ok) {
     invoice.default_payment_method = pm.id;
-    markPaid(ctx, invoice, "open");
+    markPaid(ctx, invoice, String(invoice.status));
     return;
   }
   invoice.next_payment_attempt = null;
@@ -721,11 +729,12 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
   params.boolean("off_session");
   params.boolean("forgive");
   if (invoice.status === "paid") throw invalidRequest("Invoice is already paid");
-  if (invoice.status === "void" || invoice.status === "uncollectible") throw invalidRequest(`This invoice is ${String(invoice.status)} and cannot be paid.`);
+  // Stripe: an uncollectible invoice can still be paid (status uncollectible → paid); a void one cannot.
+  if (invoice.status === "void") throw invalidRequest(`This invoice is ${String(invoice.status)} and cannot be paid.`);
   if (invoice.status === "draft") finalizeInvoiceObject(ctx, invoice);
   if (invoice.status === "paid") return { body: invoice };
   if (outOfBand) {
-    markPaid(ctx, invoice, "open");
+    markPaid(ctx, invoice, String(invoice.status));
     return { body: invoice };
   }
   const customer = mustGet(ctx.store, "customers", invoice.customer as string);
@@ -741,11 +750,13 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
 export function voidInvoice(ctx: Ctx, params: Params, id: string): HandlerResult {
   params.allowOnly([]);
   const invoice = mustGet(ctx.store, "invoices", id);
-  if (invoice.status !== "open") throw invalidRequest(`You can only void an open invoice; this one is ${String(invoice.status)}.`);
+  // Stripe: "only possible for open or uncollectible invoices".
+  if (invoice.status !== "open" && invoice.status !== "uncollectible") throw invalidRequest(`You can only void an open or uncollectible invoice; this one is ${String(invoice.status)}.`);
+  const previousStatus = String(invoice.status);
   invoice.status = "void";
   invoice.amount_remaining = 0;
   invoice.status_transitions = { ...(invoice.status_transitions as object), voided_at: ctx.now };
-  ctx.emit("invoice.voided", invoice, { status: "open" });
+  ctx.emit("invoice.voided", invoice, { status: previousStatus });
   return { body: invoice };
 }
 
@@ -785,3 +796,147 @@ export function nextPeriodBoundary(ctx: Ctx, to: number): { sub: StripeObject; e
   return best;
 }
 
+
+/**
+ * POST /v1/invoices/:id/mark_uncollectible (Stripe API reference: "Marking an invoice as uncollectible
+ * is useful for keeping track of bad debts"; no parameters; returns the invoice). Only an open
+ * invoice can be marked; it can still be paid or voided afterwards.
+ */
+export function markUncollectible(ctx: Ctx, params: Params, id: string): HandlerResult {
+  params.allowOnly([]);
+  const invoice = mustGet(ctx.store, "invoices", id);
+  if (invoice.status !== "open") throw invalidRequest(`You can only mark an open invoice as uncollectible; this one is ${String(invoice.status)}.`);
+  invoice.status = "uncollectible";
+  invoice.status_transitions = { ...(invoice.status_transitions as object), marked_uncollectible_at: ctx.now };
+  ctx.emit("invoice.marked_uncollectible", invoice, { status: "open" });
+  return { body: invoice };
+}
+
+/**
+ * invoice.overdue (Stripe's event list: "Occurs X number of days after an invoice becomes due", X set
+ * in the account's automations; the fake uses X = 0): once per invoice still unpaid (open or
+ * uncollectible) whose due_date the fake clock has reached.
+ */
+export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
+  const overdue: StripeObject[] = [];
+  const told = new Set(
+    ctx.store
+      .newestFirst("events")
+      .filter((e) => e.type === "invoice.overdue")
+      .map((e) => ((e.data as { object: { id: string } }).object.id)),
+  );
+  for (const invoice of ctx.store.newestFirst("invoices").reverse()) {
+    const due = invoice.due_date as number | null;
+    if (due === null || due > ctx.now || told.has(invoice.id)) continue;
+    if (invoice.status !== "open" && invoice.status !== "uncollectible") continue;
+    ctx.emit("invoice.overdue", invoice);
+    overdue.push(invoice);
+  }
+  return overdue;
+}
+
+// ---------------------------------------------------------------- invoice items
+
+/**
+ * POST /v1/invoiceitems (Stripe API reference, "Create an invoice item"): a pending charge added to
+ * the customer's next invoice — with `subscription`, the next invoice of that subscription — as a line
+ * of its own, with its own `period` and `metadata`. The fake takes `amount`, or `quantity` with
+ * `unit_amount_decimal` (the amount is then quantity × unit rounded once to whole cents).
+ */
+export function createInvoiceItem(ctx: Ctx, params: Params): HandlerResult {
+  params.allowOnly(["customer", "amount", "currency", "description", "metadata", "period", "quantity", "unit_amount_decimal", "subscription", "discountable"]);
+  const customer = mustGet(ctx.store, "customers", params.requiredString("customer"), "customer");
+  if (customer.deleted) throw invalidParam("customer", `No such customer: '${customer.id}'`, "resource_missing");
+  const amountParam = params.integer("amount");
+  const quantity = params.integer("quantity", { min: 0 });
+  const unit = params.decimal("unit_amount_decimal");
+  if (amountParam !== undefined && (unit !== undefined || quantity !== undefined)) throw invalidParam("amount", "You may only specify one of amount or (quantity and unit_amount_decimal).");
+  if (amountParam === undefined && unit === undefined) throw invalidParam("amount", "Missing required param: amount (or unit_amount_decimal).", "parameter_missing");
+  const qty = quantity ?? 1;
+  const amount = amountParam ?? lineAmountCents(String(qty), unit as string);
+  const currency = (params.string("currency") ?? (amountParam !== undefined ? undefined : "usd"))?.toLowerCase();
+  if (!currency) throw invalidParam("currency", "Missing required param: currency.", "parameter_missing");
+  const subId = params.string("subscription");
+  const sub = subId ? mustGet(ctx.store, "subscriptions", subId, "subscription") : null;
+  if (sub && sub.status === "canceled") throw invalidParam("subscription", `The subscription ${sub.id} is canceled; invoice items cannot be added to it.`);
+  const periodParams = params.object("period");
+  periodParams?.allowOnly(["start", "end"]);
+  const start = periodParams ? (periodParams.integer("start", { required: true, min: 0 }) as number) : ctx.now;
+  const end = periodParams ? (periodParams.integer("end", { required: true, min: 0 }) as number) : ctx.now;
+  if (end < start) throw invalidParam("period[end]", "period[end] must be on or after period[start].");
+  params.boolean("discountable");
+  const item: StripeObject = {
+    id: newId("ii", 24),
+    object: "invoiceitem",
+    amount,
+    currency,
+    customer: customer.id,
+    date: ctx.now,
+    description: params.nullableString("description", 500) ?? null,
+    discountable: true,
+    discounts: [],
+    invoice: null,
+    livemode: false,
+    metadata: applyMetadata({}, params.metadata()),
+    net_amount: amount,
+    parent: sub ? { subscription_details: { subscription: sub.id, subscription_item: null }, type: "subscription_details" } : null,
+    period: { end, start },
+    pricing: unit !== undefined ? { price_details: null, type: null, unit_amount_decimal: unit } : null,
+    proration: false,
+    quantity: qty,
+    tax_rates: [],
+    test_clock: null,
+  };
+  ctx.store.insert("invoiceitems", item);
+  ctx.emit("invoiceitem.created", item);
+  return { body: item };
+}
+
+export function retrieveInvoiceItem(ctx: Ctx, params: Params, id: string): HandlerResult {
+  params.allowOnly([]);
+  return { body: mustGet(ctx.store, "invoiceitems", id) };
+}
+
+export function listInvoiceItems(ctx: Ctx, params: Params): HandlerResult {
+  params.allowOnly(["limit", "starting_after", "ending_before", "customer", "invoice", "pending", "created"]);
+  const customer = params.string("customer");
+  const invoice = params.string("invoice");
+  const pending = params.boolean("pending");
+  const created = createdFilter(params);
+  const items = ctx.store.newestFirst("invoiceitems").filter(
+    (ii) => (customer === undefined || ii.customer === customer) && (invoice === undefined || ii.invoice === invoice) && (pending === undefined || (ii.invoice === null) === pending) && created({ ...ii, created: ii.date }),
+  );
+  return { body: paginate(items, params, "/v1/invoiceitems", "invoiceitem") };
+}
+
+/** The invoice line an invoice item becomes (parent type invoice_item_details), keeping its period and metadata. */
+function invoiceItemLine(item: StripeObject, invoiceId: string): StripeObject {
+  const unit = (item.pricing as { unit_amount_decimal: string } | null)?.unit_amount_decimal ?? null;
+  const sub = (item.parent as { subscription_details: { subscription: string } } | null)?.subscription_details?.subscription ?? null;
+  return {
+    id: newId("il", 24),
+    object: "line_item",
+    amount: item.amount,
+    currency: item.currency,
+    description: item.description,
+    discount_amounts: [],
+    discountable: item.discountable,
+    discounts: [],
+    invoice: invoiceId,
+    livemode: false,
+    metadata: clone(item.metadata),
+    parent: {
+      invoice_item_details: { invoice_item: item.id, proration: false, proration_details: { credited_items: null }, subscription: sub },
+      subscription_item_details: null,
+      type: "invoice_item_details",
+    },
+    period: clone(item.period),
+    pretax_credit_amounts: [],
+    pricing: { price_details: null, type: null, unit_amount_decimal: unit },
+    quantity: item.quantity,
+    quantity_decimal: String(item.quantity),
+    subscription: sub,
+    subtotal: item.amount,
+    taxes: [],
+  };
+}
