@@ -17,4 +17,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "invite.withdraw": "Invitation withdrawn",
   "invite.accept": "Invitation accepted",
   "payment.refund": "Refund issued",
+  "billing.details": "Billing details changed",
 };

@@ -26,6 +26,7 @@ export const AUDIT_ACTIONS = [
   "invite.withdraw",
   "invite.accept",
   "payment.refund",
+  "billing.details",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

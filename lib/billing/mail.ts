@@ -32,13 +32,29 @@ export function receiptMail(input: { studioId: string; studioName: string; packN
   );
 }
 
-export function invoiceFinalizedMail(input: { studioId: string; studioName: string; number: string; quantityMs: number; totalCents: number; periodStart: Date; periodEnd: Date }): MailContent {
+export function invoiceFinalizedMail(input: {
+  studioId: string;
+  studioName: string;
+  number: string;
+  kind: "overage" | "pack";
+  status: string;
+  quantityMs: number;
+  totalCents: number;
+  periodStart: Date;
+  periodEnd: Date;
+  hostedInvoiceUrl: string | null;
+  invoicePdfUrl: string | null;
+}): MailContent {
   const period = `${input.periodStart.toISOString().slice(0, 10)} – ${input.periodEnd.toISOString().slice(0, 10)}`;
-  return message(
-    `Invoice ${input.number} for ${input.studioName}`,
-    [`Invoice ${input.number} covers overage compute of ${formatMinutes(input.quantityMs)} minutes for ${period} (UTC): ${formatPriceCents(input.totalCents)}.`],
-    { label: "Open invoices", url: `${appBaseUrl()}/studios/${encodeURIComponent(input.studioId)}/invoices` },
-  );
+  const what =
+    input.kind === "pack"
+      ? `Invoice ${input.number} is for a compute-minute pack purchase of ${formatMinutes(input.quantityMs)} minutes: ${formatPriceCents(input.totalCents)}${input.status === "paid" ? ", paid by card at purchase" : ""}.`
+      : `Invoice ${input.number} covers overage compute of ${formatMinutes(input.quantityMs)} minutes for ${period} (UTC): ${formatPriceCents(input.totalCents)}.`;
+  const documents = [
+    ...(input.hostedInvoiceUrl ? [`View the invoice online: ${input.hostedInvoiceUrl}`] : []),
+    ...(input.invoicePdfUrl ? [`Download the invoice PDF: ${input.invoicePdfUrl}`] : []),
+  ];
+  return message(`Invoice ${input.number} for ${input.studioName}`, [what, ...documents], { label: "Open invoices", url: `${appBaseUrl()}/studios/${encodeURIComponent(input.studioId)}/invoices` });
 }
 
 export function lowBalanceMail(input: { studioId: string; studioName: string; balanceMs: number }): MailContent {

@@ -17,6 +17,8 @@ import { lowBalanceMail } from "./mail";
 import { LOW_BALANCE_MS } from "./packs";
 
 export const METER_EVENT_KIND = "stripe.meter_event";
+/** Outbox kind that makes a studio's overage subscription once an admin turns overage on. */
+export const OVERAGE_SUBSCRIPTION_KIND = "billing.overage_subscription";
 
 export interface MeterEventPayload {
   studioId: string;
