@@ -107,7 +107,7 @@ test("the demo owner sets the billing address and tax ID and buys a pack; a decl
   expect(pdf.status()).toBe(200);
   expect(pdf.headers()["content-type"]).toBe("application/pdf");
   expect((await pdf.body()).subarray(0, 5).toString("latin1")).toBe("%PDF-");
-  await finance.getByTestId("invoices-table").getByRole("link", { name: invoiceNumber }).click();
+  await finance.getByTestId("invoices-table").getByRole("link", { name: invoiceNumber, exact: true }).click();
   await expect(finance).toHaveURL(new RegExp(`/studios/${studioId}/invoices/in_`));
   await expect(finance.getByTestId("reconciliation")).toContainText("Pack purchase");
   await expect(finance.getByTestId("invoice-status")).toHaveText("paid");
