@@ -477,8 +477,24 @@ export const studioBilling = pgTable("studio_billing", {
   subscriptionStartedAt: ts("subscription_started_at"),
   /** The last overage subscription that ended (customer.subscription.deleted): the next one is made under a new idempotency key. */
   endedSubscriptionId: text("ended_subscription_id"),
+  /** Where invoices are sent besides owners and finance; also the Stripe customer's e-mail. Owners edit it. */
+  billingEmail: text("billing_email"),
+  /** The postal address printed on invoices (and the Stripe customer's address). */
+  billingAddress: jsonb("billing_address").$type<BillingAddress>(),
+  /** Free-text tax ID printed on invoices (a custom field "Tax ID"); Kickdrift computes no tax. */
+  taxId: text("tax_id"),
   createdAt: createdAt(),
 });
+
+export interface BillingAddress {
+  line1: string;
+  line2: string | null;
+  city: string;
+  state: string | null;
+  postalCode: string;
+  /** ISO 3166-1 alpha-2. */
+  country: string;
+}
 
 /** Webhook events already handled: a second delivery of the same id changes nothing. */
 export const stripeEvents = pgTable("stripe_events", {
@@ -509,11 +525,18 @@ export const invoices = pgTable(
     finalizedAt: ts("finalized_at"),
     /** When payment is due (Stripe's due_date); an unpaid invoice past it plus the grace period switches overage off. */
     dueAt: ts("due_at"),
+    /** "overage" (the monthly metered invoice) or "pack" (the paid invoice of a pack purchase). */
+    kind: text("kind").$type<InvoiceKind>().notNull().default("overage"),
+    /** Stripe's hosted invoice page and PDF (set once the invoice is finalised). */
+    hostedInvoiceUrl: text("hosted_invoice_url"),
+    invoicePdfUrl: text("invoice_pdf_url"),
     createdAt: createdAt(),
     updatedAt: timestamp("updated_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),
   },
   (t) => [index("invoices_studio_period_idx").on(t.studioId, t.periodEnd)],
 );
+
+export type InvoiceKind = "overage" | "pack";
 
 export interface InvoiceLineRecord {
   id: string;

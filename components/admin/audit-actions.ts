@@ -19,4 +19,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "payment.refund": "Refund issued",
   "meter_event.retry": "Meter event retried",
   "meter_event.rekey": "Meter event re-keyed",
+  "billing.details": "Billing details changed",
 };

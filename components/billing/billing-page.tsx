@@ -11,6 +11,7 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { OVERAGE_DAYS_UNTIL_DUE } from "@/lib/billing/packs";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
+import { BillingDetailsCard } from "./billing-details";
 import { formatCompute } from "@/lib/billing/format";
 import { METERING_NOTE } from "@/lib/sweeps/metering-rate";
 
@@ -123,7 +124,7 @@ export function BillingPage({ studioId, studioName, role, checkout, sessionId }:
                   {summary.data.overage.allowed && summary.data.overage.held
                     ? "Overage is switched off while an invoice is unpaid past its grace period: sweeps pause at zero balance. Paying the invoice switches it back on."
                     : summary.data.overage.allowed
-                    ? `Overage allowed: past the balance, compute is invoiced monthly at ${formatPriceCents(summary.data.overage.centsPerMinute)} a minute (this month ${formatMinutes(summary.data.overage.thisMonthMs)} of ${formatMinutes(summary.data.overage.capMs)} minutes).`
+                    ? `Overage allowed: past the balance, compute is invoiced monthly at ${formatPriceCents(summary.data.overage.centsPerMinute)} a minute (${summary.data.month.key}: ${formatMinutes(summary.data.overage.thisMonthMs)} of ${formatMinutes(summary.data.overage.capMs)} minutes). Each invoice covers one calendar month (UTC), from the 1st, the same month counted here.`
                     : "Overage is off: sweeps pause with “out of minutes” at zero and resume after a top-up."}
                 </p>
                 <p className="text-xs text-ink-muted" data-testid="overdue-terms">
@@ -153,6 +154,7 @@ export function BillingPage({ studioId, studioName, role, checkout, sessionId }:
             <p className="mt-3 text-xs text-ink-muted">{TAX_NOTE} Payment happens on Stripe&apos;s checkout page.</p>
           </Card>
         </div>
+        <BillingDetailsCard studioId={studioId} role={role} />
         <LedgerTable api={api} />
         <UsageCharts api={api} studioId={studioId} />
       </div>

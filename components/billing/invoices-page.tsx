@@ -9,7 +9,39 @@ import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
 
-type Invoice = { id: string; number: string | null; status: string; periodStart: string; periodEnd: string; quantityMs: number; totalCents: number; finalizedAt: string | null };
+type Invoice = {
+  id: string;
+  number: string | null;
+  status: string;
+  periodStart: string;
+  periodEnd: string;
+  quantityMs: number;
+  totalCents: number;
+  finalizedAt: string | null;
+  kind: "overage" | "pack";
+  hostedInvoiceUrl: string | null;
+  invoicePdfUrl: string | null;
+};
+
+/** The invoice's hosted page and PDF at Stripe (set once it is finalised). */
+function DocumentLinks({ invoice }: { invoice: Invoice }) {
+  if (!invoice.hostedInvoiceUrl && !invoice.invoicePdfUrl) return <span className="text-ink-muted">after finalising</span>;
+  const label = invoice.number ?? invoice.id;
+  return (
+    <span className="flex gap-3">
+      {invoice.hostedInvoiceUrl ? (
+        <a className="text-kick hover:underline" href={invoice.hostedInvoiceUrl} target="_blank" rel="noreferrer" aria-label={`View invoice ${label} online`}>
+          View
+        </a>
+      ) : null}
+      {invoice.invoicePdfUrl ? (
+        <a className="text-kick hover:underline" href={invoice.invoicePdfUrl} target="_blank" rel="noreferrer" aria-label={`Download invoice ${label} as PDF`}>
+          PDF
+        </a>
+      ) : null}
+    </span>
+  );
+}
 type Line = { id: string; description: string; periodStart: number; periodEnd: number; quantityMs: number; amountCents: number; ledgerMs: number; differenceMs: number; reconciled: boolean; entries: { id: number; sweepId: string | null; chunkIndex: number | null; overageMs: number; createdAt: string }[] };
 type Detail = { invoice: Invoice; lines: Line[]; reconciled: boolean };
 
@@ -19,8 +51,17 @@ export function InvoicesPage({ studioId, studioName, role }: { studioId: string;
   const list = useQuery({ queryKey: ["billing", studioId, "invoices"], queryFn: async () => (await apiFetch<{ invoices: Invoice[] }>(`${billingApi(studioId)}/invoices`)).invoices });
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>
-      <Card title="Invoices">
-        <p className="mb-3 text-sm text-ink-muted">Overage compute (usage past the prepaid balance, when allowed) is invoiced monthly. {TAX_NOTE}</p>
+      <Card
+        title="Invoices"
+        actions={
+          <a className="text-sm font-medium text-kick hover:underline" href={`${billingApi(studioId)}/invoices?format=csv`} download>
+            Download CSV
+          </a>
+        }
+      >
+        <p className="mb-3 text-sm text-ink-muted">
+          Each pack purchase has its own paid invoice. Overage compute (usage past the prepaid balance, when allowed) is invoiced per calendar month (UTC), from the 1st. {TAX_NOTE}
+        </p>
         {list.isPending ? (
           <LoadingRows label="invoices" />
         ) : list.isError ? (
@@ -32,7 +73,7 @@ export function InvoicesPage({ studioId, studioName, role }: { studioId: string;
             <table className="w-full text-sm" data-testid="invoices-table">
               <thead className="border-b border-line">
                 <tr>
-                  {["Invoice", "Status", "Period (UTC)", "Minutes", "Amount"].map((h) => (
+                  {["Invoice", "For", "Status", "Period (UTC)", "Minutes", "Amount", "Documents"].map((h) => (
                     <th key={h} scope="col" className={th}>
                       {h}
                     </th>
@@ -47,10 +88,12 @@ export function InvoicesPage({ studioId, studioName, role }: { studioId: string;
                         {inv.number ?? inv.id}
                       </Link>
                     </td>
+                    <td className={td}>{inv.kind === "pack" ? "Pack purchase" : "Overage"}</td>
                     <td className={td}>{inv.status}</td>
-                    <td className={td}>{period(inv.periodStart, inv.periodEnd)}</td>
+                    <td className={td}>{inv.kind === "pack" ? formatDate(inv.periodStart) : period(inv.periodStart, inv.periodEnd)}</td>
                     <td className={cx(td, "tabular-nums")}>{formatMinutes(inv.quantityMs)}</td>
                     <td className={cx(td, "tabular-nums")}>{formatPriceCents(inv.totalCents)}</td>
+                    <td className={td}><DocumentLinks invoice={inv} /></td>
                   </tr>
                 ))}
               </tbody>
@@ -85,8 +128,13 @@ export function InvoiceDetailPage({ studioId, studioName, role, invoiceId }: { s
               <div><dt className="text-ink-muted">Amount</dt><dd className="tabular-nums">{formatPriceCents(detail.data.invoice.totalCents)}</dd></div>
               <div><dt className="text-ink-muted">Finalised</dt><dd>{detail.data.invoice.finalizedAt ? formatDateTime(detail.data.invoice.finalizedAt) : "not yet"}</dd></div>
             </dl>
+            <p className="mt-3 text-sm">
+              <DocumentLinks invoice={detail.data.invoice} />
+            </p>
             <div className="mt-4" data-testid="reconciliation">
-              {detail.data.reconciled ? (
+              {detail.data.invoice.kind === "pack" ? (
+                <Alert tone="ok">Pack purchase: its minutes were credited to the balance when it was paid; nothing metered to reconcile.</Alert>
+              ) : detail.data.reconciled ? (
                 <Alert tone="ok">Reconciled: every line matches the ledger&apos;s overage entries for its period.</Alert>
               ) : (
                 <Alert>Difference: at least one line does not match the ledger (see below).</Alert>

@@ -8,6 +8,7 @@ import type { output, ZodType } from "zod";
 import type { listAudit } from "@/lib/audit/audit";
 import type { invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";
 import type { financeView, retryMeterEvent } from "@/lib/billing/finance-ops";
+import type { billingDetails } from "@/lib/billing/details";
 import type { adminQueue, adjustCredit, adminStudioDetail, listAdjustments, studioQuotaView, updateQuotas, setStudioStatus, adminStudioList, setPlatformRole } from "@/lib/quotas/admin";
 import type { adminRefund } from "@/lib/billing/refunds";
 import type { allUsers } from "@/lib/studios/studios";
@@ -106,6 +107,7 @@ type UserPatch = Jsonify<{ user: R<typeof setPlatformRole> }>;
 type Audit = Jsonify<{ entries: R<typeof listAudit> }>;
 type Finance = Jsonify<R<typeof financeView>>;
 type MeterRetry = Jsonify<R<typeof retryMeterEvent>>;
+type BillingDetailsView = Jsonify<R<typeof billingDetails>>;
 type Queue = Jsonify<{ sweeps: R<typeof adminQueue> }>;
 
 /** One cell as the route builds it (stored result or null while not computed, plus the series run again). */
@@ -168,6 +170,7 @@ export interface ResponseTies {
   userPatch: [LibFitsSchema<UserPatch, Out<typeof A.userPatchAnswer>>, SchemaFitsLib<Out<typeof A.userPatchAnswer>, UserPatch>];
   audit: [LibFitsSchema<Audit, Out<typeof A.auditAnswer>>, SchemaFitsLib<Out<typeof A.auditAnswer>, Audit>];
   finance: [LibFitsSchema<Finance, Out<typeof B.financeAnswer>>, SchemaFitsLib<Out<typeof B.financeAnswer>, Finance>];
+  billingDetails: [LibFitsSchema<BillingDetailsView, Out<typeof B.billingDetailsAnswer>>, SchemaFitsLib<Out<typeof B.billingDetailsAnswer>, BillingDetailsView>];
   meterRetry: [LibFitsSchema<MeterRetry, Out<typeof B.meterRetryAnswer>>, SchemaFitsLib<Out<typeof B.meterRetryAnswer>, MeterRetry>];
   queue: [LibFitsSchema<Queue, Out<typeof A.queueAnswer>>, SchemaFitsLib<Out<typeof A.queueAnswer>, Queue>];
   // One way only: every metric is a number in the lib's type, but a non-finite one is sent as null

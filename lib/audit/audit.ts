@@ -28,6 +28,7 @@ export const AUDIT_ACTIONS = [
   "payment.refund",
   "meter_event.retry",
   "meter_event.rekey",
+  "billing.details",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -165,3 +165,6 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
 
 /** Money: owners and finance people buy packs and read balances, ledgers and invoices; engineers and API tokens do not. */
 export const BILLING_PEOPLE = { access: "studio", roles: ["owner", "finance"], token: "never" } as const satisfies RoutePolicy;
+
+/** Reading the money records (ledger, invoices): owners and finance, and API tokens with the read (or write) scope for bookkeeping tools. */
+export const BILLING_READERS = { access: "studio", roles: ["owner", "finance"], token: "read" } as const satisfies RoutePolicy;

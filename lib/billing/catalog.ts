@@ -95,49 +95,62 @@ export async function billingContacts(db: DbOrTx, studioId: string): Promise<str
 }
 
 /**
- * The studio's Stripe customer and overage subscription, made on first use. Creation calls carry
- * idempotency keys, so two concurrent first uses get the same customer.
+ * The studio's Stripe customer, made on first use (a pack purchase, billing details, overage). The
+ * creation call carries an idempotency key, so two concurrent first uses get the same customer.
  */
 export async function ensureStudioCustomer(db: DbOrTx, stripe: Stripe, studioId: string): Promise<StudioBilling> {
   const [row] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
-  if (row?.stripeSubscriptionId) return row;
+  if (row) return row;
+  const [studio] = await db.select().from(studios).where(eq(studios.id, studioId));
+  if (!studio) throw new Error(`studio ${studioId} does not exist`);
+  const [owner] = await db
+    .select({ email: users.email })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.studioId, studioId), eq(memberships.role, "owner")))
+    .limit(1);
+  const customer = await stripe.customers.create(
+    { name: studio.name, ...(owner ? { email: owner.email } : {}), metadata: { studio_id: studioId } },
+    { idempotencyKey: `kd-customer-${studioId}` },
+  );
+  await db.insert(studioBilling).values({ studioId, stripeCustomerId: customer.id }).onConflictDoNothing();
+  const [again] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
+  return again;
+}
+
+/**
+ * Stripe's anchor for the overage subscription: the 1st of each month, 00:00:00 UTC. The first
+ * period runs from the subscription's start to the next 1st; every later one is a calendar month,
+ * the same month quotas, usage views and the Billing page count.
+ */
+export const OVERAGE_BILLING_CYCLE_ANCHOR = { day_of_month: 1, hour: 0, minute: 0, second: 0 } as const;
+
+/**
+ * The studio's overage subscription (and customer), made when overage is first needed: when overage
+ * is turned on, or when metered overage is delivered. A studio that never allows overage has none,
+ * so it gets no monthly $0 invoices. Idempotency keys make concurrent first uses share one.
+ */
+export async function ensureOverageSubscription(db: DbOrTx, stripe: Stripe, studioId: string): Promise<StudioBilling> {
+  const account = await ensureStudioCustomer(db, stripe, studioId);
+  if (account.stripeSubscriptionId) return account;
   const catalog = await ensureCatalog(stripe);
-  let customerId = row?.stripeCustomerId;
-  if (!customerId) {
-    const [studio] = await db.select().from(studios).where(eq(studios.id, studioId));
-    if (!studio) throw new Error(`studio ${studioId} does not exist`);
-    const [owner] = await db
-      .select({ email: users.email })
-      .from(memberships)
-      .innerJoin(users, eq(users.id, memberships.userId))
-      .where(and(eq(memberships.studioId, studioId), eq(memberships.role, "owner")))
-      .limit(1);
-    const customer = await stripe.customers.create(
-      { name: studio.name, ...(owner ? { email: owner.email } : {}), metadata: { studio_id: studioId } },
-      { idempotencyKey: `kd-customer-${studioId}` },
-    );
-    customerId = customer.id;
-    await db.insert(studioBilling).values({ studioId, stripeCustomerId: customerId }).onConflictDoNothing();
-    const [again] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
-    customerId = again.stripeCustomerId;
-    if (again.stripeSubscriptionId) return again;
-  }
   const subscription = await stripe.subscriptions.create(
     {
-      customer: customerId,
+      customer: account.stripeCustomerId,
       items: [{ price: catalog.overagePriceId }],
       collection_method: "send_invoice",
       days_until_due: OVERAGE_DAYS_UNTIL_DUE,
+      billing_cycle_anchor_config: OVERAGE_BILLING_CYCLE_ANCHOR,
       metadata: { studio_id: studioId },
     },
     // After a subscription ended (customer.subscription.deleted) the replacement needs its own key, or Stripe would answer with the ended one.
-    { idempotencyKey: row?.endedSubscriptionId ? `kd-subscription-${studioId}-after-${row.endedSubscriptionId}` : `kd-subscription-${studioId}` },
+    { idempotencyKey: account.endedSubscriptionId ? `kd-subscription-${studioId}-after-${account.endedSubscriptionId}` : `kd-subscription-${studioId}` },
   );
   const startedAt = new Date((subscription.items.data[0]?.current_period_start ?? subscription.start_date) * 1000);
   const [updated] = await db
     .update(studioBilling)
     // The first subscription's start stays: it dates the first metered usage the issued invoices are reconciled from.
-    .set({ stripeSubscriptionId: subscription.id, subscriptionStartedAt: row?.subscriptionStartedAt ?? startedAt })
+    .set({ stripeSubscriptionId: subscription.id, subscriptionStartedAt: account.subscriptionStartedAt ?? startedAt })
     .where(eq(studioBilling.studioId, studioId))
     .returning();
   return updated;

@@ -8,6 +8,7 @@ import { ApiError } from "@/lib/errors";
 import { ensureCatalog, ensureStudioCustomer } from "./catalog";
 import { CREDIT_PACKS, findPack } from "./packs";
 import { stripeFailure } from "./stripe";
+import { PACK_INVOICE_KIND } from "./webhook";
 
 export const MAX_PACKS_PER_CHECKOUT = 20;
 
@@ -37,6 +38,15 @@ export async function createCheckout(db: Db, stripe: Stripe, studioId: string, u
       client_reference_id: studioId,
       line_items: [{ price: catalog.packPrices[pack.id], quantity: input.quantity }],
       metadata: { studio_id: studioId, pack_id: pack.id, quantity: String(input.quantity), buyer_email: user.email },
+      // A paid invoice for the purchase (hosted page and PDF), with the studio's billing address and
+      // tax ID from the customer; mailed to the buyer, owners and finance when it is finalised.
+      invoice_creation: {
+        enabled: true,
+        invoice_data: {
+          description: `${pack.name} pack × ${input.quantity}: ${pack.minutes * input.quantity} Kickdrift compute minutes. Prices before tax; tax handling is out of scope.`,
+          metadata: { kind: PACK_INVOICE_KIND, studio_id: studioId, pack_id: pack.id, quantity: String(input.quantity), buyer_email: user.email },
+        },
+      },
       success_url: `${billing}?checkout=success&session_id={CHECKOUT_SESSION_ID}`,
       cancel_url: `${billing}?checkout=cancelled`,
     });

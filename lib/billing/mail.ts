@@ -8,14 +8,15 @@ function escapeHtml(value: string): string {
   return value.replaceAll("&", "&amp;").replaceAll("<", "&lt;").replaceAll(">", "&gt;").replaceAll('"', "&quot;").replaceAll("'", "&#39;");
 }
 
-function message(subject: string, lines: string[], link: { label: string; url: string }): MailContent {
+function message(subject: string, lines: string[], link: { label: string; url: string }, documents: { label: string; url: string }[] = []): MailContent {
   const footer = "Prices are before tax; tax handling is out of scope.";
+  const links = [...documents, link];
   return {
     subject,
-    text: `${lines.join("\n")}\n\n${link.label}: ${link.url}\n\n${footer}\n`,
+    text: `${lines.join("\n")}\n\n${links.map((l) => `${l.label}: ${l.url}`).join("\n")}\n\n${footer}\n`,
     html: `<!doctype html><html><body style="font-family:system-ui,sans-serif;color:#1b2330;max-width:560px;margin:24px auto">
 <h1 style="font-size:20px">${escapeHtml(subject)}</h1>${lines.map((l) => `<p style="margin:0 0 12px">${escapeHtml(l)}</p>`).join("")}
-<p><a href="${escapeHtml(link.url)}">${escapeHtml(link.label)}</a></p><p style="font-size:12px;color:#5b6472">${escapeHtml(footer)}</p></body></html>`,
+${links.map((l) => `<p><a href="${escapeHtml(l.url)}">${escapeHtml(l.label)}</a></p>`).join("")}<p style="font-size:12px;color:#5b6472">${escapeHtml(footer)}</p></body></html>`,
   };
 }
 
@@ -32,13 +33,29 @@ export function receiptMail(input: { studioId: string; studioName: string; packN
   );
 }
 
-export function invoiceFinalizedMail(input: { studioId: string; studioName: string; number: string; quantityMs: number; totalCents: number; periodStart: Date; periodEnd: Date }): MailContent {
+export function invoiceFinalizedMail(input: {
+  studioId: string;
+  studioName: string;
+  number: string;
+  kind: "overage" | "pack";
+  status: string;
+  quantityMs: number;
+  totalCents: number;
+  periodStart: Date;
+  periodEnd: Date;
+  hostedInvoiceUrl: string | null;
+  invoicePdfUrl: string | null;
+}): MailContent {
   const period = `${input.periodStart.toISOString().slice(0, 10)} – ${input.periodEnd.toISOString().slice(0, 10)}`;
-  return message(
-    `Invoice ${input.number} for ${input.studioName}`,
-    [`Invoice ${input.number} covers overage compute of ${formatMinutes(input.quantityMs)} minutes for ${period} (UTC): ${formatPriceCents(input.totalCents)}.`],
-    { label: "Open invoices", url: `${appBaseUrl()}/studios/${encodeURIComponent(input.studioId)}/invoices` },
-  );
+  const what =
+    input.kind === "pack"
+      ? `Invoice ${input.number} is for a compute-minute pack purchase of ${formatMinutes(input.quantityMs)} minutes: ${formatPriceCents(input.totalCents)}${input.status === "paid" ? ", paid by card at purchase" : ""}.`
+      : `Invoice ${input.number} covers overage compute of ${formatMinutes(input.quantityMs)} minutes for ${period} (UTC): ${formatPriceCents(input.totalCents)}.`;
+  const documents = [
+    ...(input.hostedInvoiceUrl ? [{ label: "View the invoice online", url: input.hostedInvoiceUrl }] : []),
+    ...(input.invoicePdfUrl ? [{ label: "Download the invoice PDF", url: input.invoicePdfUrl }] : []),
+  ];
+  return message(`Invoice ${input.number} for ${input.studioName}`, [what], { label: "Open invoices", url: `${appBaseUrl()}/studios/${encodeURIComponent(input.studioId)}/invoices` }, documents);
 }
 
 export function lowBalanceMail(input: { studioId: string; studioName: string; balanceMs: number }): MailContent {

@@ -11,10 +11,10 @@ import type { Db } from "@/db/client";
 import { outbox, type OutboxRow } from "@/db/schema";
 import { PermanentDeliveryError } from "@/lib/outbox/outbox";
 import { registerOutboxHandler } from "@/lib/outbox/process";
-import { ensureStudioCustomer, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "./catalog";
+import { ensureOverageSubscription, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "./catalog";
 import { OVERAGE_UNIT_AMOUNT_DECIMAL } from "./packs";
 import { billingConfig } from "./stripe";
-import { LATE_USAGE_METADATA_KEY, METER_EVENT_KIND, type MeterEventPayload } from "./usage";
+import { LATE_USAGE_METADATA_KEY, METER_EVENT_KIND, OVERAGE_SUBSCRIPTION_KIND, type MeterEventPayload } from "./usage";
 
 /** The meter-event time: the chunk's time, or the start of the studio's overage subscription if later. */
 export function meterTimestamp(payload: MeterEventPayload, subscriptionStartedAt: Date | null): number {
@@ -86,7 +86,7 @@ export async function deliverMeterEvent(db: Db, stripe: Stripe, row: OutboxRow):
   const payload = row.payload as Partial<MeterEventPayload>;
   if (typeof payload.studioId !== "string" || typeof payload.identifier !== "string" || !Number.isInteger(payload.valueMs) || !Number.isInteger(payload.timestamp))
     throw new PermanentDeliveryError("meter-event payload lacks studioId, identifier, valueMs or timestamp");
-  const account = await ensureStudioCustomer(db, stripe, payload.studioId);
+  const account = await ensureOverageSubscription(db, stripe, payload.studioId);
   const at = meterTimestamp(payload as MeterEventPayload, account.subscriptionStartedAt);
   // An admin may have re-keyed it (Admin → Finance): Stripe gets the new identifier; the ledger key stays.
   const stripeIdentifier = typeof (payload as { meterIdentifier?: unknown }).meterIdentifier === "string" ? (payload as { meterIdentifier: string }).meterIdentifier : payload.identifier;
@@ -117,7 +117,15 @@ export async function deliverMeterEvent(db: Db, stripe: Stripe, row: OutboxRow):
   }
 }
 
-/** Registers the handler with the process's outbox dispatcher (db/startup.ts calls this). */
+/** Makes the studio's overage subscription once overage is turned on (outbox kind "billing.overage_subscription"). */
+export async function createOverageSubscription(db: Db, stripe: Stripe, row: OutboxRow): Promise<void> {
+  const payload = row.payload as { studioId?: unknown };
+  if (typeof payload.studioId !== "string") throw new PermanentDeliveryError("overage-subscription payload lacks studioId");
+  await ensureOverageSubscription(db, stripe, payload.studioId);
+}
+
+/** Registers the handlers with the process's outbox dispatcher (db/startup.ts calls this). */
 export function registerMeterEventHandler(db: Db): void {
   registerOutboxHandler(METER_EVENT_KIND, (row) => deliverMeterEvent(db, billingConfig().stripe, row));
+  registerOutboxHandler(OVERAGE_SUBSCRIPTION_KIND, (row) => createOverageSubscription(db, billingConfig().stripe, row));
 }

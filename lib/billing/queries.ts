@@ -140,12 +140,36 @@ function invoiceView(row: InvoiceRow) {
     quantityMs: row.quantityMs,
     totalCents: row.totalCents,
     finalizedAt: row.finalizedAt?.toISOString() ?? null,
+    kind: row.kind,
+    hostedInvoiceUrl: row.hostedInvoiceUrl,
+    invoicePdfUrl: row.invoicePdfUrl,
   };
 }
 
 export async function listInvoices(db: DbOrTx, studioId: string) {
   const rows = await db.select().from(invoices).where(eq(invoices.studioId, studioId)).orderBy(desc(invoices.periodEnd), desc(invoices.createdAt));
   return rows.map(invoiceView);
+}
+
+export const invoicesQuerySchema = z.object({ format: z.enum(["json", "csv"]).default("json") }).strict();
+
+/** Cents as a plain decimal amount ("1234.05", "-0.50"): exact, from the integer, never through a float. */
+export function centsToDecimal(cents: number): string {
+  const sign = cents < 0 ? "-" : "";
+  const abs = Math.abs(cents);
+  return `${sign}${Math.trunc(abs / 100)}.${String(abs % 100).padStart(2, "0")}`;
+}
+
+/**
+ * The invoices as CSV for a bookkeeping import: integer cents (`total_cents`) and the same amount
+ * formatted (`total_amount`, a decimal in `currency`), both named in the header.
+ */
+export function invoicesCsv(list: Awaited<ReturnType<typeof listInvoices>>): string {
+  const header = ["invoice_id", "number", "kind", "status", "period_start_utc", "period_end_utc", "finalized_at_utc", "currency", "quantity_ms", "total_cents", "total_amount", "hosted_invoice_url", "invoice_pdf_url"];
+  const lines = list.map((i) =>
+    [i.id, i.number, i.kind, i.status, i.periodStart, i.periodEnd, i.finalizedAt, i.currency.toUpperCase(), i.quantityMs, i.totalCents, centsToDecimal(i.totalCents), i.hostedInvoiceUrl, i.invoicePdfUrl].map(csvCell).join(","),
+  );
+  return [header.join(","), ...lines].join("\r\n") + "\r\n";
 }
 
 /**
@@ -193,6 +217,10 @@ export async function invoiceDetail(db: DbOrTx, studioId: string, invoiceId: str
   if (!row) throw notFound("Invoice");
   const [account] = await db.select().from(studioBilling).where(eq(studioBilling.studioId, studioId));
   const lines = [];
+  if (row.kind === "pack") {
+    // A pack purchase's invoice: its minutes were credited by the purchase entry, not metered, so there is no overage to reconcile.
+    return { invoice: invoiceView(row), lines: row.lines.map((line) => ({ ...line, ledgerMs: 0, differenceMs: 0, reconciled: true, entries: [] })), reconciled: true };
+  }
   const billedLate = await lateBilledKeys(db, studioId);
   for (const line of row.lines) {
     const entries = line.meterIdentifier
@@ -243,6 +271,7 @@ export async function platformFinance(db: DbOrTx) {
   const rows = await db.select({ invoice: invoices, studioName: studios.name }).from(invoices).innerJoin(studios, eq(studios.id, invoices.studioId)).orderBy(desc(invoices.periodEnd));
   const periods = [];
   for (const { invoice, studioName } of rows) {
+    if (invoice.kind === "pack") continue; // pack revenue is counted from the ledger's purchase entries below
     const detail = await invoiceDetail(db, invoice.studioId, invoice.id);
     const ledgerMs = detail.lines.reduce((s, l) => s + l.ledgerMs, 0);
     let meteredMs = 0;
@@ -271,7 +300,7 @@ export async function platformFinance(db: DbOrTx) {
   const byMonth = new Map<string, { month: string; packCents: number; overageCents: number }>();
   for (const p of packs) byMonth.set(p.month, { month: p.month, packCents: Number(p.cents), overageCents: 0 });
   for (const { invoice } of rows) {
-    if (invoice.status === "draft" || invoice.status === "void") continue;
+    if (invoice.status === "draft" || invoice.status === "void" || invoice.kind === "pack") continue;
     const key = (invoice.finalizedAt ?? invoice.periodEnd).toISOString().slice(0, 7);
     const entry = byMonth.get(key) ?? { month: key, packCents: 0, overageCents: 0 };
     entry.overageCents += invoice.totalCents;

@@ -20,6 +20,8 @@ import { LOW_BALANCE_MS } from "./packs";
 export const METER_EVENT_KIND = "stripe.meter_event";
 /** Metadata key of an invoice item (and its line) that bills one chunk's overage late: the chunk's ledger key. */
 export const LATE_USAGE_METADATA_KEY = "kd_meter_identifier";
+/** Outbox kind that makes a studio's overage subscription once an admin turns overage on. */
+export const OVERAGE_SUBSCRIPTION_KIND = "billing.overage_subscription";
 
 export interface MeterEventPayload {
   studioId: string;

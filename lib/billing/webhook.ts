@@ -7,7 +7,7 @@ import { eq, sql, type SQL } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
-import { invoices, stripeEvents, studios, type InvoiceLineRecord } from "@/db/schema";
+import { invoices, stripeEvents, studioBilling, studios, type InvoiceKind, type InvoiceLineRecord } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { parseWith } from "@/lib/api/body";
 import { writeAudit } from "@/lib/audit/audit";
@@ -64,6 +64,8 @@ export interface WebhookResult {
 }
 
 export const purchaseKey = (sessionId: string) => `purchase:${sessionId}`;
+/** metadata.kind of the invoice Checkout makes for a pack purchase (invoice_creation). */
+export const PACK_INVOICE_KIND = "pack_purchase";
 
 /** Validates the parsed event's shape (400 naming the field), before anything is read or written. */
 export function checkEvent(event: unknown): { id: string; type: string; objectId: string } {
@@ -288,6 +290,15 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
       const periodStart = new Date(Math.min(invoice.period_start, ...own.map((l) => l.periodStart)) * 1000);
       const periodEnd = new Date(Math.max(invoice.period_end, ...own.map((l) => l.periodEnd)) * 1000);
       const finalizedAtUnix = invoice.status_transitions?.finalized_at ?? null;
+      // A pack purchase's invoice (Checkout invoice_creation) carries its pack in metadata; its
+      // quantity is the minutes bought, not metered overage, so reconciliation leaves it out.
+      const kind: InvoiceKind = invoice.metadata?.kind === PACK_INVOICE_KIND ? "pack" : "overage";
+      if (kind === "pack") {
+        const pack = findPack(invoice.metadata?.pack_id ?? "");
+        const quantity = Number(invoice.metadata?.quantity ?? "0");
+        const packMs = pack && Number.isInteger(quantity) && quantity > 0 ? pack.minutes * quantity * 60_000 : 0;
+        for (const line of lines) line.quantityMs = lines.length === 1 ? packMs : 0;
+      }
       const values = {
         studioId,
         number: invoice.number ?? null,
@@ -300,6 +311,9 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         lines,
         finalizedAt: finalizedAtUnix ? new Date(finalizedAtUnix * 1000) : null,
         dueAt: invoice.due_date ? new Date(invoice.due_date * 1000) : null,
+        kind,
+        hostedInvoiceUrl: invoice.hosted_invoice_url ?? null,
+        invoicePdfUrl: invoice.invoice_pdf ?? null,
         updatedAt: new Date(),
       };
       // One conditional statement, not read-then-write: a handler that read the invoice earlier (open)
@@ -316,11 +330,28 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
       // A $0 invoice (a period without overage) is kept for the record but mailed to nobody.
       if (written.length > 0 && values.status !== "draft" && values.finalizedAt && values.totalCents > 0) {
         const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId));
-        for (const to of await billingContacts(tx, studioId)) {
+        // Owners, finance, the studio's billing e-mail, and for a pack purchase its buyer; each once.
+        const recipients = new Set(await billingContacts(tx, studioId));
+        const [account] = await tx.select({ billingEmail: studioBilling.billingEmail }).from(studioBilling).where(eq(studioBilling.studioId, studioId));
+        if (account?.billingEmail) recipients.add(account.billingEmail);
+        if (kind === "pack" && invoice.metadata?.buyer_email) recipients.add(invoice.metadata.buyer_email);
+        for (const to of recipients) {
           await queueMail(tx, {
             idempotencyKey: `mail:invoice-finalized:${invoice.id}:${to}`,
             to,
-            content: invoiceFinalizedMail({ studioId, studioName: studio.name, number: invoice.number ?? invoice.id!, quantityMs: values.quantityMs, totalCents: values.totalCents, periodStart, periodEnd }),
+            content: invoiceFinalizedMail({
+              studioId,
+              studioName: studio.name,
+              number: invoice.number ?? invoice.id!,
+              kind,
+              status: values.status,
+              quantityMs: values.quantityMs,
+              totalCents: values.totalCents,
+              periodStart,
+              periodEnd,
+              hostedInvoiceUrl: values.hostedInvoiceUrl,
+              invoicePdfUrl: values.invoicePdfUrl,
+            }),
             studioId,
           });
         }

@@ -12,7 +12,9 @@ import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { formatCompute } from "@/lib/billing/format";
+import { enqueueOutbox } from "@/lib/outbox/outbox";
 import { pokeOutbox } from "@/lib/outbox/process";
+import { OVERAGE_SUBSCRIPTION_KIND } from "@/lib/billing/usage";
 import { queueStudioStatusMail } from "@/lib/studios/suspension";
 import { PLAN_DEFAULTS, type Quotas } from "./plan";
 import { RUN_LIMIT_REASONS, monthRemainingMs, overageHeadroomMs, studioStanding, type Standing } from "./enforce";
@@ -83,6 +85,11 @@ export async function updateQuotas(db: Db, actor: Actor, studioId: string, patch
     if (changed.length === 0) return;
     const values = { ...after, updatedAt: new Date(), updatedByUserId: actor.id };
     await tx.insert(studioQuotas).values({ studioId, ...values }).onConflictDoUpdate({ target: studioQuotas.studioId, set: values });
+    if ((after.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && !(before.overageAllowed ?? PLAN_DEFAULTS.overageAllowed)) {
+      // Overage turned on: the studio's overage subscription (anchored to the 1st) is made now, through
+      // the outbox so a Stripe outage delays it rather than losing it. Once per studio.
+      await enqueueOutbox(tx, { kind: OVERAGE_SUBSCRIPTION_KIND, idempotencyKey: `overage-subscription:${studioId}`, payload: { studioId }, studioId });
+    }
     await writeAudit(tx, {
       actor,
       studioId,
@@ -94,6 +101,7 @@ export async function updateQuotas(db: Db, actor: Actor, studioId: string, patch
       reason: patch.reason,
     });
   });
+  pokeOutbox();
   return studioQuotaView(db, studioId);
 }
 

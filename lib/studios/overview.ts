@@ -160,7 +160,13 @@ export async function studioOverview(db: Db, studioId: string, role: StudioRole 
   const [memberRow] = await db.select({ n: sql<string>`count(*)` }).from(memberships).where(eq(memberships.studioId, studioId));
   let nextInvoice: StudioOverview["nextInvoice"] = null;
   if (role === "owner" || role === "finance") {
-    const [last] = await db.select().from(invoices).where(eq(invoices.studioId, studioId)).orderBy(desc(invoices.periodEnd), desc(invoices.createdAt)).limit(1);
+    // The last overage invoice: pack purchases have their own invoices, which are not "the next invoice"'s predecessor.
+    const [last] = await db
+      .select()
+      .from(invoices)
+      .where(and(eq(invoices.studioId, studioId), eq(invoices.kind, "overage")))
+      .orderBy(desc(invoices.periodEnd), desc(invoices.createdAt))
+      .limit(1);
     nextInvoice = {
       periodKey: month.key,
       overageMs,

@@ -192,6 +192,8 @@ const OWNER_MANAGES = (ok: number) =>
 const studio = (w: World) => ({ studioId: w.studioId });
 // Money: owners and finance people; engineers 403; API tokens never (403).
 const BILLING_PEOPLE_ROW = (ok: number) => row((a) => (a === "finance" ? ok : OWNER_MANAGES(ok)[a]));
+// Money records for bookkeeping tools: owners and finance, and read (or write) tokens; engineers 403.
+const BILLING_READERS_ROW = (ok: number) => row((a) => (a === "engineer" ? 403 : STUDIO_READ_TOKENS_OK(ok)[a]));
 const sweep = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId });
 const cell = (w: World) => ({ studioId: w.studioId, sweepId: w.sweepId, index: "0" });
 const catalogue = (w: World) => ({ studioId: w.studioId, catalogueId: w.catalogueId });
@@ -330,15 +332,18 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios/[studioId]/billing", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/checkout", method: "POST", params: studio, body: () => ({ packId: "pack_tapout" }), expect: BILLING_PEOPLE_ROW(201) },
   { route: "v1/studios/[studioId]/billing/checkout/[sessionId]", method: "POST", params: (w) => ({ studioId: w.studioId, sessionId: w.checkoutSessionId }), expect: BILLING_PEOPLE_ROW(200) },
-  { route: "v1/studios/[studioId]/billing/ledger", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/ledger", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
   { route: "v1/studios/[studioId]/billing/usage", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
-  { route: "v1/studios/[studioId]/billing/invoices", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/invoices", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
   {
     route: "v1/studios/[studioId]/billing/invoices/[invoiceId]",
     method: "GET",
     params: (w) => ({ studioId: w.studioId, invoiceId: w.invoiceId }),
-    expect: BILLING_PEOPLE_ROW(200),
+    expect: BILLING_READERS_ROW(200),
   },
+  { route: "v1/studios/[studioId]/billing/details", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  // Owners only; the body is valid, so an owner reaches the Stripe customer update (the fake) and gets 200.
+  { route: "v1/studios/[studioId]/billing/details", method: "PUT", params: studio, body: () => ({ billingEmail: "books@gannetyard.test", address: null, taxId: "DE 123456789" }), expect: OWNER_MANAGES(200) },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },
   // No such outbox row: an admin passes the guard and gets 404 for the meter event.
   { route: "v1/admin/finance/meter-events/[outboxId]/retry", method: "POST", params: () => ({ outboxId: "999999" }), body: () => ({ reason: "matrix check" }), expect: ADMIN_ONLY(404) },

@@ -65,6 +65,7 @@ import {
   checkoutCheckAnswer,
   financeAnswer,
   meterRetryAnswer,
+  billingDetailsAnswer,
   invoiceAnswer,
   invoicesAnswer,
   ledgerAnswer,
@@ -75,11 +76,12 @@ import {
 import { auditQuerySchema } from "@/lib/audit/audit";
 import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
-import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
+import { BILLING_PEOPLE, BILLING_READERS, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
 import { checkoutSchema } from "@/lib/billing/checkout";
 import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
-import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
+import { invoicesQuerySchema, ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
+import { billingDetailsSchema } from "@/lib/billing/details";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
 import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
@@ -231,10 +233,12 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: `${S}/billing`, summary: "Balance, packs and this month's usage", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: billingAnswer },
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema, response: checkoutAnswer },
   { method: "post", path: `${S}/billing/checkout/{sessionId}`, summary: "Check a pack payment with Stripe and credit it if paid (the return page's check)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: checkoutCheckAnswer },
-  { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema, response: ledgerAnswer },
+  { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV); read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema, response: ledgerAnswer },
   { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema, response: usageAnswer },
-  { method: "get", path: `${S}/billing/invoices`, summary: "Invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: invoicesAnswer },
-  { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: invoiceAnswer },
+  { method: "get", path: `${S}/billing/invoices`, summary: "Invoices with their hosted page and PDF links (JSON, or CSV with total_cents and total_amount); read tokens may read them", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: invoicesQuerySchema, response: invoicesAnswer },
+  { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger; read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, response: invoiceAnswer },
+  { method: "get", path: `${S}/billing/details`, summary: "Billing e-mail, address and tax ID printed on invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: billingDetailsAnswer },
+  { method: "put", path: `${S}/billing/details`, summary: "Set the billing e-mail, address and tax ID (owners; tax ID is free text, no tax computed)", tag: "Billing", policy: OWNERS_ONLY, ok: 200, body: billingDetailsSchema, response: billingDetailsAnswer },
   { method: "post", path: "/api/v1/stripe/webhook", summary: "Stripe's signed event deliveries (for Stripe only)", tag: "Billing", policy: PUBLIC, ok: 200, internal: true, response: stripeWebhookAnswer },
   // Admin
   { method: "get", path: "/api/v1/admin/studios", summary: "Every studio with its usage", tag: "Admin", policy: ADMIN, ok: 200, response: adminStudiosAnswer },

@@ -4,6 +4,7 @@ import { clone, expand, mustGet, recordEvent, type Ctx } from "./context";
 import { authenticationError, idempotencyMismatch, invalidRequest, serviceUnavailable, StripeFakeError, type StripeErrorBody } from "./errors";
 import { FormParseError, parseForm, type FormObject } from "./form";
 import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted-page";
+import { renderInvoiceMissingPage, renderInvoicePage, renderInvoicePdf } from "./invoice-document";
 import { Params } from "./params";
 import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
@@ -248,6 +249,23 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     }
   }
 
+  /** hosted_invoice_url (/i/:id) and invoice_pdf (/i/:id/pdf): only for finalised invoices, as Stripe sets them at finalisation. */
+  async function handleInvoiceDocument(req: IncomingMessage, res: ServerResponse, invoiceId: string, pdf: boolean): Promise<void> {
+    const invoice = store.get("invoices", invoiceId);
+    if (req.method !== "GET" || !invoice || !invoice.hosted_invoice_url) {
+      return send(res, 404, renderInvoiceMissingPage(invoiceId), { "content-type": "text/html; charset=utf-8" });
+    }
+    if (!pdf) return send(res, 200, renderInvoicePage(invoice), { "content-type": "text/html; charset=utf-8" });
+    const bytes = Buffer.from(await renderInvoicePdf(invoice));
+    res.writeHead(200, {
+      "content-type": "application/pdf",
+      "content-length": String(bytes.length),
+      "content-disposition": `inline; filename="${String(invoice.number ?? invoice.id).replace(/[^A-Za-z0-9_-]/g, "_")}.pdf"`,
+      "request-id": requestId(),
+    });
+    res.end(bytes);
+  }
+
   async function handleHostedPage(req: IncomingMessage, res: ServerResponse, sessionId: string): Promise<void> {
     const html = (status: number, body: string) => send(res, status, body, { "content-type": "text/html; charset=utf-8" });
     const session = store.get("checkout_sessions", sessionId);
@@ -447,10 +465,13 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
   const server = createServer((req, res) => {
     const url = new URL(req.url ?? "/", "http://fake.local");
     const pay = /^\/c\/pay\/([^/]+)$/.exec(url.pathname);
+    const invoicePage = /^\/i\/([^/]+)(\/pdf)?$/.exec(url.pathname);
     const work = url.pathname.startsWith("/v1/")
       ? handleApi(req, res, url)
       : pay
         ? handleHostedPage(req, res, decodeURIComponent(pay[1]))
+        : invoicePage
+          ? handleInvoiceDocument(req, res, decodeURIComponent(invoicePage[1]), Boolean(invoicePage[2]))
         : url.pathname.startsWith("/_fake/")
           ? handleControl(req, res, url)
           : Promise.resolve(sendJson(res, 404, { error: { type: "invalid_request_error", message: `Unrecognized request URL (${req.method}: ${url.pathname}).` } }));

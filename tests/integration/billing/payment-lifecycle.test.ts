@@ -9,7 +9,7 @@ import { and, eq, like } from "drizzle-orm";
 import { getDb, type Db } from "@/db/client";
 import { invoices, ledgerEntries, outbox, stripeEvents } from "@/db/schema";
 import { signatureHeader } from "@/lib/fakes/stripe";
-import { ensureStudioCustomer, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "@/lib/billing/catalog";
+import { ensureOverageSubscription, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "@/lib/billing/catalog";
 import { CHECKOUT_RECONCILE_KIND, reconcileRecentCheckouts, runScheduledCheckoutReconcile, scheduleCheckoutReconcile } from "@/lib/billing/payments";
 import { invoiceStatusMayMove, syncInvoice } from "@/lib/billing/webhook";
 import { OutboxDispatcher } from "@/lib/outbox/outbox";
@@ -228,7 +228,7 @@ describe("invoice statuses only move forward", () => {
   });
 
   it("a handler that read the invoice before it was paid and commits after leaves it paid; events twice, reversed and concurrent change nothing", async () => {
-    const account = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
     // 600,000 ms of overage, so the invoice is not $0 (a zero invoice is paid at finalisation).
     await h.stripe.billing.meterEvents.create({ event_name: METER_EVENT_NAME, identifier: `lifecycle-${s.studioId}`, timestamp: h.fake.now(), payload: { [METER_CUSTOMER_KEY]: account.stripeCustomerId, [METER_VALUE_KEY]: "600000" } });
     h.fake.advanceClock(h.fake.now() + 5);

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { ledgerEntries, outbox, studioQuotas } from "@/db/schema";
-import { ensureStudioCustomer, METER_EVENT_NAME } from "@/lib/billing/catalog";
+import { ensureOverageSubscription, METER_EVENT_NAME } from "@/lib/billing/catalog";
 import { invoiceDetail } from "@/lib/billing/queries";
 import { recordChunkUsage } from "@/lib/billing/usage";
 import { appendLedgerEntry, balanceMs } from "@/lib/ledger/ledger";
@@ -109,7 +109,7 @@ describe("reliability", () => {
   it("with Stripe down while sweeps finish, overage waits in the outbox and reaches Stripe exactly once; the invoice reconciles", async () => {
     const s = await makeSweepStudio("Gannet Yard Overage", 60 * 60_000);
     await allowOverage(s.studioId);
-    const account = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
     const sweep = await submitSweep(db, s.studioId, { spec: puckSpec() }, { chunkOptions: { maxCellsPerChunk: 4 } });
     // The minutes go elsewhere before the sweep runs: every chunk is overage.
     await appendLedgerEntry(db, { studioId: s.studioId, kind: "adjustment", computeMs: -(60 * 60_000), idempotencyKey: `spent:${sweep.id}`, memo: "test: spent elsewhere" });

@@ -255,8 +255,40 @@ function subscriptionItems(sub: StripeObject): StripeObject[] {
   return (sub.items as { data: StripeObject[] }).data;
 }
 
+/**
+ * Stripe's `billing_cycle_anchor` (a unix time, now or later) or `billing_cycle_anchor_config`
+ * (mutually exclusive; monthly and yearly prices only): the anchor is the next occurrence of
+ * day_of_month at hour:minute:second UTC, the day clamped to the month's last day. Without either,
+ * the anchor is the start.
+ */
+function billingCycleAnchor(ctx: Ctx, params: Params, unit: string): { anchor: number; config: Record<string, number | null> | null } {
+  const config = params.object("billing_cycle_anchor_config");
+  if (config && params.has("billing_cycle_anchor")) throw invalidParam("billing_cycle_anchor_config", "You may only specify one of these parameters: billing_cycle_anchor, billing_cycle_anchor_config.");
+  if (params.has("billing_cycle_anchor")) {
+    const at = params.integer("billing_cycle_anchor", { min: 0 }) as number;
+    if (at < ctx.now) throw invalidParam("billing_cycle_anchor", `billing_cycle_anchor cannot be in the past (fake clock now: ${ctx.now}, got ${at}).`);
+    return { anchor: at, config: null };
+  }
+  if (!config) return { anchor: ctx.now, config: null };
+  config.allowOnly(["day_of_month", "hour", "minute", "second", "month"]);
+  if (unit !== "month" && unit !== "year") throw invalidParam("billing_cycle_anchor_config", "billing_cycle_anchor_config is only valid with monthly and yearly price intervals.");
+  const day = config.integer("day_of_month", { required: true, min: 1, max: 31 }) as number;
+  const hour = config.integer("hour", { min: 0, max: 23 }) ?? 0;
+  const minute = config.integer("minute", { min: 0, max: 59 }) ?? 0;
+  const second = config.integer("second", { min: 0, max: 59 }) ?? 0;
+  if (config.has("month")) throw invalidParam(config.name("month"), "The fake anchors monthly cycles only; month is not supported.");
+  const now = new Date(ctx.now * 1000);
+  const at = (year: number, month: number) => {
+    const lastDay = new Date(Date.UTC(year, month + 1, 0)).getUTCDate();
+    return Math.floor(Date.UTC(year, month, Math.min(day, lastDay), hour, minute, second) / 1000);
+  };
+  let anchor = at(now.getUTCFullYear(), now.getUTCMonth());
+  if (anchor < ctx.now) anchor = at(now.getUTCFullYear(), now.getUTCMonth() + 1);
+  return { anchor, config: { day_of_month: day, hour, minute, month: null, second } };
+}
+
 export function createSubscription(ctx: Ctx, params: Params): HandlerResult {
-  params.allowOnly(["customer", "items", "metadata", "collection_method", "days_until_due", "default_payment_method", "description", "payment_behavior", "off_session", "proration_behavior", "cancel_at_period_end"]);
+  params.allowOnly(["customer", "items", "metadata", "collection_method", "days_until_due", "default_payment_method", "description", "payment_behavior", "off_session", "proration_behavior", "cancel_at_period_end", "billing_cycle_anchor", "billing_cycle_anchor_config"]);
   const customer = mustGet(ctx.store, "customers", params.requiredString("customer"), "customer");
   if (customer.deleted) throw invalidParam("customer", `No such customer: '${customer.id}'`, "resource_missing");
   const collectionMethod = params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] }) ?? "charge_automatically";
@@ -292,15 +324,17 @@ export function createSubscription(ctx: Ctx, params: Params): HandlerResult {
     return { price, metadata: applyMetadata({}, item.metadata()) };
   });
   const { interval: unit, interval_count: count } = interval as unknown as { interval: string; interval_count: number };
-  const end = addInterval(start, unit, count);
+  const { anchor, config: anchorConfig } = billingCycleAnchor(ctx, params, unit);
+  // A later anchor makes a short first period [now, anchor); usage in arrears has nothing to prorate.
+  const end = anchor > start ? anchor : addInterval(start, unit, count);
   const sub: StripeObject = {
     id,
     object: "subscription",
     application: null,
     application_fee_percent: null,
     automatic_tax: { disabled_reason: null, enabled: false, liability: null },
-    billing_cycle_anchor: start,
-    billing_cycle_anchor_config: null,
+    billing_cycle_anchor: anchor,
+    billing_cycle_anchor_config: anchorConfig,
     billing_mode: { flexible: null, type: "classic" },
     billing_thresholds: null,
     cancel_at: null,
@@ -438,7 +472,7 @@ function endSubscription(ctx: Ctx, sub: StripeObject, details: { comment: string
 
 // ---------------------------------------------------------------- invoices
 
-function baseInvoice(ctx: Ctx, customer: StripeObject, fields: { subscription: StripeObject | null; periodStart: number; periodEnd: number; billingReason: string; collectionMethod: string; daysUntilDue: number | null; description: string | null; metadata: Record<string, string>; autoAdvance: boolean }): StripeObject {
+export function baseInvoice(ctx: Ctx, customer: StripeObject, fields: { subscription: StripeObject | null; periodStart: number; periodEnd: number; billingReason: string; collectionMethod: string; daysUntilDue: number | null; description: string | null; metadata: Record<string, string>; autoAdvance: boolean }): StripeObject {
   const id = newId("in", 24);
   return {
     id,
@@ -461,10 +495,11 @@ function baseInvoice(ctx: Ctx, customer: StripeObject, fields: { subscription: S
     collection_method: fields.collectionMethod,
     created: ctx.now,
     currency: (fields.subscription?.currency as string | undefined) ?? "usd",
-    custom_fields: null,
+    // Copied from the customer when the invoice is made, as Stripe does: later edits do not rewrite issued documents.
+    custom_fields: clone((customer.invoice_settings as { custom_fields?: unknown } | null)?.custom_fields ?? null),
     customer: customer.id,
     customer_account: null,
-    customer_address: null,
+    customer_address: clone(customer.address ?? null),
     customer_email: customer.email ?? null,
     customer_name: customer.name ?? null,
     customer_phone: customer.phone ?? null,
@@ -520,7 +555,7 @@ function baseInvoice(ctx: Ctx, customer: StripeObject, fields: { subscription: S
   };
 }
 
-function setInvoiceLines(invoice: StripeObject, lines: StripeObject[]): void {
+export function setInvoiceLines(invoice: StripeObject, lines: StripeObject[]): void {
   const total = lines.reduce((sum, l) => sum + (l.amount as number), 0);
   invoice.lines = { object: "list", data: lines, has_more: false, total_count: lines.length, url: `/v1/invoices/${invoice.id}/lines` };
   invoice.subtotal = total;
@@ -612,13 +647,16 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
   return invoice;
 }
 
-function finalizeInvoiceObject(ctx: Ctx, invoice: StripeObject): void {
+export function finalizeInvoiceObject(ctx: Ctx, invoice: StripeObject): void {
   const customer = mustGet(ctx.store, "customers", invoice.customer as string);
   const sequence = customer.next_invoice_sequence as number;
   customer.next_invoice_sequence = sequence + 1;
   invoice.number = `${String(customer.invoice_prefix)}-${String(sequence).padStart(4, "0")}`;
   invoice.status = "open";
   invoice.effective_at = ctx.now;
+  // Stripe sets both links at finalisation; the fake serves them (server.ts: /i/:id and /i/:id/pdf).
+  invoice.hosted_invoice_url = `${ctx.baseUrl}/i/${invoice.id}`;
+  invoice.invoice_pdf = `${ctx.baseUrl}/i/${invoice.id}/pdf`;
   invoice.status_transitions = { ...(invoice.status_transitions as object), finalized_at: ctx.now };
   if (invoice.collection_method === "send_invoice") {
     const sub = invoice.parent ? ctx.store.get("subscriptions", (invoice.parent as { subscription_details: { subscription: string } }).subscription_details.subscription) : undefined;
@@ -629,7 +667,7 @@ function finalizeInvoiceObject(ctx: Ctx, invoice: StripeObject): void {
   if ((invoice.amount_due as number) === 0) markPaid(ctx, invoice, "open");
 }
 
-function markPaid(ctx: Ctx, invoice: StripeObject, previousStatus: string): void {
+export function markPaid(ctx: Ctx, invoice: StripeObject, previousStatus: string): void {
   invoice.amount_paid = invoice.amount_due;
   invoice.amount_remaining = 0;
   invoice.status = "paid";

@@ -21,12 +21,35 @@ function currencyParam(params: Params, key = "currency"): string {
 
 // ---------------------------------------------------------------- customers
 
-const CUSTOMER_WRITE_KEYS = ["email", "name", "description", "metadata", "phone", "invoice_settings", "preferred_locales"] as const;
+const CUSTOMER_WRITE_KEYS = ["email", "name", "description", "metadata", "phone", "invoice_settings", "preferred_locales", "address"] as const;
+
+/** Stripe's address hash (every field optional, country a 2-letter code); an empty string unsets it. */
+function readAddress(params: Params): Record<string, string | null> | null | undefined {
+  if (params.raw.address === "") return null;
+  const address = params.object("address");
+  if (!address) return undefined;
+  address.allowOnly(["line1", "line2", "city", "state", "postal_code", "country"]);
+  const field = (key: string) => address.nullableString(key, 200) ?? null;
+  const country = field("country");
+  if (country !== null && !/^[A-Za-z]{2}$/.test(country)) throw invalidParam(address.name("country"), "Country must be a two-letter ISO code (ISO 3166-1 alpha-2).");
+  return { city: field("city"), country: country?.toUpperCase() ?? null, line1: field("line1"), line2: field("line2"), postal_code: field("postal_code"), state: field("state") };
+}
+
+/** invoice_settings[custom_fields]: up to 4 {name ≤ 40, value ≤ 140} shown on every invoice; "" unsets. */
+function readCustomFields(settings: Params): Array<{ name: string; value: string }> | null | undefined {
+  if (settings.raw.custom_fields === "") return null;
+  if (settings.raw.custom_fields === undefined) return undefined;
+  return settings.array("custom_fields", { maxItems: 4 }).map((f) => {
+    f.allowOnly(["name", "value"]);
+    return { name: f.requiredString("name", { max: 40 }), value: f.requiredString("value", { max: 140 }) };
+  });
+}
 
 function readDefaultPaymentMethod(ctx: Ctx, params: Params): string | null | undefined {
   const settings = params.object("invoice_settings");
   if (!settings) return undefined;
-  settings.allowOnly(["default_payment_method"]);
+  settings.allowOnly(["default_payment_method", "custom_fields"]);
+  if (!settings.has("default_payment_method")) return undefined;
   const pm = settings.nullableString("default_payment_method");
   if (pm) ensurePaymentMethod(ctx, pm, settings.name("default_payment_method"));
   return pm;
@@ -97,6 +120,10 @@ export function createCustomer(ctx: Ctx, params: Params): HandlerResult {
     preferredLocales: params.stringArray("preferred_locales"),
     defaultPaymentMethod: defaultPm,
   });
+  customer.address = readAddress(params) ?? null;
+  const settings = params.object("invoice_settings");
+  const customFields = settings ? readCustomFields(settings) : undefined;
+  if (customFields !== undefined) customer.invoice_settings = { ...(customer.invoice_settings as object), custom_fields: customFields };
   ctx.store.insert("customers", customer);
   ctx.emit("customer.created", customer);
   return { body: customer };
@@ -124,10 +151,14 @@ export function updateCustomer(ctx: Ctx, params: Params, id: string): HandlerRes
   set("phone", params.nullableString("phone", 20));
   set("preferred_locales", params.stringArray("preferred_locales"));
   set("metadata", params.has("metadata") ? applyMetadata(customer.metadata as Record<string, string>, params.metadata()) : undefined);
+  set("address", readAddress(params));
   const defaultPm = readDefaultPaymentMethod(ctx, params);
   if (defaultPm !== undefined) {
     set("invoice_settings", { ...(customer.invoice_settings as object), default_payment_method: defaultPm });
   }
+  const settings = params.object("invoice_settings");
+  const customFields = settings ? readCustomFields(settings) : undefined;
+  if (customFields !== undefined) set("invoice_settings", { ...(customer.invoice_settings as object), custom_fields: customFields });
   if (Object.keys(previous).length > 0) ctx.emit("customer.updated", customer, previous);
   return { body: customer };
 }

@@ -6,6 +6,7 @@ import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
 import { createCharge, openDispute, settleCharge } from "./payments";
 import { currencyParam, insertPrice, insertProduct, newCustomerObject, paymentMethodObject, readUnitAmount } from "./catalog";
+import { baseInvoice, finalizeInvoiceObject, markPaid, setInvoiceLines } from "./billing";
 
 const SESSION_KEYS = [
   "mode",
@@ -24,6 +25,7 @@ const SESSION_KEYS = [
   "submit_type",
   "ui_mode",
   "customer_creation",
+  "invoice_creation",
 ] as const;
 
 const MIN_EXPIRY_S = 30 * 60;
@@ -99,6 +101,8 @@ export function createSession(ctx: Ctx, params: Params): HandlerResult {
   const piDescription = piData?.nullableString("description") ?? null;
   piData?.string("setup_future_usage", { oneOf: ["on_session", "off_session"] });
 
+  const invoiceCreation = readInvoiceCreation(params);
+
   const lineItemParams = params.array("line_items", { required: true, maxItems: 100 });
   if (lineItemParams.length === 0) throw invalidParam("line_items", "line_items must contain at least one item.");
   const metadata = applyMetadata({}, params.metadata());
@@ -158,7 +162,7 @@ export function createSession(ctx: Ctx, params: Params): HandlerResult {
     discounts: [],
     expires_at: expiresAt,
     invoice: null,
-    invoice_creation: { enabled: false, invoice_data: { account_tax_ids: null, custom_fields: null, description: null, footer: null, issuer: null, metadata: {}, rendering_options: null } },
+    invoice_creation: invoiceCreation,
     livemode: false,
     locale: params.string("locale") ?? null,
     metadata,
@@ -192,6 +196,84 @@ export function createSession(ctx: Ctx, params: Params): HandlerResult {
   // Kept beside the session (not on it) until the payment intent exists.
   ctx.store.data.session_intent_data[id] = { metadata: piMetadata, description: piDescription };
   return { body: session };
+}
+
+/** Checkout's `invoice_creation` (payment mode): when enabled, a paid invoice is made for the session once it is paid. */
+function readInvoiceCreation(params: Params): Record<string, unknown> {
+  const off = { enabled: false, invoice_data: { account_tax_ids: null, custom_fields: null, description: null, footer: null, issuer: null, metadata: {}, rendering_options: null } };
+  const creation = params.object("invoice_creation");
+  if (!creation) return off;
+  creation.allowOnly(["enabled", "invoice_data"]);
+  const enabled = creation.boolean("enabled");
+  if (enabled === undefined) throw invalidParam(creation.name("enabled"), `Missing required param: ${creation.name("enabled")}.`, "parameter_missing");
+  const data = creation.object("invoice_data");
+  data?.allowOnly(["description", "footer", "metadata", "custom_fields"]);
+  const customFields = data?.array("custom_fields", { maxItems: 4 }).map((f) => {
+    f.allowOnly(["name", "value"]);
+    return { name: f.requiredString("name", { max: 40 }), value: f.requiredString("value", { max: 140 }) };
+  });
+  return {
+    enabled,
+    invoice_data: {
+      ...off.invoice_data,
+      custom_fields: customFields?.length ? customFields : null,
+      description: data?.nullableString("description", 1500) ?? null,
+      footer: data?.nullableString("footer", 5000) ?? null,
+      metadata: data ? applyMetadata({}, data.metadata()) : {},
+    },
+  };
+}
+
+/**
+ * The post-payment invoice of a paid session with invoice_creation enabled: one line per session
+ * line, finalised and marked paid (status paid, amount_paid = the session total), with the
+ * customer's address and invoice custom fields as they are at payment time.
+ */
+function invoiceForPaidSession(ctx: Ctx, session: StripeObject): void {
+  const creation = session.invoice_creation as { enabled: boolean; invoice_data: { custom_fields: Array<{ name: string; value: string }> | null; description: string | null; footer: string | null; metadata: Record<string, string> } };
+  if (!creation.enabled || session.invoice || !session.customer) return;
+  const customer = mustGet(ctx.store, "customers", session.customer as string);
+  const invoice = baseInvoice(ctx, customer, {
+    subscription: null,
+    periodStart: ctx.now,
+    periodEnd: ctx.now,
+    billingReason: "manual",
+    collectionMethod: "charge_automatically",
+    daysUntilDue: null,
+    description: creation.invoice_data.description,
+    metadata: clone(creation.invoice_data.metadata),
+    autoAdvance: false,
+  });
+  invoice.currency = session.currency;
+  if (creation.invoice_data.custom_fields) invoice.custom_fields = clone(creation.invoice_data.custom_fields);
+  invoice.footer = creation.invoice_data.footer;
+  const lines = (ctx.store.data.session_line_items[session.id] ?? []).map((li) => ({
+    id: newId("il", 24),
+    object: "line_item",
+    amount: li.amount_total,
+    currency: li.currency,
+    description: li.description,
+    discount_amounts: [],
+    discountable: true,
+    discounts: [],
+    invoice: invoice.id,
+    livemode: false,
+    metadata: {},
+    parent: null,
+    period: { end: ctx.now, start: ctx.now },
+    pretax_credit_amounts: [],
+    pricing: { price_details: { price: (li.price as StripeObject).id, product: (li.price as StripeObject).product }, type: "price_details", unit_amount_decimal: (li.price as StripeObject).unit_amount_decimal },
+    quantity: li.quantity,
+    quantity_decimal: String(li.quantity),
+    subtotal: li.amount_total,
+    taxes: [],
+  }));
+  setInvoiceLines(invoice, lines);
+  ctx.store.insert("invoices", invoice);
+  session.invoice = invoice.id;
+  ctx.emit("invoice.created", invoice);
+  finalizeInvoiceObject(ctx, invoice);
+  if (invoice.status !== "paid") markPaid(ctx, invoice, "open");
 }
 
 /** Open sessions past `expires_at` (on the fake clock) become expired when next touched, with their event. */
@@ -328,6 +410,7 @@ export function payFromHostedPage(ctx: Ctx, sessionId: string, form: { cardNumbe
   session.url = null;
   session.customer_details = { address: null, email, name: (session.customer_details as { name?: string } | null)?.name ?? null, phone: null, tax_exempt: "none", tax_ids: [] };
   ctx.emit("payment_intent.succeeded", pi);
+  invoiceForPaidSession(ctx, session);
   ctx.emit("checkout.session.completed", session);
   const disputeReason = DISPUTED_CARDS[digits];
   if (disputeReason) openDispute(ctx, charge.id, { reason: disputeReason });
@@ -401,6 +484,7 @@ export function settleDelayedPayments(ctx: Ctx): Array<{ session: string; paymen
       pi.amount_received = pi.amount;
       session.payment_status = "paid";
       ctx.emit("payment_intent.succeeded", pi);
+      invoiceForPaidSession(ctx, session);
       ctx.emit("checkout.session.async_payment_succeeded", session, { payment_status: "unpaid" });
       settled.push({ session: session.id, paymentIntent: pi.id, outcome: "succeeded" });
     } else {

@@ -1,5 +1,5 @@
 import { getDb } from "@/db/client";
-import { BILLING_PEOPLE, withAuth } from "@/lib/auth/guard";
+import { BILLING_READERS, withAuth } from "@/lib/auth/guard";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { ledgerCsv, ledgerPage, parseLedgerQuery } from "@/lib/billing/queries";
@@ -8,7 +8,7 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 // The studio's ledger: filter (kind, from, to), sort, page; format=csv returns every matching entry.
-export const GET = withAuth(BILLING_PEOPLE, async ({ req, studio }) => {
+export const GET = withAuth(BILLING_READERS, async ({ req, studio }) => {
   const query = parseLedgerQuery(new URL(req.url));
   const page = await ledgerPage(await getDb(), studio.id, query);
   if (query.format === "csv")

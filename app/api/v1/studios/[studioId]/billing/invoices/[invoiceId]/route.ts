@@ -1,5 +1,5 @@
 import { getDb } from "@/db/client";
-import { BILLING_PEOPLE, withAuth } from "@/lib/auth/guard";
+import { BILLING_READERS, withAuth } from "@/lib/auth/guard";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { invoiceDetail } from "@/lib/billing/queries";
@@ -7,7 +7,7 @@ import { invoiceDetail } from "@/lib/billing/queries";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const GET = withAuth<typeof BILLING_PEOPLE, { studioId: string; invoiceId: string }>(BILLING_PEOPLE, async ({ studio, params }) =>
+export const GET = withAuth<typeof BILLING_READERS, { studioId: string; invoiceId: string }>(BILLING_READERS, async ({ studio, params }) =>
   json(await invoiceDetail(await getDb(), studio.id, params.invoiceId)),
 );
 
