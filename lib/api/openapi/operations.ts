@@ -16,6 +16,7 @@ import { BILLING_PEOPLE, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard"
 import { checkoutSchema } from "@/lib/billing/checkout";
 import { adminRefundSchema } from "@/lib/billing/refunds";
 import { ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
+import { ledgerExportQuerySchema, ledgerGroupsQuerySchema } from "@/lib/ledger/statement";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
 import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
@@ -166,6 +167,9 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema },
   { method: "post", path: `${S}/billing/checkout/{sessionId}`, summary: "Check a pack payment with Stripe and credit it if paid (the return page's check)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema },
+  { method: "get", path: `${S}/billing/ledger/sweeps`, summary: "The ledger grouped by sweep (one row per sweep's usage)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: ledgerGroupsQuerySchema },
+  { method: "get", path: `${S}/billing/ledger/sweeps/{sweepId}`, summary: "One sweep's ledger entries, chunk by chunk", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
+  { method: "get", path: `${S}/billing/ledger/export`, summary: "The ledger as CSV or JSON, per entry or per sweep; columns name ms and minutes, cents and dollars", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, produces: "json-or-csv", query: ledgerExportQuerySchema },
   { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema },
   { method: "get", path: `${S}/billing/invoices`, summary: "Invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
   { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger", tag: "Billing", policy: BILLING_PEOPLE, ok: 200 },
