@@ -128,10 +128,19 @@ test("the stability map reads in grey: each verdict's cells carry their own symb
     const alike = list.filter((mask) => differences(mask, symbols.get(verdict)!) <= 8).length;
     expect(alike / list.length, `${verdict}: ${alike} of ${list.length} cells show its symbol`).toBeGreaterThanOrEqual(0.5);
   }
-  // … and any two verdicts' symbols differ clearly.
+  // … and any two verdicts' symbols differ by more than the cells of one verdict differ among
+  // themselves (signal above noise): at least twice the larger of the two verdicts' median
+  // cell-to-symbol difference, plus one, and never fewer than 3 of the 64 bins. A dot against a bar
+  // differs in about 6 bins at this size; one glyph drawn twice differs in 0–2.
+  const noise = new Map([...masks].map(([verdict, list]) => {
+    const distances = list.map((mask) => differences(mask, symbols.get(verdict)!)).sort((x, y) => x - y);
+    return [verdict, distances[Math.floor(distances.length / 2)]] as const;
+  }));
   for (let a = 0; a < verdicts.length; a++) {
     for (let b = a + 1; b < verdicts.length; b++) {
-      expect(differences(symbols.get(verdicts[a])!, symbols.get(verdicts[b])!), `${verdicts[a]} vs ${verdicts[b]}`).toBeGreaterThanOrEqual(8);
+      const needed = Math.max(3, 2 * Math.max(noise.get(verdicts[a])!, noise.get(verdicts[b])!) + 1);
+      const apart = differences(symbols.get(verdicts[a])!, symbols.get(verdicts[b])!);
+      expect(apart, `${verdicts[a]} vs ${verdicts[b]}: ${apart} bins apart; cells of one verdict differ by ${noise.get(verdicts[a])} and ${noise.get(verdicts[b])}`).toBeGreaterThanOrEqual(needed);
     }
   }
   await map.evaluate((canvas) => ((canvas as HTMLCanvasElement).style.filter = ""));
