@@ -156,7 +156,8 @@ test("the stability map reads in grey: each verdict's cells carry their own symb
   const svg = await readFile((await (await svgDownload).path())!, "utf8");
   expect(svg).toContain("<svg");
   expect(svg).toContain(`Sweep: ${STIFFNESS_SWEEP.replace(/&/g, "&amp;")}`);
-  expect(svg).toMatch(/Across: Contact stiffness/);
+  // The axis is named as the builder names the parameter ("contact stiffness k", lib/sweeps/parameters.ts).
+  expect(svg).toMatch(/Across: contact stiffness k/);
   expect(svg).toContain("Showing: largest energy error (relative)");
   expect(svg).toContain("Tolerances: energy drift");
   expect(svg).toMatch(/Exported \d{4}-\d{2}-\d{2} \d{2}:\d{2} UTC/);
