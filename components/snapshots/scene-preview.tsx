@@ -42,7 +42,7 @@ export function ScenePreview({ bodies, walls }: { bodies: readonly SnapshotBody[
             <circle cx={disc.cx} cy={disc.cy} r={disc.r} fill="#cfe8df" stroke="#0f6b5c" strokeWidth={1.25} />
             {disc.arrow ? <line x1={disc.cx} y1={disc.cy} x2={disc.arrow.x} y2={disc.arrow.y} stroke="#c2410c" strokeWidth={1.5} markerEnd="url(#kd-velocity)" className="text-[#c2410c]" /> : null}
             {drawing.labelled ? (
-              <text x={disc.cx} y={disc.cy} textAnchor="middle" dominantBaseline="central" fontSize={Math.min(12, disc.r * 1.1)} fill="currentColor">
+              <text x={disc.cx} y={disc.cy} textAnchor="middle" dominantBaseline="central" fontSize={Math.max(8, Math.min(12, disc.r * 1.1))} fill="currentColor">
                 {disc.number}
               </text>
             ) : null}
@@ -50,7 +50,7 @@ export function ScenePreview({ bodies, walls }: { bodies: readonly SnapshotBody[
         ))}
       </svg>
       <figcaption className="text-xs text-ink-muted">
-        Discs numbered from 1 in file order{drawing.labelled ? "" : " (hover a disc for its number: too many or too small to label)"}; arrows show {drawing.arrowSeconds > 0 ? `${Number(drawing.arrowSeconds.toPrecision(2))} s of travel` : "no motion (every disc at rest)"}. 100 px ≈{" "}
+        Discs numbered from 1 in file order{drawing.labelled ? "" : " (hover a disc for its number: too many discs to label)"}; arrows show {drawing.arrowSeconds > 0 ? `${Number(drawing.arrowSeconds.toPrecision(2))} s of travel` : "no motion (every disc at rest)"}. 100 px ≈{" "}
         {Number(metresPer100px.toPrecision(2))} m.
         {drawing.wallsOutside.length > 0 ? ` Walls ${drawing.wallsOutside.join(", ")} lie outside the drawn area.` : ""}
       </figcaption>

@@ -39,7 +39,7 @@ export interface SceneDrawing {
   arrowSeconds: number;
   /** Metres per view-box pixel, for the scale note. */
   metresPerPixel: number;
-  /** Number labels drawn on the discs (off when discs are too many or too small to hold one). */
+  /** Number labels drawn on the discs (off when there are too many discs to label). */
   labelled: boolean;
 }
 
@@ -114,8 +114,9 @@ export function drawScene(scene: { bodies: readonly SnapshotBody[]; walls: reado
     const [x1, y1, x2, y2] = [toX(segment[0]), toY(segment[1]), toX(segment[2]), toY(segment[3])];
     drawnWalls.push({ number: i + 1, x1: round(x1), y1: round(y1), x2: round(x2), y2: round(y2), labelX: round(x1 + (x2 - x1) * 0.12), labelY: round(y1 + (y2 - y1) * 0.12) });
   });
-  const smallest = discs.reduce((r, d) => Math.min(r, d.r), Infinity);
-  return { width, height, discs, walls: drawnWalls, wallsOutside, arrowSeconds, metresPerPixel: 1 / scale, labelled: discs.length <= MAX_LABELLED_DISCS && smallest >= 7 };
+  // A small disc's number may reach past its rim (the label keeps a legible 8 px at least); past
+  // MAX_LABELLED_DISCS the numbers would cover the scene, so they move to the tooltips.
+  return { width, height, discs, walls: drawnWalls, wallsOutside, arrowSeconds, metresPerPixel: 1 / scale, labelled: discs.length <= MAX_LABELLED_DISCS };
 }
 
 /** The part of the wall's surface line (n · p = offset) inside the rectangle, or null (Liang–Barsky clipping). */

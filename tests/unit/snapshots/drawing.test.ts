@@ -67,6 +67,10 @@ describe("the scene drawing", () => {
     expect(drawing.discs).toHaveLength(41);
     expect(drawing.walls).toHaveLength(4);
     expect(drawing.discs.at(-1)!.number).toBe(41);
+    expect(drawing.labelled).toBe(true);
+    // Past 80 discs the numbers move to the tooltips.
+    const many = Array.from({ length: 81 }, (_, i) => body(i * 2, 0));
+    expect(drawScene({ bodies: many, walls: [] }, 640, 360).labelled).toBe(false);
   });
 });
 
