@@ -1,15 +1,15 @@
 "use client";
 
 import { useMutation, useQuery } from "@tanstack/react-query";
-import { useState } from "react";
 import { Bar, BarChart, CartesianGrid, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
-import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField, cx } from "@/components/ui";
+import { Alert, Button, Card, EmptyState, LoadingRows, cx } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import type { CreditPack } from "@/lib/billing/packs";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
-import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { OVERAGE_DAYS_UNTIL_DUE } from "@/lib/billing/packs";
+import { LedgerBySweep } from "./ledger-by-sweep";
+import { formatDateTime } from "@/lib/ui/format";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
 import { BillingDetailsCard } from "./billing-details";
 import { formatCompute } from "@/lib/billing/format";
@@ -30,17 +30,7 @@ type Summary = {
   };
   month: { key: string; usedMs: number; capMs: number };
 };
-type LedgerEntry = { id: number; kind: string; computeMs: number; overageMs: number; amountCents: number; sweepId: string | null; chunkIndex: number | null; memo: string; createdAt: string };
-type LedgerPage = { entries: LedgerEntry[]; page: number; pageSize: number; total: number };
 type Usage = { days: number; byDay: { day: string; usedMs: number; overageMs: number }[]; bySweep: { sweepId: string | null; name: string; usedMs: number }[]; byMember: { userId: string | null; email: string; usedMs: number }[] };
-
-const SORTS = [
-  ["createdAt", "Date"],
-  ["kind", "Kind"],
-  ["computeMs", "Minutes"],
-  ["overageMs", "Overage"],
-  ["amountCents", "Amount"],
-] as const;
 
 type PaymentCheck = { sessionId: string; state: "credited" | "processing" | "failed" | "open" | "expired" | "refused"; amountCents: number; creditedMs: number; message: string };
 
@@ -155,111 +145,10 @@ export function BillingPage({ studioId, studioName, role, checkout, sessionId }:
           </Card>
         </div>
         <BillingDetailsCard studioId={studioId} role={role} />
-        <LedgerTable api={api} />
+        <LedgerBySweep api={api} studioId={studioId} />
         <UsageCharts api={api} studioId={studioId} />
       </div>
     </StudioShell>
-  );
-}
-
-function LedgerTable({ api }: { api: string }) {
-  const [kind, setKind] = useState("");
-  const [from, setFrom] = useState("");
-  const [to, setTo] = useState("");
-  const [sort, setSort] = useState<(typeof SORTS)[number][0]>("createdAt");
-  const [order, setOrder] = useState<"asc" | "desc">("desc");
-  const [page, setPage] = useState(1);
-  const params = new URLSearchParams({ sort, order, page: String(page), pageSize: "20" });
-  if (kind) params.set("kind", kind);
-  if (from) params.set("from", from);
-  if (to) params.set("to", to);
-  const ledger = useQuery({ queryKey: ["billing", api, "ledger", params.toString()], queryFn: () => apiFetch<LedgerPage>(`${api}/ledger?${params}`) });
-  const csv = new URLSearchParams(params);
-  csv.set("format", "csv");
-  csv.delete("page");
-  csv.delete("pageSize");
-  const pages = ledger.data ? Math.max(1, Math.ceil(ledger.data.total / ledger.data.pageSize)) : 1;
-  const sortBy = (column: typeof sort) => {
-    if (column === sort) setOrder(order === "asc" ? "desc" : "asc");
-    else {
-      setSort(column);
-      setOrder("desc");
-    }
-    setPage(1);
-  };
-  return (
-    <Card
-      title="Ledger"
-      actions={
-        <a className="text-sm font-medium text-kick hover:underline" href={`${api}/ledger?${csv}`} download>
-          Download CSV
-        </a>
-      }
-    >
-      <div className="mb-4 grid grid-cols-1 gap-3 sm:grid-cols-3">
-        <SelectField id="ledger-kind" label="Kind" value={kind} onChange={(e) => (setKind(e.target.value), setPage(1))}>
-          <option value="">All kinds</option>
-          <option value="purchase">Purchases</option>
-          <option value="usage">Usage</option>
-          <option value="adjustment">Adjustments</option>
-          <option value="refund">Refunds</option>
-        </SelectField>
-        <TextField id="ledger-from" label="From (UTC)" type="date" value={from} onChange={(e) => (setFrom(e.target.value), setPage(1))} />
-        <TextField id="ledger-to" label="To (UTC, inclusive)" type="date" value={to} onChange={(e) => (setTo(e.target.value), setPage(1))} />
-      </div>
-      {ledger.isPending ? (
-        <LoadingRows label="ledger entries" />
-      ) : ledger.isError ? (
-        <Alert>{errorMessage(ledger.error)}</Alert>
-      ) : ledger.data.entries.length === 0 ? (
-        <EmptyState>No entries match.</EmptyState>
-      ) : (
-        <div className="relative overflow-x-auto">
-          <table className="w-full text-sm" data-testid="ledger-table">
-            <thead className="border-b border-line">
-              <tr>
-                {SORTS.map(([column, label]) => (
-                  <th key={column} scope="col" className={th} aria-sort={sort === column ? (order === "asc" ? "ascending" : "descending") : "none"}>
-                    <button type="button" className="uppercase hover:text-ink" onClick={() => sortBy(column)}>
-                      {label}
-                      {sort === column ? (order === "asc" ? " ▲" : " ▼") : ""}
-                    </button>
-                  </th>
-                ))}
-                <th scope="col" className={th}>
-                  Memo
-                </th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {ledger.data.entries.map((entry) => (
-                <tr key={entry.id}>
-                  <td className={cx(td, "whitespace-nowrap")}>{formatDateTime(entry.createdAt)}</td>
-                  <td className={td}>{entry.kind}</td>
-                  <td className={cx(td, "text-right tabular-nums", entry.computeMs < 0 ? "text-danger" : "text-ok")}>{formatMinutes(entry.computeMs)}</td>
-                  <td className={cx(td, "text-right tabular-nums")}>{entry.overageMs ? formatMinutes(entry.overageMs) : ""}</td>
-                  <td className={cx(td, "text-right tabular-nums")}>{entry.amountCents ? formatPriceCents(entry.amountCents) : ""}</td>
-                  <td className={cx(td, "break-all text-ink-muted")}>{entry.memo}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
-      )}
-      <div className="mt-3 flex items-center justify-between text-sm">
-        <span className="text-ink-muted">
-          {ledger.data ? `${ledger.data.total} entries · page ${page} of ${pages}` : ""}
-        </span>
-        <span className="flex gap-2">
-          <Button variant="ghost" disabled={page <= 1} onClick={() => setPage(page - 1)}>
-            Previous
-          </Button>
-          <Button variant="ghost" disabled={page >= pages} onClick={() => setPage(page + 1)}>
-            Next
-          </Button>
-        </span>
-      </div>
-    </Card>
   );
 }
 
@@ -270,8 +159,8 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
   if (usage.isPending) return <LoadingRows label="usage" />;
   if (usage.isError) return <Alert>{errorMessage(usage.error)}</Alert>;
   const byDay = usage.data.byDay.map((d) => ({ day: d.day, prepaid: minutesOf(d.usedMs - d.overageMs), overage: minutesOf(d.overageMs) }));
-  const bySweep = usage.data.bySweep.slice(0, 10).map((s) => ({ name: s.name, minutes: minutesOf(s.usedMs) }));
-  const byMember = usage.data.byMember.map((m) => ({ name: m.email, minutes: minutesOf(m.usedMs) }));
+  const bySweep = usage.data.bySweep.slice(0, 10).map((s) => ({ key: s.sweepId ?? "none", name: s.name, minutes: minutesOf(s.usedMs) }));
+  const byMember = usage.data.byMember.map((m) => ({ key: m.userId ?? "none", name: m.email, minutes: minutesOf(m.usedMs) }));
   return (
     <div className="grid grid-cols-1 gap-6 xl:grid-cols-3">
       <Card title="Usage by day (last 30 days, minutes)">
@@ -292,7 +181,7 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
           </div>
         )}
       </Card>
-      <HorizontalBars title="Usage by sweep (minutes)" data={bySweep} testId="usage-by-sweep" />
+      <HorizontalBars title="Usage by sweep (compute minutes, top 10)" data={bySweep} testId="usage-by-sweep" className="xl:col-span-2" />
       <Card title="Billed per sweep">
         {usage.data.bySweep.length === 0 ? (
           <EmptyState>Nothing yet.</EmptyState>
@@ -326,25 +215,51 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
         )}
         <p className="mt-3 text-xs text-ink-muted">{METERING_NOTE}</p>
       </Card>
-      <HorizontalBars title="Usage by member (minutes)" data={byMember} testId="usage-by-member" />
+      <HorizontalBars title="Usage by member (compute minutes)" data={byMember} testId="usage-by-member" />
     </div>
   );
 }
 
-function HorizontalBars({ title, data, testId }: { title: string; data: { name: string; minutes: number }[]; testId: string }) {
+/** Longest label drawn beside a bar; the full name is in the label's tooltip and in the bar's. */
+const LABEL_CHARS = 30;
+const BAR_ROW_PX = 34;
+
+/**
+ * Horizontal bars, one row per item at a fixed height (the chart grows with the rows, so labels never
+ * overlap), labelled by name — keyed by id, so two sweeps of the same name stay two bars — with the
+ * axis naming its unit.
+ */
+function HorizontalBars({ title, data, testId, className }: { title: string; data: { key: string; name: string; minutes: number }[]; testId: string; className?: string }) {
+  const names = new Map(data.map((d) => [d.key, d.name]));
+  const short = (key: string) => {
+    const name = names.get(key) ?? key;
+    return name.length > LABEL_CHARS ? `${name.slice(0, LABEL_CHARS - 1)}…` : name;
+  };
   return (
-    <Card title={title}>
+    <Card title={title} className={className}>
       {data.length === 0 ? (
         <EmptyState>Nothing yet.</EmptyState>
       ) : (
-        <div className="h-64" data-testid={testId}>
+        <div style={{ height: 56 + data.length * BAR_ROW_PX }} data-testid={testId}>
           <ResponsiveContainer>
-            <BarChart data={data} layout="vertical" margin={{ left: 24 }}>
+            <BarChart data={data} layout="vertical" margin={{ left: 8, right: 16, bottom: 16 }}>
               <CartesianGrid strokeDasharray="3 3" />
-              <XAxis type="number" fontSize={11} />
-              <YAxis type="category" dataKey="name" width={140} fontSize={11} />
-              <Tooltip />
-              <Bar dataKey="minutes" fill="#0f6b5c" name="Minutes" />
+              <XAxis type="number" fontSize={11} label={{ value: "compute minutes", position: "insideBottom", offset: -8, fontSize: 11 }} />
+              <YAxis
+                type="category"
+                dataKey="key"
+                width={210}
+                fontSize={11}
+                interval={0}
+                tick={({ x, y, payload }: { x?: number | string; y?: number | string; payload?: { value?: unknown } }) => (
+                  <text x={x} y={y} dy={4} textAnchor="end" fontSize={11} fill="currentColor" data-testid="bar-label">
+                    <title>{names.get(String(payload?.value)) ?? String(payload?.value)}</title>
+                    {short(String(payload?.value))}
+                  </text>
+                )}
+              />
+              <Tooltip labelFormatter={(key) => names.get(String(key)) ?? String(key)} formatter={(value) => [`${Number(value).toLocaleString("en-US")} min`, "Compute"]} />
+              <Bar dataKey="minutes" fill="#0f6b5c" name="Compute minutes" barSize={18} />
             </BarChart>
           </ResponsiveContainer>
         </div>

@@ -17,6 +17,7 @@ import type { GlyphName } from "@/lib/charts/categories";
 import { glyphIsFilled, traceGlyph } from "@/lib/charts/glyphs";
 import { lutColourCss } from "@/lib/charts/colormaps";
 import { axisTickLabel, inkOn, type MapAxis, type MapModel } from "./map-model";
+import { cellRuns, forEachGlyphCell, GLYPH_MIN_CELL_PX, glyphCellSize } from "./cell-runs";
 
 /** Theme colours of the chrome (text, lines, background); the data colours are the map's own. */
 export interface ChromeColours {
@@ -76,7 +77,6 @@ export interface MapLayout {
 
 const TICK_LENGTH = 5;
 export const TITLE_BLOCK_LINE_PX = 16;
-const GLYPH_MIN_CELL_PX = 11;
 
 function font(chrome: ChromeColours, sizePx: number, weight = 400): string {
   return `${weight} ${sizePx}px ${chrome.fontFamily}`;
@@ -272,8 +272,7 @@ function glyphPattern(ctx: CanvasRenderingContext2D, glyph: GlyphName, ink: stri
 function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: MapGeometry, mode: "auto" | "always" | "never", dpr: number): void {
   if (model.scale.kind !== "categorical" || mode === "never") return;
   const categories = model.scale.categories;
-  const sample = cellRect(geometry, 0, 0);
-  const cellSize = Math.min(geometry.plot.width / model.columns, geometry.plot.height / model.rows, Math.abs(sample.width), Math.abs(sample.height));
+  const cellSize = glyphCellSize(model, geometry);
   ctx.save();
   ctx.lineCap = "round";
   ctx.lineJoin = "round";
@@ -282,20 +281,7 @@ function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: Ma
       if (category.glyph === "none" || model.counts[code] === 0) return;
       // The category's cells as one path, neighbouring cells of a row merged into one rectangle.
       ctx.beginPath();
-      for (let row = 0; row < model.rows; row++) {
-        let column = 0;
-        while (column < model.columns) {
-          if (model.codes[row * model.columns + column] !== code) {
-            column++;
-            continue;
-          }
-          const start = column;
-          while (column < model.columns && model.codes[row * model.columns + column] === code) column++;
-          const first = cellRect(geometry, start, row);
-          const last = cellRect(geometry, column - 1, row);
-          ctx.rect(first.left, first.top, last.left + last.width - first.left, first.height);
-        }
-      }
+      for (const run of cellRuns(model, geometry, (c) => c === code)) ctx.rect(run.x, run.y, run.w, run.h);
       const pattern = glyphPattern(ctx, category.glyph, inkOn(category.colour), dpr, geometry.plot);
       if (!pattern) return;
       ctx.globalAlpha = 0.75;
@@ -311,14 +297,7 @@ function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: Ma
   categories.forEach((category, code) => {
     if (category.glyph === "none" || model.counts[code] === 0) return;
     ctx.beginPath();
-    for (let row = 0; row < model.rows; row++) {
-      for (let column = 0; column < model.columns; column++) {
-        if (model.codes[row * model.columns + column] !== code) continue;
-        const r = cellRect(geometry, column, row);
-        const s = Math.min(Math.abs(r.width), Math.abs(r.height)) * 0.32;
-        traceGlyph(ctx, category.glyph, r.left + r.width / 2, r.top + r.height / 2, s);
-      }
-    }
+    forEachGlyphCell(model, geometry, code, (cx, cy, halfSize) => traceGlyph(ctx, category.glyph, cx, cy, halfSize));
     const ink = inkOn(category.colour);
     ctx.globalAlpha = 0.7;
     if (glyphIsFilled(category.glyph)) {

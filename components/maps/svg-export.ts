@@ -8,10 +8,11 @@ import { formatSI } from "@/lib/charts/format";
 import { glyphIsFilled, glyphSvgPath } from "@/lib/charts/glyphs";
 import { legendTicks, normalise } from "@/lib/charts/normalise";
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
-import { cellRect, valueToPixel, type MapGeometry } from "@/lib/charts/scales";
+import { valueToPixel } from "@/lib/charts/scales";
 import { axisTickLabel, CELL_NO_VALUE, CELL_PENDING, inkOn, type MapModel } from "./map-model";
 import { axisTicks, axisTitle, GLYPH_PATTERN_TILE_PX, layoutMap, LIGHT_CHROME, TITLE_BLOCK_LINE_PX, type ChromeColours } from "./render";
 import { scaleNote } from "./scale-note";
+import { cellRuns, forEachGlyphCell, GLYPH_MIN_CELL_PX, glyphCellSize } from "./cell-runs";
 
 export interface SvgExportOptions {
   widthCss: number;
@@ -40,27 +41,6 @@ function cellFill(model: MapModel, code: number): string {
   if (code === CELL_NO_VALUE) return "#9e9e9e";
   if (model.scale.kind === "categorical") return model.scale.categories[code]?.colour ?? "#9e9e9e";
   return lutHex(model.scale.lut, code);
-}
-
-/** Rectangles covering the cells of one code, a row's neighbouring cells merged. */
-function runRects(model: MapModel, geometry: MapGeometry, matches: (code: number) => boolean): { code: number; x: number; y: number; w: number; h: number }[] {
-  const rects: { code: number; x: number; y: number; w: number; h: number }[] = [];
-  for (let row = 0; row < model.rows; row++) {
-    let column = 0;
-    while (column < model.columns) {
-      const code = model.codes[row * model.columns + column];
-      if (!matches(code)) {
-        column++;
-        continue;
-      }
-      const start = column;
-      while (column < model.columns && model.codes[row * model.columns + column] === code) column++;
-      const first = cellRect(geometry, start, row);
-      const last = cellRect(geometry, column - 1, row);
-      rects.push({ code, x: first.left, y: first.top, w: last.left + last.width - first.left, h: first.height });
-    }
-  }
-  return rects;
 }
 
 function measureContext(): CanvasRenderingContext2D {
@@ -92,35 +72,30 @@ export function mapSvg(model: MapModel, options: SvgExportOptions): string {
 
   // Cells.
   out.push(`<g shape-rendering="crispEdges">`);
-  for (const r of runRects(model, geometry, () => true)) out.push(`<rect x="${f(r.x)}" y="${f(r.y)}" width="${f(r.w)}" height="${f(r.h)}" fill="${cellFill(model, r.code)}"/>`);
+  for (const r of cellRuns(model, geometry, () => true)) out.push(`<rect x="${f(r.x)}" y="${f(r.y)}" width="${f(r.w)}" height="${f(r.h)}" fill="${cellFill(model, r.code)}"/>`);
   out.push(`</g>`);
 
   // Glyphs: one per cell where cells are big enough, a pattern of the glyph where they are not (as on screen).
   if (model.scale.kind === "categorical") {
-    const sample = cellRect(geometry, 0, 0);
-    const cellSize = Math.min(plot.width / model.columns, plot.height / model.rows, Math.abs(sample.width), Math.abs(sample.height));
+    const cellSize = glyphCellSize(model, geometry);
     model.scale.categories.forEach((category, code) => {
       if (category.glyph === "none" || model.counts[code] === 0) return;
       const ink = inkOn(category.colour);
       const paint = glyphIsFilled(category.glyph) ? `fill="${ink}" stroke="none"` : `fill="none" stroke="${ink}" stroke-linecap="round" stroke-linejoin="round"`;
-      if (cellSize < 11) {
+      if (cellSize < GLYPH_MIN_CELL_PX) {
         const t = GLYPH_PATTERN_TILE_PX;
         defs.push(
           `<pattern id="kd-glyph-${code}" width="${t}" height="${t}" patternUnits="userSpaceOnUse" x="${f(plot.left)}" y="${f(plot.top)}"><path d="${glyphSvgPath(category.glyph, t / 2, t / 2, t * 0.4)}" ${paint} stroke-width="1.4"/></pattern>`,
         );
         out.push(`<g fill="url(#kd-glyph-${code})" opacity="0.75">`);
-        for (const r of runRects(model, geometry, (c) => c === code)) out.push(`<rect x="${f(r.x)}" y="${f(r.y)}" width="${f(r.w)}" height="${f(r.h)}"/>`);
+        for (const r of cellRuns(model, geometry, (c) => c === code)) out.push(`<rect x="${f(r.x)}" y="${f(r.y)}" width="${f(r.w)}" height="${f(r.h)}"/>`);
         out.push(`</g>`);
         return;
       }
       let d = "";
-      for (let row = 0; row < model.rows; row++) {
-        for (let column = 0; column < model.columns; column++) {
-          if (model.codes[row * model.columns + column] !== code) continue;
-          const r = cellRect(geometry, column, row);
-          d += glyphSvgPath(category.glyph, r.left + r.width / 2, r.top + r.height / 2, Math.min(Math.abs(r.width), Math.abs(r.height)) * 0.32);
-        }
-      }
+      forEachGlyphCell(model, geometry, code, (cx, cy, halfSize) => {
+        d += glyphSvgPath(category.glyph, cx, cy, halfSize);
+      });
       out.push(`<path d="${d}" ${paint} stroke-width="${f(Math.max(1, Math.min(2, cellSize / 10)))}" opacity="0.7"/>`);
     });
   }

@@ -3,8 +3,9 @@ import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
 /**
  * The studio's scene snapshots: every version by name with its original file and a link that opens
  * the sweep builder on it, and (for engineers and owners) the upload: a file input with drag and
- * drop, every problem of the file at once with its JSON path (checked here first, then again by the
- * server), nothing saved until the file is valid.
+ * drop, every problem of the file at once naming the disc or wall by its number (from 1) and the
+ * field in words (checked here first, then again by the server), a drawing of the scene, nothing
+ * saved until the file is valid.
  */
 import Link from "next/link";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
@@ -15,6 +16,8 @@ import { StudioShell } from "@/components/studio/studio-shell";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
 import { apiFetch, errorMessage, uploadFile } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
+import { problemPlace } from "@/lib/snapshots/drawing";
+import { ScenePreview } from "./scene-preview";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 import type { SnapshotDetail, SnapshotSummary } from "@/lib/snapshots/store";
@@ -167,14 +170,17 @@ function UploadCard({ studioId }: { studioId: string }) {
                 itemTestId="snapshot-problem"
                 renderProblem={(problem) => (
                   <>
-                    <code className="font-mono text-xs">{problem.path}</code>: {problem.reason}
+                    <span className="font-medium">{problemPlace(problem.path)}</span>: {problem.reason}
                   </>
                 )}
               />
             ) : loaded.parsed.ok ? (
-              <Alert tone="ok">
-                {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid.
-              </Alert>
+              <>
+                <Alert tone="ok">
+                  {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid. Check the drawing before saving.
+                </Alert>
+                <ScenePreview bodies={loaded.parsed.snapshot.bodies} walls={loaded.parsed.snapshot.walls} />
+              </>
             ) : null}
             <UploadError error={serverError} showFields />
             <UploadActions saveLabel="Save snapshot" saveTestId="snapshot-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />

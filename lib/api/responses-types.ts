@@ -9,6 +9,7 @@ import type { listAudit } from "@/lib/audit/audit";
 import type { invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";
 import type { financeView, retryMeterEvent } from "@/lib/billing/finance-ops";
 import type { billingDetails } from "@/lib/billing/details";
+import type { ledgerGroupsPage, sweepLedgerChunks } from "@/lib/ledger/statement";
 import type { adminQueue, adjustCredit, adminStudioDetail, listAdjustments, studioQuotaView, updateQuotas, setStudioStatus, adminStudioList, setPlatformRole } from "@/lib/quotas/admin";
 import type { adminRefund } from "@/lib/billing/refunds";
 import type { allUsers } from "@/lib/studios/studios";
@@ -108,6 +109,8 @@ type Audit = Jsonify<{ entries: R<typeof listAudit> }>;
 type Finance = Jsonify<R<typeof financeView>>;
 type MeterRetry = Jsonify<R<typeof retryMeterEvent>>;
 type BillingDetailsView = Jsonify<R<typeof billingDetails>>;
+type LedgerGroups = Jsonify<R<typeof ledgerGroupsPage>>;
+type SweepLedger = Jsonify<R<typeof sweepLedgerChunks>>;
 type Queue = Jsonify<{ sweeps: R<typeof adminQueue> }>;
 
 /** One cell as the route builds it (stored result or null while not computed, plus the series run again). */
@@ -170,6 +173,8 @@ export interface ResponseTies {
   userPatch: [LibFitsSchema<UserPatch, Out<typeof A.userPatchAnswer>>, SchemaFitsLib<Out<typeof A.userPatchAnswer>, UserPatch>];
   audit: [LibFitsSchema<Audit, Out<typeof A.auditAnswer>>, SchemaFitsLib<Out<typeof A.auditAnswer>, Audit>];
   finance: [LibFitsSchema<Finance, Out<typeof B.financeAnswer>>, SchemaFitsLib<Out<typeof B.financeAnswer>, Finance>];
+  ledgerGroups: [LibFitsSchema<LedgerGroups, Out<typeof B.ledgerGroupsAnswer>>, SchemaFitsLib<Out<typeof B.ledgerGroupsAnswer>, LedgerGroups>];
+  sweepLedger: [LibFitsSchema<SweepLedger, Out<typeof B.sweepLedgerAnswer>>, SchemaFitsLib<Out<typeof B.sweepLedgerAnswer>, SweepLedger>];
   billingDetails: [LibFitsSchema<BillingDetailsView, Out<typeof B.billingDetailsAnswer>>, SchemaFitsLib<Out<typeof B.billingDetailsAnswer>, BillingDetailsView>];
   meterRetry: [LibFitsSchema<MeterRetry, Out<typeof B.meterRetryAnswer>>, SchemaFitsLib<Out<typeof B.meterRetryAnswer>, MeterRetry>];
   queue: [LibFitsSchema<Queue, Out<typeof A.queueAnswer>>, SchemaFitsLib<Out<typeof A.queueAnswer>, Queue>];

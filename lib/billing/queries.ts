@@ -4,6 +4,7 @@ import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
 import { parseWith } from "@/lib/api/body";
+import { csvCell } from "@/lib/api/csv";
 import { notFound } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
@@ -82,19 +83,6 @@ export async function ledgerPage(db: DbOrTx, studioId: string, q: LedgerQuery) {
     pageSize: q.pageSize,
     total: Number(total.n),
   };
-}
-
-function csvCell(value: string | number | null): string {
-  const text = value === null ? "" : String(value);
-  // Quote always; a leading = + - @ is prefixed so spreadsheets never run it as a formula.
-  const safe = /^[=+\-@]/.test(text) && typeof value === "string" ? `'${text}` : text;
-  return `"${safe.replaceAll('"', '""')}"`;
-}
-
-export function ledgerCsv(entries: Awaited<ReturnType<typeof ledgerPage>>["entries"]): string {
-  const header = ["id", "created_at", "kind", "compute_ms", "overage_ms", "amount_cents", "sweep_id", "chunk_index", "memo"];
-  const lines = entries.map((e) => [e.id, e.createdAt, e.kind, e.computeMs, e.overageMs, e.amountCents, e.sweepId, e.chunkIndex, e.memo].map(csvCell).join(","));
-  return [header.join(","), ...lines].join("\r\n") + "\r\n";
 }
 
 export const usageQuerySchema = z.object({ days: z.coerce.number().int("must be a whole number").min(1, "must be at least 1").max(366, "must be at most 366").default(30) }).strict();

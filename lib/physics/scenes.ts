@@ -264,13 +264,14 @@ export function snapshotOverlaps(scene: Pick<SnapshotScene, "bodies" | "walls">,
   return found;
 }
 
-/** A sentence naming one initial overlap by body (and wall) index. */
+/** A sentence naming one initial overlap by disc (and wall) number, counted from 1. */
 export function describeSnapshotOverlap(overlap: SnapshotOverlap): string {
   const percent = `${Number((overlap.fraction * 100).toPrecision(3))}%`;
   const limit = `${SNAPSHOT_OVERLAP_TOLERANCE * 100}%`;
+  // Discs and walls counted from 1, as users count and as the upload page's drawing numbers them.
   return overlap.wall !== undefined
-    ? `body ${overlap.a} starts ${percent} of its radius inside wall ${overlap.wall} (tolerance ${limit})`
-    : `bodies ${overlap.a} and ${overlap.b} start overlapping by ${percent} of the smaller radius (tolerance ${limit})`;
+    ? `disc ${overlap.a + 1} starts ${percent} of its radius inside wall ${overlap.wall + 1} (tolerance ${limit})`
+    : `discs ${overlap.a + 1} and ${(overlap.b ?? 0) + 1} start overlapping by ${percent} of the smaller radius (tolerance ${limit})`;
 }
 
 /** The discs as exported, every velocity times speedScale; the walls with unit normals. */

@@ -9,7 +9,7 @@ const STUDIO = "Gannet Yard Games";
 
 const msOf = (text: string | null) => Number((text ?? "").replace(/[^0-9]/g, ""));
 
-test("an engineer reads the quote's ceiling and expected cost, runs the sweep and is billed at most the ceiling; finance sees the same figure on the billing page and in the ledger CSV", async ({ browser }) => {
+test("an engineer reads the quote's ceiling and expected cost, runs the sweep and is billed at most the ceiling; finance sees the same figure on the billing page, in the sweep's ledger row and its chunks, and in the ledger exports (both units named)", async ({ browser }) => {
   test.setTimeout(180_000);
   const engineerContext = await browser.newContext();
   const page = await engineerContext.newPage();
@@ -73,6 +73,51 @@ test("an engineer reads the quote's ceiling and expected cost, runs the sweep an
   let ledgerMs = 0;
   for (const row of rows) if (row.sweep_id === sweepId && row.kind === "usage") ledgerMs += Number(row.overage_ms) - Number(row.compute_ms);
   expect(ledgerMs).toBe(billedMs);
+  // Both units named in the export's header: the stored ones and the ones on screen.
+  expect(csv.split("\r\n")[0]).toContain("compute_ms,compute_minutes,overage_ms,overage_minutes,amount_cents,amount_usd");
   await finance.screenshot({ path: test.info().outputPath("metering-billing.png"), fullPage: true });
+
+  // --- The ledger holds the sweep as one row (not one "0.00" row per chunk), its chunks on demand.
+  const group = finance.getByTestId(`ledger-group-sweep:${sweepId}`);
+  await expect(group).toHaveCount(1);
+  await expect(group).toContainText(name);
+  const chunkCount = Number((await group.getByTestId("ledger-group-chunks").innerText()).replace(/[^0-9]/g, ""));
+  expect(chunkCount).toBeGreaterThan(0);
+  await expect(finance.getByTestId("ledger-table").getByText(sweepId)).toHaveCount(0);
+  await group.getByRole("button", { name: "Show chunks" }).click();
+  const chunks = finance.getByTestId("ledger-chunks");
+  await expect(chunks.getByTestId("ledger-chunk")).toHaveCount(chunkCount);
+  let chunkMs = 0;
+  for (const cell of await chunks.getByTestId("ledger-chunk-ms").allInnerTexts()) chunkMs += msOf(cell);
+  for (const cell of await chunks.getByTestId("ledger-chunk-overage-ms").allInnerTexts()) chunkMs += msOf(cell);
+  expect(chunkMs).toBe(billedMs);
+  await chunks.scrollIntoViewIfNeeded();
+  await finance.screenshot({ path: "docs/screens/billing-ledger-by-sweep.png" });
+  await group.getByRole("button", { name: "Hide chunks" }).click();
+  await expect(chunks).toHaveCount(0);
+
+  // --- The per-sweep export: one row for the sweep, its ms and minutes both present and agreeing.
+  const bySweepHref = await finance.getByRole("link", { name: "CSV by sweep" }).getAttribute("href");
+  const bySweep = Papa.parse<Record<string, string>>((await (await finance.request.get(new URL(bySweepHref!, finance.url()).toString())).text()).trim(), { header: true }).data;
+  const sweepRows = bySweep.filter((r) => r.sweep_id === sweepId);
+  expect(sweepRows).toHaveLength(1);
+  expect(Number(sweepRows[0].overage_ms) - Number(sweepRows[0].compute_ms)).toBe(billedMs);
+  // minutes = ms / 60,000, shown to two decimals (arithmetic; the page's rounding).
+  expect(Number(sweepRows[0].compute_minutes)).toBeCloseTo(Number(sweepRows[0].compute_ms) / 60_000, 2);
+  const jsonHref = await finance.getByRole("link", { name: "Download JSON" }).getAttribute("href");
+  const json = (await (await finance.request.get(new URL(jsonHref!, finance.url()).toString())).json()) as { units: Record<string, string> };
+  expect(Object.keys(json.units)).toEqual(expect.arrayContaining(["compute_ms", "compute_minutes", "amount_cents", "amount_usd"]));
+
+  // --- The usage-by-sweep chart: labelled by the sweep's name (never its id), the unit on the axis,
+  // and no two labels overlapping.
+  const chart = finance.getByTestId("usage-by-sweep");
+  await chart.scrollIntoViewIfNeeded();
+  await expect(chart.getByTestId("bar-label").filter({ hasText: name.slice(0, 20) })).toHaveCount(1);
+  await expect(chart).not.toContainText(sweepId);
+  await expect(chart).toContainText("compute minutes");
+  const boxes = (await chart.getByTestId("bar-label").evaluateAll((els) => els.map((el) => el.getBoundingClientRect().toJSON() as { top: number; bottom: number }))).sort((a, b) => a.top - b.top);
+  expect(boxes.length).toBeGreaterThan(0);
+  for (let i = 1; i < boxes.length; i++) expect(boxes[i].top, `label ${i + 1} starts below label ${i}`).toBeGreaterThanOrEqual(boxes[i - 1].bottom);
+  await finance.screenshot({ path: "docs/screens/billing-usage-by-sweep.png" });
   await financeContext.close();
 });

@@ -13,7 +13,7 @@ const WITH_MISTAKES = JSON.stringify({
   ],
 });
 
-test("an engineer uploads a snapshot, sees its problems by JSON path, saves the loading bay and runs a sweep over it", async ({ page }) => {
+test("an engineer uploads a snapshot, sees its problems by disc number and field, checks the drawing of the scene, saves the loading bay and runs a sweep over it", async ({ page }) => {
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
@@ -29,14 +29,26 @@ test("an engineer uploads a snapshot, sees its problems by JSON path, saves the 
   await page.getByTestId("snapshot-file").setInputFiles({ name: "bay-broken.json", mimeType: "application/json", buffer: Buffer.from(WITH_MISTAKES) });
   const problems = page.getByTestId("snapshot-problem");
   await expect(problems).toHaveCount(2);
-  await expect(problems.nth(0)).toHaveText("bodies.0.massKg: mass must be > 0 and ≤ 1,000,000 (kg); got -25");
-  // Bodies 1 and 2 start 0.3 m apart with radii 0.3 m: 0.3 m of overlap, 100 % of the smaller radius.
-  await expect(problems.nth(1)).toHaveText("bodies.1: bodies 1 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)");
+  // Named as users count (the file's first body is disc 1), the field in words beside its name in the file.
+  await expect(problems.nth(0)).toHaveText("Disc 1, mass (massKg): mass must be > 0 and ≤ 1,000,000 (kg); got -25");
+  // Discs 2 and 3 start 0.3 m apart with radii 0.3 m: 0.3 m of overlap, 100 % of the smaller radius.
+  await expect(problems.nth(1)).toHaveText("Disc 2: discs 2 and 3 start overlapping by 100% of the smaller radius (tolerance 1%)");
+  await expect(page.getByTestId("snapshot-preview")).toHaveCount(0);
   await expect(page.getByTestId("snapshot-save")).toBeDisabled();
 
   // --- The example file: valid, saved, listed.
   await page.getByTestId("snapshot-file").setInputFiles({ name: "crateslide-loading-bay.json", mimeType: "application/json", buffer: Buffer.from(CRATESLIDE_SNAPSHOT_JSON) });
   await expect(page.getByText("41 discs and 4 walls, every field valid.")).toBeVisible();
+  // The scene drawn before saving: every disc numbered from 1 in file order, every wall.
+  const preview = page.getByTestId("snapshot-preview");
+  await expect(preview.getByTestId("preview-disc")).toHaveCount(41);
+  await expect(preview.getByTestId("preview-wall")).toHaveCount(4);
+  await expect(preview.getByTestId("preview-disc").first()).toHaveAttribute("data-number", "1");
+  await expect(preview.getByTestId("preview-disc").first().locator("text")).toHaveText("1");
+  await expect(preview.getByTestId("preview-disc").last().locator("text")).toHaveText("41");
+  await expect(preview.getByTestId("preview-disc").first().locator("title")).toHaveText(/^Disc 1: /);
+  await preview.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: "docs/screens/snapshot-preview.png", fullPage: true });
   await page.getByLabel("Snapshot name").fill("Loading bay, night shift");
   await page.getByTestId("snapshot-save").click();
   await expect(page.getByText(/Saved Loading bay, night shift v1 \(41 discs, 4 walls\)/)).toBeVisible();

@@ -333,6 +333,9 @@ export const ROUTES: RouteRow[] = [
   { route: "v1/studios/[studioId]/billing/checkout", method: "POST", params: studio, body: () => ({ packId: "pack_tapout" }), expect: BILLING_PEOPLE_ROW(201) },
   { route: "v1/studios/[studioId]/billing/checkout/[sessionId]", method: "POST", params: (w) => ({ studioId: w.studioId, sessionId: w.checkoutSessionId }), expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/ledger", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/ledger/sweeps", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/ledger/sweeps/[sweepId]", method: "GET", params: sweep, expect: BILLING_READERS_ROW(200) },
+  { route: "v1/studios/[studioId]/billing/ledger/export", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
   { route: "v1/studios/[studioId]/billing/usage", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
   { route: "v1/studios/[studioId]/billing/invoices", method: "GET", params: studio, expect: BILLING_READERS_ROW(200) },
   {

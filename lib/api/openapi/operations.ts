@@ -66,6 +66,9 @@ import {
   financeAnswer,
   meterRetryAnswer,
   billingDetailsAnswer,
+  ledgerGroupsAnswer,
+  sweepLedgerAnswer,
+  ledgerExportAnswer,
   invoiceAnswer,
   invoicesAnswer,
   ledgerAnswer,
@@ -82,6 +85,7 @@ import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
 import { invoicesQuerySchema, ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { billingDetailsSchema } from "@/lib/billing/details";
+import { ledgerExportQuerySchema, ledgerGroupsQuerySchema } from "@/lib/ledger/statement";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
 import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
@@ -234,6 +238,9 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema, response: checkoutAnswer },
   { method: "post", path: `${S}/billing/checkout/{sessionId}`, summary: "Check a pack payment with Stripe and credit it if paid (the return page's check)", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: checkoutCheckAnswer },
   { method: "get", path: `${S}/billing/ledger`, summary: "The ledger (JSON or CSV); read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: ledgerQuerySchema, response: ledgerAnswer },
+  { method: "get", path: `${S}/billing/ledger/sweeps`, summary: "The ledger grouped by sweep (one row per sweep's usage); read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, query: ledgerGroupsQuerySchema, response: ledgerGroupsAnswer },
+  { method: "get", path: `${S}/billing/ledger/sweeps/{sweepId}`, summary: "One sweep's ledger entries, chunk by chunk; read tokens may read them", tag: "Billing", policy: BILLING_READERS, ok: 200, response: sweepLedgerAnswer },
+  { method: "get", path: `${S}/billing/ledger/export`, summary: "The ledger as CSV or JSON, per entry or per sweep; columns name ms and minutes, cents and dollars", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: ledgerExportQuerySchema, response: ledgerExportAnswer },
   { method: "get", path: `${S}/billing/usage`, summary: "Compute used per day", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, query: usageQuerySchema, response: usageAnswer },
   { method: "get", path: `${S}/billing/invoices`, summary: "Invoices with their hosted page and PDF links (JSON, or CSV with total_cents and total_amount); read tokens may read them", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: invoicesQuerySchema, response: invoicesAnswer },
   { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger; read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, response: invoiceAnswer },

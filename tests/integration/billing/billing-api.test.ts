@@ -69,7 +69,8 @@ describe("billing read API", () => {
     const csv = await call(ledgerGet, { path: `${base}?format=csv&kind=purchase`, params: { studioId: s.studioId }, cookie: s.cookies.owner });
     expect(csv.res.headers.get("content-type")).toContain("text/csv");
     const lines = (csv.body as string).trim().split("\r\n");
-    expect(lines[0]).toBe("id,created_at,kind,compute_ms,overage_ms,amount_cents,sweep_id,chunk_index,memo");
+    // Machine and displayed units both named in the header (lib/ledger/statement.ts).
+    expect(lines[0]).toBe("id,created_at,kind,sweep_id,sweep_name,chunk_index,compute_ms,compute_minutes,overage_ms,overage_minutes,amount_cents,amount_usd,memo");
     expect(lines).toHaveLength(4);
     expect(csv.body as string).toContain(`"'=pack 0"`);
   });

@@ -62,11 +62,11 @@ describe("snapshot uploads", () => {
     const both = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3, { vxMPerS: "fast" }), disc(0.1)] }), "stack.json"));
     expect(errorOf(both.body).issues).toEqual([
       { field: "file.bodies.1.vxMPerS", message: "x velocity must be a finite number (m/s); got a string" },
-      { field: "file.bodies.0", message: "bodies 0 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)" },
+      { field: "file.bodies.0", message: "discs 1 and 3 start overlapping by 100% of the smaller radius (tolerance 1%)" },
     ]);
     // Overlaps are named by body index.
     const overlapping = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3), disc(0.1)] }), "stack.json"));
-    expect(errorOf(overlapping.body).issues).toEqual([{ field: "file.bodies.0", message: "bodies 0 and 2 start overlapping by 100% of the smaller radius (tolerance 1%)" }]);
+    expect(errorOf(overlapping.body).issues).toEqual([{ field: "file.bodies.0", message: "discs 1 and 3 start overlapping by 100% of the smaller radius (tolerance 1%)" }]);
     expect(await countRows(db, snapshots)).toBe(before);
   });
 

@@ -41,7 +41,7 @@ describe("snapshot scene in the sweep spec", () => {
     if (bad.ok) return;
     expect(bad.issues.map((issue) => issue.field)).toEqual(["scenario.scene.bodies.0.massKg", "scenario.scene.bodies.1.radiusM", "scenario.scene.walls.0.normalX"]);
     const overlapping = parseSweepSpec(spec({ kind: "snapshot", bodies: [{ xM: 0, yM: 0, vxMPerS: 0, vyMPerS: 0, massKg: 1, radiusM: 0.1 }, { xM: 0.15, yM: 0, vxMPerS: 0, vyMPerS: 0, massKg: 1, radiusM: 0.1 }] }));
-    expect(overlapping.ok ? [] : overlapping.issues).toEqual([{ field: "scenario.scene.bodies.0", message: expect.stringMatching(/^bodies 0 and 1 start overlapping by 50% of the smaller radius/) }]);
+    expect(overlapping.ok ? [] : overlapping.issues).toEqual([{ field: "scenario.scene.bodies.0", message: expect.stringMatching(/^discs 1 and 2 start overlapping by 50% of the smaller radius/) }]);
   });
 
   it("states the body limit and the body × steps limit with the numbers", () => {
