@@ -5,20 +5,11 @@ import { useState } from "react";
 import { Alert, Button, Card, EmptyState, TextField, cx } from "@/components/ui";
 import { formatMinutes, td, th } from "@/components/billing/billing-format";
 import { ApiClientError, apiFetch } from "@/lib/ui/api";
+import type { FailedMeterEvent } from "@/lib/billing/finance-ops";
 import { formatDateTime } from "@/lib/ui/format";
 
-export type FailedMeterEventView = {
-  outboxId: number;
-  studioId: string | null;
-  studioName: string | null;
-  identifier: string;
-  meterIdentifier: string | null;
-  valueMs: number;
-  timestamp: number;
-  attempts: number;
-  lastError: string | null;
-  createdAt: string;
-};
+// The lib type itself (a type-only import: nothing of the server module reaches the browser).
+export type FailedMeterEventView = FailedMeterEvent;
 
 /** Meter events Stripe refused for good: an admin puts each back in the outbox, as it was or under a new identifier (audited). */
 export function FailedMeterEvents({ events }: { events: FailedMeterEventView[] }) {

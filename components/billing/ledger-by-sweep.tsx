@@ -5,23 +5,12 @@ import Link from "next/link";
 import { Fragment, useState } from "react";
 import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField, cx } from "@/components/ui";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
+import type { LedgerGroup } from "@/lib/ledger/statement";
 import { formatDateTime } from "@/lib/ui/format";
 import { formatMinutes, formatPriceCents, td, th } from "./billing-format";
 
-type Group = {
-  group: string;
-  kind: string;
-  sweepId: string | null;
-  sweepName: string | null;
-  entries: number;
-  chunks: number;
-  computeMs: number;
-  overageMs: number;
-  amountCents: number;
-  firstAt: string;
-  lastAt: string;
-  memo: string | null;
-};
+// The lib type itself (a type-only import: nothing of the server module reaches the browser).
+type Group = LedgerGroup;
 type GroupsPage = { groups: Group[]; page: number; pageSize: number; total: number };
 type Chunk = { id: number; createdAt: string; chunkIndex: number | null; computeMs: number; overageMs: number; memo: string };
 
