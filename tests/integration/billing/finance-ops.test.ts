@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, like } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { auditLog, outbox, studioQuotas } from "@/db/schema";
-import { ensureStudioCustomer } from "@/lib/billing/catalog";
+import { ensureOverageSubscription } from "@/lib/billing/catalog";
 import { FINANCE_RECONCILE_EVERY_MS, FINANCE_RECONCILE_KIND, reconcileFinance, runScheduledFinanceReconcile } from "@/lib/billing/finance-ops";
 import { deliverMeterEvent } from "@/lib/billing/meter";
 import { METER_EVENT_KIND, recordChunkUsage } from "@/lib/billing/usage";
@@ -37,7 +37,7 @@ beforeAll(async () => {
   adminCookie = await sessionCookie(admin);
   s = await makeSweepStudio("Quillmoss Studio", 0);
   await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
-  await ensureStudioCustomer(db, h.stripe, s.studioId);
+  await ensureOverageSubscription(db, h.stripe, s.studioId);
   await grant(s.studioId, 60 * 60_000, `grant:${s.studioId}`);
   sweepId = (await submitSweep(db, s.studioId, { spec: puckSpec() })).id;
   await appendLedgerEntry(db, { studioId: s.studioId, kind: "adjustment", computeMs: -(60 * 60_000), idempotencyKey: `grant-back:${s.studioId}`, memo: "test: grant taken back" });

@@ -12,7 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, like } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { invoices, ledgerEntries, outbox, studioQuotas, type OutboxRow } from "@/db/schema";
-import { ensureStudioCustomer } from "@/lib/billing/catalog";
+import { ensureOverageSubscription } from "@/lib/billing/catalog";
 import { deliverMeterEvent } from "@/lib/billing/meter";
 import { invoiceDetail, platformFinance } from "@/lib/billing/queries";
 import { METER_EVENT_KIND, recordChunkUsage } from "@/lib/billing/usage";
@@ -54,7 +54,7 @@ describe("overage delivered after its period was invoiced", () => {
   it("is billed once on the next invoice as its own line naming its period; every ms on exactly one line", async () => {
     const s = await makeSweepStudio("Fogbank Interactive", 0);
     await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
-    const account = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
     const sweepId = await sweepOf(s.studioId);
     const { dispatcher, advance } = meterDispatcher(db, h.stripe);
     // The dispatcher's clock is the test's: moved on so rows written since are due.
@@ -133,7 +133,7 @@ describe("overage delivered after its period was invoiced", () => {
   it("a delivery whose first attempt reached Stripe in time (its answer lost) is not billed again late", async () => {
     const s = await makeSweepStudio("Lowtide Foundry", 0);
     await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
-    const account = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
     const sweepId = await sweepOf(s.studioId);
     expect(await db.transaction((tx) => recordChunkUsage(tx, { studioId: s.studioId, sweepId, chunkIndex: 0, computeMs: 300_000, memo: "chunk 0" }))).toMatchObject({ overageMs: 300_000 });
     const row = await meterRow(usageKey(sweepId, 0));

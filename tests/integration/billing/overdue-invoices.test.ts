@@ -13,7 +13,7 @@ import type Stripe from "stripe";
 import type { Db } from "@/db/client";
 import { invoices, outbox, stripeEvents, studioBilling, studioQuotas } from "@/db/schema";
 import { appBaseUrl } from "@/lib/auth/config";
-import { ensureStudioCustomer, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "@/lib/billing/catalog";
+import { ensureOverageSubscription, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "@/lib/billing/catalog";
 import { databaseNow, OVERDUE_GRACE_DAYS, overageHold, payLink } from "@/lib/billing/overdue";
 import { billingSummary } from "@/lib/billing/queries";
 import { recordChunkUsage } from "@/lib/billing/usage";
@@ -55,7 +55,7 @@ async function sweepOf(studioId: string): Promise<string> {
 async function openInvoice(name: string, valueMs: number): Promise<{ s: TestStudio; customer: string; invoice: Stripe.Invoice }> {
   const s = await makeSweepStudio(name, 0);
   await allowOverage(s.studioId);
-  const account = await ensureStudioCustomer(db, h.stripe, s.studioId);
+  const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
   await h.stripe.billing.meterEvents.create({ event_name: METER_EVENT_NAME, identifier: `overdue-${s.studioId}`, timestamp: h.fake.now(), payload: { [METER_CUSTOMER_KEY]: account.stripeCustomerId, [METER_VALUE_KEY]: String(valueMs) } });
   h.fake.advanceClock(h.fake.now() + 5);
   const [issued] = h.fake.closePeriod({ customer: account.stripeCustomerId });
@@ -215,7 +215,7 @@ describe("an invoice marked uncollectible", () => {
 describe("customer.subscription.deleted", () => {
   it("forgets the ended subscription once, tells owners and finance, and the next overage starts a new one", async () => {
     const s = await makeSweepStudio("Gorse Lantern Games", 0);
-    const first = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const first = await ensureOverageSubscription(db, h.stripe, s.studioId);
     await h.stripe.subscriptions.cancel(first.stripeSubscriptionId!);
     await h.fake.waitForWebhooks();
     const deleted = await eventIds(first.stripeSubscriptionId!, "customer.subscription.deleted");
@@ -228,7 +228,7 @@ describe("customer.subscription.deleted", () => {
     const [recorded] = await db.select().from(stripeEvents).where(eq(stripeEvents.id, deleted[0]));
     expect(recorded.outcome).toMatch(/ended/);
 
-    const second = await ensureStudioCustomer(db, h.stripe, s.studioId);
+    const second = await ensureOverageSubscription(db, h.stripe, s.studioId);
     expect(second.stripeSubscriptionId).not.toBe(first.stripeSubscriptionId);
     expect((await h.stripe.subscriptions.retrieve(second.stripeSubscriptionId!)).status).toBe("active");
     expect(second.stripeCustomerId).toBe(first.stripeCustomerId);
