@@ -81,7 +81,7 @@ describe("snapshot scene", () => {
     expect(Array.from(setup.bodies.vy)).toEqual([-6, 0.75]);
   });
 
-  it("names initial overlaps by body index and refuses to run them", () => {
+  it("names initial overlaps by disc number (from 1) and refuses to run them", () => {
     const scene = snapshot([disc(0, 0, 0, 0, 1), disc(0.5, 0, 0, 0, 1), disc(0.09, 0, 0, 0, 1), disc(0.6, 0, 0, 0, 1, 0.05)], [{ normalX: 1, normalY: 0, offsetM: 0.02 }]);
     // By hand: 0–2 overlap 0.1 − 0.09 = 0.01 m = 20 % of 0.05; 1–3: 0.1 − 0.1 = 0 (touching, accepted);
     // discs 0 and 2 stand 0.07 m and 0 m inside the wall x = 0.02 … fractions (0.05 − (−0.02))/0.05 = 1.4, (0.05 − 0.07)/0.05 < 0.
@@ -92,7 +92,7 @@ describe("snapshot scene", () => {
     ]);
     expect(overlaps[0].fraction).toBeCloseTo(0.2, 12);
     expect(overlaps[1].fraction).toBeCloseTo(1.4, 12);
-    expect(() => simulate(scenario(scene, linearContact(stiffness), "velocity-verlet", 1e-4, 0.01))).toThrow(/bodies 0 and 2/);
+    expect(() => simulate(scenario(scene, linearContact(stiffness), "velocity-verlet", 1e-4, 0.01))).toThrow(/discs 1 and 3/); // bodies 0 and 2, counted from 1 as users count them
   });
 
   it("accepts overlaps within the tolerance (an exported resting stack)", () => {
