@@ -46,6 +46,8 @@ export async function createTestDatabase(label: string): Promise<TestDatabase> {
 export interface WorkerHandle {
   child: ChildProcess;
   ownerId: string;
+  /** The application_name its database connections carry (PGAPPNAME), to find them in pg_stat_activity. */
+  appName: string;
   baseUrl: string;
   output(): string;
   /** Resolves with the exit code (or the signal's name) once the process has ended. */
@@ -61,6 +63,7 @@ export interface WorkerHandle {
  * Resolves once the worker answers /ready with 200.
  */
 export async function startWorker(databaseUrl: string, env: Record<string, string> = {}, readyTimeoutMs = 60_000): Promise<WorkerHandle> {
+  const appName = `kd_test_worker_${randomBytes(4).toString("hex")}`;
   const child = spawn(process.execPath, ["--import", "tsx", path.join("workers", "worker-process.ts")], {
     cwd: process.cwd(),
     env: {
@@ -69,6 +72,8 @@ export async function startWorker(databaseUrl: string, env: Record<string, strin
       KICKDRIFT_WORKER_PORT: "0",
       KICKDRIFT_WORKER_HOST: "127.0.0.1",
       KICKDRIFT_WORKER_THREADS: "1",
+      // node-postgres reads PGAPPNAME for connections configured by URL only.
+      PGAPPNAME: appName,
       ...env,
     },
     stdio: ["ignore", "pipe", "pipe"],
@@ -91,6 +96,7 @@ export async function startWorker(databaseUrl: string, env: Record<string, strin
   const handle: WorkerHandle = {
     child,
     ownerId,
+    appName,
     baseUrl,
     output: () => output,
     exited,
