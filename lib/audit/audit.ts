@@ -9,6 +9,7 @@ import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { auditLog, type AuditLogRow, type User } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
+import { csvText } from "@/lib/csv";
 
 export const AUDIT_ACTIONS = [
   "quota.update",
@@ -149,12 +150,6 @@ export async function listAudit(db: DbOrTx, query: Partial<AuditQuery>): Promise
   return rows.map(view);
 }
 
-/** RFC 4180 field: quoted when it holds a comma, quote or line break; a leading =,+,-,@ is defused for spreadsheets. */
-function csvField(value: string): string {
-  const safe = /^[=+\-@\t\r]/.test(value) ? `'${value}` : value;
-  return /[",\r\n]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
-}
-
 export const AUDIT_CSV_COLUMNS = ["id", "at", "actor", "studio_id", "action", "subject_type", "subject_id", "before", "after", "reason"] as const;
 
 export function auditCsv(rows: readonly AuditView[]): string {
@@ -162,7 +157,7 @@ export function auditCsv(rows: readonly AuditView[]): string {
   for (const r of rows) {
     lines.push(
       [String(r.id), r.at, r.actor, r.studioId ?? "", r.action, r.subjectType, r.subjectId, r.before === null ? "" : JSON.stringify(r.before), r.after === null ? "" : JSON.stringify(r.after), r.reason]
-        .map(csvField)
+        .map(csvText)
         .join(","),
     );
   }

@@ -4,7 +4,7 @@ import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
 import { parseWith } from "@/lib/api/body";
-import { csvCell } from "@/lib/api/csv";
+import { csvCell } from "@/lib/csv";
 import { notFound } from "@/lib/errors";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";

@@ -11,7 +11,8 @@ import { linearDampingRatioOverlapCriterion } from "../physics/analytic";
 import { CONTACT_END_CRITERION } from "../sweeps/envelope";
 import { dampingForRatioNsPerM, naturalFrequencyHz, phasePerSubstep } from "../physics/frequency";
 import type { ContactTuning } from "../sweeps/contact-tuning";
-import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
+import { csvText } from "../csv";
+import { formatNumber } from "../sweeps/results";
 import { cataloguePairs, type CataloguePair, type CheckSettings, type Recommendation } from "./check";
 import type { CatalogueObject } from "./format";
 
@@ -185,9 +186,9 @@ export function pairContactCsv(tuned: readonly PairContactTuning[]): string {
   for (const entry of tuned) {
     lines.push(
       [
-        quoteCsvField(guardFormula(entry.pair)),
-        quoteCsvField(guardFormula(entry.objectA)),
-        quoteCsvField(guardFormula(entry.objectB)),
+        csvText(entry.pair),
+        csvText(entry.objectA),
+        csvText(entry.objectB),
         cell(entry.checked.effectiveMassKg),
         cell(entry.checked.stiffnessNPerM),
         cell(entry.checked.dampingNsPerM),

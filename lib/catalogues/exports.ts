@@ -8,12 +8,13 @@
  */
 import { VERDICTS } from "../physics/types";
 import { CONTACT_END_CRITERION } from "../sweeps/envelope";
-import { formatNumber, guardFormula, quoteCsvField } from "../sweeps/results";
+import { csvText } from "../csv";
+import { formatNumber } from "../sweeps/results";
 import { stiffnessUnit, type CheckSettings, type PairMatrix, type Recommendation } from "./check";
 import type { PairContactTuning } from "./contact-tuning";
 
 function text(value: string): string {
-  return quoteCsvField(guardFormula(value));
+  return csvText(value);
 }
 
 function num(value: number | null): string {

@@ -12,7 +12,7 @@
  */
 import Papa from "papaparse";
 import { z } from "@/lib/zod";
-import { guardFormula } from "../sweeps/results";
+import { guardFormula } from "../csv";
 import { formatLimit, numericRule, rangeViolation, type NumericParameter } from "../sweeps/parameters";
 import { nameTextProblem } from "@/lib/api/text";
 

@@ -9,7 +9,7 @@ import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { LEDGER_KINDS, ledgerEntries, sweeps } from "@/db/schema";
 import { parseWith } from "@/lib/api/body";
-import { csvCell } from "@/lib/api/csv";
+import { csvCell } from "@/lib/csv";
 import { formatMinutes } from "@/lib/billing/format";
 import { notFound } from "@/lib/errors";
 

@@ -11,7 +11,8 @@ import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
 import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
 import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
 import { CONTACT_CSV_COLUMNS, cellContactTuning, contactTuningCsv, contactTuningJson } from "@/lib/sweeps/contact-tuning";
-import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, guardFormula, quoteCsvField, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
+import { csvText } from "@/lib/csv";
+import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import type { SweepAxisView, SweepView } from "@/lib/sweeps/sweep-view";
 import { readBlob } from "./result-store";
@@ -188,7 +189,7 @@ export async function storedVerdictCodes(db: DbOrTx, sweep: Sweep): Promise<Uint
 function axisTexts(axes: readonly ExpandedAxis[], format: "json" | "csv"): string[][] {
   return axes.map((axis) =>
     axis.values.map((value) =>
-      format === "json" ? JSON.stringify(value) : typeof value === "number" ? (Number.isFinite(value) ? formatNumber(value) : "") : quoteCsvField(guardFormula(value)),
+      format === "json" ? JSON.stringify(value) : typeof value === "number" ? (Number.isFinite(value) ? formatNumber(value) : "") : csvText(value),
     ),
   );
 }
@@ -236,7 +237,7 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
     cellPositions(axes, index, positions);
     let row = String(index);
     for (let i = 0; i < axes.length; i++) row += `,${texts[i][positions[i]]}`;
-    row += `,${quoteCsvField(guardFormula(view.verdict(n)))},${quoteCsvField(guardFormula(view.reason(n)))}`;
+    row += `,${csvText(view.verdict(n))},${csvText(view.reason(n))}`;
     for (let m = 0; m < METRIC_COUNT; m++) row += `,${metricText(view, n, m, "")}`;
     if (contact) row += contactTuningCsv(cellContactTuning(contact, axes, index));
     out += `${row}\r\n`;

@@ -21,7 +21,8 @@ import { restitutionDamping } from "../physics/damping";
 import { DEFAULT_TANGENTIAL_STIFFNESS_RATIO } from "../physics/constants";
 import { z } from "@/lib/zod";
 import { cellIndex, type ExpandedAxis } from "./grid";
-import { formatNumber, guardFormula, quoteCsvField } from "./results";
+import { csvText } from "../csv";
+import { formatNumber } from "./results";
 
 export type EnvelopeBound = "max" | "min";
 
@@ -313,7 +314,7 @@ export function envelopeCsv(document: EnvelopeDocument): string {
   const lines: string[] = [];
   for (const [key, value] of Object.entries({ ...meta, x, y })) lines.push(`# ${key}: ${JSON.stringify(value)}`);
   const unit = (axis: { unit: string }) => (axis.unit ? ` [${axis.unit}]` : "");
-  const text = (value: string) => quoteCsvField(guardFormula(value));
+  const text = csvText;
   const number = (value: number | null) => (value === null ? "" : formatNumber(value));
   lines.push([text(`${x.parameter}${unit(x)}`), text(`${y.parameter} safe${unit(y)}`), text(`${y.parameter} ${document.bound} limit${unit(y)}`), "status"].join(","));
   for (const row of rows) lines.push([typeof row.x === "number" ? formatNumber(row.x) : text(row.x), number(row.safeY), number(row.limit), row.status].join(","));

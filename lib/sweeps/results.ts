@@ -12,6 +12,7 @@
  *
  * Pure: safe to import in the browser.
  */
+import { csvText } from "../csv";
 import type { Metrics, Verdict } from "../physics/types";
 import { VERDICTS } from "../physics/types";
 import type { ExpandedAxis } from "./grid";
@@ -206,25 +207,6 @@ export function resultsToJson(header: ResultsHeader, results: Iterable<CellResul
 
 // ---------------------------------------------------------------------------
 // CSV
-
-/**
- * Text that a spreadsheet would read as a formula gets a leading single quote
- * (= + - @, and tab / carriage return as the OWASP guidance on CSV injection
- * adds). Only text fields are guarded: numbers are written by formatNumber and
- * a leading minus sign there is a negative number, not a formula.
- */
-export function guardFormula(text: string): string {
-  return /^[=+\-@\t\r]/.test(text) ? `'${text}` : text;
-}
-
-/** RFC 4180: quote a field that holds a comma, a double quote, CR or LF; double the quotes inside. */
-export function quoteCsvField(text: string): string {
-  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
-}
-
-function csvText(text: string): string {
-  return quoteCsvField(guardFormula(text));
-}
 
 function csvValue(value: number | string | boolean | null): string {
   if (value === null) return "";

@@ -5,9 +5,7 @@ import type { ExpandedAxis } from "../../../lib/sweeps/grid";
 import {
   METRIC_KEYS,
   formatNumber,
-  guardFormula,
   jsonResultsEncoder,
-  quoteCsvField,
   resultsToCsv,
   resultsToJson,
   type CellResult,
@@ -108,13 +106,5 @@ describe("CSV results", () => {
     expect(second[head.indexOf("energyErrorRel")]).toBe("");
     expect(second[head.indexOf("effectiveRestitution")]).toBe("");
     expect(second[head.indexOf("exploded")]).toBe("true");
-  });
-
-  it("guard every formula lead character and quote by RFC 4180", () => {
-    for (const lead of ["=", "+", "-", "@", "\t", "\r"]) expect(guardFormula(`${lead}1+1`)).toBe(`'${lead}1+1`);
-    expect(guardFormula("stable")).toBe("stable");
-    expect(quoteCsvField('say "hi", twice')).toBe('"say ""hi"", twice"');
-    expect(quoteCsvField("line\nbreak")).toBe('"line\nbreak"');
-    expect(quoteCsvField("plain")).toBe("plain");
   });
 });
