@@ -49,9 +49,12 @@ async function run(): Promise<void> {
   }
   {
     // Billing: Stripe test mode with STRIPE_SECRET_KEY, else the local Stripe fake; meter events go out through the outbox.
-    const { startBilling } = await import("../lib/billing/startup");
+    const { startBilling, stripeFakeOptions } = await import("../lib/billing/startup");
+    const { usesStripeFake } = await import("../lib/billing/stripe");
     try {
-      console.log(`[kickdrift] ${await startBilling(db)}`);
+      // The boot, not billing, starts the fake (demo, development and tests: production refused above).
+      const localStripe = usesStripeFake() ? await (await import("../lib/fakes/stripe")).ensureStripeFake(stripeFakeOptions()) : undefined;
+      console.log(`[kickdrift] ${await startBilling(db, localStripe)}`);
     } catch (error) {
       // Without Stripe the site still serves pages; billing routes answer 503 until it is reachable.
       console.error(`[kickdrift] could not start billing: ${(error as Error).message}`);

@@ -9,7 +9,7 @@
  */
 import { closeSync, openSync, readFileSync, rmSync, writeSync } from "node:fs";
 import { parseArgs } from "node:util";
-import { predictSweep } from "../lib/sweeps/cost";
+import { predictSweep } from "../lib/sweeps/chunks";
 import { expandAxes } from "../lib/sweeps/grid";
 import { createChunkPool, defaultThreadCount } from "../lib/sweeps/pool";
 import { csvResultsEncoder, jsonResultsEncoder, type ResultsEncoder } from "../lib/sweeps/results";

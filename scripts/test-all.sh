@@ -44,6 +44,12 @@ npx eslint .
 step "typecheck"
 npx tsc --noEmit
 
+step "module layers and import circles (dependency-cruiser, rules in .dependency-cruiser.cjs)"
+npm run --silent check:deps
+
+step "unused files, exports and dependencies (knip, knip.json)"
+npm run --silent check:unused
+
 step "OpenAPI document: generated from the route schemas, linted by Redocly"
 npx tsx scripts/openapi.ts .build/openapi.json
 npx redocly lint .build/openapi.json

@@ -3,7 +3,7 @@
  * axes, overlays and legend, at the requested size and resolution (no hover outline). The SVG
  * export (svg-export.ts) writes the same layout as vector shapes.
  */
-import { buildMapModel, type MapAxis, type MapLayer, type MapModel, type OverlayInput, type ResolvedScale } from "./map-model";
+import { type MapModel } from "./map-model";
 import { LIGHT_CHROME, renderMap, type ChromeColours } from "./render";
 
 export interface PngExportOptions {
@@ -54,14 +54,6 @@ export function downloadBlob(blob: Blob, fileName: string): void {
   link.click();
   link.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10_000);
-}
-
-/** A map straight from StabilityMap-like props to a PNG Blob (the sweep page's "download" without a mounted map). */
-export function stabilityMapPng(
-  map: { x: MapAxis; y: MapAxis; layer: MapLayer; overlays?: readonly OverlayInput[]; scale?: ResolvedScale },
-  options: PngExportOptions,
-): Promise<Blob> {
-  return exportMapPng(buildMapModel(map.x, map.y, map.layer, map.overlays, map.scale), options);
 }
 
 /** "Exported 2026-05-01 14:03 UTC": the date line of an export's title block. */

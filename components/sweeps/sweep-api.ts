@@ -1,12 +1,14 @@
 "use client";
 /** Client access to the sweep routes of issue 4 (`/api/v1/studios/{studioId}/…`), typed by the shared contract. */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import type { Metrics, TimeSeries, Verdict } from "@/lib/physics/types";
+import type { TimeSeries } from "@/lib/physics/types";
 import type { Scenario } from "@/lib/physics/types";
 import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
-import { FIRST_CURSOR, withPage, type CellsPage, type HeldCells } from "./sweep-cells";
+import { FIRST_CURSOR, withPage, type CellRow, type CellsPage, type HeldCells } from "./sweep-cells";
+
+export type { CellRow } from "./sweep-cells";
 
 export const SWEEP_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused", "done", "failed", "cancelled"];
 export const ACTIVE_STATUSES: readonly SweepStatus[] = ["queued", "running", "paused"];
@@ -17,14 +19,6 @@ export type Sweep = SweepView;
 
 /** The quote as the server computes it (a type-only import: nothing of the server reaches the client bundle). */
 export type { Quote } from "@/lib/queue/submit";
-
-export interface CellRow {
-  index: number;
-  axisValues: (number | string)[];
-  metrics: Metrics;
-  verdict: Verdict;
-  reason: string | null;
-}
 
 export interface CellDetail {
   cell: CellRow & { scenario: Scenario };

@@ -6,7 +6,16 @@
  * answer winning, so none is held twice. Pure functions, no React: the page's hook and the tests
  * use the same merge.
  */
-import type { CellRow } from "./sweep-api";
+import type { Metrics, Verdict } from "@/lib/physics/types";
+
+/** One done cell as the cells route answers it. */
+export interface CellRow {
+  index: number;
+  axisValues: (number | string)[];
+  metrics: Metrics;
+  verdict: Verdict;
+  reason: string | null;
+}
 
 /** What the page holds: done cells in index order, and the cursor of the answer they came with. */
 export interface HeldCells {

@@ -140,12 +140,6 @@ export function mapCellIndices(axes: readonly SweepAxisView[], selection: MapSel
   return indices;
 }
 
-export interface LayerData {
-  verdicts: (Verdict | null)[];
-  reasons: (string | null)[];
-  metric: Float64Array;
-}
-
 /** The map's per-cell data: NaN / null for cells not done yet; null metrics (no value) as null. */
 /**
  * The hover line on what the integrator did to the contacts: the largest ω·h and the rebound against

@@ -26,11 +26,6 @@ export async function settleAfterResponse(): Promise<void> {
   while (pending.size > 0) await Promise.all([...pending]);
 }
 
-/** How many pieces of work are started and not finished. */
-export function afterResponsePending(): number {
-  return pending.size;
-}
-
 /** Tests: work started from now on waits until the returned release is called. */
 export function holdAfterResponse(): () => void {
   let release!: () => void;

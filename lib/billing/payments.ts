@@ -12,7 +12,8 @@ import { ApiError, notFound } from "@/lib/errors";
 import { enqueueOutbox } from "@/lib/outbox/outbox";
 import { pokeOutbox, registerOutboxHandler } from "@/lib/outbox/process";
 import { billingConfig, stripeFailure } from "./stripe";
-import { creditCheckout, purchaseKey, reportFailedPayment } from "./webhook";
+import { purchaseKey } from "@/lib/ledger/ledger";
+import { creditCheckout, reportFailedPayment } from "./webhook";
 
 /** What the return page shows: credited, still settling (delayed method), failed, not paid yet, or expired. */
 export type PaymentState = "credited" | "processing" | "failed" | "open" | "expired" | "refused";

@@ -18,7 +18,7 @@ import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts } from "./catalog";
 import { disputeMail, refundMail } from "./mail";
 import { stripeFailure } from "./stripe";
-import { purchaseKey } from "./webhook";
+import { purchaseKey } from "@/lib/ledger/ledger";
 
 export const refundKey = (refundId: string) => `refund:${refundId}`;
 export const disputeKey = (disputeId: string) => `dispute:${disputeId}`;

@@ -1,4 +1,4 @@
-/** Server start: the Stripe client (test mode or the local fake), the catalog, and the meter-event outbox handler. */
+/** Server start: the Stripe client (test mode, or the local fake the boot started), the catalog, and the meter-event outbox handler. */
 import path from "node:path";
 import type { Db } from "@/db/client";
 import { dataDir } from "@/db/client";
@@ -12,7 +12,28 @@ import { HANDLED_EVENT_TYPES } from "./webhook";
 
 export const WEBHOOK_PATH = "/api/v1/stripe/webhook";
 
-export async function startBilling(db: Db): Promise<string> {
+/** What the boot passes to the local Stripe fake it starts (demo, development and tests only). */
+export function stripeFakeOptions() {
+  return {
+    port: stripeFakePort(),
+    webhookUrl: `${appBaseUrl()}${WEBHOOK_PATH}`,
+    webhookEvents: [...HANDLED_EVENT_TYPES],
+    store: path.join(dataDir(), "stripe-fake.json"),
+  };
+}
+
+/** A local Stripe fake the boot started, as billing needs to know it. */
+export interface LocalStripe {
+  port: number;
+  url: string;
+  webhookSecret: string | null;
+}
+
+/**
+ * Billing at server start: Stripe test mode with STRIPE_SECRET_KEY; otherwise the local fake the boot
+ * started and passes in (billing never starts or imports a fake itself).
+ */
+export async function startBilling(db: Db, localStripe?: LocalStripe): Promise<string> {
   registerMeterEventHandler(db);
   if (!usesStripeFake()) {
     const config = billingConfig();
@@ -21,17 +42,11 @@ export async function startBilling(db: Db): Promise<string> {
     await startFinanceReconcile(db);
     return "billing uses Stripe (STRIPE_SECRET_KEY)";
   }
-  const { ensureStripeFake } = await import("@/lib/fakes/stripe");
-  const fake = await ensureStripeFake({
-    port: stripeFakePort(),
-    webhookUrl: `${appBaseUrl()}${WEBHOOK_PATH}`,
-    webhookEvents: [...HANDLED_EVENT_TYPES],
-    store: path.join(dataDir(), "stripe-fake.json"),
-  });
-  const stripe = fakeStripeClient(fake.port);
-  configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });
+  if (!localStripe?.webhookSecret) throw new Error("no STRIPE_SECRET_KEY and no local Stripe fake was started");
+  const stripe = fakeStripeClient(localStripe.port);
+  configureBilling({ stripe, webhookSecret: localStripe.webhookSecret, mode: "fake", fakeUrl: localStripe.url });
   await ensureCatalog(stripe);
   await startCheckoutReconcile(db);
   await startFinanceReconcile(db);
-  return `local Stripe fake on ${fake.url}; payment page and webhooks to ${appBaseUrl()}${WEBHOOK_PATH}`;
+  return `local Stripe fake on ${localStripe.url}; payment page and webhooks to ${appBaseUrl()}${WEBHOOK_PATH}`;
 }

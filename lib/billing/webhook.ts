@@ -11,7 +11,7 @@ import { invoices, stripeEvents, studioBilling, studios, type InvoiceKind, type 
 import { ApiError } from "@/lib/errors";
 import { parseWith } from "@/lib/api/body";
 import { writeAudit } from "@/lib/audit/audit";
-import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { appendLedgerEntry, purchaseKey } from "@/lib/ledger/ledger";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { billingContacts, studioOfCustomer } from "./catalog";
@@ -63,7 +63,6 @@ export interface WebhookResult {
   outcome: string;
 }
 
-export const purchaseKey = (sessionId: string) => `purchase:${sessionId}`;
 /** metadata.kind of the invoice Checkout makes for a pack purchase (invoice_creation). */
 export const PACK_INVOICE_KIND = "pack_purchase";
 

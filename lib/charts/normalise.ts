@@ -176,12 +176,6 @@ export function domainProblem(kind: NormalisationKind, domain: readonly [number,
   return null;
 }
 
-/** Index into a LUT of `lutSize` entries for a normalised t (NaN → −1). */
-export function lutIndex(t: number, lutSize: number): number {
-  if (Number.isNaN(t)) return -1;
-  return Math.round(t * (lutSize - 1));
-}
-
 /** Ticks for the legend bar of a normalisation. */
 export function legendTicks(n: Normalisation, target = 5): Tick[] {
   if (n.kind === "log") return logTicks(n.domain[0], n.domain[1]);

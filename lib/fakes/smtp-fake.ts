@@ -4,6 +4,7 @@ import { simpleParser, type AddressObject } from "mailparser";
 import { getDb } from "@/db/client";
 import { newId } from "@/db/ids";
 import { mailMessages } from "@/db/schema";
+import { setLocalMailServer } from "@/lib/mail/transport";
 
 /**
  * A local SMTP server that speaks the real protocol (so the app's nodemailer transport is exercised
@@ -89,14 +90,17 @@ export function startMailFake(options: { port?: number; host?: string } = {}): P
         close: () =>
           new Promise<void>((done) => {
             store[fakeKey] = undefined;
+            setLocalMailServer(undefined);
             server.close(() => done());
           }),
       });
     });
   });
   store[fakeKey] = started;
+  setLocalMailServer(started);
   started.catch(() => {
     store[fakeKey] = undefined;
+    setLocalMailServer(undefined);
   });
   return started;
 }

@@ -63,3 +63,8 @@ export function welcomeGrant(studioId: string): LedgerWrite {
 export function usageKey(sweepId: string, chunkIndex: number): string {
   return `usage:${sweepId}:${chunkIndex}`;
 }
+
+/** The key of a pack purchase's credit: one per Checkout session, however often its events arrive. */
+export function purchaseKey(sessionId: string): string {
+  return `purchase:${sessionId}`;
+}

@@ -1,5 +1,4 @@
 import nodemailer, { type Transporter } from "nodemailer";
-import { runningMailFake } from "@/lib/fakes/smtp-fake";
 
 export { isMailFakeEnabled } from "./mode";
 
@@ -10,9 +9,25 @@ export function mailFrom(): string {
 const transportKey = Symbol.for("kickdrift.mail-transport");
 const store = globalThis as unknown as Record<symbol, { signature: string; transporter: Transporter } | undefined>;
 
+/** An SMTP server started in this process (the demo's local mail fake), as its starter announced it. */
+export interface LocalMailServer {
+  host: string;
+  port: number;
+}
+const localKey = Symbol.for("kickdrift.local-mail-server");
+const localStore = globalThis as unknown as Record<symbol, Promise<LocalMailServer> | undefined>;
+
+/**
+ * Whoever starts a mail server in this process (the boot, on a demo or test instance) tells the
+ * transport where it listens; undefined when it stops. The app itself never starts or imports one.
+ */
+export function setLocalMailServer(server: Promise<LocalMailServer> | undefined): void {
+  localStore[localKey] = server;
+}
+
 async function transportOptions(): Promise<string | { host: string; port: number; secure: false; ignoreTLS: true }> {
   if (process.env.SMTP_URL) return process.env.SMTP_URL;
-  const fake = await runningMailFake();
+  const fake = await localStore[localKey];
   return {
     // MAIL_FAKE_HOST: the fake runs as its own service (docker-compose.yml), not in this process.
     host: fake?.host ?? (process.env.MAIL_FAKE_HOST || "127.0.0.1"),

@@ -6,10 +6,8 @@
  */
 
 export type IntegratorName = "symplectic-euler" | "velocity-verlet" | "explicit-euler";
-export const INTEGRATORS: readonly IntegratorName[] = ["symplectic-euler", "velocity-verlet", "explicit-euler"];
 
 export type ContactModelName = "linear" | "hertz";
-export const CONTACT_MODELS: readonly ContactModelName[] = ["linear", "hertz"];
 
 export type Verdict = "exploded" | "tunneled" | "deep-overlap" | "energy-drift" | "stable" | "step-unstable" | "restitution-off" | "coarse-contact" | "jitter" | "creep" | "sinking";
 /**
@@ -37,8 +35,6 @@ export const INSTABILITY_VERDICTS: readonly Verdict[] = ["exploded", "step-unsta
 // or let a body through. A stiffness from the stability bound is not refuted by them, and a
 // build fails on them only when asked (--fail-on). A tangential spring past its step bound is
 // judged step-unstable, which is an instability verdict.
-/** Precedence of verdict rules 1 (sweeps stored before the rules were versioned). */
-export const VERDICT_PRECEDENCE_V1: readonly Verdict[] = ["exploded", "tunneled", "deep-overlap", "energy-drift", "stable"];
 
 /**
  * Version of the rules that measure a cell and turn its metrics into a verdict. 1: the rules before

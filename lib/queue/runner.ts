@@ -35,7 +35,7 @@ import { recordChunkUsage } from "@/lib/billing/usage";
 import { LOW_BALANCE_MS } from "@/lib/billing/packs";
 import { usageKey } from "@/lib/ledger/ledger";
 import { monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
-import { applyRunLimits, CAP_ALERT_THRESHOLDS, RUN_LIMIT_REASONS, sendCapAlerts } from "@/lib/quotas/enforce";
+import { applyRunLimits, CAP_ALERT_THRESHOLDS, sendCapAlerts } from "@/lib/quotas/enforce";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { VERDICTS } from "@/lib/physics/types";
 import type { ChunkOutcome, ChunkTask } from "@/lib/sweeps/chunk-task";
@@ -50,7 +50,6 @@ import { dropBlobFile, putBlob, readBlob, removeOrphanBlobs } from "./result-sto
 const MAX_TO_KEY = 100_000;
 /** Attempts per chunk: the first run plus two retries. */
 export const MAX_CHUNK_ATTEMPTS = 3;
-export const OUT_OF_MINUTES = RUN_LIMIT_REASONS.outOfMinutes;
 /**
  * Longest wait between two checks of the run limits while chunks land far from every limit (ms):
  * a top-up, a raise or a suspension takes effect within it. A chunk landing near a limit triggers

@@ -18,7 +18,7 @@ import { VERDICTS } from "@/lib/physics/types";
 import { KeyTable, scenarioKey } from "@/lib/sweeps/cell-key";
 import { keysOfCells } from "@/lib/sweeps/chunk-task";
 import type { ChunkOptions, ChunkPlan } from "@/lib/sweeps/chunks";
-import { predictSweep } from "@/lib/sweeps/cost";
+import { predictSweep } from "@/lib/sweeps/chunks";
 import { meterSweep, type Metering, type SweepMeter } from "@/lib/sweeps/metering";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { specHash } from "@/lib/sweeps/hash";

@@ -6,7 +6,7 @@
  */
 import { and, asc, eq, gt, lte, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { sweepChunks, sweepResults, sweeps, type Sweep, type SweepResult } from "@/db/schema";
+import { sweepChunks, sweepResults, type Sweep, type SweepResult } from "@/db/schema";
 import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
 import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
 import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
@@ -36,11 +36,6 @@ export function verdictCountsFrom(stored: Record<string, number> | null | undefi
   return counts;
 }
 
-export async function verdictCountsOf(db: DbOrTx, sweepId: string): Promise<VerdictCounts> {
-  const [row] = await db.select({ verdictCounts: sweeps.verdictCounts }).from(sweeps).where(eq(sweeps.id, sweepId));
-  return verdictCountsFrom(row?.verdictCounts);
-}
-
 export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
   const spec = sweep.spec as SweepSpec;
   return {
@@ -65,25 +60,6 @@ export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
     spec,
     rerunOf: sweep.rerunOfSweepId !== null && sweep.rerunOfCellIndex !== null ? { sweepId: sweep.rerunOfSweepId, cellIndex: sweep.rerunOfCellIndex } : null,
   };
-}
-
-/** Metrics as stored (jsonb) back in the contract's fixed key order. */
-export function orderedMetrics(stored: unknown): Metrics {
-  const record = (stored ?? {}) as Record<string, unknown>;
-  const out: Record<string, unknown> = {};
-  for (const key of METRIC_KEYS) out[key] = record[key] ?? null;
-  return out as unknown as Metrics;
-}
-
-/** What is stored for a cell's metrics: non-finite numbers as null (JSON has no NaN), −0 as 0. */
-export function storableMetrics(metrics: Metrics): Record<string, number | boolean | null> {
-  const out: Record<string, number | boolean | null> = {};
-  const record = metrics as unknown as Record<string, number | boolean | null>;
-  for (const key of METRIC_KEYS) {
-    const value = record[key];
-    out[key] = typeof value === "number" ? (Number.isFinite(value) ? (Object.is(value, -0) ? 0 : value) : null) : (value ?? null);
-  }
-  return out;
 }
 
 const ROWS_PER_READ = 8;

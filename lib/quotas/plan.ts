@@ -21,8 +21,6 @@ export interface Quotas {
   overageCapMs: number;
 }
 
-export type QuotaKey = keyof Quotas;
-
 /** Defaults of the one plan we sell. The per-sweep limits can only be lowered below the engine's own (SPEC_LIMITS). */
 export const PLAN_DEFAULTS: Readonly<Quotas> = {
   monthlyComputeMs: 3_000 * 60_000,

@@ -41,17 +41,6 @@ export async function studiosOfUser(userId: string): Promise<z.infer<typeof stud
     .orderBy(asc(studios.name), asc(studios.id));
 }
 
-export async function allStudios(): Promise<(StudioView & { memberCount: number })[]> {
-  const db = await getDb();
-  const rows = await db
-    .select({ studio: studios, memberCount: count(memberships.userId) })
-    .from(studios)
-    .leftJoin(memberships, eq(memberships.studioId, studios.id))
-    .groupBy(studios.id)
-    .orderBy(asc(studios.createdAt), asc(studios.id));
-  return rows.map((r) => ({ ...studioView(r.studio), memberCount: Number(r.memberCount) }));
-}
-
 export async function allUsers(): Promise<
   { id: string; email: string; name: string; isAdmin: boolean; createdAt: string; studioCount: number }[]
 > {

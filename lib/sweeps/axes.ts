@@ -7,7 +7,32 @@
 import { totalSubsteps } from "../physics/simulate";
 import type { Scenario, SceneKind } from "../physics/types";
 import { findParameter } from "./parameters";
-import type { AxisSpec } from "./spec";
+
+/**
+ * An axis as these helpers read it. The spec's zod schema (lib/sweeps/spec.ts) is the source of
+ * truth; its parsed AxisFields must be assignable to this (checked there at compile time), so this
+ * module needs nothing from the schema module and the worker bundle stays free of zod.
+ */
+export interface AxisFields {
+  parameter: string;
+  spacing?: "linear" | "log";
+  from?: number;
+  to?: number;
+  count?: number;
+  values?: (number | string)[];
+  /** scene.pair only: what each value (a pair name) sets. */
+  pairs?: {
+    name: string;
+    massAKg: number;
+    radiusAM: number;
+    speedAMPerS: number;
+    massBKg: number;
+    radiusBM: number;
+    speedBMPerS: number;
+    stiffness?: number;
+    restitution?: number;
+  }[];
+}
 
 /**
  * The values of one axis, in order. Range axes: `count` points from `from` to
@@ -16,7 +41,7 @@ import type { AxisSpec } from "./spec";
  * scene.count) round each point to the nearest integer.
  * List axes: the values as written.
  */
-export function axisValues(axis: AxisSpec, integer = false): (number | string)[] {
+export function axisValues(axis: AxisFields, integer = false): (number | string)[] {
   if (axis.values) return [...axis.values];
   const from = axis.from as number;
   const to = axis.to as number;
@@ -98,7 +123,7 @@ export function fieldSetter(path: string): FieldSetter {
  * speeds and, when the pair carries them, the contact stiffness and target restitution); every
  * other axis writes its field.
  */
-export function axisSetter(axis: AxisSpec): FieldSetter {
+export function axisSetter(axis: AxisFields): FieldSetter {
   if (axis.parameter !== PAIR_AXIS_PATH) return fieldSetter(axis.parameter);
   const byName = new Map((axis.pairs ?? []).map((pair) => [pair.name, pair]));
   return (scenario, value) => {
@@ -121,7 +146,7 @@ export function axisSetter(axis: AxisSpec): FieldSetter {
  * the others, then scene.massRatio (so it sees the cell's own massAKg) and
  * scene.closingSpeedFraction (so it scales the cell's own speeds).
  */
-export function applicationOrder(axes: readonly AxisSpec[]): number[] {
+export function applicationOrder(axes: readonly AxisFields[]): number[] {
   // Rank 0: the pair axis; 1: ordinary axes; 2, 3, …: APPLIED_LAST in its order. Ties keep the spec order.
   const rank = (path: string) => (path === PAIR_AXIS_PATH ? 0 : APPLIED_LAST.includes(path) ? 2 + APPLIED_LAST.indexOf(path) : 1);
   return axes
@@ -131,7 +156,7 @@ export function applicationOrder(axes: readonly AxisSpec[]): number[] {
 }
 
 /** A copy of the base scenario with one value per axis applied. */
-export function applyAxisValues(base: Scenario, axes: readonly AxisSpec[], values: readonly (number | string)[]): Scenario {
+export function applyAxisValues(base: Scenario, axes: readonly AxisFields[], values: readonly (number | string)[]): Scenario {
   const scenario = copyScenario(base);
   for (const i of applicationOrder(axes)) axisSetter(axes[i])(scenario, values[i]);
   return scenario;

@@ -7,7 +7,7 @@
  *
  * Pure: safe to import in the browser.
  */
-import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, oneOffKey, predictCellNs, type CostConstants } from "./cost";
+import { CALIBRATION, DEFAULT_TARGET_CHUNK_MS, QUOTE_BAND, oneOffKey, predictCellNs, type CostConstants } from "./cost";
 import { stepsPerCell } from "./axes";
 import { cellCount, expandAxes, forEachScenarioInPlace, type ExpandedAxis } from "./grid";
 import type { SweepSpec } from "./spec";
@@ -82,4 +82,38 @@ export function planChunksWithStats(spec: SweepSpec, options: ChunkOptions = {})
   });
   if (cells > 0) close();
   return { chunks, largestCellNs, steps };
+}
+
+export interface SweepCostEstimate {
+  cells: number;
+  chunks: number;
+  /** Predicted compute of the whole sweep, integer milliseconds (sum of the chunks' predictions). */
+  computeMs: number;
+  /** The largest predicted cell (ms, rounded up). */
+  largestCellMs: number;
+  /** computeMs × QUOTE_BAND: the range the billed compute is expected in. */
+  bandMs: { low: number; high: number };
+  /** The chunks the quote assumes (pass them to runSweep so the run is the one quoted). */
+  plan: ChunkPlan[];
+  /** Integrator steps of all cells. */
+  steps: number;
+}
+
+/**
+ * Predicted compute of a sweep as it will be chunked and billed: each chunk's cells, its fixed
+ * overhead and its one-off solves, each chunk rounded up to whole ms as the worker bills it.
+ */
+export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): SweepCostEstimate {
+  const axes = options.axes ?? expandAxes(spec);
+  const { chunks, largestCellNs, steps } = planChunksWithStats(spec, { ...options, axes });
+  const computeMs = chunks.reduce((sum, chunk) => sum + chunk.predictedMs, 0);
+  return {
+    cells: cellCount(axes),
+    chunks: chunks.length,
+    computeMs,
+    largestCellMs: Math.ceil(largestCellNs / 1e6),
+    bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },
+    plan: chunks,
+    steps,
+  };
 }

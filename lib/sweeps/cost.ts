@@ -20,10 +20,7 @@
  */
 import { effectiveModulusSameMaterialPa, hertzContactDurationS, hertzStiffnessFromModulus, linearContactDurationS } from "../physics/analytic";
 import type { Scenario } from "../physics/types";
-import { planChunksWithStats, type ChunkOptions, type ChunkPlan } from "./chunks";
-import { cellCount, expandAxes } from "./grid";
 import { bodyCount, stepsPerCell } from "./axes";
-import type { SweepSpec } from "./spec";
 
 export interface CostConstants {
   /** Fixed cost of one wall, row or box cell: set-up, metrics, verdict (ns). */
@@ -167,40 +164,6 @@ export function frictionCostFactor(scenario: Scenario): number {
 export function oneOffKey(scenario: Scenario): string | null {
   const { contact } = scenario;
   return contact.model === "hertz" && contact.damping.kind === "restitution" ? `hertz-e:${contact.damping.value}` : null;
-}
-
-export interface SweepCostEstimate {
-  cells: number;
-  chunks: number;
-  /** Predicted compute of the whole sweep, integer milliseconds (sum of the chunks' predictions). */
-  computeMs: number;
-  /** The largest predicted cell (ms, rounded up). */
-  largestCellMs: number;
-  /** computeMs × QUOTE_BAND: the range the billed compute is expected in. */
-  bandMs: { low: number; high: number };
-  /** The chunks the quote assumes (pass them to runSweep so the run is the one quoted). */
-  plan: ChunkPlan[];
-  /** Integrator steps of all cells. */
-  steps: number;
-}
-
-/**
- * Predicted compute of a sweep as it will be chunked and billed: each chunk's cells, its fixed
- * overhead and its one-off solves, each chunk rounded up to whole ms as the worker bills it.
- */
-export function predictSweep(spec: SweepSpec, options: ChunkOptions = {}): SweepCostEstimate {
-  const axes = options.axes ?? expandAxes(spec);
-  const { chunks, largestCellNs, steps } = planChunksWithStats(spec, { ...options, axes });
-  const computeMs = chunks.reduce((sum, chunk) => sum + chunk.predictedMs, 0);
-  return {
-    cells: cellCount(axes),
-    chunks: chunks.length,
-    computeMs,
-    largestCellMs: Math.ceil(largestCellNs / 1e6),
-    bandMs: { low: Math.floor(computeMs * QUOTE_BAND.low), high: Math.ceil(computeMs * QUOTE_BAND.high) },
-    plan: chunks,
-    steps,
-  };
 }
 
 /** Chunks aim at this much predicted compute: long enough to hide dispatch, short enough for progress and retries. */

@@ -23,7 +23,7 @@ import type { ChunkPlan } from "./chunks";
 import { expandAxes, forEachCellInRange, type ExpandedAxis } from "./grid";
 import type { SweepSpec } from "./spec";
 
-export { WORK_UNITS_PER_BILLED_MS, METERING_WALL_CLOCK, METERING_WORK_UNITS, type Metering } from "./metering-rate";
+export { WORK_UNITS_PER_BILLED_MS, type Metering } from "./metering-rate";
 
 /** Billed ms of a number of work units, rounded up (a sweep that did any work costs at least 1 ms). */
 export function billedMsOfUnits(units: number): number {

@@ -13,7 +13,6 @@ import { DEFAULT_TOLERANCES } from "../physics/constants";
 import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import { VERDICT_RULES_VERSION, VERDICT_RULES_VERSIONS, type Scenario, type SceneKind, type Tolerances } from "../physics/types";
 import {
-  CHOICE_PARAMETERS,
   SPEC_LIMITS,
   findParameter,
   formatLimit,
@@ -27,9 +26,8 @@ import {
 } from "./parameters";
 
 export { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parametersForScene } from "./parameters";
-export { applicationOrder, applyAxisValues, axisValues, bodyCount, copyScenario, fieldSetter, isIntegerParameter, stepsPerCell } from "./axes";
-import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParameter } from "./axes";
-export { CLOSING_SPEED_FRACTION_PATH, PAIR_AXIS_PATH, axisSetter } from "./axes";
+export { axisValues, bodyCount, stepsPerCell } from "./axes";
+import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParameter, type AxisFields } from "./axes";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
 export const SPEC_DEFAULT_TOLERANCES: Readonly<Required<Omit<Tolerances, RestingTolerance>>> = Object.freeze({
@@ -352,6 +350,9 @@ export const axisSchema = z.strictObject({
 });
 
 export type AxisSpec = z.infer<typeof axisSchema>;
+// What lib/sweeps/axes.ts reads of an axis: the schema's output must stay assignable to it.
+const axisMatchesHelpers: Assignable<AxisSpec, AxisFields> = true;
+void axisMatchesHelpers;
 
 // ---------------------------------------------------------------------------
 // Checks that need a whole scenario (run on the base and on every corner of the grid)
@@ -843,9 +844,6 @@ export function scenarioValue(scenario: Scenario, path: string): number | string
   }
   return readNumericField(scenario, path);
 }
-
-/** Choice parameters, re-exported for the form. */
-export { CHOICE_PARAMETERS };
 
 /**
  * A stored spec as the starting point of a new one ("duplicate and edit"): everything as it ran,

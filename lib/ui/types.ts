@@ -9,11 +9,6 @@ export const ROLE_DESCRIPTIONS: Record<StudioRole, string> = {
   finance: "Finance members see usage, invoices and credit packs.",
 };
 
-export type MeResponse = {
-  user: { id: string; email: string; name: string | null; isAdmin: boolean };
-  studios: { id: string; name: string; role: StudioRole }[];
-};
-
 export type StudioSummary = { id: string; name: string; role: StudioRole };
 
 export type StudioDetail = {
@@ -55,5 +50,4 @@ export type MailMessage = {
   receivedAt: string;
 };
 
-export type AdminStudio = { id: string; name: string; status: string; createdAt: string; memberCount?: number };
 export type AdminUser = { id: string; email: string; name: string | null; isAdmin: boolean; createdAt?: string; studioCount?: number };

@@ -20,7 +20,6 @@ import type { Db, DbOrTx } from "@/db/client";
 import { newId } from "@/db/ids";
 import {
   catalogueChecks,
-  outbox,
   sweeps,
   webhookDeliveries,
   webhookEndpoints,
@@ -302,7 +301,3 @@ export async function deliverWebhook(db: Db, row: OutboxRow, now: () => Date = (
   throw new Error(problem);
 }
 
-/** Outbox rows of the webhook kind still waiting, for tests and the admin view. */
-export async function pendingWebhookRows(db: Db): Promise<OutboxRow[]> {
-  return db.select().from(outbox).where(and(eq(outbox.kind, WEBHOOK_KIND), eq(outbox.status, "pending")));
-}

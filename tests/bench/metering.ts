@@ -8,7 +8,7 @@
 import { readFileSync, readdirSync } from "node:fs";
 import path from "node:path";
 import { simulate } from "../../lib/physics/index";
-import { predictSweep } from "../../lib/sweeps/cost";
+import { predictSweep } from "../../lib/sweeps/chunks";
 import { expandAxes, forEachCellInRange } from "../../lib/sweeps/grid";
 import { meterSweep, WORK_UNITS_PER_BILLED_MS } from "../../lib/sweeps/metering";
 import { createChunkPool } from "../../lib/sweeps/pool";

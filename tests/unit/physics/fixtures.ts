@@ -10,10 +10,6 @@ export function linearContact(stiffness: number, damping: ContactSpec["damping"]
   return { model: "linear", stiffness, damping };
 }
 
-export function hertzContact(stiffness: number, damping: ContactSpec["damping"] = { kind: "none" }): ContactSpec {
-  return { model: "hertz", stiffness, damping };
-}
-
 export function headOnPair(massAKg: number, massBKg: number, speedAMPerS: number, speedBMPerS = 0, gapM = 0.004, radiusM = 0.05): Scene {
   return { kind: "pair", massAKg, massBKg, radiusAM: radiusM, radiusBM: radiusM, speedAMPerS, speedBMPerS, offsetFraction: 0, gapM };
 }

@@ -10,7 +10,8 @@
 import { describe, expect, it } from "vitest";
 import { simulate, type Verdict } from "@/lib/physics";
 import { STEP_STABILITY_LIMIT_OMEGA_H } from "@/lib/physics/constants";
-import { expandAxes, forEachCellInRange, parseSweepSpec, type SweepSpec } from "@/lib/sweeps";
+import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
+import { parseSweepSpec, type SweepSpec } from "@/lib/sweeps/spec";
 
 const MASS_KG = 0.1; // equal discs: m_eff = 0.05 kg
 const REDUCED_MASS_KG = MASS_KG / 2;

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { Scenario } from "../../../lib/physics/types";
-import { CALIBRATION, QUOTE_BAND, estimateContactDurationS, predictCellNs, predictSweep } from "../../../lib/sweeps/cost";
+import { predictSweep } from "../../../lib/sweeps/chunks";
+import { CALIBRATION, QUOTE_BAND, estimateContactDurationS, predictCellNs } from "../../../lib/sweeps/cost";
 import { planChunks } from "../../../lib/sweeps/chunks";
 import { expandSweep } from "../../../lib/sweeps/grid";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
