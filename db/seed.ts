@@ -87,8 +87,12 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
     const finance = DEMO_ACCOUNTS.find((a) => a.role === "finance")!;
     const admin = DEMO_ACCOUNTS.find((a) => a.role === "admin")!;
     try {
+      const started = performance.now();
       const history = await seedDemoHistory(db, studioId, { buyerId: userIds.get(finance.email)!, adminId: userIds.get(admin.email)! });
-      if (history.summary) created = true;
+      if (history.summary) {
+        created = true;
+        console.log(`[kickdrift] demo billing history: ${history.summary.months.map((m) => m.month).join(", ")} through the local Stripe fake in ${(performance.now() - started).toFixed(0)} ms`);
+      }
       else if (history.reason && !history.reason.includes("already has billing")) console.log(`[kickdrift] demo billing history skipped: ${history.reason}`);
     } catch (error) {
       // The rest of the demo does not depend on it (e.g. a Stripe fake store kept from an earlier database).
