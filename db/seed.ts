@@ -8,6 +8,7 @@ import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapsh
 import { saveSnapshot } from "@/lib/snapshots/store";
 import { hashPassword } from "@/lib/auth/password";
 import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
+import { seedDemoHistory } from "@/lib/demo/history";
 import { seedDemoResults } from "@/lib/demo/results";
 
 /**
@@ -78,6 +79,25 @@ export async function seedDemo(db: Db): Promise<{ studioId: string; created: boo
       .onConflictDoNothing()
       .returning({ userId: memberships.userId });
     if (inserted.length) created = true;
+  }
+  // Three past months of billing through the local Stripe fake (a demo server only: skipped when
+  // billing is not the fake, or the studio has billing already). Before the grant, so the months
+  // spend only what they bought and the balance afterwards is the grant.
+  {
+    const finance = DEMO_ACCOUNTS.find((a) => a.role === "finance")!;
+    const admin = DEMO_ACCOUNTS.find((a) => a.role === "admin")!;
+    try {
+      const started = performance.now();
+      const history = await seedDemoHistory(db, studioId, { buyerId: userIds.get(finance.email)!, adminId: userIds.get(admin.email)! });
+      if (history.summary) {
+        created = true;
+        console.log(`[kickdrift] demo billing history: ${history.summary.months.map((m) => m.month).join(", ")} through the local Stripe fake in ${(performance.now() - started).toFixed(0)} ms`);
+      }
+      else if (history.reason && !history.reason.includes("already has billing")) console.log(`[kickdrift] demo billing history skipped: ${history.reason}`);
+    } catch (error) {
+      // The rest of the demo does not depend on it (e.g. a Stripe fake store kept from an earlier database).
+      console.error(`[kickdrift] demo billing history not made: ${(error as Error).message}`);
+    }
   }
   // The demo studio's compute: one grant, keyed so a second seed run adds nothing.
   if (await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: DEMO_GRANT_MS, idempotencyKey: "seed:grant", memo: "Demo grant: 600 compute minutes" })) created = true;

@@ -42,6 +42,16 @@ export interface ChunkUsage {
   memo: string;
   /** The time the overdue-invoice grace period is judged at; default the database's now(). */
   at?: Date;
+  /**
+   * When the chunk was debited: the entry's time, the month its caps and overage count in, and the
+   * meter event's time; default now. Only the demo seed passes it (its past months of billing).
+   */
+  debitedAt?: Date;
+  /**
+   * False: the entry names the sweep in its key and memo but links to no sweep row, as an entry of
+   * a deleted sweep does (the demo seed's past months, whose sweeps the demo does not keep). Default true.
+   */
+  sweepKept?: boolean;
 }
 
 export interface ChunkUsageResult {
@@ -63,7 +73,7 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
   const [already] = await tx.select({ id: ledgerEntries.id }).from(ledgerEntries).where(eq(ledgerEntries.idempotencyKey, key));
   if (already) return { billed: false, prepaidMs: 0, overageMs: 0 };
 
-  const now = new Date();
+  const now = usage.debitedAt ?? new Date();
   const quotas = await effectiveQuotas(tx, usage.studioId);
   const balanceBefore = await balanceMs(tx, usage.studioId);
   const usedThisMonth = await monthlyUsageMs(tx, usage.studioId, now);
@@ -84,9 +94,10 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
     computeMs: -prepaidMs,
     overageMs,
     idempotencyKey: key,
-    sweepId: usage.sweepId,
+    sweepId: usage.sweepKept === false ? null : usage.sweepId,
     chunkIndex: usage.chunkIndex,
     memo,
+    ...(usage.debitedAt ? { at: usage.debitedAt } : {}),
   });
   if (!billed) return { billed: false, prepaidMs: 0, overageMs: 0 };
   if (overageMs > 0) {

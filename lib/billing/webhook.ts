@@ -143,7 +143,13 @@ export function paymentMismatch(session: Stripe.Checkout.Session, pack: CreditPa
 }
 
 /** Credits a paid Checkout session once (key purchase:{sessionId}), whichever event or call sees it first. */
-export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, event: { id: string; type: string } | null): Promise<string> {
+export async function creditCheckout(
+  db: Db,
+  session: Stripe.Checkout.Session,
+  event: { id: string; type: string } | null,
+  /** `at`: when the purchase is credited; default the database's now() (only the demo seed's past months pass it). */
+  options: { at?: Date } = {},
+): Promise<string> {
   const studioId = session.metadata?.studio_id ?? session.client_reference_id ?? null;
   const pack = findPack(session.metadata?.pack_id ?? "");
   const quantity = Number(session.metadata?.quantity ?? "1");
@@ -178,6 +184,7 @@ export async function creditCheckout(db: Db, session: Stripe.Checkout.Session, e
         amountCents: session.amount_total,
         idempotencyKey: purchaseKey(session.id),
         memo: `${pack.name} pack × ${quantity}: ${pack.minutes * quantity} minutes (${session.id})`,
+        ...(options.at ? { at: options.at } : {}),
       });
       outcome = written ? `credited ${purchaseKey(session.id)}` : `already credited ${purchaseKey(session.id)}`;
       const buyer = session.metadata?.buyer_email || session.customer_details?.email;

@@ -19,6 +19,8 @@ export interface LedgerWrite {
   sweepId?: string | null;
   chunkIndex?: number | null;
   memo?: string;
+  /** When the entry happened; default the database's now(). Only the demo seed's past months pass it. */
+  at?: Date;
 }
 
 /**
@@ -41,6 +43,7 @@ export async function appendLedgerEntry(db: DbOrTx, entry: LedgerWrite): Promise
       sweepId: entry.sweepId ?? null,
       chunkIndex: entry.chunkIndex ?? null,
       memo: entry.memo ?? "",
+      ...(entry.at ? { createdAt: entry.at } : {}),
     })
     .onConflictDoNothing({ target: ledgerEntries.idempotencyKey })
     .returning({ id: ledgerEntries.id });

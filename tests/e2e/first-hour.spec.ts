@@ -126,6 +126,18 @@ test("finance sees the next invoice and usage with data; every role's studio hom
   await finance.getByRole("link", { name: "Billing and usage →" }).click();
   await expect(finance.getByTestId("usage-by-day").locator(".recharts-bar-rectangle").first()).toBeVisible();
   await expect(finance.getByTestId("usage-by-sweep").locator(".recharts-bar-rectangle").first()).toBeVisible();
+  // Three past months of billing (lib/demo/history.ts): an overage invoice per month, the second one
+  // 80 minutes = 4,800,000 ms × 0.00015 ¢ = $7.20 (arithmetic), paid; the two packs' own paid invoices.
+  await finance.getByRole("link", { name: "Invoices", exact: true }).click();
+  const rows = finance.getByTestId("invoices-table").getByRole("row");
+  const overage = rows.filter({ hasText: "Overage" });
+  await expect(overage.filter({ hasText: "$7.20" })).toHaveCount(1);
+  await expect(overage.filter({ hasText: "$7.20" })).toContainText("paid");
+  expect(await overage.count()).toBeGreaterThanOrEqual(3);
+  // Each row's period starts in its own month (dates read YYYY-MM-DD).
+  const months = new Set((await overage.allInnerTexts()).map((text) => /\d{4}-\d{2}/.exec(text)?.[0]));
+  expect(months.size).toBeGreaterThanOrEqual(3);
+  expect(await rows.filter({ hasText: "Pack purchase" }).filter({ hasText: "$45.00" }).count()).toBeGreaterThanOrEqual(2);
   const owner = await homeShots(browser, "owner");
   await expect(owner.getByRole("heading", { name: "API tokens" })).toBeVisible();
   const engineer = await homeShots(browser, "engineer");

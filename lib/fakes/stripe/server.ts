@@ -51,6 +51,8 @@ export interface StripeFake {
   /** Fake-clock time, unix seconds. */
   now(): number;
   advanceClock(to: number): { now: number; invoices: StripeObject[] };
+  /** Starts the fake clock at `to` (unix s), in the past too, while the store has no customer; it then moves forward only. */
+  startClock(to: number): { now: number };
   closePeriod(opts?: ClosePeriodOptions): StripeObject[];
   setOutage(down: boolean, mode?: OutageMode): void;
   resendEvent(eventId: string, endpointId?: string): Promise<Array<{ endpoint: string } & DeliveryAttempt>>;
@@ -329,6 +331,16 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
   }
 
   const control = {
+    startClock(to: number) {
+      if (!Number.isSafeInteger(to)) throw invalidRequest("to must be a unix timestamp in seconds", "to");
+      try {
+        store.startClockAt(to);
+      } catch (error) {
+        throw invalidRequest((error as Error).message, "to");
+      }
+      persist();
+      return { now: store.now() };
+    },
     advanceClock(to: number) {
       if (!Number.isSafeInteger(to)) throw invalidRequest("to must be a unix timestamp in seconds", "to");
       if (to < store.now()) throw invalidRequest(`to (${to}) is before the fake clock (${store.now()}); the clock only moves forward.`, "to");
@@ -402,6 +414,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     const path = url.pathname;
     try {
       if (method === "GET" && path === "/_fake/health") return sendJson(res, 200, { ok: true, now: store.now(), outage });
+      if (method === "POST" && path === "/_fake/start_clock") return sendJson(res, 200, control.startClock(num(body.to)));
       if (method === "POST" && path === "/_fake/advance_clock") return sendJson(res, 200, control.advanceClock(num(body.to)));
       if (method === "POST" && path === "/_fake/close_period") {
         const invoices = control.closePeriod({
@@ -525,6 +538,7 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     webhookEndpointId,
     now: () => store.now(),
     advanceClock: control.advanceClock,
+    startClock: control.startClock,
     closePeriod: control.closePeriod,
     setDefaultCard: control.setDefaultCard,
     settleDelayedPayments: control.settleDelayedPayments,

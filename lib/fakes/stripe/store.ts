@@ -165,6 +165,19 @@ export class StripeFakeStore {
     return Math.floor(Date.now() / 1000) + this.data.clock_offset_s;
   }
 
+  /**
+   * Starts the clock at `unixSeconds`, which may be in the past, while the store holds no customer:
+   * nothing billed exists yet that a clock moved back could date out of order (the catalog's
+   * products, prices and meter carry no period). From there it only moves forward again. The demo
+   * seed uses it to make three past months of billing through the ordinary API.
+   */
+  startClockAt(unixSeconds: number): void {
+    if (!Number.isSafeInteger(unixSeconds)) throw new Error(`the clock start must be a unix time in seconds; got ${unixSeconds}`);
+    const customers = Object.keys(this.data.collections.customers).length;
+    if (customers > 0) throw new Error(`the fake clock can start in the past only before the first customer; this store has ${customers}`);
+    this.data.clock_offset_s = unixSeconds - Math.floor(Date.now() / 1000);
+  }
+
   advanceClockTo(unixSeconds: number): void {
     const offset = unixSeconds - Math.floor(Date.now() / 1000);
     if (offset < this.data.clock_offset_s) throw new Error("the fake clock only moves forward");
