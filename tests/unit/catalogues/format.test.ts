@@ -54,7 +54,7 @@ describe("every problem at once, with row, column and reason", () => {
   it("names missing values, negative masses and unknown columns", () => {
     const parsed = parseCatalogueFile(encode("name,mass_kg,radius_m,top_speed_m_per_s,restitution,colour\ncrate,-3,,2,0.5,red\n"), "c.csv");
     const text = parsed.problems.map(describeProblem);
-    expect(text).toContain('Row 1, colour: unknown column "colour"; the columns are name, mass_kg, radius_m, top_speed_m_per_s, restitution, group');
+    expect(text).toContain('Row 1, colour: unknown column "colour"; the columns are name, mass_kg, radius_m, top_speed_m_per_s, restitution, group, friction, rolling_resistance');
     expect(text.some((t) => t.startsWith("Row 2, mass_kg: out of range: mass must be > 0"))).toBe(true);
     expect(text).toContain("Row 2, radius_m: missing value: radius of its collision disc in m");
   });
