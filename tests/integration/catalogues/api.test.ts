@@ -244,7 +244,8 @@ describe("a catalogue check with friction", () => {
     expect((await (await exportOf("format=json")).json()).recommendation.friction.substeps).toBe(19);
 
     // A catalogue without friction has no friction table: 422 naming table.
-    const plain = await upload(studio, form(CRATESLIDE_CATALOGUE_CSV, "c.csv", "Crateslide no friction"));
+    const plainCsv = ["name,mass_kg,radius_m,top_speed_m_per_s,restitution,group", "crate,3,0.4,2.5,0.4,cargo", "coin,0.6,0.25,3,0.6,loot", ""].join("\r\n");
+    const plain = await upload(studio, form(plainCsv, "c.csv", "Crateslide no friction"));
     const plainId = (plain.body as { catalogue: { id: string } }).catalogue.id;
     const plainCheck = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${plainId}/checks`, params: { studioId: studio.studioId, catalogueId: plainId }, body: { settings: SETTINGS }, cookie: studio.cookies.engineer });
     const plainCheckId = (plainCheck.body as { check: { id: string } }).check.id;

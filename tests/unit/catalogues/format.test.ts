@@ -15,7 +15,8 @@ describe("a valid catalogue", () => {
     const parsed = parseCatalogueFile(encode(CRATESLIDE_CATALOGUE_CSV), "crateslide.csv");
     expect(parsed.problems).toEqual([]);
     expect(parsed.objects?.length).toBe(5);
-    expect(parsed.objects?.[1]).toEqual({ name: "coin", massKg: 0.6, radiusM: 0.25, topSpeedMPerS: 3, restitution: 0.6, group: "loot" });
+    expect(parsed.objects?.[1]).toEqual({ name: "coin", massKg: 0.6, radiusM: 0.25, topSpeedMPerS: 3, restitution: 0.6, group: "loot", friction: 0.3 });
+    expect(parsed.objects?.[2]).toMatchObject({ name: "barrel", friction: 0.4, rollingResistance: 0.02 });
   });
 
   it("reads JSON with the same columns, as an array or under objects", () => {
