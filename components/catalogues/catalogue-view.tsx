@@ -36,6 +36,10 @@ interface FormState {
   offsets: string;
   /** The margin in percent, as the sweep page's safe envelope takes it; the API takes the fraction. */
   marginPercent: string;
+  /** Friction settings (shown when objects give μ or μ_r); empty: the API's defaults. */
+  frictionStiffnessRatio: string;
+  slopeAngleDeg: string;
+  gravityMPerS2: string;
 }
 
 const DEFAULT_FORM: FormState = {
@@ -49,6 +53,9 @@ const DEFAULT_FORM: FormState = {
   speedSteps: "6",
   offsets: "0, 0.6",
   marginPercent: "80",
+  frictionStiffnessRatio: "",
+  slopeAngleDeg: "",
+  gravityMPerS2: "",
 };
 
 /** What a margin allows: ω·h ≤ 2·(1 − margin), and the steps a contact then lasts (π/(ω·h)). */
@@ -78,6 +85,10 @@ export function settingsOf(form: FormState): CheckSettingsInput {
       .filter(Boolean)
       .map(Number),
     margin: form.marginPercent.trim() === "" ? undefined : Number(form.marginPercent) / 100,
+    // Only when given: a check without them keeps exactly the settings it had before friction existed.
+    ...(form.frictionStiffnessRatio.trim() !== "" ? { frictionStiffnessRatio: Number(form.frictionStiffnessRatio) } : {}),
+    ...(form.slopeAngleDeg.trim() !== "" ? { slopeAngleDeg: Number(form.slopeAngleDeg) } : {}),
+    ...(form.gravityMPerS2.trim() !== "" ? { gravityMPerS2: Number(form.gravityMPerS2) } : {}),
   };
 }
 
@@ -164,6 +175,8 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
                       <td className={`${td} font-mono`}>{object.topSpeedMPerS}</td>
                       <td className={`${td} font-mono`}>{object.restitution}</td>
                       <td className={td}>{object.group ?? "—"}</td>
+                      <td className={`${td} font-mono`}>{object.friction ?? "—"}</td>
+                      <td className={`${td} font-mono`}>{object.rollingResistance ?? "—"}</td>
                     </tr>
                   ))}
                 </tbody>
@@ -171,7 +184,12 @@ export function CatalogueView({ studioId, studioName, role, catalogueId }: { stu
             </div>
           </Card>
           <ChecksCard studioId={studioId} catalogueId={catalogueId} checks={detail.data.checks} />
-          {canWrite ? <CheckForm studioId={studioId} catalogueId={catalogueId} groups={[...new Set(detail.data.catalogue.objects.flatMap((object) => (object.group ? [object.group] : [])))]} /> : null}
+          {canWrite ? <CheckForm
+              studioId={studioId}
+              catalogueId={catalogueId}
+              groups={[...new Set(detail.data.catalogue.objects.flatMap((object) => (object.group ? [object.group] : [])))]}
+              friction={detail.data.catalogue.objects.some((object) => (object.friction ?? null) !== null || (object.rollingResistance ?? null) !== null)}
+            /> : null}
         </div>
       )}
     </StudioShell>
@@ -221,7 +239,7 @@ function ChecksCard({ studioId, catalogueId, checks }: { studioId: string; catal
   );
 }
 
-function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalogueId: string; groups: string[] }) {
+function CheckForm({ studioId, catalogueId, groups, friction }: { studioId: string; catalogueId: string; groups: string[]; friction: boolean }) {
   const router = useRouter();
   const [form, setForm] = useState<FormState>(DEFAULT_FORM);
   const [quote, setQuote] = useState<{ quote: Quote; key: string } | null>(null);
@@ -315,6 +333,16 @@ function CheckForm({ studioId, catalogueId, groups }: { studioId: string; catalo
                   error={fieldError(`groupStiffness.${group}`)}
                 />
               ))}
+            </div>
+          </fieldset>
+        ) : null}
+        {friction ? (
+          <fieldset className="space-y-2" data-testid="check-friction-settings">
+            <legend className="text-sm font-medium">Friction (objects of this catalogue give μ): checked in closed form beside the pairs</legend>
+            <div className="grid gap-4 sm:grid-cols-3">
+              <TextField id="check-kt-ratio" label="Tangential stiffness ratio k_t/k" inputMode="decimal" value={form.frictionStiffnessRatio} onChange={set("frictionStiffnessRatio")} error={fieldError("frictionStiffnessRatio")} hint="empty: 2/7 (common practice: 2/7 to 1)" />
+              <TextField id="check-slope" label="Steepest slope [°]" inputMode="decimal" value={form.slopeAngleDeg} onChange={set("slopeAngleDeg")} error={fieldError("slopeAngleDeg")} hint="optional: which objects hold still on it" />
+              <TextField id="check-gravity" label="Gravity [m/s²]" inputMode="decimal" value={form.gravityMPerS2} onChange={set("gravityMPerS2")} error={fieldError("gravityMPerS2")} hint="empty: 9.81" />
             </div>
           </fieldset>
         ) : null}

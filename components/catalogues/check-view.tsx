@@ -16,6 +16,7 @@ import { StatusBadge, progressPercent } from "@/components/sweeps/sweeps-list";
 import { isActive, sweepsPath, type CellRow, type Quote } from "@/components/sweeps/sweep-api";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
 import type { Advice, PairSummary } from "@/lib/catalogues/check";
+import type { FrictionCheck } from "@/lib/catalogues/friction-check";
 import type { Verdict } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { StudioRole } from "@/lib/ui/types";
@@ -96,6 +97,7 @@ export function CheckView({ studioId, studioName, role, catalogueId, checkId }: 
             {data.sweep.reason ? <Alert>{data.sweep.reason}</Alert> : null}
           </Card>
           <Summary data={data} onOpen={openPair} canWrite={canWrite} studioId={studioId} catalogueId={catalogueId} />
+          {data.recommendation.friction ? <FrictionPanel friction={data.recommendation.friction} margin={data.recommendation.margin} substepS={data.settings.dtS / data.settings.substeps} /> : null}
           <Card title="Pair matrix">
             <PairMatrixGrid data={data} selected={selected} onSelect={setSelected} />
           </Card>
@@ -113,6 +115,11 @@ export function CheckView({ studioId, studioName, role, catalogueId, checkId }: 
               <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=json`} download>
                 Matrix and recommendation (JSON)
               </a>
+              {data.recommendation.friction ? (
+                <a className={buttonClasses("secondary")} href={`${checkPath(studioId, catalogueId, checkId)}/export?format=csv&table=friction`} download data-testid="export-friction-csv">
+                  Friction, resting and sliding (CSV)
+                </a>
+              ) : null}
             </div>
           </Card>
         </div>
@@ -237,6 +244,92 @@ function Summary({ data, onOpen, canWrite, studioId, catalogueId }: { data: Chec
             </div>
           ) : null}
         </div>
+      </div>
+    </Card>
+  );
+}
+
+function yesNo(value: boolean | null, yes: string, no: string): string {
+  return value === null ? "—" : value ? yes : no;
+}
+
+/**
+ * Friction, resting and sliding (catalogues whose objects give μ or μ_r): the tangential springs'
+ * ω_t·h against the bound, the largest k_t/k and the substeps that keep every pair stable, each
+ * contact's resting overlap m·g/k, and on the floor the sliding angles and the slide before rolling.
+ */
+function FrictionPanel({ friction, margin, substepS }: { friction: FrictionCheck; margin: number; substepS: number }) {
+  const phase = 2 * (1 - margin);
+  const th = "px-2 py-1 text-left font-semibold";
+  const td = "px-2 py-1 tabular-nums";
+  return (
+    <Card title="Friction, resting and sliding">
+      <div className="space-y-3 text-sm" data-testid="friction-check">
+        <div className={cx("rounded-md border p-3", friction.unstableContacts.length === 0 && friction.sinkingContacts.length === 0 ? "border-line" : "border-action")}>
+          <p className="font-semibold" data-testid="friction-summary">
+            {friction.summary}
+          </p>
+          <ul className="mt-2 list-disc space-y-1 pl-5">
+            {friction.details.map((line) => (
+              <li key={line}>{line}</li>
+            ))}
+          </ul>
+        </div>
+        <p>
+          Largest k_t/k at your substeps:{" "}
+          <strong data-testid="friction-largest-ratio">{friction.largestStiffnessRatio === null ? "— (no contact has a friction coefficient)" : fmt(friction.largestStiffnessRatio)}</strong>
+          {friction.largestStiffnessRatioContact ? ` (${friction.largestStiffnessRatioContact} decides)` : ""}. Substeps that keep every pair stable at k_t/k = {fmt(friction.stiffnessRatio)}
+          {friction.stiffnessRatioGiven ? "" : " (the default, 2/7)"}: <strong data-testid="friction-substeps">{friction.substeps ?? "—"}</strong>.
+        </p>
+        <div className="overflow-x-auto">
+          <table className="min-w-full text-xs" aria-label="Friction, resting and sliding per contact">
+            <thead>
+              <tr className="border-b border-line">
+                <th scope="col" className={th}>Contact</th>
+                <th scope="col" className={th}>μ</th>
+                <th scope="col" className={th}>μ_r</th>
+                <th scope="col" className={th}>ω_t·h (≤ {fmt(phase)})</th>
+                <th scope="col" className={th}>largest k_t/k</th>
+                <th scope="col" className={th}>resting overlap (allowed)</th>
+                <th scope="col" className={th}>slides above (rolls without slip up to)</th>
+                <th scope="col" className={th}>on your slope</th>
+                <th scope="col" className={th}>from top speed: slides, then rolls</th>
+              </tr>
+            </thead>
+            <tbody>
+              {friction.contacts.map((row) => {
+                const spring = row.frictionCoefficient !== null && row.frictionCoefficient > 0;
+                return (
+                  <tr key={row.contact} className="border-b border-line" data-testid="friction-row" data-contact={row.contact}>
+                    <th scope="row" className="px-2 py-1 text-left font-normal">
+                      {row.contact}
+                    </th>
+                    <td className={td}>{fmt(row.frictionCoefficient)}</td>
+                    <td className={td}>{fmt(row.rollingResistance)}</td>
+                    <td className={cx(td, spring && !row.tangentialStable ? "font-semibold" : "")}>
+                      {spring ? `${fmt(row.tangentialOmegaH)} ${row.tangentialStable ? "within" : "past the bound"}` : "no spring"}
+                    </td>
+                    <td className={td}>{spring ? fmt(row.largestStiffnessRatio) : "—"}</td>
+                    <td className={cx(td, row.restingWithinTolerance ? "" : "font-semibold")}>
+                      {formatSI(row.restingOverlapM, "m")} ({formatSI(row.allowedRestingOverlapM, "m")}){row.restingWithinTolerance ? "" : " sinks"}
+                    </td>
+                    <td className={td}>{row.slidingAngleDeg === null ? "—" : `${fmt(row.slidingAngleDeg)}° (${fmt(row.rollingSlipAngleDeg)}°)`}</td>
+                    <td className={td}>{yesNo(row.holdsOnSlope, "holds", "slides")}</td>
+                    <td className={td}>
+                      {row.slideTimeS === null
+                        ? "—"
+                        : `${formatSI(row.slideTimeS, "s")} over ${formatSI(row.slideDistanceM as number, "m")}, then ${fmt(row.rollingSpeedMPerS)} m/s${row.rollingDistanceM !== null ? ` for ${formatSI(row.rollingDistanceM, "m")}` : ""}`}
+                    </td>
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+        <p className="text-xs text-ink-muted">
+          Worked out in closed form at h = {formatSI(substepS, "s")}, not simulated: the check&apos;s pair cells run without friction. The tangential spring k_t = (k_t/k)·k acts on the tangential mass m/(1 + m·r²/I) of a solid disc and is held to ω_t·h ≤ {fmt(phase)} like the normal spring; resting
+          overlap is m·g/k under gravity {fmt(friction.gravityMPerS2)} m/s² (the heavier object on the lighter for a pair); an object that cannot roll slides once tan θ &gt; μ, a rolling disc slips once tan θ &gt; 3μ.
+        </p>
       </div>
     </Card>
   );

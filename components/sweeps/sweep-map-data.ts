@@ -8,7 +8,7 @@ import { DEFAULT_TOLERANCES } from "@/lib/physics/constants";
 import { reasonForDisplay } from "@/lib/ui/reasons";
 import type { PercentileClip } from "@/lib/charts/normalise";
 import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLimitStiffnessNPerM, tunnellingDtS } from "@/lib/charts/overlays";
-import { SOLID_DISC_INERTIA_FACTOR, slidingAngleDeg } from "@/lib/physics/friction-analytic";
+import { pairTangentialEffectiveMassKg, SOLID_DISC_INERTIA_FACTOR, slidingAngleDeg, tangentialEffectiveMassKg } from "@/lib/physics/friction-analytic";
 import type { Metrics, Tolerances, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { FRAME_STEP_PATH } from "@/lib/ui/units";
@@ -198,6 +198,33 @@ function contactMass(spec: SweepSpecInput): number | null {
 }
 
 /**
+ * Effective tangential mass m/(1 + m·r²/I) of the scene's lightest frictional contact (kg): two discs
+ * add 1/m_t (pairTangentialEffectiveMassKg), a disc on a static wall or slope has its own m/3, a crate
+ * on the slope (rotation held) its whole mass. Boxes and stacks: a disc against a disc of the same
+ * mass (m/6) is lighter than a disc against the floor (m/3), so it sets the bound.
+ */
+function tangentialContactMass(spec: SweepSpecInput): number {
+  const scene = spec.scenario.scene;
+  switch (scene.kind) {
+    case "pair":
+      return pairTangentialEffectiveMassKg(scene.massAKg, scene.massBKg);
+    case "wall":
+      return tangentialEffectiveMassKg(scene.massKg);
+    case "slope":
+      return (scene.body ?? "disc") === "crate" ? scene.massKg : tangentialEffectiveMassKg(scene.massKg);
+    case "row":
+      return pairTangentialEffectiveMassKg(scene.strikerMassKg, scene.massKg);
+    case "box":
+    case "stack":
+      return pairTangentialEffectiveMassKg(scene.massKg, scene.massKg);
+    case "snapshot": {
+      const lightest = Math.min(...scene.bodies.map((body) => body.massKg));
+      return pairTangentialEffectiveMassKg(lightest, lightest);
+    }
+  }
+}
+
+/**
  * Travel per integrator step beyond which a contact can be skipped: the radius along the incoming
  * direction for a wall, the approaching half-chord R·√(1 − f²) for a pair (the thresholds of
  * wallTunnelingThresholdSpeedMPerS and pairTunnelingThresholdSpeedMPerS in lib/physics/analytic.ts).
@@ -224,7 +251,8 @@ export function specWithValue(spec: SweepSpecInput, path: string, value: number)
 
 /**
  * Overlays for the chosen axes: ω·dt = 2 and steps-per-contact contours for stiffness × dt (linear
- * contact), the tunnelling line for speed × dt. The frame step dt is `substeps` integrator steps, so
+ * contact), ω_t·dt = 2 for the tangential stiffness ratio × dt, the sliding angle for friction ×
+ * slope angle, the tunnelling line for speed × dt. The frame step dt is `substeps` integrator steps, so
  * each bound on the integrator step is scaled by substeps to read on the frame-step axis.
  */
 export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string): OverlayInput[] {
@@ -259,6 +287,28 @@ export function overlaysFor(spec: SweepSpecInput, xPath: string, yPath: string):
       label: crate ? "tan θ = μ (sliding angle: slides above)" : "tan θ = 3μ (a rolling disc slips above)",
       stroke: "dashed",
       y: coefficientX ? (mu) => slidingAngleDeg(mu, inertiaFactor) : (angleDeg) => Math.tan((angleDeg * Math.PI) / 180) / factor,
+    });
+  }
+  // The tangential bound: the sticking tangential spring k_t = ratio·k on the tangential mass m_t is a
+  // harmonic oscillator, stable under symplectic Euler while ω_t·h < 2 with ω_t = √(k_t/m_t)
+  // (Hairer, Lubich & Wanner, Geometric Numerical Integration, 2006; maxStableTangentialSubstepS).
+  // On the frame-step axis: dt = 2·substeps·√(m_t/(ratio·k)); k_t given in N/m overrides the ratio.
+  const contact = spec.scenario.contact;
+  if (
+    contact.model === "linear" &&
+    contact.stiffness !== undefined &&
+    contact.friction !== undefined &&
+    contact.friction.stiffness === undefined &&
+    paths.has("contact.friction.stiffnessRatio") &&
+    paths.has("dtS")
+  ) {
+    const tangentialMass = tangentialContactMass(spec);
+    const stiffness = contact.stiffness;
+    const ratioX = xPath === "contact.friction.stiffnessRatio";
+    overlays.push({
+      label: "ω_t·dt = 2 (tangential stability bound)",
+      stroke: "solid",
+      y: ratioX ? (ratio) => 2 * substeps * Math.sqrt(tangentialMass / (ratio * stiffness)) : (dt) => (tangentialMass * ((2 * substeps) / dt) ** 2) / stiffness,
     });
   }
   const thickness = tunnelThicknessM(spec);

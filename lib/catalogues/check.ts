@@ -24,12 +24,17 @@ import { formatLimit, numericRule, rangeViolation, SPEC_LIMITS } from "../sweeps
 import type { CellResult } from "../sweeps/results";
 import type { AxisPair, SweepSpecInput } from "../sweeps/spec";
 import type { CatalogueObject } from "./format";
+import { frictionCheck, type FrictionCheck } from "./friction-check";
 
 // ---------------------------------------------------------------------------
 // Settings
 
 function ruled(path: string) {
-  const rule = numericRule(path, "pair");
+  return sceneRuled(path, "pair");
+}
+
+function sceneRuled(path: string, scene: Parameters<typeof numericRule>[1]) {
+  const rule = numericRule(path, scene);
   return z.number({ error: `${rule.label} must be a number${rule.unit ? ` (${rule.unit})` : ""}` }).superRefine((value, ctx) => {
     const problem = rangeViolation(rule, value);
     if (problem) ctx.addIssue({ code: "custom", message: problem });
@@ -80,6 +85,16 @@ export const checkSettingsSchema = z.strictObject({
     .min(0, { error: "margin must be ≥ 0 (0 %)" })
     .max(CHECK_LIMITS.maxMargin, { error: `margin must be ≤ ${CHECK_LIMITS.maxMargin} (${CHECK_LIMITS.maxMargin * 100} %)` })
     .default(0.8),
+  /**
+   * Friction settings, read only when catalogue objects give μ or μ_r (lib/catalogues/friction-check.ts).
+   * No defaults here on purpose: a check stored before they existed parses to the same settings.
+   * k_t/k of the game's tangential springs (absent: the engine's 2/7).
+   */
+  frictionStiffnessRatio: ruled("contact.friction.stiffnessRatio").optional(),
+  /** Gravity for resting overlap and sliding (m/s²; absent: 9.81). */
+  gravityMPerS2: sceneRuled("scene.gravityMPerS2", "stack").optional(),
+  /** The game's steepest slope (degrees from the horizontal): which objects hold still on it. */
+  slopeAngleDeg: sceneRuled("scene.angleDeg", "slope").optional(),
 });
 
 export type CheckSettingsInput = z.input<typeof checkSettingsSchema>;
@@ -286,6 +301,8 @@ export interface Recommendation {
   substepsNote: string;
   /** What to do: always an action or a plain statement of what cannot work (see adviseCheck). */
   advice: Advice;
+  /** Tangential stability, resting overlap and sliding; present only when objects give μ or μ_r (friction-check.ts). */
+  friction?: FrictionCheck;
 }
 
 /** Settings that keep every pair within the margin with one stiffness for all. */
@@ -377,6 +394,8 @@ export function recommend(objects: readonly CatalogueObject[], settings: CheckSe
   }
   if (result.substeps === null) result.substepsNote = `No substep count up to ${formatLimit(SPEC_LIMITS.maxSubsteps)} keeps every pair within the margin at this stiffness; see the advice for settings that do.`;
   result.advice = adviseCheck(pairs, settings, result);
+  const friction = frictionCheck(objects, settings, result.substeps);
+  if (friction) result.friction = friction;
   return result;
 }
 

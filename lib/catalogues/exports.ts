@@ -75,8 +75,87 @@ export function recommendationCsv(settings: CheckSettings, recommendation: Recom
     ["advised_stiffness_min", recommendation.advice.settings?.stiffnessMin ?? null, stiffnessUnit(settings.contactModel), "floor: every pair within the overlap tolerance"],
     ["advised_stiffness_max", recommendation.advice.settings?.stiffnessMax ?? null, stiffnessUnit(settings.contactModel), "cap: every pair within omega*h <= 2(1 - margin)"],
   ];
+  const friction = recommendation.friction;
+  if (friction) {
+    // Only for catalogues whose objects give μ or μ_r: older catalogues export exactly the rows above.
+    rows.push(
+      ["friction_stiffness_ratio", friction.stiffnessRatio, "k_t/k", friction.stiffnessRatioGiven ? "the check's tangential stiffness ratio" : "not given: the engine's default 2/7"],
+      ["friction_largest_stiffness_ratio", friction.largestStiffnessRatio, "k_t/k", friction.largestStiffnessRatioContact ? `largest keeping every tangential spring within omega_t*h <= 2(1 - margin); ${friction.largestStiffnessRatioContact} decides` : "no contact has a friction coefficient"],
+      ["friction_tangential_substeps", friction.tangentialSubsteps, "", "smallest substeps keeping every tangential spring within the margin at friction_stiffness_ratio"],
+      ["friction_substeps", friction.substeps, "", "smallest substeps keeping every pair stable (tangential and normal springs)"],
+      ["gravity", friction.gravityMPerS2, "m/s^2", "for resting overlap and sliding"],
+      ["slope_angle", friction.slopeAngleDeg, "deg", "the game's steepest slope"],
+      ["friction_advice", null, "", friction.summary],
+      ...friction.details.map((detail): [string, null, string, string] => ["friction_detail", null, "", detail]),
+    );
+  }
   const lines = ["setting,value,unit,note"];
   for (const [name, value, unit, note] of rows) lines.push([text(name), typeof value === "string" ? text(value) : num(value), text(unit), text(note)].join(","));
+  return `${lines.join("\r\n")}\r\n`;
+}
+
+export const FRICTION_CSV_COLUMNS = [
+  "contact",
+  "kind",
+  "object_a",
+  "object_b",
+  "friction",
+  "rolling_resistance",
+  "stiffness",
+  "tangential_stiffness_n_per_m",
+  "tangential_mass_kg",
+  "tangential_omega_h",
+  "tangential_stable",
+  "largest_stiffness_ratio",
+  "resting_overlap_m",
+  "allowed_resting_overlap_m",
+  "resting_within_tolerance",
+  "sliding_angle_deg",
+  "rolling_slip_angle_deg",
+  "holds_on_slope",
+  "slide_time_s",
+  "slide_distance_m",
+  "rolling_speed_m_per_s",
+  "rolling_distance_m",
+] as const;
+
+function flag(value: boolean | null): string {
+  return value === null ? "" : value ? "yes" : "no";
+}
+
+/** The friction rows of a check (catalogue pairs, then objects on the floor), CRLF line ends; null when no object gives μ or μ_r. */
+export function frictionCsv(recommendation: Recommendation): string | null {
+  const friction = recommendation.friction;
+  if (!friction) return null;
+  const lines = [FRICTION_CSV_COLUMNS.join(",")];
+  for (const row of friction.contacts) {
+    lines.push(
+      [
+        text(row.contact),
+        row.kind,
+        text(row.objectA),
+        text(row.objectB ?? ""),
+        num(row.frictionCoefficient),
+        num(row.rollingResistance),
+        num(row.stiffness),
+        num(row.tangentialStiffnessNPerM),
+        num(row.tangentialMassKg),
+        num(row.tangentialOmegaH),
+        flag(row.frictionCoefficient !== null && row.frictionCoefficient > 0 ? row.tangentialStable : null),
+        num(row.largestStiffnessRatio),
+        num(row.restingOverlapM),
+        num(row.allowedRestingOverlapM),
+        flag(row.restingWithinTolerance),
+        num(row.slidingAngleDeg),
+        num(row.rollingSlipAngleDeg),
+        flag(row.holdsOnSlope),
+        num(row.slideTimeS),
+        num(row.slideDistanceM),
+        num(row.rollingSpeedMPerS),
+        num(row.rollingDistanceM),
+      ].join(","),
+    );
+  }
   return `${lines.join("\r\n")}\r\n`;
 }
 

@@ -1,6 +1,6 @@
 /**
  * Catalogue files: one row per object type of a game (name, mass, radius, top speed, restitution,
- * optional group), as CSV (parsed with papaparse) or JSON. Every row is checked with zod and every
+ * optional group, optional friction coefficient and rolling resistance), as CSV (parsed with papaparse) or JSON. Every row is checked with zod and every
  * problem is reported at once with its row, column and reason; a file is kept only when it has
  * none. The same code runs in the browser (the upload form and its editable table) and on the
  * server (which checks again before storing).
@@ -28,7 +28,7 @@ export const CATALOGUE_LIMITS = {
 } as const;
 
 /** The columns of a catalogue, in file order. */
-export const CATALOGUE_COLUMNS = ["name", "mass_kg", "radius_m", "top_speed_m_per_s", "restitution", "group"] as const;
+export const CATALOGUE_COLUMNS = ["name", "mass_kg", "radius_m", "top_speed_m_per_s", "restitution", "group", "friction", "rolling_resistance"] as const;
 export type CatalogueColumn = (typeof CATALOGUE_COLUMNS)[number];
 export const REQUIRED_COLUMNS: readonly CatalogueColumn[] = ["name", "mass_kg", "radius_m", "top_speed_m_per_s", "restitution"];
 
@@ -40,6 +40,8 @@ export const COLUMN_HELP: Record<CatalogueColumn, string> = {
   top_speed_m_per_s: "fastest it moves in the game, in m/s",
   restitution: "coefficient of restitution, > 0 and ≤ 1",
   group: "optional: a group name (for per-group stiffness)",
+  friction: "optional: Coulomb friction coefficient μ, ≥ 0 (empty: frictionless)",
+  rolling_resistance: "optional: rolling resistance coefficient μ_r, ≥ 0 (empty: none)",
 };
 
 export interface CatalogueObject {
@@ -49,6 +51,13 @@ export interface CatalogueObject {
   topSpeedMPerS: number;
   restitution: number;
   group: string | null;
+  /**
+   * Coulomb friction coefficient μ of the object's contacts; absent or null: frictionless.
+   * Catalogues saved before friction existed carry neither field (read them as null).
+   */
+  friction?: number | null;
+  /** Rolling resistance coefficient μ_r (Ai, Chen, Rotter & Ooi 2011); absent or null: none. */
+  rollingResistance?: number | null;
 }
 
 export interface CatalogueProblem {
@@ -96,6 +105,10 @@ const HEADER_ALIASES: Record<string, CatalogueColumn> = {
   topspeed: "top_speed_m_per_s",
   restitution: "restitution",
   group: "group",
+  friction: "friction",
+  frictioncoefficient: "friction",
+  mu: "friction",
+  rollingresistance: "rolling_resistance",
 };
 
 export function columnOfHeader(header: string): CatalogueColumn | null {
@@ -107,38 +120,54 @@ export function columnOfHeader(header: string): CatalogueColumn | null {
 // ---------------------------------------------------------------------------
 // Row schema
 
-const NUMERIC_RULES: Record<"mass_kg" | "radius_m" | "top_speed_m_per_s" | "restitution", NumericParameter> = {
+const NUMERIC_RULES: Record<"mass_kg" | "radius_m" | "top_speed_m_per_s" | "restitution" | "friction" | "rolling_resistance", NumericParameter> = {
   mass_kg: { ...numericRule("scene.massAKg", "pair"), label: "mass" },
   radius_m: { ...numericRule("scene.radiusAM", "pair"), label: "radius" },
   top_speed_m_per_s: { ...numericRule("scene.speedAMPerS", "pair"), label: "top speed", min: 0, minInclusive: false },
   restitution: { ...numericRule("contact.damping.restitution", "pair"), label: "restitution" },
+  // The same limits as a sweep's contact.friction.coefficient and contact.rollingResistance.
+  friction: { ...numericRule("contact.friction.coefficient", "pair"), label: "friction" },
+  rolling_resistance: { ...numericRule("contact.rollingResistance", "pair"), label: "rolling resistance" },
 };
 
 const DECIMAL_NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
 
-function numberCell(column: keyof typeof NUMERIC_RULES) {
+/** A number cell's text as a number within its column's limits, or z.NEVER with the problem added. */
+function checkedNumber(column: keyof typeof NUMERIC_RULES, text: string, ctx: z.RefinementCtx): number {
   const rule = NUMERIC_RULES[column];
+  if (/^[+-]?\d+,\d+$/.test(text)) {
+    ctx.addIssue({ code: "custom", message: `"${text}" uses a decimal comma; write it with a point (${text.replace(",", ".")})` });
+    return z.NEVER;
+  }
+  if (!DECIMAL_NUMBER.test(text)) {
+    ctx.addIssue({ code: "custom", message: `not a number: "${text.slice(0, 40)}" (${COLUMN_HELP[column]})` });
+    return z.NEVER;
+  }
+  const value = Number(text);
+  const problem = rangeViolation(rule, value);
+  if (problem) {
+    ctx.addIssue({ code: "custom", message: `out of range: ${problem}` });
+    return z.NEVER;
+  }
+  return value;
+}
+
+function numberCell(column: keyof typeof NUMERIC_RULES) {
   return z.string().transform((raw, ctx) => {
     const text = raw.trim().normalize("NFC");
     if (text === "") {
       ctx.addIssue({ code: "custom", message: `missing value: ${COLUMN_HELP[column]}` });
       return z.NEVER;
     }
-    if (/^[+-]?\d+,\d+$/.test(text)) {
-      ctx.addIssue({ code: "custom", message: `"${text}" uses a decimal comma; write it with a point (${text.replace(",", ".")})` });
-      return z.NEVER;
-    }
-    if (!DECIMAL_NUMBER.test(text)) {
-      ctx.addIssue({ code: "custom", message: `not a number: "${text.slice(0, 40)}" (${COLUMN_HELP[column]})` });
-      return z.NEVER;
-    }
-    const value = Number(text);
-    const problem = rangeViolation(rule, value);
-    if (problem) {
-      ctx.addIssue({ code: "custom", message: `out of range: ${problem}` });
-      return z.NEVER;
-    }
-    return value;
+    return checkedNumber(column, text, ctx);
+  });
+}
+
+/** An optional number: an empty cell is null (the object does not give it). */
+function optionalNumberCell(column: keyof typeof NUMERIC_RULES) {
+  return z.string().transform((raw, ctx): number | null => {
+    const text = raw.trim().normalize("NFC");
+    return text === "" ? null : checkedNumber(column, text, ctx);
   });
 }
 
@@ -175,6 +204,8 @@ export const catalogueRowSchema = z.object({
   top_speed_m_per_s: numberCell("top_speed_m_per_s"),
   restitution: numberCell("restitution"),
   group: textCell("group", false),
+  friction: optionalNumberCell("friction"),
+  rolling_resistance: optionalNumberCell("rolling_resistance"),
 });
 
 /** Text a spreadsheet would run as a formula: what the CSV exports' guard (lib/sweeps/results.ts) would change. */
@@ -218,7 +249,11 @@ export function validateTable(table: CatalogueTable, firstRow = 2): { problems: 
         notes.push(`Row ${row}, ${column}: "${text.slice(0, 30)}" starts like a spreadsheet formula; it is kept as text, and CSV exports write it with a leading apostrophe so no spreadsheet runs it.`);
       }
     }
-    objects.push({ name: value.name as string, massKg: value.mass_kg, radiusM: value.radius_m, topSpeedMPerS: value.top_speed_m_per_s, restitution: value.restitution, group: value.group });
+    const object: CatalogueObject = { name: value.name as string, massKg: value.mass_kg, radiusM: value.radius_m, topSpeedMPerS: value.top_speed_m_per_s, restitution: value.restitution, group: value.group };
+    // Only rows that give them carry the friction fields: a catalogue without them stores (and checks) exactly as before.
+    if (value.friction !== null) object.friction = value.friction;
+    if (value.rolling_resistance !== null) object.rollingResistance = value.rolling_resistance;
+    objects.push(object);
   });
   problems.sort((a, b) => (a.row ?? 0) - (b.row ?? 0) || CATALOGUE_COLUMNS.indexOf(a.column as CatalogueColumn) - CATALOGUE_COLUMNS.indexOf(b.column as CatalogueColumn));
   return { problems, notes, objects: problems.length === 0 ? objects : null };
@@ -228,7 +263,7 @@ export function validateTable(table: CatalogueTable, firstRow = 2): { problems: 
 // Files
 
 function emptyRow(): Record<CatalogueColumn, string> {
-  return { name: "", mass_kg: "", radius_m: "", top_speed_m_per_s: "", restitution: "", group: "" };
+  return { name: "", mass_kg: "", radius_m: "", top_speed_m_per_s: "", restitution: "", group: "", friction: "", rolling_resistance: "" };
 }
 
 function failed(format: ParsedCatalogue["format"], problem: CatalogueProblem, notes: string[] = []): ParsedCatalogue {
@@ -361,7 +396,7 @@ function parseJson(text: string, notes: string[]): ParsedCatalogue {
   const table: CatalogueTable = list.map((entry, i) => {
     const record = emptyRow();
     if (!entry || typeof entry !== "object" || Array.isArray(entry)) {
-      problems.push({ row: i + 1, column: null, reason: "each entry must be an object with name, mass_kg, radius_m, top_speed_m_per_s, restitution and optional group" });
+      problems.push({ row: i + 1, column: null, reason: "each entry must be an object with name, mass_kg, radius_m, top_speed_m_per_s, restitution and optional group, friction and rolling_resistance" });
       return record;
     }
     for (const [key, cell] of Object.entries(entry as Record<string, unknown>)) {

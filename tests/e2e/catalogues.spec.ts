@@ -126,3 +126,50 @@ test("a catalogue that no stiffness or substep count can make stable ends in adv
   // The old dead end said "none" twice and stopped there.
   await expect(page.getByTestId("check-summary")).not.toContainText("none.");
 });
+
+test("an engineer checks a catalogue with friction: the largest k_t/k, the substeps, and which objects slide on the game's slope", async ({ page }) => {
+  test.setTimeout(180_000);
+  const pageErrors: string[] = [];
+  page.on("pageerror", (error) => pageErrors.push(error.message));
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
+  // Crateslide's objects give friction coefficients (the puck glides at μ 0.05, the bumper grips at 0.8).
+  await page.getByTestId("catalogue-file").setInputFiles({ name: "crateslide-friction.csv", mimeType: "text/csv", buffer: Buffer.from(CRATESLIDE_CATALOGUE_CSV) });
+  await expect(page.getByText("5 objects, every row valid")).toBeVisible();
+  await page.getByLabel("Catalogue name").fill("Crateslide objects, friction build");
+  await page.getByTestId("catalogue-save").click();
+  await expect(page.getByTestId("catalogue-title")).toContainText("Crateslide objects, friction build v1");
+  await expect(page.getByTestId("catalogue-objects")).toContainText("0.05");
+
+  // The friction settings appear because the objects give μ: k_t as large as the normal spring, a 20° ramp.
+  await expect(page.getByTestId("check-friction-settings")).toBeVisible();
+  await page.getByLabel("Tangential stiffness ratio k_t/k").fill("1");
+  await page.getByLabel("Steepest slope [°]").fill("20");
+  await page.getByRole("button", { name: "Get quote" }).click();
+  await expect(page.getByTestId("check-quote")).toBeVisible();
+  await page.getByTestId("check-run").click();
+  await expect(page).toHaveURL(/\/checks\/chk_/);
+
+  const friction = page.getByTestId("friction-check");
+  await expect(friction).toBeVisible();
+  // Two coins decide: tangential mass (0.6/3)/2 = 0.1 kg, so k_t/k ≤ 0.1·(0.4·960)²/1.5e6 = 0.00983 at 16 substeps
+  // (ω_t·h ≤ 2(1 − 0.8), the symplectic Euler bound with the check's margin; Hairer, Lubich & Wanner 2006), and at
+  // k_t/k = 1 they need ⌈√(1.5e6/0.1)/(60·0.4)⌉ = 162 substeps.
+  await expect(page.getByTestId("friction-largest-ratio")).toHaveText("0.00983");
+  await expect(friction).toContainText("coin × coin decides");
+  await expect(page.getByTestId("friction-substeps")).toHaveText("162");
+  await expect(page.getByTestId("friction-summary")).toContainText("raise the substeps to 162");
+  // tan 20° = 0.364: the puck (μ 0.05) slides, the bumper (μ 0.8) holds (Kleppner & Kolenkow 2014, ch. 2).
+  await expect(friction.locator('[data-contact="slider puck on the floor"]')).toContainText("slides");
+  await expect(friction.locator('[data-contact="bumper on the floor"]')).toContainText("holds");
+
+  const download = page.waitForEvent("download");
+  await page.getByTestId("export-friction-csv").click();
+  const file = await download;
+  expect(file.suggestedFilename()).toMatch(/^chk_.*-friction\.csv$/);
+  const text = readFileSync((await file.path())!, "utf8");
+  expect(text.split("\r\n")[0]).toMatch(/^contact,kind,object_a,object_b,friction,rolling_resistance,/);
+  expect(text).toContain("\r\nslider puck on the floor,floor,slider puck,,0.05,");
+  expect(pageErrors).toEqual([]);
+});

@@ -129,8 +129,17 @@ const CATALOGUE_OBJECTS = CRATESLIDE_CATALOGUE_CSV.trim()
   .split("\r\n")
   .slice(1)
   .map((line) => {
-    const [name, massKg, radiusM, topSpeedMPerS, restitution, group] = line.split(",");
-    return { name, mass_kg: Number(massKg), radius_m: Number(radiusM), top_speed_m_per_s: Number(topSpeedMPerS), restitution: Number(restitution), group };
+    const [name, massKg, radiusM, topSpeedMPerS, restitution, group, friction, rollingResistance] = line.split(",");
+    return {
+      name,
+      mass_kg: Number(massKg),
+      radius_m: Number(radiusM),
+      top_speed_m_per_s: Number(topSpeedMPerS),
+      restitution: Number(restitution),
+      group,
+      ...(friction ? { friction: Number(friction) } : {}),
+      ...(rollingResistance ? { rolling_resistance: Number(rollingResistance) } : {}),
+    };
   });
 
 function fileForm(doc: unknown, fileName: string, name: string): FormData {

@@ -150,7 +150,7 @@ const envelopeQuery = z.object({
   bound: z.enum(["max", "min"]).optional(),
   at: z.string().max(200).optional(),
 });
-const checkExportQuery = z.object({ format: z.enum(["json", "csv"]).optional(), table: z.enum(["pairs", "matrix"]).optional() });
+const checkExportQuery = z.object({ format: z.enum(["json", "csv", "game-settings"]).optional(), table: z.enum(["pairs", "recommendation", "contacts", "friction"]).optional(), stiffness: z.enum(["checked", "recommended"]).optional() });
 const snapshotListQuery = z.object({ name: z.string().max(200).optional() });
 
 /** The sweep spec as the quote and submit routes read it (the spec field is checked by sweepSpecSchema). */

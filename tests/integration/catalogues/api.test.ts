@@ -176,6 +176,85 @@ describe("a catalogue check", () => {
   });
 });
 
+/** Invented objects of the invented game "Lanternfall", with friction (μ) and one rolling resistance (μ_r). */
+const FRICTION_CSV = [
+  "name,mass_kg,radius_m,top_speed_m_per_s,restitution,group,friction,rolling_resistance",
+  "ice puck,0.5,0.1,4,0.5,,0.1,",
+  "loot chest,4,0.3,1,0.3,,0.6,0.02",
+  "lantern,1,0.2,2,0.4,,,",
+  "",
+].join("\r\n");
+
+describe("a catalogue check with friction", () => {
+  it("answers bad friction values 422 naming row and column, and stores nothing", async () => {
+    const before = await countRows(db, catalogues);
+    const bad = FRICTION_CSV.replace("ice puck,0.5,0.1,4,0.5,,0.1,", "ice puck,0.5,0.1,4,0.5,,-0.1,").replace("loot chest,4,0.3,1,0.3,,0.6,0.02", "loot chest,4,0.3,1,0.3,,NaN,1.5").replace("lantern,1,0.2,2,0.4,,,", "lantern,1,0.2,2,0.4,,10.5,");
+    const { status, body } = await upload(studio, form(bad, "lanternfall.csv"));
+    expect(status).toBe(422);
+    const error = errorOf(body);
+    expect(error.code).toBe("invalid_catalogue");
+    expect(error.field).toBe("file.row 2.friction");
+    expect(error.issues?.map((issue) => issue.field)).toEqual(["file.row 2.friction", "file.row 3.friction", "file.row 3.rolling_resistance", "file.row 4.friction"]);
+    expect(error.issues?.[3].message).toMatch(/^Row 4, friction: out of range: .*≤ 10/);
+    expect(await countRows(db, catalogues)).toBe(before);
+  });
+
+  it("refuses a k_t/k of zero with 400 naming the field, and queues nothing", async () => {
+    const uploaded = await upload(studio, form(FRICTION_CSV, "lanternfall.csv", "Lanternfall zero ratio"));
+    const catalogueId = (uploaded.body as { catalogue: { id: string } }).catalogue.id;
+    const sweepsBefore = await countRows(db, sweeps);
+    const res = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${catalogueId}/checks`, params: { studioId: studio.studioId, catalogueId }, body: { settings: { ...SETTINGS, frictionStiffnessRatio: 0 } }, cookie: studio.cookies.engineer });
+    expect(res.status).toBe(400);
+    expect(errorOf(res.body).field).toBe("settings.frictionStiffnessRatio");
+    expect(await countRows(db, sweeps)).toBe(sweepsBefore);
+  });
+
+  it("runs like any check and reads back with its friction rows, the largest k_t/k and the substeps, in the view and the exports", async () => {
+    const uploaded = await upload(studio, form(FRICTION_CSV, "lanternfall.csv", "Lanternfall"));
+    expect(uploaded.status).toBe(201);
+    const catalogue = (uploaded.body as { catalogue: { id: string; objects: { name: string; friction?: number; rollingResistance?: number }[] } }).catalogue;
+    expect(catalogue.objects[1]).toMatchObject({ name: "loot chest", friction: 0.6, rollingResistance: 0.02 });
+    expect(catalogue.objects[2]).not.toHaveProperty("friction");
+    const params = { studioId: studio.studioId, catalogueId: catalogue.id };
+    const settings = { dtS: 1 / 60, substeps: 8, integrator: "symplectic-euler", stiffness: 100_000, margin: 0.5, frictionStiffnessRatio: 1, slopeAngleDeg: 20, speedSteps: 2, offsets: [0] };
+    const submitted = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${catalogue.id}/checks`, params, body: { settings }, cookie: studio.cookies.engineer });
+    expect(submitted.status).toBe(201);
+    const check = (submitted.body as { check: { id: string; sweep: { id: string } } }).check;
+    await waitForSweep(check.sweep.id, (sweep) => sweep.status === "done");
+    const viewed = await call(checkRoute.GET, { path: `${base(studio)}/${catalogue.id}/checks/${check.id}`, params: { ...params, checkId: check.id }, cookie: studio.cookies.finance });
+    expect(viewed.status).toBe(200);
+    const friction = (viewed.body as { check: { recommendation: { friction: { largestStiffnessRatio: number; largestStiffnessRatioContact: string; substeps: number; contacts: { contact: string; holdsOnSlope: boolean | null }[] } } } }).check.recommendation.friction;
+    // Two pucks decide: m_t = (0.5/3)/2 kg, r ≤ m_t·(2(1 − margin)·480)²/k = 0.192 (symplectic Euler bound ω·h < 2,
+    // Hairer, Lubich & Wanner 2006, with the check's margin); at k_t/k = 1 they need ⌈√(1e5/m_t)/60⌉ = 19 substeps.
+    expect(friction.largestStiffnessRatioContact).toBe("ice puck × ice puck");
+    expect(friction.largestStiffnessRatio).toBeCloseTo(0.192, 12);
+    expect(friction.substeps).toBe(19);
+    // tan 20° = 0.364: the chest (μ 0.6) holds, the puck (μ 0.1) slides (Kleppner & Kolenkow 2014, ch. 2).
+    expect(friction.contacts.find((row) => row.contact === "loot chest on the floor")?.holdsOnSlope).toBe(true);
+    expect(friction.contacts.find((row) => row.contact === "ice puck on the floor")?.holdsOnSlope).toBe(false);
+
+    const exportOf = (query: string) => exportRoute.GET(buildRequest({ path: `${base(studio)}/${catalogue.id}/checks/${check.id}/export?${query}`, cookie: studio.cookies.engineer }), { params: Promise.resolve({ ...params, checkId: check.id }) });
+    const csv = await exportOf("format=csv&table=friction");
+    expect(csv.status).toBe(200);
+    const lines = (await csv.text()).trimEnd().split("\r\n");
+    expect(lines[0]).toMatch(/^contact,kind,object_a,object_b,friction,rolling_resistance,stiffness,tangential_stiffness_n_per_m,tangential_mass_kg,tangential_omega_h,tangential_stable,largest_stiffness_ratio,/);
+    expect(lines).toHaveLength(1 + friction.contacts.length);
+    const recommendationCsv = await (await exportOf("format=csv&table=recommendation")).text();
+    expect(recommendationCsv).toContain("\r\nfriction_largest_stiffness_ratio,0.192,k_t/k,");
+    expect((await (await exportOf("format=json")).json()).recommendation.friction.substeps).toBe(19);
+
+    // A catalogue without friction has no friction table: 422 naming table.
+    const plainCsv = ["name,mass_kg,radius_m,top_speed_m_per_s,restitution,group", "crate,3,0.4,2.5,0.4,cargo", "coin,0.6,0.25,3,0.6,loot", ""].join("\r\n");
+    const plain = await upload(studio, form(plainCsv, "c.csv", "Crateslide no friction"));
+    const plainId = (plain.body as { catalogue: { id: string } }).catalogue.id;
+    const plainCheck = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${plainId}/checks`, params: { studioId: studio.studioId, catalogueId: plainId }, body: { settings: SETTINGS }, cookie: studio.cookies.engineer });
+    const plainCheckId = (plainCheck.body as { check: { id: string } }).check.id;
+    const noTable = await exportRoute.GET(buildRequest({ path: `${base(studio)}/${plainId}/checks/${plainCheckId}/export?format=csv&table=friction`, cookie: studio.cookies.engineer }), { params: Promise.resolve({ studioId: studio.studioId, catalogueId: plainId, checkId: plainCheckId }) });
+    expect(noTable.status).toBe(422);
+    expect(errorOf(await noTable.json()).field).toBe("table");
+  });
+});
+
 describe("hostile uploads and settings", () => {
   it("answer 4xx naming the field, never a 500", async () => {
     const nulName = await upload(studio, form(CRATESLIDE_CATALOGUE_CSV, "c.csv", "crate\u0000s"));

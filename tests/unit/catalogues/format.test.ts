@@ -15,7 +15,8 @@ describe("a valid catalogue", () => {
     const parsed = parseCatalogueFile(encode(CRATESLIDE_CATALOGUE_CSV), "crateslide.csv");
     expect(parsed.problems).toEqual([]);
     expect(parsed.objects?.length).toBe(5);
-    expect(parsed.objects?.[1]).toEqual({ name: "coin", massKg: 0.6, radiusM: 0.25, topSpeedMPerS: 3, restitution: 0.6, group: "loot" });
+    expect(parsed.objects?.[1]).toEqual({ name: "coin", massKg: 0.6, radiusM: 0.25, topSpeedMPerS: 3, restitution: 0.6, group: "loot", friction: 0.3 });
+    expect(parsed.objects?.[2]).toMatchObject({ name: "barrel", friction: 0.4, rollingResistance: 0.02 });
   });
 
   it("reads JSON with the same columns, as an array or under objects", () => {
@@ -54,7 +55,7 @@ describe("every problem at once, with row, column and reason", () => {
   it("names missing values, negative masses and unknown columns", () => {
     const parsed = parseCatalogueFile(encode("name,mass_kg,radius_m,top_speed_m_per_s,restitution,colour\ncrate,-3,,2,0.5,red\n"), "c.csv");
     const text = parsed.problems.map(describeProblem);
-    expect(text).toContain('Row 1, colour: unknown column "colour"; the columns are name, mass_kg, radius_m, top_speed_m_per_s, restitution, group');
+    expect(text).toContain('Row 1, colour: unknown column "colour"; the columns are name, mass_kg, radius_m, top_speed_m_per_s, restitution, group, friction, rolling_resistance');
     expect(text.some((t) => t.startsWith("Row 2, mass_kg: out of range: mass must be > 0"))).toBe(true);
     expect(text).toContain("Row 2, radius_m: missing value: radius of its collision disc in m");
   });

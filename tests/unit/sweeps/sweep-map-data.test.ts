@@ -106,6 +106,43 @@ describe("stability map adapter", () => {
     expect(overlaysFor(ramp, "contact.friction.coefficient", "contact.friction.stiffnessRatio")).toEqual([]);
   });
 
+  it("draws the tangential bound ω_t·h = 2 over a k_t ratio × frame step map, either way round", () => {
+    const ramp = findTemplate("ramp-creep")!.spec;
+    // The ramp's crate (20 kg, rotation held: tangential mass m) on k = 1.15 MN/m at 4 substeps. Symplectic Euler on the
+    // sticking tangential spring, a harmonic oscillator, is stable while ω_t·h < 2 with ω_t = √(ratio·k/m_t)
+    // (Hairer, Lubich & Wanner, Geometric Numerical Integration, 2006): dt = 2·4·√(20/(ratio·1.15e6)).
+    const [line] = overlaysFor(ramp, "contact.friction.stiffnessRatio", "dtS");
+    expect(line.label).toBe("ω_t·dt = 2 (tangential stability bound)");
+    if ("y" in line) {
+      expect(line.y(1)).toBeCloseTo(8 * Math.sqrt(20 / 1.15e6), 15);
+      expect(line.y(1)).toBeCloseTo(0.033362, 6);
+      // Four times the ratio halves the frame step.
+      expect(line.y(4) / line.y(1)).toBeCloseTo(0.5, 14);
+    }
+    // Flipped: at 60 Hz the bound sits at ratio = m_t·(2·4·60)²/k = 20·480²/1.15e6 = 4.007, above the template's 3.
+    const [flipped] = overlaysFor(ramp, "dtS", "contact.friction.stiffnessRatio");
+    if ("y" in flipped) {
+      expect(flipped.y(1 / 60)).toBeCloseTo((20 * 480 ** 2) / 1.15e6, 10);
+      expect(flipped.y(1 / 60)).toBeCloseTo(4.007, 3);
+    }
+    // A disc that rolls: tangential mass m/(1 + m·r²/I) = m/3 for a solid disc (I = ½·m·r²), so the bound's step is
+    // √3 times shorter: dt = 8·√((20/3)/(ratio·k)).
+    const disc = { ...ramp, scenario: { ...ramp.scenario, scene: { ...ramp.scenario.scene, body: "disc" } } } as SweepSpecInput;
+    const [rolling] = overlaysFor(disc, "contact.friction.stiffnessRatio", "dtS");
+    if ("y" in rolling) expect(rolling.y(1)).toBeCloseTo(8 * Math.sqrt(20 / 3 / 1.15e6), 15);
+    // Two equal discs of a stack: 1/m_t = 2·3/m, m_t = m/6 (2 kg chests: 1/3 kg).
+    const stack = findTemplate("stack-settle")!.spec;
+    const withFriction = { ...stack, scenario: { ...stack.scenario, contact: { ...stack.scenario.contact, model: "linear", stiffness: 1e5, friction: { coefficient: 0.5 } } } } as SweepSpecInput;
+    const [pile] = overlaysFor(withFriction, "contact.friction.stiffnessRatio", "dtS");
+    const substeps = withFriction.scenario.substeps ?? 1;
+    if ("y" in pile) expect(pile.y(1)).toBeCloseTo(2 * substeps * Math.sqrt(2 / 6 / 1e5), 15);
+    expect([line, flipped, rolling, pile].every((overlay) => "y" in overlay)).toBe(true);
+    // No tangential line when k_t is given in N/m (the ratio does not apply), nor over other axes.
+    const given = { ...ramp, scenario: { ...ramp.scenario, contact: { ...ramp.scenario.contact, friction: { coefficient: 0.5, stiffness: 1e5 } } } } as SweepSpecInput;
+    expect(overlaysFor(given, "contact.friction.stiffnessRatio", "dtS")).toEqual([]);
+    expect(overlaysFor(ramp, "contact.friction.stiffnessRatio", "contact.friction.coefficient")).toEqual([]);
+  });
+
   it("moves the overlays of each small map with a third axis (the radius of the tunnelling line)", () => {
     const wall = findTemplate("tunnelling-speed")!.spec;
     const [line] = overlaysFor(specWithValue(wall, "scene.radiusM", 0.04), "scene.speedMPerS", "dtS");

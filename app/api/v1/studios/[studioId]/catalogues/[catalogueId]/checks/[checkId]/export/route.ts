@@ -3,7 +3,7 @@ import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
 import { CATALOGUE_READ } from "@/lib/catalogues/api";
 import { GameSettingsError, gameSettings, pairContactCsv } from "@/lib/catalogues/contact-tuning";
-import { checkExportJson, pairMatrixCsv, recommendationCsv } from "@/lib/catalogues/exports";
+import { checkExportJson, frictionCsv, pairMatrixCsv, recommendationCsv } from "@/lib/catalogues/exports";
 import { catalogueOfStudio, checkOfCatalogue, checkView } from "@/lib/catalogues/store";
 import { ApiError } from "@/lib/errors";
 
@@ -11,7 +11,8 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 /**
- * ?format=json (everything), csv with ?table=pairs (default), recommendation or contacts, or
+ * ?format=json (everything), csv with ?table=pairs (default), recommendation, contacts or friction
+ * (catalogues whose objects give μ or μ_r), or
  * game-settings with ?stiffness=checked (default) or recommended (docs/game-settings.md).
  */
 export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogueId: string; checkId: string }>(CATALOGUE_READ, async ({ req, studio, params }) => {
@@ -20,11 +21,15 @@ export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogue
   const table = url.searchParams.get("table") ?? "pairs";
   const stiffness = url.searchParams.get("stiffness") ?? "checked";
   if (format !== "json" && format !== "csv" && format !== "game-settings") throw new ApiError(400, "validation_failed", `format must be json, csv or game-settings; got "${format}".`, "format");
-  if (table !== "pairs" && table !== "recommendation" && table !== "contacts") throw new ApiError(400, "validation_failed", `table must be pairs, recommendation or contacts; got "${table}".`, "table");
+  if (table !== "pairs" && table !== "recommendation" && table !== "contacts" && table !== "friction") throw new ApiError(400, "validation_failed", `table must be pairs, recommendation, contacts or friction; got "${table}".`, "table");
   if (stiffness !== "checked" && stiffness !== "recommended") throw new ApiError(400, "validation_failed", `stiffness must be checked or recommended; got "${stiffness}".`, "stiffness");
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);
   const view = await checkView(db, catalogue, await checkOfCatalogue(db, catalogue, params.checkId));
+  const friction = format === "csv" && table === "friction" ? frictionCsv(view.recommendation) : null;
+  if (format === "csv" && table === "friction" && friction === null) {
+    throw new ApiError(422, "validation_failed", "table=friction: no object of this catalogue gives a friction coefficient or rolling resistance (add a friction column and check again).", "table");
+  }
   if (format === "game-settings") {
     let document;
     try {
@@ -53,7 +58,9 @@ export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogue
         ? pairMatrixCsv(view.matrix)
         : table === "contacts"
           ? pairContactCsv(view.contacts)
-        : recommendationCsv(view.settings, view.recommendation);
+          : table === "friction"
+            ? (friction as string)
+            : recommendationCsv(view.settings, view.recommendation);
   const fileName = `${view.id}-${format === "json" ? "check.json" : `${table}.csv`}`;
   return new Response(body, {
     status: 200,
