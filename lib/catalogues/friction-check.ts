@@ -32,7 +32,8 @@ import {
 } from "../physics/friction-analytic";
 import { formatLimit, SPEC_LIMITS } from "../sweeps/parameters";
 import type { CatalogueObject } from "./format";
-import { allowedPhase, cataloguePairs, pairOmegaRadPerS, type CataloguePair, type CheckSettings } from "./check";
+import type { CheckSettings } from "./check";
+import { allowedPhase, cataloguePairs, pairOmegaRadPerS, type CataloguePair } from "./pairs";
 
 /** Gravity a check assumes when its settings give none (m/s², standard gravity rounded as games use it). */
 export const CHECK_DEFAULT_GRAVITY_M_PER_S2 = 9.81;

@@ -21,6 +21,11 @@ export function registerOutboxHandler(kind: string, handler: OutboxHandler): voi
   holder().handlers[kind] = handler;
 }
 
+/** The handlers known to this process (the dispatcher reads this object, so later registrations count). */
+export function outboxHandlers(): Record<string, OutboxHandler> {
+  return holder().handlers;
+}
+
 export async function startProcessOutbox(): Promise<OutboxDispatcher> {
   const h = holder();
   if (h.dispatcher) return h.dispatcher;

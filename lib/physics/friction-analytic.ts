@@ -23,15 +23,6 @@ export function pairTangentialEffectiveMassKg(massOneKg: number, massTwoKg: numb
   return 1 / (one + two);
 }
 
-/**
- * Largest stable (sub)step of the sticking tangential spring: ω_t·h < 2 with ω_t = √(k_t/m_t),
- * the same bound as the normal spring's (Hairer, Lubich & Wanner 2006, Geometric Numerical
- * Integration, the harmonic oscillator), applied to the tangential oscillation.
- */
-export function maxStableTangentialSubstepS(tangentialStiffnessNPerM: number, tangentialMassKg: number): number {
-  return 2 / Math.sqrt(tangentialStiffnessNPerM / tangentialMassKg);
-}
-
 /** ω_t·h of the sticking tangential spring. */
 export function tangentialOmegaH(tangentialStiffnessNPerM: number, tangentialMassKg: number, substepS: number): number {
   return Math.sqrt(tangentialStiffnessNPerM / tangentialMassKg) * substepS;
