@@ -1213,6 +1213,70 @@ function freePairSteps(s: Float64Array, end: number): void {
       exploded = true;
       break;
     }
+
+    // Coasting: with no force the kicks add ±0, so the velocities keep their magnitudes and every
+    // following free step has this step's kinetic energy, energy error and explosion check; the
+    // impulse sums add ±0 to a value that is not −0, and the charged contacts add 0. Those steps
+    // then only kick, drift and test the distance. The cutoff needs no square root: correctly
+    // rounded operations are monotone, so while both drifts stay ≤ coastDrift the step's
+    // cutoff² is ≤ coastCutoffSquared, and a distance² at or beyond that is beyond the cutoff.
+    // Any step that fails a test is left to the exact step above.
+    const kickX0 = kick0 * fx0;
+    const kickY0 = kick0 * fy0;
+    const kickX1 = kick1 * fx1;
+    const kickY1 = kick1 * fy1;
+    const coastDrift = maxDisplacementSquared * (1 + 1e-6);
+    const coastCutoffM = 2 * maxRadius + 2 * Math.sqrt(coastDrift);
+    const coastCutoffSquared = coastCutoffM * coastCutoffM;
+    if (
+      kickX0 === 0 && kickY0 === 0 && kickX1 === 0 && kickY1 === 0 &&
+      h * lastWallForceXN === 0 && h * lastWallForceYN === 0 && gravityImpulsePerStepNs === 0 &&
+      !isNegativeZero(externalImpulseXNs) && !isNegativeZero(externalImpulseYNs) &&
+      (0 < contactsChargedMax ? 0 : contactsChargedMax) === 0 && !isNegativeZero(chargedContacts)
+    ) {
+      const coastFrom = n;
+      while (n < end) {
+        const coastVx0 = vx0 + kickX0;
+        const coastVy0 = vy0 + kickY0;
+        const coastX0 = x0 + h * coastVx0;
+        const coastY0 = y0 + h * coastVy0;
+        const coastVx1 = vx1 + kickX1;
+        const coastVy1 = vy1 + kickY1;
+        const coastX1 = x1 + h * coastVx1;
+        const coastY1 = y1 + h * coastVy1;
+        const coastDx = coastX1 - coastX0;
+        const coastDy = coastY1 - coastY0;
+        const coastDistanceSquared = coastDx * coastDx + coastDy * coastDy;
+        const coastDriftX0 = coastX0 - x0;
+        const coastDriftY0 = coastY0 - y0;
+        const coastDriftX1 = coastX1 - x1;
+        const coastDriftY1 = coastY1 - y1;
+        if (
+          !(
+            coastDistanceSquared >= contactDistanceSquared &&
+            coastDriftX0 * coastDriftX0 + coastDriftY0 * coastDriftY0 <= coastDrift &&
+            coastDriftX1 * coastDriftX1 + coastDriftY1 * coastDriftY1 <= coastDrift &&
+            coastDistanceSquared >= coastCutoffSquared
+          )
+        ) {
+          break;
+        }
+        vx0 = coastVx0;
+        vy0 = coastVy0;
+        px0 = x0;
+        py0 = y0;
+        x0 = coastX0;
+        y0 = coastY0;
+        vx1 = coastVx1;
+        vy1 = coastVy1;
+        px1 = x1;
+        py1 = y1;
+        x1 = coastX1;
+        y1 = coastY1;
+        n++;
+      }
+      integratedSteps += n - coastFrom;
+    }
   }
 
   if (n === startN) return;
@@ -1238,6 +1302,11 @@ function freePairSteps(s: Float64Array, end: number): void {
   s[P_ENDED_THIS_PASS] = 0;
   // The caller sets the time of the blow-up (no rarely run arithmetic here).
   if (exploded) s[P_EXPLODED] = 1;
+}
+
+/** Whether a number is −0 (adding +0 or −0 to anything else leaves it unchanged). */
+function isNegativeZero(value: number): boolean {
+  return value === 0 && 1 / value < 0;
 }
 
 /**
