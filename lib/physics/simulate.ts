@@ -628,6 +628,24 @@ function integratePair(bodies: Bodies, field: ContactField, settings: LoopSettin
   // nearly every step of a pair cell) and the general two-body step (contact, near approach, the
   // end of the first contact); fast stepping jumps free flight instead (`advancePair`).
   while (s[P_N] < totalSteps && s[P_EXPLODED] === 0) {
+    if (allowJumps && s[P_OVERLAPPING_CONTACTS] === 0) {
+      // The free-flight jump of the step loop (integrate), here rather than in `advancePair` so
+      // that its code, never run in plain stepping, cannot invalidate the compiled step loop.
+      const n = s[P_N];
+      x[0] = s[P_X0]; y[0] = s[P_Y0]; vx[0] = s[P_VX0]; vy[0] = s[P_VY0];
+      x[1] = s[P_X1]; y[1] = s[P_Y1]; vx[1] = s[P_VX1]; vy[1] = s[P_VY1];
+      const timeToContactS = field.timeToFirstContactS(bodies);
+      s[P_FLIGHT_CHECKS] += 1;
+      const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
+      if (target > n + 1) {
+        jumpFreeFlight(bodies, n, target, h, null, gravity, timeToContactS !== Infinity);
+        s[P_X0] = x[0]; s[P_Y0] = y[0]; s[P_X1] = x[1]; s[P_Y1] = y[1];
+        if (timeToContactS !== Infinity) s[P_FLIGHT_STEPS] += target - n;
+        else s[P_FINAL_FLIGHTS] += 1;
+        s[P_N] = target;
+        if (target >= totalSteps) break;
+      }
+    }
     const chunkEnd = s[P_N] + PAIR_CHUNK_STEPS;
     const end = chunkEnd < totalSteps ? chunkEnd : totalSteps;
     if (!allowJumps && s[P_PHASE] !== FIRST_CONTACT_ACTIVE) {
@@ -638,7 +656,7 @@ function integratePair(bodies: Bodies, field: ContactField, settings: LoopSettin
       }
       if (s[P_N] >= end) continue;
     }
-    advancePair(s, bodies, field, end, !allowJumps);
+    advancePair(s, end, !allowJumps, allowJumps);
   }
 
   x[0] = s[P_X0]; y[0] = s[P_Y0]; vx[0] = s[P_VX0]; vy[0] = s[P_VY0]; fx[0] = s[P_FX0]; fy[0] = s[P_FY0]; previousX[0] = s[P_PX0]; previousY[0] = s[P_PY0];
@@ -691,13 +709,9 @@ function integratePair(bodies: Bodies, field: ContactField, settings: LoopSettin
  * One chunk of `integratePair`'s loop: steps from the state in `s` until step `end` (or the run
  * exploded), then stores the state back. A free-flight jump may carry the run past `end`.
  */
-function advancePair(s: Float64Array, bodies: Bodies, field: ContactField, end: number, returnWhenFar: boolean): void {
-  const { x, y, vx, vy } = bodies;
+function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, returnWhenApart: boolean): void {
   const h = s[P_H];
-  const totalSteps = s[P_TOTAL_STEPS];
-  const allowJumps = s[P_ALLOW_JUMPS] !== 0;
   const contactsChargedMax = s[P_CONTACTS_CHARGED_MAX];
-  const gravity = s[P_GRAVITY];
   const gravityImpulsePerStepNs = s[P_GRAVITY_IMPULSE_PER_STEP_NS];
   const startEnergy = s[P_START_ENERGY];
   const energyScale = s[P_ENERGY_SCALE];
@@ -768,9 +782,6 @@ function advancePair(s: Float64Array, bodies: Bodies, field: ContactField, end: 
   let firstA = s[P_FIRST_A];
   let firstB = s[P_FIRST_B];
   let chargedContacts = s[P_CHARGED_CONTACTS];
-  let flightChecks = s[P_FLIGHT_CHECKS];
-  let flightSteps = s[P_FLIGHT_STEPS];
-  let finalFlights = s[P_FINAL_FLIGHTS];
   let integratedSteps = s[P_INTEGRATED_STEPS];
   let contactSteps = s[P_CONTACT_STEPS];
   let hasRestitution = s[P_HAS_RESTITUTION];
@@ -783,22 +794,6 @@ function advancePair(s: Float64Array, bodies: Bodies, field: ContactField, end: 
   while (n < end) {
     // Whether this step ended with the pair apart and beyond the cutoff (`freePairSteps`' case).
     let far = false;
-    if (allowJumps && overlappingContacts === 0) {
-      x[0] = x0; y[0] = y0; vx[0] = vx0; vy[0] = vy0;
-      x[1] = x1; y[1] = y1; vx[1] = vx1; vy[1] = vy1;
-      const timeToContactS = field.timeToFirstContactS(bodies);
-      flightChecks++;
-      const target = timeToContactS === Infinity ? totalSteps : Math.min(totalSteps, n + Math.floor(timeToContactS / h) - 1);
-      if (target > n + 1) {
-        jumpFreeFlight(bodies, n, target, h, null, gravity, timeToContactS !== Infinity);
-        x0 = x[0]; y0 = y[0]; x1 = x[1]; y1 = y[1];
-        if (timeToContactS !== Infinity) flightSteps += target - n;
-        else finalFlights++;
-        n = target;
-        if (n >= totalSteps) break;
-      }
-    }
-
     // stepSymplecticEuler: kick, remember the position, drift (body 0, then body 1).
     const kick0 = h * im0;
     vx0 += kick0 * fx0;
@@ -1043,6 +1038,8 @@ function advancePair(s: Float64Array, bodies: Bodies, field: ContactField, end: 
     }
     // A first contact still open is closed by the general step (endFirstContactWithoutOverlap).
     if (returnWhenFar && far && phase !== FIRST_CONTACT_ACTIVE) break;
+    // Fast stepping: the caller looks for a free-flight jump before the next step.
+    if (returnWhenApart && overlappingContacts === 0) break;
   }
 
   s[P_X0] = x0;
@@ -1095,9 +1092,6 @@ function advancePair(s: Float64Array, bodies: Bodies, field: ContactField, end: 
   s[P_FIRST_A] = firstA;
   s[P_FIRST_B] = firstB;
   s[P_CHARGED_CONTACTS] = chargedContacts;
-  s[P_FLIGHT_CHECKS] = flightChecks;
-  s[P_FLIGHT_STEPS] = flightSteps;
-  s[P_FINAL_FLIGHTS] = finalFlights;
   s[P_INTEGRATED_STEPS] = integratedSteps;
   s[P_CONTACT_STEPS] = contactSteps;
   s[P_HAS_RESTITUTION] = hasRestitution;
