@@ -1036,10 +1036,14 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
       explodedAtS = n * h;
       break;
     }
+    // Both tests run in either stepping mode, so that neither mode meets a comparison the compiled
+    // loop has never seen (which would throw the compiled code away).
     // A first contact still open is closed by the general step (endFirstContactWithoutOverlap).
-    if (returnWhenFar && far && phase !== FIRST_CONTACT_ACTIVE) break;
+    const free = far && phase !== FIRST_CONTACT_ACTIVE;
+    const apart = overlappingContacts === 0;
+    if (returnWhenFar && free) break;
     // Fast stepping: the caller looks for a free-flight jump before the next step.
-    if (returnWhenApart && overlappingContacts === 0) break;
+    if (returnWhenApart && apart) break;
   }
 
   s[P_X0] = x0;
