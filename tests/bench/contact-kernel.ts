@@ -23,6 +23,8 @@ const PAIR_ROUNDS = 7;
 /** Passes over the pair grid per contender and round (a pass of the C peer takes milliseconds). */
 const PAIR_PASSES = 4;
 const BOX_ROUNDS = 5;
+/** Untimed passes over the pair grid before the rounds (×10 for the far cheaper fast stepping). */
+const WARM_UP_PASSES = 3;
 const TARGET_PLAIN_VS_C = 0.5;
 const TARGET_FAST_VS_C = 5;
 const TARGET_BOX_VS_C = 0.5;
@@ -114,7 +116,15 @@ async function pairSections(binary: string | null): Promise<void> {
   const peerS: number[] = [];
   const tightS: number[] = [];
   let sink = 0;
-  for (const scenario of scenarios) simulate(scenario); // warm-up of the fast path
+  // Warm-up, so that the medians time compiled code: on a loaded machine the JIT's background
+  // compilation of a kernel can take longer than one pass (a fast pass takes well under a millisecond).
+  for (let pass = 0; pass < WARM_UP_PASSES; pass++) {
+    scenarios.forEach((scenario, cell) => {
+      simulate(scenario, { stepping: "plain" });
+      sink += tightPair(scenario, steps[cell]);
+    });
+  }
+  for (let pass = 0; pass < WARM_UP_PASSES * 10; pass++) scenarios.forEach((scenario) => simulate(scenario));
   const passes = (fn: () => void) => () => {
     for (let pass = 0; pass < PAIR_PASSES; pass++) fn();
   };

@@ -9,7 +9,7 @@
 import { describe, expect, it } from "vitest";
 import { simulate } from "@/lib/physics/simulate";
 import { DEFAULT_TOLERANCES } from "@/lib/physics/constants";
-import type { Damping, RunResult, Scenario } from "@/lib/physics/types";
+import type { Damping, PairScene, RunResult, Scenario } from "@/lib/physics/types";
 
 const DAMPINGS: Damping[] = [
   { kind: "none" },
@@ -75,6 +75,39 @@ describe("two-body loop for pair cells", () => {
     expect(compared).toBe(240);
     // The spread must reach the rare branches (tunnels, overlaps, first-contact ends), not only quiet runs.
     for (const verdict of ["stable", "tunneled", "deep-overlap", "step-unstable"]) expect(verdicts.has(verdict), verdict).toBe(true);
+  });
+
+  it("stays byte-identical over long runs: many chunks, coasting free flight, contacts at a chunk boundary, pairs at rest or receding", () => {
+    // The two-body loop runs in chunks of steps and coasts free flight (lib/physics/simulate.ts,
+    // PAIR_CHUNK_STEPS = 2048): these cells cross many chunks, start a contact on the steps around
+    // the first chunk boundary (closing at 1 m/s, dt = 10⁻⁴ s: gap 0.2048 m closes on step 2048), and
+    // coast with zero and with receding velocities.
+    const scene: PairScene = { kind: "pair", massAKg: 0.05, massBKg: 0.05, radiusAM: 0.02, radiusBM: 0.02, speedAMPerS: 1, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 };
+    const base: Scenario = {
+      scene,
+      contact: { model: "linear", stiffness: 1e3, damping: { kind: "restitution", value: 0.8 } },
+      integrator: "symplectic-euler",
+      dtS: 1e-4,
+      substeps: 1,
+      durationS: 4,
+      tolerances: DEFAULT_TOLERANCES,
+      verdictRules: 2,
+      seed: 1,
+    };
+    const cells: Scenario[] = [];
+    for (const stiffness of [10, 1e3, 1e5]) cells.push({ ...base, contact: { ...base.contact, stiffness } });
+    for (let step = -8; step <= 8; step++) cells.push({ ...base, durationS: 0.3, scene: { ...scene, gapM: 0.2048 + step * 1e-5 } });
+    cells.push({ ...base, durationS: 1, scene: { ...scene, speedAMPerS: 0 } });
+    cells.push({ ...base, durationS: 1, scene: { ...scene, speedAMPerS: -0.5, speedBMPerS: 0.25 } });
+    let withContact = 0;
+    for (const scenario of cells) {
+      const twoBody = simulate(scenario, { stepping: "plain" });
+      const general = simulate(scenario, { stepping: "plain", broadPhase: "grid" });
+      expect(physicsOf(twoBody), JSON.stringify(scenario)).toBe(physicsOf(general));
+      if (general.metrics.contactSteps > 0) withContact++;
+    }
+    // The boundary cells and the long ones touch; the resting and receding pairs never do.
+    expect(withContact).toBe(cells.length - 2);
   });
 
   it("keeps a contact spec with parameters it does not model on the general path", () => {
