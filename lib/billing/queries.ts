@@ -10,19 +10,25 @@ import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
 import { overageHold } from "./overdue";
+import { overageSwitch } from "./overage-switch";
 import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();
   const quotas = await effectiveQuotas(db, studioId);
   const hold = await overageHold(db, studioId);
+  const owner = await overageSwitch(db, studioId);
   return {
     balanceMs: await balanceMs(db, studioId),
     lowBalanceMs: LOW_BALANCE_MS,
     packs: CREDIT_PACKS,
     overage: {
-      /** What the studio chose (set by an admin); `held` says an unpaid invoice holds it off for now. */
+      /** Permitted by an admin and switched on by the owner; `held` says an unpaid invoice holds it off for now. */
       allowed: quotas.overageAllowed,
+      /** A platform admin's ceiling: overage may be switched on at all. */
+      permitted: owner.permitted,
+      /** The owner's switch (lib/billing/overage-switch.ts). */
+      on: owner.on,
       held: hold.suspended,
       graceDays: hold.graceDays,
       unpaidInvoices: hold.unpaid,
