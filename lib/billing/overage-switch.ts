@@ -42,12 +42,16 @@ export async function queueOverageSubscription(tx: DbOrTx, studioId: string): Pr
   await enqueueOutbox(tx, { kind: OVERAGE_SUBSCRIPTION_KIND, idempotencyKey: `overage-subscription:${studioId}`, payload: { studioId }, studioId });
 }
 
-export async function overageSwitch(db: DbOrTx, studioId: string): Promise<OverageSwitch> {
+/** The admin's permission and the owner's switch as stored (no hold): one read of the quota row. */
+export async function overageSettings(db: DbOrTx, studioId: string): Promise<{ permitted: boolean; on: boolean; capMs: number }> {
   const [row] = await db.select({ allowed: studioQuotas.overageAllowed, on: studioQuotas.overageOn, capMs: studioQuotas.overageCapMs }).from(studioQuotas).where(eq(studioQuotas.studioId, studioId));
-  const permitted = row?.allowed ?? PLAN_DEFAULTS.overageAllowed;
-  const on = row?.on ?? true;
-  const held = (await overageHold(db, studioId)).suspended;
-  return { permitted, on, allowed: permitted && on && !held, held, capMs: row?.capMs ?? PLAN_DEFAULTS.overageCapMs };
+  return { permitted: row?.allowed ?? PLAN_DEFAULTS.overageAllowed, on: row?.on ?? true, capMs: row?.capMs ?? PLAN_DEFAULTS.overageCapMs };
+}
+
+export async function overageSwitch(db: DbOrTx, studioId: string): Promise<OverageSwitch> {
+  const [settings, hold] = await Promise.all([overageSettings(db, studioId), overageHold(db, studioId)]);
+  const held = hold.suspended;
+  return { permitted: settings.permitted, on: settings.on, allowed: settings.permitted && settings.on && !held, held, capMs: settings.capMs };
 }
 
 /**
