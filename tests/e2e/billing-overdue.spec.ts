@@ -3,7 +3,8 @@ import { type APIRequestContext, type Page } from "@playwright/test";
 import Papa from "papaparse";
 import { DEMO_ADMIN, expect, sameOrigin, signInWithPassword, test } from "./helpers";
 
-// The demo studio's finance member, seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo studio's owner and finance member, seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+const OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };
 const STUDIO = "Gannet Yard Games";
 
@@ -29,7 +30,7 @@ async function openBilling(page: Page): Promise<string> {
   return new URL(page.url()).pathname.split("/")[2];
 }
 
-test("finance opens an overdue invoice from the e-mail, pays it on the hosted page, sees it paid with overage on, and downloads the invoices CSV with its row", async ({ browser, request }) => {
+test("finance opens an overdue invoice from the e-mail, pays it on the hosted page, sees it paid with overage on, and downloads the invoices CSV with its row; the owner switches overage off and on", async ({ browser, request }) => {
   // Two sign-ins, the mailbox, the hosted page and a download on a loaded machine.
   test.setTimeout(240_000);
   const financeContext = await browser.newContext();
@@ -135,6 +136,18 @@ test("finance opens an overdue invoice from the e-mail, pays it on the hosted pa
   expect(Number(line!.quantity_ms)).toBe(overageMs);
   expect(line!.hosted_invoice_url).toBe(payLink);
   await financeContext.close();
+
+  // --- The owner switches overage off and on again within the admin's permission (Billing page).
+  const ownerContext = await browser.newContext();
+  const owner = await ownerContext.newPage();
+  await signInWithPassword(owner, OWNER.email, OWNER.password);
+  await owner.goto(`/studios/${studioId}/billing`);
+  await expect(owner.getByTestId("overage-status")).toContainText("Overage allowed");
+  await owner.getByRole("button", { name: "Switch overage off" }).click();
+  await expect(owner.getByTestId("overage-status")).toHaveText(/switched off by the studio's owner/);
+  await owner.getByRole("button", { name: "Switch overage on" }).click();
+  await expect(owner.getByTestId("overage-status")).toContainText("Overage allowed");
+  await ownerContext.close();
 
   // Leave the demo studio as the seed made it for the specs that follow: overage back to the plan default.
   const resetContext = await browser.newContext();
