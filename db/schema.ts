@@ -392,8 +392,10 @@ export const studioQuotas = pgTable(
     maxCellsPerSweep: integer("max_cells_per_sweep"),
     maxStepsPerCell: integer("max_steps_per_cell"),
     maxBodies: integer("max_bodies"),
-    /** Whether usage beyond the prepaid balance is metered and invoiced. */
+    /** Whether usage beyond the prepaid balance may be metered and invoiced (a platform admin's ceiling). */
     overageAllowed: boolean("overage_allowed"),
+    /** The owner's switch within that ceiling (lib/billing/overage-switch.ts); null = on. */
+    overageOn: boolean("overage_on"),
     /** The most overage a calendar month may accrue, integer ms. */
     overageCapMs: bigint("overage_cap_ms", { mode: "number" }),
     updatedAt: timestamp("updated_at", { withTimezone: true, mode: "date" }).notNull().defaultNow(),

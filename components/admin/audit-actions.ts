@@ -20,4 +20,5 @@ export const AUDIT_ACTION_LABELS: Record<AuditAction, string> = {
   "meter_event.retry": "Meter event retried",
   "meter_event.rekey": "Meter event re-keyed",
   "billing.details": "Billing details changed",
+  "overage.switch": "Overage switched by the owner",
 };

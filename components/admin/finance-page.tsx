@@ -48,7 +48,14 @@ export function FinancePage() {
               </div>
             )}
           </Card>
-          <Card title="Usage against meters against invoices">
+          <Card
+            title="Usage against meters against invoices"
+            actions={
+              <a className="text-sm font-medium text-kick hover:underline" href="/api/v1/admin/finance?format=csv" download>
+                Download reconciliation CSV (per month)
+              </a>
+            }
+          >
             {finance.data.periods.length === 0 ? (
               <EmptyState>No invoiced periods yet.</EmptyState>
             ) : (

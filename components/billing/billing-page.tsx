@@ -12,6 +12,7 @@ import { LedgerBySweep } from "./ledger-by-sweep";
 import { formatDateTime } from "@/lib/ui/format";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
 import { BillingDetailsCard } from "./billing-details";
+import { OverageSwitch } from "./overage-switch";
 import { formatCompute } from "@/lib/billing/format";
 import { METERING_NOTE } from "@/lib/sweeps/metering-rate";
 
@@ -21,6 +22,8 @@ type Summary = {
   packs: CreditPack[];
   overage: {
     allowed: boolean;
+    permitted: boolean;
+    on: boolean;
     held: boolean;
     graceDays: number;
     unpaidInvoices: { id: string; number: string | null; status: string; totalCents: number; dueAt: string; overageOffAt: string; overdue: boolean; overageOff: boolean }[];
@@ -113,10 +116,13 @@ export function BillingPage({ studioId, studioName, role, checkout, sessionId }:
                 <p className="text-ink-muted" data-testid="overage-status">
                   {summary.data.overage.allowed && summary.data.overage.held
                     ? "Overage is switched off while an invoice is unpaid past its grace period: sweeps pause at zero balance. Paying the invoice switches it back on."
+                    : summary.data.overage.permitted && !summary.data.overage.on
+                    ? "Overage is switched off by the studio's owner: sweeps pause with “out of minutes” at zero and resume after a top-up."
                     : summary.data.overage.allowed
                     ? `Overage allowed: past the balance, compute is invoiced monthly at ${formatPriceCents(summary.data.overage.centsPerMinute)} a minute (${summary.data.month.key}: ${formatMinutes(summary.data.overage.thisMonthMs)} of ${formatMinutes(summary.data.overage.capMs)} minutes). Each invoice covers one calendar month (UTC), from the 1st, the same month counted here.`
                     : "Overage is off: sweeps pause with “out of minutes” at zero and resume after a top-up."}
                 </p>
+                {role === "owner" ? <OverageSwitch studioId={studioId} permitted={summary.data.overage.permitted} on={summary.data.overage.on} /> : null}
                 <p className="text-xs text-ink-muted" data-testid="overdue-terms">
                   Terms: overage invoices are due {OVERAGE_DAYS_UNTIL_DUE} days after they are issued. An invoice still unpaid {summary.data.overage.graceDays} days after its due date switches overage off
                   until it is paid; prepaid minutes keep working. Owners and finance are e-mailed when a payment fails or an invoice is overdue.

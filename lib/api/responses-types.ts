@@ -9,6 +9,7 @@ import type { listAudit } from "@/lib/audit/audit";
 import type { invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";
 import type { financeView, retryMeterEvent } from "@/lib/billing/finance-ops";
 import type { billingDetails } from "@/lib/billing/details";
+import type { setOverageOn } from "@/lib/billing/overage-switch";
 import type { ledgerGroupsPage, sweepLedgerChunks } from "@/lib/ledger/statement";
 import type { adminQueue, adjustCredit, adminStudioDetail, listAdjustments, studioQuotaView, updateQuotas, setStudioStatus, adminStudioList, setPlatformRole } from "@/lib/quotas/admin";
 import type { adminRefund } from "@/lib/billing/refunds";
@@ -109,6 +110,7 @@ type Audit = Jsonify<{ entries: R<typeof listAudit> }>;
 type Finance = Jsonify<R<typeof financeView>>;
 type MeterRetry = Jsonify<R<typeof retryMeterEvent>>;
 type BillingDetailsView = Jsonify<R<typeof billingDetails>>;
+type OverageSwitchView = Jsonify<R<typeof setOverageOn>>;
 type LedgerGroups = Jsonify<R<typeof ledgerGroupsPage>>;
 type SweepLedger = Jsonify<R<typeof sweepLedgerChunks>>;
 type Queue = Jsonify<{ sweeps: R<typeof adminQueue> }>;
@@ -176,6 +178,7 @@ export interface ResponseTies {
   ledgerGroups: [LibFitsSchema<LedgerGroups, Out<typeof B.ledgerGroupsAnswer>>, SchemaFitsLib<Out<typeof B.ledgerGroupsAnswer>, LedgerGroups>];
   sweepLedger: [LibFitsSchema<SweepLedger, Out<typeof B.sweepLedgerAnswer>>, SchemaFitsLib<Out<typeof B.sweepLedgerAnswer>, SweepLedger>];
   billingDetails: [LibFitsSchema<BillingDetailsView, Out<typeof B.billingDetailsAnswer>>, SchemaFitsLib<Out<typeof B.billingDetailsAnswer>, BillingDetailsView>];
+  overageSwitch: [LibFitsSchema<OverageSwitchView, Out<typeof B.overageSwitchAnswer>>, SchemaFitsLib<Out<typeof B.overageSwitchAnswer>, OverageSwitchView>];
   meterRetry: [LibFitsSchema<MeterRetry, Out<typeof B.meterRetryAnswer>>, SchemaFitsLib<Out<typeof B.meterRetryAnswer>, MeterRetry>];
   queue: [LibFitsSchema<Queue, Out<typeof A.queueAnswer>>, SchemaFitsLib<Out<typeof A.queueAnswer>, Queue>];
   // One way only: every metric is a number in the lib's type, but a non-finite one is sent as null

@@ -30,6 +30,7 @@ export const AUDIT_ACTIONS = [
   "meter_event.retry",
   "meter_event.rekey",
   "billing.details",
+  "overage.switch",
 ] as const;
 export type AuditAction = (typeof AUDIT_ACTIONS)[number];
 

@@ -8,20 +8,19 @@
  * asking, so it goes back on by itself when invoice.paid is mirrored, whatever order the events came
  * in, and the owner's own choice (studio_quotas.overage_allowed) is never overwritten.
  */
-import { and, asc, eq, inArray, isNotNull, sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { DbOrTx } from "@/db/client";
-import { invoices, studioBilling, studios } from "@/db/schema";
+import { studioBilling, studios } from "@/db/schema";
 import { queueMail } from "@/lib/outbox/mail";
 import { billingContacts } from "./catalog";
 import { invoicePaymentDueMail, subscriptionEndedMail } from "./mail";
+import { owedInvoiceSql, overageOffAtSql } from "./grace";
 import { OVERDUE_GRACE_DAYS } from "./packs";
 
 export { OVERDUE_GRACE_DAYS };
+export { UNPAID_INVOICE_STATUSES } from "./grace";
 const DAY_MS = 86_400_000;
-
-/** Statuses of an invoice that is still owed. */
-export const UNPAID_INVOICE_STATUSES = ["open", "uncollectible"] as const;
 
 export interface UnpaidInvoice {
   id: string;
@@ -53,16 +52,26 @@ export async function databaseNow(db: DbOrTx): Promise<Date> {
 
 /** Where the studio's unpaid invoices leave its overage at `at` (default: the database's now). */
 export async function overageHold(db: DbOrTx, studioId: string, at?: Date): Promise<OverageHold> {
-  const now = at ?? (await databaseNow(db));
-  const rows = await db
-    .select()
-    .from(invoices)
-    .where(and(eq(invoices.studioId, studioId), inArray(invoices.status, [...UNPAID_INVOICE_STATUSES]), isNotNull(invoices.dueAt), sql`${invoices.totalCents} > 0`))
-    .orderBy(asc(invoices.dueAt));
-  const unpaid = rows.map((r) => {
-    const offAt = new Date(r.dueAt!.getTime() + OVERDUE_GRACE_DAYS * DAY_MS);
-    return { id: r.id, number: r.number, status: r.status, totalCents: r.totalCents, dueAt: r.dueAt!.toISOString(), overageOffAt: offAt.toISOString(), overdue: r.dueAt!.getTime() <= now.getTime(), overageOff: offAt.getTime() <= now.getTime() };
-  });
+  // The rule is lib/billing/grace.ts's SQL, the same the run limits evaluate (lib/quotas/enforce.ts).
+  const when = at ? sql`${at.toISOString()}::timestamptz` : sql`now()`;
+  const i = sql.raw("i");
+  const result = await db.execute(sql`
+    select i.id, i.number, i.status, i.total_cents, i.due_at, ${overageOffAtSql(i)} as overage_off_at,
+      i.due_at <= ${when} as overdue, ${overageOffAtSql(i)} <= ${when} as overage_off
+    from invoices i where i.studio_id = ${studioId} and ${owedInvoiceSql(i)}
+    order by i.due_at, i.id`);
+  type Row = { id: string; number: string | null; status: string; total_cents: number | string; due_at: string | Date; overage_off_at: string | Date; overdue: boolean; overage_off: boolean };
+  const iso = (v: string | Date) => new Date(v).toISOString();
+  const unpaid = (result as unknown as { rows: Row[] }).rows.map((r) => ({
+    id: r.id,
+    number: r.number,
+    status: r.status,
+    totalCents: Number(r.total_cents),
+    dueAt: iso(r.due_at),
+    overageOffAt: iso(r.overage_off_at),
+    overdue: r.overdue,
+    overageOff: r.overage_off,
+  }));
   return { suspended: unpaid.some((u) => u.overageOff), graceDays: OVERDUE_GRACE_DAYS, unpaid };
 }
 

@@ -44,14 +44,17 @@ async function creditedMs(db: Db, sessionId: string): Promise<number | null> {
   return entry ? entry.computeMs : null;
 }
 
-/** Reads the session from Stripe, credits it if paid and not yet credited, and says where the payment stands. */
+/** A Checkout session id that has passed parseSessionId: the type says the check was made, once. */
+export type SessionId = string & { readonly __brand: "CheckoutSessionId" };
+
 /** Refuses anything that is not a Checkout session id, before Stripe (or its absence) is consulted. */
-export function assertSessionId(sessionId: string): void {
+export function parseSessionId(sessionId: string): SessionId {
   if (!SESSION_ID.test(sessionId)) throw new ApiError(400, "validation_failed", "sessionId: must be a Checkout session id (cs_…).", "sessionId");
+  return sessionId as SessionId;
 }
 
-export async function checkPayment(db: Db, stripe: Stripe, studioId: string, sessionId: string): Promise<PaymentCheck> {
-  assertSessionId(sessionId);
+/** Reads the session from Stripe, credits it if paid and not yet credited, and says where the payment stands. */
+export async function checkPayment(db: Db, stripe: Stripe, studioId: string, sessionId: SessionId): Promise<PaymentCheck> {
   let session: Stripe.Checkout.Session;
   try {
     session = await stripe.checkout.sessions.retrieve(sessionId, { expand: ["line_items", "payment_intent"] });

@@ -10,27 +10,40 @@ import { balanceMs } from "@/lib/ledger/ledger";
 import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
 import { overageHold } from "./overdue";
+import { overageSettings } from "./overage-switch";
 import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();
-  const quotas = await effectiveQuotas(db, studioId);
-  const hold = await overageHold(db, studioId);
+  // Independent reads, issued together: on one client (a transaction, PGlite) they queue in order; on
+  // the pool each takes a connection, and none depends on another's result.
+  const [quotas, hold, owner, balance, overageThisMonthMs, usedThisMonthMs] = await Promise.all([
+    effectiveQuotas(db, studioId),
+    overageHold(db, studioId),
+    overageSettings(db, studioId),
+    balanceMs(db, studioId),
+    monthlyOverageMs(db, studioId, now),
+    monthlyUsageMs(db, studioId, now),
+  ]);
   return {
-    balanceMs: await balanceMs(db, studioId),
+    balanceMs: balance,
     lowBalanceMs: LOW_BALANCE_MS,
     packs: CREDIT_PACKS,
     overage: {
-      /** What the studio chose (set by an admin); `held` says an unpaid invoice holds it off for now. */
+      /** Permitted by an admin and switched on by the owner; `held` says an unpaid invoice holds it off for now. */
       allowed: quotas.overageAllowed,
+      /** A platform admin's ceiling: overage may be switched on at all. */
+      permitted: owner.permitted,
+      /** The owner's switch (lib/billing/overage-switch.ts). */
+      on: owner.on,
       held: hold.suspended,
       graceDays: hold.graceDays,
       unpaidInvoices: hold.unpaid,
       capMs: quotas.overageCapMs,
       centsPerMinute: OVERAGE_CENTS_PER_MINUTE,
-      thisMonthMs: await monthlyOverageMs(db, studioId, now),
+      thisMonthMs: overageThisMonthMs,
     },
-    month: { key: monthOf(now).key, usedMs: await monthlyUsageMs(db, studioId, now), capMs: quotas.monthlyComputeMs },
+    month: { key: monthOf(now).key, usedMs: usedThisMonthMs, capMs: quotas.monthlyComputeMs },
     taxNote: "Prices before tax; tax handling is out of scope.",
   };
 }

@@ -12,9 +12,8 @@ import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { formatCompute } from "@/lib/billing/format";
-import { enqueueOutbox } from "@/lib/outbox/outbox";
 import { pokeOutbox } from "@/lib/outbox/process";
-import { OVERAGE_SUBSCRIPTION_KIND } from "@/lib/billing/usage";
+import { queueOverageSubscription } from "@/lib/billing/overage-switch";
 import { queueStudioStatusMail } from "@/lib/studios/suspension";
 import { PLAN_DEFAULTS, type Quotas } from "./plan";
 import { RUN_LIMIT_REASONS, monthRemainingMs, overageHeadroomMs, studioStanding, type Standing } from "./enforce";
@@ -46,7 +45,8 @@ export const quotaPatchSchema = z
   })
   .refine((v) => Object.keys(v).some((k) => k !== "reason"), { error: "Give at least one quota to change." });
 
-type Overrides = Omit<typeof studioQuotas.$inferSelect, "studioId" | "updatedAt" | "updatedByUserId">;
+// overageOn is the owner's switch (lib/billing/overage-switch.ts), not an admin override.
+type Overrides = Omit<typeof studioQuotas.$inferSelect, "studioId" | "updatedAt" | "updatedByUserId" | "overageOn">;
 const QUOTA_KEYS = ["monthlyComputeMs", "maxRunningSweeps", "maxCellsPerSweep", "maxStepsPerCell", "maxBodies", "overageAllowed", "overageCapMs"] as const satisfies readonly (keyof Quotas)[];
 
 async function lockStudio(tx: Parameters<Parameters<Db["transaction"]>[0]>[0], studioId: string) {
@@ -85,10 +85,10 @@ export async function updateQuotas(db: Db, actor: Actor, studioId: string, patch
     if (changed.length === 0) return;
     const values = { ...after, updatedAt: new Date(), updatedByUserId: actor.id };
     await tx.insert(studioQuotas).values({ studioId, ...values }).onConflictDoUpdate({ target: studioQuotas.studioId, set: values });
-    if ((after.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && !(before.overageAllowed ?? PLAN_DEFAULTS.overageAllowed)) {
-      // Overage turned on: the studio's overage subscription (anchored to the 1st) is made now, through
-      // the outbox so a Stripe outage delays it rather than losing it. Once per studio.
-      await enqueueOutbox(tx, { kind: OVERAGE_SUBSCRIPTION_KIND, idempotencyKey: `overage-subscription:${studioId}`, payload: { studioId }, studioId });
+    if ((after.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && !(before.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && row?.overageOn !== false) {
+      // Overage permitted, and the owner has not switched it off: the studio's overage subscription
+      // (anchored to the 1st) is made now. An owner who has it off makes it by switching it on.
+      await queueOverageSubscription(tx, studioId);
     }
     await writeAudit(tx, {
       actor,

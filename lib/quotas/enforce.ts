@@ -19,7 +19,7 @@ import { ApiError, LimitError } from "@/lib/errors";
 import { layout, type MailContent } from "@/lib/mail/templates";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
-import { OVERDUE_GRACE_DAYS } from "@/lib/billing/packs";
+import { overageHeldSql } from "@/lib/billing/grace";
 import { PLAN_DEFAULTS, monthOf, type Quotas } from "./plan";
 
 /** Why a sweep is paused by the limits (shown to the user as the sweep's reason). */
@@ -65,6 +65,7 @@ interface StandingRow extends Record<string, unknown> {
   max_steps_per_cell: number | null;
   max_bodies: number | null;
   overage_allowed: boolean | null;
+  overage_on: boolean | null;
   overage_cap_ms: string | number | null;
   overage_held: boolean;
 }
@@ -92,9 +93,8 @@ async function readStanding(db: DbOrTx, studioId: string, at: Date, lock: boolea
           else greatest(s.ceiling_ms - s.released_ceiling_ms, 0) end), 0) from sweeps s
         where s.studio_id = st.id and s.status in ('queued', 'running', 'paused')) as reserved,
       (select count(*) from sweeps s where s.studio_id = st.id and s.status = 'running') as running,
-      exists (select 1 from invoices i where i.studio_id = st.id and i.status in ('open', 'uncollectible') and i.total_cents > 0
-        and i.due_at + make_interval(days => ${OVERDUE_GRACE_DAYS}) <= ${at.toISOString()}::timestamptz) as overage_held,
-      q.monthly_compute_ms, q.max_running_sweeps, q.max_cells_per_sweep, q.max_steps_per_cell, q.max_bodies, q.overage_allowed, q.overage_cap_ms
+      ${overageHeldSql(sql`st.id`, at)} as overage_held,
+      q.monthly_compute_ms, q.max_running_sweeps, q.max_cells_per_sweep, q.max_steps_per_cell, q.max_bodies, q.overage_allowed, q.overage_on, q.overage_cap_ms
     from studios st left join studio_quotas q on q.studio_id = st.id
     where st.id = ${studioId}`);
   const [row] = rowsOf<StandingRow>(result);
@@ -112,8 +112,9 @@ function standingFromRow(row: StandingRow, monthKey: string): Standing {
       maxCellsPerSweep: num(row.max_cells_per_sweep, PLAN_DEFAULTS.maxCellsPerSweep),
       maxStepsPerCell: num(row.max_steps_per_cell, PLAN_DEFAULTS.maxStepsPerCell),
       maxBodies: num(row.max_bodies, PLAN_DEFAULTS.maxBodies),
-      // Held off while an invoice is unpaid past its grace period (lib/billing/overdue.ts).
-      overageAllowed: (row.overage_allowed ?? PLAN_DEFAULTS.overageAllowed) && !row.overage_held,
+      // Permitted by an admin, switched on by the owner (lib/billing/overage-switch.ts), and not held
+      // off by an invoice unpaid past its grace period (lib/billing/overdue.ts).
+      overageAllowed: (row.overage_allowed ?? PLAN_DEFAULTS.overageAllowed) && row.overage_on !== false && !row.overage_held,
       overageCapMs: num(row.overage_cap_ms, PLAN_DEFAULTS.overageCapMs),
     },
     balanceMs: Number(row.balance),

@@ -41,7 +41,8 @@ export async function effectiveQuotas(db: DbOrTx, studioId: string): Promise<Quo
     maxCellsPerSweep: row?.maxCellsPerSweep ?? PLAN_DEFAULTS.maxCellsPerSweep,
     maxStepsPerCell: row?.maxStepsPerCell ?? PLAN_DEFAULTS.maxStepsPerCell,
     maxBodies: row?.maxBodies ?? PLAN_DEFAULTS.maxBodies,
-    overageAllowed: row?.overageAllowed ?? PLAN_DEFAULTS.overageAllowed,
+    // Permitted by an admin and switched on by the owner (null = on).
+    overageAllowed: (row?.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && row?.overageOn !== false,
     overageCapMs: row?.overageCapMs ?? PLAN_DEFAULTS.overageCapMs,
   };
 }

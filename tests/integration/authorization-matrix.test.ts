@@ -345,6 +345,8 @@ export const ROUTES: RouteRow[] = [
     expect: BILLING_READERS_ROW(200),
   },
   { route: "v1/studios/[studioId]/billing/details", method: "GET", params: studio, expect: BILLING_PEOPLE_ROW(200) },
+  // Off needs no admin permission: the owner gets 200 (on without it is a 409, tests/integration/billing/overage-switch.test.ts).
+  { route: "v1/studios/[studioId]/billing/overage", method: "PUT", params: studio, body: () => ({ overageOn: false }), expect: OWNER_MANAGES(200) },
   // Owners only; the body is valid, so an owner reaches the Stripe customer update (the fake) and gets 200.
   { route: "v1/studios/[studioId]/billing/details", method: "PUT", params: studio, body: () => ({ billingEmail: "books@gannetyard.test", address: null, taxId: "DE 123456789" }), expect: OWNER_MANAGES(200) },
   { route: "v1/admin/finance", method: "GET", expect: ADMIN_ONLY(200) },

@@ -66,6 +66,7 @@ import {
   financeAnswer,
   meterRetryAnswer,
   billingDetailsAnswer,
+  overageSwitchAnswer,
   ledgerGroupsAnswer,
   sweepLedgerAnswer,
   ledgerExportAnswer,
@@ -85,6 +86,8 @@ import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
 import { invoicesQuerySchema, ledgerQuerySchema, usageQuerySchema } from "@/lib/billing/queries";
 import { billingDetailsSchema } from "@/lib/billing/details";
+import { overageSwitchSchema } from "@/lib/billing/overage-switch";
+import { financeQuerySchema } from "@/lib/billing/reconciliation-export";
 import { ledgerExportQuerySchema, ledgerGroupsQuerySchema } from "@/lib/ledger/statement";
 import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
@@ -245,6 +248,7 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: `${S}/billing/invoices`, summary: "Invoices with their hosted page and PDF links (JSON, or CSV with total_cents and total_amount); read tokens may read them", tag: "Billing", policy: BILLING_READERS, ok: 200, produces: "json-or-csv", query: invoicesQuerySchema, response: invoicesAnswer },
   { method: "get", path: `${S}/billing/invoices/{invoiceId}`, summary: "An invoice reconciled with the ledger; read tokens may read it", tag: "Billing", policy: BILLING_READERS, ok: 200, response: invoiceAnswer },
   { method: "get", path: `${S}/billing/details`, summary: "Billing e-mail, address and tax ID printed on invoices", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: billingDetailsAnswer },
+  { method: "put", path: `${S}/billing/overage`, summary: "Switch overage on or off within what a platform admin permits (owners; 409 naming overageOn when it is not permitted; the same value again changes nothing)", tag: "Billing", policy: OWNERS_ONLY, ok: 200, body: overageSwitchSchema, response: overageSwitchAnswer },
   { method: "put", path: `${S}/billing/details`, summary: "Set the billing e-mail, address and tax ID (owners; tax ID is free text, no tax computed)", tag: "Billing", policy: OWNERS_ONLY, ok: 200, body: billingDetailsSchema, response: billingDetailsAnswer },
   { method: "post", path: "/api/v1/stripe/webhook", summary: "Stripe's signed event deliveries (for Stripe only)", tag: "Billing", policy: PUBLIC, ok: 200, internal: true, response: stripeWebhookAnswer },
   // Admin
@@ -259,7 +263,7 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200, response: usersAnswer },
   { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema, response: userPatchAnswer },
   { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema, response: auditAnswer },
-  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good", tag: "Admin", policy: ADMIN, ok: 200, response: financeAnswer },
+  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good (format=csv: the reconciliation per studio and month, ms and minutes, cents and dollars)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: financeQuerySchema, response: financeAnswer },
   { method: "post", path: "/api/v1/admin/finance/meter-events/{outboxId}/retry", summary: "Queue a failed meter event again, as it was or under a new Stripe identifier (audited; 202 queued, 200 unchanged)", tag: "Admin", policy: ADMIN, ok: 202, alsoOk: [200], body: meterRetrySchema, response: meterRetryAnswer },
   { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: ADMIN, ok: 200, response: queueAnswer },
   // The document itself

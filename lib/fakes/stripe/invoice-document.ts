@@ -58,7 +58,10 @@ export function invoiceDocument(invoice: StripeObject): { title: string; header:
   };
 }
 
-export function renderInvoicePage(invoice: StripeObject): string {
+/** A card refused on the invoice's page: shown above the form, as the Checkout page shows it. */
+export type InvoicePaymentError = { code: string; declineCode?: string; message: string };
+
+export function renderInvoicePage(invoice: StripeObject, error?: InvoicePaymentError): string {
   const doc = invoiceDocument(invoice);
   const list = (items: string[]) => items.map((t) => `<li>${escapeHtml(t)}</li>`).join("");
   return `<!doctype html>
@@ -73,6 +76,10 @@ export function renderInvoicePage(invoice: StripeObject): string {
   .amount { text-align: right; font-variant-numeric: tabular-nums; }
   .note { font-size: 0.8rem; color: #5b625e; }
   a { color: #2f5d50; }
+  label { display: block; margin-top: 0.8rem; font-size: 0.9rem; }
+  input { width: 100%; box-sizing: border-box; padding: 0.5rem; font-size: 1rem; border: 1px solid #b9bfb6; border-radius: 4px; }
+  button { margin-top: 1rem; width: 100%; padding: 0.6rem; font-size: 1rem; background: #2f5d50; color: #fff; border: 0; border-radius: 4px; }
+  .error { background: #fbeaea; border: 1px solid #e4b4b4; color: #7a1f1f; padding: 0.6rem; border-radius: 4px; }
 </style></head>
 <body><main>
 <h1>${escapeHtml(doc.title)}</h1>
@@ -84,8 +91,26 @@ ${doc.lines.map((l) => `<tr><td>${escapeHtml(l.text)}</td><td class="amount">${e
 ${doc.totals.map((t) => `<tr><td><strong>${escapeHtml(t.label)}</strong></td><td class="amount"><strong>${escapeHtml(t.amount)}</strong></td></tr>`).join("")}
 </tbody></table>
 ${invoice.invoice_pdf ? `<p><a href="${escapeHtml(String(invoice.invoice_pdf))}">Download PDF</a></p>` : ""}
+${payForm(invoice, error)}
 ${doc.notes.map((n) => `<p class="note">${escapeHtml(n)}</p>`).join("")}
 </main></body></html>`;
+}
+
+/** The card form of an invoice still owed (open or uncollectible, amount remaining above 0). */
+function payForm(invoice: StripeObject, error?: InvoicePaymentError): string {
+  const owed = (invoice.status === "open" || invoice.status === "uncollectible") && (invoice.amount_remaining as number) > 0;
+  if (!owed) return "";
+  const amount = formatAmount(invoice.amount_remaining as number, String(invoice.currency));
+  const alert = error
+    ? `<p class="error" role="alert" data-error-code="${escapeHtml(error.code)}"${error.declineCode ? ` data-decline-code="${escapeHtml(error.declineCode)}"` : ""}>${escapeHtml(error.message)}</p>`
+    : "";
+  return `<h2>Pay this invoice</h2>
+${alert}
+<form method="post" action="/i/${escapeHtml(String(invoice.id))}">
+  <label for="card_number">Card number</label>
+  <input id="card_number" name="card_number" inputmode="numeric" autocomplete="cc-number" required placeholder="4242 4242 4242 4242">
+  <button type="submit">Pay ${escapeHtml(amount)}</button>
+</form>`;
 }
 
 /**

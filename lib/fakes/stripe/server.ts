@@ -6,7 +6,7 @@ import { FormParseError, parseForm, type FormObject } from "./form";
 import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted-page";
 import { renderInvoiceMissingPage, renderInvoicePage, renderInvoicePdf } from "./invoice-document";
 import { Params } from "./params";
-import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, nextPeriodBoundary, type ClosePeriodOptions } from "./resources/billing";
+import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, nextPeriodBoundary, payInvoiceFromHostedPage, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
 import { closeDispute, openDispute } from "./resources/payments";
 import { payByBankFromHostedPage, payFromHostedPage, refreshExpiry, settleDelayedPayments } from "./resources/checkout";
@@ -254,8 +254,22 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
   /** hosted_invoice_url (/i/:id) and invoice_pdf (/i/:id/pdf): only for finalised invoices, as Stripe sets them at finalisation. */
   async function handleInvoiceDocument(req: IncomingMessage, res: ServerResponse, invoiceId: string, pdf: boolean): Promise<void> {
     const invoice = store.get("invoices", invoiceId);
-    if (req.method !== "GET" || !invoice || !invoice.hosted_invoice_url) {
-      return send(res, 404, renderInvoiceMissingPage(invoiceId), { "content-type": "text/html; charset=utf-8" });
+    const html = (status: number, body: string) => send(res, status, body, { "content-type": "text/html; charset=utf-8" });
+    if (!invoice || !invoice.hosted_invoice_url || (req.method !== "GET" && !(req.method === "POST" && !pdf))) return html(404, renderInvoiceMissingPage(invoiceId));
+    if (req.method === "POST") {
+      // The hosted page's card form: pay the amount remaining, then show the page again (paid, or the refusal).
+      const form = parseForm(await readBody(req));
+      const cardNumber = typeof form.card_number === "string" ? form.card_number : "";
+      if (!cardNumber.trim()) return html(400, renderInvoicePage(invoice, { code: "parameter_missing", message: "card_number is required: enter a card number (test card 4242 4242 4242 4242)." }));
+      const ctx = makeCtx({ requestId: null, idempotencyKey: null });
+      const result = payInvoiceFromHostedPage(ctx, invoiceId, cardNumber);
+      persist();
+      dispatcher.kick();
+      if (result.kind === "declined") return html(402, renderInvoicePage(result.invoice, { code: result.outcome.code, declineCode: result.outcome.declineCode, message: result.outcome.message }));
+      // Post/redirect/get: a reload of the paid page does not post the card again.
+      res.writeHead(303, { location: `/i/${encodeURIComponent(invoiceId)}`, "content-length": "0", "request-id": requestId() });
+      res.end();
+      return;
     }
     if (!pdf) return send(res, 200, renderInvoicePage(invoice), { "content-type": "text/html; charset=utf-8" });
     const bytes = Buffer.from(await renderInvoicePdf(invoice));

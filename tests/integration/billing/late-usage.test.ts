@@ -8,38 +8,22 @@
  * belongs to the period of its ledger time, so the test waits (a polled condition, no fixed sleep)
  * for the wall clock's second to move past a chunk before closing its period.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { and, eq, like } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { invoices, ledgerEntries, outbox, studioQuotas, type OutboxRow } from "@/db/schema";
+import { invoices, ledgerEntries, outbox, type OutboxRow } from "@/db/schema";
 import { ensureOverageSubscription } from "@/lib/billing/catalog";
 import { deliverMeterEvent } from "@/lib/billing/meter";
 import { invoiceDetail, platformFinance } from "@/lib/billing/queries";
 import { METER_EVENT_KIND, recordChunkUsage } from "@/lib/billing/usage";
-import { appendLedgerEntry, usageKey } from "@/lib/ledger/ledger";
-import { submitSweep } from "@/lib/queue/submit";
-import { closeTestDb, useFreshDb } from "../../helpers/db";
-import { grant, makeSweepStudio, puckSpec } from "../sweeps/support";
-import { meterDispatcher, startBillingHarness, waitUntil, type BillingHarness } from "./support";
+import { usageKey } from "@/lib/ledger/ledger";
+import { makeSweepStudio } from "../sweeps/support";
+import { allowOverage, meterDispatcher, usageSweep, billingTestFile, waitUntil, type BillingHarness } from "./support";
 
 let db: Db;
 let h: BillingHarness;
+billingTestFile((file) => ({ db, h } = file));
 
-beforeAll(async () => {
-  db = await useFreshDb();
-  h = await startBillingHarness();
-});
-afterAll(async () => {
-  await h.close();
-  await closeTestDb();
-});
-
-async function sweepOf(studioId: string): Promise<string> {
-  await grant(studioId, 60 * 60_000, `sweep-grant:${studioId}`);
-  const sweep = await submitSweep(db, studioId, { spec: puckSpec() });
-  await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: -(60 * 60_000), idempotencyKey: `sweep-grant-back:${sweep.id}`, memo: "test: grant taken back" });
-  return sweep.id;
-}
 
 /** Polls until the wall clock's unix second is past the chunk's ledger time, so a period closed now ends after it. */
 async function pastSecondOf(key: string): Promise<void> {
@@ -53,9 +37,9 @@ const meterRow = async (key: string): Promise<OutboxRow> => (await db.select().f
 describe("overage delivered after its period was invoiced", () => {
   it("is billed once on the next invoice as its own line naming its period; every ms on exactly one line", async () => {
     const s = await makeSweepStudio("Fogbank Interactive", 0);
-    await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
+    await allowOverage(db, s.studioId);
     const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
-    const sweepId = await sweepOf(s.studioId);
+    const sweepId = await usageSweep(db, s.studioId);
     const { dispatcher, advance } = meterDispatcher(db, h.stripe);
     // The dispatcher's clock is the test's: moved on so rows written since are due.
     const dispatch = () => {
@@ -132,9 +116,9 @@ describe("overage delivered after its period was invoiced", () => {
 
   it("a delivery whose first attempt reached Stripe in time (its answer lost) is not billed again late", async () => {
     const s = await makeSweepStudio("Lowtide Foundry", 0);
-    await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
+    await allowOverage(db, s.studioId);
     const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
-    const sweepId = await sweepOf(s.studioId);
+    const sweepId = await usageSweep(db, s.studioId);
     expect(await db.transaction((tx) => recordChunkUsage(tx, { studioId: s.studioId, sweepId, chunkIndex: 0, computeMs: 300_000, memo: "chunk 0" }))).toMatchObject({ overageMs: 300_000 });
     const row = await meterRow(usageKey(sweepId, 0));
     // The attempt lands at Stripe, but the outbox never hears (the row stays pending).

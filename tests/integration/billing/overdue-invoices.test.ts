@@ -7,54 +7,33 @@
  * The grace period is judged at times derived from the invoice's own due date (set by the fake's
  * clock, which runs on the wall clock like the database): no fixed dates.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { and, eq, like } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { Db } from "@/db/client";
-import { invoices, outbox, stripeEvents, studioBilling, studioQuotas } from "@/db/schema";
+import { invoices, outbox, stripeEvents, studioBilling } from "@/db/schema";
 import { appBaseUrl } from "@/lib/auth/config";
 import { ensureOverageSubscription, METER_CUSTOMER_KEY, METER_EVENT_NAME, METER_VALUE_KEY } from "@/lib/billing/catalog";
 import { databaseNow, OVERDUE_GRACE_DAYS, overageHold, payLink } from "@/lib/billing/overdue";
 import { billingSummary } from "@/lib/billing/queries";
 import { recordChunkUsage } from "@/lib/billing/usage";
-import { appendLedgerEntry } from "@/lib/ledger/ledger";
 import { effectiveQuotas } from "@/lib/quotas/plan";
 import { studioStanding } from "@/lib/quotas/enforce";
-import { submitSweep } from "@/lib/queue/submit";
-import { closeTestDb, useFreshDb } from "../../helpers/db";
-import { grant, makeSweepStudio, puckSpec, type TestStudio } from "../sweeps/support";
-import { startBillingHarness, type BillingHarness } from "./support";
+import { makeSweepStudio, type TestStudio } from "../sweeps/support";
+import { allowOverage, usageSweep, billingTestFile, type BillingHarness } from "./support";
 
 let db: Db;
 let h: BillingHarness;
-
-beforeAll(async () => {
-  db = await useFreshDb();
-  h = await startBillingHarness();
-});
-afterAll(async () => {
-  await h.close();
-  await closeTestDb();
-});
+billingTestFile((file) => ({ db, h } = file));
 
 const DAY_MS = 86_400_000;
 
-async function allowOverage(studioId: string) {
-  await db.insert(studioQuotas).values({ studioId, overageAllowed: true }).onConflictDoUpdate({ target: studioQuotas.studioId, set: { overageAllowed: true } });
-}
 
-/** A sweep row to hang usage entries on (queued, never run here), with the balance back at zero. */
-async function sweepOf(studioId: string): Promise<string> {
-  await grant(studioId, 60 * 60_000, `sweep-grant:${studioId}:${Math.random()}`);
-  const sweep = await submitSweep(db, studioId, { spec: puckSpec() });
-  await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: -(60 * 60_000), idempotencyKey: `sweep-grant-back:${sweep.id}`, memo: "test: grant taken back" });
-  return sweep.id;
-}
 
 /** An open overage invoice of `valueMs` for a fresh studio (send_invoice: due OVERAGE_DAYS_UNTIL_DUE days after it is issued). */
 async function openInvoice(name: string, valueMs: number): Promise<{ s: TestStudio; customer: string; invoice: Stripe.Invoice }> {
   const s = await makeSweepStudio(name, 0);
-  await allowOverage(s.studioId);
+  await allowOverage(db, s.studioId);
   const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
   await h.stripe.billing.meterEvents.create({ event_name: METER_EVENT_NAME, identifier: `overdue-${s.studioId}`, timestamp: h.fake.now(), payload: { [METER_CUSTOMER_KEY]: account.stripeCustomerId, [METER_VALUE_KEY]: String(valueMs) } });
   h.fake.advanceClock(h.fake.now() + 5);
@@ -119,7 +98,7 @@ describe("a failed and then overdue overage invoice", () => {
     expect((overdueMails[0].payload as { text: string }).text).toContain(offDay);
 
     // Within the grace period overage still accrues; past it, none does and sweeps see it off.
-    const sweepId = await sweepOf(s.studioId);
+    const sweepId = await usageSweep(db, s.studioId);
     const inGrace = new Date(dueAt.getTime() + (OVERDUE_GRACE_DAYS - 1) * DAY_MS);
     const pastGrace = new Date(dueAt.getTime() + OVERDUE_GRACE_DAYS * DAY_MS);
     expect((await overageHold(db, s.studioId, inGrace)).suspended).toBe(false);

@@ -2,21 +2,25 @@
  * Billing tests: the local Stripe fake on a free port, the app's billing configured against it, and
  * the app's webhook route served over HTTP so the fake's signed deliveries reach the real handler.
  */
+import { randomUUID } from "node:crypto";
 import { createServer, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import { count, eq } from "drizzle-orm";
 import type Stripe from "stripe";
 import { getDb, type Db } from "@/db/client";
-import { ledgerEntries, outbox, stripeEvents } from "@/db/schema";
+import { ledgerEntries, outbox, stripeEvents, studioQuotas } from "@/db/schema";
 import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
 import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
 import { HANDLED_EVENT_TYPES } from "@/lib/billing/webhook";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { appendLedgerEntry, balanceMs } from "@/lib/ledger/ledger";
+import { submitSweep } from "@/lib/queue/submit";
 import { OutboxDispatcher } from "@/lib/outbox/outbox";
 import { deliverMeterEvent } from "@/lib/billing/meter";
 import { METER_EVENT_KIND } from "@/lib/billing/usage";
 import { POST as webhookPost } from "@/app/api/v1/stripe/webhook/route";
-import { TEST_BASE_URL } from "../../helpers/db";
+import { afterAll, beforeAll } from "vitest";
+import { closeTestDb, TEST_BASE_URL, useFreshDb } from "../../helpers/db";
+import { grant, puckSpec } from "../sweeps/support";
 
 export interface BillingHarness {
   fake: StripeFake;
@@ -95,4 +99,35 @@ export async function waitUntil(predicate: () => Promise<boolean>, what: string,
     if (Date.now() > deadline) throw new Error(`timed out waiting for ${what}`);
     await new Promise((r) => setTimeout(r, 25));
   }
+}
+
+/**
+ * The set-up of a billing test file: a fresh database and the harness for the whole file, closed
+ * after it. `ready` receives both once they are up (before the file's tests run).
+ */
+export function billingTestFile(ready: (file: { db: Db; h: BillingHarness }) => void): void {
+  let h: BillingHarness | undefined;
+  beforeAll(async () => {
+    const db = await useFreshDb();
+    h = await startBillingHarness();
+    ready({ db, h });
+  });
+  afterAll(async () => {
+    await h?.close();
+    await closeTestDb();
+  });
+}
+
+/** Overage permitted for the studio, as a platform admin's quota edit leaves it (the owner's switch left on). */
+export async function allowOverage(db: Db, studioId: string): Promise<void> {
+  await db.insert(studioQuotas).values({ studioId, overageAllowed: true }).onConflictDoUpdate({ target: studioQuotas.studioId, set: { overageAllowed: true } });
+}
+
+/** A sweep row to hang usage entries on (queued, never run here), with the studio's balance back where it was. */
+export async function usageSweep(db: Db, studioId: string): Promise<string> {
+  const key = randomUUID();
+  await grant(studioId, 60 * 60_000, `sweep-grant:${studioId}:${key}`);
+  const sweep = await submitSweep(db, studioId, { spec: puckSpec() });
+  await appendLedgerEntry(db, { studioId, kind: "adjustment", computeMs: -(60 * 60_000), idempotencyKey: `sweep-grant-back:${sweep.id}`, memo: "test: grant taken back" });
+  return sweep.id;
 }

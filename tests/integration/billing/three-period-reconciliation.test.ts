@@ -9,10 +9,10 @@
  * once the clock's second has moved past its last chunk, polled, no fixed sleep): simulated periods
  * seconds long, not calendar months — what is checked is that each period's usage is billed once.
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { invoices, ledgerEntries, outbox, studioQuotas } from "@/db/schema";
+import { invoices, ledgerEntries, outbox } from "@/db/schema";
 import { ensureOverageSubscription } from "@/lib/billing/catalog";
 import { reconcileFinance, runScheduledFinanceReconcile } from "@/lib/billing/finance-ops";
 import { deliverMeterEvent } from "@/lib/billing/meter";
@@ -21,22 +21,13 @@ import { METER_EVENT_KIND, recordChunkUsage } from "@/lib/billing/usage";
 import { balanceMs, usageKey } from "@/lib/ledger/ledger";
 import { submitSweep } from "@/lib/queue/submit";
 import { POST as checkoutPost } from "@/app/api/v1/studios/[studioId]/billing/checkout/route";
-import { closeTestDb, useFreshDb } from "../../helpers/db";
 import { call } from "../../helpers/http";
 import { makeSweepStudio, puckSpec, type TestStudio } from "../sweeps/support";
-import { meterDispatcher, payOnHostedPage, startBillingHarness, waitUntil, type BillingHarness } from "./support";
+import { allowOverage, meterDispatcher, payOnHostedPage, billingTestFile, waitUntil, type BillingHarness } from "./support";
 
 let db: Db;
 let h: BillingHarness;
-
-beforeAll(async () => {
-  db = await useFreshDb();
-  h = await startBillingHarness();
-});
-afterAll(async () => {
-  await h.close();
-  await closeTestDb();
-});
+billingTestFile((file) => ({ db, h } = file));
 
 async function buy(s: TestStudio, card: string): Promise<{ sessionId: string; charge: string }> {
   const res = await call(checkoutPost, { method: "POST", path: `/api/v1/studios/${s.studioId}/billing/checkout`, params: { studioId: s.studioId }, body: { packId: "pack_tapout" }, cookie: s.cookies.owner });
@@ -59,7 +50,7 @@ const ledgerSum = async (studioId: string, column: "computeMs" | "overageMs" | "
 describe("three billing periods, reconciled", () => {
   it("ledger = meter = invoice lines to the ms and the cent after a refund, a lost dispute, a late meter event and a failed invoice payment", async () => {
     const s = await makeSweepStudio("Marrowlight Games", 0);
-    await db.insert(studioQuotas).values({ studioId: s.studioId, overageAllowed: true });
+    await allowOverage(db, s.studioId);
     const account = await ensureOverageSubscription(db, h.stripe, s.studioId);
     const sweepId = (await submitSweep(db, s.studioId, { spec: puckSpec() })).id;
     const { dispatcher, advance } = meterDispatcher(db, h.stripe);

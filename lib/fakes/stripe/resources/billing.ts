@@ -1,11 +1,11 @@
-import { storedCardOutcome } from "../cards";
+import { cardOutcome, storedCardOutcome, type CardOutcome } from "../cards";
 import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { cardDeclined, invalidParam, invalidRequest } from "../errors";
 import { decimalToNumber, lineAmountCents, sumDecimal } from "../money";
 import { applyMetadata, type Params } from "../params";
 import { newId, type RecordedMeterEvent, type StripeObject } from "../store";
 import { createHash } from "node:crypto";
-import { ensurePaymentMethod } from "./catalog";
+import { ensurePaymentMethod, paymentMethodObject } from "./catalog";
 
 const DAY_S = 86_400;
 
@@ -783,6 +783,34 @@ export function payInvoice(ctx: Ctx, params: Params, id: string): HandlerResult 
   }
   chargeInvoice(ctx, invoice, pm, { throwOnDecline: true, param: pmParam ? "payment_method" : "customer" });
   return { body: invoice };
+}
+
+/**
+ * Paying an invoice on its hosted page (hosted_invoice_url): Stripe's page takes a card from whoever
+ * holds the link, charges the amount remaining, and the invoice moves to paid (invoice.paid) — or the
+ * card is declined and the invoice stays as it was (invoice.payment_failed). Open and uncollectible
+ * invoices can be paid; a draft, paid or void one cannot.
+ */
+export function payInvoiceFromHostedPage(ctx: Ctx, invoiceId: string, cardNumber: string): { kind: "paid" | "not_payable"; invoice: StripeObject } | { kind: "declined"; invoice: StripeObject; outcome: Extract<CardOutcome, { ok: false }> } {
+  const invoice = mustGet(ctx.store, "invoices", invoiceId);
+  if (invoice.status !== "open" && invoice.status !== "uncollectible") return { kind: "not_payable", invoice };
+  const outcome = cardOutcome(cardNumber);
+  // A mistyped number never reaches the bank: no attempt is counted.
+  if (!outcome.ok && outcome.code === "incorrect_number") return { kind: "declined", invoice, outcome };
+  const digits = cardNumber.replace(/\D/g, "");
+  const pm = ctx.store.insert("payment_methods", paymentMethodObject(ctx, newId("pm", 24), digits, null));
+  if (!outcome.ok && storedCardOutcome(digits.slice(-4)).ok) {
+    // Refused though its last four digits match no declining test card (a live card in test mode):
+    // charging it as a stored card would pass, so the attempt fails here.
+    invoice.attempt_count = (invoice.attempt_count as number) + 1;
+    invoice.attempted = true;
+    ctx.emit("invoice.payment_failed", invoice);
+    return { kind: "declined", invoice, outcome };
+  }
+  chargeInvoice(ctx, invoice, pm.id as string, { throwOnDecline: false });
+  // chargeInvoice moved the status (the narrowing above no longer holds).
+  if (String(invoice.status) === "paid") return { kind: "paid", invoice };
+  return { kind: "declined", invoice, outcome: outcome.ok ? { ok: false, code: "card_declined", message: "Your card was declined." } : outcome };
 }
 
 export function voidInvoice(ctx: Ctx, params: Params, id: string): HandlerResult {

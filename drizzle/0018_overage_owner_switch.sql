@@ -1,0 +1,1 @@
+ALTER TABLE "studio_quotas" ADD COLUMN "overage_on" boolean;
