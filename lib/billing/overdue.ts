@@ -19,7 +19,6 @@ import { owedInvoiceSql, overageOffAtSql } from "./grace";
 import { OVERDUE_GRACE_DAYS } from "./packs";
 
 export { OVERDUE_GRACE_DAYS };
-export { UNPAID_INVOICE_STATUSES } from "./grace";
 const DAY_MS = 86_400_000;
 
 export interface UnpaidInvoice {

@@ -7,7 +7,7 @@
  * a calendar month (the first one a part of one) and the month is the period's start.
  */
 import { z } from "@/lib/zod";
-import { csvCell } from "@/lib/api/csv";
+import { csvCell } from "@/lib/csv";
 import { dollarsText, minutesText } from "@/lib/ledger/statement";
 import type { platformFinance } from "./queries";
 
