@@ -55,6 +55,13 @@ module.exports = {
       to: { path: "^(app|components)/" },
     },
     {
+      name: "the-boot-is-the-top-floor",
+      severity: "error",
+      comment: "server/ (process boot, demo seed) starts everything; nothing below imports it.",
+      from: { path: "^(lib|db|workers|components|cli)/" },
+      to: { path: "^server/" },
+    },
+    {
       name: "fakes-only-from-the-boot",
       severity: "error",
       comment: "The local Stripe and SMTP fakes are started by the boot (demo/dev/test) and scripts/, never imported by product code.",
@@ -62,10 +69,10 @@ module.exports = {
       to: { path: "^lib/fakes/", dependencyTypesNot: ["type-only"] },
     },
     {
-      name: "schema-imports-no-domain-code",
+      name: "database-is-the-ground-floor",
       severity: "error",
-      comment: "db/schema.ts and db/client.ts are the ground floor.",
-      from: { path: "^db/(schema|client|ids)[.]ts$" },
+      comment: "db/ (schema, client, ids) imports nothing of the app: the boot and the demo seed live in server/.",
+      from: { path: "^db/" },
       to: { pathNot: "^(db/|node_modules/)", dependencyTypesNot: ["type-only", "core"] },
     },
   ],

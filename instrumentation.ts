@@ -1,4 +1,4 @@
-// Runs once per Next.js server process. The Node-only work lives in db/startup.ts behind this
+// Runs once per Next.js server process. The Node-only work lives in server/startup.ts behind this
 // runtime check (written inline so the Edge build drops the import entirely); it is idempotent,
 // so a second register() call does nothing new.
 export async function register(): Promise<void> {
@@ -6,7 +6,7 @@ export async function register(): Promise<void> {
     // Before the first request: the sign-in limits need the client's real address (see lib/ops/peer-address.ts).
     const { installPeerAddressStamp } = await import("./lib/ops/peer-address");
     installPeerAddressStamp();
-    const { startServerServices } = await import("./db/startup");
+    const { startServerServices } = await import("./server/startup");
     try {
       await startServerServices();
     } catch (error) {

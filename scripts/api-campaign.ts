@@ -23,7 +23,7 @@ import OpenAPISampler from "openapi-sampler";
 import { buildOpenApiDocument, errorBodySchema } from "@/lib/api/openapi/document";
 import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_SETTINGS } from "@/lib/catalogues/demo";
 import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
-import { DEMO_ACCOUNTS } from "@/db/seed";
+import { DEMO_ACCOUNTS } from "@/server/seed";
 import { puckPairSpec } from "../tests/unit/sweeps/fixtures";
 
 const args = new Map<string, string>();

@@ -1,6 +1,6 @@
 // `npm run db:seed`: creates the invented demo studio and its sign-ins (idempotent), then prints them.
 import { closeDb, getDb } from "../db/client";
-import { demoSignInText, seedDemo } from "../db/seed";
+import { demoSignInText, seedDemo } from "../server/seed";
 import { appBaseUrl } from "../lib/auth/config";
 
 async function main(): Promise<void> {

@@ -124,7 +124,7 @@ export async function createOverageSubscription(db: Db, stripe: Stripe, row: Out
   await ensureOverageSubscription(db, stripe, payload.studioId);
 }
 
-/** Registers the handlers with the process's outbox dispatcher (db/startup.ts calls this). */
+/** Registers the handlers with the process's outbox dispatcher (server/startup.ts calls this). */
 export function registerMeterEventHandler(db: Db): void {
   registerOutboxHandler(METER_EVENT_KIND, (row) => deliverMeterEvent(db, billingConfig().stripe, row));
   registerOutboxHandler(OVERAGE_SUBSCRIPTION_KIND, (row) => createOverageSubscription(db, billingConfig().stripe, row));

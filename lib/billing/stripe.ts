@@ -1,7 +1,7 @@
 /**
  * The Stripe client of this process. With STRIPE_SECRET_KEY (and STRIPE_WEBHOOK_SECRET) set it talks
  * to Stripe itself (use a test-mode key, sk_test_…); otherwise to the local Stripe fake that
- * db/startup.ts starts on STRIPE_FAKE_PORT (default 12111). STRIPE_API_URL sends a configured key to
+ * server/startup.ts starts on STRIPE_FAKE_PORT (default 12111). STRIPE_API_URL sends a configured key to
  * another address (the compose file's fake service). Tests install their own with configureBilling.
  */
 import Stripe from "stripe";

@@ -5,7 +5,7 @@
  * The local mail and Stripe fakes stand in for hosted services only on a demo instance
  * (KICKDRIFT_DEMO=1, `npm run demo`), in development (`next dev`) and in tests. A production start
  * (NODE_ENV=production without KICKDRIFT_DEMO=1) never falls back to them: without SMTP_URL or the
- * Stripe keys it refuses to start (productionStartProblem, checked by db/startup.ts).
+ * Stripe keys it refuses to start (productionStartProblem, checked by server/startup.ts).
  */
 type Env = Readonly<Record<string, string | undefined>>;
 

@@ -1,7 +1,7 @@
 import { type Page } from "@playwright/test";
 import { expect, signInWithPassword, test } from "./helpers";
 
-// The demo owner seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo owner seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 
 /** Form controls a screen reader would announce without a name: no <label>, no aria-label(ledby). */

@@ -1,6 +1,6 @@
 import { expect, sameOrigin, signInWithPassword, test, uniqueEmail } from "./helpers";
 
-// The demo platform admin seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo platform admin seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_ADMIN = { email: "ops@kickdrift.test", password: "kickdrift-operator" };
 
 /**

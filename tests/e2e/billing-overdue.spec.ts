@@ -3,7 +3,7 @@ import { type APIRequestContext, type Page } from "@playwright/test";
 import Papa from "papaparse";
 import { DEMO_ADMIN, expect, sameOrigin, signInWithPassword, test } from "./helpers";
 
-// The demo studio's owner and finance member, seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo studio's owner and finance member, seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };
 const STUDIO = "Gannet Yard Games";

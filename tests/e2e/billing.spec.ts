@@ -2,7 +2,7 @@ import { readFile } from "node:fs/promises";
 import { type Page } from "@playwright/test";
 import { expect, openMailboxAsAdmin, signInWithPassword, test } from "./helpers";
 
-// The demo sign-ins seeded by KICKDRIFT_DEMO=1 (db/seed.ts prints them at start).
+// The demo sign-ins seeded by KICKDRIFT_DEMO=1 (server/seed.ts prints them at start).
 const OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };
 

@@ -2,7 +2,7 @@ import { readFileSync } from "node:fs";
 import { CRATESLIDE_CATALOGUE_CSV } from "../../lib/catalogues/demo";
 import { expect, signInWithPassword, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
 
 /** Crateslide's catalogue with three mistakes: a mass that is a word, a restitution above 1, a name used twice. */

@@ -1,7 +1,7 @@
 import { expect, test, type Browser, type Locator, type Page } from "@playwright/test";
 import { signInWithPassword } from "./helpers";
 
-// The demo people seeded by KICKDRIFT_DEMO=1 (db/seed.ts); their studio's work is computed by the
+// The demo people seeded by KICKDRIFT_DEMO=1 (server/seed.ts); their studio's work is computed by the
 // server's own queue runner just after start-up (lib/demo/results.ts).
 const STUDIO = "Gannet Yard Games";
 const PEOPLE = {

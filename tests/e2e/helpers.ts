@@ -40,7 +40,7 @@ export const test = base.extend<{ cspViolations: string[] }>({
 });
 export { expect };
 
-/** The demo platform admin seeded by KICKDRIFT_DEMO=1 (db/seed.ts): the only reader of the demo mailbox. */
+/** The demo platform admin seeded by KICKDRIFT_DEMO=1 (server/seed.ts): the only reader of the demo mailbox. */
 export const DEMO_ADMIN = { email: "ops@kickdrift.test", password: "kickdrift-operator" };
 
 /** A fresh address per run, so a test never depends on what an earlier run left in a reused database. */

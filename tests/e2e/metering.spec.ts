@@ -2,7 +2,7 @@ import { expect, test } from "@playwright/test";
 import Papa from "papaparse";
 import { signInWithPassword } from "./helpers";
 
-// The demo studio's engineer and finance member, seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo studio's engineer and finance member, seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer" };
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };
 const STUDIO = "Gannet Yard Games";

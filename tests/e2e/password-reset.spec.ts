@@ -1,6 +1,6 @@
 import { expect, linkFromMailbox, signInWithPassword, test } from "./helpers";
 
-// The demo finance member seeded by KICKDRIFT_DEMO=1 (db/seed.ts); no other test signs in as her.
+// The demo finance member seeded by KICKDRIFT_DEMO=1 (server/seed.ts); no other test signs in as her.
 const FINANCE = { email: "ines@gannetyard.test", password: "crateslide-finance" };
 
 test("a forgotten password is replaced through the mailed link, which works only once", async ({ page }) => {

@@ -2,7 +2,7 @@ import { readFile } from "node:fs/promises";
 import { type Locator, type Page } from "@playwright/test";
 import { expect, signInWithPassword, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
 
 // The "Friction that holds a crate on a ramp" template (lib/sweeps/templates.ts): a 20 kg crate on a

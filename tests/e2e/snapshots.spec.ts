@@ -1,7 +1,7 @@
 import { CRATESLIDE_SNAPSHOT_JSON } from "../../lib/snapshots/demo";
 import { expect, signInWithPassword, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
 
 /** Two mistakes: a negative mass and a crate pushed into its neighbour. */

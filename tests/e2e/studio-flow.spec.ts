@@ -1,6 +1,6 @@
 import { expect, linkFromMailbox, signInWithPassword, test, uniqueEmail } from "./helpers";
 
-// The demo owner seeded by KICKDRIFT_DEMO=1 (db/seed.ts prints these sign-ins at start).
+// The demo owner seeded by KICKDRIFT_DEMO=1 (server/seed.ts prints these sign-ins at start).
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };
 
 test("a new owner builds a studio and an invited engineer joins it through the mailed links", async ({ browser }) => {
@@ -184,7 +184,7 @@ test("an owner creates an API token whose secret is shown once, then revokes it"
 test("only platform admins open the admin lists", async ({ browser }) => {
   const adminContext = await browser.newContext();
   const admin = await adminContext.newPage();
-  // The seeded platform operator (db/seed.ts).
+  // The seeded platform operator (server/seed.ts).
   await signInWithPassword(admin, "ops@kickdrift.test", "kickdrift-operator");
   await admin.getByRole("link", { name: "Admin", exact: true }).click();
   await expect(admin.getByTestId("admin-studios")).toContainText(DEMO_OWNER.studio);

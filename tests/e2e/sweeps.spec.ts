@@ -2,7 +2,7 @@ import { readFile } from "node:fs/promises";
 import { type Locator, type Page } from "@playwright/test";
 import { expect, sameOrigin, signInWithPassword, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (db/seed.ts).
+// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
 const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
 

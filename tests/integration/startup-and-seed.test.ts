@@ -2,7 +2,7 @@
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import type { Db } from "@/db/client";
 import * as schema from "@/db/schema";
-import { DEMO_ACCOUNTS, DEMO_STUDIO_NAME, demoSignInText, seedDemo } from "@/db/seed";
+import { DEMO_ACCOUNTS, DEMO_STUDIO_NAME, demoSignInText, seedDemo } from "@/server/seed";
 import { runningMailFake } from "@/lib/fakes/smtp-fake";
 import * as mailRoute from "@/app/api/v1/dev/mail/route";
 import * as meRoute from "@/app/api/v1/me/route";

@@ -8,7 +8,7 @@ import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, sweeps } from "@/db/schema";
 import { CRATESLIDE_CATALOGUE_CSV } from "@/lib/catalogues/demo";
 import { contentHash, listCatalogues } from "@/lib/catalogues/store";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/server/seed";
 import * as cataloguesRoute from "@/app/api/v1/studios/[studioId]/catalogues/route";
 import * as catalogueRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/route";
 import * as fileRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/file/route";

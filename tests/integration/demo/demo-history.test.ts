@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { invoices, ledgerEntries, outbox, users } from "@/db/schema";
-import { DEMO_ACCOUNTS, seedDemo } from "@/db/seed";
+import { DEMO_ACCOUNTS, seedDemo } from "@/server/seed";
 import { reconcileFinance } from "@/lib/billing/finance-ops";
 import { registerMeterEventHandler } from "@/lib/billing/meter";
 import { OVERAGE_UNIT_AMOUNT_DECIMAL } from "@/lib/billing/packs";

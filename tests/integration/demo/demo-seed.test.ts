@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { ledgerEntries, sweeps, type Sweep } from "@/db/schema";
-import { DEMO_STUDIO_NAME, seedDemo } from "@/db/seed";
+import { DEMO_STUDIO_NAME, seedDemo } from "@/server/seed";
 import { DEMO_GRANT_MS, balanceMs } from "@/lib/ledger/ledger";
 import { storedCells } from "@/lib/queue/views";
 import { studioOverview } from "@/lib/studios/overview";

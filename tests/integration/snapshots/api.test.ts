@@ -16,7 +16,7 @@ import { parseSweepSpec } from "@/lib/sweeps/spec";
 import { contentHash } from "@/lib/catalogues/store";
 import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapshots/demo";
 import { listSnapshots } from "@/lib/snapshots/store";
-import { seedDemo } from "@/db/seed";
+import { seedDemo } from "@/server/seed";
 import * as snapshotsRoute from "@/app/api/v1/studios/[studioId]/snapshots/route";
 import * as snapshotRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snapshotId]/route";
 import * as fileRoute from "@/app/api/v1/studios/[studioId]/snapshots/[snapshotId]/file/route";

@@ -24,7 +24,7 @@ async function run(): Promise<void> {
     const problem = productionStartProblem();
     if (problem) throw new RefusedStart(problem);
   }
-  const { getDb } = await import("./client");
+  const { getDb } = await import("../db/client");
   const { getAuthSecret, appBaseUrl } = await import("../lib/auth/config");
   const db = await getDb();
   {

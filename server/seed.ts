@@ -1,7 +1,7 @@
 import { and, eq } from "drizzle-orm";
-import type { Db } from "./client";
-import { newId } from "./ids";
-import { catalogues, memberships, snapshots, studios, users, type StudioRole } from "./schema";
+import type { Db } from "../db/client";
+import { newId } from "../db/ids";
+import { catalogues, memberships, snapshots, studios, users, type StudioRole } from "../db/schema";
 import { CRATESLIDE_CATALOGUE_CSV, CRATESLIDE_CATALOGUE_NAME } from "@/lib/catalogues/demo";
 import { saveCatalogue } from "@/lib/catalogues/store";
 import { CRATESLIDE_SNAPSHOT_JSON, CRATESLIDE_SNAPSHOT_NAME } from "@/lib/snapshots/demo";
