@@ -14,7 +14,7 @@ import { formatLimit, SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, snapshotScene, type SnapshotProblem } from "./format";
-import { suggestSnapshotSweep, type SnapshotSweepSuggestion } from "./suggest";
+import { describeSnapshotSuggestion, suggestSnapshotSweep, type SnapshotSweepSuggestion } from "./suggest";
 
 /** Every problem of a file as one 422, each issue naming its JSON path. */
 export function snapshotProblemsError(problems: readonly SnapshotProblem[]): ApiError {
@@ -151,6 +151,12 @@ export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scen
       { parameter: "dtS", values: suggestion.frameSteps },
     ],
   };
+}
+
+/** The suggested starting sweep over a snapshot with the suggestion behind it and its reasoning in words. */
+export function snapshotSweepStart(row: Pick<Snapshot, "name" | "version" | "scene">): { sweepSpec: SweepSpecInput; sweepSuggestion: SnapshotSweepSuggestion & { reasoning: string[] } } {
+  const suggestion = suggestSnapshotSweep(row.scene as SnapshotScene);
+  return { sweepSpec: snapshotSweepSpec(row, suggestion), sweepSuggestion: { ...suggestion, reasoning: describeSnapshotSuggestion(suggestion) } };
 }
 
 /**

@@ -10,7 +10,7 @@
  *    distance to it is covered within T by its speed towards the wall and the gravity along the
  *    wall's normal. Discs already (nearly) touching — a block of crates, a stack — are pushed into
  *    each other by whatever strikes them, so they count too. Under gravity a disc above another
- *    (their centres closer sideways than r_i + r_j) lands on it.
+ *    (their centres closer sideways than r_i + r_j) lands on it, not on the floor beneath both.
  * 2. The stiffness that keeps impacts shallow. An undamped linear contact hit at closing speed v
  *    reaches δ_max = v·√(m* / k) (Luding 2008, "Introduction to discrete element methods", Eur. J.
  *    Environ. Civ. Eng. 12, δ_max = v/ω0; lib/physics/analytic.ts linearMaxOverlapM), m* the
@@ -37,6 +37,7 @@ import { reducedMassKg } from "../physics/analytic";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
 import type { SnapshotScene } from "../physics/types";
 import { numericRule } from "../sweeps/parameters";
+import { formatFrameStep, formatNumber, formatSI } from "../ui/units";
 
 /** Simulated time of each suggested cell (s): the span of a collision burst a player watches. */
 export const SUGGESTED_DURATION_S = 1;
@@ -102,12 +103,12 @@ export interface SnapshotSweepSuggestion {
   lightest: SuggestionContact | null;
   /** The estimate: the larger of the impact and resting stiffness, to two figures (N/m). */
   stiffnessNPerM: number;
-  /** 2·√(m* / k) at the estimate (s). */
-  maxStableStepS: number;
+  /** 2·√(m* / k) at the estimate (s); null when no pairing meets. */
+  maxStableStepS: number | null;
   /** The game's frame step assumed (s). */
   gameFrameStepS: number;
-  /** The stiffest spring the game's step holds for the lightest pairing: m*·(2/h)² (N/m). */
-  stiffnessCapAtGameStepNPerM: number;
+  /** The stiffest spring the game's step holds for the lightest pairing: m*·(2/h)² (N/m); null when no pairing meets. */
+  stiffnessCapAtGameStepNPerM: number | null;
   /** The sweep's axes. */
   stiffnessAxis: { from: number; to: number; count: number };
   frameSteps: number[];
@@ -133,6 +134,9 @@ function scanContacts(scene: SnapshotScene, durationS: number, target: number) {
   let lightest: SuggestionContact | null = null;
   let contactCount = 0;
   const loadN = new Float64Array(n);
+  // Under gravity each disc lands on the nearest disc beneath it in its column (−1: none), not on the floor below.
+  const below = new Int32Array(n).fill(-1);
+  const belowGapM = new Float64Array(n).fill(Infinity);
   for (let i = 0; i < n; i++) loadN[i] = bodies[i].massKg * g;
 
   const consider = (contact: SuggestionContact) => {
@@ -161,29 +165,39 @@ function scanContacts(scene: SnapshotScene, durationS: number, target: number) {
       if (dx > reachX) break;
       const dy = b.yM - a.yM;
       const reach = a.radiusM + b.radiusM;
-      const smaller = Math.min(a.radiusM, b.radiusM);
       const ux = (b.vxMPerS - a.vxMPerS) * scale;
       const uy = (b.vyMPerS - a.vyMPerS) * scale;
       const distance = Math.hypot(dx, dy);
       const gap = distance - reach;
-      // One above the other under gravity: the upper lands on the lower if it falls that far in the run.
-      const column = g > 0 && Math.abs(dx) < reach;
-      const stacked = column && gap <= 0.5 * g * durationS * durationS + Math.hypot(ux, uy) * durationS;
-      if (column) {
-        // The upper disc rests on the lower one in the end: its load passes down the column.
-        if (dy > 0) loadN[i] += b.massKg * g;
-        else loadN[j] += a.massKg * g;
+      // One above the other under gravity: the upper rests on the lower in the end, its load passing down the column.
+      if (g > 0 && Math.abs(dx) < reach) {
+        const [upper, lower] = dy > 0 ? [j, i] : [i, j];
+        loadN[lower] += bodies[upper].massKg * g;
+        if (gap < belowGapM[upper]) {
+          belowGapM[upper] = gap;
+          below[upper] = lower;
+        }
       }
-      const touching = gap <= TOUCHING_GAP_FRACTION * smaller;
+      const touching = gap <= TOUCHING_GAP_FRACTION * Math.min(a.radiusM, b.radiusM);
       // Closest approach on the straight relative path within [0, T].
       const uu = ux * ux + uy * uy;
       const tClosest = uu > 0 ? Math.min(durationS, Math.max(0, -(dx * ux + dy * uy) / uu)) : 0;
       const meets = Math.hypot(dx + ux * tClosest, dy + uy * tClosest) <= reach;
-      if (!touching && !meets && !stacked) continue;
-      // Under gravity a disc may land on another resting one: it gains √(2·g·gap) falling.
-      const fallMPerS = stacked ? Math.sqrt(2 * g * Math.max(0, gap)) : 0;
-      consider({ body: i < j ? i : j, other: i < j ? j : i, wall: null, effectiveMassKg: reducedMassKg(a.massKg, b.massKg), closingSpeedMPerS: Math.sqrt(uu) + fallMPerS, radiusM: smaller });
+      if (!touching && !meets) continue;
+      consider({ body: Math.min(i, j), other: Math.max(i, j), wall: null, effectiveMassKg: reducedMassKg(a.massKg, b.massKg), closingSpeedMPerS: Math.sqrt(uu), radiusM: Math.min(a.radiusM, b.radiusM) });
     }
+  }
+  // Landings under gravity: a disc falls onto the nearest disc beneath it if the run is long
+  // enough, gaining √(2·g·gap) over their relative speed (the lower may already rest).
+  for (let upper = 0; upper < n; upper++) {
+    const lower = below[upper];
+    if (lower < 0) continue;
+    const a = bodies[upper];
+    const b = bodies[lower];
+    const relativeMPerS = Math.hypot(a.vxMPerS - b.vxMPerS, a.vyMPerS - b.vyMPerS) * scale;
+    const gap = Math.max(0, belowGapM[upper]);
+    if (gap > 0.5 * g * durationS * durationS + relativeMPerS * durationS) continue;
+    consider({ body: Math.min(upper, lower), other: Math.max(upper, lower), wall: null, effectiveMassKg: reducedMassKg(a.massKg, b.massKg), closingSpeedMPerS: relativeMPerS + Math.sqrt(2 * g * gap), radiusM: Math.min(a.radiusM, b.radiusM) });
   }
 
   scene.walls.forEach((wall, w) => {
@@ -202,6 +216,8 @@ function scanContacts(scene: SnapshotScene, durationS: number, target: number) {
       const covered = towards * turnS + 0.5 * pull * turnS * turnS;
       const touching = gap <= TOUCHING_GAP_FRACTION * body.radiusM;
       if (!touching && covered < gap) continue;
+      // Falling onto a floor with a disc in between: it lands on that disc (counted with the pair).
+      if (!touching && ny > 0 && below[i] >= 0) continue;
       // The speed at the wall from energy: v² = towards² + 2·pull·gap.
       const closingSpeedMPerS = Math.sqrt(Math.max(0, towards * towards + 2 * pull * Math.max(0, gap)));
       consider({ body: i, other: null, wall: w, effectiveMassKg: body.massKg, closingSpeedMPerS, radiusM: body.radiusM });
@@ -259,9 +275,9 @@ export function suggestSnapshotSweep(scene: SnapshotScene, options: { toleranceO
       resting: null,
       lightest,
       stiffnessNPerM: 1e5,
-      maxStableStepS: lightest ? 2 * Math.sqrt(lightest.effectiveMassKg / 1e5) : Infinity,
+      maxStableStepS: lightest ? 2 * Math.sqrt(lightest.effectiveMassKg / 1e5) : null,
       gameFrameStepS,
-      stiffnessCapAtGameStepNPerM: lightest ? lightest.effectiveMassKg * (2 / gameFrameStepS) ** 2 : Infinity,
+      stiffnessCapAtGameStepNPerM: lightest ? lightest.effectiveMassKg * (2 / gameFrameStepS) ** 2 : null,
       stiffnessAxis: { from: 1e4, to: 1e6, count: STIFFNESS_COUNT },
       frameSteps: frameStepValues(gameFrameStepS, gameFrameStepS, 0, durationS),
       durationS,
@@ -287,4 +303,51 @@ export function suggestSnapshotSweep(scene: SnapshotScene, options: { toleranceO
     frameSteps: frameStepValues(gameFrameStepS, maxStableStepS, 2 * Math.sqrt(mLight / stiffest), durationS),
     durationS,
   };
+}
+
+/** A contact as users count: "disc 35 and disc 24", "disc 3 and wall 1". */
+function contactText(contact: SuggestionContact): string {
+  return contact.other !== null ? `disc ${contact.body + 1} and disc ${contact.other + 1}` : `disc ${contact.body + 1} and wall ${(contact.wall ?? 0) + 1}`;
+}
+
+const percent = (fraction: number) => `${formatNumber(fraction * 100)} %`;
+
+/** The reasoning behind a suggestion, as sentences for the builder (numbers as the screens write them). */
+export function describeSnapshotSuggestion(suggestion: SnapshotSweepSuggestion): string[] {
+  const run = `${formatNumber(suggestion.durationS)} s`;
+  const steps = suggestion.frameSteps;
+  const grid = `The sweep: contact stiffness ${formatSI(suggestion.stiffnessAxis.from, "N/m")} – ${formatSI(suggestion.stiffnessAxis.to, "N/m")} (${suggestion.stiffnessAxis.count} values, log) × frame step ${formatFrameStep(steps[0])} – ${formatFrameStep(steps[steps.length - 1])} (${steps.length} values: the game's step and its halvings${steps[steps.length - 1] > suggestion.gameFrameStepS ? " and doublings" : ""}), ${run} each.`;
+  if (suggestion.basis === "nothing-meets") {
+    return [
+      `No two discs, and no disc and wall, meet in the first ${run} at the exported speeds, so nothing in the scene places the map: the sweep keeps a general grid for game crates. Raise the speed scale, or upload a moment closer to the collisions.`,
+      grid,
+    ];
+  }
+  const target = percent(suggestion.targetOverlapFraction);
+  const lines: string[] = [`In the first ${run} at the exported speeds, ${formatNumber(suggestion.contactCount)} contacts happen (discs closing on each other or already touching, discs reaching a wall).`];
+  const impact = suggestion.impact;
+  if (impact) {
+    lines.push(
+      `Hardest impact: ${contactText(impact)}, closing at up to ${formatSI(impact.closingSpeedMPerS, "m/s")} with effective mass ${formatSI(impact.effectiveMassKg, "kg")}. An undamped contact sinks v·√(m*/k); keeping that within ${target} of the smaller radius (${formatSI(impact.radiusM, "m")}), half the ${percent(suggestion.toleranceOverlapFraction)} deep-overlap tolerance, needs k ≥ ${formatSI(impact.stiffnessNPerM, "N/m")}.`,
+    );
+  }
+  const resting = suggestion.resting;
+  if (resting) {
+    lines.push(`Resting under gravity: disc ${resting.body + 1} carries ${formatSI(resting.loadN, "N")} (itself and the discs above it); sinking load/k within ${target} of its radius needs k ≥ ${formatSI(resting.stiffnessNPerM, "N/m")}.`);
+  }
+  lines.push(`Estimate: k ≈ ${formatSI(suggestion.stiffnessNPerM, "N/m")}. It errs stiff (no damping, head-on), so the map reaches further to the soft side.`);
+  const lightest = suggestion.lightest;
+  if (lightest && suggestion.maxStableStepS !== null && suggestion.stiffnessCapAtGameStepNPerM !== null) {
+    lines.push(
+      `The lightest pairing that meets (${contactText(lightest)}, m* = ${formatSI(lightest.effectiveMassKg, "kg")}) sets the step: symplectic Euler and velocity Verlet stay stable while ω·h < 2, ω = √(k/m*), so at the estimate the step must stay below ${formatSI(suggestion.maxStableStepS, "s")}.`,
+    );
+    const cap = suggestion.stiffnessCapAtGameStepNPerM;
+    lines.push(
+      cap >= suggestion.stiffnessNPerM
+        ? `At the game's frame step (${formatFrameStep(suggestion.gameFrameStepS)} assumed) that pairing holds springs up to ${formatSI(cap, "N/m")}, above the estimate: one step per frame should do.`
+        : `At the game's frame step (${formatFrameStep(suggestion.gameFrameStepS)} assumed) that pairing holds springs only up to ${formatSI(cap, "N/m")}, below the estimate: expect to need substeps (or a softer spring and deeper overlaps).`,
+    );
+  }
+  lines.push(grid);
+  return lines;
 }
