@@ -13,13 +13,17 @@ import type { SnapshotScene } from "@/lib/physics/types";
 import { formatLimit, SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
+import { problemPlace } from "./drawing";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, snapshotScene, type SnapshotProblem } from "./format";
 import { describeSnapshotSuggestion, suggestSnapshotSweep, type SnapshotSweepSuggestion } from "./suggest";
 
-/** Every problem of a file as one 422, each issue naming its JSON path. */
+/**
+ * Every problem of a file as one 422: each issue's `field` is its JSON path (for API clients), the
+ * message names the place as users count it (disc numbers from 1, the field in words).
+ */
 export function snapshotProblemsError(problems: readonly SnapshotProblem[]): ApiError {
   const issues: FieldIssue[] = problems.map((problem) => ({ field: problem.path === "(file)" ? "file" : `file.${problem.path}`, message: problem.reason }));
-  const describe = (problem: SnapshotProblem) => `${problem.path}: ${problem.reason}`;
+  const describe = (problem: SnapshotProblem) => `${problemPlace(problem.path)}: ${problem.reason}`;
   const summary = problems.length === 1 ? describe(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describe).join("; ")}${problems.length > 3 ? "; …" : ""}`;
   return new ApiError(422, "invalid_snapshot", `The snapshot was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
 }

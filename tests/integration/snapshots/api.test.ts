@@ -58,6 +58,9 @@ describe("snapshot uploads", () => {
     expect(error.code).toBe("invalid_snapshot");
     expect(error.issues?.map((issue) => issue.field)).toEqual(["file.bodies.0.massKg", "file.bodies.1.radiusM", "file.bodies.2.spin", "file.walls.0.normalX"]);
     expect(error.issues?.[0].message).toBe("mass must be > 0 and ≤ 1,000,000 (kg); got -2");
+    // The message a person reads names each place as the upload page does: discs and walls counted from 1, fields in words.
+    expect(error.message).toMatch(/^The snapshot was not saved\. 4 problems: Disc 1, mass \(massKg\): mass must be > 0 and ≤ 1,000,000 \(kg\); got -2; Disc 2, radius \(radiusM\): radius must be a finite number \(m\); got a string; Disc 3, spin: unknown field "spin"; …$/);
+    expect(error.message).not.toMatch(/bodies\.\d/);
     // Overlaps are named by body index, also beside problems of other fields (body 1 has a word for a speed).
     const both = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3, { vxMPerS: "fast" }), disc(0.1)] }), "stack.json"));
     expect(errorOf(both.body).issues).toEqual([
