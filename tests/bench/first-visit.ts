@@ -112,9 +112,10 @@ async function signedInState(browser: Browser, url: string, who: { email: string
   const context = await browser.newContext();
   const page = await context.newPage();
   await page.goto(`${url}/signin`);
-  await page.getByLabel(/e-?mail/i).fill(who.email);
-  await page.getByLabel(/password/i).fill(who.password);
-  await page.locator("form button[type=submit]").first().click();
+  // The sign-in page also has an e-mailed-link form: name the password form's fields exactly (as the browser tests do).
+  await page.getByLabel("E-mail", { exact: true }).fill(who.email);
+  await page.getByLabel("Password", { exact: true }).fill(who.password);
+  await page.getByRole("button", { name: "Sign in", exact: true }).click();
   await page.waitForURL(/\/(studios|admin)/, { timeout: 60_000 });
   const state = await context.storageState();
   await context.close();
