@@ -16,7 +16,7 @@ import { StudioShell } from "@/components/studio/studio-shell";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
 import { apiFetch, errorMessage, uploadFile } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
-import { problemPlace } from "@/lib/snapshots/drawing";
+import { issuePlace, problemPlace } from "@/lib/snapshots/drawing";
 import { ScenePreview } from "./scene-preview";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
@@ -182,7 +182,7 @@ function UploadCard({ studioId }: { studioId: string }) {
                 <ScenePreview bodies={loaded.parsed.snapshot.bodies} walls={loaded.parsed.snapshot.walls} />
               </>
             ) : null}
-            <UploadError error={serverError} showFields />
+            <UploadError error={serverError} fieldLabel={issuePlace} />
             <UploadActions saveLabel="Save snapshot" saveTestId="snapshot-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
           </div>
         ) : null}

@@ -212,6 +212,7 @@ export function SweepBuilder({
   snapshotId,
   templateId: startTemplateId,
   namePlaceholder,
+  suggestionReasoning,
 }: {
   /** A template to start from (the studio home's "run a template" links here with ?template=). */
   templateId?: string;
@@ -224,6 +225,8 @@ export function SweepBuilder({
   snapshotId?: string;
   /** A suggested name shown as the placeholder of an empty name (duplicate-and-edit: "Copy of …"). */
   namePlaceholder?: string;
+  /** Why a snapshot's suggested sweep has its axes (lib/snapshots/suggest.ts), one sentence a line. */
+  suggestionReasoning?: string[];
 }) {
   const router = useRouter();
   const snapshotRef = useMemo(() => {
@@ -399,6 +402,17 @@ export function SweepBuilder({
                 <p className="text-sm text-ink-muted md:col-span-2" data-testid="snapshot-scene-summary">
                   {scenario.scene.bodies?.length ?? 0} discs and {scenario.scene.walls?.length ?? 0} walls as exported; upload another snapshot on the Snapshots tab to change them.
                 </p>
+              ) : null}
+              {scenario.scene.kind === "snapshot" && suggestionReasoning && suggestionReasoning.length > 0 ? (
+                <details open className="rounded border border-line p-3 text-sm md:col-span-2" data-testid="snapshot-suggestion">
+                  <summary className="cursor-pointer font-medium">Why this sweep: placed from the scene&apos;s own masses, sizes and speeds</summary>
+                  <ol className="mt-2 list-decimal space-y-1 pl-5 text-ink-muted">
+                    {suggestionReasoning.map((line) => (
+                      <li key={line}>{line}</li>
+                    ))}
+                  </ol>
+                  <p className="mt-2 text-xs text-ink-muted">An estimate to start from, not a result: the map shows where the verdicts really change. Every field below can be changed.</p>
+                </details>
               ) : null}
               {sceneParameters.map((parameter: NumericParameter) =>
                 numberField(parameter.path.replace(/^scene\./, "scenario.scene."), parameter.label, parameter.unit, { step: parameter.integer ? "1" : "any", optional: OPTIONAL_SCENE_PATHS.has(parameter.path) }),

@@ -133,15 +133,23 @@ export function FileProblems<P>({
 }
 
 /** The server's refusal of an upload: its message, and its issues when there are several (with their fields if `showFields`). */
-export function UploadError({ error, showFields = false }: { error: ApiClientError | Error | null; showFields?: boolean }) {
+/**
+ * What a save threw. `fieldLabel` names each issue's place in words (the issue's `field` is the
+ * API's machine path); `showFields` without it shows that path as code.
+ */
+export function UploadError({ error, showFields = false, fieldLabel }: { error: ApiClientError | Error | null; showFields?: boolean; fieldLabel?: (field: string) => string }) {
   if (!error) return null;
   return (
     <Alert>
       {error.message}
       {error instanceof ApiClientError && error.issues.length > 1 ? (
-        <ul className="mt-1 list-disc pl-5">
+        <ul className="mt-1 list-disc pl-5" data-testid="upload-error-issues">
           {error.issues.map((issue, i) =>
-            showFields ? (
+            fieldLabel ? (
+              <li key={i}>
+                <span className="font-medium">{fieldLabel(issue.field)}</span>: {issue.message}
+              </li>
+            ) : showFields ? (
               <li key={i}>
                 <code className="font-mono text-xs">{issue.field}</code>: {issue.message}
               </li>

@@ -177,3 +177,14 @@ export function problemPlace(path: string): string {
   const words = field(path);
   return words.charAt(0).toUpperCase() + words.slice(1);
 }
+
+/**
+ * Where an issue of the server's answer is, in words: its `field` is the machine path for API
+ * clients ("file.bodies.0.massKg"); the screen names the place as the problem list does
+ * ("Disc 1, mass (massKg)"). "file" alone is the whole file; "name" the snapshot's name.
+ */
+export function issuePlace(field: string): string {
+  if (field === "file") return "File";
+  if (field === "name") return "Snapshot name";
+  return problemPlace(field.startsWith("file.") ? field.slice("file.".length) : field);
+}

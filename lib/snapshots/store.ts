@@ -13,12 +13,17 @@ import type { SnapshotScene } from "@/lib/physics/types";
 import { formatLimit, SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
 import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
+import { problemPlace } from "./drawing";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, snapshotScene, type SnapshotProblem } from "./format";
+import { describeSnapshotSuggestion, suggestSnapshotSweep, type SnapshotSweepSuggestion } from "./suggest";
 
-/** Every problem of a file as one 422, each issue naming its JSON path. */
+/**
+ * Every problem of a file as one 422: each issue's `field` is its JSON path (for API clients), the
+ * message names the place as users count it (disc numbers from 1, the field in words).
+ */
 export function snapshotProblemsError(problems: readonly SnapshotProblem[]): ApiError {
   const issues: FieldIssue[] = problems.map((problem) => ({ field: problem.path === "(file)" ? "file" : `file.${problem.path}`, message: problem.reason }));
-  const describe = (problem: SnapshotProblem) => `${problem.path}: ${problem.reason}`;
+  const describe = (problem: SnapshotProblem) => `${problemPlace(problem.path)}: ${problem.reason}`;
   const summary = problems.length === 1 ? describe(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describe).join("; ")}${problems.length > 3 ? "; …" : ""}`;
   return new ApiError(422, "invalid_snapshot", `The snapshot was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
 }
@@ -128,27 +133,34 @@ export function snapshotFileBytes(row: Snapshot): Uint8Array {
 
 /**
  * A starting sweep over a stored snapshot, its scene inline: linear contacts with a target
- * restitution, velocity Verlet, and a stiffness × dt map (common starting values for game crates;
- * the builder lets the user change all of it).
+ * restitution, velocity Verlet, and a stiffness × frame-step map placed from the scene's own
+ * masses, sizes and speeds (lib/snapshots/suggest.ts; the builder shows why and lets the user
+ * change all of it).
  */
-export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scene">): SweepSpecInput {
+export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scene">, suggestion: SnapshotSweepSuggestion = suggestSnapshotSweep(row.scene as SnapshotScene)): SweepSpecInput {
   return {
     version: 1,
     name: `Snapshot: ${row.name} v${row.version}`.slice(0, SPEC_LIMITS.maxNameLength),
     scenario: {
       scene: row.scene as SnapshotScene,
-      contact: { model: "linear", stiffness: 1e5, damping: { kind: "restitution", value: 0.5 } },
+      contact: { model: "linear", stiffness: suggestion.stiffnessNPerM, damping: { kind: "restitution", value: 0.5 } },
       integrator: "velocity-verlet",
-      dtS: 1 / 240,
+      dtS: suggestion.gameFrameStepS,
       substeps: 1,
-      durationS: 1,
+      durationS: suggestion.durationS,
       seed: 1,
     },
     axes: [
-      { parameter: "contact.stiffness", spacing: "log", from: 1e4, to: 1e6, count: 5 },
-      { parameter: "dtS", spacing: "log", from: 1 / 960, to: 1 / 60, count: 5 },
+      { parameter: "contact.stiffness", spacing: "log", ...suggestion.stiffnessAxis },
+      { parameter: "dtS", values: suggestion.frameSteps },
     ],
   };
+}
+
+/** The suggested starting sweep over a snapshot with the suggestion behind it and its reasoning in words. */
+export function snapshotSweepStart(row: Pick<Snapshot, "name" | "version" | "scene">): { sweepSpec: SweepSpecInput; sweepSuggestion: SnapshotSweepSuggestion & { reasoning: string[] } } {
+  const suggestion = suggestSnapshotSweep(row.scene as SnapshotScene);
+  return { sweepSpec: snapshotSweepSpec(row, suggestion), sweepSuggestion: { ...suggestion, reasoning: describeSnapshotSuggestion(suggestion) } };
 }
 
 /**

@@ -13,7 +13,7 @@ const WITH_MISTAKES = JSON.stringify({
   ],
 });
 
-test("an engineer uploads a snapshot, sees its problems by disc number and field, checks the drawing of the scene, saves the loading bay and runs a sweep over it", async ({ page }) => {
+test("an engineer uploads a snapshot, sees its problems by disc number and field, checks the drawing of the scene, saves the loading bay and runs the sweep suggested from it, whose map has stable and unstable cells", async ({ page }) => {
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
@@ -58,6 +58,14 @@ test("an engineer uploads a snapshot, sees its problems by disc number and field
   await page.getByText(/Saved Loading bay/).getByRole("link", { name: "New sweep from this snapshot" }).click();
   await expect(page).toHaveURL(/\/sweeps\/new\?snapshot=/);
   await expect(page.getByTestId("snapshot-scene-summary")).toContainText("41 discs and 4 walls");
+  // The first sweep is placed from the scene itself, and says why: the forklift-shoved crate (disc 35, 4 m/s) into the block sets the stiffness.
+  const why = page.getByTestId("snapshot-suggestion");
+  await expect(why).toContainText("Why this sweep");
+  await expect(why).toContainText(/Hardest impact: disc \d+ and disc 35, closing at up to 4\.01 m\/s/);
+  await expect(why).toContainText("ω·h < 2");
+  await expect(why).toContainText(/The sweep: contact stiffness [\d.]+ kN\/m – [\d.]+ MN\/m \(5 values, log\) × frame step 1\/960 s/);
+  await why.scrollIntoViewIfNeeded();
+  await page.screenshot({ path: "docs/screens/snapshot-suggested-sweep.png" });
   await expect(page.getByTestId("quote-panel").getByTestId("quote-cells")).toHaveText("25");
   await page.getByRole("button", { name: "Review and run" }).click();
   // The spec goes by reference to the stored snapshot (its discs unchanged), so a large snapshot fits the JSON body limit.
@@ -69,5 +77,12 @@ test("an engineer uploads a snapshot, sees its problems by disc number and field
   await expect(page).toHaveURL(/\/sweeps\/(?!new)[^/?]+$/);
   await expect(page.getByTestId("sweep-progress")).toHaveAttribute("aria-valuenow", "100", { timeout: 90_000 });
   await expect(page.getByTestId("sweep-status").first()).toHaveText("done");
+  // The suggested map is worth reading: it has stable cells, and it reaches the instability (deep overlaps on the soft side, the step bound on the stiff, coarse side).
+  await expect(page.locator("canvas[aria-roledescription='stability map']").first()).toBeVisible();
+  await expect(page.getByTestId("verdict-count-stable")).toContainText(/Stable: [1-9]/);
+  await expect(page.getByTestId("verdict-count-deep-overlap")).toContainText(/Deep overlap: [1-9]/);
+  const stepFailures = (await page.getByTestId("verdict-count-step-unstable").innerText()).match(/\d+$/)?.[0];
+  const blowUps = (await page.getByTestId("verdict-count-exploded").innerText()).match(/\d+$/)?.[0];
+  expect(Number(stepFailures) + Number(blowUps)).toBeGreaterThan(0);
   expect(pageErrors).toEqual([]);
 });

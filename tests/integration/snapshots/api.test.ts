@@ -58,6 +58,9 @@ describe("snapshot uploads", () => {
     expect(error.code).toBe("invalid_snapshot");
     expect(error.issues?.map((issue) => issue.field)).toEqual(["file.bodies.0.massKg", "file.bodies.1.radiusM", "file.bodies.2.spin", "file.walls.0.normalX"]);
     expect(error.issues?.[0].message).toBe("mass must be > 0 and ≤ 1,000,000 (kg); got -2");
+    // The message a person reads names each place as the upload page does: discs and walls counted from 1, fields in words.
+    expect(error.message).toMatch(/^The snapshot was not saved\. 4 problems: Disc 1, mass \(massKg\): mass must be > 0 and ≤ 1,000,000 \(kg\); got -2; Disc 2, radius \(radiusM\): radius must be a finite number \(m\); got a string; Disc 3, spin: unknown field "spin"; …$/);
+    expect(error.message).not.toMatch(/bodies\.\d/);
     // Overlaps are named by body index, also beside problems of other fields (body 1 has a word for a speed).
     const both = await upload(studio, form(JSON.stringify({ bodies: [disc(0), disc(3, { vxMPerS: "fast" }), disc(0.1)] }), "stack.json"));
     expect(errorOf(both.body).issues).toEqual([
@@ -125,12 +128,15 @@ describe("a sweep over a stored snapshot", () => {
     const uploaded = await upload(studio, form(CRATESLIDE_SNAPSHOT_JSON, "bay.json", "Bay for a sweep"));
     const id = (uploaded.body as { snapshot: { id: string } }).snapshot.id;
     const detail = await call(snapshotRoute.GET, { path: `${base(studio)}/${id}`, params: { studioId: studio.studioId, snapshotId: id }, cookie: studio.cookies.engineer });
-    const spec = (detail.body as { sweepSpec: { scenario: { durationS: number; scene: { kind: string; bodies: unknown[] } }; axes: { count?: number }[] } }).sweepSpec;
+    const spec = (detail.body as { sweepSpec: { scenario: { durationS: number; scene: { kind: string; bodies: unknown[] } }; axes: { count?: number; values?: number[] }[] } }).sweepSpec;
     expect(spec.scenario.scene.kind).toBe("snapshot");
     expect(spec.scenario.scene.bodies).toHaveLength(41);
     // A small map for the test: 2 × 2 cells of a quarter second.
     spec.scenario.durationS = 0.25;
-    for (const axis of spec.axes) axis.count = 2;
+    for (const axis of spec.axes) {
+      if (axis.values) axis.values = axis.values.slice(-2);
+      else axis.count = 2;
+    }
     const submitted = await call(sweepsRoute.POST, { method: "POST", path: `/api/v1/studios/${studio.studioId}/sweeps`, params: { studioId: studio.studioId }, body: { spec }, cookie: studio.cookies.engineer });
     expect(submitted.status).toBe(201);
     const sweep = (submitted.body as { sweep: { id: string } }).sweep;
@@ -142,6 +148,49 @@ describe("a sweep over a stored snapshot", () => {
     const parsed = parseSweepSpec(done.spec);
     if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
     expect(rows.map((row) => [row.verdict, row.reason])).toEqual(expandSweep(parsed.spec).map((cell) => { const run = simulate(cell.scenario); return [run.verdict, run.reason]; }));
+  });
+});
+
+describe("the first sweep suggested from an uploaded scene", () => {
+  it("places its axes from the scene, says why, and run unchanged through the queue has stable cells and reaches the instability on both sides", async () => {
+    // A demo-like scene of our own: a block of 3 × 3 crates (20 kg, r 0.25 m) that a 40 kg cart at 5 m/s runs into, in a walled yard.
+    const bodies = [
+      ...Array.from({ length: 9 }, (_, k) => ({ xM: 2 + (k % 3) * 0.52, yM: 2 + Math.floor(k / 3) * 0.52, vxMPerS: 0, vyMPerS: 0, massKg: 20, radiusM: 0.25 })),
+      { xM: 6, yM: 2.52, vxMPerS: -5, vyMPerS: 0, massKg: 40, radiusM: 0.3 },
+    ];
+    const walls = [{ normalX: 1, normalY: 0, offsetM: 0 }, { normalX: -1, normalY: 0, offsetM: -8 }, { normalX: 0, normalY: 1, offsetM: 0 }, { normalX: 0, normalY: -1, offsetM: -5 }];
+    const uploaded = await upload(studio, form(JSON.stringify({ name: "Yard cart", bodies, walls }), "yard.json"));
+    expect(uploaded.status).toBe(201);
+    const id = (uploaded.body as { snapshot: { id: string } }).snapshot.id;
+    const detail = await call(snapshotRoute.GET, { path: `${base(studio)}/${id}`, params: { studioId: studio.studioId, snapshotId: id }, cookie: studio.cookies.engineer });
+    expect(detail.status).toBe(200);
+    const { sweepSpec, sweepSuggestion } = detail.body as {
+      sweepSpec: { scenario: { contact: { stiffness: number } }; axes: { parameter: string; from?: number; to?: number; values?: number[] }[] };
+      sweepSuggestion: { basis: string; stiffnessNPerM: number; impact: { body: number; other: number | null; effectiveMassKg: number; closingSpeedMPerS: number; radiusM: number }; reasoning: string[] };
+    };
+    expect(sweepSuggestion.basis).toBe("derived");
+    // The cart (disc 10) against a crate: m* = 40·20/60 = 13.3 kg at 5 m/s, judged against the crate's 0.25 m.
+    expect(sweepSuggestion.impact).toMatchObject({ other: 9, closingSpeedMPerS: 5, radiusM: 0.25 });
+    expect(sweepSuggestion.impact.effectiveMassKg).toBeCloseTo(40 / 3, 12);
+    // k = m*·v² / (0.05·r)² = 13.33 · 25 / 0.0125² = 2.13 MN/m (δ_max = v·√(m*/k), Luding 2008), to two figures.
+    expect(sweepSuggestion.stiffnessNPerM).toBe(2_100_000);
+    expect(sweepSpec.scenario.contact.stiffness).toBe(2_100_000);
+    expect(sweepSpec.axes[0]).toMatchObject({ parameter: "contact.stiffness", from: 70_000, to: 6_300_000 });
+    expect(sweepSpec.axes[1].parameter).toBe("dtS");
+    expect(sweepSpec.axes[1].values?.at(-1)).toBe(1 / 60);
+    expect(sweepSuggestion.reasoning.join("\n")).toMatch(/Hardest impact: disc \d and disc 10, closing at up to 5 m\/s with effective mass 13\.3 kg/);
+    expect(sweepSuggestion.reasoning.join("\n")).toContain("needs k ≥ 2.13 MN/m");
+
+    const submitted = await call(sweepsRoute.POST, { method: "POST", path: `/api/v1/studios/${studio.studioId}/sweeps`, params: { studioId: studio.studioId }, body: { spec: sweepSpec }, cookie: studio.cookies.engineer });
+    expect(submitted.status).toBe(201);
+    const done = await waitForSweep((submitted.body as { sweep: { id: string } }).sweep.id, (row) => row.status === "done");
+    const [row] = await db.select().from(sweeps).where(eq(sweeps.id, done.id));
+    const cells = await storedCells(db, row);
+    const verdicts = cells.map((cell) => cell.verdict);
+    expect(verdicts.filter((verdict) => verdict === "stable").length).toBeGreaterThanOrEqual(3);
+    // The softest spring at the finest step sinks too deep; the stiffest at the game's 1/60 s breaks the step bound.
+    expect(cells[0].verdict).toBe("deep-overlap");
+    expect(["step-unstable", "exploded"]).toContain(cells[cells.length - 1].verdict);
   });
 });
 

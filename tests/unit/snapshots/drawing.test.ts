@@ -4,7 +4,7 @@
  * or wall number and the field in words. Figures are plane geometry worked by hand.
  */
 import { describe, expect, it } from "vitest";
-import { drawScene, problemPlace } from "@/lib/snapshots/drawing";
+import { drawScene, issuePlace, problemPlace } from "@/lib/snapshots/drawing";
 import { parseSnapshotValue } from "@/lib/snapshots/format";
 import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
 
@@ -83,6 +83,14 @@ describe("problem places in words", () => {
     expect(problemPlace("gravityMPerS2")).toBe("Gravity (gravityMPerS2)");
     expect(problemPlace("(file)")).toBe("File");
     expect(problemPlace("bodies")).toBe("Discs");
+  });
+
+  it("names the places of the server's issues (their fields are the API's paths under file.) the same way", () => {
+    expect(issuePlace("file.bodies.0.massKg")).toBe("Disc 1, mass (massKg)");
+    expect(issuePlace("file.walls.3")).toBe("Wall 4");
+    expect(issuePlace("file.gravityMPerS2")).toBe("Gravity (gravityMPerS2)");
+    expect(issuePlace("file")).toBe("File");
+    expect(issuePlace("name")).toBe("Snapshot name");
   });
 
   it("an upload's problems read with the same numbers as the overlap message", () => {

@@ -3,7 +3,7 @@ import { getDb } from "@/db/client";
 import { SweepBuilder } from "@/components/sweeps/sweep-builder";
 import { requireStudio } from "@/lib/auth/page-guard";
 import { ApiError } from "@/lib/errors";
-import { snapshotOfStudio, snapshotSweepSpec } from "@/lib/snapshots/store";
+import { snapshotOfStudio, snapshotSweepStart } from "@/lib/snapshots/store";
 import { duplicateSpec, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
 import { sweepOfStudio } from "@/lib/queue/api";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
@@ -21,6 +21,8 @@ export default async function NewSweepRoute({ params, searchParams }: { params: 
   // "New sweep from this snapshot": the snapshot's scene goes into the spec inline (resolved here, scoped by studio).
   let initialSpec: SweepSpecInput | undefined;
   let namePlaceholder: string | undefined;
+  // Why a snapshot's first sweep has the axes it has (lib/snapshots/suggest.ts), shown beside the scene.
+  let suggestionReasoning: string[] | undefined;
   // "Duplicate and edit": a sweep of this studio as the starting spec, under a name of its own.
   if (typeof from === "string" && !snapshotId) {
     try {
@@ -33,10 +35,12 @@ export default async function NewSweepRoute({ params, searchParams }: { params: 
   }
   if (snapshotId) {
     try {
-      initialSpec = snapshotSweepSpec(await snapshotOfStudio(await getDb(), access.studio.id, snapshotId));
+      const start = snapshotSweepStart(await snapshotOfStudio(await getDb(), access.studio.id, snapshotId));
+      initialSpec = start.sweepSpec;
+      suggestionReasoning = start.sweepSuggestion.reasoning;
     } catch (error) {
       if (!(error instanceof ApiError && error.status === 404)) throw error;
     }
   }
-  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} snapshotId={initialSpec ? snapshotId : undefined} templateId={typeof template === "string" ? template : undefined} namePlaceholder={namePlaceholder} />;
+  return <SweepBuilder studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialSpec={initialSpec} snapshotId={initialSpec ? snapshotId : undefined} templateId={typeof template === "string" ? template : undefined} namePlaceholder={namePlaceholder} suggestionReasoning={suggestionReasoning} />;
 }
