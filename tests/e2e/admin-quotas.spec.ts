@@ -55,13 +55,10 @@ test("an admin lowers a studio's cap under a running sweep: it pauses with the r
   expect(q.cells).toBe(300);
   expect(q.limits.violations).toEqual([]);
   expect(q.estimatedComputeMs).toBeGreaterThan(6_000 * 2);
-  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.ceilingMs }, headers: sameOrigin(owner) });
-  expect(submitted.status()).toBe(201);
-  const { sweep } = (await submitted.json()) as { sweep: { id: string } };
-  await owner.goto(`${studioPath}/sweeps/${sweep.id}`);
-  await expect(owner.getByTestId("sweep-status").first()).toHaveText("running", { timeout: 60_000 });
 
-  // --- The admin finds the studio and lowers its monthly cap below what the sweep needs.
+  // --- The admin finds the studio and types a monthly cap below what the sweep needs. It is saved
+  // the moment the sweep is submitted: a quiet machine finishes the whole sweep in about 15 s, less
+  // than an admin's sign-in and search take, so the admin is ready first (no race with the runner).
   const adminContext = await browser.newContext();
   const admin = await adminContext.newPage();
   await signInWithPassword(admin, DEMO_ADMIN.email, DEMO_ADMIN.password);
@@ -71,8 +68,13 @@ test("an admin lowers a studio's cap under a running sweep: it pauses with the r
   await expect(admin).toHaveURL(new RegExp(`/admin/studios/${studioId}$`));
   await admin.getByLabel("Monthly compute cap (minutes)").fill(LOW_CAP_MINUTES);
   await admin.getByLabel("Reason (recorded in the audit log)").first().fill("testing the cap on a running sweep");
+
+  const submitted = await owner.request.post(`/api/v1/studios/${studioId}/sweeps`, { data: { spec: CRATE_PILE, acceptedQuoteMs: q.ceilingMs }, headers: sameOrigin(owner) });
+  expect(submitted.status()).toBe(201);
+  const { sweep } = (await submitted.json()) as { sweep: { id: string } };
   await admin.getByRole("button", { name: "Save quotas" }).click();
   await expect(admin.getByText("Quotas saved.")).toBeVisible();
+  await owner.goto(`${studioPath}/sweeps/${sweep.id}`);
 
   // --- The owner's sweep pauses with the reason; finished cells stay.
   await expect(owner.getByTestId("sweep-reason")).toHaveText("monthly compute cap reached", { timeout: 90_000 });
