@@ -6,7 +6,7 @@ const DEMO_ADMIN = { email: "ops@kickdrift.test", password: "kickdrift-operator"
 /**
  * A crate pile of the invented "Sandpiper Crate Co": 15 stiffnesses × 20 restitutions = 300 box
  * cells of 80 discs, about 100 ms of compute each by the cost model, in chunks of about 2 s: long
- * enough (tens of seconds on two threads) for an admin to act while it runs.
+ * enough (about 15 s on two threads of a quiet machine) for the cap to meet it while it runs.
  */
 const CRATE_PILE = {
   name: "Sandpiper crate pile: stiffness × restitution",
