@@ -13,7 +13,7 @@ import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
 import { enqueueOutbox } from "@/lib/outbox/outbox";
 import { pokeOutbox } from "@/lib/outbox/process";
-import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { PLAN_DEFAULTS, storedOverage } from "@/lib/quotas/plan";
 import { overageHold } from "./overdue";
 import { OVERAGE_SUBSCRIPTION_KIND } from "./usage";
 
@@ -45,7 +45,8 @@ export async function queueOverageSubscription(tx: DbOrTx, studioId: string): Pr
 /** The admin's permission and the owner's switch as stored (no hold): one read of the quota row. */
 export async function overageSettings(db: DbOrTx, studioId: string): Promise<{ permitted: boolean; on: boolean; capMs: number }> {
   const [row] = await db.select({ allowed: studioQuotas.overageAllowed, on: studioQuotas.overageOn, capMs: studioQuotas.overageCapMs }).from(studioQuotas).where(eq(studioQuotas.studioId, studioId));
-  return { permitted: row?.allowed ?? PLAN_DEFAULTS.overageAllowed, on: row?.on ?? true, capMs: row?.capMs ?? PLAN_DEFAULTS.overageCapMs };
+  const { permitted, on } = storedOverage(row?.allowed, row?.on);
+  return { permitted, on, capMs: row?.capMs ?? PLAN_DEFAULTS.overageCapMs };
 }
 
 export async function overageSwitch(db: DbOrTx, studioId: string): Promise<OverageSwitch> {
@@ -64,8 +65,7 @@ export async function setOverageOn(db: Db, actor: Pick<User, "id" | "email">, st
     // The studio row is the lock the quota edits take too: an admin edit and an owner's switch serialise.
     await tx.execute(sql`select id from studios where id = ${studioId} for update`);
     const [row] = await tx.select({ allowed: studioQuotas.overageAllowed, on: studioQuotas.overageOn }).from(studioQuotas).where(eq(studioQuotas.studioId, studioId)).for("update");
-    const permitted = row?.allowed ?? PLAN_DEFAULTS.overageAllowed;
-    const before = row?.on ?? true;
+    const { permitted, on: before } = storedOverage(row?.allowed, row?.on);
     if (input.overageOn && !permitted) {
       throw new ApiError(409, "invalid_state", "overageOn cannot be true: overage is not permitted for this studio (a platform admin sets overageAllowed). Ask Kickdrift support to permit it.", "overageOn");
     }

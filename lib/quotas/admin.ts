@@ -15,7 +15,7 @@ import { formatCompute } from "@/lib/billing/format";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { queueOverageSubscription } from "@/lib/billing/overage-switch";
 import { queueStudioStatusMail } from "@/lib/studios/suspension";
-import { PLAN_DEFAULTS, type Quotas } from "./plan";
+import { PLAN_DEFAULTS, storedOverage, type Quotas } from "./plan";
 import { RUN_LIMIT_REASONS, monthRemainingMs, overageHeadroomMs, studioStanding, type Standing } from "./enforce";
 
 type Actor = Pick<User, "id" | "email">;
@@ -85,7 +85,7 @@ export async function updateQuotas(db: Db, actor: Actor, studioId: string, patch
     if (changed.length === 0) return;
     const values = { ...after, updatedAt: new Date(), updatedByUserId: actor.id };
     await tx.insert(studioQuotas).values({ studioId, ...values }).onConflictDoUpdate({ target: studioQuotas.studioId, set: values });
-    if ((after.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && !(before.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && row?.overageOn !== false) {
+    if (storedOverage(after.overageAllowed, row?.overageOn).both && !storedOverage(before.overageAllowed, null).permitted) {
       // Overage permitted, and the owner has not switched it off: the studio's overage subscription
       // (anchored to the 1st) is made now. An owner who has it off makes it by switching it on.
       await queueOverageSubscription(tx, studioId);

@@ -20,7 +20,7 @@ import { layout, type MailContent } from "@/lib/mail/templates";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
 import { overageHeldSql } from "@/lib/billing/grace";
-import { PLAN_DEFAULTS, monthOf, type Quotas } from "./plan";
+import { PLAN_DEFAULTS, monthOf, storedOverage, type Quotas } from "./plan";
 
 /** Why a sweep is paused by the limits (shown to the user as the sweep's reason). */
 export const RUN_LIMIT_REASONS = {
@@ -114,7 +114,7 @@ function standingFromRow(row: StandingRow, monthKey: string): Standing {
       maxBodies: num(row.max_bodies, PLAN_DEFAULTS.maxBodies),
       // Permitted by an admin, switched on by the owner (lib/billing/overage-switch.ts), and not held
       // off by an invoice unpaid past its grace period (lib/billing/overdue.ts).
-      overageAllowed: (row.overage_allowed ?? PLAN_DEFAULTS.overageAllowed) && row.overage_on !== false && !row.overage_held,
+      overageAllowed: storedOverage(row.overage_allowed, row.overage_on).both && !row.overage_held,
       overageCapMs: num(row.overage_cap_ms, PLAN_DEFAULTS.overageCapMs),
     },
     balanceMs: Number(row.balance),

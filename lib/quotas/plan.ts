@@ -21,6 +21,17 @@ export interface Quotas {
   overageCapMs: number;
 }
 
+/**
+ * Overage as stored: permitted by a platform admin (null = the plan default) and switched on by the
+ * studio's owner (null = on, as before owners had a say). It accrues only when both hold (and no
+ * unpaid invoice holds it off: lib/billing/grace.ts).
+ */
+export function storedOverage(allowed: boolean | null | undefined, on: boolean | null | undefined): { permitted: boolean; on: boolean; both: boolean } {
+  const permitted = allowed ?? PLAN_DEFAULTS.overageAllowed;
+  const switchedOn = on !== false;
+  return { permitted, on: switchedOn, both: permitted && switchedOn };
+}
+
 /** Defaults of the one plan we sell. The per-sweep limits can only be lowered below the engine's own (SPEC_LIMITS). */
 export const PLAN_DEFAULTS: Readonly<Quotas> = {
   monthlyComputeMs: 3_000 * 60_000,
@@ -41,8 +52,7 @@ export async function effectiveQuotas(db: DbOrTx, studioId: string): Promise<Quo
     maxCellsPerSweep: row?.maxCellsPerSweep ?? PLAN_DEFAULTS.maxCellsPerSweep,
     maxStepsPerCell: row?.maxStepsPerCell ?? PLAN_DEFAULTS.maxStepsPerCell,
     maxBodies: row?.maxBodies ?? PLAN_DEFAULTS.maxBodies,
-    // Permitted by an admin and switched on by the owner (null = on).
-    overageAllowed: (row?.overageAllowed ?? PLAN_DEFAULTS.overageAllowed) && row?.overageOn !== false,
+    overageAllowed: storedOverage(row?.overageAllowed, row?.overageOn).both,
     overageCapMs: row?.overageCapMs ?? PLAN_DEFAULTS.overageCapMs,
   };
 }
