@@ -29,6 +29,7 @@ import {
   slidingAngleDeg,
   staticOverlapM,
   tangentialEffectiveMassKg,
+  tangentialOmegaH,
 } from "../physics/friction-analytic";
 import { formatLimit, SPEC_LIMITS } from "../sweeps/parameters";
 import type { CatalogueObject } from "./format";
@@ -186,7 +187,7 @@ export function frictionCheck(objects: readonly CatalogueObject[], settings: Che
   }): FrictionContactRow => {
     const kn = normalStiffnessNPerM({ stiffness: input.stiffness, reducedMassKg: input.normalMassKg, closingSpeedMPerS: input.closingSpeedMPerS }, model);
     const kt = ratio * kn;
-    const omegaH = Math.sqrt(kt / input.tangentialMassKg) * substepS;
+    const omegaH = tangentialOmegaH(kt, input.tangentialMassKg, substepS);
     const restingOverlapM = gravity > 0 ? staticOverlapM(input.restingMassKg, gravity, input.stiffness, model) : 0;
     const allowedRestingOverlapM = tolerance * input.radiusM;
     const floor = input.kind === "floor" && input.mu !== null && input.mu > 0 && gravity > 0;
