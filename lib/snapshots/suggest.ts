@@ -33,7 +33,7 @@
  *
  * Pure: safe to import in the browser. Deterministic: the same scene gives the same suggestion.
  */
-import { reducedMassKg } from "../physics/analytic";
+import { maxStableSubstepS, reducedMassKg } from "../physics/analytic";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
 import type { SnapshotScene } from "../physics/types";
 import { numericRule } from "../sweeps/parameters";
@@ -278,7 +278,7 @@ export function suggestSnapshotSweep(scene: SnapshotScene, options: { toleranceO
       resting: null,
       lightest,
       stiffnessNPerM: 1e5,
-      maxStableStepS: lightest ? 2 * Math.sqrt(lightest.effectiveMassKg / 1e5) : null,
+      maxStableStepS: lightest ? maxStableSubstepS(1e5, lightest.effectiveMassKg) : null,
       gameFrameStepS,
       stiffnessCapAtGameStepNPerM: lightest ? lightest.effectiveMassKg * (2 / gameFrameStepS) ** 2 : null,
       stiffnessAxis: { from: 1e4, to: 1e6, count: STIFFNESS_COUNT },
@@ -288,7 +288,7 @@ export function suggestSnapshotSweep(scene: SnapshotScene, options: { toleranceO
   }
   const stiffnessNPerM = Math.min(rule.max / STIFFNESS_STIFFER, twoFigures(demanded));
   const mLight = lightest.effectiveMassKg;
-  const maxStableStepS = 2 * Math.sqrt(mLight / stiffnessNPerM);
+  const maxStableStepS = maxStableSubstepS(stiffnessNPerM, mLight);
   const stiffest = stiffnessNPerM * STIFFNESS_STIFFER;
   return {
     basis: "derived",
@@ -303,7 +303,7 @@ export function suggestSnapshotSweep(scene: SnapshotScene, options: { toleranceO
     gameFrameStepS,
     stiffnessCapAtGameStepNPerM: mLight * (2 / gameFrameStepS) ** 2,
     stiffnessAxis: { from: twoFigures(stiffnessNPerM / STIFFNESS_SOFTER), to: twoFigures(stiffest), count: STIFFNESS_COUNT },
-    frameSteps: frameStepValues(gameFrameStepS, maxStableStepS, 2 * Math.sqrt(mLight / stiffest), durationS),
+    frameSteps: frameStepValues(gameFrameStepS, maxStableStepS, maxStableSubstepS(stiffest, mLight), durationS),
     durationS,
   };
 }
