@@ -2,46 +2,55 @@
  * Typed errors that route handlers and lib/ functions throw; lib/api/respond.ts maps them to
  * `{ error: { code, message, field? } }` with the status given here.
  */
-export type ErrorCode =
-  | "invalid_json"
-  | "validation_failed"
-  | "unknown_field"
-  | "payload_too_large"
-  | "payload_too_deep"
-  | "unsupported_media_type"
-  | "invalid_text"
-  | "cross_origin"
-  | "rate_limited"
-  | "unauthenticated"
-  | "invalid_token"
-  | "forbidden"
-  | "insufficient_scope"
-  | "token_not_allowed"
-  | "not_found"
-  | "method_not_allowed"
-  | "already_member"
-  | "last_owner"
-  | "invite_email_mismatch"
-  | "invite_expired"
-  | "invite_used"
-  | "reset_token_invalid"
-  | "reset_token_expired"
-  | "reset_token_used"
-  | "studio_suspended"
-  | "invalid_spec"
-  | "invalid_catalogue"
-  | "invalid_snapshot"
-  | "invalid_settings"
-  | "insufficient_minutes"
-  | "invalid_state"
-  | "quote_changed"
-  | "not_ready"
-  | "invalid_signature"
-  | "unknown_event_type"
-  | "billing_unavailable"
-  | "payment_provider_error"
-  | "quota_exceeded"
-  | "internal_error";
+/**
+ * Every error code with its HTTP status, in one table: a throw site names the code, never the
+ * status, so one code always answers with one status (docs/api.md § Errors lists the same table).
+ */
+export const ERROR_STATUS = {
+  invalid_json: 400,
+  validation_failed: 400,
+  unknown_field: 400,
+  payload_too_deep: 400,
+  invalid_settings: 400,
+  invalid_signature: 400,
+  unknown_event_type: 400,
+  reset_token_invalid: 400,
+  unauthenticated: 401,
+  invalid_token: 401,
+  insufficient_minutes: 402,
+  forbidden: 403,
+  insufficient_scope: 403,
+  token_not_allowed: 403,
+  cross_origin: 403,
+  invite_email_mismatch: 403,
+  not_found: 404,
+  method_not_allowed: 405,
+  already_member: 409,
+  last_owner: 409,
+  studio_suspended: 409,
+  invalid_state: 409,
+  quote_changed: 409,
+  invite_expired: 410,
+  invite_used: 410,
+  reset_token_expired: 410,
+  reset_token_used: 410,
+  payload_too_large: 413,
+  unsupported_media_type: 415,
+  /** Well-formed, but the value cannot be used here (a revoke beyond the balance, a retry of a row that has nothing to retry). */
+  invalid_value: 422,
+  invalid_text: 422,
+  invalid_spec: 422,
+  invalid_catalogue: 422,
+  invalid_snapshot: 422,
+  quota_exceeded: 422,
+  rate_limited: 429,
+  internal_error: 500,
+  payment_provider_error: 502,
+  billing_unavailable: 503,
+  not_ready: 503,
+} as const satisfies Record<string, number>;
+
+export type ErrorCode = keyof typeof ERROR_STATUS;
 
 export interface FieldIssue {
   field: string;
@@ -49,8 +58,10 @@ export interface FieldIssue {
 }
 
 export class ApiError extends Error {
+  /** From ERROR_STATUS: the code decides the status. */
+  readonly status: number;
+
   constructor(
-    readonly status: number,
     readonly code: ErrorCode,
     message: string,
     readonly field?: string,
@@ -58,11 +69,12 @@ export class ApiError extends Error {
     readonly headers?: Record<string, string>,
   ) {
     super(message);
+    this.status = ERROR_STATUS[code];
     this.name = "ApiError";
   }
 }
 
-export const notFound = (what = "Resource") => new ApiError(404, "not_found", `${what} not found.`);
+export const notFound = (what = "Resource") => new ApiError("not_found", `${what} not found.`);
 
 /** Which limit a request ran into, as the error body names it (`error.limit`). */
 export interface LimitDetail {
@@ -80,13 +92,12 @@ export interface LimitDetail {
 /** An ApiError raised by a quota: the response also carries `error.limit`. */
 export class LimitError extends ApiError {
   constructor(
-    status: number,
     code: ErrorCode,
     message: string,
     readonly limit: LimitDetail,
     field?: string,
   ) {
-    super(status, code, message, field);
+    super(code, message, field);
     this.name = "LimitError";
   }
 }

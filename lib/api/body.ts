@@ -8,7 +8,7 @@ export const ROOT_FIELD = "body";
 export const MAX_JSON_BODY_BYTES = 64 * 1024;
 
 function tooLarge(limit: number): ApiError {
-  return new ApiError(413, "payload_too_large", `Request body exceeds the limit of ${limit} bytes.`, ROOT_FIELD);
+  return new ApiError("payload_too_large", `Request body exceeds the limit of ${limit} bytes.`, ROOT_FIELD);
 }
 
 /** Reads the body as text, stopping as soon as it passes the limit (never buffers an oversize body). */
@@ -73,18 +73,18 @@ export function checkJsonValue(root: unknown, maxDepth = MAX_JSON_DEPTH): void {
     if (typeof value === "string") {
       if (value.includes("\u0000")) {
         const field = framePath(frame);
-        throw new ApiError(400, "validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || ROOT_FIELD);
+        throw new ApiError("validation_failed", `${field || "body"}: must not contain NUL (\\u0000) characters.`, field || ROOT_FIELD);
       }
       if (hasLoneSurrogate(value)) {
         const field = framePath(frame);
-        throw new ApiError(422, "invalid_text", `${field || "body"}: contains a lone UTF-16 surrogate (an unpaired \\ud800–\\udfff escape); send well-formed Unicode text.`, field || ROOT_FIELD);
+        throw new ApiError("invalid_text", `${field || "body"}: contains a lone UTF-16 surrogate (an unpaired \\ud800–\\udfff escape); send well-formed Unicode text.`, field || ROOT_FIELD);
       }
       continue;
     }
     if (value === null || typeof value !== "object") continue;
     if (frame.depth >= maxDepth) {
       const field = framePath(frame);
-      throw new ApiError(400, "payload_too_deep", `${field || "body"}: arrays and objects nest deeper than the limit of ${maxDepth} levels.`, field || ROOT_FIELD);
+      throw new ApiError("payload_too_deep", `${field || "body"}: arrays and objects nest deeper than the limit of ${maxDepth} levels.`, field || ROOT_FIELD);
     }
     const depth = frame.depth + 1;
     if (Array.isArray(value)) {
@@ -97,7 +97,7 @@ export function checkJsonValue(root: unknown, maxDepth = MAX_JSON_DEPTH): void {
       if (key.includes("\u0000") || hasLoneSurrogate(key)) {
         const field = framePath(frame, printable(key));
         const what = key.includes("\u0000") ? "must not contain NUL (\\u0000) characters" : "contains a lone UTF-16 surrogate; send well-formed Unicode text";
-        throw new ApiError(key.includes("\u0000") ? 400 : 422, key.includes("\u0000") ? "validation_failed" : "invalid_text", `${field}: ${what}.`, field);
+        throw new ApiError(key.includes("\u0000") ? "validation_failed" : "invalid_text", `${field}: ${what}.`, field);
       }
       stack.push({ value: (value as Record<string, unknown>)[key], parent: frame, key, depth });
     }
@@ -114,18 +114,18 @@ export function requireJsonContentType(req: Request): void {
   if (req.headers.get("authorization") !== null) return;
   const type = (req.headers.get("content-type") ?? "").split(";")[0].trim().toLowerCase();
   if (type !== "application/json")
-    throw new ApiError(415, "unsupported_media_type", `content-type: must be application/json${type ? `, not ${type}` : ""}.`, "content-type");
+    throw new ApiError("unsupported_media_type", `content-type: must be application/json${type ? `, not ${type}` : ""}.`, "content-type");
 }
 
 export async function readJson(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<unknown> {
   requireJsonContentType(req);
   const text = await readBodyText(req, limit);
-  if (text.trim() === "") throw new ApiError(400, "invalid_json", "Request body must be a JSON object.", ROOT_FIELD);
+  if (text.trim() === "") throw new ApiError("invalid_json", "Request body must be a JSON object.", ROOT_FIELD);
   let value: unknown;
   try {
     value = JSON.parse(text);
   } catch {
-    throw new ApiError(400, "invalid_json", "Request body is not valid JSON.", ROOT_FIELD);
+    throw new ApiError("invalid_json", "Request body is not valid JSON.", ROOT_FIELD);
   }
   checkJsonValue(value);
   return value;
@@ -152,7 +152,6 @@ export function validationError(error: z.ZodError): ApiError {
   const first = error.issues[0];
   const unknown = first?.code === "unrecognized_keys";
   return new ApiError(
-    400,
     unknown ? "unknown_field" : "validation_failed",
     issues[0]?.field ? `${issues[0].field}: ${issues[0].message}` : `${ROOT_FIELD}: ${issues[0]?.message ?? "invalid request"}`,
     issues[0]?.field || ROOT_FIELD,

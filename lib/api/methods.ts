@@ -18,7 +18,7 @@ export function otherMethods(allowed: readonly HttpMethod[]): Record<HttpMethod 
   const handler: Handler = Object.assign(
     async (req: Request) =>
       errorResponse(
-        new ApiError(405, "method_not_allowed", `Method ${req.method} is not allowed here; allowed: ${allow}.`, undefined, undefined, {
+        new ApiError("method_not_allowed", `Method ${req.method} is not allowed here; allowed: ${allow}.`, undefined, undefined, {
           allow,
         }),
       ),

@@ -13,9 +13,9 @@ export interface UploadedFile {
 export async function readMultipart(req: Request, limit: number, fileLimitText: string): Promise<{ fields: Map<string, string>; file: UploadedFile | null; files: Map<string, UploadedFile> }> {
   const type = req.headers.get("content-type") ?? "";
   if (!/^multipart\/form-data\s*;/i.test(type)) {
-    throw new ApiError(415, "validation_failed", 'The body must be multipart/form-data with the file in a field named "file" (curl -F file=@catalogue.csv).', "file");
+    throw new ApiError("unsupported_media_type", 'The body must be multipart/form-data with the file in a field named "file" (curl -F file=@catalogue.csv).', "file");
   }
-  const tooLarge = () => new ApiError(413, "payload_too_large", `file: the upload exceeds the limit (${fileLimitText}).`, "file");
+  const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${fileLimitText}).`, "file");
   const declared = req.headers.get("content-length");
   if (declared !== null && Number(declared) > limit) throw tooLarge();
   const chunks: Uint8Array[] = [];
@@ -37,7 +37,7 @@ export async function readMultipart(req: Request, limit: number, fileLimitText: 
   try {
     form = await new Response(Buffer.concat(chunks), { headers: { "content-type": type } }).formData();
   } catch {
-    throw new ApiError(400, "validation_failed", "The multipart body could not be read.", "file");
+    throw new ApiError("validation_failed", "The multipart body could not be read.", "file");
   }
   const fields = new Map<string, string>();
   // The first file of each field name; "file" is the one every upload route reads.

@@ -23,5 +23,5 @@ export function errorResponse(error: ApiError): Response {
 export function toErrorResponse(error: unknown): Response {
   if (error instanceof ApiError) return errorResponse(error);
   console.error("[api] unexpected error", error);
-  return errorResponse(new ApiError(500, "internal_error", "Something went wrong on our side."));
+  return errorResponse(new ApiError("internal_error", "Something went wrong on our side."));
 }

@@ -135,7 +135,7 @@ function view(row: AuditLogRow): AuditView {
 
 /** Newest first; `to` is inclusive. */
 export async function listAudit(db: DbOrTx, query: Partial<AuditQuery>): Promise<AuditView[]> {
-  if (query.from && query.to && query.from > query.to) throw new ApiError(400, "validation_failed", "from must not be after to.", "from");
+  if (query.from && query.to && query.from > query.to) throw new ApiError("validation_failed", "from must not be after to.", "from");
   const where: SQL[] = [];
   if (query.studioId) where.push(eq(auditLog.studioId, query.studioId));
   if (query.action) where.push(eq(auditLog.action, query.action));

@@ -125,10 +125,10 @@ export async function confirmPasswordReset(input: z.infer<typeof passwordResetCo
       .from(passwordResets)
       .where(eq(passwordResets.tokenHash, sha256Hex(input.token)))
       .for("update");
-    if (!reset) throw new ApiError(400, "reset_token_invalid", "This reset link is not valid.", "token");
-    if (reset.usedAt) throw new ApiError(410, "reset_token_used", "This reset link has already been used.", "token");
+    if (!reset) throw new ApiError("reset_token_invalid", "This reset link is not valid.", "token");
+    if (reset.usedAt) throw new ApiError("reset_token_used", "This reset link has already been used.", "token");
     if (reset.expiresAt.getTime() <= Date.now())
-      throw new ApiError(410, "reset_token_expired", "This reset link has expired; ask for a new one.", "token");
+      throw new ApiError("reset_token_expired", "This reset link has expired; ask for a new one.", "token");
     const now = new Date();
     // Using one link spends every other open link of the account too.
     await tx

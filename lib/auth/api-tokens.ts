@@ -91,7 +91,7 @@ export async function revokeApiToken(studioId: string, tokenId: string, actor: P
     .select()
     .from(apiTokens)
     .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.studioId, studioId)));
-  if (!row) throw new ApiError(404, "not_found", "API token not found.");
+  if (!row) throw new ApiError("not_found", "API token not found.");
   if (row.revokedAt) return tokenView(row);
   const updated = await db.transaction(async (tx) => {
     const [revoked] = await tx

@@ -60,11 +60,8 @@ export type GuardedHandler<Policy extends RoutePolicy, P extends Params> = ((
   context: { params: Promise<P> },
 ) => Promise<Response>) & { policy: Policy };
 
-/** Studio management that only owners do and API tokens never do (members, invites, tokens). */
-export const OWNERS_ONLY = { access: "studio", roles: ["owner"], token: "never" } as const satisfies RoutePolicy;
-
-const unauthenticated = () => new ApiError(401, "unauthenticated", "Sign in or present an API token.");
-const studioNotFound = () => new ApiError(404, "not_found", "Studio not found.");
+const unauthenticated = () => new ApiError("unauthenticated", "Sign in or present an API token.");
+const studioNotFound = () => new ApiError("not_found", "Studio not found.");
 
 /** Who is calling: an API token (Authorization: Bearer), else the session cookie, else nobody. */
 export async function resolveActor(req: Request): Promise<Actor | null> {
@@ -73,7 +70,7 @@ export async function resolveActor(req: Request): Promise<Actor | null> {
     const match = /^Bearer\s+(\S+)$/i.exec(authorization.trim());
     const token = match ? await authenticateApiToken(match[1]) : null;
     if (!token)
-      throw new ApiError(401, "invalid_token", "The API token is unknown, malformed or revoked.", undefined, undefined, {
+      throw new ApiError("invalid_token", "The API token is unknown, malformed or revoked.", undefined, undefined, {
         "www-authenticate": 'Bearer error="invalid_token"',
       });
     return { kind: "token", token };
@@ -102,8 +99,8 @@ export async function authorize(
   if (policy.access === "public") return { studio: null, role: null };
   if (!actor) throw unauthenticated();
   if (policy.access === "user" || policy.access === "admin") {
-    if (actor.kind === "token") throw new ApiError(403, "token_not_allowed", "API tokens cannot use this route; sign in instead.");
-    if (policy.access === "admin" && !actor.user.isAdmin) throw new ApiError(403, "forbidden", "Only platform admins may do this.");
+    if (actor.kind === "token") throw new ApiError("token_not_allowed", "API tokens cannot use this route; sign in instead.");
+    if (policy.access === "admin" && !actor.user.isAdmin) throw new ApiError("forbidden", "Only platform admins may do this.");
     return { studio: null, role: null };
   }
   if (!studioId) throw studioNotFound();
@@ -114,10 +111,10 @@ export async function authorize(
     const [studio] = await db.select().from(studios).where(eq(studios.id, studioId));
     if (!studio) throw studioNotFound();
     if (policy.token === "never")
-      throw new ApiError(403, "token_not_allowed", "API tokens cannot manage members, invites or tokens; sign in instead.");
+      throw new ApiError("token_not_allowed", "API tokens cannot manage members, invites or tokens; sign in instead.");
     const scopes = actor.token.scopes;
     const allowed = policy.token === "read" ? scopes.includes("read") || scopes.includes("write") : scopes.includes("write");
-    if (!allowed) throw new ApiError(403, "insufficient_scope", `This route needs an API token with the "${policy.token}" scope.`);
+    if (!allowed) throw new ApiError("insufficient_scope", `This route needs an API token with the "${policy.token}" scope.`);
     return { studio, role: null };
   }
   const [row] = await db
@@ -128,7 +125,7 @@ export async function authorize(
   // Not a member (platform admins included): the same 404 as a studio that does not exist.
   if (!row) throw studioNotFound();
   if (!roleSatisfies(row.role, policy.roles))
-    throw new ApiError(403, "forbidden", `Only ${describeRoles(policy.roles)} of this studio may do this; you are ${row.role}.`);
+    throw new ApiError("forbidden", `Only ${describeRoles(policy.roles)} of this studio may do this; you are ${row.role}.`);
   return { studio: row.studio, role: row.role };
 }
 
@@ -142,7 +139,7 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
       const params = ((await context?.params) ?? {}) as P;
       // No stored id or token contains NUL (PostgreSQL text cannot): such a path names nothing.
       const values = Object.values(params).flat();
-      if (values.some((v) => typeof v === "string" && v.includes("\u0000"))) throw new ApiError(404, "not_found", "Not found.");
+      if (values.some((v) => typeof v === "string" && v.includes("\u0000"))) throw new ApiError("not_found", "Not found.");
       assertSameOriginWrite(req);
       let actor: Actor | null;
       if (policy.access === "public") {
@@ -162,9 +159,3 @@ export function withAuth<const Policy extends RoutePolicy, P extends Params = Re
   };
   return Object.assign(guarded, { policy });
 }
-
-/** Money: owners and finance people buy packs and read balances, ledgers and invoices; engineers and API tokens do not. */
-export const BILLING_PEOPLE = { access: "studio", roles: ["owner", "finance"], token: "never" } as const satisfies RoutePolicy;
-
-/** Reading the money records (ledger, invoices): owners and finance, and API tokens with the read (or write) scope for bookkeeping tools. */
-export const BILLING_READERS = { access: "studio", roles: ["owner", "finance"], token: "read" } as const satisfies RoutePolicy;

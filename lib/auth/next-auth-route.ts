@@ -38,10 +38,10 @@ async function runNextAuth(req: Request, segments: string[]): Promise<Response> 
       try {
         parsed = text ? JSON.parse(text) : {};
       } catch {
-        throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
+        throw new ApiError("invalid_json", "Request body is not valid JSON.");
       }
       if (!parsed || typeof parsed !== "object" || Array.isArray(parsed))
-        throw new ApiError(400, "invalid_json", "Request body must be a JSON object.");
+        throw new ApiError("invalid_json", "Request body must be a JSON object.");
       body = Object.fromEntries(Object.entries(parsed).map(([k, v]) => [k, String(v)]));
     } else body = Object.fromEntries(new URLSearchParams(text));
   }

@@ -4,6 +4,7 @@ import type { Studio, StudioRole } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
 import { publicUser, type PublicUser } from "./accounts";
 import { authorize, type StudioRoleRequirement } from "./guard";
+import { studioPagePolicy } from "./policies";
 import { userFromCookieHeader } from "./session";
 
 /**
@@ -70,7 +71,7 @@ export async function requireStudio(
   // First as any member: a non-member must get 404 whatever the page needs.
   let membership;
   try {
-    membership = await authorize({ access: "studio", roles: "member", token: "never" }, actor, studioId);
+    membership = await authorize(studioPagePolicy(), actor, studioId);
   } catch (error) {
     if (error instanceof ApiError && error.status === 404) notFound();
     throw error;
@@ -80,7 +81,7 @@ export async function requireStudio(
   const view: StudioPageView = { id: studio.id, name: studio.name, status: studio.status, createdAt: studio.createdAt.toISOString() };
   const requirement = options.roles ?? "member";
   try {
-    await authorize({ access: "studio", roles: requirement, token: "never" }, actor, studioId);
+    await authorize(studioPagePolicy(requirement), actor, studioId);
   } catch (error) {
     if (error instanceof ApiError && error.status === 403) forbidden();
     throw error;

@@ -49,9 +49,7 @@ export async function consumeRateLimit(name: RateLimitName, key: string, field?:
     if (!(error instanceof RateLimiterRes)) throw error;
     const { points, durationS, what } = RATE_LIMITS[name];
     const retryS = Math.max(1, Math.ceil(error.msBeforeNext / 1000));
-    throw new ApiError(
-      429,
-      "rate_limited",
+    throw new ApiError("rate_limited",
       `${field ? `${field}: ` : ""}too many ${what}: at most ${points} per ${durationS / 60} minutes; try again in ${Math.ceil(retryS / 60)} minute(s).`,
       field,
       undefined,

@@ -34,8 +34,8 @@ export function assertSameOriginWrite(req: Request): void {
   const origin = req.headers.get("origin");
   if (origin !== null) {
     if (origin !== "null" && ownOrigins(req).has(origin)) return;
-    throw new ApiError(403, "cross_origin", `origin: requests signed in by cookie must come from this site's own pages; ${origin} is not this site.`, "origin");
+    throw new ApiError("cross_origin", `origin: requests signed in by cookie must come from this site's own pages; ${origin} is not this site.`, "origin");
   }
   if (req.headers.get("sec-fetch-site") === "same-origin") return;
-  throw new ApiError(403, "cross_origin", "origin: a request signed in by cookie must carry this site's Origin (or Sec-Fetch-Site: same-origin).", "origin");
+  throw new ApiError("cross_origin", "origin: a request signed in by cookie must carry this site's Origin (or Sec-Fetch-Site: same-origin).", "origin");
 }

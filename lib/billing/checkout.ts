@@ -27,7 +27,7 @@ export const checkoutSchema = z
 export async function createCheckout(db: Db, stripe: Stripe, studioId: string, user: User, input: z.infer<typeof checkoutSchema>): Promise<{ sessionId: string; url: string }> {
   const pack = findPack(input.packId);
   if (!pack)
-    throw new ApiError(400, "validation_failed", `packId: no pack "${input.packId}"; choose one of ${CREDIT_PACKS.map((p) => p.id).join(", ")}.`, "packId");
+    throw new ApiError("validation_failed", `packId: no pack "${input.packId}"; choose one of ${CREDIT_PACKS.map((p) => p.id).join(", ")}.`, "packId");
   try {
     const catalog = await ensureCatalog(stripe);
     const account = await ensureStudioCustomer(db, stripe, studioId);
@@ -50,7 +50,7 @@ export async function createCheckout(db: Db, stripe: Stripe, studioId: string, u
       success_url: `${billing}?checkout=success&session_id={CHECKOUT_SESSION_ID}`,
       cancel_url: `${billing}?checkout=cancelled`,
     });
-    if (!session.url) throw new ApiError(502, "payment_provider_error", "The payment provider returned no payment page.");
+    if (!session.url) throw new ApiError("payment_provider_error", "The payment provider returned no payment page.");
     return { sessionId: session.id, url: session.url };
   } catch (error) {
     throw stripeFailure(error);

@@ -86,7 +86,7 @@ export async function retryMeterEvent(db: Db, actor: Pick<User, "id" | "email">,
     const payload = row.payload as MeterEventPayload & { meterIdentifier?: string; rekeys?: number };
     const currentId = payload.meterIdentifier ?? payload.identifier;
     if (row.status !== "failed") return { outboxId, state: "unchanged", status: row.status, meterIdentifier: currentId };
-    if (typeof payload.identifier !== "string") throw new ApiError(422, "validation_failed", "outboxId: this outbox row carries no meter-event identifier; it cannot be retried.", "outboxId");
+    if (typeof payload.identifier !== "string") throw new ApiError("invalid_value", "outboxId: this outbox row carries no meter-event identifier; it cannot be retried.", "outboxId");
     const rekeys = (payload.rekeys ?? 0) + (input.rekey ? 1 : 0);
     // Stripe's identifier is at most 100 characters; the suffix keeps each re-key distinct and traceable to the ledger key.
     const meterIdentifier = input.rekey ? `${payload.identifier.slice(0, 90)}~r${rekeys}` : currentId;

@@ -67,7 +67,7 @@ export async function setOverageOn(db: Db, actor: Pick<User, "id" | "email">, st
     const [row] = await tx.select({ allowed: studioQuotas.overageAllowed, on: studioQuotas.overageOn }).from(studioQuotas).where(eq(studioQuotas.studioId, studioId)).for("update");
     const { permitted, on: before } = storedOverage(row?.allowed, row?.on);
     if (input.overageOn && !permitted) {
-      throw new ApiError(409, "invalid_state", "overageOn cannot be true: overage is not permitted for this studio (a platform admin sets overageAllowed). Ask Kickdrift support to permit it.", "overageOn");
+      throw new ApiError("invalid_state", "overageOn cannot be true: overage is not permitted for this studio (a platform admin sets overageAllowed). Ask Kickdrift support to permit it.", "overageOn");
     }
     if (before === input.overageOn) return;
     await tx.insert(studioQuotas).values({ studioId, overageOn: input.overageOn, updatedAt: new Date(), updatedByUserId: actor.id }).onConflictDoUpdate({ target: studioQuotas.studioId, set: { overageOn: input.overageOn, updatedAt: new Date(), updatedByUserId: actor.id } });

@@ -49,7 +49,7 @@ export type SessionId = string & { readonly __brand: "CheckoutSessionId" };
 
 /** Refuses anything that is not a Checkout session id, before Stripe (or its absence) is consulted. */
 export function parseSessionId(sessionId: string): SessionId {
-  if (!SESSION_ID.test(sessionId)) throw new ApiError(400, "validation_failed", "sessionId: must be a Checkout session id (cs_…).", "sessionId");
+  if (!SESSION_ID.test(sessionId)) throw new ApiError("validation_failed", "sessionId: must be a Checkout session id (cs_…).", "sessionId");
   return sessionId as SessionId;
 }
 

@@ -164,12 +164,12 @@ export async function adminRefund(db: Db, stripe: Stripe, admin: User, studioId:
     const intentId = typeof session.payment_intent === "string" ? session.payment_intent : session.payment_intent?.id;
     const intent = intentId ? await stripe.paymentIntents.retrieve(intentId) : null;
     const latest = intent?.latest_charge;
-    if (!intentId || !latest) throw new ApiError(409, "invalid_state", "This checkout has no payment to refund.");
+    if (!intentId || !latest) throw new ApiError("invalid_state", "This checkout has no payment to refund.");
     const charge = await stripe.charges.retrieve(typeof latest === "string" ? latest : latest.id);
     remaining = charge.amount - charge.amount_refunded;
-    if (remaining <= 0) throw new ApiError(409, "invalid_state", "This purchase has been refunded in full.");
+    if (remaining <= 0) throw new ApiError("invalid_state", "This purchase has been refunded in full.");
     amount = input.amountCents ?? remaining;
-    if (amount > remaining) throw new ApiError(400, "validation_failed", `amountCents: at most ${remaining} cents of this purchase are left to refund.`, "amountCents");
+    if (amount > remaining) throw new ApiError("validation_failed", `amountCents: at most ${remaining} cents of this purchase are left to refund.`, "amountCents");
     refund = await stripe.refunds.create(
       { payment_intent: intentId, amount, reason: "requested_by_customer", metadata: { studio_id: studioId, admin: admin.email } },
       // The same admin action retried (double click, network) refunds once.

@@ -68,19 +68,19 @@ export function billingConfig(): BillingConfig {
   const secretKey = process.env.STRIPE_SECRET_KEY;
   if (secretKey) {
     const webhookSecret = process.env.STRIPE_WEBHOOK_SECRET;
-    if (!webhookSecret) throw new ApiError(503, "billing_unavailable", "STRIPE_WEBHOOK_SECRET must be set together with STRIPE_SECRET_KEY.");
+    if (!webhookSecret) throw new ApiError("billing_unavailable", "STRIPE_WEBHOOK_SECRET must be set together with STRIPE_SECRET_KEY.");
     holder[key] = { stripe: new Stripe(secretKey, { maxNetworkRetries: 2, timeout: 20_000, ...stripeApiAddress() }), webhookSecret, mode: "stripe" };
     return holder[key];
   }
-  if (!usesStripeFake()) throw new ApiError(503, "billing_unavailable", "Billing is not configured on this server (STRIPE_SECRET_KEY is not set).");
-  throw new ApiError(503, "billing_unavailable", "Billing is starting up (the local Stripe fake is not running yet); try again in a moment.");
+  if (!usesStripeFake()) throw new ApiError("billing_unavailable", "Billing is not configured on this server (STRIPE_SECRET_KEY is not set).");
+  throw new ApiError("billing_unavailable", "Billing is starting up (the local Stripe fake is not running yet); try again in a moment.");
 }
 
 /** Maps a Stripe SDK failure to a 503 (Stripe unreachable) or 502 (Stripe refused), never a 500. */
 export function stripeFailure(error: unknown): ApiError {
   if (error instanceof ApiError) return error;
   if (error instanceof Stripe.errors.StripeConnectionError || error instanceof Stripe.errors.StripeAPIError)
-    return new ApiError(503, "billing_unavailable", "The payment provider cannot be reached; nothing was charged. Try again shortly.");
-  if (error instanceof Stripe.errors.StripeError) return new ApiError(502, "payment_provider_error", `The payment provider refused the request: ${error.message}`);
-  return new ApiError(500, "internal_error", "Something went wrong on our side.");
+    return new ApiError("billing_unavailable", "The payment provider cannot be reached; nothing was charged. Try again shortly.");
+  if (error instanceof Stripe.errors.StripeError) return new ApiError("payment_provider_error", `The payment provider refused the request: ${error.message}`);
+  return new ApiError("internal_error", "Something went wrong on our side.");
 }

@@ -1,11 +1,4 @@
 import { z } from "@/lib/zod";
-/** Policies of the catalogue routes: the same as the sweep routes (a check is a sweep). */
-import { SWEEP_READ, SWEEP_WRITE } from "@/lib/queue/api";
-
-/** Reading catalogues and checks: any member (finance too), and read or write tokens. */
-export const CATALOGUE_READ = SWEEP_READ;
-/** Uploading catalogues and running checks: engineers and owners, and write tokens. */
-export const CATALOGUE_WRITE = SWEEP_WRITE;
 
 /**
  * The largest multipart body an upload may send: twice the file limit (a table corrected on the

@@ -29,7 +29,7 @@ function problemField(problem: CatalogueProblem): string {
 export function catalogueProblemsError(problems: readonly CatalogueProblem[]): ApiError {
   const issues: FieldIssue[] = problems.map((problem) => ({ field: problemField(problem), message: describeProblem(problem) }));
   const summary = problems.length === 1 ? describeProblem(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describeProblem).join("; ")}${problems.length > 3 ? "; …" : ""}`;
-  return new ApiError(422, "invalid_catalogue", `The catalogue was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
+  return new ApiError("invalid_catalogue", `The catalogue was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
 }
 
 export interface CatalogueUpload {
@@ -83,10 +83,10 @@ export function catalogueSummary(row: Catalogue): CatalogueSummary {
 
 function catalogueNameOf(upload: CatalogueUpload): string {
   const name = (upload.name ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
-  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError(400, "validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
-  if (name === "") throw new ApiError(400, "validation_failed", "name: a catalogue needs a name (or a file name to take it from).", "name");
+  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError("validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
+  if (name === "") throw new ApiError("validation_failed", "name: a catalogue needs a name (or a file name to take it from).", "name");
   if (name.length > CATALOGUE_LIMITS.maxCatalogueNameLength) {
-    throw new ApiError(400, "validation_failed", `name: at most ${CATALOGUE_LIMITS.maxCatalogueNameLength} characters; got ${name.length}.`, "name");
+    throw new ApiError("validation_failed", `name: at most ${CATALOGUE_LIMITS.maxCatalogueNameLength} characters; got ${name.length}.`, "name");
   }
   return name;
 }
@@ -95,14 +95,14 @@ function catalogueNameOf(upload: CatalogueUpload): string {
 export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueUpload): Promise<{ catalogue: Catalogue; notes: string[] }> {
   const name = catalogueNameOf(upload);
   if (upload.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
-    throw new ApiError(413, "payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "file");
+    throw new ApiError("payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "file");
   }
   const parsed = parseCatalogueFile(upload.bytes, upload.fileName);
   if (!parsed.objects) throw catalogueProblemsError(parsed.problems);
   const objects = parsed.objects;
   const file = storedFile(upload.bytes, upload.fileName, "catalogue");
   if (upload.original && upload.original.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
-    throw new ApiError(413, "payload_too_large", `original: ${formatLimit(upload.original.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "original");
+    throw new ApiError("payload_too_large", `original: ${formatLimit(upload.original.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "original");
   }
   const original = upload.original ? storedFile(upload.original.bytes, upload.original.fileName, "catalogue") : null;
   const catalogue = await insertNextVersion(db, { table: catalogues, uniqueIndex: "catalogues_studio_name_version_uq", studioId, name }, async (tx, version) => {
@@ -139,7 +139,7 @@ export async function catalogueOfStudio(db: Db, studioId: string, catalogueId: s
     .select()
     .from(catalogues)
     .where(and(eq(catalogues.id, catalogueId), eq(catalogues.studioId, studioId)));
-  if (!row) throw new ApiError(404, "not_found", "Catalogue not found.");
+  if (!row) throw new ApiError("not_found", "Catalogue not found.");
   return row;
 }
 
@@ -169,7 +169,7 @@ export function catalogueUploadedFile(row: Catalogue): { fileName: string; bytes
 // Checks
 
 export function parseSettingsOrThrow(input: unknown): CheckSettings {
-  if (input === undefined) throw new ApiError(400, "invalid_settings", "settings: the game's settings are required (dtS, substeps, integrator, stiffness …).", "settings");
+  if (input === undefined) throw new ApiError("invalid_settings", "settings: the game's settings are required (dtS, substeps, integrator, stiffness …).", "settings");
   const parsed = checkSettingsSchema.safeParse(input);
   if (parsed.success) return parsed.data;
   const issues = parsed.error.issues.map((issue) => {
@@ -177,7 +177,7 @@ export function parseSettingsOrThrow(input: unknown): CheckSettings {
     return { field, message: issue.code === "unrecognized_keys" ? `unknown field "${issue.keys.join(", ")}"` : issue.message };
   });
   return (() => {
-    throw new ApiError(400, "invalid_settings", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
+    throw new ApiError("invalid_settings", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
   })();
 }
 
@@ -186,7 +186,7 @@ export function specOfCheck(catalogue: Catalogue, settings: CheckSettings) {
   try {
     return checkSpec(catalogue.name, catalogue.version, catalogue.objects as CatalogueObject[], settings);
   } catch (error) {
-    if (error instanceof CheckInputError) throw new ApiError(400, "invalid_settings", `settings.${error.field}: ${error.message}`, `settings.${error.field}`);
+    if (error instanceof CheckInputError) throw new ApiError("invalid_settings", `settings.${error.field}: ${error.message}`, `settings.${error.field}`);
     throw error;
   }
 }
@@ -219,7 +219,7 @@ export async function checkOfCatalogue(db: Db, catalogue: Catalogue, checkId: st
     .select()
     .from(catalogueChecks)
     .where(and(eq(catalogueChecks.id, checkId), eq(catalogueChecks.catalogueId, catalogue.id), eq(catalogueChecks.studioId, catalogue.studioId)));
-  if (!row) throw new ApiError(404, "not_found", "Catalogue check not found.");
+  if (!row) throw new ApiError("not_found", "Catalogue check not found.");
   return row;
 }
 

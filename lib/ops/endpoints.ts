@@ -47,8 +47,8 @@ export async function readinessResponse(
       "the database",
     );
   } catch (error) {
-    return errorResponse(new ApiError(503, "not_ready", `Not ready: ${error instanceof Error ? error.message : String(error)}`, "database"));
+    return errorResponse(new ApiError("not_ready", `Not ready: ${error instanceof Error ? error.message : String(error)}`, "database"));
   }
-  if (extra.failure) return errorResponse(new ApiError(503, "not_ready", `Not ready: ${extra.failure}`));
+  if (extra.failure) return errorResponse(new ApiError("not_ready", `Not ready: ${extra.failure}`));
   return json({ status: "ready", role, database: databaseKind(), ...extra.details });
 }

@@ -2,15 +2,9 @@
 import { and, asc, count, desc, eq, ilike, isNotNull, type SQL } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { SWEEP_STATUSES, sweeps, users, type Sweep, type SweepStatus } from "@/db/schema";
-import type { RoutePolicy } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
 import { z } from "@/lib/zod";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
-
-/** Reading sweeps: any member, and API tokens with the read (or write) scope. */
-export const SWEEP_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
-/** Quoting, submitting, cancelling, re-running: engineers and owners, and write tokens (finance gets 403). */
-export const SWEEP_WRITE = { access: "studio", roles: ["owner", "engineer"], token: "write" } as const satisfies RoutePolicy;
 
 /** The sweep, if it belongs to the studio; otherwise the same 404 as a sweep that does not exist. */
 export async function sweepOfStudio(db: Db, studioId: string, sweepId: string): Promise<Sweep> {
@@ -18,15 +12,15 @@ export async function sweepOfStudio(db: Db, studioId: string, sweepId: string): 
     .select()
     .from(sweeps)
     .where(and(eq(sweeps.id, sweepId), eq(sweeps.studioId, studioId)));
-  if (!sweep) throw new ApiError(404, "not_found", "Sweep not found.");
+  if (!sweep) throw new ApiError("not_found", "Sweep not found.");
   return sweep;
 }
 
 /** A cell index from the URL: a plain non-negative integer below the sweep's cell count, else 404. */
 export function cellIndexParam(raw: string, sweep: Sweep): number {
-  if (!/^(0|[1-9][0-9]{0,8})$/.test(raw)) throw new ApiError(404, "not_found", `Cell "${raw}" not found: a cell index is an integer from 0 to ${sweep.cells - 1}.`);
+  if (!/^(0|[1-9][0-9]{0,8})$/.test(raw)) throw new ApiError("not_found", `Cell "${raw}" not found: a cell index is an integer from 0 to ${sweep.cells - 1}.`);
   const index = Number(raw);
-  if (index >= sweep.cells) throw new ApiError(404, "not_found", `Cell ${index} not found: the sweep has cells 0 to ${sweep.cells - 1}.`);
+  if (index >= sweep.cells) throw new ApiError("not_found", `Cell ${index} not found: the sweep has cells 0 to ${sweep.cells - 1}.`);
   return index;
 }
 
@@ -49,18 +43,18 @@ function intParam(url: URL, name: string, fallback: number, min: number, max: nu
   const raw = url.searchParams.get(name);
   if (raw === null || raw === "") return fallback;
   if (!/^[0-9]{1,9}$/.test(raw) || Number(raw) < min || Number(raw) > max)
-    throw new ApiError(400, "validation_failed", `${name} must be an integer from ${min} to ${max}; got "${raw}".`, name);
+    throw new ApiError("validation_failed", `${name} must be an integer from ${min} to ${max}; got "${raw}".`, name);
   return Number(raw);
 }
 
 export function parseListQuery(url: URL): ListQuery {
   const status = url.searchParams.get("status");
   if (status !== null && status !== "" && !(SWEEP_STATUSES as readonly string[]).includes(status))
-    throw new ApiError(400, "validation_failed", `status must be one of ${SWEEP_STATUSES.join(", ")}; got "${status}".`, "status");
+    throw new ApiError("validation_failed", `status must be one of ${SWEEP_STATUSES.join(", ")}; got "${status}".`, "status");
   const q = (url.searchParams.get("q") ?? "").trim();
-  if (q.length > MAX_SEARCH_LENGTH) throw new ApiError(400, "validation_failed", `q must be at most ${MAX_SEARCH_LENGTH} characters; got ${q.length}.`, "q");
+  if (q.length > MAX_SEARCH_LENGTH) throw new ApiError("validation_failed", `q must be at most ${MAX_SEARCH_LENGTH} characters; got ${q.length}.`, "q");
   const createdBy = (url.searchParams.get("createdBy") ?? "").trim();
-  if (createdBy.length > 200) throw new ApiError(400, "validation_failed", `createdBy must be a member id of at most 200 characters; got ${createdBy.length}.`, "createdBy");
+  if (createdBy.length > 200) throw new ApiError("validation_failed", `createdBy must be a member id of at most 200 characters; got ${createdBy.length}.`, "createdBy");
   return {
     status: status ? (status as SweepStatus) : undefined,
     ...(q ? { q } : {}),
@@ -119,9 +113,9 @@ export function cursorParam(url: URL, name = "after"): bigint | null {
   if (raw === null) return null;
   const shown = raw.length > 40 ? `${raw.slice(0, 40)}…` : raw;
   const limit = `${name} must be a whole number from 0 to ${MAX_CURSOR} (the cursor of an earlier answer); got "${shown}".`;
-  if (!/^[0-9]{1,19}$/.test(raw)) throw new ApiError(400, "validation_failed", limit, name);
+  if (!/^[0-9]{1,19}$/.test(raw)) throw new ApiError("validation_failed", limit, name);
   const value = BigInt(raw);
-  if (value > MAX_CURSOR) throw new ApiError(400, "validation_failed", limit, name);
+  if (value > MAX_CURSOR) throw new ApiError("validation_failed", limit, name);
   return value;
 }
 

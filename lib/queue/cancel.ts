@@ -16,10 +16,10 @@ export async function cancelSweep(db: Db, studioId: string, sweepId: string, by:
       .from(sweeps)
       .where(and(eq(sweeps.id, sweepId), eq(sweeps.studioId, studioId)))
       .for("update");
-    if (!sweep) throw new ApiError(404, "not_found", "Sweep not found.");
+    if (!sweep) throw new ApiError("not_found", "Sweep not found.");
     if (sweep.status === "cancelled") return sweep;
     if (sweep.status === "done" || sweep.status === "failed")
-      throw new ApiError(409, "invalid_state", `The sweep is already ${sweep.status}; only queued, running or paused sweeps can be cancelled.`, "status");
+      throw new ApiError("invalid_state", `The sweep is already ${sweep.status}; only queued, running or paused sweeps can be cancelled.`, "status");
     await tx
       .update(sweepChunks)
       .set({ status: "cancelled" })

@@ -66,14 +66,14 @@ export interface QuoteMoney {
 
 /** Parses a spec from a request body; field paths are prefixed with "spec." as the body names them. */
 export function parseSpecOrThrow(input: unknown, prefix = "spec"): SweepSpec {
-  if (input === undefined) throw new ApiError(422, "invalid_spec", `${prefix}: a sweep spec is required.`, prefix, [{ field: prefix, message: "a sweep spec is required" }]);
+  if (input === undefined) throw new ApiError("invalid_spec", `${prefix}: a sweep spec is required.`, prefix, [{ field: prefix, message: "a sweep spec is required" }]);
   const parsed = parseSweepSpec(input);
   if (parsed.ok) return parsed.spec;
   const issues = parsed.issues.map((issue) => ({
     field: issue.field === "(spec)" ? prefix : `${prefix}.${issue.field}`,
     message: issue.message,
   }));
-  throw new ApiError(422, "invalid_spec", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
+  throw new ApiError("invalid_spec", `${issues[0].field}: ${issues[0].message}`, issues[0].field, issues);
 }
 
 interface Plan {
@@ -286,9 +286,7 @@ export async function submitSweep(db: Db, studioId: string, input: SubmitInput, 
     // lock on the studio row when inside the transaction.
     await enforceSubmitLimits(tx, studioId, demandOf(plan));
     if (input.acceptedQuoteMs !== undefined && plan.meter.ceilingMs > input.acceptedQuoteMs) {
-      throw new ApiError(
-        409,
-        "quote_changed",
+      throw new ApiError("quote_changed",
         `The ceiling is now ${plan.meter.ceilingMs} ms, above the accepted quote of ${input.acceptedQuoteMs} ms: ask for a new quote.`,
         "acceptedQuoteMs",
       );

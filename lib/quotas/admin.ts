@@ -51,7 +51,7 @@ const QUOTA_KEYS = ["monthlyComputeMs", "maxRunningSweeps", "maxCellsPerSweep", 
 
 async function lockStudio(tx: Parameters<Parameters<Db["transaction"]>[0]>[0], studioId: string) {
   const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId)).for("update");
-  if (!studio) throw new ApiError(404, "not_found", "Studio not found.");
+  if (!studio) throw new ApiError("not_found", "Studio not found.");
   return studio;
 }
 
@@ -153,9 +153,7 @@ export async function adjustCredit(
       .where(eq(ledgerEntries.studioId, studioId));
     const balance = Number(total);
     if (input.computeMs < 0 && balance + input.computeMs < 0)
-      throw new ApiError(
-        422,
-        "validation_failed",
+      throw new ApiError("invalid_value",
         // In minutes, the unit the admin screen takes and shows; the field stays the API's computeMs.
         `computeMs: cannot revoke ${formatCompute(-input.computeMs)}; the studio's balance is ${formatCompute(balance)}.`,
         "computeMs",
@@ -180,7 +178,7 @@ export async function adjustCredit(
       });
   });
   const [entry] = await db.select().from(ledgerEntries).where(eq(ledgerEntries.idempotencyKey, key));
-  if (entry.studioId !== studioId) throw new ApiError(404, "not_found", "Studio not found.");
+  if (entry.studioId !== studioId) throw new ApiError("not_found", "Studio not found.");
   const standing = await studioStanding(db, studioId);
   return { adjustment: adjustmentView(entry), created, balanceMs: standing.balanceMs };
 }
@@ -241,8 +239,8 @@ export const platformRoleSchema = z.strictObject({
 export async function setPlatformRole(db: Db, actor: Actor, userId: string, input: z.infer<typeof platformRoleSchema>): Promise<{ id: string; email: string; isAdmin: boolean }> {
   return db.transaction(async (tx) => {
     const [user] = await tx.select().from(users).where(eq(users.id, userId)).for("update");
-    if (!user) throw new ApiError(404, "not_found", "User not found.");
-    if (user.id === actor.id && !input.isAdmin) throw new ApiError(409, "invalid_state", "You cannot remove your own admin role; ask another admin.", "isAdmin");
+    if (!user) throw new ApiError("not_found", "User not found.");
+    if (user.id === actor.id && !input.isAdmin) throw new ApiError("invalid_state", "You cannot remove your own admin role; ask another admin.", "isAdmin");
     if (user.isAdmin !== input.isAdmin) {
       await tx.update(users).set({ isAdmin: input.isAdmin }).where(eq(users.id, userId));
       await writeAudit(tx, {
@@ -324,7 +322,7 @@ export async function adminStudioList(db: Db): Promise<StudioUsageView[]> {
 
 export async function adminStudioDetail(db: Db, studioId: string) {
   const [studio] = await db.select().from(studios).where(eq(studios.id, studioId));
-  if (!studio) throw new ApiError(404, "not_found", "Studio not found.");
+  if (!studio) throw new ApiError("not_found", "Studio not found.");
   const members = await db
     .select({ userId: users.id, email: users.email, name: users.name, role: memberships.role, joinedAt: memberships.joinedAt })
     .from(memberships)

@@ -128,7 +128,7 @@ function standingFromRow(row: StandingRow, monthKey: string): Standing {
 
 export async function studioStanding(db: DbOrTx, studioId: string, at: Date = new Date()): Promise<Standing> {
   const standing = await readStanding(db, studioId, at, false);
-  if (!standing) throw new ApiError(404, "not_found", "Studio not found.");
+  if (!standing) throw new ApiError("not_found", "Studio not found.");
   return standing;
 }
 
@@ -159,7 +159,6 @@ export interface SweepDemand {
 }
 
 export interface LimitViolation {
-  status: 402 | 409 | 422;
   code: "quota_exceeded" | "insufficient_minutes" | "studio_suspended";
   name: keyof Quotas | "balance" | "status";
   value: number;
@@ -178,7 +177,6 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
   const q = s.quotas;
   if (s.studioStatus === "suspended")
     out.push({
-      status: 409,
       code: "studio_suspended",
       name: "status",
       value: 0,
@@ -197,7 +195,6 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
     const value = q[name] as number;
     if (requested > value)
       out.push({
-        status: 422,
         code: "quota_exceeded",
         name,
         value,
@@ -212,7 +209,6 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
     const monthLeft = monthRemainingMs(s);
     if (demand.ceilingMs > monthLeft)
       out.push({
-        status: 422,
         code: "quota_exceeded",
         name: "monthlyComputeMs",
         value: q.monthlyComputeMs,
@@ -225,7 +221,6 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
     const funds = spendableMs(s);
     if (demand.ceilingMs > funds)
       out.push({
-        status: 402,
         code: "insufficient_minutes",
         name: "balance",
         value: s.balanceMs,
@@ -246,11 +241,11 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
  */
 export async function enforceSubmitLimits(tx: DbOrTx, studioId: string, demand: SweepDemand, at: Date = new Date()): Promise<Standing> {
   const standing = await readStanding(tx, studioId, at, true);
-  if (!standing) throw new ApiError(404, "not_found", "Studio not found.");
+  if (!standing) throw new ApiError("not_found", "Studio not found.");
   const [first] = limitViolations(standing, demand);
   if (first) {
-    const { status, code, message, field, name, value, requested, remaining, unit } = first;
-    throw new LimitError(status, code, message, { name, value, requested, remaining, unit }, field);
+    const { code, message, field, name, value, requested, remaining, unit } = first;
+    throw new LimitError(code, message, { name, value, requested, remaining, unit }, field);
   }
   return standing;
 }

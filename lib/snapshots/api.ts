@@ -1,13 +1,7 @@
-/** Policies and body reading of the snapshot routes. */
+/** Body reading of the snapshot routes (their policies are in lib/auth/policies.ts). */
 import { readMultipart, type UploadedFile } from "@/lib/api/multipart";
-import { SWEEP_READ, SWEEP_WRITE } from "@/lib/queue/api";
 import { ApiError } from "@/lib/errors";
 import { SNAPSHOT_LIMITS } from "./format";
-
-/** Reading snapshots: any member (finance too), and read or write tokens. */
-export const SNAPSHOT_READ = SWEEP_READ;
-/** Uploading snapshots: engineers and owners, and write tokens (the same as running sweeps). */
-export const SNAPSHOT_WRITE = SWEEP_WRITE;
 
 /** The largest body an upload may send: the file limit plus room for multipart framing. */
 export const MAX_SNAPSHOT_BODY_BYTES = SNAPSHOT_LIMITS.maxFileBytes + 16 * 1024;
@@ -21,13 +15,13 @@ export async function readSnapshotUpload(req: Request): Promise<{ name?: string;
   const type = req.headers.get("content-type") ?? "";
   if (/^multipart\/form-data\s*;/i.test(type)) {
     const { fields, file } = await readMultipart(req, MAX_SNAPSHOT_BODY_BYTES, LIMIT_TEXT);
-    if (!file) throw new ApiError(400, "validation_failed", 'file: attach the snapshot (JSON) in a field named "file".', "file");
+    if (!file) throw new ApiError("validation_failed", 'file: attach the snapshot (JSON) in a field named "file".', "file");
     return { name: fields.get("name"), file };
   }
   if (!/^application\/json\b/i.test(type)) {
-    throw new ApiError(415, "validation_failed", 'The body must be the snapshot JSON (content-type application/json) or multipart/form-data with the file in a field named "file".', "file");
+    throw new ApiError("unsupported_media_type", 'The body must be the snapshot JSON (content-type application/json) or multipart/form-data with the file in a field named "file".', "file");
   }
-  const tooLarge = () => new ApiError(413, "payload_too_large", `file: the upload exceeds the limit (${LIMIT_TEXT}).`, "file");
+  const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${LIMIT_TEXT}).`, "file");
   const declared = req.headers.get("content-length");
   if (declared !== null && Number(declared) > SNAPSHOT_LIMITS.maxFileBytes) throw tooLarge();
   const chunks: Uint8Array[] = [];

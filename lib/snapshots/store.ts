@@ -25,7 +25,7 @@ export function snapshotProblemsError(problems: readonly SnapshotProblem[]): Api
   const issues: FieldIssue[] = problems.map((problem) => ({ field: problem.path === "(file)" ? "file" : `file.${problem.path}`, message: problem.reason }));
   const describe = (problem: SnapshotProblem) => `${problemPlace(problem.path)}: ${problem.reason}`;
   const summary = problems.length === 1 ? describe(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describe).join("; ")}${problems.length > 3 ? "; …" : ""}`;
-  return new ApiError(422, "invalid_snapshot", `The snapshot was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
+  return new ApiError("invalid_snapshot", `The snapshot was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
 }
 
 export interface SnapshotUpload {
@@ -69,16 +69,16 @@ export function snapshotSummary(row: Snapshot): SnapshotSummary {
 
 function nameOf(upload: SnapshotUpload, fileName: string | undefined): string {
   const name = (upload.name ?? fileName ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
-  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError(400, "validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
-  if (name === "") throw new ApiError(400, "validation_failed", "name: a snapshot needs a name (in the form, in the file, or from the file name).", "name");
-  if (name.length > SNAPSHOT_LIMITS.maxNameLength) throw new ApiError(400, "validation_failed", `name: at most ${SNAPSHOT_LIMITS.maxNameLength} characters; got ${name.length}.`, "name");
+  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError("validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
+  if (name === "") throw new ApiError("validation_failed", "name: a snapshot needs a name (in the form, in the file, or from the file name).", "name");
+  if (name.length > SNAPSHOT_LIMITS.maxNameLength) throw new ApiError("validation_failed", `name: at most ${SNAPSHOT_LIMITS.maxNameLength} characters; got ${name.length}.`, "name");
   return name;
 }
 
 /** Parses, checks and stores a snapshot file as the next version of its name; nothing is stored on any problem. */
 export async function saveSnapshot(db: Db, studioId: string, upload: SnapshotUpload): Promise<Snapshot> {
   if (upload.bytes.length > SNAPSHOT_LIMITS.maxFileBytes) {
-    throw new ApiError(413, "payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(SNAPSHOT_LIMITS.maxFileBytes)} bytes (4 MiB).`, "file");
+    throw new ApiError("payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(SNAPSHOT_LIMITS.maxFileBytes)} bytes (4 MiB).`, "file");
   }
   const parsed = parseSnapshotFile(upload.bytes);
   if (!parsed.ok) throw snapshotProblemsError(parsed.problems);
@@ -114,7 +114,7 @@ export async function snapshotOfStudio(db: Db, studioId: string, snapshotId: str
     .select()
     .from(snapshots)
     .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
-  if (!row) throw new ApiError(404, "not_found", "Snapshot not found.");
+  if (!row) throw new ApiError("not_found", "Snapshot not found.");
   return row;
 }
 
@@ -176,13 +176,13 @@ export async function resolveSnapshotReference(db: Db, studioId: string, spec: u
   const field = "spec.scenario.scene.snapshotId";
   const { snapshotId, ...rest } = scene;
   if (typeof snapshotId !== "string" || snapshotId === "") {
-    throw new ApiError(422, "invalid_spec", `${field}: must be the id of one of the studio's snapshots.`, field, [{ field, message: "must be the id of one of the studio's snapshots" }]);
+    throw new ApiError("invalid_spec", `${field}: must be the id of one of the studio's snapshots.`, field, [{ field, message: "must be the id of one of the studio's snapshots" }]);
   }
   const [row] = await db
     .select()
     .from(snapshots)
     .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
-  if (!row) throw new ApiError(422, "invalid_spec", `${field}: no snapshot ${JSON.stringify(snapshotId)} in this studio.`, field, [{ field, message: `no snapshot ${JSON.stringify(snapshotId)} in this studio` }]);
+  if (!row) throw new ApiError("invalid_spec", `${field}: no snapshot ${JSON.stringify(snapshotId)} in this studio.`, field, [{ field, message: `no snapshot ${JSON.stringify(snapshotId)} in this studio` }]);
   const stored = row.scene as SnapshotScene;
   const inline = { ...stored, ...rest, bodies: stored.bodies, walls: stored.walls, kind: "snapshot" };
   const typed = spec as { scenario: Record<string, unknown> };

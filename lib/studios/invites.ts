@@ -59,13 +59,13 @@ export async function createInvite(
   const secret = newSecret();
   const { invite, studioName } = await db.transaction(async (tx) => {
     const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId));
-    if (!studio) throw new ApiError(404, "not_found", "Studio not found.");
+    if (!studio) throw new ApiError("not_found", "Studio not found.");
     const [member] = await tx
       .select({ userId: users.id })
       .from(memberships)
       .innerJoin(users, eq(users.id, memberships.userId))
       .where(and(eq(memberships.studioId, studioId), eq(users.email, input.email)));
-    if (member) throw new ApiError(409, "already_member", `${input.email} is already a member of this studio.`, "email");
+    if (member) throw new ApiError("already_member", `${input.email} is already a member of this studio.`, "email");
     await tx.delete(invites).where(and(eq(invites.studioId, studioId), eq(invites.email, input.email), isNull(invites.acceptedAt)));
     const [row] = await tx
       .insert(invites)
@@ -103,7 +103,7 @@ export async function deleteInvite(studioId: string, inviteId: string, actor: Pi
       .delete(invites)
       .where(and(eq(invites.id, inviteId), eq(invites.studioId, studioId), isNull(invites.acceptedAt)))
       .returning({ id: invites.id, email: invites.email, role: invites.role });
-    if (deleted.length === 0) throw new ApiError(404, "not_found", "Invite not found.");
+    if (deleted.length === 0) throw new ApiError("not_found", "Invite not found.");
     await writeAudit(tx, { actor, studioId, action: "invite.withdraw", subjectType: "invite", subjectId: inviteId, before: { email: deleted[0].email, role: deleted[0].role }, after: null });
   });
 }
@@ -130,7 +130,7 @@ async function findInviteBySecret(secret: string) {
 /** What the invite page shows before accepting; anyone holding the link may see it. */
 export async function describeInvite(secret: string): Promise<PublicInviteView> {
   const row = await findInviteBySecret(secret);
-  if (!row) throw new ApiError(404, "not_found", "Invite not found.");
+  if (!row) throw new ApiError("not_found", "Invite not found.");
   return {
     studio: { id: row.studio.id, name: row.studio.name },
     email: row.invite.email,
@@ -151,13 +151,13 @@ export async function acceptInvite(secret: string, user: User): Promise<{ id: st
       .innerJoin(studios, eq(studios.id, invites.studioId))
       .where(eq(invites.tokenHash, sha256Hex(secret)))
       .for("update", { of: invites });
-    if (!row) throw new ApiError(404, "not_found", "Invite not found.");
+    if (!row) throw new ApiError("not_found", "Invite not found.");
     const { invite, studio } = row;
-    if (invite.acceptedAt) throw new ApiError(410, "invite_used", "This invite has already been used.");
+    if (invite.acceptedAt) throw new ApiError("invite_used", "This invite has already been used.");
     if (invite.expiresAt.getTime() <= Date.now())
-      throw new ApiError(410, "invite_expired", "This invite has expired; ask an owner of the studio for a new one.");
+      throw new ApiError("invite_expired", "This invite has expired; ask an owner of the studio for a new one.");
     if (invite.email !== user.email.toLowerCase())
-      throw new ApiError(403, "invite_email_mismatch", `This invite is for ${invite.email}; sign in with that address to accept it.`);
+      throw new ApiError("invite_email_mismatch", `This invite is for ${invite.email}; sign in with that address to accept it.`);
     const now = new Date();
     await tx.update(invites).set({ acceptedAt: now, acceptedByUserId: user.id }).where(eq(invites.id, invite.id));
     const [existing] = await tx

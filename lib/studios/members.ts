@@ -25,7 +25,7 @@ export async function listMembers(studioId: string): Promise<MemberView[]> {
 }
 
 const lastOwner = (action: string) =>
-  new ApiError(409, "last_owner", `A studio needs at least one owner: make another member owner before you ${action} the last one.`);
+  new ApiError("last_owner", `A studio needs at least one owner: make another member owner before you ${action} the last one.`);
 
 /**
  * Locks the studio's membership rows, so two concurrent changes cannot both see "another owner
@@ -43,7 +43,7 @@ export async function changeRole(studioId: string, userId: string, role: StudioR
   await db.transaction(async (tx) => {
     const rows = await lockMembers(tx, studioId);
     const target = rows.find((r) => r.userId === userId);
-    if (!target) throw new ApiError(404, "not_found", "Member not found.");
+    if (!target) throw new ApiError("not_found", "Member not found.");
     if (target.role === role) return;
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("demote");
@@ -54,7 +54,7 @@ export async function changeRole(studioId: string, userId: string, role: StudioR
     await writeAudit(tx, { actor, studioId, action: "member.role_change", subjectType: "user", subjectId: userId, before: { role: target.role }, after: { role } });
   });
   const member = (await listMembers(studioId)).find((m) => m.userId === userId);
-  if (!member) throw new ApiError(404, "not_found", "Member not found.");
+  if (!member) throw new ApiError("not_found", "Member not found.");
   return member;
 }
 
@@ -63,7 +63,7 @@ export async function removeMember(studioId: string, userId: string, actor: Chan
   await db.transaction(async (tx) => {
     const rows = await lockMembers(tx, studioId);
     const target = rows.find((r) => r.userId === userId);
-    if (!target) throw new ApiError(404, "not_found", "Member not found.");
+    if (!target) throw new ApiError("not_found", "Member not found.");
     const owners = rows.filter((r) => r.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw lastOwner("remove");
     await tx.delete(memberships).where(and(eq(memberships.studioId, studioId), eq(memberships.userId, userId)));

@@ -105,7 +105,7 @@ export async function listEndpoints(db: Db, studioId: string): Promise<EndpointV
 /** Registers an endpoint; the secret is answered once, here. */
 export async function createEndpoint(db: Db, studioId: string, user: Pick<User, "id">, input: z.infer<typeof createEndpointSchema>): Promise<{ endpoint: EndpointView; secret: string }> {
   const [{ n }] = await db.select({ n: sql<number>`count(*)::int` }).from(webhookEndpoints).where(and(eq(webhookEndpoints.studioId, studioId), isNull(webhookEndpoints.disabledAt)));
-  if (Number(n) >= MAX_ENDPOINTS_PER_STUDIO) throw new ApiError(422, "validation_failed", `A studio has at most ${MAX_ENDPOINTS_PER_STUDIO} webhook endpoints; remove one first.`, "url");
+  if (Number(n) >= MAX_ENDPOINTS_PER_STUDIO) throw new ApiError("invalid_value", `A studio has at most ${MAX_ENDPOINTS_PER_STUDIO} webhook endpoints; remove one first.`, "url");
   const secret = newWebhookSecret();
   const [row] = await db.insert(webhookEndpoints).values({ id: newId("whk"), studioId, url: input.url, eventTypes: input.events, secret, createdByUserId: user.id }).returning();
   return { endpoint: { id: row.id, url: row.url, events: row.eventTypes as WebhookEventType[], createdAt: row.createdAt.toISOString(), deliveries: { delivered: 0, pending: 0, failed: 0 } }, secret };
@@ -113,7 +113,7 @@ export async function createEndpoint(db: Db, studioId: string, user: Pick<User, 
 
 async function endpointOfStudio(db: DbOrTx, studioId: string, endpointId: string): Promise<WebhookEndpoint> {
   const [row] = await db.select().from(webhookEndpoints).where(and(eq(webhookEndpoints.id, endpointId), eq(webhookEndpoints.studioId, studioId), isNull(webhookEndpoints.disabledAt)));
-  if (!row) throw new ApiError(404, "not_found", "Webhook endpoint not found.");
+  if (!row) throw new ApiError("not_found", "Webhook endpoint not found.");
   return row;
 }
 
@@ -168,7 +168,7 @@ export async function resendDelivery(db: Db, studioId: string, endpointId: strin
       .set({ status: "pending", resends: sql`${webhookDeliveries.resends} + 1` })
       .where(and(eq(webhookDeliveries.endpointId, endpointId), eq(webhookDeliveries.eventId, eventId)))
       .returning();
-    if (!row) throw new ApiError(404, "not_found", "No delivery of that event to this endpoint.");
+    if (!row) throw new ApiError("not_found", "No delivery of that event to this endpoint.");
     await enqueueOutbox(tx, { kind: WEBHOOK_KIND, idempotencyKey: `webhook:${endpointId}:${eventId}:resend:${row.resends}`, payload: { endpointId, eventId }, studioId });
   });
   const [view] = (await listDeliveries(db, studioId, endpointId, 1000)).filter((delivery) => delivery.eventId === eventId);

@@ -7,7 +7,7 @@ export const dynamic = "force-dynamic";
 // Any /api path without a route of its own: 404 JSON for every method (never the HTML not-found page).
 async function unknownRoute(req: Request): Promise<Response> {
   const { pathname } = new URL(req.url);
-  return errorResponse(new ApiError(404, "not_found", `No API route at ${req.method} ${pathname}.`));
+  return errorResponse(new ApiError("not_found", `No API route at ${req.method} ${pathname}.`));
 }
 
 export {

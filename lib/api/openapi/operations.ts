@@ -80,7 +80,8 @@ import {
 import { auditQuerySchema } from "@/lib/audit/audit";
 import { apiTokenViewSchema, createTokenSchema } from "@/lib/auth/api-tokens";
 import { passwordResetConfirmSchema, passwordResetRequestSchema, publicUserSchema, signUpSchema } from "@/lib/auth/accounts";
-import { BILLING_PEOPLE, BILLING_READERS, OWNERS_ONLY, type RoutePolicy } from "@/lib/auth/guard";
+import { type RoutePolicy } from "@/lib/auth/guard";
+import { BILLING_PEOPLE, BILLING_READERS, ENGINEERS_WRITE, MEMBERS_READ, OWNERS_ONLY, PLATFORM_ADMIN, PUBLIC, SIGNED_IN } from "@/lib/auth/policies";
 import { checkoutSchema } from "@/lib/billing/checkout";
 import { meterRetrySchema } from "@/lib/billing/finance-ops";
 import { adminRefundSchema } from "@/lib/billing/refunds";
@@ -89,11 +90,10 @@ import { billingDetailsSchema } from "@/lib/billing/details";
 import { overageSwitchSchema } from "@/lib/billing/overage-switch";
 import { financeQuerySchema } from "@/lib/billing/reconciliation-export";
 import { ledgerExportQuerySchema, ledgerGroupsQuerySchema } from "@/lib/ledger/statement";
-import { CATALOGUE_READ, CATALOGUE_WRITE, checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
+import { checkQuoteRequestSchema, submitCheckRequestSchema } from "@/lib/catalogues/api";
 import { checkSettingsSchema } from "@/lib/catalogues/check";
-import { SWEEP_READ, SWEEP_WRITE, quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
+import { quoteRequestSchema, rerunQuoteRequestSchema, rerunRequestSchema, submitSweepRequestSchema } from "@/lib/queue/api";
 import { adjustmentSchema, platformRoleSchema, quotaPatchSchema, statusChangeSchema } from "@/lib/quotas/admin";
-import { SNAPSHOT_READ, SNAPSHOT_WRITE } from "@/lib/snapshots/api";
 import { changeRoleSchema, memberViewSchema, roleSchema } from "@/lib/studios/members";
 import { createInviteSchema } from "@/lib/studios/invites";
 import { createEndpointSchema } from "@/lib/webhooks/webhooks";
@@ -133,10 +133,6 @@ export interface Operation {
   response?: z.ZodType;
 }
 
-const PUBLIC = { access: "public" } as const satisfies RoutePolicy;
-const USER = { access: "user" } as const satisfies RoutePolicy;
-const ADMIN = { access: "admin" } as const satisfies RoutePolicy;
-const MEMBERS_READ = { access: "studio", roles: "member", token: "read" } as const satisfies RoutePolicy;
 
 /** The sweep list's query (parsed by hand in lib/queue/api.ts: parseListQuery, with these limits). */
 const sweepListQuery = z.object({
@@ -185,15 +181,15 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "post", path: "/api/v1/signup", summary: "Create an account (the same answer whether or not the address has one)", tag: "Accounts", policy: PUBLIC, ok: 202, body: signUpSchema, response: signupAnswer },
   { method: "post", path: "/api/v1/password-reset", summary: "E-mail a password-reset link", tag: "Accounts", policy: PUBLIC, ok: 202, body: passwordResetRequestSchema, response: passwordResetAnswer },
   { method: "post", path: "/api/v1/password-reset/confirm", summary: "Set a new password with a reset token", tag: "Accounts", policy: PUBLIC, ok: 200, body: passwordResetConfirmSchema, response: passwordResetAnswer },
-  { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: USER, ok: 200, response: meAnswer },
-  { method: "delete", path: "/api/v1/me/sessions", summary: "Sign out everywhere (ends every session of the user)", tag: "Accounts", policy: USER, ok: 200, response: meSessionsAnswer },
+  { method: "get", path: "/api/v1/me", summary: "The signed-in user and their studios", tag: "Accounts", policy: SIGNED_IN, ok: 200, response: meAnswer },
+  { method: "delete", path: "/api/v1/me/sessions", summary: "Sign out everywhere (ends every session of the user)", tag: "Accounts", policy: SIGNED_IN, ok: 200, response: meSessionsAnswer },
   { method: "get", path: "/api/v1/token", summary: "The calling API token: its studio and scopes", tag: "Accounts", policy: PUBLIC, ok: 200, response: tokenAnswer },
   { method: "get", path: "/api/v1/invites/{token}", summary: "An invitation, by its secret", tag: "Accounts", policy: PUBLIC, ok: 200, response: inviteAnswer },
-  { method: "post", path: "/api/v1/invites/{token}/accept", summary: "Accept an invitation", tag: "Accounts", policy: USER, ok: 200, response: inviteAcceptAnswer },
-  { method: "get", path: "/api/v1/dev/mail", summary: "Captured mail of the demo's local mail fake (platform admins; demo, development and tests only)", tag: "Admin", policy: ADMIN, ok: 200, response: devMailAnswer },
+  { method: "post", path: "/api/v1/invites/{token}/accept", summary: "Accept an invitation", tag: "Accounts", policy: SIGNED_IN, ok: 200, response: inviteAcceptAnswer },
+  { method: "get", path: "/api/v1/dev/mail", summary: "Captured mail of the demo's local mail fake (platform admins; demo, development and tests only)", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: devMailAnswer },
   // Studios
-  { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: USER, ok: 200, response: studiosAnswer },
-  { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: USER, ok: 201, body: createStudioSchema, response: createdStudioAnswer },
+  { method: "get", path: "/api/v1/studios", summary: "The caller's studios", tag: "Studios", policy: SIGNED_IN, ok: 200, response: studiosAnswer },
+  { method: "post", path: "/api/v1/studios", summary: "Create a studio (the caller becomes its owner)", tag: "Studios", policy: SIGNED_IN, ok: 201, body: createStudioSchema, response: createdStudioAnswer },
   { method: "get", path: S, summary: "A studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: studioWithSuspensionAnswer },
   { method: "get", path: `${S}/members`, summary: "Members of a studio", tag: "Studios", policy: MEMBERS_READ, ok: 200, response: membersAnswer },
   { method: "patch", path: `${S}/members/{userId}`, summary: "Change a member's role", tag: "Studios", policy: OWNERS_ONLY, ok: 200, body: changeRoleSchema, response: memberPatchAnswer },
@@ -211,31 +207,31 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "post", path: `${S}/tokens`, summary: "Create an API token (its secret is shown once)", tag: "Studios", policy: OWNERS_ONLY, ok: 201, body: createTokenSchema, response: createdTokenAnswer },
   { method: "delete", path: `${S}/tokens/{tokenId}`, summary: "Revoke an API token", tag: "Studios", policy: OWNERS_ONLY, ok: 200, response: tokenDeleteAnswer },
   // Sweeps
-  { method: "post", path: `${S}/quotes`, summary: "Quote a sweep spec", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, body: quoteBody, response: quoteAnswer },
-  { method: "get", path: `${S}/sweeps`, summary: "Sweeps of a studio", tag: "Sweeps", policy: SWEEP_READ, ok: 200, query: sweepListQuery, response: sweepsAnswer },
-  { method: "post", path: `${S}/sweeps`, summary: "Submit a sweep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 201, body: submitBody, response: sweepAnswer },
-  { method: "get", path: `${S}/sweeps/{sweepId}`, summary: "A sweep and its progress", tag: "Sweeps", policy: SWEEP_READ, ok: 200, response: sweepAnswer },
-  { method: "post", path: `${S}/sweeps/{sweepId}/cancel`, summary: "Cancel a sweep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, response: sweepAnswer },
-  { method: "get", path: `${S}/sweeps/{sweepId}/cells`, summary: "The done cells (JSON or CSV; after= for the cells changed since a cursor)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: cellsQuery, response: cellsAnswer },
-  { method: "get", path: `${S}/sweeps/{sweepId}/cells/{index}`, summary: "One cell with its time series", tag: "Sweeps", policy: SWEEP_READ, ok: 200, response: cellAnswer },
-  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun`, summary: "Run one cell again at a smaller timestep", tag: "Sweeps", policy: SWEEP_WRITE, ok: 201, body: rerunRequestSchema, response: sweepAnswer },
-  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun/quote`, summary: "Quote a re-run of one cell at a smaller timestep (nothing starts)", tag: "Sweeps", policy: SWEEP_WRITE, ok: 200, body: rerunQuoteRequestSchema, response: quoteAnswer },
-  { method: "get", path: `${S}/sweeps/{sweepId}/envelope`, summary: "The safe envelope (JSON or CSV)", tag: "Sweeps", policy: SWEEP_READ, ok: 200, produces: "json-or-csv", query: envelopeQuery, response: envelopeAnswer },
+  { method: "post", path: `${S}/quotes`, summary: "Quote a sweep spec", tag: "Sweeps", policy: ENGINEERS_WRITE, ok: 200, body: quoteBody, response: quoteAnswer },
+  { method: "get", path: `${S}/sweeps`, summary: "Sweeps of a studio", tag: "Sweeps", policy: MEMBERS_READ, ok: 200, query: sweepListQuery, response: sweepsAnswer },
+  { method: "post", path: `${S}/sweeps`, summary: "Submit a sweep", tag: "Sweeps", policy: ENGINEERS_WRITE, ok: 201, body: submitBody, response: sweepAnswer },
+  { method: "get", path: `${S}/sweeps/{sweepId}`, summary: "A sweep and its progress", tag: "Sweeps", policy: MEMBERS_READ, ok: 200, response: sweepAnswer },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cancel`, summary: "Cancel a sweep", tag: "Sweeps", policy: ENGINEERS_WRITE, ok: 200, response: sweepAnswer },
+  { method: "get", path: `${S}/sweeps/{sweepId}/cells`, summary: "The done cells (JSON or CSV; after= for the cells changed since a cursor)", tag: "Sweeps", policy: MEMBERS_READ, ok: 200, produces: "json-or-csv", query: cellsQuery, response: cellsAnswer },
+  { method: "get", path: `${S}/sweeps/{sweepId}/cells/{index}`, summary: "One cell with its time series", tag: "Sweeps", policy: MEMBERS_READ, ok: 200, response: cellAnswer },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun`, summary: "Run one cell again at a smaller timestep", tag: "Sweeps", policy: ENGINEERS_WRITE, ok: 201, body: rerunRequestSchema, response: sweepAnswer },
+  { method: "post", path: `${S}/sweeps/{sweepId}/cells/{index}/rerun/quote`, summary: "Quote a re-run of one cell at a smaller timestep (nothing starts)", tag: "Sweeps", policy: ENGINEERS_WRITE, ok: 200, body: rerunQuoteRequestSchema, response: quoteAnswer },
+  { method: "get", path: `${S}/sweeps/{sweepId}/envelope`, summary: "The safe envelope (JSON or CSV)", tag: "Sweeps", policy: MEMBERS_READ, ok: 200, produces: "json-or-csv", query: envelopeQuery, response: envelopeAnswer },
   // Catalogues
-  { method: "get", path: `${S}/catalogues`, summary: "Catalogues of a studio", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, response: cataloguesAnswer },
-  { method: "post", path: `${S}/catalogues`, summary: "Upload a catalogue (CSV or JSON file)", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 201, upload: "catalogue", response: cataloguePostAnswer },
-  { method: "get", path: `${S}/catalogues/{catalogueId}`, summary: "A catalogue version", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, response: catalogueAnswer },
-  { method: "get", path: `${S}/catalogues/{catalogueId}/file`, summary: "The catalogue's original file", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, produces: "file" },
-  { method: "post", path: `${S}/catalogues/{catalogueId}/quote`, summary: "Quote a catalogue check", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 200, body: checkQuoteBody, response: checkQuoteAnswer },
-  { method: "get", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Checks of a catalogue", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, response: checksAnswer },
-  { method: "post", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Submit a catalogue check", tag: "Catalogues", policy: CATALOGUE_WRITE, ok: 201, body: checkSubmitBody, response: checkAnswer },
-  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}`, summary: "A catalogue check and its pair matrix", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, response: checkAnswer },
-  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}/export`, summary: "Export a check's pairs or matrix (JSON or CSV)", tag: "Catalogues", policy: CATALOGUE_READ, ok: 200, produces: "json-or-csv", query: checkExportQuery, response: checkExportAnswer },
+  { method: "get", path: `${S}/catalogues`, summary: "Catalogues of a studio", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, response: cataloguesAnswer },
+  { method: "post", path: `${S}/catalogues`, summary: "Upload a catalogue (CSV or JSON file)", tag: "Catalogues", policy: ENGINEERS_WRITE, ok: 201, upload: "catalogue", response: cataloguePostAnswer },
+  { method: "get", path: `${S}/catalogues/{catalogueId}`, summary: "A catalogue version", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, response: catalogueAnswer },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/file`, summary: "The catalogue's original file", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, produces: "file" },
+  { method: "post", path: `${S}/catalogues/{catalogueId}/quote`, summary: "Quote a catalogue check", tag: "Catalogues", policy: ENGINEERS_WRITE, ok: 200, body: checkQuoteBody, response: checkQuoteAnswer },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Checks of a catalogue", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, response: checksAnswer },
+  { method: "post", path: `${S}/catalogues/{catalogueId}/checks`, summary: "Submit a catalogue check", tag: "Catalogues", policy: ENGINEERS_WRITE, ok: 201, body: checkSubmitBody, response: checkAnswer },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}`, summary: "A catalogue check and its pair matrix", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, response: checkAnswer },
+  { method: "get", path: `${S}/catalogues/{catalogueId}/checks/{checkId}/export`, summary: "Export a check's pairs or matrix (JSON or CSV)", tag: "Catalogues", policy: MEMBERS_READ, ok: 200, produces: "json-or-csv", query: checkExportQuery, response: checkExportAnswer },
   // Snapshots
-  { method: "get", path: `${S}/snapshots`, summary: "Snapshots of a studio", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200, query: snapshotListQuery, response: snapshotsAnswer },
-  { method: "post", path: `${S}/snapshots`, summary: "Upload a scene snapshot (JSON file)", tag: "Snapshots", policy: SNAPSHOT_WRITE, ok: 201, upload: "snapshot", response: snapshotPostAnswer },
-  { method: "get", path: `${S}/snapshots/{snapshotId}`, summary: "A snapshot version", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200, response: snapshotAnswer },
-  { method: "get", path: `${S}/snapshots/{snapshotId}/file`, summary: "The snapshot's original file", tag: "Snapshots", policy: SNAPSHOT_READ, ok: 200, produces: "file" },
+  { method: "get", path: `${S}/snapshots`, summary: "Snapshots of a studio", tag: "Snapshots", policy: MEMBERS_READ, ok: 200, query: snapshotListQuery, response: snapshotsAnswer },
+  { method: "post", path: `${S}/snapshots`, summary: "Upload a scene snapshot (JSON file)", tag: "Snapshots", policy: ENGINEERS_WRITE, ok: 201, upload: "snapshot", response: snapshotPostAnswer },
+  { method: "get", path: `${S}/snapshots/{snapshotId}`, summary: "A snapshot version", tag: "Snapshots", policy: MEMBERS_READ, ok: 200, response: snapshotAnswer },
+  { method: "get", path: `${S}/snapshots/{snapshotId}/file`, summary: "The snapshot's original file", tag: "Snapshots", policy: MEMBERS_READ, ok: 200, produces: "file" },
   // Billing
   { method: "get", path: `${S}/billing`, summary: "Balance, packs and this month's usage", tag: "Billing", policy: BILLING_PEOPLE, ok: 200, response: billingAnswer },
   { method: "post", path: `${S}/billing/checkout`, summary: "Start buying a pack (a payment page URL)", tag: "Billing", policy: BILLING_PEOPLE, ok: 201, body: checkoutSchema, response: checkoutAnswer },
@@ -252,20 +248,20 @@ export const OPERATIONS: readonly Operation[] = [
   { method: "put", path: `${S}/billing/details`, summary: "Set the billing e-mail, address and tax ID (owners; tax ID is free text, no tax computed)", tag: "Billing", policy: OWNERS_ONLY, ok: 200, body: billingDetailsSchema, response: billingDetailsAnswer },
   { method: "post", path: "/api/v1/stripe/webhook", summary: "Stripe's signed event deliveries (for Stripe only)", tag: "Billing", policy: PUBLIC, ok: 200, internal: true, response: stripeWebhookAnswer },
   // Admin
-  { method: "get", path: "/api/v1/admin/studios", summary: "Every studio with its usage", tag: "Admin", policy: ADMIN, ok: 200, response: adminStudiosAnswer },
-  { method: "get", path: "/api/v1/admin/studios/{studioId}", summary: "A studio, as the platform sees it", tag: "Admin", policy: ADMIN, ok: 200, response: adminStudioAnswer },
-  { method: "get", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "A studio's quotas", tag: "Admin", policy: ADMIN, ok: 200, response: quotasAnswer },
-  { method: "patch", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "Change a studio's quotas", tag: "Admin", policy: ADMIN, ok: 200, body: quotaPatchSchema, response: quotasPatchAnswer },
-  { method: "get", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Credit adjustments of a studio", tag: "Admin", policy: ADMIN, ok: 200, response: adjustmentsAnswer },
-  { method: "post", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Adjust a studio's credit", tag: "Admin", policy: ADMIN, ok: 201, body: adjustmentSchema, response: adjustmentPostAnswer },
-  { method: "post", path: "/api/v1/admin/studios/{studioId}/refunds", summary: "Refund (part of) a pack purchase through Stripe; its minutes are taken back", tag: "Admin", policy: ADMIN, ok: 201, body: adminRefundSchema, response: refundAnswer },
-  { method: "put", path: "/api/v1/admin/studios/{studioId}/status", summary: "Suspend or reinstate a studio", tag: "Admin", policy: ADMIN, ok: 200, body: statusChangeSchema, response: statusAnswer },
-  { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: ADMIN, ok: 200, response: usersAnswer },
-  { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: ADMIN, ok: 200, body: platformRoleSchema, response: userPatchAnswer },
-  { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema, response: auditAnswer },
-  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good (format=csv: the reconciliation per studio and month, ms and minutes, cents and dollars)", tag: "Admin", policy: ADMIN, ok: 200, produces: "json-or-csv", query: financeQuerySchema, response: financeAnswer },
-  { method: "post", path: "/api/v1/admin/finance/meter-events/{outboxId}/retry", summary: "Queue a failed meter event again, as it was or under a new Stripe identifier (audited; 202 queued, 200 unchanged)", tag: "Admin", policy: ADMIN, ok: 202, alsoOk: [200], body: meterRetrySchema, response: meterRetryAnswer },
-  { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: ADMIN, ok: 200, response: queueAnswer },
+  { method: "get", path: "/api/v1/admin/studios", summary: "Every studio with its usage", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: adminStudiosAnswer },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}", summary: "A studio, as the platform sees it", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: adminStudioAnswer },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "A studio's quotas", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: quotasAnswer },
+  { method: "patch", path: "/api/v1/admin/studios/{studioId}/quotas", summary: "Change a studio's quotas", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, body: quotaPatchSchema, response: quotasPatchAnswer },
+  { method: "get", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Credit adjustments of a studio", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: adjustmentsAnswer },
+  { method: "post", path: "/api/v1/admin/studios/{studioId}/adjustments", summary: "Adjust a studio's credit", tag: "Admin", policy: PLATFORM_ADMIN, ok: 201, body: adjustmentSchema, response: adjustmentPostAnswer },
+  { method: "post", path: "/api/v1/admin/studios/{studioId}/refunds", summary: "Refund (part of) a pack purchase through Stripe; its minutes are taken back", tag: "Admin", policy: PLATFORM_ADMIN, ok: 201, body: adminRefundSchema, response: refundAnswer },
+  { method: "put", path: "/api/v1/admin/studios/{studioId}/status", summary: "Suspend or reinstate a studio", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, body: statusChangeSchema, response: statusAnswer },
+  { method: "get", path: "/api/v1/admin/users", summary: "Every user", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: usersAnswer },
+  { method: "patch", path: "/api/v1/admin/users/{userId}", summary: "Grant or revoke platform admin", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, body: platformRoleSchema, response: userPatchAnswer },
+  { method: "get", path: "/api/v1/admin/audit", summary: "The audit log (JSON or CSV)", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, produces: "json-or-csv", query: auditQuerySchema, response: auditAnswer },
+  { method: "get", path: "/api/v1/admin/finance", summary: "Revenue and usage across studios, and meter events that failed for good (format=csv: the reconciliation per studio and month, ms and minutes, cents and dollars)", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, produces: "json-or-csv", query: financeQuerySchema, response: financeAnswer },
+  { method: "post", path: "/api/v1/admin/finance/meter-events/{outboxId}/retry", summary: "Queue a failed meter event again, as it was or under a new Stripe identifier (audited; 202 queued, 200 unchanged)", tag: "Admin", policy: PLATFORM_ADMIN, ok: 202, alsoOk: [200], body: meterRetrySchema, response: meterRetryAnswer },
+  { method: "get", path: "/api/v1/admin/queue", summary: "The queue: running and waiting chunks", tag: "Admin", policy: PLATFORM_ADMIN, ok: 200, response: queueAnswer },
   // The document itself
   { method: "get", path: "/api/v1/openapi.json", summary: "This OpenAPI document", tag: "Reference", policy: PUBLIC, ok: 200, response: openApiDocumentAnswer },
 ];

@@ -4,11 +4,12 @@ import { clientAddress } from "@/lib/auth/limiter";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
+import { PUBLIC } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const POST = withAuth({ access: "public" }, async ({ req }) => {
+export const POST = withAuth(PUBLIC, async ({ req }) => {
   const input = await parseBody(req, signUpSchema);
   await signUp(input, clientAddress(req.headers));
   // The same answer whether the address was new or already had an account (its owner gets a mail).

@@ -4,12 +4,13 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { auditCsv, auditQuerySchema, listAudit } from "@/lib/audit/audit";
 import { withAuth } from "@/lib/auth/guard";
+import { PLATFORM_ADMIN } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 // Filters: studioId, action, actor (e-mail), from, to (ISO), limit; format=csv downloads the same rows.
-export const GET = withAuth({ access: "admin" }, async ({ req }) => {
+export const GET = withAuth(PLATFORM_ADMIN, async ({ req }) => {
   const query = parseWith(auditQuerySchema, Object.fromEntries(new URL(req.url).searchParams));
   const entries = await listAudit(await getDb(), query);
   if (query.format === "csv")

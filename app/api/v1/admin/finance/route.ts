@@ -5,12 +5,13 @@ import { json } from "@/lib/api/respond";
 import { parseWith } from "@/lib/api/body";
 import { financeView } from "@/lib/billing/finance-ops";
 import { financeQuerySchema, reconciliationByMonth, reconciliationCsv } from "@/lib/billing/reconciliation-export";
+import { PLATFORM_ADMIN } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 // format=csv: the reconciliation per studio and month, machine and displayed units in named columns.
-export const GET = withAuth({ access: "admin" }, async ({ req }) => {
+export const GET = withAuth(PLATFORM_ADMIN, async ({ req }) => {
   const query = parseWith(financeQuerySchema, Object.fromEntries(new URL(req.url).searchParams));
   const view = await financeView(await getDb());
   if (query.format === "csv")

@@ -7,6 +7,7 @@ import { json } from "@/lib/api/respond";
 import { billingConfig } from "@/lib/billing/stripe";
 import { handleStripeEvent } from "@/lib/billing/webhook";
 import { ApiError } from "@/lib/errors";
+import { PUBLIC } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -15,9 +16,9 @@ export const dynamic = "force-dynamic";
 const MAX_WEBHOOK_BYTES = 512 * 1024;
 
 // Public: Stripe calls it. Authenticity comes from the signature over the raw body, checked first.
-export const POST = withAuth({ access: "public" }, async ({ req }) => {
+export const POST = withAuth(PUBLIC, async ({ req }) => {
   const signature = req.headers.get("stripe-signature");
-  if (!signature) throw new ApiError(400, "invalid_signature", "The Stripe-Signature header is missing.", "stripe-signature");
+  if (!signature) throw new ApiError("invalid_signature", "The Stripe-Signature header is missing.", "stripe-signature");
   const raw = await readBodyText(req, MAX_WEBHOOK_BYTES);
   const { stripe, webhookSecret } = billingConfig();
   let event: unknown;
@@ -27,8 +28,8 @@ export const POST = withAuth({ access: "public" }, async ({ req }) => {
     // By the error's type, not instanceof: the SDK the client was built from may be another copy
     // of the module (its CommonJS and ESM builds load separately), whose classes differ.
     if (error instanceof Stripe.errors.StripeSignatureVerificationError || (error as { type?: unknown })?.type === "StripeSignatureVerificationError")
-      throw new ApiError(400, "invalid_signature", "The Stripe-Signature does not match the body (or is too old).", "stripe-signature");
-    throw new ApiError(400, "invalid_json", "The signed body is not a JSON event.");
+      throw new ApiError("invalid_signature", "The Stripe-Signature does not match the body (or is too old).", "stripe-signature");
+    throw new ApiError("invalid_json", "The signed body is not a JSON event.");
   }
   return json(await handleStripeEvent(await getDb(), stripe, event));
 });

@@ -1,5 +1,6 @@
 import { getDb } from "@/db/client";
-import { BILLING_PEOPLE, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { BILLING_PEOPLE } from "@/lib/auth/policies";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { billingSummary } from "@/lib/billing/queries";

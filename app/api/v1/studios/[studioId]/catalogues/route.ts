@@ -3,7 +3,8 @@ import { otherMethods } from "@/lib/api/methods";
 import { readMultipart } from "@/lib/api/multipart";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
-import { CATALOGUE_READ, CATALOGUE_WRITE, MAX_UPLOAD_BODY_BYTES } from "@/lib/catalogues/api";
+import { MAX_UPLOAD_BODY_BYTES } from "@/lib/catalogues/api";
+import { ENGINEERS_WRITE, MEMBERS_READ } from "@/lib/auth/policies";
 import { CATALOGUE_LIMITS } from "@/lib/catalogues/format";
 import { catalogueDetail, listCatalogues, saveCatalogue } from "@/lib/catalogues/store";
 import { ApiError } from "@/lib/errors";
@@ -11,13 +12,13 @@ import { ApiError } from "@/lib/errors";
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const GET = withAuth(CATALOGUE_READ, async ({ studio }) => {
+export const GET = withAuth(MEMBERS_READ, async ({ studio }) => {
   return json({ catalogues: await listCatalogues(await getDb(), studio.id), limits: CATALOGUE_LIMITS });
 });
 
-export const POST = withAuth(CATALOGUE_WRITE, async ({ req, studio, user }) => {
+export const POST = withAuth(ENGINEERS_WRITE, async ({ req, studio, user }) => {
   const { fields, file, files } = await readMultipart(req, MAX_UPLOAD_BODY_BYTES, `${CATALOGUE_LIMITS.maxFileBytes.toLocaleString("en-US")} bytes (256 KiB) per file`);
-  if (!file) throw new ApiError(400, "validation_failed", 'file: attach the catalogue (CSV or JSON) in a field named "file".', "file");
+  if (!file) throw new ApiError("validation_failed", 'file: attach the catalogue (CSV or JSON) in a field named "file".', "file");
   const db = await getDb();
   const { catalogue, notes } = await saveCatalogue(db, studio.id, {
     name: fields.get("name"),

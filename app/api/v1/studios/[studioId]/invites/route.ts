@@ -1,4 +1,5 @@
-import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { parseBody } from "@/lib/api/body";
 import { consumeRateLimit } from "@/lib/auth/rate-limits";
 import { otherMethods } from "@/lib/api/methods";

@@ -4,15 +4,16 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { resolveSnapshotReference } from "@/lib/snapshots/store";
-import { SWEEP_READ, SWEEP_WRITE, listSweeps, parseListQuery, submitSweepRequestSchema, sweepCreators } from "@/lib/queue/api";
+import { listSweeps, parseListQuery, submitSweepRequestSchema, sweepCreators } from "@/lib/queue/api";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
+import { ENGINEERS_WRITE, MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const GET = withAuth(SWEEP_READ, async ({ req, studio }) => {
+export const GET = withAuth(MEMBERS_READ, async ({ req, studio }) => {
   const query = parseListQuery(new URL(req.url));
   const db = await getDb();
   const { rows, total } = await listSweeps(db, studio.id, query);
@@ -23,7 +24,7 @@ export const GET = withAuth(SWEEP_READ, async ({ req, studio }) => {
   return json({ sweeps: list, page: query.page, pageSize: query.pageSize, total, creators });
 });
 
-export const POST = withAuth(SWEEP_WRITE, async ({ req, studio, user }) => {
+export const POST = withAuth(ENGINEERS_WRITE, async ({ req, studio, user }) => {
   const input = await parseBody(req, submitSweepRequestSchema);
   const db = await getDb();
   // A scene naming a stored snapshot gets its discs written in before the spec is checked and stored.

@@ -1,5 +1,6 @@
 import { createApiToken, createTokenSchema, listApiTokens } from "@/lib/auth/api-tokens";
-import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";

@@ -2,7 +2,8 @@ import { getDb } from "@/db/client";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
-import { OWNERS_ONLY, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { createEndpoint, createEndpointSchema, listEndpoints } from "@/lib/webhooks/webhooks";
 
 export const runtime = "nodejs";

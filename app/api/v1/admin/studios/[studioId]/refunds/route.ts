@@ -7,12 +7,13 @@ import { adminRefund, adminRefundSchema } from "@/lib/billing/refunds";
 import { billingConfig } from "@/lib/billing/stripe";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { adminStudioDetail } from "@/lib/quotas/admin";
+import { PLATFORM_ADMIN } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 // Refunds (part of) a pack purchase through Stripe; the minutes are taken back in the same call.
-export const POST = withAuth<{ access: "admin" }, { studioId: string }>({ access: "admin" }, async ({ req, params, user }) => {
+export const POST = withAuth<typeof PLATFORM_ADMIN, { studioId: string }>(PLATFORM_ADMIN, async ({ req, params, user }) => {
   const input = await parseBody(req, adminRefundSchema);
   const db = await getDb();
   await adminStudioDetail(db, params.studioId); // 404 for an unknown studio

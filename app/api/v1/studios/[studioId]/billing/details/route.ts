@@ -1,5 +1,6 @@
 import { getDb } from "@/db/client";
-import { BILLING_PEOPLE, OWNERS_ONLY, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { BILLING_PEOPLE, OWNERS_ONLY } from "@/lib/auth/policies";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";

@@ -1,5 +1,6 @@
 import { getDb } from "@/db/client";
-import { BILLING_READERS, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { BILLING_READERS } from "@/lib/auth/policies";
 import { parseWith } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";

@@ -1,4 +1,5 @@
-import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { deleteInvite } from "@/lib/studios/invites";

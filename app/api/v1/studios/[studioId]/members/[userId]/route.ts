@@ -1,4 +1,5 @@
-import { OWNERS_ONLY, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";

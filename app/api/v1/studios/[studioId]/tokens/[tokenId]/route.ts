@@ -1,5 +1,6 @@
 import { revokeApiToken } from "@/lib/auth/api-tokens";
-import { withAuth, OWNERS_ONLY } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 

@@ -3,7 +3,7 @@ import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
-import { CATALOGUE_READ, CATALOGUE_WRITE } from "@/lib/catalogues/api";
+import { ENGINEERS_WRITE, MEMBERS_READ } from "@/lib/auth/policies";
 import { catalogueOfStudio, checkView, listChecks, submitCheck } from "@/lib/catalogues/store";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitCheckRequestSchema } from "@/lib/catalogues/api";
@@ -14,14 +14,14 @@ export const dynamic = "force-dynamic";
 type Params = { studioId: string; catalogueId: string };
 
 
-export const GET = withAuth<typeof CATALOGUE_READ, Params>(CATALOGUE_READ, async ({ studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, Params>(MEMBERS_READ, async ({ studio, params }) => {
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);
   return json({ checks: await listChecks(db, catalogue) });
 });
 
 /** Runs a check: its pair sweep is submitted (balance and quote checks included) and queued like any sweep. */
-export const POST = withAuth<typeof CATALOGUE_WRITE, Params>(CATALOGUE_WRITE, async ({ req, studio, user, params }) => {
+export const POST = withAuth<typeof ENGINEERS_WRITE, Params>(ENGINEERS_WRITE, async ({ req, studio, user, params }) => {
   const input = await parseBody(req, submitCheckRequestSchema);
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);

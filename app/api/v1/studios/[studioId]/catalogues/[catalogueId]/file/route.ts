@@ -1,7 +1,7 @@
 import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
-import { CATALOGUE_READ } from "@/lib/catalogues/api";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 import { catalogueFileBytes, catalogueOfStudio, catalogueUploadedFile } from "@/lib/catalogues/store";
 import { ApiError } from "@/lib/errors";
 
@@ -12,9 +12,9 @@ export const dynamic = "force-dynamic";
  * The file exactly as uploaded (same bytes, same hash). When the table was corrected on the upload
  * page before saving, ?copy=saved answers the corrected CSV the objects were read from.
  */
-export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogueId: string }>(CATALOGUE_READ, async ({ req, studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; catalogueId: string }>(MEMBERS_READ, async ({ req, studio, params }) => {
   const copy = new URL(req.url).searchParams.get("copy") ?? "uploaded";
-  if (copy !== "uploaded" && copy !== "saved") throw new ApiError(400, "validation_failed", 'copy: must be "uploaded" (the file as uploaded, the default) or "saved" (the table the objects were read from).', "copy");
+  if (copy !== "uploaded" && copy !== "saved") throw new ApiError("validation_failed", 'copy: must be "uploaded" (the file as uploaded, the default) or "saved" (the table the objects were read from).', "copy");
   const catalogue = await catalogueOfStudio(await getDb(), studio.id, params.catalogueId);
   const file = copy === "saved" ? { fileName: catalogue.fileName, bytes: catalogueFileBytes(catalogue), contentHash: catalogue.contentHash } : catalogueUploadedFile(catalogue);
   const safeName = file.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");

@@ -1,14 +1,14 @@
 import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
-import { SNAPSHOT_READ } from "@/lib/snapshots/api";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 import { snapshotFileBytes, snapshotOfStudio } from "@/lib/snapshots/store";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 /** The file exactly as uploaded (same bytes, same hash). */
-export const GET = withAuth<typeof SNAPSHOT_READ, { studioId: string; snapshotId: string }>(SNAPSHOT_READ, async ({ studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; snapshotId: string }>(MEMBERS_READ, async ({ studio, params }) => {
   const snapshot = await snapshotOfStudio(await getDb(), studio.id, params.snapshotId);
   const safeName = snapshot.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");
   return new Response(Buffer.from(snapshotFileBytes(snapshot)), {

@@ -2,19 +2,20 @@ import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
-import { CURSOR_HEADER, SWEEP_READ, cursorParam, sweepOfStudio } from "@/lib/queue/api";
+import { CURSOR_HEADER, cursorParam, sweepOfStudio } from "@/lib/queue/api";
 import { cellsStream, resultsCursor } from "@/lib/queue/views";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
-export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: string }>(SWEEP_READ, async ({ req, studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: string }>(MEMBERS_READ, async ({ req, studio, params }) => {
   const url = new URL(req.url);
   const format = url.searchParams.get("format") ?? "json";
-  if (format !== "json" && format !== "csv") throw new ApiError(400, "validation_failed", `format must be json or csv; got "${format}".`, "format");
+  if (format !== "json" && format !== "csv") throw new ApiError("validation_failed", `format must be json or csv; got "${format}".`, "format");
   const after = cursorParam(url);
   const contactRaw = url.searchParams.get("contact") ?? "false";
-  if (contactRaw !== "true" && contactRaw !== "false") throw new ApiError(400, "validation_failed", `contact must be true or false; got "${contactRaw}".`, "contact");
+  if (contactRaw !== "true" && contactRaw !== "false") throw new ApiError("validation_failed", `contact must be true or false; got "${contactRaw}".`, "contact");
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   // The cursor is read before any row: every row written up to it is committed by then, and a row

@@ -4,12 +4,13 @@ import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { ApiError } from "@/lib/errors";
 import { VERDICTS } from "@/lib/physics/types";
-import { SWEEP_READ, sweepOfStudio } from "@/lib/queue/api";
+import { sweepOfStudio } from "@/lib/queue/api";
 import { storedVerdictCodes } from "@/lib/queue/views";
 import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeFriction, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -17,18 +18,18 @@ export const dynamic = "force-dynamic";
 function numberParam(url: URL, name: string, fallback: number | undefined): number {
   const raw = url.searchParams.get(name);
   if (raw === null || raw === "") {
-    if (fallback === undefined) throw new ApiError(400, "validation_failed", `${name} is required.`, name);
+    if (fallback === undefined) throw new ApiError("validation_failed", `${name} is required.`, name);
     return fallback;
   }
   const value = Number(raw);
-  if (!/^[0-9.eE+-]+$/.test(raw) || !Number.isFinite(value)) throw new ApiError(400, "validation_failed", `${name} must be a number; got "${raw}".`, name);
+  if (!/^[0-9.eE+-]+$/.test(raw) || !Number.isFinite(value)) throw new ApiError("validation_failed", `${name} must be a number; got "${raw}".`, name);
   return value;
 }
 
-export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: string }>(SWEEP_READ, async ({ req, studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: string }>(MEMBERS_READ, async ({ req, studio, params }) => {
   const url = new URL(req.url);
   const format = url.searchParams.get("format") ?? "json";
-  if (format !== "json" && format !== "csv") throw new ApiError(400, "validation_failed", `format must be json or csv; got "${format}".`, "format");
+  if (format !== "json" && format !== "csv") throw new ApiError("validation_failed", `format must be json or csv; got "${format}".`, "format");
   const bound = (url.searchParams.get("bound") ?? "max") as EnvelopeBound;
   const x = numberParam(url, "x", 0);
   const y = numberParam(url, "y", 1);
@@ -43,7 +44,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   try {
     envelope = computeEnvelope({ axes, verdictAt: (index) => VERDICTS[codes[index]], x, y, margin, bound, at });
   } catch (error) {
-    if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
+    if (error instanceof EnvelopeInputError) throw new ApiError("invalid_value", error.message, error.field);
     throw error;
   }
   const spec = sweep.spec as SweepSpec;

@@ -1,7 +1,8 @@
 import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
-import { OWNERS_ONLY, withAuth } from "@/lib/auth/guard";
+import { withAuth } from "@/lib/auth/guard";
+import { OWNERS_ONLY } from "@/lib/auth/policies";
 import { listDeliveries } from "@/lib/webhooks/webhooks";
 
 export const runtime = "nodejs";

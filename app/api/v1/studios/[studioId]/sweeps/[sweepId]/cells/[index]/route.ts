@@ -3,10 +3,11 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { simulate } from "@/lib/physics";
-import { SWEEP_READ, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
+import { cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
 import { storedCells } from "@/lib/queue/views";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
 import type { SweepSpec } from "@/lib/sweeps/spec";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -14,7 +15,7 @@ export const dynamic = "force-dynamic";
 /** Samples of the recomputed time series (the engine's cap for drawing). */
 const SERIES_SAMPLES = 2000;
 
-export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: string; index: string }>(SWEEP_READ, async ({ studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: string; index: string }>(MEMBERS_READ, async ({ studio, params }) => {
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   const index = cellIndexParam(params.index, sweep);

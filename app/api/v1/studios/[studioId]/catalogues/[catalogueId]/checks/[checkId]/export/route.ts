@@ -1,7 +1,7 @@
 import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
-import { CATALOGUE_READ } from "@/lib/catalogues/api";
+import { MEMBERS_READ } from "@/lib/auth/policies";
 import { GameSettingsError, gameSettings, pairContactCsv } from "@/lib/catalogues/contact-tuning";
 import { checkExportJson, frictionCsv, pairMatrixCsv, recommendationCsv } from "@/lib/catalogues/exports";
 import { catalogueOfStudio, checkOfCatalogue, checkView } from "@/lib/catalogues/store";
@@ -15,20 +15,20 @@ export const dynamic = "force-dynamic";
  * (catalogues whose objects give μ or μ_r), or
  * game-settings with ?stiffness=checked (default) or recommended (docs/game-settings.md).
  */
-export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogueId: string; checkId: string }>(CATALOGUE_READ, async ({ req, studio, params }) => {
+export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; catalogueId: string; checkId: string }>(MEMBERS_READ, async ({ req, studio, params }) => {
   const url = new URL(req.url);
   const format = url.searchParams.get("format") ?? "json";
   const table = url.searchParams.get("table") ?? "pairs";
   const stiffness = url.searchParams.get("stiffness") ?? "checked";
-  if (format !== "json" && format !== "csv" && format !== "game-settings") throw new ApiError(400, "validation_failed", `format must be json, csv or game-settings; got "${format}".`, "format");
-  if (table !== "pairs" && table !== "recommendation" && table !== "contacts" && table !== "friction") throw new ApiError(400, "validation_failed", `table must be pairs, recommendation, contacts or friction; got "${table}".`, "table");
-  if (stiffness !== "checked" && stiffness !== "recommended") throw new ApiError(400, "validation_failed", `stiffness must be checked or recommended; got "${stiffness}".`, "stiffness");
+  if (format !== "json" && format !== "csv" && format !== "game-settings") throw new ApiError("validation_failed", `format must be json, csv or game-settings; got "${format}".`, "format");
+  if (table !== "pairs" && table !== "recommendation" && table !== "contacts" && table !== "friction") throw new ApiError("validation_failed", `table must be pairs, recommendation, contacts or friction; got "${table}".`, "table");
+  if (stiffness !== "checked" && stiffness !== "recommended") throw new ApiError("validation_failed", `stiffness must be checked or recommended; got "${stiffness}".`, "stiffness");
   const db = await getDb();
   const catalogue = await catalogueOfStudio(db, studio.id, params.catalogueId);
   const view = await checkView(db, catalogue, await checkOfCatalogue(db, catalogue, params.checkId));
   const friction = format === "csv" && table === "friction" ? frictionCsv(view.recommendation) : null;
   if (format === "csv" && table === "friction" && friction === null) {
-    throw new ApiError(422, "validation_failed", "table=friction: no object of this catalogue gives a friction coefficient or rolling resistance (add a friction column and check again).", "table");
+    throw new ApiError("invalid_value", "table=friction: no object of this catalogue gives a friction coefficient or rolling resistance (add a friction column and check again).", "table");
   }
   if (format === "game-settings") {
     let document;
@@ -43,7 +43,7 @@ export const GET = withAuth<typeof CATALOGUE_READ, { studioId: string; catalogue
         stiffness,
       });
     } catch (error) {
-      if (error instanceof GameSettingsError) throw new ApiError(422, "validation_failed", error.message, error.field);
+      if (error instanceof GameSettingsError) throw new ApiError("invalid_value", error.message, error.field);
       throw error;
     }
     return new Response(`${JSON.stringify(document, null, 2)}\n`, {

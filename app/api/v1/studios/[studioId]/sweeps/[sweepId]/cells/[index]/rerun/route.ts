@@ -4,12 +4,13 @@ import { ApiError } from "@/lib/errors";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
-import { SWEEP_WRITE, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
+import { cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
 import { rerunPlan } from "@/lib/queue/rerun";
 import { rerunRequestSchema } from "@/lib/queue/api";
+import { ENGINEERS_WRITE } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -22,11 +23,11 @@ async function readOptionalJson(req: Request): Promise<unknown> {
   try {
     return JSON.parse(text) as unknown;
   } catch {
-    throw new ApiError(400, "invalid_json", "Request body is not valid JSON.");
+    throw new ApiError("invalid_json", "Request body is not valid JSON.");
   }
 }
 
-export const POST = withAuth<typeof SWEEP_WRITE, { studioId: string; sweepId: string; index: string }>(SWEEP_WRITE, async ({ req, studio, params, user }) => {
+export const POST = withAuth<typeof ENGINEERS_WRITE, { studioId: string; sweepId: string; index: string }>(ENGINEERS_WRITE, async ({ req, studio, params, user }) => {
   const { dtFactor, acceptedQuoteMs } = parseWith(rerunRequestSchema, await readOptionalJson(req));
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);

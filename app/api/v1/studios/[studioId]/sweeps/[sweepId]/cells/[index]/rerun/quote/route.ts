@@ -3,15 +3,16 @@ import { parseBody } from "@/lib/api/body";
 import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
-import { SWEEP_WRITE, cellIndexParam, rerunQuoteRequestSchema, sweepOfStudio } from "@/lib/queue/api";
+import { cellIndexParam, rerunQuoteRequestSchema, sweepOfStudio } from "@/lib/queue/api";
 import { rerunPlan } from "@/lib/queue/rerun";
 import { quoteSweep } from "@/lib/queue/submit";
+import { ENGINEERS_WRITE } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 /** The quote of re-running one cell at a finer dt: the same spec the rerun route submits; nothing starts. */
-export const POST = withAuth<typeof SWEEP_WRITE, { studioId: string; sweepId: string; index: string }>(SWEEP_WRITE, async ({ req, studio, params }) => {
+export const POST = withAuth<typeof ENGINEERS_WRITE, { studioId: string; sweepId: string; index: string }>(ENGINEERS_WRITE, async ({ req, studio, params }) => {
   const { dtFactor } = await parseBody(req, rerunQuoteRequestSchema);
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
