@@ -11,11 +11,15 @@ function tooLarge(limit: number): ApiError {
   return new ApiError("payload_too_large", `Request body exceeds the limit of ${limit} bytes.`, ROOT_FIELD);
 }
 
-/** Reads the body as text, stopping as soon as it passes the limit (never buffers an oversize body). */
-export async function readBodyText(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<string> {
+/**
+ * Reads the body's bytes, stopping as soon as they pass the limit (never buffers an oversize body):
+ * a declared Content-Length over the limit is refused before reading. `tooBig` makes the 413 the
+ * caller's route speaks (a JSON body names `body`, an upload names `file`).
+ */
+export async function readBodyBytes(req: Request, limit: number, tooBig: () => ApiError): Promise<Buffer> {
   const declared = req.headers.get("content-length");
-  if (declared !== null && Number(declared) > limit) throw tooLarge(limit);
-  if (!req.body) return "";
+  if (declared !== null && Number(declared) > limit) throw tooBig();
+  if (!req.body) return Buffer.alloc(0);
   const reader = req.body.getReader();
   const chunks: Uint8Array[] = [];
   let total = 0;
@@ -25,11 +29,16 @@ export async function readBodyText(req: Request, limit = MAX_JSON_BODY_BYTES): P
     total += value.byteLength;
     if (total > limit) {
       await reader.cancel().catch(() => undefined);
-      throw tooLarge(limit);
+      throw tooBig();
     }
     chunks.push(value);
   }
-  return Buffer.concat(chunks).toString("utf8");
+  return Buffer.concat(chunks);
+}
+
+/** Reads the body as text, stopping as soon as it passes the limit (never buffers an oversize body). */
+export async function readBodyText(req: Request, limit = MAX_JSON_BODY_BYTES): Promise<string> {
+  return (await readBodyBytes(req, limit, () => tooLarge(limit))).toString("utf8");
 }
 
 /**

@@ -1,4 +1,5 @@
 import { ApiError } from "@/lib/errors";
+import { readBodyBytes } from "./body";
 
 export interface UploadedFile {
   fileName: string;
@@ -16,26 +17,10 @@ export async function readMultipart(req: Request, limit: number, fileLimitText: 
     throw new ApiError("unsupported_media_type", 'The body must be multipart/form-data with the file in a field named "file" (curl -F file=@catalogue.csv).', "file");
   }
   const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${fileLimitText}).`, "file");
-  const declared = req.headers.get("content-length");
-  if (declared !== null && Number(declared) > limit) throw tooLarge();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  if (req.body) {
-    const reader = req.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      total += value.byteLength;
-      if (total > limit) {
-        await reader.cancel().catch(() => undefined);
-        throw tooLarge();
-      }
-      chunks.push(value);
-    }
-  }
+  const body = await readBodyBytes(req, limit, tooLarge);
   let form: FormData;
   try {
-    form = await new Response(Buffer.concat(chunks), { headers: { "content-type": type } }).formData();
+    form = await new Response(new Uint8Array(body), { headers: { "content-type": type } }).formData();
   } catch {
     throw new ApiError("validation_failed", "The multipart body could not be read.", "file");
   }

@@ -1,4 +1,5 @@
 /** Body reading of the snapshot routes (their policies are in lib/auth/policies.ts). */
+import { readBodyBytes } from "@/lib/api/body";
 import { readMultipart, type UploadedFile } from "@/lib/api/multipart";
 import { ApiError } from "@/lib/errors";
 import { SNAPSHOT_LIMITS } from "./format";
@@ -22,23 +23,7 @@ export async function readSnapshotUpload(req: Request): Promise<{ name?: string;
     throw new ApiError("unsupported_media_type", 'The body must be the snapshot JSON (content-type application/json) or multipart/form-data with the file in a field named "file".', "file");
   }
   const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${LIMIT_TEXT}).`, "file");
-  const declared = req.headers.get("content-length");
-  if (declared !== null && Number(declared) > SNAPSHOT_LIMITS.maxFileBytes) throw tooLarge();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  if (req.body) {
-    const reader = req.body.getReader();
-    for (;;) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      total += value.byteLength;
-      if (total > SNAPSHOT_LIMITS.maxFileBytes) {
-        await reader.cancel().catch(() => undefined);
-        throw tooLarge();
-      }
-      chunks.push(value);
-    }
-  }
+  const body = await readBodyBytes(req, SNAPSHOT_LIMITS.maxFileBytes, tooLarge);
   const name = new URL(req.url).searchParams.get("name") ?? undefined;
-  return { name, file: { fileName: "snapshot.json", mediaType: "application/json", bytes: new Uint8Array(Buffer.concat(chunks)) } };
+  return { name, file: { fileName: "snapshot.json", mediaType: "application/json", bytes: new Uint8Array(body) } };
 }
