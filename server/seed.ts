@@ -10,6 +10,8 @@ import { hashPassword } from "@/lib/auth/password";
 import { DEMO_GRANT_MS, appendLedgerEntry } from "@/lib/ledger/ledger";
 import { seedDemoHistory } from "@/lib/demo/history";
 import { seedDemoResults } from "@/lib/demo/results";
+import { WatchPacer, submitWatchSweep, type WatchPacerOptions } from "@/lib/demo/watch";
+import { addSignInHook } from "@/lib/auth/sign-in-hooks";
 
 /**
  * The demo: an invented studio, Gannet Yard Games, tuning the physics of its invented arcade game
@@ -146,6 +148,33 @@ export async function seedDemoIfEmpty(db: Db): Promise<{ seeded: boolean }> {
   if (anyUser) return { seeded: false };
   await seedDemo(db);
   return { seeded: true };
+}
+
+/**
+ * The demo's watch sweep (lib/demo/watch.ts): submitted when the demo engineer signs in for the first
+ * time, then paced so the visitor can watch it finish. Returns the pacer and a function that undoes
+ * the hook (tests); null when the database has no demo studio.
+ */
+export async function startDemoWatch(db: Db, options: Omit<WatchPacerOptions, "db" | "studioId"> = {}): Promise<{ pacer: WatchPacer; removeHook: () => void } | null> {
+  const engineer = DEMO_ACCOUNTS.find((a) => a.role === "engineer")!;
+  const [row] = await db
+    .select({ studioId: studios.id, engineerId: users.id })
+    .from(studios)
+    .innerJoin(memberships, eq(memberships.studioId, studios.id))
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(studios.name, DEMO_STUDIO_NAME), eq(users.email, engineer.email), eq(memberships.role, "engineer")))
+    .limit(1);
+  if (!row) return null;
+  const pacer = new WatchPacer({ ...options, db, studioId: row.studioId });
+  pacer.start();
+  const removeHook = addSignInHook(async (userId) => {
+    if (userId !== row.engineerId) return;
+    const sweep = await submitWatchSweep(db, row.studioId, row.engineerId);
+    if (!sweep) return;
+    console.log(`[kickdrift] demo: ${engineer.email} signed in for the first time; "${sweep.name}" started (${sweep.cells} cells, paced to finish in about a minute)`);
+    pacer.nudge();
+  });
+  return { pacer, removeHook };
 }
 
 export function demoSignInText(baseUrl: string): string {

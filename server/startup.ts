@@ -79,8 +79,10 @@ async function run(): Promise<void> {
     }
   }
   if (process.env.KICKDRIFT_DEMO === "1") {
-    const { demoSignInText, seedDemoIfEmpty } = await import("./seed");
+    const { demoSignInText, seedDemoIfEmpty, startDemoWatch } = await import("./seed");
     const { seeded } = await seedDemoIfEmpty(db);
+    // The sweep a visitor watches finish: started by the demo engineer's first sign-in, then paced.
+    await startDemoWatch(db);
     console.log(`[kickdrift] ${seeded ? "demo data seeded" : "database not empty; demo seed skipped"}`);
     console.log(demoSignInText(appBaseUrl()));
   }

@@ -1,5 +1,5 @@
 "use client";
-import { formatFrameRate } from "@/lib/ui/units";
+import { formatFrameRate, formatFrameStep, parseFrameStep } from "@/lib/ui/units";
 /**
  * One catalogue version: its objects, its versions and original file, its checks, and the form
  * that runs a check with the game's settings (quoted first, then queued like any sweep).
@@ -25,7 +25,8 @@ const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider t
 const td = "px-3 py-2 align-middle";
 
 interface FormState {
-  frameRateHz: string;
+  /** The frame step as typed: a frame rate ("60 Hz"; a plain number is Hz), a fraction ("1/60") or a step ("16.7 ms"). */
+  frameStep: string;
   substeps: string;
   integrator: string;
   contactModel: string;
@@ -42,8 +43,9 @@ interface FormState {
   gravityMPerS2: string;
 }
 
-const DEFAULT_FORM: FormState = {
-  frameRateHz: "60",
+/** The form as a new check starts (60 Hz, 16 substeps, symplectic Euler, linear contact). */
+export const DEFAULT_CHECK_FORM: FormState = {
+  frameStep: "60 Hz",
   substeps: "16",
   integrator: "symplectic-euler",
   contactModel: "linear",
@@ -70,9 +72,10 @@ function marginHint(percentText: string): string {
 export function settingsOf(form: FormState): CheckSettingsInput {
   const number = (text: string) => (text.trim() === "" ? undefined : Number(text));
   const groups = Object.fromEntries(Object.entries(form.groupStiffness).filter(([, value]) => value.trim() !== "").map(([group, value]) => [group, Number(value)]));
-  const hz = number(form.frameRateHz);
+  const step = parseFrameStep(form.frameStep, "Hz");
   return {
-    dtS: hz === undefined ? (undefined as unknown as number) : 1 / hz,
+    // Unreadable text is left out: the field shows why beside it, and the API names dtS as missing.
+    dtS: step.ok ? step.seconds : (undefined as unknown as number),
     substeps: number(form.substeps),
     integrator: form.integrator as CheckSettingsInput["integrator"],
     contactModel: form.contactModel as CheckSettingsInput["contactModel"],
@@ -241,13 +244,14 @@ function ChecksCard({ studioId, catalogueId, checks }: { studioId: string; catal
 
 function CheckForm({ studioId, catalogueId, groups, friction }: { studioId: string; catalogueId: string; groups: string[]; friction: boolean }) {
   const router = useRouter();
-  const [form, setForm] = useState<FormState>(DEFAULT_FORM);
+  const [form, setForm] = useState<FormState>(DEFAULT_CHECK_FORM);
   const [quote, setQuote] = useState<{ quote: Quote; key: string } | null>(null);
   const [error, setError] = useState<ApiClientError | Error | null>(null);
   const [busy, setBusy] = useState(false);
   const settings = useMemo(() => settingsOf(form), [form]);
   const key = JSON.stringify(settings);
   const set = (field: keyof FormState) => (event: { target: { value: string } }) => setForm((current) => ({ ...current, [field]: event.target.value }));
+  const frameStep = parseFrameStep(form.frameStep, "Hz");
   const fieldError = (field: string) => (error instanceof ApiClientError ? error.messageFor(`settings.${field}`) : undefined);
 
   async function ask() {
@@ -290,7 +294,7 @@ function CheckForm({ studioId, catalogueId, groups, friction }: { studioId: stri
           Every unordered pair of objects (each with itself too) meets at fractions of its closing speed (the two top speeds added) and at each impact offset, with your game&apos;s settings.
         </p>
         <div className="grid gap-4 sm:grid-cols-3">
-          <TextField id="check-hz" label="Frame rate [Hz]" inputMode="decimal" value={form.frameRateHz} onChange={set("frameRateHz")} error={fieldError("dtS")} hint="dt = 1 / frame rate" />
+          <TextField id="check-hz" label="Frame rate or step" value={form.frameStep} onChange={set("frameStep")} error={frameStep.ok ? fieldError("dtS") : frameStep.message} hint={frameStep.ok ? `= ${formatFrameStep(frameStep.seconds)} (60 Hz, 1/60 or 16.7 ms)` : undefined} />
           <TextField id="check-substeps" label="Substeps per frame" inputMode="numeric" value={form.substeps} onChange={set("substeps")} error={fieldError("substeps")} />
           <SelectField id="check-integrator" label="Integrator" value={form.integrator} onChange={set("integrator")}>
             <option value="symplectic-euler">symplectic Euler</option>

@@ -128,13 +128,14 @@ function RunningCard({ studioId, sweeps, canRun }: { studioId: string; sweeps: O
       ) : (
         <ul className="space-y-3" data-testid="home-running">
           {sweeps.map((sweep) => (
-            <li key={sweep.id}>
+            <li key={sweep.id} data-testid="home-running-item">
               <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="block text-sm font-medium hover:underline">
                 {sweep.name}
               </Link>
               <Meter value={sweep.cellsDone} max={sweep.cells} label={`${sweep.name}: ${sweep.cellsDone} of ${sweep.cells} cells done`} />
-              <p className="text-xs text-ink-muted">
+              <p className="text-xs text-ink-muted" data-testid="home-running-progress">
                 {sweep.status} · {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} cells
+                {sweep.reason ? <span data-testid="home-running-reason"> · {sweep.reason}</span> : null}
               </p>
             </li>
           ))}

@@ -8,6 +8,7 @@ import { mailFrom } from "@/lib/mail/transport";
 import { authenticateWithPassword, findUserById, LOGIN_ERROR_MESSAGE } from "./accounts";
 import { kickdriftAdapter } from "./adapter";
 import { endSession, openSession } from "./user-sessions";
+import { runSignInHooks } from "./sign-in-hooks";
 import { getAuthSecret } from "./config";
 import { clientAddress } from "./limiter";
 import { safeCallbackUrl } from "@/lib/ui/callback-url";
@@ -72,6 +73,8 @@ export const authOptions: AuthOptions = {
         token.id = user.id;
         // Each sign-in opens a server-side session; the cookie is only as good as its row.
         token.sid = await openSession(user.id);
+        // Before the answer, so what a hook starts (the demo's watch sweep) is there on the first page.
+        await runSignInHooks(user.id);
         const row = await findUserById(user.id);
         token.isAdmin = row?.isAdmin ?? false;
         token.name = row?.name ?? user.name;

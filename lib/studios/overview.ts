@@ -25,6 +25,8 @@ export interface OverviewSweep {
   id: string;
   name: string;
   status: string;
+  /** Why a paused or waiting sweep is not running now (a run limit, a free slot, the demo's pace); null otherwise. */
+  reason: string | null;
   cells: number;
   cellsDone: number;
   createdAt: string;
@@ -78,6 +80,7 @@ function sweepRow(row: typeof sweeps.$inferSelect): OverviewSweep {
     id: row.id,
     name: row.name,
     status: row.status,
+    reason: row.reason,
     cells: row.cells,
     cellsDone: row.cellsDone,
     createdAt: row.createdAt.toISOString(),

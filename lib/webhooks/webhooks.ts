@@ -31,6 +31,7 @@ import {
   type WebhookEventType,
 } from "@/db/schema";
 import { ApiError } from "@/lib/errors";
+import { RUN_LIMIT_REASONS } from "@/lib/quotas/enforce";
 import { enqueueOutbox, PermanentDeliveryError } from "@/lib/outbox/outbox";
 import { newWebhookSecret, webhookHeaders } from "./signature";
 
@@ -205,6 +206,9 @@ export async function queueWebhookEvent(tx: DbOrTx, input: { studioId: string; t
   return id;
 }
 
+/** The reasons a run limit pauses a sweep with (lib/quotas/enforce.ts): the pauses that are sweep.paused events. */
+const RUN_LIMIT_PAUSES: ReadonlySet<string> = new Set(Object.values(RUN_LIMIT_REASONS));
+
 /**
  * Finds sweeps of studios with endpoints that reached done, failed or paused, and queues their
  * events (a check's sweep also gives catalogue_check.finished). Reads only; the queue runner is
@@ -234,7 +238,8 @@ export async function scanWebhookEvents(db: Db, now: Date = new Date()): Promise
       if (sweep.status === "done") events.push({ type: "sweep.finished", subject: sweep.id, data });
       if (sweep.status === "failed") events.push({ type: "sweep.failed", subject: sweep.id, data });
       // A sweep may pause, resume and pause again: each pause at a new count of done cells is an event.
-      if (sweep.status === "paused") events.push({ type: "sweep.paused", subject: `${sweep.id}:${sweep.cellsDone}`, data });
+      // Only a run limit's pause is one (as documented); the demo's paced watch sweep pauses between its steps.
+      if (sweep.status === "paused" && RUN_LIMIT_PAUSES.has(sweep.reason ?? "")) events.push({ type: "sweep.paused", subject: `${sweep.id}:${sweep.cellsDone}`, data });
       if (checkId && (sweep.status === "done" || sweep.status === "failed"))
         events.push({ type: "catalogue_check.finished", subject: checkId, data: { check: { id: checkId, catalogueId, sweepId: sweep.id, status: sweep.status, verdictCounts: sweep.verdictCounts } } });
       for (const event of events) {
