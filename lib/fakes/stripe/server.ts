@@ -36,6 +36,11 @@ export interface StripeFakeOptions {
   webhookTimeoutMs?: number;
   /** Base URL printed in Checkout `url`s when the fake is reached through another address. */
   publicUrl?: string;
+  /**
+   * Days after an invoice's due date that invoice.overdue is sent (Stripe: "X number of days after an
+   * invoice becomes due", X set in the account's automations). Default 0.
+   */
+  overdueNoticeDays?: number;
 }
 
 export type OutageMode = "unavailable" | "reset";
@@ -121,6 +126,8 @@ function redactKey(key: string): string {
 export async function startStripeFake(options: StripeFakeOptions = {}): Promise<StripeFake> {
   const store = options.store instanceof StripeFakeStore ? options.store : new StripeFakeStore(options.store);
   const apiVersion = options.apiVersion ?? DEFAULT_API_VERSION;
+  const overdueNoticeDays = options.overdueNoticeDays ?? 0;
+  if (!Number.isInteger(overdueNoticeDays) || overdueNoticeDays < 0) throw new RangeError(`overdueNoticeDays must be a whole number of days >= 0; got ${overdueNoticeDays}`);
   let outage: { down: boolean; mode: OutageMode } = { down: false, mode: "unavailable" };
   const sockets = new Set<Socket>();
   let baseUrl = "";
@@ -365,11 +372,11 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         if (!next) break;
         store.advanceClockTo(Math.max(next.end, store.now()));
         const ctx = makeCtx({ requestId: null, idempotencyKey: null });
-        emitOverdueInvoices(ctx);
+        emitOverdueInvoices(ctx, overdueNoticeDays);
         invoices.push(closeSubscriptionPeriod(ctx, next.sub, next.end, true));
       }
       store.advanceClockTo(to);
-      emitOverdueInvoices(makeCtx({ requestId: null, idempotencyKey: null }));
+      emitOverdueInvoices(makeCtx({ requestId: null, idempotencyKey: null }), overdueNoticeDays);
       persist();
       dispatcher.kick();
       return { now: store.now(), invoices };

@@ -880,10 +880,10 @@ export function markUncollectible(ctx: Ctx, params: Params, id: string): Handler
 
 /**
  * invoice.overdue (Stripe's event list: "Occurs X number of days after an invoice becomes due", X set
- * in the account's automations; the fake uses X = 0): once per invoice still unpaid (open or
- * uncollectible) whose due_date the fake clock has reached.
+ * in the account's automations; the fake takes X as `overdueNoticeDays`, default 0): once per invoice
+ * still unpaid (open or uncollectible) whose due_date + X days the fake clock has reached.
  */
-export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
+export function emitOverdueInvoices(ctx: Ctx, overdueNoticeDays = 0): StripeObject[] {
   const overdue: StripeObject[] = [];
   const told = new Set(
     ctx.store
@@ -893,7 +893,7 @@ export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
   );
   for (const invoice of ctx.store.newestFirst("invoices").reverse()) {
     const due = invoice.due_date as number | null;
-    if (due === null || due > ctx.now || told.has(invoice.id)) continue;
+    if (due === null || due + overdueNoticeDays * DAY_S > ctx.now || told.has(invoice.id)) continue;
     if (invoice.status !== "open" && invoice.status !== "uncollectible") continue;
     ctx.emit("invoice.overdue", invoice);
     overdue.push(invoice);
