@@ -55,6 +55,8 @@ export async function startBillingHarness(): Promise<BillingHarness> {
     webhookRetryDelaysMs: [50, 100],
     // As the app's own fake (stripeFakeOptions) and the live account: invoice.overdue after the grace period.
     overdueNoticeDays: OVERDUE_GRACE_DAYS,
+    // Stripe's hour between a renewal invoice's draft and its finalisation, compressed like the retry schedule.
+    draftWindowSeconds: 1,
   });
   const stripe = fakeStripeClient(fake.port);
   configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });
