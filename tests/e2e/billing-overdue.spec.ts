@@ -33,8 +33,9 @@ async function openBilling(page: Page): Promise<string> {
 }
 
 test("finance sees overage held by an overdue invoice, opens it from the e-mail, pays it on the hosted page, sees it paid with overage back on, and downloads the invoices CSV with its row; the owner switches overage off and on", async ({ browser, request }) => {
-  // Two sign-ins, the mailbox, the hosted page and a download on a loaded machine.
-  test.setTimeout(240_000);
+  // Two sign-ins, the mailbox, the hosted page and a download on a loaded machine; each page check
+  // reloads and then gives the page's data up to 15 s to arrive.
+  test.setTimeout(420_000);
   const financeContext = await browser.newContext();
   const finance = await financeContext.newPage();
   await signInWithPassword(finance, FINANCE.email, FINANCE.password);
@@ -55,7 +56,7 @@ test("finance sees overage held by an overdue invoice, opens it from the e-mail,
     const subs = (await fake(request, "GET", `/v1/subscriptions?customer=${customer}`)).data as FakeObject[];
     subscription = subs.find((s) => s.status === "active")?.id ?? "";
     expect(subscription).not.toBe("");
-  }).toPass({ timeout: 60_000 });
+  }).toPass({ timeout: 120_000 });
 
   // --- Stripe's side of the month: ten minutes of overage on the meter, the period closed and
   // invoiced, then the fake's clock moved past the invoice's due date and then past the grace period
@@ -85,8 +86,8 @@ test("finance sees overage held by an overdue invoice, opens it from the e-mail,
   const invoiceAlert = finance.getByTestId("unpaid-invoice").filter({ hasText: number });
   await expect(async () => {
     await finance.reload();
-    await expect(invoiceAlert).toBeVisible({ timeout: 2_000 });
-  }).toPass({ timeout: 60_000 });
+    await expect(invoiceAlert).toBeVisible({ timeout: 15_000 });
+  }).toPass({ timeout: 120_000 });
   await expect(invoiceAlert).toContainText(/If it is still unpaid on .+, overage is switched off until it is paid/);
   await expect(finance.getByTestId("overage-status")).toContainText("Overage allowed");
 
@@ -94,8 +95,8 @@ test("finance sees overage held by an overdue invoice, opens it from the e-mail,
   await fake(request, "POST", "/_fake/advance_clock", { to: (invoice.due_date as number) + OVERDUE_GRACE_DAYS * 86_400 + 60 });
   await expect(async () => {
     await finance.reload();
-    await expect(finance.getByTestId("overage-status")).toContainText("Overage is switched off while an invoice is unpaid past its grace period", { timeout: 2_000 });
-  }).toPass({ timeout: 60_000 });
+    await expect(finance.getByTestId("overage-status")).toContainText("Overage is switched off while an invoice is unpaid past its grace period", { timeout: 15_000 });
+  }).toPass({ timeout: 120_000 });
   await expect(invoiceAlert).toContainText("is overdue");
   await expect(invoiceAlert).toContainText("Overage is switched off until it is paid.");
   await finance.screenshot({ path: test.info().outputPath("billing-overage-held.png"), fullPage: true });
@@ -130,9 +131,9 @@ test("finance sees overage held by an overdue invoice, opens it from the e-mail,
   await finance.goto(`/studios/${studioId}/billing`);
   await expect(async () => {
     await finance.reload();
-    await expect(finance.getByTestId("overage-status")).toContainText("Overage allowed", { timeout: 2_000 });
-    await expect(finance.getByTestId("unpaid-invoice")).toHaveCount(0, { timeout: 2_000 });
-  }).toPass({ timeout: 60_000 });
+    await expect(finance.getByTestId("overage-status")).toContainText("Overage allowed", { timeout: 15_000 });
+    await expect(finance.getByTestId("unpaid-invoice")).toHaveCount(0, { timeout: 15_000 });
+  }).toPass({ timeout: 120_000 });
   await finance.screenshot({ path: test.info().outputPath("billing-overage-on.png"), fullPage: true });
 
   // --- The Invoices page shows it paid; the CSV has its row with the amount and the quantity.
