@@ -527,6 +527,12 @@ export const invoices = pgTable(
     finalizedAt: ts("finalized_at"),
     /** When payment is due (Stripe's due_date); an unpaid invoice past it plus the grace period switches overage off. */
     dueAt: ts("due_at"),
+    /**
+     * When Stripe's invoice.overdue reached us for this invoice while it was owed (the database's
+     * clock). Stripe sends it OVERDUE_GRACE_DAYS after the due date (the account's automation), so it
+     * starts the overage hold by Stripe's clock; set once, never cleared (paying lifts the hold).
+     */
+    overdueNoticeAt: ts("overdue_notice_at"),
     /** "overage" (the monthly metered invoice) or "pack" (the paid invoice of a pack purchase). */
     kind: text("kind").$type<InvoiceKind>().notNull().default("overage"),
     /** Stripe's hosted invoice page and PDF (set once the invoice is finalised). */

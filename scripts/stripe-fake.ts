@@ -1,6 +1,6 @@
 /**
  * Runs the local Stripe fake on its own:
- *   tsx scripts/stripe-fake.ts --port 12111 [--host 127.0.0.1] [--public-url http://localhost:12111] [--state data/stripe-fake.json] [--webhook-url http://127.0.0.1:3000/api/stripe/webhook] [--webhook-secret whsec_…]
+ *   tsx scripts/stripe-fake.ts --port 12111 [--host 127.0.0.1] [--public-url http://localhost:12111] [--state data/stripe-fake.json] [--webhook-url http://127.0.0.1:3000/api/stripe/webhook] [--webhook-secret whsec_…] [--overdue-notice-days 14] [--draft-window-seconds 3600]
  * Point the SDK at it with new Stripe("sk_test_…", { host: "127.0.0.1", port: 12111, protocol: "http" }).
  */
 import { startStripeFake } from "../lib/fakes/stripe";
@@ -18,7 +18,7 @@ function readArgs(argv: string[]): Record<string, string> {
   return args;
 }
 
-const KNOWN = new Set(["port", "host", "state", "webhook-url", "webhook-secret", "retry-delays-ms", "public-url"]);
+const KNOWN = new Set(["port", "host", "state", "webhook-url", "webhook-secret", "retry-delays-ms", "public-url", "overdue-notice-days", "draft-window-seconds"]);
 
 async function main() {
   const args = readArgs(process.argv.slice(2));
@@ -35,6 +35,8 @@ async function main() {
     webhookSecret: args["webhook-secret"],
     webhookRetryDelaysMs: retryDelays,
     publicUrl: args["public-url"],
+    overdueNoticeDays: args["overdue-notice-days"] === undefined ? undefined : Number(args["overdue-notice-days"]),
+    draftWindowSeconds: args["draft-window-seconds"] === undefined ? undefined : Number(args["draft-window-seconds"]),
   });
   console.log(`Stripe fake listening on ${fake.url}${args.state ? ` (state in ${args.state})` : " (in memory)"}`);
   if (fake.webhookSecret) console.log(`Webhooks to ${args["webhook-url"]} signed with ${fake.webhookSecret}`);

@@ -1,6 +1,9 @@
 /**
  * The grace-period rule, once: an invoice holds a studio's overage off while it is owed (open or
- * uncollectible, total above 0) and its due date plus OVERDUE_GRACE_DAYS has passed. Written as SQL
+ * uncollectible, total above 0) and its due date plus OVERDUE_GRACE_DAYS has passed — on the
+ * database's clock, or on Stripe's: Stripe's invoice.overdue, sent OVERDUE_GRACE_DAYS after the due
+ * date by the account's automation, is recorded as the invoice's overdue_notice_at and starts the hold
+ * from then (whichever comes first). Paying or voiding the invoice ends it. Written as SQL
  * fragments so the run limits (lib/quotas/enforce.ts, inside their one standing query) and the
  * Billing page and chunk debits (lib/billing/overdue.ts) evaluate the same expression.
  */
@@ -18,9 +21,12 @@ export function owedInvoiceSql(alias: SQL): SQL {
   return sql`${alias}.status in (${statuses}) and ${alias}.total_cents > 0 and ${alias}.due_at is not null`;
 }
 
-/** When invoice `alias` switches overage off if still unpaid: its due date plus the grace period. */
+/**
+ * When invoice `alias` switches overage off if still unpaid: its due date plus the grace period, or
+ * the arrival of Stripe's overdue notice if that came first (least() skips a null notice).
+ */
 export function overageOffAtSql(alias: SQL): SQL {
-  return sql`(${alias}.due_at + make_interval(days => ${OVERDUE_GRACE_DAYS}))`;
+  return sql`least(${alias}.due_at + make_interval(days => ${OVERDUE_GRACE_DAYS}), ${alias}.overdue_notice_at)`;
 }
 
 /** True when an owed invoice of the studio (`studioId`, a SQL value) is past its grace period at `when`. */

@@ -129,7 +129,11 @@ export function invoicePaymentDueMail(input: {
       : input.notice === "overdue"
         ? `Invoice ${input.number} (${formatPriceCents(input.amountCents)}) is past its due date${input.dueAt ? ` of ${day(input.dueAt)}` : ""}.`
         : `Invoice ${input.number} (${formatPriceCents(input.amountCents)}) is still unpaid and has been marked uncollectible.`;
-  const consequence = input.overageOffAt
+  // Stripe sends invoice.overdue when the grace period ends (the account's automation is set to it), and
+  // that notice starts the hold.
+  const consequence = input.notice === "overdue"
+    ? `Its grace period of ${input.graceDays} days after the due date has ended, so overage is switched off for ${input.studioName} until it is paid; prepaid minutes keep working.`
+    : input.overageOffAt
     ? `If it is still unpaid on ${day(input.overageOffAt)} (UTC, ${input.graceDays} days after the due date), overage is switched off for ${input.studioName} until it is paid; prepaid minutes keep working.`
     : `Overage is switched off ${input.graceDays} days after the due date if the invoice is still unpaid; prepaid minutes keep working.`;
   return message(`${NOTICE_HEADLINE[input.notice]}: invoice ${input.number} for ${input.studioName}, ${formatPriceCents(input.amountCents)}`, [what, consequence, "Paying it switches overage back on as the studio had it."], {

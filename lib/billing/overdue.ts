@@ -4,7 +4,10 @@
  * finance are told by e-mail with the amount and the link to pay. An invoice still unpaid
  * OVERDUE_GRACE_DAYS after its due date switches overage off for the studio until it is paid.
  *
- * The switch is not stored: it is read from the invoice mirror (status and due date) at the time of
+ * Stripe's own overdue notice (invoice.overdue, which the account's automation sends OVERDUE_GRACE_DAYS
+ * after the due date) starts the hold too, on Stripe's clock (lib/billing/grace.ts).
+ *
+ * The switch is not stored: it is read from the invoice mirror (status, due date, notice) at the time of
  * asking, so it goes back on by itself when invoice.paid is mirrored, whatever order the events came
  * in, and the owner's own choice (studio_quotas.overage_allowed) is never overwritten.
  */
@@ -30,7 +33,7 @@ export interface UnpaidInvoice {
   /** When overage switches off if the invoice is still unpaid: dueAt + OVERDUE_GRACE_DAYS. */
   overageOffAt: string;
   overdue: boolean;
-  /** True once overageOffAt has passed (the invoice holds overage off). */
+  /** True once overageOffAt has passed (the invoice holds overage off): by the database's clock, or since Stripe's overdue notice. */
   overageOff: boolean;
 }
 
@@ -56,7 +59,7 @@ export async function overageHold(db: DbOrTx, studioId: string, at?: Date): Prom
   const i = sql.raw("i");
   const result = await db.execute(sql`
     select i.id, i.number, i.status, i.total_cents, i.due_at, ${overageOffAtSql(i)} as overage_off_at,
-      i.due_at <= ${when} as overdue, ${overageOffAtSql(i)} <= ${when} as overage_off
+      (i.due_at <= ${when} or coalesce(i.overdue_notice_at <= ${when}, false)) as overdue, ${overageOffAtSql(i)} <= ${when} as overage_off
     from invoices i where i.studio_id = ${studioId} and ${owedInvoiceSql(i)}
     order by i.due_at, i.id`);
   type Row = { id: string; number: string | null; status: string; total_cents: number | string; due_at: string | Date; overage_off_at: string | Date; overdue: boolean; overage_off: boolean };

@@ -9,6 +9,7 @@ import { startFinanceReconcile } from "./finance-ops";
 import { startCheckoutReconcile } from "./payments";
 import { billingConfig, configureBilling, fakeStripeClient, stripeFakePort, usesStripeFake } from "./stripe";
 import { HANDLED_EVENT_TYPES } from "./webhook";
+import { OVERDUE_GRACE_DAYS } from "./packs";
 
 export const WEBHOOK_PATH = "/api/v1/stripe/webhook";
 
@@ -19,6 +20,8 @@ export function stripeFakeOptions() {
     webhookUrl: `${appBaseUrl()}${WEBHOOK_PATH}`,
     webhookEvents: [...HANDLED_EVENT_TYPES],
     store: path.join(dataDir(), "stripe-fake.json"),
+    // Stripe's overdue-invoice automation set to the grace period, as the live account must be (README).
+    overdueNoticeDays: OVERDUE_GRACE_DAYS,
   };
 }
 

@@ -3,7 +3,7 @@
  * event id and acts on the object as Stripe holds it *now* (re-read through the API), so duplicates
  * and events that arrive out of order change nothing twice.
  */
-import { eq, sql, type SQL } from "drizzle-orm";
+import { and, eq, gt, inArray, isNull, sql, type SQL } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
@@ -19,6 +19,7 @@ import { invoiceFinalizedMail, paymentFailedMail, receiptMail } from "./mail";
 import { LATE_USAGE_METADATA_KEY } from "./usage";
 import { findPack, type CreditPack } from "./packs";
 import { endSubscription, notifyUnpaidInvoice, type UnpaidNotice } from "./overdue";
+import { UNPAID_INVOICE_STATUSES } from "./grace";
 import { reportDisputeOpened, syncChargeTakeBacks } from "./refunds";
 import { stripeFailure } from "./stripe";
 
@@ -333,6 +334,16 @@ export async function syncInvoice(db: Db, stripe: Stripe, invoice: Stripe.Invoic
         const [kept] = await tx.select({ status: invoices.status }).from(invoices).where(eq(invoices.id, invoice.id!));
         outcome = `kept invoice ${invoice.id} at ${kept?.status}: the read (${values.status}) was older`;
       } else outcome = `invoice ${invoice.id} is ${values.status}`;
+      // Stripe's overdue notice (sent OVERDUE_GRACE_DAYS after the due date) starts the overage hold on
+      // Stripe's clock: recorded once, only while the mirror still holds the invoice owed, never cleared.
+      if (event?.type === "invoice.overdue" && written.length > 0) {
+        const noted = await tx
+          .update(invoices)
+          .set({ overdueNoticeAt: sql`now()` })
+          .where(and(eq(invoices.id, invoice.id!), isNull(invoices.overdueNoticeAt), inArray(invoices.status, [...UNPAID_INVOICE_STATUSES]), gt(invoices.totalCents, 0)))
+          .returning({ at: invoices.overdueNoticeAt });
+        if (noted.length > 0) outcome += "; Stripe says it is overdue: overage held until it is paid";
+      }
       // A $0 invoice (a period without overage) is kept for the record but mailed to nobody.
       if (written.length > 0 && values.status !== "draft" && values.finalizedAt && values.totalCents > 0) {
         const [studio] = await tx.select().from(studios).where(eq(studios.id, studioId));

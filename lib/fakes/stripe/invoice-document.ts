@@ -2,9 +2,15 @@
  * The fake's hosted invoice page (`hosted_invoice_url`) and invoice PDF (`invoice_pdf`): what a
  * finance person opens and books. Both show the issuer, the customer's name, address and invoice
  * custom fields (Kickdrift's "Tax ID"), every line, the total and what was paid. The PDF is a real
- * PDF made with pdf-lib (a standard Helvetica font, so nothing is read from disk or downloaded).
+ * PDF made with pdf-lib, set in DejaVu Sans (the dejavu-fonts-ttf package, read from node_modules and
+ * subset into each document), which covers Latin, Greek and Cyrillic: a billing name in those scripts
+ * prints as written. Characters the font lacks (CJK among them) print as "?".
  */
-import { PDFDocument, StandardFonts, rgb } from "pdf-lib";
+import { readFile } from "node:fs/promises";
+import { createRequire } from "node:module";
+import path from "node:path";
+import fontkit from "@pdf-lib/fontkit";
+import { PDFDocument, rgb } from "pdf-lib";
 import { formatAmount } from "./hosted-page";
 import type { StripeObject } from "./store";
 
@@ -113,12 +119,31 @@ ${alert}
 </form>`;
 }
 
+type FontFiles = { regular: Uint8Array; bold: Uint8Array };
+let fontFiles: Promise<FontFiles> | null = null;
+
 /**
- * The standard Helvetica font encodes WinAnsi only: any other character (a studio name in another
- * script, say) is printed as "?" rather than failing the whole document.
+ * DejaVu Sans regular and bold, read once per process from the installed dejavu-fonts-ttf package
+ * (resolved from the working directory at run time, so a bundler never inlines 1.4 MB of font).
  */
-function winAnsi(text: string): string {
-  return text.replace(/[^\x20-\x7E\xA0-\xFF\u2013\u2014\u2019\u201C\u201D\u2026\u20AC]/g, "?");
+function dejaVuSans(): Promise<FontFiles> {
+  fontFiles ??= (async () => {
+    const resolve = createRequire(path.join(process.cwd(), "package.json")).resolve;
+    const dir = path.join(path.dirname(resolve("dejavu-fonts-ttf/package.json")), "ttf");
+    const [regular, bold] = await Promise.all([readFile(path.join(dir, "DejaVuSans.ttf")), readFile(path.join(dir, "DejaVuSans-Bold.ttf"))]);
+    return { regular, bold };
+  })();
+  fontFiles.catch(() => {
+    fontFiles = null;
+  });
+  return fontFiles;
+}
+
+/** Text the font can draw: a character it has no glyph for prints as "?" rather than failing the document. */
+function printable(text: string, has: (codePoint: number) => boolean): string {
+  let out = "";
+  for (const ch of text) out += has(ch.codePointAt(0)!) ? ch : "?";
+  return out;
 }
 
 export async function renderInvoicePdf(invoice: StripeObject): Promise<Uint8Array> {
@@ -132,8 +157,14 @@ export async function renderInvoicePdf(invoice: StripeObject): Promise<Uint8Arra
   const issued = new Date(((invoice.status_transitions as { finalized_at: number | null }).finalized_at ?? (invoice.created as number)) * 1000);
   pdf.setCreationDate(issued);
   pdf.setModificationDate(issued);
-  const font = await pdf.embedFont(StandardFonts.Helvetica);
-  const bold = await pdf.embedFont(StandardFonts.HelveticaBold);
+  pdf.registerFontkit(fontkit);
+  const files = await dejaVuSans();
+  // Subset: only the glyphs used are embedded, so a one-page invoice stays small.
+  const font = await pdf.embedFont(files.regular, { subset: true });
+  const bold = await pdf.embedFont(files.bold, { subset: true });
+  const regularFace = fontkit.create(files.regular);
+  const boldFace = fontkit.create(files.bold);
+  const drawable = (text: string) => printable(text, (cp) => regularFace.hasGlyphForCodePoint(cp) && boldFace.hasGlyphForCodePoint(cp));
   let page = pdf.addPage([595.28, 841.89]); // A4 in points
   const margin = 50;
   let y = 841.89 - margin;
@@ -141,7 +172,7 @@ export async function renderInvoicePdf(invoice: StripeObject): Promise<Uint8Arra
   const write = (text: string, opts: { size?: number; bold?: boolean; x?: number; right?: boolean } = {}) => {
     const size = opts.size ?? 10;
     const f = opts.bold ? bold : font;
-    const safe = winAnsi(text);
+    const safe = drawable(text);
     const x = opts.right ? 595.28 - margin - f.widthOfTextAtSize(safe, size) : (opts.x ?? margin);
     page.drawText(safe, { x, y, size, font: f, color: ink });
   };
@@ -172,8 +203,8 @@ export async function renderInvoicePdf(invoice: StripeObject): Promise<Uint8Arra
   for (const l of doc.lines) {
     // Long descriptions are cut to fit beside the amount column; the hosted page shows them whole.
     let text = l.text;
-    if (font.widthOfTextAtSize(winAnsi(text), 10) > 380) {
-      while (text.length > 10 && font.widthOfTextAtSize(winAnsi(`${text}…`), 10) > 380) text = text.slice(0, -1);
+    if (font.widthOfTextAtSize(drawable(text), 10) > 380) {
+      while (text.length > 10 && font.widthOfTextAtSize(drawable(`${text}…`), 10) > 380) text = text.slice(0, -1);
       text = `${text}…`;
     }
     write(text);

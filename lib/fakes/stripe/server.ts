@@ -6,7 +6,7 @@ import { FormParseError, parseForm, type FormObject } from "./form";
 import { renderClosedPage, renderMissingPage, renderPaymentPage } from "./hosted-page";
 import { renderInvoiceMissingPage, renderInvoicePage, renderInvoicePdf } from "./invoice-document";
 import { Params } from "./params";
-import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, nextPeriodBoundary, payInvoiceFromHostedPage, type ClosePeriodOptions } from "./resources/billing";
+import { closePeriod, closeSubscriptionPeriod, emitOverdueInvoices, finalizeDueDrafts, nextDraftDeadline, nextPeriodBoundary, payInvoiceFromHostedPage, type ClosePeriodOptions } from "./resources/billing";
 import { paymentMethodObject } from "./resources/catalog";
 import { closeDispute, openDispute } from "./resources/payments";
 import { payByBankFromHostedPage, payFromHostedPage, refreshExpiry, settleDelayedPayments } from "./resources/checkout";
@@ -18,6 +18,8 @@ import { DEFAULT_RETRY_DELAYS_MS, WebhookDispatcher } from "./webhooks";
 
 /** The API version the installed SDK (stripe@23.1.0) pins; events carry it unless an endpoint asks otherwise. */
 export const DEFAULT_API_VERSION = "2026-10-28.endive";
+/** Stripe finalises a subscription's renewal invoice about one hour after creating it as a draft. */
+export const DEFAULT_DRAFT_WINDOW_S = 3600;
 const MAX_BODY_BYTES = 1024 * 1024;
 
 export interface StripeFakeOptions {
@@ -36,6 +38,16 @@ export interface StripeFakeOptions {
   webhookTimeoutMs?: number;
   /** Base URL printed in Checkout `url`s when the fake is reached through another address. */
   publicUrl?: string;
+  /**
+   * Days after an invoice's due date that invoice.overdue is sent (Stripe: "X number of days after an
+   * invoice becomes due", X set in the account's automations). Default 0.
+   */
+  overdueNoticeDays?: number;
+  /**
+   * Seconds a renewal invoice stays a draft before it is finalised and charged (Stripe: about one
+   * hour; `automatically_finalizes_at`). Default 3600; tests compress it; 0 finalises at the period's end.
+   */
+  draftWindowSeconds?: number;
 }
 
 export type OutageMode = "unavailable" | "reset";
@@ -121,6 +133,10 @@ function redactKey(key: string): string {
 export async function startStripeFake(options: StripeFakeOptions = {}): Promise<StripeFake> {
   const store = options.store instanceof StripeFakeStore ? options.store : new StripeFakeStore(options.store);
   const apiVersion = options.apiVersion ?? DEFAULT_API_VERSION;
+  const overdueNoticeDays = options.overdueNoticeDays ?? 0;
+  if (!Number.isInteger(overdueNoticeDays) || overdueNoticeDays < 0) throw new RangeError(`overdueNoticeDays must be a whole number of days >= 0; got ${overdueNoticeDays}`);
+  const draftWindowS = options.draftWindowSeconds ?? DEFAULT_DRAFT_WINDOW_S;
+  if (!Number.isInteger(draftWindowS) || draftWindowS < 0) throw new RangeError(`draftWindowSeconds must be a whole number of seconds >= 0; got ${draftWindowS}`);
   let outage: { down: boolean; mode: OutageMode } = { down: false, mode: "unavailable" };
   const sockets = new Set<Socket>();
   let baseUrl = "";
@@ -344,6 +360,31 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     return html(402, renderPaymentPage(session, lineItems, outcome));
   }
 
+  // Drafts are finalised when their time comes on the running clock too, not only on a clock advance.
+  let draftTimer: ReturnType<typeof setTimeout> | null = null;
+  let stopped = false;
+  const scheduleDrafts = () => {
+    if (draftTimer) clearTimeout(draftTimer);
+    draftTimer = null;
+    if (stopped) return;
+    const at = nextDraftDeadline(makeCtx({ requestId: null, idempotencyKey: null }), Number.MAX_SAFE_INTEGER);
+    if (at === null) return;
+    // The fake clock reads floor(wall seconds) + offset, so `at` is reached at wall time (at - offset) s.
+    const delayMs = Math.min(2_147_000_000, Math.max(0, (at - store.data.clock_offset_s) * 1000 - Date.now() + 5));
+    draftTimer = setTimeout(() => {
+      draftTimer = null;
+      if (stopped) return;
+      const ctx = makeCtx({ requestId: null, idempotencyKey: null });
+      if (finalizeDueDrafts(ctx).length > 0) {
+        emitOverdueInvoices(ctx, overdueNoticeDays);
+        persist();
+        dispatcher.kick();
+      }
+      scheduleDrafts();
+    }, delayMs);
+    draftTimer.unref();
+  };
+
   const control = {
     startClock(to: number) {
       if (!Number.isSafeInteger(to)) throw invalidRequest("to must be a unix timestamp in seconds", "to");
@@ -359,19 +400,32 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
       if (!Number.isSafeInteger(to)) throw invalidRequest("to must be a unix timestamp in seconds", "to");
       if (to < store.now()) throw invalidRequest(`to (${to}) is before the fake clock (${store.now()}); the clock only moves forward.`, "to");
       const invoices: StripeObject[] = [];
-      // Cross each period boundary in time order, invoicing at the boundary like a test clock does.
+      // Cross each period boundary and each draft's finalisation in time order, like a test clock does:
+      // a draft is finalised (and charged) before a later period closes.
       for (let guard = 0; guard < 10_000; guard++) {
-        const next = nextPeriodBoundary(makeCtx({ requestId: null, idempotencyKey: null }), to);
-        if (!next) break;
-        store.advanceClockTo(Math.max(next.end, store.now()));
+        const probe = makeCtx({ requestId: null, idempotencyKey: null });
+        const next = nextPeriodBoundary(probe, to);
+        const draftAt = nextDraftDeadline(probe, to);
+        if (!next && draftAt === null) break;
+        if (draftAt !== null && (!next || draftAt <= next.end)) {
+          store.advanceClockTo(Math.max(draftAt, store.now()));
+          const ctx = makeCtx({ requestId: null, idempotencyKey: null });
+          emitOverdueInvoices(ctx, overdueNoticeDays);
+          finalizeDueDrafts(ctx);
+          continue;
+        }
+        store.advanceClockTo(Math.max(next!.end, store.now()));
         const ctx = makeCtx({ requestId: null, idempotencyKey: null });
-        emitOverdueInvoices(ctx);
-        invoices.push(closeSubscriptionPeriod(ctx, next.sub, next.end, true));
+        emitOverdueInvoices(ctx, overdueNoticeDays);
+        invoices.push(closeSubscriptionPeriod(ctx, next!.sub, next!.end, true, draftWindowS));
       }
       store.advanceClockTo(to);
-      emitOverdueInvoices(makeCtx({ requestId: null, idempotencyKey: null }));
+      const ctx = makeCtx({ requestId: null, idempotencyKey: null });
+      finalizeDueDrafts(ctx);
+      emitOverdueInvoices(ctx, overdueNoticeDays);
       persist();
       dispatcher.kick();
+      scheduleDrafts();
       return { now: store.now(), invoices };
     },
     closePeriod(opts: ClosePeriodOptions = {}) {
@@ -541,8 +595,9 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     webhookEndpointId = endpoint.id;
     persist();
   }
-  // Deliveries left pending by a previous run resume now.
+  // Deliveries left pending by a previous run resume now, and drafts it left wait for their time.
   dispatcher.kick();
+  scheduleDrafts();
 
   return {
     url: baseUrl,
@@ -567,6 +622,8 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
     deliveries: (eventId) => store.data.deliveries.filter((d) => !eventId || d.event === eventId),
     waitForWebhooks: (opts) => dispatcher.idle(opts),
     async close() {
+      stopped = true;
+      if (draftTimer) clearTimeout(draftTimer);
       await dispatcher.stop();
       persist();
       await new Promise<void>((resolve) => {

@@ -63,5 +63,20 @@ describe("one grace-period rule for the run limits and the Billing page", () => 
     await db.update(invoices).set({ status: "open" }).where(eq(invoices.id, "in_grace_owed"));
     expect((await overageHold(db, s.studioId)).suspended).toBe(false);
     expect((await studioStanding(db, s.studioId)).quotas.overageAllowed).toBe(true);
+
+    // Stripe's overdue notice (invoice.overdue, recorded as overdue_notice_at) starts the hold on both
+    // paths from its arrival, though the database's clock has 4 days of grace left; the off-time shown
+    // is the notice's. Before the notice, nothing holds; paying lifts it on both.
+    const noticeAt = new Date(Math.floor(now.getTime() / 1000) * 1000);
+    await db.update(invoices).set({ overdueNoticeAt: noticeAt }).where(eq(invoices.id, "in_grace_owed"));
+    expect(await bothSay(s.studioId, new Date(noticeAt.getTime() - 1000))).toEqual({ hold: false, limits: false });
+    expect(await bothSay(s.studioId, noticeAt)).toEqual({ hold: true, limits: true });
+    expect((await overageHold(db, s.studioId)).suspended).toBe(true);
+    expect((await studioStanding(db, s.studioId)).quotas.overageAllowed).toBe(false);
+    expect((await overageHold(db, s.studioId, noticeAt)).unpaid.map((u) => [u.id, u.overageOffAt, u.overageOff])).toEqual([["in_grace_owed", noticeAt.toISOString(), true]]);
+    // A notice on a paid invoice holds nothing.
+    await db.update(invoices).set({ status: "paid" }).where(eq(invoices.id, "in_grace_owed"));
+    expect(await bothSay(s.studioId, noticeAt)).toEqual({ hold: false, limits: false });
+    expect((await overageHold(db, s.studioId)).suspended).toBe(false);
   });
 });

@@ -86,18 +86,7 @@ describe("a failed and then overdue overage invoice", () => {
     expect(before).toMatchObject({ suspended: false, graceDays: OVERDUE_GRACE_DAYS });
     expect(before.unpaid).toMatchObject([{ id: invoice.id, overdue: false, overageOffAt: new Date(dueAt.getTime() + OVERDUE_GRACE_DAYS * DAY_MS).toISOString() }]);
 
-    // The fake clock passes the due date: invoice.overdue, one mail each, naming the day overage goes off.
-    h.fake.advanceClock(invoice.due_date! + 60);
-    await h.fake.waitForWebhooks();
-    const overdue = await eventIds(invoice.id!, "invoice.overdue");
-    expect(overdue).toHaveLength(1);
-    await h.fake.deliverConcurrently([...overdue, ...overdue, ...overdue]);
-    const overdueMails = await mailsLike(`mail:invoice-overdue:${invoice.id}:%`);
-    expect(overdueMails).toHaveLength(2);
-    const offDay = new Date(dueAt.getTime() + OVERDUE_GRACE_DAYS * DAY_MS).toISOString().slice(0, 10);
-    expect((overdueMails[0].payload as { text: string }).text).toContain(offDay);
-
-    // Within the grace period overage still accrues; past it, none does and sweeps see it off.
+    // Within the grace period overage still accrues; past it (the database's clock), none does and sweeps see it off.
     const sweepId = await usageSweep(db, s.studioId);
     const inGrace = new Date(dueAt.getTime() + (OVERDUE_GRACE_DAYS - 1) * DAY_MS);
     const pastGrace = new Date(dueAt.getTime() + OVERDUE_GRACE_DAYS * DAY_MS);
@@ -106,6 +95,34 @@ describe("a failed and then overdue overage invoice", () => {
     expect((await overageHold(db, s.studioId, pastGrace)).suspended).toBe(true);
     expect(await db.transaction((tx) => recordChunkUsage(tx, { studioId: s.studioId, sweepId, chunkIndex: 1, computeMs: 1_000, memo: "past grace", at: pastGrace }))).toEqual({ billed: true, prepaidMs: 0, overageMs: 0 });
     expect((await studioStanding(db, s.studioId, pastGrace)).quotas.overageAllowed).toBe(false);
+
+    // The fake clock passes the due date: Stripe says nothing yet (its overdue automation is set to the
+    // grace period), and on the database's clock the invoice is not even due: overage stays on.
+    h.fake.advanceClock(invoice.due_date! + 60);
+    await h.fake.waitForWebhooks();
+    expect(await eventIds(invoice.id!, "invoice.overdue")).toEqual([]);
+    expect((await overageHold(db, s.studioId)).suspended).toBe(false);
+
+    // The fake clock passes the due date plus the grace period: invoice.overdue, one mail each. Stripe's
+    // notice starts the hold on its own clock, though the database's clock is still before the due date.
+    h.fake.advanceClock(invoice.due_date! + OVERDUE_GRACE_DAYS * 86_400 + 60);
+    await h.fake.waitForWebhooks();
+    const overdue = await eventIds(invoice.id!, "invoice.overdue");
+    expect(overdue).toHaveLength(1);
+    await h.fake.deliverConcurrently([...overdue, ...overdue, ...overdue]);
+    const overdueMails = await mailsLike(`mail:invoice-overdue:${invoice.id}:%`);
+    expect(overdueMails).toHaveLength(2);
+    expect((overdueMails[0].payload as { text: string }).text).toContain("overage is switched off for Brackwater Forge until it is paid");
+    const noticed = (await mirror(invoice.id!)).overdueNoticeAt!;
+    expect(noticed).toBeInstanceOf(Date);
+    const now = await databaseNow(db);
+    expect(now.getTime()).toBeLessThan(dueAt.getTime());
+    const held = await overageHold(db, s.studioId);
+    expect(held.suspended).toBe(true);
+    expect(held.unpaid).toMatchObject([{ id: invoice.id, overageOff: true, overageOffAt: noticed.toISOString() }]);
+    expect((await studioStanding(db, s.studioId)).quotas.overageAllowed).toBe(false);
+    expect((await billingSummary(db, s.studioId)).overage).toMatchObject({ allowed: true, held: true });
+    expect(await db.transaction((tx) => recordChunkUsage(tx, { studioId: s.studioId, sweepId, chunkIndex: 3, computeMs: 1_000, memo: "after Stripe's notice" }))).toEqual({ billed: true, prepaidMs: 0, overageMs: 0 });
     // The studio's own choice is untouched.
     expect((await effectiveQuotas(db, s.studioId)).overageAllowed).toBe(true);
 
@@ -115,14 +132,16 @@ describe("a failed and then overdue overage invoice", () => {
     await h.fake.waitForWebhooks();
     expect((await mirror(invoice.id!)).status).toBe("paid");
     expect((await overageHold(db, s.studioId, pastGrace)).suspended).toBe(false);
+    expect((await overageHold(db, s.studioId)).suspended).toBe(false);
     expect((await studioStanding(db, s.studioId, pastGrace)).quotas.overageAllowed).toBe(true);
+    expect((await studioStanding(db, s.studioId)).quotas.overageAllowed).toBe(true);
     expect(await db.transaction((tx) => recordChunkUsage(tx, { studioId: s.studioId, sweepId, chunkIndex: 2, computeMs: 1_000, memo: "paid", at: pastGrace }))).toEqual({ billed: true, prepaidMs: 0, overageMs: 1_000 });
 
     // The old failure and overdue events arrive again after the payment, reversed and concurrently:
     // the invoice stays paid and nobody is told again.
     await h.fake.deliverEvents([...overdue, ...failed]);
     await h.fake.deliverConcurrently([...failed, ...overdue]);
-    expect((await mirror(invoice.id!)).status).toBe("paid");
+    expect(await mirror(invoice.id!)).toMatchObject({ status: "paid", overdueNoticeAt: noticed });
     expect(await mailsLike(`mail:invoice-payment_failed:${invoice.id}:%`)).toHaveLength(2);
     expect(await mailsLike(`mail:invoice-overdue:${invoice.id}:%`)).toHaveLength(2);
     expect((await billingSummary(db, s.studioId)).overage).toMatchObject({ allowed: true, held: false, unpaidInvoices: [] });

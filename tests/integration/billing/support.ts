@@ -12,6 +12,7 @@ import { ledgerEntries, outbox, stripeEvents, studioQuotas } from "@/db/schema";
 import { startStripeFake, type StripeFake } from "@/lib/fakes/stripe";
 import { configureBilling, fakeStripeClient } from "@/lib/billing/stripe";
 import { HANDLED_EVENT_TYPES } from "@/lib/billing/webhook";
+import { OVERDUE_GRACE_DAYS } from "@/lib/billing/packs";
 import { appendLedgerEntry, balanceMs } from "@/lib/ledger/ledger";
 import { submitSweep } from "@/lib/queue/submit";
 import { OutboxDispatcher } from "@/lib/outbox/outbox";
@@ -52,6 +53,10 @@ export async function startBillingHarness(): Promise<BillingHarness> {
     webhookUrl: `http://127.0.0.1:${port}/api/v1/stripe/webhook`,
     webhookEvents: [...HANDLED_EVENT_TYPES],
     webhookRetryDelaysMs: [50, 100],
+    // As the app's own fake (stripeFakeOptions) and the live account: invoice.overdue after the grace period.
+    overdueNoticeDays: OVERDUE_GRACE_DAYS,
+    // Stripe's hour between a renewal invoice's draft and its finalisation, compressed like the retry schedule.
+    draftWindowSeconds: 1,
   });
   const stripe = fakeStripeClient(fake.port);
   configureBilling({ stripe, webhookSecret: fake.webhookSecret!, mode: "fake", fakeUrl: fake.url });

@@ -570,7 +570,13 @@ export function setInvoiceLines(invoice: StripeObject, lines: StripeObject[]): v
  * Bills a subscription's metered usage for [current period start, periodEnd) and rolls the period on.
  * Each line: meter total over the period × the price's unit amount, rounded once to whole cents.
  */
-export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd: number, opts: { finalize: boolean; billingReason: string }): StripeObject {
+/**
+ * The invoice for a subscription's period ending at `periodEnd`. With `finalize` it is finalised (and
+ * charged when a card is on file) at once, or — with `draftWindowS` > 0, as Stripe does for renewals —
+ * left a draft with `automatically_finalizes_at` = periodEnd + draftWindowS, finalised then by
+ * finalizeDueDrafts (Stripe: "about one hour" after the invoice is created).
+ */
+export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd: number, opts: { finalize: boolean; billingReason: string; draftWindowS?: number }): StripeObject {
   const customer = mustGet(ctx.store, "customers", sub.customer as string);
   const items = subscriptionItems(sub);
   const periodStart = items[0].current_period_start as number;
@@ -636,15 +642,50 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
     item.current_period_end = periodEndAfter(sub.billing_cycle_anchor as number, periodEnd, (item.price as StripeObject & { recurring: { interval: string } }).recurring.interval, (item.price as StripeObject & { recurring: { interval_count: number } }).recurring.interval_count);
   }
   sub.latest_invoice = invoice.id;
+  const draftWindowS = opts.draftWindowS ?? 0;
+  if (opts.finalize && draftWindowS > 0) invoice.automatically_finalizes_at = periodEnd + draftWindowS;
   ctx.emit("invoice.created", invoice);
-  if (opts.finalize) {
-    finalizeInvoiceObject(ctx, invoice);
-    if (invoice.status === "open" && invoice.collection_method === "charge_automatically") {
-      const pm = (sub.default_payment_method as string | null) ?? (customer.invoice_settings as { default_payment_method: string | null }).default_payment_method;
-      if (pm) chargeInvoice(ctx, invoice, pm, { throwOnDecline: false });
-    }
-  }
+  if (opts.finalize && draftWindowS === 0) advanceDraftInvoice(ctx, invoice);
   return invoice;
+}
+
+/**
+ * What Stripe does when a subscription's draft is finalised automatically: finalise it and, collected
+ * automatically with a card on file (the subscription's, else the customer's default) at that moment,
+ * charge it.
+ */
+function advanceDraftInvoice(ctx: Ctx, invoice: StripeObject): void {
+  finalizeInvoiceObject(ctx, invoice);
+  if (invoice.status !== "open" || invoice.collection_method !== "charge_automatically") return;
+  const subId = (invoice.parent as { subscription_details: { subscription: string } } | null)?.subscription_details?.subscription;
+  const sub = subId ? ctx.store.get("subscriptions", subId) : undefined;
+  const customer = mustGet(ctx.store, "customers", invoice.customer as string);
+  const pm = (sub?.default_payment_method as string | null | undefined) ?? (customer.invoice_settings as { default_payment_method: string | null }).default_payment_method;
+  if (pm) chargeInvoice(ctx, invoice, pm, { throwOnDecline: false });
+}
+
+/** Drafts waiting for their automatic finalisation (auto_advance, automatically_finalizes_at set). */
+function waitingDrafts(ctx: Ctx): StripeObject[] {
+  return ctx.store.newestFirst("invoices").filter((i) => i.status === "draft" && i.auto_advance === true && typeof i.automatically_finalizes_at === "number");
+}
+
+/** The earliest automatic finalisation at or before `to` (unix s), or null. */
+export function nextDraftDeadline(ctx: Ctx, to: number): number | null {
+  let best: number | null = null;
+  for (const draft of waitingDrafts(ctx)) {
+    const at = draft.automatically_finalizes_at as number;
+    if (at <= to && (best === null || at < best)) best = at;
+  }
+  return best;
+}
+
+/** Finalises (and charges) every draft whose automatic finalisation time the fake clock has reached, oldest first. */
+export function finalizeDueDrafts(ctx: Ctx): StripeObject[] {
+  const due = waitingDrafts(ctx)
+    .filter((d) => (d.automatically_finalizes_at as number) <= ctx.now)
+    .sort((a, b) => (a.automatically_finalizes_at as number) - (b.automatically_finalizes_at as number) || ctx.store.seqOf(a.id) - ctx.store.seqOf(b.id));
+  for (const draft of due) advanceDraftInvoice(ctx, draft);
+  return due;
 }
 
 export function finalizeInvoiceObject(ctx: Ctx, invoice: StripeObject): void {
@@ -658,6 +699,7 @@ export function finalizeInvoiceObject(ctx: Ctx, invoice: StripeObject): void {
   invoice.hosted_invoice_url = `${ctx.baseUrl}/i/${invoice.id}`;
   invoice.invoice_pdf = `${ctx.baseUrl}/i/${invoice.id}/pdf`;
   invoice.status_transitions = { ...(invoice.status_transitions as object), finalized_at: ctx.now };
+  invoice.automatically_finalizes_at = null;
   if (invoice.collection_method === "send_invoice") {
     const sub = invoice.parent ? ctx.store.get("subscriptions", (invoice.parent as { subscription_details: { subscription: string } }).subscription_details.subscription) : undefined;
     const days = (sub?.days_until_due as number | null | undefined) ?? 30;
@@ -831,7 +873,10 @@ export function voidInvoice(ctx: Ctx, params: Params, id: string): HandlerResult
 export interface ClosePeriodOptions {
   customer?: string;
   subscription?: string;
-  /** Leave the invoices as drafts (auto_advance false) instead of finalising them. */
+  /**
+   * Leave the invoices as drafts (auto_advance false) instead of finalising them. By default they are
+   * finalised at once, as if the draft window had passed (advance_clock keeps the window).
+   */
   finalize?: boolean;
 }
 
@@ -845,8 +890,8 @@ export function closePeriod(ctx: Ctx, opts: ClosePeriodOptions): StripeObject[] 
 }
 
 /** One period end: the invoice for the usage, then the cancellation if it was asked for at period end. */
-export function closeSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd: number, finalize: boolean): StripeObject {
-  const invoice = invoiceSubscriptionPeriod(ctx, sub, periodEnd, { finalize, billingReason: "subscription_cycle" });
+export function closeSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd: number, finalize: boolean, draftWindowS = 0): StripeObject {
+  const invoice = invoiceSubscriptionPeriod(ctx, sub, periodEnd, { finalize, billingReason: "subscription_cycle", draftWindowS });
   if (sub.cancel_at_period_end) endSubscription(ctx, sub, { comment: null, feedback: null, reason: "cancellation_requested" });
   return invoice;
 }
@@ -880,10 +925,10 @@ export function markUncollectible(ctx: Ctx, params: Params, id: string): Handler
 
 /**
  * invoice.overdue (Stripe's event list: "Occurs X number of days after an invoice becomes due", X set
- * in the account's automations; the fake uses X = 0): once per invoice still unpaid (open or
- * uncollectible) whose due_date the fake clock has reached.
+ * in the account's automations; the fake takes X as `overdueNoticeDays`, default 0): once per invoice
+ * still unpaid (open or uncollectible) whose due_date + X days the fake clock has reached.
  */
-export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
+export function emitOverdueInvoices(ctx: Ctx, overdueNoticeDays = 0): StripeObject[] {
   const overdue: StripeObject[] = [];
   const told = new Set(
     ctx.store
@@ -893,7 +938,7 @@ export function emitOverdueInvoices(ctx: Ctx): StripeObject[] {
   );
   for (const invoice of ctx.store.newestFirst("invoices").reverse()) {
     const due = invoice.due_date as number | null;
-    if (due === null || due > ctx.now || told.has(invoice.id)) continue;
+    if (due === null || due + overdueNoticeDays * DAY_S > ctx.now || told.has(invoice.id)) continue;
     if (invoice.status !== "open" && invoice.status !== "uncollectible") continue;
     ctx.emit("invoice.overdue", invoice);
     overdue.push(invoice);

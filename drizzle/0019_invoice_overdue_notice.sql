@@ -1,0 +1,1 @@
+ALTER TABLE "invoices" ADD COLUMN "overdue_notice_at" timestamp with time zone;
