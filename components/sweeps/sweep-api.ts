@@ -86,7 +86,7 @@ const heldCellRows = (held: HeldCells) => held.cells;
  * (every second while the sweep is active, and once more when it finishes) only for the cells of
  * the results written after the cursor of the cells already held, merged in by index.
  */
-export function useSweepCells(studioId: string, sweepId: string, active: boolean, initialCells?: HeldCells) {
+export function useSweepCells(studioId: string, sweepId: string, active: boolean) {
   const queryClient = useQueryClient();
   const queryKey = sweepKeys.cells(studioId, sweepId);
   return useQuery({
@@ -96,9 +96,6 @@ export function useSweepCells(studioId: string, sweepId: string, active: boolean
       const after = encodeURIComponent(held?.cursor ?? FIRST_CURSOR);
       return withPage(held, await apiFetch<CellsPage>(`${sweepPath(studioId, sweepId)}/cells?after=${after}`));
     },
-    // The server page's copy (cells and the cursor read before them): the map draws without asking;
-    // a running sweep's next read asks only for what changed after that cursor, as after any read.
-    ...(initialCells ? { initialData: initialCells, initialDataUpdatedAt: () => Date.now() } : {}),
     select: heldCellRows,
     // withPage keeps the held object when nothing changed; comparing tens of thousands of cells
     // deeply every second, as structural sharing would, is the work this avoids.

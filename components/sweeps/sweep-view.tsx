@@ -19,7 +19,6 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import type { HeldCells } from "./sweep-cells";
 import { COLOUR_RANGES, METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 import { SingleRunPanel } from "./rerun-comparison";
@@ -198,27 +197,13 @@ function AxisSelect({ id, label, axes, choices, value, onChange }: {
   );
 }
 
-export function SweepView({
-  studioId,
-  studioName,
-  role,
-  sweepId,
-  initialSweep,
-  initialCells,
-}: {
-  studioId: string;
-  studioName: string;
-  role: StudioRole;
-  sweepId: string;
-  initialSweep?: Sweep;
-  initialCells?: HeldCells;
-}) {
+export function SweepView({ studioId, studioName, role, sweepId, initialSweep }: { studioId: string; studioName: string; role: StudioRole; sweepId: string; initialSweep?: Sweep }) {
   const router = useRouter();
   const queryClient = useQueryClient();
   const sweepQuery = useSweep(studioId, sweepId, initialSweep);
   const sweep = sweepQuery.data;
   const active = isActive(sweep?.status);
-  const cellsQuery = useSweepCells(studioId, sweepId, active, initialCells);
+  const cellsQuery = useSweepCells(studioId, sweepId, active);
   const canRun = role === "owner" || role === "engineer";
 
   // One last read of the cells once the sweep has finished (only what changed since the last poll), so the map shows every cell.
