@@ -67,4 +67,27 @@ test("the studios, sweeps, sweep, cell, catalogue, members, tokens and webhooks 
   } finally {
     await noScript.close();
   }
+
+  // With scripts on, each page takes over the server's HTML as it is: React reports no hydration mismatch.
+  const mismatches: string[] = [];
+  page.on("console", (message) => {
+    if (message.type() === "error" && /hydrat/i.test(message.text())) mismatches.push(`${page.url()}: ${message.text()}`);
+  });
+  page.on("pageerror", (error) => {
+    if (/hydrat/i.test(error.message)) mismatches.push(`${page.url()}: ${error.message}`);
+  });
+  const pages: [string, string][] = [
+    ["/studios", "studio-list"],
+    [`${base}/sweeps`, `sweep-row-${done.id}`],
+    [`${base}/sweeps/${done.id}/cells/0`, "cell-verdict"],
+    [`${base}/catalogues/${catalogues.catalogues[0].id}`, "catalogue-title"],
+    [`${base}/members`, "members-table"],
+  ];
+  for (const [path, testId] of pages) {
+    await page.goto(path);
+    await expect(page.getByTestId(testId)).toBeVisible();
+    // Hydration runs as the page's scripts execute, before the load event.
+    await page.waitForLoadState("load");
+  }
+  expect(mismatches).toEqual([]);
 });
