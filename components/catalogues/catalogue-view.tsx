@@ -95,11 +95,25 @@ export function settingsOf(form: FormState): CheckSettingsInput {
   };
 }
 
-export function CatalogueView({ studioId, studioName, role, catalogueId }: { studioId: string; studioName: string; role: StudioRole; catalogueId: string }) {
+export function CatalogueView({
+  studioId,
+  studioName,
+  role,
+  catalogueId,
+  initialDetail,
+}: {
+  studioId: string;
+  studioName: string;
+  role: StudioRole;
+  catalogueId: string;
+  /** The server page's copy of `GET …/catalogues/{id}`: the catalogue paints with the page. */
+  initialDetail?: { catalogue: CatalogueDetail; checks: CheckSummary[] };
+}) {
   const canWrite = role === "owner" || role === "engineer";
   const detail = useQuery({
     queryKey: catalogueKeys.one(studioId, catalogueId),
     queryFn: () => apiFetch<{ catalogue: CatalogueDetail; checks: CheckSummary[] }>(cataloguePath(studioId, catalogueId)),
+    ...(initialDetail ? { initialData: initialDetail, initialDataUpdatedAt: () => Date.now() } : {}),
     refetchInterval: (query) => (query.state.data?.checks.some((check) => ["queued", "running", "paused"].includes(check.status)) ? 2000 : false),
   });
   return (

@@ -11,9 +11,21 @@ import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { queryKeys, studioApiPath, useInvites, useMembers } from "@/lib/ui/queries";
 import { ROLE_DESCRIPTIONS, STUDIO_ROLES, type Invite, type Member, type StudioRole } from "@/lib/ui/types";
 
-export function MembersManager({ studioId, studioName, currentUserId }: { studioId: string; studioName: string; currentUserId: string }) {
-  const members = useMembers(studioId);
-  const invites = useInvites(studioId);
+export function MembersManager({
+  studioId,
+  studioName,
+  currentUserId,
+  initialMembers,
+  initialInvites,
+}: {
+  studioId: string;
+  studioName: string;
+  currentUserId: string;
+  initialMembers?: Member[];
+  initialInvites?: Invite[];
+}) {
+  const members = useMembers(studioId, initialMembers);
+  const invites = useInvites(studioId, true, initialInvites);
   const queryClient = useQueryClient();
   const router = useRouter();
   const [actionError, setActionError] = useState<string | null>(null);

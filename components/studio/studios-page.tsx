@@ -9,8 +9,8 @@ import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { queryKeys, useStudios } from "@/lib/ui/queries";
 import type { StudioSummary } from "@/lib/ui/types";
 
-export function StudiosPage({ userName }: { userName: string }) {
-  const studios = useStudios();
+export function StudiosPage({ userName, initialStudios }: { userName: string; initialStudios?: StudioSummary[] }) {
+  const studios = useStudios(initialStudios);
   return (
     <div>
       <PageHeading eyebrow="Your studios" title={userName ? `Welcome, ${userName}` : "Your studios"}>

@@ -15,8 +15,8 @@ import type { ApiToken } from "@/lib/ui/types";
 type Scope = "read" | "write";
 type CreatedToken = { token: ApiToken; secret: string };
 
-export function TokensManager({ studioId, studioName }: { studioId: string; studioName: string }) {
-  const tokens = useTokens(studioId);
+export function TokensManager({ studioId, studioName, initialTokens }: { studioId: string; studioName: string; initialTokens?: ApiToken[] }) {
+  const tokens = useTokens(studioId, true, initialTokens);
   const queryClient = useQueryClient();
   const [created, setCreated] = useState<CreatedToken | null>(null);
   const [pendingRevoke, setPendingRevoke] = useState<ApiToken | null>(null);

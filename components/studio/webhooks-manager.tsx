@@ -39,13 +39,15 @@ interface Delivery {
 const endpointsKey = (studioId: string) => ["webhooks", studioId] as const;
 const deliveriesKey = (studioId: string, endpointId: string) => ["webhook-deliveries", studioId, endpointId] as const;
 
-export function WebhooksManager({ studioId, studioName }: { studioId: string; studioName: string }) {
+export function WebhooksManager({ studioId, studioName, initialEndpoints }: { studioId: string; studioName: string; initialEndpoints?: Endpoint[] }) {
   const queryClient = useQueryClient();
   const [created, setCreated] = useState<{ endpoint: Endpoint; secret: string } | null>(null);
   const [open, setOpen] = useState<string | null>(null);
   const endpoints = useQuery({
     queryKey: endpointsKey(studioId),
     queryFn: async () => (await apiFetch<{ endpoints: Endpoint[] }>(`${studioApiPath(studioId)}/webhooks`)).endpoints,
+    // The server page's copy: the list paints with the page.
+    ...(initialEndpoints ? { initialData: initialEndpoints, initialDataUpdatedAt: () => Date.now() } : {}),
   });
   const remove = useMutation({
     mutationFn: (endpoint: Endpoint) => apiFetch<unknown>(`${studioApiPath(studioId)}/webhooks/${encodeURIComponent(endpoint.id)}`, { method: "DELETE" }),
@@ -82,7 +84,7 @@ export function WebhooksManager({ studioId, studioName }: { studioId: string; st
             ) : endpoints.data.length === 0 ? (
               <EmptyState>No endpoints yet.</EmptyState>
             ) : (
-              <ul className="divide-y divide-line">
+              <ul className="divide-y divide-line" data-testid="webhook-endpoints">
                 {endpoints.data.map((endpoint) => (
                   <li key={endpoint.id} className="py-3">
                     <div className="flex flex-wrap items-center gap-3">

@@ -38,14 +38,32 @@ function metricText(value: unknown, unit: string): string {
   return "no value";
 }
 
-export function CellView({ studioId, studioName, role, sweepId, index }: { studioId: string; studioName: string; role: StudioRole; sweepId: string; index: number }) {
+export function CellView({
+  studioId,
+  studioName,
+  role,
+  sweepId,
+  index,
+  initialSweep,
+  initialCell,
+}: {
+  studioId: string;
+  studioName: string;
+  role: StudioRole;
+  sweepId: string;
+  index: number;
+  /** The server page's copies: the sweep and the cell's stored result paint at once; only the series waits for the engine. */
+  initialSweep?: Sweep;
+  initialCell?: CellDetail["cell"];
+}) {
   const router = useRouter();
-  const sweep = useSweep(studioId, sweepId);
+  const sweep = useSweep(studioId, sweepId, initialSweep);
   const detail = useQuery({
     queryKey: sweepKeys.cell(studioId, sweepId, index),
     queryFn: () => apiFetch<CellDetail>(`${sweepPath(studioId, sweepId)}/cells/${index}`),
     retry: false,
   });
+  const cell = detail.data?.cell ?? initialCell;
   const [dtFactor, setDtFactor] = useState(0.25);
   const dtFactorValid = Number.isFinite(dtFactor) && dtFactor > 0 && dtFactor < 1;
   // A re-run is a sweep like any other: first its quote, then a confirmation that accepts that ceiling.
@@ -60,11 +78,12 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
   });
   const canRun = role === "owner" || role === "engineer";
 
+  const scenario = cell?.scenario;
   const scene = useMemo(() => {
-    if (!detail.data) return null;
-    const setup = buildScene(detail.data.cell.scenario.scene, detail.data.cell.scenario.seed);
+    if (!scenario) return null;
+    const setup = buildScene(scenario.scene, scenario.seed);
     return { radii: Array.from(setup.bodies.radius), walls: setup.walls.map((wall) => ({ normalX: wall.normalX, normalY: wall.normalY, offsetM: wall.offsetM })) };
-  }, [detail.data]);
+  }, [scenario]);
 
   const energy = useMemo(() => {
     const totals = detail.data?.series.totalJ ?? [];
@@ -82,24 +101,22 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
           ← Back to the stability map{sweep.data?.name ? ` of “${sweep.data.name}”` : ""}
         </Link>
       </p>
-      {detail.isPending ? (
-        <LoadingRows label="the cell" />
-      ) : detail.isError ? (
-        <Alert>{errorMessage(detail.error)}</Alert>
+      {!cell ? (
+        detail.isError ? <Alert>{errorMessage(detail.error)}</Alert> : <LoadingRows label="the cell" />
       ) : (
         <div className="space-y-6">
           <div className="grid gap-6 lg:grid-cols-2">
             <Card title={`Cell ${index}`}>
               <p className="mb-3 flex items-center gap-2 text-sm">
-                <span className="inline-block h-3 w-3 rounded-sm" style={{ background: VERDICT_STYLES[detail.data.cell.verdict].colour }} aria-hidden="true" />
+                <span className="inline-block h-3 w-3 rounded-sm" style={{ background: VERDICT_STYLES[cell.verdict].colour }} aria-hidden="true" />
                 <span className="font-semibold" data-testid="cell-verdict">
-                  {VERDICT_STYLES[detail.data.cell.verdict].label}
+                  {VERDICT_STYLES[cell.verdict].label}
                 </span>
               </p>
-              {detail.data.cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{reasonForDisplay(detail.data.cell.reason)}</p> : null}
+              {cell.reason ? <p className="mb-3 text-sm text-ink-muted" data-testid="cell-reason">{reasonForDisplay(cell.reason)}</p> : null}
               <h3 className="mb-1 text-sm font-semibold">Swept parameters</h3>
               <dl className="mb-3 grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm">
-                {detail.data.cell.axisValues.map((value, i) => {
+                {cell.axisValues.map((value, i) => {
                   const axis = sweep.data?.axes[i];
                   return (
                     <div key={i} className="contents">
@@ -110,9 +127,9 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                 })}
                 {(
                   [
-                    ["dtS", "frame step dt", formatFrameStepWithRate(detail.data.cell.scenario.dtS, 4)],
-                    ["substeps", "substeps per frame [no unit]", String(detail.data.cell.scenario.substeps)],
-                    ["integrator", "integrator", detail.data.cell.scenario.integrator],
+                    ["dtS", "frame step dt", formatFrameStepWithRate(cell.scenario.dtS, 4)],
+                    ["substeps", "substeps per frame [no unit]", String(cell.scenario.substeps)],
+                    ["integrator", "integrator", cell.scenario.integrator],
                   ] as const
                 )
                   // The rest of the step set-up, where no axis already names it.
@@ -131,7 +148,7 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
                     <dt className="text-ink-muted">
                       {row.label} [{row.unit || "no unit"}]
                     </dt>
-                    <dd className="text-right font-mono">{metricText(detail.data.cell.metrics[row.key], row.unit)}</dd>
+                    <dd className="text-right font-mono">{metricText(cell.metrics[row.key], row.unit)}</dd>
                   </div>
                 ))}
               </dl>
@@ -200,14 +217,21 @@ export function CellView({ studioId, studioName, role, sweepId, index }: { studi
               ) : null}
             </Card>
           </div>
-          <Card title="Time series">
-            <CellTimeSeries series={detail.data.series} overlapLimitM={scene ? detail.data.cell.scenario.tolerances.maxOverlapFraction * Math.min(...scene.radii) : undefined} />
-          </Card>
-          {scene ? (
-            <Card title="Replay">
-              <TrajectoryReplay series={detail.data.series} radiiM={scene.radii} walls={scene.walls} />
-            </Card>
-          ) : null}
+          {/* The series is the engine's run of the cell again, fetched after the page: the cards above do not wait for it. */}
+          {detail.data ? (
+            <>
+              <Card title="Time series">
+                <CellTimeSeries series={detail.data.series} overlapLimitM={scene ? cell.scenario.tolerances.maxOverlapFraction * Math.min(...scene.radii) : undefined} />
+              </Card>
+              {scene ? (
+                <Card title="Replay">
+                  <TrajectoryReplay series={detail.data.series} radiiM={scene.radii} walls={scene.walls} />
+                </Card>
+              ) : null}
+            </>
+          ) : (
+            <Card title="Time series">{detail.isError ? <Alert>{errorMessage(detail.error)}</Alert> : <LoadingRows label="the time series" />}</Card>
+          )}
         </div>
       )}
     </StudioShell>

@@ -11,6 +11,15 @@ import type { StudioRole } from "@/lib/ui/types";
 import { SWEEP_STATUSES, formatMinutes, isActive, sweepKeys, sweepsPath, type Sweep, type SweepStatus } from "./sweep-api";
 
 const PAGE_SIZE = 20;
+
+/** One page of `GET …/sweeps`. */
+interface SweepsListPage {
+  sweeps: (Sweep & { createdBy: { id: string; name: string } | null })[];
+  page: number;
+  pageSize: number;
+  total: number;
+  creators: { id: string; name: string }[];
+}
 const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
 const td = "px-3 py-2.5 align-middle";
 
@@ -31,7 +40,18 @@ export function progressPercent(sweep: Pick<Sweep, "cells" | "cellsDone">): numb
   return Math.min(100, Math.floor((sweep.cellsDone / sweep.cells) * 100));
 }
 
-export function SweepsList({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+export function SweepsList({
+  studioId,
+  studioName,
+  role,
+  initialList,
+}: {
+  studioId: string;
+  studioName: string;
+  role: StudioRole;
+  /** The server page's first page (no filters): the table paints with the page. */
+  initialList?: SweepsListPage;
+}) {
   const [status, setStatus] = useState<"" | SweepStatus>("");
   const [creator, setCreator] = useState("");
   const [search, setSearch] = useState("");
@@ -45,6 +65,8 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
     }, 300);
     return () => clearTimeout(timer);
   }, [search]);
+  // The server's copy answers only the query it was read for: the first page with no filter, at this page size.
+  const initial = initialList && initialList.pageSize === PAGE_SIZE && !status && !creator && !searched && page === 1 ? initialList : undefined;
   const list = useQuery({
     queryKey: [...sweepKeys.list(studioId, status, page), creator, searched],
     queryFn: () => {
@@ -52,8 +74,9 @@ export function SweepsList({ studioId, studioName, role }: { studioId: string; s
       if (status) query.set("status", status);
       if (creator) query.set("createdBy", creator);
       if (searched) query.set("q", searched);
-      return apiFetch<{ sweeps: (Sweep & { createdBy: { id: string; name: string } | null })[]; page: number; pageSize: number; total: number; creators: { id: string; name: string }[] }>(`${sweepsPath(studioId)}?${query}`);
+      return apiFetch<SweepsListPage>(`${sweepsPath(studioId)}?${query}`);
     },
+    ...(initial ? { initialData: initial, initialDataUpdatedAt: () => Date.now() } : {}),
     placeholderData: (previous) => previous,
     // Keep progress current while anything on the page still runs.
     refetchInterval: (query) => (query.state.data?.sweeps.some((sweep) => isActive(sweep.status)) ? 2000 : false),

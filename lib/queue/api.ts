@@ -5,6 +5,7 @@ import { SWEEP_STATUSES, sweeps, users, type Sweep, type SweepStatus } from "@/d
 import { ApiError } from "@/lib/errors";
 import { z } from "@/lib/zod";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
+import { sweepView } from "./views";
 
 /** The sweep, if it belongs to the studio; otherwise the same 404 as a sweep that does not exist. */
 export async function sweepOfStudio(db: Db, studioId: string, sweepId: string): Promise<Sweep> {
@@ -75,14 +76,16 @@ export async function listSweeps(db: Db, studioId: string, query: ListQuery): Pr
   if (query.q) conditions.push(ilike(sweeps.name, containsPattern(query.q)));
   if (query.createdBy) conditions.push(eq(sweeps.createdByUserId, query.createdBy));
   const where = and(...conditions);
-  const [{ n }] = await db.select({ n: count() }).from(sweeps).where(where);
-  const rows = await db
-    .select()
-    .from(sweeps)
-    .where(where)
-    .orderBy(desc(sweeps.createdAt), desc(sweeps.id))
-    .limit(query.pageSize)
-    .offset((query.page - 1) * query.pageSize);
+  const [[{ n }], rows] = await Promise.all([
+    db.select({ n: count() }).from(sweeps).where(where),
+    db
+      .select()
+      .from(sweeps)
+      .where(where)
+      .orderBy(desc(sweeps.createdAt), desc(sweeps.id))
+      .limit(query.pageSize)
+      .offset((query.page - 1) * query.pageSize),
+  ]);
   return { rows, total: Number(n) };
 }
 
@@ -95,6 +98,19 @@ export async function sweepCreators(db: Db, studioId: string): Promise<{ id: str
     .where(and(eq(sweeps.studioId, studioId), isNotNull(sweeps.createdByUserId)))
     .orderBy(asc(users.name), asc(users.email));
   return rows.map((row) => ({ id: row.id, name: row.name || row.email }));
+}
+
+/**
+ * One page of the sweeps list as `GET …/sweeps` answers it (the sweeps page renders the first page
+ * with itself from the same function). The page and the creators are read together.
+ */
+export async function sweepsListPage(db: Db, studioId: string, query: ListQuery) {
+  const [{ rows, total }, creators] = await Promise.all([listSweeps(db, studioId, query), sweepCreators(db, studioId)]);
+  const names = new Map(creators.map((creator) => [creator.id, creator.name]));
+  const list = await Promise.all(
+    rows.map(async (sweep) => ({ ...(await sweepView(db, sweep)), createdBy: sweep.createdByUserId ? { id: sweep.createdByUserId, name: names.get(sweep.createdByUserId) ?? "" } : null })),
+  );
+  return { sweeps: list, page: query.page, pageSize: query.pageSize, total, creators };
 }
 
 /** The response header of the cells route that carries the sweep's change cursor (JSON and CSV alike). */

@@ -8,7 +8,8 @@ import { and, asc, eq, gt, lte, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { sweepChunks, sweepResults, type Sweep, type SweepResult } from "@/db/schema";
 import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
-import { axisValuesAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
+import { axisValuesAt, cellAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
+import type { Scenario } from "@/lib/physics/types";
 import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
 import { CONTACT_CSV_COLUMNS, cellContactTuning, contactTuningCsv, contactTuningJson } from "@/lib/sweeps/contact-tuning";
 import { csvText } from "@/lib/csv";
@@ -150,6 +151,31 @@ export async function storedCells(db: DbOrTx, sweep: Sweep, onlyIndex?: number):
   }
   return cells;
 }
+
+/**
+ * One cell without its time series: its parameters, its full scenario and what is stored of its
+ * result (null values before the cell is done). The cell route adds the recomputed series; the
+ * cell page renders this part on the server, so the verdict is there before the engine runs again.
+ */
+export async function cellSummary(db: DbOrTx, sweep: Sweep, index: number): Promise<CellResultOrPending & { scenario: Scenario }> {
+  const spec = sweep.spec as SweepSpec;
+  const cell = cellAt(spec, expandAxes(spec), index);
+  const [stored] = await storedCells(db, sweep, index);
+  return {
+    index,
+    axisValues: cell.axisValues,
+    scenario: cell.scenario,
+    metrics: stored?.metrics ?? null,
+    verdict: stored?.verdict ?? null,
+    reason: stored?.reason ?? null,
+  };
+}
+
+type CellResultOrPending = Omit<CellResult, "metrics" | "verdict" | "reason"> & {
+  metrics: CellResult["metrics"] | null;
+  verdict: CellResult["verdict"] | null;
+  reason: CellResult["reason"] | null;
+};
 
 /** Verdict code per cell index (255 where the cell is not done yet), for maps and envelopes. */
 export async function storedVerdictCodes(db: DbOrTx, sweep: Sweep): Promise<Uint8Array> {

@@ -19,10 +19,15 @@ export const queryKeys = {
 
 export const studioApiPath = (studioId: string) => `/api/v1/studios/${encodeURIComponent(studioId)}`;
 
-export function useStudios() {
+/**
+ * `initial…` arguments below are the server page's copy of the same answer: the first paint shows
+ * the data (no loading row and no request after hydration); the query keeps it current as before.
+ */
+export function useStudios(initialStudios?: StudioSummary[]) {
   return useQuery({
     queryKey: queryKeys.studios,
     queryFn: async () => (await apiFetch<{ studios: StudioSummary[] }>("/api/v1/studios")).studios,
+    ...(initialStudios ? { initialData: initialStudios, initialDataUpdatedAt: () => Date.now() } : {}),
   });
 }
 
@@ -30,25 +35,28 @@ export function useStudio(studioId: string) {
   return useQuery({ queryKey: queryKeys.studio(studioId), queryFn: () => apiFetch<StudioDetail>(studioApiPath(studioId)) });
 }
 
-export function useMembers(studioId: string) {
+export function useMembers(studioId: string, initialMembers?: Member[]) {
   return useQuery({
     queryKey: queryKeys.members(studioId),
     queryFn: async () => (await apiFetch<{ members: Member[] }>(`${studioApiPath(studioId)}/members`)).members,
+    ...(initialMembers ? { initialData: initialMembers, initialDataUpdatedAt: () => Date.now() } : {}),
   });
 }
 
-export function useInvites(studioId: string, enabled = true) {
+export function useInvites(studioId: string, enabled = true, initialInvites?: Invite[]) {
   return useQuery({
     queryKey: queryKeys.invites(studioId),
     queryFn: async () => (await apiFetch<{ invites: Invite[] }>(`${studioApiPath(studioId)}/invites`)).invites,
     enabled,
+    ...(initialInvites ? { initialData: initialInvites, initialDataUpdatedAt: () => Date.now() } : {}),
   });
 }
 
-export function useTokens(studioId: string, enabled = true) {
+export function useTokens(studioId: string, enabled = true, initialTokens?: ApiToken[]) {
   return useQuery({
     queryKey: queryKeys.tokens(studioId),
     queryFn: async () => (await apiFetch<{ tokens: ApiToken[] }>(`${studioApiPath(studioId)}/tokens`)).tokens,
     enabled,
+    ...(initialTokens ? { initialData: initialTokens, initialDataUpdatedAt: () => Date.now() } : {}),
   });
 }

@@ -4,7 +4,7 @@ import { otherMethods } from "@/lib/api/methods";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { resolveSnapshotReference } from "@/lib/snapshots/store";
-import { listSweeps, parseListQuery, submitSweepRequestSchema, sweepCreators } from "@/lib/queue/api";
+import { parseListQuery, submitSweepRequestSchema, sweepsListPage } from "@/lib/queue/api";
 import { pokeProcessRunner } from "@/lib/queue/poke";
 import { submitSweep } from "@/lib/queue/submit";
 import { sweepView } from "@/lib/queue/views";
@@ -15,13 +15,7 @@ export const dynamic = "force-dynamic";
 
 export const GET = withAuth(MEMBERS_READ, async ({ req, studio }) => {
   const query = parseListQuery(new URL(req.url));
-  const db = await getDb();
-  const { rows, total } = await listSweeps(db, studio.id, query);
-  const creators = await sweepCreators(db, studio.id);
-  const names = new Map(creators.map((creator) => [creator.id, creator.name]));
-  const list = [];
-  for (const sweep of rows) list.push({ ...(await sweepView(db, sweep)), createdBy: sweep.createdByUserId ? { id: sweep.createdByUserId, name: names.get(sweep.createdByUserId) ?? "" } : null });
-  return json({ sweeps: list, page: query.page, pageSize: query.pageSize, total, creators });
+  return json(await sweepsListPage(await getDb(), studio.id, query));
 });
 
 export const POST = withAuth(ENGINEERS_WRITE, async ({ req, studio, user }) => {

@@ -4,9 +4,7 @@ import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { simulate } from "@/lib/physics";
 import { cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
-import { storedCells } from "@/lib/queue/views";
-import { cellAt, expandAxes } from "@/lib/sweeps/grid";
-import type { SweepSpec } from "@/lib/sweeps/spec";
+import { cellSummary } from "@/lib/queue/views";
 import { MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
@@ -18,23 +16,10 @@ const SERIES_SAMPLES = 2000;
 export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: string; index: string }>(MEMBERS_READ, async ({ studio, params }) => {
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
-  const index = cellIndexParam(params.index, sweep);
-  const spec = sweep.spec as SweepSpec;
-  const cell = cellAt(spec, expandAxes(spec), index);
-  const [stored] = await storedCells(db, sweep, index);
+  const cell = await cellSummary(db, sweep, cellIndexParam(params.index, sweep));
   // The series is not stored: the engine is deterministic, so running the cell again gives it exactly.
   const run = simulate(cell.scenario, { maxSamples: SERIES_SAMPLES });
-  return json({
-    cell: {
-      index,
-      axisValues: cell.axisValues,
-      scenario: cell.scenario,
-      metrics: stored?.metrics ?? null,
-      verdict: stored?.verdict ?? null,
-      reason: stored?.reason ?? null,
-    },
-    series: run.series,
-  });
+  return json({ cell, series: run.series });
 });
 
 export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);
