@@ -6,7 +6,7 @@
  */
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { SWEEP_STATUSES } from "@/db/schema";
+import { SWEEP_STATUSES } from "@/lib/sweeps/status";
 import type { Metric } from "./prometheus";
 
 interface QueueRow {

@@ -368,7 +368,7 @@ export class QueueRunner {
       .from(sweeps)
       .where(eq(sweeps.id, sweepId));
     if (!row) return null;
-    return { studioId: row.studioId, spec: row.spec as SweepSpec, hasCached: row.cachedCells > 0 };
+    return { studioId: row.studioId, spec: row.spec, hasCached: row.cachedCells > 0 };
   }
 
   /** Key the next recorded run on the pool (the pool is idle: no chunk is held), then look again. */

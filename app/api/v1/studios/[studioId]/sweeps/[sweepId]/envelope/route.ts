@@ -9,7 +9,6 @@ import { storedVerdictCodes } from "@/lib/queue/views";
 import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeFriction, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
-import type { SweepSpec } from "@/lib/sweeps/spec";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -37,7 +36,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   const at = atRaw ? atRaw.split(",").map((part) => (/^[0-9]{1,9}$/.test(part) ? Number(part) : Number.NaN)) : undefined;
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
-  const axes = expandAxes(sweep.spec as SweepSpec);
+  const axes = expandAxes(sweep.spec);
   const codes = await storedVerdictCodes(db, sweep);
   let envelope;
   try {
@@ -46,7 +45,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
     if (error instanceof EnvelopeInputError) throw new ApiError(422, "validation_failed", error.message, error.field);
     throw error;
   }
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   const document = envelopeDocument(envelope, {
     sweepId: sweep.id,
     name: sweep.name,

@@ -6,7 +6,6 @@ import { simulate } from "@/lib/physics";
 import { SWEEP_READ, cellIndexParam, sweepOfStudio } from "@/lib/queue/api";
 import { storedCells } from "@/lib/queue/views";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
-import type { SweepSpec } from "@/lib/sweeps/spec";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -18,7 +17,7 @@ export const GET = withAuth<typeof SWEEP_READ, { studioId: string; sweepId: stri
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
   const index = cellIndexParam(params.index, sweep);
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   const cell = cellAt(spec, expandAxes(spec), index);
   const [stored] = await storedCells(db, sweep, index);
   // The series is not stored: the engine is deterministic, so running the cell again gives it exactly.
