@@ -19,6 +19,7 @@ import type { AnyPgColumn } from "drizzle-orm/pg-core";
 // Types only: the schema is the ground floor and takes the domain's words without its code.
 import type { CheckSettings } from "../lib/catalogues/check";
 import type { CatalogueObject } from "../lib/catalogues/format";
+import type { LedgerKind } from "../lib/ledger/kinds";
 import type { SnapshotScene } from "../lib/physics/types";
 import type { SweepSpec } from "../lib/sweeps/spec";
 import type { ChunkStatus, SweepStatus } from "../lib/sweeps/status";
@@ -215,8 +216,6 @@ export type ApiToken = typeof apiTokens.$inferSelect;
 // ---------------------------------------------------------------------------
 // Sweeps, their chunks, the chunks' packed results (also the per-studio result cache), and the compute ledger.
 
-export const LEDGER_KINDS = ["purchase", "usage", "adjustment", "refund"] as const;
-export type LedgerKind = (typeof LEDGER_KINDS)[number];
 
 export const sweeps = pgTable(
   "sweeps",
@@ -349,7 +348,7 @@ export const ledgerEntries = pgTable(
     studioId: text("studio_id")
       .notNull()
       .references(() => studios.id, { onDelete: "cascade" }),
-    kind: text("kind", { enum: LEDGER_KINDS }).notNull(),
+    kind: text("kind").$type<LedgerKind>().notNull(),
     computeMs: bigint("compute_ms", { mode: "number" }).notNull(),
     /**
      * Usage entries only: the part of the chunk's compute beyond the prepaid balance, metered to
