@@ -16,6 +16,13 @@ import {
   uniqueIndex,
 } from "drizzle-orm/pg-core";
 import type { AnyPgColumn } from "drizzle-orm/pg-core";
+// Types only: the schema is the ground floor and takes the domain's words without its code.
+import type { CheckSettings } from "../lib/catalogues/check";
+import type { CatalogueObject } from "../lib/catalogues/format";
+import type { LedgerKind } from "../lib/ledger/kinds";
+import type { SnapshotScene } from "../lib/physics/types";
+import type { SweepSpec } from "../lib/sweeps/spec";
+import type { ChunkStatus, SweepStatus } from "../lib/sweeps/status";
 
 /** Studio roles, in the order the UI lists them. */
 export const STUDIO_ROLES = ["owner", "engineer", "finance"] as const;
@@ -209,12 +216,6 @@ export type ApiToken = typeof apiTokens.$inferSelect;
 // ---------------------------------------------------------------------------
 // Sweeps, their chunks, the chunks' packed results (also the per-studio result cache), and the compute ledger.
 
-export const SWEEP_STATUSES = ["queued", "running", "paused", "done", "failed", "cancelled"] as const;
-export type SweepStatus = (typeof SWEEP_STATUSES)[number];
-export const CHUNK_STATUSES = ["queued", "running", "done", "cancelled", "failed"] as const;
-export type ChunkStatus = (typeof CHUNK_STATUSES)[number];
-export const LEDGER_KINDS = ["purchase", "usage", "adjustment", "refund"] as const;
-export type LedgerKind = (typeof LEDGER_KINDS)[number];
 
 export const sweeps = pgTable(
   "sweeps",
@@ -225,9 +226,9 @@ export const sweeps = pgTable(
       .references(() => studios.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
     /** The parsed spec (defaults filled in), so a restart re-expands exactly the same cells. */
-    spec: jsonb("spec").notNull(),
+    spec: jsonb("spec").$type<SweepSpec>().notNull(),
     specHash: text("spec_hash").notNull(),
-    status: text("status", { enum: SWEEP_STATUSES }).notNull().default("queued"),
+    status: text("status").$type<SweepStatus>().notNull().default("queued"),
     reason: text("reason"),
     cells: integer("cells").notNull(),
     cellsDone: integer("cells_done").notNull().default(0),
@@ -275,7 +276,7 @@ export const sweepChunks = pgTable(
     chunkIndex: integer("chunk_index").notNull(),
     firstCell: integer("first_cell").notNull(),
     cellCount: integer("cell_count").notNull(),
-    status: text("status", { enum: CHUNK_STATUSES }).notNull().default("queued"),
+    status: text("status").$type<ChunkStatus>().notNull().default("queued"),
     leaseOwner: text("lease_owner"),
     leaseExpiresAt: ts("lease_expires_at"),
     attempts: integer("attempts").notNull().default(0),
@@ -347,7 +348,7 @@ export const ledgerEntries = pgTable(
     studioId: text("studio_id")
       .notNull()
       .references(() => studios.id, { onDelete: "cascade" }),
-    kind: text("kind", { enum: LEDGER_KINDS }).notNull(),
+    kind: text("kind").$type<LedgerKind>().notNull(),
     computeMs: bigint("compute_ms", { mode: "number" }).notNull(),
     /**
      * Usage entries only: the part of the chunk's compute beyond the prepaid balance, metered to
@@ -585,7 +586,7 @@ export const catalogues = pgTable(
     fileBase64: text("file_base64").notNull(),
     fileBytes: integer("file_bytes").notNull(),
     format: text("format", { enum: ["csv", "json"] }).notNull(),
-    objects: jsonb("objects").notNull(),
+    objects: jsonb("objects").$type<CatalogueObject[]>().notNull(),
     objectCount: integer("object_count").notNull(),
     /**
      * When the table was corrected on the upload page before saving, the file as the user uploaded
@@ -615,7 +616,7 @@ export const catalogueChecks = pgTable(
     sweepId: text("sweep_id")
       .notNull()
       .references(() => sweeps.id, { onDelete: "cascade" }),
-    settings: jsonb("settings").notNull(),
+    settings: jsonb("settings").$type<CheckSettings>().notNull(),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },
@@ -641,7 +642,7 @@ export const snapshots = pgTable(
     fileBase64: text("file_base64").notNull(),
     fileBytes: integer("file_bytes").notNull(),
     /** The parsed scene (lib/physics/types.ts SnapshotScene, speedScale 1). */
-    scene: jsonb("scene").notNull(),
+    scene: jsonb("scene").$type<SnapshotScene>().notNull(),
     bodyCount: integer("body_count").notNull(),
     wallCount: integer("wall_count").notNull(),
     createdByUserId: text("created_by_user_id").references(() => users.id, { onDelete: "set null" }),

@@ -14,8 +14,10 @@
 import { eq, sql } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { DbOrTx } from "@/db/client";
+import { queryRows, sqlDate, sqlNumber } from "@/db/rows";
 import { studioBilling, studios } from "@/db/schema";
 import { queueMail } from "@/lib/outbox/mail";
+import { z } from "@/lib/zod";
 import { billingContacts } from "./catalog";
 import { invoicePaymentDueMail, subscriptionEndedMail } from "./mail";
 import { owedInvoiceSql, overageOffAtSql } from "./grace";
@@ -47,33 +49,46 @@ export interface OverageHold {
 
 /** The database's clock: the grace period runs on the same clock as the ledger's timestamps. */
 export async function databaseNow(db: DbOrTx): Promise<Date> {
-  const result = await db.execute(sql`select now() as now`);
-  const [row] = (result as unknown as { rows: Array<{ now: string | Date }> }).rows;
-  return new Date(row.now);
+  const [row] = await queryRows(db, sql`select now() as now`, z.object({ now: sqlDate }));
+  return row.now;
 }
+
+const unpaidRow = z
+  .object({
+    id: z.string(),
+    number: z.string().nullable(),
+    status: z.string(),
+    total_cents: sqlNumber,
+    due_at: sqlDate,
+    overage_off_at: sqlDate,
+    overdue: z.boolean(),
+    overage_off: z.boolean(),
+  })
+  .transform((r) => ({
+    id: r.id,
+    number: r.number,
+    status: r.status,
+    totalCents: r.total_cents,
+    dueAt: r.due_at.toISOString(),
+    overageOffAt: r.overage_off_at.toISOString(),
+    overdue: r.overdue,
+    overageOff: r.overage_off,
+  }));
 
 /** Where the studio's unpaid invoices leave its overage at `at` (default: the database's now). */
 export async function overageHold(db: DbOrTx, studioId: string, at?: Date): Promise<OverageHold> {
   // The rule is lib/billing/grace.ts's SQL, the same the run limits evaluate (lib/quotas/enforce.ts).
   const when = at ? sql`${at.toISOString()}::timestamptz` : sql`now()`;
   const i = sql.raw("i");
-  const result = await db.execute(sql`
+  const unpaid = await queryRows(
+    db,
+    sql`
     select i.id, i.number, i.status, i.total_cents, i.due_at, ${overageOffAtSql(i)} as overage_off_at,
       (i.due_at <= ${when} or coalesce(i.overdue_notice_at <= ${when}, false)) as overdue, ${overageOffAtSql(i)} <= ${when} as overage_off
     from invoices i where i.studio_id = ${studioId} and ${owedInvoiceSql(i)}
-    order by i.due_at, i.id`);
-  type Row = { id: string; number: string | null; status: string; total_cents: number | string; due_at: string | Date; overage_off_at: string | Date; overdue: boolean; overage_off: boolean };
-  const iso = (v: string | Date) => new Date(v).toISOString();
-  const unpaid = (result as unknown as { rows: Row[] }).rows.map((r) => ({
-    id: r.id,
-    number: r.number,
-    status: r.status,
-    totalCents: Number(r.total_cents),
-    dueAt: iso(r.due_at),
-    overageOffAt: iso(r.overage_off_at),
-    overdue: r.overdue,
-    overageOff: r.overage_off,
-  }));
+    order by i.due_at, i.id`,
+    unpaidRow,
+  );
   return { suspended: unpaid.some((u) => u.overageOff), graceDays: OVERDUE_GRACE_DAYS, unpaid };
 }
 

@@ -2,7 +2,8 @@
 import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
-import { invoices, LEDGER_KINDS, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
+import { invoices, ledgerEntries, outbox, studioBilling, studios, sweeps, users, type InvoiceRow } from "@/db/schema";
+import { LEDGER_KINDS } from "@/lib/ledger/kinds";
 import { parseWith } from "@/lib/api/body";
 import { csvCell } from "@/lib/csv";
 import { notFound } from "@/lib/errors";

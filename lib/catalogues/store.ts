@@ -149,7 +149,7 @@ export async function catalogueDetail(db: Db, row: Catalogue): Promise<Catalogue
     .from(catalogues)
     .where(and(eq(catalogues.studioId, row.studioId), eq(catalogues.name, row.name)))
     .orderBy(desc(catalogues.version));
-  return { ...catalogueSummary(row), objects: row.objects as CatalogueObject[], notes: [], versions: versions.map(catalogueSummary) };
+  return { ...catalogueSummary(row), objects: row.objects, notes: [], versions: versions.map(catalogueSummary) };
 }
 
 /** The saved file the objects come from. */
@@ -184,7 +184,7 @@ export function parseSettingsOrThrow(input: unknown): CheckSettings {
 /** The sweep spec of a check, with input problems as 400s naming the settings field. */
 export function specOfCheck(catalogue: Catalogue, settings: CheckSettings) {
   try {
-    return checkSpec(catalogue.name, catalogue.version, catalogue.objects as CatalogueObject[], settings);
+    return checkSpec(catalogue.name, catalogue.version, catalogue.objects, settings);
   } catch (error) {
     if (error instanceof CheckInputError) throw new ApiError("invalid_settings", `settings.${error.field}: ${error.message}`, `settings.${error.field}`);
     throw error;
@@ -245,7 +245,7 @@ export async function listChecks(db: Db, catalogue: Catalogue): Promise<CheckSum
     id: check.id,
     catalogueId: check.catalogueId,
     createdAt: check.createdAt.toISOString(),
-    settings: check.settings as CheckSettings,
+    settings: check.settings,
     sweepId: sweep.id,
     status: sweep.status,
     cells: sweep.cells,
@@ -298,7 +298,7 @@ export function confirmationSettings(settings: CheckSettings, recommendation: Re
 
 export async function checkView(db: Db, catalogue: Catalogue, check: CatalogueCheck): Promise<CheckView> {
   const [sweep] = await db.select().from(sweeps).where(eq(sweeps.id, check.sweepId));
-  const objects = catalogue.objects as CatalogueObject[];
+  const objects = catalogue.objects;
   const settings = checkSettingsSchema.parse(check.settings);
   const cells = await storedCells(db, sweep);
   const recommendation = recommend(objects, settings);

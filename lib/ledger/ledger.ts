@@ -1,6 +1,7 @@
 import { eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { ledgerEntries, type LedgerKind } from "@/db/schema";
+import { ledgerEntries } from "@/db/schema";
+import type { LedgerKind } from "./kinds";
 
 /** Minutes a new studio gets so a new user can try a sweep. */
 export const WELCOME_GRANT_MS = 30 * 60_000;

@@ -7,7 +7,8 @@
 import { and, asc, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
-import { LEDGER_KINDS, ledgerEntries, sweeps } from "@/db/schema";
+import { ledgerEntries, sweeps } from "@/db/schema";
+import { LEDGER_KINDS } from "./kinds";
 import { parseWith } from "@/lib/api/body";
 import { csvCell } from "@/lib/csv";
 import { formatMinutes } from "@/lib/billing/format";

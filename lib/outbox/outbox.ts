@@ -13,7 +13,9 @@
 import { randomBytes } from "node:crypto";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
+import { queryRows, sqlNumber } from "@/db/rows";
 import { outbox, type OutboxRow } from "@/db/schema";
+import { z } from "@/lib/zod";
 
 export interface OutboxMessage {
   kind: string;
@@ -143,7 +145,9 @@ export class OutboxDispatcher {
   private async claim(): Promise<OutboxRow[]> {
     const now = this.now();
     const leaseUntil = new Date(now.getTime() + this.leaseMs);
-    const claimed = await this.db.execute(sql`
+    const claimed = await queryRows(
+      this.db,
+      sql`
       update outbox set lease_owner = ${this.ownerId}, lease_expires_at = ${leaseUntil.toISOString()}::timestamptz
       where id in (
         select id from outbox
@@ -152,8 +156,10 @@ export class OutboxDispatcher {
         order by id
         limit ${this.batch}
         for update skip locked)
-      returning id`);
-    const ids = (claimed as unknown as { rows: { id: number }[] }).rows.map((r) => r.id).sort((a, b) => a - b);
+      returning id`,
+      z.object({ id: sqlNumber }),
+    );
+    const ids = claimed.map((r) => r.id).sort((a, b) => a - b);
     if (ids.length === 0) return [];
     const rows = await this.db
       .select()

@@ -1,7 +1,8 @@
 /** Lookups and policies shared by the sweep route handlers. */
 import { and, asc, count, desc, eq, ilike, isNotNull, type SQL } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { SWEEP_STATUSES, sweeps, users, type Sweep, type SweepStatus } from "@/db/schema";
+import { sweeps, users, type Sweep } from "@/db/schema";
+import { SWEEP_STATUSES, type SweepStatus } from "@/lib/sweeps/status";
 import { ApiError } from "@/lib/errors";
 import { z } from "@/lib/zod";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";

@@ -14,7 +14,7 @@ export interface RerunPlan {
 }
 
 export function rerunPlan(sweep: Sweep, index: number, dtFactor: number): RerunPlan {
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   const cell = cellAt(spec, expandAxes(spec), index);
   // The original spec seed with the cell's own scene derives the same cell seed again.
   const scenario = { ...cell.scenario, seed: spec.scenario.seed, dtS: cell.scenario.dtS * dtFactor };

@@ -128,7 +128,7 @@ async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: numb
       if (!storedSpec) {
         const [owner] = await db.select({ spec: sweeps.spec }).from(sweeps).where(eq(sweeps.id, row.sweepId));
         if (!owner) continue;
-        storedSpec = owner.spec as SweepSpec;
+        storedSpec = owner.spec;
         specs.set(row.sweepId, storedSpec);
       }
       storedKeys = keysOfCells(storedSpec, view.indices);

@@ -38,7 +38,7 @@ export function verdictCountsFrom(stored: Record<string, number> | null | undefi
 }
 
 export async function sweepView(db: DbOrTx, sweep: Sweep): Promise<SweepView> {
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   return {
     id: sweep.id,
     name: sweep.name,
@@ -136,7 +136,7 @@ function apiMetrics(view: PackedView, n: number): Metrics {
 
 /** The sweep's finished cells in index order, as CellResult records (`onlyIndex`: just that cell, if done). */
 export async function storedCells(db: DbOrTx, sweep: Sweep, onlyIndex?: number): Promise<CellResult[]> {
-  const axes = expandAxes(sweep.spec as SweepSpec);
+  const axes = expandAxes(sweep.spec);
   const cells: CellResult[] = [];
   for await (const view of storedChunks(db, sweep, onlyIndex)) {
     if (onlyIndex !== undefined) {
@@ -255,9 +255,9 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
  * `{ cells, cursor: String(changed.upTo) }`).
  */
 export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", changed?: ChangeWindow, options: { contact?: boolean } = {}): ReadableStream<Uint8Array> {
-  const axes = expandAxes(sweep.spec as SweepSpec);
+  const axes = expandAxes(sweep.spec);
   // With `contact`, each cell also carries its contact as frequency and damping ratio (lib/sweeps/contact-tuning.ts).
-  const contact = options.contact ? (sweep.spec as SweepSpec) : undefined;
+  const contact = options.contact ? (sweep.spec) : undefined;
   const texts = axisTexts(axes, format);
   const encoder = new TextEncoder();
   const chunks = storedChunks(db, sweep, undefined, changed);

@@ -7,6 +7,7 @@ import { randomBytes } from "node:crypto";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";
+import { queryRows, sqlDate, sqlNumber } from "@/db/rows";
 import { ledgerEntries, memberships, studioQuotas, studios, sweeps, users, type LedgerEntry, type StudioStatus, type User } from "@/db/schema";
 import { writeAudit } from "@/lib/audit/audit";
 import { ApiError } from "@/lib/errors";
@@ -358,31 +359,51 @@ export interface QueueEntryView {
   createdAt: string;
 }
 
+const queueEntryRow = z.object({
+  id: z.string(),
+  name: z.string(),
+  studio_id: z.string(),
+  studio_name: z.string(),
+  status: z.string(),
+  reason: z.string().nullable(),
+  chunks: sqlNumber,
+  chunks_done: sqlNumber,
+  chunks_running: sqlNumber,
+  estimated_compute_ms: sqlNumber,
+  compute_ms: sqlNumber,
+  ceiling_ms: sqlNumber,
+  wall_ms: sqlNumber,
+  created_at: sqlDate,
+});
+
 /** Unfinished sweeps of every studio, oldest first: what runs (and waits) for whom. */
 export async function adminQueue(db: Db): Promise<QueueEntryView[]> {
-  const result = await db.execute(sql`
+  const rows = await queryRows(
+    db,
+    sql`
     select s.id, s.name, s.studio_id, st.name as studio_name, s.status, s.reason, s.chunks, s.chunks_done,
       (select count(*) from sweep_chunks c where c.sweep_id = s.id and c.status = 'running') as chunks_running,
       s.estimated_compute_ms, s.compute_ms, s.ceiling_ms,
       (select coalesce(sum(c.wall_ms), 0) from sweep_chunks c where c.sweep_id = s.id and c.status = 'done') as wall_ms, s.created_at
     from sweeps s join studios st on st.id = s.studio_id
     where s.status in ('queued', 'running', 'paused')
-    order by s.created_at, s.id`);
-  type Row = Record<string, string | number | null>;
-  return (result as unknown as { rows: Row[] }).rows.map((r) => ({
-    sweepId: String(r.id),
-    sweepName: String(r.name),
-    studioId: String(r.studio_id),
-    studioName: String(r.studio_name),
-    status: String(r.status),
-    reason: r.reason === null ? null : String(r.reason),
-    chunks: Number(r.chunks),
-    chunksDone: Number(r.chunks_done),
-    chunksRunning: Number(r.chunks_running),
-    estimatedComputeMs: Number(r.estimated_compute_ms),
-    computeMs: Number(r.compute_ms),
-    ceilingMs: Number(r.ceiling_ms),
-    wallMs: Number(r.wall_ms),
-    createdAt: (r.created_at as unknown) instanceof Date ? (r.created_at as unknown as Date).toISOString() : new Date(String(r.created_at)).toISOString(),
+    order by s.created_at, s.id`,
+    queueEntryRow,
+  );
+  return rows.map((r) => ({
+    sweepId: r.id,
+    sweepName: r.name,
+    studioId: r.studio_id,
+    studioName: r.studio_name,
+    status: r.status,
+    reason: r.reason,
+    chunks: r.chunks,
+    chunksDone: r.chunks_done,
+    chunksRunning: r.chunks_running,
+    estimatedComputeMs: r.estimated_compute_ms,
+    computeMs: r.compute_ms,
+    ceilingMs: r.ceiling_ms,
+    wallMs: r.wall_ms,
+    createdAt: r.created_at.toISOString(),
   }));
 }

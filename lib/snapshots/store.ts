@@ -124,7 +124,7 @@ export async function snapshotDetail(db: Db, row: Snapshot): Promise<SnapshotDet
     .from(snapshots)
     .where(and(eq(snapshots.studioId, row.studioId), eq(snapshots.name, row.name)))
     .orderBy(desc(snapshots.version));
-  return { ...snapshotSummary(row), scene: row.scene as SnapshotScene, versions: versions.map(snapshotSummary) };
+  return { ...snapshotSummary(row), scene: row.scene, versions: versions.map(snapshotSummary) };
 }
 
 export function snapshotFileBytes(row: Snapshot): Uint8Array {
@@ -137,12 +137,12 @@ export function snapshotFileBytes(row: Snapshot): Uint8Array {
  * masses, sizes and speeds (lib/snapshots/suggest.ts; the builder shows why and lets the user
  * change all of it).
  */
-export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scene">, suggestion: SnapshotSweepSuggestion = suggestSnapshotSweep(row.scene as SnapshotScene)): SweepSpecInput {
+export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scene">, suggestion: SnapshotSweepSuggestion = suggestSnapshotSweep(row.scene)): SweepSpecInput {
   return {
     version: 1,
     name: `Snapshot: ${row.name} v${row.version}`.slice(0, SPEC_LIMITS.maxNameLength),
     scenario: {
-      scene: row.scene as SnapshotScene,
+      scene: row.scene,
       contact: { model: "linear", stiffness: suggestion.stiffnessNPerM, damping: { kind: "restitution", value: 0.5 } },
       integrator: "velocity-verlet",
       dtS: suggestion.gameFrameStepS,
@@ -159,7 +159,7 @@ export function snapshotSweepSpec(row: Pick<Snapshot, "name" | "version" | "scen
 
 /** The suggested starting sweep over a snapshot with the suggestion behind it and its reasoning in words. */
 export function snapshotSweepStart(row: Pick<Snapshot, "name" | "version" | "scene">): { sweepSpec: SweepSpecInput; sweepSuggestion: SnapshotSweepSuggestion & { reasoning: string[] } } {
-  const suggestion = suggestSnapshotSweep(row.scene as SnapshotScene);
+  const suggestion = suggestSnapshotSweep(row.scene);
   return { sweepSpec: snapshotSweepSpec(row, suggestion), sweepSuggestion: { ...suggestion, reasoning: describeSnapshotSuggestion(suggestion) } };
 }
 
@@ -183,7 +183,7 @@ export async function resolveSnapshotReference(db: Db, studioId: string, spec: u
     .from(snapshots)
     .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
   if (!row) throw new ApiError("invalid_spec", `${field}: no snapshot ${JSON.stringify(snapshotId)} in this studio.`, field, [{ field, message: `no snapshot ${JSON.stringify(snapshotId)} in this studio` }]);
-  const stored = row.scene as SnapshotScene;
+  const stored = row.scene;
   const inline = { ...stored, ...rest, bodies: stored.bodies, walls: stored.walls, kind: "snapshot" };
   const typed = spec as { scenario: Record<string, unknown> };
   return { ...typed, scenario: { ...typed.scenario, scene: inline } };

@@ -9,7 +9,6 @@ import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, invoices, ledgerEntries, snapshots, memberships, sweeps, type StudioRole } from "@/db/schema";
 import { OVERAGE_CENTS_PER_MINUTE, OVERAGE_UNIT_AMOUNT_DECIMAL } from "@/lib/billing/packs";
 import { monthlyOverageMs } from "@/lib/billing/usage";
-import type { CatalogueObject } from "@/lib/catalogues/format";
 import { checkSettingsSchema, pairMatrix } from "@/lib/catalogues/check";
 import { balanceMs } from "@/lib/ledger/ledger";
 import { verdictCountsFrom, storedCells } from "@/lib/queue/views";
@@ -117,7 +116,7 @@ async function latestChecks(db: Db, studioId: string): Promise<OverviewCheck[]> 
     .limit(LATEST_CHECKS);
   const checks: OverviewCheck[] = [];
   for (const { check, catalogue, sweep } of rows) {
-    const objects = catalogue.objects as CatalogueObject[];
+    const objects = catalogue.objects;
     let pairsAtRisk: string[] | null = null;
     let pairs = (objects.length * (objects.length + 1)) / 2;
     if (sweep.status === "done") {

@@ -831,7 +831,7 @@ export type ParseSpecResult = { ok: true; spec: SweepSpec } | { ok: false; issue
 /** Parse an unknown value (e.g. JSON from a file or a request body) into a sweep spec. */
 export function parseSweepSpec(input: unknown): ParseSpecResult {
   const result = sweepSpecSchema.safeParse(input);
-  if (result.success) return { ok: true, spec: result.data as SweepSpec };
+  if (result.success) return { ok: true, spec: result.data };
   return { ok: false, issues: specIssues(result.error) };
 }
 

@@ -3,7 +3,7 @@
  * lib/queue/views.ts, read in the browser through components/sweeps/sweep-api.ts. Types only, so
  * the pages importing it take nothing of the server into their bundle.
  */
-import type { SweepStatus } from "../../db/schema";
+import type { SweepStatus } from "./status";
 import type { VerdictCounts } from "./results";
 import type { SweepSpec } from "./spec";
 

@@ -99,7 +99,7 @@ import { createInviteSchema } from "@/lib/studios/invites";
 import { createEndpointSchema } from "@/lib/webhooks/webhooks";
 import { createStudioSchema, studioOfUserSchema, studioViewSchema } from "@/lib/studios/studios";
 import { sweepSpecSchema } from "@/lib/sweeps/spec";
-import { SWEEP_STATUSES } from "@/db/schema";
+import { SWEEP_STATUSES } from "@/lib/sweeps/status";
 
 export type Method = "get" | "post" | "put" | "patch" | "delete";
 

@@ -31,7 +31,7 @@ const UNIQUE_INDEX = "snapshots_studio_name_version_uq";
 async function insertSnapshot(tx: DbOrTx, studio: string, name: string, version: number): Promise<Snapshot> {
   const [row] = await tx
     .insert(snapshots)
-    .values({ id: newId("snp"), studioId: studio, name, version, ...storedFile(FILE, "crate-stack.json", "snapshot.json"), scene: { bodies: [], walls: [] }, bodyCount: 0, wallCount: 0 })
+    .values({ id: newId("snp"), studioId: studio, name, version, ...storedFile(FILE, "crate-stack.json", "snapshot.json"), scene: { kind: "snapshot", bodies: [], walls: [], gravityMPerS2: 0, speedScale: 1 }, bodyCount: 0, wallCount: 0 })
     .returning();
   return row;
 }

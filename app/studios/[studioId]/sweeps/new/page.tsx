@@ -4,7 +4,7 @@ import { SweepBuilder } from "@/components/sweeps/sweep-builder";
 import { requireStudio } from "@/lib/auth/page-guard";
 import { ApiError } from "@/lib/errors";
 import { snapshotOfStudio, snapshotSweepStart } from "@/lib/snapshots/store";
-import { duplicateSpec, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
+import { duplicateSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
 import { sweepOfStudio } from "@/lib/queue/api";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 
@@ -27,7 +27,7 @@ export default async function NewSweepRoute({ params, searchParams }: { params: 
   if (typeof from === "string" && !snapshotId) {
     try {
       const source = await sweepOfStudio(await getDb(), access.studio.id, from);
-      initialSpec = duplicateSpec(source.spec as SweepSpec);
+      initialSpec = duplicateSpec(source.spec);
       namePlaceholder = `Copy of ${source.name}`.slice(0, SPEC_LIMITS.maxNameLength);
     } catch (error) {
       if (!(error instanceof ApiError && error.status === 404)) throw error;

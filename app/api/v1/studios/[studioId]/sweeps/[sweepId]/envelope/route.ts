@@ -9,7 +9,6 @@ import { storedVerdictCodes } from "@/lib/queue/views";
 import { EnvelopeInputError, computeEnvelope, envelopeCsv, envelopeDamping, envelopeDocument, envelopeFriction, type EnvelopeBound } from "@/lib/sweeps/envelope";
 import { withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { expandAxes } from "@/lib/sweeps/grid";
-import type { SweepSpec } from "@/lib/sweeps/spec";
 import { MEMBERS_READ } from "@/lib/auth/policies";
 
 export const runtime = "nodejs";
@@ -38,7 +37,7 @@ export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: st
   const at = atRaw ? atRaw.split(",").map((part) => (/^[0-9]{1,9}$/.test(part) ? Number(part) : Number.NaN)) : undefined;
   const db = await getDb();
   const sweep = await sweepOfStudio(db, studio.id, params.sweepId);
-  const axes = expandAxes(sweep.spec as SweepSpec);
+  const axes = expandAxes(sweep.spec);
   const codes = await storedVerdictCodes(db, sweep);
   let envelope;
   try {
@@ -47,7 +46,7 @@ export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; sweepId: st
     if (error instanceof EnvelopeInputError) throw new ApiError("invalid_value", error.message, error.field);
     throw error;
   }
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   const document = envelopeDocument(envelope, {
     sweepId: sweep.id,
     name: sweep.name,
