@@ -72,6 +72,9 @@ export function isIntegerParameter(path: string, sceneKind: SceneKind): boolean 
 export function copyScenario(scenario: Scenario): Scenario {
   const contact: Scenario["contact"] = { ...scenario.contact, damping: { ...scenario.contact.damping } };
   if (scenario.contact.material) contact.material = { ...scenario.contact.material };
+  // Friction axes write into contact.friction: each cell needs its own (else cells share one, and
+  // the spec's own scenario ends holding the last cell's values).
+  if (scenario.contact.friction) contact.friction = { ...scenario.contact.friction };
   return { ...scenario, scene: { ...scenario.scene }, contact, tolerances: { ...scenario.tolerances } };
 }
 

@@ -51,8 +51,7 @@ describe("packed format 3", () => {
     const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 3, keys: true });
     const view = new PackedView(outcome.packed);
     expect(view.storedVersion).toBe(ROTATION_METRICS_VERSION);
-    // One cell at a time: a range's cells may share the objects of the fields no axis sets.
-    const runs = [0, 1, 2].map((index) => simulate(structuredClone(cellRange(spec, axes, index, 1)[0].scenario)));
+    const runs = cellRange(spec, axes, 0, 3).map((cell) => simulate(cell.scenario));
     const back = unpackResults(outcome, (index) => axisValuesAt(axes, index));
     back.forEach((cell, n) => {
       expect(cell.metrics).toEqual(pickMetrics(runs[n].metrics));
@@ -84,6 +83,15 @@ describe("packed format 3", () => {
     expect(first.reboundAngleDeg).toBeNaN();
     expect(first.creepM).toBe(1e-300);
     for (const key of ROTATION_METRIC_KEYS) expect(view.metricsOf(1)[key]).toBeNull();
+  });
+});
+
+describe("cells of a friction axis", () => {
+  it("each have their own friction settings, and the spec's scenario keeps its own", () => {
+    const spec = rampAt20Degrees();
+    const cells = cellRange(spec, expandAxes(spec), 0, 3);
+    expect(cells.map((cell) => cell.scenario.contact.friction?.stiffnessRatio)).toEqual([2 / 7, 1, 3]);
+    expect(spec.scenario.contact.friction?.stiffnessRatio).toBe(2 / 7);
   });
 });
 
