@@ -31,6 +31,8 @@ export interface AxisFields {
     speedBMPerS: number;
     stiffness?: number;
     restitution?: number;
+    friction?: number;
+    rollingResistance?: number;
   }[];
 }
 
@@ -123,8 +125,8 @@ export function fieldSetter(path: string): FieldSetter {
 
 /**
  * A setter for one axis. A pair axis writes both bodies of the named pair (masses, radii, top
- * speeds and, when the pair carries them, the contact stiffness and target restitution); every
- * other axis writes its field.
+ * speeds and, when the pair carries them, the contact stiffness, target restitution, friction
+ * coefficient and rolling resistance); every other axis writes its field.
  */
 export function axisSetter(axis: AxisFields): FieldSetter {
   if (axis.parameter !== PAIR_AXIS_PATH) return fieldSetter(axis.parameter);
@@ -141,6 +143,9 @@ export function axisSetter(axis: AxisFields): FieldSetter {
     scene.speedBMPerS = pair.speedBMPerS;
     if (pair.stiffness !== undefined) scenario.contact.stiffness = pair.stiffness;
     if (pair.restitution !== undefined && scenario.contact.damping.kind === "restitution") scenario.contact.damping.value = pair.restitution;
+    // The pair's μ with the scenario's other friction settings (a copy: the cell's own, see copyScenario).
+    if (pair.friction !== undefined) scenario.contact.friction = { ...scenario.contact.friction, coefficient: pair.friction };
+    if (pair.rollingResistance !== undefined) scenario.contact.rollingResistance = pair.rollingResistance;
   };
 }
 

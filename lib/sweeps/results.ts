@@ -89,20 +89,23 @@ export interface RotationSpecPart {
     scene: { kind: string };
     contact: { friction?: { coefficient?: number; staticCoefficient?: number }; rollingResistance?: number };
   };
+  /** A scene.pair axis may give each pair its own friction and rolling resistance. */
+  axes?: readonly { pairs?: readonly { friction?: number; rollingResistance?: number }[] }[];
 }
 
 const ROTATION_AXIS_PARAMETERS: ReadonlySet<string> = new Set(["contact.friction.coefficient", "contact.friction.staticCoefficient", "contact.rollingResistance"]);
 
 /**
  * Whether any cell of the sweep can report the rotation metrics: the engine measures them in runs
- * with friction or rolling resistance (lib/physics/simulate.ts) and in the resting scenes, slope and
- * stack (lib/physics/rest-metrics.ts). Decided from the spec and its axes alone, so every chunk and
+ * with friction or rolling resistance (lib/physics/simulate.ts; in the scenario, on an axis or per
+ * pair of a scene.pair axis) and in the resting scenes, slope and stack (lib/physics/rest-metrics.ts). Decided from the spec and its axes alone, so every chunk and
  * every export of one sweep has the same columns.
  */
 export function sweepMeasuresRotation(spec: RotationSpecPart, axes: readonly { parameter: string; values: readonly (number | string)[] }[]): boolean {
   const { scene, contact } = spec.scenario;
   if (scene.kind === "slope" || scene.kind === "stack") return true;
   if ((contact.friction?.coefficient ?? 0) > 0 || (contact.friction?.staticCoefficient ?? 0) > 0 || (contact.rollingResistance ?? 0) > 0) return true;
+  if (spec.axes?.some((axis) => axis.pairs?.some((pair) => (pair.friction ?? 0) > 0 || (pair.rollingResistance ?? 0) > 0))) return true;
   return axes.some((axis) => ROTATION_AXIS_PARAMETERS.has(axis.parameter) && axis.values.some((value) => typeof value === "number" && value > 0));
 }
 
