@@ -14,9 +14,10 @@ import { Command, CommanderError, InvalidArgumentError, Option } from "commander
 import cliProgress from "cli-progress";
 import { checkSettingsSchema } from "../lib/catalogues/check";
 import { parseCatalogueFile } from "../lib/catalogues/format";
+import type { FrictionCheck } from "../lib/catalogues/friction-check";
 import { parseSweepSpec } from "../lib/sweeps/spec";
 import { ApiClient, DEFAULT_RETRY, EXIT, InputError, ServiceError, type RetryPolicy } from "./client";
-import { RISK_VERDICTS, buildReport, junitXml, parseFailOn, reportJson, writeOut, type Report, type ReportCase } from "./report";
+import { RISK_VERDICTS, buildReport, frictionLines, junitXml, parseFailOn, reportJson, writeOut, type Report, type ReportCase } from "./report";
 import type { Verdict } from "../lib/physics/types";
 
 // ---------------------------------------------------------------------------
@@ -64,6 +65,7 @@ interface CheckState {
   id: string;
   sweep: SweepState;
   matrix: { pairs: PairRow[]; atRisk: string[]; complete: boolean };
+  recommendation?: { margin: number; friction?: FrictionCheck };
 }
 
 // ---------------------------------------------------------------------------
@@ -219,6 +221,7 @@ async function checkReport(api: ApiClient, studioId: string, catalogueId: string
     status: check.sweep.status,
     failOn,
     verdictCounts: check.sweep.verdictCounts,
+    ...(check.recommendation?.friction ? { friction: { margin: check.recommendation.margin, ...check.recommendation.friction } } : {}),
     cases: check.matrix.pairs.map((pair): Omit<ReportCase, "failed"> => {
       const worst = pair.worstCellIndex === null ? undefined : cells.get(pair.worstCellIndex);
       const notStable = pair.cellsDone - (pair.counts.stable ?? 0);
@@ -240,6 +243,7 @@ function finish(report: Report, options: ReportOptions): number {
     .map(([verdict, n]) => `${verdict} ${n}`)
     .join(", ");
   out(`${report.kind} ${report.id} ${report.status}: ${counts || "no cells"}`);
+  if (report.friction) for (const line of frictionLines(report.friction)) out(line);
   for (const entry of report.cases.filter((c) => c.failed).slice(0, 20)) out(`  at risk: ${entry.name} — ${entry.verdict}: ${entry.reason}`);
   if (report.failures > 20) out(`  … and ${report.failures - 20} more (see the JUnit or JSON report)`);
   out(report.failures > 0 ? `${report.failures} of ${report.cases.length} ${report.kind === "sweep" ? "cells" : "pairings"} at risk (counting ${report.failOn.join(", ") || "none"}).` : `All ${report.cases.length} ${report.kind === "sweep" ? "cells" : "pairings"} pass (counting ${report.failOn.join(", ") || "none"}).`);
@@ -330,6 +334,9 @@ async function fetchCommand(id: string, options: { catalogue?: string; outDir: s
     save(`${id}-recommendation.csv`, await api.text(`${base}?format=csv&table=recommendation`));
     save(`${id}-contacts.csv`, await api.text(`${base}?format=csv&table=contacts`));
     save(`${id}-game-settings.json`, await api.text(`${base}?format=game-settings&stiffness=${options.stiffness}`));
+    // The friction rows exist only for catalogues whose objects give μ or μ_r (else the export answers 422).
+    const { check } = await api.json<{ check: CheckState }>("GET", `/studios/${studioId}/catalogues/${options.catalogue}/checks/${id}`);
+    if (check.recommendation?.friction) save(`${id}-friction.csv`, await api.text(`${base}?format=csv&table=friction`));
   } else {
     const base = `/studios/${studioId}/sweeps/${id}`;
     save(`${id}-cells.${options.format}`, await api.text(`${base}/cells?format=${options.format}&contact=true`, { notFoundField: "id" }));

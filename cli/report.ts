@@ -8,6 +8,7 @@
 import { mkdirSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import { INSTABILITY_VERDICTS, VERDICTS, type Verdict } from "../lib/physics/types";
+import type { FrictionCheck, FrictionContactRow } from "../lib/catalogues/friction-check";
 
 /**
  * What counts as at risk unless --fail-on says otherwise: the instability verdicts. Accuracy verdicts
@@ -37,6 +38,11 @@ export interface Report {
   cases: ReportCase[];
   failures: number;
   exitCode: 0 | 1;
+  /**
+   * A catalogue check whose objects give μ or μ_r: its friction rows (the check's
+   * recommendation.friction, docs/api.md) with the check's margin (the bound is ω_t·h ≤ 2(1 − margin)).
+   */
+  friction?: FrictionCheck & { margin: number };
 }
 
 /** Parses --fail-on: a comma-separated list of verdicts, or "none". */
@@ -47,6 +53,40 @@ export function parseFailOn(text: string): Verdict[] {
     if (!(VERDICTS as readonly string[]).includes(item)) throw new Error(`"${item}" is not a verdict; use a comma-separated list of ${VERDICTS.join(", ")}, or none`);
   }
   return [...new Set(list)] as Verdict[];
+}
+
+function num(value: number): string {
+  return String(Number(value.toPrecision(3)));
+}
+
+/** One contact's friction row in words: μ, the tangential spring against its bound, resting overlap, and on the floor sliding and rolling. */
+function frictionRowText(row: FrictionContactRow, phase: number): string {
+  const parts: string[] = [];
+  if (row.frictionCoefficient !== null) {
+    parts.push(`μ ${num(row.frictionCoefficient)}`);
+    if (row.frictionCoefficient > 0) parts.push(`ω_t·h ${num(row.tangentialOmegaH)} ${row.tangentialStable ? "within" : "PAST"} the bound ${num(phase)} (k_t/k up to ${num(row.largestStiffnessRatio)})`);
+  }
+  if (row.rollingResistance !== null) parts.push(`μ_r ${num(row.rollingResistance)}`);
+  parts.push(`resting overlap ${num(row.restingOverlapM)} m ${row.restingWithinTolerance ? "within" : "PAST"} ${num(row.allowedRestingOverlapM)} m`);
+  if (row.slidingAngleDeg !== null && row.rollingSlipAngleDeg !== null) parts.push(`slides above ${num(row.slidingAngleDeg)}°, a rolling disc slips above ${num(row.rollingSlipAngleDeg)}°`);
+  if (row.holdsOnSlope !== null) parts.push(row.holdsOnSlope ? "holds on the slope" : "SLIDES on the slope");
+  if (row.slideTimeS !== null && row.slideDistanceM !== null && row.rollingSpeedMPerS !== null) parts.push(`at top speed slides ${num(row.slideTimeS)} s over ${num(row.slideDistanceM)} m, then rolls at ${num(row.rollingSpeedMPerS)} m/s`);
+  if (row.rollingDistanceM !== null) parts.push(`rolls ${num(row.rollingDistanceM)} m before stopping`);
+  return `${row.contact}: ${parts.join(" · ")}`;
+}
+
+/**
+ * The friction rows of a check as the client prints them: the summary, the largest k_t/k and the
+ * substeps that keep every pair stable, then one line per contact (pairs, then objects on the floor).
+ * The tangential bound is ω_t·h ≤ 2(1 − margin) with the check's margin, as the normal one.
+ */
+export function frictionLines(friction: FrictionCheck & { margin: number }): string[] {
+  const phase = 2 * (1 - friction.margin);
+  const lines = [`Friction (k_t/k ${num(friction.stiffnessRatio)}${friction.stiffnessRatioGiven ? "" : ", the default 2/7"}; gravity ${num(friction.gravityMPerS2)} m/s²${friction.slopeAngleDeg !== null ? `; slope ${num(friction.slopeAngleDeg)}°` : ""}): ${friction.summary}`];
+  if (friction.largestStiffnessRatio !== null) lines.push(`  largest k_t/k: ${num(friction.largestStiffnessRatio)} (${friction.largestStiffnessRatioContact} decides)`);
+  lines.push(`  substeps keeping every pair stable: ${friction.substeps === null ? "none within the limit" : friction.substeps}`);
+  for (const row of friction.contacts) lines.push(`  ${frictionRowText(row, phase)}`);
+  return lines;
 }
 
 export function buildReport(input: Omit<Report, "cases" | "failures" | "exitCode"> & { cases: Omit<ReportCase, "failed">[] }): Report {

@@ -356,7 +356,7 @@ function CheckForm({ studioId, catalogueId, groups, friction }: { studioId: stri
         ) : null}
         {friction ? (
           <fieldset className="space-y-2" data-testid="check-friction-settings">
-            <legend className="text-sm font-medium">Friction (objects of this catalogue give μ): checked in closed form beside the pairs</legend>
+            <legend className="text-sm font-medium">Friction (objects of this catalogue give μ): simulated in the pair cells and checked in closed form beside them</legend>
             <div className="grid gap-4 sm:grid-cols-3">
               <TextField id="check-kt-ratio" label="Tangential stiffness ratio k_t/k" inputMode="decimal" value={form.frictionStiffnessRatio} onChange={set("frictionStiffnessRatio")} error={fieldError("frictionStiffnessRatio")} hint="empty: 2/7 (common practice: 2/7 to 1)" />
               <TextField id="check-slope" label="Steepest slope [°]" inputMode="decimal" value={form.slopeAngleDeg} onChange={set("slopeAngleDeg")} error={fieldError("slopeAngleDeg")} hint="optional: which objects hold still on it" />

@@ -97,7 +97,7 @@ export function CheckView({ studioId, studioName, role, catalogueId, checkId }: 
             {data.sweep.reason ? <Alert>{data.sweep.reason}</Alert> : null}
           </Card>
           <Summary data={data} onOpen={openPair} canWrite={canWrite} studioId={studioId} catalogueId={catalogueId} />
-          {data.recommendation.friction ? <FrictionPanel friction={data.recommendation.friction} margin={data.recommendation.margin} substepS={data.settings.dtS / data.settings.substeps} /> : null}
+          {data.recommendation.friction ? <FrictionPanel friction={data.recommendation.friction} margin={data.recommendation.margin} substepS={data.settings.dtS / data.settings.substeps} simulated={pairsCarryFriction(data.sweep.spec.axes)} /> : null}
           <Card title="Pair matrix">
             <PairMatrixGrid data={data} selected={selected} onSelect={setSelected} />
           </Card>
@@ -253,12 +253,17 @@ function yesNo(value: boolean | null, yes: string, no: string): string {
   return value === null ? "—" : value ? yes : no;
 }
 
+/** Whether the check's pair cells ran with friction: checks from before that carry no μ on their pair axis. */
+function pairsCarryFriction(axes: readonly { pairs?: readonly { friction?: number; rollingResistance?: number }[] }[]): boolean {
+  return axes.some((axis) => axis.pairs?.some((pair) => pair.friction !== undefined || pair.rollingResistance !== undefined) ?? false);
+}
+
 /**
  * Friction, resting and sliding (catalogues whose objects give μ or μ_r): the tangential springs'
  * ω_t·h against the bound, the largest k_t/k and the substeps that keep every pair stable, each
  * contact's resting overlap m·g/k, and on the floor the sliding angles and the slide before rolling.
  */
-function FrictionPanel({ friction, margin, substepS }: { friction: FrictionCheck; margin: number; substepS: number }) {
+function FrictionPanel({ friction, margin, substepS, simulated }: { friction: FrictionCheck; margin: number; substepS: number; simulated: boolean }) {
   const phase = 2 * (1 - margin);
   const th = "px-2 py-1 text-left font-semibold";
   const td = "px-2 py-1 tabular-nums";
@@ -327,7 +332,11 @@ function FrictionPanel({ friction, margin, substepS }: { friction: FrictionCheck
           </table>
         </div>
         <p className="text-xs text-ink-muted">
-          Worked out in closed form at h = {formatSI(substepS, "s")}, not simulated: the check&apos;s pair cells run without friction. The tangential spring k_t = (k_t/k)·k acts on the tangential mass m/(1 + m·r²/I) of a solid disc and is held to ω_t·h ≤ {fmt(phase)} like the normal spring; resting
+          Worked out in closed form at h = {formatSI(substepS, "s")}.{" "}
+          {simulated
+            ? "The check's pair cells also run with friction: each pair at its μ (√(μ_A·μ_B) when both objects give one, common practice) and μ_r (the larger given), with this k_t/k, so the matrix above shows where the tangential spring fails in simulation too."
+            : "This check's pair cells ran without friction (it was run before checks simulated friction): run the check again to see friction in the matrix."}{" "}
+          The tangential spring k_t = (k_t/k)·k acts on the tangential mass m/(1 + m·r²/I) of a solid disc and is held to ω_t·h ≤ {fmt(phase)} like the normal spring; resting
           overlap is m·g/k under gravity {fmt(friction.gravityMPerS2)} m/s² (the heavier object on the lighter for a pair); an object that cannot roll slides once tan θ &gt; μ, a rolling disc slips once tan θ &gt; 3μ.
         </p>
       </div>

@@ -30,7 +30,30 @@ const METRIC_ROWS: readonly { key: keyof Metrics; label: string; unit: string }[
   { key: "tunneled", label: "Tunnelled", unit: "" },
   { key: "exploded", label: "Exploded", unit: "" },
   { key: "steps", label: "Integrator steps", unit: "steps" },
+  { key: "maxOmegaH", label: "Largest ω·h in contact", unit: "" },
+  { key: "amplification", label: "Rebound / model's restitution", unit: "" },
 ];
+
+/** Rows of the rotation metrics, shown where the cell carries them (sweeps with friction, rolling resistance or a resting scene). */
+const ROTATION_METRIC_ROWS: readonly { key: keyof Metrics; label: string; unit: string }[] = [
+  { key: "endSlipMPerS", label: "Slip at the end of the first contact", unit: "m/s" },
+  { key: "reboundSpinRadPerS", label: "Rebound spin", unit: "rad/s" },
+  { key: "reboundAngleDeg", label: "Rebound angle from the normal", unit: "°" },
+  { key: "angularMomentumDriftRel", label: "Angular momentum drift (relative)", unit: "" },
+  { key: "maxTangentialOmegaH", label: "Largest tangential ω·h", unit: "" },
+  { key: "slidingSteps", label: "Steps with a sliding contact", unit: "steps" },
+  { key: "settleTimeS", label: "Settle time", unit: "s" },
+  { key: "residualKineticJ", label: "Residual kinetic energy (last quarter)", unit: "J" },
+  { key: "residualMaxSpeedMPerS", label: "Residual top speed (last quarter)", unit: "m/s" },
+  { key: "creepM", label: "Creep (second half)", unit: "m" },
+  { key: "restingOverlapFraction", label: "Resting overlap / radius", unit: "" },
+  { key: "restingOverlapRatio", label: "Resting overlap / static m·g/k", unit: "" },
+];
+
+/** The metric rows of a cell: the rotation rows only when its metrics carry them. */
+function metricRowsFor(metrics: Metrics): readonly { key: keyof Metrics; label: string; unit: string }[] {
+  return ROTATION_METRIC_ROWS.some((row) => row.key in metrics) ? [...METRIC_ROWS, ...ROTATION_METRIC_ROWS] : METRIC_ROWS;
+}
 
 function metricText(value: unknown, unit: string): string {
   if (typeof value === "boolean") return value ? "yes" : "no";
@@ -143,7 +166,7 @@ export function CellView({
               </dl>
               <h3 className="mb-1 text-sm font-semibold">Metrics</h3>
               <dl className="grid grid-cols-[1fr_auto] gap-x-4 gap-y-1 text-sm" data-testid="cell-metrics">
-                {METRIC_ROWS.map((row) => (
+                {metricRowsFor(cell.metrics).map((row) => (
                   <div key={row.key} className="contents">
                     <dt className="text-ink-muted">
                       {row.label} [{row.unit || "no unit"}]

@@ -11,6 +11,7 @@ import { dtForStepsPerContactS, effectiveMassKg, stabilityLimitDtS, stabilityLim
 import { pairTangentialEffectiveMassKg, SOLID_DISC_INERTIA_FACTOR, slidingAngleDeg, tangentialEffectiveMassKg } from "@/lib/physics/friction-analytic";
 import type { Metrics, Tolerances, Verdict } from "@/lib/physics/types";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
+import { sweepMeasuresRotation } from "@/lib/sweeps/results";
 import { FRAME_STEP_PATH } from "@/lib/ui/units";
 import type { CellRow, SweepAxisView } from "./sweep-api";
 
@@ -28,6 +29,8 @@ export interface MetricLayerSpec {
   domain?: readonly [number, number];
   /** symlog: the constant C from the sweep's tolerances. */
   constantOfTolerance?: (tolerances: Partial<Tolerances>) => number;
+  /** A rotation metric: offered only on sweeps that measure them (`sweepMeasuresRotation`). */
+  rotation?: true;
 }
 
 const energyConstant = (tolerances: Partial<Tolerances>) => (tolerances.energyDriftRel ?? DEFAULT_TOLERANCES.energyDriftRel) / 10 || 1e-3;
@@ -45,7 +48,27 @@ export const METRIC_LAYERS: readonly MetricLayerSpec[] = [
   { key: "contactSteps", label: "steps in contact", unit: "steps", normalisation: "linear" },
   { key: "momentumDriftRelX", label: "momentum drift x (relative)", unit: "", normalisation: "symmetric" },
   { key: "momentumDriftRelY", label: "momentum drift y (relative)", unit: "", normalisation: "symmetric" },
+  // Runs with friction or rolling resistance, and the resting scenes (stored from packed format 3 on).
+  // Signed figures (slip, spin, angle, drift) are centred on zero; figures spanning decades are on a log scale.
+  { key: "endSlipMPerS", label: "slip at the end of the first contact", unit: "m/s", normalisation: "symmetric", rotation: true },
+  { key: "reboundSpinRadPerS", label: "rebound spin", unit: "rad/s", normalisation: "symmetric", rotation: true },
+  { key: "reboundAngleDeg", label: "rebound angle from the normal", unit: "°", normalisation: "symmetric", rotation: true },
+  { key: "angularMomentumDriftRel", label: "angular momentum drift (relative)", unit: "", normalisation: "symmetric", rotation: true },
+  { key: "maxTangentialOmegaH", label: "largest tangential ω·h", unit: "", normalisation: "log", rotation: true },
+  { key: "slidingSteps", label: "steps with a sliding contact", unit: "steps", normalisation: "linear", rotation: true },
+  { key: "settleTimeS", label: "settle time", unit: "s", normalisation: "linear", rotation: true },
+  { key: "residualKineticJ", label: "residual kinetic energy (last quarter)", unit: "J", normalisation: "log", rotation: true },
+  { key: "residualMaxSpeedMPerS", label: "residual top speed (last quarter)", unit: "m/s", normalisation: "log", rotation: true },
+  { key: "creepM", label: "creep (second half)", unit: "m", normalisation: "log", rotation: true },
+  { key: "restingOverlapFraction", label: "resting overlap / radius", unit: "", normalisation: "linear", rotation: true },
+  { key: "restingOverlapRatio", label: "resting overlap / static m·g/k", unit: "", normalisation: "log", rotation: true },
 ];
+
+/** The layers a sweep's map offers: the rotation metrics only where the sweep measures them. */
+export function metricLayersFor(spec: SweepSpecInput, axes: readonly SweepAxisView[]): readonly MetricLayerSpec[] {
+  const rotation = sweepMeasuresRotation(spec, axes.map((axis) => ({ parameter: axis.path, values: axis.values })));
+  return rotation ? METRIC_LAYERS : METRIC_LAYERS.filter((layer) => !layer.rotation);
+}
 
 /** The colour ranges a user can pick for a metric map: every value, or clipped to percentiles. */
 export const COLOUR_RANGES: readonly { key: string; label: string; clip?: PercentileClip }[] = [

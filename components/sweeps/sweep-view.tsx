@@ -19,7 +19,7 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatCompute } from "@/lib/billing/format";
 import { isActive, sweepKeys, sweepPath, useSweep, useSweepCells, type CellRow, type Envelope, type Sweep } from "./sweep-api";
-import { COLOUR_RANGES, METRIC_LAYERS, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
+import { COLOUR_RANGES, SINGLE_ROW_AXIS, identicalIntegratorsNote, isNumericAxis, layerData, mapAxisFor, mapCellIndices, mapTitleBlock, metricLayersFor, metricScale, overlaysFor, specWithValue } from "./sweep-map-data";
 import { StatusBadge, progressPercent } from "./sweeps-list";
 import { SingleRunPanel } from "./rerun-comparison";
 
@@ -302,7 +302,8 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
 
   const x = mapAxisFor(sweep.axes[xAxis]);
   const y = yAxis >= 0 ? mapAxisFor(sweep.axes[yAxis]) : SINGLE_ROW_AXIS;
-  const metric = show === "verdict" ? null : METRIC_LAYERS.find((layer) => layer.key === show)!;
+  const layers = metricLayersFor(sweep.spec, sweep.axes);
+  const metric = show === "verdict" ? null : (layers.find((layer) => layer.key === show) ?? null);
   const overlays: OverlayInput[] = yAxis >= 0 ? overlaysFor(sweep.spec, sweep.axes[xAxis].path, sweep.axes[yAxis].path) : [];
 
   const layerAt = (sliceChoice: readonly number[]) => {
@@ -331,7 +332,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           </label>
           <select id="map-show" className={selectClasses} value={show} onChange={(event) => setShow(event.target.value as typeof show)}>
             <option value="verdict">Verdict</option>
-            {METRIC_LAYERS.map((layer) => (
+            {layers.map((layer) => (
               <option key={layer.key} value={layer.key}>
                 {layer.label}
                 {layer.unit ? ` [${layer.unit}]` : " [no unit]"}

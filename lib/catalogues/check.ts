@@ -23,7 +23,7 @@ import { formatLimit, numericRule, rangeViolation, SPEC_LIMITS } from "../sweeps
 import type { CellResult } from "../sweeps/results";
 import type { AxisPair, SweepSpecInput } from "../sweeps/spec";
 import type { CatalogueObject } from "./format";
-import { frictionCheck, type FrictionCheck } from "./friction-check";
+import { frictionCheck, pairFrictionCoefficient, pairRollingResistance, type FrictionCheck } from "./friction-check";
 import { allowedPhase, cataloguePairs, CheckInputError, pairOmegaRadPerS, type CataloguePair } from "./pairs";
 
 export { cataloguePairs, CheckInputError, type CataloguePair } from "./pairs";
@@ -136,6 +136,15 @@ export function checkSpec(catalogueName: string, version: number, objects: reado
   const wantedS = gapM / slowestClosing + 3 * longestContactS(pairs, settings);
   const durationS = Math.max(1, Math.ceil(wantedS / settings.dtS)) * settings.dtS;
   const perPairStiffness = settings.groupStiffness !== undefined;
+  // Friction in the simulated cells: only for catalogues that give μ or μ_r, so other checks' specs
+  // (and with them their cache keys and stored results) are exactly as before friction existed.
+  const withFriction = objects.some((object) => (object.friction ?? null) !== null);
+  const withRolling = objects.some((object) => (object.rollingResistance ?? null) !== null);
+  // Every pair gets a value when any does (the pair axis takes all or none): 0 where neither object gives one.
+  const pairFriction = (pair: CataloguePair): Pick<AxisPair, "friction" | "rollingResistance"> => ({
+    ...(withFriction ? { friction: pairFrictionCoefficient(pair.a, pair.b) ?? 0 } : {}),
+    ...(withRolling ? { rollingResistance: pairRollingResistance(pair.a, pair.b) ?? 0 } : {}),
+  });
   const axisPairs: AxisPair[] = pairs.map((pair) => ({
     name: pair.name,
     massAKg: pair.a.massKg,
@@ -146,6 +155,7 @@ export function checkSpec(catalogueName: string, version: number, objects: reado
     speedBMPerS: pair.b.topSpeedMPerS,
     ...(perPairStiffness ? { stiffness: pair.stiffness } : {}),
     ...(settings.damping === "catalogue" ? { restitution: pair.restitution } : {}),
+    ...pairFriction(pair),
   }));
   const first = pairs[0];
   return {
@@ -166,6 +176,8 @@ export function checkSpec(catalogueName: string, version: number, objects: reado
         model: settings.contactModel,
         stiffness: perPairStiffness ? first.stiffness : settings.stiffness,
         damping: settings.damping === "catalogue" ? { kind: "restitution", value: first.restitution } : { kind: "none" },
+        // The tangential spring's k_t/k for every pair; each pair's μ comes with the pair axis.
+        ...(withFriction ? { friction: { coefficient: axisPairs[0].friction ?? 0, ...(settings.frictionStiffnessRatio !== undefined ? { stiffnessRatio: settings.frictionStiffnessRatio } : {}) } } : {}),
       },
       integrator: settings.integrator,
       dtS: settings.dtS,

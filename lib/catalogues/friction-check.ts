@@ -1,7 +1,8 @@
 /**
  * The friction part of a catalogue check, for catalogues whose objects give a friction coefficient
- * μ (and optionally a rolling resistance μ_r). Analytic, like the recommendation: the check's
- * simulated pair cells stay frictionless (a pair axis carries no friction), so these rows come from
+ * μ (and optionally a rolling resistance μ_r). Analytic, like the recommendation, beside the check's
+ * simulated pair cells (which carry each pair's μ and μ_r on the scene.pair axis, lib/catalogues/
+ * check.ts checkSpec, so the matrix shows the same failures in simulation). The rows come from
  * closed-form bounds, each with its source:
  *
  * - tangential stability of every frictional pair and of every object on the floor: the sticking
@@ -56,7 +57,7 @@ export function pairFrictionCoefficient(a: CatalogueObject, b: CatalogueObject):
 }
 
 /** A pair's rolling resistance: the larger of the two given (the softer-rolling surface decides nothing; ours). */
-function pairRollingResistance(a: CatalogueObject, b: CatalogueObject): number | null {
+export function pairRollingResistance(a: CatalogueObject, b: CatalogueObject): number | null {
   const values = [a.rollingResistance ?? null, b.rollingResistance ?? null].filter((value): value is number => value !== null);
   return values.length === 0 ? null : Math.max(...values);
 }

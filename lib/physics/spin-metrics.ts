@@ -7,6 +7,18 @@ import type { Metrics, Scenario } from "./types";
 import { angularMomentumKgM2PerS, type Bodies } from "./bodies";
 import type { ContactField } from "./contact-field";
 
+/**
+ * Whether a run of this scenario returns the rotation metrics: runs with friction or rolling
+ * resistance (the condition lib/physics/simulate.ts turns the tangential contact on by) and the
+ * resting scenes, slope and stack (lib/physics/rest-metrics.ts). The result cache uses it to leave
+ * alone cells stored before packed format 3, which did not keep these metrics.
+ */
+export function measuresRotation(scenario: Scenario): boolean {
+  const { friction, rollingResistance } = scenario.contact;
+  if (scenario.scene.kind === "slope" || scenario.scene.kind === "stack") return true;
+  return (friction !== undefined && (friction.coefficient > 0 || (friction.staticCoefficient ?? 0) > 0)) || (rollingResistance ?? 0) > 0;
+}
+
 export function isIsolatedScene(scenario: Scenario): boolean {
   return scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
 }

@@ -22,7 +22,8 @@ import { predictSweep } from "@/lib/sweeps/chunks";
 import { meterSweep, type Metering, type SweepMeter } from "@/lib/sweeps/metering";
 import { expandAxes, forEachCellInRange } from "@/lib/sweeps/grid";
 import { specHash } from "@/lib/sweeps/hash";
-import { KEY_WORDS, PackedView, PackedWriter } from "@/lib/sweeps/packed";
+import { KEY_WORDS, PackedView, PackedWriter, ROTATION_METRICS_VERSION } from "@/lib/sweeps/packed";
+import { measuresRotation } from "@/lib/physics/spin-metrics";
 import { bodyCount, cornerScenarios, parseSweepSpec, stepsPerCell, type SweepSpec } from "@/lib/sweeps/spec";
 import { putBlob, readBlob, type StoredBlob } from "./result-store";
 
@@ -102,7 +103,12 @@ async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: numb
   const [anyStored] = await db.select({ one: sql<number>`1` }).from(sweepResults).where(eq(sweepResults.studioId, studioId)).limit(1);
   if (!anyStored) return none;
   const keys = new Uint32Array(cells * KEY_WORDS);
-  forEachCellInRange(spec, expandAxes(spec), 0, cells, (cell) => scenarioKey(cell.scenario, keys, cell.index * KEY_WORDS));
+  // Cells whose runs return the rotation metrics: runs stored before packed format 3 lack them, so they serve only the other cells.
+  const rotation = new Uint8Array(cells);
+  forEachCellInRange(spec, expandAxes(spec), 0, cells, (cell) => {
+    scenarioKey(cell.scenario, keys, cell.index * KEY_WORDS);
+    if (measuresRotation(cell.scenario)) rotation[cell.index] = 1;
+  });
   // Key → first cell with it; later cells with the same key chain from there.
   const table = new KeyTable(cells);
   const nextSame = new Int32Array(cells).fill(-1);
@@ -136,7 +142,7 @@ async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: numb
     let used = false;
     for (let n = 0; n < view.count; n++) {
       const first = table.get(storedKeys, n * KEY_WORDS);
-      if (first < 0 || hitSource[first] !== -1) continue;
+      if (first < 0 || hitSource[first] !== -1 || (rotation[first] === 1 && view.storedVersion < ROTATION_METRICS_VERSION)) continue;
       for (let cell = first; cell !== -1; cell = nextSame[cell]) {
         hitSource[cell] = sources.length;
         hitPosition[cell] = n;

@@ -10,10 +10,10 @@ import { sweepChunks, sweepResults, type Sweep, type SweepResult } from "@/db/sc
 import { VERDICTS, type Metrics, type Verdict } from "@/lib/physics/types";
 import { axisValuesAt, cellAt, expandAxes, type ExpandedAxis } from "@/lib/sweeps/grid";
 import type { Scenario } from "@/lib/physics/types";
-import { METRIC_COUNT, PackedView } from "@/lib/sweeps/packed";
+import { PackedView } from "@/lib/sweeps/packed";
 import { CONTACT_CSV_COLUMNS, cellContactTuning, contactTuningCsv, contactTuningJson } from "@/lib/sweeps/contact-tuning";
 import { csvText } from "@/lib/csv";
-import { METRIC_KEYS, csvHeader, emptyVerdictCounts, formatNumber, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
+import { csvHeader, emptyVerdictCounts, exportedMetricKeys, formatNumber, sweepMeasuresRotation, type CellResult, type VerdictCounts } from "@/lib/sweeps/results";
 import type { SweepSpec } from "@/lib/sweeps/spec";
 import type { SweepAxisView, SweepView } from "@/lib/sweeps/sweep-view";
 import { readBlob } from "./result-store";
@@ -124,29 +124,40 @@ export async function* storedChunks(db: DbOrTx, sweep: Sweep, onlyIndex?: number
   }
 }
 
+/**
+ * The metrics a sweep's views and exports carry, as positions in the packed run (the packed order
+ * is METRIC_KEYS then the rotation metrics, so these are the first `keys.length`): the rotation
+ * metrics only for sweeps that measure them, so other sweeps' bytes are as before they were stored.
+ */
+function exportedMetrics(spec: SweepSpec, axes: readonly ExpandedAxis[]): readonly string[] {
+  return exportedMetricKeys(sweepMeasuresRotation(spec, axes));
+}
+
 /** Metrics of a stored cell as the API shows them: fixed key order, non-finite as null, −0 as 0. */
-function apiMetrics(view: PackedView, n: number): Metrics {
+function apiMetrics(view: PackedView, n: number, keys: readonly string[]): Metrics {
   const out: Record<string, number | boolean | null> = {};
-  for (let m = 0; m < METRIC_COUNT; m++) {
+  for (let m = 0; m < keys.length; m++) {
     const value = view.metric(n, m);
-    out[METRIC_KEYS[m]] = typeof value === "number" ? (Number.isFinite(value) ? value + 0 : null) : value;
+    out[keys[m]] = typeof value === "number" ? (Number.isFinite(value) ? value + 0 : null) : value;
   }
   return out as unknown as Metrics;
 }
 
 /** The sweep's finished cells in index order, as CellResult records (`onlyIndex`: just that cell, if done). */
 export async function storedCells(db: DbOrTx, sweep: Sweep, onlyIndex?: number): Promise<CellResult[]> {
-  const axes = expandAxes(sweep.spec);
+  const spec = sweep.spec;
+  const axes = expandAxes(spec);
+  const keys = exportedMetrics(spec, axes);
   const cells: CellResult[] = [];
   for await (const view of storedChunks(db, sweep, onlyIndex)) {
     if (onlyIndex !== undefined) {
       const n = view.find(onlyIndex);
-      if (n >= 0) cells.push({ index: onlyIndex, axisValues: axisValuesAt(axes, onlyIndex), metrics: apiMetrics(view, n), verdict: view.verdict(n), reason: view.reason(n) });
+      if (n >= 0) cells.push({ index: onlyIndex, axisValues: axisValuesAt(axes, onlyIndex), metrics: apiMetrics(view, n, keys), verdict: view.verdict(n), reason: view.reason(n) });
       continue;
     }
     for (let n = 0; n < view.count; n++) {
       const index = view.indices[n];
-      cells.push({ index, axisValues: axisValuesAt(axes, index), metrics: apiMetrics(view, n), verdict: view.verdict(n), reason: view.reason(n) });
+      cells.push({ index, axisValues: axisValuesAt(axes, index), metrics: apiMetrics(view, n, keys), verdict: view.verdict(n), reason: view.reason(n) });
     }
   }
   return cells;
@@ -158,7 +169,7 @@ export async function storedCells(db: DbOrTx, sweep: Sweep, onlyIndex?: number):
  * cell page renders this part on the server, so the verdict is there before the engine runs again.
  */
 export async function cellSummary(db: DbOrTx, sweep: Sweep, index: number): Promise<CellResultOrPending & { scenario: Scenario }> {
-  const spec = sweep.spec as SweepSpec;
+  const spec = sweep.spec;
   const cell = cellAt(spec, expandAxes(spec), index);
   const [stored] = await storedCells(db, sweep, index);
   return {
@@ -196,7 +207,7 @@ function axisTexts(axes: readonly ExpandedAxis[], format: "json" | "csv"): strin
   );
 }
 
-const JSON_METRIC_PREFIXES = METRIC_KEYS.map((key, m) => `${m === 0 ? "" : ","}${JSON.stringify(key)}:`);
+const jsonMetricPrefixes = (keys: readonly string[]) => keys.map((key, m) => `${m === 0 ? "" : ","}${JSON.stringify(key)}:`);
 
 function metricText(view: PackedView, n: number, m: number, nullText: string): string {
   const value = view.metric(n, m);
@@ -215,7 +226,7 @@ function cellPositions(axes: readonly ExpandedAxis[], index: number, out: number
 }
 
 /** One stored chunk as JSON array items: the bytes JSON.stringify(cellJson(cell)) gives, comma-led after the first. */
-function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], first: boolean, contact?: SweepSpec): string {
+function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], prefixes: readonly string[], first: boolean, contact?: SweepSpec): string {
   const positions = new Array<number>(axes.length);
   let out = "";
   for (let n = 0; n < view.count; n++) {
@@ -224,14 +235,14 @@ function chunkJson(view: PackedView, axes: readonly ExpandedAxis[], texts: strin
     let axisValues = "";
     for (let i = 0; i < axes.length; i++) axisValues += (i === 0 ? "" : ",") + texts[i][positions[i]];
     let metrics = "";
-    for (let m = 0; m < METRIC_COUNT; m++) metrics += JSON_METRIC_PREFIXES[m] + metricText(view, n, m, "null");
+    for (let m = 0; m < prefixes.length; m++) metrics += prefixes[m] + metricText(view, n, m, "null");
     out += `${first && n === 0 ? "" : ","}{"index":${index},"axisValues":[${axisValues}],"metrics":{${metrics}},"verdict":${JSON.stringify(view.verdict(n))},"reason":${JSON.stringify(view.reason(n))}${contact ? `,${contactTuningJson(cellContactTuning(contact, axes, index))}` : ""}}`;
   }
   return out;
 }
 
 /** One stored chunk as CSV rows: the bytes cellToCsv(cell) + CRLF gives. */
-function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], contact?: SweepSpec): string {
+function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string[][], metricCount: number, contact?: SweepSpec): string {
   const positions = new Array<number>(axes.length);
   let out = "";
   for (let n = 0; n < view.count; n++) {
@@ -240,7 +251,7 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
     let row = String(index);
     for (let i = 0; i < axes.length; i++) row += `,${texts[i][positions[i]]}`;
     row += `,${csvText(view.verdict(n))},${csvText(view.reason(n))}`;
-    for (let m = 0; m < METRIC_COUNT; m++) row += `,${metricText(view, n, m, "")}`;
+    for (let m = 0; m < metricCount; m++) row += `,${metricText(view, n, m, "")}`;
     if (contact) row += contactTuningCsv(cellContactTuning(contact, axes, index));
     out += `${row}\r\n`;
   }
@@ -256,6 +267,9 @@ function chunkCsv(view: PackedView, axes: readonly ExpandedAxis[], texts: string
  */
 export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", changed?: ChangeWindow, options: { contact?: boolean } = {}): ReadableStream<Uint8Array> {
   const axes = expandAxes(sweep.spec);
+  const rotation = sweepMeasuresRotation(sweep.spec, axes);
+  const metricKeys = exportedMetricKeys(rotation);
+  const prefixes = jsonMetricPrefixes(metricKeys);
   // With `contact`, each cell also carries its contact as frequency and damping ratio (lib/sweeps/contact-tuning.ts).
   const contact = options.contact ? (sweep.spec) : undefined;
   const texts = axisTexts(axes, format);
@@ -269,7 +283,7 @@ export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", ch
       try {
         if (!started) {
           started = true;
-          controller.enqueue(encoder.encode(format === "json" ? `{"cells":[` : `${csvHeader(axes)}${contact ? `,${CONTACT_CSV_COLUMNS.join(",")}` : ""}\r\n`));
+          controller.enqueue(encoder.encode(format === "json" ? `{"cells":[` : `${csvHeader(axes, rotation)}${contact ? `,${CONTACT_CSV_COLUMNS.join(",")}` : ""}\r\n`));
           return;
         }
         const next = await chunks.next();
@@ -280,7 +294,7 @@ export function cellsStream(db: DbOrTx, sweep: Sweep, format: "json" | "csv", ch
         }
         const view = next.value;
         if (view.count === 0) return;
-        controller.enqueue(encoder.encode(format === "json" ? chunkJson(view, axes, texts, first, contact) : chunkCsv(view, axes, texts, contact)));
+        controller.enqueue(encoder.encode(format === "json" ? chunkJson(view, axes, texts, prefixes, first, contact) : chunkCsv(view, axes, texts, metricKeys.length, contact)));
         first = false;
       } catch (error) {
         controller.error(error);

@@ -31,6 +31,8 @@ export interface AxisFields {
     speedBMPerS: number;
     stiffness?: number;
     restitution?: number;
+    friction?: number;
+    rollingResistance?: number;
   }[];
 }
 
@@ -72,6 +74,9 @@ export function isIntegerParameter(path: string, sceneKind: SceneKind): boolean 
 export function copyScenario(scenario: Scenario): Scenario {
   const contact: Scenario["contact"] = { ...scenario.contact, damping: { ...scenario.contact.damping } };
   if (scenario.contact.material) contact.material = { ...scenario.contact.material };
+  // Friction axes write into contact.friction: each cell needs its own (else cells share one, and
+  // the spec's own scenario ends holding the last cell's values).
+  if (scenario.contact.friction) contact.friction = { ...scenario.contact.friction };
   return { ...scenario, scene: { ...scenario.scene }, contact, tolerances: { ...scenario.tolerances } };
 }
 
@@ -120,8 +125,8 @@ export function fieldSetter(path: string): FieldSetter {
 
 /**
  * A setter for one axis. A pair axis writes both bodies of the named pair (masses, radii, top
- * speeds and, when the pair carries them, the contact stiffness and target restitution); every
- * other axis writes its field.
+ * speeds and, when the pair carries them, the contact stiffness, target restitution, friction
+ * coefficient and rolling resistance); every other axis writes its field.
  */
 export function axisSetter(axis: AxisFields): FieldSetter {
   if (axis.parameter !== PAIR_AXIS_PATH) return fieldSetter(axis.parameter);
@@ -138,6 +143,9 @@ export function axisSetter(axis: AxisFields): FieldSetter {
     scene.speedBMPerS = pair.speedBMPerS;
     if (pair.stiffness !== undefined) scenario.contact.stiffness = pair.stiffness;
     if (pair.restitution !== undefined && scenario.contact.damping.kind === "restitution") scenario.contact.damping.value = pair.restitution;
+    // The pair's μ with the scenario's other friction settings (a copy: the cell's own, see copyScenario).
+    if (pair.friction !== undefined) scenario.contact.friction = { ...scenario.contact.friction, coefficient: pair.friction };
+    if (pair.rollingResistance !== undefined) scenario.contact.rollingResistance = pair.rollingResistance;
   };
 }
 

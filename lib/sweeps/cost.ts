@@ -128,9 +128,13 @@ function contactEstimate(scenario: Scenario): ContactEstimate {
 export function predictCellNs(scenario: Scenario, constants: CostConstants = CALIBRATION): number {
   const scene = scenario.scene;
   switch (scene.kind) {
+    // With friction the engine integrates rotation and never jumps over free flight
+    // (lib/physics/simulate.ts): every step is taken, each at the friction factor.
     case "pair":
+      if (frictionCostFactor(scenario) > 1) return constants.pairCellOverheadNs + stepsPerCell(scenario) * constants.pairContactStepNs * FRICTION_STEP_COST_FACTOR;
       return constants.pairCellOverheadNs + contactEstimate(scenario).contactSteps * constants.pairContactStepNs;
     case "wall":
+      if (frictionCostFactor(scenario) > 1) return constants.cellOverheadNs + stepsPerCell(scenario) * constants.wallContactStepNs * FRICTION_STEP_COST_FACTOR;
       return constants.cellOverheadNs + contactEstimate(scenario).contactSteps * constants.wallContactStepNs;
     case "row":
       return constants.cellOverheadNs + stepsPerCell(scenario) * (constants.rowStepNs + bodyCount(scenario) * constants.rowBodyStepNs);

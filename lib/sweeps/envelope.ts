@@ -216,15 +216,23 @@ export const envelopeFrictionSchema = z.discriminatedUnion("kind", [
 export type EnvelopeFriction = z.infer<typeof envelopeFrictionSchema>;
 
 /** The friction entry of a sweep's envelope export: each setting's values over the sweep (axes included). */
-export function envelopeFriction(spec: { scenario: Pick<Scenario, "contact"> }, axes: readonly ExpandedAxis[]): EnvelopeFriction {
+export function envelopeFriction(
+  spec: { scenario: Pick<Scenario, "contact">; axes?: readonly { pairs?: readonly { friction?: number; rollingResistance?: number }[] }[] },
+  axes: readonly ExpandedAxis[],
+): EnvelopeFriction {
   const { friction, rollingResistance } = spec.scenario.contact;
   const valuesOf = (path: string, fixed: number | undefined): number[] | null => {
     const axis = axes.find((candidate) => candidate.parameter === path);
     if (axis) return [...new Set(axis.values as number[])].sort((a, b) => a - b);
     return fixed === undefined ? null : [fixed];
   };
-  const coefficient = valuesOf("contact.friction.coefficient", friction?.coefficient) ?? [0];
-  const rolling = valuesOf("contact.rollingResistance", rollingResistance) ?? [0];
+  // A scene.pair axis may give every pair its own μ and μ_r (all or none): then every cell takes a pair's value.
+  const perPair = (field: "friction" | "rollingResistance"): number[] | null => {
+    const values = (spec.axes ?? []).flatMap((axis) => (axis.pairs ?? []).flatMap((pair) => (pair[field] === undefined ? [] : [pair[field] as number])));
+    return values.length > 0 ? [...new Set(values)].sort((a, b) => a - b) : null;
+  };
+  const coefficient = perPair("friction") ?? valuesOf("contact.friction.coefficient", friction?.coefficient) ?? [0];
+  const rolling = perPair("rollingResistance") ?? valuesOf("contact.rollingResistance", rollingResistance) ?? [0];
   const staticCoefficient = valuesOf("contact.friction.staticCoefficient", friction?.staticCoefficient);
   if (coefficient.every((value) => value === 0) && (staticCoefficient ?? [0]).every((value) => value === 0) && rolling.every((value) => value === 0)) return { kind: "none" };
   const stiffnessNPerM = valuesOf("contact.friction.stiffness", friction?.stiffness);

@@ -7,10 +7,13 @@
  * Layout (little-endian; every section starts on an 8-byte boundary):
  *   header  8 × u32: magic "KDR1", version, n, reason bytes, flags (bit 0: keys present), 3 reserved
  *           (version 1: 11 metrics a cell, the first METRIC_COUNT_V1 of METRIC_KEYS; version 2: all of
- *           them. A version-1 run is widened on reading, its new metrics null, its verdicts as stored.)
+ *           METRIC_KEYS; version 3: STORED_METRIC_KEYS, METRIC_KEYS then the rotation metrics. A run
+ *           of an older version is widened on reading, the metrics it did not store null, its
+ *           verdicts as stored.)
  *   indices i32[n]
  *   keys    u32[4n]   (128-bit scenario key per cell; zero when the flag is clear)
- *   metrics f64[n · METRIC_KEYS.length]  (booleans 0/1; null as 0 with its bit set in the mask)
+ *   metrics f64[n · STORED_METRIC_KEYS.length]  (booleans 0/1; null as 0 with its bit set in the mask;
+ *                                        a metric the engine did not return is null)
  *   mask    u8[n · MASK_BYTES]           (one bit per metric: set where the metric is null)
  *   verdict u8[n]                        (index into VERDICTS)
  *   reasons UTF-8, separated by U+001E (a reason never holds it: the writer checks)
@@ -22,19 +25,25 @@
  * Pure: safe to import anywhere (TextEncoder/TextDecoder only).
  */
 import { VERDICTS, type Metrics, type Verdict } from "../physics/types";
-import { METRIC_COUNT_V1, METRIC_KEYS, type CellResult } from "./results";
+import { METRIC_COUNT_V1, METRIC_COUNT_V2, STORED_METRIC_KEYS, type CellResult } from "./results";
 
-export const METRIC_COUNT = METRIC_KEYS.length;
+export const METRIC_COUNT = STORED_METRIC_KEYS.length;
 export const MASK_BYTES = Math.ceil(METRIC_COUNT / 8);
 export const KEY_WORDS = 4;
 const MAGIC = 0x3152444b; // "KDR1" little-endian
-const VERSION = 2;
-const MASK_BYTES_V1 = Math.ceil(METRIC_COUNT_V1 / 8);
+const VERSION = 3;
+/** The first format version that stores the rotation metrics (older runs read them as null). */
+export const ROTATION_METRICS_VERSION = 3;
+/** Metrics a cell of each older version stores (the first ones of STORED_METRIC_KEYS). */
+const OLD_METRIC_COUNTS: ReadonlyMap<number, number> = new Map([
+  [1, METRIC_COUNT_V1],
+  [2, METRIC_COUNT_V2],
+]);
 const HEADER_BYTES = 32;
 const FLAG_KEYS = 1;
 const REASON_SEPARATOR = "\u001e";
 const BOOLEAN_METRICS: ReadonlySet<string> = new Set(["tunneled", "exploded"]);
-const IS_BOOLEAN = METRIC_KEYS.map((key) => BOOLEAN_METRICS.has(key));
+const IS_BOOLEAN = STORED_METRIC_KEYS.map((key) => BOOLEAN_METRICS.has(key));
 export const VERDICT_CODES: ReadonlyMap<string, number> = new Map(VERDICTS.map((verdict, code) => [verdict, code]));
 
 const align8 = (n: number) => (n + 7) & ~7;
@@ -100,7 +109,7 @@ export class PackedWriter {
     const record = metrics as unknown as Record<string, number | boolean | null>;
     const base = n * METRIC_COUNT;
     for (let m = 0; m < METRIC_COUNT; m++) {
-      const value = record[METRIC_KEYS[m]];
+      const value = record[STORED_METRIC_KEYS[m]];
       if (value === null || value === undefined) {
         this.metrics[base + m] = 0;
         this.mask[n * MASK_BYTES + (m >> 3)] |= 1 << (m & 7);
@@ -158,6 +167,8 @@ export class PackedWriter {
 export class PackedView {
   readonly count: number;
   readonly hasKeys: boolean;
+  /** The format version the bytes were written in (1, 2 or 3); older runs are widened on reading. */
+  readonly storedVersion: number;
   readonly indices: Int32Array;
   readonly keys: Uint32Array;
   readonly metrics: Float64Array;
@@ -171,8 +182,10 @@ export class PackedView {
     // Typed arrays need aligned offsets: copy when the bytes sit at an odd place in their buffer.
     let data = bytes.byteOffset % 8 === 0 ? bytes : bytes.slice();
     let header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
-    if (header[0] === MAGIC && header[1] === 1) {
-      data = widenVersion1(data);
+    const storedVersion = header[1];
+    const oldCount = header[0] === MAGIC ? OLD_METRIC_COUNTS.get(storedVersion) : undefined;
+    if (oldCount !== undefined) {
+      data = widenOldVersion(data, oldCount);
       header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
     }
     if (header[0] !== MAGIC || header[1] !== VERSION) throw new Error("packed results: unknown format or version");
@@ -180,6 +193,7 @@ export class PackedView {
     const sections = sectionsFor(n);
     if (data.byteLength !== sections.reasons + header[3]) throw new Error(`packed results: ${data.byteLength} bytes where the header describes ${sections.reasons + header[3]}`);
     this.count = n;
+    this.storedVersion = storedVersion;
     this.hasKeys = (header[4] & FLAG_KEYS) !== 0;
     const at = data.byteOffset;
     this.indices = new Int32Array(data.buffer, at + sections.indices, n);
@@ -216,7 +230,7 @@ export class PackedView {
 
   metricsOf(n: number): Metrics {
     const out: Record<string, number | boolean | null> = {};
-    for (let m = 0; m < METRIC_COUNT; m++) out[METRIC_KEYS[m]] = this.metric(n, m);
+    for (let m = 0; m < METRIC_COUNT; m++) out[STORED_METRIC_KEYS[m]] = this.metric(n, m);
     return out as unknown as Metrics;
   }
 
@@ -241,25 +255,27 @@ export class PackedView {
 }
 
 /**
- * A version-1 run in the current layout: same cells, keys, verdicts and reasons; the metrics added
- * since are null. Stored results keep their verdicts (they were judged by verdict rules 1).
+ * A run of an older version (storing the first `oldCount` metrics) in the current layout: same
+ * cells, keys, verdicts and reasons; the metrics added since are null. Stored results keep their
+ * verdicts (version-1 runs were judged by verdict rules 1).
  */
-function widenVersion1(data: Uint8Array): Uint8Array {
+function widenOldVersion(data: Uint8Array, oldCount: number): Uint8Array {
   const header = new Uint32Array(data.buffer, data.byteOffset, HEADER_BYTES / 4);
   const n = header[2];
-  const old = sectionsFor(n, METRIC_COUNT_V1, MASK_BYTES_V1);
+  const oldMaskBytes = Math.ceil(oldCount / 8);
+  const old = sectionsFor(n, oldCount, oldMaskBytes);
   if (data.byteLength !== old.reasons + header[3]) throw new Error(`packed results: ${data.byteLength} bytes where the header describes ${old.reasons + header[3]}`);
   const now = sectionsFor(n);
   const out = new Uint8Array(now.reasons + header[3]);
   out.set(data.subarray(0, old.metrics), 0);
-  const oldMetrics = new Float64Array(data.buffer, data.byteOffset + old.metrics, METRIC_COUNT_V1 * n);
+  const oldMetrics = new Float64Array(data.buffer, data.byteOffset + old.metrics, oldCount * n);
   const newMetrics = new Float64Array(out.buffer, now.metrics, METRIC_COUNT * n);
-  const oldMask = data.subarray(old.mask, old.mask + MASK_BYTES_V1 * n);
+  const oldMask = data.subarray(old.mask, old.mask + oldMaskBytes * n);
   const newMask = out.subarray(now.mask, now.mask + MASK_BYTES * n);
   for (let c = 0; c < n; c++) {
-    newMetrics.set(oldMetrics.subarray(c * METRIC_COUNT_V1, (c + 1) * METRIC_COUNT_V1), c * METRIC_COUNT);
-    for (let b = 0; b < MASK_BYTES_V1; b++) newMask[c * MASK_BYTES + b] = oldMask[c * MASK_BYTES_V1 + b];
-    for (let m = METRIC_COUNT_V1; m < METRIC_COUNT; m++) newMask[c * MASK_BYTES + (m >> 3)] |= 1 << (m & 7);
+    newMetrics.set(oldMetrics.subarray(c * oldCount, (c + 1) * oldCount), c * METRIC_COUNT);
+    for (let b = 0; b < oldMaskBytes; b++) newMask[c * MASK_BYTES + b] = oldMask[c * oldMaskBytes + b];
+    for (let m = oldCount; m < METRIC_COUNT; m++) newMask[c * MASK_BYTES + (m >> 3)] |= 1 << (m & 7);
   }
   out.set(data.subarray(old.verdicts, old.verdicts + n), now.verdicts);
   out.set(data.subarray(old.reasons, old.reasons + header[3]), now.reasons);

@@ -46,9 +46,9 @@ export const METRIC_KEYS = [
 
 /**
  * Metrics of runs with friction (lib/physics/spin-metrics.ts) and of the resting scenes
- * (lib/physics/rest-metrics.ts). Not stored in packed results yet: a stored cell keeps its
- * verdict and reason (which name the figure that decided it), and a cell's page re-runs the cell
- * for its series. Storing them needs packed format version 3 (open work of issue #15).
+ * (lib/physics/rest-metrics.ts). Stored from packed format version 3 on (runs stored before have
+ * them null), and written by the exports after METRIC_KEYS only for sweeps that measure them
+ * (`sweepMeasuresRotation`), so the exports of every other sweep keep their bytes.
  */
 export const ROTATION_METRIC_KEYS = [
   "angularMomentumDriftRel",
@@ -72,11 +72,50 @@ void allMetricsListed;
 
 /** Metric fields of packed runs of format version 1 (before maxOmegaH and amplification): the first entries of METRIC_KEYS. */
 export const METRIC_COUNT_V1 = 11;
+/** Metric fields of packed runs of format version 2 (before the rotation metrics): all of METRIC_KEYS. */
+export const METRIC_COUNT_V2 = METRIC_KEYS.length;
 
-/** Just the contract's metric fields, in the fixed order (drops anything extra an engine returns). */
+/** Every metric a packed run of the current format stores, in its order: METRIC_KEYS, then ROTATION_METRIC_KEYS. */
+export const STORED_METRIC_KEYS = [...METRIC_KEYS, ...ROTATION_METRIC_KEYS] as const;
+
+/** The metric fields a sweep's exports write: the rotation metrics only where the sweep measures them. */
+export function exportedMetricKeys(rotation: boolean | undefined): readonly (keyof Metrics)[] {
+  return rotation ? STORED_METRIC_KEYS : METRIC_KEYS;
+}
+
+/** What `sweepMeasuresRotation` reads of a spec (a parsed spec, or the spec a sweep view carries). */
+export interface RotationSpecPart {
+  scenario: {
+    scene: { kind: string };
+    contact: { friction?: { coefficient?: number; staticCoefficient?: number }; rollingResistance?: number };
+  };
+  /** A scene.pair axis may give each pair its own friction and rolling resistance. */
+  axes?: readonly { pairs?: readonly { friction?: number; rollingResistance?: number }[] }[];
+}
+
+const ROTATION_AXIS_PARAMETERS: ReadonlySet<string> = new Set(["contact.friction.coefficient", "contact.friction.staticCoefficient", "contact.rollingResistance"]);
+
+/**
+ * Whether any cell of the sweep can report the rotation metrics: the engine measures them in runs
+ * with friction or rolling resistance (lib/physics/simulate.ts; in the scenario, on an axis or per
+ * pair of a scene.pair axis) and in the resting scenes, slope and stack (lib/physics/rest-metrics.ts). Decided from the spec and its axes alone, so every chunk and
+ * every export of one sweep has the same columns.
+ */
+export function sweepMeasuresRotation(spec: RotationSpecPart, axes: readonly { parameter: string; values: readonly (number | string)[] }[]): boolean {
+  const { scene, contact } = spec.scenario;
+  if (scene.kind === "slope" || scene.kind === "stack") return true;
+  if ((contact.friction?.coefficient ?? 0) > 0 || (contact.friction?.staticCoefficient ?? 0) > 0 || (contact.rollingResistance ?? 0) > 0) return true;
+  if (spec.axes?.some((axis) => axis.pairs?.some((pair) => (pair.friction ?? 0) > 0 || (pair.rollingResistance ?? 0) > 0))) return true;
+  return axes.some((axis) => ROTATION_AXIS_PARAMETERS.has(axis.parameter) && axis.values.some((value) => typeof value === "number" && value > 0));
+}
+
+/**
+ * Just the contract's metric fields, in the stored order (drops anything extra an engine returns;
+ * a rotation metric the run did not measure is null, as a packed run reads it back).
+ */
 export function pickMetrics(metrics: Metrics): Metrics {
   const picked: Record<string, unknown> = {};
-  for (const key of METRIC_KEYS) picked[key] = metrics[key];
+  for (const key of STORED_METRIC_KEYS) picked[key] = metrics[key] ?? null;
   return picked as unknown as Metrics;
 }
 
@@ -118,16 +157,22 @@ export interface ResultsHeader {
   verdictRules: number;
   axes: readonly ExpandedAxis[];
   cellCount: number;
+  /** The sweep measures the rotation metrics (`sweepMeasuresRotation`): the cells carry them after the others. */
+  rotationMetrics?: boolean;
 }
 
 export const RESULTS_FORMAT = "kickdrift-sweep-results";
-/** 2: verdictRules in the head, metrics maxOmegaH and amplification, the verdicts of rules 2. */
-export const RESULTS_FORMAT_VERSION = 2;
+/**
+ * 2: verdictRules in the head, metrics maxOmegaH and amplification, the verdicts of rules 2.
+ * 3: sweeps with friction, rolling resistance or a resting scene carry the rotation metrics
+ * (ROTATION_METRIC_KEYS) after the others; other sweeps' cells are as in version 2.
+ */
+export const RESULTS_FORMAT_VERSION = 3;
 
-/** One cell as a JSON object with fixed key order. */
-export function cellToJson(result: CellResult, axes: readonly ExpandedAxis[]): string {
+/** One cell as a JSON object with fixed key order (`rotation`: with the rotation metrics after the others). */
+export function cellToJson(result: CellResult, axes: readonly ExpandedAxis[], rotation?: boolean): string {
   const parameters = axes.map((axis, i) => `${JSON.stringify(axis.parameter)}:${jsonValue(result.axisValues[i])}`).join(",");
-  const metrics = METRIC_KEYS.map((key) => `${JSON.stringify(key)}:${jsonValue(result.metrics[key] as number | boolean | null)}`).join(",");
+  const metrics = exportedMetricKeys(rotation).map((key) => `${JSON.stringify(key)}:${jsonValue((result.metrics[key] ?? null) as number | boolean | null)}`).join(",");
   return `{"index":${result.index},"parameters":{${parameters}},"verdict":${JSON.stringify(result.verdict)},"reason":${JSON.stringify(result.reason)},"metrics":{${metrics}}}`;
 }
 
@@ -179,7 +224,7 @@ export function jsonResultsEncoder(header: ResultsHeader): ResultsEncoder {
       for (const result of results) {
         const first = guard.take(result);
         counts[result.verdict] += 1;
-        text += `${first ? "" : ",\n"}${cellToJson(result, header.axes)}`;
+        text += `${first ? "" : ",\n"}${cellToJson(result, header.axes, header.rotationMetrics)}`;
       }
       return text;
     },
@@ -215,17 +260,17 @@ function csvValue(value: number | string | boolean | null): string {
   return csvText(value);
 }
 
-export function csvHeader(axes: readonly ExpandedAxis[]): string {
-  return ["index", ...axes.map((axis) => csvText(axis.parameter)), "verdict", "reason", ...METRIC_KEYS].join(",");
+export function csvHeader(axes: readonly ExpandedAxis[], rotation?: boolean): string {
+  return ["index", ...axes.map((axis) => csvText(axis.parameter)), "verdict", "reason", ...exportedMetricKeys(rotation)].join(",");
 }
 
-export function cellToCsv(result: CellResult): string {
+export function cellToCsv(result: CellResult, rotation?: boolean): string {
   return [
     String(result.index),
     ...result.axisValues.map((value) => csvValue(value)),
     csvText(result.verdict),
     csvText(result.reason),
-    ...METRIC_KEYS.map((key) => csvValue(result.metrics[key] as number | boolean | null)),
+    ...exportedMetricKeys(rotation).map((key) => csvValue((result.metrics[key] ?? null) as number | boolean | null)),
   ].join(",");
 }
 
@@ -233,12 +278,12 @@ export function cellToCsv(result: CellResult): string {
 export function csvResultsEncoder(header: ResultsHeader): ResultsEncoder {
   const guard = orderGuard(header);
   return {
-    head: () => `${csvHeader(header.axes)}\r\n`,
+    head: () => `${csvHeader(header.axes, header.rotationMetrics)}\r\n`,
     cells(results) {
       let text = "";
       for (const result of results) {
         guard.take(result);
-        text += `${cellToCsv(result)}\r\n`;
+        text += `${cellToCsv(result, header.rotationMetrics)}\r\n`;
       }
       return text;
     },

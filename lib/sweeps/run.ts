@@ -12,7 +12,7 @@ import { axisValuesAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";
 import { specHash } from "./hash";
 import { billedMsOfUnits } from "./metering";
 import type { ChunkPool } from "./pool";
-import { countVerdicts, emptyVerdictCounts, type CellResult, type ResultsHeader, type VerdictCounts } from "./results";
+import { countVerdicts, emptyVerdictCounts, sweepMeasuresRotation, type CellResult, type ResultsHeader, type VerdictCounts } from "./results";
 import type { SweepSpec } from "./spec";
 
 export interface SweepProgress {
@@ -53,7 +53,9 @@ export interface SweepRunSummary {
 }
 
 export function resultsHeader(spec: SweepSpec, axes: readonly ExpandedAxis[] = expandAxes(spec)): ResultsHeader {
-  return { name: spec.name, specHash: specHash(spec), verdictRules: spec.scenario.verdictRules ?? 1, axes, cellCount: cellCount(axes) };
+  const header: ResultsHeader = { name: spec.name, specHash: specHash(spec), verdictRules: spec.scenario.verdictRules ?? 1, axes, cellCount: cellCount(axes) };
+  if (sweepMeasuresRotation(spec, axes)) header.rotationMetrics = true;
+  return header;
 }
 
 export async function runSweep(spec: SweepSpec, options: RunSweepOptions): Promise<SweepRunSummary> {

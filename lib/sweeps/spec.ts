@@ -322,6 +322,10 @@ export const axisPairSchema = z.strictObject({
   stiffness: ruledNumber(numericRule("contact.stiffness", "pair")).optional(),
   /** The pair's own target restitution (needs damping kind "restitution"); absent: the scenario's. */
   restitution: ruledNumber(numericRule("contact.damping.restitution", "pair")).optional(),
+  /** The pair's own Coulomb friction coefficient μ (its other friction settings: the scenario's contact.friction, else the engine's defaults); absent: the scenario's. */
+  friction: ruledNumber(numericRule("contact.friction.coefficient", "pair")).optional(),
+  /** The pair's own rolling resistance μ_r; absent: the scenario's. */
+  rollingResistance: ruledNumber(numericRule("contact.rollingResistance", "pair")).optional(),
 });
 
 export type AxisPair = z.infer<typeof axisPairSchema>;
@@ -663,6 +667,13 @@ function checkPairAxis(axis: AxisSpec, scenario: Scenario, at: (...rest: (string
     addIssue(at("pairs"), `pairs with their own restitution need scenario.contact.damping.kind "restitution"; it is "${scenario.contact.damping.kind}"`);
     return null;
   }
+  for (const field of ["friction", "rollingResistance"] as const) {
+    const given = axis.pairs.filter((pair) => pair[field] !== undefined).length;
+    if (given > 0 && given < axis.pairs.length) {
+      addIssue(at("pairs"), `give a ${field === "friction" ? "friction" : "rollingResistance"} for every pair or for none`);
+      return null;
+    }
+  }
   for (const [j, pair] of axis.pairs.entries()) {
     if (!(pair.speedAMPerS + pair.speedBMPerS > 0)) {
       addIssue(at("pairs", j), `pair ${JSON.stringify(pair.name)}: speedAMPerS + speedBMPerS must be > 0 so the discs approach`);
@@ -746,6 +757,16 @@ function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue):
     if (restitutionAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.restitution !== undefined)) {
       addIssue(["axes", restitutionAxis, "parameter"], `contact.damping.restitution is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
       axesSound = false;
+    }
+    for (const [field, path] of [
+      ["friction", "contact.friction.coefficient"],
+      ["rollingResistance", "contact.rollingResistance"],
+    ] as const) {
+      const clash = seen.get(path);
+      if (clash !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair[field] !== undefined)) {
+        addIssue(["axes", clash, "parameter"], `${path} is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
+        axesSound = false;
+      }
     }
   }
   if (seen.has("scene.massRatio") && seen.has("scene.massBKg")) {

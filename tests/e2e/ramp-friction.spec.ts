@@ -71,6 +71,21 @@ test("an engineer runs the ramp template, sees where crates creep and hold, watc
   expect(sliding.text).not.toContain("Creep");
   expect(sliding.text).not.toContain("Jitter");
 
+  // --- The creep itself as a map layer (stored with the cells): the creeping crate walked farther
+  // than 1 % of its 0.3 m size in the second half (DEFAULT_TOLERANCES.creepFraction, our choice).
+  await page.locator("#map-show").selectOption("creepM");
+  await expect(map).toHaveAttribute("data-plot", /.+/);
+  const creepLayer = await hoverCell(page, map, 8, 3);
+  expect(creepLayer.text).toContain("Verdict: Creep");
+  // Six significant digits with an SI prefix (lib/charts/format.ts formatPrecise).
+  const creepText = /creep \(second half\): ([\d.]+) (µm|mm|m)(?![a-z])/.exec(creepLayer.text);
+  expect(creepText, creepLayer.text).not.toBeNull();
+  const creepM = Number(creepText![1]) * { µm: 1e-6, mm: 1e-3, m: 1 }[creepText![2] as "µm" | "mm" | "m"];
+  expect(creepM).toBeGreaterThan(0.01 * 0.3);
+  // The map (its legend is drawn with it) names the layer.
+  await expect(map).toHaveAccessibleName(/^creep \(second half\) map, 10 by 9 cells/);
+  await page.locator("#map-show").selectOption("verdict");
+
   // --- The common tangential spring (k_t/k = 2/7) holds the same crate at μ 0.9, 20°.
   await page.locator("#map-slice-2").selectOption({ index: 0 });
   await expect(map).toHaveAttribute("data-plot", /.+/);
@@ -91,6 +106,9 @@ test("an engineer runs the ramp template, sees where crates creep and hold, watc
   await expect(legend).toContainText("contact sliding");
   await expect(page.getByText("Slip speed at a sliding contact")).toBeVisible();
   await expect(page.getByText("Spin (angular velocity")).toBeVisible();
+  // The stored rotation metrics in the cell's metrics list, with their units.
+  await expect(page.getByTestId("cell-metrics")).toContainText("Creep (second half) [m]");
+  await expect(page.getByTestId("cell-metrics")).toContainText("Steps with a sliding contact [steps]");
   // Scrub through the run until the crate's contact is sliding (it slips again and again as it walks).
   const scrubber = page.getByRole("slider", { name: "Time" });
   const state = page.getByTestId("replay-friction-state");

@@ -128,6 +128,24 @@ describe("kickdrift check", { timeout: 180_000 }, () => {
     for (const entry of report.cases) expect(INSTABILITY_VERDICTS).not.toContain(entry.verdict);
   });
 
+  it("prints the friction rows of a catalogue whose objects give μ, puts them in the JSON report, and fetches them as CSV", async () => {
+    // The same crate and coin with friction coefficients (invented): the pair's μ is √(0.5·0.3) = 0.387 (common practice: the geometric mean).
+    const withFriction = "name,mass_kg,radius_m,top_speed_m_per_s,restitution,friction\r\ncrate,3,0.4,2.5,0.4,0.5\r\ncoin,0.6,0.25,3,0.6,0.3\r\n";
+    const run = await kickdrift(["check", file("crateslide-mu.csv", withFriction), file("gentle-mu.json", JSON.stringify({ ...GENTLE, slopeAngleDeg: 20 })), "--json", "mu.json.out"]);
+    expect(run.code, run.stderr).not.toBe(2);
+    expect(run.stdout).toMatch(/^Friction \(k_t\/k 0\.286, the default 2\/7; gravity 9\.81 m\/s²; slope 20°\): /m);
+    expect(run.stdout).toMatch(/^ {2}crate × coin: μ 0\.387 · ω_t·h [\d.e-]+ (within|PAST) the bound 0\.4 /m);
+    // atan 0.3 = 16.7° < 20°: the coin slides on the slope; atan 0.5 = 26.6°: the crate holds (Kleppner & Kolenkow 2014, ch. 2).
+    expect(run.stdout).toMatch(/^ {2}coin on the floor: μ 0\.3 .* slides above 16\.7°.* SLIDES on the slope/m);
+    expect(run.stdout).toMatch(/^ {2}crate on the floor: μ 0\.5 .* slides above 26\.6°.* holds on the slope/m);
+    const report = JSON.parse(readFileSync(path.join(work, "mu.json.out"), "utf8")) as { id: string; catalogueId: string; friction: { margin: number; contacts: { contact: string }[] } };
+    expect(report.friction.margin).toBe(0.8);
+    expect(report.friction.contacts.map((row) => row.contact)).toEqual(["crate × crate", "crate × coin", "coin × coin", "crate on the floor", "coin on the floor"]);
+    const fetched = await kickdrift(["fetch", report.id, "--catalogue", report.catalogueId, "--out-dir", "out-mu"]);
+    expect(fetched.code, fetched.stderr).toBe(0);
+    expect(readFileSync(path.join(work, "out-mu", `${report.id}-friction.csv`), "utf8").split("\r\n").length).toBe(1 + 5 + 1);
+  });
+
   it("fails a pair at risk: exit 1, the JUnit file valid against the JUnit XML schema with the verdict and reason", async () => {
     const run = await kickdrift(["check", file("crateslide.csv", CATALOGUE), file("harsh.json", JSON.stringify(HARSH)), "--junit", "reports/harsh.xml"]);
     expect(run.code, run.stderr).toBe(1);

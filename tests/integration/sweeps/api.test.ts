@@ -66,6 +66,16 @@ describe("bad input: 422 naming the spec path, nothing queued", () => {
     { what: "friction coefficient not a number", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: "NaN" }), field: "spec.scenario.contact.friction.coefficient" },
     { what: "tangential stiffness ratio zero", mutate: (s) => ((s.scenario.contact as Record<string, unknown>).friction = { coefficient: 0.5, stiffnessRatio: 0 }), field: "spec.scenario.contact.friction.stiffnessRatio", mentions: /> 0/ },
     {
+      what: "a pair's own friction coefficient negative (scene.pair axis)",
+      mutate: (s) => {
+        (s as { axes: unknown[] }).axes = [
+          { parameter: "scene.pair", values: ["puck × striker"], pairs: [{ name: "puck × striker", massAKg: 0.17, radiusAM: 0.04, speedAMPerS: 6, massBKg: 0.4, radiusBM: 0.05, speedBMPerS: 0, friction: -0.1 }] },
+        ];
+      },
+      field: "spec.axes.0.pairs.0.friction",
+      mentions: /≥ 0/,
+    },
+    {
       what: "a stack over the body limit",
       mutate: (s) => {
         s.scenario.scene = { kind: "stack", count: 1001, massKg: 0.05, radiusM: 0.015, gravityMPerS2: 9.81 };

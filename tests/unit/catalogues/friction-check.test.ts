@@ -12,6 +12,10 @@ import { CRATESLIDE_SETTINGS } from "@/lib/catalogues/demo";
 import { checkExportJson, frictionCsv, FRICTION_CSV_COLUMNS, pairMatrixCsv, recommendationCsv } from "@/lib/catalogues/exports";
 import { parseCatalogueFile, type CatalogueObject } from "@/lib/catalogues/format";
 import { catalogueHasFriction, frictionCheck, pairFrictionCoefficient } from "@/lib/catalogues/friction-check";
+import { simulate } from "@/lib/physics/simulate";
+import { cellCount, cellRange, expandAxes } from "@/lib/sweeps/grid";
+import { sweepMeasuresRotation } from "@/lib/sweeps/results";
+import { parseSweepSpec } from "@/lib/sweeps/spec";
 
 const encode = (text: string) => new TextEncoder().encode(text);
 
@@ -200,9 +204,40 @@ describe("the friction check", () => {
     expect(json.recommendation.friction.largestStiffnessRatioContact).toBe("ice puck × ice puck");
   });
 
-  it("leaves the check's simulated sweep frictionless (its cells are the same with or without μ in the catalogue)", () => {
+  it("runs the check's simulated cells with each pair's μ and μ_r; the rest of its spec is the frictionless check's", () => {
+    const spec = checkSpec("Lanternfall", 1, objects, SETTINGS);
+    const parsed = parseSweepSpec(spec);
+    expect(parsed.ok ? [] : parsed.issues).toEqual([]);
+    if (!parsed.ok) return;
+    const pairAxis = parsed.spec.axes[0];
+    const byName = new Map((pairAxis.pairs ?? []).map((pair) => [pair.name, pair]));
+    // √(μ_A·μ_B) when both give μ (common practice), the one given when only one does, 0 when neither;
+    // μ_r the larger given (ours), 0 when neither.
+    expect(byName.get("ice puck × loot chest")).toMatchObject({ friction: Math.sqrt(0.1 * 0.6), rollingResistance: 0.02 });
+    expect(byName.get("ice puck × lantern")).toMatchObject({ friction: 0.1, rollingResistance: 0 });
+    expect(byName.get("lantern × lantern")).toMatchObject({ friction: 0, rollingResistance: 0 });
+    expect(byName.get("loot chest × anvil")).toMatchObject({ friction: Math.sqrt(0.6 * 0.3), rollingResistance: 0.02 });
+    // The check's k_t/k reaches every cell.
+    expect(parsed.spec.scenario.contact.friction).toEqual({ coefficient: 0.1, stiffnessRatio: 1 });
     const withoutFriction = objects.map(({ friction: _f, rollingResistance: _r, ...rest }) => (void _f, void _r, rest));
-    expect(checkSpec("Lanternfall", 1, objects, SETTINGS)).toEqual(checkSpec("Lanternfall", 1, withoutFriction, SETTINGS));
+    const frictionless = structuredClone(spec);
+    delete (frictionless.scenario.contact as { friction?: unknown }).friction;
+    for (const pair of frictionless.axes?.[0].pairs ?? []) {
+      delete pair.friction;
+      delete pair.rollingResistance;
+    }
+    expect(checkSpec("Lanternfall", 1, withoutFriction, SETTINGS)).toEqual(frictionless);
+
+    // A glancing cell of ice puck × loot chest (offset 0.6): the engine runs it with μ = √0.06 and
+    // the puck leaves spinning; the same cell of the frictionless check has no spin to report.
+    const axes = expandAxes(parsed.spec);
+    const glancing = cellRange(parsed.spec, axes, 0, cellCount(axes)).find((cell) => cell.axisValues[0] === "ice puck × loot chest" && cell.axisValues[2] === 0.6 && cell.axisValues[1] === 1);
+    expect(glancing?.scenario.contact.friction).toEqual({ coefficient: Math.sqrt(0.06), stiffnessRatio: 1 });
+    const run = simulate(glancing!.scenario);
+    expect(Math.abs(run.metrics.reboundSpinRadPerS as number)).toBeGreaterThan(0);
+    const plain = { ...glancing!.scenario, contact: { ...glancing!.scenario.contact, friction: undefined, rollingResistance: undefined } };
+    expect(simulate(plain).metrics.reboundSpinRadPerS).toBeUndefined();
+    expect(sweepMeasuresRotation(parsed.spec, axes)).toBe(true);
   });
 });
 

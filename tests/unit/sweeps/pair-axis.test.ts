@@ -53,6 +53,37 @@ describe("scene.pair", () => {
     ]);
     expect(bad([{ parameter: "scene.offsetFraction", values: [0], pairs }])).toEqual(["axes.0.pairs: pairs belong to a scene.pair axis only"]);
   });
+
+  it("sets each cell's friction coefficient and rolling resistance from its pair, keeping the scenario's other friction settings", () => {
+    const input = spec([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: [{ ...pairs[0], friction: 0.5, rollingResistance: 0.01 }, { ...pairs[1], friction: 0, rollingResistance: 0 }] }]);
+    input.scenario.contact.friction = { coefficient: 0.3, stiffnessRatio: 1 };
+    const parsed = parseSweepSpec(input);
+    expect(parsed.ok ? [] : parsed.issues).toEqual([]);
+    if (!parsed.ok) return;
+    const axes = expandAxes(parsed.spec);
+    expect(cellAt(parsed.spec, axes, 0).scenario.contact).toMatchObject({ friction: { coefficient: 0.5, stiffnessRatio: 1 }, rollingResistance: 0.01 });
+    expect(cellAt(parsed.spec, axes, 1).scenario.contact).toMatchObject({ friction: { coefficient: 0, stiffnessRatio: 1 }, rollingResistance: 0 });
+    expect(parsed.spec.scenario.contact.friction).toEqual({ coefficient: 0.3, stiffnessRatio: 1 });
+  });
+
+  it("refuses per-pair friction out of range, given for some pairs only, or swept by another axis as well", () => {
+    const bad = (axes: SweepSpecInput["axes"]) => {
+      const parsed = parseSweepSpec(spec(axes));
+      return parsed.ok ? [] : parsed.issues.map((issue) => issue.field);
+    };
+    const withFriction = (a: number | undefined, b: number | undefined) => [{ ...pairs[0], friction: a }, { ...pairs[1], friction: b }];
+    expect(bad([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: withFriction(-0.1, 0.2) }])).toEqual(["axes.0.pairs.0.friction"]);
+    expect(bad([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: withFriction(0.2, Number.NaN) }])).toEqual(["axes.0.pairs.1.friction"]);
+    expect(bad([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: withFriction(0.2, 11) }])).toEqual(["axes.0.pairs.1.friction"]);
+    const some = parseSweepSpec(spec([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: withFriction(0.2, undefined) }]));
+    expect(some.ok ? [] : some.issues.map((issue) => `${issue.field}: ${issue.message}`)).toEqual(["axes.0.pairs: give a friction for every pair or for none"]);
+    const swept = spec([{ parameter: "scene.pair", values: pairs.map((p) => p.name), pairs: withFriction(0.2, 0.4) }, { parameter: "contact.friction.coefficient", values: [0.1, 0.2] }]);
+    swept.scenario.contact.friction = { coefficient: 0.1 };
+    const clash = parseSweepSpec(swept);
+    expect(clash.ok ? [] : clash.issues.map((issue) => `${issue.field}: ${issue.message}`)).toEqual([
+      "axes.1.parameter: contact.friction.coefficient is set per pair by the scene.pair axis (axes.0): it cannot be swept as well",
+    ]);
+  });
 });
 
 describe("scenario fields a form may offer", () => {

@@ -8,7 +8,7 @@ import fc from "fast-check";
 import { VERDICTS } from "../../../lib/physics/types";
 import { runChunkTask, unpackResults } from "../../../lib/sweeps/chunk-task";
 import { axisValuesAt, cellCount, expandAxes } from "../../../lib/sweeps/grid";
-import { METRIC_KEYS, resultsToJson } from "../../../lib/sweeps/results";
+import { STORED_METRIC_KEYS, resultsToJson } from "../../../lib/sweeps/results";
 import { resultsHeader } from "../../../lib/sweeps/run";
 import { SPEC_LIMITS, parseSweepSpec } from "../../../lib/sweeps/spec";
 import { clone, type Draft } from "./fixtures";
@@ -110,7 +110,7 @@ describe("generated specs", () => {
         for (const result of results) {
           expect(VERDICTS).toContain(result.verdict);
           expect(result.reason.length).toBeGreaterThan(0);
-          expect(Object.keys(result.metrics)).toEqual([...METRIC_KEYS]);
+          expect(Object.keys(result.metrics)).toEqual([...STORED_METRIC_KEYS]);
         }
       }),
       { seed: 4242, numRuns: 40 },
