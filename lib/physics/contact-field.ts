@@ -97,6 +97,8 @@ const EMPTY_POSITIONS = new Float64Array(0);
 export const NEIGHBOUR_LIST_SKIN_FRACTION = 0.25;
 /** Relative slack on the list's reach, far above the rounding of the distances compared with it. */
 const NEIGHBOUR_LIST_SLACK = 1e-9;
+/** Relative slack of the wall band's clearance test, far above the rounding of a distance to a wall. */
+const WALL_BAND_SLACK = 1e-9;
 
 export class ContactField implements ForceField {
   model = 0;
@@ -110,6 +112,12 @@ export class ContactField implements ForceField {
   nearMissDepthFraction = 0;
   /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
   frictional = false;
+  /**
+   * Linear law without a tangential one: pairs and walls go through pairLinear / wallsLinear, the
+   * same arithmetic as pair / walls with normalForce and the damping inlined (no double arguments
+   * to box on the heap, no calls in the per-contact path).
+   */
+  private linearFrictionless = false;
   readonly tangential = new TangentialContacts();
   private readonly wallNormalX: number[] = [];
   private readonly wallNormalY: number[] = [];
@@ -188,6 +196,15 @@ export class ContactField implements ForceField {
   /** Pairs closer than this (m) at the build are listed; ≤ 0: no valid list. */
   private listReachM = 0;
   private listBodies: Bodies | null = null;
+  /**
+   * Wall band of the neighbour list: the bodies (ascending) that were within twice the list's
+   * drift allowance of a wall at the build. While the list is valid no other body can reach a wall,
+   * so walls() skips them: for them it would find no overlap and do nothing.
+   */
+  private wallBand: Int32Array = EMPTY_INDICES;
+  private wallBandCount = 0;
+  /** Set by each pass: the list was valid for this state and every position is finite. */
+  private wallBandUsable = false;
 
   constructor(parameters: ContactFieldParameters) {
     this.configure(parameters);
@@ -209,6 +226,7 @@ export class ContactField implements ForceField {
     this.nearMissDepthFraction = parameters.nearMissDepthFraction;
     const tangential = parameters.tangential ?? NO_TANGENTIAL;
     this.frictional = tangentialActive(tangential);
+    this.linearFrictionless = this.model === CONTACT_LINEAR && !this.frictional;
     this.tangential.configure(tangential);
     this.wallCount = parameters.walls.length;
     this.wallNormalX.length = 0;
@@ -272,6 +290,7 @@ export class ContactField implements ForceField {
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
     this.firstContactSeenThisPass = false;
+    this.wallBandUsable = false;
     if (this.frictional) this.tangential.beginPass(bodies);
 
     // Pairs farther apart than this cannot touch now nor have skipped a contact during the step.
@@ -290,7 +309,10 @@ export class ContactField implements ForceField {
 
     if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByNeighbourList(bodies, cutoffM, maxRadius);
     else this.pairsAllPairs(bodies);
-    if (this.wallCount > 0) this.walls(bodies);
+    if (this.wallCount > 0) {
+      if (this.linearFrictionless) this.wallsLinear(bodies);
+      else this.walls(bodies);
+    }
     if (this.frictional) this.contactPotentialJ += this.tangential.springPotentialJ;
 
     if (this.firstContactPhase === FIRST_CONTACT_ACTIVE && !this.firstContactSeenThisPass) {
@@ -300,6 +322,12 @@ export class ContactField implements ForceField {
 
   private pairsAllPairs(bodies: Bodies): void {
     const count = bodies.count;
+    if (this.linearFrictionless) {
+      for (let i = 0; i < count; i++) {
+        for (let j = i + 1; j < count; j++) this.pairLinear(bodies, i, j);
+      }
+      return;
+    }
     for (let i = 0; i < count; i++) {
       for (let j = i + 1; j < count; j++) this.pair(bodies, i, j);
     }
@@ -318,22 +346,36 @@ export class ContactField implements ForceField {
     if (valid) {
       const { listX, listY } = this;
       let driftSquared = 0;
+      // Sum of the squared drifts: finite exactly when every position is (the wall band needs that).
+      let driftSum = 0;
       for (let i = 0; i < count; i++) {
         const dx = x[i] - listX[i];
         const dy = y[i] - listY[i];
         const squared = dx * dx + dy * dy;
         // Written so that NaN propagates: a non-finite drift invalidates the list.
         if (!(squared <= driftSquared)) driftSquared = squared;
+        driftSum += squared;
       }
       valid = cutoffM + 2 * Math.sqrt(driftSquared) <= this.listReachM * (1 - NEIGHBOUR_LIST_SLACK);
+      this.wallBandUsable = valid && driftSum < Infinity;
     }
-    if (!valid && !this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius)) {
-      // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
-      this.listReachM = 0;
-      this.pairsByGrid(bodies, cutoffM);
-      return;
+    if (!valid) {
+      if (!this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius, maxRadius)) {
+        // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
+        this.listReachM = 0;
+        this.pairsByGrid(bodies, cutoffM);
+        return;
+      }
+      this.wallBandUsable = true;
     }
     const { listStart, listPartners } = this;
+    if (this.linearFrictionless) {
+      for (let i = 0; i < count; i++) {
+        const end = listStart[i + 1];
+        for (let slot = listStart[i]; slot < end; slot++) this.pairLinear(bodies, i, listPartners[slot]);
+      }
+      return;
+    }
     for (let i = 0; i < count; i++) {
       const end = listStart[i + 1];
       for (let slot = listStart[i]; slot < end; slot++) this.pair(bodies, i, listPartners[slot]);
@@ -341,7 +383,7 @@ export class ContactField implements ForceField {
   }
 
   /** Lists every pair closer than `reachM`, in (i, j) order; false (no list) when a position is not finite. */
-  private buildNeighbourList(bodies: Bodies, reachM: number): boolean {
+  private buildNeighbourList(bodies: Bodies, reachM: number, maxRadius: number): boolean {
     const { count, x, y } = bodies;
     let minX = Infinity;
     let minY = Infinity;
@@ -437,7 +479,37 @@ export class ContactField implements ForceField {
     listStart[count] = listed;
     this.listReachM = reachM;
     this.listBodies = bodies;
+    this.buildWallBand(bodies, reachM - 2 * maxRadius);
     return true;
+  }
+
+  /**
+   * The wall band for a list of reach 2·r_max + `allowanceM`: while the list is valid every body
+   * stays within allowanceM / 2 of where it was at the build (cutoff ≥ 2·r_max, and
+   * cutoff + 2·drift ≤ reach), so a body whose surface cleared every wall by more than allowanceM
+   * cannot touch one. The comparison keeps a relative margin far above the rounding of the
+   * distance to a wall (and takes a body in whenever it is not sure, NaN included).
+   */
+  private buildWallBand(bodies: Bodies, allowanceM: number): void {
+    const { count, x, y, radius } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
+    if (this.wallBand.length < count) this.wallBand = new Int32Array(count);
+    const wallBand = this.wallBand;
+    let banded = 0;
+    for (let i = 0; i < count; i++) {
+      for (let w = 0; w < wallCount; w++) {
+        const alongX = wallNormalX[w] * x[i];
+        const alongY = wallNormalY[w] * y[i];
+        const offset = wallOffset[w];
+        const clearance = alongX + alongY - offset - radius[i];
+        const margin = allowanceM + WALL_BAND_SLACK * (Math.abs(alongX) + Math.abs(alongY) + Math.abs(offset) + radius[i]);
+        if (!(clearance > margin)) {
+          wallBand[banded++] = i;
+          break;
+        }
+      }
+    }
+    this.wallBandCount = banded;
   }
 
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {
@@ -516,7 +588,8 @@ export class ContactField implements ForceField {
           }
         }
       }
-      for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
+      if (this.linearFrictionless) for (let c = 0; c < candidateCount; c++) this.pairLinear(bodies, i, candidates[c]);
+      else for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
     }
   }
 
@@ -587,6 +660,102 @@ export class ContactField implements ForceField {
   }
 
   /**
+   * pair() for the linear law without friction: the same operations in the same order, with
+   * checkSkippedContact, normalForce and dampingCoefficient written out (their memo included) and
+   * trackFirstContact called only when it can record something. Results are byte-identical.
+   */
+  private pairLinear(bodies: Bodies, i: number, j: number): void {
+    const { x, y, previousX, previousY, radius } = bodies;
+    const dx = x[j] - x[i];
+    const dy = y[j] - y[i];
+    const distanceSquared = dx * dx + dy * dy;
+    const contactDistance = radius[i] + radius[j];
+    const contactDistanceSquared = contactDistance * contactDistance;
+    if (distanceSquared >= contactDistanceSquared) {
+      if (distanceSquared >= this.cutoffSquaredM2) return;
+      // checkSkippedContact.
+      const previousDx = previousX[j] - previousX[i];
+      const previousDy = previousY[j] - previousY[i];
+      if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return;
+      const stepX = dx - previousDx;
+      const stepY = dy - previousDy;
+      const stepSquared = stepX * stepX + stepY * stepY;
+      if (stepSquared === 0) return;
+      const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+      if (along <= 0 || along >= 1) return;
+      const closestX = previousDx + along * stepX;
+      const closestY = previousDy + along * stepY;
+      const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
+      const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
+      if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+      return;
+    }
+    const previousDx = previousX[j] - previousX[i];
+    const previousDy = previousY[j] - previousY[i];
+    const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
+    const distance = Math.sqrt(distanceSquared);
+    let normalX: number;
+    let normalY: number;
+    if (distance > 0) {
+      normalX = dx / distance;
+      normalY = dy / distance;
+    } else {
+      const previousDistance = Math.sqrt(previousDistanceSquared);
+      normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+      normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    }
+    if (previousDistanceSquared >= contactDistanceSquared) {
+      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radius[i], radius[j], contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+        this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+      }
+    } else if (dx * previousDx + dy * previousDy <= 0) {
+      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    }
+    const overlap = contactDistance - distance;
+    const { vx, vy, inverseMass } = bodies;
+    const overlapRate = (vx[i] - vx[j]) * normalX + (vy[i] - vy[j]) * normalY;
+    const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
+    // normalForce, linear.
+    const k = this.stiffness;
+    this.lastStiffnessNPerM = k;
+    if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+    let damping = 0;
+    if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+    else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
+      if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
+        this.memoReducedMass = reducedMass;
+        this.memoStiffness = k;
+        this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+      }
+      damping = this.memoDamping;
+    }
+    const force = k * overlap + damping * overlapRate;
+    const omegaSquared = k / reducedMass;
+    if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+    const pushX = force > 0 ? force * normalX : 0;
+    const pushY = force > 0 ? force * normalY : 0;
+    const { fx, fy } = bodies;
+    fx[i] -= pushX;
+    fy[i] -= pushY;
+    fx[j] += pushX;
+    fy[j] += pushY;
+    this.overlappingContacts++;
+    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
+    const fraction = overlap / smallerRadius;
+    if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
+    if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+    // One call site, reached only when the first contact can change: the compiler boxes the call's
+    // numbers where it is taken, not for every contact (two call sites had it box them up front).
+    const phase = this.firstContactPhase;
+    const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+      const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+      this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
+    }
+  }
+
+  /**
    * A skipped contact: neither end of the step overlaps, but the straight line between them comes
    * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
    * The tolerance keeps near misses out: in a resting pile neighbours sit nanometres apart, and the
@@ -629,9 +798,12 @@ export class ContactField implements ForceField {
   }
 
   private walls(bodies: Bodies): void {
-    const { count, x, y, vx, vy, fx, fy, radius, mass } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
-    for (let i = 0; i < count; i++) {
+    const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
+    const banded = this.wallBandUsable;
+    const count = banded ? this.wallBandCount : bodies.count;
+    for (let b = 0; b < count; b++) {
+      const i = banded ? wallBand[b] : b;
       for (let w = 0; w < wallCount; w++) {
         const normalX = wallNormalX[w];
         const normalY = wallNormalY[w];
@@ -661,6 +833,59 @@ export class ContactField implements ForceField {
         if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
           const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
           this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+        }
+      }
+    }
+  }
+
+  /** walls() for the linear law without friction (see pairLinear): the same operations in the same order. */
+  private wallsLinear(bodies: Bodies): void {
+    const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
+    const k = this.stiffness;
+    const banded = this.wallBandUsable;
+    const count = banded ? this.wallBandCount : bodies.count;
+    for (let b = 0; b < count; b++) {
+      const i = banded ? wallBand[b] : b;
+      for (let w = 0; w < wallCount; w++) {
+        const normalX = wallNormalX[w];
+        const normalY = wallNormalY[w];
+        const centreDistance = normalX * x[i] + normalY * y[i] - wallOffset[w];
+        const overlap = radius[i] - centreDistance;
+        if (overlap <= 0) continue;
+        if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
+        const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
+        const reducedMass = mass[i];
+        // normalForce, linear.
+        this.lastStiffnessNPerM = k;
+        if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+        let damping = 0;
+        if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+        else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
+          if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
+            this.memoReducedMass = reducedMass;
+            this.memoStiffness = k;
+            this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+          }
+          damping = this.memoDamping;
+        }
+        const force = k * overlap + damping * overlapRate;
+        const omegaSquared = k / reducedMass;
+        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+        if (force > 0) {
+          fx[i] += force * normalX;
+          fy[i] += force * normalY;
+          this.wallForceXN += force * normalX;
+          this.wallForceYN += force * normalY;
+        }
+        this.overlappingContacts++;
+        const fraction = overlap / radius[i];
+        if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
+        if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
+          const previousOverlap = radius[i] - (normalX * previousX[i] + normalY * previousY[i] - wallOffset[w]);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }
