@@ -113,7 +113,7 @@ export class ContactField implements ForceField {
   /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
   frictional = false;
   /**
-   * Linear law without a tangential one: pairs and walls go through pairLinear / wallsLinear, the
+   * Linear law without a tangential one: pairs and walls go through linearPairRows / wallsLinear, the
    * same arithmetic as pair / walls with normalForce and the damping inlined (no double arguments
    * to box on the heap, no calls in the per-contact path).
    */
@@ -323,9 +323,7 @@ export class ContactField implements ForceField {
   private pairsAllPairs(bodies: Bodies): void {
     const count = bodies.count;
     if (this.linearFrictionless) {
-      for (let i = 0; i < count; i++) {
-        for (let j = i + 1; j < count; j++) this.pairLinear(bodies, i, j);
-      }
+      this.linearPairRows(bodies, false);
       return;
     }
     for (let i = 0; i < count; i++) {
@@ -370,10 +368,7 @@ export class ContactField implements ForceField {
     }
     const { listStart, listPartners } = this;
     if (this.linearFrictionless) {
-      for (let i = 0; i < count; i++) {
-        const end = listStart[i + 1];
-        for (let slot = listStart[i]; slot < end; slot++) this.pairLinear(bodies, i, listPartners[slot]);
-      }
+      this.linearPairRows(bodies, true);
       return;
     }
     for (let i = 0; i < count; i++) {
@@ -588,8 +583,7 @@ export class ContactField implements ForceField {
           }
         }
       }
-      if (this.linearFrictionless) for (let c = 0; c < candidateCount; c++) this.pairLinear(bodies, i, candidates[c]);
-      else for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
+      for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
     }
   }
 
@@ -660,101 +654,159 @@ export class ContactField implements ForceField {
   }
 
   /**
-   * pair() for the linear law without friction: the same operations in the same order, with
-   * checkSkippedContact, normalForce and dampingCoefficient written out (their memo included) and
-   * trackFirstContact called only when it can record something. Results are byte-identical.
+   * pair() over every pair of the neighbour list (`listed`) or every pair (i < j), for the linear
+   * law without friction: the same operations in the same order as pair() for each pair, with
+   * checkSkippedContact, normalForce and dampingCoefficient written out, body i's values and force
+   * held in locals across its row (no other pair of the row touches them), the pass's sums and
+   * maxima in locals, and trackFirstContact called only when it can record something. Results are
+   * byte-identical to pair()'s.
    */
-  private pairLinear(bodies: Bodies, i: number, j: number): void {
-    const { x, y, previousX, previousY, radius } = bodies;
-    const dx = x[j] - x[i];
-    const dy = y[j] - y[i];
-    const distanceSquared = dx * dx + dy * dy;
-    const contactDistance = radius[i] + radius[j];
-    const contactDistanceSquared = contactDistance * contactDistance;
-    if (distanceSquared >= contactDistanceSquared) {
-      if (distanceSquared >= this.cutoffSquaredM2) return;
-      // checkSkippedContact.
-      const previousDx = previousX[j] - previousX[i];
-      const previousDy = previousY[j] - previousY[i];
-      if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return;
-      const stepX = dx - previousDx;
-      const stepY = dy - previousDy;
-      const stepSquared = stepX * stepX + stepY * stepY;
-      if (stepSquared === 0) return;
-      const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
-      if (along <= 0 || along >= 1) return;
-      const closestX = previousDx + along * stepX;
-      const closestY = previousDy + along * stepY;
-      const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
-      const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
-      if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
-      return;
-    }
-    const previousDx = previousX[j] - previousX[i];
-    const previousDy = previousY[j] - previousY[i];
-    const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
-    const distance = Math.sqrt(distanceSquared);
-    let normalX: number;
-    let normalY: number;
-    if (distance > 0) {
-      normalX = dx / distance;
-      normalY = dy / distance;
-    } else {
-      const previousDistance = Math.sqrt(previousDistanceSquared);
-      normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
-      normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
-      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
-    }
-    if (previousDistanceSquared >= contactDistanceSquared) {
-      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radius[i], radius[j], contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
-        this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
-      }
-    } else if (dx * previousDx + dy * previousDy <= 0) {
-      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
-    }
-    const overlap = contactDistance - distance;
-    const { vx, vy, inverseMass } = bodies;
-    const overlapRate = (vx[i] - vx[j]) * normalX + (vy[i] - vy[j]) * normalY;
-    const reducedMass = 1 / (inverseMass[i] + inverseMass[j]);
-    // normalForce, linear.
+  private linearPairRows(bodies: Bodies, listed: boolean): void {
+    const { count, x, y, vx, vy, fx, fy, previousX, previousY, radius, inverseMass } = bodies;
+    const { listStart, listPartners } = this;
     const k = this.stiffness;
-    this.lastStiffnessNPerM = k;
-    if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
-    let damping = 0;
-    if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
-    else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
-      if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
-        this.memoReducedMass = reducedMass;
-        this.memoStiffness = k;
-        this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+    const dampingMode = this.dampingMode;
+    const dampingValue = this.dampingValue;
+    const cutoffSquared = this.cutoffSquaredM2;
+    const nearMissDepthFraction = this.nearMissDepthFraction;
+    let contactPotentialJ = this.contactPotentialJ;
+    let overlappingContacts = this.overlappingContacts;
+    let maxOverlapFraction = this.maxOverlapFraction;
+    let maxOverlapM = this.maxOverlapM;
+    let maxOmegaSquared = this.maxOmegaSquared;
+    // Values that repeat from contact to contact, remembered (each is a function of the inputs it is
+    // remembered for, so reusing it gives the same bits): the reduced mass and K/m_eff for a sum of
+    // inverse masses (not for a zero sum, where ±0 would give ±Infinity), dampingCoefficient's c for
+    // a reduced mass.
+    let memoInverseMassSum = NaN;
+    let reducedMass = NaN;
+    let omegaSquared = NaN;
+    let memoReducedMass = NaN;
+    let memoDamping = 0;
+    // The largest overlap whose fraction of `memoSmallerRadius` has been folded into the maximum:
+    // overlap / r is monotone in the overlap for r > 0, so a smaller overlap cannot raise it.
+    let memoSmallerRadius = NaN;
+    let memoFoldedOverlap = NaN;
+    for (let i = 0; i < count; i++) {
+      const rowEnd = listed ? listStart[i + 1] : count;
+      let slot = listed ? listStart[i] : i + 1;
+      if (slot >= rowEnd) continue;
+      const xi = x[i];
+      const yi = y[i];
+      const previousXi = previousX[i];
+      const previousYi = previousY[i];
+      const radiusI = radius[i];
+      const inverseMassI = inverseMass[i];
+      const vxi = vx[i];
+      const vyi = vy[i];
+      let fxi = fx[i];
+      let fyi = fy[i];
+      for (; slot < rowEnd; slot++) {
+        const j = listed ? listPartners[slot] : slot;
+        const dx = x[j] - xi;
+        const dy = y[j] - yi;
+        const distanceSquared = dx * dx + dy * dy;
+        const radiusJ = radius[j];
+        const contactDistance = radiusI + radiusJ;
+        const contactDistanceSquared = contactDistance * contactDistance;
+        if (distanceSquared >= contactDistanceSquared) {
+          if (distanceSquared >= cutoffSquared) continue;
+          // checkSkippedContact.
+          const previousDx = previousX[j] - previousXi;
+          const previousDy = previousY[j] - previousYi;
+          if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) continue;
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          if (stepSquared === 0) continue;
+          const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+          if (along <= 0 || along >= 1) continue;
+          const closestX = previousDx + along * stepX;
+          const closestY = previousDy + along * stepY;
+          const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
+          const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
+          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+          continue;
+        }
+        const previousDx = previousX[j] - previousXi;
+        const previousDy = previousY[j] - previousYi;
+        const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
+        const distance = Math.sqrt(distanceSquared);
+        let normalX: number;
+        let normalY: number;
+        if (distance > 0) {
+          normalX = dx / distance;
+          normalY = dy / distance;
+        } else {
+          const previousDistance = Math.sqrt(previousDistanceSquared);
+          normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+          normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        }
+        const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+        if (isNewContact) {
+          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radiusI, radiusJ, contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+            this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+          }
+        } else if (dx * previousDx + dy * previousDy <= 0) {
+          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        }
+        const overlap = contactDistance - distance;
+        const overlapRate = (vxi - vx[j]) * normalX + (vyi - vy[j]) * normalY;
+        const inverseMassSum = inverseMassI + inverseMass[j];
+        if (!(inverseMassSum === memoInverseMassSum && inverseMassSum !== 0)) {
+          memoInverseMassSum = inverseMassSum;
+          reducedMass = 1 / inverseMassSum;
+          omegaSquared = k / reducedMass;
+        }
+        // normalForce, linear.
+        if (overlap > 0) contactPotentialJ += 0.5 * k * overlap * overlap;
+        let damping = 0;
+        if (dampingMode === DAMPING_COEFFICIENT) damping = dampingValue;
+        else if (dampingMode === DAMPING_DIMENSIONLESS) {
+          if (reducedMass !== memoReducedMass) {
+            memoReducedMass = reducedMass;
+            memoDamping = 2 * dampingValue * Math.sqrt(reducedMass * k);
+          }
+          damping = memoDamping;
+        }
+        const force = k * overlap + damping * overlapRate;
+        if (omegaSquared > maxOmegaSquared) maxOmegaSquared = omegaSquared;
+        const pushX = force > 0 ? force * normalX : 0;
+        const pushY = force > 0 ? force * normalY : 0;
+        fxi -= pushX;
+        fyi -= pushY;
+        fx[j] += pushX;
+        fy[j] += pushY;
+        overlappingContacts++;
+        const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
+        if (!(smallerRadius === memoSmallerRadius && smallerRadius > 0 && overlap <= memoFoldedOverlap)) {
+          const fraction = overlap / smallerRadius;
+          if (fraction > maxOverlapFraction) maxOverlapFraction = fraction;
+          if (smallerRadius !== memoSmallerRadius || overlap > memoFoldedOverlap || memoFoldedOverlap !== memoFoldedOverlap) {
+            memoSmallerRadius = smallerRadius;
+            memoFoldedOverlap = overlap;
+          }
+        }
+        if (overlap > maxOverlapM) maxOverlapM = overlap;
+        // One call site, reached only when the first contact can change: the compiler boxes the
+        // call's numbers where it is taken, not for every contact (two call sites had it box them
+        // up front).
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+          const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+          this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
+        }
       }
-      damping = this.memoDamping;
+      fx[i] = fxi;
+      fy[i] = fyi;
     }
-    const force = k * overlap + damping * overlapRate;
-    const omegaSquared = k / reducedMass;
-    if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
-    const pushX = force > 0 ? force * normalX : 0;
-    const pushY = force > 0 ? force * normalY : 0;
-    const { fx, fy } = bodies;
-    fx[i] -= pushX;
-    fy[i] -= pushY;
-    fx[j] += pushX;
-    fy[j] += pushY;
-    this.overlappingContacts++;
-    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
-    const fraction = overlap / smallerRadius;
-    if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
-    if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-    // One call site, reached only when the first contact can change: the compiler boxes the call's
-    // numbers where it is taken, not for every contact (two call sites had it box them up front).
-    const phase = this.firstContactPhase;
-    const isNewContact = previousDistanceSquared >= contactDistanceSquared;
-    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
-      const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
-      this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
-    }
+    this.contactPotentialJ = contactPotentialJ;
+    this.overlappingContacts = overlappingContacts;
+    this.maxOverlapFraction = maxOverlapFraction;
+    this.maxOverlapM = maxOverlapM;
+    this.maxOmegaSquared = maxOmegaSquared;
   }
-
   /**
    * A skipped contact: neither end of the step overlaps, but the straight line between them comes
    * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
@@ -838,7 +890,7 @@ export class ContactField implements ForceField {
     }
   }
 
-  /** walls() for the linear law without friction (see pairLinear): the same operations in the same order. */
+  /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
   private wallsLinear(bodies: Bodies): void {
     const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
     const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
