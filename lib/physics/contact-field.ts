@@ -275,10 +275,6 @@ export class ContactField implements ForceField {
   evaluate(bodies: Bodies): void {
     const { count, fx, fy, mass } = bodies;
     const gravity = this.gravityMPerS2;
-    for (let i = 0; i < count; i++) {
-      fx[i] = 0;
-      fy[i] = -mass[i] * gravity;
-    }
     this.contactPotentialJ = 0;
     this.overlappingContacts = 0;
     this.maxOverlapFraction = 0;
@@ -293,21 +289,41 @@ export class ContactField implements ForceField {
     this.wallBandUsable = false;
     if (this.frictional) this.tangential.beginPass(bodies);
 
-    // Pairs farther apart than this cannot touch now nor have skipped a contact during the step.
+    // One pass over the bodies: reset the forces to gravity, find the largest step displacement and
+    // radius (pairs farther apart than the cutoff cannot touch now nor have skipped a contact during
+    // the step) and, when there is a neighbour list to check, the largest drift since its build.
     const { x, y, previousX, previousY, radius } = bodies;
+    const grid = this.broadPhase === BROAD_PHASE_GRID && count > 1;
+    const checkList = grid && this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
+    const { listX, listY } = this;
     let maxDisplacementSquared = 0;
     let maxRadius = 0;
+    let driftSquared = 0;
+    // Sum of the squared drifts: finite exactly when every position is (the wall band needs that).
+    let driftSum = 0;
     for (let i = 0; i < count; i++) {
-      const dx = x[i] - previousX[i];
-      const dy = y[i] - previousY[i];
+      fx[i] = 0;
+      fy[i] = -mass[i] * gravity;
+      const xi = x[i];
+      const yi = y[i];
+      const dx = xi - previousX[i];
+      const dy = yi - previousY[i];
       const displacementSquared = dx * dx + dy * dy;
       if (displacementSquared > maxDisplacementSquared) maxDisplacementSquared = displacementSquared;
       if (radius[i] > maxRadius) maxRadius = radius[i];
+      if (checkList) {
+        const driftX = xi - listX[i];
+        const driftY = yi - listY[i];
+        const squared = driftX * driftX + driftY * driftY;
+        // Written so that NaN propagates: a non-finite drift invalidates the list.
+        if (!(squared <= driftSquared)) driftSquared = squared;
+        driftSum += squared;
+      }
     }
     const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
     this.cutoffSquaredM2 = cutoffM * cutoffM;
 
-    if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByNeighbourList(bodies, cutoffM, maxRadius);
+    if (grid) this.pairsByNeighbourList(bodies, cutoffM, maxRadius, checkList, driftSquared, driftSum);
     else this.pairsAllPairs(bodies);
     if (this.wallCount > 0) {
       if (this.linearFrictionless) this.wallsLinear(bodies);
@@ -338,22 +354,10 @@ export class ContactField implements ForceField {
    * Pairs beyond the cutoff do nothing in `pair`, and the list keeps the canonical (i, j) order,
    * so the result is byte-identical to the grid's every step.
    */
-  private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number): void {
-    const { count, x, y } = bodies;
-    let valid = this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
+  private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number, listed: boolean, driftSquared: number, driftSum: number): void {
+    const count = bodies.count;
+    let valid = listed;
     if (valid) {
-      const { listX, listY } = this;
-      let driftSquared = 0;
-      // Sum of the squared drifts: finite exactly when every position is (the wall band needs that).
-      let driftSum = 0;
-      for (let i = 0; i < count; i++) {
-        const dx = x[i] - listX[i];
-        const dy = y[i] - listY[i];
-        const squared = dx * dx + dy * dy;
-        // Written so that NaN propagates: a non-finite drift invalidates the list.
-        if (!(squared <= driftSquared)) driftSquared = squared;
-        driftSum += squared;
-      }
       valid = cutoffM + 2 * Math.sqrt(driftSquared) <= this.listReachM * (1 - NEIGHBOUR_LIST_SLACK);
       this.wallBandUsable = valid && driftSum < Infinity;
     }
