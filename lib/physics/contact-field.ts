@@ -650,9 +650,11 @@ export class ContactField implements ForceField {
     const fraction = overlap / smallerRadius;
     if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
     if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-    if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
-      const isNewContact = previousDistanceSquared >= contactDistanceSquared;
-      const previousOverlap = isNewContact && this.firstContactPhase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+    // Called only when the first contact can change (see linearPairRows): no boxed numbers per contact.
+    const phase = this.firstContactPhase;
+    const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+      const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
       this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
     }
   }
@@ -886,9 +888,10 @@ export class ContactField implements ForceField {
         const fraction = overlap / radius[i];
         if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
         if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-        if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
           const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
-          this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }
