@@ -97,6 +97,8 @@ const EMPTY_POSITIONS = new Float64Array(0);
 export const NEIGHBOUR_LIST_SKIN_FRACTION = 0.25;
 /** Relative slack on the list's reach, far above the rounding of the distances compared with it. */
 const NEIGHBOUR_LIST_SLACK = 1e-9;
+/** Relative slack of the wall band's clearance test, far above the rounding of a distance to a wall. */
+const WALL_BAND_SLACK = 1e-9;
 
 export class ContactField implements ForceField {
   model = 0;
@@ -110,6 +112,12 @@ export class ContactField implements ForceField {
   nearMissDepthFraction = 0;
   /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
   frictional = false;
+  /**
+   * Linear law without a tangential one: pairs and walls go through linearPairRows / wallsLinear, the
+   * same arithmetic as pair / walls with normalForce and the damping inlined (no double arguments
+   * to box on the heap, no calls in the per-contact path).
+   */
+  private linearFrictionless = false;
   readonly tangential = new TangentialContacts();
   private readonly wallNormalX: number[] = [];
   private readonly wallNormalY: number[] = [];
@@ -188,6 +196,15 @@ export class ContactField implements ForceField {
   /** Pairs closer than this (m) at the build are listed; ≤ 0: no valid list. */
   private listReachM = 0;
   private listBodies: Bodies | null = null;
+  /**
+   * Wall band of the neighbour list: the bodies (ascending) that were within twice the list's
+   * drift allowance of a wall at the build. While the list is valid no other body can reach a wall,
+   * so walls() skips them: for them it would find no overlap and do nothing.
+   */
+  private wallBand: Int32Array = EMPTY_INDICES;
+  private wallBandCount = 0;
+  /** Set by each pass: the list was valid for this state and every position is finite. */
+  private wallBandUsable = false;
 
   constructor(parameters: ContactFieldParameters) {
     this.configure(parameters);
@@ -209,6 +226,7 @@ export class ContactField implements ForceField {
     this.nearMissDepthFraction = parameters.nearMissDepthFraction;
     const tangential = parameters.tangential ?? NO_TANGENTIAL;
     this.frictional = tangentialActive(tangential);
+    this.linearFrictionless = this.model === CONTACT_LINEAR && !this.frictional;
     this.tangential.configure(tangential);
     this.wallCount = parameters.walls.length;
     this.wallNormalX.length = 0;
@@ -257,10 +275,6 @@ export class ContactField implements ForceField {
   evaluate(bodies: Bodies): void {
     const { count, fx, fy, mass } = bodies;
     const gravity = this.gravityMPerS2;
-    for (let i = 0; i < count; i++) {
-      fx[i] = 0;
-      fy[i] = -mass[i] * gravity;
-    }
     this.contactPotentialJ = 0;
     this.overlappingContacts = 0;
     this.maxOverlapFraction = 0;
@@ -272,25 +286,49 @@ export class ContactField implements ForceField {
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
     this.firstContactSeenThisPass = false;
+    this.wallBandUsable = false;
     if (this.frictional) this.tangential.beginPass(bodies);
 
-    // Pairs farther apart than this cannot touch now nor have skipped a contact during the step.
+    // One pass over the bodies: reset the forces to gravity, find the largest step displacement and
+    // radius (pairs farther apart than the cutoff cannot touch now nor have skipped a contact during
+    // the step) and, when there is a neighbour list to check, the largest drift since its build.
     const { x, y, previousX, previousY, radius } = bodies;
+    const grid = this.broadPhase === BROAD_PHASE_GRID && count > 1;
+    const checkList = grid && this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
+    const { listX, listY } = this;
     let maxDisplacementSquared = 0;
     let maxRadius = 0;
+    let driftSquared = 0;
+    // Sum of the squared drifts: finite exactly when every position is (the wall band needs that).
+    let driftSum = 0;
     for (let i = 0; i < count; i++) {
-      const dx = x[i] - previousX[i];
-      const dy = y[i] - previousY[i];
+      fx[i] = 0;
+      fy[i] = -mass[i] * gravity;
+      const xi = x[i];
+      const yi = y[i];
+      const dx = xi - previousX[i];
+      const dy = yi - previousY[i];
       const displacementSquared = dx * dx + dy * dy;
       if (displacementSquared > maxDisplacementSquared) maxDisplacementSquared = displacementSquared;
       if (radius[i] > maxRadius) maxRadius = radius[i];
+      if (checkList) {
+        const driftX = xi - listX[i];
+        const driftY = yi - listY[i];
+        const squared = driftX * driftX + driftY * driftY;
+        // Written so that NaN propagates: a non-finite drift invalidates the list.
+        if (!(squared <= driftSquared)) driftSquared = squared;
+        driftSum += squared;
+      }
     }
     const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
     this.cutoffSquaredM2 = cutoffM * cutoffM;
 
-    if (this.broadPhase === BROAD_PHASE_GRID && count > 1) this.pairsByNeighbourList(bodies, cutoffM, maxRadius);
+    if (grid) this.pairsByNeighbourList(bodies, cutoffM, maxRadius, checkList, driftSquared, driftSum);
     else this.pairsAllPairs(bodies);
-    if (this.wallCount > 0) this.walls(bodies);
+    if (this.wallCount > 0) {
+      if (this.linearFrictionless) this.wallsLinear(bodies);
+      else this.walls(bodies);
+    }
     if (this.frictional) this.contactPotentialJ += this.tangential.springPotentialJ;
 
     if (this.firstContactPhase === FIRST_CONTACT_ACTIVE && !this.firstContactSeenThisPass) {
@@ -300,6 +338,10 @@ export class ContactField implements ForceField {
 
   private pairsAllPairs(bodies: Bodies): void {
     const count = bodies.count;
+    if (this.linearFrictionless) {
+      this.linearPairRows(bodies, false);
+      return;
+    }
     for (let i = 0; i < count; i++) {
       for (let j = i + 1; j < count; j++) this.pair(bodies, i, j);
     }
@@ -312,28 +354,27 @@ export class ContactField implements ForceField {
    * Pairs beyond the cutoff do nothing in `pair`, and the list keeps the canonical (i, j) order,
    * so the result is byte-identical to the grid's every step.
    */
-  private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number): void {
-    const { count, x, y } = bodies;
-    let valid = this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
+  private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number, listed: boolean, driftSquared: number, driftSum: number): void {
+    const count = bodies.count;
+    let valid = listed;
     if (valid) {
-      const { listX, listY } = this;
-      let driftSquared = 0;
-      for (let i = 0; i < count; i++) {
-        const dx = x[i] - listX[i];
-        const dy = y[i] - listY[i];
-        const squared = dx * dx + dy * dy;
-        // Written so that NaN propagates: a non-finite drift invalidates the list.
-        if (!(squared <= driftSquared)) driftSquared = squared;
-      }
       valid = cutoffM + 2 * Math.sqrt(driftSquared) <= this.listReachM * (1 - NEIGHBOUR_LIST_SLACK);
+      this.wallBandUsable = valid && driftSum < Infinity;
     }
-    if (!valid && !this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius)) {
-      // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
-      this.listReachM = 0;
-      this.pairsByGrid(bodies, cutoffM);
-      return;
+    if (!valid) {
+      if (!this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius, maxRadius)) {
+        // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
+        this.listReachM = 0;
+        this.pairsByGrid(bodies, cutoffM);
+        return;
+      }
+      this.wallBandUsable = true;
     }
     const { listStart, listPartners } = this;
+    if (this.linearFrictionless) {
+      this.linearPairRows(bodies, true);
+      return;
+    }
     for (let i = 0; i < count; i++) {
       const end = listStart[i + 1];
       for (let slot = listStart[i]; slot < end; slot++) this.pair(bodies, i, listPartners[slot]);
@@ -341,7 +382,7 @@ export class ContactField implements ForceField {
   }
 
   /** Lists every pair closer than `reachM`, in (i, j) order; false (no list) when a position is not finite. */
-  private buildNeighbourList(bodies: Bodies, reachM: number): boolean {
+  private buildNeighbourList(bodies: Bodies, reachM: number, maxRadius: number): boolean {
     const { count, x, y } = bodies;
     let minX = Infinity;
     let minY = Infinity;
@@ -437,7 +478,37 @@ export class ContactField implements ForceField {
     listStart[count] = listed;
     this.listReachM = reachM;
     this.listBodies = bodies;
+    this.buildWallBand(bodies, reachM - 2 * maxRadius);
     return true;
+  }
+
+  /**
+   * The wall band for a list of reach 2·r_max + `allowanceM`: while the list is valid every body
+   * stays within allowanceM / 2 of where it was at the build (cutoff ≥ 2·r_max, and
+   * cutoff + 2·drift ≤ reach), so a body whose surface cleared every wall by more than allowanceM
+   * cannot touch one. The comparison keeps a relative margin far above the rounding of the
+   * distance to a wall (and takes a body in whenever it is not sure, NaN included).
+   */
+  private buildWallBand(bodies: Bodies, allowanceM: number): void {
+    const { count, x, y, radius } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
+    if (this.wallBand.length < count) this.wallBand = new Int32Array(count);
+    const wallBand = this.wallBand;
+    let banded = 0;
+    for (let i = 0; i < count; i++) {
+      for (let w = 0; w < wallCount; w++) {
+        const alongX = wallNormalX[w] * x[i];
+        const alongY = wallNormalY[w] * y[i];
+        const offset = wallOffset[w];
+        const clearance = alongX + alongY - offset - radius[i];
+        const margin = allowanceM + WALL_BAND_SLACK * (Math.abs(alongX) + Math.abs(alongY) + Math.abs(offset) + radius[i]);
+        if (!(clearance > margin)) {
+          wallBand[banded++] = i;
+          break;
+        }
+      }
+    }
+    this.wallBandCount = banded;
   }
 
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {
@@ -579,13 +650,169 @@ export class ContactField implements ForceField {
     const fraction = overlap / smallerRadius;
     if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
     if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-    if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
-      const isNewContact = previousDistanceSquared >= contactDistanceSquared;
-      const previousOverlap = isNewContact && this.firstContactPhase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+    // Called only when the first contact can change (see linearPairRows): no boxed numbers per contact.
+    const phase = this.firstContactPhase;
+    const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+      const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
       this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
     }
   }
 
+  /**
+   * pair() over every pair of the neighbour list (`listed`) or every pair (i < j), for the linear
+   * law without friction: the same operations in the same order as pair() for each pair, with
+   * checkSkippedContact, normalForce and dampingCoefficient written out, body i's values and force
+   * held in locals across its row (no other pair of the row touches them), the pass's sums and
+   * maxima in locals, and trackFirstContact called only when it can record something. Results are
+   * byte-identical to pair()'s.
+   */
+  private linearPairRows(bodies: Bodies, listed: boolean): void {
+    const { count, x, y, vx, vy, fx, fy, previousX, previousY, radius, inverseMass } = bodies;
+    const { listStart, listPartners } = this;
+    const k = this.stiffness;
+    const dampingMode = this.dampingMode;
+    const dampingValue = this.dampingValue;
+    const cutoffSquared = this.cutoffSquaredM2;
+    const nearMissDepthFraction = this.nearMissDepthFraction;
+    let contactPotentialJ = this.contactPotentialJ;
+    let overlappingContacts = this.overlappingContacts;
+    let maxOverlapFraction = this.maxOverlapFraction;
+    let maxOverlapM = this.maxOverlapM;
+    let maxOmegaSquared = this.maxOmegaSquared;
+    // Values that repeat from contact to contact, remembered (each is a function of the inputs it is
+    // remembered for, so reusing it gives the same bits): the reduced mass and K/m_eff for a sum of
+    // inverse masses (not for a zero sum, where ±0 would give ±Infinity), dampingCoefficient's c for
+    // a reduced mass.
+    let memoInverseMassSum = NaN;
+    let reducedMass = NaN;
+    let omegaSquared = NaN;
+    let memoReducedMass = NaN;
+    let memoDamping = 0;
+    // The largest overlap whose fraction of `memoSmallerRadius` has been folded into the maximum:
+    // overlap / r is monotone in the overlap for r > 0, so a smaller overlap cannot raise it.
+    let memoSmallerRadius = NaN;
+    let memoFoldedOverlap = NaN;
+    for (let i = 0; i < count; i++) {
+      const rowEnd = listed ? listStart[i + 1] : count;
+      let slot = listed ? listStart[i] : i + 1;
+      if (slot >= rowEnd) continue;
+      const xi = x[i];
+      const yi = y[i];
+      const previousXi = previousX[i];
+      const previousYi = previousY[i];
+      const radiusI = radius[i];
+      const inverseMassI = inverseMass[i];
+      const vxi = vx[i];
+      const vyi = vy[i];
+      let fxi = fx[i];
+      let fyi = fy[i];
+      for (; slot < rowEnd; slot++) {
+        const j = listed ? listPartners[slot] : slot;
+        const dx = x[j] - xi;
+        const dy = y[j] - yi;
+        const distanceSquared = dx * dx + dy * dy;
+        const radiusJ = radius[j];
+        const contactDistance = radiusI + radiusJ;
+        const contactDistanceSquared = contactDistance * contactDistance;
+        if (distanceSquared >= contactDistanceSquared) {
+          if (distanceSquared >= cutoffSquared) continue;
+          // checkSkippedContact.
+          const previousDx = previousX[j] - previousXi;
+          const previousDy = previousY[j] - previousYi;
+          if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) continue;
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          if (stepSquared === 0) continue;
+          const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+          if (along <= 0 || along >= 1) continue;
+          const closestX = previousDx + along * stepX;
+          const closestY = previousDy + along * stepY;
+          const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
+          const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
+          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+          continue;
+        }
+        const previousDx = previousX[j] - previousXi;
+        const previousDy = previousY[j] - previousYi;
+        const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
+        const distance = Math.sqrt(distanceSquared);
+        let normalX: number;
+        let normalY: number;
+        if (distance > 0) {
+          normalX = dx / distance;
+          normalY = dy / distance;
+        } else {
+          const previousDistance = Math.sqrt(previousDistanceSquared);
+          normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+          normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        }
+        const isNewContact = previousDistanceSquared >= contactDistanceSquared;
+        if (isNewContact) {
+          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radiusI, radiusJ, contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+            this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
+          }
+        } else if (dx * previousDx + dy * previousDy <= 0) {
+          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        }
+        const overlap = contactDistance - distance;
+        const overlapRate = (vxi - vx[j]) * normalX + (vyi - vy[j]) * normalY;
+        const inverseMassSum = inverseMassI + inverseMass[j];
+        if (!(inverseMassSum === memoInverseMassSum && inverseMassSum !== 0)) {
+          memoInverseMassSum = inverseMassSum;
+          reducedMass = 1 / inverseMassSum;
+          omegaSquared = k / reducedMass;
+        }
+        // normalForce, linear.
+        if (overlap > 0) contactPotentialJ += 0.5 * k * overlap * overlap;
+        let damping = 0;
+        if (dampingMode === DAMPING_COEFFICIENT) damping = dampingValue;
+        else if (dampingMode === DAMPING_DIMENSIONLESS) {
+          if (reducedMass !== memoReducedMass) {
+            memoReducedMass = reducedMass;
+            memoDamping = 2 * dampingValue * Math.sqrt(reducedMass * k);
+          }
+          damping = memoDamping;
+        }
+        const force = k * overlap + damping * overlapRate;
+        if (omegaSquared > maxOmegaSquared) maxOmegaSquared = omegaSquared;
+        const pushX = force > 0 ? force * normalX : 0;
+        const pushY = force > 0 ? force * normalY : 0;
+        fxi -= pushX;
+        fyi -= pushY;
+        fx[j] += pushX;
+        fy[j] += pushY;
+        overlappingContacts++;
+        const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
+        if (!(smallerRadius === memoSmallerRadius && smallerRadius > 0 && overlap <= memoFoldedOverlap)) {
+          const fraction = overlap / smallerRadius;
+          if (fraction > maxOverlapFraction) maxOverlapFraction = fraction;
+          if (smallerRadius !== memoSmallerRadius || overlap > memoFoldedOverlap || memoFoldedOverlap !== memoFoldedOverlap) {
+            memoSmallerRadius = smallerRadius;
+            memoFoldedOverlap = overlap;
+          }
+        }
+        if (overlap > maxOverlapM) maxOverlapM = overlap;
+        // One call site, reached only when the first contact can change: the compiler boxes the
+        // call's numbers where it is taken, not for every contact (two call sites had it box them
+        // up front).
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+          const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
+          this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
+        }
+      }
+      fx[i] = fxi;
+      fy[i] = fyi;
+    }
+    this.contactPotentialJ = contactPotentialJ;
+    this.overlappingContacts = overlappingContacts;
+    this.maxOverlapFraction = maxOverlapFraction;
+    this.maxOverlapM = maxOverlapM;
+    this.maxOmegaSquared = maxOmegaSquared;
+  }
   /**
    * A skipped contact: neither end of the step overlaps, but the straight line between them comes
    * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
@@ -629,9 +856,12 @@ export class ContactField implements ForceField {
   }
 
   private walls(bodies: Bodies): void {
-    const { count, x, y, vx, vy, fx, fy, radius, mass } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
-    for (let i = 0; i < count; i++) {
+    const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
+    const banded = this.wallBandUsable;
+    const count = banded ? this.wallBandCount : bodies.count;
+    for (let b = 0; b < count; b++) {
+      const i = banded ? wallBand[b] : b;
       for (let w = 0; w < wallCount; w++) {
         const normalX = wallNormalX[w];
         const normalY = wallNormalY[w];
@@ -658,9 +888,63 @@ export class ContactField implements ForceField {
         const fraction = overlap / radius[i];
         if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
         if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-        if (this.firstContactPhase !== FIRST_CONTACT_ENDED) {
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
           const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
-          this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+        }
+      }
+    }
+  }
+
+  /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
+  private wallsLinear(bodies: Bodies): void {
+    const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
+    const k = this.stiffness;
+    const banded = this.wallBandUsable;
+    const count = banded ? this.wallBandCount : bodies.count;
+    for (let b = 0; b < count; b++) {
+      const i = banded ? wallBand[b] : b;
+      for (let w = 0; w < wallCount; w++) {
+        const normalX = wallNormalX[w];
+        const normalY = wallNormalY[w];
+        const centreDistance = normalX * x[i] + normalY * y[i] - wallOffset[w];
+        const overlap = radius[i] - centreDistance;
+        if (overlap <= 0) continue;
+        if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
+        const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
+        const reducedMass = mass[i];
+        // normalForce, linear.
+        this.lastStiffnessNPerM = k;
+        if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+        let damping = 0;
+        if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+        else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
+          if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
+            this.memoReducedMass = reducedMass;
+            this.memoStiffness = k;
+            this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+          }
+          damping = this.memoDamping;
+        }
+        const force = k * overlap + damping * overlapRate;
+        const omegaSquared = k / reducedMass;
+        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+        if (force > 0) {
+          fx[i] += force * normalX;
+          fy[i] += force * normalY;
+          this.wallForceXN += force * normalX;
+          this.wallForceYN += force * normalY;
+        }
+        this.overlappingContacts++;
+        const fraction = overlap / radius[i];
+        if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
+        if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+        const phase = this.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
+          const previousOverlap = radius[i] - (normalX * previousX[i] + normalY * previousY[i] - wallOffset[w]);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }

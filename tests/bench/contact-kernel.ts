@@ -8,8 +8,12 @@
  *  3. a settled pile in a box (N = 1,000 and 4,000, linear spring-dashpot, ω·dt = 0.2, gravity),
  *     body-steps/s, engine vs C peer (target ≥ 0.5×).
  * Rounds alternate the contenders; figures are medians. Each section first checks that engine
- * and peer end in the same state (bit for bit), so the comparison is of the same work.
+ * and peer end in the same state (bit for bit), so the comparison is of the same work. Beside the
+ * elapsed time, each contender's CPU time is measured too (the engine's is the whole process's,
+ * compiler and collector threads included): on a shared machine the elapsed times stretch with the
+ * load, and the load average is printed with each section.
  */
+import { availableParallelism, loadavg } from "node:os";
 import { simulate } from "../../lib/physics/index";
 import { totalSubsteps } from "../../lib/physics/simulate";
 import { buildScene } from "../../lib/physics/scenes";
@@ -22,7 +26,7 @@ import { pairGridScenarios, settledHopper, settledHopperScenario } from "./conta
 const PAIR_ROUNDS = 7;
 /** Passes over the pair grid per contender and round (a pass of the C peer takes milliseconds). */
 const PAIR_PASSES = 4;
-const BOX_ROUNDS = 5;
+const BOX_ROUNDS = 7;
 /** Untimed passes over the pair grid before the rounds (×10 for the far cheaper fast stepping). */
 const WARM_UP_PASSES = 3;
 const TARGET_PLAIN_VS_C = 0.5;
@@ -38,6 +42,20 @@ function secondsOf(fn: () => void): number {
   const started = process.hrtime.bigint();
   fn();
   return Number(process.hrtime.bigint() - started) / 1e9;
+}
+
+/** Elapsed and CPU seconds of fn (CPU: the whole process, every thread). */
+function timesOf(fn: () => void): { s: number; cpuS: number } {
+  const cpuStarted = process.cpuUsage();
+  const s = secondsOf(fn);
+  const cpu = process.cpuUsage(cpuStarted);
+  return { s, cpuS: (cpu.user + cpu.system) / 1e6 };
+}
+
+function loadNote(): string {
+  return `load average ${loadavg()
+    .map((value) => value.toFixed(1))
+    .join(" ")} on ${availableParallelism()} cores`;
 }
 
 /**
@@ -112,8 +130,10 @@ async function pairSections(binary: string | null): Promise<void> {
     console.log(`agreement: ${identical}/${scenarios.length} cells end in the C peer's state bit for bit`);
   }
   const engineS: number[] = [];
+  const engineCpuS: number[] = [];
   const fastS: number[] = [];
   const peerS: number[] = [];
+  const peerCpuS: number[] = [];
   const tightS: number[] = [];
   let sink = 0;
   // Warm-up, so that the medians time compiled code: on a loaded machine the JIT's background
@@ -128,22 +148,31 @@ async function pairSections(binary: string | null): Promise<void> {
   const passes = (fn: () => void) => () => {
     for (let pass = 0; pass < PAIR_PASSES; pass++) fn();
   };
+  console.log(`pair grid rounds start: ${loadNote()}`);
   for (let round = 0; round < PAIR_ROUNDS; round++) {
-    engineS.push(secondsOf(passes(() => scenarios.forEach((scenario) => simulate(scenario, { stepping: "plain" })))) / PAIR_PASSES);
-    if (binary) peerS.push(runPairPeer(binary, scenarios, steps, PAIR_PASSES).ns.reduce((sum, ns) => sum + ns, 0) / 1e9 / PAIR_PASSES);
+    const engine = timesOf(passes(() => scenarios.forEach((scenario) => simulate(scenario, { stepping: "plain" }))));
+    engineS.push(engine.s / PAIR_PASSES);
+    engineCpuS.push(engine.cpuS / PAIR_PASSES);
+    if (binary) {
+      const peer = runPairPeer(binary, scenarios, steps, PAIR_PASSES);
+      peerS.push(peer.ns.reduce((sum, ns) => sum + ns, 0) / 1e9 / PAIR_PASSES);
+      peerCpuS.push(peer.cpuNs.reduce((sum, ns) => sum + ns, 0) / 1e9 / PAIR_PASSES);
+    }
     tightS.push(secondsOf(passes(() => scenarios.forEach((scenario, cell) => (sink += tightPair(scenario, steps[cell]))))) / PAIR_PASSES);
     fastS.push(secondsOf(passes(() => scenarios.forEach((scenario) => simulate(scenario)))) / PAIR_PASSES);
   }
   const engineRate = totalSteps / median(engineS);
   const tightRate = totalSteps / median(tightS);
   const fastRate = countedSteps / median(fastS);
-  const rows: (string | number)[][] = [["pair grid, plain stepping", "median s", "steps/s", "× C peer", "target"]];
+  const rows: (string | number)[][] = [["pair grid, plain stepping", "median s", "steps/s", "× C peer", "target", "CPU s", "× C peer (CPU)"]];
   const peerRate = binary ? totalSteps / median(peerS) : NaN;
-  rows.push(["engine", median(engineS).toFixed(4), formatSi(engineRate), binary ? (engineRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_PLAIN_VS_C}`]);
-  if (binary) rows.push(["C peer", median(peerS).toFixed(4), formatSi(peerRate), "1.00", ""]);
-  rows.push(["tight JS", median(tightS).toFixed(4), formatSi(tightRate), binary ? (tightRate / peerRate).toFixed(2) : "-", ""]);
-  rows.push(["engine, fast stepping (counted steps)", median(fastS).toFixed(4), formatSi(fastRate), binary ? (fastRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_FAST_VS_C}`]);
+  const cpuRatio = binary ? (median(peerCpuS) / median(engineCpuS)).toFixed(2) : "-";
+  rows.push(["engine", median(engineS).toFixed(4), formatSi(engineRate), binary ? (engineRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_PLAIN_VS_C}`, median(engineCpuS).toFixed(4), cpuRatio]);
+  if (binary) rows.push(["C peer", median(peerS).toFixed(4), formatSi(peerRate), "1.00", "", median(peerCpuS).toFixed(4), "1.00"]);
+  rows.push(["tight JS", median(tightS).toFixed(4), formatSi(tightRate), binary ? (tightRate / peerRate).toFixed(2) : "-", "", "", ""]);
+  rows.push(["engine, fast stepping (counted steps)", median(fastS).toFixed(4), formatSi(fastRate), binary ? (fastRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_FAST_VS_C}`, "", ""]);
   console.log(table(rows));
+  console.log(`pair grid rounds end: ${loadNote()}`);
   // sink keeps the tight loop's result alive; printing it costs nothing.
   console.log(`engine plain / tight JS: ${(engineRate / tightRate).toFixed(2)} (tight JS checksum ${formatSi(sink)})`);
 }
@@ -166,18 +195,28 @@ async function boxSection(binary: string | null, count: number, steps: number): 
   }
   console.log(`settled pile N=${count}: settled in ${settledIn.toFixed(1)} s; ${steps} steps at ω·dt = 0.2, ${probe.metrics.contactSteps} with contact, max overlap ${(100 * probe.metrics.maxOverlapFraction).toFixed(2)}% of r${agreement}`);
   const engineS: number[] = [];
+  const engineCpuS: number[] = [];
   const peerS: number[] = [];
+  const peerCpuS: number[] = [];
+  console.log(`rounds start: ${loadNote()}`);
   for (let round = 0; round < BOX_ROUNDS; round++) {
-    engineS.push(secondsOf(() => simulate(scenario, { stepping: "plain" })));
-    if (binary) peerS.push(runBoxPeer(binary, scenario, steps, 1).ns[0] / 1e9);
+    const engine = timesOf(() => simulate(scenario, { stepping: "plain" }));
+    engineS.push(engine.s);
+    engineCpuS.push(engine.cpuS);
+    if (binary) {
+      const peer = runBoxPeer(binary, scenario, steps, 1);
+      peerS.push(peer.ns[0] / 1e9);
+      peerCpuS.push(peer.cpuNs[0] / 1e9);
+    }
   }
   const bodySteps = count * steps;
   const engineRate = bodySteps / median(engineS);
   const peerRate = binary ? bodySteps / median(peerS) : NaN;
-  const rows: (string | number)[][] = [[`settled pile N=${count}`, "median s", "body-steps/s", "× C peer", "target"]];
-  rows.push(["engine", median(engineS).toFixed(4), formatSi(engineRate), binary ? (engineRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_BOX_VS_C}`]);
-  if (binary) rows.push(["C peer", median(peerS).toFixed(4), formatSi(peerRate), "1.00", ""]);
+  const rows: (string | number)[][] = [[`settled pile N=${count}`, "median s", "body-steps/s", "× C peer", "target", "CPU s", "× C peer (CPU)"]];
+  rows.push(["engine", median(engineS).toFixed(4), formatSi(engineRate), binary ? (engineRate / peerRate).toFixed(2) : "-", `≥ ${TARGET_BOX_VS_C}`, median(engineCpuS).toFixed(4), binary ? (median(peerCpuS) / median(engineCpuS)).toFixed(2) : "-"]);
+  if (binary) rows.push(["C peer", median(peerS).toFixed(4), formatSi(peerRate), "1.00", "", median(peerCpuS).toFixed(4), "1.00"]);
   console.log(table(rows));
+  console.log(`rounds end: ${loadNote()}`);
 }
 
 export const contactKernel: BenchModule = {

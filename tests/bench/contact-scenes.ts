@@ -109,3 +109,38 @@ export function settledHopperScenario(snapshot: SnapshotScene, steps: number): S
 export function runPlain(scenario: Scenario): number {
   return simulate(scenario, { stepping: "plain" }).metrics.steps;
 }
+
+/**
+ * A tilted bin of mixed marbles (invented: the prize bin of "Penny Tide"): `across`² discs of
+ * radius 6–10 mm and densities that differ by up to 2×, one per cell of a jittered grid, with
+ * seeded velocities up to `speedMPerS`, in a square bin whose walls are turned by `tiltDeg`, under
+ * gravity. Mixed radii and masses keep every per-contact value changing from pair to pair; tilted
+ * walls have no zero in their normals.
+ */
+export function mixedBin(across: number, tiltDeg: number, speedMPerS: number, seed: number): SnapshotScene {
+  let state = seed >>> 0;
+  const uniform = () => {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    return state / 4294967296;
+  };
+  const cell = 0.024;
+  const side = across * cell;
+  const angle = (tiltDeg * Math.PI) / 180;
+  const cos = Math.cos(angle);
+  const sin = Math.sin(angle);
+  const bodies: SnapshotScene["bodies"] = [];
+  for (let row = 0; row < across; row++) {
+    for (let column = 0; column < across; column++) {
+      const radiusM = 0.006 + 0.004 * uniform();
+      const slack = cell / 2 - radiusM;
+      const u = (column + 0.5) * cell + (2 * uniform() - 1) * slack * 0.9;
+      const v = (row + 0.5) * cell + (2 * uniform() - 1) * slack * 0.9;
+      const heading = 2 * Math.PI * uniform();
+      const speed = speedMPerS * uniform();
+      bodies.push({ xM: cos * u - sin * v, yM: sin * u + cos * v, vxMPerS: speed * Math.cos(heading), vyMPerS: speed * Math.sin(heading), massKg: 2500 * Math.PI * radiusM * radiusM * 0.01 * (1 + uniform()), radiusM });
+    }
+  }
+  // The bin's sides in its own frame (u, v): u ≥ 0, u ≤ side, v ≥ 0, v ≤ 2·side (open headroom), turned.
+  const wall = (normalU: number, normalV: number, offsetM: number) => ({ normalX: cos * normalU - sin * normalV, normalY: sin * normalU + cos * normalV, offsetM });
+  return { kind: "snapshot", bodies, walls: [wall(1, 0, 0), wall(-1, 0, -side), wall(0, 1, 0), wall(0, -1, -2 * side)], gravityMPerS2: PILE_GRAVITY, speedScale: 1 };
+}

@@ -51,8 +51,10 @@ export function ccVersion(): string {
 }
 
 export interface PeerRun {
-  /** Compute time of each repeat (ns), I/O excluded. */
+  /** Compute time of each repeat (ns, elapsed), I/O excluded. */
   ns: number[];
+  /** CPU time of each repeat (ns). */
+  cpuNs: number[];
   /** Final state: per body x, y, vx, vy (pair mode: per cell, two bodies). */
   state: Float64Array;
 }
@@ -64,14 +66,13 @@ function runPeer(binary: string, input: Float64Array, repeats: number): PeerRun 
   writeFileSync(inputPath, new Uint8Array(input.buffer, input.byteOffset, input.byteLength));
   const run = spawnSync(binary, [inputPath, outputPath, String(repeats)], { encoding: "utf8", maxBuffer: 1 << 20 });
   if (run.status !== 0) throw new Error(`C peer failed: ${run.stderr}`);
-  const ns = run.stdout
-    .split("\n")
-    .filter((line) => line.startsWith("ns "))
-    .map((line) => Number(line.slice(3)));
+  const lines = run.stdout.split("\n");
+  const ns = lines.filter((line) => line.startsWith("ns ")).map((line) => Number(line.slice(3)));
+  const cpuNs = lines.filter((line) => line.startsWith("cpu ")).map((line) => Number(line.slice(4)));
   const bytes = readFileSync(outputPath);
   const state = new Float64Array(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength));
   rmSync(directory, { recursive: true, force: true });
-  return { ns, state };
+  return { ns, cpuNs, state };
 }
 
 /** Linear damping c of a scenario's contact for the reduced mass given (the engine's arithmetic). */

@@ -10,7 +10,7 @@ import { createHash } from "node:crypto";
 import { describe, expect, it } from "vitest";
 import { simulate } from "@/lib/physics";
 import type { RunOptions, Scenario } from "@/lib/physics/types";
-import { settledHopper, settledHopperScenario } from "../../bench/contact-scenes";
+import { mixedBin, settledHopper, settledHopperScenario } from "../../bench/contact-scenes";
 
 const TOLERANCES = { energyDriftRel: 0.01, maxOverlapFraction: 0.2, blowUpEnergyFactor: 1e6 };
 
@@ -56,13 +56,49 @@ const CASES: { name: string; scenario: () => Scenario; options?: RunOptions; dig
   { name: "settled pile of 300 coins (snapshot), 300 steps", scenario: () => settledHopperScenario(settledHopper(300, 0.1), 300), digest: "ff0bef06bc791d4d3c93e9c59aaba039f66b991ae324d81a689cdd96251037d9" },
 ];
 
+/** A tilted bin of mixed marbles (contact-scenes.ts), linear law, 0.3 s at dt = 0.2 ms unless overridden. */
+function bin(across: number, tiltDeg: number, speedMPerS: number, seed: number, overrides: Partial<Scenario> = {}): Scenario {
+  return {
+    scene: mixedBin(across, tiltDeg, speedMPerS, seed),
+    contact: { model: "linear", stiffness: 5e4, damping: { kind: "restitution", value: 0.3 } },
+    integrator: "symplectic-euler",
+    dtS: 2e-4,
+    substeps: 1,
+    durationS: 0.3,
+    tolerances: TOLERANCES,
+    verdictRules: 3,
+    seed: 1,
+    ...overrides,
+  };
+}
+
+/**
+ * Digests computed by the engine at commit 135ca19, before the linear pair pass, the wall band and
+ * the single pass over the bodies: mixed radii and masses (so no per-contact value repeats from
+ * pair to pair), walls whose normals have no zero, bodies settling onto them while the neighbour
+ * list is kept, all pairs, and a run that tunnels and explodes.
+ */
+const LATER_CASES: typeof CASES = [
+  { name: "tilted bin of 144 mixed marbles settling onto its walls (grid, neighbour list, wall band)", scenario: () => bin(12, 17, 0.5, 5), digest: "1719e65240dd8cd21d9a5449170a38410132b3ff27de254c21cf341254401aaa" },
+  {
+    name: "tilted bin of 49 mixed marbles, all pairs, damping coefficient, velocity Verlet",
+    scenario: () => bin(7, -23, 1, 6, { integrator: "velocity-verlet", contact: { model: "linear", stiffness: 2e4, damping: { kind: "coefficient", value: 0.8 } } }),
+    digest: "4701697f4e2b6ff18e50e1e452a56219af09e6ecbe1cf5ad95fd6fa93b9131bf",
+  },
+  {
+    name: "tilted bin of 100 fast marbles, undamped, explicit Euler at a coarse step (tunnels, explodes)",
+    scenario: () => bin(10, 31, 15, 7, { integrator: "explicit-euler", dtS: 1e-3, durationS: 0.5, contact: { model: "linear", stiffness: 3e4, damping: { kind: "none" } }, verdictRules: 2 }),
+    digest: "26ba64876e9a57e170ddf758d4d70805d605d700cd2b7bf35fec8823299bcc31",
+  },
+];
+
 function digestOf(scenario: Scenario, options: RunOptions = {}): string {
   const result = simulate(scenario, { stepping: "plain", maxSamples: 7, ...options });
   return createHash("sha256").update(JSON.stringify(result)).digest("hex");
 }
 
 describe("contact kernel: results byte-identical to the engine before the speed work", () => {
-  for (const testCase of CASES) {
+  for (const testCase of [...CASES, ...LATER_CASES]) {
     it(testCase.name, () => {
       expect(digestOf(testCase.scenario(), testCase.options)).toBe(testCase.digest);
     });
