@@ -189,7 +189,9 @@ describe.skipIf(!PG_URL)("worker processes on PostgreSQL", { timeout: 180_000 },
     // (its second attempt); each chunk is done and billed once (below).
     const heldIds = held.map((c) => c.id);
     const afterwards = await db.select().from(sweepChunks).where(inArray(sweepChunks.id, heldIds));
-    expect(afterwards.map((chunk) => [chunk.chunkIndex, chunk.status, chunk.attempts >= 2])).toEqual(held.map((chunk) => [chunk.chunkIndex, "done", true]));
+    // Compared by chunk index: neither query promises an order.
+    const byIndex = <T extends { chunkIndex: number }>(rows: T[]) => [...rows].sort((a, b) => a.chunkIndex - b.chunkIndex);
+    expect(byIndex(afterwards).map((chunk) => [chunk.chunkIndex, chunk.status, chunk.attempts >= 2])).toEqual(byIndex(held).map((chunk) => [chunk.chunkIndex, "done", true]));
 
     // Billed exactly once per chunk: one usage entry per chunk index, summing to the sweep's compute.
     const debits = await usageEntries(submitted.id);

@@ -6,8 +6,10 @@ import { readFileSync } from "node:fs";
 import { readdir } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { eq, sql } from "drizzle-orm";
+import { and, eq, inArray, sql } from "drizzle-orm";
+import { z } from "zod";
 import type { Db } from "@/db/client";
+import { queryRows, sqlDate } from "@/db/rows";
 import { sweepChunks, sweepResults } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { cancelSweep } from "@/lib/queue/cancel";
@@ -21,7 +23,18 @@ import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering";
 import { parseSweepSpec } from "@/lib/sweeps/spec";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { closeTestDb, useFreshDb } from "../../helpers/db";
-import { ballPitSpec, grant, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForSweep } from "./support";
+import { ballPitSpec, gatedPool, grant, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForCondition, waitForSweep } from "./support";
+
+/** The database's clock, which lease expiry is measured on. */
+async function databaseNowMs(): Promise<number> {
+  const [row] = await queryRows(db, sql`select now() as now`, z.object({ now: sqlDate }));
+  return row.now.getTime();
+}
+
+/** `rows` in the order of `order` (matched by id): neither query promises an order. */
+function byId<T extends { id: number }>(rows: T[], order: { id: number }[]): T[] {
+  return order.map((o) => rows.find((r) => r.id === o.id)!);
+}
 
 let db: Db;
 let pool: ChunkPool;
@@ -203,12 +216,23 @@ describe("queue runner", { timeout: 180_000 }, () => {
   it("two runners share the queue: each chunk is claimed once, leases are renewed while chunks run, one debit per chunk", async () => {
     const studio = await makeSweepStudio("Driftglass Devices");
     const sweep = await submitSweep(db, studio.studioId, { spec: ballPitSpec(12) }, { chunkOptions: { maxCellsPerChunk: 3 } });
-    // One thread, two runners: a claimed chunk waits for the thread while the other runs, so it holds
-    // its lease for about two chunk runs (several tenths of a second each), past the 0.6 s lease. Without
-    // renewal the other runner would take it over (attempts 2).
-    const runners = [0, 1].map(() => new QueueRunner({ db, pool, pollMs: 20, leaseMs: 600, concurrency: 1 }));
+    // The gate holds every claimed chunk before it runs, until the claims have outlived their first
+    // lease: only renewal keeps them. Without it the other runner would take a chunk over (attempts 2).
+    // The lease is 3 s (renewed every second), so a busy machine's pauses do not lapse it by themselves.
+    const gate = gatedPool(pool);
+    const runners = [0, 1].map(() => new QueueRunner({ db, pool: gate, pollMs: 20, leaseMs: 3_000, concurrency: 1 }));
     for (const runner of runners) await runner.start();
     try {
+      await waitForCondition("both runners to hold a chunk at the gate", () => gate.waiting >= 2);
+      const held = await db.select().from(sweepChunks).where(and(eq(sweepChunks.sweepId, sweep.id), eq(sweepChunks.status, "running")));
+      expect(new Set(held.map((c) => c.leaseOwner)).size).toBe(2);
+      const firstExpiry = Math.max(...held.map((c) => c.leaseExpiresAt!.getTime()));
+      // The database's clock decides when a lease lapses; wait until it is past every first expiry.
+      await waitForCondition("the first leases to pass their expiry", async () => (await databaseNowMs()) > firstExpiry + 500);
+      const still = await db.select().from(sweepChunks).where(inArray(sweepChunks.id, held.map((c) => c.id)));
+      expect(byId(still, held).map((c) => [c.status, c.attempts, c.leaseOwner])).toEqual(held.map((c) => ["running", 1, c.leaseOwner]));
+      expect(still.every((c) => c.leaseExpiresAt!.getTime() > firstExpiry)).toBe(true);
+      gate.open();
       const done = await waitForSweep(sweep.id, (s) => s.status === "done");
       const chunks = await db.select().from(sweepChunks).where(eq(sweepChunks.sweepId, sweep.id));
       expect(chunks.map((c) => [c.attempts, c.lastError])).toEqual(chunks.map(() => [1, null]));
@@ -216,6 +240,7 @@ describe("queue runner", { timeout: 180_000 }, () => {
       expect(debits.length).toBe(done.chunks);
       expect(-debits.reduce((sum, d) => sum + d.computeMs, 0)).toBe(chunks.reduce((sum, c) => sum + c.computeMs, 0));
     } finally {
+      gate.open();
       for (const runner of runners) await runner.stop();
     }
   });
