@@ -164,6 +164,58 @@ describe("oblique impact on a wall in gross sliding", () => {
   });
 });
 
+describe("oblique impact on a wall in the sticking regime", () => {
+  // Chung & Ooi 2011's tests 4 and 6 have a sticking range at small tangential-to-normal speed
+  // ratios, where the tangential spring, not Coulomb's limit, decides the rebound. For a disc the
+  // contact point's tangential motion has the effective mass m_t = m/(1 + m·r²/I) = m/3, so with
+  // k_t/k = 1/3 the tangential oscillator has the normal one's frequency, ω_t = ω_n. Undamped, the
+  // normal spring pushes for half a period, F_n = m·v_n·ω·sin ωt, and the sticking tangential spring
+  // turns the same half period, F_t = m_t·u·ω·sin ωt: their ratio stays u/(3·v_n), so below μ the
+  // contact sticks throughout and the contact point leaves with its tangential speed reversed
+  // (simple harmonic motion: Kleppner & Kolenkow 2014, "An Introduction to Mechanics", ch. 3). The
+  // impulse m_t·2u then gives v_t' = u/3 and ω'·r = 4u/3 (Newton's second law for translation and
+  // rotation, ibid. ch. 7). The engine's lever arm against a wall is the distance to the contact
+  // point, shorter than r by the overlap (lib/physics/tangential.ts), so the closed form holds to
+  // O(δ/r): a stiff spring keeps the largest overlap at v_n/ω_n = 0.1 mm, 0.2 % of r (at 1 MN/m the
+  // rebound sits 1.4 % off u/3 at every step size, which is that lever arm, not the integrator).
+  const stickingRun = (tangentialSpeed: number, integrator: IntegratorName) =>
+    simulate(
+      scenario(
+        { kind: "wall", massKg: MASS, radiusM: RADIUS, speedMPerS: Math.hypot(1, tangentialSpeed), angleDeg: (Math.atan2(tangentialSpeed, 1) * 180) / Math.PI, gapM: 0.001, spinRadPerS: 0 },
+        frictionContact(1e8, 0.5, { stiffnessRatio: 1 / 3 }),
+        integrator,
+        1e-6,
+        0.002,
+      ),
+    );
+
+  it.each([
+    [0.3, "velocity-verlet"],
+    [0.6, "velocity-verlet"],
+    [0.6, "symplectic-euler"],
+  ] as const)("u = %s m/s (%s): sticks throughout and leaves with v_t' = u/3 and ω'·r = 4u/3 within 0.5 %% of u", (tangentialSpeed, integrator) => {
+    expect(tangentialSpeed / 3).toBeLessThan(0.5); // F_t/F_n = u/(3·v_n) stays below μ
+    const metrics = stickingRun(tangentialSpeed, integrator).metrics;
+    // Sticking throughout, bar the last step or two, where F_n of a step that ends the contact is
+    // tiny and the discrete phases of the two springs differ by a fraction of a step.
+    expect(metrics.contactSteps).toBeGreaterThan(300); // π/ω_n = 0.314 ms at 1 µs steps
+    expect(metrics.slidingSteps).toBeLessThanOrEqual(3);
+    expect(metrics.effectiveRestitution).toBeCloseTo(1, 3);
+    const tangentialOut = Math.tan((metrics.reboundAngleDeg! * Math.PI) / 180) * metrics.effectiveRestitution!;
+    expect(Math.abs(tangentialOut - tangentialSpeed / 3)).toBeLessThan(0.005 * tangentialSpeed);
+    expect(Math.abs(Math.abs(metrics.reboundSpinRadPerS! * RADIUS) - (4 * tangentialSpeed) / 3)).toBeLessThan(0.005 * tangentialSpeed);
+  });
+
+  it("past the sticking range (u/(3·v_n) > μ) the same contact slides and the gross-sliding line takes over", () => {
+    const metrics = stickingRun(3, "velocity-verlet").metrics;
+    expect(metrics.slidingSteps).toBeGreaterThan(100);
+    const expected = grossSlidingRebound(1, 3, 0, 0.5, 1);
+    expect(expected.grossSliding).toBe(true);
+    const tangentialOut = Math.tan((metrics.reboundAngleDeg! * Math.PI) / 180) * metrics.effectiveRestitution!;
+    expect(Math.abs(tangentialOut - expected.tangentialSpeedMPerS)).toBeLessThan(0.02 * expected.tangentialSpeedMPerS);
+  });
+});
+
 describe("tangential stability bound", () => {
   // A coin resting on the floor, nudged sideways, friction too high to slide: only the sticking
   // tangential spring oscillates, at ω_t = √(k_t/m_t) with m_t = m/(1 + m·r²/I) = m/3.
