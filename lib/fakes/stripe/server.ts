@@ -408,13 +408,13 @@ export async function startStripeFake(options: StripeFakeOptions = {}): Promise<
         const draftAt = nextDraftDeadline(probe, to);
         if (!next && draftAt === null) break;
         if (draftAt !== null && (!next || draftAt <= next.end)) {
-          store.advanceClockTo(Math.max(draftAt, store.now()));
+          store.advanceClockTo(draftAt);
           const ctx = makeCtx({ requestId: null, idempotencyKey: null });
           emitOverdueInvoices(ctx, overdueNoticeDays);
           finalizeDueDrafts(ctx);
           continue;
         }
-        store.advanceClockTo(Math.max(next!.end, store.now()));
+        store.advanceClockTo(next!.end);
         const ctx = makeCtx({ requestId: null, idempotencyKey: null });
         emitOverdueInvoices(ctx, overdueNoticeDays);
         invoices.push(closeSubscriptionPeriod(ctx, next!.sub, next!.end, true, draftWindowS));
