@@ -47,8 +47,13 @@ type Detail = { invoice: Invoice; lines: Line[]; reconciled: boolean };
 
 const period = (start: string, end: string) => `${formatDate(start)} – ${formatDate(end)}`;
 
-export function InvoicesPage({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
-  const list = useQuery({ queryKey: ["billing", studioId, "invoices"], queryFn: async () => (await apiFetch<{ invoices: Invoice[] }>(`${billingApi(studioId)}/invoices`)).invoices });
+export function InvoicesPage({ studioId, studioName, role, initialInvoices }: { studioId: string; studioName: string; role: StudioRole; initialInvoices?: Invoice[] }) {
+  const list = useQuery({
+    queryKey: ["billing", studioId, "invoices"],
+    queryFn: async () => (await apiFetch<{ invoices: Invoice[] }>(`${billingApi(studioId)}/invoices`)).invoices,
+    // The server page's copy of the same answer: the table paints with the page (see lib/ui/queries.ts).
+    ...(initialInvoices ? { initialData: initialInvoices, initialDataUpdatedAt: () => Date.now() } : {}),
+  });
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>
       <Card

@@ -66,11 +66,13 @@ function load(fileName: string, bytes: Uint8Array): Loaded {
   };
 }
 
-export function CataloguesPage({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+export function CataloguesPage({ studioId, studioName, role, initialCatalogues }: { studioId: string; studioName: string; role: StudioRole; initialCatalogues?: CatalogueSummary[] }) {
   const canWrite = role === "owner" || role === "engineer";
   const list = useQuery({
     queryKey: catalogueKeys.list(studioId),
     queryFn: () => apiFetch<{ catalogues: CatalogueSummary[] }>(cataloguesPath(studioId)),
+    // The server page's copy of the same answer: the list paints with the page (see lib/ui/queries.ts).
+    ...(initialCatalogues ? { initialData: { catalogues: initialCatalogues }, initialDataUpdatedAt: () => Date.now() } : {}),
   });
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>

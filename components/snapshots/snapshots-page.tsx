@@ -28,9 +28,14 @@ const td = "px-3 py-2 align-middle";
 const snapshotsPath = (studioId: string) => `${studioApiPath(studioId)}/snapshots`;
 const listKey = (studioId: string) => ["snapshots", studioId] as const;
 
-export function SnapshotsPage({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole }) {
+export function SnapshotsPage({ studioId, studioName, role, initialSnapshots }: { studioId: string; studioName: string; role: StudioRole; initialSnapshots?: SnapshotSummary[] }) {
   const canWrite = role === "owner" || role === "engineer";
-  const list = useQuery({ queryKey: listKey(studioId), queryFn: () => apiFetch<{ snapshots: SnapshotSummary[] }>(snapshotsPath(studioId)) });
+  const list = useQuery({
+    queryKey: listKey(studioId),
+    queryFn: () => apiFetch<{ snapshots: SnapshotSummary[] }>(snapshotsPath(studioId)),
+    // The server page's copy of the same answer: the list paints with the page (see lib/ui/queries.ts).
+    ...(initialSnapshots ? { initialData: { snapshots: initialSnapshots }, initialDataUpdatedAt: () => Date.now() } : {}),
+  });
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>
       <div className="space-y-6">

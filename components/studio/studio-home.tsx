@@ -267,12 +267,14 @@ function StartHere({ studioId, role }: { studioId: string; role: StudioRole | nu
   );
 }
 
-export function StudioHome({ studioId, studioName, role }: { studioId: string; studioName: string; role: StudioRole | null }) {
+export function StudioHome({ studioId, studioName, role, initialOverview }: { studioId: string; studioName: string; role: StudioRole | null; initialOverview?: StudioOverview }) {
   const overview = useQuery({
     queryKey: ["studio", studioId, "overview"],
     queryFn: async () => (await apiFetch<{ overview: StudioOverview }>(`${studioApiPath(studioId)}/overview`)).overview,
     // Running sweeps move: the card follows them while any is running.
     refetchInterval: (query) => ((query.state.data?.running.length ?? 0) > 0 ? 3000 : false),
+    // The server page's copy of the same answer: the cards paint with the page (see lib/ui/queries.ts).
+    ...(initialOverview ? { initialData: initialOverview, initialDataUpdatedAt: () => Date.now() } : {}),
   });
   const members = useMembers(studioId);
   const isOwner = role === "owner";

@@ -9,7 +9,7 @@ import { expect, signInWithPassword, test } from "./helpers";
 
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner", studio: "Gannet Yard Games" };
 
-test("the studios, sweeps, sweep, cell, catalogue, members, tokens and webhooks pages arrive with their content", async ({ page, browser }) => {
+test("the studios, studio home, sweeps, sweep, cell, catalogues, catalogue, snapshots, members, tokens and webhooks pages arrive with their content", async ({ page, browser }) => {
   test.setTimeout(240_000);
   await signInWithPassword(page, DEMO_OWNER.email, DEMO_OWNER.password);
   const studios = (await (await page.request.get("/api/v1/studios")).json()) as { studios: { id: string; name: string }[] };
@@ -38,6 +38,11 @@ test("the studios, sweeps, sweep, cell, catalogue, members, tokens and webhooks 
     await bare.goto("/studios");
     await expect(bare.getByTestId("studio-list").getByRole("link", { name: DEMO_OWNER.studio })).toBeVisible();
 
+    // The studio home's compute card (balance and this month's use) and its finished sweeps.
+    await bare.goto(base);
+    await expect(bare.getByTestId("home-balance")).toContainText("min");
+    await expect(bare.getByTestId("verdict-bar").first()).toBeVisible();
+
     await bare.goto(`${base}/sweeps`);
     await expect(bare.getByTestId(`sweep-row-${done.id}`)).toContainText(done.name);
 
@@ -53,8 +58,14 @@ test("the studios, sweeps, sweep, cell, catalogue, members, tokens and webhooks 
 
     // The demo studio has a catalogue (the seed's).
     expect(catalogues.catalogues.length).toBeGreaterThan(0);
+    await bare.goto(`${base}/catalogues`);
+    await expect(bare.getByTestId("catalogues-table")).toContainText(catalogues.catalogues[0].name);
     await bare.goto(`${base}/catalogues/${catalogues.catalogues[0].id}`);
     await expect(bare.getByTestId("catalogue-title")).toContainText(catalogues.catalogues[0].name);
+
+    // The demo studio has a snapshot (the seed's loading bay).
+    await bare.goto(`${base}/snapshots`);
+    await expect(bare.getByTestId("snapshots-table")).toBeVisible();
 
     await bare.goto(`${base}/members`);
     for (const member of members.members) await expect(bare.getByTestId(`member-${member.email}`)).toBeVisible();
@@ -78,6 +89,9 @@ test("the studios, sweeps, sweep, cell, catalogue, members, tokens and webhooks 
   });
   const pages: [string, string][] = [
     ["/studios", "studio-list"],
+    [base, "home-balance"],
+    [`${base}/catalogues`, "catalogues-table"],
+    [`${base}/snapshots`, "snapshots-table"],
     [`${base}/sweeps`, `sweep-row-${done.id}`],
     [`${base}/sweeps/${done.id}/cells/0`, "cell-verdict"],
     [`${base}/catalogues/${catalogues.catalogues[0].id}`, "catalogue-title"],
