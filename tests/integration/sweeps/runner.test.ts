@@ -7,9 +7,8 @@ import { readdir } from "node:fs/promises";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, eq, inArray, sql } from "drizzle-orm";
-import { z } from "zod";
 import type { Db } from "@/db/client";
-import { queryRows, sqlDate } from "@/db/rows";
+import { databaseNow } from "@/lib/billing/overdue";
 import { sweepChunks, sweepResults } from "@/db/schema";
 import { QueueRunner } from "@/lib/queue/runner";
 import { cancelSweep } from "@/lib/queue/cancel";
@@ -24,12 +23,6 @@ import { parseSweepSpec } from "@/lib/sweeps/spec";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { closeTestDb, useFreshDb } from "../../helpers/db";
 import { ballPitSpec, gatedPool, grant, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForCondition, waitForSweep } from "./support";
-
-/** The database's clock, which lease expiry is measured on. */
-async function databaseNowMs(): Promise<number> {
-  const [row] = await queryRows(db, sql`select now() as now`, z.object({ now: sqlDate }));
-  return row.now.getTime();
-}
 
 /** `rows` in the order of `order` (matched by id): neither query promises an order. */
 function byId<T extends { id: number }>(rows: T[], order: { id: number }[]): T[] {
@@ -227,8 +220,8 @@ describe("queue runner", { timeout: 180_000 }, () => {
       const held = await db.select().from(sweepChunks).where(and(eq(sweepChunks.sweepId, sweep.id), eq(sweepChunks.status, "running")));
       expect(new Set(held.map((c) => c.leaseOwner)).size).toBe(2);
       const firstExpiry = Math.max(...held.map((c) => c.leaseExpiresAt!.getTime()));
-      // The database's clock decides when a lease lapses; wait until it is past every first expiry.
-      await waitForCondition("the first leases to pass their expiry", async () => (await databaseNowMs()) > firstExpiry + 500);
+      // The database's clock decides when a lease lapses (databaseNow reads it); wait until it is past every first expiry.
+      await waitForCondition("the first leases to pass their expiry", async () => (await databaseNow(db)).getTime() > firstExpiry + 500);
       const still = await db.select().from(sweepChunks).where(inArray(sweepChunks.id, held.map((c) => c.id)));
       expect(byId(still, held).map((c) => [c.status, c.attempts, c.leaseOwner])).toEqual(held.map((c) => ["running", 1, c.leaseOwner]));
       expect(still.every((c) => c.leaseExpiresAt!.getTime() > firstExpiry)).toBe(true);
