@@ -1,9 +1,9 @@
 "use client";
 
-import Link from "next/link";
 import { signIn } from "next-auth/react";
 import { useState, type FormEvent } from "react";
 import { Alert, Button, TextField } from "@/components/ui";
+import { DemoMailboxHint } from "./demo-mailbox-hint";
 
 type MagicLinkState = { kind: "idle" } | { kind: "sending" } | { kind: "sent"; email: string } | { kind: "error"; message: string };
 
@@ -46,16 +46,7 @@ export function MagicLinkForm({
     return (
       <Alert tone="ok">
         We sent a sign-in link to <strong>{state.email}</strong>. It works once and expires soon.
-        {mailboxEnabled ? (
-          <>
-            {" "}
-            On this demo instance mail is captured, not delivered: a platform admin reads it in the{" "}
-            <Link href="/mail" className="underline">
-              demo mailbox
-            </Link>
-            .
-          </>
-        ) : null}
+        <DemoMailboxHint enabled={mailboxEnabled} />
       </Alert>
     );
   }

@@ -5,6 +5,7 @@ import Link from "next/link";
 import { useState, type FormEvent } from "react";
 import { Alert, Button, TextField } from "@/components/ui";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
+import { DemoMailboxHint } from "./demo-mailbox-hint";
 
 export function ResetRequestForm({ mailboxEnabled }: { mailboxEnabled: boolean }) {
   const [email, setEmail] = useState("");
@@ -22,16 +23,7 @@ export function ResetRequestForm({ mailboxEnabled }: { mailboxEnabled: boolean }
       <Alert tone="ok">
         If an account exists for <strong>{request.variables}</strong>, we sent it a link to choose a new password. The link expires in one hour
         and works once.
-        {mailboxEnabled ? (
-          <>
-            {" "}
-            On this demo instance mail is captured, not delivered: a platform admin reads it in the{" "}
-            <Link href="/mail" className="underline">
-              demo mailbox
-            </Link>
-            .
-          </>
-        ) : null}
+        <DemoMailboxHint enabled={mailboxEnabled} />
       </Alert>
     );
   }
