@@ -20,6 +20,14 @@ export const queryKeys = {
 export const studioApiPath = (studioId: string) => `/api/v1/studios/${encodeURIComponent(studioId)}`;
 
 /**
+ * The query options that seed a query with the server page's copy of its answer (nothing when the
+ * page sent none): the first paint shows the data, and the query refetches it as it would anyway.
+ */
+export function seededBy<T>(initial: T | undefined) {
+  return initial === undefined ? {} : { initialData: initial, initialDataUpdatedAt: () => Date.now() };
+}
+
+/**
  * `initial…` arguments below are the server page's copy of the same answer: the first paint shows
  * the data (no loading row and no request after hydration); the query keeps it current as before.
  */
@@ -27,7 +35,7 @@ export function useStudios(initialStudios?: StudioSummary[]) {
   return useQuery({
     queryKey: queryKeys.studios,
     queryFn: async () => (await apiFetch<{ studios: StudioSummary[] }>("/api/v1/studios")).studios,
-    ...(initialStudios ? { initialData: initialStudios, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialStudios),
   });
 }
 
@@ -39,7 +47,7 @@ export function useMembers(studioId: string, initialMembers?: Member[]) {
   return useQuery({
     queryKey: queryKeys.members(studioId),
     queryFn: async () => (await apiFetch<{ members: Member[] }>(`${studioApiPath(studioId)}/members`)).members,
-    ...(initialMembers ? { initialData: initialMembers, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialMembers),
   });
 }
 
@@ -48,7 +56,7 @@ export function useInvites(studioId: string, enabled = true, initialInvites?: In
     queryKey: queryKeys.invites(studioId),
     queryFn: async () => (await apiFetch<{ invites: Invite[] }>(`${studioApiPath(studioId)}/invites`)).invites,
     enabled,
-    ...(initialInvites ? { initialData: initialInvites, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialInvites),
   });
 }
 
@@ -57,6 +65,6 @@ export function useTokens(studioId: string, enabled = true, initialTokens?: ApiT
     queryKey: queryKeys.tokens(studioId),
     queryFn: async () => (await apiFetch<{ tokens: ApiToken[] }>(`${studioApiPath(studioId)}/tokens`)).tokens,
     enabled,
-    ...(initialTokens ? { initialData: initialTokens, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialTokens),
   });
 }
