@@ -25,6 +25,7 @@
  */
 import type { Bodies } from "./bodies";
 import type { ForceField } from "./integrators";
+import { BroadPhase, NEIGHBOUR_LIST_SKIN_FRACTION } from "./broad-phase";
 import { NO_TANGENTIAL, TangentialContacts, tangentialActive, type TangentialParameters } from "./tangential";
 
 export const CONTACT_LINEAR = 0;
@@ -85,20 +86,6 @@ export interface ContactFieldParameters {
   /** Friction and rolling resistance (./tangential.ts); absent: frictionless, no rotation. */
   tangential?: TangentialParameters;
 }
-
-const EMPTY_INDICES = new Int32Array(0);
-const EMPTY_POSITIONS = new Float64Array(0);
-
-/**
- * Skin of the neighbour list, as a fraction of the largest radius: the list holds every pair
- * within the step's cutoff plus this margin, and is rebuilt once some body has drifted half of
- * it (our choice: a settled pile keeps one list for hundreds of steps, a gas rebuilds every few).
- */
-export const NEIGHBOUR_LIST_SKIN_FRACTION = 0.25;
-/** Relative slack on the list's reach, far above the rounding of the distances compared with it. */
-const NEIGHBOUR_LIST_SLACK = 1e-9;
-/** Relative slack of the wall band's clearance test, far above the rounding of a distance to a wall. */
-const WALL_BAND_SLACK = 1e-9;
 
 export class ContactField implements ForceField {
   model = 0;
@@ -180,31 +167,8 @@ export class ContactField implements ForceField {
   private memoReducedMass = NaN;
   private memoStiffness = NaN;
   private memoDamping = 0;
-
-  // Uniform grid (counting sort by cell), allocated once and grown if needed.
-  private cellOfBody: Int32Array = EMPTY_INDICES;
-  private cellStart: Int32Array = EMPTY_INDICES;
-  private bodiesByCell: Int32Array = EMPTY_INDICES;
-  private candidates: Int32Array = EMPTY_INDICES;
-
-  // Neighbour list of the grid broad phase (CSR: partners of i, all > i and ascending, at
-  // listPartners[listStart[i] .. listStart[i + 1]]), the positions it was built at and its reach.
-  private listStart: Int32Array = EMPTY_INDICES;
-  private listPartners: Int32Array = EMPTY_INDICES;
-  private listX: Float64Array = EMPTY_POSITIONS;
-  private listY: Float64Array = EMPTY_POSITIONS;
-  /** Pairs closer than this (m) at the build are listed; ≤ 0: no valid list. */
-  private listReachM = 0;
-  private listBodies: Bodies | null = null;
-  /**
-   * Wall band of the neighbour list: the bodies (ascending) that were within twice the list's
-   * drift allowance of a wall at the build. While the list is valid no other body can reach a wall,
-   * so walls() skips them: for them it would find no overlap and do nothing.
-   */
-  private wallBand: Int32Array = EMPTY_INDICES;
-  private wallBandCount = 0;
-  /** Set by each pass: the list was valid for this state and every position is finite. */
-  private wallBandUsable = false;
+  /** Which pairs a pass looks at (./broad-phase.ts); its buffers are kept from run to run. */
+  private readonly broad = new BroadPhase();
 
   constructor(parameters: ContactFieldParameters) {
     this.configure(parameters);
@@ -268,8 +232,7 @@ export class ContactField implements ForceField {
     this.memoModulusFactor = NaN;
     this.memoReducedMass = NaN;
     this.memoStiffness = NaN;
-    this.listReachM = 0;
-    this.listBodies = null;
+    this.broad.invalidateList();
   }
 
   evaluate(bodies: Bodies): void {
@@ -286,7 +249,7 @@ export class ContactField implements ForceField {
     this.firstContactStartedThisPass = false;
     this.firstContactEndedThisPass = false;
     this.firstContactSeenThisPass = false;
-    this.wallBandUsable = false;
+    this.broad.wallBandUsable = false;
     if (this.frictional) this.tangential.beginPass(bodies);
 
     // One pass over the bodies: reset the forces to gravity, find the largest step displacement and
@@ -294,8 +257,8 @@ export class ContactField implements ForceField {
     // the step) and, when there is a neighbour list to check, the largest drift since its build.
     const { x, y, previousX, previousY, radius } = bodies;
     const grid = this.broadPhase === BROAD_PHASE_GRID && count > 1;
-    const checkList = grid && this.listReachM > 0 && this.listBodies === bodies && this.listX.length >= count;
-    const { listX, listY } = this;
+    const checkList = grid && this.broad.hasListFor(bodies);
+    const { listX, listY } = this.broad;
     let maxDisplacementSquared = 0;
     let maxRadius = 0;
     let driftSquared = 0;
@@ -339,7 +302,9 @@ export class ContactField implements ForceField {
   private pairsAllPairs(bodies: Bodies): void {
     const count = bodies.count;
     if (this.linearFrictionless) {
-      this.linearPairRows(bodies, false);
+      const broad = this.broad;
+      broad.fillAllPairRows(count);
+      this.linearPairRows(bodies, broad.allPairsStart, broad.allPairsEnd, broad.allPairsPartners);
       return;
     }
     for (let i = 0; i < count; i++) {
@@ -356,161 +321,33 @@ export class ContactField implements ForceField {
    */
   private pairsByNeighbourList(bodies: Bodies, cutoffM: number, maxRadius: number, listed: boolean, driftSquared: number, driftSum: number): void {
     const count = bodies.count;
+    const broad = this.broad;
     let valid = listed;
     if (valid) {
-      valid = cutoffM + 2 * Math.sqrt(driftSquared) <= this.listReachM * (1 - NEIGHBOUR_LIST_SLACK);
-      this.wallBandUsable = valid && driftSum < Infinity;
+      valid = broad.listHolds(cutoffM, driftSquared);
+      broad.wallBandUsable = valid && driftSum < Infinity;
     }
     if (!valid) {
-      if (!this.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius, maxRadius)) {
+      if (!broad.buildNeighbourList(bodies, cutoffM + NEIGHBOUR_LIST_SKIN_FRACTION * maxRadius, maxRadius, this.wallNormalX, this.wallNormalY, this.wallOffset)) {
         // Non-finite state (the run is exploding): the per-step grid, exactly as without a list.
-        this.listReachM = 0;
+        broad.invalidateList();
         this.pairsByGrid(bodies, cutoffM);
         return;
       }
-      this.wallBandUsable = true;
+      broad.wallBandUsable = true;
     }
-    const { listStart, listPartners } = this;
+    const { listStart, listEnd, listPartners } = broad;
     if (this.linearFrictionless) {
-      this.linearPairRows(bodies, true);
+      this.linearPairRows(bodies, listStart, listEnd, listPartners);
       return;
     }
     for (let i = 0; i < count; i++) {
-      const end = listStart[i + 1];
+      const end = listEnd[i];
       for (let slot = listStart[i]; slot < end; slot++) this.pair(bodies, i, listPartners[slot]);
     }
   }
 
-  /** Lists every pair closer than `reachM`, in (i, j) order; false (no list) when a position is not finite. */
-  private buildNeighbourList(bodies: Bodies, reachM: number, maxRadius: number): boolean {
-    const { count, x, y } = bodies;
-    let minX = Infinity;
-    let minY = Infinity;
-    let maxX = -Infinity;
-    let maxY = -Infinity;
-    for (let i = 0; i < count; i++) {
-      const xi = x[i];
-      const yi = y[i];
-      if (!(xi - xi === 0 && yi - yi === 0)) return false;
-      if (xi < minX) minX = xi;
-      if (xi > maxX) maxX = xi;
-      if (yi < minY) minY = yi;
-      if (yi > maxY) maxY = yi;
-    }
-    if (!(reachM < Infinity) || !(maxX - minX < Infinity && maxY - minY < Infinity)) return false;
-    const maxCells = 4 * count + 16;
-    let cellSizeM = Math.max(reachM, 1e-300);
-    const spanX = maxX - minX;
-    const spanY = maxY - minY;
-    while ((Math.floor(spanX / cellSizeM) + 1) * (Math.floor(spanY / cellSizeM) + 1) > maxCells) cellSizeM *= 1.5;
-    const cellsX = Math.floor(spanX / cellSizeM) + 1;
-    const cellsY = Math.floor(spanY / cellSizeM) + 1;
-    const cellCount = cellsX * cellsY;
-    if (this.cellOfBody.length < count) {
-      this.cellOfBody = new Int32Array(count);
-      this.bodiesByCell = new Int32Array(count);
-      this.candidates = new Int32Array(count);
-    }
-    if (this.listStart.length < count + 1) {
-      this.listStart = new Int32Array(count + 1);
-      this.listX = new Float64Array(count);
-      this.listY = new Float64Array(count);
-    }
-    if (this.listPartners.length < 8 * count) this.listPartners = new Int32Array(8 * count);
-    if (this.cellStart.length < cellCount + 1) this.cellStart = new Int32Array(cellCount + 1);
-    const { cellOfBody, cellStart, bodiesByCell, candidates, listStart, listX, listY } = this;
-    cellStart.fill(0, 0, cellCount + 1);
-    for (let i = 0; i < count; i++) {
-      const cx = Math.min(cellsX - 1, Math.floor((x[i] - minX) / cellSizeM));
-      const cy = Math.min(cellsY - 1, Math.floor((y[i] - minY) / cellSizeM));
-      const cell = cy * cellsX + cx;
-      cellOfBody[i] = cell;
-      cellStart[cell + 1]++;
-      listX[i] = x[i];
-      listY[i] = y[i];
-    }
-    for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
-    for (let i = 0; i < count; i++) bodiesByCell[cellStart[cellOfBody[i]]++] = i;
-    for (let c = cellCount; c > 0; c--) cellStart[c] = cellStart[c - 1];
-    cellStart[0] = 0;
-    const reachSquared = reachM * reachM;
-    let listed = 0;
-    for (let i = 0; i < count; i++) {
-      listStart[i] = listed;
-      const cell = cellOfBody[i];
-      const cx = cell % cellsX;
-      const cy = (cell - cx) / cellsX;
-      let candidateCount = 0;
-      const yLow = cy > 0 ? cy - 1 : 0;
-      const yHigh = cy < cellsY - 1 ? cy + 1 : cy;
-      const xLow = cx > 0 ? cx - 1 : 0;
-      const xHigh = cx < cellsX - 1 ? cx + 1 : cx;
-      const xi = x[i];
-      const yi = y[i];
-      for (let ny = yLow; ny <= yHigh; ny++) {
-        for (let nx = xLow; nx <= xHigh; nx++) {
-          const neighbour = ny * cellsX + nx;
-          const end = cellStart[neighbour + 1];
-          for (let slot = cellStart[neighbour]; slot < end; slot++) {
-            const j = bodiesByCell[slot];
-            if (j <= i) continue;
-            const dx = x[j] - xi;
-            const dy = y[j] - yi;
-            if (dx * dx + dy * dy >= reachSquared) continue;
-            let position = candidateCount++;
-            while (position > 0 && candidates[position - 1] > j) {
-              candidates[position] = candidates[position - 1];
-              position--;
-            }
-            candidates[position] = j;
-          }
-        }
-      }
-      if (listed + candidateCount > this.listPartners.length) {
-        // Rare (a list longer than 8 partners per body): grow once, keeping what is listed.
-        const grown = new Int32Array(Math.max(2 * this.listPartners.length, listed + candidateCount));
-        grown.set(this.listPartners.subarray(0, listed));
-        this.listPartners = grown;
-      }
-      const listPartners = this.listPartners;
-      for (let c = 0; c < candidateCount; c++) listPartners[listed++] = candidates[c];
-    }
-    listStart[count] = listed;
-    this.listReachM = reachM;
-    this.listBodies = bodies;
-    this.buildWallBand(bodies, reachM - 2 * maxRadius);
-    return true;
-  }
-
-  /**
-   * The wall band for a list of reach 2·r_max + `allowanceM`: while the list is valid every body
-   * stays within allowanceM / 2 of where it was at the build (cutoff ≥ 2·r_max, and
-   * cutoff + 2·drift ≤ reach), so a body whose surface cleared every wall by more than allowanceM
-   * cannot touch one. The comparison keeps a relative margin far above the rounding of the
-   * distance to a wall (and takes a body in whenever it is not sure, NaN included).
-   */
-  private buildWallBand(bodies: Bodies, allowanceM: number): void {
-    const { count, x, y, radius } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
-    if (this.wallBand.length < count) this.wallBand = new Int32Array(count);
-    const wallBand = this.wallBand;
-    let banded = 0;
-    for (let i = 0; i < count; i++) {
-      for (let w = 0; w < wallCount; w++) {
-        const alongX = wallNormalX[w] * x[i];
-        const alongY = wallNormalY[w] * y[i];
-        const offset = wallOffset[w];
-        const clearance = alongX + alongY - offset - radius[i];
-        const margin = allowanceM + WALL_BAND_SLACK * (Math.abs(alongX) + Math.abs(alongY) + Math.abs(offset) + radius[i]);
-        if (!(clearance > margin)) {
-          wallBand[banded++] = i;
-          break;
-        }
-      }
-    }
-    this.wallBandCount = banded;
-  }
-
+  /** The uniform grid every step, one cutoff wide (no list): for a state the list cannot take. */
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {
     const { count, x, y } = bodies;
     let minX = Infinity;
@@ -528,65 +365,11 @@ export class ContactField implements ForceField {
       this.pairsAllPairs(bodies);
       return;
     }
-    // Cells at least one cutoff wide, and no more cells than a few per body.
-    const maxCells = 4 * count + 16;
-    let cellSizeM = Math.max(cutoffM, 1e-300);
-    const spanX = maxX - minX;
-    const spanY = maxY - minY;
-    while ((Math.floor(spanX / cellSizeM) + 1) * (Math.floor(spanY / cellSizeM) + 1) > maxCells) cellSizeM *= 1.5;
-    const cellsX = Math.floor(spanX / cellSizeM) + 1;
-    const cellsY = Math.floor(spanY / cellSizeM) + 1;
-    const cellCount = cellsX * cellsY;
-    if (this.cellOfBody.length < count) {
-      this.cellOfBody = new Int32Array(count);
-      this.bodiesByCell = new Int32Array(count);
-      this.candidates = new Int32Array(count);
-    }
-    if (this.cellStart.length < cellCount + 1) this.cellStart = new Int32Array(cellCount + 1);
-    const { cellOfBody, cellStart, bodiesByCell, candidates } = this;
-    cellStart.fill(0, 0, cellCount + 1);
+    const broad = this.broad;
+    broad.layOutGrid(bodies, minX, minY, maxX - minX, maxY - minY, cutoffM);
     for (let i = 0; i < count; i++) {
-      const cx = Math.min(cellsX - 1, Math.floor((x[i] - minX) / cellSizeM));
-      const cy = Math.min(cellsY - 1, Math.floor((y[i] - minY) / cellSizeM));
-      const cell = cy * cellsX + cx;
-      cellOfBody[i] = cell;
-      cellStart[cell + 1]++;
-    }
-    for (let c = 0; c < cellCount; c++) cellStart[c + 1] += cellStart[c];
-    // Stable placement keeps each cell's bodies in ascending index order.
-    for (let i = 0; i < count; i++) {
-      const cell = cellOfBody[i];
-      bodiesByCell[cellStart[cell]++] = i;
-    }
-    for (let c = cellCount; c > 0; c--) cellStart[c] = cellStart[c - 1];
-    cellStart[0] = 0;
-
-    for (let i = 0; i < count; i++) {
-      const cell = cellOfBody[i];
-      const cx = cell % cellsX;
-      const cy = (cell - cx) / cellsX;
-      let candidateCount = 0;
-      const yLow = cy > 0 ? cy - 1 : 0;
-      const yHigh = cy < cellsY - 1 ? cy + 1 : cy;
-      const xLow = cx > 0 ? cx - 1 : 0;
-      const xHigh = cx < cellsX - 1 ? cx + 1 : cx;
-      for (let ny = yLow; ny <= yHigh; ny++) {
-        for (let nx = xLow; nx <= xHigh; nx++) {
-          const neighbour = ny * cellsX + nx;
-          const end = cellStart[neighbour + 1];
-          for (let slot = cellStart[neighbour]; slot < end; slot++) {
-            const j = bodiesByCell[slot];
-            if (j <= i) continue;
-            // Insertion into the sorted candidate list (lists are short).
-            let position = candidateCount++;
-            while (position > 0 && candidates[position - 1] > j) {
-              candidates[position] = candidates[position - 1];
-              position--;
-            }
-            candidates[position] = j;
-          }
-        }
-      }
+      const candidateCount = broad.gatherCandidates(bodies, i, false, 0);
+      const candidates = broad.candidates;
       for (let c = 0; c < candidateCount; c++) this.pair(bodies, i, candidates[c]);
     }
   }
@@ -660,16 +443,19 @@ export class ContactField implements ForceField {
   }
 
   /**
-   * pair() over every pair of the neighbour list (`listed`) or every pair (i < j), for the linear
-   * law without friction: the same operations in the same order as pair() for each pair, with
+   * pair() over rows of pairs, for the linear law without friction: row i holds body i's partners
+   * j at partners[rowStart[i] .. rowEnd[i]] (the neighbour list's, or every j > i). One row shape
+   * for both broad phases keeps the compiled loop free of a branch per pair between them: when both
+   * shapes had run in a process (a pair sweep primes its forces here, all pairs), the pile's loop
+   * ran about a quarter slower than in a fresh process. The same operations in the same order as
+   * pair() for each pair, with
    * checkSkippedContact, normalForce and dampingCoefficient written out, body i's values and force
    * held in locals across its row (no other pair of the row touches them), the pass's sums and
    * maxima in locals, and trackFirstContact called only when it can record something. Results are
    * byte-identical to pair()'s.
    */
-  private linearPairRows(bodies: Bodies, listed: boolean): void {
+  private linearPairRows(bodies: Bodies, rowStart: Int32Array, rowEnd: Int32Array, partners: Int32Array): void {
     const { count, x, y, vx, vy, fx, fy, previousX, previousY, radius, inverseMass } = bodies;
-    const { listStart, listPartners } = this;
     const k = this.stiffness;
     const dampingMode = this.dampingMode;
     const dampingValue = this.dampingValue;
@@ -694,9 +480,9 @@ export class ContactField implements ForceField {
     let memoSmallerRadius = NaN;
     let memoFoldedOverlap = NaN;
     for (let i = 0; i < count; i++) {
-      const rowEnd = listed ? listStart[i + 1] : count;
-      let slot = listed ? listStart[i] : i + 1;
-      if (slot >= rowEnd) continue;
+      const end = rowEnd[i];
+      let slot = rowStart[i];
+      if (slot >= end) continue;
       const xi = x[i];
       const yi = y[i];
       const previousXi = previousX[i];
@@ -707,8 +493,8 @@ export class ContactField implements ForceField {
       const vyi = vy[i];
       let fxi = fx[i];
       let fyi = fy[i];
-      for (; slot < rowEnd; slot++) {
-        const j = listed ? listPartners[slot] : slot;
+      for (; slot < end; slot++) {
+        const j = partners[slot];
         const dx = x[j] - xi;
         const dy = y[j] - yi;
         const distanceSquared = dx * dx + dy * dy;
@@ -857,9 +643,9 @@ export class ContactField implements ForceField {
 
   private walls(bodies: Bodies): void {
     const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
-    const banded = this.wallBandUsable;
-    const count = banded ? this.wallBandCount : bodies.count;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
+    const { wallBand, wallBandUsable: banded } = this.broad;
+    const count = banded ? this.broad.wallBandCount : bodies.count;
     for (let b = 0; b < count; b++) {
       const i = banded ? wallBand[b] : b;
       for (let w = 0; w < wallCount; w++) {
@@ -900,10 +686,10 @@ export class ContactField implements ForceField {
   /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
   private wallsLinear(bodies: Bodies): void {
     const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount, wallBand } = this;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
     const k = this.stiffness;
-    const banded = this.wallBandUsable;
-    const count = banded ? this.wallBandCount : bodies.count;
+    const { wallBand, wallBandUsable: banded } = this.broad;
+    const count = banded ? this.broad.wallBandCount : bodies.count;
     for (let b = 0; b < count; b++) {
       const i = banded ? wallBand[b] : b;
       for (let w = 0; w < wallCount; w++) {

@@ -255,7 +255,9 @@ async function runWith(input: SweepSpecInput, rounds: number, timeCells: boolean
     console.log(table(rows));
     const ratios = queueRuns.map((r, i) => r.totalS / engineRuns[i].wallS);
     console.log(
-      `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); per round: ${ratios.map((r) => r.toFixed(2)).join(" ")}; ` +
+      // The median of the per-round ratios pairs each queue run with the engine run beside it (same
+      // load), which a loaded machine's swings between rounds do not move as they move the medians' ratio.
+      `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); per round: ${ratios.map((r) => r.toFixed(2)).join(" ")} (median ${median(ratios).toFixed(2)}×); ` +
         `${queueRuns[0].sweep.cellsDone} cells done per queue run`,
     );
     if (!timeCells) return;
