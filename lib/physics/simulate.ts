@@ -39,6 +39,8 @@ export interface RunScratch {
   readonly field: ContactField;
   /** The two-body loop's state vector (./pair-loop.ts). */
   readonly pairState: Float64Array;
+  /** `energyTerms`' output (kinetic, gravity) for the start energy and the general step loop. */
+  readonly energyTerms: Float64Array;
 }
 
 /** A scratch for one thread's runs (runs are synchronous: one run uses it at a time). */
@@ -54,7 +56,7 @@ export function createRunScratch(): RunScratch {
     broadPhase: BROAD_PHASE_ALL_PAIRS,
     nearMissDepthFraction: 0,
   });
-  return { field, pairState: createPairState() };
+  return { field, pairState: createPairState(), energyTerms: new Float64Array(2) };
 }
 
 /**
@@ -91,7 +93,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
   const recorder = options.maxSamples && options.maxSamples > 0 ? new SeriesRecorder(bodies.count, Math.floor(options.maxSamples), totalSteps, rotating ? field : null) : null;
 
   primeForces(bodies, field);
-  const terms = new Float64Array(2);
+  const terms = scratch?.energyTerms ?? new Float64Array(2);
   energyTerms(bodies, gravity, terms);
   const startEnergy = terms[KINETIC_J] + field.contactPotentialJ + terms[GRAVITY_J] + rotationalEnergyJ(bodies);
   if (spin) spin.start(bodies, field);
@@ -120,6 +122,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
     spin,
     rest,
     gaugeContactEnd,
+    energyTerms: terms,
   };
   const progress = takesTwoBodyPath(scenario, bodies, field, gravity, recorder) ? integratePair(bodies, field, settings, scratch?.pairState ?? createPairState()) : integrate(bodies, field, step, settings);
   const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;

@@ -30,6 +30,8 @@ export interface LoopSettings {
   rest: RestTracker | null;
   /** Whether the first contact's end is interpolated on the end gauge (verdict rules ≥ 3). */
   gaugeContactEnd: boolean;
+  /** Where each step's kinetic and gravity energy land (`energyTerms`, one pass over the bodies). */
+  energyTerms: Float64Array;
 }
 
 /** What the step loop measured (work counts, impulses, energy and contact metrics). */
@@ -82,8 +84,8 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
   let firstContactEndS = 0;
   let effectiveRestitution: number | null = null;
   let contactDurationS: number | null = null;
-  // The step's kinetic and gravity energy, one pass over the bodies (the energy check and the rest tracker read it).
-  const terms = new Float64Array(2);
+  // The step's kinetic and gravity energy (the energy check and the rest tracker read it).
+  const terms = settings.energyTerms;
 
   if (recorder) recorder.recordUpTo(0, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
 
