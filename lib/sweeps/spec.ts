@@ -272,7 +272,7 @@ export const tolerancesSchema = z.strictObject({
   energyDriftRel: boundedNumber("tolerances.energyDriftRel", 0, false, 1e6),
   maxOverlapFraction: boundedNumber("tolerances.maxOverlapFraction", 0, false, 100),
   blowUpEnergyFactor: boundedNumber("tolerances.blowUpEnergyFactor", 1, false, 1e300),
-  // Used by verdict rules 2 (lib/physics/simulate.ts judgeByRules2); defaults and their basis in lib/physics/constants.ts.
+  // Used by verdict rules 2 (lib/physics/verdicts.ts judgeByRules2); defaults and their basis in lib/physics/constants.ts.
   amplificationLimit: boundedNumber("tolerances.amplificationLimit", 1, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.amplificationLimit),
   restitutionRel: boundedNumber("tolerances.restitutionRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.restitutionRel),
   energyPeakRel: boundedNumber("tolerances.energyPeakRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.energyPeakRel),
