@@ -138,20 +138,31 @@ export function angularMomentumKgM2PerS(bodies: Bodies): number {
   return sum;
 }
 
-export function kineticEnergyJ(bodies: Bodies): number {
-  const { count, vx, vy, mass } = bodies;
-  let sum = 0;
-  for (let i = 0; i < count; i++) sum += 0.5 * mass[i] * (vx[i] * vx[i] + vy[i] * vy[i]);
-  return sum;
-}
+/** Slot of `energyTerms`' output holding the translational kinetic energy Σ ½·m·|v|² (J). */
+export const KINETIC_J = 0;
+/** Slot of `energyTerms`' output holding the gravitational potential Σ m·g·y (J; y from the line y = 0, the box floor). */
+export const GRAVITY_J = 1;
 
-/** Gravitational potential m·g·y (y measured from the line y = 0, the box floor). */
-export function gravityPotentialJ(bodies: Bodies, gravityMPerS2: number): number {
-  if (gravityMPerS2 === 0) return 0;
-  const { count, y, mass } = bodies;
-  let sum = 0;
-  for (let i = 0; i < count; i++) sum += mass[i] * gravityMPerS2 * y[i];
-  return sum;
+/**
+ * The translational kinetic energy and the gravitational potential in one pass over the bodies,
+ * written to `out[KINETIC_J]` and `out[GRAVITY_J]` (a caller-owned pair, so nothing is allocated
+ * per step). Each sum is accumulated alone, body by body in index order, exactly as two separate
+ * passes would: the values are bit-identical to them.
+ */
+export function energyTerms(bodies: Bodies, gravityMPerS2: number, out: Float64Array): void {
+  const { count, y, vx, vy, mass } = bodies;
+  let kinetic = 0;
+  let gravity = 0;
+  if (gravityMPerS2 === 0) {
+    for (let i = 0; i < count; i++) kinetic += 0.5 * mass[i] * (vx[i] * vx[i] + vy[i] * vy[i]);
+  } else {
+    for (let i = 0; i < count; i++) {
+      kinetic += 0.5 * mass[i] * (vx[i] * vx[i] + vy[i] * vy[i]);
+      gravity += mass[i] * gravityMPerS2 * y[i];
+    }
+  }
+  out[KINETIC_J] = kinetic;
+  out[GRAVITY_J] = gravity;
 }
 
 export function totalMomentumXNs(bodies: Bodies): number {

@@ -101,6 +101,14 @@ function solveIllinois(g: (beta: number) => number, gZero: number): number {
     high *= 2;
     gHigh = g(high);
   }
+  return illinoisSteps(g, low, gLow, high, gHigh);
+}
+
+/**
+ * The Illinois iteration on a bracket [low, high] of a decreasing g (g(low) = gLow > 0 ≥ gHigh =
+ * g(high)): the regula falsi point, with the stale end's value halved when the same end moves twice.
+ */
+function illinoisSteps(g: (beta: number) => number, low: number, gLow: number, high: number, gHigh: number): number {
   let side = 0;
   let beta = high;
   for (let iteration = 0; iteration < 100; iteration++) {
@@ -184,31 +192,13 @@ export function hertzDimensionlessDampingForRestitution(restitution: number): nu
   if (restitution === 1) return 0;
   const cached = hertzDampingCache.get(restitution);
   if (cached !== undefined) return cached;
-  let low = 0;
   let high = 0.5;
   while (hertzRestitutionForDimensionlessDamping(high) > restitution) high *= 2;
-  // Illinois (modified regula falsi) on g(β) = e(β) − e_target: bracketing like bisection, but
-  // superlinear, so each conversion costs about ten reference integrations.
-  let gLow = 1 - restitution;
-  let gHigh = hertzRestitutionUncached(high) - restitution;
-  let side = 0;
-  let beta = high;
-  for (let iteration = 0; iteration < 100; iteration++) {
-    beta = (low * gHigh - high * gLow) / (gHigh - gLow);
-    const gBeta = hertzRestitutionUncached(beta) - restitution;
-    if (Math.abs(gBeta) < 1e-13 || high - low < 1e-13 * high) break;
-    if (gBeta > 0) {
-      low = beta;
-      gLow = gBeta;
-      if (side === -1) gHigh *= 0.5;
-      side = -1;
-    } else {
-      high = beta;
-      gHigh = gBeta;
-      if (side === 1) gLow *= 0.5;
-      side = 1;
-    }
-  }
+  // Illinois (modified regula falsi) on g(β) = e(β) − e_target over [0, high]: bracketing like
+  // bisection, but superlinear, so each conversion costs about ten reference integrations. (The
+  // bracket keeps low = 0, unlike solveIllinois: the stored conversions were made that way.)
+  const g = (beta: number) => hertzRestitutionUncached(beta) - restitution;
+  const beta = illinoisSteps(g, 0, 1 - restitution, high, g(high));
   rememberConversion(hertzDampingCache, restitution, beta);
   return beta;
 }

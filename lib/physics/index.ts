@@ -3,7 +3,8 @@
  * the closed-form references drawn over stability maps.
  */
 export * from "./types";
-export { simulate, totalSubsteps, judge } from "./simulate";
+export { simulate, totalSubsteps } from "./simulate";
+export { judge } from "./verdicts";
 export { DEFAULT_TOLERANCES } from "./constants";
 export { boxSceneProblem, snapshotOverlaps } from "./scenes";
 export * from "./analytic";

@@ -107,6 +107,11 @@ export class TangentialContacts {
     this.dampingRatio = parameters.dampingRatio;
     this.rollingResistance = parameters.rollingResistance;
     this.previousCount = 0;
+    this.clearPass();
+  }
+
+  /** Empties the pass's contact list and its sums (the history of the previous pass stays). */
+  private clearPass(): void {
     this.currentCount = 0;
     this.cursor = 0;
     this.maxOmegaSquared = 0;
@@ -149,14 +154,7 @@ export class TangentialContacts {
     this.previousSliding = this.currentSliding;
     this.currentSliding = swapSliding;
     this.previousCount = this.currentCount;
-    this.currentCount = 0;
-    this.cursor = 0;
-    this.maxOmegaSquared = 0;
-    this.slidingContacts = 0;
-    this.stickingContacts = 0;
-    this.maxSlipMPerS = 0;
-    this.springPotentialJ = 0;
-    this.wallTorqueNm = 0;
+    this.clearPass();
   }
 
   /**

@@ -4,6 +4,7 @@
  * and typed arrays only (it crosses threads by structured clone).
  */
 import { simulate } from "../physics/index";
+import { createRunScratch } from "../physics/simulate";
 import type { Scenario } from "../physics/types";
 import { scenarioKey } from "./cell-key";
 import { expandAxes, forEachCellInRange, type SweepCell } from "./grid";
@@ -104,10 +105,12 @@ export function runChunkTask(task: ChunkTask): ChunkOutcome {
   const withKeys = task.keys === true;
   writer.hasKeys = withKeys;
   let workUnits = 0;
+  // The chunk's cells run one after another on this thread and share one scratch.
+  const scratch = createRunScratch();
   forEachCell(task, (cell) => {
     let run;
     try {
-      run = simulate(cell.scenario);
+      run = simulate(cell.scenario, {}, scratch);
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error);
       throw new Error(`cell ${cell.index} of chunk ${task.chunkIndex} failed in the engine: ${message}`);

@@ -129,7 +129,7 @@ export function predictCellNs(scenario: Scenario, constants: CostConstants = CAL
   const scene = scenario.scene;
   switch (scene.kind) {
     // With friction the engine integrates rotation and never jumps over free flight
-    // (lib/physics/simulate.ts): every step is taken, each at the friction factor.
+    // (lib/physics/simulate.ts, step-loop.ts): every step is taken, each at the friction factor.
     case "pair":
       if (frictionCostFactor(scenario) > 1) return constants.pairCellOverheadNs + stepsPerCell(scenario) * constants.pairContactStepNs * FRICTION_STEP_COST_FACTOR;
       return constants.pairCellOverheadNs + contactEstimate(scenario).contactSteps * constants.pairContactStepNs;

@@ -12,12 +12,11 @@
  * - The expected figure runs a deterministic sample of the cells through the engine and scales
  *   their measured units to the rest by each cell's ceiling (ratio estimate).
  */
-import { simulate } from "../physics/simulate";
+import { createRunScratch, simulate, totalSubsteps } from "../physics/simulate";
 import { MAX_BODIES_FOR_FREE_FLIGHT_JUMPS } from "../physics/constants";
 import { wallCount, workUnitCeiling, type WorkShape } from "../physics/work-units";
 import { METERING_WORK_UNITS, WORK_UNITS_PER_BILLED_MS, type Metering } from "./metering-rate";
 import type { Scenario } from "../physics/types";
-import { totalSubsteps } from "../physics/simulate";
 import { bodyCount } from "./axes";
 import type { ChunkPlan } from "./chunks";
 import { expandAxes, forEachCellInRange, type ExpandedAxis } from "./grid";
@@ -122,9 +121,10 @@ export function meterSweep(spec: SweepSpec, plan: readonly ChunkPlan[], cached: 
   let sampleCeiling = 0;
   if (sampleSet.size > 0) {
     const sorted = [...sampleSet].sort((a, b) => a - b);
+    const scratch = createRunScratch();
     for (const index of sorted) {
       forEachCellInRange(spec, axes, index, 1, (cell) => {
-        const units = simulate(cell.scenario).workUnits;
+        const units = simulate(cell.scenario, {}, scratch).workUnits;
         measured.set(index, units);
         sampleUnits += units;
         sampleCeiling += ceilingOf[index];

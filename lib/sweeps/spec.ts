@@ -10,24 +10,23 @@
  */
 import { z } from "@/lib/zod";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
-import { boxSceneProblem, describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
+import { describeSnapshotOverlap, snapshotOverlaps } from "../physics/scenes";
 import { VERDICT_RULES_VERSION, VERDICT_RULES_VERSIONS, type Scenario, type SceneKind, type Tolerances } from "../physics/types";
 import {
   SPEC_LIMITS,
-  findParameter,
   formatLimit,
   numericRule,
   rangeViolation,
   readNumericField,
   SNAPSHOT_FIELD_RULES,
-  scenesOfPath,
-  SWEEPABLE_PATHS,
   type NumericParameter,
 } from "./parameters";
 
 export { SPEC_LIMITS, SWEEPABLE_PARAMETERS, parametersForScene } from "./parameters";
 export { axisValues, bodyCount, stepsPerCell } from "./axes";
-import { PAIR_AXIS_PATH, applyAxisValues, axisValues, bodyCount, isIntegerParameter, type AxisFields } from "./axes";
+export { cornerScenarios } from "./spec-corners";
+import type { AxisFields } from "./axes";
+import { checkSweep } from "./spec-rules";
 
 /** Tolerances used when a spec leaves them out: the engine's own defaults. */
 export const SPEC_DEFAULT_TOLERANCES: Readonly<Required<Omit<Tolerances, RestingTolerance>>> = Object.freeze({
@@ -273,7 +272,7 @@ export const tolerancesSchema = z.strictObject({
   energyDriftRel: boundedNumber("tolerances.energyDriftRel", 0, false, 1e6),
   maxOverlapFraction: boundedNumber("tolerances.maxOverlapFraction", 0, false, 100),
   blowUpEnergyFactor: boundedNumber("tolerances.blowUpEnergyFactor", 1, false, 1e300),
-  // Used by verdict rules 2 (lib/physics/simulate.ts judgeByRules2); defaults and their basis in lib/physics/constants.ts.
+  // Used by verdict rules 2 (lib/physics/verdicts.ts judgeByRules2); defaults and their basis in lib/physics/constants.ts.
   amplificationLimit: boundedNumber("tolerances.amplificationLimit", 1, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.amplificationLimit),
   restitutionRel: boundedNumber("tolerances.restitutionRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.restitutionRel),
   energyPeakRel: boundedNumber("tolerances.energyPeakRel", 0, false, 1e6).default(SPEC_DEFAULT_TOLERANCES.energyPeakRel),
@@ -359,116 +358,6 @@ const axisMatchesHelpers: Assignable<AxisSpec, AxisFields> = true;
 void axisMatchesHelpers;
 
 // ---------------------------------------------------------------------------
-// Checks that need a whole scenario (run on the base and on every corner of the grid)
-
-interface ScenarioProblem {
-  /** Stable id of the check, to report each check once. */
-  check: string;
-  /** Scenario fields the check depends on, first the most telling one. */
-  paths: string[];
-  message: string;
-  /** How far past the limit (value / limit); the worst corner is reported. */
-  severity: number;
-}
-
-function scenarioProblems(scenario: Scenario): ScenarioProblem[] {
-  const problems: ScenarioProblem[] = [];
-  const { contact, scene } = scenario;
-
-  if (contact.model === "linear") {
-    if (contact.stiffness === undefined) {
-      problems.push({ check: "linear-stiffness", paths: ["contact.model", "contact.stiffness"], message: "the linear contact model needs contact.stiffness (N/m)", severity: 1 });
-    }
-    if (contact.material !== undefined) {
-      problems.push({ check: "linear-material", paths: ["contact.model", "contact.material"], message: "contact.material applies to the hertz model only; the linear model takes contact.stiffness", severity: 1 });
-    }
-  } else if ((contact.stiffness === undefined) === (contact.material === undefined)) {
-    problems.push({
-      check: "hertz-stiffness",
-      paths: ["contact.model", "contact.stiffness"],
-      message: "the hertz contact model needs exactly one of contact.stiffness (N/m^1.5) or contact.material",
-      severity: 1,
-    });
-  }
-  if (contact.wall !== undefined && (contact.model !== "hertz" || contact.material === undefined)) {
-    problems.push({ check: "wall-material", paths: ["contact.wall", "contact.material"], message: "contact.wall applies to the hertz model with contact.material only (a given stiffness is used at walls as it is)", severity: 1 });
-  }
-
-  const subStepS = scenario.dtS / scenario.substeps;
-  if (scenario.durationS < subStepS) {
-    problems.push({
-      check: "duration-below-step",
-      paths: ["durationS", "dtS", "substeps"],
-      message: `durationS ${scenario.durationS} s is shorter than one integrator step (dtS / substeps = ${subStepS} s)`,
-      severity: subStepS / scenario.durationS,
-    });
-  }
-  const steps = (scenario.durationS * scenario.substeps) / scenario.dtS;
-  if (steps > SPEC_LIMITS.maxStepsPerCell) {
-    problems.push({
-      check: "steps-per-cell",
-      paths: ["dtS", "substeps", "durationS"],
-      message: `steps per cell (durationS ${scenario.durationS} s × substeps ${scenario.substeps} / dtS ${scenario.dtS} s = ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxStepsPerCell)}`,
-      severity: steps / SPEC_LIMITS.maxStepsPerCell,
-    });
-  }
-
-  if (scene.kind === "pair") {
-    const massBRule = numericRule("scene.massBKg", "pair");
-    const massProblem = rangeViolation(massBRule, scene.massBKg);
-    if (massProblem) {
-      problems.push({ check: "mass-b", paths: ["scene.massRatio", "scene.massBKg", "scene.massAKg"], message: massProblem, severity: 2 });
-    }
-    if (!(scene.speedAMPerS + scene.speedBMPerS > 0)) {
-      problems.push({
-        check: "pair-approach",
-        paths: ["scene.speedAMPerS", "scene.speedBMPerS"],
-        message: "scene.speedAMPerS + scene.speedBMPerS must be > 0 so the discs approach; got 0",
-        severity: 1,
-      });
-    }
-  }
-
-  if (scene.kind === "row" || scene.kind === "box" || scene.kind === "snapshot") {
-    const bodies = bodyCount(scenario);
-    const countPath = scene.kind === "snapshot" ? "scene.bodies" : "scene.count";
-    if (bodies > SPEC_LIMITS.maxBodies) {
-      problems.push({
-        check: "bodies",
-        paths: [countPath],
-        message: `${formatLimit(bodies)} bodies exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodies)}`,
-        severity: bodies / SPEC_LIMITS.maxBodies,
-      });
-    }
-    const bodySteps = bodies * Math.ceil(steps);
-    if (bodySteps > SPEC_LIMITS.maxBodyStepsPerCell) {
-      problems.push({
-        check: "body-steps",
-        paths: [countPath, "dtS", "durationS", "substeps"],
-        message: `bodies × steps per cell (${formatLimit(bodies)} × ${formatLimit(Math.ceil(steps))}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxBodyStepsPerCell)}`,
-        severity: bodySteps / SPEC_LIMITS.maxBodyStepsPerCell,
-      });
-    }
-  }
-
-  if (scene.kind === "box") {
-    // The engine's own layout rule (one disc per grid cell wider than a diameter), so a spec
-    // accepted here is one the engine can lay out.
-    const layoutProblem = boxSceneProblem(scene);
-    if (layoutProblem) {
-      const areaFraction = (scene.count * Math.PI * scene.radiusM * scene.radiusM) / (scene.widthM * scene.heightM);
-      problems.push({
-        check: "box-layout",
-        paths: ["scene.count", "scene.radiusM", "scene.widthM", "scene.heightM"],
-        message: layoutProblem,
-        severity: areaFraction,
-      });
-    }
-  }
-  return problems;
-}
-
-// ---------------------------------------------------------------------------
 // The sweep spec
 
 const sweepSpecObject = z.strictObject({
@@ -485,332 +374,9 @@ const sweepSpecObject = z.strictObject({
     .default(() => []),
 });
 
-type AddIssue = (path: (string | number)[], message: string) => void;
-
-/** Per-axis checks; returns the axis values when the axis is sound. */
-function checkAxis(axis: AxisSpec, index: number, scenario: Scenario, addIssue: AddIssue): (number | string)[] | null {
-  const at = (...rest: (string | number)[]) => ["axes", index, ...rest];
-  const sceneKind = scenario.scene.kind;
-  if (axis.parameter === PAIR_AXIS_PATH) return checkPairAxis(axis, scenario, at, addIssue);
-  if (axis.pairs !== undefined) {
-    addIssue(at("pairs"), `pairs belong to a ${PAIR_AXIS_PATH} axis only`);
-    return null;
-  }
-  if (axis.values !== undefined && axis.values.length > SPEC_LIMITS.maxListValues) {
-    addIssue(at("values"), `values may list at most ${SPEC_LIMITS.maxListValues} entries`);
-    return null;
-  }
-  if (!SWEEPABLE_PATHS.includes(axis.parameter)) {
-    addIssue(at("parameter"), `unknown parameter "${axis.parameter}"; sweepable parameters: ${SWEEPABLE_PATHS.join(", ")}`);
-    return null;
-  }
-  const parameter = findParameter(axis.parameter, sceneKind);
-  if (!parameter) {
-    addIssue(at("parameter"), `${axis.parameter} does not apply to the ${sceneKind} scene (it applies to: ${scenesOfPath(axis.parameter).join(", ")})`);
-    return null;
-  }
-
-  // Parameters that exist only with a matching contact set-up.
-  const contact = scenario.contact;
-  const needs = (condition: boolean, message: string) => {
-    if (!condition) addIssue(at("parameter"), message);
-    return condition;
-  };
-  if (axis.parameter === "contact.stiffness" && !needs(contact.material === undefined, "contact.stiffness cannot be swept while contact.material sets the Hertz stiffness")) return null;
-  if (axis.parameter.startsWith("contact.material.") && !needs(contact.material !== undefined, `${axis.parameter} needs contact.material in the scenario`)) return null;
-  if (axis.parameter === "contact.damping.coefficient" && !needs(contact.damping.kind === "coefficient", `contact.damping.coefficient needs scenario.contact.damping.kind "coefficient"; it is "${contact.damping.kind}"`)) return null;
-  if (axis.parameter === "contact.damping.restitution" && !needs(contact.damping.kind === "restitution", `contact.damping.restitution needs scenario.contact.damping.kind "restitution"; it is "${contact.damping.kind}"`)) return null;
-
-  if (parameter.kind === "choice") {
-    if (!axis.values || axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
-      addIssue(at("values"), `${axis.parameter} is a choice: list the choices in values (${parameter.choices.join(", ")}), without spacing, from, to or count`);
-      return null;
-    }
-    let sound = true;
-    axis.values.forEach((value, j) => {
-      if (typeof value !== "string" || !parameter.choices.includes(value)) {
-        addIssue(at("values", j), `${axis.parameter} must be one of ${parameter.choices.join(", ")}; got ${JSON.stringify(value)}`);
-        sound = false;
-      }
-    });
-    if (!sound) return null;
-    if (new Set(axis.values).size !== axis.values.length) {
-      addIssue(at("values"), `values of ${axis.parameter} must be distinct`);
-      return null;
-    }
-    return [...axis.values];
-  }
-
-  // Numeric parameter: either a range or a list of numbers.
-  if (axis.values !== undefined) {
-    if (axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
-      addIssue(at("values"), "give either values or spacing/from/to/count, not both");
-      return null;
-    }
-    let sound = true;
-    axis.values.forEach((value, j) => {
-      const problem = typeof value === "number" ? rangeViolation(parameter, value) : `${parameter.label} must be a number; got ${JSON.stringify(value)}`;
-      if (problem) {
-        addIssue(at("values", j), problem);
-        sound = false;
-      }
-    });
-    if (!sound) return null;
-    if (new Set(axis.values).size !== axis.values.length) {
-      addIssue(at("values"), `values of ${axis.parameter} must be distinct`);
-      return null;
-    }
-    return [...axis.values];
-  }
-
-  let sound = true;
-  for (const key of ["spacing", "from", "to", "count"] as const) {
-    if (axis[key] === undefined) {
-      addIssue(at(key), `${key} is required for a range axis of ${axis.parameter} (or give values)`);
-      sound = false;
-    }
-  }
-  if (!sound) return null;
-  for (const key of ["from", "to"] as const) {
-    // Whole-number parameters are checked for integer ends below, with a clearer message.
-    const problem = rangeViolation({ ...parameter, integer: false }, axis[key] as number);
-    if (problem) {
-      addIssue(at(key), problem);
-      sound = false;
-    }
-  }
-  if (!sound) return null;
-  const from = axis.from as number;
-  const to = axis.to as number;
-  const count = axis.count as number;
-  if (axis.spacing === "log" && !(from > 0 && to > 0)) {
-    addIssue(at(from > 0 ? "to" : "from"), `log spacing needs from and to > 0; got from ${from}, to ${to}`);
-    return null;
-  }
-  if (count === 1 && from !== to) {
-    addIssue(at("count"), `count 1 takes a single value: set from = to (got from ${from}, to ${to}) or use values`);
-    return null;
-  }
-  if (count > 1 && from === to) {
-    addIssue(at("count"), `from = to = ${from} gives one value; count must be 1 (got ${count})`);
-    return null;
-  }
-  if (count > SPEC_LIMITS.maxCellsPerSweep) {
-    addIssue(at("count"), `count ${formatLimit(count)} exceeds the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`);
-    return null;
-  }
-  const values = axisValues(axis, parameter.integer);
-  if (parameter.integer) {
-    for (const key of ["from", "to"] as const) {
-      if (!Number.isInteger(axis[key])) {
-        addIssue(at(key), `${parameter.label} is a whole number: ${key} must be an integer; got ${axis[key]}`);
-        return null;
-      }
-    }
-    const distinct = new Set(values).size;
-    if (distinct !== values.length) {
-      addIssue(at("count"), `${parameter.label} is a whole number: from ${from} to ${to} gives only ${distinct} distinct values with ${axis.spacing} spacing; count ${count} asked`);
-      return null;
-    }
-  }
-  return values;
-}
-
-/** Scene fields a pair axis sets: no other axis may sweep them. */
-const PAIR_AXIS_FIELDS = ["scene.massAKg", "scene.massBKg", "scene.massRatio", "scene.radiusAM", "scene.radiusBM", "scene.speedAMPerS", "scene.speedBMPerS"];
-
-/** A scene.pair axis: a list of pair names in values, each defined once, in the same order, in pairs. */
-function checkPairAxis(axis: AxisSpec, scenario: Scenario, at: (...rest: (string | number)[]) => (string | number)[], addIssue: AddIssue): string[] | null {
-  if (scenario.scene.kind !== "pair") {
-    addIssue(at("parameter"), `${PAIR_AXIS_PATH} applies to the pair scene only (the scenario's scene is ${scenario.scene.kind})`);
-    return null;
-  }
-  if (axis.spacing !== undefined || axis.from !== undefined || axis.to !== undefined || axis.count !== undefined) {
-    addIssue(at("values"), `${PAIR_AXIS_PATH} is a list axis: give values (pair names) and pairs, without spacing, from, to or count`);
-    return null;
-  }
-  if (!axis.values || !axis.pairs) {
-    addIssue(at(axis.values ? "pairs" : "values"), `${PAIR_AXIS_PATH} needs values (the pair names) and pairs (what each name sets), in the same order`);
-    return null;
-  }
-  if (axis.values.length !== axis.pairs.length) {
-    addIssue(at("pairs"), `values list ${axis.values.length} pair names but pairs defines ${axis.pairs.length}`);
-    return null;
-  }
-  let sound = true;
-  axis.values.forEach((value, j) => {
-    if (value !== axis.pairs?.[j].name) {
-      addIssue(at("values", j), `values.${j} must be the name of pairs.${j} (${JSON.stringify(axis.pairs?.[j].name)}); got ${JSON.stringify(value)}`);
-      sound = false;
-    }
-  });
-  if (!sound) return null;
-  if (new Set(axis.values).size !== axis.values.length) {
-    addIssue(at("values"), `pair names on ${PAIR_AXIS_PATH} must be distinct`);
-    return null;
-  }
-  const perPairStiffness = axis.pairs.some((pair) => pair.stiffness !== undefined);
-  if (perPairStiffness && !axis.pairs.every((pair) => pair.stiffness !== undefined)) {
-    addIssue(at("pairs"), "give a stiffness for every pair or for none");
-    return null;
-  }
-  if (perPairStiffness && scenario.contact.material !== undefined) {
-    addIssue(at("pairs"), "pairs with their own stiffness cannot be used while contact.material sets the Hertz stiffness");
-    return null;
-  }
-  const perPairRestitution = axis.pairs.some((pair) => pair.restitution !== undefined);
-  if (perPairRestitution && !axis.pairs.every((pair) => pair.restitution !== undefined)) {
-    addIssue(at("pairs"), "give a restitution for every pair or for none");
-    return null;
-  }
-  if (perPairRestitution && scenario.contact.damping.kind !== "restitution") {
-    addIssue(at("pairs"), `pairs with their own restitution need scenario.contact.damping.kind "restitution"; it is "${scenario.contact.damping.kind}"`);
-    return null;
-  }
-  for (const field of ["friction", "rollingResistance"] as const) {
-    const given = axis.pairs.filter((pair) => pair[field] !== undefined).length;
-    if (given > 0 && given < axis.pairs.length) {
-      addIssue(at("pairs"), `give a ${field === "friction" ? "friction" : "rollingResistance"} for every pair or for none`);
-      return null;
-    }
-  }
-  for (const [j, pair] of axis.pairs.entries()) {
-    if (!(pair.speedAMPerS + pair.speedBMPerS > 0)) {
-      addIssue(at("pairs", j), `pair ${JSON.stringify(pair.name)}: speedAMPerS + speedBMPerS must be > 0 so the discs approach`);
-      return null;
-    }
-  }
-  return [...axis.values] as string[];
-}
-
-function cartesian<T>(lists: readonly (readonly T[])[]): T[][] {
-  let combos: T[][] = [[]];
-  for (const list of lists) {
-    const next: T[][] = [];
-    for (const combo of combos) for (const item of list) next.push([...combo, item]);
-    combos = next;
-  }
-  return combos;
-}
-
-/** The values of an axis that bound every monotone limit: the smallest and largest number, or every choice. */
-function extremes(values: readonly (number | string)[]): (number | string)[] {
-  if (typeof values[0] === "string") return [...values];
-  const numbers = values as number[];
-  let lo = numbers[0];
-  let hi = numbers[0];
-  for (const value of numbers) {
-    if (value < lo) lo = value;
-    if (value > hi) hi = value;
-  }
-  return lo === hi ? [lo] : [lo, hi];
-}
-
-/**
- * The cells at the corners of a parsed spec's grid (each numeric axis at its ends, every choice):
- * every limit that is monotone in each parameter (steps per cell, bodies) is at its worst in one of
- * them, so quotas can be checked without visiting every cell.
- */
-export function cornerScenarios(spec: SweepSpec): Scenario[] {
-  const sceneKind = spec.scenario.scene.kind;
-  const lists = spec.axes.map((axis) => extremes(axisValues(axis, isIntegerParameter(axis.parameter, sceneKind))));
-  return cartesian(lists).map((corner) => applyAxisValues(spec.scenario as Scenario, spec.axes, corner));
-}
-
-function describeCorner(axes: readonly AxisSpec[], corner: readonly (number | string)[]): string {
-  return axes.map((axis, i) => `${axis.parameter} = ${corner[i]}`).join(", ");
-}
-
-function checkSweep(spec: z.output<typeof sweepSpecObject>, addIssue: AddIssue): void {
-  const scenario = spec.scenario as Scenario;
-  const axisValueLists: (number | string)[][] = [];
-  let axesSound = true;
-
-  const seen = new Map<string, number>();
-  spec.axes.forEach((axis, i) => {
-    const earlier = seen.get(axis.parameter);
-    if (earlier !== undefined) {
-      addIssue(["axes", i, "parameter"], `${axis.parameter} is already swept by axes.${earlier}`);
-      axesSound = false;
-      return;
-    }
-    seen.set(axis.parameter, i);
-    const values = checkAxis(axis, i, scenario, addIssue);
-    if (values) axisValueLists.push(values);
-    else axesSound = false;
-  });
-  const pairAxis = seen.get(PAIR_AXIS_PATH);
-  if (pairAxis !== undefined) {
-    for (const field of PAIR_AXIS_FIELDS) {
-      const clash = seen.get(field);
-      if (clash !== undefined) {
-        addIssue(["axes", clash, "parameter"], `${field} is set by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
-        axesSound = false;
-      }
-    }
-    const stiffnessAxis = seen.get("contact.stiffness");
-    if (stiffnessAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.stiffness !== undefined)) {
-      addIssue(["axes", stiffnessAxis, "parameter"], `contact.stiffness is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
-      axesSound = false;
-    }
-    const restitutionAxis = seen.get("contact.damping.restitution");
-    if (restitutionAxis !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair.restitution !== undefined)) {
-      addIssue(["axes", restitutionAxis, "parameter"], `contact.damping.restitution is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
-      axesSound = false;
-    }
-    for (const [field, path] of [
-      ["friction", "contact.friction.coefficient"],
-      ["rollingResistance", "contact.rollingResistance"],
-    ] as const) {
-      const clash = seen.get(path);
-      if (clash !== undefined && spec.axes[pairAxis].pairs?.some((pair) => pair[field] !== undefined)) {
-        addIssue(["axes", clash, "parameter"], `${path} is set per pair by the ${PAIR_AXIS_PATH} axis (axes.${pairAxis}): it cannot be swept as well`);
-        axesSound = false;
-      }
-    }
-  }
-  if (seen.has("scene.massRatio") && seen.has("scene.massBKg")) {
-    addIssue(["axes", seen.get("scene.massRatio") as number, "parameter"], "scene.massRatio sets massBKg: it cannot be swept together with scene.massBKg");
-    axesSound = false;
-  }
-
-  if (!axesSound) {
-    // Still check the base scenario on its own.
-    for (const problem of scenarioProblems(scenario)) addIssue(["scenario", ...problem.paths[0].split(".")], problem.message);
-    return;
-  }
-
-  const cells = axisValueLists.reduce((product, values) => product * values.length, 1);
-  if (cells > SPEC_LIMITS.maxCellsPerSweep) {
-    addIssue(
-      ["axes"],
-      `${formatLimit(cells)} cells (${axisValueLists.map((values) => formatLimit(values.length)).join(" × ")}) exceed the limit of ${formatLimit(SPEC_LIMITS.maxCellsPerSweep)} cells per sweep`,
-    );
-    return;
-  }
-
-  // Every limit below is monotone in each parameter, so the corners of the
-  // grid (each axis at its smallest and largest value, every choice) bound all cells.
-  const worst = new Map<string, { problem: ScenarioProblem; corner: (number | string)[] }>();
-  for (const corner of cartesian(axisValueLists.map(extremes))) {
-    const cellScenario = applyAxisValues(scenario, spec.axes, corner);
-    for (const problem of scenarioProblems(cellScenario)) {
-      const known = worst.get(problem.check);
-      if (!known || problem.severity > known.problem.severity) worst.set(problem.check, { problem, corner });
-    }
-  }
-  for (const { problem, corner } of worst.values()) {
-    const axisIndex = spec.axes.findIndex((axis) => problem.paths.includes(axis.parameter));
-    if (axisIndex >= 0) {
-      addIssue(["axes", axisIndex], `at ${describeCorner(spec.axes, corner)}: ${problem.message}`);
-    } else {
-      addIssue(["scenario", ...problem.paths[0].split(".")], spec.axes.length ? `${problem.message} (at ${describeCorner(spec.axes, corner)})` : problem.message);
-    }
-  }
-}
-
+/** The spec schema with its whole-spec rules (axes, clashes, cell limit, grid corners: ./spec-rules.ts). */
 export const sweepSpecSchema = sweepSpecObject.superRefine((spec, ctx) => {
-  checkSweep(spec, (path, message) => ctx.addIssue({ code: "custom", path, message }));
+  checkSweep(spec.scenario as Scenario, spec.axes, (path, message) => ctx.addIssue({ code: "custom", path, message }));
 });
 
 export type SweepSpecInput = z.input<typeof sweepSpecSchema>;

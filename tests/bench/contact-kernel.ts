@@ -15,7 +15,7 @@
  */
 import { availableParallelism, loadavg } from "node:os";
 import { simulate } from "../../lib/physics/index";
-import { totalSubsteps } from "../../lib/physics/simulate";
+import { createRunScratch, totalSubsteps } from "../../lib/physics/simulate";
 import { buildScene } from "../../lib/physics/scenes";
 import { linearDampingRatioForRestitution } from "../../lib/physics/damping";
 import type { Scenario } from "../../lib/physics/types";
@@ -116,7 +116,9 @@ function tightPair(scenario: Scenario, steps: number): number {
 
 async function pairSections(binary: string | null): Promise<void> {
   const scenarios = pairGridScenarios();
-  const steps = scenarios.map((scenario) => simulate(scenario, { stepping: "plain" }).metrics.steps);
+  // One scratch for all the cells, as a chunk of a sweep runs them (lib/sweeps/chunk-task.ts).
+  const scratch = createRunScratch();
+  const steps = scenarios.map((scenario) => simulate(scenario, { stepping: "plain" }, scratch).metrics.steps);
   const totalSteps = steps.reduce((sum, value) => sum + value, 0);
   const countedSteps = scenarios.reduce((sum, scenario) => sum + totalSubsteps(scenario), 0);
   console.log(`pair grid: ${scenarios.length} cells, ${formatSi(totalSteps)} steps integrated (${formatSi(countedSteps)} counted; exploded cells stop early)`);
@@ -147,17 +149,17 @@ async function pairSections(binary: string | null): Promise<void> {
   // compilation of a kernel can take longer than one pass (a fast pass takes well under a millisecond).
   for (let pass = 0; pass < WARM_UP_PASSES; pass++) {
     scenarios.forEach((scenario, cell) => {
-      simulate(scenario, { stepping: "plain" });
+      simulate(scenario, { stepping: "plain" }, scratch);
       sink += tightPair(scenario, steps[cell]);
     });
   }
-  for (let pass = 0; pass < WARM_UP_PASSES * 10; pass++) scenarios.forEach((scenario) => simulate(scenario));
+  for (let pass = 0; pass < WARM_UP_PASSES * 10; pass++) scenarios.forEach((scenario) => simulate(scenario, {}, scratch));
   const passes = (fn: () => void) => () => {
     for (let pass = 0; pass < PAIR_PASSES; pass++) fn();
   };
   console.log(`pair grid rounds start: ${loadNote()}`);
   for (let round = 0; round < PAIR_ROUNDS; round++) {
-    const engine = timesOf(passes(() => scenarios.forEach((scenario) => simulate(scenario, { stepping: "plain" }))));
+    const engine = timesOf(passes(() => scenarios.forEach((scenario) => simulate(scenario, { stepping: "plain" }, scratch))));
     engineS.push(engine.s / PAIR_PASSES);
     engineCpuS.push(engine.cpuS / PAIR_PASSES);
     if (binary) {
@@ -167,7 +169,7 @@ async function pairSections(binary: string | null): Promise<void> {
     }
     tightS.push(secondsOf(passes(() => scenarios.forEach((scenario, cell) => (sink += tightPair(scenario, steps[cell]))))) / PAIR_PASSES);
     const fast = timesOf(() => {
-      for (let pass = 0; pass < FAST_PASSES; pass++) scenarios.forEach((scenario) => simulate(scenario));
+      for (let pass = 0; pass < FAST_PASSES; pass++) scenarios.forEach((scenario) => simulate(scenario, {}, scratch));
     });
     fastS.push(fast.s / FAST_PASSES);
     fastCpuS.push(fast.cpuS / FAST_PASSES);

@@ -6,7 +6,7 @@
  */
 import { simulate } from "../../lib/physics/index";
 import { buildScene } from "../../lib/physics/scenes";
-import { createContactField } from "../../lib/physics/simulate";
+import { createContactField } from "../../lib/physics/contact-setup";
 import { primeForces, stepFunctionFor } from "../../lib/physics/integrators";
 import type { BoxScene, Scenario, SnapshotScene } from "../../lib/physics/types";
 

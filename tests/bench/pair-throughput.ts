@@ -5,6 +5,7 @@
  */
 import { availableParallelism } from "node:os";
 import { simulate } from "../../lib/physics/index";
+import { createRunScratch } from "../../lib/physics/simulate";
 import { cellCount, expandAxes, forEachCellInRange } from "../../lib/sweeps/grid";
 import { planChunks } from "../../lib/sweeps/chunks";
 import { createChunkPool } from "../../lib/sweeps/pool";
@@ -84,9 +85,11 @@ export const pairThroughput: BenchModule = {
     // from expansion, messaging and result handling.
     const scenarios: Scenario[] = [];
     forEachCellInRange(spec, expandAxes(spec), 0, cells, (cell) => scenarios.push(cell.scenario));
-    for (let i = 0; i < scenarios.length; i += 8) simulate(scenarios[i]); // warm-up
+    // One scratch for all the cells, as a chunk of a sweep runs them (lib/sweeps/chunk-task.ts).
+    const scratch = createRunScratch();
+    for (let i = 0; i < scenarios.length; i += 8) simulate(scenarios[i], {}, scratch); // warm-up
     const started = performance.now();
-    for (const scenario of scenarios) simulate(scenario);
+    for (const scenario of scenarios) simulate(scenario, {}, scratch);
     const engineS = (performance.now() - started) / 1e3;
     rows.push(["engine only", engineS.toFixed(3), "", "", formatSi(cellSteps / engineS), formatSi(cellSteps / engineS), formatSi(TARGET_PER_THREAD)]);
     console.log(table(rows));

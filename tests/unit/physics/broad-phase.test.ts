@@ -8,7 +8,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { buildScene } from "@/lib/physics/scenes";
-import { createContactField } from "@/lib/physics/simulate";
+import { createContactField } from "@/lib/physics/contact-setup";
 import { primeForces, stepSymplecticEuler } from "@/lib/physics/integrators";
 import type { Scenario } from "@/lib/physics/types";
 import { mixedBin } from "../../bench/contact-scenes";

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { buildScene } from "@/lib/physics/scenes";
-import { createContactField } from "@/lib/physics/simulate";
+import { createContactField } from "@/lib/physics/contact-setup";
 import { advance, primeForces } from "@/lib/physics/integrators";
 import type { ContactSpec, IntegratorName, Scenario } from "@/lib/physics";
 import { linearContact, logLogSlope, scenario, solveODE } from "./fixtures";

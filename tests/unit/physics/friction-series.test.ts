@@ -3,7 +3,7 @@
  * state per sample (the replay's marks). Invented prop: a "Puckworks" studio's bowling puck.
  */
 import { describe, expect, it } from "vitest";
-import { SERIES_MAX_CONTACTS } from "@/lib/physics/simulate";
+import { SERIES_MAX_CONTACTS } from "@/lib/physics/series";
 import { simulate, slideToRoll, type ContactSpec, type SnapshotScene } from "@/lib/physics";
 import { frictionContactsAt } from "@/lib/charts/replay";
 import { scenario } from "./fixtures";

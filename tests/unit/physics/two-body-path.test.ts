@@ -1,5 +1,5 @@
 /**
- * The two-body loop (`integratePair` in lib/physics/simulate.ts) against the general step loop:
+ * The two-body loop (`integratePair` in lib/physics/pair-loop.ts) against the general step loop:
  * pair cells take the two-body loop unless a broad phase is forced, and `broadPhase: "grid"` sends
  * the same cell through the general path (ContactField.evaluate + the neighbour list), which the
  * kernel-identity digests pin. Every result must be byte-identical (the stored results and cache
@@ -78,7 +78,7 @@ describe("two-body loop for pair cells", () => {
   });
 
   it("stays byte-identical over long runs: many chunks, coasting free flight, contacts at a chunk boundary, pairs at rest or receding", () => {
-    // The two-body loop runs in chunks of steps and coasts free flight (lib/physics/simulate.ts,
+    // The two-body loop runs in chunks of steps and coasts free flight (lib/physics/pair-loop.ts,
     // PAIR_CHUNK_STEPS = 2048): these cells cross many chunks, start a contact on the steps around
     // the first chunk boundary (closing at 1 m/s, dt = 10⁻⁴ s: gap 0.2048 m closes on step 2048), and
     // coast with zero and with receding velocities.
