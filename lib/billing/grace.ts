@@ -29,8 +29,8 @@ export function overageOffAtSql(alias: SQL): SQL {
   return sql`least(${alias}.due_at + make_interval(days => ${OVERDUE_GRACE_DAYS}), ${alias}.overdue_notice_at)`;
 }
 
-/** True when an owed invoice of the studio (`studioId`, a SQL value) is past its grace period at `when`. */
-export function overageHeldSql(studioId: SQL, when: Date): SQL {
+/** True when an owed invoice of the studio (`studioId`, a SQL value) is past its grace period at `when` (default: the database's now). */
+export function overageHeldSql(studioId: SQL, when?: Date): SQL {
   const i = sql.raw("held_i");
-  return sql`exists (select 1 from invoices ${i} where ${i}.studio_id = ${studioId} and ${owedInvoiceSql(i)} and ${overageOffAtSql(i)} <= ${at(when)})`;
+  return sql`exists (select 1 from invoices ${i} where ${i}.studio_id = ${studioId} and ${owedInvoiceSql(i)} and ${overageOffAtSql(i)} <= ${when ? at(when) : sql`now()`})`;
 }

@@ -7,12 +7,12 @@ import { LEDGER_KINDS } from "@/lib/ledger/kinds";
 import { parseWith } from "@/lib/api/body";
 import { csvCell } from "@/lib/csv";
 import { notFound } from "@/lib/errors";
-import { balanceMs } from "@/lib/ledger/ledger";
-import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
+import { balanceMs, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/standing";
+import { effectiveQuotas, monthOf } from "@/lib/quotas/plan";
 import { CREDIT_PACKS, LOW_BALANCE_MS, OVERAGE_CENTS_PER_MINUTE } from "./packs";
 import { overageHold } from "./overdue";
 import { overageSettings } from "./overage-switch";
-import { METER_EVENT_KIND, monthlyOverageMs } from "./usage";
+import { METER_EVENT_KIND } from "./usage";
 
 export async function billingSummary(db: DbOrTx, studioId: string) {
   const now = new Date();

@@ -7,14 +7,13 @@
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { ledgerEntries, studios } from "@/db/schema";
-import { appendLedgerEntry, balanceMs, usageKey } from "@/lib/ledger/ledger";
+import { appendLedgerEntry, usageKey } from "@/lib/ledger/ledger";
+import { chunkDebit, readStanding } from "@/lib/quotas/standing";
 import { queueMail } from "@/lib/outbox/mail";
 import { enqueueOutbox } from "@/lib/outbox/outbox";
-import { effectiveQuotas, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/plan";
 import { billingContacts } from "./catalog";
 import { queueWebhookEvent } from "@/lib/webhooks/webhooks";
 import { lowBalanceMail } from "./mail";
-import { overageHold } from "./overdue";
 import { LOW_BALANCE_MS } from "./packs";
 
 export const METER_EVENT_KIND = "stripe.meter_event";
@@ -61,9 +60,6 @@ export interface ChunkUsageResult {
   overageMs: number;
 }
 
-/** Overage already accrued by the studio in the UTC month of `at` (integer ms); re-exported for the billing views. */
-export { monthlyOverageMs };
-
 export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<ChunkUsageResult> {
   if (!Number.isInteger(usage.computeMs) || usage.computeMs < 0) throw new RangeError(`computeMs must be a non-negative integer; got ${usage.computeMs}`);
   const key = usageKey(usage.sweepId, usage.chunkIndex);
@@ -74,19 +70,12 @@ export async function recordChunkUsage(tx: DbOrTx, usage: ChunkUsage): Promise<C
   if (already) return { billed: false, prepaidMs: 0, overageMs: 0 };
 
   const now = usage.debitedAt ?? new Date();
-  const quotas = await effectiveQuotas(tx, usage.studioId);
-  const balanceBefore = await balanceMs(tx, usage.studioId);
-  const usedThisMonth = await monthlyUsageMs(tx, usage.studioId, now);
-  // Nothing is billed past the monthly compute cap.
-  const billable = Math.min(usage.computeMs, Math.max(0, quotas.monthlyComputeMs - usedThisMonth));
-  const prepaidMs = Math.min(billable, Math.max(0, balanceBefore));
-  let overageMs = 0;
-  // An invoice unpaid past its grace period holds overage off (lib/billing/overdue.ts); the owner's choice stays as it was.
-  if (quotas.overageAllowed && billable > prepaidMs && !(await overageHold(tx, usage.studioId, usage.at)).suspended) {
-    const overageSoFar = await monthlyOverageMs(tx, usage.studioId, now);
-    overageMs = Math.max(0, Math.min(billable - prepaidMs, quotas.overageCapMs - overageSoFar));
-  }
-  const unbilled = usage.computeMs - prepaidMs - overageMs;
+  // Where the studio stands (lib/quotas/standing.ts: the same SQL the queue's recorder reads), the
+  // grace period judged at usage.at (default the database's now), and the debit rule applied to it.
+  const standing = await readStanding(tx, usage.studioId, now, { graceAt: usage.at ?? null });
+  if (!standing) throw new Error(`studio ${usage.studioId} does not exist`);
+  const balanceBefore = standing.balanceMs;
+  const { prepaidMs, overageMs, unbilledMs: unbilled } = chunkDebit(standing, usage.computeMs);
   const memo = unbilled > 0 ? `${usage.memo}; ${unbilled} ms past the balance or a cap not billed` : usage.memo;
   const billed = await appendLedgerEntry(tx, {
     studioId: usage.studioId,

@@ -1,4 +1,3 @@
-import { eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { ledgerEntries } from "@/db/schema";
 import type { LedgerKind } from "./kinds";
@@ -49,15 +48,6 @@ export async function appendLedgerEntry(db: DbOrTx, entry: LedgerWrite): Promise
     .onConflictDoNothing({ target: ledgerEntries.idempotencyKey })
     .returning({ id: ledgerEntries.id });
   return inserted.length > 0;
-}
-
-/** Compute balance of a studio: the sum of its ledger entries (integer ms, may be negative). */
-export async function balanceMs(db: DbOrTx, studioId: string): Promise<number> {
-  const [row] = await db
-    .select({ total: sql<string | null>`coalesce(sum(${ledgerEntries.computeMs}), 0)` })
-    .from(ledgerEntries)
-    .where(eq(ledgerEntries.studioId, studioId));
-  return Number(row?.total ?? 0);
 }
 
 export function welcomeGrant(studioId: string): LedgerWrite {

@@ -6,7 +6,9 @@
  * after a lost lease is billed once).
  *
  * Far from every limit (balance well above the low-balance mark, usage well under the monthly cap:
- * the usual case) that is one statement on its own, kickdrift_record_chunk, which debits in place.
+ * the usual case) that is one statement on its own, kickdrift_record_chunk, which debits in place:
+ * the debit rule (lib/quotas/standing.ts chunkDebit) would take the whole chunk from the balance, and
+ * the function reads the balance, usage and cap from kickdrift_studio_standing, as that module does.
  * Near a limit the chunk is recorded in a transaction whose debit goes through lib/billing/usage.ts
  * (prepaid first, overage metered through the outbox, nothing billed past a cap), and the cap alerts
  * are checked after it.

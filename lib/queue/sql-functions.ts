@@ -1,7 +1,8 @@
 /**
  * The queue's SQL functions, called with typed parameters and answering checked rows: the one place
  * TypeScript meets kickdrift_claim_chunks (drizzle/0009_queue_functions.sql) and
- * kickdrift_record_chunk (drizzle/0012_work_unit_record_function.sql, which replaced 0009's). The
+ * kickdrift_record_chunk (drizzle/0012_work_unit_record_function.sql replaced 0009's; drizzle/0020_studio_standing.sql
+ * has it read the studio's standing from kickdrift_studio_standing, as lib/quotas/standing.ts does). The
  * functions are PL/pgSQL so the database plans them once per connection; their comments there say
  * what each step does. A migration that changes a function's signature changes this file with it.
  */

@@ -12,7 +12,7 @@ import { ledgerEntries, sweepChunks, sweepResults, sweeps, type Sweep } from "@/
 import { centsForMs, formatCompute } from "@/lib/billing/format";
 import { CREDIT_PACKS, OVERAGE_CENTS_PER_MINUTE } from "@/lib/billing/packs";
 import { ApiError } from "@/lib/errors";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { enforceSubmitLimits, quoteLimits, type QuoteLimits, type SweepDemand } from "@/lib/quotas/enforce";
 import { VERDICTS } from "@/lib/physics/types";
 import { KeyTable, scenarioKey } from "@/lib/sweeps/cell-key";

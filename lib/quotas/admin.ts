@@ -17,7 +17,8 @@ import { pokeOutbox } from "@/lib/outbox/process";
 import { queueOverageSubscription } from "@/lib/billing/overage-switch";
 import { queueStudioStatusMail } from "@/lib/studios/suspension";
 import { PLAN_DEFAULTS, storedOverage, type Quotas } from "./plan";
-import { RUN_LIMIT_REASONS, monthRemainingMs, overageHeadroomMs, studioStanding, type Standing } from "./enforce";
+import { RUN_LIMIT_REASONS, monthRemainingMs, studioStanding } from "./enforce";
+import { overageHeadroomMs, type Standing } from "./standing";
 
 type Actor = Pick<User, "id" | "email">;
 

@@ -19,8 +19,8 @@ import { ApiError, LimitError } from "@/lib/errors";
 import { layout, type MailContent } from "@/lib/mail/templates";
 import { queueMail } from "@/lib/outbox/mail";
 import { pokeOutbox } from "@/lib/outbox/process";
-import { overageHeldSql } from "@/lib/billing/grace";
-import { PLAN_DEFAULTS, monthOf, storedOverage, type Quotas } from "./plan";
+import type { Quotas } from "./plan";
+import { overageHeadroomMs, readStanding, type Standing } from "./standing";
 
 /** Why a sweep is paused by the limits (shown to the user as the sweep's reason). */
 export const RUN_LIMIT_REASONS = {
@@ -37,104 +37,15 @@ export function waitingForSlotReason(maxRunningSweeps: number): string {
   return `waiting: the studio already runs ${maxRunningSweeps} sweep${maxRunningSweeps === 1 ? "" : "s"} at once (its limit)`;
 }
 
-/** Where a studio stands against its limits right now (integer ms throughout). */
-export interface Standing {
-  studioStatus: StudioStatus;
-  quotas: Quotas;
-  balanceMs: number;
-  monthKey: string;
-  /** Usage this calendar month (UTC), prepaid and overage. */
-  monthUsedMs: number;
-  /** Overage accrued this calendar month. */
-  monthOverageMs: number;
-  /** Compute reserved by the studio's unfinished sweeps (the unreleased part of their ceilings). */
-  reservedMs: number;
-  runningSweeps: number;
-}
-
-interface StandingRow extends Record<string, unknown> {
-  status: StudioStatus;
-  balance: string | number;
-  used: string | number;
-  overage: string | number;
-  reserved: string | number;
-  running: string | number;
-  monthly_compute_ms: string | number | null;
-  max_running_sweeps: number | null;
-  max_cells_per_sweep: number | null;
-  max_steps_per_cell: number | null;
-  max_bodies: number | null;
-  overage_allowed: boolean | null;
-  overage_on: boolean | null;
-  overage_cap_ms: string | number | null;
-  overage_held: boolean;
-}
-
 function rowsOf<T>(result: unknown): T[] {
   return (result as { rows: T[] }).rows;
 }
 
-/** One query: the studio's status, quotas, balance, month's usage, reservations and running sweeps. */
-async function readStanding(db: DbOrTx, studioId: string, at: Date, lock: boolean): Promise<Standing | null> {
-  const { key, start, end } = monthOf(at);
-  // The lock is its own statement, taken before the standing is read: in PostgreSQL's READ COMMITTED
-  // a statement that waits for a row lock re-reads that row afterwards but not its subqueries, so
-  // one "select … for update" would sum the ledger and the reserved sweeps as they were before the
-  // transaction it waited for committed (two concurrent submits could then both pass a limit).
-  if (lock) await db.execute(sql`select id from studios where id = ${studioId} for update`);
-  const result = await db.execute(sql`
-    select st.status,
-      (select coalesce(sum(l.compute_ms), 0) from ledger_entries l where l.studio_id = st.id) as balance,
-      (select coalesce(sum(l.overage_ms - l.compute_ms), 0) from ledger_entries l
-        where l.studio_id = st.id and l.kind = 'usage' and l.created_at >= ${start.toISOString()}::timestamptz and l.created_at < ${end.toISOString()}::timestamptz) as used,
-      (select coalesce(sum(l.overage_ms), 0) from ledger_entries l
-        where l.studio_id = st.id and l.kind = 'usage' and l.created_at >= ${start.toISOString()}::timestamptz and l.created_at < ${end.toISOString()}::timestamptz) as overage,
-      (select coalesce(sum(case when s.metering = 'wall-clock' then greatest(s.estimated_compute_ms - s.compute_ms, 0)
-          else greatest(s.ceiling_ms - s.released_ceiling_ms, 0) end), 0) from sweeps s
-        where s.studio_id = st.id and s.status in ('queued', 'running', 'paused')) as reserved,
-      (select count(*) from sweeps s where s.studio_id = st.id and s.status = 'running') as running,
-      ${overageHeldSql(sql`st.id`, at)} as overage_held,
-      q.monthly_compute_ms, q.max_running_sweeps, q.max_cells_per_sweep, q.max_steps_per_cell, q.max_bodies, q.overage_allowed, q.overage_on, q.overage_cap_ms
-    from studios st left join studio_quotas q on q.studio_id = st.id
-    where st.id = ${studioId}`);
-  const [row] = rowsOf<StandingRow>(result);
-  if (!row) return null;
-  return standingFromRow(row, key);
-}
-
-function standingFromRow(row: StandingRow, monthKey: string): Standing {
-  const num = (v: string | number | null | undefined, fallback: number) => (v === null || v === undefined ? fallback : Number(v));
-  return {
-    studioStatus: row.status,
-    quotas: {
-      monthlyComputeMs: num(row.monthly_compute_ms, PLAN_DEFAULTS.monthlyComputeMs),
-      maxRunningSweeps: num(row.max_running_sweeps, PLAN_DEFAULTS.maxRunningSweeps),
-      maxCellsPerSweep: num(row.max_cells_per_sweep, PLAN_DEFAULTS.maxCellsPerSweep),
-      maxStepsPerCell: num(row.max_steps_per_cell, PLAN_DEFAULTS.maxStepsPerCell),
-      maxBodies: num(row.max_bodies, PLAN_DEFAULTS.maxBodies),
-      // Permitted by an admin, switched on by the owner (lib/billing/overage-switch.ts), and not held
-      // off by an invoice unpaid past its grace period (lib/billing/overdue.ts).
-      overageAllowed: storedOverage(row.overage_allowed, row.overage_on).both && !row.overage_held,
-      overageCapMs: num(row.overage_cap_ms, PLAN_DEFAULTS.overageCapMs),
-    },
-    balanceMs: Number(row.balance),
-    monthKey,
-    monthUsedMs: Number(row.used),
-    monthOverageMs: Number(row.overage),
-    reservedMs: Number(row.reserved),
-    runningSweeps: Number(row.running),
-  };
-}
-
+/** The studio's standing now (or at `at`); not_found when there is no such studio. */
 export async function studioStanding(db: DbOrTx, studioId: string, at: Date = new Date()): Promise<Standing> {
-  const standing = await readStanding(db, studioId, at, false);
+  const standing = await readStanding(db, studioId, at);
   if (!standing) throw new ApiError("not_found", "Studio not found.");
   return standing;
-}
-
-/** Overage the studio may still accrue this month (0 when overage is not allowed). */
-export function overageHeadroomMs(s: Standing): number {
-  return s.quotas.overageAllowed ? Math.max(0, s.quotas.overageCapMs - s.monthOverageMs) : 0;
 }
 
 /** Compute left under the monthly cap once the unfinished sweeps have their share. */
@@ -240,7 +151,7 @@ export function limitViolations(s: Standing, demand: SweepDemand): LimitViolatio
  * sweep among the reservations. Throws the first broken limit.
  */
 export async function enforceSubmitLimits(tx: DbOrTx, studioId: string, demand: SweepDemand, at: Date = new Date()): Promise<Standing> {
-  const standing = await readStanding(tx, studioId, at, true);
+  const standing = await readStanding(tx, studioId, at, { lock: true });
   if (!standing) throw new ApiError("not_found", "Studio not found.");
   const [first] = limitViolations(standing, demand);
   if (first) {
@@ -313,7 +224,7 @@ export async function applyRunLimits(db: Db, at: Date = new Date()): Promise<voi
       where status in ('queued', 'running') or (status = 'paused' and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)}))`),
   );
   for (const { studio_id: studioId } of active) {
-    const standing = await readStanding(db, studioId, at, false);
+    const standing = await readStanding(db, studioId, at);
     if (!standing) continue;
     const reason = runLimitReason(standing);
     if (reason) {
@@ -364,7 +275,7 @@ export function capAlertMail(input: { studioName: string; studioId: string; thre
  * month, so retries and several runners queue it once.
  */
 export async function sendCapAlerts(db: Db, studioId: string, standing?: Standing): Promise<number> {
-  const s = standing ?? (await readStanding(db, studioId, new Date(), false));
+  const s = standing ?? (await readStanding(db, studioId, new Date()));
   if (!s || s.monthUsedMs <= 0) return 0;
   const due = CAP_ALERT_THRESHOLDS.filter((t) => s.monthUsedMs * 100 >= s.quotas.monthlyComputeMs * t);
   if (due.length === 0) return 0;

@@ -2,9 +2,9 @@
  * The plan: default limits of every studio, and the effective limits of one studio (its
  * studio_quotas row over these defaults). Admins change a studio's row; nothing else does.
  */
-import { and, eq, gte, lt, sql, type SQL } from "drizzle-orm";
+import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { ledgerEntries, studioQuotas } from "@/db/schema";
+import { studioQuotas } from "@/db/schema";
 import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 
 export interface Quotas {
@@ -62,27 +62,4 @@ export function monthOf(at: Date): { key: string; start: Date; end: Date } {
   const start = new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth(), 1));
   const end = new Date(Date.UTC(at.getUTCFullYear(), at.getUTCMonth() + 1, 1));
   return { key: start.toISOString().slice(0, 7), start, end };
-}
-
-/** Sum of one expression over a studio's usage entries created in the calendar month (UTC) of `at`. */
-async function monthlyUsageSum(db: DbOrTx, studioId: string, at: Date, total: SQL): Promise<number> {
-  const { start, end } = monthOf(at);
-  const [row] = await db
-    .select({ total: sql<string | null>`coalesce(sum(${total}), 0)` })
-    .from(ledgerEntries)
-    .where(and(eq(ledgerEntries.studioId, studioId), eq(ledgerEntries.kind, "usage"), gte(ledgerEntries.createdAt, start), lt(ledgerEntries.createdAt, end)));
-  return Number(row?.total ?? 0);
-}
-
-/**
- * Compute a studio used in the calendar month (UTC) that `at` falls in: prepaid and overage
- * alike, from its usage entries (integer ms).
- */
-export function monthlyUsageMs(db: DbOrTx, studioId: string, at: Date = new Date()): Promise<number> {
-  return monthlyUsageSum(db, studioId, at, sql`${ledgerEntries.overageMs} - ${ledgerEntries.computeMs}`);
-}
-
-/** Overage a studio accrued in the calendar month (UTC) that `at` falls in (integer ms). */
-export function monthlyOverageMs(db: DbOrTx, studioId: string, at: Date = new Date()): Promise<number> {
-  return monthlyUsageSum(db, studioId, at, sql`${ledgerEntries.overageMs}`);
 }

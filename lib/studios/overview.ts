@@ -8,11 +8,10 @@ import { and, desc, eq, gte, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, invoices, ledgerEntries, snapshots, memberships, sweeps, type StudioRole } from "@/db/schema";
 import { OVERAGE_CENTS_PER_MINUTE, OVERAGE_UNIT_AMOUNT_DECIMAL } from "@/lib/billing/packs";
-import { monthlyOverageMs } from "@/lib/billing/usage";
 import { checkSettingsSchema, pairMatrix } from "@/lib/catalogues/check";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { balanceMs, monthlyOverageMs, monthlyUsageMs } from "@/lib/quotas/standing";
 import { verdictCountsFrom, storedCells } from "@/lib/queue/views";
-import { effectiveQuotas, monthOf, monthlyUsageMs } from "@/lib/quotas/plan";
+import { effectiveQuotas, monthOf } from "@/lib/quotas/plan";
 import type { VerdictCounts } from "@/lib/sweeps/results";
 
 /** Days of daily usage the trend shows. */

@@ -9,7 +9,7 @@ import type { Db } from "@/db/client";
 import { auditLog, ledgerEntries, outbox, users, type User } from "@/db/schema";
 import { formatCompute } from "@/lib/billing/format";
 import { AUDIT_CSV_COLUMNS, ensureAuditAppendOnly } from "@/lib/audit/audit";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { PLAN_DEFAULTS } from "@/lib/quotas/plan";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeUser } from "../helpers/factories";

@@ -2,7 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { ledgerEntries, studioQuotas } from "@/db/schema";
 import { appendLedgerEntry } from "@/lib/ledger/ledger";
-import { effectiveQuotas, monthlyUsageMs, monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { effectiveQuotas, monthOf, PLAN_DEFAULTS } from "@/lib/quotas/plan";
+import { monthlyUsageMs } from "@/lib/quotas/standing";
 import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makeStudio, makeUser } from "../helpers/factories";
 

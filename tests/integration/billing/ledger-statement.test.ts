@@ -6,7 +6,8 @@
 import Papa from "papaparse";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
-import { appendLedgerEntry, balanceMs } from "@/lib/ledger/ledger";
+import { appendLedgerEntry } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { recordChunkUsage } from "@/lib/billing/usage";
 import { submitSweep } from "@/lib/queue/submit";
 import { GET as groupsGet } from "@/app/api/v1/studios/[studioId]/billing/ledger/sweeps/route";

@@ -8,7 +8,7 @@ import { eq, like, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { ledgerEntries, outbox, type User } from "@/db/schema";
 import { takeBackMs } from "@/lib/billing/refunds";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { runLimitReason, RUN_LIMIT_REASONS, studioStanding } from "@/lib/quotas/enforce";
 import { POST as checkoutPost } from "@/app/api/v1/studios/[studioId]/billing/checkout/route";
 import { POST as refundPost } from "@/app/api/v1/admin/studios/[studioId]/refunds/route";

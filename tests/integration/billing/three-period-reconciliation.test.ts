@@ -18,7 +18,8 @@ import { reconcileFinance, runScheduledFinanceReconcile } from "@/lib/billing/fi
 import { deliverMeterEvent } from "@/lib/billing/meter";
 import { OVERAGE_UNIT_AMOUNT_DECIMAL } from "@/lib/billing/packs";
 import { METER_EVENT_KIND, recordChunkUsage } from "@/lib/billing/usage";
-import { balanceMs, usageKey } from "@/lib/ledger/ledger";
+import { usageKey } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { submitSweep } from "@/lib/queue/submit";
 import { POST as checkoutPost } from "@/app/api/v1/studios/[studioId]/billing/checkout/route";
 import { call } from "../../helpers/http";

@@ -5,57 +5,23 @@
  * PostgreSQL. The sweep's billed compute, its ledger debits and the recomputation cell by cell
  * (⌈Σ work units / rate⌉) agree in every run; wall time is recorded per chunk and differs.
  */
-import { Worker } from "node:worker_threads";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb, type Db } from "@/db/client";
 import { sweepChunks } from "@/db/schema";
 import { eq } from "drizzle-orm";
-import { simulate } from "@/lib/physics/index";
 import { QueueRunner } from "@/lib/queue/runner";
 import { submitSweep } from "@/lib/queue/submit";
-import { expandSweep } from "@/lib/sweeps/grid";
-import { billedMsOfUnits } from "@/lib/sweeps/metering";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
+import type { SweepSpec } from "@/lib/sweeps/spec";
 import { closeTestDb, useFreshDb } from "../../helpers/db";
-import { ballPitBoxSpec, crateDropSnapshotSpec, puckPairSpec } from "../../unit/sweeps/fixtures";
+import { busyLoops, METERING_SPECS as SPECS, referenceBillMs } from "../../unit/sweeps/metering-fixtures";
 import { makeSweepStudio, usageEntries, waitForSweep } from "../sweeps/support";
 import { createTestDatabase, PG_URL, reportSkipWithoutPostgres, startWorker, type TestDatabase, type WorkerHandle } from "./support";
 
 reportSkipWithoutPostgres("metering on two worker processes on PostgreSQL");
 
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
-
-const SPECS: [string, SweepSpec][] = [
-  ["pair", parsed(puckPairSpec())],
-  ["box", parsed(ballPitBoxSpec())],
-  ["snapshot", parsed(crateDropSnapshotSpec())],
-];
-
 /** The bill recomputed in this thread, cell by cell. */
-const reference = new Map(SPECS.map(([kind, spec]) => [kind, billedMsOfUnits(expandSweep(spec).reduce((sum, cell) => sum + simulate(cell.scenario).workUnits, 0))]));
-
-function busyLoops(count: number): { stop: () => Promise<void> } {
-  const flag = new Int32Array(new SharedArrayBuffer(4));
-  const workers = Array.from(
-    { length: count },
-    () =>
-      new Worker(
-        `const { workerData } = require("node:worker_threads"); const f = new Int32Array(workerData); let x = 0; while (Atomics.load(f, 0) === 0) { for (let i = 0; i < 1e5; i++) x = (x * 31 + i) | 0; }`,
-        { eval: true, workerData: flag.buffer },
-      ),
-  );
-  return {
-    async stop() {
-      Atomics.store(flag, 0, 1);
-      await Promise.all(workers.map((worker) => worker.terminate()));
-    },
-  };
-}
+const reference = new Map(SPECS.map(([kind, spec]) => [kind, referenceBillMs(spec)]));
 
 /** Submits the spec, waits for it, and returns its bill as the sweep row, the ledger and the chunks record it. */
 async function billOf(db: Db, studioId: string, spec: SweepSpec, maxCellsPerChunk: number) {

@@ -15,7 +15,7 @@ import { cancelSweep } from "@/lib/queue/cancel";
 import { resultStoreKind, resultsDir } from "@/lib/queue/result-store";
 import { quoteSweep, submitSweep } from "@/lib/queue/submit";
 import { cellJson, storedCells } from "@/lib/queue/views";
-import { balanceMs } from "@/lib/ledger/ledger";
+import { balanceMs } from "@/lib/quotas/standing";
 import { simulate } from "@/lib/physics/index";
 import { expandSweep } from "@/lib/sweeps/grid";
 import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering";

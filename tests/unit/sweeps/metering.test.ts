@@ -3,7 +3,6 @@
  * the same to the millisecond for any thread count, chunking and load, and never above the
  * quote's ceiling.
  */
-import { Worker } from "node:worker_threads";
 import fc from "fast-check";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { simulate } from "../../../lib/physics/index";
@@ -15,42 +14,7 @@ import { createChunkPool, type ChunkPool } from "../../../lib/sweeps/pool";
 import { runSweep } from "../../../lib/sweeps/run";
 import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
 import { ballPitBoxSpec, clone, crateDropSnapshotSpec, puckPairSpec, type Draft } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
-
-const SPECS: [string, SweepSpec][] = [
-  ["pair", parsed(puckPairSpec())],
-  ["box", parsed(ballPitBoxSpec())],
-  ["snapshot", parsed(crateDropSnapshotSpec())],
-];
-
-/** The bill recomputed independently: every cell simulated in this thread, units summed, rounded up once. */
-function referenceBillMs(spec: SweepSpec): number {
-  return billedMsOfUnits(expandSweep(spec).reduce((sum, cell) => sum + simulate(cell.scenario).workUnits, 0));
-}
-
-/** Two threads spinning until stopped: both cores busy beside the sweep. */
-function busyLoops(count: number): { stop: () => Promise<void> } {
-  const flag = new Int32Array(new SharedArrayBuffer(4));
-  const workers = Array.from(
-    { length: count },
-    () =>
-      new Worker(
-        `const { workerData } = require("node:worker_threads"); const f = new Int32Array(workerData); let x = 0; while (Atomics.load(f, 0) === 0) { for (let i = 0; i < 1e5; i++) x = (x * 31 + i) | 0; }`,
-        { eval: true, workerData: flag.buffer },
-      ),
-  );
-  return {
-    async stop() {
-      Atomics.store(flag, 0, 1);
-      await Promise.all(workers.map((worker) => worker.terminate()));
-    },
-  };
-}
+import { busyLoops, METERING_SPECS as SPECS, referenceBillMs } from "./metering-fixtures";
 
 let one: ChunkPool;
 let two: ChunkPool;
