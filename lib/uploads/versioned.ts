@@ -222,19 +222,3 @@ export function storedBytes(fileBase64: string): Uint8Array {
 export function fileOf(row: Pick<VersionedRow, "fileName" | "fileBase64" | "contentHash">): { fileName: string; bytes: Uint8Array; contentHash: string } {
   return { fileName: row.fileName, bytes: storedBytes(row.fileBase64), contentHash: row.contentHash };
 }
-
-/** A stored file as a download: the same bytes, their SHA-256 as header and ETag, never cached, never sniffed. */
-export function fileDownload(file: { fileName: string; bytes: Uint8Array; contentHash: string }, contentType: string): Response {
-  const safeName = file.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");
-  return new Response(Buffer.from(file.bytes), {
-    status: 200,
-    headers: {
-      "content-type": contentType,
-      "content-disposition": `attachment; filename="${safeName}"`,
-      "x-content-sha256": file.contentHash,
-      etag: `"${file.contentHash}"`,
-      "cache-control": "no-store",
-      "x-content-type-options": "nosniff",
-    },
-  });
-}

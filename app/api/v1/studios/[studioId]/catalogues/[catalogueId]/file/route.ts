@@ -4,7 +4,8 @@ import { withAuth } from "@/lib/auth/guard";
 import { MEMBERS_READ } from "@/lib/auth/policies";
 import { catalogueOfStudio, catalogueUploadedFile } from "@/lib/catalogues/store";
 import { ApiError } from "@/lib/errors";
-import { fileDownload, fileOf } from "@/lib/uploads/versioned";
+import { fileDownload } from "@/lib/uploads/api";
+import { fileOf } from "@/lib/uploads/versioned";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";

@@ -3,7 +3,8 @@ import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
 import { MEMBERS_READ } from "@/lib/auth/policies";
 import { snapshotOfStudio } from "@/lib/snapshots/store";
-import { fileDownload, fileOf } from "@/lib/uploads/versioned";
+import { fileDownload } from "@/lib/uploads/api";
+import { fileOf } from "@/lib/uploads/versioned";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
