@@ -7,8 +7,9 @@ import { Alert, Card, EmptyState, LoadingRows, PageHeading, TextField, cx } from
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { queryKeys } from "@/lib/ui/queries";
 import type { StudioUsageView } from "@/lib/quotas/admin";
+import { DataTable, type Column } from "@/components/data-table";
 import { AdminNav } from "./admin-nav";
-import { minutes, td, th } from "./admin-format";
+import { minutes } from "./admin-format";
 import { Pager, usePaged } from "./pager";
 
 export function AdminHome() {
@@ -40,50 +41,50 @@ export function AdminHome() {
         ) : studios.data.length === 0 ? (
           <EmptyState>No studios yet.</EmptyState>
         ) : (
-          <div className="relative overflow-x-auto">
-            <table className="w-full text-sm" data-testid="admin-studios">
-              <thead className="border-b border-line">
-                <tr>
-                  <th scope="col" className={th}>Studio</th>
-                  <th scope="col" className={th}>Status</th>
-                  <th scope="col" className={th}>This month / cap</th>
-                  <th scope="col" className={th}>Balance</th>
-                  <th scope="col" className={th}>Sweeps running · queued · paused</th>
-                  <th scope="col" className={th}>Members</th>
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-line">
-                {paged.rows.map((studio) => (
-                    <tr key={studio.id}>
-                      <td className={td}>
-                        <Link href={`/admin/studios/${encodeURIComponent(studio.id)}`} className="font-medium underline-offset-2 hover:underline">
-                          {studio.name}
-                        </Link>
-                        <div className="font-mono text-xs text-ink-muted">{studio.id}</div>
-                      </td>
-                      <td className={cx(td, studio.status === "suspended" && "font-semibold text-danger")}>{studio.status}</td>
-                      <td className={td}>
-                        <div>
-                          {minutes(studio.monthUsedMs)} / {minutes(studio.monthlyComputeMs)}
-                        </div>
-                        <div className="mt-1 h-1.5 w-32 overflow-hidden rounded bg-surface-muted" aria-hidden="true">
-                          <div className={cx("h-full", studio.monthUsedPercent >= 100 ? "bg-danger" : "bg-action")} style={{ width: `${Math.min(100, studio.monthUsedPercent)}%` }} />
-                        </div>
-                        <div className="text-xs text-ink-muted">{studio.monthUsedPercent}%</div>
-                      </td>
-                      <td className={td}>{minutes(studio.balanceMs)}</td>
-                      <td className={td}>
-                        {studio.runningSweeps} · {studio.queuedSweeps} · {studio.pausedSweeps}
-                      </td>
-                      <td className={td}>{studio.memberCount}</td>
-                    </tr>
-                  ))}
-              </tbody>
-            </table>
-            <Pager paged={paged} label="studios" />
-          </div>
+          <DataTable
+            testId="admin-studios"
+            scroll
+            rows={paged.rows}
+            rowKey={(studio) => studio.id}
+            columns={STUDIO_COLUMNS}
+            footer={<Pager paged={paged} label="studios" />}
+          />
         )}
       </Card>
     </div>
   );
 }
+
+const STUDIO_COLUMNS: Column<StudioUsageView>[] = [
+  {
+    key: "studio",
+    header: "Studio",
+    cell: (studio) => (
+      <>
+        <Link href={`/admin/studios/${encodeURIComponent(studio.id)}`} className="font-medium underline-offset-2 hover:underline">
+          {studio.name}
+        </Link>
+        <div className="font-mono text-xs text-ink-muted">{studio.id}</div>
+      </>
+    ),
+  },
+  { key: "status", header: "Status", cell: (studio) => studio.status, className: (studio) => studio.status === "suspended" && "font-semibold text-danger" },
+  {
+    key: "month",
+    header: "This month / cap",
+    cell: (studio) => (
+      <>
+        <div>
+          {minutes(studio.monthUsedMs)} / {minutes(studio.monthlyComputeMs)}
+        </div>
+        <div className="mt-1 h-1.5 w-32 overflow-hidden rounded bg-surface-muted" aria-hidden="true">
+          <div className={cx("h-full", studio.monthUsedPercent >= 100 ? "bg-danger" : "bg-action")} style={{ width: `${Math.min(100, studio.monthUsedPercent)}%` }} />
+        </div>
+        <div className="text-xs text-ink-muted">{studio.monthUsedPercent}%</div>
+      </>
+    ),
+  },
+  { key: "balance", header: "Balance", cell: (studio) => minutes(studio.balanceMs) },
+  { key: "sweeps", header: "Sweeps running · queued · paused", cell: (studio) => `${studio.runningSweeps} · ${studio.queuedSweeps} · ${studio.pausedSweeps}` },
+  { key: "members", header: "Members", cell: (studio) => studio.memberCount },
+];

@@ -6,8 +6,9 @@ import { Alert, Card, EmptyState, LoadingRows, PageHeading } from "@/components/
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { QueueEntryView } from "@/lib/quotas/admin";
+import { DataTable, type Column } from "@/components/data-table";
 import { AdminNav } from "./admin-nav";
-import { minutes, td, th } from "./admin-format";
+import { minutes } from "./admin-format";
 
 export function AdminQueue() {
   const queue = useQuery({
@@ -29,48 +30,54 @@ export function AdminQueue() {
         ) : queue.data.length === 0 ? (
           <EmptyState>Nothing queued or running.</EmptyState>
         ) : (
-          <table className="w-full text-sm" data-testid="admin-queue">
-            <thead className="border-b border-line">
-              <tr>
-                <th scope="col" className={th}>Studio</th>
-                <th scope="col" className={th}>Sweep</th>
-                <th scope="col" className={th}>Status</th>
-                <th scope="col" className={th}>Chunks done · running · total</th>
-                <th scope="col" className={th}>Billed / expected (ceiling, wall time)</th>
-                <th scope="col" className={th}>Submitted</th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {queue.data.map((s) => (
-                <tr key={s.sweepId}>
-                  <td className={td}>
-                    <Link className="font-medium hover:underline" href={`/admin/studios/${encodeURIComponent(s.studioId)}`}>
-                      {s.studioName}
-                    </Link>
-                  </td>
-                  <td className={td}>
-                    <div>{s.sweepName}</div>
-                    <div className="font-mono text-xs text-ink-muted">{s.sweepId}</div>
-                  </td>
-                  <td className={td}>
-                    <div>{s.status}</div>
-                    {s.reason ? <div className="text-xs text-ink-muted">{s.reason}</div> : null}
-                  </td>
-                  <td className={td}>
-                    {s.chunksDone} · {s.chunksRunning} · {s.chunks}
-                  </td>
-                  <td className={td}>
-                    {minutes(s.computeMs)} / {minutes(s.estimatedComputeMs)}
-                    {s.ceilingMs > 0 ? <div className="text-xs text-ink-muted">ceiling {minutes(s.ceilingMs)}</div> : null}
-                    <div className="text-xs text-ink-muted">wall {minutes(s.wallMs)}</div>
-                  </td>
-                  <td className={`${td} text-ink-muted`}>{formatDateTime(s.createdAt)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <DataTable testId="admin-queue" rows={queue.data} rowKey={(s) => s.sweepId} columns={QUEUE_COLUMNS} />
         )}
       </Card>
     </div>
   );
 }
+
+const QUEUE_COLUMNS: Column<QueueEntryView>[] = [
+  {
+    key: "studio",
+    header: "Studio",
+    cell: (s) => (
+      <Link className="font-medium hover:underline" href={`/admin/studios/${encodeURIComponent(s.studioId)}`}>
+        {s.studioName}
+      </Link>
+    ),
+  },
+  {
+    key: "sweep",
+    header: "Sweep",
+    cell: (s) => (
+      <>
+        <div>{s.sweepName}</div>
+        <div className="font-mono text-xs text-ink-muted">{s.sweepId}</div>
+      </>
+    ),
+  },
+  {
+    key: "status",
+    header: "Status",
+    cell: (s) => (
+      <>
+        <div>{s.status}</div>
+        {s.reason ? <div className="text-xs text-ink-muted">{s.reason}</div> : null}
+      </>
+    ),
+  },
+  { key: "chunks", header: "Chunks done · running · total", cell: (s) => `${s.chunksDone} · ${s.chunksRunning} · ${s.chunks}` },
+  {
+    key: "compute",
+    header: "Billed / expected (ceiling, wall time)",
+    cell: (s) => (
+      <>
+        {minutes(s.computeMs)} / {minutes(s.estimatedComputeMs)}
+        {s.ceilingMs > 0 ? <div className="text-xs text-ink-muted">ceiling {minutes(s.ceilingMs)}</div> : null}
+        <div className="text-xs text-ink-muted">wall {minutes(s.wallMs)}</div>
+      </>
+    ),
+  },
+  { key: "submitted", header: "Submitted", cell: (s) => formatDateTime(s.createdAt), className: "text-ink-muted" },
+];

@@ -8,10 +8,11 @@ import { Alert, Button, Card, LoadingRows, PageHeading, RoleBadge, SelectField, 
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { AdjustmentView, QuotaView, StudioUsageView } from "@/lib/quotas/admin";
+import { DataTable, type Column } from "@/components/data-table";
 import { AdminNav } from "./admin-nav";
 import { AuditTable } from "./audit-table";
 import { RefundForm } from "./refund-form";
-import { minutes, td, th } from "./admin-format";
+import { minutes } from "./admin-format";
 
 interface Detail {
   studio: StudioUsageView;
@@ -19,6 +20,21 @@ interface Detail {
   members: { userId: string; email: string; name: string; role: string; joinedAt: string }[];
   adjustments: AdjustmentView[];
 }
+
+const MEMBER_COLUMNS: Column<Detail["members"][number]>[] = [
+  {
+    key: "member",
+    header: "Member",
+    cell: (m) => (
+      <>
+        <div className="font-medium">{m.name || "—"}</div>
+        <div className="font-mono text-xs text-ink-muted">{m.email}</div>
+      </>
+    ),
+  },
+  { key: "role", header: "Role", cell: (m) => <RoleBadge role={m.role} /> },
+  { key: "joined", header: "Joined", cell: (m) => formatDate(m.joinedAt), className: "text-ink-muted" },
+];
 
 const adminStudioPath = (id: string) => `/api/v1/admin/studios/${encodeURIComponent(id)}`;
 
@@ -52,29 +68,7 @@ export function AdminStudio({ studioId }: { studioId: string }) {
           <RefundForm studioId={studioId} onSaved={refresh} />
         </div>
         <Card title={`Members (${members.length})`}>
-          <table className="w-full text-sm">
-            <thead className="border-b border-line">
-              <tr>
-                <th scope="col" className={th}>Member</th>
-                <th scope="col" className={th}>Role</th>
-                <th scope="col" className={th}>Joined</th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {members.map((m) => (
-                <tr key={m.userId}>
-                  <td className={td}>
-                    <div className="font-medium">{m.name || "—"}</div>
-                    <div className="font-mono text-xs text-ink-muted">{m.email}</div>
-                  </td>
-                  <td className={td}>
-                    <RoleBadge role={m.role} />
-                  </td>
-                  <td className={`${td} text-ink-muted`}>{formatDate(m.joinedAt)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <DataTable rows={members} rowKey={(m) => m.userId} columns={MEMBER_COLUMNS} />
         </Card>
         <Card title="Audit log of this studio" className="xl:col-span-2">
           <AuditTable query={new URLSearchParams({ studioId })} />

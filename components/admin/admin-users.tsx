@@ -8,8 +8,8 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
 import { queryKeys } from "@/lib/ui/queries";
 import type { AdminUser } from "@/lib/ui/types";
+import { DataTable, type Column } from "@/components/data-table";
 import { AdminNav } from "./admin-nav";
-import { td, th } from "./admin-format";
 import { Pager, usePaged } from "./pager";
 
 export function AdminUsers({ selfId }: { selfId: string }) {
@@ -47,39 +47,27 @@ export function AdminUsers({ selfId }: { selfId: string }) {
         ) : users.data.length === 0 ? (
           <EmptyState>No users yet.</EmptyState>
         ) : (
-          <table className="w-full text-sm" data-testid="admin-users">
-            <thead className="border-b border-line">
-              <tr>
-                <th scope="col" className={th}>User</th>
-                <th scope="col" className={th}>Studios</th>
-                <th scope="col" className={th}>Platform role</th>
-                <th scope="col" className={th}>Joined</th>
-                <th scope="col" className={th}><span className="sr-only">Change</span></th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {paged.rows.map((u) => (
-                  <tr key={u.id}>
-                    <td className={td}>
-                      <div className="font-medium">{u.name || "—"}</div>
-                      <div className="font-mono text-xs text-ink-muted">{u.email}</div>
-                    </td>
-                    <td className={td}>{u.studioCount ?? "—"}</td>
-                    <td className={td}>{u.isAdmin ? "admin" : "user"}</td>
-                    <td className={`${td} text-ink-muted`}>{formatDate(u.createdAt)}</td>
-                    <td className={td}>
-                      {u.id === selfId ? (
-                        <span className="text-xs text-ink-muted">you</span>
-                      ) : (
-                        <Button variant="secondary" disabled={change.isPending} onClick={() => setPending(u)}>
-                          {u.isAdmin ? "Remove admin" : "Make admin"}
-                        </Button>
-                      )}
-                    </td>
-                  </tr>
-                ))}
-            </tbody>
-          </table>
+          <DataTable
+            testId="admin-users"
+            rows={paged.rows}
+            rowKey={(u) => u.id}
+            columns={[
+              ...USER_COLUMNS,
+              {
+                key: "change",
+                header: "Change",
+                srOnly: true,
+                cell: (u) =>
+                  u.id === selfId ? (
+                    <span className="text-xs text-ink-muted">you</span>
+                  ) : (
+                    <Button variant="secondary" disabled={change.isPending} onClick={() => setPending(u)}>
+                      {u.isAdmin ? "Remove admin" : "Make admin"}
+                    </Button>
+                  ),
+              },
+            ]}
+          />
         )}
         {users.data && users.data.length > 0 ? <Pager paged={paged} label="users" /> : null}
       </Card>
@@ -107,3 +95,19 @@ export function AdminUsers({ selfId }: { selfId: string }) {
     </div>
   );
 }
+
+const USER_COLUMNS: Column<AdminUser>[] = [
+  {
+    key: "user",
+    header: "User",
+    cell: (u) => (
+      <>
+        <div className="font-medium">{u.name || "—"}</div>
+        <div className="font-mono text-xs text-ink-muted">{u.email}</div>
+      </>
+    ),
+  },
+  { key: "studios", header: "Studios", cell: (u) => u.studioCount ?? "—" },
+  { key: "role", header: "Platform role", cell: (u) => (u.isAdmin ? "admin" : "user") },
+  { key: "joined", header: "Joined", cell: (u) => formatDate(u.createdAt), className: "text-ink-muted" },
+];

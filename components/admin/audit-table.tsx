@@ -6,9 +6,10 @@ import { Alert, EmptyState, LoadingRows, TextField } from "@/components/ui";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { AuditAction, AuditView } from "@/lib/audit/audit";
-import { minutes, td, th } from "./admin-format";
+import { minutes } from "./admin-format";
 import { AUDIT_ACTION_LABELS } from "./audit-actions";
 import { Pager, usePaged } from "./pager";
+import { DataTable, useExpanded } from "@/components/data-table";
 
 /** A value of an audit entry for a person: milliseconds of compute as minutes, cents as money, the rest as it is. */
 function readable(key: string, value: unknown): string {
@@ -60,6 +61,7 @@ export function AuditTable({ query }: { query: URLSearchParams }) {
     (e) => !text || [e.actor, e.action, AUDIT_ACTION_LABELS[e.action as AuditAction] ?? "", e.subjectId, e.reason, auditSummary(e)].some((v) => v.toLowerCase().includes(text)),
   );
   const paged = usePaged(shown);
+  const expanded = useExpanded<number>();
   const csv = new URLSearchParams(query);
   csv.set("format", "csv");
   return (
@@ -80,20 +82,30 @@ export function AuditTable({ query }: { query: URLSearchParams }) {
         <EmptyState>No audit entries match.</EmptyState>
       ) : (
         <>
-          <table className="w-full table-fixed text-sm" data-testid="audit-table">
-            <thead className="border-b border-line">
-              <tr>
-                <th scope="col" className={`${th} w-40`}>When</th>
-                <th scope="col" className={`${th} w-48`}>Who</th>
-                <th scope="col" className={`${th} w-44`}>What</th>
-                <th scope="col" className={th}>Change</th>
-                <th scope="col" className={`${th} w-56`}>Reason</th>
-              </tr>
-            </thead>
-            {paged.rows.map((e) => (
-              <AuditRow key={e.id} entry={e} />
-            ))}
-          </table>
+          <DataTable
+            testId="audit-table"
+            fixed
+            rows={paged.rows}
+            rowKey={(e) => e.id}
+            rowProps={(e) => ({ testId: "audit-row", data: { "data-action": e.action } })}
+            columns={[
+              { key: "when", header: "When", headerClassName: "w-40", className: "whitespace-nowrap text-ink-muted", cell: (e) => formatDateTime(e.at) },
+              { key: "who", header: "Who", headerClassName: "w-48", className: "break-words", cell: (e) => e.actor },
+              {
+                key: "what",
+                header: "What",
+                headerClassName: "w-44",
+                cell: (e) => (
+                  <button type="button" aria-expanded={expanded.isOpen(e.id)} aria-controls={detailId(e)} onClick={() => expanded.toggle(e.id)} className="text-left font-medium text-action hover:underline">
+                    {AUDIT_ACTION_LABELS[e.action as AuditAction] ?? e.action}
+                  </button>
+                ),
+              },
+              { key: "change", header: "Change", className: "break-words", cell: (e) => auditSummary(e) },
+              { key: "reason", header: "Reason", headerClassName: "w-56", className: "break-words", cell: (e) => e.reason || "—" },
+            ]}
+            detail={{ isOpen: (e) => expanded.isOpen(e.id), id: detailId, render: (e) => <AuditDetail entry={e} />, className: "pb-3" }}
+          />
           <Pager paged={paged} label="entries" />
         </>
       )}
@@ -101,46 +113,28 @@ export function AuditTable({ query }: { query: URLSearchParams }) {
   );
 }
 
-function AuditRow({ entry: e }: { entry: AuditView }) {
-  const [open, setOpen] = useState(false);
-  const detailId = `audit-detail-${e.id}`;
+const detailId = (e: AuditView) => `audit-detail-${e.id}`;
+
+/** An entry opened: its action code, subject and studio, and the full before and after values. */
+function AuditDetail({ entry: e }: { entry: AuditView }) {
   return (
-    <tbody className="border-b border-line" data-testid="audit-row" data-action={e.action}>
-      <tr>
-        <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDateTime(e.at)}</td>
-        <td className={`${td} break-words`}>{e.actor}</td>
-        <td className={td}>
-          <button type="button" aria-expanded={open} aria-controls={detailId} onClick={() => setOpen(!open)} className="text-left font-medium text-action hover:underline">
-            {AUDIT_ACTION_LABELS[e.action as AuditAction] ?? e.action}
-          </button>
-        </td>
-        <td className={`${td} break-words`}>{auditSummary(e)}</td>
-        <td className={`${td} break-words`}>{e.reason || "—"}</td>
-      </tr>
-      {open ? (
-        <tr id={detailId}>
-          <td colSpan={5} className="bg-surface-muted px-3 pb-3">
-            <dl className="grid gap-2 py-2 text-xs sm:grid-cols-[10rem_1fr]">
-              <dt className="text-ink-muted">Action</dt>
-              <dd className="font-mono">{e.action}</dd>
-              <dt className="text-ink-muted">Subject</dt>
-              <dd className="break-all font-mono">
-                {e.subjectType} {e.subjectId}
-              </dd>
-              <dt className="text-ink-muted">Studio</dt>
-              <dd className="break-all font-mono">{e.studioId ?? "—"}</dd>
-              <dt className="text-ink-muted">Before</dt>
-              <dd>
-                <pre className="whitespace-pre-wrap break-all font-mono">{e.before === null ? "—" : JSON.stringify(e.before, null, 2)}</pre>
-              </dd>
-              <dt className="text-ink-muted">After</dt>
-              <dd>
-                <pre className="whitespace-pre-wrap break-all font-mono">{e.after === null ? "—" : JSON.stringify(e.after, null, 2)}</pre>
-              </dd>
-            </dl>
-          </td>
-        </tr>
-      ) : null}
-    </tbody>
+    <dl className="grid gap-2 py-2 text-xs sm:grid-cols-[10rem_1fr]">
+      <dt className="text-ink-muted">Action</dt>
+      <dd className="font-mono">{e.action}</dd>
+      <dt className="text-ink-muted">Subject</dt>
+      <dd className="break-all font-mono">
+        {e.subjectType} {e.subjectId}
+      </dd>
+      <dt className="text-ink-muted">Studio</dt>
+      <dd className="break-all font-mono">{e.studioId ?? "—"}</dd>
+      <dt className="text-ink-muted">Before</dt>
+      <dd>
+        <pre className="whitespace-pre-wrap break-all font-mono">{e.before === null ? "—" : JSON.stringify(e.before, null, 2)}</pre>
+      </dd>
+      <dt className="text-ink-muted">After</dt>
+      <dd>
+        <pre className="whitespace-pre-wrap break-all font-mono">{e.after === null ? "—" : JSON.stringify(e.after, null, 2)}</pre>
+      </dd>
+    </dl>
   );
 }

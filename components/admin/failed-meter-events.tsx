@@ -2,8 +2,9 @@
 
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
-import { Alert, Button, Card, EmptyState, TextField, cx } from "@/components/ui";
-import { formatMinutes, td, th } from "@/components/billing/billing-format";
+import { Alert, Button, Card, EmptyState, TextField } from "@/components/ui";
+import { formatMinutes } from "@/components/billing/billing-format";
+import { DataTable, type Column } from "@/components/data-table";
 import { ApiClientError, apiFetch } from "@/lib/ui/api";
 import type { FailedMeterEvent } from "@/lib/billing/finance-ops";
 import { formatDateTime } from "@/lib/ui/format";
@@ -34,41 +35,41 @@ export function FailedMeterEvents({ events }: { events: FailedMeterEventView[] }
           <TextField id="meter-retry-reason" label="Reason (kept in the audit log)" value={reason} onChange={(e) => setReason(e.target.value)} error={error?.messageFor("reason")} />
           {error && !error.messageFor("reason") ? <Alert>{error.message}</Alert> : null}
           {retry.isSuccess ? <Alert tone="ok">{retry.data.state === "queued" ? `Queued again as ${retry.data.meterIdentifier}.` : "It was already queued or delivered; nothing changed."}</Alert> : null}
-          <div className="relative overflow-x-auto">
-            <table className="w-full text-sm" data-testid="failed-meter-events">
-              <thead className="border-b border-line">
-                <tr>
-                  {["Studio", "Chunk (ledger key)", "Overage min", "Debited", "Attempts", "Stripe said", ""].map((h) => (
-                    <th key={h} scope="col" className={th}>
-                      {h}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-line">
-                {events.map((e) => (
-                  <tr key={e.outboxId}>
-                    <td className={td}>{e.studioName ?? e.studioId ?? "(removed studio)"}</td>
-                    <td className={cx(td, "font-mono text-xs")}>{e.meterIdentifier ? `${e.identifier} (sent as ${e.meterIdentifier})` : e.identifier}</td>
-                    <td className={cx(td, "tabular-nums")}>{formatMinutes(e.valueMs)}</td>
-                    <td className={td}>{formatDateTime(new Date(e.timestamp * 1000).toISOString())}</td>
-                    <td className={cx(td, "tabular-nums")}>{e.attempts}</td>
-                    <td className={cx(td, "text-xs")}>{e.lastError ?? ""}</td>
-                    <td className={cx(td, "whitespace-nowrap space-x-2")}>
-                      <Button disabled={retry.isPending} onClick={() => retry.mutate({ outboxId: e.outboxId, rekey: false })} aria-label={`Retry meter event ${e.identifier}`}>
-                        Retry
-                      </Button>
-                      <Button variant="secondary" disabled={retry.isPending} onClick={() => retry.mutate({ outboxId: e.outboxId, rekey: true })} aria-label={`Re-key meter event ${e.identifier}`}>
-                        Re-key
-                      </Button>
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            testId="failed-meter-events"
+            scroll
+            rows={events}
+            rowKey={(e) => e.outboxId}
+            columns={[
+              ...EVENT_COLUMNS,
+              {
+                key: "actions",
+                header: "",
+                className: "whitespace-nowrap space-x-2",
+                cell: (e) => (
+                  <>
+                    <Button disabled={retry.isPending} onClick={() => retry.mutate({ outboxId: e.outboxId, rekey: false })} aria-label={`Retry meter event ${e.identifier}`}>
+                      Retry
+                    </Button>
+                    <Button variant="secondary" disabled={retry.isPending} onClick={() => retry.mutate({ outboxId: e.outboxId, rekey: true })} aria-label={`Re-key meter event ${e.identifier}`}>
+                      Re-key
+                    </Button>
+                  </>
+                ),
+              },
+            ]}
+          />
         </div>
       )}
     </Card>
   );
 }
+
+const EVENT_COLUMNS: Column<FailedMeterEventView>[] = [
+  { key: "studio", header: "Studio", cell: (e) => e.studioName ?? e.studioId ?? "(removed studio)" },
+  { key: "chunk", header: "Chunk (ledger key)", className: "font-mono text-xs", cell: (e) => (e.meterIdentifier ? `${e.identifier} (sent as ${e.meterIdentifier})` : e.identifier) },
+  { key: "overage", header: "Overage min", numeric: true, cell: (e) => formatMinutes(e.valueMs) },
+  { key: "debited", header: "Debited", cell: (e) => formatDateTime(new Date(e.timestamp * 1000).toISOString()) },
+  { key: "attempts", header: "Attempts", numeric: true, cell: (e) => e.attempts },
+  { key: "said", header: "Stripe said", className: "text-xs", cell: (e) => e.lastError ?? "" },
+];

@@ -2,15 +2,17 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { Bar, BarChart, CartesianGrid, Legend, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
-import { Alert, Card, EmptyState, LoadingRows, PageHeading, cx } from "@/components/ui";
-import { formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "@/components/billing/billing-format";
+import { Alert, Card, EmptyState, LoadingRows, PageHeading } from "@/components/ui";
+import { formatMinutes, formatPriceCents, TAX_NOTE } from "@/components/billing/billing-format";
+import { DataTable, type Column } from "@/components/data-table";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
 import { AdminNav } from "./admin-nav";
 import { FailedMeterEvents, type FailedMeterEventView } from "./failed-meter-events";
 
+type Period = { studioId: string; studioName: string; invoiceId: string; number: string | null; status: string; periodStart: string; periodEnd: string; ledgerMs: number; meteredMs: number; invoicedMs: number; totalCents: number; reconciled: boolean };
 type Finance = {
-  periods: { studioId: string; studioName: string; invoiceId: string; number: string | null; status: string; periodStart: string; periodEnd: string; ledgerMs: number; meteredMs: number; invoicedMs: number; totalCents: number; reconciled: boolean }[];
+  periods: Period[];
   revenueByMonth: { month: string; packCents: number; overageCents: number }[];
   failedMeterEvents: FailedMeterEventView[];
 };
@@ -56,37 +58,7 @@ export function FinancePage() {
               </a>
             }
           >
-            {finance.data.periods.length === 0 ? (
-              <EmptyState>No invoiced periods yet.</EmptyState>
-            ) : (
-              <div className="relative overflow-x-auto">
-                <table className="w-full text-sm" data-testid="finance-periods">
-                  <thead className="border-b border-line">
-                    <tr>
-                      {["Studio", "Period (UTC)", "Invoice", "Ledger overage min", "Delivered to meter min", "Invoiced min", "Amount", "Check"].map((h) => (
-                        <th key={h} scope="col" className={th}>
-                          {h}
-                        </th>
-                      ))}
-                    </tr>
-                  </thead>
-                  <tbody className="divide-y divide-line">
-                    {finance.data.periods.map((p) => (
-                      <tr key={p.invoiceId}>
-                        <td className={td}>{p.studioName}</td>
-                        <td className={td}>{`${formatDate(p.periodStart)} – ${formatDate(p.periodEnd)}`}</td>
-                        <td className={td}>{`${p.number ?? p.invoiceId} (${p.status})`}</td>
-                        <td className={cx(td, "tabular-nums")}>{formatMinutes(p.ledgerMs)}</td>
-                        <td className={cx(td, "tabular-nums")}>{formatMinutes(p.meteredMs)}</td>
-                        <td className={cx(td, "tabular-nums")}>{formatMinutes(p.invoicedMs)}</td>
-                        <td className={cx(td, "tabular-nums")}>{formatPriceCents(p.totalCents)}</td>
-                        <td className={cx(td, p.reconciled ? "text-ok" : "font-bold text-danger")}>{p.reconciled ? "matches" : "DIFFERENCE"}</td>
-                      </tr>
-                    ))}
-                  </tbody>
-                </table>
-              </div>
-            )}
+            <DataTable testId="finance-periods" scroll empty="No invoiced periods yet." rows={finance.data.periods} rowKey={(p) => p.invoiceId} columns={PERIOD_COLUMNS} />
           </Card>
           <FailedMeterEvents events={finance.data.failedMeterEvents} />
         </div>
@@ -94,3 +66,14 @@ export function FinancePage() {
     </div>
   );
 }
+
+const PERIOD_COLUMNS: Column<Period>[] = [
+  { key: "studio", header: "Studio", cell: (p) => p.studioName },
+  { key: "period", header: "Period (UTC)", cell: (p) => `${formatDate(p.periodStart)} – ${formatDate(p.periodEnd)}` },
+  { key: "invoice", header: "Invoice", cell: (p) => `${p.number ?? p.invoiceId} (${p.status})` },
+  { key: "ledger", header: "Ledger overage min", numeric: true, cell: (p) => formatMinutes(p.ledgerMs) },
+  { key: "metered", header: "Delivered to meter min", numeric: true, cell: (p) => formatMinutes(p.meteredMs) },
+  { key: "invoiced", header: "Invoiced min", numeric: true, cell: (p) => formatMinutes(p.invoicedMs) },
+  { key: "amount", header: "Amount", numeric: true, cell: (p) => formatPriceCents(p.totalCents) },
+  { key: "check", header: "Check", className: (p) => (p.reconciled ? "text-ok" : "font-bold text-danger"), cell: (p) => (p.reconciled ? "matches" : "DIFFERENCE") },
+];

@@ -7,22 +7,35 @@ import { formatFrameRate, formatFrameStep, parseFrameStep } from "@/lib/ui/units
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQuery } from "@tanstack/react-query";
-import { useMemo, useState } from "react";
+import { useMemo, useState, type ReactNode } from "react";
 import { Alert, Button, Card, LoadingRows, SelectField, TextField, buttonClasses } from "@/components/ui";
+import { DataTable, type Column } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { StatusBadge } from "@/components/sweeps/sweeps-list";
 import { formatMinutes, type Quote, type SweepStatus } from "@/components/sweeps/sweep-api";
 import { formatCompute } from "@/lib/billing/format";
 import { formatPriceCents } from "@/lib/billing/packs";
-import { CATALOGUE_COLUMNS } from "@/lib/catalogues/format";
+import { CATALOGUE_COLUMNS, type CatalogueColumn, type CatalogueObject } from "@/lib/catalogues/format";
 import type { CheckSettingsInput } from "@/lib/catalogues/check";
 import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguePath, type CatalogueDetail, type CheckSummary, type CheckView } from "./catalogue-api";
 
-const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
-const td = "px-3 py-2 align-middle";
+/** The objects of a version, one column per catalogue column, headed by its name in the file. */
+const OBJECT_COLUMNS: Column<CatalogueObject>[] = CATALOGUE_COLUMNS.map((column) => {
+  const value: Record<CatalogueColumn, (object: CatalogueObject) => ReactNode> = {
+    name: (object) => object.name,
+    mass_kg: (object) => object.massKg,
+    radius_m: (object) => object.radiusM,
+    top_speed_m_per_s: (object) => object.topSpeedMPerS,
+    restitution: (object) => object.restitution,
+    group: (object) => object.group ?? "—",
+    friction: (object) => object.friction ?? "—",
+    rolling_resistance: (object) => object.rollingResistance ?? "—",
+  };
+  return { key: column, header: column, cell: value[column], className: column === "name" ? "font-medium" : column === "group" ? undefined : "font-mono" };
+});
 
 interface FormState {
   /** The frame step as typed: a frame rate ("60 Hz"; a plain number is Hz), a fraction ("1/60") or a step ("16.7 ms"). */
@@ -172,33 +185,7 @@ export function CatalogueView({
                 </dd>
               </div>
             </dl>
-            <div className="overflow-x-auto">
-              <table className="w-full text-sm" data-testid="catalogue-objects">
-                <thead className="border-b border-line">
-                  <tr>
-                    {CATALOGUE_COLUMNS.map((column) => (
-                      <th key={column} scope="col" className={th}>
-                        {column}
-                      </th>
-                    ))}
-                  </tr>
-                </thead>
-                <tbody className="divide-y divide-line">
-                  {detail.data.catalogue.objects.map((object) => (
-                    <tr key={object.name}>
-                      <td className={`${td} font-medium`}>{object.name}</td>
-                      <td className={`${td} font-mono`}>{object.massKg}</td>
-                      <td className={`${td} font-mono`}>{object.radiusM}</td>
-                      <td className={`${td} font-mono`}>{object.topSpeedMPerS}</td>
-                      <td className={`${td} font-mono`}>{object.restitution}</td>
-                      <td className={td}>{object.group ?? "—"}</td>
-                      <td className={`${td} font-mono`}>{object.friction ?? "—"}</td>
-                      <td className={`${td} font-mono`}>{object.rollingResistance ?? "—"}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
+            <DataTable columns={OBJECT_COLUMNS} rows={detail.data.catalogue.objects} rowKey={(object) => object.name} testId="catalogue-objects" scroll />
           </Card>
           <ChecksCard studioId={studioId} catalogueId={catalogueId} checks={detail.data.checks} />
           {canWrite ? <CheckForm
@@ -219,38 +206,36 @@ function ChecksCard({ studioId, catalogueId, checks }: { studioId: string; catal
       {checks.length === 0 ? (
         <p className="text-sm text-ink-muted">No checks of this version yet.</p>
       ) : (
-        <table className="w-full text-sm" data-testid="checks-table">
-          <thead className="border-b border-line">
-            <tr>
-              <th scope="col" className={th}>Check</th>
-              <th scope="col" className={th}>Settings</th>
-              <th scope="col" className={th}>Status</th>
-              <th scope="col" className={th}>Cells</th>
-            </tr>
-          </thead>
-          <tbody className="divide-y divide-line">
-            {checks.map((check) => (
-              <tr key={check.id}>
-                <td className={td}>
-                  <Link href={`/studios/${studioId}/catalogues/${catalogueId}/checks/${check.id}`} className="text-action hover:underline">
-                    {formatDateTime(check.createdAt)}
-                  </Link>
-                </td>
-                <td className={`${td} font-mono text-xs`}>
+        <DataTable
+          columns={[
+            {
+              key: "check",
+              header: "Check",
+              cell: (check) => (
+                <Link href={`/studios/${studioId}/catalogues/${catalogueId}/checks/${check.id}`} className="text-action hover:underline">
+                  {formatDateTime(check.createdAt)}
+                </Link>
+              ),
+            },
+            {
+              key: "settings",
+              header: "Settings",
+              className: "font-mono text-xs",
+              cell: (check) => (
+                <>
                   {formatFrameRate(check.settings.dtS)} × {check.settings.substeps} substeps, {check.settings.integrator}, {check.settings.contactModel}
                   {check.settings.stiffness !== undefined ? ` k = ${check.settings.stiffness.toPrecision(4)}` : ""}
                   {check.settings.groupStiffness ? " (per group)" : ""}
-                </td>
-                <td className={td}>
-                  <StatusBadge status={check.status as SweepStatus} />
-                </td>
-                <td className={`${td} font-mono text-xs`}>
-                  {check.cellsDone} / {check.cells}
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+                </>
+              ),
+            },
+            { key: "status", header: "Status", cell: (check) => <StatusBadge status={check.status as SweepStatus} /> },
+            { key: "cells", header: "Cells", className: "font-mono text-xs", cell: (check) => `${check.cellsDone} / ${check.cells}` },
+          ]}
+          rows={checks}
+          rowKey={(check) => check.id}
+          testId="checks-table"
+        />
       )}
     </Card>
   );

@@ -7,11 +7,11 @@ import { CRATESLIDE_CATALOGUE_CSV } from "@/lib/catalogues/demo";
  */
 import Link from "next/link";
 import { useRouter } from "next/navigation";
-import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useQueryClient } from "@tanstack/react-query";
 import { useMemo } from "react";
-import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { Alert, Card, TextField } from "@/components/ui";
 import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
-import { StudioShell } from "@/components/studio/studio-shell";
+import { UploadsPage, type UploadsListKind } from "@/components/uploads/uploads-page";
 import {
   CATALOGUE_COLUMNS,
   CATALOGUE_LIMITS,
@@ -23,8 +23,6 @@ import {
   type CatalogueProblem,
   type CatalogueTable,
 } from "@/lib/catalogues/format";
-import { apiFetch, errorMessage } from "@/lib/ui/api";
-import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguesPath, uploadCatalogue, type CatalogueDetail, type CatalogueSummary } from "./catalogue-api";
 
@@ -67,62 +65,26 @@ function load(fileName: string, bytes: Uint8Array): Loaded {
 }
 
 export function CataloguesPage({ studioId, studioName, role, initialCatalogues }: { studioId: string; studioName: string; role: StudioRole; initialCatalogues?: CatalogueSummary[] }) {
-  const canWrite = role === "owner" || role === "engineer";
-  const list = useQuery({
+  const kind: UploadsListKind<CatalogueSummary> = {
+    title: "Catalogues",
+    nameHeader: "Catalogue",
+    loadingLabel: "catalogues",
+    empty: { writer: "No catalogues yet. Upload one row per object type of your game above.", reader: "No catalogues yet." },
+    tableTestId: "catalogues-table",
     queryKey: catalogueKeys.list(studioId),
-    queryFn: () => apiFetch<{ catalogues: CatalogueSummary[] }>(cataloguesPath(studioId)),
-    // The server page's copy of the same answer: the list paints with the page (see lib/ui/queries.ts).
-    ...(initialCatalogues ? { initialData: { catalogues: initialCatalogues }, initialDataUpdatedAt: () => Date.now() } : {}),
-  });
-  return (
-    <StudioShell studioId={studioId} studioName={studioName} role={role}>
-      <div className="space-y-6">
-        {canWrite ? <UploadCard studioId={studioId} /> : null}
-        <Card title="Catalogues">
-          {list.isPending ? (
-            <LoadingRows label="catalogues" />
-          ) : list.isError ? (
-            <Alert>{errorMessage(list.error)}</Alert>
-          ) : list.data.catalogues.length === 0 ? (
-            <EmptyState>{canWrite ? "No catalogues yet. Upload one row per object type of your game above." : "No catalogues yet."}</EmptyState>
-          ) : (
-            <div className="overflow-x-auto">
-              <table className="w-full text-sm" data-testid="catalogues-table">
-                <thead className="border-b border-line">
-                  <tr>
-                    <th scope="col" className={th}>Catalogue</th>
-                    <th scope="col" className={th}>Version</th>
-                    <th scope="col" className={th}>Objects</th>
-                    <th scope="col" className={th}>File</th>
-                    <th scope="col" className={th}>SHA-256</th>
-                    <th scope="col" className={th}>Uploaded</th>
-                  </tr>
-                </thead>
-                <tbody className="divide-y divide-line">
-                  {list.data.catalogues.map((catalogue) => (
-                    <tr key={catalogue.id}>
-                      <td className={`${td} font-medium`}>
-                        <Link href={`/studios/${studioId}/catalogues/${catalogue.id}`} className="text-action hover:underline">
-                          {catalogue.name}
-                        </Link>
-                      </td>
-                      <td className={`${td} font-mono`}>v{catalogue.version}</td>
-                      <td className={td}>{catalogue.objectCount}</td>
-                      <td className={`${td} font-mono text-xs`}>{catalogue.fileName}</td>
-                      <td className={`${td} font-mono text-xs`} title={catalogue.contentHash}>
-                        {catalogue.contentHash.slice(0, 12)}…
-                      </td>
-                      <td className={td}>{formatDateTime(catalogue.createdAt)}</td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          )}
-        </Card>
-      </div>
-    </StudioShell>
-  );
+    path: cataloguesPath(studioId),
+    field: "catalogues",
+    name: (catalogue) => (
+      <Link href={`/studios/${studioId}/catalogues/${catalogue.id}`} className="text-action hover:underline">
+        {catalogue.name}
+      </Link>
+    ),
+    columns: [
+      { key: "objects", header: "Objects", cell: (catalogue) => catalogue.objectCount },
+      { key: "file", header: "File", cell: (catalogue) => catalogue.fileName, className: "font-mono text-xs" },
+    ],
+  };
+  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialCatalogues} upload={<UploadCard studioId={studioId} />} />;
 }
 
 function UploadCard({ studioId }: { studioId: string }) {

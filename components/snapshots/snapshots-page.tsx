@@ -8,92 +8,58 @@ import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
  * saved until the file is valid.
  */
 import Link from "next/link";
-import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
-import { Alert, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { Alert, Card, TextField } from "@/components/ui";
 import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
-import { StudioShell } from "@/components/studio/studio-shell";
+import { UploadsPage, type UploadsListKind } from "@/components/uploads/uploads-page";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
-import { apiFetch, errorMessage, uploadFile } from "@/lib/ui/api";
-import { formatDateTime } from "@/lib/ui/format";
+import { uploadFile } from "@/lib/ui/api";
 import { issuePlace, problemPlace } from "@/lib/snapshots/drawing";
 import { ScenePreview } from "./scene-preview";
 import { studioApiPath } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 import type { SnapshotDetail, SnapshotSummary } from "@/lib/snapshots/store";
 
-const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
-const td = "px-3 py-2 align-middle";
-
 const snapshotsPath = (studioId: string) => `${studioApiPath(studioId)}/snapshots`;
 const listKey = (studioId: string) => ["snapshots", studioId] as const;
 
 export function SnapshotsPage({ studioId, studioName, role, initialSnapshots }: { studioId: string; studioName: string; role: StudioRole; initialSnapshots?: SnapshotSummary[] }) {
   const canWrite = role === "owner" || role === "engineer";
-  const list = useQuery({
+  const kind: UploadsListKind<SnapshotSummary> = {
+    title: "Snapshots",
+    nameHeader: "Snapshot",
+    loadingLabel: "snapshots",
+    empty: { writer: "No snapshots yet. Upload the discs and walls of a moment of your game above.", reader: "No snapshots yet." },
+    tableTestId: "snapshots-table",
     queryKey: listKey(studioId),
-    queryFn: () => apiFetch<{ snapshots: SnapshotSummary[] }>(snapshotsPath(studioId)),
-    // The server page's copy of the same answer: the list paints with the page (see lib/ui/queries.ts).
-    ...(initialSnapshots ? { initialData: { snapshots: initialSnapshots }, initialDataUpdatedAt: () => Date.now() } : {}),
-  });
-  return (
-    <StudioShell studioId={studioId} studioName={studioName} role={role}>
-      <div className="space-y-6">
-        {canWrite ? <UploadCard studioId={studioId} /> : null}
-        <Card title="Snapshots">
-          {list.isPending ? (
-            <LoadingRows label="snapshots" />
-          ) : list.isError ? (
-            <Alert>{errorMessage(list.error)}</Alert>
-          ) : list.data.snapshots.length === 0 ? (
-            <EmptyState>{canWrite ? "No snapshots yet. Upload the discs and walls of a moment of your game above." : "No snapshots yet."}</EmptyState>
-          ) : (
-            <div className="overflow-x-auto">
-              <table className="w-full text-sm" data-testid="snapshots-table">
-                <thead className="border-b border-line">
-                  <tr>
-                    <th scope="col" className={th}>Snapshot</th>
-                    <th scope="col" className={th}>Version</th>
-                    <th scope="col" className={th}>Discs</th>
-                    <th scope="col" className={th}>Walls</th>
-                    <th scope="col" className={th}>SHA-256</th>
-                    <th scope="col" className={th}>Uploaded</th>
-                    <th scope="col" className={th}>
-                      <span className="sr-only">Actions</span>
-                    </th>
-                  </tr>
-                </thead>
-                <tbody className="divide-y divide-line">
-                  {list.data.snapshots.map((snapshot) => (
-                    <tr key={snapshot.id}>
-                      <td className={`${td} font-medium`}>{snapshot.name}</td>
-                      <td className={`${td} font-mono`}>v{snapshot.version}</td>
-                      <td className={td}>{snapshot.bodyCount}</td>
-                      <td className={td}>{snapshot.wallCount}</td>
-                      <td className={`${td} font-mono text-xs`} title={snapshot.contentHash}>
-                        {snapshot.contentHash.slice(0, 12)}…
-                      </td>
-                      <td className={td}>{formatDateTime(snapshot.createdAt)}</td>
-                      <td className={`${td} space-x-3 whitespace-nowrap`}>
-                        <a href={`${snapshotsPath(studioId)}/${snapshot.id}/file`} className="text-action hover:underline">
-                          Original file
-                        </a>
-                        {canWrite ? (
-                          <Link href={`/studios/${studioId}/sweeps/new?snapshot=${encodeURIComponent(snapshot.id)}`} className="text-action hover:underline">
-                            New sweep from this snapshot
-                          </Link>
-                        ) : null}
-                      </td>
-                    </tr>
-                  ))}
-                </tbody>
-              </table>
-            </div>
-          )}
-        </Card>
-      </div>
-    </StudioShell>
-  );
+    path: snapshotsPath(studioId),
+    field: "snapshots",
+    name: (snapshot) => snapshot.name,
+    columns: [
+      { key: "discs", header: "Discs", cell: (snapshot) => snapshot.bodyCount },
+      { key: "walls", header: "Walls", cell: (snapshot) => snapshot.wallCount },
+    ],
+    actions: {
+      key: "actions",
+      header: "Actions",
+      srOnly: true,
+      className: "space-x-3 whitespace-nowrap",
+      cell: (snapshot) => (
+        <>
+          <a href={`${snapshotsPath(studioId)}/${snapshot.id}/file`} className="text-action hover:underline">
+            Original file
+          </a>
+          {canWrite ? (
+            <Link href={`/studios/${studioId}/sweeps/new?snapshot=${encodeURIComponent(snapshot.id)}`} className="text-action hover:underline">
+              New sweep from this snapshot
+            </Link>
+          ) : null}
+        </>
+      ),
+    },
+  };
+  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialSnapshots} upload={<UploadCard studioId={studioId} />} />;
 }
 
 interface Loaded {

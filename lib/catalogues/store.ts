@@ -5,21 +5,34 @@
  * sweep; its results are read back only through lib/queue/views.ts.
  */
 import { pairContactTuning, type PairContactTuning } from "./contact-tuning";
-import { and, asc, desc, eq } from "drizzle-orm";
+import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { newId } from "@/db/ids";
 import { catalogueChecks, catalogues, sweeps, type Catalogue, type CatalogueCheck } from "@/db/schema";
-import { ApiError, type FieldIssue } from "@/lib/errors";
+import { ApiError } from "@/lib/errors";
 import { quoteSweep, submitSweep, type Quote } from "@/lib/queue/submit";
 import { storedCells, sweepView, type SweepView } from "@/lib/queue/views";
 import { INSTABILITY_VERDICTS } from "@/lib/physics/types";
 import { canonicalJson } from "@/lib/sweeps/canonical";
-import { formatLimit } from "@/lib/sweeps/parameters";
-import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
+import { fileOf, storedBytes, versionedUploads, versionSummary, type VersionSummary } from "@/lib/uploads/versioned";
 import { CheckInputError, checkSettingsSchema, checkSpec, pairMatrix, recommend, type CheckSettings, type PairMatrix, type Recommendation } from "./check";
 import { CATALOGUE_LIMITS, describeProblem, parseCatalogueFile, type CatalogueObject, type CatalogueProblem } from "./format";
 
 export { contentHash } from "@/lib/uploads/versioned";
+
+/** Catalogues as versioned uploads (lib/uploads/versioned.ts). */
+export const catalogueUploads = versionedUploads({
+  table: catalogues,
+  uniqueIndex: "catalogues_studio_name_version_uq",
+  idPrefix: "cat",
+  noun: "catalogue",
+  problemsCode: "invalid_catalogue",
+  fallbackFileName: "catalogue",
+  maxFileBytes: CATALOGUE_LIMITS.maxFileBytes,
+  maxFileText: "256 KiB",
+  maxNameLength: CATALOGUE_LIMITS.maxCatalogueNameLength,
+  nameMissing: "a catalogue needs a name (or a file name to take it from).",
+});
 
 function problemField(problem: CatalogueProblem): string {
   return ["file", problem.row !== null ? `row ${problem.row}` : null, problem.column].filter(Boolean).join(".");
@@ -27,9 +40,7 @@ function problemField(problem: CatalogueProblem): string {
 
 /** Every problem of a file as one 422, each issue naming its row and column. */
 export function catalogueProblemsError(problems: readonly CatalogueProblem[]): ApiError {
-  const issues: FieldIssue[] = problems.map((problem) => ({ field: problemField(problem), message: describeProblem(problem) }));
-  const summary = problems.length === 1 ? describeProblem(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describeProblem).join("; ")}${problems.length > 3 ? "; …" : ""}`;
-  return new ApiError("invalid_catalogue", `The catalogue was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
+  return catalogueUploads.problemsError(problems, problemField, describeProblem);
 }
 
 export interface CatalogueUpload {
@@ -42,18 +53,11 @@ export interface CatalogueUpload {
   createdByUserId: string | null;
 }
 
-export interface CatalogueSummary {
-  id: string;
-  name: string;
-  version: number;
-  contentHash: string;
-  fileName: string;
-  fileBytes: number;
+export interface CatalogueSummary extends VersionSummary {
   format: "csv" | "json";
   objectCount: number;
   /** The uploaded file when the saved one is a table corrected from it (GET …/file answers it; ?copy=saved the corrected one). */
   original: { fileName: string; fileBytes: number; contentHash: string } | null;
-  createdAt: string;
 }
 
 export interface CatalogueDetail extends CatalogueSummary {
@@ -65,104 +69,59 @@ export interface CatalogueDetail extends CatalogueSummary {
 
 export function catalogueSummary(row: Catalogue): CatalogueSummary {
   return {
-    id: row.id,
-    name: row.name,
-    version: row.version,
-    contentHash: row.contentHash,
-    fileName: row.fileName,
-    fileBytes: row.fileBytes,
+    ...versionSummary(row),
     format: row.format,
     objectCount: row.objectCount,
     original:
       row.originalFileBase64 !== null && row.originalFileName !== null && row.originalFileBytes !== null && row.originalContentHash !== null
         ? { fileName: row.originalFileName, fileBytes: row.originalFileBytes, contentHash: row.originalContentHash }
         : null,
-    createdAt: row.createdAt.toISOString(),
   };
-}
-
-function catalogueNameOf(upload: CatalogueUpload): string {
-  const name = (upload.name ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
-  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError("validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
-  if (name === "") throw new ApiError("validation_failed", "name: a catalogue needs a name (or a file name to take it from).", "name");
-  if (name.length > CATALOGUE_LIMITS.maxCatalogueNameLength) {
-    throw new ApiError("validation_failed", `name: at most ${CATALOGUE_LIMITS.maxCatalogueNameLength} characters; got ${name.length}.`, "name");
-  }
-  return name;
 }
 
 /** Parses, checks and stores a catalogue file as the next version of its name; nothing is stored on any problem. */
 export async function saveCatalogue(db: Db, studioId: string, upload: CatalogueUpload): Promise<{ catalogue: Catalogue; notes: string[] }> {
-  const name = catalogueNameOf(upload);
-  if (upload.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
-    throw new ApiError("payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "file");
-  }
+  const name = catalogueUploads.nameOf(upload.name, upload.fileName);
+  catalogueUploads.checkSize(upload.bytes);
   const parsed = parseCatalogueFile(upload.bytes, upload.fileName);
   if (!parsed.objects) throw catalogueProblemsError(parsed.problems);
   const objects = parsed.objects;
-  const file = storedFile(upload.bytes, upload.fileName, "catalogue");
-  if (upload.original && upload.original.bytes.length > CATALOGUE_LIMITS.maxFileBytes) {
-    throw new ApiError("payload_too_large", `original: ${formatLimit(upload.original.bytes.length)} bytes exceed the limit of ${formatLimit(CATALOGUE_LIMITS.maxFileBytes)} bytes (256 KiB).`, "original");
-  }
-  const original = upload.original ? storedFile(upload.original.bytes, upload.original.fileName, "catalogue") : null;
-  const catalogue = await insertNextVersion(db, { table: catalogues, uniqueIndex: "catalogues_studio_name_version_uq", studioId, name }, async (tx, version) => {
-    const [row] = await tx
-      .insert(catalogues)
-      .values({
-        id: newId("cat"),
-        studioId,
-        name,
-        version,
-        ...file,
-        mediaType: parsed.format === "json" ? "application/json" : "text/csv",
-        format: parsed.format,
-        objects,
-        objectCount: objects.length,
-        ...(original
-          ? { originalFileName: original.fileName, originalFileBase64: original.fileBase64, originalFileBytes: original.fileBytes, originalContentHash: original.contentHash }
-          : {}),
-        createdByUserId: upload.createdByUserId,
-      })
-      .returning();
-    return row;
+  const file = catalogueUploads.file(upload.bytes, upload.fileName);
+  if (upload.original) catalogueUploads.checkSize(upload.original.bytes, "original");
+  const original = upload.original ? catalogueUploads.file(upload.original.bytes, upload.original.fileName) : null;
+  const catalogue = await catalogueUploads.insert(db, studioId, name, {
+    ...file,
+    mediaType: parsed.format === "json" ? "application/json" : "text/csv",
+    format: parsed.format,
+    objects,
+    objectCount: objects.length,
+    ...(original
+      ? { originalFileName: original.fileName, originalFileBase64: original.fileBase64, originalFileBytes: original.fileBytes, originalContentHash: original.contentHash }
+      : {}),
+    createdByUserId: upload.createdByUserId,
   });
   return { catalogue, notes: parsed.notes };
 }
 
 export async function listCatalogues(db: Db, studioId: string): Promise<CatalogueSummary[]> {
-  const rows = await db.select().from(catalogues).where(eq(catalogues.studioId, studioId)).orderBy(asc(catalogues.name), desc(catalogues.version));
-  return rows.map(catalogueSummary);
+  return (await catalogueUploads.list(db, studioId)).map(catalogueSummary);
 }
 
-export async function catalogueOfStudio(db: Db, studioId: string, catalogueId: string): Promise<Catalogue> {
-  const [row] = await db
-    .select()
-    .from(catalogues)
-    .where(and(eq(catalogues.id, catalogueId), eq(catalogues.studioId, studioId)));
-  if (!row) throw new ApiError("not_found", "Catalogue not found.");
-  return row;
+export function catalogueOfStudio(db: Db, studioId: string, catalogueId: string): Promise<Catalogue> {
+  return catalogueUploads.ofStudio(db, studioId, catalogueId);
 }
 
 export async function catalogueDetail(db: Db, row: Catalogue): Promise<CatalogueDetail> {
-  const versions = await db
-    .select()
-    .from(catalogues)
-    .where(and(eq(catalogues.studioId, row.studioId), eq(catalogues.name, row.name)))
-    .orderBy(desc(catalogues.version));
+  const versions = await catalogueUploads.versionsOf(db, row);
   return { ...catalogueSummary(row), objects: row.objects, notes: [], versions: versions.map(catalogueSummary) };
 }
 
-/** The saved file the objects come from. */
-export function catalogueFileBytes(row: Catalogue): Uint8Array {
-  return new Uint8Array(Buffer.from(row.fileBase64, "base64"));
-}
-
-/** The file as the user uploaded it: the original when the table was corrected before saving, else the saved file. */
+/** The file as the user uploaded it: the original when the table was corrected before saving, else the saved file (lib/uploads/versioned.ts fileOf). */
 export function catalogueUploadedFile(row: Catalogue): { fileName: string; bytes: Uint8Array; contentHash: string } {
   if (row.originalFileBase64 !== null && row.originalFileName !== null && row.originalContentHash !== null) {
-    return { fileName: row.originalFileName, bytes: new Uint8Array(Buffer.from(row.originalFileBase64, "base64")), contentHash: row.originalContentHash };
+    return { fileName: row.originalFileName, bytes: storedBytes(row.originalFileBase64), contentHash: row.originalContentHash };
   }
-  return { fileName: row.fileName, bytes: catalogueFileBytes(row), contentHash: row.contentHash };
+  return fileOf(row);
 }
 
 // ---------------------------------------------------------------------------

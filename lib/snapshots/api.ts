@@ -1,12 +1,13 @@
 /** Body reading of the snapshot routes (their policies are in lib/auth/policies.ts). */
 import { readBodyBytes } from "@/lib/api/body";
-import { readMultipart, type UploadedFile } from "@/lib/api/multipart";
+import type { UploadedFile } from "@/lib/api/multipart";
 import { ApiError } from "@/lib/errors";
+import { fileLimitText, readUploadForm } from "@/lib/uploads/api";
 import { SNAPSHOT_LIMITS } from "./format";
+import { snapshotUploads } from "./store";
 
 /** The largest body an upload may send: the file limit plus room for multipart framing. */
 export const MAX_SNAPSHOT_BODY_BYTES = SNAPSHOT_LIMITS.maxFileBytes + 16 * 1024;
-const LIMIT_TEXT = `${SNAPSHOT_LIMITS.maxFileBytes.toLocaleString("en-US")} bytes (4 MiB) per file`;
 
 /**
  * The uploaded file and its name: multipart/form-data (field "file", optional field "name"), or
@@ -15,14 +16,13 @@ const LIMIT_TEXT = `${SNAPSHOT_LIMITS.maxFileBytes.toLocaleString("en-US")} byte
 export async function readSnapshotUpload(req: Request): Promise<{ name?: string; file: UploadedFile }> {
   const type = req.headers.get("content-type") ?? "";
   if (/^multipart\/form-data\s*;/i.test(type)) {
-    const { fields, file } = await readMultipart(req, MAX_SNAPSHOT_BODY_BYTES, LIMIT_TEXT);
-    if (!file) throw new ApiError("validation_failed", 'file: attach the snapshot (JSON) in a field named "file".', "file");
+    const { fields, file } = await readUploadForm(req, snapshotUploads.kind, MAX_SNAPSHOT_BODY_BYTES, "the snapshot (JSON)");
     return { name: fields.get("name"), file };
   }
   if (!/^application\/json\b/i.test(type)) {
     throw new ApiError("unsupported_media_type", 'The body must be the snapshot JSON (content-type application/json) or multipart/form-data with the file in a field named "file".', "file");
   }
-  const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${LIMIT_TEXT}).`, "file");
+  const tooLarge = () => new ApiError("payload_too_large", `file: the upload exceeds the limit (${fileLimitText(snapshotUploads.kind)}).`, "file");
   const body = await readBodyBytes(req, SNAPSHOT_LIMITS.maxFileBytes, tooLarge);
   const name = new URL(req.url).searchParams.get("name") ?? undefined;
   return { name, file: { fileName: "snapshot.json", mediaType: "application/json", bytes: new Uint8Array(body) } };

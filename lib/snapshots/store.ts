@@ -4,28 +4,42 @@
  * SHA-256. A sweep over a snapshot carries its scene inline (the spec stays self-contained, so its
  * results are deterministic whatever is uploaded later): `snapshotSweepSpec` builds that spec.
  */
-import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { newId } from "@/db/ids";
 import { snapshots, type Snapshot } from "@/db/schema";
-import { ApiError, type FieldIssue } from "@/lib/errors";
+import { ApiError } from "@/lib/errors";
 import type { SnapshotScene } from "@/lib/physics/types";
-import { formatLimit, SPEC_LIMITS } from "@/lib/sweeps/parameters";
+import { SPEC_LIMITS } from "@/lib/sweeps/parameters";
 import type { SweepSpecInput } from "@/lib/sweeps/spec";
-import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
+import { versionedUploads, versionSummary, type VersionSummary } from "@/lib/uploads/versioned";
 import { problemPlace } from "./drawing";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, snapshotScene, type SnapshotProblem } from "./format";
 import { describeSnapshotSuggestion, suggestSnapshotSweep, type SnapshotSweepSuggestion } from "./suggest";
+
+/** Snapshots as versioned uploads (lib/uploads/versioned.ts). */
+export const snapshotUploads = versionedUploads({
+  table: snapshots,
+  uniqueIndex: "snapshots_studio_name_version_uq",
+  idPrefix: "snp",
+  noun: "snapshot",
+  problemsCode: "invalid_snapshot",
+  fallbackFileName: "snapshot.json",
+  maxFileBytes: SNAPSHOT_LIMITS.maxFileBytes,
+  maxFileText: "4 MiB",
+  maxNameLength: SNAPSHOT_LIMITS.maxNameLength,
+  nameMissing: "a snapshot needs a name (in the form, in the file, or from the file name).",
+});
 
 /**
  * Every problem of a file as one 422: each issue's `field` is its JSON path (for API clients), the
  * message names the place as users count it (disc numbers from 1, the field in words).
  */
 export function snapshotProblemsError(problems: readonly SnapshotProblem[]): ApiError {
-  const issues: FieldIssue[] = problems.map((problem) => ({ field: problem.path === "(file)" ? "file" : `file.${problem.path}`, message: problem.reason }));
-  const describe = (problem: SnapshotProblem) => `${problemPlace(problem.path)}: ${problem.reason}`;
-  const summary = problems.length === 1 ? describe(problems[0]) : `${problems.length} problems: ${problems.slice(0, 3).map(describe).join("; ")}${problems.length > 3 ? "; …" : ""}`;
-  return new ApiError("invalid_snapshot", `The snapshot was not saved. ${summary}`, issues[0]?.field ?? "file", issues);
+  return snapshotUploads.problemsError(
+    problems,
+    (problem) => (problem.path === "(file)" ? "file" : `file.${problem.path}`),
+    (problem) => `${problemPlace(problem.path)}: ${problem.reason}`,
+    (problem) => problem.reason,
+  );
 }
 
 export interface SnapshotUpload {
@@ -35,16 +49,9 @@ export interface SnapshotUpload {
   createdByUserId: string | null;
 }
 
-export interface SnapshotSummary {
-  id: string;
-  name: string;
-  version: number;
-  contentHash: string;
-  fileName: string;
-  fileBytes: number;
+export interface SnapshotSummary extends VersionSummary {
   bodyCount: number;
   wallCount: number;
-  createdAt: string;
 }
 
 export interface SnapshotDetail extends SnapshotSummary {
@@ -54,81 +61,37 @@ export interface SnapshotDetail extends SnapshotSummary {
 }
 
 export function snapshotSummary(row: Snapshot): SnapshotSummary {
-  return {
-    id: row.id,
-    name: row.name,
-    version: row.version,
-    contentHash: row.contentHash,
-    fileName: row.fileName,
-    fileBytes: row.fileBytes,
-    bodyCount: row.bodyCount,
-    wallCount: row.wallCount,
-    createdAt: row.createdAt.toISOString(),
-  };
-}
-
-function nameOf(upload: SnapshotUpload, fileName: string | undefined): string {
-  const name = (upload.name ?? fileName ?? upload.fileName.replace(/\.[^.]*$/, "")).trim();
-  if (/[\u0000-\u001f\u007f]/.test(name)) throw new ApiError("validation_failed", "name: must not hold control characters (tab, line break, NUL).", "name");
-  if (name === "") throw new ApiError("validation_failed", "name: a snapshot needs a name (in the form, in the file, or from the file name).", "name");
-  if (name.length > SNAPSHOT_LIMITS.maxNameLength) throw new ApiError("validation_failed", `name: at most ${SNAPSHOT_LIMITS.maxNameLength} characters; got ${name.length}.`, "name");
-  return name;
+  return { ...versionSummary(row), bodyCount: row.bodyCount, wallCount: row.wallCount };
 }
 
 /** Parses, checks and stores a snapshot file as the next version of its name; nothing is stored on any problem. */
 export async function saveSnapshot(db: Db, studioId: string, upload: SnapshotUpload): Promise<Snapshot> {
-  if (upload.bytes.length > SNAPSHOT_LIMITS.maxFileBytes) {
-    throw new ApiError("payload_too_large", `file: ${formatLimit(upload.bytes.length)} bytes exceed the limit of ${formatLimit(SNAPSHOT_LIMITS.maxFileBytes)} bytes (4 MiB).`, "file");
-  }
+  snapshotUploads.checkSize(upload.bytes);
   const parsed = parseSnapshotFile(upload.bytes);
   if (!parsed.ok) throw snapshotProblemsError(parsed.problems);
-  const name = nameOf(upload, parsed.snapshot.name);
+  // The name given in the form (or ?name=) wins, then the file's own "name", then the file name.
+  const name = snapshotUploads.nameOf(upload.name ?? parsed.snapshot.name, upload.fileName);
   const scene = snapshotScene(parsed.snapshot);
-  const file = storedFile(upload.bytes, upload.fileName, "snapshot.json");
-  return insertNextVersion(db, { table: snapshots, uniqueIndex: "snapshots_studio_name_version_uq", studioId, name }, async (tx, version) => {
-    const [row] = await tx
-      .insert(snapshots)
-      .values({
-        id: newId("snp"),
-        studioId,
-        name,
-        version,
-        ...file,
-        scene,
-        bodyCount: scene.bodies.length,
-        wallCount: scene.walls.length,
-        createdByUserId: upload.createdByUserId,
-      })
-      .returning();
-    return row;
+  return snapshotUploads.insert(db, studioId, name, {
+    ...snapshotUploads.file(upload.bytes, upload.fileName),
+    scene,
+    bodyCount: scene.bodies.length,
+    wallCount: scene.walls.length,
+    createdByUserId: upload.createdByUserId,
   });
 }
 
 export async function listSnapshots(db: Db, studioId: string): Promise<SnapshotSummary[]> {
-  const rows = await db.select().from(snapshots).where(eq(snapshots.studioId, studioId)).orderBy(asc(snapshots.name), desc(snapshots.version));
-  return rows.map(snapshotSummary);
+  return (await snapshotUploads.list(db, studioId)).map(snapshotSummary);
 }
 
-export async function snapshotOfStudio(db: Db, studioId: string, snapshotId: string): Promise<Snapshot> {
-  const [row] = await db
-    .select()
-    .from(snapshots)
-    .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
-  if (!row) throw new ApiError("not_found", "Snapshot not found.");
-  return row;
+export function snapshotOfStudio(db: Db, studioId: string, snapshotId: string): Promise<Snapshot> {
+  return snapshotUploads.ofStudio(db, studioId, snapshotId);
 }
 
 export async function snapshotDetail(db: Db, row: Snapshot): Promise<SnapshotDetail> {
-  const versions = await db
-    .select()
-    .from(snapshots)
-    .where(and(eq(snapshots.studioId, row.studioId), eq(snapshots.name, row.name)))
-    .orderBy(desc(snapshots.version));
+  const versions = await snapshotUploads.versionsOf(db, row);
   return { ...snapshotSummary(row), scene: row.scene, versions: versions.map(snapshotSummary) };
-}
-
-export function snapshotFileBytes(row: Snapshot): Uint8Array {
-  return new Uint8Array(Buffer.from(row.fileBase64, "base64"));
 }
 
 /**
@@ -178,10 +141,7 @@ export async function resolveSnapshotReference(db: Db, studioId: string, spec: u
   if (typeof snapshotId !== "string" || snapshotId === "") {
     throw new ApiError("invalid_spec", `${field}: must be the id of one of the studio's snapshots.`, field, [{ field, message: "must be the id of one of the studio's snapshots" }]);
   }
-  const [row] = await db
-    .select()
-    .from(snapshots)
-    .where(and(eq(snapshots.id, snapshotId), eq(snapshots.studioId, studioId)));
+  const row = await snapshotUploads.find(db, studioId, snapshotId);
   if (!row) throw new ApiError("invalid_spec", `${field}: no snapshot ${JSON.stringify(snapshotId)} in this studio.`, field, [{ field, message: `no snapshot ${JSON.stringify(snapshotId)} in this studio` }]);
   const stored = row.scene;
   const inline = { ...stored, ...rest, bodies: stored.bodies, walls: stored.walls, kind: "snapshot" };

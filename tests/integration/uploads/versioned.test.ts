@@ -1,14 +1,18 @@
 /**
  * Versioned uploads (lib/uploads/versioned.ts), on the snapshots table: each upload under a name is
  * that name's next version, per studio; uploads of one name at once all get a number, none lost; a
- * refusal by the (studio, name, version) index is retried, any other error is not.
+ * refusal by the (studio, name, version) index is retried, any other error is not. Then the store
+ * of a kind (catalogues and snapshots are two of them): listing, studio-scoped reads, every version
+ * of a name, the bytes given back as stored, the name and size rules in the kind's words.
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { and, asc, eq } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { newId } from "@/db/ids";
 import { snapshots, type Snapshot } from "@/db/schema";
-import { insertNextVersion, storedFile } from "@/lib/uploads/versioned";
+import { catalogueUploads } from "@/lib/catalogues/store";
+import { snapshotUploads } from "@/lib/snapshots/store";
+import { fileOf, insertNextVersion, storedFile } from "@/lib/uploads/versioned";
 import { closeTestDb, countRows, useFreshDb } from "../../helpers/db";
 import { makeStudio } from "../../helpers/factories";
 
@@ -112,5 +116,48 @@ describe("versioned uploads", () => {
     });
     expect(storedFile(bytes, "\u0007\u0001", "catalogue").fileName).toBe("catalogue");
     expect(storedFile(bytes, "x".repeat(300) + ".csv", "catalogue").fileName).toHaveLength(200);
+  });
+});
+
+describe("the store of a kind", () => {
+  const SCENE = { kind: "snapshot" as const, bodies: [], walls: [], gravityMPerS2: 0, speedScale: 1 };
+  const store = (studio: string, name: string, text: string) =>
+    snapshotUploads.insert(db, studio, name, { ...snapshotUploads.file(new TextEncoder().encode(text), `${name}.json`), scene: SCENE, bodyCount: 0, wallCount: 0, createdByUserId: null });
+
+  it("lists a studio's versions by name, newest first, and reads one only within its studio", async () => {
+    const studio = await makeStudio("Tern Point Games", []);
+    const first = await store(studio, "Pallet row", "1");
+    const second = await store(studio, "Pallet row", "2");
+    const other = await store(studio, "Anvil drop", "3");
+    expect(first.id).toMatch(/^snp_/);
+    expect((await snapshotUploads.list(db, studio)).map((row) => `${row.name} v${row.version}`)).toEqual(["Anvil drop v1", "Pallet row v2", "Pallet row v1"]);
+    expect((await snapshotUploads.versionsOf(db, first)).map((row) => row.id)).toEqual([second.id, first.id]);
+    expect((await snapshotUploads.ofStudio(db, studio, other.id)).name).toBe("Anvil drop");
+    // Another studio's id reads as an unknown one: nothing says it exists.
+    await expect(snapshotUploads.ofStudio(db, otherStudioId, other.id)).rejects.toMatchObject({ code: "not_found", message: "Snapshot not found." });
+    expect(await snapshotUploads.find(db, otherStudioId, other.id)).toBeNull();
+    await expect(catalogueUploads.ofStudio(db, studio, "cat_unknown")).rejects.toMatchObject({ code: "not_found", message: "Catalogue not found." });
+  });
+
+  it("gives the bytes back exactly as uploaded, with their hash", async () => {
+    const text = '{"name":"Ramp \u00e9","bodies":[]}\r\n';
+    const row = await store(otherStudioId, "Byte check", text);
+    const file = fileOf(await snapshotUploads.ofStudio(db, otherStudioId, row.id));
+    expect(new TextDecoder().decode(file.bytes)).toBe(text);
+    expect(file).toMatchObject({ fileName: "Byte check.json", contentHash: row.contentHash });
+  });
+
+  it("checks names and sizes in the kind's words and limits", () => {
+    expect(catalogueUploads.nameOf(undefined, "  crates.v2.csv")).toBe("crates.v2");
+    expect(snapshotUploads.nameOf("  Loading bay ", "x.json")).toBe("Loading bay");
+    expect(() => snapshotUploads.nameOf("", "x.json")).toThrow("name: a snapshot needs a name (in the form, in the file, or from the file name).");
+    expect(() => catalogueUploads.nameOf(undefined, ".csv")).toThrow("name: a catalogue needs a name (or a file name to take it from).");
+    expect(() => catalogueUploads.nameOf("a\tb", "x.csv")).toThrow("name: must not hold control characters");
+    const long = "n".repeat(snapshotUploads.kind.maxNameLength + 1);
+    expect(() => snapshotUploads.nameOf(long, "x.json")).toThrow(`name: at most ${snapshotUploads.kind.maxNameLength} characters; got ${long.length}.`);
+    // 256 KiB and 4 MiB: the limits lib/catalogues/format.ts and lib/snapshots/format.ts state.
+    expect(() => catalogueUploads.checkSize(new Uint8Array(256 * 1024))).not.toThrow();
+    expect(() => catalogueUploads.checkSize(new Uint8Array(256 * 1024 + 1), "original")).toThrow("original: 262,145 bytes exceed the limit of 262,144 bytes (256 KiB).");
+    expect(() => snapshotUploads.checkSize(new Uint8Array(4 * 1024 * 1024 + 1))).toThrow("file: 4,194,305 bytes exceed the limit of 4,194,304 bytes (4 MiB).");
   });
 });

@@ -1,13 +1,12 @@
 import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
-import { readMultipart } from "@/lib/api/multipart";
 import { json } from "@/lib/api/respond";
 import { withAuth } from "@/lib/auth/guard";
 import { MAX_UPLOAD_BODY_BYTES } from "@/lib/catalogues/api";
 import { ENGINEERS_WRITE, MEMBERS_READ } from "@/lib/auth/policies";
 import { CATALOGUE_LIMITS } from "@/lib/catalogues/format";
-import { catalogueDetail, listCatalogues, saveCatalogue } from "@/lib/catalogues/store";
-import { ApiError } from "@/lib/errors";
+import { catalogueDetail, catalogueUploads, listCatalogues, saveCatalogue } from "@/lib/catalogues/store";
+import { readUploadForm } from "@/lib/uploads/api";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -17,8 +16,7 @@ export const GET = withAuth(MEMBERS_READ, async ({ studio }) => {
 });
 
 export const POST = withAuth(ENGINEERS_WRITE, async ({ req, studio, user }) => {
-  const { fields, file, files } = await readMultipart(req, MAX_UPLOAD_BODY_BYTES, `${CATALOGUE_LIMITS.maxFileBytes.toLocaleString("en-US")} bytes (256 KiB) per file`);
-  if (!file) throw new ApiError("validation_failed", 'file: attach the catalogue (CSV or JSON) in a field named "file".', "file");
+  const { fields, file, files } = await readUploadForm(req, catalogueUploads.kind, MAX_UPLOAD_BODY_BYTES, "the catalogue (CSV or JSON)");
   const db = await getDb();
   const { catalogue, notes } = await saveCatalogue(db, studio.id, {
     name: fields.get("name"),

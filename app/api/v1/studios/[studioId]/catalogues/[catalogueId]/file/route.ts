@@ -2,8 +2,10 @@ import { getDb } from "@/db/client";
 import { otherMethods } from "@/lib/api/methods";
 import { withAuth } from "@/lib/auth/guard";
 import { MEMBERS_READ } from "@/lib/auth/policies";
-import { catalogueFileBytes, catalogueOfStudio, catalogueUploadedFile } from "@/lib/catalogues/store";
+import { catalogueOfStudio, catalogueUploadedFile } from "@/lib/catalogues/store";
 import { ApiError } from "@/lib/errors";
+import { fileDownload } from "@/lib/uploads/api";
+import { fileOf } from "@/lib/uploads/versioned";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -16,20 +18,9 @@ export const GET = withAuth<typeof MEMBERS_READ, { studioId: string; catalogueId
   const copy = new URL(req.url).searchParams.get("copy") ?? "uploaded";
   if (copy !== "uploaded" && copy !== "saved") throw new ApiError("validation_failed", 'copy: must be "uploaded" (the file as uploaded, the default) or "saved" (the table the objects were read from).', "copy");
   const catalogue = await catalogueOfStudio(await getDb(), studio.id, params.catalogueId);
-  const file = copy === "saved" ? { fileName: catalogue.fileName, bytes: catalogueFileBytes(catalogue), contentHash: catalogue.contentHash } : catalogueUploadedFile(catalogue);
-  const safeName = file.fileName.replace(/[^A-Za-z0-9._ -]/g, "_");
+  const file = copy === "saved" ? fileOf(catalogue) : catalogueUploadedFile(catalogue);
   const json = copy === "saved" ? catalogue.format === "json" : /\.json$/i.test(file.fileName) || (file.fileName === catalogue.fileName && catalogue.format === "json");
-  return new Response(Buffer.from(file.bytes), {
-    status: 200,
-    headers: {
-      "content-type": json ? "application/json" : "text/csv",
-      "content-disposition": `attachment; filename="${safeName}"`,
-      "x-content-sha256": file.contentHash,
-      etag: `"${file.contentHash}"`,
-      "cache-control": "no-store",
-      "x-content-type-options": "nosniff",
-    },
-  });
+  return fileDownload(file, json ? "application/json" : "text/csv");
 });
 
 export const { POST, PUT, PATCH, DELETE, OPTIONS } = otherMethods(["GET"]);
