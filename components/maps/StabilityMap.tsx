@@ -124,6 +124,8 @@ export function StabilityMap(props: StabilityMapProps) {
   const [hasFocus, setHasFocus] = useState(false);
   // The layout of the last draw, as state too: the tooltip of a keyboard-focused cell is placed from it during render.
   const [drawnLayout, setDrawnLayout] = useState<MapLayout | null>(null);
+  // Cells the last draw showed as not computed yet: 0 once a finished sweep's map shows every cell (what the first-visit bench waits for).
+  const [drawnPending, setDrawnPending] = useState<number | null>(null);
   const describedBy = useId();
 
   const resolved = useMemo((): { model: MapModel } | { error: string } => {
@@ -152,6 +154,7 @@ export function StabilityMap(props: StabilityMapProps) {
     onDraw?.(performance.now() - started);
     layoutRef.current = layout;
     setDrawnLayout(layout);
+    setDrawnPending(model.pendingCount);
   }, [model, width, height, dpr, themeVersion, compact, showLegend, onDraw]);
 
   useLayoutEffect(() => {
@@ -323,6 +326,7 @@ export function StabilityMap(props: StabilityMapProps) {
               aria-describedby={describedBy}
               // The plot rectangle in CSS px, for browser tests and tools that point at cells.
               data-plot={drawnLayout ? [drawnLayout.geometry.plot.left, drawnLayout.geometry.plot.top, drawnLayout.geometry.plot.width, drawnLayout.geometry.plot.height].join(",") : undefined}
+              data-pending-cells={drawnPending ?? undefined}
               tabIndex={0}
               onPointerMove={onPointerMove}
               onPointerLeave={() => setPointed(null)}

@@ -4,11 +4,13 @@
  * the device pixel ratio, and a counter that changes whenever the theme does (the `data-theme`
  * attribute on <html> or the OS colour scheme), so canvases redraw with the new chrome colours.
  */
-import { useEffect, useState, type RefObject } from "react";
+import { useEffect, useLayoutEffect, useState, type RefObject } from "react";
 
 export function useElementWidth(ref: RefObject<HTMLElement | null>): number {
   const [width, setWidth] = useState(0);
-  useEffect(() => {
+  // Measured before the browser paints (a layout effect), so a canvas draws in the commit that mounts
+  // it instead of painting an empty box first and drawing one render later.
+  useLayoutEffect(() => {
     const element = ref.current;
     if (!element) return;
     const observer = new ResizeObserver((entries) => {

@@ -7,6 +7,7 @@ import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
 import { FIRST_CURSOR, withPage, type CellRow, type CellsPage, type HeldCells } from "./sweep-cells";
+import { takeEarlyAnswer } from "./early-cells";
 
 export type { CellRow } from "./sweep-cells";
 
@@ -93,8 +94,12 @@ export function useSweepCells(studioId: string, sweepId: string, active: boolean
     queryKey,
     queryFn: async () => {
       const held = queryClient.getQueryData<HeldCells>(queryKey);
-      const after = encodeURIComponent(held?.cursor ?? FIRST_CURSOR);
-      return withPage(held, await apiFetch<CellsPage>(`${sweepPath(studioId, sweepId)}/cells?after=${after}`));
+      const url = `${sweepPath(studioId, sweepId)}/cells?after=${encodeURIComponent(held?.cursor ?? FIRST_CURSOR)}`;
+      // The first read may have been started by the page's HTML (early-cells.ts): take its answer when it
+      // succeeded; on anything else ask again, so errors reach the page as apiFetch words them.
+      const early = held ? undefined : await takeEarlyAnswer(url);
+      const page = early && early.status === 200 ? (JSON.parse(early.text) as CellsPage) : await apiFetch<CellsPage>(url);
+      return withPage(held, page);
     },
     select: heldCellRows,
     // withPage keeps the held object when nothing changed; comparing tens of thousands of cells

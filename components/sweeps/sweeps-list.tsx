@@ -9,17 +9,10 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { SWEEP_STATUSES, formatMinutes, isActive, sweepKeys, sweepsPath, type Sweep, type SweepStatus } from "./sweep-api";
+import type { SweepsListPage } from "./sweep-list-row";
 
 const PAGE_SIZE = 20;
 
-/** One page of `GET …/sweeps`. */
-interface SweepsListPage {
-  sweeps: (Sweep & { createdBy: { id: string; name: string } | null })[];
-  page: number;
-  pageSize: number;
-  total: number;
-  creators: { id: string; name: string }[];
-}
 const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
 const td = "px-3 py-2.5 align-middle";
 

@@ -8,6 +8,8 @@
  * The app: KD_BENCH_URL (e.g. http://localhost:3000 of a running `npm run demo`) is reused as it
  * is; otherwise the production build (`npm run build` first, NEXT_DIST_DIR as built) is started on
  * a fresh demo data folder on KD_BENCH_PORT (default 3390), and stopped afterwards. It says which.
+ * KD_BENCH_PAGES (comma-separated page names, e.g. "sweep page,sweep map drawn") measures only those
+ * pages, with the peer always measured first, for working on one page without the whole run.
  */
 import { spawn, type ChildProcess } from "node:child_process";
 import { mkdtempSync, rmSync } from "node:fs";
@@ -46,7 +48,8 @@ const CASES: PageCase[] = [
   { name: "studio home", path: (ids) => `/studios/${ids.studioId}`, ready: (page) => page.getByTestId("home-balance"), as: "engineer" },
   { name: "sweeps list", path: (ids) => `/studios/${ids.studioId}/sweeps`, ready: (page) => page.getByTestId("sweeps-table"), as: "engineer" },
   { name: "sweep page", path: (ids) => (ids.sweepId ? `/studios/${ids.studioId}/sweeps/${ids.sweepId}` : null), ready: (page) => page.getByTestId("sweep-name"), as: "engineer" },
-  { name: "sweep map drawn", path: (ids) => (ids.sweepId ? `/studios/${ids.studioId}/sweeps/${ids.sweepId}` : null), ready: (page) => page.locator("canvas[data-plot]").first(), as: "engineer" },
+  // Drawn with every cell of the finished sweep (the map's first draw, before the cells arrive, shows them all as not computed).
+  { name: "sweep map drawn", path: (ids) => (ids.sweepId ? `/studios/${ids.studioId}/sweeps/${ids.sweepId}` : null), ready: (page) => page.locator('canvas[data-plot][data-pending-cells="0"]').first(), as: "engineer" },
   { name: "cell page", path: (ids) => (ids.sweepId ? `/studios/${ids.studioId}/sweeps/${ids.sweepId}/cells/0` : null), ready: (page) => page.getByTestId("cell-verdict"), as: "engineer" },
   { name: "new sweep", path: (ids) => `/studios/${ids.studioId}/sweeps/new`, ready: (page) => page.getByTestId("quote-panel"), as: "engineer" },
   { name: "billing", path: (ids) => `/studios/${ids.studioId}/billing`, ready: heading(/balance|billing/i), as: "owner" },
@@ -186,7 +189,11 @@ export const firstVisit: BenchModule = {
       // scripts loaded by then, and the API requests the page made before its main content showed.
       const rows: (string | number)[][] = [["page", "first visit [ms]", "ratio to sign-in", `under ${TARGET_MS} ms`, "HTML in [ms]", "scripts [kB]", "API calls before"]];
       let peerMs = Number.NaN;
+      const only = process.env.KD_BENCH_PAGES ? new Set(process.env.KD_BENCH_PAGES.split(",").map((name) => name.trim())) : null;
+      const unknownPages = only ? [...only].filter((name) => !CASES.some((c) => c.name === name)) : [];
+      if (unknownPages.length) throw new Error(`KD_BENCH_PAGES names no such page: ${unknownPages.join(", ")}; pages: ${CASES.map((c) => c.name).join(", ")}`);
       for (const c of CASES) {
+        if (only && !only.has(c.name) && !c.name.endsWith("(peer)")) continue;
         const target = c.path(ids);
         if (!target) {
           rows.push([c.name, "—", "—", "not measured (no such page in this demo yet)"]);

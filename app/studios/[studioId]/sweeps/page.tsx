@@ -3,6 +3,7 @@ import { SweepsList } from "@/components/sweeps/sweeps-list";
 import { getDb } from "@/db/client";
 import { requireStudio } from "@/lib/auth/page-guard";
 import { sweepsListPage } from "@/lib/queue/api";
+import { sweepListRow } from "@/components/sweeps/sweep-list-row";
 
 export const metadata: Metadata = { title: "Sweeps" };
 export const dynamic = "force-dynamic";
@@ -14,6 +15,8 @@ export default async function SweepsRoute({ params }: { params: Promise<{ studio
   const { studioId } = await params;
   const access = await requireStudio(studioId, { callbackUrl: `/studios/${studioId}/sweeps` });
   // The first page comes with the page (the same answer as GET …/sweeps), so the table paints without a loading row.
-  const initialList = await sweepsListPage(await getDb(), access.studio.id, FIRST_PAGE);
+  // Only what the table shows travels with the page (sweep-list-row.ts), not each sweep's spec and axes.
+  const first = await sweepsListPage(await getDb(), access.studio.id, FIRST_PAGE);
+  const initialList = { ...first, sweeps: first.sweeps.map(sweepListRow) };
   return <SweepsList studioId={access.studio.id} studioName={access.studio.name} role={access.role} initialList={initialList} />;
 }

@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { headers } from "next/headers";
 import { SweepView } from "@/components/sweeps/sweep-view";
 import { requireStudio } from "@/lib/auth/page-guard";
 import { getDb } from "@/db/client";
@@ -6,6 +7,7 @@ import { ApiError } from "@/lib/errors";
 import { sweepOfStudio } from "@/lib/queue/api";
 import { sweepView } from "@/lib/queue/views";
 import type { SweepView as SweepData } from "@/lib/sweeps/sweep-view";
+import { earlyFetchScript, firstCellsUrl } from "@/components/sweeps/early-cells";
 
 export const metadata: Metadata = { title: "Stability map" };
 export const dynamic = "force-dynamic";
@@ -22,5 +24,13 @@ export default async function SweepRoute({ params }: { params: Promise<{ studioI
   } catch (error) {
     if (!(error instanceof ApiError && error.status === 404)) throw error;
   }
-  return <SweepView studioId={access.studio.id} studioName={access.studio.name} role={access.role} sweepId={sweepId} initialSweep={initialSweep} />;
+  // The map's cells are asked for while the page's scripts load (early-cells.ts), not after hydration;
+  // the script runs only with this request's CSP nonce (proxy.ts).
+  const nonce = (await headers()).get("x-nonce") ?? undefined;
+  return (
+    <>
+      {initialSweep ? <script nonce={nonce} dangerouslySetInnerHTML={{ __html: earlyFetchScript(firstCellsUrl(access.studio.id, sweepId)) }} /> : null}
+      <SweepView studioId={access.studio.id} studioName={access.studio.name} role={access.role} sweepId={sweepId} initialSweep={initialSweep} />
+    </>
+  );
 }
