@@ -21,6 +21,7 @@ import { apiFetch, ApiClientError, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { catalogueKeys, cataloguePath, type CatalogueDetail, type CheckSummary, type CheckView } from "./catalogue-api";
+import { seededBy } from "@/lib/ui/queries";
 
 /** The objects of a version, one column per catalogue column, headed by its name in the file. */
 const OBJECT_COLUMNS: Column<CatalogueObject>[] = CATALOGUE_COLUMNS.map((column) => {
@@ -126,7 +127,7 @@ export function CatalogueView({
   const detail = useQuery({
     queryKey: catalogueKeys.one(studioId, catalogueId),
     queryFn: () => apiFetch<{ catalogue: CatalogueDetail; checks: CheckSummary[] }>(cataloguePath(studioId, catalogueId)),
-    ...(initialDetail ? { initialData: initialDetail, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialDetail),
     refetchInterval: (query) => (query.state.data?.checks.some((check) => ["queued", "running", "paused"].includes(check.status)) ? 2000 : false),
   });
   return (

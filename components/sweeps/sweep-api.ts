@@ -5,7 +5,7 @@ import type { TimeSeries } from "@/lib/physics/types";
 import type { Scenario } from "@/lib/physics/types";
 import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
-import { studioApiPath } from "@/lib/ui/queries";
+import { studioApiPath, seededBy } from "@/lib/ui/queries";
 import { FIRST_CURSOR, withPage, type CellRow, type CellsPage, type HeldCells } from "./sweep-cells";
 import { takeEarlyAnswer } from "./early-cells";
 
@@ -73,7 +73,7 @@ export function useSweep(studioId: string, sweepId: string, initialSweep?: Sweep
     queryKey: sweepKeys.sweep(studioId, sweepId),
     queryFn: async () => (await apiFetch<{ sweep: Sweep }>(sweepPath(studioId, sweepId))).sweep,
     // The server page's copy, when it sent one: the first paint shows the sweep, not a loading row.
-    ...(initialSweep ? { initialData: initialSweep, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialSweep),
     select: withResolvedUnits,
     // Poll every second while the sweep can still change; stop once it has finished.
     refetchInterval: (query) => (query.state.data === undefined || isActive(query.state.data.status) ? 1000 : false),

@@ -10,6 +10,7 @@ import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { SWEEP_STATUSES, formatMinutes, isActive, sweepKeys, sweepsPath, type Sweep, type SweepStatus } from "./sweep-api";
 import type { SweepsListPage } from "./sweep-list-row";
+import { seededBy } from "@/lib/ui/queries";
 
 const PAGE_SIZE = 20;
 
@@ -69,7 +70,7 @@ export function SweepsList({
       if (searched) query.set("q", searched);
       return apiFetch<SweepsListPage>(`${sweepsPath(studioId)}?${query}`);
     },
-    ...(initial ? { initialData: initial, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initial),
     placeholderData: (previous) => previous,
     // Keep progress current while anything on the page still runs.
     refetchInterval: (query) => (query.state.data?.sweeps.some((sweep) => isActive(sweep.status)) ? 2000 : false),

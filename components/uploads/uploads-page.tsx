@@ -15,6 +15,7 @@ import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import type { VersionSummary } from "@/lib/uploads/versioned";
+import { seededBy } from "@/lib/ui/queries";
 
 /** A kind of upload as the page shows it. */
 export interface UploadsListKind<Summary extends VersionSummary> {
@@ -58,7 +59,7 @@ export function UploadsPage<Summary extends VersionSummary>({
   const list = useQuery({
     queryKey: kind.queryKey,
     queryFn: () => apiFetch<Record<string, Summary[]>>(kind.path),
-    ...(initial ? { initialData: { [kind.field]: initial }, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initial && { [kind.field]: initial }),
   });
   const columns: Column<Summary>[] = [
     { key: "name", header: kind.nameHeader, cell: kind.name, className: "font-medium" },
