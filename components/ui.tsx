@@ -97,6 +97,43 @@ export function SelectField({
   );
 }
 
+/** A set of checkboxes under one legend (token scopes, webhook events), its error tied to it. */
+export function CheckboxGroup<Value extends string>({
+  id,
+  legend,
+  options,
+  selected,
+  onChange,
+  error,
+}: {
+  id: string;
+  legend: string;
+  options: readonly { value: Value; label: ReactNode }[];
+  selected: readonly Value[];
+  onChange: (selected: Value[]) => void;
+  error?: string;
+}) {
+  const toggle = (value: Value, on: boolean) => onChange(on ? [...new Set([...selected, value])] : selected.filter((item) => item !== value));
+  return (
+    <fieldset className="space-y-2" aria-describedby={error ? `${id}-error` : undefined}>
+      <legend className="text-sm font-medium">{legend}</legend>
+      {options.map((option) => (
+        <label key={option.value} className="flex items-start gap-2 text-sm">
+          <input type="checkbox" checked={selected.includes(option.value)} onChange={(event) => toggle(option.value, event.target.checked)} className="mt-0.5 h-4 w-4 accent-[var(--kd-action)]" />
+          <span>
+            <span className="font-mono">{option.value}</span> <span className="text-ink-muted">— {option.label}</span>
+          </span>
+        </label>
+      ))}
+      {error ? (
+        <p id={`${id}-error`} role="alert" className="text-sm font-medium text-danger">
+          {error}
+        </p>
+      ) : null}
+    </fieldset>
+  );
+}
+
 export function Card({ title, actions, children, className }: { title?: ReactNode; actions?: ReactNode; children: ReactNode; className?: string }) {
   return (
     <section className={cx("min-w-0 rounded-lg border border-line bg-surface p-5 shadow-[0_1px_0_var(--kd-line)]", className)}>
