@@ -118,7 +118,7 @@ function CreateTokenForm({ studioId, onCreated }: { studioId: string; onCreated:
     <form onSubmit={onSubmit} noValidate className="space-y-4">
       {create.error && !nameError && !scopesError ? <Alert>{errorMessage(create.error)}</Alert> : null}
       <TextField id="token-name" label="Token name" hint="Say where it will live, e.g. “nightly build agent”." value={name} onChange={(event) => setName(event.target.value)} error={nameError} />
-      <CheckboxGroup id="token-scopes" legend="Scopes" options={SCOPES} selected={scopes} onChange={setScopes} error={scopesError} />
+      <CheckboxGroup id="token-scopes" legend="Scopes" options={SCOPES} valuesAsCode selected={scopes} onChange={setScopes} error={scopesError} />
       <Button type="submit" disabled={create.isPending}>
         {create.isPending ? "Creating…" : "Create token"}
       </Button>

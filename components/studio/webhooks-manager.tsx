@@ -192,7 +192,7 @@ function CreateEndpointForm({ studioId, onCreated }: { studioId: string; onCreat
     <form onSubmit={onSubmit} noValidate className="space-y-4">
       {create.error && !urlError && !eventsError ? <Alert>{errorMessage(create.error)}</Alert> : null}
       <TextField id="endpoint-url" label="Endpoint URL" hint="An https:// address of your build system or chat bridge." value={url} onChange={(event) => setUrl(event.target.value)} error={urlError} />
-      <CheckboxGroup id="endpoint-events" legend="Events" options={EVENT_TYPES} selected={events} onChange={setEvents} error={eventsError} />
+      <CheckboxGroup id="endpoint-events" legend="Events" options={EVENT_TYPES} valuesAsCode selected={events} onChange={setEvents} error={eventsError} />
       <Button type="submit" disabled={create.isPending}>
         {create.isPending ? "Adding…" : "Add endpoint"}
       </Button>
