@@ -12,6 +12,7 @@ import { LedgerBySweep } from "./ledger-by-sweep";
 import { formatDateTime } from "@/lib/ui/format";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE } from "./billing-format";
 import { DataTable, type Column } from "@/components/data-table";
+import { StackedBarChart } from "@/components/stacked-bar-chart";
 import { BillingDetailsCard } from "./billing-details";
 import { OverageSwitch } from "./overage-switch";
 import { formatCompute } from "@/lib/billing/format";
@@ -181,18 +182,15 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
         {byDay.length === 0 ? (
           <EmptyState>No compute used in the last 30 days.</EmptyState>
         ) : (
-          <div className="h-64" data-testid="usage-by-day">
-            <ResponsiveContainer>
-              <BarChart data={byDay}>
-                <CartesianGrid strokeDasharray="3 3" />
-                <XAxis dataKey="day" fontSize={11} />
-                <YAxis fontSize={11} />
-                <Tooltip />
-                <Bar dataKey="prepaid" stackId="m" fill="#0f6b5c" name="Prepaid" />
-                <Bar dataKey="overage" stackId="m" fill="#c2410c" name="Overage" />
-              </BarChart>
-            </ResponsiveContainer>
-          </div>
+          <StackedBarChart
+            testId="usage-by-day"
+            data={byDay}
+            xKey="day"
+            bars={[
+              { key: "prepaid", name: "Prepaid", fill: "#0f6b5c" },
+              { key: "overage", name: "Overage", fill: "#c2410c" },
+            ]}
+          />
         )}
       </Card>
       <HorizontalBars title="Usage by sweep (compute minutes, top 10)" data={bySweep} testId="usage-by-sweep" className="xl:col-span-2" />

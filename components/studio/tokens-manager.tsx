@@ -107,7 +107,7 @@ function CreateTokenForm({ studioId, onCreated }: { studioId: string; onCreated:
   });
   const apiError = create.error instanceof ApiClientError ? create.error : null;
   const nameError = apiError?.messageFor("name");
-  const scopesError = apiError?.issues.find((issue) => issue.field.startsWith("scopes"))?.message ?? (apiError?.field?.startsWith("scopes") ? apiError.message : undefined);
+  const scopesError = apiError?.messageUnder("scopes");
 
   function onSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();

@@ -8,6 +8,7 @@ import { SecretOnce } from "@/components/studio/secret-once";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
+import type { DeliveryView } from "@/lib/webhooks/webhooks";
 
 /** Event types an endpoint can subscribe to (the names of docs/api.md, "Webhooks"). */
 const EVENT_TYPES = [
@@ -25,17 +26,8 @@ interface Endpoint {
   createdAt: string;
   deliveries: { delivered: number; pending: number; failed: number };
 }
-interface Delivery {
-  eventId: string;
-  type: string;
-  status: "pending" | "delivered" | "failed";
-  attempts: number;
-  lastStatusCode: number | null;
-  lastError: string | null;
-  resends: number;
-  createdAt: string;
-  lastAttemptAt: string | null;
-}
+// The lib type itself (a type-only import: nothing of the server module reaches the browser).
+type Delivery = DeliveryView;
 
 const DELIVERY_COLUMNS: Column<Delivery>[] = [
   {
@@ -181,7 +173,7 @@ function CreateEndpointForm({ studioId, onCreated }: { studioId: string; onCreat
   });
   const apiError = create.error instanceof ApiClientError ? create.error : null;
   const urlError = apiError?.messageFor("url");
-  const eventsError = apiError?.issues.find((issue) => issue.field.startsWith("events"))?.message ?? (apiError?.field?.startsWith("events") ? apiError.message : undefined);
+  const eventsError = apiError?.messageUnder("events");
 
   function onSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
