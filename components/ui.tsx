@@ -1,4 +1,4 @@
-import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, SelectHTMLAttributes } from "react";
+import type { ButtonHTMLAttributes, InputHTMLAttributes, ReactNode, Ref, SelectHTMLAttributes } from "react";
 import Link from "next/link";
 
 /** Small presentational building blocks shared by every page. */
@@ -44,56 +44,131 @@ export function ButtonLink({ href, variant = "primary", children, className }: {
 const inputClasses =
   "block w-full rounded-md border border-line bg-surface px-3 py-2 text-sm text-ink placeholder:text-ink-muted/70 aria-[invalid=true]:border-danger";
 
-/** A labelled input with its hint and error tied to it through aria-describedby. */
-export function TextField({
-  id,
-  label,
-  error,
-  hint,
-  ...rest
-}: InputHTMLAttributes<HTMLInputElement> & { id: string; label: string; error?: string; hint?: string }) {
-  const describedBy = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(" ") || undefined;
+/** What every labelled field shares: its id, label, unit, hint and error. */
+interface FieldProps {
+  id: string;
+  label: ReactNode;
+  /** Shown in brackets after the label, in the mono face ("[N/m]"). */
+  unit?: ReactNode;
+  hint?: ReactNode;
+  hintTestId?: string;
+  error?: string;
+}
+
+/** The hint and error ids a control is described by (aria-describedby). */
+function describedBy({ id, hint, error }: Pick<FieldProps, "id" | "hint" | "error">): string | undefined {
+  return [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(" ") || undefined;
+}
+
+/** A field's label above its control, its hint and its error below, tied to it through aria-describedby. */
+function Field({ id, label, unit, hint, hintTestId, error, children }: FieldProps & { children: ReactNode }) {
   return (
     <div className="space-y-1">
       <label htmlFor={id} className="block text-sm font-medium text-ink">
         {label}
+        {unit !== undefined ? (
+          <>
+            {" "}
+            <span className="font-mono text-xs text-ink-muted">[{unit}]</span>
+          </>
+        ) : null}
       </label>
-      <input id={id} aria-invalid={error ? true : undefined} aria-describedby={describedBy} className={inputClasses} {...rest} />
+      {children}
       {hint ? (
-        <p id={`${id}-hint`} className="text-xs text-ink-muted">
+        <p id={`${id}-hint`} className="text-xs text-ink-muted" data-testid={hintTestId}>
           {hint}
         </p>
       ) : null}
-      {error ? (
-        <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
-          {error}
-        </p>
-      ) : null}
+      <FieldError id={id} message={error} />
     </div>
   );
 }
 
-export function SelectField({
-  id,
-  label,
-  error,
-  children,
-  ...rest
-}: SelectHTMLAttributes<HTMLSelectElement> & { id: string; label: string; error?: string; children: ReactNode }) {
+/** A field's error, announced; its id is `${id}-error` (what the control's aria-describedby names). */
+export function FieldError({ id, message }: { id: string; message?: string }) {
+  if (!message) return null;
   return (
-    <div className="space-y-1">
-      <label htmlFor={id} className="block text-sm font-medium text-ink">
-        {label}
-      </label>
-      <select id={id} aria-invalid={error ? true : undefined} aria-describedby={error ? `${id}-error` : undefined} className={inputClasses} {...rest}>
-        {children}
-      </select>
-      {error ? (
-        <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
-          {error}
-        </p>
-      ) : null}
-    </div>
+    <p id={`${id}-error`} className="text-sm font-medium text-danger" role="alert">
+      {message}
+    </p>
+  );
+}
+
+/** A field's props split into the frame's (label, unit, hint, error) and the control's, which gets the id, the error state and what describes it. */
+function splitField<Control>({ id, label, unit, hint, hintTestId, error, ...control }: FieldProps & Control) {
+  return {
+    field: { id, label, unit, hint, hintTestId, error },
+    control: { id, "aria-invalid": error ? true : undefined, "aria-describedby": describedBy({ id, hint, error }), className: inputClasses, ...control },
+  };
+}
+
+/** A labelled input with its hint and error tied to it through aria-describedby. */
+export function TextField(props: InputHTMLAttributes<HTMLInputElement> & FieldProps & { ref?: Ref<HTMLInputElement> }) {
+  const { field, control } = splitField(props);
+  return (
+    <Field {...field}>
+      <input {...control} />
+    </Field>
+  );
+}
+
+/** A labelled select, like TextField. */
+export function SelectField({ children, ...props }: SelectHTMLAttributes<HTMLSelectElement> & FieldProps & { ref?: Ref<HTMLSelectElement>; children: ReactNode }) {
+  const { field, control } = splitField(props);
+  return (
+    <Field {...field}>
+      <select {...control}>{children}</select>
+    </Field>
+  );
+}
+
+/**
+ * A set of checkboxes under one legend (token scopes, webhook events, an axis's choices), its error
+ * tied to it. The selection keeps the options' order, whatever order they were ticked in.
+ */
+export function CheckboxGroup<Value extends string>({
+  id,
+  legend,
+  options,
+  selected,
+  onChange,
+  error,
+  inline,
+  valuesAsCode,
+  className,
+}: {
+  id: string;
+  legend: string;
+  options: readonly { value: Value; label: ReactNode }[];
+  selected: readonly Value[];
+  onChange: (selected: Value[]) => void;
+  error?: string;
+  /** Options side by side (short labels) instead of one a line. */
+  inline?: boolean;
+  /** Each option reads as its value in the code face, a dash, then its label (scopes, event types). */
+  valuesAsCode?: boolean;
+  className?: string;
+}) {
+  const toggle = (value: Value, on: boolean) => onChange(options.map((option) => option.value).filter((candidate) => (candidate === value ? on : selected.includes(candidate))));
+  return (
+    <fieldset className={cx(inline ? undefined : "space-y-2", className)} aria-describedby={error ? `${id}-error` : undefined}>
+      <legend className="text-sm font-medium">{legend}</legend>
+      <div className={inline ? "mt-1 flex flex-wrap gap-4" : "space-y-2"}>
+        {options.map((option) => (
+          <label key={option.value} className={cx("flex gap-2 text-sm", inline ? "items-center" : "items-start")}>
+            <input type="checkbox" checked={selected.includes(option.value)} onChange={(event) => toggle(option.value, event.target.checked)} className={cx("h-4 w-4 accent-[var(--kd-action)]", !inline && "mt-0.5")} />
+            {valuesAsCode ? (
+              <span>
+                <span className="font-mono">{option.value}</span> <span className="text-ink-muted">— {option.label}</span>
+              </span>
+            ) : (
+              option.label
+            )}
+          </label>
+        ))}
+      </div>
+      <FieldError id={id} message={error} />
+    </fieldset>
   );
 }
 

@@ -1,10 +1,10 @@
 "use client";
 
 import { useQuery } from "@tanstack/react-query";
-import { Bar, BarChart, CartesianGrid, Legend, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 import { Alert, Card, EmptyState, LoadingRows, PageHeading } from "@/components/ui";
 import { formatMinutes, formatPriceCents, TAX_NOTE } from "@/components/billing/billing-format";
 import { DataTable, type Column } from "@/components/data-table";
+import { StackedBarChart } from "@/components/stacked-bar-chart";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate } from "@/lib/ui/format";
 import { AdminNav } from "./admin-nav";
@@ -35,19 +35,16 @@ export function FinancePage() {
             {finance.data.revenueByMonth.length === 0 ? (
               <EmptyState>No revenue yet.</EmptyState>
             ) : (
-              <div className="h-64" data-testid="revenue-chart">
-                <ResponsiveContainer>
-                  <BarChart data={finance.data.revenueByMonth.map((m) => ({ month: m.month, packs: m.packCents / 100, overage: m.overageCents / 100 }))}>
-                    <CartesianGrid strokeDasharray="3 3" />
-                    <XAxis dataKey="month" fontSize={11} />
-                    <YAxis fontSize={11} />
-                    <Tooltip />
-                    <Legend />
-                    <Bar dataKey="packs" stackId="r" fill="#0f6b5c" name="Packs" />
-                    <Bar dataKey="overage" stackId="r" fill="#c2410c" name="Overage invoices" />
-                  </BarChart>
-                </ResponsiveContainer>
-              </div>
+              <StackedBarChart
+                testId="revenue-chart"
+                legend
+                data={finance.data.revenueByMonth.map((m) => ({ month: m.month, packs: m.packCents / 100, overage: m.overageCents / 100 }))}
+                xKey="month"
+                bars={[
+                  { key: "packs", name: "Packs", fill: "#0f6b5c" },
+                  { key: "overage", name: "Overage invoices", fill: "#c2410c" },
+                ]}
+              />
             )}
           </Card>
           <Card

@@ -2,7 +2,7 @@
 
 import { useMutation, useQuery } from "@tanstack/react-query";
 import { Bar, BarChart, CartesianGrid, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
-import { Alert, Button, Card, EmptyState, LoadingRows, cx } from "@/components/ui";
+import { Alert, Button, Card, EmptyState, LoadingRows } from "@/components/ui";
 import { StudioShell } from "@/components/studio/studio-shell";
 import type { CreditPack } from "@/lib/billing/packs";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
@@ -10,7 +10,9 @@ import type { StudioRole } from "@/lib/ui/types";
 import { OVERAGE_DAYS_UNTIL_DUE } from "@/lib/billing/packs";
 import { LedgerBySweep } from "./ledger-by-sweep";
 import { formatDateTime } from "@/lib/ui/format";
-import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
+import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE } from "./billing-format";
+import { DataTable, type Column } from "@/components/data-table";
+import { StackedBarChart } from "@/components/stacked-bar-chart";
 import { BillingDetailsCard } from "./billing-details";
 import { OverageSwitch } from "./overage-switch";
 import { formatCompute } from "@/lib/billing/format";
@@ -33,7 +35,14 @@ type Summary = {
   };
   month: { key: string; usedMs: number; capMs: number };
 };
-type Usage = { days: number; byDay: { day: string; usedMs: number; overageMs: number }[]; bySweep: { sweepId: string | null; name: string; usedMs: number }[]; byMember: { userId: string | null; email: string; usedMs: number }[] };
+type SweepUsage = { sweepId: string | null; name: string; usedMs: number };
+type Usage = { days: number; byDay: { day: string; usedMs: number; overageMs: number }[]; bySweep: SweepUsage[]; byMember: { userId: string | null; email: string; usedMs: number }[] };
+
+const SWEEP_USAGE_COLUMNS: Column<SweepUsage>[] = [
+  { key: "sweep", header: "Sweep", cell: (sweep) => sweep.name },
+  { key: "ms", header: "Billed (ms)", align: "right", numeric: true, cellTestId: "usage-sweep-ms", cell: (sweep) => sweep.usedMs.toLocaleString("en") },
+  { key: "billed", header: "Billed", align: "right", numeric: true, cell: (sweep) => formatCompute(sweep.usedMs) },
+];
 
 type PaymentCheck = { sessionId: string; state: "credited" | "processing" | "failed" | "open" | "expired" | "refused"; amountCents: number; creditedMs: number; message: string };
 
@@ -173,52 +182,27 @@ function UsageCharts({ api, studioId }: { api: string; studioId: string }) {
         {byDay.length === 0 ? (
           <EmptyState>No compute used in the last 30 days.</EmptyState>
         ) : (
-          <div className="h-64" data-testid="usage-by-day">
-            <ResponsiveContainer>
-              <BarChart data={byDay}>
-                <CartesianGrid strokeDasharray="3 3" />
-                <XAxis dataKey="day" fontSize={11} />
-                <YAxis fontSize={11} />
-                <Tooltip />
-                <Bar dataKey="prepaid" stackId="m" fill="#0f6b5c" name="Prepaid" />
-                <Bar dataKey="overage" stackId="m" fill="#c2410c" name="Overage" />
-              </BarChart>
-            </ResponsiveContainer>
-          </div>
+          <StackedBarChart
+            testId="usage-by-day"
+            data={byDay}
+            xKey="day"
+            bars={[
+              { key: "prepaid", name: "Prepaid", fill: "#0f6b5c" },
+              { key: "overage", name: "Overage", fill: "#c2410c" },
+            ]}
+          />
         )}
       </Card>
       <HorizontalBars title="Usage by sweep (compute minutes, top 10)" data={bySweep} testId="usage-by-sweep" className="xl:col-span-2" />
       <Card title="Billed per sweep">
-        {usage.data.bySweep.length === 0 ? (
-          <EmptyState>Nothing yet.</EmptyState>
-        ) : (
-          <table className="w-full text-sm" data-testid="usage-sweep-table">
-            <thead className="border-b border-line">
-              <tr>
-                <th scope="col" className={th}>
-                  Sweep
-                </th>
-                <th scope="col" className={cx(th, "text-right")}>
-                  Billed (ms)
-                </th>
-                <th scope="col" className={cx(th, "text-right")}>
-                  Billed
-                </th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {usage.data.bySweep.map((sweep) => (
-                <tr key={sweep.sweepId ?? "none"} data-testid={`usage-sweep-${sweep.sweepId ?? "none"}`}>
-                  <td className={td}>{sweep.name}</td>
-                  <td className={cx(td, "text-right tabular-nums")} data-testid="usage-sweep-ms">
-                    {sweep.usedMs.toLocaleString("en")}
-                  </td>
-                  <td className={cx(td, "text-right tabular-nums")}>{formatCompute(sweep.usedMs)}</td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        )}
+        <DataTable
+          testId="usage-sweep-table"
+          empty="Nothing yet."
+          rows={usage.data.bySweep}
+          rowKey={(sweep) => sweep.sweepId ?? "none"}
+          rowProps={(sweep) => ({ testId: `usage-sweep-${sweep.sweepId ?? "none"}` })}
+          columns={SWEEP_USAGE_COLUMNS}
+        />
         <p className="mt-3 text-xs text-ink-muted">{METERING_NOTE}</p>
       </Card>
       <HorizontalBars title="Usage by member (compute minutes)" data={byMember} testId="usage-by-member" />

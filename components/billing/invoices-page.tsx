@@ -7,7 +7,8 @@ import { StudioShell } from "@/components/studio/studio-shell";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
-import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE, td, th } from "./billing-format";
+import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE } from "./billing-format";
+import { DataTable, type Column } from "@/components/data-table";
 
 type Invoice = {
   id: string;
@@ -42,10 +43,27 @@ function DocumentLinks({ invoice }: { invoice: Invoice }) {
     </span>
   );
 }
-type Line = { id: string; description: string; periodStart: number; periodEnd: number; quantityMs: number; amountCents: number; ledgerMs: number; differenceMs: number; reconciled: boolean; entries: { id: number; sweepId: string | null; chunkIndex: number | null; overageMs: number; createdAt: string }[] };
+type Entry = { id: number; sweepId: string | null; chunkIndex: number | null; overageMs: number; createdAt: string };
+type Line = { id: string; description: string; periodStart: number; periodEnd: number; quantityMs: number; amountCents: number; ledgerMs: number; differenceMs: number; reconciled: boolean; entries: Entry[] };
 type Detail = { invoice: Invoice; lines: Line[]; reconciled: boolean };
 
 const period = (start: string, end: string) => `${formatDate(start)} – ${formatDate(end)}`;
+
+const INVOICE_COLUMNS: Column<Invoice>[] = [
+  { key: "for", header: "For", cell: (inv) => (inv.kind === "pack" ? "Pack purchase" : "Overage") },
+  { key: "status", header: "Status", cell: (inv) => inv.status },
+  { key: "period", header: "Period (UTC)", cell: (inv) => (inv.kind === "pack" ? formatDate(inv.periodStart) : period(inv.periodStart, inv.periodEnd)) },
+  { key: "minutes", header: "Minutes", numeric: true, cell: (inv) => formatMinutes(inv.quantityMs) },
+  { key: "amount", header: "Amount", numeric: true, cell: (inv) => formatPriceCents(inv.totalCents) },
+  { key: "documents", header: "Documents", cell: (inv) => <DocumentLinks invoice={inv} /> },
+];
+
+const ENTRY_COLUMNS: Column<Entry>[] = [
+  { key: "entry", header: "Ledger entry", cell: (e) => `#${e.id}` },
+  { key: "when", header: "When", cell: (e) => formatDateTime(e.createdAt) },
+  { key: "chunk", header: "Sweep / chunk", cell: (e) => (e.sweepId ? `${e.sweepId} / ${e.chunkIndex}` : "—") },
+  { key: "overage", header: "Overage minutes", numeric: true, cell: (e) => formatMinutes(e.overageMs) },
+];
 
 export function InvoicesPage({ studioId, studioName, role, initialInvoices }: { studioId: string; studioName: string; role: StudioRole; initialInvoices?: Invoice[] }) {
   const list = useQuery({
@@ -74,36 +92,24 @@ export function InvoicesPage({ studioId, studioName, role, initialInvoices }: { 
         ) : list.data.length === 0 ? (
           <EmptyState>No invoices yet. A period&apos;s invoice appears when the period closes.</EmptyState>
         ) : (
-          <div className="relative overflow-x-auto">
-            <table className="w-full text-sm" data-testid="invoices-table">
-              <thead className="border-b border-line">
-                <tr>
-                  {["Invoice", "For", "Status", "Period (UTC)", "Minutes", "Amount", "Documents"].map((h) => (
-                    <th key={h} scope="col" className={th}>
-                      {h}
-                    </th>
-                  ))}
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-line">
-                {list.data.map((inv) => (
-                  <tr key={inv.id}>
-                    <td className={td}>
-                      <Link className="font-medium text-kick hover:underline" href={`/studios/${encodeURIComponent(studioId)}/invoices/${encodeURIComponent(inv.id)}`}>
-                        {inv.number ?? inv.id}
-                      </Link>
-                    </td>
-                    <td className={td}>{inv.kind === "pack" ? "Pack purchase" : "Overage"}</td>
-                    <td className={td}>{inv.status}</td>
-                    <td className={td}>{inv.kind === "pack" ? formatDate(inv.periodStart) : period(inv.periodStart, inv.periodEnd)}</td>
-                    <td className={cx(td, "tabular-nums")}>{formatMinutes(inv.quantityMs)}</td>
-                    <td className={cx(td, "tabular-nums")}>{formatPriceCents(inv.totalCents)}</td>
-                    <td className={td}><DocumentLinks invoice={inv} /></td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            testId="invoices-table"
+            scroll
+            rows={list.data}
+            rowKey={(inv) => inv.id}
+            columns={[
+              {
+                key: "invoice",
+                header: "Invoice",
+                cell: (inv) => (
+                  <Link className="font-medium text-kick hover:underline" href={`/studios/${encodeURIComponent(studioId)}/invoices/${encodeURIComponent(inv.id)}`}>
+                    {inv.number ?? inv.id}
+                  </Link>
+                ),
+              },
+              ...INVOICE_COLUMNS,
+            ]}
+          />
         )}
       </Card>
     </StudioShell>
@@ -157,21 +163,7 @@ export function InvoiceDetailPage({ studioId, studioName, role, invoiceId }: { s
                 <div><dt className="text-ink-muted">Check</dt><dd>{line.reconciled ? "matches" : "DIFFERENCE"}</dd></div>
               </dl>
               {line.entries.length ? (
-                <table className="mt-4 w-full text-sm">
-                  <thead className="border-b border-line">
-                    <tr>{["Ledger entry", "When", "Sweep / chunk", "Overage minutes"].map((h) => <th key={h} scope="col" className={th}>{h}</th>)}</tr>
-                  </thead>
-                  <tbody className="divide-y divide-line">
-                    {line.entries.map((e) => (
-                      <tr key={e.id}>
-                        <td className={td}>#{e.id}</td>
-                        <td className={td}>{formatDateTime(e.createdAt)}</td>
-                        <td className={td}>{e.sweepId ? `${e.sweepId} / ${e.chunkIndex}` : "—"}</td>
-                        <td className={cx(td, "tabular-nums")}>{formatMinutes(e.overageMs)}</td>
-                      </tr>
-                    ))}
-                  </tbody>
-                </table>
+                <DataTable className="mt-4" rows={line.entries} rowKey={(e) => e.id} columns={ENTRY_COLUMNS} />
               ) : (
                 <p className="mt-3 text-sm text-ink-muted">No overage entries in the ledger for this period.</p>
               )}

@@ -2,27 +2,43 @@
 
 import { useQuery } from "@tanstack/react-query";
 import Link from "next/link";
-import { Fragment, useState } from "react";
-import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField, cx } from "@/components/ui";
+import { useState } from "react";
+import { Alert, Button, Card, EmptyState, LoadingRows, SelectField, TextField } from "@/components/ui";
+import { DataTable, useExpanded, type Column } from "@/components/data-table";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import type { LedgerGroup } from "@/lib/ledger/statement";
 import { formatDateTime } from "@/lib/ui/format";
-import { formatMinutes, formatPriceCents, td, th } from "./billing-format";
+import { formatMinutes, formatPriceCents } from "./billing-format";
 
 // The lib type itself (a type-only import: nothing of the server module reaches the browser).
 type Group = LedgerGroup;
 type GroupsPage = { groups: Group[]; page: number; pageSize: number; total: number };
 type Chunk = { id: number; createdAt: string; chunkIndex: number | null; computeMs: number; overageMs: number; memo: string };
 
-const SORTS = [
-  ["lastAt", "Date"],
-  ["kind", "Kind"],
-  ["computeMs", "Minutes"],
-  ["overageMs", "Overage"],
-  ["amountCents", "Amount"],
-] as const;
+type Sort = "lastAt" | "kind" | "computeMs" | "overageMs" | "amountCents";
 
 const KIND_LABEL: Record<string, string> = { purchase: "Purchase", usage: "Usage", adjustment: "Adjustment", refund: "Refund" };
+
+/** The columns the server sorts by, keyed by their sort name. */
+const GROUP_COLUMNS: (Column<Group> & { key: Sort })[] = [
+  { key: "lastAt", header: "Date", className: "whitespace-nowrap", cell: (g) => formatDateTime(g.lastAt) },
+  { key: "kind", header: "Kind", cell: (g) => KIND_LABEL[g.kind] ?? g.kind },
+  { key: "computeMs", header: "Minutes", align: "right", numeric: true, className: (g) => (g.computeMs < 0 ? "text-danger" : "text-ok"), cell: (g) => formatMinutes(g.computeMs) },
+  { key: "overageMs", header: "Overage", align: "right", numeric: true, cell: (g) => (g.overageMs ? formatMinutes(g.overageMs) : "") },
+  { key: "amountCents", header: "Amount", align: "right", numeric: true, cell: (g) => (g.amountCents ? formatPriceCents(g.amountCents) : "") },
+];
+
+const detailId = (g: Group) => `ledger-detail-${g.group.replace(/[^A-Za-z0-9_-]/g, "-")}`;
+
+const CHUNK_COLUMNS: Column<Chunk>[] = [
+  // Chunks are counted from 1 on screen, as users count; the exports keep the stored 0-based chunk_index.
+  { key: "chunk", header: "Chunk", numeric: true, cell: (c) => (c.chunkIndex === null ? "" : (c.chunkIndex + 1).toLocaleString("en-US")) },
+  { key: "at", header: "Billed at", className: "whitespace-nowrap", cell: (c) => formatDateTime(c.createdAt) },
+  { key: "ms", header: "Prepaid (ms)", align: "right", numeric: true, cellTestId: "ledger-chunk-ms", cell: (c) => (-c.computeMs).toLocaleString("en-US") },
+  { key: "min", header: "Prepaid (min)", align: "right", numeric: true, cell: (c) => formatMinutes(-c.computeMs) },
+  { key: "overage", header: "Overage (ms)", align: "right", numeric: true, cellTestId: "ledger-chunk-overage-ms", cell: (c) => c.overageMs.toLocaleString("en-US") },
+  { key: "memo", header: "Memo", className: "break-all text-ink-muted", cell: (c) => c.memo },
+];
 
 /**
  * The ledger as finance reads it: a sweep's chunks are one row (its totals and chunk count), opened
@@ -33,10 +49,10 @@ export function LedgerBySweep({ api, studioId }: { api: string; studioId: string
   const [kind, setKind] = useState("");
   const [from, setFrom] = useState("");
   const [to, setTo] = useState("");
-  const [sort, setSort] = useState<(typeof SORTS)[number][0]>("lastAt");
+  const [sort, setSort] = useState<Sort>("lastAt");
   const [order, setOrder] = useState<"asc" | "desc">("desc");
   const [page, setPage] = useState(1);
-  const [open, setOpen] = useState<string | null>(null);
+  const expanded = useExpanded<string>({ single: true });
   const params = new URLSearchParams({ sort, order, page: String(page), pageSize: "20" });
   const filters = new URLSearchParams();
   if (kind) filters.set("kind", kind);
@@ -95,66 +111,41 @@ export function LedgerBySweep({ api, studioId }: { api: string; studioId: string
       ) : ledger.data.groups.length === 0 ? (
         <EmptyState>No entries match.</EmptyState>
       ) : (
-        <div className="relative overflow-x-auto">
-          <table className="w-full text-sm" data-testid="ledger-table">
-            <thead className="border-b border-line">
-              <tr>
-                {SORTS.map(([column, label]) => (
-                  <th key={column} scope="col" className={th} aria-sort={sort === column ? (order === "asc" ? "ascending" : "descending") : "none"}>
-                    <button type="button" className="uppercase hover:text-ink" onClick={() => sortBy(column)}>
-                      {label}
-                      {sort === column ? (order === "asc" ? " ▲" : " ▼") : ""}
-                    </button>
-                  </th>
-                ))}
-                <th scope="col" className={th}>
-                  What
-                </th>
-              </tr>
-            </thead>
-            <tbody className="divide-y divide-line">
-              {ledger.data.groups.map((g) => {
-                const expanded = open === g.group;
-                const detailId = `ledger-detail-${g.group.replace(/[^A-Za-z0-9_-]/g, "-")}`;
-                return (
-                  <Fragment key={g.group}>
-                    <tr data-testid={`ledger-group-${g.group}`}>
-                      <td className={cx(td, "whitespace-nowrap")}>{formatDateTime(g.lastAt)}</td>
-                      <td className={td}>{KIND_LABEL[g.kind] ?? g.kind}</td>
-                      <td className={cx(td, "text-right tabular-nums", g.computeMs < 0 ? "text-danger" : "text-ok")}>{formatMinutes(g.computeMs)}</td>
-                      <td className={cx(td, "text-right tabular-nums")}>{g.overageMs ? formatMinutes(g.overageMs) : ""}</td>
-                      <td className={cx(td, "text-right tabular-nums")}>{g.amountCents ? formatPriceCents(g.amountCents) : ""}</td>
-                      <td className={cx(td, "text-ink-muted")}>
-                        {g.sweepId ? (
-                          <span className="flex flex-wrap items-center gap-x-3 gap-y-1">
-                            <Link className="font-medium text-ink hover:underline" href={`/studios/${encodeURIComponent(studioId)}/sweeps/${encodeURIComponent(g.sweepId)}`}>
-                              {g.sweepName}
-                            </Link>
-                            <span data-testid="ledger-group-chunks">
-                              {g.chunks.toLocaleString("en-US")} {g.chunks === 1 ? "chunk" : "chunks"}
-                            </span>
-                            <Button variant="ghost" aria-expanded={expanded} aria-controls={detailId} onClick={() => setOpen(expanded ? null : g.group)}>
-                              {expanded ? "Hide chunks" : "Show chunks"}
-                            </Button>
-                          </span>
-                        ) : (
-                          <span className="break-all">{g.memo}</span>
-                        )}
-                      </td>
-                    </tr>
-                    {expanded && g.sweepId ? (
-                      <tr id={detailId}>
-                        <td colSpan={6} className="bg-surface-muted px-3 py-3">
-                          <ChunkDetail api={api} sweepId={g.sweepId} />
-                        </td>
-                      </tr>
-                    ) : null}
-                  </Fragment>
-                );
-              })}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          testId="ledger-table"
+          scroll
+          rows={ledger.data.groups}
+          rowKey={(g) => g.group}
+          rowProps={(g) => ({ testId: `ledger-group-${g.group}` })}
+          columns={[
+            ...GROUP_COLUMNS.map((column): Column<Group> => {
+              const key = column.key as Sort;
+              return { ...column, sort: { active: sort === key, order, onSort: () => sortBy(key) } };
+            }),
+            {
+              key: "what",
+              header: "What",
+              className: "text-ink-muted",
+              cell: (g) =>
+                g.sweepId ? (
+                  <span className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                    <Link className="font-medium text-ink hover:underline" href={`/studios/${encodeURIComponent(studioId)}/sweeps/${encodeURIComponent(g.sweepId)}`}>
+                      {g.sweepName}
+                    </Link>
+                    <span data-testid="ledger-group-chunks">
+                      {g.chunks.toLocaleString("en-US")} {g.chunks === 1 ? "chunk" : "chunks"}
+                    </span>
+                    <Button variant="ghost" aria-expanded={expanded.isOpen(g.group)} aria-controls={detailId(g)} onClick={() => expanded.toggle(g.group)}>
+                      {expanded.isOpen(g.group) ? "Hide chunks" : "Show chunks"}
+                    </Button>
+                  </span>
+                ) : (
+                  <span className="break-all">{g.memo}</span>
+                ),
+            },
+          ]}
+          detail={{ isOpen: (g) => g.sweepId !== null && expanded.isOpen(g.group), id: detailId, render: (g) => (g.sweepId ? <ChunkDetail api={api} sweepId={g.sweepId} /> : null) }}
+        />
       )}
       <div className="mt-3 flex items-center justify-between text-sm">
         <span className="text-ink-muted">{ledger.data ? `${ledger.data.total} rows · page ${page} of ${pages}` : ""}</span>
@@ -180,47 +171,14 @@ function ChunkDetail({ api, sweepId }: { api: string; sweepId: string }) {
   if (detail.isPending) return <LoadingRows label="chunks" />;
   if (detail.isError) return <Alert>{errorMessage(detail.error)}</Alert>;
   return (
-    <table className="w-full text-xs" data-testid="ledger-chunks">
-      <caption className="pb-2 text-left text-sm font-medium text-ink">Chunks of {detail.data.sweepName}</caption>
-      <thead className="border-b border-line">
-        <tr>
-          <th scope="col" className={th}>
-            Chunk
-          </th>
-          <th scope="col" className={th}>
-            Billed at
-          </th>
-          <th scope="col" className={cx(th, "text-right")}>
-            Prepaid (ms)
-          </th>
-          <th scope="col" className={cx(th, "text-right")}>
-            Prepaid (min)
-          </th>
-          <th scope="col" className={cx(th, "text-right")}>
-            Overage (ms)
-          </th>
-          <th scope="col" className={th}>
-            Memo
-          </th>
-        </tr>
-      </thead>
-      <tbody className="divide-y divide-line">
-        {detail.data.chunks.map((c) => (
-          <tr key={c.id} data-testid="ledger-chunk">
-            {/* Chunks are counted from 1 on screen, as users count; the exports keep the stored 0-based chunk_index. */}
-            <td className={cx(td, "tabular-nums")}>{c.chunkIndex === null ? "" : (c.chunkIndex + 1).toLocaleString("en-US")}</td>
-            <td className={cx(td, "whitespace-nowrap")}>{formatDateTime(c.createdAt)}</td>
-            <td className={cx(td, "text-right tabular-nums")} data-testid="ledger-chunk-ms">
-              {(-c.computeMs).toLocaleString("en-US")}
-            </td>
-            <td className={cx(td, "text-right tabular-nums")}>{formatMinutes(-c.computeMs)}</td>
-            <td className={cx(td, "text-right tabular-nums")} data-testid="ledger-chunk-overage-ms">
-              {c.overageMs.toLocaleString("en-US")}
-            </td>
-            <td className={cx(td, "break-all text-ink-muted")}>{c.memo}</td>
-          </tr>
-        ))}
-      </tbody>
-    </table>
+    <DataTable
+      testId="ledger-chunks"
+      size="xs"
+      caption={`Chunks of ${detail.data.sweepName}`}
+      rows={detail.data.chunks}
+      rowKey={(c) => c.id}
+      rowProps={() => ({ testId: "ledger-chunk" })}
+      columns={CHUNK_COLUMNS}
+    />
   );
 }

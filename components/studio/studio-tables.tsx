@@ -1,14 +1,17 @@
 "use client";
 
 import type { ReactNode } from "react";
+import { DataTable, type Column } from "@/components/data-table";
 import { RoleBadge } from "@/components/ui";
 import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { ApiToken, Invite, Member } from "@/lib/ui/types";
 
 /** Read-only tables shared by the studio home and the owner pages (which add an actions column). */
 
-const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
-const td = "px-3 py-2.5 align-middle";
+/** An actions column (its header read by screen readers only), when the page gives actions. */
+function actionsColumn<Row>(actions: ((row: Row) => ReactNode) | undefined, className = "text-right"): Column<Row> | null {
+  return actions ? { key: "actions", header: "Actions", srOnly: true, className, cell: actions } : null;
+}
 
 export function MembersTable({
   members,
@@ -23,93 +26,57 @@ export function MembersTable({
   return (
     // Below the sm breakpoint each member is a stacked block (name, e-mail, then role, date and
     // actions on one wrapping line) so a phone never scrolls the table sideways.
-    <div className="relative sm:overflow-x-auto">
-      <table className="w-full text-sm max-sm:block" data-testid="members-table">
-        <thead className="border-b border-line max-sm:sr-only">
-          <tr>
-            <th scope="col" className={th}>Name</th>
-            <th scope="col" className={th}>E-mail</th>
-            <th scope="col" className={th}>Role</th>
-            <th scope="col" className={th}>Joined</th>
-            {actions ? <th scope="col" className={th}><span className="sr-only">Actions</span></th> : null}
-          </tr>
-        </thead>
-        <tbody className="divide-y divide-line max-sm:block">
-          {members.map((member) => (
-            <tr key={member.userId} data-testid={`member-${member.email}`} className="max-sm:flex max-sm:flex-wrap max-sm:items-center max-sm:gap-x-3 max-sm:py-2">
-              <td className={`${td} font-medium max-sm:block max-sm:w-full max-sm:p-0`}>{member.name || "—"}</td>
-              <td className={`${td} break-all font-mono text-xs max-sm:block max-sm:w-full max-sm:p-0 max-sm:pb-1`}>{member.email}</td>
-              <td className={`${td} max-sm:block max-sm:p-0`}>
-                {roleCell ? roleCell(member) : <RoleBadge role={member.role} />}
-              </td>
-              <td className={`${td} whitespace-nowrap text-ink-muted max-sm:block max-sm:p-0`}>{formatDate(member.joinedAt)}</td>
-              {actions ? <td className={`${td} text-right max-sm:ml-auto max-sm:block max-sm:p-0`}>{actions(member)}</td> : null}
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      testId="members-table"
+      stackOnPhone
+      rows={members}
+      rowKey={(member) => member.userId}
+      rowProps={(member) => ({ testId: `member-${member.email}` })}
+      columns={[
+        { key: "name", header: "Name", className: "font-medium max-sm:block max-sm:w-full max-sm:p-0", cell: (member) => member.name || "—" },
+        { key: "email", header: "E-mail", className: "break-all font-mono text-xs max-sm:block max-sm:w-full max-sm:p-0 max-sm:pb-1", cell: (member) => member.email },
+        { key: "role", header: "Role", className: "max-sm:block max-sm:p-0", cell: (member) => (roleCell ? roleCell(member) : <RoleBadge role={member.role} />) },
+        { key: "joined", header: "Joined", className: "whitespace-nowrap text-ink-muted max-sm:block max-sm:p-0", cell: (member) => formatDate(member.joinedAt) },
+        actionsColumn(actions, "text-right max-sm:ml-auto max-sm:block max-sm:p-0"),
+      ]}
+    />
   );
 }
 
 export function InvitesTable({ invites, actions }: { invites: Invite[]; actions?: (invite: Invite) => ReactNode }) {
   return (
-    <div className="relative overflow-x-auto">
-      <table className="w-full text-sm" data-testid="invites-table">
-        <thead className="border-b border-line">
-          <tr>
-            <th scope="col" className={th}>E-mail</th>
-            <th scope="col" className={th}>Role</th>
-            <th scope="col" className={th}>Expires</th>
-            {actions ? <th scope="col" className={th}><span className="sr-only">Actions</span></th> : null}
-          </tr>
-        </thead>
-        <tbody className="divide-y divide-line">
-          {invites.map((invite) => (
-            <tr key={invite.id}>
-              <td className={`${td} font-mono text-xs`}>{invite.email}</td>
-              <td className={td}>
-                <RoleBadge role={invite.role} />
-              </td>
-              <td className={`${td} whitespace-nowrap text-ink-muted`}>{formatDateTime(invite.expiresAt)}</td>
-              {actions ? <td className={`${td} text-right`}>{actions(invite)}</td> : null}
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      testId="invites-table"
+      scroll
+      rows={invites}
+      rowKey={(invite) => invite.id}
+      columns={[
+        { key: "email", header: "E-mail", className: "font-mono text-xs", cell: (invite) => invite.email },
+        { key: "role", header: "Role", cell: (invite) => <RoleBadge role={invite.role} /> },
+        { key: "expires", header: "Expires", className: "whitespace-nowrap text-ink-muted", cell: (invite) => formatDateTime(invite.expiresAt) },
+        actionsColumn(actions),
+      ]}
+    />
   );
 }
 
 export function TokensTable({ tokens, actions }: { tokens: ApiToken[]; actions?: (token: ApiToken) => ReactNode }) {
   return (
-    <div className="relative overflow-x-auto">
-      <table className="w-full text-sm" data-testid="tokens-table">
-        <thead className="border-b border-line">
-          <tr>
-            <th scope="col" className={th}>Name</th>
-            <th scope="col" className={th}>Scopes</th>
-            <th scope="col" className={th}>Prefix</th>
-            <th scope="col" className={th}>Created</th>
-            <th scope="col" className={th}>Last used</th>
-            <th scope="col" className={th}>Status</th>
-            {actions ? <th scope="col" className={th}><span className="sr-only">Actions</span></th> : null}
-          </tr>
-        </thead>
-        <tbody className="divide-y divide-line">
-          {tokens.map((token) => (
-            <tr key={token.id} className={token.revokedAt ? "text-ink-muted" : undefined}>
-              <td className={`${td} font-medium`}>{token.name}</td>
-              <td className={`${td} font-mono text-xs`}>{token.scopes.join(", ")}</td>
-              <td className={`${td} font-mono text-xs`}>{token.prefix}…</td>
-              <td className={`${td} whitespace-nowrap`}>{formatDate(token.createdAt)}</td>
-              <td className={`${td} whitespace-nowrap`}>{token.lastUsedAt ? formatDateTime(token.lastUsedAt) : "never"}</td>
-              <td className={td}>{token.revokedAt ? `revoked ${formatDate(token.revokedAt)}` : "active"}</td>
-              {actions ? <td className={`${td} text-right`}>{token.revokedAt ? null : actions(token)}</td> : null}
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      testId="tokens-table"
+      scroll
+      rows={tokens}
+      rowKey={(token) => token.id}
+      rowProps={(token) => ({ className: token.revokedAt ? "text-ink-muted" : undefined })}
+      columns={[
+        { key: "name", header: "Name", className: "font-medium", cell: (token) => token.name },
+        { key: "scopes", header: "Scopes", className: "font-mono text-xs", cell: (token) => token.scopes.join(", ") },
+        { key: "prefix", header: "Prefix", className: "font-mono text-xs", cell: (token) => `${token.prefix}…` },
+        { key: "created", header: "Created", className: "whitespace-nowrap", cell: (token) => formatDate(token.createdAt) },
+        { key: "used", header: "Last used", className: "whitespace-nowrap", cell: (token) => (token.lastUsedAt ? formatDateTime(token.lastUsedAt) : "never") },
+        { key: "status", header: "Status", cell: (token) => (token.revokedAt ? `revoked ${formatDate(token.revokedAt)}` : "active") },
+        actionsColumn(actions && ((token: ApiToken) => (token.revokedAt ? null : actions(token)))),
+      ]}
+    />
   );
 }

@@ -3,9 +3,9 @@
 import { useMutation, useQueryClient } from "@tanstack/react-query";
 import { useState, type FormEvent } from "react";
 import { ConfirmDialog } from "@/components/confirm-dialog";
-import { CopyButton } from "@/components/copy-button";
 import Link from "next/link";
-import { Alert, Button, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { Alert, Button, Card, CheckboxGroup, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { SecretOnce } from "@/components/studio/secret-once";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { TokensTable } from "@/components/studio/studio-tables";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
@@ -14,6 +14,11 @@ import type { ApiToken } from "@/lib/ui/types";
 
 type Scope = "read" | "write";
 type CreatedToken = { token: ApiToken; secret: string };
+
+const SCOPES: { value: Scope; label: string }[] = [
+  { value: "read", label: "GET requests of this studio" },
+  { value: "write", label: "also create sweeps and other studio resources" },
+];
 
 export function TokensManager({ studioId, studioName, initialTokens }: { studioId: string; studioName: string; initialTokens?: ApiToken[] }) {
   const tokens = useTokens(studioId, true, initialTokens);
@@ -31,21 +36,9 @@ export function TokensManager({ studioId, studioName, initialTokens }: { studioI
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
         <div className="min-w-0 space-y-6">
           {created ? (
-            <section className="rounded-lg border-2 border-ok bg-ok-soft p-5" aria-labelledby="new-token-heading" data-testid="new-token">
-              <h2 id="new-token-heading" className="font-semibold text-ink">
-                Token “{created.token.name}” created
-              </h2>
-              <p className="mt-1 text-sm text-ink">Copy the secret now. It is shown only this once; Kickdrift keeps only a hash of it.</p>
-              <div className="mt-3 flex flex-wrap items-center gap-3">
-                <code className="min-w-0 flex-1 break-all rounded-md border border-line bg-surface px-3 py-2 font-mono text-sm" data-testid="token-secret">
-                  {created.secret}
-                </code>
-                <CopyButton value={created.secret} label="Copy secret" />
-              </div>
-              <Button variant="ghost" className="mt-3" onClick={() => setCreated(null)}>
-                I have stored it — hide
-              </Button>
-            </section>
+            <SecretOnce id="new-token" secretTestId="token-secret" title={`Token “${created.token.name}” created`} secret={created.secret} onHide={() => setCreated(null)}>
+              Copy the secret now. It is shown only this once; Kickdrift keeps only a hash of it.
+            </SecretOnce>
           ) : null}
           {revoke.isError ? <Alert>{errorMessage(revoke.error)}</Alert> : null}
           <Card title="API tokens">
@@ -114,11 +107,7 @@ function CreateTokenForm({ studioId, onCreated }: { studioId: string; onCreated:
   });
   const apiError = create.error instanceof ApiClientError ? create.error : null;
   const nameError = apiError?.messageFor("name");
-  const scopesError = apiError?.issues.find((issue) => issue.field.startsWith("scopes"))?.message ?? (apiError?.field?.startsWith("scopes") ? apiError.message : undefined);
-
-  function toggle(scope: Scope, on: boolean) {
-    setScopes((current) => (on ? [...new Set([...current, scope])] : current.filter((item) => item !== scope)));
-  }
+  const scopesError = apiError?.messageUnder("scopes");
 
   function onSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
@@ -129,21 +118,7 @@ function CreateTokenForm({ studioId, onCreated }: { studioId: string; onCreated:
     <form onSubmit={onSubmit} noValidate className="space-y-4">
       {create.error && !nameError && !scopesError ? <Alert>{errorMessage(create.error)}</Alert> : null}
       <TextField id="token-name" label="Token name" hint="Say where it will live, e.g. “nightly build agent”." value={name} onChange={(event) => setName(event.target.value)} error={nameError} />
-      <fieldset className="space-y-2" aria-describedby={scopesError ? "token-scopes-error" : undefined}>
-        <legend className="text-sm font-medium">Scopes</legend>
-        {(["read", "write"] as const).map((scope) => (
-          <label key={scope} className="flex items-center gap-2 text-sm">
-            <input type="checkbox" checked={scopes.includes(scope)} onChange={(event) => toggle(scope, event.target.checked)} className="h-4 w-4 accent-[var(--kd-action)]" />
-            <span className="font-mono">{scope}</span>
-            <span className="text-ink-muted">{scope === "read" ? "— GET requests of this studio" : "— also create sweeps and other studio resources"}</span>
-          </label>
-        ))}
-        {scopesError ? (
-          <p id="token-scopes-error" role="alert" className="text-sm font-medium text-danger">
-            {scopesError}
-          </p>
-        ) : null}
-      </fieldset>
+      <CheckboxGroup id="token-scopes" legend="Scopes" options={SCOPES} valuesAsCode selected={scopes} onChange={setScopes} error={scopesError} />
       <Button type="submit" disabled={create.isPending}>
         {create.isPending ? "Creating…" : "Create token"}
       </Button>

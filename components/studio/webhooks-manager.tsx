@@ -2,19 +2,21 @@
 
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState, type FormEvent } from "react";
-import { CopyButton } from "@/components/copy-button";
-import { Alert, Button, Card, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { Alert, Button, Card, CheckboxGroup, EmptyState, LoadingRows, TextField } from "@/components/ui";
+import { DataTable, type Column } from "@/components/data-table";
+import { SecretOnce } from "@/components/studio/secret-once";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { studioApiPath } from "@/lib/ui/queries";
+import type { DeliveryView } from "@/lib/webhooks/webhooks";
 
 /** Event types an endpoint can subscribe to (the names of docs/api.md, "Webhooks"). */
 const EVENT_TYPES = [
-  { type: "sweep.finished", label: "a sweep finished" },
-  { type: "sweep.failed", label: "a sweep failed" },
-  { type: "sweep.paused", label: "a sweep paused (out of minutes, cap, suspension)" },
-  { type: "catalogue_check.finished", label: "a catalogue check finished" },
-  { type: "balance.low", label: "the compute balance fell below the low-balance mark" },
+  { value: "sweep.finished", label: "a sweep finished" },
+  { value: "sweep.failed", label: "a sweep failed" },
+  { value: "sweep.paused", label: "a sweep paused (out of minutes, cap, suspension)" },
+  { value: "catalogue_check.finished", label: "a catalogue check finished" },
+  { value: "balance.low", label: "the compute balance fell below the low-balance mark" },
 ] as const;
 
 interface Endpoint {
@@ -24,17 +26,26 @@ interface Endpoint {
   createdAt: string;
   deliveries: { delivered: number; pending: number; failed: number };
 }
-interface Delivery {
-  eventId: string;
-  type: string;
-  status: "pending" | "delivered" | "failed";
-  attempts: number;
-  lastStatusCode: number | null;
-  lastError: string | null;
-  resends: number;
-  createdAt: string;
-  lastAttemptAt: string | null;
-}
+// The lib type itself (a type-only import: nothing of the server module reaches the browser).
+type Delivery = DeliveryView;
+
+const DELIVERY_COLUMNS: Column<Delivery>[] = [
+  {
+    key: "event",
+    header: "Event",
+    cell: (delivery) => (
+      <>
+        <span className="font-mono">{delivery.type}</span>
+        <br />
+        <span className="font-mono text-xs text-ink-muted">{delivery.eventId}</span>
+      </>
+    ),
+  },
+  { key: "status", header: "Status", cell: (delivery) => delivery.status },
+  { key: "attempts", header: "Attempts", className: "font-mono", cell: (delivery) => delivery.attempts },
+  { key: "response", header: "Response", cell: (delivery) => (delivery.lastStatusCode !== null ? <span className="font-mono">HTTP {delivery.lastStatusCode}</span> : (delivery.lastError ?? "—")) },
+  { key: "last", header: "Last attempt", className: "text-xs", cell: (delivery) => (delivery.lastAttemptAt ? new Date(delivery.lastAttemptAt).toLocaleString() : "—") },
+];
 
 const endpointsKey = (studioId: string) => ["webhooks", studioId] as const;
 const deliveriesKey = (studioId: string, endpointId: string) => ["webhook-deliveries", studioId, endpointId] as const;
@@ -59,21 +70,9 @@ export function WebhooksManager({ studioId, studioName, initialEndpoints }: { st
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
         <div className="min-w-0 space-y-6">
           {created ? (
-            <section className="rounded-lg border-2 border-ok bg-ok-soft p-5" aria-labelledby="new-endpoint-heading" data-testid="new-endpoint">
-              <h2 id="new-endpoint-heading" className="font-semibold text-ink">
-                Endpoint added
-              </h2>
-              <p className="mt-1 text-sm text-ink">Copy the signing secret now: your receiver needs it to verify deliveries, and it is shown only this once.</p>
-              <div className="mt-3 flex flex-wrap items-center gap-3">
-                <code className="min-w-0 flex-1 break-all rounded-md border border-line bg-surface px-3 py-2 font-mono text-sm" data-testid="endpoint-secret">
-                  {created.secret}
-                </code>
-                <CopyButton value={created.secret} label="Copy secret" />
-              </div>
-              <Button variant="ghost" className="mt-3" onClick={() => setCreated(null)}>
-                I have stored it — hide
-              </Button>
-            </section>
+            <SecretOnce id="new-endpoint" secretTestId="endpoint-secret" title="Endpoint added" secret={created.secret} onHide={() => setCreated(null)}>
+              Copy the signing secret now: your receiver needs it to verify deliveries, and it is shown only this once.
+            </SecretOnce>
           ) : null}
           {remove.isError ? <Alert>{errorMessage(remove.error)}</Alert> : null}
           <Card title="Webhook endpoints">
@@ -138,40 +137,24 @@ function DeliveryLog({ studioId, endpointId }: { studioId: string; endpointId: s
   return (
     <div className="mt-3 overflow-x-auto">
       {resend.isError ? <Alert>{errorMessage(resend.error)}</Alert> : null}
-      <table className="w-full text-left text-sm" aria-label="Deliveries">
-        <thead className="text-xs uppercase text-ink-muted">
-          <tr>
-            <th className="py-1 pr-3 font-medium">Event</th>
-            <th className="py-1 pr-3 font-medium">Status</th>
-            <th className="py-1 pr-3 font-medium">Attempts</th>
-            <th className="py-1 pr-3 font-medium">Response</th>
-            <th className="py-1 pr-3 font-medium">Last attempt</th>
-            <th className="py-1 font-medium">
-              <span className="sr-only">Actions</span>
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {log.data.map((delivery) => (
-            <tr key={delivery.eventId} className="border-t border-line align-top">
-              <td className="py-1 pr-3">
-                <span className="font-mono">{delivery.type}</span>
-                <br />
-                <span className="font-mono text-xs text-ink-muted">{delivery.eventId}</span>
-              </td>
-              <td className="py-1 pr-3">{delivery.status}</td>
-              <td className="py-1 pr-3 font-mono">{delivery.attempts}</td>
-              <td className="py-1 pr-3">{delivery.lastStatusCode !== null ? <span className="font-mono">HTTP {delivery.lastStatusCode}</span> : (delivery.lastError ?? "—")}</td>
-              <td className="py-1 pr-3 text-xs">{delivery.lastAttemptAt ? new Date(delivery.lastAttemptAt).toLocaleString() : "—"}</td>
-              <td className="py-1">
-                <Button variant="ghost" className="py-1" disabled={resend.isPending} onClick={() => resend.mutate(delivery)} aria-label={`Send ${delivery.eventId} again`}>
-                  Send again
-                </Button>
-              </td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
+      <DataTable
+        label="Deliveries"
+        rows={log.data}
+        rowKey={(delivery) => delivery.eventId}
+        columns={[
+          ...DELIVERY_COLUMNS,
+          {
+            key: "actions",
+            header: "Actions",
+            srOnly: true,
+            cell: (delivery) => (
+              <Button variant="ghost" className="py-1" disabled={resend.isPending} onClick={() => resend.mutate(delivery)} aria-label={`Send ${delivery.eventId} again`}>
+                Send again
+              </Button>
+            ),
+          },
+        ]}
+      />
     </div>
   );
 }
@@ -190,7 +173,7 @@ function CreateEndpointForm({ studioId, onCreated }: { studioId: string; onCreat
   });
   const apiError = create.error instanceof ApiClientError ? create.error : null;
   const urlError = apiError?.messageFor("url");
-  const eventsError = apiError?.issues.find((issue) => issue.field.startsWith("events"))?.message ?? (apiError?.field?.startsWith("events") ? apiError.message : undefined);
+  const eventsError = apiError?.messageUnder("events");
 
   function onSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
@@ -201,27 +184,7 @@ function CreateEndpointForm({ studioId, onCreated }: { studioId: string; onCreat
     <form onSubmit={onSubmit} noValidate className="space-y-4">
       {create.error && !urlError && !eventsError ? <Alert>{errorMessage(create.error)}</Alert> : null}
       <TextField id="endpoint-url" label="Endpoint URL" hint="An https:// address of your build system or chat bridge." value={url} onChange={(event) => setUrl(event.target.value)} error={urlError} />
-      <fieldset className="space-y-2" aria-describedby={eventsError ? "endpoint-events-error" : undefined}>
-        <legend className="text-sm font-medium">Events</legend>
-        {EVENT_TYPES.map(({ type, label }) => (
-          <label key={type} className="flex items-start gap-2 text-sm">
-            <input
-              type="checkbox"
-              checked={events.includes(type)}
-              onChange={(event) => setEvents((current) => (event.target.checked ? [...new Set([...current, type])] : current.filter((item) => item !== type)))}
-              className="mt-0.5 h-4 w-4 accent-[var(--kd-action)]"
-            />
-            <span>
-              <span className="font-mono">{type}</span> <span className="text-ink-muted">— {label}</span>
-            </span>
-          </label>
-        ))}
-        {eventsError ? (
-          <p id="endpoint-events-error" role="alert" className="text-sm font-medium text-danger">
-            {eventsError}
-          </p>
-        ) : null}
-      </fieldset>
+      <CheckboxGroup id="endpoint-events" legend="Events" options={EVENT_TYPES} valuesAsCode selected={events} onChange={setEvents} error={eventsError} />
       <Button type="submit" disabled={create.isPending}>
         {create.isPending ? "Adding…" : "Add endpoint"}
       </Button>

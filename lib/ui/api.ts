@@ -25,6 +25,12 @@ export class ApiClientError extends Error {
     if (issue) return issue.message;
     return this.field === field ? this.message : undefined;
   }
+
+  /** The message for a list field or anything inside it ("scopes", "scopes.1"): the first issue under it, or the top-level error if it is. */
+  messageUnder(field: string): string | undefined {
+    const under = (path: string | undefined) => path === field || (path?.startsWith(`${field}.`) ?? false) || (path?.startsWith(`${field}[`) ?? false);
+    return this.issues.find((issue) => under(issue.field))?.message ?? (under(this.field) ? this.message : undefined);
+  }
 }
 
 type ErrorBody = {

@@ -166,7 +166,35 @@ export function formatParameterValue(path: string, value: number | string, unit:
 /** The unit a parameter is labelled with: the frame step reads in Hz / s. */
 export function parameterUnitLabel(path: string, unit: string): string {
   if (path === FRAME_STEP_PATH) return "Hz or s";
+  return unitLabel(unit);
+}
+
+/** A unit for a label: a ratio or a count has none, and says so. */
+export function unitLabel(unit: string): string {
   return unit === "" ? "no unit" : unit;
+}
+
+/** What a frame-step field accepts (parseFrameStep). */
+export const FRAME_STEP_INPUT_UNITS = "Hz, s or ms";
+
+type ContactModel = "linear" | "hertz";
+
+/**
+ * The units that follow the contact model's force law. Linear spring F = k·δ: k in N/m, dashpot c in
+ * N·s/m. Hertz F = k·δ^1.5: k in N/m^1.5, and the Hertz dashpot η·δ^(1/4)·δ̇ (lib/physics/types.ts)
+ * puts η in N·s/m^1.25. Every other parameter keeps the unit the parameter table gives it.
+ */
+export function contactUnit(path: string, unit: string, model: ContactModel): string {
+  const hertz = model === "hertz";
+  if (path === "contact.stiffness") return hertz ? "N/m^1.5" : "N/m";
+  if (path === "contact.damping.coefficient") return hertz ? "N·s/m^1.25" : "N·s/m";
+  return unit;
+}
+
+/** The unit an input of the sweep builder is labelled with: what it accepts, under the scene's contact model. */
+export function inputUnitLabel(path: string, unit: string, model: ContactModel): string {
+  if (path === FRAME_STEP_PATH) return FRAME_STEP_INPUT_UNITS;
+  return unitLabel(contactUnit(path, unit, model));
 }
 
 /** Frame rates a tick may sit on: the ones games ship at, and round numbers between them. */

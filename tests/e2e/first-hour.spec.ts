@@ -138,8 +138,9 @@ test("finance sees the next invoice and usage with data; every role's studio hom
   await expect(overage.filter({ hasText: "$7.20" })).toHaveCount(1);
   await expect(overage.filter({ hasText: "$7.20" })).toContainText("paid");
   expect(await overage.count()).toBeGreaterThanOrEqual(3);
-  // Each row's period starts in its own month (dates read YYYY-MM-DD).
-  const months = new Set((await overage.allInnerTexts()).map((text) => /\d{4}-\d{2}/.exec(text)?.[0]));
+  // Each row's period starts in its own month (dates read YYYY-MM-DD). The whole date is matched: an
+  // invoice number such as "B40B5930-0007" also holds "dddd-dd".
+  const months = new Set((await overage.allInnerTexts()).map((text) => /(\d{4}-\d{2})-\d{2}/.exec(text)?.[1]));
   expect(months.size).toBeGreaterThanOrEqual(3);
   expect(await rows.filter({ hasText: "Pack purchase" }).filter({ hasText: "$45.00" }).count()).toBeGreaterThanOrEqual(2);
   const owner = await homeShots(browser, "owner");

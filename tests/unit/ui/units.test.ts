@@ -1,11 +1,14 @@
 import { describe, expect, it } from "vitest";
+import { NUMERIC_PARAMETERS } from "@/lib/sweeps/parameters";
 import { SWEEP_TEMPLATES } from "@/lib/sweeps/templates";
 import { describeSpecField } from "@/lib/ui/spec-fields";
 import {
   formatFrameRate,
   formatFrameStep,
   formatFrameStepWithRate,
+  contactUnit,
   formatParameterValue,
+  inputUnitLabel,
   frameStepInputText,
   frameStepListText,
   frameStepTickValues,
@@ -140,5 +143,33 @@ describe("describeSpecField", () => {
     expect(describeSpecField("scenario.scene.massAKg", "pair", axes)).toBe("Mass of A");
     expect(describeSpecField("scenario.tolerances.maxOverlapFraction", "pair", axes)).toBe("Deepest overlap allowed");
     expect(describeSpecField("scenario.scene.bodies.3.massKg", "snapshot", [])).toBe("Disc 4 of the snapshot, massKg");
+  });
+});
+
+// The units follow from each force law by dimensions. Linear spring F = k·δ → k in N/m; dashpot
+// F = c·δ̇ → c in N·s/m. Hertz F = k·δ^1.5 (H. Hertz, "Über die Berührung fester elastischer Körper",
+// 1882; K. L. Johnson, Contact Mechanics, 1985, ch. 4 — from memory) → k in N/m^1.5; the Hertz dashpot
+// of the engine, F = η·δ^(1/4)·δ̇ (lib/physics/types.ts, the form of Tsuji, Tanaka and Ishida, Powder
+// Technology 71, 1992), → η in N/(m^0.25 · m/s) = N·s/m^1.25.
+describe("units of the builder's fields", () => {
+  it("gives stiffness and damping coefficient the unit of the scene's force law", () => {
+    expect(contactUnit("contact.stiffness", "N/m (linear) or N/m^1.5 (hertz)", "linear")).toBe("N/m");
+    expect(contactUnit("contact.stiffness", "N/m (linear) or N/m^1.5 (hertz)", "hertz")).toBe("N/m^1.5");
+    expect(contactUnit("contact.damping.coefficient", "N·s/m (linear) or N·s/m^1.25 (hertz)", "linear")).toBe("N·s/m");
+    expect(contactUnit("contact.damping.coefficient", "N·s/m (linear) or N·s/m^1.25 (hertz)", "hertz")).toBe("N·s/m^1.25");
+    expect(contactUnit("scene.massAKg", "kg", "hertz")).toBe("kg");
+  });
+
+  it("labels every sweepable number with one unit under either model, the frame step with what its field accepts", () => {
+    for (const model of ["linear", "hertz"] as const) {
+      for (const parameter of NUMERIC_PARAMETERS) {
+        const label = inputUnitLabel(parameter.path, parameter.unit, model);
+        if (parameter.path === "dtS") expect(label).toBe("Hz, s or ms");
+        // The parameter axis's option and its From / To fields used to disagree here: one unit, never "a or b".
+        else expect(label, `${parameter.path} under ${model}`).not.toMatch(/ or /);
+        expect(label).not.toBe("");
+      }
+    }
+    expect(inputUnitLabel("scenario.substeps", "", "linear")).toBe("no unit");
   });
 });
