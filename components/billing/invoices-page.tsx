@@ -9,6 +9,7 @@ import { formatDate, formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { billingApi, formatMinutes, formatPriceCents, TAX_NOTE } from "./billing-format";
 import { DataTable, type Column } from "@/components/data-table";
+import { seededBy } from "@/lib/ui/queries";
 
 type Invoice = {
   id: string;
@@ -70,7 +71,7 @@ export function InvoicesPage({ studioId, studioName, role, initialInvoices }: { 
     queryKey: ["billing", studioId, "invoices"],
     queryFn: async () => (await apiFetch<{ invoices: Invoice[] }>(`${billingApi(studioId)}/invoices`)).invoices,
     // The server page's copy of the same answer: the table paints with the page (see lib/ui/queries.ts).
-    ...(initialInvoices ? { initialData: initialInvoices, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialInvoices),
   });
   return (
     <StudioShell studioId={studioId} studioName={studioName} role={role}>

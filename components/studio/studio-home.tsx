@@ -19,7 +19,7 @@ import { formatPriceCents } from "@/lib/billing/packs";
 import type { OverviewSweep, StudioOverview } from "@/lib/studios/overview";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDate, formatDateTime } from "@/lib/ui/format";
-import { studioApiPath, useInvites, useMembers, useTokens } from "@/lib/ui/queries";
+import { studioApiPath, useInvites, useMembers, useTokens, seededBy } from "@/lib/ui/queries";
 import type { StudioRole } from "@/lib/ui/types";
 import { formatNumber } from "@/lib/ui/units";
 
@@ -274,7 +274,7 @@ export function StudioHome({ studioId, studioName, role, initialOverview }: { st
     // Running sweeps move: the card follows them while any is running.
     refetchInterval: (query) => ((query.state.data?.running.length ?? 0) > 0 ? 3000 : false),
     // The server page's copy of the same answer: the cards paint with the page (see lib/ui/queries.ts).
-    ...(initialOverview ? { initialData: initialOverview, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialOverview),
   });
   const members = useMembers(studioId);
   const isOwner = role === "owner";

@@ -7,7 +7,7 @@ import { DataTable, type Column } from "@/components/data-table";
 import { SecretOnce } from "@/components/studio/secret-once";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { ApiClientError, apiFetch, errorMessage } from "@/lib/ui/api";
-import { studioApiPath } from "@/lib/ui/queries";
+import { studioApiPath, seededBy } from "@/lib/ui/queries";
 import type { DeliveryView } from "@/lib/webhooks/webhooks";
 
 /** Event types an endpoint can subscribe to (the names of docs/api.md, "Webhooks"). */
@@ -58,7 +58,7 @@ export function WebhooksManager({ studioId, studioName, initialEndpoints }: { st
     queryKey: endpointsKey(studioId),
     queryFn: async () => (await apiFetch<{ endpoints: Endpoint[] }>(`${studioApiPath(studioId)}/webhooks`)).endpoints,
     // The server page's copy: the list paints with the page.
-    ...(initialEndpoints ? { initialData: initialEndpoints, initialDataUpdatedAt: () => Date.now() } : {}),
+    ...seededBy(initialEndpoints),
   });
   const remove = useMutation({
     mutationFn: (endpoint: Endpoint) => apiFetch<unknown>(`${studioApiPath(studioId)}/webhooks/${encodeURIComponent(endpoint.id)}`, { method: "DELETE" }),
