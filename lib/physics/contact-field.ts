@@ -87,6 +87,60 @@ export interface ContactFieldParameters {
   tangential?: TangentialParameters;
 }
 
+// Slots of ContactField.pass: what the last evaluation found.
+/** Contact potential energy (J): springs of the normal law, plus the tangential springs. */
+export const PASS_POTENTIAL_J = 0;
+/** Contacts (pairs and walls) overlapping this pass. */
+export const PASS_OVERLAPPING_CONTACTS = 1;
+/** Largest overlap as a fraction of the smaller radius, and in metres. */
+export const PASS_MAX_OVERLAP_FRACTION = 2;
+export const PASS_MAX_OVERLAP_M = 3;
+/** Total force (N) the walls exert on the bodies. */
+export const PASS_WALL_FORCE_X_N = 4;
+export const PASS_WALL_FORCE_Y_N = 5;
+/** Largest K/m_eff (1/s²) of any contact this pass: K the contact's current stiffness (k, or dF/dδ for Hertz). */
+export const PASS_MAX_OMEGA_SQUARED = 6;
+/** 1 when this pass found a tunnel (the run keeps only the first: ContactRunReport). */
+export const PASS_TUNNEL_DETECTED = 7;
+/** 1 when the run's first contact began, or ended, in this pass. */
+export const PASS_FIRST_CONTACT_STARTED = 8;
+export const PASS_FIRST_CONTACT_ENDED = 9;
+/** 1 when this pass evaluated the active first contact (not seen: it ended without overlap). */
+export const PASS_FIRST_CONTACT_SEEN = 10;
+export const PASS_SLOTS = 11;
+
+/** What one run records once: its first tunnel (sticky) and its first contact. */
+export class ContactRunReport {
+  tunnelKind = TUNNEL_NONE;
+  tunnelBodyA = -1;
+  /** Other body, or −1 − wall index. */
+  tunnelBodyB = -1;
+
+  // The first contact of the run: bodies, phase and the values needed for duration and restitution.
+  firstContactPhase = FIRST_CONTACT_PENDING;
+  firstContactA = -1;
+  /** Other body, or −1 − wall index for a wall. */
+  firstContactB = -1;
+  /** Overlap before (≤ 0) and at (> 0) the step where the contact began. */
+  firstContactStartOverlapBeforeM = 0;
+  firstContactStartOverlapM = 0;
+  /** Approach speed δ̇ along the normal when the contact began (> 0). */
+  firstContactApproachSpeedMPerS = 0;
+  /** Unclamped force at the previous and current evaluation while active. */
+  firstContactForcePreviousN = 0;
+  firstContactForceN = 0;
+  /**
+   * The end gauge (see endGauge) at the previous and current evaluation while active: the contact
+   * ends where it crosses zero, and it is smooth in time there, so interpolating it linearly
+   * between two evaluations places the end to second order in the step.
+   */
+  firstContactEndGaugePrevious = 0;
+  firstContactEndGauge = 0;
+  /** Normal (from A towards B, or the wall normal) at the end of the contact. */
+  firstContactEndNormalX = 0;
+  firstContactEndNormalY = 0;
+}
+
 export class ContactField implements ForceField {
   model = 0;
   stiffness = 0;
@@ -111,55 +165,19 @@ export class ContactField implements ForceField {
   private readonly wallOffset: number[] = [];
   wallCount = 0;
 
-  // Results of the last evaluation.
-  contactPotentialJ = 0;
-  overlappingContacts = 0;
-  maxOverlapFraction = 0;
-  maxOverlapM = 0;
-  wallForceXN = 0;
-  wallForceYN = 0;
-  /** Largest K/m_eff (1/s²) of any contact this pass: K the contact's current stiffness (k, or dF/dδ for Hertz). */
-  maxOmegaSquared = 0;
+  /**
+   * Results of the last evaluation, one slot per PASS_* constant; every slot starts each pass at 0
+   * (see startPass). A typed array rather than fields: the reset cannot drift from the declaration,
+   * and writes are plain double stores.
+   */
+  readonly pass = new Float64Array(PASS_SLOTS);
   /** Stiffness K (N/m) of the contact whose force was evaluated last (set by normalForce). */
   private lastStiffnessNPerM = 0;
   /** k_H and η of the Hertz contact whose force was evaluated last (set by normalForce; read by endGauge). */
   private lastHertzStiffness = 0;
   private lastHertzDamping = 0;
-
-  // First tunnel seen (sticky).
-  tunnelKind = TUNNEL_NONE;
-  tunnelBodyA = -1;
-  /** Other body, or −1 − wall index. */
-  tunnelBodyB = -1;
-  tunnelDetectedThisPass = false;
-
-  // The first contact of the run: bodies, phase and the values needed for duration and restitution.
-  firstContactPhase = FIRST_CONTACT_PENDING;
-  firstContactA = -1;
-  /** Other body, or −1 − wall index for a wall. */
-  firstContactB = -1;
-  firstContactStartedThisPass = false;
-  firstContactEndedThisPass = false;
-  /** Overlap before (≤ 0) and at (> 0) the step where the contact began. */
-  firstContactStartOverlapBeforeM = 0;
-  firstContactStartOverlapM = 0;
-  /** Approach speed δ̇ along the normal when the contact began (> 0). */
-  firstContactApproachSpeedMPerS = 0;
-  /** Unclamped force at the previous and current evaluation while active. */
-  firstContactForcePreviousN = 0;
-  firstContactForceN = 0;
-  /**
-   * The end gauge (see endGauge) at the previous and current evaluation while active: the contact
-   * ends where it crosses zero, and it is smooth in time there, so interpolating it linearly
-   * between two evaluations places the end to second order in the step.
-   */
-  firstContactEndGaugePrevious = 0;
-  firstContactEndGauge = 0;
-  /** Normal (from A towards B, or the wall normal) at the end of the contact. */
-  firstContactEndNormalX = 0;
-  firstContactEndNormalY = 0;
-
-  private firstContactSeenThisPass = false;
+  /** The run's first tunnel and first contact; a fresh one per run (configure). */
+  run = new ContactRunReport();
   private cutoffSquaredM2 = 0;
   private memoEffectiveRadius = NaN;
   private memoModulusFactor = NaN;
@@ -201,32 +219,8 @@ export class ContactField implements ForceField {
       this.wallNormalY.push(wall.normalY);
       this.wallOffset.push(wall.offsetM);
     }
-    this.contactPotentialJ = 0;
-    this.overlappingContacts = 0;
-    this.maxOverlapFraction = 0;
-    this.maxOverlapM = 0;
-    this.wallForceXN = 0;
-    this.wallForceYN = 0;
-    this.maxOmegaSquared = 0;
-    this.tunnelKind = TUNNEL_NONE;
-    this.tunnelBodyA = -1;
-    this.tunnelBodyB = -1;
-    this.tunnelDetectedThisPass = false;
-    this.firstContactPhase = FIRST_CONTACT_PENDING;
-    this.firstContactA = -1;
-    this.firstContactB = -1;
-    this.firstContactStartedThisPass = false;
-    this.firstContactEndedThisPass = false;
-    this.firstContactStartOverlapBeforeM = 0;
-    this.firstContactStartOverlapM = 0;
-    this.firstContactApproachSpeedMPerS = 0;
-    this.firstContactForcePreviousN = 0;
-    this.firstContactForceN = 0;
-    this.firstContactEndGaugePrevious = 0;
-    this.firstContactEndGauge = 0;
-    this.firstContactEndNormalX = 0;
-    this.firstContactEndNormalY = 0;
-    this.firstContactSeenThisPass = false;
+    this.startPass();
+    this.run = new ContactRunReport();
     this.cutoffSquaredM2 = 0;
     this.memoEffectiveRadius = NaN;
     this.memoModulusFactor = NaN;
@@ -235,20 +229,16 @@ export class ContactField implements ForceField {
     this.broad.invalidateList();
   }
 
+  /** Every pass result back to 0 (a loop the JIT unrolls: no builtin call in a ~100 ns evaluate). */
+  private startPass(): void {
+    const pass = this.pass;
+    for (let slot = 0; slot < PASS_SLOTS; slot++) pass[slot] = 0;
+  }
+
   evaluate(bodies: Bodies): void {
     const { count, fx, fy, mass } = bodies;
     const gravity = this.gravityMPerS2;
-    this.contactPotentialJ = 0;
-    this.overlappingContacts = 0;
-    this.maxOverlapFraction = 0;
-    this.maxOverlapM = 0;
-    this.wallForceXN = 0;
-    this.wallForceYN = 0;
-    this.maxOmegaSquared = 0;
-    this.tunnelDetectedThisPass = false;
-    this.firstContactStartedThisPass = false;
-    this.firstContactEndedThisPass = false;
-    this.firstContactSeenThisPass = false;
+    this.startPass();
     this.broad.wallBandUsable = false;
     if (this.frictional) this.tangential.beginPass(bodies);
 
@@ -292,9 +282,9 @@ export class ContactField implements ForceField {
       if (this.linearFrictionless) this.wallsLinear(bodies);
       else this.walls(bodies);
     }
-    if (this.frictional) this.contactPotentialJ += this.tangential.springPotentialJ;
+    if (this.frictional) this.pass[PASS_POTENTIAL_J] += this.tangential.springPotentialJ;
 
-    if (this.firstContactPhase === FIRST_CONTACT_ACTIVE && !this.firstContactSeenThisPass) {
+    if (this.run.firstContactPhase === FIRST_CONTACT_ACTIVE && this.pass[PASS_FIRST_CONTACT_SEEN] === 0) {
       this.endFirstContactWithoutOverlap(bodies);
     }
   }
@@ -376,6 +366,7 @@ export class ContactField implements ForceField {
 
   /** One pair i < j: force, bookkeeping and tunnel checks. */
   private pair(bodies: Bodies, i: number, j: number): void {
+    const pass = this.pass;
     const { x, y, previousX, previousY, radius } = bodies;
     const dx = x[j] - x[i];
     const dy = y[j] - y[i];
@@ -419,7 +410,7 @@ export class ContactField implements ForceField {
     const effectiveRadius = (radius[i] * radius[j]) / contactDistance;
     const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, this.hertzModulusFactorPa);
     const omegaSquared = this.lastStiffnessNPerM / reducedMass;
-    if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+    if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
     const pushX = force > 0 ? force * normalX : 0;
     const pushY = force > 0 ? force * normalY : 0;
     const { fx, fy } = bodies;
@@ -428,15 +419,15 @@ export class ContactField implements ForceField {
     fx[j] += pushX;
     fy[j] += pushY;
     if (this.frictional) this.tangential.pair(bodies, i, j, normalX, normalY, distance, force > 0 ? force : 0, this.lastStiffnessNPerM);
-    this.overlappingContacts++;
+    pass[PASS_OVERLAPPING_CONTACTS]++;
     const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
     const fraction = overlap / smallerRadius;
-    if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
-    if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
+    if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+    if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
     // Called only when the first contact can change (see linearPairRows): no boxed numbers per contact.
-    const phase = this.firstContactPhase;
+    const phase = this.run.firstContactPhase;
     const isNewContact = previousDistanceSquared >= contactDistanceSquared;
-    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+    if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && j === this.run.firstContactB) {
       const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
       this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
     }
@@ -461,11 +452,11 @@ export class ContactField implements ForceField {
     const dampingValue = this.dampingValue;
     const cutoffSquared = this.cutoffSquaredM2;
     const nearMissDepthFraction = this.nearMissDepthFraction;
-    let contactPotentialJ = this.contactPotentialJ;
-    let overlappingContacts = this.overlappingContacts;
-    let maxOverlapFraction = this.maxOverlapFraction;
-    let maxOverlapM = this.maxOverlapM;
-    let maxOmegaSquared = this.maxOmegaSquared;
+    let contactPotentialJ = this.pass[PASS_POTENTIAL_J];
+    let overlappingContacts = this.pass[PASS_OVERLAPPING_CONTACTS];
+    let maxOverlapFraction = this.pass[PASS_MAX_OVERLAP_FRACTION];
+    let maxOverlapM = this.pass[PASS_MAX_OVERLAP_M];
+    let maxOmegaSquared = this.pass[PASS_MAX_OMEGA_SQUARED];
     // Values that repeat from contact to contact, remembered (each is a function of the inputs it is
     // remembered for, so reusing it gives the same bits): the reduced mass and K/m_eff for a sum of
     // inverse masses (not for a zero sum, where ±0 would give ±Infinity), dampingCoefficient's c for
@@ -584,8 +575,8 @@ export class ContactField implements ForceField {
         // One call site, reached only when the first contact can change: the compiler boxes the
         // call's numbers where it is taken, not for every contact (two call sites had it box them
         // up front).
-        const phase = this.firstContactPhase;
-        if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && j === this.firstContactB) {
+        const phase = this.run.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING ? isNewContact : phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && j === this.run.firstContactB) {
           const previousOverlap = isNewContact && phase === FIRST_CONTACT_PENDING ? contactDistance - Math.sqrt(previousDistanceSquared) : 0;
           this.trackFirstContact(i, j, overlap, overlapRate, force, normalX, normalY, isNewContact, previousOverlap);
         }
@@ -593,11 +584,11 @@ export class ContactField implements ForceField {
       fx[i] = fxi;
       fy[i] = fyi;
     }
-    this.contactPotentialJ = contactPotentialJ;
-    this.overlappingContacts = overlappingContacts;
-    this.maxOverlapFraction = maxOverlapFraction;
-    this.maxOverlapM = maxOverlapM;
-    this.maxOmegaSquared = maxOmegaSquared;
+    this.pass[PASS_POTENTIAL_J] = contactPotentialJ;
+    this.pass[PASS_OVERLAPPING_CONTACTS] = overlappingContacts;
+    this.pass[PASS_MAX_OVERLAP_FRACTION] = maxOverlapFraction;
+    this.pass[PASS_MAX_OVERLAP_M] = maxOverlapM;
+    this.pass[PASS_MAX_OMEGA_SQUARED] = maxOmegaSquared;
   }
   /**
    * A skipped contact: neither end of the step overlaps, but the straight line between them comes
@@ -642,6 +633,7 @@ export class ContactField implements ForceField {
   }
 
   private walls(bodies: Bodies): void {
+    const pass = this.pass;
     const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
     const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
     const { wallBand, wallBandUsable: banded } = this.broad;
@@ -658,24 +650,24 @@ export class ContactField implements ForceField {
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
         const force = this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
         const omegaSquared = this.lastStiffnessNPerM / mass[i];
-        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+        if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
         if (force > 0) {
           fx[i] += force * normalX;
           fy[i] += force * normalY;
-          this.wallForceXN += force * normalX;
-          this.wallForceYN += force * normalY;
+          pass[PASS_WALL_FORCE_X_N] += force * normalX;
+          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
         }
         if (this.frictional) {
           const tangentialForce = this.tangential.wall(bodies, i, w, normalX, normalY, centreDistance, force > 0 ? force : 0, this.lastStiffnessNPerM);
-          this.wallForceXN -= tangentialForce * normalY;
-          this.wallForceYN += tangentialForce * normalX;
+          pass[PASS_WALL_FORCE_X_N] -= tangentialForce * normalY;
+          pass[PASS_WALL_FORCE_Y_N] += tangentialForce * normalX;
         }
-        this.overlappingContacts++;
+        pass[PASS_OVERLAPPING_CONTACTS]++;
         const fraction = overlap / radius[i];
-        if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
-        if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-        const phase = this.firstContactPhase;
-        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
+        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
+        const phase = this.run.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
           const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
           if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
@@ -685,6 +677,7 @@ export class ContactField implements ForceField {
 
   /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
   private wallsLinear(bodies: Bodies): void {
+    const pass = this.pass;
     const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
     const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
     const k = this.stiffness;
@@ -703,7 +696,7 @@ export class ContactField implements ForceField {
         const reducedMass = mass[i];
         // normalForce, linear.
         this.lastStiffnessNPerM = k;
-        if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+        if (overlap > 0) pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
         let damping = 0;
         if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
         else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
@@ -716,19 +709,19 @@ export class ContactField implements ForceField {
         }
         const force = k * overlap + damping * overlapRate;
         const omegaSquared = k / reducedMass;
-        if (omegaSquared > this.maxOmegaSquared) this.maxOmegaSquared = omegaSquared;
+        if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
         if (force > 0) {
           fx[i] += force * normalX;
           fy[i] += force * normalY;
-          this.wallForceXN += force * normalX;
-          this.wallForceYN += force * normalY;
+          pass[PASS_WALL_FORCE_X_N] += force * normalX;
+          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
         }
-        this.overlappingContacts++;
+        pass[PASS_OVERLAPPING_CONTACTS]++;
         const fraction = overlap / radius[i];
-        if (fraction > this.maxOverlapFraction) this.maxOverlapFraction = fraction;
-        if (overlap > this.maxOverlapM) this.maxOverlapM = overlap;
-        const phase = this.firstContactPhase;
-        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.firstContactA && -1 - w === this.firstContactB)) {
+        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
+        const phase = this.run.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
           const previousOverlap = radius[i] - (normalX * previousX[i] + normalY * previousY[i] - wallOffset[w]);
           if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
@@ -746,7 +739,7 @@ export class ContactField implements ForceField {
     if (this.model === CONTACT_LINEAR) {
       const k = this.stiffness;
       this.lastStiffnessNPerM = k;
-      if (overlap > 0) this.contactPotentialJ += 0.5 * k * overlap * overlap;
+      if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
       return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
     }
     let k = this.stiffness;
@@ -762,7 +755,7 @@ export class ContactField implements ForceField {
     const springMagnitude = k * magnitude * root;
     // dF/dδ of k_H·δ^{3/2}: the local stiffness that sets the contact's frequency at this overlap.
     this.lastStiffnessNPerM = 1.5 * k * root;
-    if (overlap > 0) this.contactPotentialJ += 0.4 * springMagnitude * magnitude;
+    if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.4 * springMagnitude * magnitude;
     const eta = this.dampingCoefficient(reducedMass, k);
     this.lastHertzStiffness = k;
     this.lastHertzDamping = eta;
@@ -783,11 +776,11 @@ export class ContactField implements ForceField {
   }
 
   private recordTunnel(kind: number, bodyA: number, bodyB: number): void {
-    this.tunnelDetectedThisPass = true;
-    if (this.tunnelKind !== TUNNEL_NONE) return;
-    this.tunnelKind = kind;
-    this.tunnelBodyA = bodyA;
-    this.tunnelBodyB = bodyB;
+    this.pass[PASS_TUNNEL_DETECTED] = 1;
+    if (this.run.tunnelKind !== TUNNEL_NONE) return;
+    this.run.tunnelKind = kind;
+    this.run.tunnelBodyA = bodyA;
+    this.run.tunnelBodyB = bodyB;
   }
 
   private trackFirstContact(
@@ -801,29 +794,29 @@ export class ContactField implements ForceField {
     isNewContact: boolean,
     previousOverlap: number,
   ): void {
-    if (this.firstContactPhase === FIRST_CONTACT_PENDING) {
+    if (this.run.firstContactPhase === FIRST_CONTACT_PENDING) {
       if (!isNewContact) return;
-      this.firstContactPhase = FIRST_CONTACT_ACTIVE;
-      this.firstContactA = a;
-      this.firstContactB = b;
-      this.firstContactStartedThisPass = true;
-      this.firstContactSeenThisPass = true;
-      this.firstContactStartOverlapBeforeM = previousOverlap;
-      this.firstContactStartOverlapM = overlap;
-      this.firstContactApproachSpeedMPerS = overlapRate;
-      this.firstContactForcePreviousN = 0;
-      this.firstContactForceN = force;
-      this.firstContactEndGaugePrevious = 0;
-      this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
+      this.run.firstContactPhase = FIRST_CONTACT_ACTIVE;
+      this.run.firstContactA = a;
+      this.run.firstContactB = b;
+      this.pass[PASS_FIRST_CONTACT_STARTED] = 1;
+      this.pass[PASS_FIRST_CONTACT_SEEN] = 1;
+      this.run.firstContactStartOverlapBeforeM = previousOverlap;
+      this.run.firstContactStartOverlapM = overlap;
+      this.run.firstContactApproachSpeedMPerS = overlapRate;
+      this.run.firstContactForcePreviousN = 0;
+      this.run.firstContactForceN = force;
+      this.run.firstContactEndGaugePrevious = 0;
+      this.run.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
       if (force <= 0) this.endFirstContact(force, normalX, normalY);
       return;
     }
-    if (this.firstContactPhase !== FIRST_CONTACT_ACTIVE || a !== this.firstContactA || b !== this.firstContactB) return;
-    this.firstContactSeenThisPass = true;
-    this.firstContactForcePreviousN = this.firstContactForceN;
-    this.firstContactForceN = force;
-    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
-    this.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
+    if (this.run.firstContactPhase !== FIRST_CONTACT_ACTIVE || a !== this.run.firstContactA || b !== this.run.firstContactB) return;
+    this.pass[PASS_FIRST_CONTACT_SEEN] = 1;
+    this.run.firstContactForcePreviousN = this.run.firstContactForceN;
+    this.run.firstContactForceN = force;
+    this.run.firstContactEndGaugePrevious = this.run.firstContactEndGauge;
+    this.run.firstContactEndGauge = this.endGauge(force, overlap, overlapRate);
     if (force <= 0) this.endFirstContact(force, normalX, normalY);
   }
 
@@ -843,17 +836,17 @@ export class ContactField implements ForceField {
   }
 
   private endFirstContact(force: number, normalX: number, normalY: number): void {
-    this.firstContactForceN = force;
-    this.firstContactPhase = FIRST_CONTACT_ENDED;
-    this.firstContactEndedThisPass = true;
-    this.firstContactEndNormalX = normalX;
-    this.firstContactEndNormalY = normalY;
+    this.run.firstContactForceN = force;
+    this.run.firstContactPhase = FIRST_CONTACT_ENDED;
+    this.pass[PASS_FIRST_CONTACT_ENDED] = 1;
+    this.run.firstContactEndNormalX = normalX;
+    this.run.firstContactEndNormalY = normalY;
   }
 
   /** The first contact's overlap vanished before its force reached zero (e.g. undamped): end it here. */
   private endFirstContactWithoutOverlap(bodies: Bodies): void {
-    const a = this.firstContactA;
-    const b = this.firstContactB;
+    const a = this.run.firstContactA;
+    const b = this.run.firstContactB;
     const { x, y, vx, vy, radius, mass, inverseMass } = bodies;
     let overlap: number;
     let overlapRate: number;
@@ -882,21 +875,21 @@ export class ContactField implements ForceField {
       effectiveRadius = radius[a];
       modulusFactorPa = this.wallHertzModulusFactorPa;
     }
-    const potentialBefore = this.contactPotentialJ;
+    const potentialBefore = this.pass[PASS_POTENTIAL_J];
     const force = this.normalForce(overlap, overlapRate, reducedMass, effectiveRadius, modulusFactorPa);
-    this.contactPotentialJ = potentialBefore;
-    this.firstContactForcePreviousN = this.firstContactForceN;
-    this.firstContactEndGaugePrevious = this.firstContactEndGauge;
-    this.firstContactEndGauge = Math.min(this.endGauge(force, overlap, overlapRate), 0);
+    this.pass[PASS_POTENTIAL_J] = potentialBefore;
+    this.run.firstContactForcePreviousN = this.run.firstContactForceN;
+    this.run.firstContactEndGaugePrevious = this.run.firstContactEndGauge;
+    this.run.firstContactEndGauge = Math.min(this.endGauge(force, overlap, overlapRate), 0);
     this.endFirstContact(Math.min(force, 0), normalX, normalY);
   }
 
   /** Approach speed δ̇ of the first contact's bodies along the normal recorded at its end. */
   firstContactEndApproachSpeed(bodies: Bodies): number {
-    const a = this.firstContactA;
-    const b = this.firstContactB;
-    const nx = this.firstContactEndNormalX;
-    const ny = this.firstContactEndNormalY;
+    const a = this.run.firstContactA;
+    const b = this.run.firstContactB;
+    const nx = this.run.firstContactEndNormalX;
+    const ny = this.run.firstContactEndNormalY;
     if (b >= 0) return (bodies.vx[a] - bodies.vx[b]) * nx + (bodies.vy[a] - bodies.vy[b]) * ny;
     return -(nx * bodies.vx[a] + ny * bodies.vy[a]);
   }

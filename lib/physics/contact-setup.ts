@@ -90,8 +90,8 @@ export function expectedRestitution(field: ContactField, bodies: Bodies, scenari
   const damping = scenario.contact.damping;
   if (damping.kind === "restitution") return damping.value;
   if (field.dampingMode === DAMPING_NONE) return 1;
-  const a = field.firstContactA;
-  const b = field.firstContactB;
+  const a = field.run.firstContactA;
+  const b = field.run.firstContactB;
   const reducedMass = field.contactReducedMassKg(bodies, a, b);
   const stiffness = field.contactStiffness(bodies, a, b);
   if (field.model === CONTACT_LINEAR) {

@@ -7,20 +7,7 @@
  */
 import type { Scenario } from "./types";
 import type { Bodies } from "./bodies";
-import {
-  BROAD_PHASE_ALL_PAIRS,
-  CONTACT_LINEAR,
-  DAMPING_COEFFICIENT,
-  DAMPING_NONE,
-  FIRST_CONTACT_ACTIVE,
-  FIRST_CONTACT_ENDED,
-  FIRST_CONTACT_PENDING,
-  TUNNEL_CENTRES_CROSSED,
-  TUNNEL_ENTERED_PAST_CLOSEST_APPROACH,
-  TUNNEL_NONE,
-  TUNNEL_SKIPPED_CONTACT,
-  type ContactField,
-} from "./contact-field";
+import { BROAD_PHASE_ALL_PAIRS, CONTACT_LINEAR, type ContactField, DAMPING_COEFFICIENT, DAMPING_NONE, FIRST_CONTACT_ACTIVE, FIRST_CONTACT_ENDED, FIRST_CONTACT_PENDING, PASS_FIRST_CONTACT_ENDED, PASS_FIRST_CONTACT_STARTED, PASS_MAX_OMEGA_SQUARED, PASS_MAX_OVERLAP_FRACTION, PASS_MAX_OVERLAP_M, PASS_OVERLAPPING_CONTACTS, PASS_POTENTIAL_J, PASS_TUNNEL_DETECTED, PASS_WALL_FORCE_X_N, PASS_WALL_FORCE_Y_N, TUNNEL_CENTRES_CROSSED, TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, TUNNEL_NONE, TUNNEL_SKIPPED_CONTACT } from "./contact-field";
 import { jumpFreeFlight, type LoopProgress, type LoopSettings } from "./step-loop";
 import type { SeriesRecorder } from "./series";
 
@@ -204,27 +191,27 @@ export function integratePair(bodies: Bodies, field: ContactField, settings: Loo
   s[P_X1] = x[1]; s[P_Y1] = y[1]; s[P_VX1] = vx[1]; s[P_VY1] = vy[1]; s[P_FX1] = fx[1]; s[P_FY1] = fy[1]; s[P_PX1] = previousX[1]; s[P_PY1] = previousY[1];
 
   // Field state after priming.
-  s[P_CONTACT_POTENTIAL_J] = field.contactPotentialJ;
-  s[P_OVERLAPPING_CONTACTS] = field.overlappingContacts;
-  s[P_PASS_MAX_OVERLAP_FRACTION] = field.maxOverlapFraction;
-  s[P_PASS_MAX_OVERLAP_M] = field.maxOverlapM;
-  s[P_PASS_MAX_OMEGA_SQUARED] = field.maxOmegaSquared;
-  s[P_TUNNEL_KIND] = field.tunnelKind;
-  s[P_TUNNEL_BODY_A] = field.tunnelBodyA;
-  s[P_TUNNEL_BODY_B] = field.tunnelBodyB;
-  s[P_TUNNEL_DETECTED_THIS_PASS] = field.tunnelDetectedThisPass ? 1 : 0;
-  s[P_PHASE] = field.firstContactPhase;
-  s[P_FIRST_A] = field.firstContactA;
-  s[P_FIRST_B] = field.firstContactB;
-  s[P_STARTED_THIS_PASS] = field.firstContactStartedThisPass ? 1 : 0;
-  s[P_ENDED_THIS_PASS] = field.firstContactEndedThisPass ? 1 : 0;
-  s[P_START_OVERLAP_BEFORE] = field.firstContactStartOverlapBeforeM;
-  s[P_START_OVERLAP] = field.firstContactStartOverlapM;
-  s[P_APPROACH_SPEED] = field.firstContactApproachSpeedMPerS;
-  s[P_FORCE_PREVIOUS] = field.firstContactForcePreviousN;
-  s[P_FORCE_NOW] = field.firstContactForceN;
-  s[P_END_NORMAL_X] = field.firstContactEndNormalX;
-  s[P_END_NORMAL_Y] = field.firstContactEndNormalY;
+  s[P_CONTACT_POTENTIAL_J] = field.pass[PASS_POTENTIAL_J];
+  s[P_OVERLAPPING_CONTACTS] = field.pass[PASS_OVERLAPPING_CONTACTS];
+  s[P_PASS_MAX_OVERLAP_FRACTION] = field.pass[PASS_MAX_OVERLAP_FRACTION];
+  s[P_PASS_MAX_OVERLAP_M] = field.pass[PASS_MAX_OVERLAP_M];
+  s[P_PASS_MAX_OMEGA_SQUARED] = field.pass[PASS_MAX_OMEGA_SQUARED];
+  s[P_TUNNEL_KIND] = field.run.tunnelKind;
+  s[P_TUNNEL_BODY_A] = field.run.tunnelBodyA;
+  s[P_TUNNEL_BODY_B] = field.run.tunnelBodyB;
+  s[P_TUNNEL_DETECTED_THIS_PASS] = field.pass[PASS_TUNNEL_DETECTED];
+  s[P_PHASE] = field.run.firstContactPhase;
+  s[P_FIRST_A] = field.run.firstContactA;
+  s[P_FIRST_B] = field.run.firstContactB;
+  s[P_STARTED_THIS_PASS] = field.pass[PASS_FIRST_CONTACT_STARTED];
+  s[P_ENDED_THIS_PASS] = field.pass[PASS_FIRST_CONTACT_ENDED];
+  s[P_START_OVERLAP_BEFORE] = field.run.firstContactStartOverlapBeforeM;
+  s[P_START_OVERLAP] = field.run.firstContactStartOverlapM;
+  s[P_APPROACH_SPEED] = field.run.firstContactApproachSpeedMPerS;
+  s[P_FORCE_PREVIOUS] = field.run.firstContactForcePreviousN;
+  s[P_FORCE_NOW] = field.run.firstContactForceN;
+  s[P_END_NORMAL_X] = field.run.firstContactEndNormalX;
+  s[P_END_NORMAL_Y] = field.run.firstContactEndNormalY;
 
   // The step loop's running values.
   s[P_N] = 0;
@@ -235,12 +222,12 @@ export function integratePair(bodies: Bodies, field: ContactField, settings: Loo
   s[P_INTEGRATED_STEPS] = 0;
   s[P_EXTERNAL_IMPULSE_X_NS] = 0;
   s[P_EXTERNAL_IMPULSE_Y_NS] = 0;
-  s[P_LAST_WALL_FORCE_X_N] = field.wallForceXN;
-  s[P_LAST_WALL_FORCE_Y_N] = field.wallForceYN;
+  s[P_LAST_WALL_FORCE_X_N] = field.pass[PASS_WALL_FORCE_X_N];
+  s[P_LAST_WALL_FORCE_Y_N] = field.pass[PASS_WALL_FORCE_Y_N];
   s[P_ENERGY] = startEnergy;
   s[P_MAX_ENERGY_ERROR_REL] = 0;
-  s[P_MAX_OVERLAP_FRACTION] = field.maxOverlapFraction;
-  s[P_MAX_OMEGA_SQUARED] = field.maxOmegaSquared;
+  s[P_MAX_OVERLAP_FRACTION] = field.pass[PASS_MAX_OVERLAP_FRACTION];
+  s[P_MAX_OMEGA_SQUARED] = field.pass[PASS_MAX_OMEGA_SQUARED];
   s[P_CONTACT_STEPS] = 0;
   s[P_EXPLODED] = 0;
   s[P_EXPLODED_AT_S] = 0;
@@ -289,27 +276,27 @@ export function integratePair(bodies: Bodies, field: ContactField, settings: Loo
 
   x[0] = s[P_X0]; y[0] = s[P_Y0]; vx[0] = s[P_VX0]; vy[0] = s[P_VY0]; fx[0] = s[P_FX0]; fy[0] = s[P_FY0]; previousX[0] = s[P_PX0]; previousY[0] = s[P_PY0];
   x[1] = s[P_X1]; y[1] = s[P_Y1]; vx[1] = s[P_VX1]; vy[1] = s[P_VY1]; fx[1] = s[P_FX1]; fy[1] = s[P_FY1]; previousX[1] = s[P_PX1]; previousY[1] = s[P_PY1];
-  field.contactPotentialJ = s[P_CONTACT_POTENTIAL_J];
-  field.overlappingContacts = s[P_OVERLAPPING_CONTACTS] | 0;
-  field.maxOverlapFraction = s[P_PASS_MAX_OVERLAP_FRACTION];
-  field.maxOverlapM = s[P_PASS_MAX_OVERLAP_M];
-  field.maxOmegaSquared = s[P_PASS_MAX_OMEGA_SQUARED];
-  field.tunnelKind = s[P_TUNNEL_KIND] | 0;
-  field.tunnelBodyA = s[P_TUNNEL_BODY_A] | 0;
-  field.tunnelBodyB = s[P_TUNNEL_BODY_B] | 0;
-  field.tunnelDetectedThisPass = s[P_TUNNEL_DETECTED_THIS_PASS] !== 0;
-  field.firstContactPhase = s[P_PHASE] | 0;
-  field.firstContactA = s[P_FIRST_A] | 0;
-  field.firstContactB = s[P_FIRST_B] | 0;
-  field.firstContactStartedThisPass = s[P_STARTED_THIS_PASS] !== 0;
-  field.firstContactEndedThisPass = s[P_ENDED_THIS_PASS] !== 0;
-  field.firstContactStartOverlapBeforeM = s[P_START_OVERLAP_BEFORE];
-  field.firstContactStartOverlapM = s[P_START_OVERLAP];
-  field.firstContactApproachSpeedMPerS = s[P_APPROACH_SPEED];
-  field.firstContactForcePreviousN = s[P_FORCE_PREVIOUS];
-  field.firstContactForceN = s[P_FORCE_NOW];
-  field.firstContactEndNormalX = s[P_END_NORMAL_X];
-  field.firstContactEndNormalY = s[P_END_NORMAL_Y];
+  field.pass[PASS_POTENTIAL_J] = s[P_CONTACT_POTENTIAL_J];
+  field.pass[PASS_OVERLAPPING_CONTACTS] = s[P_OVERLAPPING_CONTACTS] | 0;
+  field.pass[PASS_MAX_OVERLAP_FRACTION] = s[P_PASS_MAX_OVERLAP_FRACTION];
+  field.pass[PASS_MAX_OVERLAP_M] = s[P_PASS_MAX_OVERLAP_M];
+  field.pass[PASS_MAX_OMEGA_SQUARED] = s[P_PASS_MAX_OMEGA_SQUARED];
+  field.run.tunnelKind = s[P_TUNNEL_KIND] | 0;
+  field.run.tunnelBodyA = s[P_TUNNEL_BODY_A] | 0;
+  field.run.tunnelBodyB = s[P_TUNNEL_BODY_B] | 0;
+  field.pass[PASS_TUNNEL_DETECTED] = s[P_TUNNEL_DETECTED_THIS_PASS];
+  field.run.firstContactPhase = s[P_PHASE] | 0;
+  field.run.firstContactA = s[P_FIRST_A] | 0;
+  field.run.firstContactB = s[P_FIRST_B] | 0;
+  field.pass[PASS_FIRST_CONTACT_STARTED] = s[P_STARTED_THIS_PASS];
+  field.pass[PASS_FIRST_CONTACT_ENDED] = s[P_ENDED_THIS_PASS];
+  field.run.firstContactStartOverlapBeforeM = s[P_START_OVERLAP_BEFORE];
+  field.run.firstContactStartOverlapM = s[P_START_OVERLAP];
+  field.run.firstContactApproachSpeedMPerS = s[P_APPROACH_SPEED];
+  field.run.firstContactForcePreviousN = s[P_FORCE_PREVIOUS];
+  field.run.firstContactForceN = s[P_FORCE_NOW];
+  field.run.firstContactEndNormalX = s[P_END_NORMAL_X];
+  field.run.firstContactEndNormalY = s[P_END_NORMAL_Y];
 
   return {
     n: s[P_N],

@@ -5,7 +5,7 @@
  */
 import type { ContactSpec, Metrics, Scenario, SlopeScene } from "./types";
 import type { Bodies } from "./bodies";
-import { CONTACT_LINEAR, type ContactField } from "./contact-field";
+import { CONTACT_LINEAR, type ContactField, PASS_MAX_OVERLAP_M } from "./contact-field";
 import { SETTLE_ENERGY_FRACTION } from "./constants";
 import { slopeGeometry } from "./scenes";
 import { slidingAngleDeg } from "./friction-analytic";
@@ -81,7 +81,7 @@ export class RestTracker {
       metrics.creepM = Number.isNaN(this.slopeAtHalf) ? 0 : Math.abs(end - this.slopeAtHalf);
     }
     const radius = bodies.radius[0];
-    metrics.restingOverlapFraction = field.maxOverlapM / radius;
+    metrics.restingOverlapFraction = field.pass[PASS_MAX_OVERLAP_M] / radius;
     // The deepest resting contact: the slope's body on the incline (weight component m·g·cos θ),
     // the stack's bottom disc on the floor (the weight of the whole tower).
     const scene = this.scenario.scene;
@@ -90,6 +90,6 @@ export class RestTracker {
     else if (scene.kind === "stack") loadN = scene.count * scene.massKg * this.gravity;
     const stiffness = field.contactStiffness(bodies, 0, -1);
     const expected = loadN > 0 && stiffness > 0 ? (field.model === CONTACT_LINEAR ? loadN / stiffness : Math.pow(loadN / stiffness, 2 / 3)) : 0;
-    metrics.restingOverlapRatio = expected > 0 ? field.maxOverlapM / expected : null;
+    metrics.restingOverlapRatio = expected > 0 ? field.pass[PASS_MAX_OVERLAP_M] / expected : null;
   }
 }

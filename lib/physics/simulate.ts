@@ -12,7 +12,7 @@ import { GRAVITY_J, KINETIC_J, energyTerms, momentumMagnitudeSumNs, rotationalEn
 import { SpinTracker, isIsolatedScene } from "./spin-metrics";
 import { RestTracker, isRestingScene } from "./rest-metrics";
 import { primeForces, stepFunctionFor } from "./integrators";
-import { BROAD_PHASE_ALL_PAIRS, BROAD_PHASE_GRID, CONTACT_HERTZ, CONTACT_LINEAR, ContactField, DAMPING_NONE, FIRST_CONTACT_ENDED, TUNNEL_NONE } from "./contact-field";
+import { BROAD_PHASE_ALL_PAIRS, BROAD_PHASE_GRID, CONTACT_HERTZ, CONTACT_LINEAR, ContactField, DAMPING_NONE, FIRST_CONTACT_ENDED, PASS_POTENTIAL_J, TUNNEL_NONE } from "./contact-field";
 import { contactFieldParameters, expectedRestitution } from "./contact-setup";
 import { integrate, type LoopSettings } from "./step-loop";
 import { createPairState, integratePair, takesTwoBodyPath } from "./pair-loop";
@@ -95,7 +95,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
   primeForces(bodies, field);
   const terms = scratch?.energyTerms ?? new Float64Array(2);
   energyTerms(bodies, gravity, terms);
-  const startEnergy = terms[KINETIC_J] + field.contactPotentialJ + terms[GRAVITY_J] + rotationalEnergyJ(bodies);
+  const startEnergy = terms[KINETIC_J] + field.pass[PASS_POTENTIAL_J] + terms[GRAVITY_J] + rotationalEnergyJ(bodies);
   if (spin) spin.start(bodies, field);
   const energyScale = startEnergy !== 0 ? Math.abs(startEnergy) : 1;
   const startMomentumX = totalMomentumXNs(bodies);
@@ -127,7 +127,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
   const progress = takesTwoBodyPath(scenario, bodies, field, gravity, recorder) ? integratePair(bodies, field, settings, scratch?.pairState ?? createPairState()) : integrate(bodies, field, step, settings);
   const { n, chargedContacts, flightChecks, flightSteps, finalFlights, integratedSteps, externalImpulseXNs, externalImpulseYNs, energy, maxEnergyErrorRel, maxOverlapFraction, maxOmegaSquared, contactSteps, exploded, explodedAtS, tunnelAtS, effectiveRestitution, contactDurationS } = progress;
 
-  const expected = effectiveRestitution !== null && field.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
+  const expected = effectiveRestitution !== null && field.run.firstContactPhase === FIRST_CONTACT_ENDED ? expectedRestitution(field, bodies, scenario) : null;
   const isolatedScene = scenario.scene.kind === "pair" || scenario.scene.kind === "wall";
   const endMomentumX = totalMomentumXNs(bodies);
   const endMomentumY = totalMomentumYNs(bodies);
@@ -140,7 +140,7 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
     maxOverlapFraction,
     contactDurationS,
     contactSteps,
-    tunneled: field.tunnelKind !== TUNNEL_NONE,
+    tunneled: field.run.tunnelKind !== TUNNEL_NONE,
     exploded,
     steps: n,
     maxOmegaH: contactSteps > 0 || maxOmegaSquared > 0 ? Math.sqrt(maxOmegaSquared) * h : null,
@@ -157,9 +157,9 @@ export function simulate(scenario: Scenario, options: RunOptions = {}, scratch?:
     energy,
     startEnergy,
     tunnelAtS,
-    tunnelKind: field.tunnelKind,
-    tunnelBodyA: field.tunnelBodyA,
-    tunnelBodyB: field.tunnelBodyB,
+    tunnelKind: field.run.tunnelKind,
+    tunnelBodyA: field.run.tunnelBodyA,
+    tunnelBodyB: field.run.tunnelBodyB,
     expectedRestitution: expected,
     stepS: h,
   });

@@ -80,10 +80,10 @@ export class SpinTracker {
 
   /** At the end of the first contact: slip at the contact point, spin and rebound angle of its first body. */
   firstContactEnded(bodies: Bodies, field: ContactField): void {
-    const a = field.firstContactA;
-    const b = field.firstContactB;
-    const normalX = field.firstContactEndNormalX;
-    const normalY = field.firstContactEndNormalY;
+    const a = field.run.firstContactA;
+    const b = field.run.firstContactB;
+    const normalX = field.run.firstContactEndNormalX;
+    const normalY = field.run.firstContactEndNormalY;
     const tangentX = -normalY;
     const tangentY = normalX;
     const { vx, vy, omega, radius } = bodies;

@@ -5,7 +5,7 @@
  * duration and rebound). The two-body loop (./pair-loop.ts) is its fast twin for pair cells.
  */
 import { GRAVITY_J, KINETIC_J, energyTerms, rotationalEnergyJ, type Bodies } from "./bodies";
-import type { ContactField } from "./contact-field";
+import { type ContactField, PASS_FIRST_CONTACT_ENDED, PASS_FIRST_CONTACT_STARTED, PASS_MAX_OMEGA_SQUARED, PASS_MAX_OVERLAP_FRACTION, PASS_MAX_OVERLAP_M, PASS_OVERLAPPING_CONTACTS, PASS_POTENTIAL_J, PASS_TUNNEL_DETECTED, PASS_WALL_FORCE_X_N, PASS_WALL_FORCE_Y_N } from "./contact-field";
 import type { StepFunction } from "./integrators";
 import type { SeriesRecorder } from "./series";
 import type { SpinTracker } from "./spin-metrics";
@@ -63,6 +63,7 @@ export interface LoopProgress {
  */
 export function integrate(bodies: Bodies, field: ContactField, step: StepFunction, settings: LoopSettings): LoopProgress {
   const { isVerlet, h, totalSteps, allowJumps, contactsChargedMax, gravity, gravityImpulsePerStepNs, startEnergy, energyScale, blowUpEnergyFactor, recorder, spin, rest, gaugeContactEnd } = settings;
+  const pass = field.pass;
   let chargedContacts = 0;
   let flightChecks = 0;
   let flightSteps = 0;
@@ -70,12 +71,12 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
   let integratedSteps = 0;
   let externalImpulseXNs = 0;
   let externalImpulseYNs = 0;
-  let lastWallForceXN = field.wallForceXN;
-  let lastWallForceYN = field.wallForceYN;
+  let lastWallForceXN = pass[PASS_WALL_FORCE_X_N];
+  let lastWallForceYN = pass[PASS_WALL_FORCE_Y_N];
   let energy = startEnergy;
   let maxEnergyErrorRel = 0;
-  let maxOverlapFraction = field.maxOverlapFraction;
-  let maxOmegaSquared = field.maxOmegaSquared;
+  let maxOverlapFraction = pass[PASS_MAX_OVERLAP_FRACTION];
+  let maxOmegaSquared = pass[PASS_MAX_OMEGA_SQUARED];
   let contactSteps = 0;
   let exploded = false;
   let explodedAtS = 0;
@@ -87,11 +88,11 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
   // The step's kinetic and gravity energy (the energy check and the rest tracker read it).
   const terms = settings.energyTerms;
 
-  if (recorder) recorder.recordUpTo(0, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
+  if (recorder) recorder.recordUpTo(0, bodies, pass[PASS_POTENTIAL_J], gravity, pass[PASS_MAX_OVERLAP_M], h);
 
   let n = 0;
   while (n < totalSteps) {
-    if (allowJumps && field.overlappingContacts === 0) {
+    if (allowJumps && pass[PASS_OVERLAPPING_CONTACTS] === 0) {
       const timeToContactS = field.timeToFirstContactS(bodies);
       flightChecks++;
       // Land at least one full step before the contact so the entry is integrated as plain stepping would.
@@ -107,21 +108,21 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
     step(bodies, field, h);
     n++;
     integratedSteps++;
-    chargedContacts += field.overlappingContacts < contactsChargedMax ? field.overlappingContacts : contactsChargedMax;
+    chargedContacts += pass[PASS_OVERLAPPING_CONTACTS] < contactsChargedMax ? pass[PASS_OVERLAPPING_CONTACTS] : contactsChargedMax;
 
     if (isVerlet) {
-      externalImpulseXNs += 0.5 * h * (lastWallForceXN + field.wallForceXN);
-      externalImpulseYNs += 0.5 * h * (lastWallForceYN + field.wallForceYN);
+      externalImpulseXNs += 0.5 * h * (lastWallForceXN + pass[PASS_WALL_FORCE_X_N]);
+      externalImpulseYNs += 0.5 * h * (lastWallForceYN + pass[PASS_WALL_FORCE_Y_N]);
     } else {
       externalImpulseXNs += h * lastWallForceXN;
       externalImpulseYNs += h * lastWallForceYN;
     }
     externalImpulseYNs += gravityImpulsePerStepNs;
-    lastWallForceXN = field.wallForceXN;
-    lastWallForceYN = field.wallForceYN;
+    lastWallForceXN = pass[PASS_WALL_FORCE_X_N];
+    lastWallForceYN = pass[PASS_WALL_FORCE_Y_N];
 
     energyTerms(bodies, gravity, terms);
-    energy = terms[KINETIC_J] + field.contactPotentialJ + terms[GRAVITY_J];
+    energy = terms[KINETIC_J] + pass[PASS_POTENTIAL_J] + terms[GRAVITY_J];
     if (spin) {
       energy += rotationalEnergyJ(bodies);
       spin.afterStep(bodies, field, h, isVerlet);
@@ -129,31 +130,31 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
     if (rest) rest.afterStep(n, terms[KINETIC_J] + rotationalEnergyJ(bodies), bodies);
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
-    if (field.maxOverlapFraction > maxOverlapFraction) maxOverlapFraction = field.maxOverlapFraction;
-    if (field.maxOmegaSquared > maxOmegaSquared) maxOmegaSquared = field.maxOmegaSquared;
-    if (field.overlappingContacts > 0) contactSteps++;
-    if (field.tunnelDetectedThisPass && tunnelAtS < 0) tunnelAtS = n * h;
+    if (pass[PASS_MAX_OVERLAP_FRACTION] > maxOverlapFraction) maxOverlapFraction = pass[PASS_MAX_OVERLAP_FRACTION];
+    if (pass[PASS_MAX_OMEGA_SQUARED] > maxOmegaSquared) maxOmegaSquared = pass[PASS_MAX_OMEGA_SQUARED];
+    if (pass[PASS_OVERLAPPING_CONTACTS] > 0) contactSteps++;
+    if (pass[PASS_TUNNEL_DETECTED] !== 0 && tunnelAtS < 0) tunnelAtS = n * h;
 
-    if (field.firstContactStartedThisPass) {
-      const before = field.firstContactStartOverlapBeforeM;
-      const after = field.firstContactStartOverlapM;
+    if (pass[PASS_FIRST_CONTACT_STARTED] !== 0) {
+      const before = field.run.firstContactStartOverlapBeforeM;
+      const after = field.run.firstContactStartOverlapM;
       firstContactStartS = (n - 1) * h + (h * -before) / (after - before);
     }
-    if (field.firstContactEndedThisPass) {
+    if (pass[PASS_FIRST_CONTACT_ENDED] !== 0) {
       // Rules ≥ 3 interpolate the end on the field's end gauge (the force for a linear contact, so
       // linear results are unchanged; for Hertz the overlap beyond the force's zero, second order);
       // rules 1 and 2 on the force, as the cells stored under them were.
-      const before = gaugeContactEnd ? field.firstContactEndGaugePrevious : field.firstContactForcePreviousN;
-      const after = gaugeContactEnd ? field.firstContactEndGauge : field.firstContactForceN;
+      const before = gaugeContactEnd ? field.run.firstContactEndGaugePrevious : field.run.firstContactForcePreviousN;
+      const after = gaugeContactEnd ? field.run.firstContactEndGauge : field.run.firstContactForceN;
       const fraction = before > 0 ? before / (before - after) : 0;
       firstContactEndS = Math.max(firstContactStartS, (n - 1) * h + h * fraction);
       contactDurationS = firstContactEndS - firstContactStartS;
-      const approachIn = field.firstContactApproachSpeedMPerS;
+      const approachIn = field.run.firstContactApproachSpeedMPerS;
       effectiveRestitution = approachIn > 0 ? -field.firstContactEndApproachSpeed(bodies) / approachIn : null;
       if (spin) spin.firstContactEnded(bodies, field);
     }
 
-    if (recorder) recorder.recordUpTo(n, bodies, field.contactPotentialJ, gravity, field.maxOverlapM, h);
+    if (recorder) recorder.recordUpTo(n, bodies, pass[PASS_POTENTIAL_J], gravity, pass[PASS_MAX_OVERLAP_M], h);
 
     if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
       exploded = true;

@@ -35,7 +35,7 @@ function passes(scenario: Scenario, broadPhase: "grid" | "all-pairs"): { values:
   const field = createContactField(scenario, setup.walls, setup.gravityMPerS2, bodies.count, broadPhase);
   primeForces(bodies, field);
   const values: number[] = [];
-  const record = () => values.push(...bodies.fx, ...bodies.fy, field.contactPotentialJ, field.overlappingContacts, field.maxOverlapFraction, field.maxOverlapM, field.maxOmegaSquared, field.wallForceXN, field.wallForceYN, field.tunnelKind, field.tunnelBodyA, field.tunnelBodyB, field.firstContactPhase, field.firstContactA, field.firstContactB);
+  const record = () => values.push(...bodies.fx, ...bodies.fy, ...field.pass, field.run.tunnelKind, field.run.tunnelBodyA, field.run.tunnelBodyB, field.run.firstContactPhase, field.run.firstContactA, field.run.firstContactB);
   for (let n = 0; n < 200; n++) {
     stepSymplecticEuler(bodies, field, scenario.dtS);
     record();
