@@ -177,7 +177,6 @@ describe("a catalogue check", () => {
   });
 });
 
-
 describe("a catalogue check with friction", () => {
   it("answers bad friction values 422 naming row and column, and stores nothing", async () => {
     const before = await countRows(db, catalogues);
