@@ -8,25 +8,14 @@ import { availableParallelism, loadavg } from "node:os";
 import { simulate } from "../../lib/physics/index";
 import type { Scenario } from "../../lib/physics/types";
 import { formatSi, table, type BenchModule } from "./bench-module";
+import { benchBox } from "./box-scene";
 
 const COUNTS = [250, 1000, 4000];
 const GRID_ROUNDS = 5;
 
 /** An invented arcade game's marble tray: discs at 20 % area fraction, no gravity. */
 function boxScenario(count: number, steps: number): Scenario {
-  const radiusM = 0.01;
-  const sideM = Math.sqrt((count * Math.PI * radiusM * radiusM) / 0.2);
-  const dtS = 2e-4;
-  return {
-    scene: { kind: "box", count, massKg: 0.005, radiusM, widthM: sideM, heightM: sideM, maxSpeedMPerS: 1, gravityMPerS2: 0 },
-    contact: { model: "linear", stiffness: 5e3, damping: { kind: "none" } },
-    integrator: "velocity-verlet",
-    dtS,
-    substeps: 1,
-    durationS: steps * dtS,
-    tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1e3 },
-    seed: 99,
-  };
+  return benchBox(count, 0.2, 0, { model: "linear", stiffness: 5e3, damping: { kind: "none" } }, steps);
 }
 
 function nsPerStep(scenario: Scenario, broadPhase: "grid" | "all-pairs"): number {

@@ -6,25 +6,14 @@
 import { simulate } from "../../lib/physics/index";
 import type { ContactSpec, Scenario } from "../../lib/physics/types";
 import { formatSi, table, type BenchModule } from "./bench-module";
+import { benchBox } from "./box-scene";
 
 const FRICTION: ContactSpec["friction"] = { coefficient: 0.5, stiffnessRatio: 2 / 7, dampingRatio: 0.2 };
 
 /** An invented loot-room floor: 1,000 coins at 30 % area fraction under gravity, so most touch. */
 function boxScenario(friction: boolean, steps: number): Scenario {
-  const count = 1000;
-  const radiusM = 0.01;
-  const sideM = Math.sqrt((count * Math.PI * radiusM * radiusM) / 0.3);
-  const dtS = 2e-4;
-  return {
-    scene: { kind: "box", count, massKg: 0.005, radiusM, widthM: sideM, heightM: sideM, maxSpeedMPerS: 1, gravityMPerS2: 9.81 },
-    contact: { model: "linear", stiffness: 5e3, damping: { kind: "restitution", value: 0.5 }, ...(friction ? { friction: FRICTION } : {}) },
-    integrator: "velocity-verlet",
-    dtS,
-    substeps: 1,
-    durationS: steps * dtS,
-    tolerances: { energyDriftRel: 0.01, maxOverlapFraction: 0.1, blowUpEnergyFactor: 1e3 },
-    seed: 99,
-  };
+  const contact: ContactSpec = { model: "linear", stiffness: 5e3, damping: { kind: "restitution", value: 0.5 }, ...(friction ? { friction: FRICTION } : {}) };
+  return benchBox(1000, 0.3, 9.81, contact, steps);
 }
 
 function stackScenario(count: number, steps: number): Scenario {

@@ -10,7 +10,8 @@ import { cellCount, expandAxes, forEachCellInRange } from "../../lib/sweeps/grid
 import { planChunks } from "../../lib/sweeps/chunks";
 import { createChunkPool } from "../../lib/sweeps/pool";
 import { runSweep } from "../../lib/sweeps/run";
-import { parseSweepSpec, stepsPerCell, type SweepSpec } from "../../lib/sweeps/spec";
+import { stepsPerCell, type SweepSpec } from "../../lib/sweeps/spec";
+import { parsedSpec } from "../unit/sweeps/fixtures";
 import type { Scenario } from "../../lib/physics/types";
 import { formatSi, table, type BenchModule } from "./bench-module";
 
@@ -19,7 +20,7 @@ const TARGET_SCALING = 1.8;
 
 /** An invented table-football game: ball against a player figure, a 40 × 40 × 20 grid. */
 function benchSpec(): SweepSpec {
-  const result = parseSweepSpec({
+  return parsedSpec({
     name: "bench: table-football ball against a figure",
     scenario: {
       scene: { kind: "pair", massAKg: 0.024, massBKg: 0.3, radiusAM: 0.0175, radiusBM: 0.012, speedAMPerS: 6, speedBMPerS: 0, offsetFraction: 0, gapM: 0.01 },
@@ -35,8 +36,6 @@ function benchSpec(): SweepSpec {
       { parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.95, count: 20 },
     ],
   });
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
 }
 
 async function measure(spec: SweepSpec, threads: number): Promise<{ wallS: number; computeS: number; chunks: number }> {

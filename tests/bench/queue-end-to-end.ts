@@ -29,12 +29,13 @@ import { planChunks } from "@/lib/sweeps/chunks";
 import { cellCount, expandAxes } from "@/lib/sweeps/grid";
 import { createChunkPool, defaultThreadCount, type ChunkPool } from "@/lib/sweeps/pool";
 import { runSweep } from "@/lib/sweeps/run";
-import { parseSweepSpec, stepsPerCell, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
+import { stepsPerCell, type SweepSpec, type SweepSpecInput } from "@/lib/sweeps/spec";
 import * as cellsRoute from "@/app/api/v1/studios/[studioId]/sweeps/[sweepId]/cells/route";
 // Aliased: the helper's "use" prefix is not a React hook, and the hooks lint rule goes by the name.
 import { closeTestDb, useFreshDb as openFreshTestDb } from "../helpers/db";
 import { buildRequest, type RouteHandler } from "../helpers/http";
 import { makeSweepStudio } from "../integration/sweeps/support";
+import { parsedSpec } from "../unit/sweeps/fixtures";
 import { formatSi, table, type BenchModule } from "./bench-module";
 
 const TARGET_RATIO = 1.15;
@@ -89,12 +90,6 @@ function boxSpecInput(): SweepSpecInput {
       { parameter: "dtS", spacing: "log", from: 1e-4, to: 1e-3, count: 6 },
     ],
   };
-}
-
-function parsedSpec(input: SweepSpecInput = specInput()): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
 }
 
 function median(values: number[]): number {

@@ -4,10 +4,9 @@
  * closed, sessions revocable, mail and Checkout rate-limited, owner-only lists, names checked.
  */
 import { and, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { apiTokens, invites, mailMessages, passwordResets, studios, userSessions, users } from "@/db/schema";
-import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import { holdAfterResponse, settleAfterResponse } from "@/lib/api/after-response";
 import { MAX_JSON_DEPTH } from "@/lib/api/body";
 import { LOGIN_ERROR_MESSAGE } from "@/lib/auth/accounts";
@@ -24,23 +23,15 @@ import * as tokensRoute from "@/app/api/v1/studios/[studioId]/tokens/route";
 import * as memberRoute from "@/app/api/v1/studios/[studioId]/members/[userId]/route";
 import * as quotesRoute from "@/app/api/v1/studios/[studioId]/quotes/route";
 import * as healthRoute from "@/app/api/health/route";
-import { closeTestDb, TEST_BASE_URL, useFreshDb } from "../helpers/db";
+import { TEST_BASE_URL } from "../helpers/db";
 import { makeStudio, makeToken, makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf, sessionCookie } from "../helpers/http";
+import { withFreshDbAndMailFake } from "../helpers/mail";
 import { csrf, latestCapturedMailTo, nextAuth, passwordSignIn } from "../helpers/next-auth";
 import { puckSpec } from "./sweeps/support";
 
 let db: Db;
-let fake: MailFake;
-beforeAll(async () => {
-  db = await useFreshDb();
-  fake = await startMailFake({ port: 0 });
-});
-afterAll(async () => {
-  await settleAfterResponse();
-  await fake.close();
-  await closeTestDb();
-});
+withFreshDbAndMailFake((fresh) => (db = fresh), settleAfterResponse);
 
 const me = (cookie: string) => call(meRoute.GET, { path: "/api/v1/me", cookie });
 const mailsTo = async (email: string) => (await db.select().from(mailMessages)).filter((m) => m.toAddresses.includes(email));

@@ -1,27 +1,19 @@
 /** Password reset by mailed link: 202 always, the link expires after 1 hour and works once. */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { mailMessages, passwordResets, users } from "@/db/schema";
 import { settleAfterResponse } from "@/lib/api/after-response";
-import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import * as resetRoute from "@/app/api/v1/password-reset/route";
 import * as confirmRoute from "@/app/api/v1/password-reset/confirm/route";
-import { closeTestDb, countRows, useFreshDb, TEST_BASE_URL } from "../helpers/db";
+import { countRows, TEST_BASE_URL } from "../helpers/db";
 import { makeUser, uniqueEmail } from "../helpers/factories";
 import { call, errorOf } from "../helpers/http";
+import { withFreshDbAndMailFake } from "../helpers/mail";
 import { passwordSignIn } from "../helpers/next-auth";
 
 let db: Db;
-let fake: MailFake;
-beforeAll(async () => {
-  db = await useFreshDb();
-  fake = await startMailFake({ port: 0 });
-});
-afterAll(async () => {
-  await fake.close();
-  await closeTestDb();
-});
+withFreshDbAndMailFake((fresh) => (db = fresh));
 
 const OLD = "old-password-of-the-puck";
 const NEW = "new-password-for-crates";

@@ -3,29 +3,19 @@
  * password by someone who never proved the mailbox once its owner signs in by e-mailed link.
  */
 import { eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
+import { describe, expect, it, vi } from "vitest";
 import type { Db } from "@/db/client";
 import { users } from "@/db/schema";
-import { startMailFake, type MailFake } from "@/lib/fakes/smtp-fake";
 import * as signupRoute from "@/app/api/v1/signup/route";
 import * as meRoute from "@/app/api/v1/me/route";
 import * as confirmRoute from "@/app/api/v1/password-reset/confirm/route";
-import { closeTestDb, useFreshDb } from "../helpers/db";
 import { makePasswordReset, makeUser, uniqueEmail } from "../helpers/factories";
 import { call } from "../helpers/http";
+import { withFreshDbAndMailFake } from "../helpers/mail";
 import { magicLinkSignIn, passwordSignIn } from "../helpers/next-auth";
 
 let db: Db;
-let fake: MailFake;
-beforeAll(async () => {
-  db = await useFreshDb();
-  fake = await startMailFake({ port: 0 });
-});
-afterAll(async () => {
-  vi.useRealTimers();
-  await fake.close();
-  await closeTestDb();
-});
+withFreshDbAndMailFake((fresh) => (db = fresh), () => vi.useRealTimers());
 
 const me = (cookie: string) => call(meRoute.GET, { path: "/api/v1/me", cookie });
 

@@ -17,6 +17,7 @@ import * as checksRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalo
 import * as checkRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]/route";
 import * as exportRoute from "@/app/api/v1/studios/[studioId]/catalogues/[catalogueId]/checks/[checkId]/export/route";
 import * as quotesRoute from "@/app/api/v1/studios/[studioId]/quotes/route";
+import { LANTERNFALL_FRICTION_CSV } from "../../helpers/catalogue-files";
 import { countRows } from "../../helpers/db";
 import { buildRequest, call, errorOf } from "../../helpers/http";
 import { startSweepRunner, stopSweepRunner, usageEntries, waitForSweep, type TestStudio } from "../sweeps/support";
@@ -176,19 +177,10 @@ describe("a catalogue check", () => {
   });
 });
 
-/** Invented objects of the invented game "Lanternfall", with friction (μ) and one rolling resistance (μ_r). */
-const FRICTION_CSV = [
-  "name,mass_kg,radius_m,top_speed_m_per_s,restitution,group,friction,rolling_resistance",
-  "ice puck,0.5,0.1,4,0.5,,0.1,",
-  "loot chest,4,0.3,1,0.3,,0.6,0.02",
-  "lantern,1,0.2,2,0.4,,,",
-  "",
-].join("\r\n");
-
 describe("a catalogue check with friction", () => {
   it("answers bad friction values 422 naming row and column, and stores nothing", async () => {
     const before = await countRows(db, catalogues);
-    const bad = FRICTION_CSV.replace("ice puck,0.5,0.1,4,0.5,,0.1,", "ice puck,0.5,0.1,4,0.5,,-0.1,").replace("loot chest,4,0.3,1,0.3,,0.6,0.02", "loot chest,4,0.3,1,0.3,,NaN,1.5").replace("lantern,1,0.2,2,0.4,,,", "lantern,1,0.2,2,0.4,,10.5,");
+    const bad = LANTERNFALL_FRICTION_CSV.replace("ice puck,0.5,0.1,4,0.5,,0.1,", "ice puck,0.5,0.1,4,0.5,,-0.1,").replace("loot chest,4,0.3,1,0.3,,0.6,0.02", "loot chest,4,0.3,1,0.3,,NaN,1.5").replace("lantern,1,0.2,2,0.4,,,", "lantern,1,0.2,2,0.4,,10.5,");
     const { status, body } = await upload(studio, form(bad, "lanternfall.csv"));
     expect(status).toBe(422);
     const error = errorOf(body);
@@ -200,7 +192,7 @@ describe("a catalogue check with friction", () => {
   });
 
   it("refuses a k_t/k of zero with 400 naming the field, and queues nothing", async () => {
-    const uploaded = await upload(studio, form(FRICTION_CSV, "lanternfall.csv", "Lanternfall zero ratio"));
+    const uploaded = await upload(studio, form(LANTERNFALL_FRICTION_CSV, "lanternfall.csv", "Lanternfall zero ratio"));
     const catalogueId = (uploaded.body as { catalogue: { id: string } }).catalogue.id;
     const sweepsBefore = await countRows(db, sweeps);
     const res = await call(checksRoute.POST, { method: "POST", path: `${base(studio)}/${catalogueId}/checks`, params: { studioId: studio.studioId, catalogueId }, body: { settings: { ...SETTINGS, frictionStiffnessRatio: 0 } }, cookie: studio.cookies.engineer });
@@ -210,7 +202,7 @@ describe("a catalogue check with friction", () => {
   });
 
   it("runs like any check and reads back with its friction rows, the largest k_t/k and the substeps, in the view and the exports", async () => {
-    const uploaded = await upload(studio, form(FRICTION_CSV, "lanternfall.csv", "Lanternfall"));
+    const uploaded = await upload(studio, form(LANTERNFALL_FRICTION_CSV, "lanternfall.csv", "Lanternfall"));
     expect(uploaded.status).toBe(201);
     const catalogue = (uploaded.body as { catalogue: { id: string; objects: { name: string; friction?: number; rollingResistance?: number }[] } }).catalogue;
     expect(catalogue.objects[1]).toMatchObject({ name: "loot chest", friction: 0.6, rollingResistance: 0.02 });

@@ -1,17 +1,11 @@
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import Stripe from "stripe";
 import type { StripeFake } from "@/lib/fakes/stripe";
-import { expectStripeError, sdkFor, startFake } from "./helpers";
+import { expectStripeError, sdkFor, startFakeForFile } from "./helpers";
 
 let fake: StripeFake;
 let stripe: Stripe;
-
-beforeAll(async () => {
-  ({ fake, stripe } = await startFake());
-});
-afterAll(async () => {
-  await fake.close();
-});
+startFakeForFile((started) => ({ fake, stripe } = started));
 
 describe("customers through the SDK", () => {
   it("creates, retrieves and updates with Stripe's shape", async () => {

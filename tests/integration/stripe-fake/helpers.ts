@@ -1,6 +1,7 @@
 import { createServer, type IncomingMessage, type Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import Stripe from "stripe";
+import { afterAll, beforeAll } from "vitest";
 import { startStripeFake, type StripeFake, type StripeFakeOptions } from "@/lib/fakes/stripe";
 
 export const TEST_KEY = "sk_test_kickdrift_contract_0001";
@@ -13,6 +14,19 @@ export function sdkFor(fake: StripeFake, key = TEST_KEY, extra: Partial<Stripe.S
 export async function startFake(options: StripeFakeOptions = {}): Promise<{ fake: StripeFake; stripe: Stripe }> {
   const fake = await startStripeFake({ port: 0, webhookRetryDelaysMs: [50, 100, 200], ...options });
   return { fake, stripe: sdkFor(fake) };
+}
+
+/** One fake for a whole test file: started before its tests (`take` receives it) and closed after them. */
+export function startFakeForFile(take: (started: { fake: StripeFake; stripe: Stripe }) => void): void {
+  let fake: StripeFake | undefined;
+  beforeAll(async () => {
+    const started = await startFake();
+    fake = started.fake;
+    take(started);
+  });
+  afterAll(async () => {
+    await fake?.close();
+  });
 }
 
 export interface ReceivedWebhook {

@@ -4,21 +4,15 @@
  * Mozilla's PDF.js), through the font's ToUnicode map, as a finance tool would read it. CJK is not in
  * the font and prints as "?" (stated in lib/fakes/stripe/invoice-document.ts).
  */
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import Stripe from "stripe";
 import { extractText, getDocumentProxy } from "unpdf";
 import type { StripeFake } from "@/lib/fakes/stripe";
-import { startFake } from "./helpers";
+import { startFakeForFile } from "./helpers";
 
 let fake: StripeFake;
 let stripe: Stripe;
-
-beforeAll(async () => {
-  ({ fake, stripe } = await startFake());
-});
-afterAll(async () => {
-  await fake.close();
-});
+startFakeForFile((started) => ({ fake, stripe } = started));
 
 async function pdfOf(url: string): Promise<{ bytes: Buffer; text: string }> {
   const res = await fetch(url);

@@ -19,7 +19,7 @@ import { balanceMs } from "@/lib/quotas/standing";
 import { simulate } from "@/lib/physics/index";
 import { expandSweep } from "@/lib/sweeps/grid";
 import { WORK_UNITS_PER_BILLED_MS } from "@/lib/sweeps/metering";
-import { parseSweepSpec } from "@/lib/sweeps/spec";
+import { parsedSpec } from "../../unit/sweeps/fixtures";
 import { createChunkPool, type ChunkPool } from "@/lib/sweeps/pool";
 import { closeTestDb, useFreshDb } from "../../helpers/db";
 import { ballPitSpec, gatedPool, grant, makeSweepStudio, puckSpec, sweepRow, usageEntries, waitForCondition, waitForSweep } from "./support";
@@ -43,12 +43,6 @@ afterAll(async () => {
 
 async function cellsText(sweepId: string): Promise<string> {
   return JSON.stringify({ cells: (await storedCells(db, await sweepRow(sweepId))).map(cellJson) });
-}
-
-function parsedSpec(input: unknown) {
-  const parsed = parseSweepSpec(input);
-  if (!parsed.ok) throw new Error(JSON.stringify(parsed.issues));
-  return parsed.spec;
 }
 
 function newRunner(onRecorded?: (sweepId: string, sweepFinished: boolean) => void): QueueRunner {

@@ -4,6 +4,7 @@ import { backoffMs, DEFAULT_RETRY } from "@/cli/client";
 import { buildReport, frictionLines, junitXml, parseFailOn, xmlText } from "@/cli/report";
 import { checkSettingsSchema, recommend } from "@/lib/catalogues/check";
 import { parseCatalogueFile, type CatalogueObject } from "@/lib/catalogues/format";
+import { LANTERNFALL_FRICTION_CSV } from "../../helpers/catalogue-files";
 
 describe("--fail-on", () => {
   it("takes a list of verdicts or none, and names a wrong one", () => {
@@ -59,17 +60,9 @@ describe("backoff", () => {
 });
 
 describe("friction rows of a catalogue check", () => {
-  // Invented objects of the invented game "Lanternfall" (as in tests/unit/catalogues/friction-check.test.ts).
-  const CSV = [
-    "name,mass_kg,radius_m,top_speed_m_per_s,restitution,group,friction,rolling_resistance",
-    "ice puck,0.5,0.1,4,0.5,,0.1,",
-    "loot chest,4,0.3,1,0.3,,0.6,0.02",
-    "lantern,1,0.2,2,0.4,,,",
-    "",
-  ].join("\r\n");
 
   it("print the summary, the largest k_t/k, the substeps and one line per contact, saying which are past the bound", () => {
-    const objects = parseCatalogueFile(new TextEncoder().encode(CSV), "lanternfall.csv").objects as CatalogueObject[];
+    const objects = parseCatalogueFile(new TextEncoder().encode(LANTERNFALL_FRICTION_CSV), "lanternfall.csv").objects as CatalogueObject[];
     const settings = checkSettingsSchema.parse({ dtS: 1 / 60, substeps: 8, integrator: "symplectic-euler", stiffness: 1e5, margin: 0.5, frictionStiffnessRatio: 1, slopeAngleDeg: 20, offsets: [0] });
     const recommendation = recommend(objects, settings);
     const friction = recommendation.friction!;

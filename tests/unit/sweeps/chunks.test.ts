@@ -3,14 +3,7 @@ import fc from "fast-check";
 import { planChunks } from "../../../lib/sweeps/chunks";
 import { CALIBRATION, predictCellNs } from "../../../lib/sweeps/cost";
 import { expandSweep } from "../../../lib/sweeps/grid";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, clone, puckPairSpec, type Draft } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { ballPitBoxSpec, clone, puckPairSpec, type Draft, parsedSpec } from "./fixtures";
 
 function coverage(chunks: { firstCell: number; cellCount: number }[]): number[] {
   const covered: number[] = [];
@@ -22,7 +15,7 @@ describe("chunking", () => {
   it("covers every cell exactly once, in contiguous ranges numbered 0, 1, …", () => {
     const input = clone(puckPairSpec()) as Draft;
     input.axes.push({ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.9, count: 10 });
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     fc.assert(
       fc.property(fc.double({ min: 0.001, max: 50, noNaN: true }), fc.integer({ min: 1, max: 40 }), (targetChunkMs, maxCellsPerChunk) => {
         const chunks = planChunks(spec, { targetChunkMs, maxCellsPerChunk });
@@ -39,14 +32,14 @@ describe("chunking", () => {
   });
 
   it("is the same plan on every call", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     expect(planChunks(spec, { targetChunkMs: 0.01 })).toEqual(planChunks(spec, { targetChunkMs: 0.01 }));
   });
 
   it("closes a chunk once its predicted compute reaches the target", () => {
     const input = clone(ballPitBoxSpec()) as Draft;
     input.axes = [{ parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e5, count: 12 }];
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     const cellNs = predictCellNs(expandSweep(spec)[0].scenario, CALIBRATION);
     // Every cell has the same predicted cost (stiffness does not change a box step's cost).
     // A chunk starts at its fixed overhead; 3.5 cells above it: the 4th cell reaches the target.
@@ -56,7 +49,7 @@ describe("chunking", () => {
   });
 
   it("refuses a non-positive target or cell bound", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     expect(() => planChunks(spec, { targetChunkMs: 0 })).toThrow(/targetChunkMs/);
     expect(() => planChunks(spec, { maxCellsPerChunk: 0 })).toThrow(/maxCellsPerChunk/);
   });

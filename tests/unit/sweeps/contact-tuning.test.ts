@@ -14,15 +14,9 @@ import { parseCatalogueFile, type CatalogueObject } from "@/lib/catalogues/forma
 import { contactTuningCsv, contactTuningJson, scenarioContactTuning, sceneEffectiveMassKg, withContactTuning } from "@/lib/sweeps/contact-tuning";
 import { computeEnvelope } from "@/lib/sweeps/envelope";
 import { cellAt, cellIndex, expandAxes } from "@/lib/sweeps/grid";
-import { parseSweepSpec, type SweepSpec } from "@/lib/sweeps/spec";
+import { parseSweepSpec } from "@/lib/sweeps/spec";
 import type { Scenario } from "@/lib/physics/types";
-import { puckPairSpec } from "./fixtures";
-
-function parsed(): SweepSpec {
-  const result = parseSweepSpec(puckPairSpec());
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { puckPairSpec, parsedSpec } from "./fixtures";
 
 const objects = parseCatalogueFile(new TextEncoder().encode(CRATESLIDE_CATALOGUE_CSV), "crateslide.csv").objects as CatalogueObject[];
 
@@ -30,7 +24,7 @@ describe("a scenario's contact as frequency and damping ratio", () => {
   it("uses the mass the engine's contact oscillates with: half a period of f_n is the engine's contact time", () => {
     // Undamped linear contact: contact time π/ω_n = 1/(2 f_n) (Rao, Mechanical Vibrations, 2011, ch. 2:
     // half a period of the undamped oscillator; Luding 2008, t_c = π/ω). Measured by the engine at a fine step.
-    const spec = parsed();
+    const spec = parsedSpec(puckPairSpec());
     const pair: Scenario = { ...spec.scenario, contact: { model: "linear", stiffness: 2e5, damping: { kind: "none" } }, dtS: 1e-6, substeps: 1, durationS: 0.02 };
     const wall: Scenario = { ...pair, scene: { kind: "wall", massKg: 0.3, radiusM: 0.04, speedMPerS: 2, angleDeg: 0, gapM: 0.001 } };
     for (const scenario of [pair, wall]) {
@@ -44,7 +38,7 @@ describe("a scenario's contact as frequency and damping ratio", () => {
   });
 
   it("gives a target restitution as the engine's damping ratio, and a coefficient as c/c_c", () => {
-    const spec = parsed();
+    const spec = parsedSpec(puckPairSpec());
     const restitution = scenarioContactTuning(spec.scenario);
     expect(restitution?.dampingRatio).toBe(linearDampingRatioForRestitution(0.8));
     const mStar = reducedMassKg(0.17, 0.4);
@@ -57,7 +51,7 @@ describe("a scenario's contact as frequency and damping ratio", () => {
   });
 
   it("writes fixed-order JSON (the bytes JSON.stringify gives) and CSV fields", () => {
-    const tuning = scenarioContactTuning(parsed().scenario);
+    const tuning = scenarioContactTuning(parsedSpec(puckPairSpec()).scenario);
     expect(JSON.parse(`{${contactTuningJson(tuning)}}`)).toEqual({ contact: tuning });
     expect(`{${contactTuningJson(tuning)}}`).toBe(JSON.stringify({ contact: tuning }));
     expect(contactTuningCsv(null)).toBe(",,,,,,"); // one empty field per column, comma-led
@@ -66,7 +60,7 @@ describe("a scenario's contact as frequency and damping ratio", () => {
 
 describe("envelope rows", () => {
   it("carry the contact of the cell at their limit, null where there is none", () => {
-    const spec = parsed();
+    const spec = parsedSpec(puckPairSpec());
     const axes = expandAxes(spec);
     // Stable while stiffness × dt is small: an invented verdict pattern over the 5 × 3 grid.
     const verdictAt = (index: number) => (index % 3 <= 2 - Math.floor(index / 3 / 2) ? "stable" : "exploded") as "stable" | "exploded";
@@ -162,6 +156,6 @@ describe("docs/game-settings.md", () => {
       const bare = field.replace(/^pairs\[\]\./, "");
       expect(tableText.includes(`\`${field}\``) || tableText.includes(`\`${bare}\``), field).toBe(true);
     }
-    for (const key of Object.keys(scenarioContactTuning(parsed().scenario) ?? {})) expect(doc).toContain(`| \`${key}\` |`);
+    for (const key of Object.keys(scenarioContactTuning(parsedSpec(puckPairSpec()).scenario) ?? {})) expect(doc).toContain(`| \`${key}\` |`);
   });
 });

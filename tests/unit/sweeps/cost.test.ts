@@ -4,17 +4,11 @@ import { predictSweep } from "../../../lib/sweeps/chunks";
 import { CALIBRATION, QUOTE_BAND, estimateContactDurationS, predictCellNs } from "../../../lib/sweeps/cost";
 import { planChunks } from "../../../lib/sweeps/chunks";
 import { expandSweep } from "../../../lib/sweeps/grid";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { type SweepSpecInput } from "../../../lib/sweeps/spec";
+import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft, parsedSpec } from "./fixtures";
 
 function baseScenario(input: SweepSpecInput): Scenario {
-  return parsed({ ...clone(input), axes: [] }).scenario;
+  return parsedSpec({ ...clone(input), axes: [] }).scenario;
 }
 
 describe("cost model", () => {
@@ -51,7 +45,7 @@ describe("cost model", () => {
   });
 
   it("sums a sweep as it will be billed: per chunk, its cells and fixed overhead, rounded up to whole ms", () => {
-    const spec = parsed(ballPitBoxSpec());
+    const spec = parsedSpec(ballPitBoxSpec());
     const cells = expandSweep(spec);
     const chunks = planChunks(spec, { maxCellsPerChunk: 2 });
     expect(chunks.map((chunk) => chunk.cellCount)).toEqual([2, 1]);
@@ -72,7 +66,7 @@ describe("cost model", () => {
       { parameter: "contact.damping.restitution", values: [0.5, 0.6, 0.7] },
       { parameter: "scene.angleDeg", values: [0, 30] },
     ];
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     const cellsNs = expandSweep(spec).reduce((sum, cell) => sum + predictCellNs(cell.scenario), 0);
     const [chunk] = planChunks(spec, { targetChunkMs: 1e6 });
     expect(chunk.predictedMs).toBe(Math.ceil((CALIBRATION.chunkOverheadNs + cellsNs + 3 * CALIBRATION.hertzRestitutionSolveNs) / 1e6));

@@ -3,7 +3,7 @@
  * "Puckyard" is an invented studio making an air-hockey game; "Bumper Lane" an
  * invented pinball-like table.
  */
-import type { SweepSpecInput } from "../../../lib/sweeps/spec";
+import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
 
 /** A hockey puck (0.17 kg, 4 cm) hitting a heavier striker head-on (also the integration tests' puckSpec). */
 export function puckPairSpec(): SweepSpecInput {
@@ -92,4 +92,11 @@ export function crateDropSnapshotSpec(): SweepSpecInput {
       { parameter: "scene.speedScale", spacing: "linear", from: 0.5, to: 2, count: 2 },
     ],
   };
+}
+
+/** The parsed spec; a fixture that does not parse throws with its issues (the test is then broken, not red). */
+export function parsedSpec(input: unknown): SweepSpec {
+  const result = parseSweepSpec(input);
+  if (!result.ok) throw new Error(JSON.stringify(result.issues));
+  return result.spec;
 }

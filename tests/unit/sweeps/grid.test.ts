@@ -3,20 +3,14 @@ import fc from "fast-check";
 import { canonicalJson, hash32, hashFlatRecord } from "../../../lib/sweeps/canonical";
 import { axisPositions, cellAt, cellCount, cellIndex, expandAxes, expandSweep, forEachScenarioInPlace } from "../../../lib/sweeps/grid";
 import { scenarioHash, sha256Hex } from "../../../lib/sweeps/hash";
-import { axisValues, parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, clone, puckPairSpec, type Draft } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { axisValues } from "../../../lib/sweeps/spec";
+import { ballPitBoxSpec, clone, puckPairSpec, type Draft, parsedSpec } from "./fixtures";
 
 describe("grid expansion", () => {
   it("has as many cells as the product of the axis counts, with indices 0..n-1 in row-major order", () => {
     const input = clone(puckPairSpec()) as Draft;
     input.axes.push({ parameter: "integrator", values: ["symplectic-euler", "velocity-verlet"] });
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     const cells = expandSweep(spec);
     expect(cells).toHaveLength(5 * 3 * 2);
     expect(cells.map((cell) => cell.index)).toEqual([...Array(30).keys()]);
@@ -32,7 +26,7 @@ describe("grid expansion", () => {
   });
 
   it("axis positions and indices are inverse maps", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const axes = expandAxes(spec);
     fc.assert(
       fc.property(fc.integer({ min: 0, max: cellCount(axes) - 1 }), (index) => {
@@ -45,7 +39,7 @@ describe("grid expansion", () => {
   it("a sweep without axes is one cell: the base scenario", () => {
     const input = clone(puckPairSpec()) as Draft;
     input.axes = [];
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     const cells = expandSweep(spec);
     expect(cells).toHaveLength(1);
     expect({ ...cells[0].scenario, seed: 0 }).toEqual({ ...spec.scenario, seed: 0 });
@@ -84,7 +78,7 @@ describe("grid expansion", () => {
     input.scenario.scene.widthM = 20;
     input.scenario.scene.heightM = 20;
     input.axes = [{ parameter: "scene.count", spacing: "log", from: 250, to: 4000, count: 3 }];
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     expect(expandAxes(spec)[0].values).toEqual([250, 1000, 4000]);
     expect(expandSweep(spec).map((cell) => (cell.scenario.scene as { count: number }).count)).toEqual([250, 1000, 4000]);
   });
@@ -95,7 +89,7 @@ describe("grid expansion", () => {
       { parameter: "scene.massRatio", values: [0.5, 2] },
       { parameter: "scene.massAKg", values: [0.1, 0.3] },
     ];
-    const cells = expandSweep(parsed(input));
+    const cells = expandSweep(parsedSpec(input));
     const masses = cells.map((cell) => {
       const scene = cell.scenario.scene as { massAKg: number; massBKg: number };
       return [scene.massAKg, scene.massBKg];
@@ -116,7 +110,7 @@ describe("grid expansion", () => {
       { parameter: "scene.massRatio", values: [0.5, 2] },
       { parameter: "scene.massAKg", values: [0.1, 0.3] },
     ];
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     const built = expandSweep(spec).map((cell) => ({ ...cell.scenario, seed: spec.scenario.seed }));
     const seen: unknown[] = [];
     forEachScenarioInPlace(spec, expandAxes(spec), 0, built.length, (_index, scenario) => seen.push(structuredClone(scenario)));
@@ -124,7 +118,7 @@ describe("grid expansion", () => {
   });
 
   it("cellAt builds the same cell as the full expansion, and refuses indices outside the grid", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const axes = expandAxes(spec);
     const cells = expandSweep(spec);
     expect(cellAt(spec, axes, 7)).toEqual(cells[7]);
@@ -140,14 +134,14 @@ describe("cell seeds", () => {
       { parameter: "scene.count", values: [10, 20] },
       { parameter: "contact.stiffness", values: [1e3, 1e4] },
     ];
-    const cells = expandSweep(parsed(input));
+    const cells = expandSweep(parsedSpec(input));
     // Same scene (count), different stiffness → same layout seed.
     expect(cells[0].scenario.seed).toBe(cells[1].scenario.seed);
     expect(cells[2].scenario.seed).toBe(cells[3].scenario.seed);
     expect(cells[0].scenario.seed).not.toBe(cells[2].scenario.seed);
     // Another spec seed → other layouts.
     input.scenario.seed = 8;
-    const reseeded = expandSweep(parsed(input));
+    const reseeded = expandSweep(parsedSpec(input));
     expect(reseeded[0].scenario.seed).not.toBe(cells[0].scenario.seed);
     for (const cell of [...cells, ...reseeded]) {
       expect(Number.isInteger(cell.scenario.seed)).toBe(true);
@@ -157,7 +151,7 @@ describe("cell seeds", () => {
   });
 
   it("are the same whichever way a cell is reached (index order does not matter)", () => {
-    const spec = parsed(ballPitBoxSpec());
+    const spec = parsedSpec(ballPitBoxSpec());
     const axes = expandAxes(spec);
     const forward = expandSweep(spec).map((cell) => cell.scenario.seed);
     const backward = [2, 1, 0].map((index) => cellAt(spec, axes, index).scenario.seed).reverse();
@@ -173,7 +167,7 @@ describe("canonical form and hashes", () => {
   });
 
   it("gives equal scenario hashes for equal scenarios written in another key order", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const scenario = expandSweep(spec)[3].scenario;
     const reverseKeys = (value: unknown): unknown => {
       if (Array.isArray(value)) return value.map(reverseKeys);

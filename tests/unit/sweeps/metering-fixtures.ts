@@ -7,20 +7,14 @@ import { Worker } from "node:worker_threads";
 import { simulate } from "../../../lib/physics/index";
 import { expandSweep } from "../../../lib/sweeps/grid";
 import { billedMsOfUnits } from "../../../lib/sweeps/metering";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, crateDropSnapshotSpec, puckPairSpec } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { type SweepSpec } from "../../../lib/sweeps/spec";
+import { ballPitBoxSpec, crateDropSnapshotSpec, puckPairSpec, parsedSpec } from "./fixtures";
 
 /** A pair, a box and a snapshot sweep, by kind. */
 export const METERING_SPECS: [string, SweepSpec][] = [
-  ["pair", parsed(puckPairSpec())],
-  ["box", parsed(ballPitBoxSpec())],
-  ["snapshot", parsed(crateDropSnapshotSpec())],
+  ["pair", parsedSpec(puckPairSpec())],
+  ["box", parsedSpec(ballPitBoxSpec())],
+  ["snapshot", parsedSpec(crateDropSnapshotSpec())],
 ];
 
 /** The bill recomputed independently: every cell simulated in this thread, units summed, rounded up once. */

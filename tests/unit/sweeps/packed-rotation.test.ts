@@ -14,23 +14,17 @@ import { axisValuesAt, cellRange, expandAxes } from "../../../lib/sweeps/grid";
 import { PackedView, PackedWriter, ROTATION_METRICS_VERSION, mergePacked } from "../../../lib/sweeps/packed";
 import { METRIC_KEYS, ROTATION_METRIC_KEYS, STORED_METRIC_KEYS, pickMetrics, resultsToCsv, resultsToJson, sweepMeasuresRotation } from "../../../lib/sweeps/results";
 import { resultsHeader } from "../../../lib/sweeps/run";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
+import { type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
 import { findTemplate } from "../../../lib/sweeps/templates";
 import { layerData, mapCellIndices, metricLayersFor } from "../../../components/sweeps/sweep-map-data";
 import type { CellRow } from "../../../components/sweeps/sweep-api";
 import type { SweepAxisView } from "../../../lib/sweeps/sweep-view";
-import { puckPairSpec } from "./fixtures";
-
-function parsed(input: unknown): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { puckPairSpec, parsedSpec } from "./fixtures";
 
 function templateSpec(id: string): SweepSpec {
   const template = findTemplate(id);
   if (!template) throw new Error(`no template ${id}`);
-  return parsed(template.spec);
+  return parsedSpec(template.spec);
 }
 
 /** The ramp template cut to one friction value and one angle: μ 0.9 at 20° (held by friction: tan 20° = 0.364 < 0.9), k_t/k ∈ {2/7, 1, 3}. */
@@ -41,7 +35,7 @@ function rampAt20Degrees(): SweepSpec {
     { parameter: "scene.angleDeg", values: [20] },
     { parameter: "contact.friction.stiffnessRatio", values: [2 / 7, 1, 3] },
   ];
-  return parsed(input);
+  return parsedSpec(input);
 }
 
 describe("packed format 3", () => {
@@ -71,7 +65,7 @@ describe("packed format 3", () => {
 
   it("stores a rotation metric the engine gave as null (a pair that never ended its contact) as null, and one it did not return as null", () => {
     const writer = new PackedWriter(2);
-    const base = pickMetrics(simulate(parsed(puckPairSpec()).scenario as Scenario).metrics);
+    const base = pickMetrics(simulate(parsedSpec(puckPairSpec()).scenario as Scenario).metrics);
     writer.add(0, "stable", "no problem found", { ...base, angularMomentumDriftRel: -0, endSlipMPerS: null, reboundAngleDeg: Number.NaN, creepM: 1e-300 } as Metrics);
     const frictionless = { ...base } as Record<string, unknown>;
     for (const key of ROTATION_METRIC_KEYS) delete frictionless[key];
@@ -143,7 +137,7 @@ describe("packed runs stored before the rotation metrics (format version 2)", ()
 
 describe("which cells and sweeps carry the rotation metrics", () => {
   it("a scenario measures them exactly when its run returns them (friction, rolling resistance, the slope and stack scenes)", () => {
-    const pair = parsed(puckPairSpec()).scenario as Scenario;
+    const pair = parsedSpec(puckPairSpec()).scenario as Scenario;
     const ramp = rampAt20Degrees();
     const stack = templateSpec("stack-settle");
     const slopeWithoutFriction = cellRange(ramp, expandAxes(ramp), 0, 1)[0].scenario;
@@ -173,7 +167,7 @@ describe("which cells and sweeps carry the rotation metrics", () => {
     expect(columns.slice(-ROTATION_METRIC_KEYS.length)).toEqual([...ROTATION_METRIC_KEYS]);
     expect(Number(csv[3][columns.indexOf("creepM")])).toBe(rampCells[2].metrics.creepM);
 
-    const pucks = parsed(puckPairSpec());
+    const pucks = parsedSpec(puckPairSpec());
     const puckAxes = expandAxes(pucks);
     const puckCells = unpackResults(runChunkTask({ kind: "range", chunkIndex: 0, spec: pucks, firstCell: 0, cellCount: 15 }), (index) => axisValuesAt(puckAxes, index));
     expect(sweepMeasuresRotation(pucks, puckAxes)).toBe(false);
@@ -182,7 +176,7 @@ describe("which cells and sweeps carry the rotation metrics", () => {
   });
 
   it("a sweep measures them when a friction axis holds a positive value, and not when it holds only zero", () => {
-    const pucks = parsed(puckPairSpec());
+    const pucks = parsedSpec(puckPairSpec());
     const axis = (values: number[]) => [{ parameter: "contact.friction.coefficient", values }];
     expect(sweepMeasuresRotation(pucks, axis([0]))).toBe(false);
     expect(sweepMeasuresRotation(pucks, axis([0, 0.2]))).toBe(true);
@@ -205,7 +199,7 @@ describe("map layers of the rotation metrics", () => {
     const creep = layers.find((layer) => layer.key === "creepM");
     expect(creep).toMatchObject({ label: "creep (second half)", unit: "m", normalisation: "log" });
     expect(layers.find((layer) => layer.key === "endSlipMPerS")).toMatchObject({ unit: "m/s", normalisation: "symmetric" });
-    expect(metricLayersFor(parsed(puckPairSpec()), axisViews(parsed(puckPairSpec()))).some((layer) => layer.rotation)).toBe(false);
+    expect(metricLayersFor(parsedSpec(puckPairSpec()), axisViews(parsedSpec(puckPairSpec()))).some((layer) => layer.rotation)).toBe(false);
 
     const cells = unpackResults(runChunkTask({ kind: "range", chunkIndex: 0, spec: ramp, firstCell: 0, cellCount: 3 }), (index) => axisValuesAt(axes, index));
     const rows = new Map<number, CellRow>(cells.map((cell) => [cell.index, { index: cell.index, axisValues: cell.axisValues, metrics: cell.metrics, verdict: cell.verdict, reason: cell.reason }]));

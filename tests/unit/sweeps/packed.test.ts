@@ -11,14 +11,7 @@ import { runChunkTask, unpackResults } from "../../../lib/sweeps/chunk-task";
 import { axisValuesAt, cellRange, expandAxes } from "../../../lib/sweeps/grid";
 import { KEY_WORDS, PackedView, PackedWriter, mergePacked, verdictTally } from "../../../lib/sweeps/packed";
 import { pickMetrics } from "../../../lib/sweeps/results";
-import { parseSweepSpec, type SweepSpec } from "../../../lib/sweeps/spec";
-import { bumperWallSpec, puckPairSpec } from "./fixtures";
-
-function parsed(input: unknown): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { bumperWallSpec, puckPairSpec, parsedSpec } from "./fixtures";
 
 function keyOf(scenario: Scenario): number[] {
   const out = new Uint32Array(KEY_WORDS);
@@ -28,7 +21,7 @@ function keyOf(scenario: Scenario): number[] {
 
 describe("packed results", () => {
   it("round-trip the engine's results exactly, with keys, whatever the values (NaN, ±Infinity, −0, null, booleans)", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const axes = expandAxes(spec);
     const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, keys: true });
     const runs = cellRange(spec, axes, 0, 15).map((cell) => simulate(cell.scenario));
@@ -51,7 +44,7 @@ describe("packed results", () => {
   });
 
   it("merges two runs with disjoint cells in index order; skipped cells are the ones left out", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const axes = expandAxes(spec);
     const whole = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, keys: true });
     const skip = Int32Array.from([0, 3, 4, 9, 14]);
@@ -69,7 +62,7 @@ describe("packed results", () => {
   });
 
   it("a merge of a keyed run with one not keyed has no keys (a zero key is no key); keying it afterwards gives the keys of a keyed run", () => {
-    const spec = parsed(puckPairSpec());
+    const spec = parsedSpec(puckPairSpec());
     const keyed = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 0, cellCount: 15, skip: Int32Array.from([1, 2]), keys: true });
     const plain = runChunkTask({ kind: "range", chunkIndex: 0, spec, firstCell: 1, cellCount: 2 });
     const merged = new PackedView(mergePacked(new PackedView(keyed.packed), new PackedView(plain.packed)));
@@ -84,7 +77,7 @@ describe("packed results", () => {
   });
 
   it("refuses bytes that are not a packed run of the length they claim", () => {
-    const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec: parsed(bumperWallSpec()), firstCell: 0, cellCount: 3 });
+    const outcome = runChunkTask({ kind: "range", chunkIndex: 0, spec: parsedSpec(bumperWallSpec()), firstCell: 0, cellCount: 3 });
     expect(() => new PackedView(outcome.packed.subarray(0, outcome.packed.length - 1))).toThrow(/bytes where the header describes/);
     expect(() => new PackedView(new Uint8Array(64))).toThrow(/unknown format/);
   });
@@ -138,10 +131,10 @@ describe("packed runs stored before verdict rules 2 (format version 1)", () => {
 });
 
 describe("scenario keys", () => {
-  const base = parsed(bumperWallSpec()).scenario;
+  const base = parsedSpec(bumperWallSpec()).scenario;
 
   function firstCell(input: unknown): Scenario {
-    const spec = parsed(input);
+    const spec = parsedSpec(input);
     return cellRange(spec, expandAxes(spec), 0, 1)[0].scenario;
   }
 
@@ -228,7 +221,7 @@ describe("scenario keys", () => {
   });
 
   it("a key table finds every key it holds and no other (65,536 keys of a grid)", () => {
-    const spec = parsed({ ...puckPairSpec(), axes: [
+    const spec = parsedSpec({ ...puckPairSpec(), axes: [
       { parameter: "contact.stiffness", spacing: "log", from: 1e3, to: 1e7, count: 256 },
       { parameter: "scene.speedAMPerS", spacing: "log", from: 0.5, to: 20, count: 256 },
     ] });

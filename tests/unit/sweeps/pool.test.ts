@@ -13,14 +13,8 @@ import { closeChunkPool, createChunkPool, getChunkPool, type ChunkPool } from ".
 import { PackedView } from "../../../lib/sweeps/packed";
 import { pickMetrics, resultsToJson, type CellResult } from "../../../lib/sweeps/results";
 import { runSweep } from "../../../lib/sweeps/run";
-import { parseSweepSpec, type SweepSpec, type SweepSpecInput } from "../../../lib/sweeps/spec";
-import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft } from "./fixtures";
-
-function parsed(input: SweepSpecInput): SweepSpec {
-  const result = parseSweepSpec(input);
-  if (!result.ok) throw new Error(JSON.stringify(result.issues));
-  return result.spec;
-}
+import { type SweepSpec } from "../../../lib/sweeps/spec";
+import { ballPitBoxSpec, bumperWallSpec, clone, puckPairSpec, type Draft, parsedSpec } from "./fixtures";
 
 async function sweepJson(spec: SweepSpec, pool: ChunkPool, maxCellsPerChunk: number): Promise<{ json: string; chunks: number; computeMs: number[] }> {
   const collected: CellResult[] = [];
@@ -31,15 +25,15 @@ async function sweepJson(spec: SweepSpec, pool: ChunkPool, maxCellsPerChunk: num
 const pairSpec = (() => {
   const input = clone(puckPairSpec()) as Draft;
   input.axes.push({ parameter: "scene.offsetFraction", spacing: "linear", from: 0, to: 0.9, count: 4 });
-  return parsed(input); // 5 × 3 × 4 = 60 cells
+  return parsedSpec(input); // 5 × 3 × 4 = 60 cells
 })();
-const boxSpec = parsed(ballPitBoxSpec());
-const wallSpec = parsed(bumperWallSpec());
+const boxSpec = parsedSpec(ballPitBoxSpec());
+const wallSpec = parsedSpec(bumperWallSpec());
 /** The ball pit with friction (issue #15): per-contact tangential history across threads and chunkings. */
 const frictionBoxSpec = (() => {
   const input = clone(ballPitBoxSpec()) as Draft;
   (input.scenario.contact as Record<string, unknown>).friction = { coefficient: 0.5, stiffnessRatio: 2 / 7, dampingRatio: 0.2 };
-  return parsed(input);
+  return parsedSpec(input);
 })();
 
 describe("chunk pool (piscina, TypeScript entry under tsx)", { timeout: 120_000 }, () => {
