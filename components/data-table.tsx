@@ -37,6 +37,8 @@ export interface Column<Row> {
   headerClassName?: string;
   /** data-testid of this column's cells. */
   cellTestId?: string;
+  /** The cell names its row (a `<th scope="row">`), as the first column of a comparison does. */
+  rowHeader?: boolean;
   /** A header that sorts: the caller keeps the order; the header shows it and announces it (aria-sort). */
   sort?: { active: boolean; order: "asc" | "desc"; onSort: () => void };
 }
@@ -120,20 +122,25 @@ export function DataTable<Row>({
                 className={cx(stackOnPhone && "max-sm:flex max-sm:flex-wrap max-sm:items-center max-sm:gap-x-3 max-sm:py-2", props?.className) || undefined}
                 {...props?.data}
               >
-                {columns.map((column) => (
-                  <td
-                    key={column.key}
-                    className={cx(
-                      CELL,
-                      column.align === "right" && "text-right",
-                      column.numeric && "tabular-nums",
-                      typeof column.className === "function" ? column.className(row) : column.className,
-                    )}
-                    data-testid={column.cellTestId}
-                  >
-                    {column.cell(row)}
-                  </td>
-                ))}
+                {columns.map((column) => {
+                  const Cell = column.rowHeader ? "th" : "td";
+                  return (
+                    <Cell
+                      key={column.key}
+                      scope={column.rowHeader ? "row" : undefined}
+                      className={cx(
+                        CELL,
+                        column.rowHeader && "text-left font-normal",
+                        column.align === "right" && "text-right",
+                        column.numeric && "tabular-nums",
+                        typeof column.className === "function" ? column.className(row) : column.className,
+                      )}
+                      data-testid={column.cellTestId}
+                    >
+                      {column.cell(row)}
+                    </Cell>
+                  );
+                })}
               </tr>
               {detail && open ? (
                 <tr id={detail.id(row)}>

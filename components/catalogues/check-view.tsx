@@ -11,6 +11,7 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect, useMemo, useRef, useState } from "react";
 import { StabilityMap, VerdictSymbol } from "@/components/maps";
 import { Alert, Button, Card, LoadingRows, buttonClasses, cx } from "@/components/ui";
+import { DataTable, type Column } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { StatusBadge, progressPercent } from "@/components/sweeps/sweeps-list";
 import { isActive, sweepsPath, type CellRow, type Quote } from "@/components/sweeps/sweep-api";
@@ -258,6 +259,53 @@ function pairsCarryFriction(axes: readonly { pairs?: readonly { friction?: numbe
   return axes.some((axis) => axis.pairs?.some((pair) => pair.friction !== undefined || pair.rollingResistance !== undefined) ?? false);
 }
 
+type FrictionRow = FrictionCheck["contacts"][number];
+
+/** Whether a contact has a tangential spring at all (a positive friction coefficient). */
+function hasSpring(row: FrictionRow): boolean {
+  return row.frictionCoefficient !== null && row.frictionCoefficient > 0;
+}
+
+/** The per-contact table's columns; `phase` is the ω·h bound the tangential spring is held to. */
+function frictionColumns(phase: number): Column<FrictionRow>[] {
+  return [
+    { key: "contact", header: "Contact", rowHeader: true, cell: (row) => row.contact },
+    { key: "mu", header: "μ", numeric: true, cell: (row) => fmt(row.frictionCoefficient) },
+    { key: "muR", header: "μ_r", numeric: true, cell: (row) => fmt(row.rollingResistance) },
+    {
+      key: "omegaH",
+      header: `ω_t·h (≤ ${fmt(phase)})`,
+      numeric: true,
+      className: (row) => hasSpring(row) && !row.tangentialStable && "font-semibold",
+      cell: (row) => (hasSpring(row) ? `${fmt(row.tangentialOmegaH)} ${row.tangentialStable ? "within" : "past the bound"}` : "no spring"),
+    },
+    { key: "ratio", header: "largest k_t/k", numeric: true, cell: (row) => (hasSpring(row) ? fmt(row.largestStiffnessRatio) : "—") },
+    {
+      key: "resting",
+      header: "resting overlap (allowed)",
+      numeric: true,
+      className: (row) => !row.restingWithinTolerance && "font-semibold",
+      cell: (row) => `${formatSI(row.restingOverlapM, "m")} (${formatSI(row.allowedRestingOverlapM, "m")})${row.restingWithinTolerance ? "" : " sinks"}`,
+    },
+    {
+      key: "sliding",
+      header: "slides above (rolls without slip up to)",
+      numeric: true,
+      cell: (row) => (row.slidingAngleDeg === null ? "—" : `${fmt(row.slidingAngleDeg)}° (${fmt(row.rollingSlipAngleDeg)}°)`),
+    },
+    { key: "slope", header: "on your slope", numeric: true, cell: (row) => yesNo(row.holdsOnSlope, "holds", "slides") },
+    {
+      key: "topSpeed",
+      header: "from top speed: slides, then rolls",
+      numeric: true,
+      cell: (row) =>
+        row.slideTimeS === null
+          ? "—"
+          : `${formatSI(row.slideTimeS, "s")} over ${formatSI(row.slideDistanceM as number, "m")}, then ${fmt(row.rollingSpeedMPerS)} m/s${row.rollingDistanceM !== null ? ` for ${formatSI(row.rollingDistanceM, "m")}` : ""}`,
+    },
+  ];
+}
+
 /**
  * Friction, resting and sliding (catalogues whose objects give μ or μ_r): the tangential springs'
  * ω_t·h against the bound, the largest k_t/k and the substeps that keep every pair stable, each
@@ -265,8 +313,6 @@ function pairsCarryFriction(axes: readonly { pairs?: readonly { friction?: numbe
  */
 function FrictionPanel({ friction, margin, substepS, simulated }: { friction: FrictionCheck; margin: number; substepS: number; simulated: boolean }) {
   const phase = 2 * (1 - margin);
-  const th = "px-2 py-1 text-left font-semibold";
-  const td = "px-2 py-1 tabular-nums";
   return (
     <Card title="Friction, resting and sliding">
       <div className="space-y-3 text-sm" data-testid="friction-check">
@@ -286,51 +332,15 @@ function FrictionPanel({ friction, margin, substepS, simulated }: { friction: Fr
           {friction.largestStiffnessRatioContact ? ` (${friction.largestStiffnessRatioContact} decides)` : ""}. Substeps that keep every pair stable at k_t/k = {fmt(friction.stiffnessRatio)}
           {friction.stiffnessRatioGiven ? "" : " (the default, 2/7)"}: <strong data-testid="friction-substeps">{friction.substeps ?? "—"}</strong>.
         </p>
-        <div className="overflow-x-auto">
-          <table className="min-w-full text-xs" aria-label="Friction, resting and sliding per contact">
-            <thead>
-              <tr className="border-b border-line">
-                <th scope="col" className={th}>Contact</th>
-                <th scope="col" className={th}>μ</th>
-                <th scope="col" className={th}>μ_r</th>
-                <th scope="col" className={th}>ω_t·h (≤ {fmt(phase)})</th>
-                <th scope="col" className={th}>largest k_t/k</th>
-                <th scope="col" className={th}>resting overlap (allowed)</th>
-                <th scope="col" className={th}>slides above (rolls without slip up to)</th>
-                <th scope="col" className={th}>on your slope</th>
-                <th scope="col" className={th}>from top speed: slides, then rolls</th>
-              </tr>
-            </thead>
-            <tbody>
-              {friction.contacts.map((row) => {
-                const spring = row.frictionCoefficient !== null && row.frictionCoefficient > 0;
-                return (
-                  <tr key={row.contact} className="border-b border-line" data-testid="friction-row" data-contact={row.contact}>
-                    <th scope="row" className="px-2 py-1 text-left font-normal">
-                      {row.contact}
-                    </th>
-                    <td className={td}>{fmt(row.frictionCoefficient)}</td>
-                    <td className={td}>{fmt(row.rollingResistance)}</td>
-                    <td className={cx(td, spring && !row.tangentialStable ? "font-semibold" : "")}>
-                      {spring ? `${fmt(row.tangentialOmegaH)} ${row.tangentialStable ? "within" : "past the bound"}` : "no spring"}
-                    </td>
-                    <td className={td}>{spring ? fmt(row.largestStiffnessRatio) : "—"}</td>
-                    <td className={cx(td, row.restingWithinTolerance ? "" : "font-semibold")}>
-                      {formatSI(row.restingOverlapM, "m")} ({formatSI(row.allowedRestingOverlapM, "m")}){row.restingWithinTolerance ? "" : " sinks"}
-                    </td>
-                    <td className={td}>{row.slidingAngleDeg === null ? "—" : `${fmt(row.slidingAngleDeg)}° (${fmt(row.rollingSlipAngleDeg)}°)`}</td>
-                    <td className={td}>{yesNo(row.holdsOnSlope, "holds", "slides")}</td>
-                    <td className={td}>
-                      {row.slideTimeS === null
-                        ? "—"
-                        : `${formatSI(row.slideTimeS, "s")} over ${formatSI(row.slideDistanceM as number, "m")}, then ${fmt(row.rollingSpeedMPerS)} m/s${row.rollingDistanceM !== null ? ` for ${formatSI(row.rollingDistanceM, "m")}` : ""}`}
-                    </td>
-                  </tr>
-                );
-              })}
-            </tbody>
-          </table>
-        </div>
+        <DataTable
+          label="Friction, resting and sliding per contact"
+          size="xs"
+          scroll
+          rows={friction.contacts}
+          rowKey={(row) => row.contact}
+          rowProps={(row) => ({ testId: "friction-row", data: { "data-contact": row.contact } })}
+          columns={frictionColumns(phase)}
+        />
         <p className="text-xs text-ink-muted">
           Worked out in closed form at h = {formatSI(substepS, "s")}.{" "}
           {simulated

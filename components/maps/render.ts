@@ -238,6 +238,17 @@ function drawCells(ctx: CanvasRenderingContext2D, model: MapModel, geometry: Map
 /** Side of the tile (CSS px) of the pattern that stands in for glyphs on cells too small to hold one. */
 export const GLYPH_PATTERN_TILE_PX = 12;
 
+/** Paints the glyph path just traced in `ink`: filled glyphs are filled, line glyphs stroked with the context's current line width. */
+function paintGlyphPath(ctx: CanvasRenderingContext2D, glyph: GlyphName, ink: string): void {
+  if (glyphIsFilled(glyph)) {
+    ctx.fillStyle = ink;
+    ctx.fill();
+  } else {
+    ctx.strokeStyle = ink;
+    ctx.stroke();
+  }
+}
+
 /** A repeating tile with one glyph in the category's ink, anchored at the plot's corner. */
 function glyphPattern(ctx: CanvasRenderingContext2D, glyph: GlyphName, ink: string, dpr: number, origin: { left: number; top: number }): CanvasPattern | null {
   const size = Math.max(6, Math.round(GLYPH_PATTERN_TILE_PX * dpr));
@@ -251,13 +262,7 @@ function glyphPattern(ctx: CanvasRenderingContext2D, glyph: GlyphName, ink: stri
   t.lineWidth = Math.max(1, 1.4 * dpr);
   t.beginPath();
   traceGlyph(t, glyph, size / 2, size / 2, size * 0.4);
-  if (glyphIsFilled(glyph)) {
-    t.fillStyle = ink;
-    t.fill();
-  } else {
-    t.strokeStyle = ink;
-    t.stroke();
-  }
+  paintGlyphPath(t, glyph, ink);
   const pattern = ctx.createPattern(tile, "repeat");
   // The tile lives in device pixels; undo the context's DPR scale and start the tiling at the plot's corner.
   pattern?.setTransform(new DOMMatrix([1 / dpr, 0, 0, 1 / dpr, origin.left, origin.top]));
@@ -298,15 +303,8 @@ function drawGlyphs(ctx: CanvasRenderingContext2D, model: MapModel, geometry: Ma
     if (category.glyph === "none" || model.counts[code] === 0) return;
     ctx.beginPath();
     forEachGlyphCell(model, geometry, code, (cx, cy, halfSize) => traceGlyph(ctx, category.glyph, cx, cy, halfSize));
-    const ink = inkOn(category.colour);
     ctx.globalAlpha = 0.7;
-    if (glyphIsFilled(category.glyph)) {
-      ctx.fillStyle = ink;
-      ctx.fill();
-    } else {
-      ctx.strokeStyle = ink;
-      ctx.stroke();
-    }
+    paintGlyphPath(ctx, category.glyph, inkOn(category.colour));
     ctx.globalAlpha = 1;
   });
   ctx.restore();
@@ -485,14 +483,7 @@ export function drawLegend(ctx: CanvasRenderingContext2D, model: Pick<MapModel, 
       traceGlyph(ctx, category.glyph, rect.left + 9, y + 9, 6);
       ctx.lineWidth = 1.5;
       ctx.lineCap = "round";
-      const ink = inkOn(category.colour);
-      if (glyphIsFilled(category.glyph)) {
-        ctx.fillStyle = ink;
-        ctx.fill();
-      } else {
-        ctx.strokeStyle = ink;
-        ctx.stroke();
-      }
+      paintGlyphPath(ctx, category.glyph, inkOn(category.colour));
       ctx.fillStyle = chrome.ink;
       ctx.fillText(category.label, rect.left + 26, y + 9);
       ctx.fillStyle = chrome.inkMuted;

@@ -7,6 +7,7 @@ import Link from "next/link";
 import { useQuery } from "@tanstack/react-query";
 import { VerdictSymbol } from "@/components/maps";
 import { Alert, Card, LoadingRows } from "@/components/ui";
+import { DataTable, type Column } from "@/components/data-table";
 import { VERDICT_STYLES } from "@/lib/charts/categories";
 import type { Metrics, Verdict } from "@/lib/physics/types";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
@@ -65,6 +66,18 @@ export function comparisonRows(before: ComparedRun, after: ComparedRun): Compari
 
 const CHANGE_TEXT: Record<ComparisonRow["change"], string> = { better: "better", worse: "worse", same: "same", "": "" };
 
+const COMPARISON_COLUMNS: Column<ComparisonRow>[] = [
+  { key: "quantity", header: "Quantity", rowHeader: true, className: "text-ink-muted", cell: (row) => row.label },
+  { key: "before", header: "Original cell", className: "font-mono", cell: (row) => row.before },
+  { key: "after", header: "Re-run", className: "font-mono", cell: (row) => row.after },
+  {
+    key: "change",
+    header: "Change",
+    className: (row) => (row.change === "better" ? "font-semibold text-ok" : row.change === "worse" ? "font-semibold text-danger" : "text-ink-muted"),
+    cell: (row) => CHANGE_TEXT[row.change],
+  },
+];
+
 export function SingleRunPanel({ studioId, sweep, cells }: { studioId: string; sweep: Sweep; cells: readonly CellRow[] }) {
   const run = cells.find((cell) => cell.index === 0) ?? null;
   return (
@@ -118,41 +131,16 @@ function RerunComparison({ studioId, sweep, run }: { studioId: string; sweep: Sw
       ) : !run ? (
         <p className="text-sm text-ink-muted">The comparison appears when the re-run has finished.</p>
       ) : (
-        <table className="w-full text-sm" data-testid="rerun-comparison">
-          <thead>
-            <tr className="border-b border-line text-left text-xs uppercase text-ink-muted">
-              <th scope="col" className="py-1">
-                Quantity
-              </th>
-              <th scope="col" className="py-1">
-                Original cell
-              </th>
-              <th scope="col" className="py-1">
-                Re-run
-              </th>
-              <th scope="col" className="py-1">
-                Change
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {comparisonRows(
-              { dtS: parentCell.data.cell.scenario.dtS, substeps: parentCell.data.cell.scenario.substeps, verdict: parentCell.data.cell.verdict, metrics: parentCell.data.cell.metrics },
-              { dtS: sweep.spec.scenario.dtS, substeps: sweep.spec.scenario.substeps, verdict: run.verdict, metrics: run.metrics },
-            ).map((row) => (
-              <tr key={row.key} className="border-b border-line/60" data-row={row.key}>
-                <th scope="row" className="py-1 pr-3 text-left font-normal text-ink-muted">
-                  {row.label}
-                </th>
-                <td className="py-1 pr-3 font-mono">{row.before}</td>
-                <td className="py-1 pr-3 font-mono">{row.after}</td>
-                <td className={row.change === "better" ? "py-1 font-semibold text-ok" : row.change === "worse" ? "py-1 font-semibold text-danger" : "py-1 text-ink-muted"}>
-                  {CHANGE_TEXT[row.change]}
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+        <DataTable
+          testId="rerun-comparison"
+          rows={comparisonRows(
+            { dtS: parentCell.data.cell.scenario.dtS, substeps: parentCell.data.cell.scenario.substeps, verdict: parentCell.data.cell.verdict, metrics: parentCell.data.cell.metrics },
+            { dtS: sweep.spec.scenario.dtS, substeps: sweep.spec.scenario.substeps, verdict: run.verdict, metrics: run.metrics },
+          )}
+          rowKey={(row) => row.key}
+          rowProps={(row) => ({ data: { "data-row": row.key } })}
+          columns={COMPARISON_COLUMNS}
+        />
       )}
     </Card>
   );

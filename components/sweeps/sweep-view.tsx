@@ -9,6 +9,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, ButtonLink, Card, LoadingRows } from "@/components/ui";
+import { DataTable } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
 import { formatParameterValue, parameterUnitLabel } from "@/lib/ui/units";
@@ -172,7 +173,7 @@ function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { stud
 
 const selectClasses = "block w-full rounded-md border border-line bg-surface px-2 py-1.5 text-sm";
 
-/** One of the sweep's numeric axes, picked for a side of the map (label and unit shown). */
+/** One of the sweep's numeric axes, picked for a side of the map or the envelope (label and unit shown). */
 function AxisSelect({ id, label, axes, choices, value, onChange }: {
   id: string;
   label: string;
@@ -539,30 +540,8 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
         {otherAxes.length > 0 ? " Any other axis is held at the value chosen below." : ""}
       </p>
       <div className="grid gap-3 md:grid-cols-4">
-        <div className="space-y-1">
-          <label htmlFor="envelope-x" className="block text-sm font-medium">
-            For each
-          </label>
-          <select id="envelope-x" className={selectClasses} value={xAxis} onChange={(event) => setXAxis(Number(event.target.value))}>
-            {numericAxes.map((i) => (
-              <option key={i} value={i}>
-                {sweep.axes[i].label} [{parameterUnitLabel(sweep.axes[i].path, sweep.axes[i].unit)}]
-              </option>
-            ))}
-          </select>
-        </div>
-        <div className="space-y-1">
-          <label htmlFor="envelope-y" className="block text-sm font-medium">
-            Limit on
-          </label>
-          <select id="envelope-y" className={selectClasses} value={yAxis} onChange={(event) => setYAxis(Number(event.target.value))}>
-            {numericAxes.map((i) => (
-              <option key={i} value={i}>
-                {sweep.axes[i].label} [{parameterUnitLabel(sweep.axes[i].path, sweep.axes[i].unit)}]
-              </option>
-            ))}
-          </select>
-        </div>
+        <AxisSelect id="envelope-x" label="For each" axes={sweep.axes} choices={numericAxes} value={xAxis} onChange={setXAxis} />
+        <AxisSelect id="envelope-y" label="Limit on" axes={sweep.axes} choices={numericAxes} value={yAxis} onChange={setYAxis} />
         <div className="space-y-1">
           <label htmlFor="envelope-margin" className="block text-sm font-medium">
             Margin <span className="font-mono text-xs text-ink-muted">[%, 0–90]</span>
@@ -642,26 +621,27 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
             ]}
           />
           <div>
-            <table className="w-full text-sm" data-testid="envelope-table">
-              <thead>
-                <tr className="border-b border-line text-left text-xs uppercase text-ink-muted">
-                  <th scope="col" className="py-1">
-                    {xAxisView.label} [{parameterUnitLabel(xAxisView.path, xAxisView.unit)}]
-                  </th>
-                  <th scope="col" className="py-1">
-                    limit [{parameterUnitLabel(yAxisView.path, yAxisView.unit)}]
-                  </th>
-                </tr>
-              </thead>
-              <tbody className="font-mono text-xs">
-                {envelope.data.rows.map((row) => (
-                  <tr key={row.x}>
-                    <td className="py-0.5">{formatParameterValue(xAxisView.path, row.x, xAxisView.unit)}</td>
-                    <td className="py-0.5">{row.status === "pending" ? "pending (cells not computed yet)" : row.yLimit === null ? "none stable" : formatParameterValue(yAxisView.path, row.yLimit, yAxisView.unit)}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <DataTable
+              testId="envelope-table"
+              size="xs"
+              rows={envelope.data.rows}
+              rowKey={(row) => row.x}
+              columns={[
+                {
+                  key: "x",
+                  header: `${xAxisView.label} [${parameterUnitLabel(xAxisView.path, xAxisView.unit)}]`,
+                  className: "font-mono",
+                  cell: (row) => formatParameterValue(xAxisView.path, row.x, xAxisView.unit),
+                },
+                {
+                  key: "limit",
+                  header: `limit [${parameterUnitLabel(yAxisView.path, yAxisView.unit)}]`,
+                  className: "font-mono",
+                  cell: (row) =>
+                    row.status === "pending" ? "pending (cells not computed yet)" : row.yLimit === null ? "none stable" : formatParameterValue(yAxisView.path, row.yLimit, yAxisView.unit),
+                },
+              ]}
+            />
             <div className="mt-3 flex gap-2 text-sm">
               <a className="rounded-md border border-line px-3 py-1.5 font-medium hover:bg-surface-muted" href={`${base}?${query}&format=json`} download={`sweep-${sweep.id}-envelope.json`}>
                 Envelope (JSON)

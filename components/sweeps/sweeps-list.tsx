@@ -3,19 +3,60 @@
 import Link from "next/link";
 import { useQuery } from "@tanstack/react-query";
 import { useEffect, useState } from "react";
-import { Alert, ButtonLink, Card, EmptyState, LoadingRows, cx } from "@/components/ui";
+import { Alert, ButtonLink, Card, LoadingRows, cx } from "@/components/ui";
+import { DataTable, type Column } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
 import { formatDateTime } from "@/lib/ui/format";
 import type { StudioRole } from "@/lib/ui/types";
 import { SWEEP_STATUSES, formatMinutes, isActive, sweepKeys, sweepsPath, type Sweep, type SweepStatus } from "./sweep-api";
-import type { SweepsListPage } from "./sweep-list-row";
+import type { SweepListRow, SweepsListPage } from "./sweep-list-row";
 import { seededBy } from "@/lib/ui/queries";
 
 const PAGE_SIZE = 20;
 
-const th = "px-3 py-2 text-left text-xs font-semibold uppercase tracking-wider text-ink-muted";
-const td = "px-3 py-2.5 align-middle";
+/** The list's columns; the name links to the sweep's page in this studio. */
+function sweepColumns(studioId: string): Column<SweepListRow>[] {
+  return [
+    {
+      key: "name",
+      header: "Sweep",
+      className: "font-medium",
+      cell: (sweep) => (
+        <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="text-action hover:underline">
+          {sweep.name || `Sweep ${sweep.id.slice(0, 8)}`}
+        </Link>
+      ),
+    },
+    {
+      key: "status",
+      header: "Status",
+      cell: (sweep) => (
+        <>
+          <StatusBadge status={sweep.status} />
+          {sweep.reason ? <p className="mt-1 max-w-xs text-xs text-ink-muted">{sweep.reason}</p> : null}
+        </>
+      ),
+    },
+    {
+      key: "progress",
+      header: "Progress [cells]",
+      cell: (sweep) => (
+        <div className="flex items-center gap-2">
+          <div className="h-2 w-24 overflow-hidden rounded bg-surface-muted" aria-hidden="true">
+            <div className="h-full bg-action" style={{ width: `${progressPercent(sweep)}%` }} />
+          </div>
+          <span className="font-mono text-xs">
+            {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")}
+          </span>
+        </div>
+      ),
+    },
+    { key: "compute", header: "Compute used [min]", className: "font-mono text-xs", cell: (sweep) => formatMinutes(sweep.computeMs) },
+    { key: "creator", header: "Created by", className: "text-xs", cellTestId: "sweep-creator", cell: (sweep) => sweep.createdBy?.name ?? "—" },
+    { key: "created", header: "Created", className: "font-mono text-xs", cell: (sweep) => formatDateTime(sweep.createdAt) },
+  ];
+}
 
 export function StatusBadge({ status }: { status: SweepStatus }) {
   const tones: Record<SweepStatus, string> = {
@@ -148,50 +189,16 @@ export function SweepsList({
           <LoadingRows label="sweeps" />
         ) : list.isError ? (
           <Alert>{errorMessage(list.error)}</Alert>
-        ) : list.data.sweeps.length === 0 ? (
-          <EmptyState>{filtered ? "No sweeps match these filters." : canRun ? "No sweeps yet. Start one from a template with “New sweep”." : "No sweeps yet."}</EmptyState>
         ) : (
-          <div className="overflow-x-auto">
-            <table className="w-full text-sm" data-testid="sweeps-table">
-              <thead className="border-b border-line">
-                <tr>
-                  <th scope="col" className={th}>Sweep</th>
-                  <th scope="col" className={th}>Status</th>
-                  <th scope="col" className={th}>Progress [cells]</th>
-                  <th scope="col" className={th}>Compute used [min]</th>
-                  <th scope="col" className={th}>Created by</th>
-                  <th scope="col" className={th}>Created</th>
-                </tr>
-              </thead>
-              <tbody className="divide-y divide-line">
-                {list.data.sweeps.map((sweep) => (
-                  <tr key={sweep.id} data-testid={`sweep-row-${sweep.id}`}>
-                    <td className={`${td} font-medium`}>
-                      <Link href={`/studios/${studioId}/sweeps/${sweep.id}`} className="text-action hover:underline">
-                        {sweep.name || `Sweep ${sweep.id.slice(0, 8)}`}
-                      </Link>
-                    </td>
-                    <td className={td}>
-                      <StatusBadge status={sweep.status} />
-                      {sweep.reason ? <p className="mt-1 max-w-xs text-xs text-ink-muted">{sweep.reason}</p> : null}
-                    </td>
-                    <td className={td}>
-                      <div className="flex items-center gap-2">
-                        <div className="h-2 w-24 overflow-hidden rounded bg-surface-muted" aria-hidden="true">
-                          <div className="h-full bg-action" style={{ width: `${progressPercent(sweep)}%` }} />
-                        </div>
-                        <span className="font-mono text-xs">
-                          {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")}
-                        </span>
-                      </div>
-                    </td>
-                    <td className={`${td} font-mono text-xs`}>{formatMinutes(sweep.computeMs)}</td>
-                    <td className={`${td} text-xs`} data-testid="sweep-creator">{sweep.createdBy?.name ?? "—"}</td>
-                    <td className={`${td} font-mono text-xs`}>{formatDateTime(sweep.createdAt)}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+          <DataTable
+            testId="sweeps-table"
+            scroll
+            empty={filtered ? "No sweeps match these filters." : canRun ? "No sweeps yet. Start one from a template with “New sweep”." : "No sweeps yet."}
+            rows={list.data.sweeps}
+            rowKey={(sweep) => sweep.id}
+            rowProps={(sweep) => ({ testId: `sweep-row-${sweep.id}` })}
+            columns={sweepColumns(studioId)}
+            footer={
             <nav aria-label="Pages of sweeps" className="mt-4 flex items-center justify-between text-sm">
               <span className="text-ink-muted">
                 Page {list.data.page} of {pages} · {list.data.total.toLocaleString("en")} sweeps
@@ -205,7 +212,8 @@ export function SweepsList({
                 </button>
               </span>
             </nav>
-          </div>
+            }
+          />
         )}
       </Card>
     </StudioShell>

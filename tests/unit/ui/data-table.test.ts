@@ -42,6 +42,15 @@ describe("DataTable", () => {
     expect(out).toContain('<span class="sr-only">Actions</span>');
   });
 
+  it("draws a row-header column as a header cell scoped to its row, the other cells as data cells", () => {
+    const out = html({ columns: [{ ...COLUMNS[0], rowHeader: true }, COLUMNS[1]] });
+    // Two column headers plus one row header per row; the figures stay data cells.
+    expect(out.match(/<th scope="col"/g)).toHaveLength(2);
+    expect(out).toMatch(/<th scope="row" class="[^"]*">Rink puck<\/th>/);
+    expect(out).toMatch(/<th scope="row" class="[^"]*">Crate stack<\/th>/);
+    expect(out.match(/<td/g)).toHaveLength(2);
+  });
+
   it("announces the sorted column and its direction, and marks the others as sortable but not sorted", () => {
     const sortable = (active: boolean): Column<Row> => ({ ...COLUMNS[1], sort: { active, order: "asc", onSort: () => {} } });
     const out = html({ columns: [{ ...COLUMNS[0], sort: { active: false, order: "desc", onSort: () => {} } }, sortable(true)] });
