@@ -22,6 +22,9 @@ test("every form control on the public pages has a label, and keyboard focus is 
   }
 
   await page.goto("/signin");
+  // The header's sign-in links appear once the session check has answered; wait for them, or they
+  // can land between the focusable elements mid-keystroke and take the Tab meant for the e-mail field.
+  await expect(page.getByRole("banner").getByRole("link", { name: "Create account" })).toBeVisible();
   const email = page.getByLabel("E-mail", { exact: true });
   await email.focus();
   await page.keyboard.press("Shift+Tab");
