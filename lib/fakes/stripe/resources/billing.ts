@@ -1,5 +1,5 @@
 import { cardOutcome, storedCardOutcome, type CardOutcome } from "../cards";
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { cardDeclined, invalidParam, invalidRequest } from "../errors";
 import { decimalToNumber, lineAmountCents, sumDecimal } from "../money";
 import { applyMetadata, type Params } from "../params";
@@ -84,8 +84,8 @@ export function setMeterActive(ctx: Ctx, params: Params, id: string, active: boo
 
 export function listMeters(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "status"]);
-  const status = params.string("status", { oneOf: ["active", "inactive"] });
-  const items = ctx.store.newestFirst("meters").filter((m) => status === undefined || m.status === status);
+  const matches = fieldsEqual({ status: params.string("status", { oneOf: ["active", "inactive"] }) });
+  const items = ctx.store.newestFirst("meters").filter(matches);
   return { body: paginate(items, params, "/v1/billing/meters", "billing.meter") };
 }
 
@@ -430,16 +430,15 @@ export function listSubscriptions(ctx: Ctx, params: Params): HandlerResult {
   const customer = params.string("customer");
   const price = params.string("price");
   const status = params.string("status", { oneOf: ["active", "past_due", "unpaid", "canceled", "incomplete", "incomplete_expired", "trialing", "paused", "all", "ended"] });
-  const collectionMethod = params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] });
+  const matches = fieldsEqual({ customer, collection_method: params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] }) });
   const created = createdFilter(params);
   const items = ctx.store.newestFirst("subscriptions").filter((s) => {
     // Stripe's default list leaves out canceled subscriptions.
     const statusOk = status === "all" ? true : status === "ended" ? s.status === "canceled" : status === undefined ? s.status !== "canceled" : s.status === status;
     return (
       statusOk &&
-      (customer === undefined || s.customer === customer) &&
+      matches(s) &&
       (price === undefined || subscriptionItems(s).some((it) => (it.price as StripeObject).id === price)) &&
-      (collectionMethod === undefined || s.collection_method === collectionMethod) &&
       created(s)
     );
   });
@@ -768,17 +767,15 @@ export function listInvoices(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "subscription", "status", "created", "collection_method", "due_date"]);
   const customer = params.string("customer");
   const subscription = params.string("subscription");
-  const status = params.string("status", { oneOf: ["draft", "open", "paid", "uncollectible", "void"] });
-  const collectionMethod = params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] });
+  const matches = fieldsEqual({
+    customer,
+    status: params.string("status", { oneOf: ["draft", "open", "paid", "uncollectible", "void"] }),
+    collection_method: params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] }),
+  });
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("invoices").filter(
-    (inv) =>
-      (customer === undefined || inv.customer === customer) &&
-      (subscription === undefined || (inv.parent as { subscription_details?: { subscription: string } } | null)?.subscription_details?.subscription === subscription) &&
-      (status === undefined || inv.status === status) &&
-      (collectionMethod === undefined || inv.collection_method === collectionMethod) &&
-      created(inv),
-  );
+  const items = ctx.store
+    .newestFirst("invoices")
+    .filter((inv) => matches(inv) && (subscription === undefined || (inv.parent as { subscription_details?: { subscription: string } } | null)?.subscription_details?.subscription === subscription) && created(inv));
   return { body: paginate(items, params, "/v1/invoices", "invoice") };
 }
 
@@ -1010,13 +1007,10 @@ export function retrieveInvoiceItem(ctx: Ctx, params: Params, id: string): Handl
 
 export function listInvoiceItems(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "invoice", "pending", "created"]);
-  const customer = params.string("customer");
-  const invoice = params.string("invoice");
+  const matches = fieldsEqual({ customer: params.string("customer"), invoice: params.string("invoice") });
   const pending = params.boolean("pending");
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("invoiceitems").filter(
-    (ii) => (customer === undefined || ii.customer === customer) && (invoice === undefined || ii.invoice === invoice) && (pending === undefined || (ii.invoice === null) === pending) && created({ ...ii, created: ii.date }),
-  );
+  const items = ctx.store.newestFirst("invoiceitems").filter((ii) => matches(ii) && (pending === undefined || (ii.invoice === null) === pending) && created({ ...ii, created: ii.date }));
   return { body: paginate(items, params, "/v1/invoiceitems", "invoiceitem") };
 }
 

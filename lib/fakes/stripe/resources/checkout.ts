@@ -1,5 +1,5 @@
 import { cardOutcome, DISPUTED_CARDS, normalizeCardNumber, type CardOutcome } from "../cards";
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { lineAmountCents } from "../money";
 import { applyMetadata, type Params } from "../params";
@@ -293,20 +293,12 @@ export function retrieveSession(ctx: Ctx, params: Params, id: string): HandlerRe
 
 export function listSessions(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "payment_intent", "status", "created", "customer_details"]);
-  const customer = params.string("customer");
-  const paymentIntent = params.string("payment_intent");
-  const status = params.string("status", { oneOf: ["open", "complete", "expired"] });
+  const matches = fieldsEqual({ customer: params.string("customer"), payment_intent: params.string("payment_intent"), status: params.string("status", { oneOf: ["open", "complete", "expired"] }) });
   const created = createdFilter(params);
   const items = ctx.store
     .newestFirst("checkout_sessions")
     .map((s) => refreshExpiry(ctx, s))
-    .filter(
-      (s) =>
-        (customer === undefined || s.customer === customer) &&
-        (paymentIntent === undefined || s.payment_intent === paymentIntent) &&
-        (status === undefined || s.status === status) &&
-        created(s),
-    );
+    .filter((s) => matches(s) && created(s));
   return { body: paginate(items, params, "/v1/checkout/sessions", "checkout.session") };
 }
 
