@@ -64,7 +64,8 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   const map = page.getByRole("application").first();
   await expect(map).toHaveAttribute("data-plot", /.+/);
   // The map's frame-step axis reads in Hz: hover the top-right cell (stiffest contact, 30 Hz).
-  const tooltip = await hoverMap(page, map, 0.99, 0.02);
+  await hoverMap(page, map, 0.99, 0.02);
+  const tooltip = page.getByRole("tooltip");
   await expect(tooltip).toContainText("frame step dt: 30 Hz (1/30 s · 33.33 ms)");
   await expect(tooltip).toContainText("Exploded");
 

@@ -118,14 +118,15 @@ export async function plotPoint(map: Locator, fx: number, fy: number): Promise<{
   return { x: left + width * fx, y: top + height * fy };
 }
 
-/** Points the mouse at a point of the map's plot (fractions as in plotPoint) and answers the page's tooltip. */
-export async function hoverMap(page: Page, map: Locator, fx: number, fy: number): Promise<Locator> {
+/** Points the mouse at a point of the map's plot (fractions as in plotPoint); answers that point in viewport coordinates. */
+export async function hoverMap(page: Page, map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
   // The mouse moves in viewport coordinates: bring the map into view first.
   await map.scrollIntoViewIfNeeded();
   const box = (await map.boundingBox())!;
   const point = await plotPoint(map, fx, fy);
-  await page.mouse.move(box.x + point.x, box.y + point.y);
-  return page.getByRole("tooltip");
+  const at = { x: box.x + point.x, y: box.y + point.y };
+  await page.mouse.move(at.x, at.y);
+  return at;
 }
 
 /**
