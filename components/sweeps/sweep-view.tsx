@@ -5,7 +5,7 @@
  */
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
-import { useEffect, useMemo, useRef, useState } from "react";
+import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
 import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, ButtonLink, Card, LoadingRows, SelectField, TextField } from "@/components/ui";
@@ -103,61 +103,31 @@ function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { stud
         <div className="h-full bg-action transition-[width]" style={{ width: `${percent}%` }} />
       </div>
       <dl className="mt-3 grid grid-cols-2 gap-x-6 gap-y-1 text-sm md:grid-cols-4">
-        <div>
-          <dt className="text-ink-muted">Cells done</dt>
-          <dd className="font-mono" data-testid="sweep-cells-done">
-            {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} ({percent}%)
-          </dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Elapsed</dt>
-          <dd className="font-mono">{startedMs !== null ? formatDuration(elapsedMs) : "not started"}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Estimated time left</dt>
-          <dd className="font-mono">{active ? formatDuration(leftMs) : "—"}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">{active ? "Billed so far" : "Billed"}</dt>
-          <dd className="font-mono" data-testid="sweep-billed">
-            {formatCompute(sweep.computeMs)} · {sweep.computeMs.toLocaleString("en")} ms
-          </dd>
-        </div>
+        <Fact label="Cells done" testId="sweep-cells-done">
+          {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} ({percent}%)
+        </Fact>
+        <Fact label="Elapsed">{startedMs !== null ? formatDuration(elapsedMs) : "not started"}</Fact>
+        <Fact label="Estimated time left">{active ? formatDuration(leftMs) : "—"}</Fact>
+        <Fact label={active ? "Billed so far" : "Billed"} testId="sweep-billed">
+          {computeFigure(sweep.computeMs)}
+        </Fact>
         {sweep.metering !== "wall-clock" ? (
           <>
-            <div>
-              <dt className="text-ink-muted">Quoted ceiling</dt>
-              <dd className="font-mono" data-testid="sweep-ceiling">
-                {formatCompute(sweep.ceilingMs)} · {sweep.ceilingMs.toLocaleString("en")} ms
-              </dd>
-            </div>
-            <div>
-              <dt className="text-ink-muted">Quoted expected</dt>
-              <dd className="font-mono" data-testid="sweep-expected">
-                {formatCompute(sweep.estimatedComputeMs)} · {sweep.estimatedComputeMs.toLocaleString("en")} ms
-              </dd>
-            </div>
+            <Fact label="Quoted ceiling" testId="sweep-ceiling">
+              {computeFigure(sweep.ceilingMs)}
+            </Fact>
+            <Fact label="Quoted expected" testId="sweep-expected">
+              {computeFigure(sweep.estimatedComputeMs)}
+            </Fact>
           </>
         ) : (
-          <div>
-            <dt className="text-ink-muted">Metering</dt>
-            <dd className="font-mono">worker wall time (submitted before work units; estimate {formatCompute(sweep.estimatedComputeMs)})</dd>
-          </div>
+          <Fact label="Metering">worker wall time (submitted before work units; estimate {formatCompute(sweep.estimatedComputeMs)})</Fact>
         )}
-        <div>
-          <dt className="text-ink-muted">Created</dt>
-          <dd className="font-mono">{formatDateTime(sweep.createdAt)}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Chunks done</dt>
-          <dd className="font-mono">
-            {sweep.chunksDone} / {sweep.chunks}
-          </dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Cached cells</dt>
-          <dd className="font-mono">{sweep.cachedCells.toLocaleString("en")}</dd>
-        </div>
+        <Fact label="Created">{formatDateTime(sweep.createdAt)}</Fact>
+        <Fact label="Chunks done">
+          {sweep.chunksDone} / {sweep.chunks}
+        </Fact>
+        <Fact label="Cached cells">{sweep.cachedCells.toLocaleString("en")}</Fact>
       </dl>
       <ul className="mt-4 flex flex-wrap gap-2 text-sm" aria-label="Verdict counts" data-testid="verdict-counts">
         {VERDICTS_BY_SEVERITY.map((verdict) => (
@@ -169,6 +139,23 @@ function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { stud
       </ul>
     </Card>
   );
+}
+
+/** One figure of the progress card: its name, then its value in the mono face. */
+function Fact({ label, testId, children }: { label: string; testId?: string; children: ReactNode }) {
+  return (
+    <div>
+      <dt className="text-ink-muted">{label}</dt>
+      <dd className="font-mono" data-testid={testId}>
+        {children}
+      </dd>
+    </div>
+  );
+}
+
+/** Compute as people read it (formatCompute), then in exact milliseconds. */
+function computeFigure(ms: number): string {
+  return `${formatCompute(ms)} · ${ms.toLocaleString("en")} ms`;
 }
 
 const selectClasses = "block w-full rounded-md border border-line bg-surface px-2 py-1.5 text-sm";

@@ -599,32 +599,21 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
     const product = ctx.store.get("products", price.product as string);
     const productName = (product?.name as string | undefined) ?? "usage";
     const isWhole = /^\d+$/.test(quantity);
-    return {
-      id: newId("il", 24),
-      object: "line_item",
+    return invoiceLine(invoice.id, {
       amount,
       currency: price.currency,
       description: `${quantity} × ${productName} (at ${price.unit_amount_decimal} ${String(price.currency).toUpperCase()} cents / unit)`,
-      discount_amounts: [],
-      discountable: true,
-      discounts: [],
-      invoice: invoice.id,
-      livemode: false,
-      metadata: {},
       parent: {
         invoice_item_details: null,
         subscription_item_details: { invoice_item: null, proration: false, proration_details: { credited_items: null }, subscription: sub.id, subscription_item: item.id },
         type: "subscription_item_details",
       },
       period: { end: periodEnd, start: periodStart },
-      pretax_credit_amounts: [],
       pricing: { price_details: { price: price.id, product: price.product }, type: "price_details", unit_amount_decimal: price.unit_amount_decimal },
       quantity: isWhole ? Number(quantity) : null,
       quantity_decimal: quantity,
       subscription: sub.id,
-      subtotal: amount,
-      taxes: [],
-    } satisfies StripeObject;
+    });
   });
   // Pending invoice items of this subscription (or of the customer with none named) each become their own line.
   for (const pending of ctx.store.newestFirst("invoiceitems").reverse()) {
@@ -1018,17 +1007,11 @@ export function listInvoiceItems(ctx: Ctx, params: Params): HandlerResult {
 function invoiceItemLine(item: StripeObject, invoiceId: string): StripeObject {
   const unit = (item.pricing as { unit_amount_decimal: string } | null)?.unit_amount_decimal ?? null;
   const sub = (item.parent as { subscription_details: { subscription: string } } | null)?.subscription_details?.subscription ?? null;
-  return {
-    id: newId("il", 24),
-    object: "line_item",
-    amount: item.amount,
+  return invoiceLine(invoiceId, {
+    amount: item.amount as number,
     currency: item.currency,
     description: item.description,
-    discount_amounts: [],
     discountable: item.discountable,
-    discounts: [],
-    invoice: invoiceId,
-    livemode: false,
     metadata: clone(item.metadata),
     parent: {
       invoice_item_details: { invoice_item: item.id, proration: false, proration_details: { credited_items: null }, subscription: sub },
@@ -1036,12 +1019,42 @@ function invoiceItemLine(item: StripeObject, invoiceId: string): StripeObject {
       type: "invoice_item_details",
     },
     period: clone(item.period),
-    pretax_credit_amounts: [],
     pricing: { price_details: null, type: null, unit_amount_decimal: unit },
     quantity: item.quantity,
     quantity_decimal: String(item.quantity),
     subscription: sub,
-    subtotal: item.amount,
+  });
+}
+
+/**
+ * An invoice line (Stripe's `line_item`): the caller gives what sets this line apart; the rest —
+ * no discounts, no taxes, the subtotal equal to the amount — is the same for every line the fake writes.
+ */
+export function invoiceLine(
+  invoiceId: string,
+  line: { amount: number; currency: unknown; description: unknown; discountable?: unknown; metadata?: unknown; parent: unknown; period: unknown; pricing: unknown; quantity: unknown; quantity_decimal: string; subscription?: unknown },
+): StripeObject {
+  return {
+    id: newId("il", 24),
+    object: "line_item",
+    amount: line.amount,
+    currency: line.currency,
+    description: line.description,
+    discount_amounts: [],
+    discountable: line.discountable ?? true,
+    discounts: [],
+    invoice: invoiceId,
+    livemode: false,
+    metadata: line.metadata ?? {},
+    parent: line.parent,
+    period: line.period,
+    pretax_credit_amounts: [],
+    pricing: line.pricing,
+    quantity: line.quantity,
+    quantity_decimal: line.quantity_decimal,
+    // Lines of a checkout's invoice carry no subscription key at all.
+    ...("subscription" in line ? { subscription: line.subscription } : {}),
+    subtotal: line.amount,
     taxes: [],
   };
 }
