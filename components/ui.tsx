@@ -43,6 +43,7 @@ export function ButtonLink({ href, variant = "primary", children, className }: {
 
 const inputClasses =
   "block w-full rounded-md border border-line bg-surface px-3 py-2 text-sm text-ink placeholder:text-ink-muted/70 aria-[invalid=true]:border-danger";
+const compactInputClasses = "rounded-md border border-line bg-surface px-2 py-1.5 text-sm";
 
 /** What every labelled field shares: its id, label, unit, hint and error. */
 interface FieldProps {
@@ -53,6 +54,8 @@ interface FieldProps {
   hint?: ReactNode;
   hintTestId?: string;
   error?: string;
+  /** The small form of a toolbar (a list's filters): a muted small label and a tighter control. */
+  compact?: boolean;
 }
 
 /** The hint and error ids a control is described by (aria-describedby). */
@@ -61,10 +64,10 @@ function describedBy({ id, hint, error }: Pick<FieldProps, "id" | "hint" | "erro
 }
 
 /** A field's label above its control, its hint and its error below, tied to it through aria-describedby. */
-function Field({ id, label, unit, hint, hintTestId, error, children }: FieldProps & { children: ReactNode }) {
+function Field({ id, label, unit, hint, hintTestId, error, compact, children }: FieldProps & { children: ReactNode }) {
   return (
     <div className="space-y-1">
-      <label htmlFor={id} className="block text-sm font-medium text-ink">
+      <label htmlFor={id} className={compact ? "block text-xs font-medium text-ink-muted" : "block text-sm font-medium text-ink"}>
         {label}
         {unit !== undefined ? (
           <>
@@ -95,10 +98,10 @@ export function FieldError({ id, message }: { id: string; message?: string }) {
 }
 
 /** A field's props split into the frame's (label, unit, hint, error) and the control's, which gets the id, the error state and what describes it. */
-function splitField<Control>({ id, label, unit, hint, hintTestId, error, ...control }: FieldProps & Control) {
+function splitField<Control>({ id, label, unit, hint, hintTestId, error, compact, ...control }: FieldProps & Control) {
   return {
-    field: { id, label, unit, hint, hintTestId, error },
-    control: { id, "aria-invalid": error ? true : undefined, "aria-describedby": describedBy({ id, hint, error }), className: inputClasses, ...control },
+    field: { id, label, unit, hint, hintTestId, error, compact },
+    control: { id, "aria-invalid": error ? true : undefined, "aria-describedby": describedBy({ id, hint, error }), className: compact ? compactInputClasses : inputClasses, ...control },
   };
 }
 

@@ -9,8 +9,8 @@ import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useQueryClient } from "@tanstack/react-query";
 import { useMemo } from "react";
-import { Alert, Card, TextField } from "@/components/ui";
-import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
+import { Alert } from "@/components/ui";
+import { FileProblems, UploadCard, useUploadCard } from "@/components/uploads/file-upload";
 import { UploadsPage, type UploadsListKind } from "@/components/uploads/uploads-page";
 import {
   CATALOGUE_COLUMNS,
@@ -84,13 +84,14 @@ export function CataloguesPage({ studioId, studioName, role, initialCatalogues }
       { key: "file", header: "File", cell: (catalogue) => catalogue.fileName, className: "font-mono text-xs" },
     ],
   };
-  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialCatalogues} upload={<UploadCard studioId={studioId} />} />;
+  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialCatalogues} upload={<CatalogueUpload studioId={studioId} />} />;
 }
 
-function UploadCard({ studioId }: { studioId: string }) {
+function CatalogueUpload({ studioId }: { studioId: string }) {
   const router = useRouter();
   const queryClient = useQueryClient();
-  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, discard, failed } = useUploadCard<Loaded>();
+  const card = useUploadCard<Loaded>();
+  const { loaded, setLoaded, name, setName, saving, setServerError } = card;
 
   const checked = useMemo(() => (loaded && loaded.readable ? validateTable(loaded.table, loaded.firstRow) : null), [loaded]);
   const edited = loaded !== null && JSON.stringify(loaded.table) !== loaded.original;
@@ -114,11 +115,8 @@ function UploadCard({ studioId }: { studioId: string }) {
     });
   }
 
-  async function save() {
-    if (!loaded) return;
-    setSaving(true);
-    setServerError(null);
-    try {
+  const save = () =>
+    card.save(async (loaded) => {
       // An untouched valid file is saved byte for byte; a table fixed here is saved as the CSV it now is.
       const fileName = edited ? loaded.fileName.replace(/\.[^.]*$/, "") + ".csv" : loaded.fileName;
       const uploaded = new Blob([loaded.bytes as BlobPart], { type: loaded.format === "json" ? "application/json" : "text/csv" });
@@ -127,16 +125,21 @@ function UploadCard({ studioId }: { studioId: string }) {
       const result = await uploadCatalogue<{ catalogue: CatalogueDetail }>(studioId, blob, fileName, name, edited ? { file: uploaded, fileName: loaded.fileName } : undefined);
       await queryClient.invalidateQueries({ queryKey: catalogueKeys.list(studioId) });
       router.push(`/studios/${studioId}/catalogues/${result.catalogue.id}`);
-    } catch (error) {
-      failed(error);
-      setSaving(false);
-    }
-  }
+      return "leaving";
+    });
 
   return (
-    <Card title="Upload a catalogue">
-      <div className="space-y-4">
-        <p className="text-sm text-ink-muted">
+    <UploadCard
+      card={card}
+      kind={{
+        noun: "catalogue",
+        sample: { href: `data:text/csv;charset=utf-8,${encodeURIComponent(CRATESLIDE_CATALOGUE_CSV)}`, fileName: "sample-catalogue-crateslide.csv", format: "CSV" },
+        dropLabel: "Drop a file here, or choose one",
+        accept: ".csv,.json,text/csv,application/json",
+        maxNameLength: CATALOGUE_LIMITS.maxCatalogueNameLength,
+      }}
+      intro={
+        <>
           One row per object type, as CSV (comma, semicolon or tab separated, UTF-8) or JSON, with the columns{" "}
           {CATALOGUE_COLUMNS.map((column, i) => (
             <span key={column}>
@@ -144,88 +147,78 @@ function UploadCard({ studioId }: { studioId: string }) {
               {i < CATALOGUE_COLUMNS.length - 1 ? ", " : ""}
             </span>
           ))}
-          . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.{" "}
-          <a className="font-medium text-action hover:underline" href={`data:text/csv;charset=utf-8,${encodeURIComponent(CRATESLIDE_CATALOGUE_CSV)}`} download="sample-catalogue-crateslide.csv" data-testid="sample-catalogue">
-            Download a sample catalogue (CSV)
-          </a>
-        </p>
-        <FileDropZone
-          label="Drop a file here, or choose one"
-          accept=".csv,.json,text/csv,application/json"
-          inputRef={inputRef}
-          onFile={(file) => void take(file)}
-          testId="catalogue-drop-zone"
-          inputTestId="catalogue-file"
-        />
-        {loaded ? (
-          <div className="space-y-4">
-            <TextField id="catalogue-name" label="Catalogue name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={CATALOGUE_LIMITS.maxCatalogueNameLength} />
-            {problems.length > 0 ? (
-              <FileProblems
-                problems={problems}
-                fileName={loaded.fileName}
-                fixWhere={`${loaded.readable ? "in the table below" : "in the file"} before saving`}
-                testId="catalogue-problems"
-                itemTestId="catalogue-problem"
-                renderProblem={describeProblem}
-              />
-            ) : loaded.readable ? (
-              <Alert tone="ok">
-                {loaded.table.length} objects, every row valid{edited ? " (fixed here; saved as CSV)" : ""}.
-              </Alert>
-            ) : null}
-            {loaded.notes.length > 0 ? (
-              <ul className="space-y-1 text-sm text-ink-muted" data-testid="catalogue-notes">
-                {loaded.notes.map((note, i) => (
-                  <li key={i}>{note}</li>
-                ))}
-              </ul>
-            ) : null}
-            {loaded.readable ? (
-              <div className="overflow-x-auto">
-                <table className="w-full text-sm" data-testid="catalogue-edit-table">
-                  <caption className="sr-only">Objects of the file; every cell can be edited</caption>
-                  <thead className="border-b border-line">
-                    <tr>
-                      <th scope="col" className={th}>Row</th>
-                      {CATALOGUE_COLUMNS.map((column) => (
-                        <th key={column} scope="col" className={th} title={COLUMN_HELP[column]}>
-                          {column}
+          . At most {CATALOGUE_LIMITS.maxRows} objects and {CATALOGUE_LIMITS.maxFileBytes / 1024} KiB. Nothing is saved until every row is valid.
+        </>
+      }
+      onFile={(file) => void take(file)}
+      canSave={canSave}
+      onSave={() => void save()}
+    >
+      {loaded ? (
+        <>
+          {problems.length > 0 ? (
+            <FileProblems
+              problems={problems}
+              fileName={loaded.fileName}
+              fixWhere={`${loaded.readable ? "in the table below" : "in the file"} before saving`}
+              testId="catalogue-problems"
+              itemTestId="catalogue-problem"
+              renderProblem={describeProblem}
+            />
+          ) : loaded.readable ? (
+            <Alert tone="ok">
+              {loaded.table.length} objects, every row valid{edited ? " (fixed here; saved as CSV)" : ""}.
+            </Alert>
+          ) : null}
+          {loaded.notes.length > 0 ? (
+            <ul className="space-y-1 text-sm text-ink-muted" data-testid="catalogue-notes">
+              {loaded.notes.map((note, i) => (
+                <li key={i}>{note}</li>
+              ))}
+            </ul>
+          ) : null}
+          {loaded.readable ? (
+            <div className="overflow-x-auto">
+              <table className="w-full text-sm" data-testid="catalogue-edit-table">
+                <caption className="sr-only">Objects of the file; every cell can be edited</caption>
+                <thead className="border-b border-line">
+                  <tr>
+                    <th scope="col" className={th}>Row</th>
+                    {CATALOGUE_COLUMNS.map((column) => (
+                      <th key={column} scope="col" className={th} title={COLUMN_HELP[column]}>
+                        {column}
+                      </th>
+                    ))}
+                  </tr>
+                </thead>
+                <tbody className="divide-y divide-line">
+                  {loaded.table.map((row, i) => {
+                    const rowNumber = loaded.firstRow + i;
+                    return (
+                      <tr key={i}>
+                        <th scope="row" className={`${td} font-mono text-xs text-ink-muted`}>
+                          {rowNumber}
                         </th>
-                      ))}
-                    </tr>
-                  </thead>
-                  <tbody className="divide-y divide-line">
-                    {loaded.table.map((row, i) => {
-                      const rowNumber = loaded.firstRow + i;
-                      return (
-                        <tr key={i}>
-                          <th scope="row" className={`${td} font-mono text-xs text-ink-muted`}>
-                            {rowNumber}
-                          </th>
-                          {CATALOGUE_COLUMNS.map((column) => (
-                            <td key={column} className="px-1 py-1">
-                              <input
-                                aria-label={`Row ${rowNumber}, ${column}`}
-                                aria-invalid={invalid.has(`${rowNumber}:${column}`) || undefined}
-                                value={row[column]}
-                                onChange={(event) => setCell(i, column, event.target.value)}
-                                className="w-full min-w-20 rounded border border-line bg-surface px-2 py-1 font-mono text-xs aria-[invalid=true]:border-danger aria-[invalid=true]:bg-danger-soft"
-                              />
-                            </td>
-                          ))}
-                        </tr>
-                      );
-                    })}
-                  </tbody>
-                </table>
-              </div>
-            ) : null}
-            <UploadError error={serverError} />
-            <UploadActions saveLabel="Save catalogue" saveTestId="catalogue-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
-          </div>
-        ) : null}
-      </div>
-    </Card>
+                        {CATALOGUE_COLUMNS.map((column) => (
+                          <td key={column} className="px-1 py-1">
+                            <input
+                              aria-label={`Row ${rowNumber}, ${column}`}
+                              aria-invalid={invalid.has(`${rowNumber}:${column}`) || undefined}
+                              value={row[column]}
+                              onChange={(event) => setCell(i, column, event.target.value)}
+                              className="w-full min-w-20 rounded border border-line bg-surface px-2 py-1 font-mono text-xs aria-[invalid=true]:border-danger aria-[invalid=true]:bg-danger-soft"
+                            />
+                          </td>
+                        ))}
+                      </tr>
+                    );
+                  })}
+                </tbody>
+              </table>
+            </div>
+          ) : null}
+        </>
+      ) : null}
+    </UploadCard>
   );
 }

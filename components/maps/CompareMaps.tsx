@@ -109,35 +109,25 @@ export function CompareMaps({ x, y, a, b, mode, defaultMode = "side-by-side", on
         </p>
       ) : current === "side-by-side" ? (
         <div className="grid gap-4 lg:grid-cols-2">
-          <StabilityMap
-            title={a.label}
-            x={x}
-            y={y}
-            layer={a.layer}
-            scale={prepared.shared}
-            verdicts={a.verdicts}
-            reasons={a.reasons}
-            extraLines={a.extraLines}
-            overlays={overlays}
-            height={height}
-            showLegend={false}
-            selectedIndex={selectedIndex}
-            onCellClick={onCellClick}
-          />
-          <StabilityMap
-            title={b.label}
-            x={x}
-            y={y}
-            layer={b.layer}
-            scale={prepared.shared}
-            verdicts={b.verdicts}
-            reasons={b.reasons}
-            extraLines={b.extraLines}
-            overlays={overlays}
-            height={height}
-            selectedIndex={selectedIndex}
-            onCellClick={onCellClick}
-          />
+          {[a, b].map((side, i) => (
+            <StabilityMap
+              key={i}
+              title={side.label}
+              x={x}
+              y={y}
+              layer={side.layer}
+              scale={prepared.shared}
+              verdicts={side.verdicts}
+              reasons={side.reasons}
+              extraLines={side.extraLines}
+              overlays={overlays}
+              height={height}
+              // One legend for the shared scale, beside the second map.
+              showLegend={i === 0 ? false : undefined}
+              selectedIndex={selectedIndex}
+              onCellClick={onCellClick}
+            />
+          ))}
         </div>
       ) : (
         <StabilityMap

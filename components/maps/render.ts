@@ -38,18 +38,41 @@ export const LIGHT_CHROME: ChromeColours = {
   fontFamily: "ui-sans-serif, system-ui, sans-serif",
 };
 
-/** Read the palette tokens of app/globals.css from an element (falls back to the light theme). */
+/**
+ * Read the palette tokens of app/globals.css from an element (falls back to the light theme).
+ * The tokens are light-dark(light, dark) pairs, which a custom property hands back unresolved, and a
+ * canvas needs a plain colour: each token is set as a hidden probe's `color`, under the element's
+ * colour scheme, and the probe's computed colour is read back.
+ */
 export function readChrome(element: Element): ChromeColours {
   const style = getComputedStyle(element);
-  const token = (name: string, fallback: string) => style.getPropertyValue(name).trim() || fallback;
-  return {
-    surface: token("--kd-surface", LIGHT_CHROME.surface),
-    ink: token("--kd-ink", LIGHT_CHROME.ink),
-    inkMuted: token("--kd-ink-muted", LIGHT_CHROME.inkMuted),
-    line: token("--kd-line", LIGHT_CHROME.line),
-    focus: token("--kd-focus", LIGHT_CHROME.focus),
-    fontFamily: style.fontFamily || LIGHT_CHROME.fontFamily,
+  const probe = element.ownerDocument.createElement("span");
+  probe.style.display = "none";
+  probe.style.colorScheme = style.colorScheme;
+  element.ownerDocument.documentElement.append(probe);
+  const token = (name: string, fallback: string) => {
+    probe.style.color = "";
+    probe.style.color = style.getPropertyValue(name).trim();
+    return probe.style.color ? asHex(getComputedStyle(probe).color) : fallback;
   };
+  try {
+    return {
+      surface: token("--kd-surface", LIGHT_CHROME.surface),
+      ink: token("--kd-ink", LIGHT_CHROME.ink),
+      inkMuted: token("--kd-ink-muted", LIGHT_CHROME.inkMuted),
+      line: token("--kd-line", LIGHT_CHROME.line),
+      focus: token("--kd-focus", LIGHT_CHROME.focus),
+      fontFamily: style.fontFamily || LIGHT_CHROME.fontFamily,
+    };
+  } finally {
+    probe.remove();
+  }
+}
+
+/** `rgb(r, g, b)` as `#rrggbb`, the form the tokens are written in; any other colour as it is. */
+function asHex(colour: string): string {
+  const rgb = /^rgb\((\d+), (\d+), (\d+)\)$/.exec(colour);
+  return rgb ? `#${rgb.slice(1).map((c) => Number(c).toString(16).padStart(2, "0")).join("")}` : colour;
 }
 
 export interface RenderOptions {

@@ -8,8 +8,8 @@ import { formatSI } from "@/lib/charts/format";
 import { glyphIsFilled, glyphSvgPath } from "@/lib/charts/glyphs";
 import { legendTicks, normalise } from "@/lib/charts/normalise";
 import { overlayToPixelPaths } from "@/lib/charts/overlays";
-import { valueToPixel } from "@/lib/charts/scales";
-import { axisTickLabel, CELL_NO_VALUE, CELL_PENDING, inkOn, type MapModel } from "./map-model";
+import { valueToPixel, type AxisScale } from "@/lib/charts/scales";
+import { axisTickLabel, CELL_NO_VALUE, CELL_PENDING, inkOn, type MapAxis, type MapModel } from "./map-model";
 import { axisTicks, axisTitle, GLYPH_PATTERN_TILE_PX, layoutMap, LIGHT_CHROME, TITLE_BLOCK_LINE_PX, type ChromeColours } from "./render";
 import { scaleNote } from "./scale-note";
 import { cellRuns, forEachGlyphCell, GLYPH_MIN_CELL_PX, glyphCellSize } from "./cell-runs";
@@ -48,6 +48,24 @@ function measureContext(): CanvasRenderingContext2D {
   const ctx = canvas.getContext("2d");
   if (!ctx) throw new Error("2D canvas context unavailable (needed to measure the SVG's text)");
   return ctx;
+}
+
+/**
+ * One axis's tick marks inside the plot (which starts at `start` px and is `length` px long), at
+ * their pixel positions, each with its label, or null where a label would come closer than `gap`
+ * px to one already placed.
+ */
+function axisMarks(scale: AxisScale, start: number, length: number, axis: MapAxis, gap: number): { px: number; label: string | null }[] {
+  const marks: { px: number; label: string | null }[] = [];
+  const labelled: number[] = [];
+  for (const tick of axisTicks(scale, length, false, axis)) {
+    const px = valueToPixel(scale, tick.value);
+    if (px < start - 0.5 || px > start + length + 0.5) continue;
+    const crowded = labelled.some((other) => Math.abs(other - px) < gap);
+    if (!crowded) labelled.push(px);
+    marks.push({ px, label: crowded ? null : axisTickLabel(axis, tick.value) });
+  }
+  return marks;
 }
 
 /** The map as an SVG document (a string). */
@@ -102,23 +120,13 @@ export function mapSvg(model: MapModel, options: SvgExportOptions): string {
 
   // Axes.
   out.push(`<rect x="${f(plot.left - 0.5)}" y="${f(plot.top - 0.5)}" width="${f(plot.width + 1)}" height="${f(plot.height + 1)}" fill="none" stroke="${chrome.inkMuted}"/>`);
-  const drawn: number[] = [];
-  for (const tick of axisTicks(geometry.x, plot.width, false, model.x)) {
-    const px = valueToPixel(geometry.x, tick.value);
-    if (px < plot.left - 0.5 || px > plot.left + plot.width + 0.5) continue;
+  for (const { px, label } of axisMarks(geometry.x, plot.left, plot.width, model.x, 56)) {
     out.push(`<line x1="${f(px)}" y1="${f(plot.top + plot.height)}" x2="${f(px)}" y2="${f(plot.top + plot.height + 5)}" stroke="${chrome.inkMuted}"/>`);
-    if (drawn.some((other) => Math.abs(other - px) < 56)) continue;
-    drawn.push(px);
-    out.push(`<text x="${f(px)}" y="${f(plot.top + plot.height + 19)}" font-size="12" text-anchor="middle" fill="${chrome.ink}" ${fontAttr}>${esc(axisTickLabel(model.x, tick.value))}</text>`);
+    if (label !== null) out.push(`<text x="${f(px)}" y="${f(plot.top + plot.height + 19)}" font-size="12" text-anchor="middle" fill="${chrome.ink}" ${fontAttr}>${esc(label)}</text>`);
   }
-  const drawnY: number[] = [];
-  for (const tick of axisTicks(geometry.y, plot.height, false, model.y)) {
-    const py = valueToPixel(geometry.y, tick.value);
-    if (py < plot.top - 0.5 || py > plot.top + plot.height + 0.5) continue;
+  for (const { px: py, label } of axisMarks(geometry.y, plot.top, plot.height, model.y, 15)) {
     out.push(`<line x1="${f(plot.left - 5)}" y1="${f(py)}" x2="${f(plot.left)}" y2="${f(py)}" stroke="${chrome.inkMuted}"/>`);
-    if (drawnY.some((other) => Math.abs(other - py) < 15)) continue;
-    drawnY.push(py);
-    out.push(`<text x="${f(plot.left - 8)}" y="${f(py + 4)}" font-size="12" text-anchor="end" fill="${chrome.ink}" ${fontAttr}>${esc(axisTickLabel(model.y, tick.value))}</text>`);
+    if (label !== null) out.push(`<text x="${f(plot.left - 8)}" y="${f(py + 4)}" font-size="12" text-anchor="end" fill="${chrome.ink}" ${fontAttr}>${esc(label)}</text>`);
   }
   out.push(`<text x="${f(plot.left + plot.width / 2)}" y="${f(H - 4)}" font-size="12" font-weight="600" text-anchor="middle" fill="${chrome.inkMuted}" ${fontAttr}>${esc(axisTitle(model.x))}</text>`);
   out.push(`<text transform="translate(14 ${f(plot.top + plot.height / 2)}) rotate(-90)" font-size="12" font-weight="600" text-anchor="middle" fill="${chrome.inkMuted}" ${fontAttr}>${esc(axisTitle(model.y))}</text>`);

@@ -10,8 +10,8 @@ import { CRATESLIDE_SNAPSHOT_JSON } from "@/lib/snapshots/demo";
 import Link from "next/link";
 import { useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
-import { Alert, Card, TextField } from "@/components/ui";
-import { FileDropZone, FileProblems, UploadActions, UploadError, useUploadCard } from "@/components/uploads/file-upload";
+import { Alert } from "@/components/ui";
+import { FileProblems, UploadCard, useUploadCard } from "@/components/uploads/file-upload";
 import { UploadsPage, type UploadsListKind } from "@/components/uploads/uploads-page";
 import { SNAPSHOT_LIMITS, parseSnapshotFile, type ParseSnapshotResult } from "@/lib/snapshots/format";
 import { uploadFile } from "@/lib/ui/api";
@@ -59,7 +59,7 @@ export function SnapshotsPage({ studioId, studioName, role, initialSnapshots }: 
       ),
     },
   };
-  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialSnapshots} upload={<UploadCard studioId={studioId} />} />;
+  return <UploadsPage kind={kind} studioId={studioId} studioName={studioName} role={role} initial={initialSnapshots} upload={<SnapshotUpload studioId={studioId} />} />;
 }
 
 interface Loaded {
@@ -68,9 +68,10 @@ interface Loaded {
   parsed: ParseSnapshotResult;
 }
 
-function UploadCard({ studioId }: { studioId: string }) {
+function SnapshotUpload({ studioId }: { studioId: string }) {
   const queryClient = useQueryClient();
-  const { inputRef, loaded, setLoaded, name, setName, saving, setSaving, serverError, setServerError, clearFile, discard, failed } = useUploadCard<Loaded>();
+  const card = useUploadCard<Loaded>();
+  const { loaded, setLoaded, name, setName, saving, setServerError, clearFile } = card;
   const [saved, setSaved] = useState<SnapshotDetail | null>(null);
 
   const problems = loaded && !loaded.parsed.ok ? loaded.parsed.problems : [];
@@ -85,79 +86,68 @@ function UploadCard({ studioId }: { studioId: string }) {
     setName(parsed.ok && parsed.snapshot.name ? parsed.snapshot.name : file.name.replace(/\.[^.]*$/, ""));
   }
 
-  async function save() {
-    if (!loaded) return;
-    setSaving(true);
-    setServerError(null);
-    try {
+  const save = () =>
+    card.save(async (loaded) => {
       const body = await uploadFile<{ snapshot: SnapshotDetail }>(snapshotsPath(studioId), new Blob([loaded.bytes as BlobPart], { type: "application/json" }), loaded.fileName, name);
       setSaved(body.snapshot);
       clearFile();
       await queryClient.invalidateQueries({ queryKey: listKey(studioId) });
-    } catch (error) {
-      failed(error);
-    } finally {
-      setSaving(false);
-    }
-  }
+    });
 
   return (
-    <Card title="Upload a snapshot">
-      <div className="space-y-4">
-        <p className="text-sm text-ink-muted">
+    <UploadCard
+      card={card}
+      kind={{
+        noun: "snapshot",
+        sample: { href: `data:application/json;charset=utf-8,${encodeURIComponent(CRATESLIDE_SNAPSHOT_JSON)}`, fileName: "sample-snapshot-loading-bay.json", format: "JSON" },
+        dropLabel: "Drop a snapshot file here, or choose one",
+        accept: ".json,application/json",
+        maxNameLength: SNAPSHOT_LIMITS.maxNameLength,
+      }}
+      intro={
+        <>
           A JSON file with <code className="font-mono text-xs">bodies</code> (each <code className="font-mono text-xs">xM, yM, vxMPerS, vyMPerS, massKg, radiusM</code>), optional{" "}
           <code className="font-mono text-xs">walls</code> (each <code className="font-mono text-xs">normalX, normalY, offsetM</code>), <code className="font-mono text-xs">gravityMPerS2</code> and{" "}
           <code className="font-mono text-xs">name</code>. At most {SNAPSHOT_LIMITS.maxBodies.toLocaleString("en-US")} discs, {SNAPSHOT_LIMITS.maxWalls} walls and {SNAPSHOT_LIMITS.maxFileBytes / (1024 * 1024)} MiB;
-          discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.{" "}
-          <a className="font-medium text-action hover:underline" href={`data:application/json;charset=utf-8,${encodeURIComponent(CRATESLIDE_SNAPSHOT_JSON)}`} download="sample-snapshot-loading-bay.json" data-testid="sample-snapshot">
-            Download a sample snapshot (JSON)
-          </a>
-        </p>
-        <FileDropZone
-          label="Drop a snapshot file here, or choose one"
-          accept=".json,application/json"
-          inputRef={inputRef}
-          onFile={(file) => void take(file)}
-          testId="snapshot-drop-zone"
-          inputTestId="snapshot-file"
-        />
-        {saved ? (
+          discs may not start overlapping by more than 1 % of a radius. Nothing is saved until the file is valid.
+        </>
+      }
+      onFile={(file) => void take(file)}
+      notice={
+        saved ? (
           <Alert tone="ok">
             Saved {saved.name} v{saved.version} ({saved.bodyCount} discs, {saved.wallCount} walls).{" "}
             <Link href={`/studios/${studioId}/sweeps/new?snapshot=${encodeURIComponent(saved.id)}`} className="font-medium text-action hover:underline">
               New sweep from this snapshot
             </Link>
           </Alert>
-        ) : null}
-        {loaded ? (
-          <div className="space-y-4">
-            <TextField id="snapshot-name" label="Snapshot name" value={name} onChange={(event) => setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={SNAPSHOT_LIMITS.maxNameLength} />
-            {problems.length > 0 ? (
-              <FileProblems
-                problems={problems}
-                fileName={loaded.fileName}
-                fixWhere="in the file and choose it again"
-                testId="snapshot-problems"
-                itemTestId="snapshot-problem"
-                renderProblem={(problem) => (
-                  <>
-                    <span className="font-medium">{problemPlace(problem.path)}</span>: {problem.reason}
-                  </>
-                )}
-              />
-            ) : loaded.parsed.ok ? (
-              <>
-                <Alert tone="ok">
-                  {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid. Check the drawing before saving.
-                </Alert>
-                <ScenePreview bodies={loaded.parsed.snapshot.bodies} walls={loaded.parsed.snapshot.walls} />
-              </>
-            ) : null}
-            <UploadError error={serverError} fieldLabel={issuePlace} />
-            <UploadActions saveLabel="Save snapshot" saveTestId="snapshot-save" saving={saving} canSave={canSave} onSave={() => void save()} onDiscard={discard} />
-          </div>
-        ) : null}
-      </div>
-    </Card>
+        ) : null
+      }
+      fieldLabel={issuePlace}
+      canSave={canSave}
+      onSave={() => void save()}
+    >
+      {problems.length > 0 && loaded ? (
+        <FileProblems
+          problems={problems}
+          fileName={loaded.fileName}
+          fixWhere="in the file and choose it again"
+          testId="snapshot-problems"
+          itemTestId="snapshot-problem"
+          renderProblem={(problem) => (
+            <>
+              <span className="font-medium">{problemPlace(problem.path)}</span>: {problem.reason}
+            </>
+          )}
+        />
+      ) : loaded?.parsed.ok ? (
+        <>
+          <Alert tone="ok">
+            {loaded.parsed.snapshot.bodies.length} discs and {loaded.parsed.snapshot.walls.length} walls, every field valid. Check the drawing before saving.
+          </Alert>
+          <ScenePreview bodies={loaded.parsed.snapshot.bodies} walls={loaded.parsed.snapshot.walls} />
+        </>
+      ) : null}
+    </UploadCard>
   );
 }

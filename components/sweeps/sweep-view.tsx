@@ -5,10 +5,10 @@
  */
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
-import { useEffect, useMemo, useRef, useState } from "react";
+import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
 import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { ConfirmDialog } from "@/components/confirm-dialog";
-import { Alert, Button, ButtonLink, Card, LoadingRows } from "@/components/ui";
+import { Alert, Button, ButtonLink, Card, LoadingRows, SelectField, TextField } from "@/components/ui";
 import { DataTable } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { VERDICTS_BY_SEVERITY, VERDICT_STYLES } from "@/lib/charts/categories";
@@ -103,61 +103,31 @@ function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { stud
         <div className="h-full bg-action transition-[width]" style={{ width: `${percent}%` }} />
       </div>
       <dl className="mt-3 grid grid-cols-2 gap-x-6 gap-y-1 text-sm md:grid-cols-4">
-        <div>
-          <dt className="text-ink-muted">Cells done</dt>
-          <dd className="font-mono" data-testid="sweep-cells-done">
-            {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} ({percent}%)
-          </dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Elapsed</dt>
-          <dd className="font-mono">{startedMs !== null ? formatDuration(elapsedMs) : "not started"}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Estimated time left</dt>
-          <dd className="font-mono">{active ? formatDuration(leftMs) : "—"}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">{active ? "Billed so far" : "Billed"}</dt>
-          <dd className="font-mono" data-testid="sweep-billed">
-            {formatCompute(sweep.computeMs)} · {sweep.computeMs.toLocaleString("en")} ms
-          </dd>
-        </div>
+        <Fact label="Cells done" testId="sweep-cells-done">
+          {sweep.cellsDone.toLocaleString("en")} / {sweep.cells.toLocaleString("en")} ({percent}%)
+        </Fact>
+        <Fact label="Elapsed">{startedMs !== null ? formatDuration(elapsedMs) : "not started"}</Fact>
+        <Fact label="Estimated time left">{active ? formatDuration(leftMs) : "—"}</Fact>
+        <Fact label={active ? "Billed so far" : "Billed"} testId="sweep-billed">
+          {computeFigure(sweep.computeMs)}
+        </Fact>
         {sweep.metering !== "wall-clock" ? (
           <>
-            <div>
-              <dt className="text-ink-muted">Quoted ceiling</dt>
-              <dd className="font-mono" data-testid="sweep-ceiling">
-                {formatCompute(sweep.ceilingMs)} · {sweep.ceilingMs.toLocaleString("en")} ms
-              </dd>
-            </div>
-            <div>
-              <dt className="text-ink-muted">Quoted expected</dt>
-              <dd className="font-mono" data-testid="sweep-expected">
-                {formatCompute(sweep.estimatedComputeMs)} · {sweep.estimatedComputeMs.toLocaleString("en")} ms
-              </dd>
-            </div>
+            <Fact label="Quoted ceiling" testId="sweep-ceiling">
+              {computeFigure(sweep.ceilingMs)}
+            </Fact>
+            <Fact label="Quoted expected" testId="sweep-expected">
+              {computeFigure(sweep.estimatedComputeMs)}
+            </Fact>
           </>
         ) : (
-          <div>
-            <dt className="text-ink-muted">Metering</dt>
-            <dd className="font-mono">worker wall time (submitted before work units; estimate {formatCompute(sweep.estimatedComputeMs)})</dd>
-          </div>
+          <Fact label="Metering">worker wall time (submitted before work units; estimate {formatCompute(sweep.estimatedComputeMs)})</Fact>
         )}
-        <div>
-          <dt className="text-ink-muted">Created</dt>
-          <dd className="font-mono">{formatDateTime(sweep.createdAt)}</dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Chunks done</dt>
-          <dd className="font-mono">
-            {sweep.chunksDone} / {sweep.chunks}
-          </dd>
-        </div>
-        <div>
-          <dt className="text-ink-muted">Cached cells</dt>
-          <dd className="font-mono">{sweep.cachedCells.toLocaleString("en")}</dd>
-        </div>
+        <Fact label="Created">{formatDateTime(sweep.createdAt)}</Fact>
+        <Fact label="Chunks done">
+          {sweep.chunksDone} / {sweep.chunks}
+        </Fact>
+        <Fact label="Cached cells">{sweep.cachedCells.toLocaleString("en")}</Fact>
       </dl>
       <ul className="mt-4 flex flex-wrap gap-2 text-sm" aria-label="Verdict counts" data-testid="verdict-counts">
         {VERDICTS_BY_SEVERITY.map((verdict) => (
@@ -169,6 +139,23 @@ function ProgressPanel({ studioId, sweep, canRun, onCancel, cancelling }: { stud
       </ul>
     </Card>
   );
+}
+
+/** One figure of the progress card: its name, then its value in the mono face. */
+function Fact({ label, testId, children }: { label: string; testId?: string; children: ReactNode }) {
+  return (
+    <div>
+      <dt className="text-ink-muted">{label}</dt>
+      <dd className="font-mono" data-testid={testId}>
+        {children}
+      </dd>
+    </div>
+  );
+}
+
+/** Compute as people read it (formatCompute), then in exact milliseconds. */
+function computeFigure(ms: number): string {
+  return `${formatCompute(ms)} · ${ms.toLocaleString("en")} ms`;
 }
 
 const selectClasses = "block w-full rounded-md border border-line bg-surface px-2 py-1.5 text-sm";
@@ -183,18 +170,13 @@ function AxisSelect({ id, label, axes, choices, value, onChange }: {
   onChange: (axisIndex: number) => void;
 }) {
   return (
-    <div className="space-y-1">
-      <label htmlFor={id} className="block text-sm font-medium">
-        {label}
-      </label>
-      <select id={id} className={selectClasses} value={value} onChange={(event) => onChange(Number(event.target.value))}>
-        {choices.map((i) => (
-          <option key={i} value={i}>
-            {axes[i].label} [{parameterUnitLabel(axes[i].path, axes[i].unit)}]
-          </option>
-        ))}
-      </select>
-    </div>
+    <SelectField id={id} label={label} className={selectClasses} value={value} onChange={(event) => onChange(Number(event.target.value))}>
+      {choices.map((i) => (
+        <option key={i} value={i}>
+          {axes[i].label} [{parameterUnitLabel(axes[i].path, axes[i].unit)}]
+        </option>
+      ))}
+    </SelectField>
   );
 }
 
@@ -315,6 +297,12 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
       : { kind: "verdict", verdicts: data.verdicts };
     return { indices, layer, ...data };
   };
+  /** Picks the axis of one side of the map; picking the axis the other side shows swaps the two. */
+  const pickAxis = (side: "x" | "y") => (next: number) => {
+    const [mine, other, setMine, setOther] = side === "x" ? [xAxis, yAxis, setXAxis, setYAxis] : [yAxis, xAxis, setYAxis, setXAxis];
+    if (next === other) setOther(mine);
+    setMine(next);
+  };
   const withSlice = (axisIndex: number, position: number) => slice.map((value, i) => (i === axisIndex ? position : value));
 
   const single = layerAt(slice);
@@ -327,86 +315,55 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
   return (
     <Card title="Stability map">
       <div className="mb-4 grid gap-3 md:grid-cols-4">
-        <div className="space-y-1">
-          <label htmlFor="map-show" className="block text-sm font-medium">
-            Show
-          </label>
-          <select id="map-show" className={selectClasses} value={show} onChange={(event) => setShow(event.target.value as typeof show)}>
-            <option value="verdict">Verdict</option>
-            {layers.map((layer) => (
-              <option key={layer.key} value={layer.key}>
-                {layer.label}
-                {layer.unit ? ` [${layer.unit}]` : " [no unit]"}
+        <SelectField id="map-show" label="Show" className={selectClasses} value={show} onChange={(event) => setShow(event.target.value as typeof show)}>
+          <option value="verdict">Verdict</option>
+          {layers.map((layer) => (
+            <option key={layer.key} value={layer.key}>
+              {layer.label}
+              {layer.unit ? ` [${layer.unit}]` : " [no unit]"}
+            </option>
+          ))}
+        </SelectField>
+        {metric && !metric.domain ? (
+          <SelectField id="map-colour-range" label="Colour range" className={selectClasses} value={colourRange} onChange={(event) => setColourRange(event.target.value)}>
+            {COLOUR_RANGES.map((range) => (
+              <option key={range.key} value={range.key}>
+                {range.label}
               </option>
             ))}
-          </select>
-        </div>
-        {metric && !metric.domain ? (
-          <div className="space-y-1">
-            <label htmlFor="map-colour-range" className="block text-sm font-medium">
-              Colour range
-            </label>
-            <select id="map-colour-range" className={selectClasses} value={colourRange} onChange={(event) => setColourRange(event.target.value)}>
-              {COLOUR_RANGES.map((range) => (
-                <option key={range.key} value={range.key}>
-                  {range.label}
-                </option>
-              ))}
-            </select>
-          </div>
+          </SelectField>
         ) : null}
-        <AxisSelect
-          id="map-x"
-          label="Horizontal axis"
-          axes={sweep.axes}
-          choices={numericAxes}
-          value={xAxis}
-          onChange={(next) => {
-            if (next === yAxis) setYAxis(xAxis);
-            setXAxis(next);
-          }}
-        />
-        {numericAxes.length >= 2 ? (
-          <AxisSelect
-            id="map-y"
-            label="Vertical axis"
-            axes={sweep.axes}
-            choices={numericAxes}
-            value={yAxis}
-            onChange={(next) => {
-              if (next === xAxis) setXAxis(yAxis);
-              setYAxis(next);
-            }}
-          />
-        ) : null}
+        <AxisSelect id="map-x" label="Horizontal axis" axes={sweep.axes} choices={numericAxes} value={xAxis} onChange={pickAxis("x")} />
+        {numericAxes.length >= 2 ? <AxisSelect id="map-y" label="Vertical axis" axes={sweep.axes} choices={numericAxes} value={yAxis} onChange={pickAxis("y")} /> : null}
         {compareAxis >= 0 || gridAxis >= 0 ? (
-          <div className="space-y-1">
-            <label htmlFor="map-mode" className="block text-sm font-medium">
-              Layout
-            </label>
-            <select id="map-mode" className={selectClasses} value={effectiveMode} onChange={(event) => setMode(event.target.value as ViewMode)}>
-              <option value="single">One map (pick {sweep.axes[otherAxes[0]].label})</option>
-              {compareAxis >= 0 ? <option value="compare">Compare two {sweep.axes[compareAxis].label}s</option> : null}
-              {gridAxis >= 0 ? <option value="grid">Small multiples over {sweep.axes[gridAxis].label}</option> : null}
-            </select>
-          </div>
+          <SelectField id="map-mode" label="Layout" className={selectClasses} value={effectiveMode} onChange={(event) => setMode(event.target.value as ViewMode)}>
+            <option value="single">One map (pick {sweep.axes[otherAxes[0]].label})</option>
+            {compareAxis >= 0 ? <option value="compare">Compare two {sweep.axes[compareAxis].label}s</option> : null}
+            {gridAxis >= 0 ? <option value="grid">Small multiples over {sweep.axes[gridAxis].label}</option> : null}
+          </SelectField>
         ) : null}
         {otherAxes
           .filter((i) => !(effectiveMode === "grid" && i === gridAxis))
           .map((i) => (
-            <div className="space-y-1" key={i}>
-              <label htmlFor={`map-slice-${i}`} className="block text-sm font-medium">
-                {effectiveMode === "compare" && i === compareAxis ? `${sweep.axes[i].label} of the first map` : sweep.axes[i].label}
-                {isNumericAxis(sweep.axes[i]) ? ` [${sweep.axes[i].unit || "no unit"}]` : ""}
-              </label>
-              <select id={`map-slice-${i}`} className={selectClasses} value={slice[i]} onChange={(event) => setSlice(withSlice(i, Number(event.target.value)))}>
-                {sweep.axes[i].values.map((_, position) => (
-                  <option key={position} value={position}>
-                    {axisValueLabel(i, position)}
-                  </option>
-                ))}
-              </select>
-            </div>
+            <SelectField
+              key={i}
+              id={`map-slice-${i}`}
+              label={
+                <>
+                  {effectiveMode === "compare" && i === compareAxis ? `${sweep.axes[i].label} of the first map` : sweep.axes[i].label}
+                  {isNumericAxis(sweep.axes[i]) ? ` [${sweep.axes[i].unit || "no unit"}]` : ""}
+                </>
+              }
+              className={selectClasses}
+              value={slice[i]}
+              onChange={(event) => setSlice(withSlice(i, Number(event.target.value)))}
+            >
+              {sweep.axes[i].values.map((_, position) => (
+                <option key={position} value={position}>
+                  {axisValueLabel(i, position)}
+                </option>
+              ))}
+            </SelectField>
           ))}
       </div>
 
@@ -542,58 +499,41 @@ function EnvelopePanel({ studioId, sweep, cells }: { studioId: string; sweep: Sw
       <div className="grid gap-3 md:grid-cols-4">
         <AxisSelect id="envelope-x" label="For each" axes={sweep.axes} choices={numericAxes} value={xAxis} onChange={setXAxis} />
         <AxisSelect id="envelope-y" label="Limit on" axes={sweep.axes} choices={numericAxes} value={yAxis} onChange={setYAxis} />
-        <div className="space-y-1">
-          <label htmlFor="envelope-margin" className="block text-sm font-medium">
-            Margin <span className="font-mono text-xs text-ink-muted">[%, 0–90]</span>
-          </label>
-          <input
-            id="envelope-margin"
-            type="number"
-            min={0}
-            max={90}
-            step={1}
-            className={selectClasses}
-            value={Number.isFinite(marginPercent) ? marginPercent : ""}
-            aria-invalid={marginValid ? undefined : true}
-            aria-describedby={marginValid ? undefined : "envelope-margin-error"}
-            onChange={(event) => setMarginPercent(event.target.value === "" ? Number.NaN : Number(event.target.value))}
-          />
-          {marginValid ? null : (
-            <p id="envelope-margin-error" className="text-sm font-medium text-danger" role="alert">
-              Margin must be between 0 and 90 %.
-            </p>
-          )}
-        </div>
-        <div className="space-y-1">
-          <label htmlFor="envelope-bound" className="block text-sm font-medium">
-            Bound
-          </label>
-          <select id="envelope-bound" className={selectClasses} value={bound} onChange={(event) => setBound(event.target.value as "max" | "min")}>
-            <option value="max">Largest stable value</option>
-            <option value="min">Smallest stable value</option>
-          </select>
-        </div>
+        <TextField
+          id="envelope-margin"
+          label="Margin"
+          unit="%, 0–90"
+          type="number"
+          min={0}
+          max={90}
+          step={1}
+          className={selectClasses}
+          value={Number.isFinite(marginPercent) ? marginPercent : ""}
+          error={marginValid ? undefined : "Margin must be between 0 and 90 %."}
+          onChange={(event) => setMarginPercent(event.target.value === "" ? Number.NaN : Number(event.target.value))}
+        />
+        <SelectField id="envelope-bound" label="Bound" className={selectClasses} value={bound} onChange={(event) => setBound(event.target.value as "max" | "min")}>
+          <option value="max">Largest stable value</option>
+          <option value="min">Smallest stable value</option>
+        </SelectField>
       </div>
       {otherAxes.length > 0 ? (
         <div className="mt-3 grid gap-3 md:grid-cols-4">
           {otherAxes.map((i) => (
-            <div key={i} className="space-y-1">
-              <label htmlFor={`envelope-at-${i}`} className="block text-sm font-medium">
-                {sweep.axes[i].label} held at
-              </label>
-              <select
-                id={`envelope-at-${i}`}
-                className={selectClasses}
-                value={at[i] ?? 0}
-                onChange={(event) => setAt((current) => current.map((position, j) => (j === i ? Number(event.target.value) : position)))}
-              >
-                {sweep.axes[i].values.map((value, position) => (
-                  <option key={position} value={position}>
-                    {formatParameterValue(sweep.axes[i].path, value, sweep.axes[i].unit)}
-                  </option>
-                ))}
-              </select>
-            </div>
+            <SelectField
+              key={i}
+              id={`envelope-at-${i}`}
+              label={`${sweep.axes[i].label} held at`}
+              className={selectClasses}
+              value={at[i] ?? 0}
+              onChange={(event) => setAt((current) => current.map((position, j) => (j === i ? Number(event.target.value) : position)))}
+            >
+              {sweep.axes[i].values.map((value, position) => (
+                <option key={position} value={position}>
+                  {formatParameterValue(sweep.axes[i].path, value, sweep.axes[i].unit)}
+                </option>
+              ))}
+            </SelectField>
           ))}
         </div>
       ) : null}

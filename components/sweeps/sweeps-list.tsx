@@ -3,7 +3,7 @@
 import Link from "next/link";
 import { useQuery } from "@tanstack/react-query";
 import { useEffect, useState } from "react";
-import { Alert, ButtonLink, Card, LoadingRows, cx } from "@/components/ui";
+import { Alert, ButtonLink, Card, LoadingRows, SelectField, TextField, cx } from "@/components/ui";
 import { DataTable, type Column } from "@/components/data-table";
 import { StudioShell } from "@/components/studio/studio-shell";
 import { apiFetch, errorMessage } from "@/lib/ui/api";
@@ -126,61 +126,41 @@ export function SweepsList({
         title="Sweeps"
         actions={
           <div className="flex flex-wrap items-end gap-3">
-            <div className="space-y-1">
-              <label htmlFor="sweep-search" className="block text-xs font-medium text-ink-muted">
-                Name contains
-              </label>
-              <input
-                id="sweep-search"
-                type="search"
-                maxLength={120}
-                className="w-48 rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
-                value={search}
-                onChange={(event) => setSearch(event.target.value)}
-              />
-            </div>
-            <div className="space-y-1">
-              <label htmlFor="sweep-creator-filter" className="block text-xs font-medium text-ink-muted">
-                Created by
-              </label>
-              <select
-                id="sweep-creator-filter"
-                className="rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
-                value={creator}
-                onChange={(event) => {
-                  setCreator(event.target.value);
-                  setPage(1);
-                }}
-              >
-                <option value="">Anyone</option>
-                {(list.data?.creators ?? []).map((option) => (
-                  <option key={option.id} value={option.id}>
-                    {option.name}
-                  </option>
-                ))}
-              </select>
-            </div>
-            <div className="space-y-1">
-              <label htmlFor="sweep-status-filter" className="block text-xs font-medium text-ink-muted">
-                Status
-              </label>
-              <select
-                id="sweep-status-filter"
-                className="rounded-md border border-line bg-surface px-2 py-1.5 text-sm"
-                value={status}
-                onChange={(event) => {
-                  setStatus(event.target.value as "" | SweepStatus);
-                  setPage(1);
-                }}
-              >
-                <option value="">Any</option>
-                {SWEEP_STATUSES.map((option) => (
-                  <option key={option} value={option}>
-                    {option}
-                  </option>
-                ))}
-              </select>
-            </div>
+            <TextField compact id="sweep-search" label="Name contains" type="search" maxLength={120} className="w-48 rounded-md border border-line bg-surface px-2 py-1.5 text-sm" value={search} onChange={(event) => setSearch(event.target.value)} />
+            <SelectField
+              compact
+              id="sweep-creator-filter"
+              label="Created by"
+              value={creator}
+              onChange={(event) => {
+                setCreator(event.target.value);
+                setPage(1);
+              }}
+            >
+              <option value="">Anyone</option>
+              {(list.data?.creators ?? []).map((option) => (
+                <option key={option.id} value={option.id}>
+                  {option.name}
+                </option>
+              ))}
+            </SelectField>
+            <SelectField
+              compact
+              id="sweep-status-filter"
+              label="Status"
+              value={status}
+              onChange={(event) => {
+                setStatus(event.target.value as "" | SweepStatus);
+                setPage(1);
+              }}
+            >
+              <option value="">Any</option>
+              {SWEEP_STATUSES.map((option) => (
+                <option key={option} value={option}>
+                  {option}
+                </option>
+              ))}
+            </SelectField>
             {canRun ? <ButtonLink href={`/studios/${studioId}/sweeps/new`}>New sweep</ButtonLink> : null}
           </div>
         }

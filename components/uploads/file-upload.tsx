@@ -1,11 +1,13 @@
 "use client";
 /**
- * The pieces of a file upload card shared by the catalogue and snapshot pages: its state, the drop
- * zone with its file input, the list of a file's problems, the server's refusal with its issues,
- * and the save / discard buttons. Each page keeps its own wording, ids and test ids through the props.
+ * The file upload card shared by the catalogue and snapshot pages: its state, the card itself (what
+ * the kind takes with a sample file, the drop zone with its file input, the name to save under, the
+ * server's refusal with its issues, the save / discard buttons) and the list of a file's problems.
+ * Each page keeps its own wording, ids and test ids through the props, and draws what it checked of
+ * the loaded file (problems, counts, a preview) inside the card.
  */
 import { useId, useRef, useState, type DragEvent, type ReactNode, type RefObject } from "react";
-import { Alert, Button, cx } from "@/components/ui";
+import { Alert, Button, Card, TextField, cx } from "@/components/ui";
 import { ApiClientError } from "@/lib/ui/api";
 
 /** The state of an upload card: the file as loaded (`L`, the page's own), the name to save it under, saving, and the server's refusal. */
@@ -36,15 +38,96 @@ export function useUploadCard<L>() {
       clearFile();
       setServerError(null);
     },
-    /** Keeps what a save threw, to show it with UploadError. */
-    failed(error: unknown) {
-      setServerError(error instanceof Error ? error : new Error(String(error)));
+    /**
+     * Saves the loaded file with `action`: "Saving…" meanwhile, the server's refusal kept to be shown
+     * in the card. An action that leads away from the page answers "leaving", and the button stays
+     * "Saving…" until the page goes.
+     */
+    async save(action: (loaded: L) => Promise<"leaving" | void>) {
+      if (!loaded) return;
+      setSaving(true);
+      setServerError(null);
+      try {
+        if ((await action(loaded)) !== "leaving") setSaving(false);
+      } catch (error) {
+        setServerError(error instanceof Error ? error : new Error(String(error)));
+        setSaving(false);
+      }
     },
   };
 }
 
+type UploadCardState<L> = ReturnType<typeof useUploadCard<L>>;
+
+/**
+ * A kind on its upload card. Its wording and test ids follow from the noun ("catalogue"): "Upload a
+ * catalogue", "Catalogue name", "Save catalogue", and the ids sample-catalogue, catalogue-drop-zone,
+ * catalogue-file, catalogue-name and catalogue-save.
+ */
+export interface UploadCardKind {
+  noun: string;
+  /** The sample file offered at the end of the card's first paragraph, as a data: URL; `format` in words ("CSV"). */
+  sample: { href: string; fileName: string; format: string };
+  dropLabel: string;
+  accept: string;
+  maxNameLength: number;
+}
+
+/**
+ * The upload card: `intro` (what the kind takes and its limits) with the sample file, the drop
+ * zone, `notice` under it (the last save), and once a file is loaded the name to save under, the
+ * page's own view of the file (`children`), the server's refusal and the buttons.
+ */
+export function UploadCard<L>({
+  card,
+  kind,
+  intro,
+  onFile,
+  notice,
+  fieldLabel,
+  canSave,
+  onSave,
+  children,
+}: {
+  card: UploadCardState<L>;
+  kind: UploadCardKind;
+  intro: ReactNode;
+  onFile: (file: File) => void;
+  notice?: ReactNode;
+  /** Names a refusal's issue by its field (see UploadError). */
+  fieldLabel?: (field: string) => string;
+  canSave: boolean;
+  onSave: () => void;
+  children: ReactNode;
+}) {
+  const { noun } = kind;
+  const Noun = `${noun[0].toUpperCase()}${noun.slice(1)}`;
+  return (
+    <Card title={`Upload a ${noun}`}>
+      <div className="space-y-4">
+        <p className="text-sm text-ink-muted">
+          {intro}{" "}
+          <a className="font-medium text-action hover:underline" href={kind.sample.href} download={kind.sample.fileName} data-testid={`sample-${noun}`}>
+            Download a sample {noun} ({kind.sample.format})
+          </a>
+        </p>
+        <FileDropZone label={kind.dropLabel} accept={kind.accept} inputRef={card.inputRef} onFile={onFile} testId={`${noun}-drop-zone`} inputTestId={`${noun}-file`} />
+        {notice}
+        {card.loaded ? (
+          <div className="space-y-4">
+            <TextField id={`${noun}-name`} label={`${Noun} name`} value={card.name} onChange={(event) => card.setName(event.target.value)} hint="Uploads under the same name become its next version." maxLength={kind.maxNameLength} />
+            {children}
+            <UploadError error={card.serverError} fieldLabel={fieldLabel} />
+            <UploadActions saveLabel={`Save ${noun}`} saveTestId={`${noun}-save`} saving={card.saving} canSave={canSave} onSave={onSave} onDiscard={card.discard} />
+          </div>
+        ) : null}
+      </div>
+    </Card>
+  );
+}
+
 /** A dashed zone to drop a file on, around a labelled file input; either way the file goes to `onFile`. */
-export function FileDropZone({
+function FileDropZone({
   label,
   accept,
   inputRef,
@@ -137,7 +220,7 @@ export function FileProblems<P>({
  * What a save threw. `fieldLabel` names each issue's place in words (the issue's `field` is the
  * API's machine path); `showFields` without it shows that path as code.
  */
-export function UploadError({ error, showFields = false, fieldLabel }: { error: ApiClientError | Error | null; showFields?: boolean; fieldLabel?: (field: string) => string }) {
+function UploadError({ error, showFields = false, fieldLabel }: { error: ApiClientError | Error | null; showFields?: boolean; fieldLabel?: (field: string) => string }) {
   if (!error) return null;
   return (
     <Alert>
@@ -164,7 +247,7 @@ export function UploadError({ error, showFields = false, fieldLabel }: { error: 
 }
 
 /** Save (disabled until the file can be saved; "Saving…" meanwhile) and Discard. */
-export function UploadActions({ saveLabel, saveTestId, saving, canSave, onSave, onDiscard }: { saveLabel: string; saveTestId: string; saving: boolean; canSave: boolean; onSave: () => void; onDiscard: () => void }) {
+function UploadActions({ saveLabel, saveTestId, saving, canSave, onSave, onDiscard }: { saveLabel: string; saveTestId: string; saving: boolean; canSave: boolean; onSave: () => void; onDiscard: () => void }) {
   return (
     <div className="flex gap-3">
       <Button onClick={onSave} disabled={!canSave} data-testid={saveTestId}>

@@ -1,21 +1,27 @@
 import { readFileSync } from "node:fs";
 import { CRATESLIDE_CATALOGUE_CSV } from "../../lib/catalogues/demo";
-import { expect, signInWithPassword, test } from "./helpers";
-
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+import { expect, openDemoStudioSection, test } from "./helpers";
+import type { Page } from "@playwright/test";
 
 /** Crateslide's catalogue with three mistakes: a mass that is a word, a restitution above 1, a name used twice. */
 const WITH_MISTAKES = CRATESLIDE_CATALOGUE_CSV.replace("coin,0.6,", "coin,heavy,").replace("barrel,5,0.45,2,0.3", "barrel,5,0.45,2,1.7").replace("bumper,", "Crate,");
+
+/** As the demo engineer, uploads a valid catalogue file on the Catalogues page and saves it as `name`: it opens as version 1. */
+async function saveCatalogue(page: Page, file: { fileName: string; csv: string; objects: number; name: string }): Promise<void> {
+  await openDemoStudioSection(page, "Catalogues");
+  await page.getByTestId("catalogue-file").setInputFiles({ name: file.fileName, mimeType: "text/csv", buffer: Buffer.from(file.csv) });
+  await expect(page.getByText(`${file.objects} objects, every row valid`)).toBeVisible();
+  await page.getByLabel("Catalogue name").fill(file.name);
+  await page.getByTestId("catalogue-save").click();
+  await expect(page.getByTestId("catalogue-title")).toContainText(`${file.name} v1`);
+}
 
 test("an engineer uploads a catalogue with three mistakes, fixes them in the table, runs a check and opens the riskiest pair", async ({ page }) => {
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
 
-  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
-  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
-  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
+  await openDemoStudioSection(page, "Catalogues");
   await expect(page.getByRole("heading", { name: "Upload a catalogue" })).toBeVisible();
   // The demo catalogue is listed already.
   await expect(page.getByTestId("catalogues-table")).toContainText("Crateslide objects");
@@ -102,14 +108,7 @@ test("a catalogue that no stiffness or substep count can make stable ends in adv
   // A fast light pellet next to Crateslide's objects: no single stiffness at any of 1,000 substeps keeps
   // pellet × pellet within the overlap tolerance at 60 Hz (tests/unit/catalogues/advice.test.ts works the numbers).
   const withPellet = CRATESLIDE_CATALOGUE_CSV.replace("\r\n", "\r\npellet,0.01,0.01,40,0.5,loot\r\n");
-  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
-  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
-  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
-  await page.getByTestId("catalogue-file").setInputFiles({ name: "crateslide-pellet.csv", mimeType: "text/csv", buffer: Buffer.from(withPellet) });
-  await expect(page.getByText("6 objects, every row valid")).toBeVisible();
-  await page.getByLabel("Catalogue name").fill("Crateslide objects, pellet build");
-  await page.getByTestId("catalogue-save").click();
-  await expect(page.getByTestId("catalogue-title")).toContainText("Crateslide objects, pellet build v1");
+  await saveCatalogue(page, { fileName: "crateslide-pellet.csv", csv: withPellet, objects: 6, name: "Crateslide objects, pellet build" });
   // The margin reads in percent, as on the sweep page's safe envelope.
   await expect(page.getByLabel("Margin [%]")).toHaveValue("80");
   await page.getByRole("button", { name: "Get quote" }).click();
@@ -131,15 +130,8 @@ test("an engineer checks a catalogue with friction: the largest k_t/k, the subst
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
-  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
-  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
-  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Catalogues" }).click();
   // Crateslide's objects give friction coefficients (the puck glides at μ 0.05, the bumper grips at 0.8).
-  await page.getByTestId("catalogue-file").setInputFiles({ name: "crateslide-friction.csv", mimeType: "text/csv", buffer: Buffer.from(CRATESLIDE_CATALOGUE_CSV) });
-  await expect(page.getByText("5 objects, every row valid")).toBeVisible();
-  await page.getByLabel("Catalogue name").fill("Crateslide objects, friction build");
-  await page.getByTestId("catalogue-save").click();
-  await expect(page.getByTestId("catalogue-title")).toContainText("Crateslide objects, friction build v1");
+  await saveCatalogue(page, { fileName: "crateslide-friction.csv", csv: CRATESLIDE_CATALOGUE_CSV, objects: 5, name: "Crateslide objects, friction build" });
   await expect(page.getByTestId("catalogue-objects")).toContainText("0.05");
 
   // The friction settings appear because the objects give μ: k_t as large as the normal spring, a 20° ramp.

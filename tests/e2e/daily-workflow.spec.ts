@@ -9,9 +9,8 @@ import type { Page } from "@playwright/test";
 import { mapAxisFor, mapCellIndices } from "@/components/sweeps/sweep-map-data";
 import { cellRect, mapGeometry } from "@/lib/charts/scales";
 import type { SweepAxisView } from "@/lib/sweeps/sweep-view";
-import { expect, signInWithPassword, test } from "./helpers";
+import { DEMO_ENGINEER, expect, signInWithPassword, test } from "./helpers";
 
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", name: "Tobiah Lindqvist", studio: "Gannet Yard Games" };
 const STIFFNESS_SWEEP = "Reedmarsh bumper boats: boat against the dock buoy, stiffness × frame step × integrator";
 
 async function openStudio(page: Page): Promise<string> {

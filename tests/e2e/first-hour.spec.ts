@@ -1,5 +1,5 @@
-import { expect, test, type Browser, type Locator, type Page } from "@playwright/test";
-import { signInWithPassword } from "./helpers";
+import { expect, test, type Browser, type Page } from "@playwright/test";
+import { hoverMap, signInWithPassword } from "./helpers";
 
 // The demo people seeded by KICKDRIFT_DEMO=1 (server/seed.ts); their studio's work is computed by the
 // server's own queue runner just after start-up (lib/demo/results.ts).
@@ -12,13 +12,6 @@ const PEOPLE = {
 // The seeded frame-rate sweep by its exact name: other tests add sweeps whose names start the same way
 // (a one-cell re-run, a dated run of the template).
 const FRAME_RATE_SWEEP = "Reedmarsh bumper boats: boat against the dock buoy, stiffness × frame step × integrator";
-
-async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
-  const plot = await map.getAttribute("data-plot");
-  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
-  const [left, top, width, height] = plot!.split(",").map(Number);
-  return { x: left + width * fx, y: top + height * fy };
-}
 
 /** Signs in and opens the studio from the studio list: the first click lands on the studio home. */
 async function openHome(page: Page, who: keyof typeof PEOPLE): Promise<string> {
@@ -71,11 +64,7 @@ test("an engineer lands on the studio home, sees finished sweeps and opens a map
   const map = page.getByRole("application").first();
   await expect(map).toHaveAttribute("data-plot", /.+/);
   // The map's frame-step axis reads in Hz: hover the top-right cell (stiffest contact, 30 Hz).
-  // The mouse moves in viewport coordinates: bring the map into view first.
-  await map.scrollIntoViewIfNeeded();
-  const box = (await map.boundingBox())!;
-  const topRight = await plotPoint(map, 0.99, 0.02);
-  await page.mouse.move(box.x + topRight.x, box.y + topRight.y);
+  await hoverMap(page, map, 0.99, 0.02);
   const tooltip = page.getByRole("tooltip");
   await expect(tooltip).toContainText("frame step dt: 30 Hz (1/30 s · 33.33 ms)");
   await expect(tooltip).toContainText("Exploded");

@@ -1,4 +1,4 @@
-import { test as base, expect, type Browser, type BrowserContext, type Page } from "@playwright/test";
+import { test as base, expect, type Browser, type BrowserContext, type Locator, type Page } from "@playwright/test";
 
 /**
  * Every spec imports `test` from here: it fails a test when any page of any context the test opens
@@ -99,3 +99,44 @@ export async function signInWithPassword(page: Page, email: string, password: st
 export function sameOrigin(page: Page): Record<string, string> {
   return { origin: new URL(page.url()).origin };
 }
+
+/** The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts), and the studio they work in. */
+export const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", name: "Tobiah Lindqvist", studio: "Gannet Yard Games" };
+
+/** Signs in as the demo engineer, opens their studio from the studio list, then `section` from the studio's navigation. */
+export async function openDemoStudioSection(page: Page, section: string): Promise<void> {
+  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
+  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
+  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: section }).click();
+}
+
+/** A point inside the map's plot at fractions (fx from the left, fy from the top), from the canvas's data-plot rectangle. */
+export async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
+  const plot = await map.getAttribute("data-plot");
+  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
+  const [left, top, width, height] = plot!.split(",").map(Number);
+  return { x: left + width * fx, y: top + height * fy };
+}
+
+/** Points the mouse at a point of the map's plot (fractions as in plotPoint); answers that point in viewport coordinates. */
+export async function hoverMap(page: Page, map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
+  // The mouse moves in viewport coordinates: bring the map into view first.
+  await map.scrollIntoViewIfNeeded();
+  const box = (await map.boundingBox())!;
+  const point = await plotPoint(map, fx, fy);
+  const at = { x: box.x + point.x, y: box.y + point.y };
+  await page.mouse.move(at.x, at.y);
+  return at;
+}
+
+/**
+ * A snapshot file of three crates in a row (radii 0.3 m) with two mistakes: the first crate's mass
+ * is negative, and the third stands 0.3 m from the second, pushed into it.
+ */
+export const CRATES_WITH_TWO_MISTAKES = {
+  bodies: [
+    { xM: 1, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: -25, radiusM: 0.3 },
+    { xM: 3, yM: 1, vxMPerS: -1, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
+    { xM: 3.3, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
+  ],
+};

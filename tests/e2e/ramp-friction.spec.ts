@@ -1,9 +1,6 @@
 import { readFile } from "node:fs/promises";
 import { type Locator, type Page } from "@playwright/test";
-import { expect, signInWithPassword, test } from "./helpers";
-
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+import { DEMO_ENGINEER, expect, plotPoint, signInWithPassword, test } from "./helpers";
 
 // The "Friction that holds a crate on a ramp" template (lib/sweeps/templates.ts): a 20 kg crate on a
 // ramp at 60 Hz with 4 substeps; friction μ 0.1 … 1.0 (10 values) × ramp angle 5° … 45° (9 values) ×
@@ -14,13 +11,6 @@ const ANGLES_DEG = Array.from({ length: 9 }, (_, i) => 5 + 5 * i);
 /** A crate slides once tan θ > μ (Kleppner & Kolenkow, An Introduction to Mechanics, 2nd ed. 2014, ch. 2). */
 function slides(coefficient: number, angleDeg: number): boolean {
   return Math.tan((angleDeg * Math.PI) / 180) > coefficient;
-}
-
-async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
-  const plot = await map.getAttribute("data-plot");
-  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
-  const [left, top, width, height] = plot!.split(",").map(Number);
-  return { x: left + width * fx, y: top + height * fy };
 }
 
 /** Moves the mouse onto a cell (μ along x, angle rising upwards) and returns its tooltip's text. */

@@ -1,31 +1,15 @@
-import { expect, signInWithPassword, test } from "./helpers";
+import { CRATES_WITH_TWO_MISTAKES, expect, openDemoStudioSection, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
-
-/** Three crates in a row, 0.8 m apart with radii 0.3 m: valid, so the page's own check lets it be saved. */
-const VALID = JSON.stringify({
-  bodies: [
-    { xM: 1, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-    { xM: 3, yM: 1, vxMPerS: -1, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-    { xM: 3.8, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-  ],
-});
+/** The three crates with both mistakes fixed (the third 0.8 m from the second): valid, so the page's own check lets it be saved. */
+const [first, second, third] = CRATES_WITH_TWO_MISTAKES.bodies;
+const VALID = JSON.stringify({ bodies: [{ ...first, massKg: 25 }, second, { ...third, xM: 3.8 }] });
 
 /** What reaches the server instead: a negative mass, and the third crate pushed into the second. */
-const REFUSED = JSON.stringify({
-  bodies: [
-    { xM: 1, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: -25, radiusM: 0.3 },
-    { xM: 3, yM: 1, vxMPerS: -1, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-    { xM: 3.3, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-  ],
-});
+const REFUSED = JSON.stringify(CRATES_WITH_TWO_MISTAKES);
 
 test("a snapshot the server refuses on save: the form shows the server's problems naming each disc as a user counts it and the field in words, and nothing is saved", async ({ page }) => {
   test.setTimeout(120_000);
-  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
-  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
-  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Snapshots" }).click();
+  await openDemoStudioSection(page, "Snapshots");
   await expect(page.getByRole("heading", { name: "Upload a snapshot" })).toBeVisible();
 
   // The server has the last word: the file changes between the page's check and the save (as a page

@@ -1,26 +1,15 @@
 import { CRATESLIDE_SNAPSHOT_JSON } from "../../lib/snapshots/demo";
-import { expect, signInWithPassword, test } from "./helpers";
-
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+import { CRATES_WITH_TWO_MISTAKES, expect, openDemoStudioSection, test } from "./helpers";
 
 /** Two mistakes: a negative mass and a crate pushed into its neighbour. */
-const WITH_MISTAKES = JSON.stringify({
-  bodies: [
-    { xM: 1, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: -25, radiusM: 0.3 },
-    { xM: 3, yM: 1, vxMPerS: -1, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-    { xM: 3.3, yM: 1, vxMPerS: 0, vyMPerS: 0, massKg: 25, radiusM: 0.3 },
-  ],
-});
+const WITH_MISTAKES = JSON.stringify(CRATES_WITH_TWO_MISTAKES);
 
 test("an engineer uploads a snapshot, sees its problems by disc number and field, checks the drawing of the scene, saves the loading bay and runs the sweep suggested from it, whose map has stable and unstable cells", async ({ page }) => {
   test.setTimeout(180_000);
   const pageErrors: string[] = [];
   page.on("pageerror", (error) => pageErrors.push(error.message));
 
-  await signInWithPassword(page, DEMO_ENGINEER.email, DEMO_ENGINEER.password);
-  await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
-  await page.getByRole("navigation", { name: "Studio" }).getByRole("link", { name: "Snapshots" }).click();
+  await openDemoStudioSection(page, "Snapshots");
   await expect(page.getByRole("heading", { name: "Upload a snapshot" })).toBeVisible();
   // The demo snapshot is listed already.
   await expect(page.getByTestId("snapshots-table")).toContainText("Crateslide loading bay");

@@ -1,9 +1,6 @@
 import { readFile } from "node:fs/promises";
 import { type Locator, type Page } from "@playwright/test";
-import { expect, signInWithPassword, test } from "./helpers";
-
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
+import { DEMO_ENGINEER, expect, plotPoint, signInWithPassword, test } from "./helpers";
 
 // The "Stiffness a frame rate can carry" template (lib/sweeps/templates.ts): boat 40 kg against buoy 120 kg,
 // 4 substeps, stiffness 1e3 … 1e9 N/m in 25 log steps, frame steps 1/120, 1/60, 1/30 s.
@@ -15,13 +12,6 @@ const FRAME_STEPS = [1 / 120, 1 / 60, 1 / 30];
 /** ω·h of a cell: ω = √(k/m*) of the linear contact, h = dt/substeps. */
 function omegaH(stiffness: number, dtS: number): number {
   return Math.sqrt(stiffness / REDUCED_MASS_KG) * (dtS / SUBSTEPS);
-}
-
-async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
-  const plot = await map.getAttribute("data-plot");
-  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
-  const [left, top, width, height] = plot!.split(",").map(Number);
-  return { x: left + width * fx, y: top + height * fy };
 }
 
 async function hoverCell(page: Page, map: Locator, stiffnessIndex: number, frameStepIndex: number): Promise<string> {

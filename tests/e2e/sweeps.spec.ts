@@ -1,18 +1,8 @@
 import { readFile } from "node:fs/promises";
-import { type Locator, type Page } from "@playwright/test";
-import { expect, sameOrigin, signInWithPassword, test } from "./helpers";
+import { type Page } from "@playwright/test";
+import { DEMO_ENGINEER, expect, hoverMap, sameOrigin, signInWithPassword, test } from "./helpers";
 
-// The demo engineer seeded by KICKDRIFT_DEMO=1 (server/seed.ts).
-const DEMO_ENGINEER = { email: "tobiah@gannetyard.test", password: "crateslide-engineer", studio: "Gannet Yard Games" };
 const DEMO_OWNER = { email: "maren@gannetyard.test", password: "crateslide-owner" };
-
-/** A point inside the map's plot at fractions (fx from the left, fy from the top), from the canvas's data-plot rectangle. */
-async function plotPoint(map: Locator, fx: number, fy: number): Promise<{ x: number; y: number }> {
-  const plot = await map.getAttribute("data-plot");
-  expect(plot, "the map publishes its plot rectangle once drawn").toBeTruthy();
-  const [left, top, width, height] = plot!.split(",").map(Number);
-  return { x: left + width * fx, y: top + height * fy };
-}
 
 async function openStudio(page: Page): Promise<string> {
   await page.getByRole("link", { name: DEMO_ENGINEER.studio }).first().click();
@@ -85,11 +75,7 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   // --- Hover a cell: the tooltip shows its values. Top right = the stiffest contact at 30 Hz with symplectic Euler.
   const map = page.getByRole("application").first();
   await expect(map).toHaveAttribute("data-plot", /.+/);
-  // The mouse moves in viewport coordinates: bring the map into view first.
-  await map.scrollIntoViewIfNeeded();
-  const box = (await map.boundingBox())!;
-  const topRight = await plotPoint(map, 0.99, 0.02);
-  await page.mouse.move(box.x + topRight.x, box.y + topRight.y);
+  const topRight = await hoverMap(page, map, 0.99, 0.02);
   const tooltip = page.getByRole("tooltip");
   await expect(tooltip).toContainText("contact stiffness k");
   await expect(tooltip).toContainText("frame step dt: 30 Hz (1/30 s · 33.33 ms)");
@@ -105,7 +91,7 @@ test("an engineer builds a sweep from a template, watches it run, reads a cell a
   for (let i = 1; i < afters.length; i++) expect(BigInt(afters[i])).toBeGreaterThanOrEqual(BigInt(afters[i - 1]));
 
   // --- Open that exploded cell: its energy grows far beyond the start.
-  await page.mouse.click(box.x + topRight.x, box.y + topRight.y);
+  await page.mouse.click(topRight.x, topRight.y);
   await expect(page).toHaveURL(new RegExp(`${sweepPath}/cells/\\d+$`));
   const cellPath = new URL(page.url()).pathname;
   await expect(page.getByTestId("cell-verdict")).toHaveText("Exploded");

@@ -124,6 +124,16 @@ export function paginate(items: StripeObject[], params: Params, url: string, cur
 }
 
 /** `created` filters as Stripe takes them: `created=<ts>` or `created[gt|gte|lt|lte]=<ts>`. */
+/**
+ * A list's equality filters, as Stripe's list parameters work: each given value must equal the
+ * object's field of that name; a value not given (undefined) lets every object through. The caller
+ * reads each value from the request, so its type and allowed values are checked there, in its order.
+ */
+export function fieldsEqual(values: Record<string, unknown>): (o: StripeObject) => boolean {
+  const given = Object.entries(values).filter(([, value]) => value !== undefined);
+  return (o) => given.every(([field, value]) => o[field] === value);
+}
+
 export function createdFilter(params: Params, key = "created"): (o: StripeObject) => boolean {
   if (!params.has(key)) return () => true;
   if (typeof params.raw[key] === "string") {

@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { existsSync } from "node:fs";
-import { mkdtemp, rm, writeFile } from "node:fs/promises";
+import { mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { build } from "esbuild";
@@ -21,6 +21,7 @@ import { createRef } from "react";
 import { StabilityMap } from "@/components/maps/StabilityMap";
 import { CellTimeSeries } from "@/components/maps/CellTimeSeries";
 import { TrajectoryReplay } from "@/components/maps/TrajectoryReplay";
+import { readChrome } from "@/components/maps/render";
 
 const x = { label: "Stiffness", unit: "N/m", values: [1e3, 1e4, 1e5, 1e6], spacing: "log" };
 const y = { label: "Timestep", unit: "s", values: [0.001, 0.002, 0.003], spacing: "linear" };
@@ -53,6 +54,7 @@ window.mountDrillDown = () =>
       <TrajectoryReplay series={series} radiiM={[0.1]} walls={[{ normalX: 1, normalY: 0, offsetM: 0 }]} />
     </div>,
   );
+window.readChrome = readChrome;
 window.ready = true;
 `;
 
@@ -208,5 +210,26 @@ describe.skipIf(!haveChromium)("stability map in chromium", () => {
     await expect.poll(() => page.getByRole("button", { name: "Replay" }).count(), { timeout: 10_000 }).toBe(1);
     expect(await page.locator("output").last().textContent()).toBe("t = 1 s");
     expect(pageErrors).toEqual([]);
+  });
+
+  it("draws its chrome in the palette of the colour scheme in use, from the light-dark() tokens", async () => {
+    // The app's own palette, without its Tailwind import; the browser drops the Tailwind-only @theme and @custom-variant.
+    const css = (await readFile(path.join(repoRoot, "app", "globals.css"), "utf8")).replace(/^@import [^;]*;/m, "");
+    await page.addStyleTag({ content: css });
+    const chrome = () => page.evaluate(() => (window as unknown as { readChrome(e: Element): { ink: string; surface: string; line: string } }).readChrome(document.getElementById("root")!));
+    const setTheme = (theme: string | null) => page.evaluate((t) => (t ? document.documentElement.setAttribute("data-theme", t) : document.documentElement.removeAttribute("data-theme")), theme);
+    // --kd-ink, --kd-surface and --kd-line of app/globals.css: light halves, then dark halves.
+    const light = { ink: "#161b24", surface: "#ffffff", line: "#d8d3c7" };
+    const dark = { ink: "#e9e6df", surface: "#161b26", line: "#2c3445" };
+    await setTheme("dark");
+    expect(await chrome()).toMatchObject(dark);
+    await setTheme("light");
+    expect(await chrome()).toMatchObject(light);
+    // Without a stored choice the operating system's preference decides.
+    await setTheme(null);
+    await page.emulateMedia({ colorScheme: "dark" });
+    expect(await chrome()).toMatchObject(dark);
+    await page.emulateMedia({ colorScheme: "light" });
+    expect(await chrome()).toMatchObject(light);
   });
 });

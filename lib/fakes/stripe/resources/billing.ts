@@ -1,5 +1,5 @@
 import { cardOutcome, storedCardOutcome, type CardOutcome } from "../cards";
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { cardDeclined, invalidParam, invalidRequest } from "../errors";
 import { decimalToNumber, lineAmountCents, sumDecimal } from "../money";
 import { applyMetadata, type Params } from "../params";
@@ -84,8 +84,8 @@ export function setMeterActive(ctx: Ctx, params: Params, id: string, active: boo
 
 export function listMeters(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "status"]);
-  const status = params.string("status", { oneOf: ["active", "inactive"] });
-  const items = ctx.store.newestFirst("meters").filter((m) => status === undefined || m.status === status);
+  const matches = fieldsEqual({ status: params.string("status", { oneOf: ["active", "inactive"] }) });
+  const items = ctx.store.newestFirst("meters").filter(matches);
   return { body: paginate(items, params, "/v1/billing/meters", "billing.meter") };
 }
 
@@ -430,16 +430,15 @@ export function listSubscriptions(ctx: Ctx, params: Params): HandlerResult {
   const customer = params.string("customer");
   const price = params.string("price");
   const status = params.string("status", { oneOf: ["active", "past_due", "unpaid", "canceled", "incomplete", "incomplete_expired", "trialing", "paused", "all", "ended"] });
-  const collectionMethod = params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] });
+  const matches = fieldsEqual({ customer, collection_method: params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] }) });
   const created = createdFilter(params);
   const items = ctx.store.newestFirst("subscriptions").filter((s) => {
     // Stripe's default list leaves out canceled subscriptions.
     const statusOk = status === "all" ? true : status === "ended" ? s.status === "canceled" : status === undefined ? s.status !== "canceled" : s.status === status;
     return (
       statusOk &&
-      (customer === undefined || s.customer === customer) &&
+      matches(s) &&
       (price === undefined || subscriptionItems(s).some((it) => (it.price as StripeObject).id === price)) &&
-      (collectionMethod === undefined || s.collection_method === collectionMethod) &&
       created(s)
     );
   });
@@ -600,32 +599,21 @@ export function invoiceSubscriptionPeriod(ctx: Ctx, sub: StripeObject, periodEnd
     const product = ctx.store.get("products", price.product as string);
     const productName = (product?.name as string | undefined) ?? "usage";
     const isWhole = /^\d+$/.test(quantity);
-    return {
-      id: newId("il", 24),
-      object: "line_item",
+    return invoiceLine(invoice.id, {
       amount,
       currency: price.currency,
       description: `${quantity} × ${productName} (at ${price.unit_amount_decimal} ${String(price.currency).toUpperCase()} cents / unit)`,
-      discount_amounts: [],
-      discountable: true,
-      discounts: [],
-      invoice: invoice.id,
-      livemode: false,
-      metadata: {},
       parent: {
         invoice_item_details: null,
         subscription_item_details: { invoice_item: null, proration: false, proration_details: { credited_items: null }, subscription: sub.id, subscription_item: item.id },
         type: "subscription_item_details",
       },
       period: { end: periodEnd, start: periodStart },
-      pretax_credit_amounts: [],
       pricing: { price_details: { price: price.id, product: price.product }, type: "price_details", unit_amount_decimal: price.unit_amount_decimal },
       quantity: isWhole ? Number(quantity) : null,
       quantity_decimal: quantity,
       subscription: sub.id,
-      subtotal: amount,
-      taxes: [],
-    } satisfies StripeObject;
+    });
   });
   // Pending invoice items of this subscription (or of the customer with none named) each become their own line.
   for (const pending of ctx.store.newestFirst("invoiceitems").reverse()) {
@@ -768,17 +756,15 @@ export function listInvoices(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "subscription", "status", "created", "collection_method", "due_date"]);
   const customer = params.string("customer");
   const subscription = params.string("subscription");
-  const status = params.string("status", { oneOf: ["draft", "open", "paid", "uncollectible", "void"] });
-  const collectionMethod = params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] });
+  const matches = fieldsEqual({
+    customer,
+    status: params.string("status", { oneOf: ["draft", "open", "paid", "uncollectible", "void"] }),
+    collection_method: params.string("collection_method", { oneOf: ["charge_automatically", "send_invoice"] }),
+  });
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("invoices").filter(
-    (inv) =>
-      (customer === undefined || inv.customer === customer) &&
-      (subscription === undefined || (inv.parent as { subscription_details?: { subscription: string } } | null)?.subscription_details?.subscription === subscription) &&
-      (status === undefined || inv.status === status) &&
-      (collectionMethod === undefined || inv.collection_method === collectionMethod) &&
-      created(inv),
-  );
+  const items = ctx.store
+    .newestFirst("invoices")
+    .filter((inv) => matches(inv) && (subscription === undefined || (inv.parent as { subscription_details?: { subscription: string } } | null)?.subscription_details?.subscription === subscription) && created(inv));
   return { body: paginate(items, params, "/v1/invoices", "invoice") };
 }
 
@@ -1010,13 +996,10 @@ export function retrieveInvoiceItem(ctx: Ctx, params: Params, id: string): Handl
 
 export function listInvoiceItems(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "invoice", "pending", "created"]);
-  const customer = params.string("customer");
-  const invoice = params.string("invoice");
+  const matches = fieldsEqual({ customer: params.string("customer"), invoice: params.string("invoice") });
   const pending = params.boolean("pending");
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("invoiceitems").filter(
-    (ii) => (customer === undefined || ii.customer === customer) && (invoice === undefined || ii.invoice === invoice) && (pending === undefined || (ii.invoice === null) === pending) && created({ ...ii, created: ii.date }),
-  );
+  const items = ctx.store.newestFirst("invoiceitems").filter((ii) => matches(ii) && (pending === undefined || (ii.invoice === null) === pending) && created({ ...ii, created: ii.date }));
   return { body: paginate(items, params, "/v1/invoiceitems", "invoiceitem") };
 }
 
@@ -1024,17 +1007,11 @@ export function listInvoiceItems(ctx: Ctx, params: Params): HandlerResult {
 function invoiceItemLine(item: StripeObject, invoiceId: string): StripeObject {
   const unit = (item.pricing as { unit_amount_decimal: string } | null)?.unit_amount_decimal ?? null;
   const sub = (item.parent as { subscription_details: { subscription: string } } | null)?.subscription_details?.subscription ?? null;
-  return {
-    id: newId("il", 24),
-    object: "line_item",
-    amount: item.amount,
+  return invoiceLine(invoiceId, {
+    amount: item.amount as number,
     currency: item.currency,
     description: item.description,
-    discount_amounts: [],
     discountable: item.discountable,
-    discounts: [],
-    invoice: invoiceId,
-    livemode: false,
     metadata: clone(item.metadata),
     parent: {
       invoice_item_details: { invoice_item: item.id, proration: false, proration_details: { credited_items: null }, subscription: sub },
@@ -1042,12 +1019,42 @@ function invoiceItemLine(item: StripeObject, invoiceId: string): StripeObject {
       type: "invoice_item_details",
     },
     period: clone(item.period),
-    pretax_credit_amounts: [],
     pricing: { price_details: null, type: null, unit_amount_decimal: unit },
     quantity: item.quantity,
     quantity_decimal: String(item.quantity),
     subscription: sub,
-    subtotal: item.amount,
+  });
+}
+
+/**
+ * An invoice line (Stripe's `line_item`): the caller gives what sets this line apart; the rest —
+ * no discounts, no taxes, the subtotal equal to the amount — is the same for every line the fake writes.
+ */
+export function invoiceLine(
+  invoiceId: string,
+  line: { amount: number; currency: unknown; description: unknown; discountable?: unknown; metadata?: unknown; parent: unknown; period: unknown; pricing: unknown; quantity: unknown; quantity_decimal: string; subscription?: unknown },
+): StripeObject {
+  return {
+    id: newId("il", 24),
+    object: "line_item",
+    amount: line.amount,
+    currency: line.currency,
+    description: line.description,
+    discount_amounts: [],
+    discountable: line.discountable ?? true,
+    discounts: [],
+    invoice: invoiceId,
+    livemode: false,
+    metadata: line.metadata ?? {},
+    parent: line.parent,
+    period: line.period,
+    pretax_credit_amounts: [],
+    pricing: line.pricing,
+    quantity: line.quantity,
+    quantity_decimal: line.quantity_decimal,
+    // Lines of a checkout's invoice carry no subscription key at all.
+    ...("subscription" in line ? { subscription: line.subscription } : {}),
+    subtotal: line.amount,
     taxes: [],
   };
 }

@@ -1,4 +1,4 @@
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, resourceMissing } from "../errors";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
@@ -186,11 +186,11 @@ export function deleteCustomer(ctx: Ctx, params: Params, id: string): HandlerRes
 
 export function listCustomers(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "email", "created"]);
-  const email = params.string("email", { max: 512 });
+  const matches = fieldsEqual({ email: params.string("email", { max: 512 }) });
   const created = createdFilter(params);
   const items = ctx.store
     .newestFirst("customers")
-    .filter((c) => !c.deleted && (email === undefined || c.email === email) && created(c));
+    .filter((c) => !c.deleted && matches(c) && created(c));
   return { body: paginate(items, params, "/v1/customers", "customer") };
 }
 
@@ -307,12 +307,12 @@ export function updateProduct(ctx: Ctx, params: Params, id: string): HandlerResu
 
 export function listProducts(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "active", "created", "ids"]);
-  const active = params.boolean("active");
+  const matches = fieldsEqual({ active: params.boolean("active") });
   const ids = params.stringArray("ids");
   const created = createdFilter(params);
   const items = ctx.store
     .newestFirst("products")
-    .filter((p) => (active === undefined || p.active === active) && (!ids || ids.includes(p.id)) && created(p));
+    .filter((p) => matches(p) && (!ids || ids.includes(p.id)) && created(p));
   return { body: paginate(items, params, "/v1/products", "product") };
 }
 
@@ -448,20 +448,19 @@ export function updatePrice(ctx: Ctx, params: Params, id: string): HandlerResult
 
 export function listPrices(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "active", "product", "type", "currency", "lookup_keys", "created", "recurring"]);
-  const active = params.boolean("active");
-  const product = params.string("product");
-  const type = params.string("type", { oneOf: ["one_time", "recurring"] });
-  const currency = params.string("currency");
+  const matches = fieldsEqual({
+    active: params.boolean("active"),
+    product: params.string("product"),
+    type: params.string("type", { oneOf: ["one_time", "recurring"] }),
+    currency: params.string("currency"),
+  });
   const lookupKeys = params.stringArray("lookup_keys");
   const created = createdFilter(params);
   const items = ctx.store
     .newestFirst("prices")
     .filter(
       (p) =>
-        (active === undefined || p.active === active) &&
-        (product === undefined || p.product === product) &&
-        (type === undefined || p.type === type) &&
-        (currency === undefined || p.currency === currency) &&
+        matches(p) &&
         (!lookupKeys || lookupKeys.includes(p.lookup_key as string)) &&
         created(p),
     );

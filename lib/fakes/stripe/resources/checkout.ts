@@ -1,12 +1,12 @@
 import { cardOutcome, DISPUTED_CARDS, normalizeCardNumber, type CardOutcome } from "../cards";
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { lineAmountCents } from "../money";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
 import { createCharge, openDispute, settleCharge } from "./payments";
 import { currencyParam, insertPrice, insertProduct, newCustomerObject, paymentMethodObject, readUnitAmount } from "./catalog";
-import { baseInvoice, finalizeInvoiceObject, markPaid, setInvoiceLines } from "./billing";
+import { baseInvoice, finalizeInvoiceObject, invoiceLine, markPaid, setInvoiceLines } from "./billing";
 
 const SESSION_KEYS = [
   "mode",
@@ -247,27 +247,18 @@ function invoiceForPaidSession(ctx: Ctx, session: StripeObject): void {
   invoice.currency = session.currency;
   if (creation.invoice_data.custom_fields) invoice.custom_fields = clone(creation.invoice_data.custom_fields);
   invoice.footer = creation.invoice_data.footer;
-  const lines = (ctx.store.data.session_line_items[session.id] ?? []).map((li) => ({
-    id: newId("il", 24),
-    object: "line_item",
-    amount: li.amount_total,
-    currency: li.currency,
-    description: li.description,
-    discount_amounts: [],
-    discountable: true,
-    discounts: [],
-    invoice: invoice.id,
-    livemode: false,
-    metadata: {},
-    parent: null,
-    period: { end: ctx.now, start: ctx.now },
-    pretax_credit_amounts: [],
-    pricing: { price_details: { price: (li.price as StripeObject).id, product: (li.price as StripeObject).product }, type: "price_details", unit_amount_decimal: (li.price as StripeObject).unit_amount_decimal },
-    quantity: li.quantity,
-    quantity_decimal: String(li.quantity),
-    subtotal: li.amount_total,
-    taxes: [],
-  }));
+  const lines = (ctx.store.data.session_line_items[session.id] ?? []).map((li) =>
+    invoiceLine(invoice.id, {
+      amount: li.amount_total as number,
+      currency: li.currency,
+      description: li.description,
+      parent: null,
+      period: { end: ctx.now, start: ctx.now },
+      pricing: { price_details: { price: (li.price as StripeObject).id, product: (li.price as StripeObject).product }, type: "price_details", unit_amount_decimal: (li.price as StripeObject).unit_amount_decimal },
+      quantity: li.quantity,
+      quantity_decimal: String(li.quantity),
+    }),
+  );
   setInvoiceLines(invoice, lines);
   ctx.store.insert("invoices", invoice);
   session.invoice = invoice.id;
@@ -293,20 +284,12 @@ export function retrieveSession(ctx: Ctx, params: Params, id: string): HandlerRe
 
 export function listSessions(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "customer", "payment_intent", "status", "created", "customer_details"]);
-  const customer = params.string("customer");
-  const paymentIntent = params.string("payment_intent");
-  const status = params.string("status", { oneOf: ["open", "complete", "expired"] });
+  const matches = fieldsEqual({ customer: params.string("customer"), payment_intent: params.string("payment_intent"), status: params.string("status", { oneOf: ["open", "complete", "expired"] }) });
   const created = createdFilter(params);
   const items = ctx.store
     .newestFirst("checkout_sessions")
     .map((s) => refreshExpiry(ctx, s))
-    .filter(
-      (s) =>
-        (customer === undefined || s.customer === customer) &&
-        (paymentIntent === undefined || s.payment_intent === paymentIntent) &&
-        (status === undefined || s.status === status) &&
-        created(s),
-    );
+    .filter((s) => matches(s) && created(s));
   return { body: paginate(items, params, "/v1/checkout/sessions", "checkout.session") };
 }
 

@@ -5,7 +5,7 @@
  * (Stripe's own test cards open them after payment; `charge.dispute.created` / `…closed`).
  * Shapes follow Stripe's API reference and the SDK's types (node_modules/stripe/esm/resources).
  */
-import { clone, createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
+import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { applyMetadata, type Params } from "../params";
 import { newId, type StripeObject } from "../store";
@@ -113,10 +113,9 @@ export function retrieveRefund(ctx: Ctx, params: Params, id: string): HandlerRes
 
 export function listRefunds(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "charge", "payment_intent", "created"]);
-  const charge = params.string("charge");
-  const pi = params.string("payment_intent");
+  const matches = fieldsEqual({ charge: params.string("charge"), payment_intent: params.string("payment_intent") });
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("refunds").filter((r) => (charge === undefined || r.charge === charge) && (pi === undefined || r.payment_intent === pi) && created(r));
+  const items = ctx.store.newestFirst("refunds").filter((r) => matches(r) && created(r));
   return { body: paginate(items, params, "/v1/refunds", "refund") };
 }
 
@@ -127,10 +126,9 @@ export function retrieveDispute(ctx: Ctx, params: Params, id: string): HandlerRe
 
 export function listDisputes(ctx: Ctx, params: Params): HandlerResult {
   params.allowOnly(["limit", "starting_after", "ending_before", "charge", "payment_intent", "created"]);
-  const charge = params.string("charge");
-  const pi = params.string("payment_intent");
+  const matches = fieldsEqual({ charge: params.string("charge"), payment_intent: params.string("payment_intent") });
   const created = createdFilter(params);
-  const items = ctx.store.newestFirst("disputes").filter((d) => (charge === undefined || d.charge === charge) && (pi === undefined || d.payment_intent === pi) && created(d));
+  const items = ctx.store.newestFirst("disputes").filter((d) => matches(d) && created(d));
   return { body: paginate(items, params, "/v1/disputes", "dispute") };
 }
 
