@@ -339,24 +339,13 @@ export class ContactField implements ForceField {
 
   /** The uniform grid every step, one cutoff wide (no list): for a state the list cannot take. */
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {
-    const { count, x, y } = bodies;
-    let minX = Infinity;
-    let minY = Infinity;
-    let maxX = -Infinity;
-    let maxY = -Infinity;
-    for (let i = 0; i < count; i++) {
-      if (x[i] < minX) minX = x[i];
-      if (x[i] > maxX) maxX = x[i];
-      if (y[i] < minY) minY = y[i];
-      if (y[i] > maxY) maxY = y[i];
-    }
-    if (!(maxX - minX < Infinity && maxY - minY < Infinity)) {
+    const count = bodies.count;
+    const broad = this.broad;
+    if (!broad.layOutGridOverBodies(bodies, cutoffM, false)) {
       // Non-finite positions: the run is exploding; fall back to the plain loop for this pass.
       this.pairsAllPairs(bodies);
       return;
     }
-    const broad = this.broad;
-    broad.layOutGrid(bodies, minX, minY, maxX - minX, maxY - minY, cutoffM);
     for (let i = 0; i < count; i++) {
       const candidateCount = broad.gatherCandidates(bodies, i, false, 0);
       const candidates = broad.candidates;
