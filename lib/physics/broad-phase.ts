@@ -103,7 +103,7 @@ export class BroadPhase {
    * (spanX, spanY), widened until there are no more cells than a few per body. Stable placement
    * keeps each cell's bodies in ascending index order.
    */
-  layOutGrid(bodies: Bodies, minX: number, minY: number, spanX: number, spanY: number, cellSizeM: number): void {
+  private layOutGrid(bodies: Bodies, minX: number, minY: number, spanX: number, spanY: number, cellSizeM: number): void {
     const { count, x, y } = bodies;
     const maxCells = 4 * count + 16;
     let sizeM = Math.max(cellSizeM, 1e-300);
@@ -132,6 +132,31 @@ export class BroadPhase {
     cellStart[0] = 0;
     this.cellsX = cellsX;
     this.cellsY = cellsY;
+  }
+
+  /**
+   * `layOutGrid` over the box around the bodies' centres. False, with no layout, when that box is
+   * not finite, or, with `everyCentreFinite`, when a centre is not finite (a NaN centre does not
+   * widen the box: without the flag it is laid out as before, where the run is exploding anyway).
+   */
+  layOutGridOverBodies(bodies: Bodies, cellSizeM: number, everyCentreFinite: boolean): boolean {
+    const { count, x, y } = bodies;
+    let minX = Infinity;
+    let minY = Infinity;
+    let maxX = -Infinity;
+    let maxY = -Infinity;
+    for (let i = 0; i < count; i++) {
+      const xi = x[i];
+      const yi = y[i];
+      if (everyCentreFinite && !(xi - xi === 0 && yi - yi === 0)) return false;
+      if (xi < minX) minX = xi;
+      if (xi > maxX) maxX = xi;
+      if (yi < minY) minY = yi;
+      if (yi > maxY) maxY = yi;
+    }
+    if (!(maxX - minX < Infinity && maxY - minY < Infinity)) return false;
+    this.layOutGrid(bodies, minX, minY, maxX - minX, maxY - minY, cellSizeM);
+    return true;
   }
 
   /**
@@ -181,22 +206,8 @@ export class BroadPhase {
    * false (no list) when a position or the reach is not finite.
    */
   buildNeighbourList(bodies: Bodies, reachM: number, maxRadius: number, wallNormalX: readonly number[], wallNormalY: readonly number[], wallOffset: readonly number[]): boolean {
+    if (!(reachM < Infinity) || !this.layOutGridOverBodies(bodies, reachM, true)) return false;
     const { count, x, y } = bodies;
-    let minX = Infinity;
-    let minY = Infinity;
-    let maxX = -Infinity;
-    let maxY = -Infinity;
-    for (let i = 0; i < count; i++) {
-      const xi = x[i];
-      const yi = y[i];
-      if (!(xi - xi === 0 && yi - yi === 0)) return false;
-      if (xi < minX) minX = xi;
-      if (xi > maxX) maxX = xi;
-      if (yi < minY) minY = yi;
-      if (yi > maxY) maxY = yi;
-    }
-    if (!(reachM < Infinity) || !(maxX - minX < Infinity && maxY - minY < Infinity)) return false;
-    this.layOutGrid(bodies, minX, minY, maxX - minX, maxY - minY, reachM);
     if (this.listStart.length < count + 1) {
       this.listStart = new Int32Array(count + 1);
       this.listEnd = new Int32Array(count);

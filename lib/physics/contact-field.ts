@@ -26,6 +26,7 @@
 import type { Bodies } from "./bodies";
 import type { ForceField } from "./integrators";
 import { BroadPhase, NEIGHBOUR_LIST_SKIN_FRACTION } from "./broad-phase";
+import { contactCutoffM, contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
 import { NO_TANGENTIAL, TangentialContacts, tangentialActive, type TangentialParameters } from "./tangential";
 
 export const CONTACT_LINEAR = 0;
@@ -49,7 +50,7 @@ export const TUNNEL_THROUGH_WALL = 4;
 /**
  * Depth, as a fraction of the smaller radius, by which a step's straight-line relative motion must
  * cut into contact before a contact counts as skipped (our choice: far above rounding and the
- * chord error of a resting pile, far below any pass-through; see checkSkippedContact).
+ * chord error of a resting pile, far below any pass-through; see skippedContact in contact-geometry.ts).
  */
 export const SKIPPED_CONTACT_DEPTH_FRACTION = 1e-3;
 
@@ -154,9 +155,9 @@ export class ContactField implements ForceField {
   /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
   frictional = false;
   /**
-   * Linear law without a tangential one: pairs and walls go through linearPairRows / wallsLinear, the
-   * same arithmetic as pair / walls with normalForce and the damping inlined (no double arguments
-   * to box on the heap, no calls in the per-contact path).
+   * Linear law without a tangential one: pairs go through linearPairRows, the same arithmetic as
+   * pair with normalForce and the damping inlined (no double arguments to box on the heap, no calls
+   * in the per-contact path); walls call linearNormalForce rather than normalForce.
    */
   private linearFrictionless = false;
   readonly tangential = new TangentialContacts();
@@ -273,14 +274,13 @@ export class ContactField implements ForceField {
         driftSum += squared;
       }
     }
-    const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
+    const cutoffM = contactCutoffM(maxRadius, maxDisplacementSquared);
     this.cutoffSquaredM2 = cutoffM * cutoffM;
 
     if (grid) this.pairsByNeighbourList(bodies, cutoffM, maxRadius, checkList, driftSquared, driftSum);
     else this.pairsAllPairs(bodies);
     if (this.wallCount > 0) {
-      if (this.linearFrictionless) this.wallsLinear(bodies);
-      else this.walls(bodies);
+      this.walls(bodies);
     }
     if (this.frictional) this.pass[PASS_POTENTIAL_J] += this.tangential.springPotentialJ;
 
@@ -339,24 +339,13 @@ export class ContactField implements ForceField {
 
   /** The uniform grid every step, one cutoff wide (no list): for a state the list cannot take. */
   private pairsByGrid(bodies: Bodies, cutoffM: number): void {
-    const { count, x, y } = bodies;
-    let minX = Infinity;
-    let minY = Infinity;
-    let maxX = -Infinity;
-    let maxY = -Infinity;
-    for (let i = 0; i < count; i++) {
-      if (x[i] < minX) minX = x[i];
-      if (x[i] > maxX) maxX = x[i];
-      if (y[i] < minY) minY = y[i];
-      if (y[i] > maxY) maxY = y[i];
-    }
-    if (!(maxX - minX < Infinity && maxY - minY < Infinity)) {
+    const count = bodies.count;
+    const broad = this.broad;
+    if (!broad.layOutGridOverBodies(bodies, cutoffM, false)) {
       // Non-finite positions: the run is exploding; fall back to the plain loop for this pass.
       this.pairsAllPairs(bodies);
       return;
     }
-    const broad = this.broad;
-    broad.layOutGrid(bodies, minX, minY, maxX - minX, maxY - minY, cutoffM);
     for (let i = 0; i < count; i++) {
       const candidateCount = broad.gatherCandidates(bodies, i, false, 0);
       const candidates = broad.candidates;
@@ -375,29 +364,21 @@ export class ContactField implements ForceField {
     const contactDistanceSquared = contactDistance * contactDistance;
     if (distanceSquared >= contactDistanceSquared) {
       if (distanceSquared >= this.cutoffSquaredM2) return;
-      this.checkSkippedContact(bodies, i, j, dx, dy, contactDistanceSquared);
+      if (skippedContact(dx, dy, previousX[j] - previousX[i], previousY[j] - previousY[i], contactDistanceSquared, this.nearMissDepthFraction, radius[i] < radius[j] ? radius[i] : radius[j])) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
       return;
     }
     const previousDx = previousX[j] - previousX[i];
     const previousDy = previousY[j] - previousY[i];
     const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
     const distance = Math.sqrt(distanceSquared);
-    let normalX: number;
-    let normalY: number;
-    if (distance > 0) {
-      normalX = dx / distance;
-      normalY = dy / distance;
-    } else {
-      // Coincident centres: push apart along the last direction of approach (or x).
-      const previousDistance = Math.sqrt(previousDistanceSquared);
-      normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
-      normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
-      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
-    }
+    const normalX = contactNormal(dx, distance, previousDx, previousDistanceSquared, 1);
+    const normalY = contactNormal(dy, distance, previousDy, previousDistanceSquared, 0);
+    // Coincident centres: pushed apart along the last direction of approach (or x).
+    if (!(distance > 0)) this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
     if (previousDistanceSquared >= contactDistanceSquared) {
       // New contact: entering it while already receding means the step jumped past the approach,
-      // unless the approach it jumped past only grazed contact (see checkSkippedContact).
-      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radius[i], radius[j], contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+      // unless the approach it jumped past only grazed contact (see skippedContact).
+      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && passedDeeperThanTolerance(contactDistance, this.nearMissDepthFraction, radius[i] < radius[j] ? radius[i] : radius[j], previousDx, previousDy, dx - previousDx, dy - previousDy)) {
         this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
       }
     } else if (dx * previousDx + dy * previousDy <= 0) {
@@ -440,7 +421,7 @@ export class ContactField implements ForceField {
    * shapes had run in a process (a pair sweep primes its forces here, all pairs), the pile's loop
    * ran about a quarter slower than in a fresh process. The same operations in the same order as
    * pair() for each pair, with
-   * checkSkippedContact, normalForce and dampingCoefficient written out, body i's values and force
+   * normalForce and dampingCoefficient written out, body i's values and force
    * held in locals across its row (no other pair of the row touches them), the pass's sums and
    * maxima in locals, and trackFirstContact called only when it can record something. Results are
    * byte-identical to pair()'s.
@@ -494,41 +475,19 @@ export class ContactField implements ForceField {
         const contactDistanceSquared = contactDistance * contactDistance;
         if (distanceSquared >= contactDistanceSquared) {
           if (distanceSquared >= cutoffSquared) continue;
-          // checkSkippedContact.
-          const previousDx = previousX[j] - previousXi;
-          const previousDy = previousY[j] - previousYi;
-          if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) continue;
-          const stepX = dx - previousDx;
-          const stepY = dy - previousDy;
-          const stepSquared = stepX * stepX + stepY * stepY;
-          if (stepSquared === 0) continue;
-          const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
-          if (along <= 0 || along >= 1) continue;
-          const closestX = previousDx + along * stepX;
-          const closestY = previousDy + along * stepY;
-          const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
-          const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
-          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+          if (skippedContact(dx, dy, previousX[j] - previousXi, previousY[j] - previousYi, contactDistanceSquared, nearMissDepthFraction, radiusI < radiusJ ? radiusI : radiusJ)) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
           continue;
         }
         const previousDx = previousX[j] - previousXi;
         const previousDy = previousY[j] - previousYi;
         const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
         const distance = Math.sqrt(distanceSquared);
-        let normalX: number;
-        let normalY: number;
-        if (distance > 0) {
-          normalX = dx / distance;
-          normalY = dy / distance;
-        } else {
-          const previousDistance = Math.sqrt(previousDistanceSquared);
-          normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
-          normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
-          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
-        }
+        const normalX = contactNormal(dx, distance, previousDx, previousDistanceSquared, 1);
+        const normalY = contactNormal(dy, distance, previousDy, previousDistanceSquared, 0);
+        if (!(distance > 0)) this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
         const isNewContact = previousDistanceSquared >= contactDistanceSquared;
         if (isNewContact) {
-          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radiusI, radiusJ, contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && passedDeeperThanTolerance(contactDistance, nearMissDepthFraction, radiusI < radiusJ ? radiusI : radiusJ, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
             this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
           }
         } else if (dx * previousDx + dy * previousDy <= 0) {
@@ -590,51 +549,11 @@ export class ContactField implements ForceField {
     this.pass[PASS_MAX_OVERLAP_M] = maxOverlapM;
     this.pass[PASS_MAX_OMEGA_SQUARED] = maxOmegaSquared;
   }
-  /**
-   * A skipped contact: neither end of the step overlaps, but the straight line between them comes
-   * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
-   * The tolerance keeps near misses out: in a resting pile neighbours sit nanometres apart, and the
-   * chord between two step ends of a curved (accelerated) path dips below the true path by up to
-   * |Δv|·h/8, so a straight line that grazes contact by that much is no body passing another.
-   * A body that does pass through another misses by (1 − f) of the sum of radii (f the impact
-   * offset), so only passes within 1/1000 of a radius of grazing are no longer called tunnels.
-   */
-  private checkSkippedContact(bodies: Bodies, i: number, j: number, dx: number, dy: number, contactDistanceSquared: number): void {
-    const { previousX, previousY, radius } = bodies;
-    const previousDx = previousX[j] - previousX[i];
-    const previousDy = previousY[j] - previousY[i];
-    if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return; // contact ended this step
-    const stepX = dx - previousDx;
-    const stepY = dy - previousDy;
-    const stepSquared = stepX * stepX + stepY * stepY;
-    if (stepSquared === 0) return;
-    const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
-    if (along <= 0 || along >= 1) return;
-    const closestX = previousDx + along * stepX;
-    const closestY = previousDy + along * stepY;
-    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
-    const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
-    if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
-  }
-
-  /**
-   * Whether the straight-line relative motion of a step (from (startX, startY) by (stepX, stepY))
-   * came closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
-   */
-  private passedDeeperThanTolerance(radiusA: number, radiusB: number, contactDistance: number, startX: number, startY: number, stepX: number, stepY: number): boolean {
-    const stepSquared = stepX * stepX + stepY * stepY;
-    let along = stepSquared > 0 ? -(startX * stepX + startY * stepY) / stepSquared : 0;
-    if (along < 0) along = 0;
-    else if (along > 1) along = 1;
-    const closestX = startX + along * stepX;
-    const closestY = startY + along * stepY;
-    const depthLimit = contactDistance - this.nearMissDepthFraction * (radiusA < radiusB ? radiusA : radiusB);
-    return closestX * closestX + closestY * closestY < depthLimit * depthLimit;
-  }
 
   private walls(bodies: Bodies): void {
     const pass = this.pass;
-    const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
+    const linear = this.linearFrictionless;
+    const { x, y, vx, vy, radius, mass } = bodies;
     const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
     const { wallBand, wallBandUsable: banded } = this.broad;
     const count = banded ? this.broad.wallBandCount : bodies.count;
@@ -648,84 +567,42 @@ export class ContactField implements ForceField {
         if (overlap <= 0) continue;
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
-        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
+        const force = linear ? this.linearNormalForce(overlap, overlapRate, mass[i]) : this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
         const omegaSquared = this.lastStiffnessNPerM / mass[i];
         if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
-        if (force > 0) {
-          fx[i] += force * normalX;
-          fy[i] += force * normalY;
-          pass[PASS_WALL_FORCE_X_N] += force * normalX;
-          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
-        }
+        this.wallContact(bodies, i, w, normalX, normalY, overlap, overlapRate, force);
         if (this.frictional) {
+          // After the normal push (the tangential law neither reads the forces nor the pass's counts).
           const tangentialForce = this.tangential.wall(bodies, i, w, normalX, normalY, centreDistance, force > 0 ? force : 0, this.lastStiffnessNPerM);
           pass[PASS_WALL_FORCE_X_N] -= tangentialForce * normalY;
           pass[PASS_WALL_FORCE_Y_N] += tangentialForce * normalX;
-        }
-        pass[PASS_OVERLAPPING_CONTACTS]++;
-        const fraction = overlap / radius[i];
-        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
-        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
-        const phase = this.run.firstContactPhase;
-        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
-          const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
-          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }
   }
 
-  /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
-  private wallsLinear(bodies: Bodies): void {
+  /**
+   * The part of a disc–wall contact that follows its normal force (walls()):
+   * the push (clamped at zero) on the disc and into the pass's wall force, the pass's counts and
+   * maxima, and the first contact.
+   */
+  private wallContact(bodies: Bodies, i: number, w: number, normalX: number, normalY: number, overlap: number, overlapRate: number, force: number): void {
     const pass = this.pass;
-    const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
-    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
-    const k = this.stiffness;
-    const { wallBand, wallBandUsable: banded } = this.broad;
-    const count = banded ? this.broad.wallBandCount : bodies.count;
-    for (let b = 0; b < count; b++) {
-      const i = banded ? wallBand[b] : b;
-      for (let w = 0; w < wallCount; w++) {
-        const normalX = wallNormalX[w];
-        const normalY = wallNormalY[w];
-        const centreDistance = normalX * x[i] + normalY * y[i] - wallOffset[w];
-        const overlap = radius[i] - centreDistance;
-        if (overlap <= 0) continue;
-        if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
-        const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
-        const reducedMass = mass[i];
-        // normalForce, linear.
-        this.lastStiffnessNPerM = k;
-        if (overlap > 0) pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
-        let damping = 0;
-        if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
-        else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
-          if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
-            this.memoReducedMass = reducedMass;
-            this.memoStiffness = k;
-            this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
-          }
-          damping = this.memoDamping;
-        }
-        const force = k * overlap + damping * overlapRate;
-        const omegaSquared = k / reducedMass;
-        if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
-        if (force > 0) {
-          fx[i] += force * normalX;
-          fy[i] += force * normalY;
-          pass[PASS_WALL_FORCE_X_N] += force * normalX;
-          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
-        }
-        pass[PASS_OVERLAPPING_CONTACTS]++;
-        const fraction = overlap / radius[i];
-        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
-        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
-        const phase = this.run.firstContactPhase;
-        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
-          const previousOverlap = radius[i] - (normalX * previousX[i] + normalY * previousY[i] - wallOffset[w]);
-          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
-        }
-      }
+    const { fx, fy, radius } = bodies;
+    if (force > 0) {
+      fx[i] += force * normalX;
+      fy[i] += force * normalY;
+      pass[PASS_WALL_FORCE_X_N] += force * normalX;
+      pass[PASS_WALL_FORCE_Y_N] += force * normalY;
+    }
+    pass[PASS_OVERLAPPING_CONTACTS]++;
+    const fraction = overlap / radius[i];
+    if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+    if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
+    const phase = this.run.firstContactPhase;
+    if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
+      const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - this.wallOffset[w]);
+      if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
     }
   }
 
@@ -735,13 +612,8 @@ export class ContactField implements ForceField {
    * interpolated; the potential is only counted for real overlaps.
    */
   private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number, modulusFactorPa: number): number {
+    if (this.model === CONTACT_LINEAR) return this.linearNormalForce(overlap, overlapRate, reducedMass);
     const magnitude = overlap < 0 ? -overlap : overlap;
-    if (this.model === CONTACT_LINEAR) {
-      const k = this.stiffness;
-      this.lastStiffnessNPerM = k;
-      if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
-      return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
-    }
     let k = this.stiffness;
     if (modulusFactorPa > 0) {
       if (effectiveRadius !== this.memoEffectiveRadius || modulusFactorPa !== this.memoModulusFactor) {
@@ -760,6 +632,18 @@ export class ContactField implements ForceField {
     this.lastHertzStiffness = k;
     this.lastHertzDamping = eta;
     return (overlap >= 0 ? springMagnitude : -springMagnitude) + eta * Math.sqrt(root) * overlapRate;
+  }
+
+  /**
+   * normalForce under the linear law. Small and of numbers alone, so that walls() calls it directly
+   * for a linear law without friction and the compiler inlines it there (a call it does not inline
+   * boxes its double arguments on the heap).
+   */
+  private linearNormalForce(overlap: number, overlapRate: number, reducedMass: number): number {
+    const k = this.stiffness;
+    this.lastStiffnessNPerM = k;
+    if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
+    return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
   }
 
   /** c (linear) or η (Hertz) for a contact; remembered for the last (mass, stiffness) pair, as most contacts repeat it. */

@@ -11,12 +11,10 @@ import { linearDampingRatioOverlapCriterion, linearRestitutionForDampingRatio } 
  * ζ = 0 towards 0 as ζ → ∞).
  */
 export function linearDampingRatioForRestitution(restitution: number): number {
-  if (!(restitution > 0 && restitution <= 1)) {
-    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
-  }
-  if (restitution === 1) return 0;
-  const cached = linearRatioCache.get(restitution);
-  if (cached !== undefined) return cached;
+  return cachedConversion(linearRatioCache, restitution, solveLinearDampingRatio);
+}
+
+function solveLinearDampingRatio(restitution: number): number {
   let low = 0;
   let high = 1;
   while (linearRestitutionForDampingRatio(high) > restitution) high *= 2;
@@ -25,9 +23,7 @@ export function linearDampingRatioForRestitution(restitution: number): number {
     if (linearRestitutionForDampingRatio(middle) > restitution) low = middle;
     else high = middle;
   }
-  const ratio = 0.5 * (low + high);
-  rememberConversion(linearRatioCache, restitution, ratio);
-  return ratio;
+  return 0.5 * (low + high);
 }
 
 const linearRatioCache = new Map<number, number>();
@@ -38,6 +34,22 @@ const MAX_CACHED_CONVERSIONS = 4096;
 function rememberConversion(cache: Map<number, number>, key: number, value: number): void {
   if (cache.size >= MAX_CACHED_CONVERSIONS) cache.clear();
   cache.set(key, value);
+}
+
+/**
+ * The damping for restitution e in (0, 1] (a RangeError naming the value otherwise): 0 for e = 1
+ * (no damping), else `solve(e)`, remembered in `cache`.
+ */
+function cachedConversion(cache: Map<number, number>, restitution: number, solve: (restitution: number) => number): number {
+  if (!(restitution > 0 && restitution <= 1)) {
+    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
+  }
+  if (restitution === 1) return 0;
+  const cached = cache.get(restitution);
+  if (cached !== undefined) return cached;
+  const damping = solve(restitution);
+  rememberConversion(cache, restitution, damping);
+  return damping;
 }
 
 /** Dimensionless time step of the reference integration of the Hertz contact. */
@@ -75,15 +87,7 @@ export function hertzRestitutionOverlapCriterion(dimensionlessDamping: number): 
 
 /** β giving restitution e for the unclamped Hertz contact ending at zero overlap (Illinois on β, then cached). */
 export function hertzDimensionlessDampingOverlapCriterion(restitution: number): number {
-  if (!(restitution > 0 && restitution <= 1)) {
-    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
-  }
-  if (restitution === 1) return 0;
-  const cached = hertzOverlapDampingCache.get(restitution);
-  if (cached !== undefined) return cached;
-  const beta = solveIllinois((value) => hertzRestitutionOverlapCriterion(value) - restitution, 1 - restitution);
-  rememberConversion(hertzOverlapDampingCache, restitution, beta);
-  return beta;
+  return cachedConversion(hertzOverlapDampingCache, restitution, (target) => solveIllinois((value) => hertzRestitutionOverlapCriterion(value) - target, 1 - target));
 }
 
 /**
@@ -186,21 +190,17 @@ function hertzDimensionlessForce(position: number, velocity: number, beta: numbe
  * per e (bisection on β, then cached).
  */
 export function hertzDimensionlessDampingForRestitution(restitution: number): number {
-  if (!(restitution > 0 && restitution <= 1)) {
-    throw new RangeError(`restitution must be in (0, 1], got ${restitution}`);
-  }
-  if (restitution === 1) return 0;
-  const cached = hertzDampingCache.get(restitution);
-  if (cached !== undefined) return cached;
+  return cachedConversion(hertzDampingCache, restitution, solveHertzDimensionlessDamping);
+}
+
+function solveHertzDimensionlessDamping(restitution: number): number {
   let high = 0.5;
   while (hertzRestitutionForDimensionlessDamping(high) > restitution) high *= 2;
   // Illinois (modified regula falsi) on g(β) = e(β) − e_target over [0, high]: bracketing like
   // bisection, but superlinear, so each conversion costs about ten reference integrations. (The
   // bracket keeps low = 0, unlike solveIllinois: the stored conversions were made that way.)
   const g = (beta: number) => hertzRestitutionUncached(beta) - restitution;
-  const beta = illinoisSteps(g, 0, 1 - restitution, high, g(high));
-  rememberConversion(hertzDampingCache, restitution, beta);
-  return beta;
+  return illinoisSteps(g, 0, 1 - restitution, high, g(high));
 }
 
 function hertzRestitutionUncached(beta: number): number {

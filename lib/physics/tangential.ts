@@ -295,33 +295,23 @@ export class TangentialContacts {
   /** Doubles both lists (rare: only when more contacts touch at once than ever before in this field). */
   private grow(): void {
     const capacity = this.currentA.length * 2;
-    const grownA = new Int32Array(capacity);
-    grownA.set(this.currentA);
-    this.currentA = grownA;
-    const grownB = new Int32Array(capacity);
-    grownB.set(this.currentB);
-    this.currentB = grownB;
-    const grownSpring = new Float64Array(capacity);
-    grownSpring.set(this.currentSpring);
-    this.currentSpring = grownSpring;
-    const grownSliding = new Uint8Array(capacity);
-    grownSliding.set(this.currentSliding);
-    this.currentSliding = grownSliding;
+    this.currentA = grownCopy(this.currentA, new Int32Array(capacity));
+    this.currentB = grownCopy(this.currentB, new Int32Array(capacity));
+    this.currentSpring = grownCopy(this.currentSpring, new Float64Array(capacity));
+    this.currentSliding = grownCopy(this.currentSliding, new Uint8Array(capacity));
     if (this.previousA.length < capacity) {
-      const previousA = new Int32Array(capacity);
-      previousA.set(this.previousA);
-      this.previousA = previousA;
-      const previousB = new Int32Array(capacity);
-      previousB.set(this.previousB);
-      this.previousB = previousB;
-      const previousSpring = new Float64Array(capacity);
-      previousSpring.set(this.previousSpring);
-      this.previousSpring = previousSpring;
-      const previousSliding = new Uint8Array(capacity);
-      previousSliding.set(this.previousSliding);
-      this.previousSliding = previousSliding;
+      this.previousA = grownCopy(this.previousA, new Int32Array(capacity));
+      this.previousB = grownCopy(this.previousB, new Int32Array(capacity));
+      this.previousSpring = grownCopy(this.previousSpring, new Float64Array(capacity));
+      this.previousSliding = grownCopy(this.previousSliding, new Uint8Array(capacity));
     }
   }
+}
+
+/** `grown` (a larger array of the same kind) holding `values` at its start. */
+function grownCopy<T extends Int32Array | Float64Array | Uint8Array>(values: T, grown: T): T {
+  grown.set(values);
+  return grown;
 }
 
 /**
