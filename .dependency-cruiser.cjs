@@ -16,6 +16,15 @@ const BROWSER_SAFE = [
   "^lib/api/text[.]ts$",
 ];
 const browserSafe = `(${BROWSER_SAFE.join("|")})`;
+/**
+ * Server-side modules that plain-Node bundles load without Next and without the server-only hook:
+ * the worker thread (esbuild's .build/chunk-worker.mjs) and the command-line client (.build/cli/kickdrift.mjs).
+ * They carry no `import "server-only"` (its package throws there) and touch no database, secret or I/O of the app.
+ */
+const PLAIN_NODE_SHARED = ["^lib/sweeps/chunk-task[.]ts$", "^lib/catalogues/(check|friction-check|pairs)[.]ts$"];
+const plainNodeShared = `(${PLAIN_NODE_SHARED.join("|")})`;
+/** The `server-only` marker package, as resolved outside a React server bundle. */
+const SERVER_ONLY = "^node_modules/server-only/";
 
 /** @type {import('dependency-cruiser').IConfiguration} */
 module.exports = {
@@ -75,10 +84,33 @@ module.exports = {
       from: { path: "^db/" },
       to: { pathNot: "^(db/|node_modules/)", dependencyTypesNot: ["type-only", "core"] },
     },
+    {
+      name: "no-server-only-in-browser-code",
+      severity: "error",
+      comment: "A browser-safe module with `import \"server-only\"` would fail `next build` in every client component that imports it.",
+      from: { path: browserSafe },
+      to: { path: SERVER_ONLY },
+    },
+    {
+      name: "plain-node-bundles-load-no-server-module",
+      severity: "error",
+      comment: "The worker thread and the command-line client run as esbuild bundles in plain Node, where `server-only` throws: nothing they load, directly or not, carries the marker.",
+      from: { path: "^(workers/chunk-worker|cli/entry)[.]ts$" },
+      to: { path: SERVER_ONLY, reachable: true },
+    },
+  ],
+  required: [
+    {
+      name: "server-modules-carry-server-only",
+      severity: "error",
+      comment: "Every module of db/, server/ and lib/ that is not browser-safe starts with `import \"server-only\"`, so `next build` fails when a client component reaches it (Next resolves the marker to an empty module in route handlers, server components, instrumentation and the proxy). Plain Node loads it through scripts/server-only-hook.mjs, Vitest through its alias.",
+      module: { path: "^(db|server|lib)/[^.]+[.]tsx?$", pathNot: `(${browserSafe}|${plainNodeShared}|[.]d[.]ts$)` },
+      to: { path: SERVER_ONLY },
+    },
   ],
   options: {
     doNotFollow: { path: "node_modules" },
-    exclude: { path: "^(node_modules|\\.next|data|test-results|playwright-report|\\.build)/" },
+    exclude: { path: "^(\\.next|data|test-results|playwright-report|\\.build)/" },
     tsPreCompilationDeps: true,
     tsConfig: { fileName: "tsconfig.json" },
     enhancedResolveOptions: { exportsFields: ["exports"], conditionNames: ["import", "require", "node", "default", "types"], extensions: [".ts", ".tsx", ".js", ".mjs", ".cjs", ".json"] },

@@ -1,3 +1,4 @@
+import "server-only";
 import { createHash, randomBytes } from "node:crypto";
 
 /** Opaque URL-safe identifiers: a type prefix plus 16 random bytes (base64url, 22 characters). */

@@ -6,6 +6,7 @@
  * returns `bigint` and `count(*)` as strings, PGlite as numbers; timestamps come as Date or string.
  * The field helpers below accept either and give one type, so a caller never guesses.
  */
+import "server-only";
 import type { SQL } from "drizzle-orm";
 // zod itself, not lib/zod.ts: the database layer imports nothing of the app, and runs only on the server.
 import { z } from "zod";

@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Typed errors that route handlers and lib/ functions throw; lib/api/respond.ts maps them to
  * `{ error: { code, message, field? } }` with the status given here.

@@ -7,7 +7,7 @@
  * Requests are generated from the document (openapi-sampler for bodies, the schemas' limits for
  * boundaries) and mutated with a seeded generator.
  *
- *   npx tsx scripts/api-campaign.ts [--requests 5200] [--seed 17] [--concurrency 4] [--timeout-ms 30000]
+ *   npx tsx --import ./scripts/server-only-hook.mjs scripts/api-campaign.ts [--requests 5200] [--seed 17] [--concurrency 4] [--timeout-ms 30000]
  *
  * Needs `npm run build` first (uses the build in NEXT_DIST_DIR, default .next). Prints one summary
  * line and exits non-zero when any answer is a 5xx, any request gets no answer, any response violates

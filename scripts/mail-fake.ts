@@ -1,6 +1,6 @@
 /**
  * Runs the local mail fake on its own (the compose file's mail service):
- *   tsx scripts/mail-fake.ts [--host 0.0.0.0] [--port 2525]
+ *   tsx --import ./scripts/server-only-hook.mjs scripts/mail-fake.ts [--host 0.0.0.0] [--port 2525]
  * It stores every message in the database named by DATABASE_URL (mail_messages), where the app's
  * /mail page reads them; point the app at it with MAIL_FAKE_HOST (and MAIL_FAKE_PORT).
  */

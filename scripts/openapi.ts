@@ -1,6 +1,6 @@
 /**
  * Writes the OpenAPI document (generated from the route schemas, lib/api/openapi) to a file, for the
- * linter and the proxied campaign: `npx tsx scripts/openapi.ts [out.json] [serverUrl]`.
+ * linter and the proxied campaign: `npx tsx --import ./scripts/server-only-hook.mjs scripts/openapi.ts [out.json] [serverUrl]`.
  */
 import { writeFileSync } from "node:fs";
 import { buildOpenApiDocument } from "@/lib/api/openapi/document";

@@ -1,6 +1,6 @@
 /**
  * Runs the local Stripe fake on its own:
- *   tsx scripts/stripe-fake.ts --port 12111 [--host 127.0.0.1] [--public-url http://localhost:12111] [--state data/stripe-fake.json] [--webhook-url http://127.0.0.1:3000/api/stripe/webhook] [--webhook-secret whsec_…] [--overdue-notice-days 14] [--draft-window-seconds 3600]
+ *   tsx --import ./scripts/server-only-hook.mjs scripts/stripe-fake.ts --port 12111 [--host 127.0.0.1] [--public-url http://localhost:12111] [--state data/stripe-fake.json] [--webhook-url http://127.0.0.1:3000/api/stripe/webhook] [--webhook-secret whsec_…] [--overdue-notice-days 14] [--draft-window-seconds 3600]
  * Point the SDK at it with new Stripe("sk_test_…", { host: "127.0.0.1", port: 12111, protocol: "http" }).
  */
 import { startStripeFake } from "../lib/fakes/stripe";

@@ -51,7 +51,7 @@ step "unused files, exports and dependencies (knip, knip.json)"
 npm run --silent check:unused
 
 step "OpenAPI document: generated from the route schemas, linted by Redocly"
-npx tsx scripts/openapi.ts .build/openapi.json
+npx tsx --import ./scripts/server-only-hook.mjs scripts/openapi.ts .build/openapi.json
 npx redocly lint .build/openapi.json
 
 step "unit and integration tests"
@@ -64,7 +64,7 @@ npm run build
 # of the OpenAPI document driven with seeded valid, boundary and mutated requests by each kind of caller.
 # Fails on any 5xx, any request left unanswered, any response that differs from the document.
 step "API campaign through a validating proxy (Prism)"
-npx tsx scripts/api-campaign.ts --requests "${KD_CAMPAIGN_REQUESTS:-5200}" --seed "${KD_CAMPAIGN_SEED:-17}"
+npx tsx --import ./scripts/server-only-hook.mjs scripts/api-campaign.ts --requests "${KD_CAMPAIGN_REQUESTS:-5200}" --seed "${KD_CAMPAIGN_SEED:-17}"
 
 step "browser tests"
 PLAYWRIGHT_JSON_OUTPUT_NAME=.build/playwright.json npx playwright test --reporter=list,json

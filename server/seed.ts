@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "../db/client";
 import { newId } from "../db/ids";

@@ -1,3 +1,5 @@
+import "server-only";
+
 // Node-only start-up work for a server process, loaded from instrumentation.ts. Kept in its own
 // module so the Edge build of instrumentation never pulls in the database, fs or the SMTP server.
 const startupKey = Symbol.for("kickdrift.startup");

@@ -16,7 +16,7 @@
  * (default 0.0.0.0), KICKDRIFT_LEASE_MS (default 60000), KICKDRIFT_POLL_MS (default 250),
  * KICKDRIFT_SHUTDOWN_GRACE_MS (default 8000), KICKDRIFT_WORKER_ENTRY (source | bundle; default source).
  *
- * Run with `node --import tsx workers/worker-process.ts` (what `npm run worker` does): one node
+ * Run with `node --import tsx --import ./scripts/server-only-hook.mjs workers/worker-process.ts` (what `npm run worker` does): one node
  * process, so a signal sent to its pid reaches the runner itself.
  */
 import { createServer, type IncomingMessage, type ServerResponse } from "node:http";

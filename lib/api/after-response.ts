@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Work a handler starts after it has decided its answer, so the answer's timing does not depend
  * on what the work does (a mail sent to an address that exists takes longer than none). The

@@ -1,3 +1,4 @@
+import "server-only";
 import { ApiError } from "@/lib/errors";
 import { errorResponse } from "./respond";
 

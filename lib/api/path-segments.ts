@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Whether every segment of a URL path decodes as percent-encoded UTF-8. A segment such as "%ZZ"
  * or "%E0%A4" names nothing we store; the router would fail decoding it, so such paths are

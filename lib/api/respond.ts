@@ -1,3 +1,4 @@
+import "server-only";
 import { ApiError, LimitError, type LimitDetail } from "@/lib/errors";
 
 export interface ErrorBody {

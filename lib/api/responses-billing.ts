@@ -4,6 +4,7 @@
  * ./responses.ts so billing fields are added in one place. Same rules: the JSON form of the lib/billing
  * return types, strict objects; ./responses-types.ts ties each schema to its lib type.
  */
+import "server-only";
 import { z } from "@/lib/zod";
 
 const creditPackSchema = z.strictObject({ id: z.string(), name: z.string(), minutes: z.number(), priceCents: z.number(), currency: z.literal("usd"), summary: z.string() });

@@ -4,6 +4,7 @@
  * either side gains, loses or retypes a field without the other. JSON form: a Date becomes its ISO
  * string, a field that may be undefined becomes optional. Types only; nothing here runs.
  */
+import "server-only";
 import type { output, ZodType } from "zod";
 import type { listAudit } from "@/lib/audit/audit";
 import type { invoiceDetail, listInvoices, ledgerPage, billingSummary, usageBreakdown } from "@/lib/billing/queries";

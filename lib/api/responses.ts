@@ -7,6 +7,7 @@
  * real answers with them, and ./responses-types.ts fails typecheck when a view type and its schema
  * drift apart. Billing bodies live in ./responses-billing.ts.
  */
+import "server-only";
 import { z } from "@/lib/zod";
 // The envelope export's published schema, defined once beside the code that writes it.
 import { envelopeDocumentSchema } from "@/lib/sweeps/envelope";

@@ -4,6 +4,7 @@
  * database refuse both). Writers call `writeAudit` inside the transaction that makes the change,
  * so a change and its record commit or roll back together.
  */
+import "server-only";
 import { and, desc, eq, gte, lte, sql, type SQL } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import type { Adapter, AdapterUser, VerificationToken } from "next-auth/adapters";
 import { getDb } from "@/db/client";

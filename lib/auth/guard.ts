@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import { getDb } from "@/db/client";
 import { memberships, studios, type ApiToken, type Studio, type StudioRole, type User } from "@/db/schema";

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, asc, desc, eq, gt, lt } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { loginAttempts } from "@/db/schema";

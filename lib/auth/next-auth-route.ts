@@ -1,3 +1,4 @@
+import "server-only";
 import NextAuth from "next-auth";
 import type { NextApiRequest, NextApiResponse } from "next";
 import { ApiError } from "@/lib/errors";

@@ -1,3 +1,4 @@
+import "server-only";
 import { cookies } from "next/headers";
 import { forbidden, notFound, redirect } from "next/navigation";
 import type { Studio, StudioRole } from "@/db/schema";

@@ -3,6 +3,7 @@
  * the OpenAPI registry (lib/api/openapi/operations.ts) states the same constant for each operation,
  * and tests/integration/authorization-matrix.test.ts checks every route against it.
  */
+import "server-only";
 import type { RoutePolicy, StudioRoleRequirement } from "./guard";
 
 /** Anyone; no actor needed (sign-in, signup, health, the OpenAPI document, Stripe's webhook). */

@@ -1,3 +1,4 @@
+import "server-only";
 import { RateLimiterMemory, RateLimiterRes } from "rate-limiter-flexible";
 import { ApiError } from "@/lib/errors";
 

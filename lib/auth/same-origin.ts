@@ -1,3 +1,4 @@
+import "server-only";
 import { ApiError } from "@/lib/errors";
 import { appBaseUrl } from "./config";
 import { hasSessionCookie } from "./session";

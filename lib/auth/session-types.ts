@@ -1,4 +1,5 @@
 // next-auth module augmentation: what our session and JWT carry.
+import "server-only";
 import "next-auth";
 import "next-auth/jwt";
 

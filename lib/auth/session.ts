@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq, isNull } from "drizzle-orm";
 import { decode } from "next-auth/jwt";
 import { getDb } from "@/db/client";

@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Work a server process does when someone signs in, registered at start-up (the demo's watch sweep,
  * server/startup.ts). Kept on globalThis under a shared symbol: the start-up code and the auth route

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq, isNull, ne } from "drizzle-orm";
 import { getDb, type DbOrTx } from "@/db/client";
 import { newId } from "@/db/ids";

@@ -3,6 +3,7 @@
  * one price per credit pack, the overage meter and its metered monthly price. Then one customer and
  * one overage subscription per studio.
  */
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import Stripe from "stripe";
 import type { DbOrTx } from "@/db/client";

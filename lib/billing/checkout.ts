@@ -1,4 +1,5 @@
 /** Buying a credit pack through Stripe Checkout; the webhook credits the ledger once it is paid. */
+import "server-only";
 import Stripe from "stripe";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";

@@ -4,6 +4,7 @@
  * fields onto each invoice when it is made). Owners edit them; owners and finance read them.
  * Kickdrift computes no tax: the tax ID is printed as given, and prices are before tax.
  */
+import "server-only";
 import { eq } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";

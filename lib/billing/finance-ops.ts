@@ -3,6 +3,7 @@
  * Admin → Finance, retried as they were or re-keyed under a new Stripe identifier, audited), and the
  * scheduled reconciliation of ledger, meter and invoices that e-mails the admins on any difference.
  */
+import "server-only";
 import { createHash } from "node:crypto";
 import { and, asc, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";

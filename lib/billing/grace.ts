@@ -7,6 +7,7 @@
  * fragments so the run limits (lib/quotas/enforce.ts, inside their one standing query) and the
  * Billing page and chunk debits (lib/billing/overdue.ts) evaluate the same expression.
  */
+import "server-only";
 import { sql, type SQL } from "drizzle-orm";
 import { OVERDUE_GRACE_DAYS } from "./packs";
 

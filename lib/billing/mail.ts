@@ -1,4 +1,5 @@
 /** Billing messages: purchase receipts, finalised invoices, low balance. Queued through the outbox (lib/outbox/mail.ts). */
+import "server-only";
 import { appBaseUrl } from "@/lib/auth/config";
 import type { MailContent } from "@/lib/mail/templates";
 import { formatMinutes } from "./format";

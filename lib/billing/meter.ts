@@ -5,6 +5,7 @@
  * invoice — a line of its own naming the period the usage belongs to — because Stripe would count a
  * meter event for a closed period on no invoice at all.
  */
+import "server-only";
 import { eq, sql } from "drizzle-orm";
 import Stripe from "stripe";
 import type { Db } from "@/db/client";

@@ -5,6 +5,7 @@
  * invoice holds it off (lib/billing/overdue.ts). Turning it off stops new overage at the next chunk:
  * every chunk reads the studio's standing afresh (lib/billing/usage.ts recordChunkUsage).
  */
+import "server-only";
 import { eq, sql } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { Db, DbOrTx } from "@/db/client";

@@ -11,6 +11,7 @@
  * asking, so it goes back on by itself when invoice.paid is mirrored, whatever order the events came
  * in, and the owner's own choice (studio_quotas.overage_allowed) is never overwritten.
  */
+import "server-only";
 import { eq, sql } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { DbOrTx } from "@/db/client";

@@ -4,6 +4,7 @@
  * Checkout session with the ledger. Both credit through creditCheckout (key purchase:{sessionId}),
  * so a payment the webhook already credited is never credited twice.
  */
+import "server-only";
 import { eq } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { Db } from "@/db/client";

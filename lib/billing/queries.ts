@@ -1,4 +1,5 @@
 /** Read models of the billing pages and API: balance, the ledger table, usage breakdowns, invoices and their reconciliation, the platform's finance view. */
+import "server-only";
 import { and, asc, count, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";

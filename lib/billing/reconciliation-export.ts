@@ -6,6 +6,7 @@
  * as the ledger exports do. Overage subscriptions are anchored to the 1st, so an invoice period is
  * a calendar month (the first one a part of one) and the month is the period's start.
  */
+import "server-only";
 import { z } from "@/lib/zod";
 import { csvCell } from "@/lib/csv";
 import { dollarsText, minutesText } from "@/lib/ledger/statement";

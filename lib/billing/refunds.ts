@@ -5,6 +5,7 @@
  * nothing twice. The balance may go below zero; sweeps then pause with the reason
  * (lib/quotas/enforce.ts). Owners and finance are told by e-mail.
  */
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";

@@ -1,4 +1,5 @@
 /** Server start: the Stripe client (test mode, or the local fake the boot started), the catalog, and the meter-event outbox handler. */
+import "server-only";
 import path from "node:path";
 import type { Db } from "@/db/client";
 import { dataDir } from "@/db/client";

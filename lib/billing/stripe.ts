@@ -4,6 +4,7 @@
  * server/startup.ts starts on STRIPE_FAKE_PORT (default 12111). STRIPE_API_URL sends a configured key to
  * another address (the compose file's fake service). Tests install their own with configureBilling.
  */
+import "server-only";
 import Stripe from "stripe";
 import { ApiError } from "@/lib/errors";
 import { isStripeFakeEnabled } from "@/lib/mail/mode";

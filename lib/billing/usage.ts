@@ -4,6 +4,7 @@
  * the month's overage cap and compute cap. The queue runner calls recordChunkUsage inside its
  * per-chunk transaction.
  */
+import "server-only";
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { ledgerEntries, studios } from "@/db/schema";

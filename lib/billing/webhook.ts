@@ -3,6 +3,7 @@
  * event id and acts on the object as Stripe holds it *now* (re-read through the API), so duplicates
  * and events that arrive out of order change nothing twice.
  */
+import "server-only";
 import { and, eq, gt, inArray, isNull, sql, type SQL } from "drizzle-orm";
 import type Stripe from "stripe";
 import { z } from "@/lib/zod";

@@ -6,6 +6,7 @@
  * Kept apart from exports.ts so the check's own export documents can change without this.
  * Pure: safe to import in the browser.
  */
+import "server-only";
 import { linearDampingRatioForRestitution } from "../physics/damping";
 import { linearDampingRatioOverlapCriterion } from "../physics/analytic";
 import { CONTACT_END_CRITERION } from "../sweeps/envelope";

@@ -6,6 +6,7 @@
  *
  * Pure: safe to import in the browser.
  */
+import "server-only";
 import { VERDICTS } from "../physics/types";
 import { CONTACT_END_CRITERION } from "../sweeps/envelope";
 import { csvText } from "../csv";

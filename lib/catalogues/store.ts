@@ -4,6 +4,7 @@
  * its pair sweep and goes through the same quote → submit → queue runner → ledger path as every
  * sweep; its results are read back only through lib/queue/views.ts.
  */
+import "server-only";
 import { pairContactTuning, type PairContactTuning } from "./contact-tuning";
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";

@@ -18,6 +18,7 @@
  *
  * Demo only: it runs from the demo seed, and only against the local fake (never Stripe itself).
  */
+import "server-only";
 import { and, eq, inArray } from "drizzle-orm";
 import type Stripe from "stripe";
 import type { Db } from "@/db/client";

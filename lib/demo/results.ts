@@ -6,6 +6,7 @@
  * watches run is started later, at the demo engineer's first sign-in: lib/demo/watch.ts.) Each is
  * keyed by its name: seeding again adds nothing.
  */
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, snapshots, sweeps } from "@/db/schema";

@@ -18,6 +18,7 @@
  * is queued or running, so a visitor's own work never waits behind it. The pace changes when cells
  * land, never what they hold: same spec, same cells, byte for byte.
  */
+import "server-only";
 import { and, eq, inArray, ne, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepChunks, sweeps, type Sweep } from "@/db/schema";

@@ -1,3 +1,4 @@
+import "server-only";
 import type { AddressInfo } from "node:net";
 import { SMTPServer } from "smtp-server";
 import { simpleParser, type AddressObject } from "mailparser";

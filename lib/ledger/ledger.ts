@@ -1,3 +1,4 @@
+import "server-only";
 import type { DbOrTx } from "@/db/client";
 import { ledgerEntries } from "@/db/schema";
 import type { LedgerKind } from "./kinds";

@@ -4,6 +4,7 @@
  * (integer ms, integer cents) and the unit the billing page shows (minutes, US dollars).
  * Read-only queries; nothing here writes the ledger.
  */
+import "server-only";
 import { and, asc, desc, eq, gte, lt, sql, type SQL } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";

@@ -1,3 +1,4 @@
+import "server-only";
 import { desc } from "drizzle-orm";
 import { getDb } from "@/db/client";
 import { mailMessages } from "@/db/schema";

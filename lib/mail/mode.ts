@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Which local fakes this process may run, and which it does. Free of imports, so the layout and
  * pages can ask without bundling nodemailer or the Stripe SDK.

@@ -1,3 +1,4 @@
+import "server-only";
 import { getTransport, mailFrom } from "./transport";
 import type { MailContent } from "./templates";
 

@@ -1,3 +1,5 @@
+import "server-only";
+
 /** Plain text plus simple HTML for each message we send. Every value put into HTML is escaped. */
 export interface MailContent {
   subject: string;

@@ -6,6 +6,7 @@
  * - ready: the process can do its work now: the database answers (migrations done, as getDb
  *   migrates before it hands the client out) and, for a worker, its runner is claiming chunks.
  */
+import "server-only";
 import { sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { errorResponse, json } from "@/lib/api/respond";

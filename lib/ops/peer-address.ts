@@ -1,3 +1,4 @@
+import "server-only";
 import http from "node:http";
 import { markPeerStampInstalled, PEER_HEADER, peerStampInstalled } from "@/lib/auth/limiter";
 

@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * The Prometheus text exposition format (version 0.0.4): `# HELP` and `# TYPE` lines, then one
  * sample a line, `name{label="value"} number`. Pure.

@@ -4,6 +4,7 @@
  * lapsed leases, and counters of completed work (Prometheus derives throughput from them with
  * `rate(kickdrift_cells_completed_total[1m])`). Aggregates only: no studio or sweep is named.
  */
+import "server-only";
 import { sql } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";

@@ -2,6 +2,7 @@
  * E-mail through the outbox: `queueMail` inside the transaction that causes the message, and the
  * dispatcher's "mail" handler sends it with the app's transport (the local fake or SMTP_URL).
  */
+import "server-only";
 import type { DbOrTx } from "@/db/client";
 import type { OutboxRow } from "@/db/schema";
 import type { MailContent } from "@/lib/mail/templates";

@@ -10,6 +10,7 @@
  * keeps the database locked (PGlite has one connection) and several dispatchers can share one
  * PostgreSQL.
  */
+import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";

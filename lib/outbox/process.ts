@@ -3,6 +3,7 @@
  * kinds with `registerOutboxHandler` before or after start; `pokeOutbox()` after a commit that
  * queued something delivers it without waiting for the next poll.
  */
+import "server-only";
 import type { OutboxRow } from "@/db/schema";
 import { deliverMail, MAIL_KIND } from "./mail";
 import { OutboxDispatcher, type OutboxHandler } from "./outbox";

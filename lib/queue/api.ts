@@ -1,4 +1,5 @@
 /** Lookups and policies shared by the sweep route handlers. */
+import "server-only";
 import { and, asc, count, desc, eq, ilike, isNotNull, type SQL } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweeps, users, type Sweep } from "@/db/schema";

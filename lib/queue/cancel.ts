@@ -1,3 +1,4 @@
+import "server-only";
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepChunks, sweeps, type Sweep } from "@/db/schema";

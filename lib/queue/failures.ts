@@ -3,6 +3,7 @@
  * MAX_CHUNK_ATTEMPTS times; then it fails, and so does its sweep (its queued chunks cancelled).
  * A chunk whose sweep was stopped meanwhile is discarded, unbilled.
  */
+import "server-only";
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepChunks, sweeps } from "@/db/schema";

@@ -3,6 +3,7 @@
  * a cheap cell's simulation); each recorded run is keyed afterwards on the pool while its runner
  * holds no chunk, and a submit that meets a run not keyed yet keys it itself (lib/queue/submit.ts).
  */
+import "server-only";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweepResults } from "@/db/schema";

@@ -4,6 +4,7 @@
  * (its runner died) goes back to the queue at the next look of any runner. Claims take leases
  * (lib/queue/sql-functions.ts claimChunks); this module keeps, returns and reclaims them.
  */
+import "server-only";
 import { sql } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { Db } from "@/db/client";

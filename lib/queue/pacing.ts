@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * When a runner's loop does what. The loop claims when there is room and the queue was not just
  * found drained; cancel checks run once per poll interval, lease checks at most once a second, the

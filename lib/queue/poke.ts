@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Wakes the process's queue runner after a submit, without importing the runner: route handlers
  * that import this do not pull the worker pool into their bundle.

@@ -13,6 +13,7 @@
  * (prepaid first, overage metered through the outbox, nothing billed past a cap), and the cap alerts
  * are checked after it.
  */
+import "server-only";
 import { eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { sweeps } from "@/db/schema";

@@ -3,6 +3,7 @@
  * factor below 1. The quote route and the submit route build the same spec here, so what is quoted
  * is exactly what runs.
  */
+import "server-only";
 import type { Sweep } from "@/db/schema";
 import { cellAt, expandAxes } from "@/lib/sweeps/grid";
 import type { SweepSpec } from "@/lib/sweeps/spec";

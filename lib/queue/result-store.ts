@@ -15,6 +15,7 @@
  *
  * Node only.
  */
+import "server-only";
 import { mkdir, open, readFile, readdir, rename, rm, rmdir, stat } from "node:fs/promises";
 import path from "node:path";
 import { isNotNull } from "drizzle-orm";

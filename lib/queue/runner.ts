@@ -22,6 +22,7 @@
  *
  * Node only (worker threads).
  */
+import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";

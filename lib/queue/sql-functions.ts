@@ -6,6 +6,7 @@
  * functions are PL/pgSQL so the database plans them once per connection; their comments there say
  * what each step does. A migration that changes a function's signature changes this file with it.
  */
+import "server-only";
 import { sql } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";

@@ -5,6 +5,7 @@
  * queued. (With the file result store, the cached cells' blobs are written just before that
  * transaction, under the new sweep's id: nothing points at them unless it commits.)
  */
+import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, eq, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";

@@ -1,4 +1,5 @@
 /** What a runner needs of a chunk's sweep, read once per sweep (the spec never changes once submitted). */
+import "server-only";
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { sweeps } from "@/db/schema";

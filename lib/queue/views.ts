@@ -4,6 +4,7 @@
  * the same results give the same bytes however the sweep was chunked, restarted or served from
  * the cache.
  */
+import "server-only";
 import { and, asc, eq, gt, lte, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { sweepChunks, sweepResults, type Sweep, type SweepResult } from "@/db/schema";

@@ -3,6 +3,7 @@
  * it and lift the suspension, and change platform roles. Each change and its audit record are
  * written in one transaction; the studio row is locked so concurrent edits serialise.
  */
+import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, asc, desc, eq, inArray, sql } from "drizzle-orm";
 import { z } from "@/lib/zod";

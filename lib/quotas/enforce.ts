@@ -11,6 +11,7 @@
  * as its chunks land (each its share); one metered by wall clock (submitted before work units) its
  * estimate less what it used.
  */
+import "server-only";
 import { sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import type { StudioStatus } from "@/db/schema";

@@ -2,6 +2,7 @@
  * The plan: default limits of every studio, and the effective limits of one studio (its
  * studio_quotas row over these defaults). Admins change a studio's row; nothing else does.
  */
+import "server-only";
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { studioQuotas } from "@/db/schema";

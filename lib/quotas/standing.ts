@@ -6,6 +6,7 @@
  * PL/pgSQL can no longer disagree on what a studio has left. And the debit rule that spends it,
  * `chunkDebit`, once.
  */
+import "server-only";
 import { sql, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { queryRows, sqlNumber } from "@/db/rows";

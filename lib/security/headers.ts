@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * The security headers of every response, decided in one place (proxy.ts applies them to pages, API
  * answers, error pages and static files alike). Pure and free of imports, so the proxy bundle stays small

@@ -1,4 +1,5 @@
 /** Body reading of the snapshot routes (their policies are in lib/auth/policies.ts). */
+import "server-only";
 import { readBodyBytes } from "@/lib/api/body";
 import type { UploadedFile } from "@/lib/api/multipart";
 import { ApiError } from "@/lib/errors";

@@ -4,6 +4,7 @@
  * SHA-256. A sweep over a snapshot carries its scene inline (the spec stays self-contained, so its
  * results are deterministic whatever is uploaded later): `snapshotSweepSpec` builds that spec.
  */
+import "server-only";
 import type { Db } from "@/db/client";
 import { snapshots, type Snapshot } from "@/db/schema";
 import { ApiError } from "@/lib/errors";

@@ -33,6 +33,7 @@
  *
  * Pure: safe to import in the browser. Deterministic: the same scene gives the same suggestion.
  */
+import "server-only";
 import { maxStableSubstepS, reducedMassKg } from "../physics/analytic";
 import { DEFAULT_TOLERANCES } from "../physics/constants";
 import type { SnapshotScene } from "../physics/types";

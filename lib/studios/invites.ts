@@ -1,3 +1,4 @@
+import "server-only";
 import { and, desc, eq, isNull } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import { getDb } from "@/db/client";

@@ -1,3 +1,4 @@
+import "server-only";
 import { and, asc, eq } from "drizzle-orm";
 import { z } from "@/lib/zod";
 import { getDb, type DbOrTx } from "@/db/client";

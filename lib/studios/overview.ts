@@ -4,6 +4,7 @@
  * finished sweeps with their verdict counts, catalogue checks with their pairs at risk, and for the
  * people who handle money the next invoice's running total. Every query is scoped by studio id.
  */
+import "server-only";
 import { and, desc, eq, gte, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { catalogueChecks, catalogues, invoices, ledgerEntries, snapshots, memberships, sweeps, type StudioRole } from "@/db/schema";

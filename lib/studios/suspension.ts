@@ -3,6 +3,7 @@
  * from the audit log, where the admin's reason is kept), and the e-mail every member gets when a
  * studio is suspended or reinstated (queued in the transaction that changes the status).
  */
+import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, desc, eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";

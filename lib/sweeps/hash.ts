@@ -3,6 +3,7 @@
  * node:crypto, so server, worker and CLI only; the canonical form it hashes is
  * the pure `canonicalJson`.
  */
+import "server-only";
 import { createHash } from "node:crypto";
 import type { Scenario } from "../physics/types";
 import { canonicalJson } from "./canonical";

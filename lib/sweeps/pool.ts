@@ -16,6 +16,7 @@
  *
  * Node only (worker threads).
  */
+import "server-only";
 import { existsSync } from "node:fs";
 import { createRequire } from "node:module";
 import { availableParallelism } from "node:os";

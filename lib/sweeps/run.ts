@@ -6,6 +6,7 @@
  *
  * Node only (uses the pool).
  */
+import "server-only";
 import { unpackResults, type ChunkOutcome } from "./chunk-task";
 import { planChunks, type ChunkOptions, type ChunkPlan } from "./chunks";
 import { axisValuesAt, cellCount, expandAxes, type ExpandedAxis } from "./grid";

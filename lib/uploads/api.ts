@@ -2,6 +2,7 @@
  * The route plumbing every kind of versioned upload shares (lib/uploads/versioned.ts is the store):
  * reading the upload form with the kind's size limit, and answering a stored file as a download.
  */
+import "server-only";
 import { readMultipart, type UploadedFile } from "@/lib/api/multipart";
 import { ApiError } from "@/lib/errors";
 import type { UploadKind, VersionedTable } from "./versioned";

@@ -6,6 +6,7 @@
  * and size rules, the next version's insert, the listing, the studio-scoped reads, every version of
  * a name, the stored bytes, the problem report and the download — is here once.
  */
+import "server-only";
 import { createHash } from "node:crypto";
 import { and, asc, desc, eq, max } from "drizzle-orm";
 import type { AnyPgColumn, PgTable } from "drizzle-orm/pg-core";

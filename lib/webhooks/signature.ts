@@ -6,6 +6,7 @@
  * lines (docs/api.md, "Webhooks"). The timestamp bounds replays to the tolerance window; the event
  * id lets a receiver drop a replay inside it.
  */
+import "server-only";
 import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 
 export const WEBHOOK_SECRET_PREFIX = "whsec_";

@@ -3,6 +3,7 @@
  * failed and paused sweeps (lib/webhooks/webhooks.ts) every second on a timer of its own — off
  * the queue runner's path, so a slow scan or a slow endpoint never delays a chunk.
  */
+import "server-only";
 import type { Db } from "@/db/client";
 import { pokeOutbox, registerOutboxHandler } from "@/lib/outbox/process";
 import { deliverWebhook, scanWebhookEvents, WEBHOOK_KIND } from "./webhooks";

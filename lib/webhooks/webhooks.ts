@@ -13,6 +13,7 @@
  * event, and each delivery row and outbox row is keyed by (endpoint, event): nothing is sent twice
  * unless an owner asks for it ("send again", which sends the same event id).
  */
+import "server-only";
 import { createHash } from "node:crypto";
 import { and, desc, eq, gte, inArray, isNull, or, sql } from "drizzle-orm";
 import { z } from "@/lib/zod";

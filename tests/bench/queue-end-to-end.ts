@@ -14,7 +14,7 @@
  *    and the sweep page's poll while a sweep runs, `?after=<cursor>`, when one chunk has landed
  *    since (the cursor before the sweep's last row) and when nothing has.
  *
- * Prints figures and asserts nothing. Run alone: `npx tsx tests/bench/queue-end-to-end.ts`; or
+ * Prints figures and asserts nothing. Run alone: `npx tsx --import ./scripts/server-only-hook.mjs tests/bench/queue-end-to-end.ts`; or
  * through tests/bench/run-all.ts as `queueEndToEnd`.
  */
 import path from "node:path";

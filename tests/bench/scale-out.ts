@@ -10,7 +10,7 @@
  *
  * PostgreSQL: KICKDRIFT_TEST_PG_URL if set (as under `npm test`), else a throw-away cluster of
  * Debian's postgresql (scripts/temp-postgres.ts); without PostgreSQL it prints why and skips.
- * Prints figures and asserts nothing. Run alone: `npx tsx tests/bench/scale-out.ts`.
+ * Prints figures and asserts nothing. Run alone: `npx tsx --import ./scripts/server-only-hook.mjs tests/bench/scale-out.ts`.
  */
 import path from "node:path";
 import { fileURLToPath } from "node:url";

@@ -13,7 +13,7 @@
  * onRecorded hook) per set-up, the ratio B / A (target ≤ 1.10×: the hang adds no measurable delay),
  * and in B how many deliveries were queued and how many requests the receiver held open.
  *
- * Prints figures and asserts nothing. Run alone: `npx tsx tests/bench/webhook-isolation.ts`; or
+ * Prints figures and asserts nothing. Run alone: `npx tsx --import ./scripts/server-only-hook.mjs tests/bench/webhook-isolation.ts`; or
  * `npm run bench -- webhook-isolation`.
  */
 import { createServer, type Server } from "node:http";

@@ -24,7 +24,7 @@ function startProcess(env: Record<string, string>): { status: number | null; std
   );
   const result = spawnSync(
     process.execPath,
-    ["--import", "tsx", "-e", "import('./instrumentation.ts').then((m) => m.register()).then(() => process.exit(0))"],
+    ["--import", "tsx", "--import", "./scripts/server-only-hook.mjs", "-e", "import('./instrumentation.ts').then((m) => m.register()).then(() => process.exit(0))"],
     {
       cwd: process.cwd(),
       env: { ...clean, NEXT_RUNTIME: "nodejs", KICKDRIFT_DATA_DIR: dataDir, KICKDRIFT_RUNNER: "off", MAIL_FAKE_PORT: "0", STRIPE_FAKE_PORT: "0", ...env } as unknown as NodeJS.ProcessEnv,

@@ -2,6 +2,7 @@
  * The OpenAPI 3.1 document of the public API, generated (zod-openapi) from the registry in
  * ./operations.ts, which holds the same zod schemas and policies the route handlers use.
  */
+import "server-only";
 import { z } from "@/lib/zod";
 import { createDocument, type ZodOpenApiOperationObject, type ZodOpenApiPathsObject, type ZodOpenApiResponsesObject } from "zod-openapi";
 import { MAX_JSON_BODY_BYTES } from "@/lib/api/body";

@@ -8,6 +8,7 @@
  * schema exported from lib/ (route files may export only what Next allows), its success status and
  * its policy.
  */
+import "server-only";
 import { z } from "@/lib/zod";
 import {
   adjustmentPostAnswer,

@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Test-mode card outcomes. The numbers are the ones Stripe publishes for test mode; anything else
  * that passes the Luhn check is refused the way test mode refuses a real card.

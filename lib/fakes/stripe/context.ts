@@ -1,3 +1,4 @@
+import "server-only";
 import { invalidParam, resourceMissing } from "./errors";
 import type { Params } from "./params";
 import { newId, type CollectionName, type Delivery, type StripeObject, type StripeFakeStore } from "./store";

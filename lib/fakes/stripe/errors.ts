@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Stripe's error envelope `{ error: { type, code?, message, param?, decline_code? } }` and its status codes.
  * `saveForIdempotency` follows Stripe's rule that a result is kept for an idempotency key only once the

@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Stripe's wire format: application/x-www-form-urlencoded with bracketed keys
  * (`metadata[studio_id]=…`, `line_items[0][price]=…`, `expand[]=…`), the same rules for GET query strings.

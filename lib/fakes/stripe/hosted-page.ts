@@ -1,3 +1,4 @@
+import "server-only";
 import type { StripeObject } from "./store";
 
 /** The fake's own payment page for a Checkout Session: a plain HTML form, no scripts. */

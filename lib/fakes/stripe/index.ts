@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Local Stripe fake: speaks Stripe's v1 wire protocol for the calls Kickdrift makes, so the official
  * SDK (`new Stripe(key, { host, port, protocol: "http" })`) works against it unchanged.

@@ -6,6 +6,7 @@
  * subset into each document), which covers Latin, Greek and Cyrillic: a billing name in those scripts
  * prints as written. Characters the font lacks (CJK among them) print as "?".
  */
+import "server-only";
 import { readFile } from "node:fs/promises";
 import { createRequire } from "node:module";
 import path from "node:path";

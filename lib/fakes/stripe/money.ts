@@ -1,3 +1,5 @@
+import "server-only";
+
 /**
  * Exact decimal arithmetic for invoice lines: quantity × unit price in cents, rounded once to an integer
  * number of cents. Values are held as BigInt scaled by 10^12 (Stripe allows 12 decimal places on

@@ -1,3 +1,4 @@
+import "server-only";
 import type { FormObject, FormValue } from "./form";
 import { invalidParam, missingParam, unknownParam } from "./errors";
 

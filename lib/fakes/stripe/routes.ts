@@ -1,3 +1,4 @@
+import "server-only";
 import type { Ctx, HandlerResult } from "./context";
 import type { Params } from "./params";
 import * as billing from "./resources/billing";

@@ -1,3 +1,4 @@
+import "server-only";
 import { createServer, type IncomingMessage, type ServerResponse } from "node:http";
 import type { AddressInfo, Socket } from "node:net";
 import { clone, expand, mustGet, recordEvent, type Ctx } from "./context";

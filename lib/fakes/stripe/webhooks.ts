@@ -1,3 +1,4 @@
+import "server-only";
 import { createHmac } from "node:crypto";
 import type { Delivery, DeliveryAttempt, StripeFakeStore, StripeObject } from "./store";
 

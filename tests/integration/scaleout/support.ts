@@ -58,13 +58,13 @@ export interface WorkerHandle {
 }
 
 /**
- * `npm run worker` as its package script runs it (`node --import tsx workers/worker-process.ts`,
+ * `npm run worker` as its package script runs it (`node --import tsx --import ./scripts/server-only-hook.mjs workers/worker-process.ts`,
  * one process, so signals reach the worker itself), with endpoints on a free loopback port.
  * Resolves once the worker answers /ready with 200.
  */
 export async function startWorker(databaseUrl: string, env: Record<string, string> = {}, readyTimeoutMs = 60_000): Promise<WorkerHandle> {
   const appName = `kd_test_worker_${randomBytes(4).toString("hex")}`;
-  const child = spawn(process.execPath, ["--import", "tsx", path.join("workers", "worker-process.ts")], {
+  const child = spawn(process.execPath, ["--import", "tsx", "--import", "./scripts/server-only-hook.mjs", path.join("workers", "worker-process.ts")], {
     cwd: process.cwd(),
     env: {
       ...process.env,

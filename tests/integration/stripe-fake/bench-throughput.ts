@@ -1,6 +1,6 @@
 /**
  * Throughput of the Stripe fake through the official SDK (not a test; prints figures):
- *   npx tsx tests/integration/stripe-fake/bench-throughput.ts [events=2000]
+ *   npx tsx --import ./scripts/server-only-hook.mjs tests/integration/stripe-fake/bench-throughput.ts [events=2000]
  * Measures sequential meter events (the app's outbox pattern) in memory and with a state file, and a
  * Checkout create → hosted page pay round trip.
  */

@@ -1,4 +1,4 @@
-/** The command-line runner end to end: spawned as `npm run sweep` runs it (node --import tsx). */
+/** The command-line runner end to end: spawned as `npm run sweep` runs it (node --import tsx with the server-only hook). */
 import { spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -10,7 +10,7 @@ const workDir = mkdtempSync(path.join(tmpdir(), "kd-sweeps-cli-"));
 afterAll(() => rmSync(workDir, { recursive: true, force: true }));
 
 function runCli(args: string[]) {
-  const result = spawnSync(process.execPath, ["--import", "tsx", "scripts/sweep.ts", ...args], { cwd: process.cwd(), encoding: "utf8", timeout: 120_000 });
+  const result = spawnSync(process.execPath, ["--import", "tsx", "--import", "./scripts/server-only-hook.mjs", "scripts/sweep.ts", ...args], { cwd: process.cwd(), encoding: "utf8", timeout: 120_000 });
   return { code: result.status, stdout: result.stdout, stderr: result.stderr };
 }
 

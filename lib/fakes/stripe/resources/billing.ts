@@ -1,3 +1,4 @@
+import "server-only";
 import { cardOutcome, storedCardOutcome, type CardOutcome } from "../cards";
 import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { cardDeclined, invalidParam, invalidRequest } from "../errors";

@@ -1,3 +1,4 @@
+import "server-only";
 import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, resourceMissing } from "../errors";
 import { applyMetadata, type Params } from "../params";

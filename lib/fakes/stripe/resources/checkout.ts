@@ -1,3 +1,4 @@
+import "server-only";
 import { cardOutcome, DISPUTED_CARDS, normalizeCardNumber, type CardOutcome } from "../cards";
 import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";

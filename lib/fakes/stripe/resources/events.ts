@@ -1,3 +1,4 @@
+import "server-only";
 import { createdFilter, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam } from "../errors";
 import { applyMetadata, type Params } from "../params";

@@ -5,6 +5,7 @@
  * (Stripe's own test cards open them after payment; `charge.dispute.created` / `…closed`).
  * Shapes follow Stripe's API reference and the SDK's types (node_modules/stripe/esm/resources).
  */
+import "server-only";
 import { clone, createdFilter, fieldsEqual, mustGet, paginate, type Ctx, type HandlerResult } from "../context";
 import { invalidParam, invalidRequest } from "../errors";
 import { applyMetadata, type Params } from "../params";
