@@ -19,6 +19,8 @@ export interface EarlyAnswer {
 }
 
 const GLOBAL = "__kickdriftEarly";
+/** The answers that have arrived, by URL: what the hook can take synchronously, while the page hydrates. */
+const ARRIVED = "__kickdriftEarlyArrived";
 
 /**
  * The inline script: starts the request with the same headers and credentials as apiFetch and keeps
@@ -27,7 +29,7 @@ const GLOBAL = "__kickdriftEarly";
 export function earlyFetchScript(url: string): string {
   // JSON.stringify writes a safe JS string literal; "<" is escaped so the text cannot close the script element.
   const literal = JSON.stringify(url).replace(/</g, "\\u003c");
-  return `(function(){try{var u=${literal},w=window,m=w.${GLOBAL}||(w.${GLOBAL}={});m[u]=fetch(u,{headers:{accept:"application/json"},credentials:"same-origin",cache:"no-store"}).then(function(r){return r.text().then(function(t){return{status:r.status,text:t}})},function(){return null})}catch(e){}})();`;
+  return `(function(){try{var u=${literal},w=window,m=w.${GLOBAL}||(w.${GLOBAL}={}),d=w.${ARRIVED}||(w.${ARRIVED}={});m[u]=fetch(u,{headers:{accept:"application/json"},credentials:"same-origin",cache:"no-store"}).then(function(r){return r.text().then(function(t){return{status:r.status,text:t}})},function(){return null}).then(function(a){if(u in m)d[u]=a;return a})}catch(e){}})();`;
 }
 
 /**
@@ -36,8 +38,37 @@ export function earlyFetchScript(url: string): string {
  */
 export function takeEarlyAnswer(url: string): Promise<EarlyAnswer | null> | undefined {
   if (typeof window === "undefined") return undefined;
-  const map = (window as unknown as Record<string, Record<string, Promise<EarlyAnswer | null>> | undefined>)[GLOBAL];
-  const answer = map?.[url];
-  if (answer) delete map[url];
+  const answer = earlyMaps().pending?.[url];
+  forget(url);
   return answer;
+}
+
+/**
+ * The early answer for this URL if it has already arrived (the usual case by the time the page has
+ * loaded its scripts and hydrates), taken as takeEarlyAnswer takes it: once. Undefined when it has
+ * not arrived yet (the request stays for takeEarlyAnswer) or the page started none. This lets the
+ * page draw the map with every cell in the commit that hydrates it, instead of first drawing every
+ * cell as not computed and waiting for the query's answer to go round the event loop.
+ */
+export function takeArrivedEarlyAnswer(url: string): EarlyAnswer | null | undefined {
+  if (typeof window === "undefined") return undefined;
+  const { pending, arrived } = earlyMaps();
+  if (!pending?.[url] || !arrived || !(url in arrived)) return undefined;
+  const answer = arrived[url];
+  forget(url);
+  return answer;
+}
+
+function earlyMaps() {
+  const w = window as unknown as Record<string, unknown>;
+  return {
+    pending: w[GLOBAL] as Record<string, Promise<EarlyAnswer | null>> | undefined,
+    arrived: w[ARRIVED] as Record<string, EarlyAnswer | null> | undefined,
+  };
+}
+
+function forget(url: string): void {
+  const { pending, arrived } = earlyMaps();
+  if (pending) delete pending[url];
+  if (arrived) delete arrived[url];
 }

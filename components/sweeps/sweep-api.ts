@@ -1,13 +1,14 @@
 "use client";
 /** Client access to the sweep routes of issue 4 (`/api/v1/studios/{studioId}/…`), typed by the shared contract. */
 import { useQuery, useQueryClient } from "@tanstack/react-query";
+import { useLayoutEffect, useState } from "react";
 import type { TimeSeries } from "@/lib/physics/types";
 import type { Scenario } from "@/lib/physics/types";
 import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath, seededBy } from "@/lib/ui/queries";
 import { FIRST_CURSOR, withPage, type CellRow, type CellsPage, type HeldCells } from "./sweep-cells";
-import { takeEarlyAnswer } from "./early-cells";
+import { firstCellsUrl, takeArrivedEarlyAnswer, takeEarlyAnswer } from "./early-cells";
 
 export type { CellRow } from "./sweep-cells";
 
@@ -90,6 +91,21 @@ const heldCellRows = (held: HeldCells) => held.cells;
 export function useSweepCells(studioId: string, sweepId: string, active: boolean) {
   const queryClient = useQueryClient();
   const queryKey = sweepKeys.cells(studioId, sweepId);
+  // When the early answer (early-cells.ts) arrived while the scripts loaded, it becomes the query's
+  // data in the commit that hydrates the page, before the query's own first read starts: the map
+  // draws every cell before the first paint. Not during render: the server's HTML was drawn without
+  // cells, and the hydrating render must match it. The re-render this asks for runs before paint.
+  const [, setSeeded] = useState(false);
+  useLayoutEffect(() => {
+    const key = sweepKeys.cells(studioId, sweepId);
+    if (queryClient.getQueryData(key) !== undefined) return;
+    const early = takeArrivedEarlyAnswer(firstCellsUrl(studioId, sweepId));
+    if (!early || early.status !== 200) return;
+    queryClient.setQueryData<HeldCells>(key, withPage(undefined, JSON.parse(early.text) as CellsPage));
+    // The one re-render after hydration is the point: it draws the map with the cells before the first paint.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
+    setSeeded(true);
+  }, [queryClient, studioId, sweepId]);
   return useQuery({
     queryKey,
     queryFn: async () => {

@@ -5,7 +5,7 @@
  */
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
-import { useEffect, useMemo, useRef, useState, type ReactNode } from "react";
+import { useCallback, useEffect, useMemo, useRef, useState, type ReactNode } from "react";
 import { CompareMaps, MapGrid, StabilityMap, VerdictSymbol, type MapLayer, type OverlayInput } from "@/components/maps";
 import { ConfirmDialog } from "@/components/confirm-dialog";
 import { Alert, Button, ButtonLink, Card, LoadingRows, SelectField, TextField } from "@/components/ui";
@@ -259,6 +259,9 @@ export function SweepView({ studioId, studioName, role, sweepId, initialSweep }:
   );
 }
 
+/** One map's cells: the sweep's cell index of each map cell, what the cells show, and their verdicts, reasons and dynamics lines. */
+type LayerAt = { indices: Int32Array; layer: MapLayer } & ReturnType<typeof layerData>;
+
 function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly CellRow[]; onOpenCell: (index: number) => void }) {
   const numericAxes = useMemo(() => sweep.axes.map((axis, i) => (isNumericAxis(axis) ? i : -1)).filter((i) => i >= 0), [sweep.axes]);
   const [xAxis, setXAxis] = useState(numericAxes[0] ?? -1);
@@ -266,15 +269,53 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
   const [slice, setSlice] = useState<number[]>(() => sweep.axes.map(() => 0));
   const [show, setShow] = useState<"verdict" | keyof Metrics>("verdict");
   const [colourRange, setColourRange] = useState(COLOUR_RANGES[0].key);
-  const otherAxes = sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis);
-  const compareAxis = otherAxes.length === 1 && !isNumericAxis(sweep.axes[otherAxes[0]]) && sweep.axes[otherAxes[0]].values.length >= 2 ? otherAxes[0] : -1;
-  const gridAxis = otherAxes.length === 1 && isNumericAxis(sweep.axes[otherAxes[0]]) ? otherAxes[0] : -1;
+  const otherAxes = useMemo(() => sweep.axes.map((_, i) => i).filter((i) => i !== xAxis && i !== yAxis), [sweep.axes, xAxis, yAxis]);
+  const { compareAxis, gridAxis } = useMemo(() => {
+    const only = otherAxes.length === 1 ? sweep.axes[otherAxes[0]] : null;
+    return {
+      compareAxis: only && !isNumericAxis(only) && only.values.length >= 2 ? otherAxes[0] : -1,
+      gridAxis: only && isNumericAxis(only) ? otherAxes[0] : -1,
+    };
+  }, [sweep.axes, otherAxes]);
   const [mode, setMode] = useState<ViewMode>(compareAxis >= 0 ? "compare" : "single");
   const effectiveMode: ViewMode = mode === "compare" && compareAxis < 0 ? "single" : mode === "grid" && gridAxis < 0 ? "single" : mode;
 
   const cellsByIndex = useMemo(() => new Map(cells.map((cell) => [cell.index, cell])), [cells]);
+  // What the maps draw, kept while the data and the choices stay: a map rebuilds its model and
+  // redraws its canvas whenever its axes, layer or overlays are new objects, and the page re-renders
+  // for reasons of its own (the studio's name, the session, the envelope arriving). Each redraw was a
+  // long task on the main thread in the first second of the page.
+  const x = useMemo(() => (xAxis >= 0 ? mapAxisFor(sweep.axes[xAxis]) : null), [sweep.axes, xAxis]);
+  const y = useMemo(() => (yAxis >= 0 ? mapAxisFor(sweep.axes[yAxis]) : SINGLE_ROW_AXIS), [sweep.axes, yAxis]);
+  const layers = useMemo(() => metricLayersFor(sweep.spec, sweep.axes), [sweep.spec, sweep.axes]);
+  const metric = show === "verdict" ? null : (layers.find((layer) => layer.key === show) ?? null);
+  const overlays = useMemo((): OverlayInput[] => (xAxis >= 0 && yAxis >= 0 ? overlaysFor(sweep.spec, sweep.axes[xAxis].path, sweep.axes[yAxis].path) : []), [sweep.spec, sweep.axes, xAxis, yAxis]);
+  const layerAt = useCallback(
+    (sliceChoice: readonly number[]): LayerAt => {
+      const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
+      const data = layerData(indices, cellsByIndex, metric?.key ?? null);
+      const layer: MapLayer = metric
+        ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: metricScale(metric, sweep.spec.scenario.tolerances ?? {}, colourRange) }
+        : { kind: "verdict", verdicts: data.verdicts };
+      return { indices, layer, ...data };
+    },
+    [sweep, cellsByIndex, xAxis, yAxis, metric, colourRange],
+  );
+  const withSlice = useCallback((axisIndex: number, position: number) => slice.map((value, i) => (i === axisIndex ? position : value)), [slice]);
+  // The layers of the layout shown, built once for these cells and choices.
+  const single = useMemo(() => (xAxis >= 0 && effectiveMode === "single" ? layerAt(slice) : null), [layerAt, slice, xAxis, effectiveMode]);
+  const compared = useMemo(() => {
+    if (xAxis < 0 || effectiveMode !== "compare") return null;
+    const aPosition = slice[compareAxis];
+    const bPosition = aPosition === 0 ? 1 : 0;
+    return { aPosition, bPosition, a: layerAt(withSlice(compareAxis, aPosition)), b: layerAt(withSlice(compareAxis, bPosition)) };
+  }, [layerAt, withSlice, slice, xAxis, effectiveMode, compareAxis]);
+  const gridLayers = useMemo(
+    () => (xAxis >= 0 && effectiveMode === "grid" ? sweep.axes[gridAxis].values.map((_, position) => layerAt(withSlice(gridAxis, position))) : null),
+    [layerAt, withSlice, sweep.axes, xAxis, effectiveMode, gridAxis],
+  );
 
-  if (xAxis < 0) {
+  if (xAxis < 0 || !x) {
     return (
       <Card title="Stability map">
         <p className="text-sm text-ink-muted">This sweep has no numeric axis to draw a map over; see its cells below and in the exports.</p>
@@ -283,29 +324,12 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
     );
   }
 
-  const x = mapAxisFor(sweep.axes[xAxis]);
-  const y = yAxis >= 0 ? mapAxisFor(sweep.axes[yAxis]) : SINGLE_ROW_AXIS;
-  const layers = metricLayersFor(sweep.spec, sweep.axes);
-  const metric = show === "verdict" ? null : (layers.find((layer) => layer.key === show) ?? null);
-  const overlays: OverlayInput[] = yAxis >= 0 ? overlaysFor(sweep.spec, sweep.axes[xAxis].path, sweep.axes[yAxis].path) : [];
-
-  const layerAt = (sliceChoice: readonly number[]) => {
-    const indices = mapCellIndices(sweep.axes, { x: xAxis, y: yAxis, slice: sliceChoice });
-    const data = layerData(indices, cellsByIndex, metric?.key ?? null);
-    const layer: MapLayer = metric
-      ? { kind: "metric", label: metric.label, unit: metric.unit, values: data.values, scale: metricScale(metric, sweep.spec.scenario.tolerances ?? {}, colourRange) }
-      : { kind: "verdict", verdicts: data.verdicts };
-    return { indices, layer, ...data };
-  };
   /** Picks the axis of one side of the map; picking the axis the other side shows swaps the two. */
   const pickAxis = (side: "x" | "y") => (next: number) => {
     const [mine, other, setMine, setOther] = side === "x" ? [xAxis, yAxis, setXAxis, setYAxis] : [yAxis, xAxis, setYAxis, setXAxis];
     if (next === other) setOther(mine);
     setMine(next);
   };
-  const withSlice = (axisIndex: number, position: number) => slice.map((value, i) => (i === axisIndex ? position : value));
-
-  const single = layerAt(slice);
   const axisValueLabel = (axisIndex: number, position: number) => {
     const axis = sweep.axes[axisIndex];
     const value = axis.values[position];
@@ -369,10 +393,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
 
       {effectiveMode === "compare" ? (
         (() => {
-          const aPosition = slice[compareAxis];
-          const bPosition = aPosition === 0 ? 1 : 0;
-          const a = layerAt(withSlice(compareAxis, aPosition));
-          const b = layerAt(withSlice(compareAxis, bPosition));
+          const { aPosition, bPosition, a, b } = compared!;
           const sameNote = identicalIntegratorsNote(sweep.spec, sweep.axes[compareAxis].path, sweep.axes[compareAxis].values[aPosition], sweep.axes[compareAxis].values[bPosition], a.verdicts, b.verdicts);
           return (
             <>
@@ -394,8 +415,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
         })()
       ) : effectiveMode === "grid" ? (
         (() => {
-          const positions = sweep.axes[gridAxis].values.map((_, position) => position);
-          const layers = positions.map((position) => layerAt(withSlice(gridAxis, position)));
+          const layers = gridLayers!;
           const third = mapAxisFor(sweep.axes[gridAxis]);
           const order = (sweep.axes[gridAxis].values as number[]).map((_, i) => i).sort((p, q) => (sweep.axes[gridAxis].values[p] as number) - (sweep.axes[gridAxis].values[q] as number));
           return (
@@ -414,7 +434,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
             />
           );
         })()
-      ) : (
+      ) : single ? (
         <StabilityMap
           x={x}
           y={y}
@@ -436,7 +456,7 @@ function SweepMaps({ sweep, cells, onOpenCell }: { sweep: Sweep; cells: readonly
           })}
           onCellClick={(mapIndex) => onOpenCell(single.indices[mapIndex])}
         />
-      )}
+      ) : null}
       <p className="mt-2 text-xs text-ink-muted">Hatched cells are not computed yet. Click a cell (or focus the map and press Enter) to open its time series and replay.</p>
       <div className="mt-3">
         <HelpPanel />

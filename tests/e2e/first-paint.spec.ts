@@ -1,7 +1,8 @@
 /**
  * Issue 22 (speed): a page's main content comes with its HTML, so it shows before any script has
  * loaded, hydrated and asked the API again. Tried as the demo studio's owner, in a browser with
- * JavaScript switched off: whatever each page shows there, the server rendered.
+ * JavaScript switched off: whatever each page shows there, the server rendered. With scripts on, the
+ * sweep page's map draws every cell from the answer its HTML asked for, in the commit that hydrates it.
  */
 import { VERDICT_STYLES } from "@/lib/charts/categories";
 import type { Verdict } from "@/lib/physics/types";
@@ -115,4 +116,35 @@ test("the studios, studio home, sweeps, sweep, cell, catalogues, catalogue, snap
   await page.waitForLoadState("load");
   expect(firstCellsReads).toHaveLength(1);
   expect(mismatches).toEqual([]);
+
+  // When the early answer is in before the scripts run (held here until it is, as a slow script
+  // download would), the map's first draw already has every cell: it never draws them as not
+  // computed first and again once the query has answered.
+  const held = await browser.newContext({ storageState: await page.context().storageState() });
+  const late = await held.newPage();
+  try {
+    let cellsArrived: () => void = () => {};
+    const arrived = new Promise<void>((resolve) => (cellsArrived = resolve));
+    late.on("requestfinished", (request) => {
+      if (/\/cells\?after=0$/.test(request.url())) cellsArrived();
+    });
+    await late.route(/\/_next\/static\/chunks\/.*\.js$/, async (route) => {
+      await arrived;
+      await route.continue();
+    });
+    // Every value the map's canvas takes for its not-computed count, in order.
+    await late.addInitScript(() => {
+      const seen: string[] = [];
+      (window as unknown as { __pendingSeen: string[] }).__pendingSeen = seen;
+      new MutationObserver((records) => {
+        for (const record of records) seen.push((record.target as Element).getAttribute("data-pending-cells") ?? "");
+      }).observe(document, { subtree: true, attributes: true, attributeFilter: ["data-pending-cells"] });
+    });
+    await late.goto(`${base}/sweeps/${done.id}`);
+    await expect(late.locator('canvas[data-plot][data-pending-cells="0"]').first()).toBeVisible();
+    const seen = await late.evaluate(() => (window as unknown as { __pendingSeen: string[] }).__pendingSeen);
+    expect(seen[0]).toBe("0");
+  } finally {
+    await held.close();
+  }
 });

@@ -5,7 +5,7 @@
  * stand-in window whose fetch records what it was asked.
  */
 import { afterEach, describe, expect, it } from "vitest";
-import { earlyFetchScript, firstCellsUrl, takeEarlyAnswer } from "@/components/sweeps/early-cells";
+import { earlyFetchScript, firstCellsUrl, takeArrivedEarlyAnswer, takeEarlyAnswer } from "@/components/sweeps/early-cells";
 
 const globals = globalThis as unknown as { window?: unknown; fetch: typeof fetch };
 const realFetch = globals.fetch;
@@ -26,6 +26,12 @@ function runScript(script: string, answer: () => Promise<Response>): { asked: { 
   globals.window = window;
   new Function("window", "fetch", script)(window, fakeFetch);
   return { asked };
+}
+
+/** Waits (on the answer's own promise, no timer) until the script has recorded the answer as arrived. */
+async function waitForArrival(url: string): Promise<void> {
+  const pending = (globals.window as Record<string, Record<string, Promise<unknown>> | undefined>).__kickdriftEarly?.[url];
+  await pending;
 }
 
 describe("early cells request", () => {
@@ -53,6 +59,31 @@ describe("early cells request", () => {
     await expect(takeEarlyAnswer(url)).resolves.toMatchObject({ status: 404 });
     runScript(earlyFetchScript(url), () => Promise.reject(new TypeError("network down")));
     await expect(takeEarlyAnswer(url)).resolves.toBeNull();
+  });
+
+  it("hands an answer that has arrived to the hydrating page synchronously, once, and nothing before it arrives", async () => {
+    const url = firstCellsUrl("std_1", "swp_1");
+    const body = JSON.stringify({ cells: [], cursor: "9" });
+    let deliver: (response: Response) => void = () => {};
+    runScript(earlyFetchScript(url), () => new Promise<Response>((resolve) => (deliver = resolve)));
+    // Not arrived yet: nothing to take now, and the request stays for the query's own first read.
+    expect(takeArrivedEarlyAnswer(url)).toBeUndefined();
+    deliver(new Response(body, { status: 200 }));
+    await waitForArrival(url);
+    expect(takeArrivedEarlyAnswer(url)).toEqual({ status: 200, text: body });
+    // Taken once, by either way: the query's first read then asks the server itself.
+    expect(takeArrivedEarlyAnswer(url)).toBeUndefined();
+    expect(takeEarlyAnswer(url)).toBeUndefined();
+  });
+
+  it("keeps no arrived copy of an answer the query already took while it was on its way", async () => {
+    const url = firstCellsUrl("std_1", "swp_1");
+    const body = JSON.stringify({ cells: [], cursor: "3" });
+    runScript(earlyFetchScript(url), async () => new Response(body, { status: 200 }));
+    await expect(takeEarlyAnswer(url)).resolves.toEqual({ status: 200, text: body });
+    expect(takeArrivedEarlyAnswer(url)).toBeUndefined();
+    const arrived = (globals.window as Record<string, Record<string, unknown> | undefined>).__kickdriftEarlyArrived;
+    expect(arrived && url in arrived).toBeFalsy();
   });
 
   it("writes the URL as a string literal that cannot close the script element", () => {
