@@ -81,7 +81,7 @@ export class Pacing {
    * while every thread still has a chunk to run, a claim can only find work that would wait behind
    * them, and each claim that finds nothing is main-thread work taken from the threads (measured on
    * a box sweep: a claim every poll was about a third of the runner's statements while it ran). The
-   * loop asks again as soon as a thread's chunk finishes, so a thread never waits for a poll.
+   * loop asks again as soon as a finished chunk is recorded, as it did before.
    */
   mayClaim(everyThreadFed: boolean): boolean {
     if (this.wasDrained && everyThreadFed) return false;

@@ -259,12 +259,12 @@ export class QueueRunner {
     this.inFlight.set(chunk.id, { chunk, abort });
     this.unlanded++;
     let unlanded = true;
+    // The loop looks again once the chunk is recorded (track rings it then), not as its run settles:
+    // a claim then would hold the database while the landed chunk waits to be recorded.
     const land = () => {
       if (!unlanded) return;
       unlanded = false;
       this.unlanded--;
-      // A thread may now be without a chunk: the loop claims while this one is being recorded.
-      if (this.unlanded < this.pool.threads) this.wakeup.ring();
     };
     this.track(this.runChunk(chunk, abort.signal, land).catch(logError), () => {
       land();
