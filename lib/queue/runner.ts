@@ -97,6 +97,8 @@ export class QueueRunner {
   private mode: Mode = "stopped";
   /** Chunks held, by chunk id. */
   private readonly inFlight = new Map<number, InFlight>();
+  /** Held chunks still waiting for a thread or running on one (not yet landed). */
+  private unlanded = 0;
   /** Work that still writes when it settles: chunks landing, a run being keyed. */
   private readonly landing = new Set<Promise<void>>();
   private loopDone: Promise<void> = Promise.resolve();
@@ -119,6 +121,7 @@ export class QueueRunner {
     if (this.mode === "running") return;
     this.mode = "running";
     await this.leases.reclaimLapsed(this.reclaimForeignAtStart);
+    this.pacing.leasesChecked();
     // Result files left by a process that died between writing a blob and recording it.
     void removeOrphanBlobs(this.db).catch(logError);
     this.leases.startRenewing(() => (this.crashed ? [] : [...this.inFlight.keys()]), logError);
@@ -207,15 +210,21 @@ export class QueueRunner {
         if (this.pacing.limitsDue()) await applyRunLimits(this.db);
         const free = this.concurrency - this.inFlight.size;
         // Claim once half the window is free, or at once if a thread could be left without work.
-        if (this.mode === "running" && free > 0 && this.pacing.mayClaim && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
+        const everyThreadFed = this.unlanded >= this.pool.threads;
+        if (this.mode === "running" && free > 0 && this.pacing.mayClaim(everyThreadFed) && (free >= this.claimBatch || this.inFlight.size < this.pool.threads * 2)) {
           const claimed = await claimChunks(this.db, {
             owner: this.ownerId,
             leaseMs: this.leases.leaseMs,
             limit: free,
             defaultMaxRunningSweeps: PLAN_DEFAULTS.maxRunningSweeps,
+            // Sweeps of held chunks: their specs are known, the claim need not send them again.
+            knownSweeps: [...new Set([...this.inFlight.values()].map((f) => f.chunk.sweepId))],
           });
           this.options.onClaimed?.(claimed.map((chunk) => chunk.sweepId));
           if (claimed.length < free) this.pacing.drained();
+          for (const chunk of claimed) {
+            if (chunk.spec) this.sweepInfo.put(chunk.sweepId, { studioId: chunk.studioId, spec: chunk.spec, hasCached: chunk.cachedCells > 0 });
+          }
           for (const chunk of claimed) this.launch(chunk);
         }
         if (this.mode === "running" && this.inFlight.size === 0 && this.keyer.ready) this.keyNext();
@@ -249,7 +258,19 @@ export class QueueRunner {
   private launch(chunk: ClaimedChunk): void {
     const abort = new AbortController();
     this.inFlight.set(chunk.id, { chunk, abort });
-    this.track(this.runChunk(chunk, abort.signal).catch(logError), () => this.inFlight.delete(chunk.id));
+    this.unlanded++;
+    let unlanded = true;
+    // The loop looks again once the chunk is recorded (track rings it then), not as its run settles:
+    // a claim then would hold the database while the landed chunk waits to be recorded.
+    const land = () => {
+      if (!unlanded) return;
+      unlanded = false;
+      this.unlanded--;
+    };
+    this.track(this.runChunk(chunk, abort.signal, land).catch(logError), () => {
+      land();
+      this.inFlight.delete(chunk.id);
+    });
   }
 
   /** Key the next recorded run on the pool (the pool is idle: no chunk is held), then look again. */
@@ -258,7 +279,8 @@ export class QueueRunner {
     if (keyed) this.track(keyed);
   }
 
-  private async runChunk(chunk: ClaimedChunk, signal: AbortSignal): Promise<void> {
+  /** `land` is called once the chunk's run on the pool has settled (before it is recorded). */
+  private async runChunk(chunk: ClaimedChunk, signal: AbortSignal, land: () => void): Promise<void> {
     const info = await this.sweepInfo.get(chunk.sweepId);
     if (!info) return;
     // Cells served from the cache at submit are already stored (a partial row): run the others.
@@ -282,7 +304,7 @@ export class QueueRunner {
     };
     let outcome: ChunkOutcome;
     try {
-      outcome = await this.pool.run(task, { signal });
+      outcome = await this.pool.run(task, { signal }).finally(land);
     } catch (error) {
       if (this.crashed || signal.aborted) {
         if (!this.crashed) await discardChunk(this.db, this.ownerId, chunk.id, true);

@@ -12,6 +12,7 @@ import { z } from "@/lib/zod";
 import type { DbOrTx } from "@/db/client";
 import { queryRows, sqlNumber } from "@/db/rows";
 import { VERDICTS } from "@/lib/physics/types";
+import type { SweepSpec } from "@/lib/sweeps/spec";
 import { SWEEP_STATUSES, type SweepStatus } from "@/lib/sweeps/status";
 
 const claimedRow = z.object({
@@ -22,6 +23,9 @@ const claimedRow = z.object({
   cell_count: sqlNumber,
   attempts: sqlNumber,
   sweep_status: z.enum(SWEEP_STATUSES),
+  studio_id: z.string(),
+  cached_cells: sqlNumber,
+  spec_text: z.string().nullable(),
 });
 
 /** A chunk just claimed (its lease held by the claiming runner). */
@@ -35,6 +39,14 @@ export interface ClaimedChunk {
   attempts: number;
   /** The sweep's status before the claim ("queued" when this claim started it). */
   sweepStatus: SweepStatus;
+  studioId: string;
+  /** Cells of the sweep served from the result cache at submit (partial results rows may exist). */
+  cachedCells: number;
+  /**
+   * The sweep's spec, on the first chunk of each sweep the claim returned that is not among
+   * `knownSweeps`; null otherwise (the runner already has it).
+   */
+  spec: SweepSpec | null;
 }
 
 export interface ClaimParams {
@@ -45,16 +57,30 @@ export interface ClaimParams {
   limit: number;
   /** Running sweeps per studio when its quotas row sets none (lib/quotas/plan.ts PLAN_DEFAULTS). */
   defaultMaxRunningSweeps: number;
+  /** Sweeps whose spec the caller has already: their chunks come without it. */
+  knownSweeps?: readonly string[];
 }
 
 /**
  * Claim up to `limit` queued chunks in one statement, fair share between studios, starting queued
- * sweeps within their studio's limit of running sweeps; ordered by sweep and chunk index.
+ * sweeps within their studio's limit of running sweeps; ordered by sweep and chunk index. The same
+ * statement answers what the runner needs of each sweep new to it (studio, spec, cached cells), so
+ * a new sweep's first chunk starts without another round trip to the database.
  */
 export async function claimChunks(db: DbOrTx, p: ClaimParams): Promise<ClaimedChunk[]> {
+  const known = p.knownSweeps ?? [];
+  // The function runs once (a materialized CTE); the join reads the sweeps' unchanging columns.
   const rows = await queryRows(
     db,
-    sql`select * from kickdrift_claim_chunks(${p.owner}::text, ${p.leaseMs / 1000}::double precision, ${p.limit}::integer, ${p.defaultMaxRunningSweeps}::integer)`,
+    sql`
+      with c as materialized (
+        select * from kickdrift_claim_chunks(${p.owner}::text, ${p.leaseMs / 1000}::double precision, ${p.limit}::integer, ${p.defaultMaxRunningSweeps}::integer) with ordinality
+      )
+      select c.id, c.sweep_id, c.chunk_index, c.first_cell, c.cell_count, c.attempts, c.sweep_status, s.studio_id, s.cached_cells,
+        case when row_number() over (partition by c.sweep_id order by c.ordinality) = 1
+          and not (c.sweep_id = any(${sqlTextArray(known)})) then s.spec::text end as spec_text
+      from c join sweeps s on s.id = c.sweep_id
+      order by c.ordinality`,
     claimedRow,
   );
   return rows.map((row) => ({
@@ -65,7 +91,15 @@ export async function claimChunks(db: DbOrTx, p: ClaimParams): Promise<ClaimedCh
     cellCount: row.cell_count,
     attempts: row.attempts,
     sweepStatus: row.sweep_status,
+    studioId: row.studio_id,
+    cachedCells: row.cached_cells,
+    spec: row.spec_text === null ? null : (JSON.parse(row.spec_text) as SweepSpec),
   }));
+}
+
+/** A text[] parameter (an empty list matches nothing). */
+function sqlTextArray(values: readonly string[]) {
+  return values.length === 0 ? sql`array[]::text[]` : sql`array[${sql.join(values.map((v) => sql`${v}`), sql`, `)}]::text[]`;
 }
 
 const recordRow = z.object({

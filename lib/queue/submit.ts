@@ -157,13 +157,33 @@ async function matchCache(db: Db, studioId: string, spec: SweepSpec, cells: numb
   return cachedCells === 0 ? none : { hitSource, hitPosition, cachedCells, sources };
 }
 
+/** Studios' specs whose sample units are remembered, at most (the oldest is forgotten first). */
+const SAMPLES_REMEMBERED = 256;
+const sampleUnitsBySpec = new Map<string, Map<number, number>>();
+
+/**
+ * The expected figure's sample units (by cell index) already measured for this studio and spec: the
+ * quote measures them, and the submit that follows it (the sweep page quotes, the studio accepts,
+ * the page submits with the accepted ceiling) reuses them instead of running the sample cells again
+ * on the main thread. A cell's units depend on its scenario alone, so the figures are the same.
+ * Kept per studio, so one studio's quote never speeds up another's submit.
+ */
+function rememberedSampleUnits(studioId: string, spec: SweepSpec): Map<number, number> {
+  const key = `${studioId}\n${specHash(spec)}`;
+  const units = sampleUnitsBySpec.get(key) ?? new Map<number, number>();
+  sampleUnitsBySpec.delete(key);
+  sampleUnitsBySpec.set(key, units);
+  if (sampleUnitsBySpec.size > SAMPLES_REMEMBERED) sampleUnitsBySpec.delete(sampleUnitsBySpec.keys().next().value as string);
+  return units;
+}
+
 async function planSweep(db: Db, studioId: string, spec: SweepSpec, chunkOptions: ChunkOptions): Promise<Plan> {
   const axes = expandAxes(spec);
   const estimate = predictSweep(spec, { ...chunkOptions, axes });
   const cache = await matchCache(db, studioId, spec, estimate.cells);
   // Cached cells cost nothing: they are left out of the ceiling and the expected figure.
   const hits = cache.hitSource;
-  const meter = meterSweep(spec, estimate.plan, hits ? (index) => hits[index] !== -1 : undefined, axes);
+  const meter = meterSweep(spec, estimate.plan, hits ? (index) => hits[index] !== -1 : undefined, axes, rememberedSampleUnits(studioId, spec));
   const corners = cornerScenarios(spec);
   return {
     spec,

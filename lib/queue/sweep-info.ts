@@ -20,6 +20,12 @@ export class SweepInfoCache {
 
   constructor(private readonly db: Db) {}
 
+  /** Remember a sweep's info read elsewhere (the claim that returned its chunks). */
+  put(sweepId: string, info: SweepInfo): void {
+    if (this.known.size > REMEMBERED) this.known.clear();
+    this.known.set(sweepId, Promise.resolve(info));
+  }
+
   /** The sweep's info (null: no such sweep); chunks launched together share one read. */
   get(sweepId: string): Promise<SweepInfo | null> {
     const known = this.known.get(sweepId);

@@ -219,12 +219,22 @@ export function runLimitReason(s: Standing): RunLimitReason | null {
  * wait for a running slot get a reason saying so. Also sends the monthly-cap alerts.
  */
 export async function applyRunLimits(db: Db, at: Date = new Date()): Promise<void> {
-  const active = rowsOf<{ studio_id: string }>(
+  // One statement finds the studios and what each needs: the runner calls this every second while
+  // chunks run, and each statement is main-thread work taken from the pool's threads, so the
+  // updates below run only where they would change a row (the usual case is none of them).
+  const active = rowsOf<{ studio_id: string; limit_paused: boolean; running: number; queued_plain: number; queued_reasons: string[] | null }>(
     await db.execute(sql`
-      select distinct studio_id from sweeps
-      where status in ('queued', 'running') or (status = 'paused' and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)}))`),
+      select studio_id,
+        bool_or(status = 'paused') as limit_paused,
+        (count(*) filter (where status = 'running'))::int as running,
+        (count(*) filter (where status = 'queued' and reason is null))::int as queued_plain,
+        array_agg(distinct reason) filter (where status = 'queued' and reason is not null) as queued_reasons
+      from sweeps
+      where status in ('queued', 'running') or (status = 'paused' and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)}))
+      group by studio_id`),
   );
-  for (const { studio_id: studioId } of active) {
+  for (const row of active) {
+    const studioId = row.studio_id;
     const standing = await readStanding(db, studioId, at);
     if (!standing) continue;
     const reason = runLimitReason(standing);
@@ -234,14 +244,20 @@ export async function applyRunLimits(db: Db, at: Date = new Date()): Promise<voi
         where studio_id = ${studioId}
           and (status in ('queued', 'running') or (status = 'paused' and reason <> ${reason} and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)})))`);
     } else {
-      await db.execute(sql`
-        update sweeps set status = case when started_at is null then 'queued' else 'running' end, reason = null
-        where studio_id = ${studioId} and status = 'paused' and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)})`);
-      const running = Number(rowsOf<{ n: string | number }>(await db.execute(sql`select count(*) as n from sweeps where studio_id = ${studioId} and status = 'running'`))[0].n);
+      let running = Number(row.running);
+      if (row.limit_paused) {
+        await db.execute(sql`
+          update sweeps set status = case when started_at is null then 'queued' else 'running' end, reason = null
+          where studio_id = ${studioId} and status = 'paused' and reason in (${sql.join(PAUSE_REASONS.map((r) => sql`${r}`), sql`, `)})`);
+        running = Number(rowsOf<{ n: string | number }>(await db.execute(sql`select count(*) as n from sweeps where studio_id = ${studioId} and status = 'running'`))[0].n);
+      }
       const waiting = waitingForSlotReason(standing.quotas.maxRunningSweeps);
-      if (running >= standing.quotas.maxRunningSweeps)
-        await db.execute(sql`update sweeps set reason = ${waiting} where studio_id = ${studioId} and status = 'queued' and reason is distinct from ${waiting}`);
-      else await db.execute(sql`update sweeps set reason = null where studio_id = ${studioId} and status = 'queued' and reason is not null`);
+      const reasons = row.queued_reasons ?? [];
+      // After a resume the queued sweeps are not those the first statement saw: set their reasons as before.
+      if (running >= standing.quotas.maxRunningSweeps) {
+        if (row.limit_paused || Number(row.queued_plain) > 0 || reasons.some((r) => r !== waiting))
+          await db.execute(sql`update sweeps set reason = ${waiting} where studio_id = ${studioId} and status = 'queued' and reason is distinct from ${waiting}`);
+      } else if (row.limit_paused || reasons.length > 0) await db.execute(sql`update sweeps set reason = null where studio_id = ${studioId} and status = 'queued' and reason is not null`);
     }
     await sendCapAlerts(db, studioId, standing);
   }

@@ -85,11 +85,31 @@ export interface SweepMeter {
   chunks: ChunkMeter[];
 }
 
+/** Work units of one cell, run through the engine. */
+function cellUnits(spec: SweepSpec, axes: readonly ExpandedAxis[], index: number, scratch: ReturnType<typeof createRunScratch>): number {
+  let units = -1;
+  forEachCellInRange(spec, axes, index, 1, (cell) => {
+    units = simulate(cell.scenario, {}, scratch).workUnits;
+  });
+  if (units < 0) throw new RangeError(`cell ${index} is outside the grid`);
+  return units;
+}
+
 /**
  * Ceiling and expected figures of a sweep's cells still to run (`cached(index)` true for a cell the
  * result cache serves: it costs nothing), per chunk of `plan`.
  */
-export function meterSweep(spec: SweepSpec, plan: readonly ChunkPlan[], cached: (index: number) => boolean = () => false, axes: readonly ExpandedAxis[] = expandAxes(spec)): SweepMeter {
+export function meterSweep(
+  spec: SweepSpec,
+  plan: readonly ChunkPlan[],
+  cached: (index: number) => boolean = () => false,
+  axes: readonly ExpandedAxis[] = expandAxes(spec),
+  /**
+   * Work units of cells of this spec already run for a sample, by cell index (a cell's units depend
+   * on its scenario alone): used instead of running them again, and filled with those run here.
+   */
+  known?: Map<number, number>,
+): SweepMeter {
   const cells = plan.reduce((n, chunk) => n + chunk.cellCount, 0);
   const ceilingOf = new Float64Array(cells);
   let ceilingUnits = 0;
@@ -121,14 +141,17 @@ export function meterSweep(spec: SweepSpec, plan: readonly ChunkPlan[], cached: 
   let sampleCeiling = 0;
   if (sampleSet.size > 0) {
     const sorted = [...sampleSet].sort((a, b) => a - b);
-    const scratch = createRunScratch();
+    let scratch: ReturnType<typeof createRunScratch> | undefined;
     for (const index of sorted) {
-      forEachCellInRange(spec, axes, index, 1, (cell) => {
-        const units = simulate(cell.scenario, {}, scratch).workUnits;
-        measured.set(index, units);
-        sampleUnits += units;
-        sampleCeiling += ceilingOf[index];
-      });
+      let units = known?.get(index);
+      if (units === undefined) {
+        scratch ??= createRunScratch();
+        units = cellUnits(spec, axes, index, scratch);
+        known?.set(index, units);
+      }
+      measured.set(index, units);
+      sampleUnits += units;
+      sampleCeiling += ceilingOf[index];
     }
   }
   // Without a sample (every cell too costly to try), expect half the ceiling.

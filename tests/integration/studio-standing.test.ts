@@ -73,6 +73,34 @@ describe("kickdrift_studio_standing", () => {
   });
 });
 
+describe("the claim", () => {
+  it("answers each new sweep's studio, cached cells and spec with its first chunk, and leaves out the specs of sweeps the claimer holds", async () => {
+    const a = await makeSweepStudio("Claim Spec Studio A", 20 * 60_000);
+    const b = await makeSweepStudio("Claim Spec Studio B", 20 * 60_000);
+    // 15 cells in chunks of 5: three chunks each.
+    const sweepA = await submitSweep(db, a.studioId, { spec: puckSpec() }, { chunkOptions: { maxCellsPerChunk: 5 } });
+    const sweepB = await submitSweep(db, b.studioId, { spec: puckSpec() }, { chunkOptions: { maxCellsPerChunk: 5 } });
+    const claimed = await claimChunks(db, {
+      owner: "claim-spec-test",
+      leaseMs: 600_000,
+      limit: 100,
+      defaultMaxRunningSweeps: PLAN_DEFAULTS.maxRunningSweeps,
+      knownSweeps: [sweepB.id],
+    });
+    const ofA = claimed.filter((c) => c.sweepId === sweepA.id);
+    const ofB = claimed.filter((c) => c.sweepId === sweepB.id);
+    expect(ofA.map((c) => c.chunkIndex)).toEqual([0, 1, 2]);
+    expect(ofB.map((c) => c.chunkIndex)).toEqual([0, 1, 2]);
+    const [storedA] = await db.select({ spec: sweeps.spec }).from(sweeps).where(eq(sweeps.id, sweepA.id));
+    // The spec as the runner would read it from the sweep's row, once per sweep per claim.
+    expect(ofA[0].spec).toEqual(storedA.spec);
+    expect(ofA.slice(1).map((c) => c.spec)).toEqual([null, null]);
+    expect(ofB.map((c) => c.spec)).toEqual([null, null, null]);
+    expect(ofA.every((c) => c.studioId === a.studioId && c.cachedCells === 0)).toBe(true);
+    expect(ofB.every((c) => c.studioId === b.studioId && c.cachedCells === 0)).toBe(true);
+  });
+});
+
 describe("the chunk recorder reads the same standing", () => {
   it("debits in place exactly when the debit rule bills the whole chunk as prepaid, far from the low-balance mark and the cap", async () => {
     const s = await makeSweepStudio("Standing Recorder Studio", 20 * 60_000);
