@@ -71,10 +71,16 @@ function specInput(): SweepSpecInput {
 }
 
 /**
- * An invented loading-bay game, "Cratefall": 240 crates (discs) settling under gravity in a bay,
- * a box sweep of stiffness × step (6 × 6 cells, 0.4 s each): contact-heavy cells end to end.
+ * An invented loading-bay game, "Cratefall": 240 crates (discs) dropped into a bay and settling
+ * under gravity, a box sweep of stiffness × step (6 × 6 cells). The discs start spread over the
+ * 12 m bay, one per grid cell, and a disc from the top needs about 1.6 s to reach the floor
+ * (√(2·12/9.81)); so 3 s of simulated time is what makes the cells contact-heavy (the pile forms
+ * and settles). At 0.4 s, the figure this bench used to time, the discs are mostly in free flight
+ * and the sweep is a quarter-second of compute: the queue's fixed cost per sweep (submit, first
+ * claim, last record: about 45 ms here) is what that figure measures, so it is printed beside the
+ * target line as the fixed-cost view, with no target of its own.
  */
-function boxSpecInput(): SweepSpecInput {
+function boxSpecInput(durationS: number): SweepSpecInput {
   return {
     name: "bench: Cratefall loading bay",
     scenario: {
@@ -83,7 +89,7 @@ function boxSpecInput(): SweepSpecInput {
       integrator: "symplectic-euler",
       dtS: 1e-3,
       substeps: 1,
-      durationS: 0.4,
+      durationS,
     },
     axes: [
       { parameter: "contact.stiffness", spacing: "log", from: 2e4, to: 2e6, count: 6 },
@@ -195,10 +201,13 @@ async function run(): Promise<void> {
 
 /** The box sweep through the queue against the engine alone (the cells route is the pair sweep's business). */
 async function runBox(): Promise<void> {
-  await runWith(boxSpecInput(), BOX_ROUNDS, false);
+  console.log("The settling pile, 3 s simulated per cell (target line):");
+  await runWith(boxSpecInput(3), BOX_ROUNDS, false);
+  console.log("The same sweep at 0.4 s simulated per cell, mostly free flight (the queue's fixed cost per sweep; no target):");
+  await runWith(boxSpecInput(0.4), BOX_ROUNDS, false, null);
 }
 
-async function runWith(input: SweepSpecInput, rounds: number, timeCells: boolean): Promise<void> {
+async function runWith(input: SweepSpecInput, rounds: number, timeCells: boolean, targetRatio: number | null = TARGET_RATIO): Promise<void> {
   const spec = parsedSpec(input);
   const cells = cellCount(expandAxes(spec));
   const threads = defaultThreadCount();
@@ -252,7 +261,7 @@ async function runWith(input: SweepSpecInput, rounds: number, timeCells: boolean
     console.log(
       // The median of the per-round ratios pairs each queue run with the engine run beside it (same
       // load), which a loaded machine's swings between rounds do not move as they move the medians' ratio.
-      `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× (target ≤ ${TARGET_RATIO}×); per round: ${ratios.map((r) => r.toFixed(2)).join(" ")} (median ${median(ratios).toFixed(2)}×); ` +
+      `queue total / runSweep (medians): ${(totalS / engineS).toFixed(2)}× ${targetRatio === null ? "(no target)" : `(target ≤ ${targetRatio}×)`}; per round: ${ratios.map((r) => r.toFixed(2)).join(" ")} (median ${median(ratios).toFixed(2)}×); ` +
         `${queueRuns[0].sweep.cellsDone} cells done per queue run`,
     );
     if (!timeCells) return;
@@ -295,7 +304,7 @@ export const queueEndToEnd: BenchModule = {
 /** For tests/bench/run-all.ts (BENCH_MODULES): the same comparison on a contact-heavy box sweep. */
 export const queueBoxEndToEnd: BenchModule = {
   id: "queue-box-end-to-end",
-  title: "a 36-cell box sweep (240 discs settling under gravity) through submit + queue runner vs runSweep",
+  title: "a 36-cell box sweep (240 discs settling under gravity, 3 s and 0.4 s simulated) through submit + queue runner vs runSweep",
   run: runBox,
 };
 
