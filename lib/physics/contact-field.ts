@@ -26,7 +26,7 @@
 import type { Bodies } from "./bodies";
 import type { ForceField } from "./integrators";
 import { BroadPhase, NEIGHBOUR_LIST_SKIN_FRACTION } from "./broad-phase";
-import { contactCutoffM, contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
+import { contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
 import { NO_TANGENTIAL, TangentialContacts, tangentialActive, type TangentialParameters } from "./tangential";
 
 export const CONTACT_LINEAR = 0;
@@ -155,9 +155,9 @@ export class ContactField implements ForceField {
   /** Friction or rolling resistance acts: the tangential law runs in pair() and walls(). */
   frictional = false;
   /**
-   * Linear law without a tangential one: pairs go through linearPairRows, the same arithmetic as
-   * pair with normalForce and the damping inlined (no double arguments to box on the heap, no calls
-   * in the per-contact path); walls call linearNormalForce rather than normalForce.
+   * Linear law without a tangential one: pairs and walls go through linearPairRows / wallsLinear, the
+   * same arithmetic as pair / walls with normalForce and the damping inlined (no double arguments
+   * to box on the heap, no calls in the per-contact path).
    */
   private linearFrictionless = false;
   readonly tangential = new TangentialContacts();
@@ -274,13 +274,14 @@ export class ContactField implements ForceField {
         driftSum += squared;
       }
     }
-    const cutoffM = contactCutoffM(maxRadius, maxDisplacementSquared);
+    const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
     this.cutoffSquaredM2 = cutoffM * cutoffM;
 
     if (grid) this.pairsByNeighbourList(bodies, cutoffM, maxRadius, checkList, driftSquared, driftSum);
     else this.pairsAllPairs(bodies);
     if (this.wallCount > 0) {
-      this.walls(bodies);
+      if (this.linearFrictionless) this.wallsLinear(bodies);
+      else this.walls(bodies);
     }
     if (this.frictional) this.pass[PASS_POTENTIAL_J] += this.tangential.springPotentialJ;
 
@@ -552,8 +553,7 @@ export class ContactField implements ForceField {
 
   private walls(bodies: Bodies): void {
     const pass = this.pass;
-    const linear = this.linearFrictionless;
-    const { x, y, vx, vy, radius, mass } = bodies;
+    const { x, y, vx, vy, fx, fy, radius, mass } = bodies;
     const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
     const { wallBand, wallBandUsable: banded } = this.broad;
     const count = banded ? this.broad.wallBandCount : bodies.count;
@@ -567,42 +567,84 @@ export class ContactField implements ForceField {
         if (overlap <= 0) continue;
         if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
         const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
-        const force = linear ? this.linearNormalForce(overlap, overlapRate, mass[i]) : this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
+        const force = this.normalForce(overlap, overlapRate, mass[i], radius[i], this.wallHertzModulusFactorPa);
         const omegaSquared = this.lastStiffnessNPerM / mass[i];
         if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
-        this.wallContact(bodies, i, w, normalX, normalY, overlap, overlapRate, force);
+        if (force > 0) {
+          fx[i] += force * normalX;
+          fy[i] += force * normalY;
+          pass[PASS_WALL_FORCE_X_N] += force * normalX;
+          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
+        }
         if (this.frictional) {
-          // After the normal push (the tangential law neither reads the forces nor the pass's counts).
           const tangentialForce = this.tangential.wall(bodies, i, w, normalX, normalY, centreDistance, force > 0 ? force : 0, this.lastStiffnessNPerM);
           pass[PASS_WALL_FORCE_X_N] -= tangentialForce * normalY;
           pass[PASS_WALL_FORCE_Y_N] += tangentialForce * normalX;
+        }
+        pass[PASS_OVERLAPPING_CONTACTS]++;
+        const fraction = overlap / radius[i];
+        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
+        const phase = this.run.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
+          const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - wallOffset[w]);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
         }
       }
     }
   }
 
-  /**
-   * The part of a disc–wall contact that follows its normal force (walls()):
-   * the push (clamped at zero) on the disc and into the pass's wall force, the pass's counts and
-   * maxima, and the first contact.
-   */
-  private wallContact(bodies: Bodies, i: number, w: number, normalX: number, normalY: number, overlap: number, overlapRate: number, force: number): void {
+  /** walls() for the linear law without friction (see linearPairRows): the same operations in the same order. */
+  private wallsLinear(bodies: Bodies): void {
     const pass = this.pass;
-    const { fx, fy, radius } = bodies;
-    if (force > 0) {
-      fx[i] += force * normalX;
-      fy[i] += force * normalY;
-      pass[PASS_WALL_FORCE_X_N] += force * normalX;
-      pass[PASS_WALL_FORCE_Y_N] += force * normalY;
-    }
-    pass[PASS_OVERLAPPING_CONTACTS]++;
-    const fraction = overlap / radius[i];
-    if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
-    if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
-    const phase = this.run.firstContactPhase;
-    if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
-      const previousOverlap = radius[i] - (normalX * bodies.previousX[i] + normalY * bodies.previousY[i] - this.wallOffset[w]);
-      if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+    const { x, y, vx, vy, fx, fy, radius, mass, previousX, previousY } = bodies;
+    const { wallNormalX, wallNormalY, wallOffset, wallCount } = this;
+    const k = this.stiffness;
+    const { wallBand, wallBandUsable: banded } = this.broad;
+    const count = banded ? this.broad.wallBandCount : bodies.count;
+    for (let b = 0; b < count; b++) {
+      const i = banded ? wallBand[b] : b;
+      for (let w = 0; w < wallCount; w++) {
+        const normalX = wallNormalX[w];
+        const normalY = wallNormalY[w];
+        const centreDistance = normalX * x[i] + normalY * y[i] - wallOffset[w];
+        const overlap = radius[i] - centreDistance;
+        if (overlap <= 0) continue;
+        if (centreDistance <= 0) this.recordTunnel(TUNNEL_THROUGH_WALL, i, -1 - w);
+        const overlapRate = -(normalX * vx[i] + normalY * vy[i]);
+        const reducedMass = mass[i];
+        // normalForce, linear.
+        this.lastStiffnessNPerM = k;
+        if (overlap > 0) pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
+        let damping = 0;
+        if (this.dampingMode === DAMPING_COEFFICIENT) damping = this.dampingValue;
+        else if (this.dampingMode === DAMPING_DIMENSIONLESS) {
+          if (reducedMass !== this.memoReducedMass || k !== this.memoStiffness) {
+            this.memoReducedMass = reducedMass;
+            this.memoStiffness = k;
+            this.memoDamping = 2 * this.dampingValue * Math.sqrt(reducedMass * k);
+          }
+          damping = this.memoDamping;
+        }
+        const force = k * overlap + damping * overlapRate;
+        const omegaSquared = k / reducedMass;
+        if (omegaSquared > pass[PASS_MAX_OMEGA_SQUARED]) pass[PASS_MAX_OMEGA_SQUARED] = omegaSquared;
+        if (force > 0) {
+          fx[i] += force * normalX;
+          fy[i] += force * normalY;
+          pass[PASS_WALL_FORCE_X_N] += force * normalX;
+          pass[PASS_WALL_FORCE_Y_N] += force * normalY;
+        }
+        pass[PASS_OVERLAPPING_CONTACTS]++;
+        const fraction = overlap / radius[i];
+        if (fraction > pass[PASS_MAX_OVERLAP_FRACTION]) pass[PASS_MAX_OVERLAP_FRACTION] = fraction;
+        if (overlap > pass[PASS_MAX_OVERLAP_M]) pass[PASS_MAX_OVERLAP_M] = overlap;
+        const phase = this.run.firstContactPhase;
+        if (phase === FIRST_CONTACT_PENDING || (phase === FIRST_CONTACT_ACTIVE && i === this.run.firstContactA && -1 - w === this.run.firstContactB)) {
+          const previousOverlap = radius[i] - (normalX * previousX[i] + normalY * previousY[i] - wallOffset[w]);
+          if (phase === FIRST_CONTACT_ACTIVE || previousOverlap <= 0) this.trackFirstContact(i, -1 - w, overlap, overlapRate, force, normalX, normalY, previousOverlap <= 0, previousOverlap);
+        }
+      }
     }
   }
 
@@ -612,8 +654,13 @@ export class ContactField implements ForceField {
    * interpolated; the potential is only counted for real overlaps.
    */
   private normalForce(overlap: number, overlapRate: number, reducedMass: number, effectiveRadius: number, modulusFactorPa: number): number {
-    if (this.model === CONTACT_LINEAR) return this.linearNormalForce(overlap, overlapRate, reducedMass);
     const magnitude = overlap < 0 ? -overlap : overlap;
+    if (this.model === CONTACT_LINEAR) {
+      const k = this.stiffness;
+      this.lastStiffnessNPerM = k;
+      if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
+      return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
+    }
     let k = this.stiffness;
     if (modulusFactorPa > 0) {
       if (effectiveRadius !== this.memoEffectiveRadius || modulusFactorPa !== this.memoModulusFactor) {
@@ -632,18 +679,6 @@ export class ContactField implements ForceField {
     this.lastHertzStiffness = k;
     this.lastHertzDamping = eta;
     return (overlap >= 0 ? springMagnitude : -springMagnitude) + eta * Math.sqrt(root) * overlapRate;
-  }
-
-  /**
-   * normalForce under the linear law. Small and of numbers alone, so that walls() calls it directly
-   * for a linear law without friction and the compiler inlines it there (a call it does not inline
-   * boxes its double arguments on the heap).
-   */
-  private linearNormalForce(overlap: number, overlapRate: number, reducedMass: number): number {
-    const k = this.stiffness;
-    this.lastStiffnessNPerM = k;
-    if (overlap > 0) this.pass[PASS_POTENTIAL_J] += 0.5 * k * overlap * overlap;
-    return k * overlap + this.dampingCoefficient(reducedMass, k) * overlapRate;
   }
 
   /** c (linear) or η (Hertz) for a contact; remembered for the last (mass, stiffness) pair, as most contacts repeat it. */

@@ -1,19 +1,10 @@
 /**
  * The geometry of one disc pair's step shared by the contact field's general pair (`pair`), its
- * linear rows (`linearPairRows`) and the two-body loop (`advancePair`, `freePairSteps`): the
- * cutoff, the contact normal and the two tunnel tests. Small functions of numbers so that the compiler inlines them into each hot
+ * linear rows (`linearPairRows`) and the two-body loop (`advancePair`): the contact normal and the
+ * two tunnel tests. Small functions of numbers so that the compiler inlines them into each hot
  * loop, which then does the same operations in the same order as when they were written out there
  * (tests/unit/physics/kernel-identity.test.ts, fast-path.test.ts hold every result to the bit).
  */
-
-/**
- * The distance within which a pair is looked at in a step: two of the largest radius plus twice
- * the largest drift of the step (its square `maxDisplacementSquared`). Beyond it neither an overlap
- * nor a contact skipped within the step is possible.
- */
-export function contactCutoffM(maxRadius: number, maxDisplacementSquared: number): number {
-  return 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
-}
 
 /**
  * One component of the unit normal from body i to body j: the centre offset `component` over the

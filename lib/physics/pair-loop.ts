@@ -8,8 +8,8 @@
 import type { Scenario } from "./types";
 import type { Bodies } from "./bodies";
 import { BROAD_PHASE_ALL_PAIRS, CONTACT_LINEAR, type ContactField, DAMPING_COEFFICIENT, DAMPING_NONE, FIRST_CONTACT_ACTIVE, FIRST_CONTACT_ENDED, FIRST_CONTACT_PENDING, PASS_FIRST_CONTACT_ENDED, PASS_FIRST_CONTACT_STARTED, PASS_MAX_OMEGA_SQUARED, PASS_MAX_OVERLAP_FRACTION, PASS_MAX_OVERLAP_M, PASS_OVERLAPPING_CONTACTS, PASS_POTENTIAL_J, PASS_TUNNEL_DETECTED, PASS_WALL_FORCE_X_N, PASS_WALL_FORCE_Y_N, TUNNEL_CENTRES_CROSSED, TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, TUNNEL_NONE, TUNNEL_SKIPPED_CONTACT } from "./contact-field";
-import { contactCutoffM, contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
-import { energyBlownUp, jumpFreeFlight, type LoopProgress, type LoopSettings } from "./step-loop";
+import { contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
+import { jumpFreeFlight, type LoopProgress, type LoopSettings } from "./step-loop";
 import type { SeriesRecorder } from "./series";
 
 /** Keys of a contact spec the two-body loop knows; anything else (a tangential law) takes the general path. */
@@ -188,7 +188,8 @@ export function integratePair(bodies: Bodies, field: ContactField, settings: Loo
   s[P_WALL_FORCE_X_N] = 0;
   s[P_WALL_FORCE_Y_N] = 0;
 
-  storePairBodies(s, x[0], y[0], vx[0], vy[0], fx[0], fy[0], previousX[0], previousY[0], x[1], y[1], vx[1], vy[1], fx[1], fy[1], previousX[1], previousY[1]);
+  s[P_X0] = x[0]; s[P_Y0] = y[0]; s[P_VX0] = vx[0]; s[P_VY0] = vy[0]; s[P_FX0] = fx[0]; s[P_FY0] = fy[0]; s[P_PX0] = previousX[0]; s[P_PY0] = previousY[0];
+  s[P_X1] = x[1]; s[P_Y1] = y[1]; s[P_VX1] = vx[1]; s[P_VY1] = vy[1]; s[P_FX1] = fx[1]; s[P_FY1] = fy[1]; s[P_PX1] = previousX[1]; s[P_PY1] = previousY[1];
 
   // Field state after priming.
   s[P_CONTACT_POTENTIAL_J] = field.pass[PASS_POTENTIAL_J];
@@ -446,7 +447,16 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
     const distanceSquared = dx * dx + dy * dy;
     if (distanceSquared >= contactDistanceSquared) {
       // The cutoff (largest drift of the step) matters only for a pair out of contact: computed here.
-      const cutoffM = contactCutoffM(maxRadius, largerSquaredLength(x0 - px0, y0 - py0, x1 - px1, y1 - py1));
+      const driftX0 = x0 - px0;
+      const driftY0 = y0 - py0;
+      const drift0 = driftX0 * driftX0 + driftY0 * driftY0;
+      const driftX1 = x1 - px1;
+      const driftY1 = y1 - py1;
+      const drift1 = driftX1 * driftX1 + driftY1 * driftY1;
+      let maxDisplacementSquared = 0;
+      if (drift0 > maxDisplacementSquared) maxDisplacementSquared = drift0;
+      if (drift1 > maxDisplacementSquared) maxDisplacementSquared = drift1;
+      const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
       const cutoffSquared = cutoffM * cutoffM;
       far = !(distanceSquared < cutoffSquared);
       if (distanceSquared < cutoffSquared && skippedContact(dx, dy, px1 - px0, py1 - py0, contactDistanceSquared, nearMissDepthFraction, smallerRadius)) {
@@ -570,7 +580,10 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
     lastWallForceXN = wallForceXN;
     lastWallForceYN = wallForceYN;
 
-    energy = pairKineticEnergy(m0, vx0, vy0, m1, vx1, vy1) + contactPotentialJ + 0;
+    let kinetic = 0;
+    kinetic += 0.5 * m0 * (vx0 * vx0 + vy0 * vy0);
+    kinetic += 0.5 * m1 * (vx1 * vx1 + vy1 * vy1);
+    energy = kinetic + contactPotentialJ + 0;
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
     if (passMaxOverlapFraction > maxOverlapFraction) maxOverlapFraction = passMaxOverlapFraction;
@@ -597,7 +610,7 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
       }
     }
 
-    if (energyBlownUp(energy, startEnergy, blowUpEnergyFactor)) {
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
       exploded = true;
       explodedAtS = n * h;
       break;
@@ -612,7 +625,22 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
     if (returnWhenApart && apart) break;
   }
 
-  storePairBodies(s, x0, y0, vx0, vy0, fx0, fy0, px0, py0, x1, y1, vx1, vy1, fx1, fy1, px1, py1);
+  s[P_X0] = x0;
+  s[P_Y0] = y0;
+  s[P_VX0] = vx0;
+  s[P_VY0] = vy0;
+  s[P_FX0] = fx0;
+  s[P_FY0] = fy0;
+  s[P_PX0] = px0;
+  s[P_PY0] = py0;
+  s[P_X1] = x1;
+  s[P_Y1] = y1;
+  s[P_VX1] = vx1;
+  s[P_VY1] = vy1;
+  s[P_FX1] = fx1;
+  s[P_FY1] = fy1;
+  s[P_PX1] = px1;
+  s[P_PY1] = py1;
   s[P_CONTACT_POTENTIAL_J] = contactPotentialJ;
   s[P_PASS_MAX_OVERLAP_FRACTION] = passMaxOverlapFraction;
   s[P_PASS_MAX_OVERLAP_M] = passMaxOverlapM;
@@ -624,7 +652,12 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
   s[P_FORCE_NOW] = forceNow;
   s[P_END_NORMAL_X] = endNormalX;
   s[P_END_NORMAL_Y] = endNormalY;
-  storeStepBookkeeping(s, n, integratedSteps, chargedContacts, externalImpulseXNs, externalImpulseYNs, lastWallForceXN, lastWallForceYN, energy, maxEnergyErrorRel);
+  s[P_EXTERNAL_IMPULSE_X_NS] = externalImpulseXNs;
+  s[P_EXTERNAL_IMPULSE_Y_NS] = externalImpulseYNs;
+  s[P_LAST_WALL_FORCE_X_N] = lastWallForceXN;
+  s[P_LAST_WALL_FORCE_Y_N] = lastWallForceYN;
+  s[P_ENERGY] = energy;
+  s[P_MAX_ENERGY_ERROR_REL] = maxEnergyErrorRel;
   s[P_MAX_OVERLAP_FRACTION] = maxOverlapFraction;
   s[P_MAX_OMEGA_SQUARED] = maxOmegaSquared;
   s[P_EXPLODED_AT_S] = explodedAtS;
@@ -633,6 +666,7 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
   s[P_FIRST_CONTACT_END_S] = firstContactEndS;
   s[P_EFFECTIVE_RESTITUTION] = effectiveRestitution;
   s[P_CONTACT_DURATION_S] = contactDurationS;
+  s[P_N] = n;
   s[P_OVERLAPPING_CONTACTS] = overlappingContacts;
   s[P_TUNNEL_KIND] = tunnelKind;
   s[P_TUNNEL_BODY_A] = tunnelBodyA;
@@ -640,6 +674,8 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
   s[P_PHASE] = phase;
   s[P_FIRST_A] = firstA;
   s[P_FIRST_B] = firstB;
+  s[P_CHARGED_CONTACTS] = chargedContacts;
+  s[P_INTEGRATED_STEPS] = integratedSteps;
   s[P_CONTACT_STEPS] = contactSteps;
   s[P_HAS_RESTITUTION] = hasRestitution;
   s[P_HAS_DURATION] = hasDuration;
@@ -659,8 +695,6 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
  * rarely taken arithmetic, so its compiled code is never thrown away mid-run.
  */
 function freePairSteps(s: Float64Array, end: number): void {
-  // The same slot loads as advancePair's: a function cannot hand back this many locals without an
-  // allocation per chunk, and reading the slots inside the loop instead would cost every step.
   const h = s[P_H];
   const contactsChargedMax = s[P_CONTACTS_CHARGED_MAX];
   const gravityImpulsePerStepNs = s[P_GRAVITY_IMPULSE_PER_STEP_NS];
@@ -708,8 +742,16 @@ function freePairSteps(s: Float64Array, end: number): void {
     const distanceSquared = dx * dx + dy * dy;
     // In contact (or a non-finite distance, which the general step treats as a contact): not free.
     if (!(distanceSquared >= contactDistanceSquared)) break;
-    const maxDisplacementSquared = largerSquaredLength(nextX0 - x0, nextY0 - y0, nextX1 - x1, nextY1 - y1);
-    const cutoffM = contactCutoffM(maxRadius, maxDisplacementSquared);
+    const driftX0 = nextX0 - x0;
+    const driftY0 = nextY0 - y0;
+    const drift0 = driftX0 * driftX0 + driftY0 * driftY0;
+    const driftX1 = nextX1 - x1;
+    const driftY1 = nextY1 - y1;
+    const drift1 = driftX1 * driftX1 + driftY1 * driftY1;
+    let maxDisplacementSquared = 0;
+    if (drift0 > maxDisplacementSquared) maxDisplacementSquared = drift0;
+    if (drift1 > maxDisplacementSquared) maxDisplacementSquared = drift1;
+    const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
     // Within the cutoff the general step looks for a contact skipped within the step.
     if (distanceSquared < cutoffM * cutoffM) break;
 
@@ -730,8 +772,6 @@ function freePairSteps(s: Float64Array, end: number): void {
     fx1 = 0;
     fy1 = restFy1;
 
-    // advancePair's bookkeeping with nothing in contact: it updates seven locals, which a shared
-    // function could only return through the state vector, a store and a load per value per step.
     n++;
     integratedSteps++;
     chargedContacts += 0 < contactsChargedMax ? 0 : contactsChargedMax;
@@ -740,10 +780,13 @@ function freePairSteps(s: Float64Array, end: number): void {
     externalImpulseYNs += gravityImpulsePerStepNs;
     lastWallForceXN = wallForceXN;
     lastWallForceYN = wallForceYN;
-    energy = pairKineticEnergy(m0, vx0, vy0, m1, vx1, vy1) + 0 + 0;
+    let kinetic = 0;
+    kinetic += 0.5 * m0 * (vx0 * vx0 + vy0 * vy0);
+    kinetic += 0.5 * m1 * (vx1 * vx1 + vy1 * vy1);
+    energy = kinetic + 0 + 0;
     const energyErrorRel = (energy - startEnergy) / energyScale;
     if (energyErrorRel > maxEnergyErrorRel) maxEnergyErrorRel = energyErrorRel;
-    if (energyBlownUp(energy, startEnergy, blowUpEnergyFactor)) {
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
       exploded = true;
       break;
     }
@@ -760,7 +803,7 @@ function freePairSteps(s: Float64Array, end: number): void {
     const kickX1 = kick1 * fx1;
     const kickY1 = kick1 * fy1;
     const coastDrift = maxDisplacementSquared * (1 + 1e-6);
-    const coastCutoffM = contactCutoffM(maxRadius, coastDrift);
+    const coastCutoffM = 2 * maxRadius + 2 * Math.sqrt(coastDrift);
     const coastCutoffSquared = coastCutoffM * coastCutoffM;
     if (
       kickX0 === 0 && kickY0 === 0 && kickX1 === 0 && kickY1 === 0 &&
@@ -814,8 +857,17 @@ function freePairSteps(s: Float64Array, end: number): void {
   }
 
   if (n === startN) return;
-  storePairBodies(s, x0, y0, vx0, vy0, fx0, fy0, px0, py0, x1, y1, vx1, vy1, fx1, fy1, px1, py1);
-  storeStepBookkeeping(s, n, integratedSteps, chargedContacts, externalImpulseXNs, externalImpulseYNs, lastWallForceXN, lastWallForceYN, energy, maxEnergyErrorRel);
+  s[P_X0] = x0; s[P_Y0] = y0; s[P_VX0] = vx0; s[P_VY0] = vy0; s[P_FX0] = fx0; s[P_FY0] = fy0; s[P_PX0] = px0; s[P_PY0] = py0;
+  s[P_X1] = x1; s[P_Y1] = y1; s[P_VX1] = vx1; s[P_VY1] = vy1; s[P_FX1] = fx1; s[P_FY1] = fy1; s[P_PX1] = px1; s[P_PY1] = py1;
+  s[P_N] = n;
+  s[P_INTEGRATED_STEPS] = integratedSteps;
+  s[P_CHARGED_CONTACTS] = chargedContacts;
+  s[P_EXTERNAL_IMPULSE_X_NS] = externalImpulseXNs;
+  s[P_EXTERNAL_IMPULSE_Y_NS] = externalImpulseYNs;
+  s[P_LAST_WALL_FORCE_X_N] = lastWallForceXN;
+  s[P_LAST_WALL_FORCE_Y_N] = lastWallForceYN;
+  s[P_ENERGY] = energy;
+  s[P_MAX_ENERGY_ERROR_REL] = maxEnergyErrorRel;
   // The field's pass values after a free step (ContactField.evaluate's resets; nothing overlapped).
   s[P_CONTACT_POTENTIAL_J] = 0;
   s[P_OVERLAPPING_CONTACTS] = 0;
@@ -832,41 +884,4 @@ function freePairSteps(s: Float64Array, end: number): void {
 /** Whether a number is −0 (adding +0 or −0 to anything else leaves it unchanged). */
 function isNegativeZero(value: number): boolean {
   return value === 0 && 1 / value < 0;
-}
-
-/** Stores both discs' state (position, velocity, force, position before the step) in the state vector. */
-function storePairBodies(s: Float64Array, x0: number, y0: number, vx0: number, vy0: number, fx0: number, fy0: number, px0: number, py0: number, x1: number, y1: number, vx1: number, vy1: number, fx1: number, fy1: number, px1: number, py1: number): void {
-  s[P_X0] = x0; s[P_Y0] = y0; s[P_VX0] = vx0; s[P_VY0] = vy0; s[P_FX0] = fx0; s[P_FY0] = fy0; s[P_PX0] = px0; s[P_PY0] = py0;
-  s[P_X1] = x1; s[P_Y1] = y1; s[P_VX1] = vx1; s[P_VY1] = vy1; s[P_FX1] = fx1; s[P_FY1] = fy1; s[P_PX1] = px1; s[P_PY1] = py1;
-}
-
-/** Stores the step loop's running values that both the general and the free-flight steps advance. */
-function storeStepBookkeeping(s: Float64Array, n: number, integratedSteps: number, chargedContacts: number, externalImpulseXNs: number, externalImpulseYNs: number, lastWallForceXN: number, lastWallForceYN: number, energy: number, maxEnergyErrorRel: number): void {
-  s[P_N] = n;
-  s[P_INTEGRATED_STEPS] = integratedSteps;
-  s[P_CHARGED_CONTACTS] = chargedContacts;
-  s[P_EXTERNAL_IMPULSE_X_NS] = externalImpulseXNs;
-  s[P_EXTERNAL_IMPULSE_Y_NS] = externalImpulseYNs;
-  s[P_LAST_WALL_FORCE_X_N] = lastWallForceXN;
-  s[P_LAST_WALL_FORCE_Y_N] = lastWallForceYN;
-  s[P_ENERGY] = energy;
-  s[P_MAX_ENERGY_ERROR_REL] = maxEnergyErrorRel;
-}
-
-/** The larger of the squared lengths of (ax, ay) and (bx, by), at least 0 (a NaN is passed over). */
-function largerSquaredLength(ax: number, ay: number, bx: number, by: number): number {
-  const a = ax * ax + ay * ay;
-  const b = bx * bx + by * by;
-  let larger = 0;
-  if (a > larger) larger = a;
-  if (b > larger) larger = b;
-  return larger;
-}
-
-/** The two discs' kinetic energy, summed from 0 in body order as the step loop sums it. */
-function pairKineticEnergy(m0: number, vx0: number, vy0: number, m1: number, vx1: number, vy1: number): number {
-  let kinetic = 0;
-  kinetic += 0.5 * m0 * (vx0 * vx0 + vy0 * vy0);
-  kinetic += 0.5 * m1 * (vx1 * vx1 + vy1 * vy1);
-  return kinetic;
 }

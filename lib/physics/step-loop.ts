@@ -156,7 +156,7 @@ export function integrate(bodies: Bodies, field: ContactField, step: StepFunctio
 
     if (recorder) recorder.recordUpTo(n, bodies, pass[PASS_POTENTIAL_J], gravity, pass[PASS_MAX_OVERLAP_M], h);
 
-    if (energyBlownUp(energy, startEnergy, blowUpEnergyFactor)) {
+    if (!Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy)) {
       exploded = true;
       explodedAtS = n * h;
       break;
@@ -220,9 +220,4 @@ export function jumpFreeFlight(bodies: Bodies, from: number, to: number, h: numb
     position = segmentEnd;
     if (recorder && position === sampleStep) recorder.recordUpTo(position, bodies, 0, gravity, 0, h);
   }
-}
-
-/** Whether a run blew up: its energy is not finite, or grew past `blowUpEnergyFactor` times a positive start. */
-export function energyBlownUp(energy: number, startEnergy: number, blowUpEnergyFactor: number): boolean {
-  return !Number.isFinite(energy) || (startEnergy > 0 && energy > blowUpEnergyFactor * startEnergy);
 }
