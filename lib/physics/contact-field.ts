@@ -26,7 +26,6 @@
 import type { Bodies } from "./bodies";
 import type { ForceField } from "./integrators";
 import { BroadPhase, NEIGHBOUR_LIST_SKIN_FRACTION } from "./broad-phase";
-import { contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
 import { NO_TANGENTIAL, TangentialContacts, tangentialActive, type TangentialParameters } from "./tangential";
 
 export const CONTACT_LINEAR = 0;
@@ -50,7 +49,7 @@ export const TUNNEL_THROUGH_WALL = 4;
 /**
  * Depth, as a fraction of the smaller radius, by which a step's straight-line relative motion must
  * cut into contact before a contact counts as skipped (our choice: far above rounding and the
- * chord error of a resting pile, far below any pass-through; see skippedContact in contact-geometry.ts).
+ * chord error of a resting pile, far below any pass-through; see checkSkippedContact).
  */
 export const SKIPPED_CONTACT_DEPTH_FRACTION = 1e-3;
 
@@ -365,21 +364,29 @@ export class ContactField implements ForceField {
     const contactDistanceSquared = contactDistance * contactDistance;
     if (distanceSquared >= contactDistanceSquared) {
       if (distanceSquared >= this.cutoffSquaredM2) return;
-      if (skippedContact(dx, dy, previousX[j] - previousX[i], previousY[j] - previousY[i], contactDistanceSquared, this.nearMissDepthFraction, radius[i] < radius[j] ? radius[i] : radius[j])) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+      this.checkSkippedContact(bodies, i, j, dx, dy, contactDistanceSquared);
       return;
     }
     const previousDx = previousX[j] - previousX[i];
     const previousDy = previousY[j] - previousY[i];
     const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
     const distance = Math.sqrt(distanceSquared);
-    const normalX = contactNormal(dx, distance, previousDx, previousDistanceSquared, 1);
-    const normalY = contactNormal(dy, distance, previousDy, previousDistanceSquared, 0);
-    // Coincident centres: pushed apart along the last direction of approach (or x).
-    if (!(distance > 0)) this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    let normalX: number;
+    let normalY: number;
+    if (distance > 0) {
+      normalX = dx / distance;
+      normalY = dy / distance;
+    } else {
+      // Coincident centres: push apart along the last direction of approach (or x).
+      const previousDistance = Math.sqrt(previousDistanceSquared);
+      normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+      normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+      this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+    }
     if (previousDistanceSquared >= contactDistanceSquared) {
       // New contact: entering it while already receding means the step jumped past the approach,
-      // unless the approach it jumped past only grazed contact (see skippedContact).
-      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && passedDeeperThanTolerance(contactDistance, this.nearMissDepthFraction, radius[i] < radius[j] ? radius[i] : radius[j], previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+      // unless the approach it jumped past only grazed contact (see checkSkippedContact).
+      if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radius[i], radius[j], contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
         this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
       }
     } else if (dx * previousDx + dy * previousDy <= 0) {
@@ -422,7 +429,7 @@ export class ContactField implements ForceField {
    * shapes had run in a process (a pair sweep primes its forces here, all pairs), the pile's loop
    * ran about a quarter slower than in a fresh process. The same operations in the same order as
    * pair() for each pair, with
-   * normalForce and dampingCoefficient written out, body i's values and force
+   * checkSkippedContact, normalForce and dampingCoefficient written out, body i's values and force
    * held in locals across its row (no other pair of the row touches them), the pass's sums and
    * maxima in locals, and trackFirstContact called only when it can record something. Results are
    * byte-identical to pair()'s.
@@ -476,19 +483,41 @@ export class ContactField implements ForceField {
         const contactDistanceSquared = contactDistance * contactDistance;
         if (distanceSquared >= contactDistanceSquared) {
           if (distanceSquared >= cutoffSquared) continue;
-          if (skippedContact(dx, dy, previousX[j] - previousXi, previousY[j] - previousYi, contactDistanceSquared, nearMissDepthFraction, radiusI < radiusJ ? radiusI : radiusJ)) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+          // checkSkippedContact.
+          const previousDx = previousX[j] - previousXi;
+          const previousDy = previousY[j] - previousYi;
+          if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) continue;
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          if (stepSquared === 0) continue;
+          const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+          if (along <= 0 || along >= 1) continue;
+          const closestX = previousDx + along * stepX;
+          const closestY = previousDy + along * stepY;
+          const smallerRadius = radiusI < radiusJ ? radiusI : radiusJ;
+          const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
+          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
           continue;
         }
         const previousDx = previousX[j] - previousXi;
         const previousDy = previousY[j] - previousYi;
         const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
         const distance = Math.sqrt(distanceSquared);
-        const normalX = contactNormal(dx, distance, previousDx, previousDistanceSquared, 1);
-        const normalY = contactNormal(dy, distance, previousDy, previousDistanceSquared, 0);
-        if (!(distance > 0)) this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        let normalX: number;
+        let normalY: number;
+        if (distance > 0) {
+          normalX = dx / distance;
+          normalY = dy / distance;
+        } else {
+          const previousDistance = Math.sqrt(previousDistanceSquared);
+          normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+          normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+          this.recordTunnel(TUNNEL_CENTRES_CROSSED, i, j);
+        }
         const isNewContact = previousDistanceSquared >= contactDistanceSquared;
         if (isNewContact) {
-          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && passedDeeperThanTolerance(contactDistance, nearMissDepthFraction, radiusI < radiusJ ? radiusI : radiusJ, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
+          if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && this.passedDeeperThanTolerance(radiusI, radiusJ, contactDistance, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
             this.recordTunnel(TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, i, j);
           }
         } else if (dx * previousDx + dy * previousDy <= 0) {
@@ -549,6 +578,47 @@ export class ContactField implements ForceField {
     this.pass[PASS_MAX_OVERLAP_FRACTION] = maxOverlapFraction;
     this.pass[PASS_MAX_OVERLAP_M] = maxOverlapM;
     this.pass[PASS_MAX_OMEGA_SQUARED] = maxOmegaSquared;
+  }
+  /**
+   * A skipped contact: neither end of the step overlaps, but the straight line between them comes
+   * closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
+   * The tolerance keeps near misses out: in a resting pile neighbours sit nanometres apart, and the
+   * chord between two step ends of a curved (accelerated) path dips below the true path by up to
+   * |Δv|·h/8, so a straight line that grazes contact by that much is no body passing another.
+   * A body that does pass through another misses by (1 − f) of the sum of radii (f the impact
+   * offset), so only passes within 1/1000 of a radius of grazing are no longer called tunnels.
+   */
+  private checkSkippedContact(bodies: Bodies, i: number, j: number, dx: number, dy: number, contactDistanceSquared: number): void {
+    const { previousX, previousY, radius } = bodies;
+    const previousDx = previousX[j] - previousX[i];
+    const previousDy = previousY[j] - previousY[i];
+    if (previousDx * previousDx + previousDy * previousDy < contactDistanceSquared) return; // contact ended this step
+    const stepX = dx - previousDx;
+    const stepY = dy - previousDy;
+    const stepSquared = stepX * stepX + stepY * stepY;
+    if (stepSquared === 0) return;
+    const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+    if (along <= 0 || along >= 1) return;
+    const closestX = previousDx + along * stepX;
+    const closestY = previousDy + along * stepY;
+    const smallerRadius = radius[i] < radius[j] ? radius[i] : radius[j];
+    const depthLimit = Math.sqrt(contactDistanceSquared) - this.nearMissDepthFraction * smallerRadius;
+    if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) this.recordTunnel(TUNNEL_SKIPPED_CONTACT, i, j);
+  }
+
+  /**
+   * Whether the straight-line relative motion of a step (from (startX, startY) by (stepX, stepY))
+   * came closer than the sum of radii by more than SKIPPED_CONTACT_DEPTH_FRACTION of the smaller radius.
+   */
+  private passedDeeperThanTolerance(radiusA: number, radiusB: number, contactDistance: number, startX: number, startY: number, stepX: number, stepY: number): boolean {
+    const stepSquared = stepX * stepX + stepY * stepY;
+    let along = stepSquared > 0 ? -(startX * stepX + startY * stepY) / stepSquared : 0;
+    if (along < 0) along = 0;
+    else if (along > 1) along = 1;
+    const closestX = startX + along * stepX;
+    const closestY = startY + along * stepY;
+    const depthLimit = contactDistance - this.nearMissDepthFraction * (radiusA < radiusB ? radiusA : radiusB);
+    return closestX * closestX + closestY * closestY < depthLimit * depthLimit;
   }
 
   private walls(bodies: Bodies): void {

@@ -8,7 +8,6 @@
 import type { Scenario } from "./types";
 import type { Bodies } from "./bodies";
 import { BROAD_PHASE_ALL_PAIRS, CONTACT_LINEAR, type ContactField, DAMPING_COEFFICIENT, DAMPING_NONE, FIRST_CONTACT_ACTIVE, FIRST_CONTACT_ENDED, FIRST_CONTACT_PENDING, PASS_FIRST_CONTACT_ENDED, PASS_FIRST_CONTACT_STARTED, PASS_MAX_OMEGA_SQUARED, PASS_MAX_OVERLAP_FRACTION, PASS_MAX_OVERLAP_M, PASS_OVERLAPPING_CONTACTS, PASS_POTENTIAL_J, PASS_TUNNEL_DETECTED, PASS_WALL_FORCE_X_N, PASS_WALL_FORCE_Y_N, TUNNEL_CENTRES_CROSSED, TUNNEL_ENTERED_PAST_CLOSEST_APPROACH, TUNNEL_NONE, TUNNEL_SKIPPED_CONTACT } from "./contact-field";
-import { contactNormal, passedDeeperThanTolerance, skippedContact } from "./contact-geometry";
 import { jumpFreeFlight, type LoopProgress, type LoopSettings } from "./step-loop";
 import type { SeriesRecorder } from "./series";
 
@@ -459,12 +458,30 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
       const cutoffM = 2 * maxRadius + 2 * Math.sqrt(maxDisplacementSquared);
       const cutoffSquared = cutoffM * cutoffM;
       far = !(distanceSquared < cutoffSquared);
-      if (distanceSquared < cutoffSquared && skippedContact(dx, dy, px1 - px0, py1 - py0, contactDistanceSquared, nearMissDepthFraction, smallerRadius)) {
-        tunnelDetectedThisPass = true;
-        if (tunnelKind === TUNNEL_NONE) {
-          tunnelKind = TUNNEL_SKIPPED_CONTACT;
-          tunnelBodyA = 0;
-          tunnelBodyB = 1;
+      if (distanceSquared < cutoffSquared) {
+        // checkSkippedContact
+        const previousDx = px1 - px0;
+        const previousDy = py1 - py0;
+        if (!(previousDx * previousDx + previousDy * previousDy < contactDistanceSquared)) {
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          if (stepSquared !== 0) {
+            const along = -(previousDx * stepX + previousDy * stepY) / stepSquared;
+            if (!(along <= 0 || along >= 1)) {
+              const closestX = previousDx + along * stepX;
+              const closestY = previousDy + along * stepY;
+              const depthLimit = Math.sqrt(contactDistanceSquared) - nearMissDepthFraction * smallerRadius;
+              if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) {
+                tunnelDetectedThisPass = true;
+                if (tunnelKind === TUNNEL_NONE) {
+                  tunnelKind = TUNNEL_SKIPPED_CONTACT;
+                  tunnelBodyA = 0;
+                  tunnelBodyB = 1;
+                }
+              }
+            }
+          }
         }
       }
     } else {
@@ -472,9 +489,18 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
       const previousDy = py1 - py0;
       const previousDistanceSquared = previousDx * previousDx + previousDy * previousDy;
       const distance = Math.sqrt(distanceSquared);
-      const normalX = contactNormal(dx, distance, previousDx, previousDistanceSquared, 1);
-      const normalY = contactNormal(dy, distance, previousDy, previousDistanceSquared, 0);
-      let tunnel = distance > 0 ? TUNNEL_NONE : TUNNEL_CENTRES_CROSSED;
+      let normalX: number;
+      let normalY: number;
+      let tunnel = TUNNEL_NONE;
+      if (distance > 0) {
+        normalX = dx / distance;
+        normalY = dy / distance;
+      } else {
+        const previousDistance = Math.sqrt(previousDistanceSquared);
+        normalX = previousDistance > 0 ? previousDx / previousDistance : 1;
+        normalY = previousDistance > 0 ? previousDy / previousDistance : 0;
+        tunnel = TUNNEL_CENTRES_CROSSED;
+      }
       if (tunnel !== TUNNEL_NONE) {
         tunnelDetectedThisPass = true;
         if (tunnelKind === TUNNEL_NONE) {
@@ -485,8 +511,18 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
       }
       tunnel = TUNNEL_NONE;
       if (previousDistanceSquared >= contactDistanceSquared) {
-        if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0 && passedDeeperThanTolerance(contactDistance, nearMissDepthFraction, smallerRadius, previousDx, previousDy, dx - previousDx, dy - previousDy)) {
-          tunnel = TUNNEL_ENTERED_PAST_CLOSEST_APPROACH;
+        if (dx * (dx - previousDx) + dy * (dy - previousDy) >= 0) {
+          // passedDeeperThanTolerance(r0, r1, contactDistance, previousDx, previousDy, dx − previousDx, dy − previousDy)
+          const stepX = dx - previousDx;
+          const stepY = dy - previousDy;
+          const stepSquared = stepX * stepX + stepY * stepY;
+          let along = stepSquared > 0 ? -(previousDx * stepX + previousDy * stepY) / stepSquared : 0;
+          if (along < 0) along = 0;
+          else if (along > 1) along = 1;
+          const closestX = previousDx + along * stepX;
+          const closestY = previousDy + along * stepY;
+          const depthLimit = contactDistance - nearMissDepthFraction * smallerRadius;
+          if (closestX * closestX + closestY * closestY < depthLimit * depthLimit) tunnel = TUNNEL_ENTERED_PAST_CLOSEST_APPROACH;
         }
       } else if (dx * previousDx + dy * previousDy <= 0) {
         tunnel = TUNNEL_CENTRES_CROSSED;
