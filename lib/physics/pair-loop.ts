@@ -728,7 +728,9 @@ function advancePair(s: Float64Array, end: number, returnWhenFar: boolean, retur
  * only if the pair is still far; otherwise the loop returns with that step not taken, and
  * `advancePair` takes it. What cannot change here is not recomputed: the pass maxima are 0 and
  * the running maxima are ≥ 0, no contact, tunnel or first-contact event can occur. Carries no
- * rarely taken arithmetic, so its compiled code is never thrown away mid-run.
+ * rarely taken arithmetic, so its compiled code is never thrown away mid-run. The slot loads and
+ * per-step bookkeeping it shares with `advancePair` stay written out: they fill 7–20 locals each
+ * step, and sharing them would cost a store and a load per value in the pair grid's hottest loop.
  */
 function freePairSteps(s: Float64Array, end: number): void {
   const h = s[P_H];
