@@ -8,7 +8,7 @@ import type { SweepStatus, SweepView } from "@/lib/sweeps/sweep-view";
 import { apiFetch } from "@/lib/ui/api";
 import { studioApiPath, seededBy } from "@/lib/ui/queries";
 import { FIRST_CURSOR, withPage, type CellRow, type CellsPage, type HeldCells } from "./sweep-cells";
-import { firstCellsUrl, takeArrivedEarlyAnswer, takeEarlyAnswer } from "./early-cells";
+import { firstCellsUrl, takeArrivedEarlyAnswer, takeEarlyAnswer, type EarlyAnswer } from "./early-cells";
 
 export type { CellRow } from "./sweep-cells";
 
@@ -88,6 +88,11 @@ const heldCellRows = (held: HeldCells) => held.cells;
  * (every second while the sweep is active, and once more when it finishes) only for the cells of
  * the results written after the cursor of the cells already held, merged in by index.
  */
+/** The cells page of an early answer (early-cells.ts) that succeeded; null for anything else, which is asked again so errors reach the page as apiFetch words them. */
+function earlyPage(early: EarlyAnswer | null | undefined): CellsPage | null {
+  return early && early.status === 200 ? (JSON.parse(early.text) as CellsPage) : null;
+}
+
 export function useSweepCells(studioId: string, sweepId: string, active: boolean) {
   const queryClient = useQueryClient();
   const queryKey = sweepKeys.cells(studioId, sweepId);
@@ -99,9 +104,9 @@ export function useSweepCells(studioId: string, sweepId: string, active: boolean
   useLayoutEffect(() => {
     const key = sweepKeys.cells(studioId, sweepId);
     if (queryClient.getQueryData(key) !== undefined) return;
-    const early = takeArrivedEarlyAnswer(firstCellsUrl(studioId, sweepId));
-    if (!early || early.status !== 200) return;
-    queryClient.setQueryData<HeldCells>(key, withPage(undefined, JSON.parse(early.text) as CellsPage));
+    const page = earlyPage(takeArrivedEarlyAnswer(firstCellsUrl(studioId, sweepId)));
+    if (!page) return;
+    queryClient.setQueryData<HeldCells>(key, withPage(undefined, page));
     // The one re-render after hydration is the point: it draws the map with the cells before the first paint.
     // eslint-disable-next-line react-hooks/set-state-in-effect
     setSeeded(true);
@@ -113,8 +118,7 @@ export function useSweepCells(studioId: string, sweepId: string, active: boolean
       const url = `${sweepPath(studioId, sweepId)}/cells?after=${encodeURIComponent(held?.cursor ?? FIRST_CURSOR)}`;
       // The first read may have been started by the page's HTML (early-cells.ts): take its answer when it
       // succeeded; on anything else ask again, so errors reach the page as apiFetch words them.
-      const early = held ? undefined : await takeEarlyAnswer(url);
-      const page = early && early.status === 200 ? (JSON.parse(early.text) as CellsPage) : await apiFetch<CellsPage>(url);
+      const page = (held ? null : earlyPage(await takeEarlyAnswer(url))) ?? (await apiFetch<CellsPage>(url));
       return withPage(held, page);
     },
     select: heldCellRows,
