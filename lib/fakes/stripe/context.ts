@@ -124,7 +124,6 @@ export function paginate(items: StripeObject[], params: Params, url: string, cur
   return { object: "list", data: items.slice(0, limit), has_more: items.length > limit, url };
 }
 
-/** `created` filters as Stripe takes them: `created=<ts>` or `created[gt|gte|lt|lte]=<ts>`. */
 /**
  * A list's equality filters, as Stripe's list parameters work: each given value must equal the
  * object's field of that name; a value not given (undefined) lets every object through. The caller
@@ -135,6 +134,7 @@ export function fieldsEqual(values: Record<string, unknown>): (o: StripeObject) 
   return (o) => given.every(([field, value]) => o[field] === value);
 }
 
+/** `created` filters as Stripe takes them: `created=<ts>` or `created[gt|gte|lt|lte]=<ts>`. */
 export function createdFilter(params: Params, key = "created"): (o: StripeObject) => boolean {
   if (!params.has(key)) return () => true;
   if (typeof params.raw[key] === "string") {
